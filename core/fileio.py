@@ -1,0 +1,58 @@
+"""Side effects at the edge: atomic writes and input hashing."""
+
+from __future__ import annotations
+
+import hashlib
+import os
+import tempfile
+from pathlib import Path
+
+from .errors import CounterdraftError
+
+__all__ = ["atomic_write_bytes", "atomic_write_text", "file_sha256", "refuse_overwrite_of_inputs"]
+
+
+def atomic_write_bytes(path: str | os.PathLike[str], data: bytes) -> None:
+    """Write *data* to *path* via a temporary file in the same folder, then rename.
+
+    A reader never sees a half-written file, and an interrupted write leaves any previous
+    file at *path* intact.
+    """
+    target = Path(path)
+    folder = target.parent if str(target.parent) else Path(".")
+    if not folder.is_dir():
+        raise CounterdraftError("the output folder does not exist", path=str(target))
+    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=folder)
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.replace(tmp, target)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except FileNotFoundError:
+            pass
+        raise
+
+
+def atomic_write_text(path: str | os.PathLike[str], text: str) -> None:
+    atomic_write_bytes(path, text.encode("utf-8"))
+
+
+def file_sha256(path: str | os.PathLike[str]) -> str:
+    h = hashlib.sha256()
+    with open(path, "rb") as fh:
+        for chunk in iter(lambda: fh.read(1 << 20), b""):
+            h.update(chunk)
+    return h.hexdigest()
+
+
+def refuse_overwrite_of_inputs(output: str | os.PathLike[str], *inputs: str | os.PathLike[str]) -> None:
+    """Raise when *output* names the same file as one of *inputs*."""
+    out = Path(output).resolve()
+    for inp in inputs:
+        if Path(inp).resolve() == out:
+            raise CounterdraftError("output path is one of the input files; refusing to overwrite it",
+                                    path=str(output))

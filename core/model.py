@@ -1,0 +1,225 @@
+"""The document model: plain frozen dataclasses that every stage of the engine shares.
+
+A reader turns a file into a tuple of :class:`Block` (one per paragraph, in reading order,
+table cells included).  :mod:`core.structure` turns blocks into :class:`Provision` objects and
+:mod:`core.terms` finds the :class:`DefinedTerm` objects.  Nothing here holds a live
+python-docx or lxml object: the engine never touches XML above ``core.docx``.
+
+Invariants
+----------
+* ``Block.index`` is the block's position in ``Document.blocks`` (0-based, gap-free).
+* ``Provision.id`` is ``"p<n>"`` with n = 1, 2, ... in document order.
+* ``Provision.segments`` says where each line of the provision's text sits in the blocks:
+  ``provision.text == "\n".join(doc.blocks[s.block].text[s.start:s.end] for s in
+  provision.segments)``.  Writers use it to find the provision's words again in the file.
+* ``Provision.text`` holds the provision's own words only: no number label, no heading,
+  no child provisions.  Unnumbered paragraphs that follow a provision belong to it and are
+  joined with ``"\\n"``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Literal
+
+__all__ = [
+    "Block",
+    "Deviation",
+    "Edit",
+    "Frequency",
+    "Pair",
+    "CATEGORIES",
+    "CHANGES",
+    "ClosestProvision",
+    "PAIR_STATUSES",
+    "Review",
+    "Segment",
+    "TermMapping",
+    "DefinedTerm",
+    "Document",
+    "Provision",
+    "ProvisionKind",
+    "PROVISION_KINDS",
+]
+
+ProvisionKind = Literal[
+    "title", "parties", "recital", "definition", "clause", "signature", "schedule", "other"
+]
+PROVISION_KINDS: tuple[str, ...] = (
+    "title", "parties", "recital", "definition", "clause", "signature", "schedule", "other",
+)
+
+
+@dataclass(frozen=True, slots=True)
+class Block:
+    """One paragraph as a reader saw it, before any legal structure is inferred.
+
+    ``text`` is the displayed text with tracked changes read as accepted, field results
+    shown, tabs as ``"\\t"`` and soft line breaks as ``"\\n"``; an auto-number label is *not*
+    part of it (it lives in ``label``).  Literal labels typed into the text stay in ``text``.
+    """
+
+    index: int
+    text: str
+    #: Rendered auto-number label exactly as displayed, e.g. ``"7.2."``, ``"(a)"``; None if the
+    #: paragraph is not auto-numbered (or is a bullet: then ``bullet`` is True).
+    label: str | None = None
+    #: 0-based list level (w:ilvl) of an auto-numbered paragraph, else None.
+    list_level: int | None = None
+    #: Identifier of the list the paragraph belongs to (the abstract numbering), else None.
+    list_id: str | None = None
+    bullet: bool = False
+    #: Paragraph style name as the document names it (e.g. "Heading 2"), else None.
+    style: str | None = None
+    #: Outline level from a heading style or w:outlineLvl: 1 for "Heading 1"; 0 for "Title".
+    outline_level: int | None = None
+    #: Leading run-in heading: the text of the emphasised (bold, underlined or all-caps) runs
+    #: at the start of the paragraph when the paragraph continues with plain text.
+    lead: str | None = None
+    #: True when every non-blank run of the paragraph is emphasised (a standalone heading line).
+    emphasised: bool = False
+    #: True when all letters are shown in capitals (w:caps or typed in capitals).
+    all_caps: bool = False
+    in_table: bool = False
+
+
+@dataclass(frozen=True, slots=True)
+class Segment:
+    """``blocks[block].text[start:end]`` is one line of a provision's text."""
+
+    block: int
+    start: int
+    end: int
+
+
+@dataclass(frozen=True, slots=True)
+class Provision:
+    """One unit of the agreement: a clause at any level, a definition, a recital, ..."""
+
+    id: str
+    kind: str  # one of PROVISION_KINDS
+    number: str | None  # rendered label without trailing "." or ":"; e.g. "7.2", "(a)"
+    heading: str | None
+    level: int  # depth in the numbering hierarchy; 1 = top level, 0 = unnumbered
+    parent: str | None
+    text: str
+    term: str | None = None  # only for kind == "definition"
+    segments: tuple[Segment, ...] = ()
+
+
+@dataclass(frozen=True, slots=True)
+class DefinedTerm:
+    term: str
+    definition: str
+    provision: str  # id of the provision that defines it
+    uses: int  # capitalised uses elsewhere, plural and possessive forms counted
+
+
+@dataclass(frozen=True, slots=True)
+class Document:
+    source: str  # file name as given to the reader (the JSON shows its base name)
+    provisions: tuple[Provision, ...]
+    terms: tuple[DefinedTerm, ...]
+    blocks: tuple[Block, ...] = ()
+    #: Human-readable notes from reading, e.g. "3 tracked changes read as accepted".
+    warnings: tuple[str, ...] = field(default=())
+
+    def provision(self, pid: str) -> Provision:
+        """The provision with id *pid* (KeyError if absent)."""
+        for p in self.provisions:
+            if p.id == pid:
+                return p
+        raise KeyError(pid)
+
+
+# --------------------------------------------------------------------------------------
+# The review: what the engine (core.review) produces from a draft and a precedent.
+# --------------------------------------------------------------------------------------
+
+PAIR_STATUSES: tuple[str, ...] = ("same", "changed", "moved", "added", "removed", "split", "merged")
+CATEGORIES: tuple[str, ...] = ("substantive", "term", "formatting", "numbering", "punctuation")
+CHANGES: tuple[str, ...] = ("insert", "delete", "replace", "move", "add-provision", "remove-provision")
+
+
+@dataclass(frozen=True, slots=True)
+class TermMapping:
+    """The draft calls ``draft`` what the precedent calls ``precedent`` (singular forms)."""
+
+    draft: str
+    precedent: str
+    confidence: float  # 0..1
+    evidence: tuple[str, ...]  # subset of ("definition", "substitution", "embedding", "user")
+    occurrences: int  # uses of the draft term in the draft, plural and possessive included
+
+
+@dataclass(frozen=True, slots=True)
+class ClosestProvision:
+    document: str
+    provision: str
+    similarity: float
+
+
+@dataclass(frozen=True, slots=True)
+class Frequency:
+    """How common a wording is in the precedent set (null in the JSON without a library)."""
+
+    same_type: int
+    matching: int
+    total: int
+    closest: tuple[ClosestProvision, ...] = ()
+    #: For inserted or removed words: same-type library provisions that contain them.
+    containing: int | None = None
+    #: The reviewer's label of the matching variant: preferred, acceptable, fallback,
+    #: not acceptable; None when unlabelled.
+    position: str | None = None
+
+
+@dataclass(frozen=True, slots=True)
+class Pair:
+    draft: str | None  # provision id in the draft, or None (removed)
+    precedent: str | None  # provision id in the precedent, or None (added)
+    status: str  # one of PAIR_STATUSES
+    similarity: float
+    frequency: Frequency | None = None
+
+
+@dataclass(frozen=True, slots=True)
+class Edit:
+    """One hunk of a pair's word diff, as character offsets into the two provision texts,
+    in the spirit of difflib's opcodes: ``precedent.text[p1:p2]`` became ``draft.text[d1:d2]``."""
+
+    tag: str  # "equal" | "insert" | "delete" | "replace"
+    p1: int
+    p2: int
+    d1: int
+    d2: int
+
+
+@dataclass(frozen=True, slots=True)
+class Deviation:
+    id: str  # "v1", "v2", ... stable for the same inputs
+    rank: int  # 1..N, by descending severity, ties by draft order
+    severity: int  # 0..100
+    category: str  # one of CATEGORIES
+    change: str  # one of CHANGES
+    draft_provision: str | None
+    precedent_provision: str | None
+    precedent_text: str  # the changed words with a little context, verbatim from the precedent
+    draft_text: str  # verbatim from the draft, the draft's own defined terms
+    reasons: tuple[str, ...]
+    frequency: Frequency | None = None
+    #: Character offsets of the changed words (without context) in each provision's text;
+    #: None when the deviation covers the whole provision or has no words on that side.
+    precedent_span: tuple[int, int] | None = None
+    draft_span: tuple[int, int] | None = None
+
+
+@dataclass(frozen=True, slots=True)
+class Review:
+    draft: Document
+    precedent: Document
+    term_map: tuple[TermMapping, ...]
+    pairs: tuple[Pair, ...]
+    deviations: tuple[Deviation, ...]
+    #: Human-readable notes, e.g. "the documents share no provision".
+    notes: tuple[str, ...] = ()
