@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
 import sys
 from pathlib import Path
 
@@ -42,6 +43,39 @@ def _cmd_inspect(args: argparse.Namespace) -> int:
     return 0
 
 
+def _cmd_review(args: argparse.Namespace) -> int:
+    from .fileio import refuse_overwrite_of_inputs
+    from .reader import read_document
+    from .review import review_to_dict, run_review
+    from .review.report import format_review
+
+    if args.json and args.json != "-":
+        refuse_overwrite_of_inputs(args.json, args.draft, args.against)
+    draft = read_document(args.draft)
+    precedent = read_document(args.against)
+    for path, doc in ((args.draft, draft), (args.against, precedent)):
+        for w in doc.warnings:
+            print(f"{path}: note: {w}", file=sys.stderr)
+    if args.library:
+        from .library.commands import open_library_for_cli, review_options
+        from .library.frequency import apply_frequency
+
+        library = open_library_for_cli(args.library)
+        try:
+            review = apply_frequency(run_review(draft, precedent, **review_options(library)), library)
+        finally:
+            library.close()
+    else:
+        review = run_review(draft, precedent)
+    if args.json:
+        for note in review.notes:
+            print(f"counterdraft: note: {note}", file=sys.stderr)
+        _write_json(review_to_dict(review), args.json)
+    else:
+        print(format_review(review, show=args.show, width=args.width))
+    return 0
+
+
 def _cmd_demo(args: argparse.Namespace) -> int:
     from .outline import format_outline
     from .reader import read_document
@@ -71,8 +105,23 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--width", type=int, default=100, help=argparse.SUPPRESS)
     p.set_defaults(func=_cmd_inspect)
 
+    p = sub.add_parser("review", help="compare a draft with the precedent and rank the deviations")
+    p.add_argument("draft", metavar="DRAFT")
+    p.add_argument("--against", required=True, metavar="PRECEDENT", help="the house precedent")
+    p.add_argument("--json", metavar="OUT", help="write the review object as JSON ('-' for stdout)")
+    p.add_argument("--show", choices=("substantive", "all"), default=None,
+                   help="deviations in the table (default: substantive and term)")
+    p.add_argument("--library", metavar="DIR",
+                   help="folder of past agreements: say how common each wording is (indexed in DIR/.counterdraft)")
+    p.add_argument("--width", type=int, default=100, help=argparse.SUPPRESS)
+    p.set_defaults(func=_cmd_review)
+
     p = sub.add_parser("demo", help="run Counterdraft on the bundled demo agreements")
     p.set_defaults(func=_cmd_demo)
+
+    from .library.commands import add_library_parser
+
+    add_library_parser(sub)
     return parser
 
 
@@ -87,6 +136,10 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("counterdraft: interrupted", file=sys.stderr)
         return 2
+    except BrokenPipeError:
+        # The reader of our output went away (e.g. `counterdraft inspect X | head`): not an error.
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return 0
 
 
 if __name__ == "__main__":
