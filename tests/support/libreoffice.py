@@ -92,6 +92,8 @@ def convert(
     target_dir = Path(outdir)
     target_dir.mkdir(parents=True, exist_ok=True)
     out = target_dir / (src.stem + suffix)
+    if out.exists():  # never mistake an earlier run's file for this run's output
+        out.unlink()
     with tempfile.TemporaryDirectory(prefix="cd-lo-profile-") as work:
         profile = Path(work) / "profile"
         cmd = [
