@@ -67,12 +67,101 @@ def _cmd_review(args: argparse.Namespace) -> int:
             library.close()
     else:
         review = run_review(draft, precedent)
+    if args.save:
+        from .decisions import new_review_file, save_review_file
+
+        refuse_overwrite_of_inputs(args.save, args.draft, args.against)
+        save_review_file(args.save, new_review_file(args.draft, args.against, review=review,
+                                                    library=args.library))
+        print(f"counterdraft: review saved to {args.save}", file=sys.stderr)
     if args.json:
         for note in review.notes:
             print(f"counterdraft: note: {note}", file=sys.stderr)
         _write_json(review_to_dict(review), args.json)
     else:
         print(format_review(review, show=args.show, width=args.width))
+    return 0
+
+
+def _review_runner(library_folder: str | None):
+    """The runner that reopens a review file: with its precedent set when it recorded one."""
+    if not library_folder:
+        return None
+
+    def run(draft, precedent, *, overrides=()):  # noqa: ANN001, ANN202
+        from .library.commands import open_library_for_cli, review_options
+        from .library.frequency import apply_frequency
+        from .review import run_review
+
+        library = open_library_for_cli(library_folder)
+        try:
+            return apply_frequency(run_review(draft, precedent, overrides=tuple(overrides),
+                                              **review_options(library)), library)
+        finally:
+            library.close()
+
+    return run
+
+
+def _open_review_file(path: str):  # noqa: ANN202
+    from .decisions import load_review_file, read_library_folder
+
+    record = load_review_file(path, runner=_review_runner(read_library_folder(path)))
+    for note in record.notes:
+        print(f"counterdraft: note: {note}", file=sys.stderr)
+    return record
+
+
+def _cmd_decide(args: argparse.Namespace) -> int:
+    from .decisions import clause_label, decide, save_review_file
+
+    record = _open_review_file(args.review_file)
+    dev_id = args.deviation
+    if dev_id.isdigit():  # a rank, as the review table shows it
+        by_rank = {d.rank: d.id for d in record.review.deviations}
+        if int(dev_id) not in by_rank:
+            raise CounterdraftError(f"no deviation ranked {dev_id} (ranks run 1 to {len(by_rank)})",
+                                    path=args.review_file)
+        dev_id = by_rank[int(dev_id)]
+    record = decide(record, dev_id, args.action, text=args.text, note=args.note)
+    save_review_file(args.review_file, record)
+    dev = next(d for d in record.review.deviations if d.id == dev_id)
+    where = clause_label(record.review, dev)
+    print(f"{dev_id} (rank {dev.rank}{f', {where}' if where else ''}): {args.action} recorded "
+          f"in {args.review_file}")
+    return 0
+
+
+def _cmd_export(args: argparse.Namespace) -> int:
+    from .export import default_author, write_counter_draft, write_issues_list, write_redline
+    from .fileio import refuse_overwrite_of_inputs
+
+    outputs = [o for o in (args.counter_draft, args.redline, args.issues_list) if o]
+    if not outputs:
+        raise CounterdraftError("nothing to export: give --counter-draft, --redline or --issues-list")
+    if len({str(Path(o).resolve()) for o in outputs}) != len(outputs):
+        raise CounterdraftError("two outputs share one path")
+    for out in outputs:
+        refuse_overwrite_of_inputs(out, args.review_file)
+    record = _open_review_file(args.review_file)
+    inputs = (record.draft.path, record.precedent.path, args.review_file)
+    author = args.author or default_author()
+    print(CAUTION, file=sys.stderr)
+    if args.counter_draft:
+        notes = write_counter_draft(record.review, record.decisions, args.counter_draft,
+                                    draft_path=record.draft.path, author=author, inputs=inputs)
+        for note in notes:
+            print(f"counterdraft: note: {note}", file=sys.stderr)
+        print(f"counter-draft written to {args.counter_draft} "
+              f"({sum(d.action != 'accept' for d in record.decisions)} changes, "
+              f"{sum(bool(d.note) for d in record.decisions)} notes)")
+    if args.redline:
+        write_redline(record.review, args.redline, author=author, inputs=inputs)
+        print(f"comparison redline written to {args.redline}")
+    if args.issues_list:
+        write_issues_list(record.review, args.issues_list, decisions=record.decisions,
+                          author=author, inputs=inputs)
+        print(f"issues list written to {args.issues_list}")
     return 0
 
 
@@ -113,8 +202,28 @@ def build_parser() -> argparse.ArgumentParser:
                    help="deviations in the table (default: substantive and term)")
     p.add_argument("--library", metavar="DIR",
                    help="folder of past agreements: say how common each wording is (indexed in DIR/.counterdraft)")
+    p.add_argument("--save", metavar="REVIEW.json",
+                   help="also save a review file to record decisions on (see 'decide', 'export')")
     p.add_argument("--width", type=int, default=100, help=argparse.SUPPRESS)
     p.set_defaults(func=_cmd_review)
+
+    p = sub.add_parser("decide", help="record a decision on one deviation in a review file")
+    p.add_argument("review_file", metavar="REVIEW.json")
+    p.add_argument("deviation", metavar="ID", help="deviation id (e.g. v12) or its rank in the review table (e.g. 3)")
+    p.add_argument("action", choices=("accept", "revert", "amend"),
+                   help="accept the draft's words, revert to the precedent's, or amend")
+    p.add_argument("--text", help="the new wording (amend only)")
+    p.add_argument("--note", help="a note; the counter-draft shows it as a comment")
+    p.set_defaults(func=_cmd_decide)
+
+    p = sub.add_parser("export", help="write the counter-draft, the comparison redline or the issues list")
+    p.add_argument("review_file", metavar="REVIEW.json")
+    p.add_argument("--counter-draft", metavar="OUT.docx",
+                   help="the draft with the decisions as tracked changes and notes as comments")
+    p.add_argument("--redline", metavar="OUT.docx", help="precedent-to-draft comparison as tracked changes")
+    p.add_argument("--issues-list", metavar="OUT", help="the issues list as .docx, .html or .csv")
+    p.add_argument("--author", help="author of the tracked changes (default: your user name)")
+    p.set_defaults(func=_cmd_export)
 
     p = sub.add_parser("demo", help="run Counterdraft on the bundled demo agreements")
     p.set_defaults(func=_cmd_demo)

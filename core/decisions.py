@@ -1,0 +1,451 @@
+"""The reviewer's decisions and the review file.
+
+For each deviation the reviewer records **accept** (keep the draft's words), **revert**
+(restore the precedent's words) or **amend** (own words), with an optional note.  The review
+file (``counterdraft.review-file/1``, JSON, written atomically) holds both documents' paths and
+SHA-256 content hashes, the term-map overrides, the deviations and the decisions.
+
+Reopening a review file re-reads both documents and re-runs the review (the review is
+deterministic, so unchanged inputs give the same deviations).  When a document's hash
+differs from the saved one the result says so, and every decision is matched again against
+the new deviations -- by the provision pair (numbers and headings, then ids) and the changed
+words, never by deviation id alone, since ids are renumbered when the documents change.  A
+decision whose words no longer appear is dropped with a note.
+
+Review file layout::
+
+    {"schema": "counterdraft.review-file/1",
+     "draft":     {"path": "draft.docx", "absolute_path": "/...", "sha256": "..."},
+     "precedent": {"path": "precedent.docx", "absolute_path": "/...", "sha256": "..."},
+     "library": {"path": "precedent_set", "absolute_path": "/..."} | null,
+     "overrides": [{"draft": "Client", "precedent": "Customer", "action": "confirm"}],
+     "term_map":  [...as in counterdraft.review/1...],
+     "deviations": [...as in counterdraft.review/1...],
+     "decisions": [{"deviation": "v3", "action": "revert", "text": null, "note": "...",
+                    "match": {"change": "replace", "category": "substantive",
+                              "draft_provision": "p12", "precedent_provision": "p10",
+                              "draft_clause": "9.1 Notice", "precedent_clause": "14.1 Notice",
+                              "draft_text": "...", "precedent_text": "..."}}]}
+
+``path`` is relative to the review file's folder when the document lies below it (so a
+folder can be moved as a whole), else absolute; ``absolute_path`` is the fallback.
+
+Cost: loading costs one review run (see :mod:`core.review`); matching decisions is
+O(decisions x deviations).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import json
+import os
+from collections.abc import Callable, Mapping, Sequence
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from .errors import CounterdraftError
+from .fileio import atomic_write_text, file_sha256
+from .model import Deviation, Document, Review
+
+__all__ = [
+    "ACTIONS",
+    "REVIEW_FILE_SCHEMA",
+    "Decision",
+    "DocumentRef",
+    "ReviewFile",
+    "clause_label",
+    "decide",
+    "decision_for",
+    "load_review_file",
+    "match_key",
+    "new_review_file",
+    "read_library_folder",
+    "remap_decisions",
+    "review_file_to_dict",
+    "save_review_file",
+]
+
+REVIEW_FILE_SCHEMA = "counterdraft.review-file/1"
+ACTIONS: tuple[str, ...] = ("accept", "revert", "amend")
+
+
+@dataclass(frozen=True, slots=True)
+class Decision:
+    """What the reviewer decided about one deviation.
+
+    ``text`` is the reviewer's own wording (amend only); ``match`` identifies the deviation
+    independently of its id (see :func:`match_key`), so the decision survives a re-run.
+    """
+
+    deviation: str
+    action: str  # one of ACTIONS
+    text: str | None = None
+    note: str | None = None
+    match: Mapping[str, Any] = field(default_factory=dict)
+
+
+@dataclass(frozen=True, slots=True)
+class DocumentRef:
+    path: str  # absolute path of the document
+    sha256: str
+
+
+@dataclass(frozen=True, slots=True)
+class ReviewFile:
+    """A review in progress: the inputs, the review result and the decisions."""
+
+    draft: DocumentRef
+    precedent: DocumentRef
+    review: Review
+    decisions: tuple[Decision, ...] = ()
+    #: Term-map overrides passed to the review engine (its ``TermOverride`` objects).
+    overrides: tuple[Any, ...] = ()
+    #: What happened when the file was reopened: changed documents, dropped decisions.
+    notes: tuple[str, ...] = ()
+    #: Folder of the precedent set the review used (absolute), or None.
+    library: str | None = None
+
+
+# --------------------------------------------------------------------------------------
+# Deviations, clause labels and the match key
+# --------------------------------------------------------------------------------------
+
+
+def _provision(doc: Document, pid: str | None):
+    if pid is None:
+        return None
+    try:
+        return doc.provision(pid)
+    except KeyError:
+        return None
+
+
+def clause_label(review: Review, deviation: Deviation) -> str:
+    """"9.1 Notice" -- the draft's number and heading of the deviation's provision, else the
+    precedent's (for a provision the draft removed)."""
+    for doc, pid in ((review.draft, deviation.draft_provision),
+                     (review.precedent, deviation.precedent_provision)):
+        prov = _provision(doc, pid)
+        if prov is None:
+            continue
+        parts = [x for x in (prov.number, prov.heading) if x]
+        if not parts and prov.term:
+            parts = [f'"{prov.term}"']
+        if parts:
+            return " ".join(parts)
+        return prov.kind
+    return ""
+
+
+def match_key(review: Review, deviation: Deviation) -> dict[str, Any]:
+    """What identifies a deviation across re-runs: its kind, its provision pair and the
+    changed words."""
+    def clause(doc: Document, pid: str | None) -> str | None:
+        prov = _provision(doc, pid)
+        if prov is None:
+            return None
+        return " ".join(x for x in (prov.number, prov.heading or prov.term) if x) or None
+
+    return {
+        "change": deviation.change,
+        "category": deviation.category,
+        "draft_provision": deviation.draft_provision,
+        "precedent_provision": deviation.precedent_provision,
+        "draft_clause": clause(review.draft, deviation.draft_provision),
+        "precedent_clause": clause(review.precedent, deviation.precedent_provision),
+        "draft_text": deviation.draft_text,
+        "precedent_text": deviation.precedent_text,
+    }
+
+
+def _find_deviation(review: Review, deviation_id: str) -> Deviation:
+    for d in review.deviations:
+        if d.id == deviation_id:
+            return d
+    known = ", ".join(d.id for d in review.deviations[:8])
+    more = ", ..." if len(review.deviations) > 8 else ""
+    raise CounterdraftError(f"no deviation {deviation_id!r} in this review (known: {known}{more})")
+
+
+def decision_for(decisions: Sequence[Decision], deviation_id: str) -> Decision | None:
+    for d in decisions:
+        if d.deviation == deviation_id:
+            return d
+    return None
+
+
+def decide(rf: ReviewFile, deviation_id: str, action: str, *, text: str | None = None,
+           note: str | None = None) -> ReviewFile:
+    """*rf* with the decision on *deviation_id* recorded (replacing an earlier one)."""
+    if action not in ACTIONS:
+        raise CounterdraftError(f"unknown decision {action!r}; use one of {', '.join(ACTIONS)}")
+    dev = _find_deviation(rf.review, deviation_id)
+    if action == "amend":
+        if text is None:
+            raise CounterdraftError("amend needs the new wording (--text)")
+    elif text is not None:
+        raise CounterdraftError(f"--text goes with amend, not with {action}")
+    if action != "accept" and dev.change == "move":
+        raise CounterdraftError(
+            f"{deviation_id} is a moved provision; moving it back is not written as a tracked "
+            "change -- accept it, or amend the provision's words")
+    if action != "accept" and dev.category == "term":
+        raise CounterdraftError(
+            f"{deviation_id} is a renamed defined term; renaming it back everywhere is not "
+            "written as tracked changes -- accept it (the counter-draft keeps the draft's names)")
+    if note is not None and not note.strip():
+        note = None
+    new = Decision(deviation=deviation_id, action=action, text=text, note=note,
+                   match=match_key(rf.review, dev))
+    kept = tuple(d for d in rf.decisions if d.deviation != deviation_id)
+    order = {d.id: i for i, d in enumerate(rf.review.deviations)}
+    decisions = tuple(sorted(kept + (new,), key=lambda d: order.get(d.deviation, len(order))))
+    return dataclasses.replace(rf, decisions=decisions)
+
+
+# --------------------------------------------------------------------------------------
+# Matching decisions to the deviations of a re-run
+# --------------------------------------------------------------------------------------
+
+#: Points a candidate deviation earns for each agreeing part of the match key.  The changed
+#: words and the kind of change must agree (required); then the provision pair breaks ties,
+#: clause numbers and headings first (they survive an insertion elsewhere that shifts
+#: provision ids), ids last.
+_SAME_CLAUSE_POINTS = 4
+_SAME_ID_POINTS = 1
+
+
+def remap_decisions(decisions: Sequence[Decision], review: Review) -> tuple[tuple[Decision, ...], list[str]]:
+    """The *decisions* that still apply to *review* (a re-run), with their new deviation ids,
+    and notes on those that moved to another id or no longer apply."""
+    kept: list[Decision] = []
+    notes: list[str] = []
+    taken: set[str] = set()
+    keys = {d.id: match_key(review, d) for d in review.deviations}
+    for dec in decisions:
+        old = dec.match
+        best: tuple[int, str] | None = None
+        for dev in review.deviations:
+            if dev.id in taken:
+                continue
+            new = keys[dev.id]
+            if not old:
+                score = 0 if dev.id == dec.deviation else -1
+            elif (new["change"], new["draft_text"], new["precedent_text"]) != (
+                    old.get("change"), old.get("draft_text"), old.get("precedent_text")):
+                continue
+            else:
+                score = 0
+                for side in ("draft", "precedent"):
+                    if new[f"{side}_clause"] == old.get(f"{side}_clause"):
+                        score += _SAME_CLAUSE_POINTS
+                    if new[f"{side}_provision"] == old.get(f"{side}_provision"):
+                        score += _SAME_ID_POINTS
+            if score < 0:
+                continue
+            if best is None or score > best[0]:
+                best = (score, dev.id)
+        where = old.get("draft_clause") or old.get("precedent_clause") or dec.deviation
+        if best is None:
+            notes.append(f"decision '{dec.action}' on {dec.deviation} ({where}) no longer applies: "
+                         "those words changed; decide again")
+            continue
+        taken.add(best[1])
+        dev = next(d for d in review.deviations if d.id == best[1])
+        kept.append(dataclasses.replace(dec, deviation=dev.id, match=keys[dev.id]))
+        if dev.id != dec.deviation:
+            notes.append(f"decision '{dec.action}' on {dec.deviation} ({where}) now applies to {dev.id}")
+    return tuple(kept), notes
+
+
+# --------------------------------------------------------------------------------------
+# Reading and writing the file
+# --------------------------------------------------------------------------------------
+
+
+def _override_to_dict(o: Any) -> dict[str, Any]:
+    if dataclasses.is_dataclass(o) and not isinstance(o, type):
+        return dataclasses.asdict(o)
+    if isinstance(o, Mapping):
+        return dict(o)
+    raise TypeError(f"cannot store override {o!r}")
+
+
+def _override_from_dict(d: Mapping[str, Any]) -> Any:
+    from .review.termmap import TermOverride  # the review engine's override type
+
+    fields_ = {f.name for f in dataclasses.fields(TermOverride)}
+    return TermOverride(**{k: (tuple(v) if isinstance(v, list) else v)
+                           for k, v in d.items() if k in fields_})
+
+
+def _stored_path(doc_path: str, folder: Path) -> str:
+    p = Path(doc_path).resolve()
+    try:
+        return p.relative_to(folder.resolve()).as_posix()
+    except ValueError:
+        return str(p)
+
+
+def review_file_to_dict(rf: ReviewFile, *, folder: str | os.PathLike[str] = ".") -> dict[str, Any]:
+    """The ``counterdraft.review-file/1`` object; paths relative to *folder* where possible."""
+    from .review import review_to_dict
+
+    base = Path(folder)
+    rd = review_to_dict(rf.review)
+    return {
+        "schema": REVIEW_FILE_SCHEMA,
+        "draft": {"path": _stored_path(rf.draft.path, base), "absolute_path": rf.draft.path,
+                  "sha256": rf.draft.sha256},
+        "precedent": {"path": _stored_path(rf.precedent.path, base),
+                      "absolute_path": rf.precedent.path, "sha256": rf.precedent.sha256},
+        "library": ({"path": _stored_path(rf.library, base), "absolute_path": rf.library}
+                    if rf.library else None),
+        "overrides": [_override_to_dict(o) for o in rf.overrides],
+        "term_map": rd.get("term_map", []),
+        "deviations": rd.get("deviations", []),
+        "decisions": [
+            {"deviation": d.deviation, "action": d.action, "text": d.text, "note": d.note,
+             "match": dict(d.match)}
+            for d in rf.decisions
+        ],
+    }
+
+
+def save_review_file(path: str | os.PathLike[str], rf: ReviewFile) -> None:
+    """Write *rf* to *path* atomically (never over one of the reviewed documents)."""
+    from .fileio import refuse_overwrite_of_inputs
+
+    refuse_overwrite_of_inputs(path, rf.draft.path, rf.precedent.path)
+    folder = Path(path).resolve().parent
+    text = json.dumps(review_file_to_dict(rf, folder=folder), ensure_ascii=False, indent=2) + "\n"
+    atomic_write_text(path, text)
+
+
+Runner = Callable[..., Review]
+
+
+def _default_runner(draft: Document, precedent: Document, *, overrides: Sequence[Any]) -> Review:
+    from .review import run_review
+
+    return run_review(draft, precedent, overrides=overrides)
+
+
+def _read_documents(draft_path: str, precedent_path: str) -> tuple[Document, Document]:
+    from .reader import read_document
+
+    return read_document(draft_path), read_document(precedent_path)
+
+
+def new_review_file(draft_path: str | os.PathLike[str], precedent_path: str | os.PathLike[str], *,
+                    overrides: Sequence[Any] = (), review: Review | None = None,
+                    runner: Runner | None = None,
+                    library: str | os.PathLike[str] | None = None) -> ReviewFile:
+    """Start a review file for two documents (running the review unless *review* is given).
+    *library* records the precedent-set folder the review used."""
+    dpath, ppath = str(Path(draft_path).resolve()), str(Path(precedent_path).resolve())
+    for p in (dpath, ppath):
+        if not Path(p).is_file():
+            raise CounterdraftError("file not found", path=p)
+    if review is None:
+        draft, precedent = _read_documents(dpath, ppath)
+        review = (runner or _default_runner)(draft, precedent, overrides=tuple(overrides))
+    return ReviewFile(draft=DocumentRef(dpath, file_sha256(dpath)),
+                      precedent=DocumentRef(ppath, file_sha256(ppath)),
+                      review=review, overrides=tuple(overrides),
+                      library=str(Path(library).resolve()) if library else None)
+
+
+def _locate(entry: Mapping[str, Any], folder: Path, *, role: str, review_path: str) -> str:
+    rel = entry.get("path")
+    absolute = entry.get("absolute_path")
+    candidates = []
+    if isinstance(rel, str) and rel:
+        candidates.append(folder / rel if not Path(rel).is_absolute() else Path(rel))
+    if isinstance(absolute, str) and absolute:
+        candidates.append(Path(absolute))
+    for c in candidates:
+        if c.is_file():
+            return str(c.resolve())
+    shown = rel or absolute or "?"
+    raise CounterdraftError(f"the {role} document {shown} named in the review file is missing",
+                            path=review_path)
+
+
+def read_library_folder(path: str | os.PathLike[str]) -> str | None:
+    """The precedent-set folder a review file records (None if none), without re-running
+    anything -- so a caller can open the library and pass a matching *runner*."""
+    try:
+        data = json.loads(Path(path).read_text(encoding="utf-8"))
+    except (OSError, UnicodeDecodeError, json.JSONDecodeError):
+        return None
+    entry = data.get("library") if isinstance(data, dict) else None
+    if not isinstance(entry, dict):
+        return None
+    folder = Path(path).resolve().parent
+    for cand in (entry.get("path"), entry.get("absolute_path")):
+        if isinstance(cand, str) and cand:
+            p = Path(cand) if Path(cand).is_absolute() else folder / cand
+            if p.is_dir():
+                return str(p.resolve())
+    return entry.get("absolute_path") if isinstance(entry.get("absolute_path"), str) else None
+
+
+def load_review_file(path: str | os.PathLike[str], *, runner: Runner | None = None) -> ReviewFile:
+    """Reopen a review file: re-read both documents, re-run the review (with *runner*, by
+    default :func:`core.review.run_review` with the stored overrides) and keep the decisions
+    that still apply.  ``notes`` says what changed."""
+    spath = str(path)
+    try:
+        raw = Path(spath).read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise CounterdraftError("review file not found", path=spath) from None
+    except (OSError, UnicodeDecodeError) as err:
+        raise CounterdraftError(f"cannot read the review file ({err})", path=spath) from None
+    try:
+        data = json.loads(raw)
+    except json.JSONDecodeError as err:
+        raise CounterdraftError(f"not a review file (invalid JSON at line {err.lineno})", path=spath) from None
+    if not isinstance(data, dict) or data.get("schema") != REVIEW_FILE_SCHEMA:
+        found = data.get("schema") if isinstance(data, dict) else None
+        raise CounterdraftError(
+            f"not a {REVIEW_FILE_SCHEMA} file" + (f" (schema {found!r})" if found else ""), path=spath)
+    folder = Path(spath).resolve().parent
+    try:
+        refs = {role: data[role] for role in ("draft", "precedent")}
+        decisions_raw = data.get("decisions", [])
+        overrides_raw = data.get("overrides", [])
+        if not isinstance(decisions_raw, list) or not isinstance(overrides_raw, list):
+            raise TypeError
+        decisions = tuple(
+            Decision(deviation=str(d["deviation"]), action=str(d["action"]), text=d.get("text"),
+                     note=d.get("note"), match=dict(d.get("match") or {}))
+            for d in decisions_raw
+        )
+    except (KeyError, TypeError, AttributeError):
+        raise CounterdraftError("damaged review file (missing or malformed fields)", path=spath) from None
+    for d in decisions:
+        if d.action not in ACTIONS:
+            raise CounterdraftError(f"damaged review file (unknown decision {d.action!r})", path=spath)
+    dpath = _locate(refs["draft"], folder, role="draft", review_path=spath)
+    ppath = _locate(refs["precedent"], folder, role="precedent", review_path=spath)
+    try:
+        overrides = tuple(_override_from_dict(o) for o in overrides_raw)
+    except (TypeError, AttributeError, ValueError):
+        raise CounterdraftError("damaged review file (malformed term overrides)", path=spath) from None
+    notes: list[str] = []
+    hashes = {}
+    for role, p in (("draft", dpath), ("precedent", ppath)):
+        hashes[role] = file_sha256(p)
+        if hashes[role] != refs[role].get("sha256"):
+            notes.append(f"the {role} {Path(p).name} changed since the review was saved; "
+                         "the review was run again")
+    draft, precedent = _read_documents(dpath, ppath)
+    review = (runner or _default_runner)(draft, precedent, overrides=overrides)
+    kept, remap_notes = remap_decisions(decisions, review)
+    notes.extend(remap_notes)
+    return ReviewFile(draft=DocumentRef(dpath, hashes["draft"]),
+                      precedent=DocumentRef(ppath, hashes["precedent"]),
+                      review=review, decisions=kept, overrides=overrides, notes=tuple(notes),
+                      library=read_library_folder(spath))

@@ -1,0 +1,1102 @@
+"""The three outputs of a review: the counter-draft, the comparison redline and the issues list.
+
+* **Counter-draft** (:func:`write_counter_draft`): the counterparty's own .docx with every
+  *revert* and *amend* decision written as tracked changes and every note as a comment on the
+  changed words.  Nothing else in the file changes (see :mod:`core.docx.tracked`).
+* **Comparison redline** (:func:`write_redline`): a new .docx showing the precedent-to-draft
+  comparison as tracked changes -- insertions, deletions and moved provisions as
+  ``w:moveFrom``/``w:moveTo`` -- after a short table of the ranked substantive deviations.
+  Accepting all its changes gives the draft's paragraphs, rejecting all gives the precedent's.
+* **Issues list** (:func:`write_issues_list`): the negotiating table -- clause, the draft's
+  position, the house position, severity, how common in the precedent set (when a library
+  was used), decision, note -- as a Word table (.docx), a self-contained printable page
+  (.html) or CSV (.csv), by the output's suffix.
+
+Every output carries :data:`core.CAUTION` and is written atomically; an output path equal
+to one of the inputs is refused.  Where the caution goes in the counter-draft is explained
+at :data:`CAUTION_PROPERTY`.
+
+Cost: the counter-draft is linear in the draft's XML; the redline is one
+``difflib.SequenceMatcher`` over the paragraph keys (O(B^2) worst case for B paragraphs, near
+linear for similar documents) plus one word diff (Myers, O(N·D)) per matched paragraph pair;
+the issues list is linear in the deviations.  ``benchmarks/bench_export.py`` measures them.
+"""
+
+from __future__ import annotations
+
+import csv
+import dataclasses
+import datetime as _dt
+import difflib
+import getpass
+import html
+import io
+import os
+import re
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass
+from pathlib import Path
+
+from rapidfuzz.distance import Indel
+
+from . import CAUTION, __version__
+from .decisions import Decision, clause_label
+from .errors import CounterdraftError
+from .fileio import atomic_write_bytes, atomic_write_text, refuse_overwrite_of_inputs
+from .model import Block, Deviation, Document, Provision, Review, TermMapping
+
+__all__ = [
+    "CAUTION_PROPERTY",
+    "ISSUE_COLUMNS",
+    "REDLINE_BODY_HEADING",
+    "REDLINE_END",
+    "CounterDraftPlan",
+    "IssueRow",
+    "block_owners",
+    "counter_draft_bytes",
+    "default_author",
+    "issue_rows",
+    "issues_list_csv",
+    "issues_list_docx",
+    "issues_list_html",
+    "plan_counter_draft",
+    "provision_blocks",
+    "redline_body",
+    "redline_bytes",
+    "write_counter_draft",
+    "write_issues_list",
+    "write_redline",
+]
+
+#: Name of the custom file property (ECMA-376 Part 1 §22.3) that carries the caution in the
+#: counter-draft.  The counter-draft goes back to the other side on the counterparty's own
+#: paper: its body must hold the agreed words and our tracked changes only, and a comment
+#: would travel to the other side and would also change an undecided paragraph.  So the
+#: caution sits in the file's properties (File > Properties in a word processor), where the
+#: reviewer's copy keeps it without touching the text; the command line and the desktop app
+#: show the caution whenever they write the file.  The redline and the issues list are
+#: internal documents and carry the caution as their first paragraph.
+CAUTION_PROPERTY = "Counterdraft caution"
+
+#: Heading that opens the comparison body of the redline (after the caution and the table).
+REDLINE_BODY_HEADING = "Comparison: precedent to draft, as tracked changes"
+
+#: Closing line of the redline, after the comparison body.
+REDLINE_END = "End of comparison."
+
+#: Rows shown in the redline's opening table; the issues list has them all.  A reviewer scans
+#: a page or two of top issues before reading the marked-up text (common practice, no source).
+REDLINE_TABLE_MAX = 30
+
+#: Two unmatched paragraphs in the same gap of the comparison are shown as one paragraph
+#: with word changes when their texts are at least this similar (Indel similarity, as
+#: difflib's ratio: 2 x matching characters / total characters); below it
+#: they are shown as a deleted and an inserted paragraph.  0.5 means at least half of the
+#: characters agree -- below that a word-level mark-up is harder to read than the two
+#: versions (common practice, no source).
+PAIR_PARAGRAPH_MIN_RATIO = 0.5
+#: Largest gap (precedent paragraphs x draft paragraphs) in which unmatched paragraphs are
+#: paired by similarity (the pairing is quadratic); larger gaps are shown as deletions
+#: followed by insertions.
+PAIR_GAP_MAX_CELLS = 2500
+
+ISSUE_COLUMNS = ("Ref", "Clause", "Draft position", "House position", "Severity",
+                 "How common in the precedent set", "Decision", "Note")
+_FREQUENCY_COLUMN = "How common in the precedent set"
+
+# --------------------------------------------------------------------------------------
+# Small shared helpers
+# --------------------------------------------------------------------------------------
+
+
+def default_author() -> str:
+    """The reviewer's name for ``w:author``: $COUNTERDRAFT_AUTHOR, else the login name."""
+    name = os.environ.get("COUNTERDRAFT_AUTHOR", "").strip()
+    if name:
+        return name
+    try:
+        return getpass.getuser() or "Counterdraft"
+    except (KeyError, OSError):  # no user database entry (containers)
+        return "Counterdraft"
+
+
+def _stamp_date(when: _dt.datetime | None) -> str:
+    when = when or _dt.datetime.now(_dt.timezone.utc)
+    if when.tzinfo is not None:
+        when = when.astimezone(_dt.timezone.utc)
+    return when.replace(microsecond=0, tzinfo=None).isoformat() + "Z"
+
+
+def _check_output(out: str | os.PathLike[str], suffixes: Iterable[str], inputs: Iterable[str]) -> Path:
+    path = Path(out)
+    if path.suffix.lower() not in tuple(suffixes):
+        raise CounterdraftError(f"the output must end in {' or '.join(suffixes)}", path=str(out))
+    refuse_overwrite_of_inputs(path, *[i for i in inputs if i])
+    return path
+
+
+def _norm_heading(text: str) -> str:
+    return " ".join(text.split()).strip().rstrip(".:").casefold()
+
+
+#: Longest literal label typed before a heading on its own line ("12.", "Article IV",
+#: "Schedule 2 -"); longer prefixes mean the line says more than the heading.
+_HEADING_PREFIX_MAX = 14
+
+
+def _is_heading_line(text: str, want: str) -> bool:
+    got = _norm_heading(text)
+    if got == want:
+        return True
+    return got.endswith(" " + want) and len(got) - len(want) <= _HEADING_PREFIX_MAX
+
+
+def block_owners(doc: Document) -> dict[int, tuple[str, int]]:
+    """block -> (provision id, part): part -1 is a standalone heading line of the provision,
+    0, 1, ... its text blocks in order.
+
+    Text blocks come from the segments.  A block holding only a provision's heading is owned
+    by it: the block right before its first text block, or, for a provision with no text of
+    its own ("7. PAYMENT" above 7.1), the first unowned block after the previous
+    provision's blocks whose text is the heading.  O(blocks + provisions).
+    """
+    owners: dict[int, tuple[str, int]] = {}
+    own_blocks: dict[str, list[int]] = {}
+    for prov in doc.provisions:
+        seen: list[int] = []
+        for s in prov.segments:
+            if s.block not in seen:
+                seen.append(s.block)
+        for k, b in enumerate(seen):
+            if b not in owners:
+                owners[b] = (prov.id, k)
+                own_blocks.setdefault(prov.id, []).append(b)
+    cursor = 0
+    for prov in doc.provisions:
+        blocks = sorted(own_blocks.get(prov.id, []))
+        if prov.heading:
+            want = _norm_heading(prov.heading)
+            if blocks:
+                b = blocks[0] - 1
+                if b >= 0 and b not in owners and _is_heading_line(doc.blocks[b].text, want):
+                    owners[b] = (prov.id, -1)
+            else:
+                b = cursor
+                while b < len(doc.blocks) and b not in owners:
+                    if _is_heading_line(doc.blocks[b].text, want):
+                        owners[b] = (prov.id, -1)
+                        blocks = [b]
+                        break
+                    b += 1
+        if blocks:
+            cursor = max(blocks) + 1
+    return owners
+
+
+def provision_blocks(doc: Document, prov: Provision, *,
+                     owners: dict[int, tuple[str, int]] | None = None) -> list[int]:
+    """The blocks a provision occupies, in order: a standalone heading line (if any), then
+    the blocks of its segments."""
+    table = owners if owners is not None else block_owners(doc)
+    return sorted(b for b, (pid, _) in table.items() if pid == prov.id)
+
+
+def _block_ranges(prov: Provision, start: int, end: int) -> list[tuple[int, int, int]]:
+    """(block, start, end) pieces of the provision-text range ``start:end``; an empty range
+    gives one empty piece at its position."""
+    out: list[tuple[int, int, int]] = []
+    pos = 0
+    for s in prov.segments:
+        length = s.end - s.start
+        seg_start, seg_end = pos, pos + length
+        if start == end:
+            if seg_start <= start <= seg_end:
+                return [(s.block, s.start + start - seg_start, s.start + start - seg_start)]
+        else:
+            a, b = max(start, seg_start), min(end, seg_end)
+            if a < b:
+                out.append((s.block, s.start + a - seg_start, s.start + b - seg_start))
+        pos = seg_end + 1  # the "\n" joining segments
+    return out
+
+
+def _map_offset(a: str, b: str, offset: int) -> int:
+    """Where character *offset* of text *a* falls in text *b*, by the review engine's word
+    diff (:func:`core.review.worddiff.diff_texts`): inside equal text it maps one to one;
+    inside changed text it maps to the start of the other side's change."""
+    from .review.worddiff import diff_texts
+
+    for e in diff_texts(a, b):
+        if e.p1 <= offset < e.p2 or (offset == e.p2 == len(a) and e.p1 < e.p2):
+            if e.tag == "equal":
+                return e.d1 + (offset - e.p1)
+            return e.d1
+        if offset == e.p1 == e.p2 and e.tag == "insert":
+            continue  # words inserted at this very place belong before it
+    return len(b)
+
+
+def _term_translator(term_map: Sequence[TermMapping]):
+    """Replace the precedent's names of mapped defined terms by the draft's, keeping plural
+    and possessive endings, so restored house wording uses the draft's own defined terms."""
+    pairs = sorted(((m.precedent, m.draft) for m in term_map if m.precedent and m.draft),
+                   key=lambda x: -len(x[0]))
+    if not pairs:
+        return lambda text: text
+
+    def plural(name: str) -> str:
+        if name.endswith("y") and len(name) > 1 and name[-2] not in "aeiou":
+            return name[:-1] + "ies"
+        return name + ("es" if name.endswith(("s", "x", "ch", "sh")) else "s")
+
+    forms: dict[str, str] = {}
+    for prec, draft in pairs:
+        forms.setdefault(plural(prec), plural(draft))
+        forms.setdefault(prec, draft)
+    alternatives = sorted(forms, key=len, reverse=True)
+    pattern = re.compile(r"(?<!\w)(" + "|".join(re.escape(a) for a in alternatives) + r")(?!\w)")
+    return lambda text: pattern.sub(lambda m: forms[m.group(1)], text)
+
+
+# --------------------------------------------------------------------------------------
+# Counter-draft
+# --------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class CounterDraftPlan:
+    """The block-level changes the decisions call for, before any XML is touched."""
+
+    edits: tuple  # tuple[core.docx.tracked.BlockEdit, ...]
+    deletions: tuple  # tuple[BlockDeletion, ...]
+    insertions: tuple  # tuple[BlockInsertion, ...]
+    #: Decisions that could not be written, with the reason (shown to the user).
+    notes: tuple[str, ...]
+
+
+def _deviation(review: Review, dev_id: str) -> Deviation | None:
+    return next((d for d in review.deviations if d.id == dev_id), None)
+
+
+def _prov(doc: Document, pid: str | None) -> Provision | None:
+    if pid is None:
+        return None
+    try:
+        return doc.provision(pid)
+    except KeyError:
+        return None
+
+
+def _draft_anchor(review: Review, precedent_pid: str) -> int:
+    """The draft block after which a precedent provision missing from the draft belongs:
+    the end of the draft counterpart of the nearest preceding precedent provision that has
+    one (-1 when none precedes)."""
+    matched = {p.precedent: p.draft for p in review.pairs if p.precedent and p.draft}
+    owners = block_owners(review.draft)
+    order = [p.id for p in review.precedent.provisions]
+    try:
+        i = order.index(precedent_pid)
+    except ValueError:
+        return len(review.draft.blocks) - 1
+    for prev in reversed(order[:i]):
+        dpid = matched.get(prev)
+        dprov = _prov(review.draft, dpid)
+        blocks = provision_blocks(review.draft, dprov, owners=owners) if dprov is not None else []
+        if blocks:
+            return max(blocks)
+    for nxt in order[i + 1:]:
+        dprov = _prov(review.draft, matched.get(nxt))
+        blocks = provision_blocks(review.draft, dprov, owners=owners) if dprov is not None else []
+        if blocks:
+            return min(blocks) - 1
+    return len(review.draft.blocks) - 1
+
+
+def _like_block(blocks: Sequence[Block], anchor: int, model: Block) -> tuple[int | None, bool]:
+    """A draft block whose paragraph properties a restored paragraph can copy: the nearest
+    one to *anchor* (looking back first) at the same list level as *model*, preferring the
+    same style.  Returns (block index, numbered)."""
+    if not blocks:
+        return None, False
+    order = list(range(min(max(anchor, 0), len(blocks) - 1), -1, -1)) + list(range(anchor + 1, len(blocks)))
+    same_level = [i for i in order if blocks[i].list_level == model.list_level
+                  and (blocks[i].label is None) == (model.label is None) and blocks[i].text.strip()]
+    for i in same_level:
+        if blocks[i].style == model.style:
+            return i, model.label is not None
+    if same_level:
+        return same_level[0], model.label is not None
+    return max(anchor, 0), False
+
+
+_WORD_CHANGES = ("insert", "delete", "replace")
+#: Characters before which a word needs no space of its own.
+_CLOSING = ",.;:)]}”’'\"!?"
+
+
+def _tidy_spaces(text: str, start: int, end: int, replacement: str) -> tuple[int, int, str]:
+    """Keep single spaces around words removed or put back.
+
+    The review's spans cover the changed words only.  Removing "not" from "shall not be"
+    must also remove one of the spaces around it, and putting "not" back into "shall be"
+    must add one.
+    """
+    if not replacement and end > start:
+        if start > 0 and text[start - 1] == " " and (end == len(text) or text[end] == " " or text[end] in _CLOSING):
+            return start - 1, end, replacement
+        if start == 0 and end < len(text) and text[end] == " ":
+            return start, end + 1, replacement
+        return start, end, replacement
+    if replacement and start == end:
+        before = text[start - 1] if start > 0 else ""
+        after = text[start] if start < len(text) else ""
+        if before and not before.isspace() and not replacement[0].isspace() and before not in "([{“‘":
+            replacement = " " + replacement
+        elif after and not after.isspace() and after not in _CLOSING and not replacement[-1].isspace():
+            replacement = replacement + " "
+    return start, end, replacement
+
+
+def _is_heading_deviation(dev: Deviation, dprov: Provision, pprov: Provision | None) -> bool:
+    """A change of the provision's heading: the review reports it with no spans (the spans
+    are offsets into the provision's text, which excludes the heading) and with reasons
+    that start with "heading"; its words lie in the headings."""
+    if dev.change not in _WORD_CHANGES or dev.draft_span is not None or dev.precedent_span is not None:
+        return False
+    if any(r.startswith("heading") for r in dev.reasons):
+        return True
+    dh = dprov.heading or ""
+    ph = (pprov.heading if pprov is not None else None) or ""
+    return bool(dh or ph) and (dev.draft_text or "") in dh and (dev.precedent_text or "") in ph
+
+
+def _heading_change(review: Review, dev: Deviation, dec: Decision, dprov: Provision,
+                    pprov: Provision | None, to_draft_terms):
+    """The change that puts the precedent's heading (revert) or the reviewer's (amend) in
+    place of the draft's whole heading, or anchors a note on it (accept).  Returns a
+    BlockEdit, a BlockDeletion (a heading line to remove) or None when not found."""
+    from .docx.tracked import BlockDeletion, BlockEdit
+
+    draft = review.draft
+    dh = dprov.heading or ""
+    ph = (pprov.heading if pprov is not None else None) or ""
+    owners = block_owners(draft)
+    blocks = provision_blocks(draft, dprov, owners=owners)
+    head_line = next((b for b in blocks if owners[b] == (dprov.id, -1)), None)
+    if dec.action == "accept":
+        replacement = None
+    elif dec.action == "amend":
+        replacement = dec.text or ""
+    else:
+        replacement = to_draft_terms(ph)
+    if head_line is not None:
+        text = draft.blocks[head_line].text
+        if replacement == "" and dec.action == "revert":
+            return BlockDeletion(head_line)
+        i = text.find(dh) if dh else -1
+        start, end = (i, i + len(dh)) if i >= 0 else (0, len(text))
+        return BlockEdit(head_line, start, end, replacement or "", tracked=replacement is not None)
+    if not dprov.segments:
+        return None
+    seg = dprov.segments[0]
+    lead = draft.blocks[seg.block].text[:seg.start]
+    i = lead.find(dh) if dh else -1
+    if i < 0:
+        if not dh and replacement:  # the draft has no heading: add the precedent's, run in
+            return BlockEdit(seg.block, seg.start, seg.start, f"{replacement}. ")
+        return None
+    if replacement == "" and dec.action == "revert":
+        # No heading in the precedent: remove the run-in heading and what separates it from
+        # the text (". ", " - ").
+        return BlockEdit(seg.block, i, seg.start, "")
+    return BlockEdit(seg.block, i, i + len(dh), replacement or "", tracked=replacement is not None)
+
+
+def _subtree(doc: Document, root: Provision, *, keep) -> list[Provision]:
+    """*root* and its descendants for which ``keep(provision)`` holds, in document order.
+    One pass over the provisions (parents come before their children)."""
+    inside = {root.id}
+    out = [root]
+    for prov in doc.provisions:
+        if prov.parent in inside and prov.id not in inside and keep(prov):
+            inside.add(prov.id)
+            out.append(prov)
+    return out
+
+
+def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> CounterDraftPlan:
+    """Block-level edits, deletions and insertions for *decisions* on the draft.
+
+    * revert/amend of words: the draft's changed words (``draft_span``) are replaced by the
+      precedent's (``precedent_span``, with the draft's names for mapped defined terms) or by
+      the reviewer's text; a pure deletion in the draft is restored at the place a word diff
+      of the two provisions gives; a heading change replaces the whole heading;
+    * a provision the draft added: revert deletes its paragraphs (marks included), with its
+      sub-provisions that have no counterpart in the precedent; amend replaces its words;
+    * a provision the draft removed: revert inserts the precedent's paragraphs (with its
+      sub-provisions the draft also lacks) after the draft counterpart of the provision that
+      precedes it, with the paragraph properties of a neighbour at the same list level;
+      amend inserts the reviewer's text there;
+    * a note becomes a comment on the changed words (on the draft's words for accept);
+    * renamed defined terms and moved provisions are not written (the decision module
+      refuses them); decisions that cannot be placed, or that overlap an earlier one, are
+      skipped and reported in ``notes``.
+    """
+    from .docx.tracked import BlockDeletion, BlockEdit, BlockInsertion
+
+    to_draft_terms = _term_translator(review.term_map)
+    edits: list[BlockEdit] = []
+    deletions: list[BlockDeletion] = []
+    notes: list[str] = []
+    claimed: dict[int, list[tuple[int, int]]] = {}  # block -> edited ranges
+    deleted_blocks: set[int] = set()
+    draft = review.draft
+    precedent = review.precedent
+    d_owners, p_owners = block_owners(draft), block_owners(precedent)
+    in_draft = {p.precedent for p in review.pairs if p.precedent and p.draft}
+    in_precedent = {p.draft for p in review.pairs if p.precedent and p.draft}
+    # Restored paragraphs sharing an anchor are written in the precedent's order.
+    restored: list[tuple[tuple[int, int, int], BlockInsertion]] = []
+    restored_ids: set[str] = set()
+    seen_heading_edits: set[BlockEdit] = set()
+
+    def free(block: int, a: int, b: int) -> bool:
+        if block in deleted_blocks:
+            return False
+        for x, y in claimed.get(block, []):
+            if a < y and x < b or (a == b == x) or (a == b and x < a < y) or (x == y and a < x < b):
+                return False
+        return True
+
+    def add_edit(edit: BlockEdit) -> None:
+        edits.append(edit)
+        claimed.setdefault(edit.block, []).append((edit.start, edit.end))
+
+    for dec in decisions:
+        dev = _deviation(review, dec.deviation)
+        if dev is None:
+            notes.append(f"{dec.deviation}: no such deviation in this review; skipped")
+            continue
+        note = dec.note
+        if dec.action == "accept" and not note:
+            continue
+        dprov = _prov(draft, dev.draft_provision)
+        pprov = _prov(precedent, dev.precedent_provision)
+        where = clause_label(review, dev) or dev.id
+        if dec.action != "accept" and (dev.category == "term" or dev.change == "move"):
+            notes.append(f"{dev.id} ({where}): a renamed term or a moved provision is not "
+                         "written as a tracked change; skipped")
+            continue
+
+        # -- a provision the draft left out -------------------------------------------
+        if dev.change == "remove-provision" or (dprov is None and pprov is not None):
+            if pprov is None:
+                notes.append(f"{dev.id} ({where}): provision not found; skipped")
+                continue
+            anchor = _draft_anchor(review, pprov.id)
+            if dec.action == "accept":
+                if anchor >= 0 and free(anchor, len(draft.blocks[anchor].text), len(draft.blocks[anchor].text)):
+                    n = len(draft.blocks[anchor].text)
+                    add_edit(BlockEdit(anchor, n, n, comment=note, tracked=False))
+                continue
+            # The provision with its sub-provisions the draft also lacks; parts another
+            # decision already restored are not written twice.
+            provs = [p for p in _subtree(precedent, pprov, keep=lambda p: p.id not in in_draft)
+                     if p.id not in restored_ids]
+            if not provs:
+                continue
+            restored_ids.update(p.id for p in provs)
+            blocks = sorted({b for p in provs for b in provision_blocks(precedent, p, owners=p_owners)})
+            if dec.action == "revert":
+                lines = [(b, precedent.blocks[b], to_draft_terms(precedent.blocks[b].text)) for b in blocks]
+            else:
+                first = blocks[0] if blocks else -1
+                model = precedent.blocks[first] if blocks else Block(0, "")
+                lines = [(first, model, line) for line in (dec.text or "").split("\n")]
+            for k, (b, model, text) in enumerate(lines):
+                like, numbered = _like_block(draft.blocks, anchor, model)
+                restored.append(((anchor, b, k), BlockInsertion(
+                    anchor, text, like=like, numbered=numbered, comment=note if k == 0 else None)))
+            continue
+
+        if dprov is None:
+            notes.append(f"{dev.id} ({where}): no draft provision to change; skipped")
+            continue
+
+        # -- a provision the draft added ------------------------------------------------
+        if dev.change == "add-provision" and dec.action == "revert":
+            provs = _subtree(draft, dprov, keep=lambda p: p.id not in in_precedent)
+            blocks = sorted({b for p in provs for b in provision_blocks(draft, p, owners=d_owners)})
+            if any(b in claimed or b in deleted_blocks for b in blocks):
+                notes.append(f"{dev.id} ({where}): overlaps another decision; skipped")
+                continue
+            for k, b in enumerate(blocks):
+                deletions.append(BlockDeletion(b, comment=note if k == 0 else None))
+                deleted_blocks.add(b)
+            continue
+
+        # -- the heading -------------------------------------------------------------------
+        if _is_heading_deviation(dev, dprov, pprov):
+            result = _heading_change(review, dev, dec, dprov, pprov, to_draft_terms)
+            if result is None:
+                notes.append(f"{dev.id} ({where}): the heading could not be located in the draft; skipped")
+            elif isinstance(result, BlockDeletion):
+                if result.block in deleted_blocks:
+                    continue  # the same heading, already reverted by another decision
+                if result.block in claimed:
+                    notes.append(f"{dev.id} ({where}): overlaps another decision; skipped")
+                    continue
+                deletions.append(BlockDeletion(result.block, comment=note))
+                deleted_blocks.add(result.block)
+            elif result in seen_heading_edits:
+                continue  # the same heading, already reverted by another decision
+            elif not free(result.block, result.start, result.end):
+                notes.append(f"{dev.id} ({where}): overlaps another decision; skipped")
+            else:
+                seen_heading_edits.add(result)
+                add_edit(dataclasses.replace(result, comment=note))
+            continue
+
+        # -- words inside the provision ------------------------------------------------
+        if dev.change == "add-provision":
+            d1, d2 = 0, len(dprov.text)  # amend: the reviewer's words replace the provision's
+        elif dev.draft_span is not None:
+            d1, d2 = dev.draft_span
+        elif dev.precedent_span is not None and pprov is not None:
+            d1 = d2 = _map_offset(pprov.text, dprov.text, dev.precedent_span[0])
+        elif dec.action == "accept":
+            d1, d2 = 0, len(dprov.text)  # a note on the provision as a whole
+        else:
+            notes.append(f"{dev.id} ({where}): the review gives no place for this change; skipped")
+            continue
+        if dec.action == "accept":
+            replacement = None
+        elif dec.action == "amend":
+            replacement = dec.text or ""
+        elif pprov is not None and dev.precedent_span is not None:
+            p1, p2 = dev.precedent_span
+            replacement = to_draft_terms(pprov.text[p1:p2])
+        elif dev.change == "insert" or not dev.precedent_text:
+            replacement = ""
+        else:
+            replacement = to_draft_terms(dev.precedent_text)
+        ranges = _block_ranges(dprov, d1, d2)
+        if not ranges and dec.action == "accept":
+            blocks = provision_blocks(draft, dprov, owners=d_owners)
+            if blocks:  # a provision without words of its own (a heading): note on it
+                ranges = [(blocks[0], 0, len(draft.blocks[blocks[0]].text))]
+        if not ranges:
+            notes.append(f"{dev.id} ({where}): its words could not be located in the draft; skipped")
+            continue
+        if replacement is None:
+            b, s, e = ranges[0]
+            if free(b, s, e):
+                add_edit(BlockEdit(b, s, e, comment=note, tracked=False))
+            else:
+                notes.append(f"{dev.id} ({where}): its note overlaps another decision; skipped")
+            continue
+        parts = replacement.split("\n")
+        if len(parts) != len(ranges):
+            parts = [replacement] + [""] * (len(ranges) - 1)
+        planned = []
+        for k, ((b, s, e), text) in enumerate(zip(ranges, parts)):
+            if s == e and not text:
+                continue
+            s, e, text = _tidy_spaces(draft.blocks[b].text, s, e, text)
+            planned.append(BlockEdit(b, s, e, text, comment=note if not planned else None))
+        if not all(free(x.block, x.start, x.end) for x in planned):
+            notes.append(f"{dev.id} ({where}): overlaps another decision; skipped")
+            continue
+        for x in planned:
+            add_edit(x)
+    insertions = [ins for _, ins in sorted(restored, key=lambda x: x[0])]
+    return CounterDraftPlan(tuple(edits), tuple(deletions), tuple(insertions), tuple(notes))
+
+
+def counter_draft_bytes(review: Review, decisions: Sequence[Decision], *, draft_path: str,
+                        author: str, date: _dt.datetime | None = None) -> tuple[bytes, tuple[str, ...]]:
+    """The counter-draft as bytes, and notes on decisions that could not be written."""
+    from .docx.revisions import RevisionStamp
+    from .docx.tracked import write_tracked_copy
+
+    if Path(draft_path).suffix.lower() != ".docx":
+        raise CounterdraftError("the counter-draft is written on the counterparty's own .docx; "
+                                "this draft is not a .docx", path=draft_path)
+    plan = plan_counter_draft(review, decisions)
+    stamp = RevisionStamp(author=author, date=_stamp_date(date))
+    data = write_tracked_copy(
+        draft_path, edits=plan.edits, deletions=plan.deletions, insertions=plan.insertions,
+        stamp=stamp, properties={CAUTION_PROPERTY: CAUTION},
+        expected_blocks=len(review.draft.blocks),
+        block_texts={e.block: review.draft.blocks[e.block].text for e in plan.edits},
+    )
+    notes = list(plan.notes)
+    own = [w for w in review.draft.warnings if "tracked change" in w]
+    if own:
+        notes.append(f"the draft already holds tracked changes of its own ({own[0]}); rejecting "
+                     "all changes in a word processor rejects those too")
+    return data, tuple(notes)
+
+
+def write_counter_draft(review: Review, decisions: Sequence[Decision], out: str | os.PathLike[str], *,
+                        draft_path: str, author: str | None = None, date: _dt.datetime | None = None,
+                        inputs: Sequence[str] = ()) -> tuple[str, ...]:
+    """Write the counter-draft to *out* (.docx, atomically); returns notes on decisions that
+    could not be written.  *inputs* are further paths *out* must not overwrite."""
+    path = _check_output(out, (".docx",), [draft_path, review.draft.source, review.precedent.source, *inputs])
+    data, notes = counter_draft_bytes(review, decisions, draft_path=draft_path,
+                                      author=author or default_author(), date=date)
+    atomic_write_bytes(path, data)
+    return notes
+
+
+# --------------------------------------------------------------------------------------
+# Comparison redline
+# --------------------------------------------------------------------------------------
+
+
+def _line(block: Block) -> str:
+    """A block as the redline shows it: its auto-number label, a tab, its text."""
+    return f"{block.label}\t{block.text}" if block.label else block.text
+
+
+def _word_runs(a: str, b: str, *, moved: bool = False):
+    """Runs showing *a* turned into *b*: equal words plain (or moveTo when *moved*), deleted
+    words ``del``, inserted words ``ins``.  In a moved paragraph deleted words are left out
+    (they show in the moveFrom copy).  The word diff is the review engine's
+    (:func:`core.review.worddiff.diff_texts`, Myers' algorithm via diff-match-patch), which
+    reconstructs both texts exactly."""
+    from .docx.writer import Run
+    from .review.worddiff import diff_texts
+
+    runs: list[Run] = []
+    for e in diff_texts(a, b):
+        if e.tag == "equal":
+            runs.append(Run(b[e.d1:e.d2], "moveTo" if moved else ""))
+            continue
+        if e.tag in ("delete", "replace") and not moved:
+            runs.append(Run(a[e.p1:e.p2], "del"))
+        if e.tag in ("insert", "replace"):
+            runs.append(Run(b[e.d1:e.d2], "ins"))
+    merged: list[Run] = []
+    for r in runs:
+        if not r.text:
+            continue
+        if merged and merged[-1].mark == r.mark:
+            merged[-1] = Run(merged[-1].text + r.text, r.mark)
+        else:
+            merged.append(r)
+    return tuple(merged)
+
+
+def _pair_gap(pa: Sequence[int], da: Sequence[int], plines: Sequence[str], dlines: Sequence[str]
+              ) -> list[tuple[int | None, int | None]]:
+    """Order-preserving pairing of unmatched paragraphs of one gap by similarity (a small
+    dynamic programme over O(len(pa) x len(da)) similarities: rapidfuzz's Indel normalised
+    similarity, the same measure as difflib's ``ratio``); unpaired ones get None."""
+    n, m = len(pa), len(da)
+    if n == 0 or m == 0 or n * m > PAIR_GAP_MAX_CELLS:
+        return [(i, None) for i in pa] + [(None, j) for j in da]
+    sim = [[0.0] * m for _ in range(n)]
+    for x in range(n):
+        for y in range(m):
+            r = Indel.normalized_similarity(plines[pa[x]], dlines[da[y]])
+            sim[x][y] = r if r >= PAIR_PARAGRAPH_MIN_RATIO else 0.0
+    best = [[0.0] * (m + 1) for _ in range(n + 1)]
+    for x in range(n - 1, -1, -1):
+        for y in range(m - 1, -1, -1):
+            best[x][y] = max(best[x + 1][y], best[x][y + 1],
+                             best[x + 1][y + 1] + sim[x][y] if sim[x][y] else 0.0)
+    out: list[tuple[int | None, int | None]] = []
+    x = y = 0
+    while x < n and y < m:
+        if sim[x][y] and best[x][y] == best[x + 1][y + 1] + sim[x][y]:
+            out.append((pa[x], da[y]))
+            x += 1
+            y += 1
+        elif best[x][y] == best[x + 1][y]:
+            out.append((pa[x], None))
+            x += 1
+        else:
+            out.append((None, da[y]))
+            y += 1
+    out.extend((pa[i], None) for i in range(x, n))
+    out.extend((None, da[j]) for j in range(y, m))
+    return out
+
+
+def redline_body(review: Review):
+    """The comparison paragraphs (``core.docx.writer.Para``) of precedent -> draft.
+
+    Paragraph keys: a precedent paragraph is keyed by its provision and its place in it; a
+    draft paragraph by the precedent provision it is aligned with (statuses same/changed),
+    so aligned provisions match whatever their numbers; paragraphs outside any provision are
+    keyed by their text.  ``difflib.SequenceMatcher`` over the two key sequences gives the
+    matched paragraphs (shown with word changes), and the gaps (deleted and inserted
+    paragraphs, paired by similarity when close).  Paragraphs of moved provisions never
+    match in place: they are shown as moveFrom at the precedent's position and moveTo at the
+    draft's, named per aligned pair.
+    """
+    from .docx.writer import Para, Run
+
+    pdoc, ddoc = review.precedent, review.draft
+    plines = [_line(b) for b in pdoc.blocks]
+    dlines = [_line(b) for b in ddoc.blocks]
+    powners, downers = block_owners(pdoc), block_owners(ddoc)
+    one_to_one: dict[str, str] = {}
+    moved: dict[str, str] = {}  # draft pid -> precedent pid
+    counts_d: dict[str, int] = {}
+    counts_p: dict[str, int] = {}
+    for pair in review.pairs:
+        if pair.draft and pair.precedent:
+            counts_d[pair.draft] = counts_d.get(pair.draft, 0) + 1
+            counts_p[pair.precedent] = counts_p.get(pair.precedent, 0) + 1
+    for pair in review.pairs:
+        if not (pair.draft and pair.precedent):
+            continue
+        if counts_d[pair.draft] != 1 or counts_p[pair.precedent] != 1:
+            continue  # split or merged: compared paragraph by paragraph in the gap
+        if pair.status == "moved":
+            moved[pair.draft] = pair.precedent
+        else:
+            one_to_one[pair.draft] = pair.precedent
+    moved_p = {v: k for k, v in moved.items()}
+    move_names = {ppid: f"cdMove{n}" for n, ppid in enumerate(sorted(moved_p, key=lambda x: (len(x), x)), 1)}
+
+    def pkey(i: int) -> tuple:
+        own = powners.get(i)
+        if own is None:
+            return ("text", plines[i].split("\t", 1)[-1].strip().casefold())
+        if own[0] in moved_p:
+            return ("moved-from", own)
+        return ("prov", own)
+
+    def dkey(j: int) -> tuple:
+        own = downers.get(j)
+        if own is None:
+            return ("text", dlines[j].split("\t", 1)[-1].strip().casefold())
+        if own[0] in moved:
+            return ("moved-to", own)
+        if own[0] in one_to_one:
+            return ("prov", (one_to_one[own[0]], own[1]))
+        return ("draft-only", own)
+
+    pkeys = [pkey(i) for i in range(len(plines))]
+    dkeys = [dkey(j) for j in range(len(dlines))]
+    # Precedent text of each moved draft paragraph, for the word changes inside the move.
+    moved_source: dict[int, int] = {}
+    p_index = {powners[i]: i for i in powners}
+    for j, own in downers.items():
+        if own[0] in moved:
+            src = p_index.get((moved[own[0]], own[1]))
+            if src is not None:
+                moved_source[j] = src
+    moved_targets = set(moved_source.values())
+
+    out: list[Para] = []
+
+    def same(i: int, j: int) -> None:
+        if (not plines[i] or not dlines[j]) and plines[i] != dlines[j]:
+            # An empty paragraph against a full one: a deleted and an inserted paragraph
+            # read better, and a paragraph whose words are all inserted (or all deleted)
+            # behind an untracked mark leaves an empty paragraph behind.
+            deleted(i)
+            inserted(j)
+            return
+        if plines[i] == dlines[j]:
+            if dlines[j]:
+                out.append(Para((Run(dlines[j]),)))
+            else:
+                out.append(Para(()))
+        else:
+            out.append(Para(_word_runs(plines[i], dlines[j])))
+
+    def deleted(i: int) -> None:
+        own = powners.get(i)
+        if own is not None and own[0] in moved_p and i in moved_targets:
+            out.append(Para((Run(plines[i], "moveFrom"),) if plines[i] else (), mark="moveFrom",
+                            move=move_names[own[0]]))
+        else:
+            out.append(Para((Run(plines[i], "del"),) if plines[i] else (), mark="del"))
+
+    def inserted(j: int) -> None:
+        own = downers.get(j)
+        src = moved_source.get(j)
+        if own is not None and own[0] in moved and src is not None:
+            runs = _word_runs(plines[src], dlines[j], moved=True)
+            out.append(Para(runs, mark="moveTo", move=move_names[moved[own[0]]]))
+        else:
+            out.append(Para((Run(dlines[j], "ins"),) if dlines[j] else (), mark="ins"))
+
+    sm = difflib.SequenceMatcher(None, pkeys, dkeys, autojunk=False)
+    for tag, i1, i2, j1, j2 in sm.get_opcodes():
+        if tag == "equal":
+            for i, j in zip(range(i1, i2), range(j1, j2)):
+                same(i, j)
+            continue
+        pa = [i for i in range(i1, i2) if pkeys[i][0] != "moved-from"]
+        da = [j for j in range(j1, j2) if dkeys[j][0] != "moved-to"]
+        moved_from = [i for i in range(i1, i2) if pkeys[i][0] == "moved-from"]
+        moved_to = [j for j in range(j1, j2) if dkeys[j][0] == "moved-to"]
+        # The pairing is monotone in both documents; moved paragraphs are slotted in at
+        # their own document's position, so accepting gives the draft's order and
+        # rejecting the precedent's.
+        for pi, dj in _pair_gap(pa, da, plines, dlines):
+            if pi is not None:
+                while moved_from and moved_from[0] < pi:
+                    deleted(moved_from.pop(0))
+            if dj is not None:
+                while moved_to and moved_to[0] < dj:
+                    inserted(moved_to.pop(0))
+            if pi is not None and dj is not None:
+                same(pi, dj)
+            elif pi is not None:
+                deleted(pi)
+            elif dj is not None:
+                inserted(dj)
+        for i in moved_from:
+            deleted(i)
+        for j in moved_to:
+            inserted(j)
+    return out
+
+
+def _severity_table(review: Review):
+    from .docx.writer import Table
+
+    subs = [d for d in sorted(review.deviations, key=lambda d: d.rank) if d.category == "substantive"]
+    shown = subs[:REDLINE_TABLE_MAX]
+    rows = tuple(
+        (str(d.rank), str(d.severity), clause_label(review, d) or "-", _summary(d)) for d in shown
+    )
+    return Table(("Rank", "Severity", "Clause", "Deviation"), rows, widths=(0.6, 0.8, 2.2, 6.0)), len(subs) - len(shown)
+
+
+def _summary(d: Deviation) -> str:
+    if d.reasons:
+        return "; ".join(d.reasons)
+    if d.change == "add-provision":
+        return "provision added by the draft"
+    if d.change == "remove-provision":
+        return "provision of the precedent left out of the draft"
+    return f"\u201c{_shorten(d.precedent_text)}\u201d \u2192 \u201c{_shorten(d.draft_text)}\u201d"
+
+
+def _shorten(text: str, limit: int = 120) -> str:
+    text = " ".join(text.split())
+    return text if len(text) <= limit else text[: limit - 1] + "\u2026"
+
+
+def redline_bytes(review: Review, *, author: str, date: _dt.datetime | None = None) -> bytes:
+    from .docx.revisions import RevisionStamp
+    from .docx.writer import Para, Run, build_docx
+
+    stamp = RevisionStamp(author=author, date=_stamp_date(date))
+    table, more = _severity_table(review)
+    pname = Path(review.precedent.source).name
+    dname = Path(review.draft.source).name
+    body: list = [
+        Para((Run("Comparison redline"),), style="Title"),
+        Para((Run(f"Precedent: {pname}. Draft: {dname}. Written by Counterdraft {__version__} "
+                  f"on {stamp.date[:10]}."),)),
+        Para((Run(CAUTION),), style="Caution"),
+        Para((Run("Ranked substantive deviations"),), style="Heading1"),
+    ]
+    if table.rows:
+        body.append(table)
+        if more:
+            body.append(Para((Run(f"{more} further substantive deviations are in the issues list."),)))
+    else:
+        body.append(Para((Run("No substantive deviation was found."),)))
+    body.append(Para((Run(REDLINE_BODY_HEADING),), style="Heading1"))
+    body.extend(redline_body(review))
+    # A plain closing line: the body's last paragraph mark cannot be deleted, so without it a
+    # deleted or moved last paragraph would leave an empty paragraph behind on acceptance.
+    body.append(Para((Run(REDLINE_END),)))
+    return build_docx(body, stamp=stamp, title=f"Comparison redline: {dname} against {pname}",
+                      properties={CAUTION_PROPERTY: CAUTION})
+
+
+def write_redline(review: Review, out: str | os.PathLike[str], *, author: str | None = None,
+                  date: _dt.datetime | None = None, inputs: Sequence[str] = ()) -> None:
+    """Write the comparison redline (.docx) atomically."""
+    path = _check_output(out, (".docx",), [review.draft.source, review.precedent.source, *inputs])
+    atomic_write_bytes(path, redline_bytes(review, author=author or default_author(), date=date))
+
+
+# --------------------------------------------------------------------------------------
+# Issues list
+# --------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class IssueRow:
+    ref: str
+    rank: int
+    clause: str
+    draft_position: str
+    house_position: str
+    severity: int
+    frequency: str | None
+    decision: str
+    note: str
+
+
+_NO_TEXT = "(nothing)"
+
+
+def _frequency_text(dev: Deviation) -> str | None:
+    f = dev.frequency
+    if f is None:
+        return None
+    text = f"{f.matching} of {f.same_type} agreements with such a clause ({f.total} in the set)"
+    if f.position:
+        text += f"; labelled {f.position}"
+    return text
+
+
+def _decision_text(dec: Decision | None) -> str:
+    if dec is None:
+        return "undecided"
+    if dec.action == "amend":
+        return f"amend: {dec.text or ''}"
+    return dec.action
+
+
+def issue_rows(review: Review, decisions: Sequence[Decision] = ()) -> list[IssueRow]:
+    """One row per substantive deviation and per decided deviation, by rank."""
+    by_id = {d.deviation: d for d in decisions}
+    rows = []
+    for dev in sorted(review.deviations, key=lambda d: (d.rank, d.id)):
+        if dev.category != "substantive" and dev.id not in by_id:
+            continue
+        dec = by_id.get(dev.id)
+        rows.append(IssueRow(
+            ref=dev.id, rank=dev.rank, clause=clause_label(review, dev),
+            draft_position=dev.draft_text or _NO_TEXT, house_position=dev.precedent_text or _NO_TEXT,
+            severity=dev.severity, frequency=_frequency_text(dev), decision=_decision_text(dec),
+            note=(dec.note or "") if dec else "",
+        ))
+    return rows
+
+
+def _columns(rows: Sequence[IssueRow]) -> tuple[str, ...]:
+    if any(r.frequency is not None for r in rows):
+        return ISSUE_COLUMNS
+    return tuple(c for c in ISSUE_COLUMNS if c != _FREQUENCY_COLUMN)
+
+
+def _cells(row: IssueRow, columns: Sequence[str]) -> list[str]:
+    values = {
+        "Ref": row.ref, "Clause": row.clause, "Draft position": row.draft_position,
+        "House position": row.house_position, "Severity": str(row.severity),
+        _FREQUENCY_COLUMN: row.frequency or "", "Decision": row.decision, "Note": row.note,
+    }
+    return [values[c] for c in columns]
+
+
+def issues_list_csv(review: Review, decisions: Sequence[Decision] = ()) -> str:
+    """CSV (RFC 4180 quoting by the csv module): the caution on the first line, then the
+    header and one row per issue.  The caution is its own single-cell row so a spreadsheet
+    shows it above the table and ``csv.reader`` reads it back as one field."""
+    rows = issue_rows(review, decisions)
+    cols = _columns(rows)
+    buf = io.StringIO()
+    writer = csv.writer(buf, lineterminator="\r\n")
+    writer.writerow([CAUTION])
+    writer.writerow(cols)
+    for r in rows:
+        writer.writerow(_cells(r, cols))
+    return buf.getvalue()
+
+
+_HTML_STYLE = """
+body { font-family: "Liberation Serif", Georgia, serif; margin: 2em; color: #111; }
+h1 { font-size: 1.4em; margin-bottom: 0.2em; }
+p.meta { margin-top: 0; color: #444; }
+p.caution { border-top: 1px solid #888; border-bottom: 1px solid #888; padding: 0.5em 0;
+            font-style: italic; }
+table { border-collapse: collapse; width: 100%; font-size: 0.9em; }
+th, td { border: 1px solid #666; padding: 0.3em 0.45em; vertical-align: top; text-align: left; }
+th { background: #e8e8e8; }
+td.num { text-align: right; white-space: nowrap; }
+thead { display: table-header-group; }
+tr { page-break-inside: avoid; }
+@page { size: A4 landscape; margin: 15mm; }
+@media print { body { margin: 0; } }
+"""
+
+
+def issues_list_html(review: Review, decisions: Sequence[Decision] = (), *,
+                     date: _dt.datetime | None = None) -> str:
+    """A self-contained printable HTML page (no external resources, print CSS inline)."""
+    rows = issue_rows(review, decisions)
+    cols = _columns(rows)
+    e = html.escape
+    title = f"Issues list: {Path(review.draft.source).name} against {Path(review.precedent.source).name}"
+    out = [
+        "<!DOCTYPE html>",
+        '<html lang="en"><head><meta charset="utf-8">',
+        f"<title>{e(title)}</title>",
+        f"<style>{_HTML_STYLE}</style></head><body>",
+        f"<h1>{e(title)}</h1>",
+        f'<p class="meta">Written by Counterdraft {e(__version__)} on {e(_stamp_date(date)[:10])}.</p>',
+        f'<p class="caution">{e(CAUTION)}</p>',
+        "<table><thead><tr>" + "".join(f'<th scope="col">{e(c)}</th>' for c in cols) + "</tr></thead><tbody>",
+    ]
+    for r in rows:
+        cells = []
+        for c, v in zip(cols, _cells(r, cols)):
+            cls = ' class="num"' if c == "Severity" else ""
+            cells.append(f"<td{cls}>{e(v)}</td>")
+        out.append("<tr>" + "".join(cells) + "</tr>")
+    out.append("</tbody></table>")
+    if not rows:
+        out.append("<p>No substantive deviation was found.</p>")
+    out.append("</body></html>")
+    return "\n".join(out) + "\n"
+
+
+#: Relative column widths of the issues-list table (by column name), so that the text
+#: columns get the room.
+_WIDTHS = {"Ref": 0.5, "Clause": 1.4, "Draft position": 3.0, "House position": 3.0,
+           "Severity": 0.7, _FREQUENCY_COLUMN: 1.6, "Decision": 1.4, "Note": 2.0}
+
+
+def issues_list_docx(review: Review, decisions: Sequence[Decision] = (), *, author: str,
+                     date: _dt.datetime | None = None) -> bytes:
+    from .docx.revisions import RevisionStamp
+    from .docx.writer import Para, Run, Table, build_docx
+
+    rows = issue_rows(review, decisions)
+    cols = _columns(rows)
+    stamp = RevisionStamp(author=author, date=_stamp_date(date))
+    title = f"Issues list: {Path(review.draft.source).name} against {Path(review.precedent.source).name}"
+    body: list = [
+        Para((Run(title),), style="Title"),
+        Para((Run(f"Written by Counterdraft {__version__} on {stamp.date[:10]}."),)),
+        Para((Run(CAUTION),), style="Caution"),
+        Table(tuple(cols), tuple(tuple(_cells(r, cols)) for r in rows),
+              widths=tuple(_WIDTHS[c] for c in cols)),
+    ]
+    if not rows:
+        body.append(Para((Run("No substantive deviation was found."),)))
+    return build_docx(body, stamp=stamp, title=title, properties={CAUTION_PROPERTY: CAUTION},
+                      landscape=True)
+
+
+def write_issues_list(review: Review, out: str | os.PathLike[str], *,
+                      decisions: Sequence[Decision] = (), author: str | None = None,
+                      date: _dt.datetime | None = None, inputs: Sequence[str] = ()) -> None:
+    """Write the issues list as .docx, .html or .csv (by the suffix of *out*), atomically."""
+    path = _check_output(out, (".docx", ".html", ".htm", ".csv"),
+                         [review.draft.source, review.precedent.source, *inputs])
+    suffix = path.suffix.lower()
+    if suffix == ".csv":
+        atomic_write_text(path, issues_list_csv(review, decisions))
+    elif suffix in (".html", ".htm"):
+        atomic_write_text(path, issues_list_html(review, decisions, date=date))
+    else:
+        atomic_write_bytes(path, issues_list_docx(review, decisions, author=author or default_author(),
+                                                  date=date))
+

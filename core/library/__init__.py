@@ -1,0 +1,45 @@
+"""The precedent set: the firm's past agreements, indexed for "how common is this wording".
+
+Modules: :mod:`.normalise` (tokens, term normalisation, shingles), :mod:`.clausetypes`
+(clause typing), :mod:`.index` (the SQLite index and its build), :mod:`.variants` (wording
+variants by hierarchical clustering), :mod:`.vocab` (the Word2Vec vocabulary model),
+:mod:`.frequency` (frequency figures and ranking in a review), :mod:`.patterns` (negotiation
+patterns), :mod:`.calibrate` (choosing the clustering cut-off).
+
+Every file the library writes holds confidential client text: it lives in the library's
+``.counterdraft`` folder (mode 0o700) with mode 0o600, and no provision text is logged.
+
+The names below are the entry points; importing this package loads no heavy module
+(scikit-learn, gensim, scipy load when first used).
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+__all__ = [
+    "Library",
+    "apply_frequency",
+    "build_library",
+    "clause_type_function",
+    "open_library",
+    "variants_for",
+]
+
+_LAZY = {
+    "Library": "index",
+    "build_library": "index",
+    "open_library": "index",
+    "apply_frequency": "frequency",
+    "clause_type_function": "frequency",
+    "variants_for": "frequency",
+}
+
+
+def __getattr__(name: str) -> Any:
+    module = _LAZY.get(name)
+    if module is None:
+        raise AttributeError(name)
+    from importlib import import_module
+
+    return getattr(import_module(f"{__name__}.{module}"), name)

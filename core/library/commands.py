@@ -1,0 +1,263 @@
+"""The ``counterdraft library ...`` commands and the ``review --library`` helpers.
+
+``core.cli`` registers the subcommands with :func:`add_library_parser`; every handler returns
+the exit status (0) and lets :class:`~core.errors.CounterdraftError` reach ``core.cli.main``
+(one line on stderr, exit status 2).  Progress goes to stderr as a tqdm bar (counts and time
+left; hidden when stderr is not a terminal); skipped files are warnings on stderr naming the
+file and the problem, never quoting it.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from collections.abc import Callable
+from pathlib import Path
+from typing import Any
+
+from .. import CAUTION
+from ..errors import CounterdraftError
+from ..fileio import atomic_write_text
+
+__all__ = ["add_library_parser", "open_library_for_cli", "progress_bar", "review_options", "warn_skipped"]
+
+
+def progress_bar(description: str) -> tuple[Callable[..., None], Callable[[], None]]:
+    """A ``(done, total, *_)`` callback drawing a tqdm bar on stderr, and its closer."""
+    from tqdm import tqdm
+
+    state: dict[str, Any] = {}
+
+    def update(done: int, total: int, *_: object) -> None:
+        bar = state.get("bar")
+        if bar is None:
+            bar = tqdm(total=total, desc=description, unit="file", file=sys.stderr, disable=None,
+                       leave=False, dynamic_ncols=True)
+            state["bar"] = bar
+        bar.update(done - bar.n)
+
+    def close() -> None:
+        bar = state.pop("bar", None)
+        if bar is not None:
+            bar.close()
+
+    return update, close
+
+
+def warn_skipped(failures) -> None:  # noqa: ANN001 - Sequence[Failure]
+    for f in failures:
+        print(f"counterdraft: warning: skipped {f.path}: {f.problem}", file=sys.stderr)
+
+
+def open_library_for_cli(folder: str, *, db: str | None = None, refresh: bool = True, workers: int = 2):  # noqa: ANN201
+    """Open (building or refreshing when *refresh*) the index of *folder*, with a progress
+    bar, warning about skipped files."""
+    from .index import open_library
+
+    if not Path(folder).is_dir():
+        raise CounterdraftError("the precedent-set folder does not exist", path=folder)
+    update, close = progress_bar("indexing")
+    try:
+        library = open_library(folder, db_path=db, refresh=refresh, progress=update, workers=workers)
+    finally:
+        close()
+    if library.report is not None:
+        warn_skipped(library.report.failures)
+    return library
+
+
+def review_options(library) -> dict[str, Any]:  # noqa: ANN001
+    """Keyword arguments for ``run_review`` with a library: its vocabulary and clause typing."""
+    from .frequency import clause_type_function
+
+    return {"vocabulary": library.vocabulary, "clause_type": clause_type_function(library)}
+
+
+# ----------------------------------------------------------------------------------------
+# Handlers
+# ----------------------------------------------------------------------------------------
+
+
+def _write_json(obj: object, out: str) -> None:
+    text = json.dumps(obj, ensure_ascii=False, indent=2) + "\n"
+    if out == "-":
+        sys.stdout.write(text)
+    else:
+        atomic_write_text(out, text)
+
+
+def _variant_config(args: argparse.Namespace):  # noqa: ANN202
+    from .variants import VariantConfig
+
+    if args.cutoff is None and args.linkage is None and args.metric is None:
+        return None
+    d = VariantConfig()
+    try:
+        return VariantConfig(metric=args.metric or d.metric, linkage=args.linkage or d.linkage,
+                             cutoff=d.cutoff if args.cutoff is None else args.cutoff)
+    except ValueError as err:
+        raise CounterdraftError(str(err)) from None
+
+
+def _cmd_build(args: argparse.Namespace) -> int:
+    from .index import build_library
+
+    if not Path(args.dir).is_dir():
+        raise CounterdraftError("not a folder", path=args.dir)
+    update, close = progress_bar("indexing")
+    try:
+        report = build_library(args.dir, db_path=args.db, progress=update, workers=args.workers,
+                               config=_variant_config(args))
+    finally:
+        close()
+    warn_skipped(report.failures)
+    print(f"{report.documents} agreement{'s' * (report.documents != 1)} indexed "
+          f"({report.read} read, {report.unchanged} unchanged, {report.removed} removed, "
+          f"{len(report.failures)} skipped) in {report.seconds:.1f} s")
+    print(f"index: {report.db_path}")
+    return 0
+
+
+def _cmd_stats(args: argparse.Namespace) -> int:
+    from .index import Library, default_db_path
+    from .stats import format_stats, format_variants, library_stats, stats_to_dict
+
+    db = args.db or default_db_path(args.dir)
+    with Library(db, root=args.dir) as library:
+        if args.variants:
+            print(format_variants(library.variants(bucket=args.variants), total=library.total, width=args.width))
+            return 0
+        stats = library_stats(library)
+        if args.json:
+            _write_json(stats_to_dict(stats), args.json)
+        else:
+            print(format_stats(stats, width=args.width))
+    return 0
+
+
+def _cmd_label(args: argparse.Namespace) -> int:
+    from .index import Library, default_db_path
+
+    position = None if args.position == "none" else args.position.replace("-", " ")
+    db = args.db or default_db_path(args.dir)
+    with Library(db, root=args.dir) as library:
+        if args.variant is not None:
+            vid = args.variant
+        else:
+            if not (args.document and args.provision):
+                raise CounterdraftError("give --variant ID, or --document PATH and --provision NUMBER")
+            vid = library.variant_of(args.document, args.provision)
+            if vid is None:
+                raise CounterdraftError(f"provision {args.provision!r} of {args.document!r} is not in the index",
+                                        path=str(db))
+        n = library.label_variant(vid, position)
+    what = f"labelled {position}" if position else "unlabelled"
+    print(f"variant {vid} {what} ({n} wording{'s' * (n != 1)})")
+    return 0
+
+
+def _cmd_calibrate(args: argparse.Namespace) -> int:
+    from .calibrate import DEFAULT_CUTOFFS, calibrate, format_calibration, read_labels
+    from .index import Library, default_db_path
+
+    cutoffs = DEFAULT_CUTOFFS
+    if args.cutoffs:
+        try:
+            cutoffs = tuple(float(x) for x in args.cutoffs.split(",") if x.strip())
+        except ValueError:
+            raise CounterdraftError("--cutoffs takes numbers separated by commas, e.g. 0.1,0.2,0.3") from None
+        if not cutoffs or any(not 0 <= c <= 1 for c in cutoffs):
+            raise CounterdraftError("cut-offs must be between 0 and 1")
+    labelled = read_labels(args.labels) if args.labels else None
+    db = args.db or default_db_path(args.dir)
+    with Library(db, root=args.dir) as library:
+        rows = calibrate(library, labelled, cutoffs=cutoffs, linkage=args.linkage, metric=args.metric)
+    print(format_calibration(rows))
+    return 0
+
+
+def _cmd_patterns(args: argparse.Namespace) -> int:
+    from ..fileio import file_sha256
+    from ..reader import read_document
+    from .patterns import format_patterns, negotiation_patterns, patterns_to_dict
+
+    precedent = read_document(args.against)
+    library = open_library_for_cli(args.dir, db=args.db, workers=args.workers)
+    try:
+        digest = file_sha256(args.against)
+        skip = [p for p, h in library.conn.execute("SELECT path, sha256 FROM documents") if h == digest]
+        update, close = progress_bar("reviewing")
+        try:
+            groups = negotiation_patterns(library, precedent, progress=update, workers=args.workers, skip=skip)
+        finally:
+            close()
+        total = library.total - len(skip)
+    finally:
+        library.close()
+    if args.json:
+        _write_json(patterns_to_dict(groups, total=total), args.json)
+    else:
+        print(format_patterns(groups, total=total, width=args.width))
+        print()
+        print(CAUTION)
+    return 0
+
+
+def _add_common(p: argparse.ArgumentParser, *, dir_optional: bool) -> None:
+    if dir_optional:
+        p.add_argument("dir", metavar="DIR", nargs="?", default=".", help="the precedent-set folder (default: .)")
+    else:
+        p.add_argument("dir", metavar="DIR", help="the precedent-set folder")
+    p.add_argument("--db", metavar="PATH", help="the index file (default: DIR/.counterdraft/library.sqlite)")
+
+
+def add_library_parser(sub) -> None:  # noqa: ANN001 - argparse's subparsers action
+    """Register ``counterdraft library build|stats|label|calibrate|patterns``."""
+    from .index import POSITIONS
+    from .variants import LINKAGES, METRICS
+
+    lib = sub.add_parser("library", help="index the firm's past agreements (the precedent set)")
+    lsub = lib.add_subparsers(dest="library_command", required=True)
+
+    p = lsub.add_parser("build", help="build or refresh the index of a folder of agreements")
+    _add_common(p, dir_optional=False)
+    p.add_argument("--workers", type=int, default=2, help="processes reading files (default: 2)")
+    p.add_argument("--cutoff", type=float, help="variant cut-off, Jaccard distance 0..1 (default: 0.2)")
+    p.add_argument("--linkage", choices=LINKAGES, help="variant clustering linkage (default: average)")
+    p.add_argument("--metric", choices=METRICS, help="variant distance (default: jaccard)")
+    p.set_defaults(func=_cmd_build)
+
+    p = lsub.add_parser("stats", help="summarise the index: documents, clause types, variants")
+    _add_common(p, dir_optional=True)
+    p.add_argument("--variants", metavar="TYPE", help="list the variants of one clause type (with their ids)")
+    p.add_argument("--json", metavar="OUT", help="write the summary as JSON ('-' for stdout)")
+    p.add_argument("--width", type=int, default=100, help=argparse.SUPPRESS)
+    p.set_defaults(func=_cmd_stats)
+
+    p = lsub.add_parser("label", help="record the firm's position on a wording variant")
+    _add_common(p, dir_optional=True)
+    p.add_argument("--variant", type=int, metavar="ID", help="variant id (see 'library stats --variants TYPE')")
+    p.add_argument("--document", metavar="PATH", help="a document of the variant (path inside DIR)")
+    p.add_argument("--provision", metavar="NUMBER", help="its provision (number, heading or id)")
+    p.add_argument("--position", required=True,
+                   choices=[*POSITIONS, *(x.replace(" ", "-") for x in POSITIONS if " " in x), "none"],
+                   help="the position; 'none' removes the label")
+    p.set_defaults(func=_cmd_label)
+
+    p = lsub.add_parser("calibrate", help="clusters and mixed clusters per variant cut-off")
+    _add_common(p, dir_optional=True)
+    p.add_argument("--labels", metavar="CSV",
+                   help="labelled provisions: columns document,provision,label (default: the stored positions)")
+    p.add_argument("--cutoffs", metavar="LIST", help="cut-offs to try, e.g. 0.1,0.2,0.3")
+    p.add_argument("--linkage", choices=LINKAGES)
+    p.add_argument("--metric", choices=METRICS)
+    p.set_defaults(func=_cmd_calibrate)
+
+    p = lsub.add_parser("patterns", help="what counterparties usually change in the precedent")
+    _add_common(p, dir_optional=True)
+    p.add_argument("--against", required=True, metavar="PRECEDENT", help="the house precedent")
+    p.add_argument("--json", metavar="OUT", help="write the patterns as JSON ('-' for stdout)")
+    p.add_argument("--workers", type=int, default=2, help="processes (default: 2)")
+    p.add_argument("--width", type=int, default=100, help=argparse.SUPPRESS)
+    p.set_defaults(func=_cmd_patterns)

@@ -1,0 +1,510 @@
+"""How common each wording of a review is in the precedent set, and the ranking that uses it.
+
+:func:`apply_frequency` attaches a :class:`~core.model.Frequency` to every pair and every
+deviation of a review, and adjusts the substantive deviations' severity and reasons.
+
+Figures (all counts of library *documents* unless said otherwise):
+
+``total``
+    agreements in the index (readable .docx/.txt/.md files under the library's folder);
+``same_type``
+    documents with a provision of the provision's clause type (its *bucket*: the clause type,
+    or ``~kind`` for an untyped provision);
+``matching``
+    for a pair, or a deviation covering a whole provision (added, moved): documents with a
+    same-type provision within the variant cut-off (Jaccard distance of 3-word shingle sets
+    after term normalisation, quotes, whitespace and case; default 0.2, see
+    :mod:`.variants`) of the draft's wording (a removed provision: the precedent's).
+    For a removed provision's deviation: documents that have no such provision either.
+    For a word-level deviation: documents whose *counterpart* provision (their same-type
+    provision closest to the draft's or the precedent's provision) carries the draft's
+    wording of the change: it holds at least ``DEPARTURE_MATCH_MIN`` of the shingles that
+    only the draft's side of the change has, and a larger share of them than of the
+    precedent's side.  For a renamed defined term: documents defining the draft's name;
+``closest``
+    the ``CLOSEST_COUNT`` nearest same-type library provisions (document path, provision
+    number, heading or id, similarity = 1 - distance);
+``containing``
+    for inserted or removed words (the draft's words of an insert or replace, the
+    precedent's of a delete): same-type library *provisions* whose normalised text contains
+    them as a phrase; for an added or removed provision: same-type provisions within the
+    cut-off of it;
+``position``
+    the reviewer's label of the variant the matching wording belongs to.
+
+Ranking: a substantive deviation's severity is multiplied by ``1 - ACCEPTED_WEIGHT *
+matching / total`` and shifted by ``POSITION_ADJUSTMENT``; its reasons say "accepted in 9 of
+24 past agreements" (or "never accepted in the 24 past agreements") and the position.  Ranks
+are then recomputed 1..N by descending severity, ties in draft order (the ids' order).
+
+Cost: per clause type one sparse product of the review's wordings with the library's
+distinct wordings, O(query shingles x library rows sharing them); phrase checks read only
+the candidate rows' text from the index.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import re
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..model import ClosestProvision, Deviation, Document, Frequency, Pair, Provision, Review
+from .clausetypes import Typing, classify_provisions, document_term_replacer
+from .index import BucketIndex, Library, bucket_of, normalised_wording
+from .normalise import SHINGLE_SIZE, TermReplacer, _word_hash, match_tokens, shingle_hashes
+from .variants import distances_from_counts
+
+__all__ = [
+    "ACCEPTED_WEIGHT",
+    "CLOSEST_COUNT",
+    "COUNTERPART_MIN_SIMILARITY",
+    "DEPARTURE_MATCH_MIN",
+    "POSITION_ADJUSTMENT",
+    "ClosestText",
+    "ReviewTypes",
+    "VariantView",
+    "VariantsInfo",
+    "apply_frequency",
+    "clause_type_function",
+    "review_types",
+    "variants_for",
+]
+
+#: Nearest library provisions listed per wording.
+CLOSEST_COUNT = 3
+#: Share of the draft-only shingles of a change a library provision must hold to carry the
+#: draft's wording.  One half: with 3-word shingles a one-word change has 3 draft-only
+#: shingles, and a library text that agrees on the changed word but differs in one
+#: neighbouring word still holds 2 of them.
+DEPARTURE_MATCH_MIN = 0.5
+#: A document's counterpart of a provision must be at least this similar (1 - Jaccard
+#: distance) to the draft's or the precedent's provision; below it the document has no such
+#: provision and is not counted as carrying either wording.  Different clauses of one type
+#: share under 0.1 of their shingles; the same clause reworded keeps 0.2 or more (measured on
+#: the demo precedent set).
+COUNTERPART_MIN_SIMILARITY = 0.15
+#: How much a departure the firm has accepted in every past agreement loses of its severity
+#: (proportionally less for fewer): half, so that frequency re-orders departures of similar
+#: severity without hiding a severe one.  A product choice, no source.
+ACCEPTED_WEIGHT = 0.5
+#: Severity points added for the reviewer's position on the draft's wording (a product choice,
+#: no source): a wording the firm prefers or accepts matters less, one it does not accept more.
+POSITION_ADJUSTMENT: Mapping[str, int] = {
+    "preferred": -20,
+    "acceptable": -10,
+    "fallback": 0,
+    "not acceptable": 15,
+}
+
+
+@dataclass(frozen=True, slots=True)
+class ReviewTypes:
+    """Clause types and wordings of both documents of a review, as the library reads them."""
+
+    draft_types: Mapping[str, Typing]
+    precedent_types: Mapping[str, Typing]
+    draft_terms: TermReplacer
+    precedent_terms: TermReplacer
+
+
+def review_types(review: Review, library: Library | None = None) -> ReviewTypes:
+    """Type both documents' provisions (with the library's neighbours when given) and build
+    their term normalisers (the draft's terms read as the precedent's through the term map)."""
+    aliases = library.aliases() if library is not None else {}
+    renames = {m.draft: m.precedent for m in review.term_map}
+    dterms = document_term_replacer(review.draft, aliases=aliases, renames=renames)
+    pterms = document_term_replacer(review.precedent, aliases=aliases)
+    neighbours = library.neighbours() if library is not None else None
+    dt = classify_provisions(review.draft, neighbours=neighbours, terms=dterms)
+    pt = classify_provisions(review.precedent, neighbours=neighbours, terms=pterms)
+    return ReviewTypes({t.provision: t for t in dt}, {t.provision: t for t in pt}, dterms, pterms)
+
+
+def clause_type_function(library: Library | None = None):  # noqa: ANN201
+    """A ``(provision, document) -> clause type id | None`` callable for
+    ``run_review(clause_type=...)``: heading, parent, then neighbours (the library's when
+    given, else the taxonomy's seed phrases).  Each document is typed once."""
+    cache: dict[int, tuple[Document, dict[str, str | None]]] = {}
+    aliases = library.aliases() if library is not None else {}
+    neighbours = library.neighbours() if library is not None else None
+
+    def clause_type(provision: Provision, document: Document) -> str | None:
+        entry = cache.get(id(document))
+        if entry is None or entry[0] is not document:
+            terms = document_term_replacer(document, aliases=aliases)
+            types = {t.provision: t.clause_type
+                     for t in classify_provisions(document, neighbours=neighbours, terms=terms)}
+            entry = (document, types)
+            cache[id(document)] = entry
+        return entry[1].get(provision.id)
+
+    return clause_type
+
+
+# ----------------------------------------------------------------------------------------
+# Queries against one bucket
+# ----------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class _Wording:
+    tokens: tuple[str, ...]
+    hashes: np.ndarray
+
+
+class _Context:
+    def __init__(self, review: Review, library: Library, types: ReviewTypes) -> None:
+        self.review = review
+        self.library = library
+        self.types = types
+        self.config = library.config
+        self.total = library.total
+        self.positions = library.variant_positions()
+        self._draft = {p.id: p for p in review.draft.provisions}
+        self._prec = {p.id: p for p in review.precedent.provisions}
+        self._wordings: dict[tuple[str, str], _Wording] = {}
+        self._dist: dict[tuple[str, str, str], np.ndarray] = {}
+
+    def provision(self, side: str, pid: str) -> Provision:
+        return (self._draft if side == "d" else self._prec)[pid]
+
+    def terms(self, side: str) -> TermReplacer:
+        return self.types.draft_terms if side == "d" else self.types.precedent_terms
+
+    def wording(self, side: str, pid: str) -> _Wording:
+        key = (side, pid)
+        w = self._wordings.get(key)
+        if w is None:
+            p = self.provision(side, pid)
+            toks = normalised_wording(p.text, p.heading, terms=self.terms(side))
+            w = _Wording(tuple(toks), shingle_hashes(toks))
+            self._wordings[key] = w
+        return w
+
+    def bucket_name(self, draft: str | None, precedent: str | None) -> str:
+        """The bucket of a pair: the precedent provision's type when it has one (the house
+        document's headings are the better evidence), else the draft's."""
+        for side, pid, table in (("p", precedent, self.types.precedent_types),
+                                 ("d", draft, self.types.draft_types)):
+            if pid is not None:
+                t = table.get(pid)
+                if t is not None and t.clause_type:
+                    return t.clause_type
+        side, pid = ("p", precedent) if precedent is not None else ("d", draft)
+        return bucket_of(None, self.provision(side, pid).kind)  # type: ignore[arg-type]
+
+    def distances(self, bucket: BucketIndex, side: str, pid: str) -> np.ndarray:
+        key = (bucket.name, side, pid)
+        d = self._dist.get(key)
+        if d is None:
+            w = self.wording(side, pid)
+            inter = bucket.intersections(w.hashes)
+            d = distances_from_counts(inter, bucket.sizes, np.full(bucket.rows, w.hashes.size),
+                                      metric=self.config.metric)
+            self._dist[key] = d
+        return d
+
+    def closest(self, bucket: BucketIndex, dist: np.ndarray) -> tuple[ClosestProvision, ...]:
+        if bucket.rows == 0:
+            return ()
+        order = np.lexsort((np.arange(bucket.rows), -bucket.count, dist))[:CLOSEST_COUNT]
+        refs = self.library.provision_refs([int(bucket.sample[i]) for i in order])
+        out = []
+        for i in order.tolist():
+            ref = refs.get(int(bucket.sample[i]))
+            if ref is not None:
+                out.append(ClosestProvision(ref[0], ref[1], round(float(1.0 - dist[i]), 3)))
+        return tuple(out)
+
+    def position_of_rows(self, bucket: BucketIndex, rows: np.ndarray, dist: np.ndarray) -> str | None:
+        """The position of the variant of the nearest of *rows* (a boolean mask)."""
+        idx = np.flatnonzero(rows)
+        if idx.size == 0 or not self.positions:
+            return None
+        best = idx[np.lexsort((idx, dist[idx]))][0]
+        return self.positions.get(int(bucket.variant[best]))
+
+    def containing_phrase(self, bucket: BucketIndex, tokens: Sequence[str]) -> int:
+        """Same-type library provisions whose normalised text holds *tokens* as a phrase."""
+        toks = [t for t in tokens if t]
+        if not toks:
+            return 0
+        words = np.unique(np.fromiter((_word_hash(t) for t in toks), dtype=np.uint64, count=len(toks)))
+        hits = bucket.word_hits(words)
+        cand = np.flatnonzero(hits == words.size)
+        if cand.size == 0:
+            return 0
+        phrase = " " + " ".join(toks) + " "
+        norms = self.library.norms([int(bucket.sample[i]) for i in cand])
+        n = 0
+        for i in cand.tolist():
+            norm = norms.get(int(bucket.sample[i]))
+            if norm is not None and phrase in f" {norm} ":
+                n += int(bucket.count[i])
+        return n
+
+
+def _empty(total: int) -> Frequency:
+    return Frequency(same_type=0, matching=0, total=total)
+
+
+def _whole_frequency(ctx: _Context, bucket_name: str, side: str, pid: str, *,
+                     absent: bool = False, containing: bool = False) -> Frequency:
+    """Frequency of one provision's whole wording (pairs, added/removed/moved provisions)."""
+    bucket = ctx.library.bucket(bucket_name)
+    if bucket is None or bucket.rows == 0:
+        return Frequency(0, ctx.total if absent else 0, ctx.total, (), 0 if containing else None)
+    dist = ctx.distances(bucket, side, pid)
+    within = dist <= ctx.config.cutoff
+    docs = bucket.documents_of(within)
+    same_type = len(bucket.all_documents())
+    matching = ctx.total - len(docs) if absent else len(docs)
+    cont = int(bucket.count[within].sum()) if containing else None
+    position = None if absent else ctx.position_of_rows(bucket, within, dist)
+    return Frequency(same_type, matching, ctx.total, ctx.closest(bucket, dist), cont, position)
+
+
+# ----------------------------------------------------------------------------------------
+# Word-level departures
+# ----------------------------------------------------------------------------------------
+
+
+def _span_of(text: str, span: tuple[int, int] | None, quoted: str) -> tuple[int, int] | None:
+    if span is not None:
+        return span
+    if quoted:
+        i = text.find(quoted)
+        if i >= 0:
+            return (i, i + len(quoted))
+    return None
+
+
+def _split_tokens(p: Provision, span: tuple[int, int] | None, terms: TermReplacer) -> tuple[list[str], list[str], list[str]]:
+    """(tokens before, changed tokens, tokens after) of a provision's wording around *span*;
+    the heading's tokens come first."""
+    if span is None:
+        return normalised_wording(p.text, p.heading, terms=terms), [], []
+    a, b = span
+    before = normalised_wording(p.text[:a], p.heading, terms=terms)
+    changed = match_tokens(p.text[a:b], terms=terms)
+    after = match_tokens(p.text[b:], terms=terms)
+    return before, changed, after
+
+
+def _window(before: list[str], changed: list[str], after: list[str]) -> list[str]:
+    """The changed tokens with SHINGLE_SIZE - 1 tokens of context each side: every shingle of
+    the window touches the change (for an insert into the other side: spans the gap)."""
+    k = SHINGLE_SIZE - 1
+    head = before[len(before) - k:] if k > 0 else []
+    return [*head, *changed, *after[:k]]
+
+
+def _departure_frequency(ctx: _Context, dev: Deviation, bucket_name: str) -> Frequency:
+    d_id, p_id = dev.draft_provision, dev.precedent_provision
+    bucket = ctx.library.bucket(bucket_name)
+    if bucket is None or bucket.rows == 0:
+        return Frequency(0, 0, ctx.total, (), 0 if dev.change in ("insert", "delete", "replace") else None)
+    dprov = ctx.provision("d", d_id)  # type: ignore[arg-type]
+    pprov = ctx.provision("p", p_id)  # type: ignore[arg-type]
+    dspan = _span_of(dprov.text, dev.draft_span, dev.draft_text if dev.change != "delete" else "")
+    pspan = _span_of(pprov.text, dev.precedent_span, dev.precedent_text if dev.change != "insert" else "")
+    db, dc, da = _split_tokens(dprov, dspan, ctx.types.draft_terms)
+    pb, pc, pa = _split_tokens(pprov, pspan, ctx.types.precedent_terms)
+    if dspan is None and dev.change != "delete":
+        dc = match_tokens(dev.draft_text, terms=ctx.types.draft_terms)
+    if pspan is None and dev.change != "insert":
+        pc = match_tokens(dev.precedent_text, terms=ctx.types.precedent_terms)
+    d_win = shingle_hashes(_window(db, dc, da))
+    p_win = shingle_hashes(_window(pb, pc, pa))
+    only_d = np.setdiff1d(d_win, p_win, assume_unique=True)
+    only_p = np.setdiff1d(p_win, d_win, assume_unique=True)
+
+    dist_d = ctx.distances(bucket, "d", d_id)  # type: ignore[arg-type]
+    dist_p = ctx.distances(bucket, "p", p_id)  # type: ignore[arg-type]
+    same_type = len(bucket.all_documents())
+    changed_words = dc if dev.change in ("insert", "replace") else pc if dev.change == "delete" else []
+    containing = ctx.containing_phrase(bucket, changed_words) if dev.change in ("insert", "delete", "replace") else None
+    closest = ctx.closest(bucket, dist_d)
+    if only_d.size == 0:
+        # No wording of the draft's own (e.g. only formatting or terms differ): whole-provision
+        # comparison of the draft's wording.
+        within = dist_d <= ctx.config.cutoff
+        return Frequency(same_type, len(bucket.documents_of(within)), ctx.total, closest, containing,
+                         ctx.position_of_rows(bucket, within, dist_d))
+    hits_d = bucket.intersections(only_d) / only_d.size
+    hits_p = bucket.intersections(only_p) / only_p.size if only_p.size else np.zeros(bucket.rows)
+    carries = (hits_d >= DEPARTURE_MATCH_MIN) & (hits_d > hits_p)
+    sim = 1.0 - np.minimum(dist_d, dist_p)
+    # Each document's counterpart: its row most similar to either side.
+    lengths = np.diff(bucket.docptr)
+    rows_rep = np.repeat(np.arange(bucket.rows), lengths)
+    docs = bucket.docs
+    order = np.lexsort((rows_rep, -sim[rows_rep], docs))
+    first = np.ones(order.size, dtype=bool)
+    first[1:] = docs[order][1:] != docs[order][:-1]
+    counterpart_rows = rows_rep[order][first]
+    ok = sim[counterpart_rows] >= COUNTERPART_MIN_SIMILARITY
+    carrying_rows = counterpart_rows[ok & carries[counterpart_rows]]
+    matching = int(carrying_rows.size)  # one counterpart per document
+    mask = np.zeros(bucket.rows, dtype=bool)
+    mask[carrying_rows] = True
+    return Frequency(same_type, matching, ctx.total, closest, containing,
+                     ctx.position_of_rows(bucket, mask, dist_d))
+
+
+def _term_frequency(ctx: _Context, dev: Deviation) -> Frequency:
+    """A renamed defined term: documents defining the draft's name among those defining
+    either name (same_type)."""
+    conn = ctx.library.conn
+    draft_name, prec_name = dev.draft_text, dev.precedent_text
+    aliases = ctx.library.aliases()
+    names = {draft_name, prec_name} | {n for n, c in aliases.items() if c in (draft_name, prec_name)}
+    q = ",".join("?" * len(names))
+    same = conn.execute(f"SELECT COUNT(DISTINCT document_id) FROM terms WHERE term IN ({q})",
+                        sorted(names)).fetchone()[0]
+    matching = conn.execute("SELECT COUNT(DISTINCT document_id) FROM terms WHERE term = ?",
+                            (draft_name,)).fetchone()[0]
+    return Frequency(int(same), int(matching), ctx.total)
+
+
+# ----------------------------------------------------------------------------------------
+# Putting it together
+# ----------------------------------------------------------------------------------------
+
+
+def _deviation_frequency(ctx: _Context, dev: Deviation) -> Frequency:
+    d_id, p_id = dev.draft_provision, dev.precedent_provision
+    if dev.category == "term":
+        return _term_frequency(ctx, dev)
+    if d_id is None and p_id is None:
+        return _empty(ctx.total)
+    bucket_name = ctx.bucket_name(d_id, p_id)
+    if dev.change == "add-provision" or (p_id is None and d_id is not None):
+        return _whole_frequency(ctx, bucket_name, "d", d_id, containing=True)  # type: ignore[arg-type]
+    if dev.change == "remove-provision" or d_id is None:
+        return _whole_frequency(ctx, bucket_name, "p", p_id, absent=True, containing=True)  # type: ignore[arg-type]
+    if dev.change == "move":
+        return _whole_frequency(ctx, bucket_name, "d", d_id)
+    return _departure_frequency(ctx, dev, bucket_name)
+
+
+def _adjust(dev: Deviation, freq: Frequency) -> Deviation:
+    if dev.category != "substantive" or freq.total <= 0:
+        return dataclasses.replace(dev, frequency=freq)
+    share = freq.matching / freq.total
+    severity = dev.severity * (1.0 - ACCEPTED_WEIGHT * share)
+    reasons = list(dev.reasons)
+    if freq.matching > 0:
+        reasons.append(f"accepted in {freq.matching} of {freq.total} past agreement{'s' * (freq.total != 1)}")
+    else:
+        reasons.append(f"never accepted in the {freq.total} past agreement{'s' * (freq.total != 1)}")
+    if freq.position is not None:
+        severity += POSITION_ADJUSTMENT.get(freq.position, 0)
+        reasons.append(f"the firm's position on this wording: {freq.position}")
+    sev = int(min(100, max(0, round(severity))))
+    return dataclasses.replace(dev, severity=sev, reasons=tuple(reasons), frequency=freq)
+
+
+def _id_order(dev: Deviation) -> int:
+    m = re.fullmatch(r"v(\d+)", dev.id)
+    return int(m.group(1)) if m else 1 << 30
+
+
+def apply_frequency(review: Review, library: Library, *, types: ReviewTypes | None = None) -> Review:
+    """A new :class:`Review` whose pairs and deviations carry their :class:`Frequency` in
+    *library*, with substantive severities, reasons and ranks adjusted (module docstring)."""
+    ctx = _Context(review, library, types or review_types(review, library))
+    pairs: list[Pair] = []
+    for pair in review.pairs:
+        if pair.draft is None and pair.precedent is None:
+            pairs.append(dataclasses.replace(pair, frequency=_empty(ctx.total)))
+            continue
+        bucket_name = ctx.bucket_name(pair.draft, pair.precedent)
+        side, pid = ("d", pair.draft) if pair.draft is not None else ("p", pair.precedent)
+        pairs.append(dataclasses.replace(pair, frequency=_whole_frequency(ctx, bucket_name, side, pid)))  # type: ignore[arg-type]
+    adjusted = [_adjust(dev, _deviation_frequency(ctx, dev)) for dev in review.deviations]
+    ranked = sorted(adjusted, key=lambda v: (-v.severity, _id_order(v)))
+    deviations = tuple(dataclasses.replace(v, rank=r) for r, v in enumerate(ranked, 1))
+    return dataclasses.replace(review, pairs=tuple(pairs), deviations=deviations)
+
+
+# ----------------------------------------------------------------------------------------
+# The variants of one provision's clause type (for the desktop app's variants view)
+# ----------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class VariantView:
+    id: int
+    name: str  # "Variant 1", most common first
+    count: int  # documents using a wording of the variant
+    text: str  # one wording of the variant, as a library document has it
+    position: str | None
+    is_draft: bool  # the provision's own wording falls in this variant
+
+
+@dataclass(frozen=True, slots=True)
+class ClosestText:
+    document: str
+    provision: str
+    similarity: float
+    text: str
+
+
+@dataclass(frozen=True, slots=True)
+class VariantsInfo:
+    clause_type: str | None
+    label: str
+    total: int
+    same_type: int
+    variants: tuple[VariantView, ...]
+    closest: tuple[ClosestText, ...]
+
+
+#: Variants listed at most by :func:`variants_for` (the rest are rare wordings).
+MAX_VARIANTS_SHOWN = 12
+
+
+def variants_for(library: Library, provision: Provision, *, document: Document | None = None,
+                 renames: Mapping[str, str] | None = None,
+                 max_variants: int = MAX_VARIANTS_SHOWN) -> VariantsInfo:
+    """The wording variants of *provision*'s clause type in *library*, which one holds the
+    provision's own wording, and the closest library provisions with their text.  Give the
+    provision's *document* for its defined terms and clause type, and *renames* (draft term ->
+    precedent term) for a draft provision."""
+    from .clausetypes import heading_type, load_taxonomy
+
+    tax = load_taxonomy()
+    aliases = library.aliases()
+    if document is not None:
+        terms = document_term_replacer(document, aliases=aliases, renames=renames)
+        typing = {t.provision: t for t in classify_provisions(document, neighbours=library.neighbours(), terms=terms)}
+        ctype = typing[provision.id].clause_type if provision.id in typing else None
+    else:
+        terms = TermReplacer({})
+        ctype = heading_type(provision.heading)
+    bucket_name = bucket_of(ctype, provision.kind)
+    bucket = library.bucket(bucket_name)
+    total = library.total
+    if bucket is None or bucket.rows == 0:
+        return VariantsInfo(ctype, tax.label(ctype), total, 0, (), ())
+    toks = normalised_wording(provision.text, provision.heading, terms=terms)
+    q = shingle_hashes(toks)
+    dist = distances_from_counts(bucket.intersections(q), bucket.sizes, np.full(bucket.rows, q.size),
+                                 metric=library.config.metric)
+    nearest = int(np.lexsort((np.arange(bucket.rows), dist))[0])
+    own_variant = int(bucket.variant[nearest]) if dist[nearest] <= library.config.cutoff else None
+    infos = library.variants(bucket=bucket_name)[:max_variants]
+    texts = library.texts([v.sample for v in infos if v.sample is not None])
+    views = tuple(VariantView(v.id, f"Variant {v.ordinal}", v.documents, texts.get(v.sample or -1, ""),
+                              v.position, v.id == own_variant) for v in infos)
+    order = np.lexsort((np.arange(bucket.rows), -bucket.count, dist))[:CLOSEST_COUNT]
+    samples = [int(bucket.sample[i]) for i in order]
+    refs = library.provision_refs(samples)
+    ctexts = library.texts(samples)
+    closest = tuple(ClosestText(refs[s][0], refs[s][1], round(float(1.0 - dist[i]), 3), ctexts.get(s, ""))
+                    for i, s in zip(order.tolist(), samples) if s in refs)
+    return VariantsInfo(ctype, tax.label(ctype), total, len(bucket.all_documents()), views, closest)

@@ -1,0 +1,1063 @@
+"""The precedent set's index: a SQLite database of the firm's past agreements.
+
+``build_library(root)`` reads every .docx, .txt and .md file under *root* (recursively; hidden
+files and folders, Office lock files ``~$...`` and the index's own folder are skipped) into
+``root/.counterdraft/library.sqlite`` (or a path of your choice):
+
+* ``documents``: path (relative to the root, with "/"), SHA-256, size, modification time,
+  title and parties when found;
+* ``provisions``: kind, number, heading, level, text, clause type (and how it was found), the
+  normalised wording, its shingle hashes and its variant;
+* ``terms``: the defined terms and their definitions;
+* ``failures``: files that could not be read or are not agreements, with the problem;
+* ``variants`` and ``labels``: wording variants per clause type and the reviewer's positions.
+
+The build is incremental: a file whose size and modification time are unchanged is not
+opened; a file whose stat changed is hashed and re-read only when its SHA-256 changed; files
+that disappeared are dropped.  Unreadable files are listed and skipped; nothing aborts the
+build.  After the files, the derived data is refreshed only where something changed: term
+aliases, normalised wordings, neighbour typing of unheaded clauses, variants, the frequency
+cache (``variants.npz``) and the vocabulary model (``vocabulary.npz``).
+
+Confidentiality: the folder ``.counterdraft`` is created with mode 0o700 and every file in it
+with mode 0o600 (SQLite gives its journal the database's mode); the build logs no contract text
+(progress reports give file paths only, failure reasons never quote the file).
+
+Cost: reading dominates (the reader's cost per file; spread over ``workers`` processes).  The
+derived data costs O(provisions) for normalisation and typing, O(n^2) per clause type for the
+variants of its n distinct wordings (bounded by ``MAX_CLUSTER_ITEMS``), and the vocabulary
+training is bounded by ``vocab.MAX_TRAINING_WORDS``.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import io
+import json
+import multiprocessing
+import os
+import re
+import sqlite3
+import stat
+import time
+from collections.abc import Callable, Iterator, Mapping, Sequence
+from concurrent.futures import ProcessPoolExecutor
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from ..errors import CounterdraftError
+from ..fileio import atomic_write_bytes, file_sha256
+from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
+from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
+from .variants import VariantConfig, cluster_wordings, incidence_matrix
+
+__all__ = [
+    "DB_DIRNAME",
+    "DB_FILENAME",
+    "MIN_AGREEMENT_TYPES",
+    "POOL_MIN_FILES",
+    "POSITIONS",
+    "SUFFIXES",
+    "BucketIndex",
+    "BuildReport",
+    "Cancel",
+    "Failure",
+    "Library",
+    "Progress",
+    "VariantInfo",
+    "build_library",
+    "bucket_of",
+    "default_db_path",
+    "normalised_wording",
+    "open_library",
+    "scan_files",
+]
+
+SUFFIXES: tuple[str, ...] = (".docx", ".txt", ".md")
+DB_DIRNAME = ".counterdraft"
+DB_FILENAME = "library.sqlite"
+CACHE_FILENAME = "variants.npz"
+NEIGHBOURS_FILENAME = "clausetypes.npz"
+VOCAB_FILENAME = "vocabulary.npz"
+SCHEMA_VERSION = "1"
+
+#: A file is an agreement when at least this many distinct clause types are recognised in
+#: it; a letter, a note or a README has none or one.  (Common practice, no source: even a
+#: short agreement has definitions, a term or termination clause and a governing law.)
+MIN_AGREEMENT_TYPES = 3
+
+#: Below this many files to read, reading stays in this process: starting worker processes
+#: (spawn, which is safe beside the desktop app's threads) costs about a second.
+POOL_MIN_FILES = 16
+
+#: The reviewer's positions on a variant, strongest first.
+POSITIONS: tuple[str, ...] = ("preferred", "acceptable", "fallback", "not acceptable")
+
+Progress = Callable[[int, int, str], None]
+Cancel = Callable[[], bool]
+
+_SCHEMA = """
+CREATE TABLE IF NOT EXISTS meta(key TEXT PRIMARY KEY, value TEXT NOT NULL);
+CREATE TABLE IF NOT EXISTS documents(
+    id INTEGER PRIMARY KEY, path TEXT NOT NULL UNIQUE, sha256 TEXT NOT NULL,
+    size INTEGER NOT NULL, mtime_ns INTEGER NOT NULL, title TEXT,
+    parties TEXT NOT NULL DEFAULT '[]', provisions INTEGER NOT NULL,
+    normalised INTEGER NOT NULL DEFAULT 0);
+CREATE TABLE IF NOT EXISTS provisions(
+    id INTEGER PRIMARY KEY,
+    document_id INTEGER NOT NULL REFERENCES documents(id) ON DELETE CASCADE,
+    ordinal INTEGER NOT NULL, pid TEXT NOT NULL, kind TEXT NOT NULL, number TEXT, heading TEXT,
+    level INTEGER NOT NULL, parent TEXT, text TEXT NOT NULL,
+    clause_type TEXT, type_source TEXT NOT NULL, bucket TEXT NOT NULL,
+    norm TEXT, norm_hash TEXT, shingles BLOB, variant_id INTEGER);
+CREATE INDEX IF NOT EXISTS provisions_document ON provisions(document_id);
+CREATE INDEX IF NOT EXISTS provisions_bucket ON provisions(bucket, norm_hash);
+CREATE INDEX IF NOT EXISTS provisions_source ON provisions(type_source, clause_type, norm_hash);
+CREATE TABLE IF NOT EXISTS terms(
+    document_id INTEGER NOT NULL REFERENCES documents(id) ON DELETE CASCADE,
+    term TEXT NOT NULL, definition TEXT NOT NULL, provision TEXT, uses INTEGER NOT NULL);
+CREATE INDEX IF NOT EXISTS terms_document ON terms(document_id);
+CREATE TABLE IF NOT EXISTS failures(
+    path TEXT PRIMARY KEY, sha256 TEXT, size INTEGER NOT NULL, mtime_ns INTEGER NOT NULL,
+    problem TEXT NOT NULL);
+CREATE TABLE IF NOT EXISTS variants(
+    id INTEGER PRIMARY KEY, bucket TEXT NOT NULL, ordinal INTEGER NOT NULL,
+    wordings INTEGER NOT NULL, provisions INTEGER NOT NULL, documents INTEGER NOT NULL,
+    sample INTEGER, position TEXT);
+CREATE INDEX IF NOT EXISTS variants_bucket ON variants(bucket, ordinal);
+CREATE TABLE IF NOT EXISTS labels(
+    bucket TEXT NOT NULL, norm_hash TEXT NOT NULL, position TEXT NOT NULL, seq INTEGER NOT NULL,
+    PRIMARY KEY(bucket, norm_hash));
+CREATE TABLE IF NOT EXISTS buckets(bucket TEXT PRIMARY KEY, fingerprint TEXT NOT NULL);
+"""
+
+
+@dataclass(frozen=True, slots=True)
+class Failure:
+    """A file under the library's root that is not indexed, and why (never quoting it)."""
+
+    path: str
+    problem: str
+
+
+@dataclass(frozen=True, slots=True)
+class BuildReport:
+    root: str
+    db_path: str
+    files: int  # candidate files (.docx/.txt/.md) found under the root
+    read: int  # files read this time (new or changed)
+    unchanged: int
+    removed: int
+    documents: int  # agreements in the index after the build
+    failures: tuple[Failure, ...]  # every file skipped, this build or an earlier one
+    cancelled: bool = False
+    seconds: float = 0.0
+
+
+@dataclass(frozen=True, slots=True)
+class VariantInfo:
+    id: int
+    bucket: str
+    ordinal: int  # 1-based within its clause type, most common first
+    wordings: int  # distinct normalised wordings
+    provisions: int
+    documents: int
+    position: str | None
+    sample_document: str | None
+    sample_provision: str | None  # number, else heading, else provision id
+    sample: int | None = None  # the sample's provision row id
+
+
+def bucket_of(clause_type: str | None, kind: str) -> str:
+    """Provisions are compared within a bucket: their clause type, or ``~kind`` if untyped."""
+    return clause_type if clause_type else f"~{kind}"
+
+
+def default_db_path(root: str | os.PathLike[str]) -> Path:
+    return Path(root) / DB_DIRNAME / DB_FILENAME
+
+
+def _norm_hash(norm: str) -> str:
+    return hashlib.blake2b(norm.encode("utf-8"), digest_size=16).hexdigest()
+
+
+def normalised_wording(text: str, heading: str | None, *, terms: TermReplacer | None) -> list[str]:
+    """The tokens by which wordings are compared: heading and text, terms normalised."""
+    return match_tokens(f"{heading or ''}\n{text}", terms=terms)
+
+
+# ----------------------------------------------------------------------------------------
+# Private files
+# ----------------------------------------------------------------------------------------
+
+
+def _private_dir(path: Path) -> None:
+    try:
+        path.mkdir(mode=0o700, parents=False, exist_ok=True)
+        os.chmod(path, 0o700)
+    except OSError as err:
+        raise CounterdraftError(f"cannot create the index folder ({err.strerror}); "
+                                "choose another place with --db", path=str(path)) from None
+
+
+def _write_private(path: Path, data: bytes) -> None:
+    """Atomic write with mode 0o600 (mkstemp already creates 0o600; chmod makes it explicit)."""
+    atomic_write_bytes(path, data)
+    os.chmod(path, 0o600)
+
+
+def _connect(db_path: Path, *, create: bool) -> sqlite3.Connection:
+    if not db_path.exists():
+        if not create:
+            raise CounterdraftError("no precedent-set index here; build it with "
+                                    "'counterdraft library build'", path=str(db_path))
+        if not db_path.parent.is_dir():
+            raise CounterdraftError("the folder for the index does not exist", path=str(db_path))
+        try:
+            fd = os.open(db_path, os.O_CREAT | os.O_RDWR, 0o600)
+            os.close(fd)
+        except OSError as err:
+            raise CounterdraftError(f"cannot create the index ({err.strerror})", path=str(db_path)) from None
+    try:
+        os.chmod(db_path, 0o600)
+    except OSError:
+        pass
+    try:
+        # check_same_thread=False: the desktop app opens the index in a worker thread and reads
+        # it from the GUI thread, one at a time.
+        conn = sqlite3.connect(str(db_path), timeout=30.0, check_same_thread=False)
+        conn.execute("PRAGMA foreign_keys = ON")
+        conn.execute("PRAGMA synchronous = NORMAL")
+        conn.executescript(_SCHEMA)
+        version = _meta(conn, "schema")
+        if version is None:
+            _set_meta(conn, "schema", SCHEMA_VERSION)
+            conn.commit()
+        elif version != SCHEMA_VERSION:
+            conn.close()
+            raise CounterdraftError(f"index made by another version of Counterdraft (schema {version}); "
+                                    "delete it and build again", path=str(db_path))
+    except sqlite3.DatabaseError as err:
+        raise CounterdraftError(f"not a usable index database ({err})", path=str(db_path)) from None
+    return conn
+
+
+def _meta(conn: sqlite3.Connection, key: str) -> str | None:
+    row = conn.execute("SELECT value FROM meta WHERE key = ?", (key,)).fetchone()
+    return None if row is None else row[0]
+
+
+def _set_meta(conn: sqlite3.Connection, key: str, value: str) -> None:
+    conn.execute("INSERT INTO meta(key, value) VALUES(?, ?) "
+                 "ON CONFLICT(key) DO UPDATE SET value = excluded.value", (key, value))
+
+
+# ----------------------------------------------------------------------------------------
+# Scanning and reading files
+# ----------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class _FileStat:
+    rel: str
+    path: str
+    size: int
+    mtime_ns: int
+
+
+def scan_files(root: str | os.PathLike[str], *, exclude: Sequence[str | os.PathLike[str]] = ()) -> list[str]:
+    """Absolute paths of the candidate files under *root*, sorted (see the module docstring)."""
+    return [f.path for f in _scan(Path(root), exclude=exclude)]
+
+
+def _scan(root: Path, *, exclude: Sequence[str | os.PathLike[str]] = ()) -> list[_FileStat]:
+    excluded = {os.path.realpath(p) for p in exclude}
+    out: list[_FileStat] = []
+    stack = [root]
+    while stack:  # iterative walk: no recursion on the folder depth
+        folder = stack.pop()
+        try:
+            entries = sorted(os.scandir(folder), key=lambda e: e.name)
+        except OSError:
+            continue
+        subdirs = []
+        for e in entries:
+            if e.name.startswith(".") or e.name.startswith("~$"):
+                continue
+            try:
+                if e.is_dir(follow_symlinks=False):
+                    subdirs.append(Path(e.path))
+                    continue
+                if not e.is_file() or not e.name.lower().endswith(SUFFIXES):
+                    continue
+                st = e.stat()
+            except OSError:
+                continue
+            if not stat.S_ISREG(st.st_mode) or os.path.realpath(e.path) in excluded:
+                continue
+            rel = Path(e.path).relative_to(root).as_posix()
+            out.append(_FileStat(rel, e.path, st.st_size, st.st_mtime_ns))
+        stack.extend(reversed(subdirs))
+    out.sort(key=lambda f: f.rel)
+    return out
+
+
+@dataclass(frozen=True, slots=True)
+class _Extract:
+    sha256: str
+    title: str | None
+    parties: tuple[str, ...]
+    # (pid, kind, number, heading, level, parent, text, clause_type, type_source)
+    provisions: tuple[tuple[Any, ...], ...]
+    # (term, definition, provision id, uses)
+    terms: tuple[tuple[str, str, str, int], ...]
+
+
+@dataclass(frozen=True, slots=True)
+class _Problem:
+    sha256: str | None
+    problem: str
+
+
+_PARTY_CUT_RE = re.compile(r"(?:\)|;|\bbetween\b|\band\b|\(\d+\)|\bBETWEEN\b|\bAND\b)", re.UNICODE)
+
+
+def _party_names(doc) -> tuple[str, ...]:  # noqa: ANN001 - core.model.Document
+    """"NAME (Term)" for each party label defined in the parties block, when found: the words
+    before the label's parenthesis, after the previous party or "between", up to the first
+    comma."""
+    parties_ids = {p.id for p in doc.provisions if p.kind == "parties"}
+    names = []
+    for t in doc.terms:
+        if t.provision not in parties_ids and not canonical_role(t.term):
+            continue
+        text = fold(t.definition)
+        m = re.search(r"\((?:the |hereinafter )?[\"']" + re.escape(t.term) + r"[\"']", text)
+        if not m:
+            continue
+        before = text[:m.start()]
+        cuts = list(_PARTY_CUT_RE.finditer(before))
+        if cuts:
+            before = before[cuts[-1].end():]
+        name = before.split(",")[0].strip(" \"'\n\t:")
+        if name:
+            names.append(f"{name[:120]} ({t.term})")
+    return tuple(dict.fromkeys(names))
+
+
+def _title_of(doc) -> str | None:  # noqa: ANN001
+    for p in doc.provisions:
+        if p.kind == "title":
+            return (p.heading or p.text).strip()[:200] or None
+    for b in doc.blocks:
+        if b.text.strip():
+            return b.text.strip()[:200]
+    return None
+
+
+def _extract(path: str) -> _Extract | _Problem:
+    """Read one file (runs in a worker process).  Never raises."""
+    digest: str | None = None
+    try:
+        digest = file_sha256(path)
+        if os.path.getsize(path) == 0:
+            return _Problem(digest, "empty file")
+        from ..reader import read_document
+
+        doc = read_document(path)
+        typings: tuple[Typing, ...] = classify_provisions(doc)
+        types = {t.clause_type for t in typings if t.clause_type}
+        if not doc.provisions:
+            return _Problem(digest, "no text found")
+        if len(types) < MIN_AGREEMENT_TYPES:
+            return _Problem(digest, f"not an agreement ({len(types)} recognisable clause "
+                                    f"type{'s' if len(types) != 1 else ''}; at least "
+                                    f"{MIN_AGREEMENT_TYPES} needed)")
+        provisions = tuple(
+            (p.id, p.kind, p.number, p.heading, p.level, p.parent, p.text, t.clause_type, t.source)
+            for p, t in zip(doc.provisions, typings))
+        terms = tuple((t.term, t.definition, t.provision, t.uses) for t in doc.terms)
+        return _Extract(digest, _title_of(doc), _party_names(doc), provisions, terms)
+    except CounterdraftError as err:
+        return _Problem(digest, err.problem)
+    except MemoryError:
+        return _Problem(digest, "too large to read")
+    except Exception as err:  # noqa: BLE001 - one bad file never aborts a build
+        return _Problem(digest, f"unreadable ({type(err).__name__})")
+
+
+def _cancelled(cancel: Cancel | Any | None) -> bool:
+    if cancel is None:
+        return False
+    if hasattr(cancel, "is_set"):
+        return bool(cancel.is_set())
+    return bool(cancel())
+
+
+def _read_many(paths: Sequence[str], *, workers: int) -> Iterator[_Extract | _Problem]:
+    """Results in the order of *paths*."""
+    if workers <= 1 or len(paths) < POOL_MIN_FILES:
+        for p in paths:
+            yield _extract(p)
+        return
+    ctx = multiprocessing.get_context("spawn")
+    with ProcessPoolExecutor(max_workers=workers, mp_context=ctx) as pool:
+        try:
+            yield from pool.map(_extract, paths, chunksize=4)
+        finally:
+            pool.shutdown(wait=True, cancel_futures=True)
+
+
+# ----------------------------------------------------------------------------------------
+# Build
+# ----------------------------------------------------------------------------------------
+
+
+def build_library(root: str | os.PathLike[str], *, db_path: str | os.PathLike[str] | None = None,
+                  progress: Progress | None = None, cancel: Cancel | Any | None = None,
+                  workers: int = 2, config: VariantConfig | None = None,
+                  vocabulary: bool = True, exclude: Sequence[str | os.PathLike[str]] = ()) -> BuildReport:
+    """Build or refresh the index of the agreements under *root*; see the module docstring.
+
+    *progress* is called as ``progress(done, total, relative_path)`` once per candidate file;
+    *cancel* is a callable returning True (or a ``threading.Event``) to stop between files:
+    what was read so far is kept and the next build finishes the job.  *config* sets the
+    variant clustering (stored; a change re-clusters).  *vocabulary* False skips training the
+    vocabulary model.  Files in *exclude* are not indexed.
+    """
+    started = time.perf_counter()
+    root_p = Path(root)
+    if not root_p.is_dir():
+        raise CounterdraftError("not a folder", path=str(root))
+    if db_path is None:
+        _private_dir(root_p / DB_DIRNAME)
+        db = root_p / DB_DIRNAME / DB_FILENAME
+    else:
+        db = Path(db_path)
+    conn = _connect(db, create=True)
+    try:
+        if config is not None:
+            old = _meta(conn, "variant_config")
+            new = json.dumps([config.metric, config.linkage, config.cutoff, config.max_items])
+            if old != new:
+                _set_meta(conn, "variant_config", new)
+                conn.execute("DELETE FROM buckets")
+                _set_meta(conn, "stale", "1")
+        files = _scan(root_p, exclude=[*exclude, db])
+        report = _update_files(conn, files, progress=progress, cancel=cancel, workers=workers)
+        changed = report.read > 0 or report.removed > 0 or _meta(conn, "stale") == "1"
+        cancelled = report.cancelled
+        if changed and not cancelled:
+            _set_meta(conn, "stale", "1")
+            conn.commit()
+            cancelled = not _refresh_derived(conn, db.parent, cancel=cancel, vocabulary=vocabulary)
+            if not cancelled:
+                _set_meta(conn, "stale", "0")
+                _set_meta(conn, "generation", str(int(_meta(conn, "generation") or 0) + 1))
+                conn.commit()
+        elif changed:
+            _set_meta(conn, "stale", "1")
+            conn.commit()
+        _set_meta(conn, "root", str(root_p.resolve()))
+        conn.commit()
+        documents = conn.execute("SELECT COUNT(*) FROM documents").fetchone()[0]
+        failures = tuple(Failure(p, m) for p, m in
+                         conn.execute("SELECT path, problem FROM failures ORDER BY path"))
+    finally:
+        conn.close()
+    return BuildReport(str(root_p), str(db), report.files, report.read, report.unchanged,
+                       report.removed, documents, failures, cancelled,
+                       round(time.perf_counter() - started, 3))
+
+
+def _update_files(conn: sqlite3.Connection, files: Sequence[_FileStat], *, progress: Progress | None,
+                  cancel: Cancel | Any | None, workers: int) -> BuildReport:
+    known = {p: (i, h, s, m) for i, p, h, s, m in
+             conn.execute("SELECT id, path, sha256, size, mtime_ns FROM documents")}
+    failed = {p: (h, s, m) for p, h, s, m in
+              conn.execute("SELECT path, sha256, size, mtime_ns FROM failures")}
+    on_disk = {f.rel for f in files}
+    removed = 0
+    for path, (doc_id, *_rest) in known.items():
+        if path not in on_disk:
+            conn.execute("DELETE FROM documents WHERE id = ?", (doc_id,))
+            removed += 1
+    for path in failed:
+        if path not in on_disk:
+            conn.execute("DELETE FROM failures WHERE path = ?", (path,))
+    conn.commit()
+
+    total = len(files)
+    done = 0
+    unchanged = 0
+    to_read: list[_FileStat] = []
+    for f in files:
+        if _cancelled(cancel):
+            return BuildReport("", "", total, 0, unchanged, removed, 0, (), True)
+        prev = known.get(f.rel)
+        prev_fail = failed.get(f.rel)
+        if prev is not None and (prev[2], prev[3]) == (f.size, f.mtime_ns):
+            same = True
+        elif prev_fail is not None and (prev_fail[1], prev_fail[2]) == (f.size, f.mtime_ns):
+            same = True
+        elif prev is not None or (prev_fail is not None and prev_fail[0]):
+            try:
+                digest = file_sha256(f.path)
+            except OSError:
+                digest = None
+            same = digest is not None and digest == (prev[1] if prev is not None else prev_fail[0])
+            if same:
+                table = "documents" if prev is not None else "failures"
+                conn.execute(f"UPDATE {table} SET size = ?, mtime_ns = ? WHERE path = ?",
+                             (f.size, f.mtime_ns, f.rel))
+        else:
+            same = False
+        if same:
+            unchanged += 1
+            done += 1
+            if progress is not None:
+                progress(done, total, f.rel)
+        else:
+            to_read.append(f)
+    conn.commit()
+
+    read = 0
+    cancelled = False
+    results = _read_many([f.path for f in to_read], workers=workers)
+    try:
+        for f, res in zip(to_read, results):
+            _store(conn, f, res)
+            read += 1
+            done += 1
+            if read % 50 == 0:
+                conn.commit()
+            if progress is not None:
+                progress(done, total, f.rel)
+            if _cancelled(cancel):
+                cancelled = True
+                break
+    finally:
+        close = getattr(results, "close", None)
+        if close is not None:
+            close()
+        conn.commit()
+    return BuildReport("", "", total, read, unchanged, removed, 0, (), cancelled)
+
+
+def _store(conn: sqlite3.Connection, f: _FileStat, res: _Extract | _Problem) -> None:
+    conn.execute("DELETE FROM documents WHERE path = ?", (f.rel,))
+    conn.execute("DELETE FROM failures WHERE path = ?", (f.rel,))
+    if isinstance(res, _Problem):
+        conn.execute("INSERT INTO failures(path, sha256, size, mtime_ns, problem) VALUES(?,?,?,?,?)",
+                     (f.rel, res.sha256, f.size, f.mtime_ns, res.problem))
+        return
+    cur = conn.execute(
+        "INSERT INTO documents(path, sha256, size, mtime_ns, title, parties, provisions) "
+        "VALUES(?,?,?,?,?,?,?)",
+        (f.rel, res.sha256, f.size, f.mtime_ns, res.title, json.dumps(list(res.parties)),
+         len(res.provisions)))
+    doc_id = cur.lastrowid
+    conn.executemany(
+        "INSERT INTO provisions(document_id, ordinal, pid, kind, number, heading, level, parent, "
+        "text, clause_type, type_source, bucket) VALUES(?,?,?,?,?,?,?,?,?,?,?,?)",
+        [(doc_id, i, pid, kind, number, heading, level, parent, text, ctype, source,
+          bucket_of(ctype, kind))
+         for i, (pid, kind, number, heading, level, parent, text, ctype, source)
+         in enumerate(res.provisions)])
+    conn.executemany("INSERT INTO terms(document_id, term, definition, provision, uses) VALUES(?,?,?,?,?)",
+                     [(doc_id, *t) for t in res.terms])
+
+
+# ----------------------------------------------------------------------------------------
+# Derived data
+# ----------------------------------------------------------------------------------------
+
+
+def _doc_replacer(terms: Sequence[str], aliases: Mapping[str, str]) -> TermReplacer:
+    names = {}
+    for t in terms:
+        name = aliases.get(t, t)
+        names[t] = canonical_role(name) or name
+    return TermReplacer(names)
+
+
+def _refresh_derived(conn: sqlite3.Connection, folder: Path, *, cancel: Cancel | Any | None,
+                     vocabulary: bool) -> bool:
+    """Refresh everything computed from the documents.  False when cancelled."""
+    # 1. Aliases between the documents' defined terms.
+    aliases = learn_aliases(conn.execute("SELECT document_id, term, definition FROM terms"))
+    encoded = json.dumps(aliases, sort_keys=True)
+    if _meta(conn, "aliases") != encoded:
+        conn.execute("UPDATE documents SET normalised = 0")
+        _set_meta(conn, "aliases", encoded)
+    # 2. Normalised wordings of documents not yet normalised.
+    todo = [r[0] for r in conn.execute("SELECT id FROM documents WHERE normalised = 0 ORDER BY id")]
+    for n, doc_id in enumerate(todo):
+        if n % 25 == 0 and _cancelled(cancel):
+            conn.commit()
+            return False
+        terms = [r[0] for r in conn.execute("SELECT term FROM terms WHERE document_id = ?", (doc_id,))]
+        replacer = _doc_replacer(terms, aliases)
+        rows = []
+        for pid, heading, text in conn.execute(
+                "SELECT id, heading, text FROM provisions WHERE document_id = ?", (doc_id,)):
+            tokens = normalised_wording(text, heading, terms=replacer)
+            norm = " ".join(tokens)
+            rows.append((norm, _norm_hash(norm), shingle_hashes(tokens).tobytes(), pid))
+        conn.executemany("UPDATE provisions SET norm = ?, norm_hash = ?, shingles = ? WHERE id = ?", rows)
+        conn.execute("UPDATE documents SET normalised = 1 WHERE id = ?", (doc_id,))
+    conn.commit()
+    if _cancelled(cancel):
+        return False
+    # 3. Neighbour typing of unheaded or oddly headed clauses.
+    _retype_by_neighbours(conn, folder)
+    conn.commit()
+    if _cancelled(cancel):
+        return False
+    # 4. Variants and the frequency cache.
+    _refresh_variants(conn, folder)
+    conn.commit()
+    if _cancelled(cancel):
+        return False
+    # 5. Vocabulary model.
+    if vocabulary:
+        from .vocab import train_library_vocabulary
+
+        train_library_vocabulary(conn, folder / VOCAB_FILENAME)
+    return True
+
+
+def _retype_by_neighbours(conn: sqlite3.Connection, folder: Path) -> None:
+    tax = load_taxonomy()
+    examples: list[tuple[str, str]] = []
+    from .clausetypes import MAX_EXAMPLES_PER_TYPE
+
+    for tid in tax.ids:
+        examples.extend(
+            (norm, tid) for (norm,) in conn.execute(
+                "SELECT DISTINCT norm FROM provisions WHERE type_source IN ('heading', 'parent') "
+                "AND clause_type = ? AND norm != '' ORDER BY norm_hash LIMIT ?",
+                (tid, MAX_EXAMPLES_PER_TYPE)))
+    clf = NeighbourClassifier.fit(examples, taxonomy=tax)
+    _write_private(folder / NEIGHBOURS_FILENAME, clf.to_npz_bytes())
+    rows = conn.execute("SELECT id, kind, norm, clause_type FROM provisions "
+                        "WHERE type_source IN ('neighbour', 'none')").fetchall()
+    if not rows:
+        return
+    preds = clf.predict([r[2] or "" for r in rows])
+    updates = [(tid, "neighbour" if tid else "none", bucket_of(tid, kind), pid)
+               for (pid, kind, _norm, old), (tid, _s) in zip(rows, preds) if tid != old]
+    conn.executemany("UPDATE provisions SET clause_type = ?, type_source = ?, bucket = ? WHERE id = ?",
+                     updates)
+
+
+def _variant_config(conn: sqlite3.Connection) -> VariantConfig:
+    raw = _meta(conn, "variant_config")
+    if raw is None:
+        return VariantConfig()
+    metric, linkage, cutoff, max_items = json.loads(raw)
+    return VariantConfig(metric=metric, linkage=linkage, cutoff=float(cutoff), max_items=int(max_items))
+
+
+def _bucket_rows(conn: sqlite3.Connection, bucket: str) -> list[tuple[str, int, bytes, str, int]]:
+    """(norm_hash, provisions, shingles, norm, sample provision id) per distinct wording,
+    most frequent first, then by hash."""
+    return conn.execute(
+        "SELECT norm_hash, COUNT(*) AS n, shingles, norm, MIN(id) FROM provisions WHERE bucket = ? "
+        "GROUP BY norm_hash ORDER BY n DESC, norm_hash", (bucket,)).fetchall()
+
+
+def _refresh_variants(conn: sqlite3.Connection, folder: Path) -> None:
+    config = _variant_config(conn)
+    buckets = [r[0] for r in conn.execute("SELECT DISTINCT bucket FROM provisions ORDER BY bucket")]
+    conn.execute("DELETE FROM buckets WHERE bucket NOT IN (SELECT DISTINCT bucket FROM provisions)")
+    conn.execute("DELETE FROM variants WHERE bucket NOT IN (SELECT DISTINCT bucket FROM provisions)")
+    arrays: dict[str, np.ndarray] = {}
+    for bi, bucket in enumerate(buckets):
+        rows = _bucket_rows(conn, bucket)
+        hashes = [r[0] for r in rows]
+        position_of = {h: i for i, h in enumerate(hashes)}
+        doc_lists: list[list[int]] = [[] for _ in rows]
+        for h, doc_id in conn.execute("SELECT DISTINCT norm_hash, document_id FROM provisions "
+                                      "WHERE bucket = ? ORDER BY document_id", (bucket,)):
+            doc_lists[position_of[h]].append(doc_id)
+        fp = hashlib.blake2b("\n".join(sorted(hashes)).encode(), digest_size=16).hexdigest()
+        old = conn.execute("SELECT fingerprint FROM buckets WHERE bucket = ?", (bucket,)).fetchone()
+        sets = [np.frombuffer(r[2], dtype=np.uint64) for r in rows]
+        if old is None or old[0] != fp:
+            labels = cluster_wordings(sets, config=config)
+            _store_variants(conn, bucket, rows, doc_lists, labels)
+            conn.execute("INSERT INTO buckets(bucket, fingerprint) VALUES(?, ?) ON CONFLICT(bucket) "
+                         "DO UPDATE SET fingerprint = excluded.fingerprint", (bucket, fp))
+        else:
+            _refresh_assignments(conn, bucket, rows, doc_lists)
+        _cache_bucket(conn, bi, bucket, rows, sets, doc_lists, arrays)
+    arrays["buckets"] = np.array(buckets, dtype=str) if buckets else np.zeros(0, dtype="<U1")
+    buf = io.BytesIO()
+    np.savez(buf, **arrays)
+    _write_private(folder / CACHE_FILENAME, buf.getvalue())
+
+
+def _store_variants(conn: sqlite3.Connection, bucket: str, rows: Sequence[tuple],
+                    doc_lists: Sequence[Sequence[int]], labels: np.ndarray) -> None:
+    conn.execute("UPDATE provisions SET variant_id = NULL WHERE bucket = ?", (bucket,))
+    conn.execute("DELETE FROM variants WHERE bucket = ?", (bucket,))
+    groups: dict[int, list[int]] = {}
+    for i, lab in enumerate(labels.tolist()):
+        groups.setdefault(lab, []).append(i)
+    ordered = sorted(groups.items(), key=lambda kv: (-sum(rows[i][1] for i in kv[1]), kv[0]))
+    has_labels = conn.execute("SELECT 1 FROM labels WHERE bucket = ? LIMIT 1", (bucket,)).fetchone()
+    updates = []
+    for ordinal, (_lab, members) in enumerate(ordered, start=1):
+        n_prov = sum(rows[i][1] for i in members)
+        n_docs = len({d for i in members for d in doc_lists[i]})
+        cur = conn.execute("INSERT INTO variants(bucket, ordinal, wordings, provisions, documents, sample) "
+                           "VALUES(?,?,?,?,?,?)", (bucket, ordinal, len(members), n_prov, n_docs,
+                                                   rows[members[0]][4]))
+        vid = cur.lastrowid
+        updates.extend((vid, bucket, rows[i][0]) for i in members)
+    conn.executemany("UPDATE provisions SET variant_id = ? WHERE bucket = ? AND norm_hash = ?", updates)
+    if has_labels:
+        for (vid,) in conn.execute("SELECT id FROM variants WHERE bucket = ?", (bucket,)).fetchall():
+            _update_position(conn, vid)
+
+
+def _refresh_assignments(conn: sqlite3.Connection, bucket: str, rows: Sequence[tuple],
+                         doc_lists: Sequence[Sequence[int]]) -> None:
+    """Same distinct wordings as when the bucket was clustered, but other documents may use
+    them now: give new provisions their wording's variant and recount the variants."""
+    vid_of = dict(conn.execute("SELECT norm_hash, MAX(variant_id) FROM provisions WHERE bucket = ? "
+                               "GROUP BY norm_hash", (bucket,)))
+    conn.executemany("UPDATE provisions SET variant_id = ? WHERE bucket = ? AND norm_hash = ? "
+                     "AND variant_id IS NULL", [(vid_of[r[0]], bucket, r[0]) for r in rows])
+    members: dict[int, list[int]] = {}
+    for i, r in enumerate(rows):
+        vid = vid_of.get(r[0])
+        if vid is not None:
+            members.setdefault(vid, []).append(i)
+    conn.executemany("UPDATE variants SET provisions = ?, documents = ?, sample = ? WHERE id = ?",
+                     [(sum(rows[i][1] for i in m), len({d for i in m for d in doc_lists[i]}), rows[m[0]][4], vid)
+                      for vid, m in members.items()])
+
+
+def _update_position(conn: sqlite3.Connection, variant_id: int) -> str | None:
+    """A variant's position: the label most of its labelled wordings carry (ties: the most
+    recent label)."""
+    rows = conn.execute(
+        "SELECT l.position, COUNT(*), MAX(l.seq) FROM labels l JOIN "
+        "(SELECT DISTINCT bucket, norm_hash FROM provisions WHERE variant_id = ?) p "
+        "ON l.bucket = p.bucket AND l.norm_hash = p.norm_hash GROUP BY l.position",
+        (variant_id,)).fetchall()
+    position = min(rows, key=lambda r: (-r[1], -r[2]))[0] if rows else None
+    conn.execute("UPDATE variants SET position = ? WHERE id = ?", (position, variant_id))
+    return position
+
+
+def _cache_bucket(conn: sqlite3.Connection, bi: int, bucket: str, rows: Sequence[tuple],
+                  sets: Sequence[np.ndarray], doc_lists: Sequence[Sequence[int]],
+                  arrays: dict[str, np.ndarray]) -> None:
+    """Arrays of one bucket for :class:`BucketIndex` (no text: hashes and ids only)."""
+    m, cols = incidence_matrix(sets)
+    word_sets = [np.unique(np.fromiter((_word_hash(w) for w in r[3].split()), dtype=np.uint64))
+                 if r[3] else np.zeros(0, dtype=np.uint64) for r in rows]
+    wm, wcols = incidence_matrix(word_sets)
+    hashes = [r[0] for r in rows]
+    variant = {h: v for h, v in conn.execute(
+        "SELECT DISTINCT norm_hash, variant_id FROM provisions WHERE bucket = ?", (bucket,))}
+    p = f"b{bi}_"
+    arrays[p + "cols"] = cols
+    arrays[p + "indptr"] = m.indptr.astype(np.int64)
+    arrays[p + "indices"] = m.indices.astype(np.int32)
+    arrays[p + "sizes"] = np.fromiter((s.size for s in sets), dtype=np.int32, count=len(sets))
+    arrays[p + "wcols"] = wcols
+    arrays[p + "windptr"] = wm.indptr.astype(np.int64)
+    arrays[p + "windices"] = wm.indices.astype(np.int32)
+    arrays[p + "count"] = np.array([r[1] for r in rows], dtype=np.int32)
+    arrays[p + "sample"] = np.array([r[4] for r in rows], dtype=np.int64)
+    arrays[p + "variant"] = np.array([variant.get(h) or -1 for h in hashes], dtype=np.int64)
+    arrays[p + "docptr"] = np.cumsum([0] + [len(d) for d in doc_lists]).astype(np.int64)
+    arrays[p + "docs"] = np.array([d for ds in doc_lists for d in ds], dtype=np.int64)
+
+
+# ----------------------------------------------------------------------------------------
+# Reading the index
+# ----------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class BucketIndex:
+    """One bucket's distinct wordings as sparse shingle and word incidence matrices."""
+
+    name: str
+    cols: np.ndarray  # sorted shingle hashes
+    shingles: Any  # scipy.sparse.csc_matrix, rows = distinct wordings
+    sizes: np.ndarray  # shingles per row
+    wcols: np.ndarray
+    words: Any  # csc_matrix of distinct words per row
+    count: np.ndarray  # provisions per row
+    sample: np.ndarray  # one provision id per row
+    variant: np.ndarray  # variant id per row (-1 if none)
+    docptr: np.ndarray
+    docs: np.ndarray
+
+    @property
+    def rows(self) -> int:
+        return int(self.sizes.size)
+
+    def documents_of(self, row_mask: np.ndarray) -> set[int]:
+        out: set[int] = set()
+        for i in np.flatnonzero(row_mask).tolist():
+            out.update(self.docs[self.docptr[i]:self.docptr[i + 1]].tolist())
+        return out
+
+    def all_documents(self) -> set[int]:
+        return set(self.docs.tolist())
+
+    def intersections(self, hashes: np.ndarray) -> np.ndarray:
+        """|row shingles & hashes| for every row (hashes: sorted unique uint64)."""
+        return self._hits(self.cols, self.shingles, hashes)
+
+    def word_hits(self, hashes: np.ndarray) -> np.ndarray:
+        return self._hits(self.wcols, self.words, hashes)
+
+    @staticmethod
+    def _hits(cols: np.ndarray, matrix: Any, hashes: np.ndarray) -> np.ndarray:
+        if hashes.size == 0 or cols.size == 0:
+            return np.zeros(matrix.shape[0], dtype=np.int64)
+        pos = np.searchsorted(cols, hashes)
+        ok = pos < cols.size
+        pos = pos[ok]
+        pos = pos[cols[pos] == hashes[ok]]
+        if pos.size == 0:
+            return np.zeros(matrix.shape[0], dtype=np.int64)
+        return np.asarray(matrix[:, pos].sum(axis=1)).ravel().astype(np.int64)
+
+
+class Library:
+    """An open precedent-set index (read side, plus the reviewer's labels).
+
+    Open with :func:`open_library`; close with :meth:`close` or a ``with`` block.  Use it
+    from one thread at a time.
+    """
+
+    def __init__(self, db_path: str | os.PathLike[str], *, root: str | os.PathLike[str] | None = None) -> None:
+        self.db_path = Path(db_path)
+        self.conn = _connect(self.db_path, create=False)
+        stored_root = _meta(self.conn, "root")
+        self.root = Path(root) if root is not None else (Path(stored_root) if stored_root else self.db_path.parent)
+        self._cache: dict[str, np.ndarray] | None = None
+        self._buckets: dict[str, BucketIndex | None] = {}
+        self._neighbours: NeighbourClassifier | None = None
+        self._vocab: Any = None
+        self._aliases: dict[str, str] | None = None
+        #: The build report when :func:`open_library` refreshed the index, else None.
+        self.report: BuildReport | None = None
+
+    # -- context manager ------------------------------------------------------------------
+    def __enter__(self) -> Library:
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        self.close()
+
+    def close(self) -> None:
+        self.conn.close()
+
+    # -- facts ----------------------------------------------------------------------------
+    @property
+    def folder(self) -> Path:
+        return self.db_path.parent
+
+    @property
+    def total(self) -> int:
+        """Agreements in the index (readable .docx/.txt/.md files under the root)."""
+        return int(self.conn.execute("SELECT COUNT(*) FROM documents").fetchone()[0])
+
+    @property
+    def stale(self) -> bool:
+        return _meta(self.conn, "stale") == "1"
+
+    @property
+    def config(self) -> VariantConfig:
+        return _variant_config(self.conn)
+
+    def failures(self) -> tuple[Failure, ...]:
+        return tuple(Failure(p, m) for p, m in
+                     self.conn.execute("SELECT path, problem FROM failures ORDER BY path"))
+
+    def aliases(self) -> dict[str, str]:
+        if self._aliases is None:
+            raw = _meta(self.conn, "aliases")
+            self._aliases = json.loads(raw) if raw else {}
+        return self._aliases
+
+    def neighbours(self) -> NeighbourClassifier | None:
+        """The neighbour classifier fitted on the library (None before the first build)."""
+        if self._neighbours is None:
+            path = self.folder / NEIGHBOURS_FILENAME
+            if path.exists():
+                self._neighbours = NeighbourClassifier.from_npz_bytes(path.read_bytes())
+        return self._neighbours
+
+    @property
+    def vocabulary(self):  # noqa: ANN201 - core.library.vocab.LibraryVocabulary | None
+        """The library's vocabulary model (``VocabularyModel`` of the term mapper), or None."""
+        if self._vocab is None:
+            from .vocab import LibraryVocabulary
+
+            path = self.folder / VOCAB_FILENAME
+            self._vocab = LibraryVocabulary.load(path) if path.exists() else False
+        return self._vocab or None
+
+    def _arrays(self) -> dict[str, np.ndarray]:
+        if self._cache is None:
+            path = self.folder / CACHE_FILENAME
+            if not path.exists():
+                self._cache = {}
+            else:
+                with np.load(path, allow_pickle=False) as data:
+                    self._cache = {k: data[k] for k in data.files}
+        return self._cache
+
+    def bucket_names(self) -> tuple[str, ...]:
+        arr = self._arrays().get("buckets")
+        return tuple(arr.tolist()) if arr is not None else ()
+
+    def bucket(self, name: str) -> BucketIndex | None:
+        """The frequency index of one bucket (clause type or ``~kind``), None if empty."""
+        if name in self._buckets:
+            return self._buckets[name]
+        from scipy.sparse import csr_matrix
+
+        names = self.bucket_names()
+        if name not in names:
+            self._buckets[name] = None
+            return None
+        a = self._arrays()
+        p = f"b{names.index(name)}_"
+        n = a[p + "sizes"].size
+        sh = csr_matrix((np.ones(a[p + "indices"].size, dtype=np.int32), a[p + "indices"], a[p + "indptr"]),
+                        shape=(n, a[p + "cols"].size)).tocsc()
+        wm = csr_matrix((np.ones(a[p + "windices"].size, dtype=np.int32), a[p + "windices"], a[p + "windptr"]),
+                        shape=(n, a[p + "wcols"].size)).tocsc()
+        b = BucketIndex(name, a[p + "cols"], sh, a[p + "sizes"], a[p + "wcols"], wm, a[p + "count"],
+                        a[p + "sample"], a[p + "variant"], a[p + "docptr"], a[p + "docs"])
+        self._buckets[name] = b
+        return b
+
+    def documents_with(self, bucket: str) -> int:
+        b = self.bucket(bucket)
+        return 0 if b is None else len(b.all_documents())
+
+    def document_paths(self, ids: Sequence[int]) -> dict[int, str]:
+        out: dict[int, str] = {}
+        ids = list(dict.fromkeys(int(i) for i in ids))
+        for start in range(0, len(ids), 500):
+            chunk = ids[start:start + 500]
+            q = ",".join("?" * len(chunk))
+            out.update(self.conn.execute(f"SELECT id, path FROM documents WHERE id IN ({q})", chunk))
+        return out
+
+    def provision_refs(self, ids: Sequence[int]) -> dict[int, tuple[str, str]]:
+        """``{provision row id: (document path, provision number/heading/id)}``."""
+        out: dict[int, tuple[str, str]] = {}
+        ids = list(dict.fromkeys(int(i) for i in ids))
+        for start in range(0, len(ids), 500):
+            chunk = ids[start:start + 500]
+            q = ",".join("?" * len(chunk))
+            for pid, path, number, heading, local in self.conn.execute(
+                    f"SELECT p.id, d.path, p.number, p.heading, p.pid FROM provisions p "
+                    f"JOIN documents d ON d.id = p.document_id WHERE p.id IN ({q})", chunk):
+                out[pid] = (path, number or heading or local)
+        return out
+
+    def _column(self, column: str, ids: Sequence[int]) -> dict[int, str]:
+        out: dict[int, str] = {}
+        ids = list(dict.fromkeys(int(i) for i in ids))
+        for start in range(0, len(ids), 500):
+            chunk = ids[start:start + 500]
+            q = ",".join("?" * len(chunk))
+            out.update(self.conn.execute(f"SELECT id, {column} FROM provisions WHERE id IN ({q})", chunk))
+        return out
+
+    def norms(self, ids: Sequence[int]) -> dict[int, str]:
+        """Normalised wordings of provision rows *ids*."""
+        return self._column("norm", ids)
+
+    def texts(self, ids: Sequence[int]) -> dict[int, str]:
+        """Provision texts of provision rows *ids* (for display only; never logged)."""
+        return self._column("text", ids)
+
+    def variant_positions(self) -> dict[int, str]:
+        return {v: p for v, p in self.conn.execute("SELECT id, position FROM variants WHERE position IS NOT NULL")}
+
+    # -- variants and labels --------------------------------------------------------------
+    def variants(self, *, bucket: str | None = None) -> list[VariantInfo]:
+        sql = ("SELECT v.id, v.bucket, v.ordinal, v.wordings, v.provisions, v.documents, v.position, "
+               "d.path, p.number, p.heading, p.pid, v.sample FROM variants v LEFT JOIN provisions p ON p.id = v.sample "
+               "LEFT JOIN documents d ON d.id = p.document_id")
+        args: tuple[Any, ...] = ()
+        if bucket is not None:
+            sql += " WHERE v.bucket = ?"
+            args = (bucket,)
+        sql += " ORDER BY v.bucket, v.ordinal"
+        return [VariantInfo(vid, b, o, w, n, d, pos, path, number or heading or pid, sample)
+                for vid, b, o, w, n, d, pos, path, number, heading, pid, sample
+                in self.conn.execute(sql, args)]
+
+    def variant_of(self, document: str, provision: str) -> int | None:
+        """The variant of *provision* (number, heading or provision id) in *document* (path
+        relative to the root)."""
+        row = self.conn.execute(
+            "SELECT p.variant_id FROM provisions p JOIN documents d ON d.id = p.document_id "
+            "WHERE d.path = ? AND (p.number = ? OR p.pid = ? OR lower(p.heading) = lower(?)) "
+            "ORDER BY p.ordinal LIMIT 1", (document, provision, provision, provision)).fetchone()
+        return None if row is None else row[0]
+
+    def label_variant(self, variant_id: int, position: str | None) -> int:
+        """Give every wording of variant *variant_id* the reviewer's *position* (one of
+        :data:`POSITIONS`; None removes the label).  Returns the number of wordings labelled."""
+        if position is not None and position not in POSITIONS:
+            raise CounterdraftError(f"position must be one of: {', '.join(POSITIONS)}")
+        row = self.conn.execute("SELECT bucket FROM variants WHERE id = ?", (variant_id,)).fetchone()
+        if row is None:
+            raise CounterdraftError(f"no variant {variant_id} in the index (see 'counterdraft library stats')",
+                                    path=str(self.db_path))
+        bucket = row[0]
+        hashes = [h for (h,) in self.conn.execute(
+            "SELECT DISTINCT norm_hash FROM provisions WHERE variant_id = ?", (variant_id,))]
+        if position is None:
+            self.conn.executemany("DELETE FROM labels WHERE bucket = ? AND norm_hash = ?",
+                                  [(bucket, h) for h in hashes])
+        else:
+            seq = int(self.conn.execute("SELECT COALESCE(MAX(seq), 0) FROM labels").fetchone()[0]) + 1
+            self.conn.executemany(
+                "INSERT INTO labels(bucket, norm_hash, position, seq) VALUES(?,?,?,?) "
+                "ON CONFLICT(bucket, norm_hash) DO UPDATE SET position = excluded.position, seq = excluded.seq",
+                [(bucket, h, position, seq) for h in hashes])
+        _update_position(self.conn, variant_id)
+        self.conn.commit()
+        return len(hashes)
+
+
+def open_library(root: str | os.PathLike[str] | None = None, *, db_path: str | os.PathLike[str] | None = None,
+                 refresh: bool = True, progress: Progress | None = None, cancel: Cancel | Any | None = None,
+                 workers: int = 2, exclude: Sequence[str | os.PathLike[str]] = ()) -> Library:
+    """Open the index of the precedent set in *root* (default index path
+    ``root/.counterdraft/library.sqlite``, or *db_path*), building or refreshing it first
+    when *refresh* (then ``library.report`` holds the :class:`BuildReport`)."""
+    if root is None and db_path is None:
+        raise CounterdraftError("give the precedent-set folder or the index path")
+    report = None
+    if refresh:
+        if root is None:
+            raise CounterdraftError("refreshing the index needs the precedent-set folder")
+        report = build_library(root, db_path=db_path, progress=progress, cancel=cancel, workers=workers,
+                               exclude=exclude)
+    db = Path(db_path) if db_path is not None else default_db_path(root)  # type: ignore[arg-type]
+    lib = Library(db, root=root)
+    lib.report = report
+    return lib

@@ -1,0 +1,543 @@
+"""The review engine: compare the counterparty's draft with the house precedent.
+
+:func:`run_review` runs the stages in order:
+
+1. **term map** (:mod:`.termmap`): a first map from the definitions (and the vocabulary model
+   when there is one), an alignment with it, then the final map with the substitution
+   evidence of the aligned provisions; the alignment is redone when the map changed;
+2. **alignment** (:mod:`.align`): provisions paired by content and heading after term
+   normalisation; statuses same / changed / moved / added / removed / split / merged;
+3. **word diff** (:mod:`.worddiff`) of every aligned pair, with the draft's defined terms
+   read as the precedent's and cross-references read as the provision they point at;
+4. **classification** (:mod:`.classify`) of each change: formatting, punctuation, numbering,
+   term or substantive;
+5. **severity** (:mod:`.severity`, rules in ``resources/severity.toml``) and ranking: by
+   descending severity, ties in draft order.
+
+A pair's status is ``same`` when its only differences are renamed defined terms and
+renumbering, ``changed`` otherwise; ``moved``, ``split`` and ``merged`` take precedence.
+
+Cost: linear in the documents' length apart from the alignment's candidate scoring (see
+:mod:`.align`) and Myers' diff per pair (O(N·D)); ``benchmarks/bench_review.py`` measures it.
+"""
+
+from __future__ import annotations
+
+import re
+import time
+from bisect import bisect_right
+from collections.abc import Callable, Mapping, Sequence
+from dataclasses import dataclass
+
+from ..model import Deviation, Document, Pair, Provision, Review
+from .align import Alignment, Features, Group, align
+from .classify import Change, TermContext, classify_ops
+from .docinfo import DocInfo, build_docinfo
+from .serialize import review_to_dict
+from .severity import (
+    SeverityRules,
+    category_severity,
+    clause_types_for,
+    default_rules,
+    find_quantities,
+    provision_change_severity,
+    text_change_severity,
+)
+from .termmap import (
+    TermMap,
+    TermOverride,
+    VocabularyModel,
+    count_substitutions,
+    map_terms,
+)
+from .tokens import (
+    BaseTokens,
+    TermMatcher,
+    TokenSeq,
+    base_tokens,
+    count_term_uses,
+    rekey,
+    term_matcher,
+    word_keys,
+)
+from .worddiff import token_ops
+
+__all__ = ["NO_SHARED_NOTE", "TermOverride", "VocabularyModel", "clear_caches", "review_to_dict",
+           "run_review"]
+
+#: Words of context added around a change that has no letters or digits of its own (a
+#: comma inserted), so that the reader sees where it is.
+_CONTEXT_WORDS = 1
+NO_SHARED_NOTE = ("the documents share no provision: every precedent provision is reported "
+                  "as removed and every draft provision as added")
+
+
+class _Side:
+    """One document's provisions tokenised once (lazily); keys follow ``to_key``."""
+
+    def __init__(self, info: DocInfo, matcher: TermMatcher | None) -> None:
+        self.info = info
+        self.matcher = matcher
+        n = len(info.provisions)
+        self._text: list[BaseTokens | None] = [None] * n
+        self._head: list[BaseTokens | None] = [None] * n
+        self.to_key: Mapping[str, str] = {}
+
+    def text(self, i: int) -> BaseTokens:
+        bt = self._text[i]
+        if bt is None:
+            bt = self._text[i] = base_tokens(self.info.provisions[i].text, self.matcher)
+        return bt
+
+    def head(self, i: int) -> BaseTokens:
+        bt = self._head[i]
+        if bt is None:
+            bt = self._head[i] = base_tokens(self.info.provisions[i].heading or "", self.matcher)
+        return bt
+
+    def seq(self, i: int, xref: Callable[[str, str], str] | None = None) -> TokenSeq:
+        return rekey(self.text(i), term_key=self.to_key, xref=xref)
+
+
+def _features(side: _Side) -> list[Features]:
+    info = side.info
+    out: list[Features] = []
+    # a parties provision is linked through the party label it defines, as a definition is
+    party_term: dict[str, str] = {}
+    for t in info.doc.terms:
+        if t.term in info.party_labels:
+            party_term.setdefault(t.provision, t.term)
+    for i, p in enumerate(info.provisions):
+        seq = side.seq(i)
+        hseq = rekey(side.head(i), term_key=side.to_key)
+        name = p.term if p.kind == "definition" else party_term.get(p.id)
+        term = side.to_key.get(name, name) if name else None
+        out.append(Features(tuple(word_keys(seq)), tuple(word_keys(hseq)), p.kind, term,
+                            info.parent_pos[i]))
+    return out
+
+
+def _label(info: DocInfo, pos: int, *, with_heading: bool = True) -> str:
+    p = info.provisions[pos]
+    num = info.full_number[pos]
+    if p.kind == "definition" and p.term:
+        base = f'definition of "{p.term}"'
+        return f"{base} (clause {num})" if num else base
+    if num:
+        base = f"{'schedule' if p.kind == 'schedule' else 'clause'} {num}"
+    else:
+        base = p.kind if p.kind != "clause" else "provision"
+    if with_heading and p.heading:
+        return f"{base} ({p.heading.strip()})"
+    if not num and not p.heading:
+        words = p.text.split()[:6]
+        if words:
+            return f"{base} \"{' '.join(words)}{' ...' if len(p.text.split()) > 6 else ''}\""
+    return base
+
+
+def _with_context(text: str, span: tuple[int, int]) -> str:
+    """``text[span]``; a change with no letter or digit gets a word of context each side."""
+    a, b = span
+    s = text[a:b]
+    if not s or any(c.isalnum() for c in s):
+        return s
+    left = text[:a]
+    m = re.search(r"(\S+\s*){1,%d}$" % _CONTEXT_WORDS, left)
+    if m:
+        a = m.start()
+    m = re.match(r"(\s*\S+){1,%d}" % _CONTEXT_WORDS, text[b:])
+    if m:
+        b += m.end()
+    return text[a:b]
+
+
+@dataclass
+class _Dev:
+    """A deviation before ranking."""
+
+    order: tuple[float, int, int]
+    severity: int
+    category: str
+    change: str
+    draft_provision: str | None
+    precedent_provision: str | None
+    precedent_text: str
+    draft_text: str
+    reasons: tuple[str, ...]
+    precedent_span: tuple[int, int] | None = None
+    draft_span: tuple[int, int] | None = None
+
+
+def _local_label(num: str) -> str:
+    m = re.search(r"\([^()]*\)$", num)
+    if m:
+        return m.group()
+    return num.split(".")[-1]
+
+
+def run_review(draft: Document, precedent: Document, *,
+               overrides: Sequence[TermOverride] = (),
+               vocabulary: VocabularyModel | None = None,
+               rules: SeverityRules | None = None,
+               clause_type: Callable[[Provision, Document], str | None] | None = None,
+               timings: dict[str, float] | None = None) -> Review:
+    """Compare *draft* (the counterparty's) with *precedent* (the house document).
+
+    *overrides* confirm, reject or add term mappings; *vocabulary* is the precedent set's
+    vocabulary model (optional); *rules* the severity rules (default
+    ``resources/severity.toml``); *clause_type* a better clause-type classifier than the
+    rules' heading keywords (optional).  When *timings* is given it receives each stage's
+    wall-clock time in seconds (for ``benchmarks/bench_review.py``)."""
+    clock = _Clock(timings)
+    rules = rules or default_rules()
+    di, pi = build_docinfo(draft), build_docinfo(precedent)
+    extra = [n for o in overrides for n in (o.draft, o.precedent or "") if n.strip()]
+    matcher = term_matcher([*di.term_names, *pi.term_names, *extra])
+    dside, pside = _Side(di, matcher), _Side(pi, matcher)
+
+    n_d, n_p = len(di.provisions), len(pi.provisions)
+    uses = (count_term_uses([*(dside.text(i) for i in range(n_d)), *(dside.head(i) for i in range(n_d))]),
+            count_term_uses([*(pside.text(i) for i in range(n_p)), *(pside.head(i) for i in range(n_p))]))
+    clock.lap("tokens: words, terms, cross-references")
+
+    # 1-2. term map and alignment, twice: the substitution evidence needs an alignment.
+    tm0 = map_terms(di, pi, overrides=overrides, vocabulary=vocabulary, uses=uses)
+    clock.lap("term map: definitions")
+    dside.to_key = tm0.to_precedent
+    al0 = align(_features(dside), _features(pside))
+    clock.lap("alignment: first pass")
+    d_only = [n for n in di.term_names if n not in set(pi.term_names)]
+    p_only = [n for n in pi.term_names if n not in set(di.term_names)]
+    one_to_one = [(g.drafts[0], g.precedents[0]) for g in al0.groups if g.kind == "match"]
+    dside.to_key = {}
+    subs = count_substitutions(one_to_one, draft_seq=dside.seq, precedent_seq=pside.seq,
+                               draft_names=d_only, precedent_names=p_only)
+    tm = map_terms(di, pi, overrides=overrides, vocabulary=vocabulary, substitutions=subs,
+                   uses=uses)
+    clock.lap("term map: substitutions")
+    dside.to_key = tm.to_precedent
+    al = al0 if dict(tm.to_precedent) == dict(tm0.to_precedent) else align(_features(dside), _features(pside))
+    clock.lap("alignment: with the term map")
+
+    d_types = clause_types_for(draft, rules=rules, classifier=clause_type)
+    p_types = clause_types_for(precedent, rules=rules, classifier=clause_type)
+    builder = _Builder(di, pi, dside, pside, tm, al, rules, d_types, p_types, clock)
+    review = builder.build()
+    clock.lap("ranking and output")
+    return review
+
+
+def clear_caches() -> None:
+    """Forget the engine's caches of token keys, figures and phrase matches (they only
+    speed up reviews of the same texts; benchmarks clear them to time cold runs)."""
+    from .severity import clear_caches as _clear_severity
+    from .tokens import clear_token_cache
+
+    clear_token_cache()
+    _clear_severity()
+
+
+class _Clock:
+    """Accumulates stage times into a caller's dict (no-op without one)."""
+
+    def __init__(self, sink: dict[str, float] | None) -> None:
+        self.sink = sink
+        self.t = time.perf_counter()
+
+    def lap(self, stage: str) -> None:
+        if self.sink is None:
+            return
+        now = time.perf_counter()
+        self.sink[stage] = self.sink.get(stage, 0.0) + now - self.t
+        self.t = now
+
+
+class _Builder:
+    """Turns an alignment into pairs and ranked deviations (word diff, classification,
+    severity per aligned group; one deviation per added or removed subtree, per moved
+    provision, per renumbered label and per renamed term)."""
+
+    def __init__(self, di: DocInfo, pi: DocInfo, dside: _Side, pside: _Side, tm: TermMap,
+                 al: Alignment, rules: SeverityRules, d_types, p_types, clock: _Clock) -> None:
+        self.clock = clock
+        self.di, self.pi, self.dside, self.pside = di, pi, dside, pside
+        self.tm, self.al, self.rules = tm, al, rules
+        self.d_types, self.p_types = d_types, p_types
+        self.devs: list[_Dev] = []
+        # where a removed precedent provision would sit in the draft's order
+        self.p_anchor: dict[int, float] = {}
+        last = -0.5
+        for p in range(len(pi.provisions)):
+            if p in al.precedent_to_draft:
+                last = float(al.precedent_to_draft[p])
+            else:
+                self.p_anchor[p] = last + 0.5
+
+    # -- cross-references -------------------------------------------------------------
+    def _xref_draft(self, number: str, keyword: str) -> str:
+        ns = "schedule" if keyword == "schedule" else "clause"
+        d = self.di.by_number.get((ns, number))
+        if d is None:
+            return "N:" + number
+        p = self.al.draft_to_precedent.get(d)
+        return f"P:{self.pi.provisions[p].id}" if p is not None else f"D:{self.di.provisions[d].id}"
+
+    def _xref_precedent(self, number: str, keyword: str) -> str:
+        ns = "schedule" if keyword == "schedule" else "clause"
+        p = self.pi.by_number.get((ns, number))
+        return f"P:{self.pi.provisions[p].id}" if p is not None else "N:" + number
+
+    # -- pieces -------------------------------------------------------------------------
+    def _joined(self, info: DocInfo, positions: Sequence[int]) -> tuple[str, list[int]]:
+        texts = [info.provisions[i].text for i in positions]
+        starts = []
+        off = 0
+        for t in texts:
+            starts.append(off)
+            off += len(t) + 1
+        return "\n".join(texts), starts
+
+    def _ctx(self, dterm_at: Mapping[int, str], pterm_at: Mapping[int, str]) -> TermContext:
+        return TermContext(dterm_at, pterm_at, self.pi.party_labels, self.tm.to_precedent)
+
+    def _type_of(self, ppos: int | None, dpos: int | None) -> tuple[str | None, str]:
+        if ppos is not None:
+            t = self.p_types[ppos]
+            if t is None and dpos is not None:
+                t = self.d_types[dpos]
+            return t, self.pi.provisions[ppos].kind
+        assert dpos is not None
+        return self.d_types[dpos], self.di.provisions[dpos].kind
+
+    def _shown(self, text: str, span: tuple[int, int]) -> str:
+        """The changed words as shown: whole figures ("thirty (30) days", not "thirty (30"),
+        and a word of context around a change without letters or digits."""
+        a, b = span
+        for qs, qe in self._quantities(text, [span]):
+            if qs < b and a < qe:
+                a, b = min(a, qs), max(b, qe)
+        return _with_context(text, (a, b))
+
+    def _add_change(self, ch: Change, *, ptext: str, pstarts: Sequence[int], ppos: Sequence[int],
+                    dtext: str, dstarts: Sequence[int], dpos: Sequence[int], heading: bool) -> None:
+        if ch.category == "term":
+            return  # reported once per term pair
+        pk = bisect_right(pstarts, ch.p_span[0]) - 1
+        dk = bisect_right(dstarts, ch.d_span[0]) - 1
+        pp, dp = ppos[max(pk, 0)], dpos[max(dk, 0)]
+        p0, d0 = pstarts[max(pk, 0)], dstarts[max(dk, 0)]
+        plen = len(self.pi.provisions[pp].text)
+        dlen = len(self.di.provisions[dp].text)
+        pspan = (ch.p_span[0] - p0, min(ch.p_span[1] - p0, plen))
+        dspan = (ch.d_span[0] - d0, min(ch.d_span[1] - d0, dlen))
+        ptxt = self._shown(ptext, ch.p_span) if ch.change != "insert" else ""
+        dtxt = self._shown(dtext, ch.d_span) if ch.change != "delete" else ""
+        if ch.category == "substantive":
+            ctype, kind = self._type_of(pp, dp)
+            sev, reasons = text_change_severity(
+                p_text=ptext, p_span=ch.p_span, d_text=dtext, d_span=ch.d_span,
+                clause_type=ctype, kind=kind, rules=self.rules, extra=ch.signals, heading=heading)
+        else:
+            key = ch.category
+            if ch.category == "numbering" and "unchanged" in ch.note:
+                key = "numbering_cross_reference"
+            sev = category_severity(key, rules=self.rules)
+            reasons = (ch.note,) if ch.note else ()
+        if heading:
+            if ch.category != "substantive":
+                reasons = tuple(f"heading: {r}" for r in reasons)
+            pspan = dspan = None  # type: ignore[assignment]
+        self.devs.append(_Dev(
+            (float(dp), 0 if heading else 1, ch.d_span[0]), sev, ch.category, ch.change,
+            self.di.provisions[dp].id, self.pi.provisions[pp].id, ptxt, dtxt, reasons,
+            None if heading or ch.change == "insert" else pspan,
+            None if heading or ch.change == "delete" else dspan))
+
+    def _quantities(self, text: str, spans: Sequence[tuple[int, int]]) -> list[tuple[int, int]]:
+        """Character spans of the figures near the given spans of *text*."""
+        out: set[tuple[int, int]] = set()
+        for sp in spans:
+            out.update((q.start, q.end) for q in find_quantities(text, around=sp))
+        return sorted(out)
+
+    def _diff_group(self, g: Group) -> int:
+        """Add the deviations of one group; the number of changes other than term or
+        numbering."""
+        ptext, pstarts = self._joined(self.pi, g.precedents)
+        dtext, dstarts = self._joined(self.di, g.drafts)
+        clock = self.clock
+        clock.lap("ranking and output")
+        if len(g.precedents) == 1 and len(g.drafts) == 1:
+            a = self.pside.seq(g.precedents[0], self._xref_precedent)
+            b = self.dside.seq(g.drafts[0], self._xref_draft)
+            pterm = self.pside.text(g.precedents[0]).term_at
+            dterm = self.dside.text(g.drafts[0]).term_at
+        else:
+            pbt = base_tokens(ptext, self.pside.matcher)
+            dbt = base_tokens(dtext, self.dside.matcher)
+            a = rekey(pbt, term_key={}, xref=self._xref_precedent)
+            b = rekey(dbt, term_key=self.dside.to_key, xref=self._xref_draft)
+            pterm, dterm = pbt.term_at, dbt.term_at
+        clock.lap("tokens: words, terms, cross-references")
+        ops = token_ops(a, b)
+        clock.lap("word diff: diff-match-patch")
+        counted = 0
+        if all(op.tag == "equal" for op in ops):
+            clock.lap("classification")
+            return self._heading_changes(g, counted)
+        changed = [op for op in ops if op.tag in ("insert", "delete", "replace")]
+        together = (self._quantities(ptext, [a.span(op.i1, op.i2) for op in changed]),
+                    self._quantities(dtext, [b.span(op.j1, op.j2) for op in changed]))
+        changes = classify_ops(a, b, ops, self._ctx(dterm, pterm), keep_together=together)
+        clock.lap("classification")
+        for ch in changes:
+            if ch.category not in ("term", "numbering"):
+                counted += 1
+            self._add_change(ch, ptext=ptext, pstarts=pstarts, ppos=g.precedents,
+                             dtext=dtext, dstarts=dstarts, dpos=g.drafts, heading=False)
+        clock.lap("severity")
+        return self._heading_changes(g, counted)
+
+    def _heading_changes(self, g: Group, counted: int) -> int:
+        # the heading (of the first provision on each side): one deviation at most
+        ph = self.pi.provisions[g.precedents[0]].heading or ""
+        dh = self.di.provisions[g.drafts[0]].heading or ""
+        if ph != dh:
+            hpb, hdb = self.pside.head(g.precedents[0]), self.dside.head(g.drafts[0])
+            ha, hpt = rekey(hpb, term_key={}), hpb.term_at
+            hb, hdt = rekey(hdb, term_key=self.dside.to_key), hdb.term_at
+            changes = [c for c in classify_ops(ha, hb, token_ops(ha, hb), self._ctx(hdt, hpt))
+                       if c.category != "term"]
+            rank = {"substantive": 0, "punctuation": 1, "formatting": 2, "numbering": 3}
+            changes.sort(key=lambda c: rank[c.category])
+            if changes:
+                top = changes[0]
+                kind = "insert" if not ph.strip() else ("delete" if not dh.strip() else "replace")
+                whole = Change(top.category, kind, (0, len(ph)), (0, len(dh)), top.detail,
+                               note=top.note if top.category != "substantive" else "")
+                counted += 1
+                self._add_change(whole, ptext=ph, pstarts=[0], ppos=g.precedents[:1],
+                                 dtext=dh, dstarts=[0], dpos=g.drafts[:1], heading=True)
+        return counted
+
+    def _fold(self, info: DocInfo, positions: Sequence[int]) -> list[list[int]]:
+        """Group positions into subtrees: a provision whose parent is in the set joins it."""
+        s = set(positions)
+        root_of: dict[int, int] = {}
+        out: dict[int, list[int]] = {}
+        for p in sorted(positions):
+            par = info.parent_pos[p]
+            r = root_of.get(par) if par is not None and par in s else None
+            root = r if r is not None else p
+            root_of[p] = root
+            out.setdefault(root, []).append(p)
+        return list(out.values())
+
+    def _whole(self, info: DocInfo, members: Sequence[int]) -> str:
+        texts = [info.provisions[m].text for m in members if info.provisions[m].text.strip()]
+        if texts:
+            return "\n".join(texts)
+        return info.provisions[members[0]].heading or ""
+
+    def build(self) -> Review:
+        di, pi, al, rules = self.di, self.pi, self.al, self.rules
+        pairs: list[tuple[tuple[float, int, int], Pair]] = []
+        group_of_draft: dict[int, Group] = {}
+        for g in al.groups:
+            for d in g.drafts:
+                group_of_draft[d] = g
+        for g in al.groups:
+            n_changes = self._diff_group(g)
+            if g.kind == "split":
+                status = "split"
+            elif g.kind == "merged":
+                status = "merged"
+            elif g.moved:
+                status = "moved"
+            else:
+                status = "same" if n_changes == 0 else "changed"
+            for (d, p), s in zip(g.pairings, g.pair_similarities):
+                pairs.append(((float(d), 0, p), Pair(di.provisions[d].id, pi.provisions[p].id,
+                                                     status, round(s, 3))))
+            d0, p0 = g.drafts[0], g.precedents[0]
+            if g.moved:
+                dpar, ppar = di.parent_pos[d0], pi.parent_pos[p0]
+                pg = group_of_draft.get(dpar) if dpar is not None else None
+                if not (pg is not None and pg.moved and ppar in pg.precedents):
+                    self.devs.append(_Dev(
+                        (float(d0), 0, -1), category_severity("move", rules=rules), "numbering",
+                        "move", di.provisions[d0].id, pi.provisions[p0].id, "", "",
+                        (f"moved: {_label(pi, p0)} of the precedent is "
+                         f"{_label(di, d0, with_heading=False)} of the draft, in a different "
+                         "place in the order",)))
+            elif g.kind == "match":
+                dn, pn = di.full_number[d0], pi.full_number[p0]
+                if dn and pn and dn != pn:
+                    dpar, ppar = di.parent_pos[d0], pi.parent_pos[p0]
+                    parents_paired = (dpar is not None and ppar is not None
+                                      and al.draft_to_precedent.get(dpar) == ppar)
+                    if not (parents_paired and _local_label(dn) == _local_label(pn)):
+                        self.devs.append(_Dev(
+                            (float(d0), 0, -2), category_severity("numbering", rules=rules),
+                            "numbering", "replace", di.provisions[d0].id, pi.provisions[p0].id,
+                            pi.provisions[p0].number or pn, di.provisions[d0].number or dn,
+                            (f"renumbered from {pn} to {dn}",)))
+        # Added and removed provisions: one deviation per subtree.
+        for members in self._fold(di, al.added):
+            root = members[0]
+            text = self._whole(di, members)
+            ctype = next((self.d_types[m] for m in members if self.d_types[m]), None)
+            sev, reasons = provision_change_severity(
+                added=True, label=_label(di, root).capitalize(), text=text, clause_type=ctype,
+                kind=di.provisions[root].kind, rules=rules)
+            if len(members) > 1:
+                reasons = (reasons[0] + f", with {len(members) - 1} sub-provision"
+                           f"{'s' * (len(members) > 2)}",) + reasons[1:]
+            self.devs.append(_Dev((float(root), 0, -3), sev, "substantive", "add-provision",
+                                  di.provisions[root].id, None, "", text, reasons))
+        for d in al.added:
+            pairs.append(((float(d), 0, -1), Pair(di.provisions[d].id, None, "added", 0.0)))
+        for members in self._fold(pi, al.removed):
+            root = members[0]
+            text = self._whole(pi, members)
+            ctype = next((self.p_types[m] for m in members if self.p_types[m]), None)
+            sev, reasons = provision_change_severity(
+                added=False, label=_label(pi, root).capitalize(), text=text, clause_type=ctype,
+                kind=pi.provisions[root].kind, rules=rules)
+            if len(members) > 1:
+                reasons = (reasons[0] + f", with {len(members) - 1} sub-provision"
+                           f"{'s' * (len(members) > 2)}",) + reasons[1:]
+            self.devs.append(_Dev((self.p_anchor[root], 0, -3), sev, "substantive",
+                                  "remove-provision", None, pi.provisions[root].id, text, "", reasons))
+        for p in al.removed:
+            pairs.append(((self.p_anchor[p], 0, p), Pair(None, pi.provisions[p].id, "removed", 0.0)))
+        # One deviation per renamed defined term.
+        for m in self.tm.mappings:
+            dprov = di.defining_provision.get(m.draft)
+            pprov = pi.defining_provision.get(m.precedent)
+            dpos = di.position.get(dprov, -1) if dprov else -1
+            ev = ", ".join(m.evidence)
+            self.devs.append(_Dev(
+                (float(dpos), -1, 0), category_severity("term", rules=rules), "term", "replace",
+                dprov, pprov, m.precedent, m.draft,
+                (f'defined term renamed: the draft\'s "{m.draft}" is the precedent\'s '
+                 f'"{m.precedent}" ({m.occurrences} use{"s" * (m.occurrences != 1)} in the '
+                 f"draft; evidence: {ev}; confidence {m.confidence:.2f})",)))
+
+        pairs.sort(key=lambda t: t[0])
+        # ids in draft order, ranks by severity then draft order
+        in_order = sorted(self.devs, key=lambda v: v.order)
+        ids = {id(v): f"v{i}" for i, v in enumerate(in_order, 1)}
+        ranked = sorted(in_order, key=lambda v: (-v.severity, v.order))
+        deviations = tuple(
+            Deviation(ids[id(v)], r, v.severity, v.category, v.change, v.draft_provision,
+                      v.precedent_provision, v.precedent_text, v.draft_text, v.reasons,
+                      None, v.precedent_span, v.draft_span)
+            for r, v in enumerate(ranked, 1))
+        notes: list[str] = []
+        if not al.groups and (di.provisions or pi.provisions):
+            notes.append(NO_SHARED_NOTE)
+        return Review(di.doc, pi.doc, self.tm.mappings, tuple(p for _k, p in pairs), deviations,
+                      tuple(notes))
+

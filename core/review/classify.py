@@ -1,0 +1,312 @@
+"""Classification of the hunks of a pair's word diff.
+
+Categories (:data:`core.model.CATEGORIES`):
+
+``formatting``
+    only white space, quote style, dash style or letter case differ;
+``punctuation``
+    the same words, different punctuation (or the same letters joined differently:
+    "e-mail" / "email");
+``numbering``
+    a cross-reference renumbered to keep pointing at the same aligned provision
+    ("Section 5.2" -> "Section 6.2"), or an unchanged reference that lands elsewhere only
+    because of renumbering;
+``term``
+    a use of a defined term the draft names differently (the term map explains it), and
+    "a"/"an" adjusted in front of it; the review reports one deviation per term pair;
+``substantive``
+    everything else.  The classifier adds the token-level signals the severity rules need:
+    the other party named in a party's place, a proper name replaced, a cross-reference
+    pointed at another provision.
+
+Adjacent hunks separated only by spaces and punctuation are one change (so "thirty (30)" ->
+"sixty (60)" is one change, not two).  Cost: O(tokens of the pair).
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
+
+from .severity import Signal
+from .tokens import (
+    DASHES,
+    KIND_SPACE,
+    KIND_TERM,
+    KIND_XREF,
+    QUOTES,
+    TokenSeq,
+)
+from .worddiff import TokenOp
+
+__all__ = ["Change", "TermContext", "classify_ops"]
+
+_WORDLIKE = frozenset("wntx")
+_ARTICLES = frozenset({"a", "an"})
+#: Formatting differences of one kind at most this many tokens apart are one change (the
+#: two quotation marks around a word).
+_FORMAT_JOIN_GAP = 3
+
+
+@dataclass(frozen=True, slots=True)
+class TermContext:
+    """What the classifier must know about terms on each side."""
+
+    #: offset of a term-use token in the draft text -> the draft's term name
+    draft_term_at: Mapping[int, str]
+    #: offset of a term-use token in the precedent text -> the precedent's term name
+    precedent_term_at: Mapping[int, str]
+    #: the precedent's party labels (the draft's are mapped to these names)
+    party_labels: frozenset[str] = frozenset()
+    #: draft term -> precedent term, for the mapped (renamed) terms
+    mapped: Mapping[str, str] = None  # type: ignore[assignment]
+
+
+@dataclass(frozen=True, slots=True)
+class Change:
+    category: str
+    change: str  # insert | delete | replace
+    p_span: tuple[int, int]  # character offsets in the precedent text (empty for an insert)
+    d_span: tuple[int, int]
+    detail: str  # e.g. "whitespace", "quote style", "case", "cross-reference", "words"
+    terms: tuple[tuple[str, str], ...] = ()  # (draft name, precedent name) for category term
+    signals: tuple[Signal, ...] = ()
+    note: str = ""  # a reason for the non-substantive categories
+
+
+def _fold_detail(a: str, b: str) -> str:
+    if a.casefold() == b.casefold():
+        return "case"
+    qa = "".join(QUOTES.get(c, c) for c in a)
+    qb = "".join(QUOTES.get(c, c) for c in b)
+    if qa.casefold() == qb.casefold():
+        return "quote style"
+    da = "".join(DASHES.get(c, c) for c in qa)
+    db = "".join(DASHES.get(c, c) for c in qb)
+    if da.casefold() == db.casefold():
+        return "dash style"
+    return "quote and dash style"
+
+
+def _trim(seq: TokenSeq, i: int, j: int) -> tuple[int, int]:
+    """Character span of tokens i..j-1 without white space at either end (the span itself
+    when it is white space only)."""
+    a, b = i, j
+    while a < b and seq.kinds[a] == KIND_SPACE:
+        a += 1
+    while b > a and seq.kinds[b - 1] == KIND_SPACE:
+        b -= 1
+    if a == b:
+        return seq.span(i, j)
+    return seq.span(a, b)
+
+
+def _restyle_changes(a: TokenSeq, b: TokenSeq, op: TokenOp, ctx: TermContext) -> list[Change]:
+    out: list[Change] = []
+    last_fmt: dict[str, tuple[int, int]] = {}  # detail -> (index in out, last token)
+    for k in range(op.i2 - op.i1):
+        i, j = op.i1 + k, op.j1 + k
+        ta, tb = a.token(i), b.token(j)
+        if ta == tb:
+            continue
+        kind = a.kinds[i]
+        terms: tuple[tuple[str, str], ...] = ()
+        note = ""
+        if kind == KIND_TERM:
+            dn = ctx.draft_term_at.get(b.starts[j], tb)
+            pn = ctx.precedent_term_at.get(a.starts[i], ta)
+            if dn != pn:
+                cat, detail, terms = "term", "term", ((dn, pn),)
+            else:
+                cat, detail = "formatting", _fold_detail(ta, tb) if ta.strip() else "whitespace"
+        elif kind == KIND_XREF:
+            cat, detail = "numbering", "cross-reference"
+            note = f"cross-reference renumbered from {ta} to {tb} (same provision)"
+        elif kind == KIND_SPACE:
+            cat, detail = "formatting", "whitespace"
+        else:
+            cat, detail = "formatting", _fold_detail(ta, tb)
+        pa, pb = a.span(i, i + 1), b.span(j, j + 1)
+        prev = last_fmt.get(detail) if cat == "formatting" else None
+        if prev is not None and i - prev[1] <= _FORMAT_JOIN_GAP:
+            c = out[prev[0]]
+            out[prev[0]] = Change(cat, "replace", (c.p_span[0], pa[1]), (c.d_span[0], pb[1]),
+                                  detail, note=c.note)
+            last_fmt[detail] = (prev[0], i)
+            continue
+        if not note and cat == "formatting":
+            note = f"{detail} differs"
+        out.append(Change(cat, "replace", pa, pb, detail, terms, (), note))
+        if cat == "formatting":
+            last_fmt[detail] = (len(out) - 1, i)
+    return out
+
+
+def _classify_hunk(a: TokenSeq, b: TokenSeq, i1: int, i2: int, j1: int, j2: int,
+                   ctx: TermContext) -> Change:
+    change = "insert" if i1 == i2 else ("delete" if j1 == j2 else "replace")
+    p_span = _trim(a, i1, i2) if i1 < i2 else (a.starts[i1], a.starts[i1])
+    d_span = _trim(b, j1, j2) if j1 < j2 else (b.starts[j1], b.starts[j1])
+    wa = [i for i in range(i1, i2) if a.kinds[i] in _WORDLIKE]
+    wb = [j for j in range(j1, j2) if b.kinds[j] in _WORDLIKE]
+    ka = [a.keys[i] for i in wa]
+    kb = [b.keys[j] for j in wb]
+    pa = [a.keys[i] for i in range(i1, i2) if a.kinds[i] == "p"]
+    pb = [b.keys[j] for j in range(j1, j2) if b.kinds[j] == "p"]
+
+    def mk(cat: str, detail: str, **kw) -> Change:
+        return Change(cat, change, p_span, d_span, detail, **kw)
+
+    # "a" <-> "an" in front of a renamed term
+    if len(ka) == len(kb) == 1 and {ka[0], kb[0]} <= _ARTICLES and ka != kb:
+        nxt = next((j for j in range(j2, len(b)) if b.kinds[j] in _WORDLIKE), None)
+        if nxt is not None and b.kinds[nxt] == KIND_TERM:
+            dn = ctx.draft_term_at.get(b.starts[nxt])
+            if dn is not None and ctx.mapped and dn in ctx.mapped:
+                return mk("term", "article", terms=((dn, ctx.mapped[dn]),))
+    # cross-references
+    if wa and len(ka) == len(kb):
+        diff_pos = [k for k in range(len(ka)) if ka[k] != kb[k]]
+        if diff_pos and all(a.kinds[wa[k]] == KIND_XREF and b.kinds[wb[k]] == KIND_XREF for k in diff_pos):
+            changed = [(a.token(wa[k]), b.token(wb[k])) for k in diff_pos
+                       if a.token(wa[k]) != b.token(wb[k])]
+            if not changed:
+                ta = a.token(wa[diff_pos[0]])
+                return mk("numbering", "cross-reference",
+                          note=f"cross-reference {ta} is unchanged but, after renumbering, "
+                               "now refers to a different provision")
+            sigs = tuple(Signal("cross_reference_changed",
+                                f"cross-reference changed from {x} to {y}, which is not the "
+                                "provision the precedent refers to") for x, y in changed[:2])
+            return mk("substantive", "cross-reference", signals=sigs)
+    if ka == kb:
+        if pa != pb:
+            return mk("punctuation", "punctuation", note="punctuation differs")
+        return mk("formatting", "whitespace", note="whitespace differs")
+    if "".join(ka).replace("-", "") == "".join(kb).replace("-", ""):
+        if pa != pb:
+            return mk("punctuation", "joining", note="words joined or hyphenated differently")
+        return mk("formatting", "whitespace", note="words joined differently")
+    # substantive: token-level signals
+    signals: list[Signal] = []
+    if change == "replace" and _in_placeholder(a.text, p_span):
+        return mk("substantive", "placeholder", signals=(Signal(
+            "placeholder_completed", f"placeholder {a.text[slice(*_placeholder(a.text, p_span))]} "
+                                     "completed by the draft"),))
+    if ctx.party_labels:
+        pparty = [(a.token(i), a.keys[i]) for i in wa if a.kinds[i] == KIND_TERM]
+        dparty = [(b.token(j), b.keys[j]) for j in wb if b.kinds[j] == KIND_TERM]
+        pnames = {_name(k) for _t, k in pparty} & ctx.party_labels
+        dnames = {_name(k) for _t, k in dparty} & ctx.party_labels
+        gone = pnames - dnames
+        came = dnames - pnames
+        if gone and came:
+            x = sorted(gone)[0]
+            y = sorted(came)[0]
+            ytext = next(t for t, k in dparty if _name(k) == y)
+            also = "" if ytext.rstrip("'\u2019s") == y or ytext == y else f" (the precedent's {y})"
+            signals.append(Signal("party_swapped",
+                                  f"party changed: the draft names {ytext}{also} where the "
+                                  f"precedent names the {x}"))
+    if change == "replace" and not signals:
+        na, nb = _names(a, wa), _names(b, wb)
+        if na and nb and na != nb:
+            signals.append(Signal("name_changed", f"name changed from '{' '.join(na)}' to "
+                                                  f"'{' '.join(nb)}'"))
+    xa = [a.token(i) for i in wa if a.kinds[i] == KIND_XREF]
+    xb = [b.token(j) for j in wb if b.kinds[j] == KIND_XREF]
+    if xa and xb and xa != xb:
+        signals.append(Signal("cross_reference_changed",
+                              f"cross-reference changed from {xa[0]} to {xb[0]}"))
+    return mk("substantive", "words", signals=tuple(signals))
+
+
+_PLACEHOLDER_RE = re.compile(r"\[[^\[\]\n]{1,80}\]")
+_PLACEHOLDERS_ONLY_RE = re.compile(r"(?:\[[^\[\]\n]{1,80}\][\s,;:.]*(?:and\s+|or\s+)?)+")
+
+
+def _placeholder(text: str, span: tuple[int, int]) -> tuple[int, int]:
+    """The span of the bracketed placeholders ("[CUSTOMER NAME]", common practice in
+    templates, no source) that the changed words *span* of *text* are, or lie in; (-1, -1)
+    when they are not one."""
+    a, b = span
+    if _PLACEHOLDERS_ONLY_RE.fullmatch(text[a:b].strip()):
+        return a, b
+    for m in _PLACEHOLDER_RE.finditer(text):
+        if m.start() <= a and b <= m.end():
+            return m.start(), m.end()
+    return (-1, -1)
+
+
+def _in_placeholder(text: str, span: tuple[int, int]) -> bool:
+    return _placeholder(text, span)[0] >= 0
+
+
+def _names(seq: TokenSeq, idx: Sequence[int]) -> list[str]:
+    """Capitalised plain words (not defined terms, not the first word of a sentence): the
+    proper names among the changed words."""
+    out = []
+    for i in idx:
+        t = seq.token(i)
+        if seq.kinds[i] != "w" or not t[:1].isupper():
+            continue
+        k = i - 1
+        while k >= 0 and seq.kinds[k] == KIND_SPACE:
+            k -= 1
+        if k < 0 or seq.token(k) in (".", "!", "?", ":", "(", '"', "\u201c"):
+            continue  # a sentence starts here
+        out.append(t)
+    return out
+
+
+def _name(key: str) -> str:
+    return key[2:].split("\x00", 1)[0]
+
+
+def _covered(spans: Sequence[tuple[int, int]], a: int, b: int) -> bool:
+    """Whether one of *spans* covers both offsets *a* and *b* (a <= b)."""
+    return any(s <= a and b < e for s, e in spans)
+
+
+def classify_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp], ctx: TermContext, *,
+                 keep_together: tuple[Sequence[tuple[int, int]], Sequence[tuple[int, int]]] = ((), ())
+                 ) -> list[Change]:
+    """The changes of one diff: precedent tokens *a*, draft tokens *b*, opcodes *ops*.
+
+    Edits separated only by spaces and punctuation form one change, and so do edits inside
+    one span of *keep_together* (character spans of the precedent and of the draft, e.g.
+    the figures "one hundred per cent (100%)")."""
+    out: list[Change] = []
+    n = len(ops)
+    k = 0
+    pq, dq = keep_together
+    while k < n:
+        op = ops[k]
+        if op.tag == "equal":
+            k += 1
+            continue
+        if op.tag == "restyle":
+            out.extend(_restyle_changes(a, b, op, ctx))
+            k += 1
+            continue
+        # a run of real edits
+        i1, j1, i2, j2 = op.i1, op.j1, op.i2, op.j2
+        m = k + 1
+        while m < n:
+            nxt = m
+            while nxt < n and ops[nxt].tag in ("equal", "restyle"):
+                nxt += 1
+            if nxt >= n:
+                break
+            words_between = any(a.kinds[i] in _WORDLIKE for g in range(m, nxt)
+                                for i in range(ops[g].i1, ops[g].i2))
+            if words_between and not (
+                    _covered(pq, max(a.starts[i2] - 1, 0), a.starts[ops[nxt].i1])
+                    or _covered(dq, max(b.starts[j2] - 1, 0), b.starts[ops[nxt].j1])):
+                break
+            i2, j2 = ops[nxt].i2, ops[nxt].j2
+            m = nxt + 1
+        out.append(_classify_hunk(a, b, i1, i2, j1, j2, ctx))
+        k = m
+    return out

@@ -1,0 +1,114 @@
+"""Per-document facts the review stages share: provision positions, full clause numbers,
+defined-term names and the parties' own labels.  Built once per document, O(provisions +
+terms)."""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+
+from ..model import Document, Provision
+
+__all__ = ["DocInfo", "PARTY_ROLE_WORDS", "build_docinfo", "party_role"]
+
+#: Labels the parties give themselves, by side of the deal (common practice in commercial
+#: contracts, no source).  A party label on one side is never mapped onto the other side.
+PARTY_ROLE_WORDS: dict[str, frozenset[str]] = {
+    "supply": frozenset({
+        "supplier", "vendor", "seller", "provider", "licensor", "contractor", "consultant",
+        "lessor", "landlord", "lender", "manufacturer", "distributor", "agent", "developer",
+    }),
+    "buy": frozenset({
+        "customer", "client", "buyer", "purchaser", "licensee", "lessee", "tenant",
+        "borrower", "principal", "authority", "company", "reseller",
+    }),
+}
+_ALL_ROLE_WORDS = PARTY_ROLE_WORDS["supply"] | PARTY_ROLE_WORDS["buy"]
+
+#: Words of a definition that describe a legal person (common practice, no source).
+_ENTITY_RE = re.compile(
+    r"\b(?:incorporated|registered (?:office|number|in)|company (?:number|no)|limited|ltd|llp|"
+    r"llc|inc|plc|gmbh|s\.?a\.?|b\.?v\.?|corporation|whose (?:registered|principal) "
+    r"(?:office|place))\b", re.IGNORECASE)
+
+#: Generic names for "either party", never a party's own label.
+_GENERIC_PARTY_TERMS = frozenset({"party", "parties", "the parties", "receiving party",
+                                  "disclosing party", "affected party"})
+
+
+def party_role(name: str, definition: str = "") -> str | None:
+    """``"supply"``, ``"buy"`` or None, from the words of a party label (or, failing that,
+    from "as supplier"/"as customer" in its definition)."""
+    words = name.casefold().split()
+    for side, vocab in PARTY_ROLE_WORDS.items():
+        if any(w in vocab for w in words):
+            return side
+    m = re.search(r"\bas (?:the )?(\w+)", definition.casefold())
+    if m:
+        for side, vocab in PARTY_ROLE_WORDS.items():
+            if m.group(1) in vocab:
+                return side
+    return None
+
+
+@dataclass(frozen=True, slots=True)
+class DocInfo:
+    doc: Document
+    provisions: tuple[Provision, ...]
+    position: dict[str, int]  # provision id -> index in provisions
+    parent_pos: tuple[int | None, ...]
+    full_number: tuple[str | None, ...]  # "7.2(a)" for (a) under 7.2
+    by_number: dict[tuple[str, str], int]  # (namespace, full number) -> position
+    term_names: tuple[str, ...]
+    definitions: dict[str, str]  # term -> definition text
+    defining_provision: dict[str, str]  # term -> provision id
+    term_uses: dict[str, int]  # term -> DefinedTerm.uses
+    party_labels: frozenset[str]
+    party_roles: dict[str, str | None]
+
+
+def _namespace(p: Provision) -> str:
+    return "schedule" if p.kind == "schedule" else "clause"
+
+
+def build_docinfo(doc: Document) -> DocInfo:
+    provs = doc.provisions
+    position = {p.id: i for i, p in enumerate(provs)}
+    parent_pos = tuple(position.get(p.parent) if p.parent else None for p in provs)
+    full: list[str | None] = []
+    by_number: dict[tuple[str, str], int] = {}
+    for i, p in enumerate(provs):
+        num = (p.number or "").strip().rstrip(".:")
+        if not num:
+            full.append(None)
+            continue
+        num = "".join(num.split())
+        if num.startswith("(") and parent_pos[i] is not None and full[parent_pos[i]]:
+            num = f"{full[parent_pos[i]]}{num}"
+        num = re.sub(r"^(?:schedule|clause|section|article|part|annex|appendix)", "", num,
+                     flags=re.IGNORECASE)
+        full.append(num)
+        by_number.setdefault((_namespace(p), num), i)
+    names: list[str] = []
+    definitions: dict[str, str] = {}
+    defining: dict[str, str] = {}
+    uses: dict[str, int] = {}
+    for t in doc.terms:
+        if t.term in definitions:
+            continue
+        names.append(t.term)
+        definitions[t.term] = t.definition
+        defining[t.term] = t.provision
+        uses[t.term] = t.uses
+    parties: set[str] = set()
+    for t in doc.terms:
+        if t.term.casefold() in _GENERIC_PARTY_TERMS:
+            continue
+        kind = provs[position[t.provision]].kind if t.provision in position else ""
+        words = t.term.casefold().split()
+        role_word = any(w in _ALL_ROLE_WORDS for w in words)
+        if kind == "parties" or (role_word and _ENTITY_RE.search(t.definition)):
+            parties.add(t.term)
+    roles = {t: party_role(t, definitions.get(t, "")) for t in parties}
+    return DocInfo(doc, provs, position, parent_pos, tuple(full), by_number, tuple(names),
+                   definitions, defining, uses, frozenset(parties), roles)

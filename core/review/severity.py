@@ -1,0 +1,620 @@
+"""Severity 0-100 of each deviation, with human-readable reasons, from an editable rule file.
+
+The rules live in ``resources/severity.toml`` (read with :mod:`tomllib`); the file documents
+the formula.  This module finds the signals a change shows:
+
+* figures: amounts, currencies, durations, percentages and counts, including the
+  words-and-figures form "thirty (30) days", with the old and new values in the reason;
+* obligation strength: shall / must / will / agrees to  <->  may / should / endeavours to /
+  will use reasonable efforts to ...;
+* negation added or removed; qualifiers (reasonable, material, sole discretion, ...) added,
+  removed or changed;
+* signals found by the classifier on the tokens (the other party put in our party's place, a
+  proper name replaced, a cross-reference now pointing at another provision), passed in as
+  :class:`Signal`;
+
+and weighs them by the provision's clause type, guessed from its heading with the keyword
+lists of the rule file unless a better classifier is given.
+
+Cost: each text is scanned once per phrase list (cached per text); a change then costs
+O(phrases overlapping it).
+"""
+
+from __future__ import annotations
+
+import re
+import tomllib
+from collections.abc import Callable, Mapping, Sequence
+from dataclasses import dataclass, field
+from functools import lru_cache
+from pathlib import Path
+from typing import Protocol
+
+from ..errors import CounterdraftError
+from ..model import Document, Provision
+from .tokens import find_cross_references
+
+__all__ = [
+    "DEFAULT_RULES_PATH",
+    "ClauseClassifier",
+    "Quantity",
+    "SeverityRules",
+    "Signal",
+    "clause_types_for",
+    "find_quantities",
+    "guess_clause_type",
+    "load_rules",
+    "provision_change_severity",
+    "text_change_severity",
+]
+
+DEFAULT_RULES_PATH = Path(__file__).resolve().parent.parent.parent / "resources" / "severity.toml"
+RULES_SCHEMA = "counterdraft.severity-rules/1"
+
+_SIGNALS = (
+    "number_changed", "number_added", "number_removed", "obligation_weakened",
+    "obligation_strengthened", "obligation_added", "obligation_removed", "negation_added",
+    "negation_removed", "qualifier_added", "qualifier_removed", "qualifier_changed",
+    "party_swapped", "name_changed", "placeholder_completed", "cross_reference_changed", "wording_changed", "sentence_inserted",
+    "sentence_deleted", "heading_changed", "provision_added", "provision_removed",
+)
+_CATEGORY_KEYS = ("term", "move", "numbering", "numbering_cross_reference", "formatting",
+                  "punctuation")
+
+
+class ClauseClassifier(Protocol):
+    """Returns a clause-type id for a provision (or None); the precedent-set engineer's
+    classifier implements it."""
+
+    def __call__(self, provision: Provision, document: Document) -> str | None: ...
+
+
+@dataclass(frozen=True, slots=True)
+class SeverityRules:
+    signals: Mapping[str, float]
+    categories: Mapping[str, float]
+    weights: Mapping[str, float]
+    kind_weights: Mapping[str, float]
+    clause_type_keywords: Mapping[str, tuple[str, ...]]
+    strong: tuple[str, ...]
+    weak: tuple[str, ...]
+    negations: tuple[str, ...]
+    qualifiers: tuple[str, ...]
+    other_signals: float = 0.25
+    sentence_words: int = 8
+    source: str = "built-in"
+    _cache: dict = field(default_factory=dict, compare=False, repr=False)
+
+    def weight(self, clause_type: str | None, kind: str) -> float:
+        if kind in self.kind_weights:
+            return self.kind_weights[kind]
+        if clause_type and clause_type in self.weights:
+            return self.weights[clause_type]
+        return self.weights.get("default", 1.0)
+
+
+def _fail(path: str, problem: str) -> CounterdraftError:
+    return CounterdraftError(f"severity rules: {problem}", path=path)
+
+
+def _str_list(path: str, where: str, value: object) -> tuple[str, ...]:
+    if not isinstance(value, list) or not all(isinstance(v, str) and v.strip() for v in value):
+        raise _fail(path, f"{where} must be a list of non-empty strings")
+    return tuple(v.strip().lower() for v in value)
+
+
+def _number(path: str, where: str, value: object, lo: float, hi: float) -> float:
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not lo <= value <= hi:
+        raise _fail(path, f"{where} must be a number from {lo:g} to {hi:g}")
+    return float(value)
+
+
+def load_rules(path: str | Path | None = None) -> SeverityRules:
+    """Read and check a severity rule file (default: ``resources/severity.toml``)."""
+    p = Path(path) if path is not None else DEFAULT_RULES_PATH
+    sp = str(p)
+    try:
+        data = tomllib.loads(p.read_text(encoding="utf-8"))
+    except FileNotFoundError:
+        raise _fail(sp, "file not found") from None
+    except (OSError, UnicodeDecodeError) as err:
+        raise _fail(sp, f"cannot read the file ({err.__class__.__name__})") from None
+    except tomllib.TOMLDecodeError as err:
+        raise _fail(sp, f"not valid TOML ({err})") from None
+    if data.get("schema") != RULES_SCHEMA:
+        raise _fail(sp, f'schema must be "{RULES_SCHEMA}"')
+    for section in ("scale", "signals", "categories", "weights", "kind_weights",
+                    "clause_type_keywords", "obligation", "negation", "qualifiers"):
+        if not isinstance(data.get(section), dict):
+            raise _fail(sp, f"missing table [{section}]")
+    signals = {}
+    for k in _SIGNALS:
+        if k not in data["signals"]:
+            raise _fail(sp, f"missing signals.{k}")
+        signals[k] = _number(sp, f"signals.{k}", data["signals"][k], 0, 100)
+    categories = {}
+    for k in _CATEGORY_KEYS:
+        if k not in data["categories"]:
+            raise _fail(sp, f"missing categories.{k}")
+        categories[k] = _number(sp, f"categories.{k}", data["categories"][k], 0, 100)
+    weights = {k: _number(sp, f"weights.{k}", v, 0, 10) for k, v in data["weights"].items()}
+    kind_weights = {k: _number(sp, f"kind_weights.{k}", v, 0, 10)
+                    for k, v in data["kind_weights"].items()}
+    keywords = {k: _str_list(sp, f"clause_type_keywords.{k}", v)
+                for k, v in data["clause_type_keywords"].items()}
+    scale = data["scale"]
+    return SeverityRules(
+        signals=signals, categories=categories, weights=weights, kind_weights=kind_weights,
+        clause_type_keywords=keywords,
+        strong=_str_list(sp, "obligation.strong", data["obligation"].get("strong")),
+        weak=_str_list(sp, "obligation.weak", data["obligation"].get("weak")),
+        negations=_str_list(sp, "negation.words", data["negation"].get("words")),
+        qualifiers=_str_list(sp, "qualifiers.phrases", data["qualifiers"].get("phrases")),
+        other_signals=_number(sp, "scale.other_signals", scale.get("other_signals"), 0, 1),
+        sentence_words=int(_number(sp, "scale.sentence_words", scale.get("sentence_words"), 1, 1000)),
+        source=sp,
+    )
+
+
+@lru_cache(maxsize=1)
+def _default_rules() -> SeverityRules:
+    return load_rules()
+
+
+# ----------------------------------------------------------------------------------------
+# Clause types
+# ----------------------------------------------------------------------------------------
+
+def _keyword_index(rules: SeverityRules) -> list[tuple[re.Pattern[str], str, int]]:
+    idx = rules._cache.get("keywords")
+    if idx is None:
+        idx = []
+        for ctype, words in rules.clause_type_keywords.items():
+            for w in words:
+                pat = re.compile(r"(?<![\w])" + r"\s+".join(map(re.escape, w.split())) + r"(?![\w])")
+                idx.append((pat, ctype, len(w)))
+        idx.sort(key=lambda t: -t[2])
+        rules._cache["keywords"] = idx
+    return idx
+
+
+def guess_clause_type(heading: str | None, *, rules: SeverityRules) -> str | None:
+    """The clause type whose longest keyword occurs in *heading* (lower-cased), or None."""
+    if not heading:
+        return None
+    h = heading.casefold().replace("&", "and")
+    for pat, ctype, _n in _keyword_index(rules):
+        if pat.search(h):
+            return ctype
+    return None
+
+
+def clause_types_for(doc: Document, *, rules: SeverityRules,
+                     classifier: Callable[[Provision, Document], str | None] | None = None
+                     ) -> tuple[str | None, ...]:
+    """A clause type per provision: the classifier's, else the heading's keywords, else the
+    parent's type; definitions are ``definitions``."""
+    pos = {p.id: i for i, p in enumerate(doc.provisions)}
+    out: list[str | None] = []
+    for p in doc.provisions:
+        t = classifier(p, doc) if classifier is not None else None
+        if t is None and p.kind == "definition":
+            t = "definitions"
+        if t is None:
+            t = guess_clause_type(p.heading, rules=rules)
+        if t is None and p.parent in pos and pos[p.parent] < len(out):
+            t = out[pos[p.parent]]
+        out.append(t)
+    return tuple(out)
+
+
+# ----------------------------------------------------------------------------------------
+# Figures
+# ----------------------------------------------------------------------------------------
+
+_UNITS = {
+    "zero": 0, "one": 1, "two": 2, "three": 3, "four": 4, "five": 5, "six": 6, "seven": 7,
+    "eight": 8, "nine": 9, "ten": 10, "eleven": 11, "twelve": 12, "thirteen": 13,
+    "fourteen": 14, "fifteen": 15, "sixteen": 16, "seventeen": 17, "eighteen": 18,
+    "nineteen": 19, "twenty": 20, "thirty": 30, "forty": 40, "fifty": 50, "sixty": 60,
+    "seventy": 70, "eighty": 80, "ninety": 90,
+}
+_SCALES = {"hundred": 100, "thousand": 1000, "million": 10**6, "billion": 10**9}
+_NUMWORD = "|".join(sorted([*_UNITS, *_SCALES], key=len, reverse=True))
+_WORDS = rf"(?:{_NUMWORD})(?:(?:\s+and\s+|[\s-]+)(?:{_NUMWORD}))*"
+_FIG = r"\d{1,3}(?:,\d{3})+(?:\.\d+)?|\d+(?:\.\d+)?"
+_CUR_PRE = r"(?P<cur1>£|\$|€|\b(?:GBP|USD|EUR|CHF|JPY|AUD|CAD)\s?)"
+_CUR_POST = r"(?P<cur2>pounds(?:\s+sterling)?|sterling|dollars|euros|GBP|USD|EUR|CHF)"
+_UNIT = (r"(?P<unit>(?:business\s+|working\s+|calendar\s+|clear\s+|banking\s+)?"
+         r"(?:days?|weeks?|months?|years?|hours?|minutes?|quarters?))")
+_QUANTITY_RE = re.compile(
+    rf"{_CUR_PRE}?"
+    rf"(?:(?P<w>\b{_WORDS})\s*\(\s*(?P<wf>{_FIG})\s*\)|(?P<f>(?<![\w.]){_FIG})|(?P<wo>\b{_WORDS}\b))"
+    r"(?:\s?(?P<mult>million|billion|thousand|bn|m|k)\b)?"
+    rf"(?:\s*(?P<pct>%|per\s?cent\b|percent\b)|\s+{_UNIT}\b|\s?{_CUR_POST}\b)?",
+    re.IGNORECASE,
+)
+_MULT = {"million": 10**6, "m": 10**6, "billion": 10**9, "bn": 10**9, "thousand": 1000, "k": 1000}
+_CURRENCY_CODE = {"£": "GBP", "$": "USD", "€": "EUR", "pounds": "GBP", "pounds sterling": "GBP",
+                  "sterling": "GBP", "dollars": "USD", "euros": "EUR"}
+
+
+def _words_value(s: str) -> float | None:
+    total = current = 0
+    for w in re.split(r"[\s-]+", s.casefold()):
+        if not w or w == "and":
+            continue
+        if w in _UNITS:
+            current += _UNITS[w]
+        elif w == "hundred":
+            current = max(current, 1) * 100
+        elif w in _SCALES:
+            total += max(current, 1) * _SCALES[w]
+            current = 0
+        else:
+            return None
+    return float(total + current)
+
+
+@dataclass(frozen=True, slots=True)
+class Quantity:
+    start: int
+    end: int
+    kind: str  # "amount" | "percentage" | "duration" | "number"
+    value: float
+    unit: str  # currency code, "%", "days", "business days", ... or ""
+    text: str  # verbatim
+
+    def display(self) -> str:
+        v = f"{self.value:,.2f}".rstrip("0").rstrip(".") if self.value % 1 else f"{self.value:,.0f}"
+        if self.kind == "amount":
+            return self.text if any(c.isdigit() for c in self.text) else f"{self.unit} {v}".strip()
+        if self.kind == "percentage":
+            return f"{v}%"
+        if self.kind == "duration":
+            return f"{v} {self.unit}"
+        return self.text
+
+
+#: Characters scanned on each side of a change for the figures it touches: a figure with its
+#: words ("one hundred and twenty-five thousand pounds sterling (GBP 125,000)") is shorter.
+QUANTITY_WINDOW = 120
+
+
+@lru_cache(maxsize=4096)
+def _quantities_cached(text: str, lo: int, hi: int) -> tuple[Quantity, ...]:
+    return tuple(_find_quantities(text, lo, hi))
+
+
+def _window(text: str, span: tuple[int, int]) -> tuple[int, int]:
+    lo = max(0, span[0] - QUANTITY_WINDOW)
+    hi = min(len(text), span[1] + QUANTITY_WINDOW)
+    while lo > 0 and not text[lo - 1].isspace():  # start at a word boundary
+        lo -= 1
+    while hi < len(text) and not text[hi].isspace():
+        hi += 1
+    return lo, hi
+
+
+def find_quantities(text: str, *, around: tuple[int, int] | None = None) -> list[Quantity]:
+    """Every figure in *text* (see :func:`_find_quantities`), or only those near the span
+    *around* (within :data:`QUANTITY_WINDOW` characters); cached."""
+    lo, hi = (0, len(text)) if around is None else _window(text, around)
+    return list(_quantities_cached(text, lo, hi))
+
+
+def _find_quantities(text: str, lo: int = 0, hi: int | None = None) -> list[Quantity]:
+    """Every figure in *text*: amounts, percentages, durations and other numbers.  A
+    number written only in words counts only with a unit, currency or percent sign ("one of
+    the parties" is no figure)."""
+    out: list[Quantity] = []
+    for m in _QUANTITY_RE.finditer(text, lo, len(text) if hi is None else hi):
+        g = m.groupdict()
+        if g["wf"] is not None:
+            value = float(g["wf"].replace(",", ""))
+        elif g["f"] is not None:
+            value = float(g["f"].replace(",", ""))
+        else:
+            wv = _words_value(g["wo"] or "")
+            if wv is None:
+                continue
+            value = wv
+        has_unit = any(g[k] for k in ("cur1", "cur2", "pct", "unit"))
+        if g["wo"] is not None and not has_unit:
+            continue
+        mult = g["mult"]
+        if mult and mult.lower() in ("m", "k", "bn") and not (g["cur1"] or g["cur2"]):
+            mult = None  # "5 m" is five metres, not five million, without a currency
+        if mult:
+            value *= _MULT[mult.lower()]
+        if g["cur1"] or g["cur2"]:
+            cur = (g["cur1"] or g["cur2"]).strip()
+            kind, unit = "amount", _CURRENCY_CODE.get(cur.lower(), _CURRENCY_CODE.get(cur, cur.upper()))
+        elif g["pct"]:
+            kind, unit = "percentage", "%"
+        elif g["unit"]:
+            u = " ".join(g["unit"].lower().split())
+            base = u.split()[-1]
+            if not base.endswith("s"):
+                base += "s"
+            unit = " ".join([*u.split()[:-1], base])
+            kind = "duration"
+        else:
+            kind, unit = "number", ""
+        end = m.end()
+        if not (g["pct"] or g["unit"] or g["cur2"] or mult):
+            end = m.end("wf") + 1 if g["wf"] is not None else (m.end("f") if g["f"] else m.end("wo"))
+        out.append(Quantity(m.start(), end, kind, value, unit, text[m.start():end].strip()))
+    # "ten per cent (10%)": the figures in brackets repeat the words; keep one quantity.
+    merged: list[Quantity] = []
+    for q in out:
+        prev = merged[-1] if merged else None
+        if (prev is not None and prev.value == q.value and prev.kind == q.kind
+                and re.fullmatch(r"\s*\(\s*", text[prev.end:q.start])):
+            close = re.match(r"\s*\)", text[q.end:])
+            end = q.end + (close.end() if close else 0)
+            merged[-1] = Quantity(prev.start, end, prev.kind, prev.value, prev.unit,
+                                  text[prev.start:end])
+        else:
+            merged.append(q)
+    xrefs = find_cross_references(text)
+    return [q for q in merged
+            if not (q.kind == "number" and any(a <= q.start < b for a, b, *_ in xrefs))]
+
+
+# ----------------------------------------------------------------------------------------
+# Phrase lists
+# ----------------------------------------------------------------------------------------
+
+def _phrase_re(phrases: Sequence[str]) -> re.Pattern[str]:
+    alts = sorted(set(phrases), key=len, reverse=True)
+    body = "|".join(r"\s+".join(map(re.escape, p.split())) for p in alts)
+    return re.compile(r"(?<![\w'])(?:" + body + r")(?![\w])", re.IGNORECASE)
+
+
+def _matches(rules: SeverityRules, name: str, text: str) -> list[tuple[int, int, str]]:
+    key = ("re", name)
+    pat = rules._cache.get(key)
+    if pat is None:
+        phrases = {"obligation": rules.strong + rules.weak, "negation": rules.negations,
+                   "qualifier": rules.qualifiers}[name]
+        pat = _phrase_re(phrases)
+        rules._cache[key] = pat
+    tcache = rules._cache.setdefault(("text", name), {})
+    hit = tcache.get(text)
+    if hit is None:
+        hit = [(m.start(), m.end(), " ".join(m.group().lower().split())) for m in pat.finditer(text)]
+        if name == "negation":
+            hit += [(m.start(), m.end(), "n't") for m in re.finditer(r"n['\u2019]t\b", text)]
+        if len(tcache) > 4096:
+            tcache.clear()
+        tcache[text] = hit
+    return hit
+
+
+def _inside(items, span: tuple[int, int]):
+    a, b = span
+    if a == b:  # an insertion point: only what strictly surrounds it
+        return [it for it in items if it[0] < a < it[1]]
+    return [it for it in items if it[0] < b and it[1] > a]
+
+
+@dataclass(frozen=True, slots=True)
+class Signal:
+    name: str  # a key of [signals]
+    reason: str
+
+
+def _quote(s: str) -> str:
+    return f"'{s}'"
+
+
+def _figure_signals(p_text: str, p_span: tuple[int, int], d_text: str, d_span: tuple[int, int]
+                    ) -> list[Signal]:
+    pq = _inside([(q.start, q.end, q) for q in find_quantities(p_text, around=p_span)], p_span)
+    dq = _inside([(q.start, q.end, q) for q in find_quantities(d_text, around=d_span)], d_span)
+    out: list[Signal] = []
+    olds = [q for *_x, q in pq]
+    news = [q for *_x, q in dq]
+    for kind in ("amount", "percentage", "duration", "number"):
+        o = [q for q in olds if q.kind == kind]
+        n = [q for q in news if q.kind == kind]
+        for a, b in zip(o, n):
+            if a.value == b.value and a.unit == b.unit:
+                continue
+            label = {"amount": "amount", "percentage": "percentage", "duration": "period",
+                     "number": "figure"}[kind]
+            trend = ""
+            if a.unit == b.unit and a.value != b.value:
+                trend = " (higher)" if b.value > a.value else " (lower)"
+                if kind == "duration":
+                    trend = " (longer)" if b.value > a.value else " (shorter)"
+            if kind == "duration" and a.unit != b.unit and a.value == b.value:
+                reason = f"{label} changed from {a.display()} to {b.display()}"
+            elif kind == "duration" and a.unit == b.unit:
+                v = lambda q: q.display().rsplit(" ", len(q.unit.split()))[0]  # noqa: E731
+                reason = f"{label} changed from {v(a)} to {v(b)} {a.unit}{trend}"
+            else:
+                reason = f"{label} changed from {a.display()} to {b.display()}{trend}"
+            out.append(Signal("number_changed", reason))
+        for a in o[len(n):]:
+            out.append(Signal("number_removed", f"figure removed: {a.display()}"))
+        for b in n[len(o):]:
+            out.append(Signal("number_added", f"figure added: {b.display()}"))
+    return out
+
+
+def _obligation_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
+    strong = set(rules.strong)
+    po = [m[2] for m in _inside(_matches(rules, "obligation", p_text), p_span)]
+    do = [m[2] for m in _inside(_matches(rules, "obligation", d_text), d_span)]
+    if po == do:
+        return []
+    ps = [w for w in po if w in strong]
+    pw = [w for w in po if w not in strong]
+    ds = [w for w in do if w in strong]
+    dw = [w for w in do if w not in strong]
+    if ps and dw and not ds:
+        return [Signal("obligation_weakened", f"obligation weakened from {_quote(ps[0])} to {_quote(dw[0])}")]
+    if pw and ds and not dw:
+        return [Signal("obligation_strengthened", f"obligation strengthened from {_quote(pw[0])} to {_quote(ds[0])}")]
+    if po and not do:
+        return [Signal("obligation_removed", f"obligation words removed: {_quote(po[0])}")]
+    if do and not po:
+        return [Signal("obligation_added", f"obligation words added: {_quote(do[0])}")]
+    return []
+
+
+def _negation_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
+    pn = [m[2] for m in _inside(_matches(rules, "negation", p_text), p_span)]
+    dn = [m[2] for m in _inside(_matches(rules, "negation", d_text), d_span)]
+    if len(dn) > len(pn):
+        extra = [w for w in dn if w not in pn] or dn
+        return [Signal("negation_added", f"negation added: {_quote(extra[0])}")]
+    if len(pn) > len(dn):
+        gone = [w for w in pn if w not in dn] or pn
+        return [Signal("negation_removed", f"negation removed: {_quote(gone[0])}")]
+    return []
+
+
+def _qualifier_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
+    pm = _matches(rules, "qualifier", p_text)
+    dm = _matches(rules, "qualifier", d_text)
+    pq = [m[2] for m in _inside(pm, p_span)]
+    dq = [m[2] for m in _inside(dm, d_span)]
+
+    def touching(items, span, others):
+        a, b = span
+        if a != b:
+            return []
+        return [m[2] for m in items if (m[0] == a or m[1] == a)
+                and any(m[2] != o and m[2] in o for o in others)]
+
+    pq += touching(pm, p_span, dq)
+    dq += touching(dm, d_span, pq)
+    added = [q for q in dict.fromkeys(dq) if q not in pq]
+    removed = [q for q in dict.fromkeys(pq) if q not in dq]
+    if added and removed:
+        return [Signal("qualifier_changed", f"qualifier changed from {_quote(removed[0])} to {_quote(added[0])}")]
+    out = [Signal("qualifier_added", f"qualifier added: {_quote(q)}") for q in added[:2]]
+    out += [Signal("qualifier_removed", f"qualifier removed: {_quote(q)}") for q in removed[:2]]
+    return out
+
+
+_WORD_RE = re.compile(r"\w+")
+#: Longest quotation of the changed words in a reason (characters).
+REASON_QUOTE_CHARS = 60
+
+
+def _excerpt(s: str) -> str:
+    s = " ".join(s.split())
+    if len(s) > REASON_QUOTE_CHARS:
+        s = s[: REASON_QUOTE_CHARS - 1].rstrip() + "\u2026"
+    return f"'{s}'"
+
+
+def _heading_reason(old: str, new: str) -> str:
+    if not old.strip():
+        return f"heading added: {_excerpt(new)}"
+    if not new.strip():
+        return f"heading removed: {_excerpt(old)}"
+    return f"heading changed from {_excerpt(old)} to {_excerpt(new)}"
+
+
+def _combine(rules: SeverityRules, signals: Sequence[Signal], weight: float) -> int:
+    pts = sorted((rules.signals[s.name] for s in signals), reverse=True)
+    if not pts:
+        return 0
+    raw = pts[0] + rules.other_signals * sum(pts[1:])
+    return max(0, min(100, round(weight * raw)))
+
+
+def _type_reason(clause_type: str | None, kind: str, weight: float) -> str | None:
+    if kind in ("title", "parties", "recital", "signature", "schedule") and clause_type is None:
+        return f"{kind} provision (weight {weight:g})"
+    if clause_type:
+        return f"clause type: {clause_type.replace('_', ' ')} (weight {weight:g})"
+    return None
+
+
+def text_change_severity(*, p_text: str, p_span: tuple[int, int], d_text: str,
+                         d_span: tuple[int, int], clause_type: str | None, kind: str,
+                         rules: SeverityRules | None = None, extra: Sequence[Signal] = (),
+                         heading: bool = False) -> tuple[int, tuple[str, ...]]:
+    """Severity and reasons of a substantive change: ``p_text[p_span]`` (precedent) became
+    ``d_text[d_span]`` (draft)."""
+    rules = rules or _default_rules()
+    signals: list[Signal] = list(extra)
+    if any(s.name == "placeholder_completed" for s in signals):
+        signals = [s for s in signals if s.name == "placeholder_completed"]
+    elif heading:  # a heading is a label: only its change is reported
+        signals.append(Signal("heading_changed", _heading_reason(p_text, d_text)))
+    else:
+        signals += _figure_signals(p_text, p_span, d_text, d_span)
+        signals += _obligation_signals(rules, p_text, p_span, d_text, d_span)
+        signals += _negation_signals(rules, p_text, p_span, d_text, d_span)
+        signals += _qualifier_signals(rules, p_text, p_span, d_text, d_span)
+        pw = p_text[p_span[0]:p_span[1]]
+        dw = d_text[d_span[0]:d_span[1]]
+        nw_p = len(_WORD_RE.findall(pw))
+        nw_d = len(_WORD_RE.findall(dw))
+        if nw_d >= rules.sentence_words and nw_d >= 2 * nw_p:
+            signals.append(Signal("sentence_inserted", f"{nw_d} words added: {_excerpt(dw)}"))
+        elif nw_p >= rules.sentence_words and nw_p >= 2 * nw_d:
+            signals.append(Signal("sentence_deleted", f"{nw_p} words removed: {_excerpt(pw)}"))
+        elif not signals:
+            if nw_p == 0:
+                signals.append(Signal("wording_changed", f"words added: {_excerpt(dw)}"))
+            elif nw_d == 0:
+                signals.append(Signal("wording_changed", f"words removed: {_excerpt(pw)}"))
+            else:
+                signals.append(Signal("wording_changed",
+                                      f"wording changed from {_excerpt(pw)} to {_excerpt(dw)}"))
+    weight = rules.weight(clause_type, kind)
+    reasons = [s.reason for s in signals]
+    tr = _type_reason(clause_type, kind, weight)
+    if tr:
+        reasons.append(tr)
+    return _combine(rules, signals, weight), tuple(reasons)
+
+
+def provision_change_severity(*, added: bool, label: str, text: str, clause_type: str | None,
+                              kind: str, rules: SeverityRules | None = None
+                              ) -> tuple[int, tuple[str, ...]]:
+    """Severity and reasons of a whole provision added to (or removed from) the draft."""
+    rules = rules or _default_rules()
+    name = "provision_added" if added else "provision_removed"
+    weight = rules.weight(clause_type, kind)
+    what = ("added: the precedent has no counterpart" if added
+            else "removed: the draft has no counterpart")
+    reasons = [f"{label} {what}"]
+    n = len(_WORD_RE.findall(text))
+    if n:
+        reasons[0] += f" ({n} word{'s' * (n != 1)})"
+    tr = _type_reason(clause_type, kind, weight)
+    if tr:
+        reasons.append(tr)
+    sig = [Signal(name, reasons[0])]
+    return _combine(rules, sig, weight), tuple(reasons)
+
+
+def clear_caches(rules: SeverityRules | None = None) -> None:
+    """Forget the cached figures and phrase matches (benchmarks measure cold runs)."""
+    _quantities_cached.cache_clear()
+    for r in (rules, _default_rules()):
+        if r is not None:
+            for k in [k for k in r._cache if isinstance(k, tuple) and k[0] == "text"]:
+                del r._cache[k]
+
+
+def category_severity(category: str, *, rules: SeverityRules | None = None) -> int:
+    rules = rules or _default_rules()
+    return round(rules.categories[category])
+
+
+def default_rules() -> SeverityRules:
+    """The rules of ``resources/severity.toml`` (read once)."""
+    return _default_rules()
+
+
+__all__ += ["category_severity", "clear_caches", "default_rules"]

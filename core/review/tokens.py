@@ -1,0 +1,373 @@
+"""Tokens for the review engine: words, numbers, spaces and punctuation, with defined-term
+uses and cross-references kept whole.
+
+A provision text is cut into tokens whose concatenation is the text again.  Every token has
+a *key*: the form that the aligner and the word diff compare.  Keys ignore what the
+classifier later reports as formatting (letter case, quote style, dash style, the kind and
+amount of white space), and they replace a defined-term use by the precedent's name of the
+term, so that "Client's" in the draft and "Customer's" in the precedent compare equal once
+the term map says Client = Customer.
+
+Cost: one regular-expression pass over the text for the plain tokens, one for term uses and
+one for cross-references, so O(length of text).
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Callable, Iterable, Mapping, Sequence
+from dataclasses import dataclass
+
+from ..terms import terms_pattern
+
+__all__ = [
+    "BaseTokens",
+    "DASHES",
+    "QUOTES",
+    "Special",
+    "TermMatcher",
+    "TermUse",
+    "TokenSeq",
+    "XREF_KEYWORD_RE",
+    "find_cross_references",
+    "find_term_uses",
+    "base_tokens",
+    "clear_token_cache",
+    "count_term_uses",
+    "normalise_key",
+    "rekey",
+    "term_matcher",
+    "tokenize",
+    "word_keys",
+]
+
+#: Quote characters folded onto the ASCII apostrophe / double quote (Unicode general
+#: categories Pi/Pf and the primes that word processors substitute for them).
+QUOTES = {
+    "\u2018": "'", "\u2019": "'", "\u201a": "'", "\u201b": "'", "\u2032": "'", "`": "'",
+    "\u201c": '"', "\u201d": '"', "\u201e": '"', "\u201f": '"', "\u2033": '"',
+    "\u00ab": '"', "\u00bb": '"',
+}
+#: Dash characters folded onto the ASCII hyphen-minus (Unicode category Pd plus the minus
+#: sign U+2212).
+DASHES = {c: "-" for c in "\u2010\u2011\u2012\u2013\u2014\u2015\u2212\ufe58\ufe63\uff0d"}
+_FOLD = str.maketrans({**QUOTES, **DASHES})
+
+# Numbers first ("1,000.50" and "7.2" are one token), then words (an apostrophe joins the
+# parts of "party's"), then runs of white space, then any other single character.
+_TOKEN_RE = re.compile(r"\d+(?:[.,]\d+)*|\w+(?:['\u2019]\w+)*|\s+|[^\w\s]")
+
+#: Token kinds: w word, n number, s space, p punctuation, t defined-term use, x cross-ref.
+KIND_WORD, KIND_NUMBER, KIND_SPACE, KIND_PUNCT, KIND_TERM, KIND_XREF = "wnsptx"
+
+
+def normalise_key(token: str) -> str:
+    """Comparison key of a plain token: case-folded, quotes and dashes folded, white space
+    collapsed to one space."""
+    if token[:1].isspace():
+        return " "
+    return token.translate(_FOLD).casefold()
+
+
+def _kind_of(tok: str) -> str:
+    c = tok[0]
+    if c.isspace():
+        return KIND_SPACE
+    if c.isdigit():
+        return KIND_NUMBER
+    if c.isalnum() or c == "_":
+        return KIND_WORD
+    return KIND_PUNCT
+
+
+@dataclass(frozen=True, slots=True)
+class Special:
+    """A span to keep as one token with a given key (a term use or a cross-reference)."""
+
+    start: int
+    end: int
+    key: str
+    kind: str  # KIND_TERM or KIND_XREF
+
+
+@dataclass(frozen=True, slots=True)
+class TokenSeq:
+    """``text[starts[i]:starts[i+1]]`` is token i; ``keys[i]`` its comparison key."""
+
+    text: str
+    starts: tuple[int, ...]  # n + 1 offsets, the last one len(text)
+    keys: tuple[str, ...]
+    kinds: str  # one kind letter per token
+
+    def __len__(self) -> int:
+        return len(self.keys)
+
+    def token(self, i: int) -> str:
+        return self.text[self.starts[i]:self.starts[i + 1]]
+
+    def span(self, i: int, j: int) -> tuple[int, int]:
+        """Character offsets of tokens i..j-1."""
+        return self.starts[i], self.starts[j]
+
+
+_TOKEN_INFO: dict[str, tuple[str, str]] = {}
+#: Bound of the token -> (key, kind) cache (distinct tokens; a long agreement has ~10,000).
+_TOKEN_INFO_MAX = 200_000
+
+
+def _info(tok: str) -> tuple[str, str]:
+    r = _TOKEN_INFO.get(tok)
+    if r is None:
+        if len(_TOKEN_INFO) >= _TOKEN_INFO_MAX:
+            _TOKEN_INFO.clear()
+        r = _TOKEN_INFO[tok] = (normalise_key(tok), _kind_of(tok))
+    return r
+
+
+def clear_token_cache() -> None:
+    """Forget the token -> key cache (benchmarks measure cold runs)."""
+    _TOKEN_INFO.clear()
+
+
+def tokenize(text: str, specials: Sequence[Special] = ()) -> TokenSeq:
+    """Cut *text* into tokens; *specials* (sorted, non-overlapping) become single tokens."""
+    starts: list[int] = []
+    keys: list[str] = []
+    kinds: list[str] = []
+    info = _info
+
+    def plain(a: int, b: int) -> None:
+        pos = a
+        for tok in _TOKEN_RE.findall(text, a, b):
+            starts.append(pos)
+            pos += len(tok)
+            k, kind = info(tok)
+            keys.append(k)
+            kinds.append(kind)
+
+    pos = 0
+    for sp in specials:
+        if sp.start < pos:  # overlapping special: keep the earlier one
+            continue
+        plain(pos, sp.start)
+        starts.append(sp.start)
+        keys.append(sp.key)
+        kinds.append(sp.kind)
+        pos = sp.end
+    plain(pos, len(text))
+    starts.append(len(text))
+    return TokenSeq(text, tuple(starts), tuple(keys), "".join(kinds))
+
+
+@dataclass(frozen=True, slots=True)
+class BaseTokens:
+    """A text tokenised once, with its term uses and cross-references as single tokens, so
+    that keys for any term map and any alignment are a cheap :func:`rekey` away."""
+
+    seq: TokenSeq
+    terms: tuple[tuple[int, str, str], ...]  # (token index, term name, form)
+    xrefs: tuple[tuple[int, str, str], ...]  # (token index, number, keyword)
+    term_at: Mapping[int, str]  # character offset of a term use -> term name
+
+
+def base_tokens(text: str, matcher: TermMatcher | None, *, xrefs: bool = True) -> BaseTokens:
+    """Tokens of *text*: term uses keyed by their own name, cross-references by number."""
+    specials: list[Special] = []
+    term_meta: dict[int, tuple[str, str]] = {}
+    xref_meta: dict[int, tuple[str, str]] = {}
+    for u in find_term_uses(text, matcher):
+        specials.append(Special(u.start, u.end, "\x00T" + u.term + "\x00" + u.form, KIND_TERM))
+        term_meta[u.start] = (u.term, u.form)
+    if xrefs:
+        for a, b, number, keyword in find_cross_references(text):
+            specials.append(Special(a, b, "\x00X" + number, KIND_XREF))
+            xref_meta.setdefault(a, (number, keyword))
+        specials.sort(key=lambda sp: (sp.start, -sp.end))
+    kept: list[Special] = []
+    end = -1
+    for sp in specials:
+        if sp.start >= end:
+            kept.append(sp)
+            end = sp.end
+    seq = tokenize(text, kept)
+    terms: list[tuple[int, str, str]] = []
+    refs: list[tuple[int, str, str]] = []
+    term_at: dict[int, str] = {}
+    if kept:
+        index = {st: i for i, st in enumerate(seq.starts)}
+        for sp in kept:
+            i = index[sp.start]
+            if sp.kind == KIND_TERM:
+                name, form = term_meta[sp.start]
+                terms.append((i, name, form))
+                term_at[sp.start] = name
+            else:
+                number, keyword = xref_meta[sp.start]
+                refs.append((i, number, keyword))
+    return BaseTokens(seq, tuple(terms), tuple(refs), term_at)
+
+
+def rekey(bt: BaseTokens, *, term_key: Mapping[str, str],
+          xref: Callable[[str, str], str] | None = None) -> TokenSeq:
+    """*bt*'s tokens with each term use keyed by ``term_key.get(name, name)`` and form, and
+    each cross-reference by ``xref(number, keyword)`` ("#" for all when *xref* is None)."""
+    if not bt.terms and not bt.xrefs:
+        return bt.seq
+    keys = list(bt.seq.keys)
+    for i, name, form in bt.terms:
+        keys[i] = "\x00T" + term_key.get(name, name) + "\x00" + form
+    for i, number, keyword in bt.xrefs:
+        keys[i] = "\x00X" + (xref(number, keyword) if xref is not None else "#")
+    seq = bt.seq
+    return TokenSeq(seq.text, seq.starts, tuple(keys), seq.kinds)
+
+
+def word_keys(seq: TokenSeq) -> list[str]:
+    """The keys of the word-like tokens (words, numbers, terms, cross-references)."""
+    return [k for k, kind in zip(seq.keys, seq.kinds) if kind not in (KIND_SPACE, KIND_PUNCT)]
+
+
+# ----------------------------------------------------------------------------------------
+# Defined-term uses
+# ----------------------------------------------------------------------------------------
+
+@dataclass(frozen=True, slots=True)
+class TermUse:
+    start: int
+    end: int
+    term: str  # the defined term as named in its definition (singular)
+    form: str  # "" singular, "pl" plural, "pos" possessive, "plpos" plural possessive
+
+
+@dataclass(frozen=True, slots=True)
+class TermMatcher:
+    """One pattern for the uses of many terms and the map from a matched form to its term.
+
+    The forms are those of :func:`core.terms.terms_pattern` (singular and plural, possessive
+    endings, any white space between words, whole words, longest form first so that
+    "Additional Services" is one use and not a use of "Services"); the pattern is built as a
+    trie of the forms so that the regular-expression engine can skip every position whose
+    first character starts no form (about ten times faster on an agreement's text)."""
+
+    pattern: re.Pattern[str]
+    owner: Mapping[str, str]
+
+
+_POSSESSIVE = r"(?P<pos>['\u2019]s(?!\w)|(?<=s)['\u2019](?!\w))?(?!\w)"
+
+
+def _trie_regex(forms: Iterable[str]) -> str:
+    """A regex matching any of *forms*, the longest first at each position.  Built with an
+    explicit stack (depth bounded by the longest form, at most a few dozen characters)."""
+    root: dict[str, dict] = {}
+    for f in forms:
+        node = root
+        for ch in f:
+            node = node.setdefault(ch, {})
+        node[""] = {}
+
+    def render(node: dict[str, dict], parts: dict[int, str]) -> str:
+        alts = [(r"\s+" if ch == " " else re.escape(ch)) + parts[id(node[ch])]
+                for ch in sorted(k for k in node if k)]
+        if not alts:
+            return ""
+        if len(alts) == 1 and "" not in node:
+            return alts[0]
+        return "(?:" + "|".join(alts) + ")" + ("?" if "" in node else "")
+
+    # post-order over the trie without recursion
+    parts: dict[int, str] = {}
+    stack: list[tuple[dict[str, dict], bool]] = [(root, False)]
+    while stack:
+        node, done = stack.pop()
+        if done:
+            parts[id(node)] = render(node, parts)
+            continue
+        stack.append((node, True))
+        for k, child in node.items():
+            if k:
+                stack.append((child, False))
+    return parts[id(root)]
+
+
+def term_matcher(terms: Iterable[str]) -> TermMatcher | None:
+    """The matcher of *terms* (None when there is no term)."""
+    names = list(dict.fromkeys(t for t in terms if t.strip()))
+    if not names:
+        return None
+    _reference, owner = terms_pattern(names)
+    pattern = re.compile(r"(?P<form>" + _trie_regex(owner) + r")" + _POSSESSIVE)
+    return TermMatcher(pattern, owner)
+
+
+def find_term_uses(text: str, matcher: TermMatcher | None) -> list[TermUse]:
+    """Every use of a term of *matcher* in *text*, with the term it names and its form."""
+    if matcher is None or not text:
+        return []
+    uses: list[TermUse] = []
+    owner = matcher.owner
+    for m in matcher.pattern.finditer(text):
+        start = m.start()
+        if start and (text[start - 1].isalnum() or text[start - 1] in "_-"):
+            continue  # not the start of a word (core.terms: (?<![\w-]))
+        f = m.group("form")
+        term = owner.get(f)
+        if term is None:
+            f = " ".join(f.split())
+            term = owner.get(f)
+            if term is None:
+                continue
+        pos = m.group("pos")
+        form = ("pl" if f != term else "") + ("pos" if pos else "")
+        uses.append(TermUse(start, m.end(), term, form))
+    return uses
+
+
+def count_term_uses(bts: Iterable[BaseTokens]) -> dict[str, int]:
+    """Uses of each term in tokenised texts (plural and possessive forms included)."""
+    c: dict[str, int] = {}
+    for bt in bts:
+        for _i, name, _form in bt.terms:
+            c[name] = c.get(name, 0) + 1
+    return c
+
+
+# ----------------------------------------------------------------------------------------
+# Cross-references: "Clause 7.2", "Sections 5 and 6", "paragraph 3(b)"
+# ----------------------------------------------------------------------------------------
+
+#: Words that introduce a reference to a numbered part of the agreement (common practice
+#: in English-language contracts, no source).
+XREF_KEYWORD_RE = re.compile(
+    r"\b(?:[Cc]lauses?|CLAUSES?|[Ss]ections?|SECTIONS?|[Pp]aragraphs?|[Ss]ub-?clauses?|"
+    r"[Ss]ub-?paragraphs?|[Aa]rticles?|[Ss]chedules?|[Aa]nnex(?:es)?|[Aa]ppendi(?:x|ces)|"
+    r"[Pp]arts?)\s+(?=\d)"
+)
+_XREF_NUMBER_RE = re.compile(r"\d+(?:\.\d+)*(?:\s?\([a-z0-9]{1,5}\))*")
+_XREF_JOIN_RE = re.compile(r"\s*(?:,|and/or|and|or|to|through|-|\u2013)\s*(?=\d)")
+
+
+def find_cross_references(text: str) -> list[tuple[int, int, str, str]]:
+    """``(start, end, number, keyword)`` of every numbered reference in *text*; *number* is
+    the reference without spaces ("7.2(a)") and *keyword* the lower-case introducing word
+    without a plural "s".  The first reference of a list spans its keyword too ("Clause
+    7.2"), so that "clause 9.2" -> "Section 11.2" is one token; the others of the list
+    ("and 6") span their number only."""
+    out: list[tuple[int, int, str, str]] = []
+    for km in XREF_KEYWORD_RE.finditer(text):
+        word = km.group().split()[0].lower()
+        keyword = word[:-1] if word.endswith("s") and not word.endswith("ss") else word
+        keyword = {"annexe": "annex", "appendice": "appendix"}.get(keyword, keyword)
+        pos = km.end()
+        start = km.start()
+        while True:
+            nm = _XREF_NUMBER_RE.match(text, pos)
+            if nm is None:
+                break
+            out.append((start, nm.end(), "".join(nm.group().split()), keyword))
+            jm = _XREF_JOIN_RE.match(text, nm.end())
+            if jm is None:
+                break
+            pos = jm.end()
+            start = pos
+    return out

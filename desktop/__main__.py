@@ -1,0 +1,5 @@
+"""``python -m desktop``: see :mod:`desktop.app`."""
+
+from .app import main
+
+raise SystemExit(main())

@@ -1,0 +1,123 @@
+"""``python -m desktop``: start the window, optionally on two files or on the demo.
+
+    python -m desktop                              # empty window
+    python -m desktop DRAFT PRECEDENT [--library DIR]
+    python -m desktop --review REVIEW.json
+    python -m desktop --demo                       # the bundled demo agreements
+
+Without a display (no DISPLAY, no WAYLAND_DISPLAY and no QT_QPA_PLATFORM on Linux) it prints
+how to run it and the command-line alternative, and exits with status 0.
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import sys
+import traceback
+from pathlib import Path
+
+import core
+
+__all__ = ["DEMO_DIR", "build_parser", "demo_inputs", "has_display", "main", "no_display_message"]
+
+DEMO_DIR = Path(__file__).resolve().parent.parent / "demo_agreements"
+
+
+def demo_inputs() -> tuple[str, str, str]:
+    """(draft, precedent, precedent-set folder) of the bundled demo."""
+    return (str(DEMO_DIR / "draft.docx"), str(DEMO_DIR / "precedent.docx"), str(DEMO_DIR / "precedent_set"))
+
+
+def has_display(environ: dict[str, str] | os._Environ[str] | None = None, *, platform: str | None = None) -> bool:
+    """Whether Qt can open a window here.  Only Linux and the BSDs need a display server;
+    QT_QPA_PLATFORM (e.g. ``offscreen``) counts as a deliberate choice."""
+    env = os.environ if environ is None else environ
+    plat = sys.platform if platform is None else platform
+    if not (plat.startswith("linux") or "bsd" in plat):
+        return True
+    return any(env.get(k) for k in ("DISPLAY", "WAYLAND_DISPLAY", "QT_QPA_PLATFORM"))
+
+
+def no_display_message(*, demo: bool) -> str:
+    draft, precedent, library = demo_inputs()
+    here = Path.cwd()
+
+    def rel(p: str) -> str:
+        try:
+            return str(Path(p).relative_to(here))
+        except ValueError:
+            return p
+
+    lines = [
+        "Counterdraft's window needs a display, and none was found",
+        "(DISPLAY, WAYLAND_DISPLAY and QT_QPA_PLATFORM are all unset).",
+        "",
+        "To open the window:",
+        "  - on a desktop session, run:  python -m desktop" + (" --demo" if demo else " DRAFT PRECEDENT"),
+        "  - over SSH, forward X11 (ssh -X) and run the same command;",
+        "  - on a headless machine with the xvfb package installed:",
+        "        xvfb-run -a python -m desktop" + (" --demo" if demo else " DRAFT PRECEDENT"),
+        "",
+        "The same review on the command line:",
+    ]
+    if demo:
+        lines.append(f"  counterdraft review {rel(draft)} --against {rel(precedent)} --library {rel(library)}")
+    else:
+        lines.append("  counterdraft review DRAFT --against PRECEDENT [--library DIR]")
+    lines += ["", core.CAUTION]
+    return "\n".join(lines)
+
+
+def build_parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(
+        prog="python -m desktop",
+        description="Counterdraft's window: compare a counterparty's draft with the house precedent. "
+        + core.CAUTION,
+    )
+    p.add_argument("draft", nargs="?", help="the counterparty's draft (.docx, .txt, .md)")
+    p.add_argument("precedent", nargs="?", help="the house precedent (.docx, .txt, .md)")
+    p.add_argument("--library", metavar="DIR", help="folder of past agreements (the precedent set)")
+    p.add_argument("--review", metavar="FILE", help="open a saved review file")
+    p.add_argument("--demo", action="store_true", help="open the bundled demo agreements")
+    p.add_argument("--version", action="version", version=f"Counterdraft {core.__version__}")
+    return p
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if args.draft and not args.precedent:
+        parser.error("give both the draft and the precedent (or neither)")
+    if not has_display():
+        print(no_display_message(demo=args.demo))
+        return 0
+
+    from PySide6.QtWidgets import QApplication
+
+    from .window import MainWindow
+
+    app = QApplication.instance() or QApplication(sys.argv[:1])
+    app.setApplicationName("Counterdraft")
+    app.setOrganizationName("Counterdraft")
+    app.setApplicationVersion(core.__version__)
+    app.setStyle("Fusion")
+    window = MainWindow()
+    window.show()
+
+    def unexpected(kind: type[BaseException], exc: BaseException, tb: object) -> None:
+        # An exception escaping a slot: one line in a dialog, the window stays up.
+        traceback.print_exception(kind, exc, tb)  # type: ignore[arg-type]
+        window.report_problem(exc)
+
+    sys.excepthook = unexpected
+    if args.demo:
+        draft, precedent, library = demo_inputs()
+        window.open_comparison(draft, precedent, library=library if Path(library).is_dir() else None)
+    elif args.review:
+        window.open_review_file(args.review)
+    elif args.draft:
+        window.open_comparison(args.draft, args.precedent, library=args.library)
+    elif args.library:
+        window.open_library(args.library)
+    return app.exec()

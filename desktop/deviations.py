@@ -1,0 +1,169 @@
+"""The ranked deviation list: a sortable, filterable table over the review's deviations."""
+
+from __future__ import annotations
+
+from PySide6.QtCore import QItemSelectionModel, Qt, Signal
+from PySide6.QtWidgets import (
+    QAbstractItemView,
+    QCheckBox,
+    QHBoxLayout,
+    QHeaderView,
+    QLabel,
+    QLineEdit,
+    QTableView,
+    QVBoxLayout,
+    QWidget,
+)
+
+from .models import DeviationFilterProxy, DeviationTableModel
+from .state import Change, DeviationFilter, Workspace
+from .widgets import BarDelegate
+
+__all__ = ["DeviationsPanel"]
+
+
+class DeviationsPanel(QWidget):
+    """Filter bar, count, and the table.  Emits ``deviationSelected(id)`` on user selection."""
+
+    deviationSelected = Signal(str)
+
+    def __init__(self, workspace: Workspace, decision_view, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self._ws = workspace
+        self._decision_view = decision_view  # engine decision -> (action, note)
+        self.view_state = DeviationFilter()
+        self._quiet = False
+
+        self.model = DeviationTableModel(self)
+        self.proxy = DeviationFilterProxy(self)
+        self.proxy.setSourceModel(self.model)
+
+        self.search = QLineEdit(self)
+        self.search.setObjectName("deviationSearch")
+        self.search.setPlaceholderText("Filter: clause, words, reason\u2026")
+        self.search.setClearButtonEnabled(True)
+        self.search.textChanged.connect(lambda t: self._set_state(self.view_state.with_(text=t)))
+        self.undecided = QCheckBox("Undecided only", self)
+        self.undecided.toggled.connect(lambda on: self._set_state(self.view_state.with_(undecided_only=on)))
+        self.count = QLabel(self)
+        self.count.setObjectName("deviationCount")
+        top = QHBoxLayout()
+        top.setContentsMargins(0, 0, 0, 0)
+        top.addWidget(self.search, 1)
+        top.addWidget(self.undecided)
+        top.addWidget(self.count)
+
+        self.table = QTableView(self)
+        self.table.setObjectName("deviationTable")
+        self.table.setModel(self.proxy)
+        self.table.setSortingEnabled(True)
+        self.table.sortByColumn(DeviationTableModel.RANK, Qt.SortOrder.AscendingOrder)
+        self.table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
+        self.table.setSelectionMode(QAbstractItemView.SelectionMode.SingleSelection)
+        self.table.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
+        self.table.setAlternatingRowColors(True)
+        self.table.setWordWrap(False)
+        self.table.verticalHeader().hide()
+        self.table.verticalHeader().setDefaultSectionSize(26)
+        bar = BarDelegate(self.table)
+        self.table.setItemDelegateForColumn(DeviationTableModel.SEVERITY, bar)
+        self.table.setItemDelegateForColumn(DeviationTableModel.COMMON, bar)
+        hh = self.table.horizontalHeader()
+        hh.setSectionResizeMode(QHeaderView.ResizeMode.Interactive)
+        hh.setStretchLastSection(False)
+        for col, w in ((0, 46), (1, 66), (2, 146), (3, 92), (4, 200), (5, 100), (6, 78)):
+            self.table.setColumnWidth(col, w)
+        hh.setSectionResizeMode(DeviationTableModel.SUMMARY, QHeaderView.ResizeMode.Stretch)
+        hh.sortIndicatorChanged.connect(self._sort_changed)
+        self.table.setColumnHidden(DeviationTableModel.KIND, True)
+        self.table.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        self.table.setTextElideMode(Qt.TextElideMode.ElideRight)
+        self.table.selectionModel().currentRowChanged.connect(self._current_changed)
+        self.table.clicked.connect(lambda ix: self._current_changed(ix, None))
+
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(4, 4, 4, 4)
+        lay.addLayout(top)
+        lay.addWidget(self.table, 1)
+        self._update_count()
+
+    # -- broadcast ------------------------------------------------------------------------
+    def on_change(self, change: Change) -> None:
+        if change & (Change.REVIEW | Change.LIBRARY):
+            review = self._ws.review
+            self.model.set_review(review, library_loaded=self._ws.library is not None)
+            self.table.setColumnHidden(DeviationTableModel.COMMON, self._ws.library is None)
+        if change & (Change.REVIEW | Change.DECISIONS | Change.LIBRARY):
+            self.model.set_decisions({k: self._decision_view(v) for k, v in self._ws.decisions.items()})
+        if change & (Change.REVIEW | Change.DECISIONS | Change.DISPLAY | Change.LIBRARY):
+            self.proxy.set_view_state(self.view_state, self._ws.display)
+            self._update_count()
+        if change & (Change.SELECTION | Change.REVIEW | Change.DISPLAY):
+            self._select(self._ws.selected)
+
+    # -- navigation -----------------------------------------------------------------------
+    def visible_ids(self) -> list[str]:
+        """Ids of the listed deviations, in the table's current order."""
+        out = []
+        for r in range(self.proxy.rowCount()):
+            src = self.proxy.mapToSource(self.proxy.index(r, 0))
+            out.append(self.model.deviation(src.row()).id)
+        return out
+
+    def step(self, delta: int) -> str | None:
+        """The id *delta* rows from the selected one in the listed order (wrapping at neither end)."""
+        ids = self.visible_ids()
+        if not ids:
+            return None
+        cur = self._ws.selected
+        if cur not in ids:
+            return ids[0] if delta > 0 else ids[-1]
+        i = max(0, min(len(ids) - 1, ids.index(cur) + delta))
+        return ids[i]
+
+    # -- internals ------------------------------------------------------------------------
+    def _set_state(self, state: DeviationFilter) -> None:
+        self.view_state = state
+        self.proxy.set_view_state(state, self._ws.display)
+        self._update_count()
+        self._select(self._ws.selected)
+
+    def _sort_changed(self, column: int, order: Qt.SortOrder) -> None:
+        self.view_state = self.view_state.with_(sort_column=column,
+                                                descending=order == Qt.SortOrder.DescendingOrder)
+
+    def _update_count(self) -> None:
+        total = self.model.rowCount()
+        shown = self.proxy.rowCount()
+        if self._ws.review is None:
+            self.count.setText("")
+        elif shown == total:
+            self.count.setText(f"{total} deviations")
+        else:
+            self.count.setText(f"{shown} of {total} shown")
+            self.count.setToolTip("Numbering, formatting and punctuation changes are hidden unless "
+                                  "switched on under Show; the filter and \u201cUndecided only\u201d hide others.")
+
+    def _current_changed(self, current, _previous) -> None:
+        if self._quiet or not current.isValid():
+            return
+        src = self.proxy.mapToSource(current)
+        did = self.model.deviation(src.row()).id
+        if did != self._ws.selected:
+            self.deviationSelected.emit(did)
+
+    def _select(self, did: str | None) -> None:
+        self._quiet = True
+        try:
+            sm = self.table.selectionModel()
+            row = self.model.row_of(did) if did else None
+            pix = self.proxy.mapFromSource(self.model.index(row, 0)) if row is not None else None
+            if pix is None or not pix.isValid():
+                sm.clearSelection()
+                sm.clearCurrentIndex()
+                return
+            sm.setCurrentIndex(pix, QItemSelectionModel.SelectionFlag.ClearAndSelect
+                               | QItemSelectionModel.SelectionFlag.Rows)
+            self.table.scrollTo(pix)
+        finally:
+            self._quiet = False

@@ -1,0 +1,80 @@
+"""Remembered window state: size, splitter positions, recent files (QSettings).
+
+The window takes its :class:`QSettings` from the caller, so tests use a temporary INI file
+and never touch the user's settings.
+"""
+
+from __future__ import annotations
+
+import json
+from dataclasses import dataclass
+
+from PySide6.QtCore import QByteArray, QSettings
+
+__all__ = ["RECENT_LIMIT", "Recent", "WindowSettings", "default_settings"]
+
+#: How many recent comparisons and review files the File menu lists.
+RECENT_LIMIT = 8
+
+
+@dataclass(frozen=True, slots=True)
+class Recent:
+    """A recent comparison (draft, precedent, optional precedent set) or a review file."""
+
+    draft: str = ""
+    precedent: str = ""
+    library: str = ""
+    review_file: str = ""
+
+    def key(self) -> tuple[str, str, str, str]:
+        return (self.draft, self.precedent, self.library, self.review_file)
+
+
+def default_settings() -> QSettings:
+    return QSettings("Counterdraft", "Counterdraft")
+
+
+class WindowSettings:
+    """Typed access to the few values the window remembers."""
+
+    def __init__(self, qsettings: QSettings) -> None:
+        self.q = qsettings
+
+    def geometry(self) -> QByteArray | None:
+        v = self.q.value("window/geometry")
+        return v if isinstance(v, QByteArray) and not v.isEmpty() else None
+
+    def set_geometry(self, data: QByteArray) -> None:
+        self.q.setValue("window/geometry", data)
+
+    def splitter(self, name: str) -> QByteArray | None:
+        v = self.q.value(f"splitters/{name}")
+        return v if isinstance(v, QByteArray) and not v.isEmpty() else None
+
+    def set_splitter(self, name: str, data: QByteArray) -> None:
+        self.q.setValue(f"splitters/{name}", data)
+
+    def recent(self) -> list[Recent]:
+        raw = self.q.value("recent/entries", "[]")
+        try:
+            items = json.loads(str(raw))
+        except json.JSONDecodeError:
+            return []
+        out = []
+        for it in items if isinstance(items, list) else []:
+            if isinstance(it, dict):
+                out.append(Recent(**{k: str(it.get(k, "")) for k in ("draft", "precedent", "library", "review_file")}))
+        return out[:RECENT_LIMIT]
+
+    def add_recent(self, entry: Recent) -> list[Recent]:
+        items = [entry] + [r for r in self.recent() if r.key() != entry.key()]
+        items = items[:RECENT_LIMIT]
+        self.q.setValue(
+            "recent/entries",
+            json.dumps([{"draft": r.draft, "precedent": r.precedent, "library": r.library,
+                         "review_file": r.review_file} for r in items]),
+        )
+        return items
+
+    def sync(self) -> None:
+        self.q.sync()

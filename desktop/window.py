@@ -1,0 +1,919 @@
+"""The main window: opening files, the views, decisions, saving and exporting.
+
+Layout (left to right, top to bottom)::
+
+    caution band
+    +-- Deviations | Terms | Patterns --+-- side by side: precedent | status | draft --+
+    |  ranked list, filter              |                                              |
+    |                                   +-- Selected deviation | Variants ------------+
+    +-----------------------------------+----------------------------------------------+
+    status: message, progress, Cancel
+
+Every long operation (reading and reviewing, re-running after a term decision, building the
+precedent set's index, patterns, exports) runs through :func:`desktop.tasks.start` with a
+work function from :mod:`desktop.engine`.  When an operation ends the window updates the
+:class:`~desktop.state.Workspace` and broadcasts one :class:`~desktop.state.Change`; each view
+decides whether to refresh.
+"""
+
+from __future__ import annotations
+
+import functools
+import os
+from collections.abc import Callable
+from pathlib import Path
+from typing import Any
+
+from PySide6.QtCore import QObject, QSettings, QThreadPool, QTimer, Qt, Signal
+from PySide6.QtGui import QAction, QCloseEvent, QDragEnterEvent, QDropEvent, QKeySequence
+from PySide6.QtWidgets import (
+    QFileDialog,
+    QLabel,
+    QMainWindow,
+    QMessageBox,
+    QProgressBar,
+    QPushButton,
+    QSplitter,
+    QTabWidget,
+    QToolBar,
+    QVBoxLayout,
+    QWidget,
+)
+
+import core
+
+from . import engine, tasks
+from .decision import KEYS, DecisionPanel
+from .deviations import DeviationsPanel
+from .dialogs import REVIEW_FILTER, OpenDialog, show_about, show_keys
+from .patterns import PatternsPanel
+from .settings import Recent, WindowSettings, default_settings
+from .sidebyside import SideBySideView
+from .state import Change, DisplayOptions, Inputs, Workspace
+from .terms import TermsPanel
+from .variants import VariantsView
+from .widgets import CautionBand, one_line, show_message
+
+__all__ = ["DEFAULT_SIZE", "Hub", "MainWindow"]
+
+#: First-run window size (fits a 1440x900 screen); later runs restore the user's size.
+DEFAULT_SIZE = (1440, 900)
+#: Suffixes the readers accept (``core.reader``); other dropped files are refused.
+DOCUMENT_SUFFIXES = (".docx", ".txt", ".md")
+
+
+class Hub(QObject):
+    """Carries the one "what changed" value to every view."""
+
+    changed = Signal(object)  # Change
+
+
+class MainWindow(QMainWindow):
+    #: A review (new, re-run or reopened) is on screen.
+    reviewShown = Signal()
+    #: An operation failed; the argument is the one line shown in the dialog.
+    operationFailed = Signal(str)
+    #: A background operation was cancelled.
+    operationCancelled = Signal()
+    #: A file was written (review file or export); the argument is its path.
+    fileWritten = Signal(str)
+    #: A background operation finished and its result is on screen; the argument names it.
+    operationFinished = Signal(str)
+
+    def __init__(self, *, settings: QSettings | None = None, pool: QThreadPool | None = None) -> None:
+        super().__init__()
+        self.setObjectName("mainWindow")
+        self.setAcceptDrops(True)
+        self.settings = WindowSettings(settings if settings is not None else default_settings())
+        self.pool = pool if pool is not None else QThreadPool.globalInstance()
+        self.ws = Workspace()
+        self.hub = Hub(self)
+        self._task: tasks.Task | None = None
+        self._tasks: set[tasks.Task] = set()
+        self._retired_libraries: list[Any] = []
+        self._pending_library: str | None = None
+        #: Documents dropped on one half of the window, waiting for the other one.
+        self._pending_docs = {"draft": "", "precedent": ""}
+        self.ask_before_closing = True
+        self.last_message: str | None = None
+
+        # -- views ----------------------------------------------------------------------
+        self.deviations = DeviationsPanel(self.ws, lambda d: engine.decision_view(d)[:2], self)
+        self.terms = TermsPanel(self.ws, engine.term_status, self)
+        self.patterns = PatternsPanel(self.ws, engine.pattern_groups, self)
+        self.side = SideBySideView(self)
+        self.decision = DecisionPanel(self.ws, engine.decision_view, self)
+        self.variants = VariantsView(self)
+        self.variants.clear("Open a precedent set to see how its agreements word the selected provision.")
+
+        self.left_tabs = QTabWidget(self)
+        self.left_tabs.setObjectName("leftTabs")
+        self.left_tabs.addTab(self.deviations, "Deviations")
+        self.left_tabs.addTab(self.terms, "Defined terms")
+        self.left_tabs.addTab(self.patterns, "Patterns")
+        self.inspector = QTabWidget(self)
+        self.inspector.setObjectName("inspectorTabs")
+        self.inspector.addTab(self.decision, "Selected deviation")
+        self.inspector.addTab(self.variants, "Wording in the precedent set")
+
+        self.right_split = QSplitter(Qt.Orientation.Vertical, self)
+        self.right_split.setObjectName("rightSplit")
+        self.right_split.addWidget(self.side)
+        self.right_split.addWidget(self.inspector)
+        self.right_split.setStretchFactor(0, 3)
+        self.right_split.setStretchFactor(1, 2)
+        self.main_split = QSplitter(Qt.Orientation.Horizontal, self)
+        self.main_split.setObjectName("mainSplit")
+        self.main_split.addWidget(self.left_tabs)
+        self.main_split.addWidget(self.right_split)
+        self.main_split.setStretchFactor(0, 2)
+        self.main_split.setStretchFactor(1, 3)
+        self._splits_restored = False
+
+        self.caution = CautionBand(self)
+        self.welcome = QLabel(self)
+        self.welcome.setObjectName("welcome")
+        self.welcome.setWordWrap(True)
+        self.welcome.setAlignment(Qt.AlignmentFlag.AlignCenter)
+        self.welcome.setText(
+            "<h2>Compare a counterparty's draft with your precedent</h2>"
+            "<p>File \u2192 Compare\u2026 (Ctrl+O), or drop the two documents here: the precedent on the "
+            "left half, the draft on the right half, a folder of past agreements anywhere.</p>"
+            "<p>Recent comparisons are under File \u2192 Recent.</p>")
+        central = QWidget(self)
+        lay = QVBoxLayout(central)
+        lay.setContentsMargins(0, 0, 0, 0)
+        lay.setSpacing(0)
+        lay.addWidget(self.caution)
+        lay.addWidget(self.welcome, 1)
+        lay.addWidget(self.main_split, 1)
+        self.setCentralWidget(central)
+
+        # -- status bar ----------------------------------------------------------------------
+        self.status_text = QLabel(self)
+        self.progress = QProgressBar(self)
+        self.progress.setObjectName("progress")
+        self.progress.setMaximumWidth(260)
+        self.progress.setTextVisible(False)
+        self.cancel_btn = QPushButton("Cancel", self)
+        self.cancel_btn.setObjectName("cancelButton")
+        self.cancel_btn.clicked.connect(self.cancel_operation)
+        self.statusBar().addWidget(self.status_text, 1)
+        self.statusBar().addPermanentWidget(self.progress)
+        self.statusBar().addPermanentWidget(self.cancel_btn)
+
+        self._build_actions()
+
+        # -- wiring -------------------------------------------------------------------------
+        for view in (self.deviations, self.terms, self.patterns, self.decision):
+            self.hub.changed.connect(view.on_change)
+        self.hub.changed.connect(self._on_change)
+        self.deviations.deviationSelected.connect(self.select_deviation)
+        self.side.rowActivated.connect(self._row_clicked)
+        self.terms.overrideRequested.connect(self.change_term_mapping)
+        self.patterns.computeRequested.connect(self.compute_patterns)
+        self.decision.decided.connect(self.record_decision)
+        self.decision.cleared.connect(self.clear_decision)
+
+        self._restore_state()
+        self.broadcast(Change.EVERYTHING)
+
+    # ======================================================================================
+    # actions, menus, keys
+    # ======================================================================================
+    def _action(self, text: str, slot: Callable[[], Any], *, key: str | QKeySequence | None = None,
+                tip: str = "", checkable: bool = False) -> QAction:
+        a = QAction(text, self)
+        if key is not None:
+            a.setShortcut(QKeySequence(key))
+            a.setShortcutContext(Qt.ShortcutContext.WindowShortcut)
+        if tip:
+            a.setToolTip(tip)
+            a.setStatusTip(tip)
+        a.setCheckable(checkable)
+        if checkable:
+            a.toggled.connect(lambda _on: slot())
+        else:
+            a.triggered.connect(lambda _=False: slot())
+        self.addAction(a)
+        return a
+
+    def _build_actions(self) -> None:
+        A = self._action
+        self.act_open = A("Compare\u2026", self.show_open_dialog, key=QKeySequence.StandardKey.Open,
+                          tip="Choose the counterparty's draft and the house precedent")
+        self.act_library = A("Open precedent set\u2026", self._ask_library,
+                             tip="A folder of the firm's past agreements")
+        self.act_open_review = A("Open review file\u2026", self._ask_review_file)
+        self.act_save = A("Save review", self._save, key=QKeySequence.StandardKey.Save)
+        self.act_save_as = A("Save review as\u2026", self._save_as, key=QKeySequence.StandardKey.SaveAs)
+        self.act_export_cd = A("Counter-draft (.docx, tracked changes)\u2026",
+                               lambda: self._ask_export("counter-draft"), key="Ctrl+Shift+E")
+        self.act_export_rl = A("Comparison redline (.docx)\u2026", lambda: self._ask_export("redline"))
+        self.act_export_il = A("Issues list (.docx, .html or .csv)\u2026", lambda: self._ask_export("issues-list"))
+        self.act_quit = A("Quit", self.close, key=QKeySequence.StandardKey.Quit)
+
+        self.act_next = A("Next deviation", lambda: self._step(+1), key=KEYS["next"])
+        self.act_prev = A("Previous deviation", lambda: self._step(-1), key=KEYS["previous"])
+        self.act_accept = A("Accept the draft's words", lambda: self._decide_key("accept"), key=KEYS["accept"])
+        self.act_revert = A("Restore the precedent's words", lambda: self._decide_key("revert"), key=KEYS["revert"])
+        self.act_amend = A("Amend\u2026", self.decision.start_amend, key=KEYS["amend"])
+        self.act_note = A("Note\u2026", self.decision.focus_note, key=KEYS["note"])
+        self.act_clear = A("Clear decision", self.decision.clear, key=KEYS["clear"])
+        self.act_filter = A("Filter the list", self._focus_filter, key=QKeySequence.StandardKey.Find)
+        self.act_cancel = A("Cancel operation", self.cancel_operation, key=QKeySequence(Qt.Key.Key_Escape))
+
+        self.act_terms = A("Term changes", self._display_changed, checkable=True,
+                           tip="Mark renamed defined terms and list term deviations")
+        self.act_numbering = A("Numbering", self._display_changed, checkable=True,
+                               tip="Mark renumbered clauses and cross-references")
+        self.act_formatting = A("Formatting and punctuation", self._display_changed, checkable=True,
+                                tip="Mark quote, dash, case, white-space and punctuation changes")
+        d = DisplayOptions()
+        for act, on in ((self.act_terms, d.terms), (self.act_numbering, d.numbering), (self.act_formatting, d.formatting)):
+            act.blockSignals(True)
+            act.setChecked(on)
+            act.blockSignals(False)
+
+        self.act_keys = A("Keys", lambda: show_keys(self), key=KEYS["help"])
+        self.act_about = A("About Counterdraft", lambda: show_about(self))
+
+        mb = self.menuBar()
+        m = mb.addMenu("&File")
+        m.addAction(self.act_open)
+        m.addAction(self.act_library)
+        m.addAction(self.act_open_review)
+        self.recent_menu = m.addMenu("Recent")
+        m.addSeparator()
+        m.addAction(self.act_save)
+        m.addAction(self.act_save_as)
+        ex = m.addMenu("Export")
+        for a in (self.act_export_cd, self.act_export_rl, self.act_export_il):
+            ex.addAction(a)
+        m.addSeparator()
+        m.addAction(self.act_quit)
+        m = mb.addMenu("&Review")
+        for a in (self.act_next, self.act_prev):
+            m.addAction(a)
+        m.addSeparator()
+        for a in (self.act_accept, self.act_revert, self.act_amend, self.act_note, self.act_clear):
+            m.addAction(a)
+        m.addSeparator()
+        m.addAction(self.act_filter)
+        m.addAction(self.act_cancel)
+        m = mb.addMenu("&Show")
+        for a in (self.act_terms, self.act_numbering, self.act_formatting):
+            m.addAction(a)
+        m = mb.addMenu("&Help")
+        m.addAction(self.act_keys)
+        m.addAction(self.act_about)
+
+        tb = QToolBar("Main", self)
+        tb.setObjectName("mainToolbar")
+        tb.setMovable(False)
+        tb.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextOnly)
+        tb.addAction(self.act_open)
+        tb.addAction(self.act_library)
+        tb.addAction(self.act_save)
+        self.export_button_action = tb.addAction("Export counter-draft\u2026")
+        self.export_button_action.triggered.connect(lambda: self._ask_export("counter-draft"))
+        tb.addSeparator()
+        show = QLabel("  Show:  ", tb)
+        tb.addWidget(show)
+        for a in (self.act_terms, self.act_numbering, self.act_formatting):
+            tb.addAction(a)
+        tb.addSeparator()
+        tb.addAction(self.act_keys)
+        self.addToolBar(tb)
+        self._refresh_recent_menu()
+
+    # ======================================================================================
+    # broadcast
+    # ======================================================================================
+    def broadcast(self, change: Change) -> None:
+        self.hub.changed.emit(change)
+
+    def _on_change(self, change: Change) -> None:
+        ws = self.ws
+        has_review = ws.review is not None
+        if change & (Change.REVIEW | Change.FILES | Change.BUSY):
+            self.welcome.setVisible(not has_review and ws.busy is None)
+            self.main_split.setVisible(has_review or ws.busy is not None)
+            if self.main_split.isVisible() and not self._splits_restored:
+                self._default_splits()
+        if change & (Change.REVIEW | Change.LIBRARY):
+            inputs = ws.inputs
+            self.side.set_review(
+                ws.review,
+                edits=engine.pair_edits,
+                draft_name=Path(inputs.draft).name if inputs else "",
+                precedent_name=Path(inputs.precedent).name if inputs else "",
+            )
+        if change & Change.DISPLAY:
+            self.side.set_display(ws.display)
+        if change & (Change.SELECTION | Change.REVIEW | Change.DISPLAY):
+            self.side.show_deviation(ws.deviation(ws.selected))
+        if change & (Change.SELECTION | Change.REVIEW | Change.LIBRARY | Change.BUSY):
+            self._refresh_variants()
+        if change & (Change.REVIEW | Change.FILES | Change.DECISIONS):
+            self._refresh_title()
+        if change & Change.BUSY:
+            busy = ws.busy is not None
+            self.progress.setVisible(busy)
+            self.cancel_btn.setVisible(busy)
+            self.act_cancel.setEnabled(busy)
+        if change & (Change.BUSY | Change.REVIEW):
+            busy = ws.busy is not None
+            for a in (self.act_open, self.act_library, self.act_open_review):
+                a.setEnabled(not busy)
+            for a in (self.act_save, self.act_save_as, self.act_export_cd, self.act_export_rl,
+                      self.act_export_il, self.export_button_action):
+                a.setEnabled(has_review and not busy)
+
+    def _refresh_title(self) -> None:
+        ws = self.ws
+        title = "Counterdraft"
+        if ws.inputs is not None:
+            title = f"{Path(ws.inputs.draft).name} against {Path(ws.inputs.precedent).name} \u2014 Counterdraft"
+        if ws.unsaved:
+            title = "\u2022 " + title
+        self.setWindowTitle(title)
+
+    def _refresh_variants(self) -> None:
+        ws = self.ws
+        d = ws.deviation(ws.selected)
+        if ws.library is None:
+            self.variants.clear("Open a precedent set (File \u2192 Open precedent set\u2026) to see how its "
+                                "agreements word the selected provision.")
+            return
+        if d is None:
+            self.variants.clear("Select a deviation to see how the precedent set words that provision.")
+            return
+        if self._workers_running():
+            # The index is used by one thread at a time; the view refreshes when the work ends.
+            self.variants.clear("Waiting for the current operation to finish\u2026")
+            return
+        try:
+            content = engine.variants_content(ws.library, ws.review, d)
+        except Exception as exc:  # noqa: BLE001 - shown, never raised into Qt
+            self.variants.clear(one_line(exc))
+            return
+        if isinstance(content, str):
+            self.variants.clear(content)
+        else:
+            self.variants.set_content(**content)
+
+    # ======================================================================================
+    # opening
+    # ======================================================================================
+    def show_open_dialog(self, *, draft: str = "", precedent: str = "", library: str = "") -> OpenDialog:
+        ws = self.ws
+        dlg = OpenDialog(
+            self,
+            draft=draft or (ws.inputs.draft if ws.inputs else ""),
+            precedent=precedent or (ws.inputs.precedent if ws.inputs else ""),
+            library=library or (ws.inputs.library or "" if ws.inputs else "") or (self._pending_library or ""),
+        )
+        dlg.setAttribute(Qt.WidgetAttribute.WA_DeleteOnClose)
+        dlg.chosen.connect(lambda d, p, lib: self.open_comparison(d, p, library=lib or None))
+        dlg.open()
+        return dlg
+
+    def open_comparison(self, draft: str, precedent: str, *, library: str | None = None) -> None:
+        """Read both files, review them (with the precedent set when given) off the GUI thread."""
+        inputs = Inputs(draft=str(draft), precedent=str(precedent), library=str(library) if library else None)
+        work = functools.partial(engine.load_and_review, inputs, overrides=())
+        self._run("Reading and comparing", work, lambda out: self._review_loaded(inputs, out, fresh=True))
+
+    def open_library(self, folder: str) -> None:
+        """Use *folder* as the precedent set: re-run the current review with it, or keep it for
+        the next comparison."""
+        if self.ws.inputs is None:
+            self._pending_library = folder
+            self._status(f"Precedent set {folder} will be used for the next comparison.")
+            return
+        inputs = Inputs(self.ws.inputs.draft, self.ws.inputs.precedent, folder)
+        work = functools.partial(engine.rerun_review, self.ws.record, overrides=self.ws.overrides,
+                                 library_folder=folder)
+        self._run("Indexing the precedent set and comparing", work,
+                  lambda out: self._review_loaded(inputs, out, fresh=False))
+
+    def open_review_file(self, path: str) -> None:
+        """Reopen a saved review: the engine re-reads both documents, re-runs the review and
+        keeps the decisions that still apply."""
+        work = functools.partial(engine.open_review_file, str(path), library=self.ws.library)
+        self._run("Opening the review file", work, lambda out: self._review_file_opened(str(path), out))
+
+    def _review_loaded(self, inputs: Inputs, out: engine.Outcome, *, fresh: bool) -> None:
+        ws = self.ws
+        old_selected = ws.deviation(ws.selected)
+        ws.inputs = inputs
+        ws.record = out.record
+        self._set_library(out.library)
+        ws.patterns = None
+        if fresh:
+            ws.review_path = None
+            ws.unsaved = False
+            ws.selected = None
+        else:
+            ws.selected = _same_deviation(old_selected, out.review)
+        self.settings.add_recent(Recent(inputs.draft, inputs.precedent, inputs.library or ""))
+        self._refresh_recent_menu()
+        self.broadcast(Change.REVIEW | Change.LIBRARY | Change.DECISIONS | Change.SELECTION
+                       | Change.PATTERNS | Change.FILES)
+        if fresh:
+            self._start_at_top()
+        self._report_review(out)
+        self.reviewShown.emit()
+
+    def _start_at_top(self) -> None:
+        """Select the most severe listed deviation and put the keyboard in the list, so the
+        single keys work at once."""
+        ids = self.deviations.visible_ids()
+        self.select_deviation(ids[0] if ids else None)
+        self.left_tabs.setCurrentWidget(self.deviations)
+        self.deviations.table.setFocus(Qt.FocusReason.OtherFocusReason)
+
+    def _review_file_opened(self, path: str, out: engine.Outcome) -> None:
+        ws = self.ws
+        rec = out.record
+        ws.inputs = Inputs(rec.draft.path, rec.precedent.path, ws.inputs.library if ws.inputs else None)
+        ws.record = rec
+        self._set_library(out.library)
+        ws.patterns = None
+        ws.review_path = path
+        ws.unsaved = False
+        ws.selected = None
+        self.settings.add_recent(Recent(review_file=path))
+        self._refresh_recent_menu()
+        self.broadcast(Change.EVERYTHING)
+        self._start_at_top()
+        self._report_review(out)
+        if rec.notes:
+            show_message(self, "Review file", "\n".join(rec.notes), icon=QMessageBox.Icon.Information)
+        self.reviewShown.emit()
+
+    def _set_library(self, library: Any) -> None:
+        old = self.ws.library
+        self.ws.library = library
+        if old is not None and old is not library:
+            self._retired_libraries.append(old)
+        self._close_retired_libraries()
+
+    def _workers_running(self) -> bool:
+        """Whether a work function (perhaps an abandoned one) is still running."""
+        return any(not t.done for t in self._tasks)
+
+    def _close_retired_libraries(self) -> None:
+        """Close the indexes no longer shown, once no worker can be using them."""
+        if self._workers_running():
+            return
+        while self._retired_libraries:
+            engine.close_library(self._retired_libraries.pop())
+
+    def _task_ended(self, task: tasks.Task | None) -> None:
+        self._tasks.discard(task)  # type: ignore[arg-type]
+        if task is not self._task:  # an abandoned task: what waited for it can go on now
+            self._close_retired_libraries()
+            self._refresh_variants()
+
+    def _report_review(self, out: engine.Outcome) -> None:
+        r = out.review
+        n = len(r.deviations)
+        subst = sum(1 for d in r.deviations if d.category == "substantive")
+        msg = f"{n} deviations ({subst} substantive), {len(r.term_map)} renamed defined terms"
+        if out.library is not None and out.library_total is not None:
+            msg += f"; precedent set of {out.library_total} agreements"
+        if out.notes:
+            msg += " \u2014 " + "; ".join(out.notes)
+        self._status(msg)
+
+    # ======================================================================================
+    # term mappings, decisions, selection
+    # ======================================================================================
+    def change_term_mapping(self, kind: str, draft: str, precedent: str) -> None:
+        """Confirm, reject or add a term mapping, then re-run the review with it."""
+        ws = self.ws
+        if ws.review is None or ws.inputs is None:
+            return
+        try:
+            overrides = engine.add_override(ws.overrides, kind, draft, precedent)
+        except Exception as exc:  # noqa: BLE001 - e.g. an empty term: one line in a dialog
+            self._fail(exc)
+            return
+        inputs = ws.inputs
+        work = functools.partial(engine.rerun_review, ws.record, overrides=overrides, library=ws.library)
+
+        def done(out: engine.Outcome) -> None:
+            ws.unsaved = True
+            self._review_loaded(inputs, out, fresh=False)
+
+        self._run("Re-running the review with your term decision", work, done)
+
+    def select_deviation(self, did: str | None) -> None:
+        if did == self.ws.selected:
+            return
+        self.ws.selected = did
+        self.broadcast(Change.SELECTION)
+
+    def record_decision(self, did: str, action: str, text: str = "", note: str = "") -> None:
+        d = self.ws.deviation(did)
+        if d is None:
+            return
+        try:
+            self.ws.record = engine.decide(self.ws.record, did, action, text=text, note=note)
+        except Exception as exc:  # noqa: BLE001 - the engine refuses e.g. reverting a move
+            self._fail(exc)
+            return
+        self.ws.unsaved = True
+        self.broadcast(Change.DECISIONS | Change.FILES)
+
+    def clear_decision(self, did: str) -> None:
+        if did in self.ws.decisions:
+            self.ws.record = engine.undecide(self.ws.record, did)
+            self.ws.unsaved = True
+            self.broadcast(Change.DECISIONS | Change.FILES)
+
+    def _decide_key(self, action: str) -> None:
+        if self.ws.selected is not None:
+            self.decision.record(action)
+
+    def _step(self, delta: int) -> None:
+        did = self.deviations.step(delta)
+        if did is not None:
+            self.select_deviation(did)
+
+    def _row_clicked(self, row: int) -> None:
+        shown = self.ws.display.shown_categories()
+        cands = sorted((d for d in self.side.deviations_in_row(row) if d.category in shown), key=lambda d: d.rank)
+        if cands:
+            self.select_deviation(cands[0].id)
+
+    def _display_changed(self) -> None:
+        self.ws.display = DisplayOptions(
+            terms=self.act_terms.isChecked(),
+            numbering=self.act_numbering.isChecked(),
+            formatting=self.act_formatting.isChecked(),
+        )
+        self.broadcast(Change.DISPLAY)
+
+    def set_display(self, display: DisplayOptions) -> None:
+        for act, on in ((self.act_terms, display.terms), (self.act_numbering, display.numbering),
+                        (self.act_formatting, display.formatting)):
+            act.blockSignals(True)
+            act.setChecked(on)
+            act.blockSignals(False)
+        self._display_changed()
+
+    def _focus_filter(self) -> None:
+        self.left_tabs.setCurrentWidget(self.deviations)
+        self.deviations.search.setFocus()
+        self.deviations.search.selectAll()
+
+    # ======================================================================================
+    # patterns, saving, exporting
+    # ======================================================================================
+    def compute_patterns(self) -> None:
+        ws = self.ws
+        if ws.library is None or ws.inputs is None:
+            return
+        work = functools.partial(engine.compute_patterns, ws.library, precedent=ws.review.precedent,
+                                 precedent_path=ws.inputs.precedent)
+
+        def done(patterns: Any) -> None:
+            ws.patterns = patterns
+            self.broadcast(Change.PATTERNS)
+            self._status("Negotiation patterns ready.")
+
+        self._run("Comparing every past agreement with the precedent", work, done)
+
+    def save_review(self, path: str) -> None:
+        ws = self.ws
+        if ws.review is None or ws.inputs is None:
+            return
+        try:
+            engine.save_review_file(str(path), ws.record)
+        except Exception as exc:  # noqa: BLE001
+            self._fail(exc)
+            return
+        ws.review_path = str(path)
+        ws.unsaved = False
+        self.settings.add_recent(Recent(review_file=str(path)))
+        self._refresh_recent_menu()
+        self.broadcast(Change.FILES)
+        self._status(f"Saved {path}")
+        self.fileWritten.emit(str(path))
+
+    def export(self, kind: str, path: str) -> None:
+        """Write the counter-draft, the comparison redline or the issues list to *path*."""
+        ws = self.ws
+        if ws.review is None or ws.inputs is None:
+            return
+        work = functools.partial(engine.export, kind, str(path), record=ws.record)
+
+        def done(result: tuple[str, tuple[str, ...]]) -> None:
+            written, notes = result
+            self._status(f"Wrote {written}")
+            text = f"Wrote {written}."
+            if notes:
+                text += "\n\n" + "\n".join(notes)
+            text += "\n\n" + core.CAUTION
+            show_message(self, "Export", text, icon=QMessageBox.Icon.Information)
+            self.fileWritten.emit(written)
+
+        self._run(f"Writing the {kind.replace('-', ' ')}", work, done)
+
+    def _save(self) -> None:
+        if self.ws.review_path:
+            self.save_review(self.ws.review_path)
+        else:
+            self._save_as()
+
+    def _save_as(self) -> None:
+        if self.ws.review is None:
+            return
+        start = self.ws.review_path or (str(Path(self.ws.inputs.draft).with_suffix(".review.json"))
+                                        if self.ws.inputs else "")
+        path, _ = QFileDialog.getSaveFileName(self, "Save review file", start, REVIEW_FILTER)
+        if path:
+            self.save_review(path)
+
+    def _ask_export(self, kind: str) -> None:
+        if self.ws.inputs is None:
+            return
+        stem = Path(self.ws.inputs.draft)
+        suggestions = {
+            "counter-draft": (stem.with_name(stem.stem + " - counter-draft.docx"), "Word documents (*.docx)"),
+            "redline": (stem.with_name(stem.stem + " - comparison.docx"), "Word documents (*.docx)"),
+            "issues-list": (stem.with_name(stem.stem + " - issues list.docx"),
+                            "Word table (*.docx);;Web page (*.html);;Spreadsheet (*.csv)"),
+        }
+        start, filt = suggestions[kind]
+        path, _ = QFileDialog.getSaveFileName(self, "Export", str(start), filt)
+        if path:
+            self.export(kind, path)
+
+    def _ask_library(self) -> None:
+        path = QFileDialog.getExistingDirectory(self, "Folder of past agreements (precedent set)")
+        if path:
+            self.open_library(path)
+
+    def _ask_review_file(self) -> None:
+        path, _ = QFileDialog.getOpenFileName(self, "Open review file", "", REVIEW_FILTER)
+        if path:
+            self.open_review_file(path)
+
+    def _refresh_recent_menu(self) -> None:
+        self.recent_menu.clear()
+        entries = self.settings.recent()
+        if not entries:
+            a = self.recent_menu.addAction("(none yet)")
+            a.setEnabled(False)
+            return
+        for r in entries:
+            if r.review_file:
+                label = f"Review file: {Path(r.review_file).name}"
+                act = self.recent_menu.addAction(label)
+                act.triggered.connect(functools.partial(lambda path, _=False: self.open_review_file(path), r.review_file))
+            else:
+                label = f"{Path(r.draft).name} against {Path(r.precedent).name}"
+                if r.library:
+                    label += f" (set: {Path(r.library).name})"
+                act = self.recent_menu.addAction(label)
+                act.triggered.connect(functools.partial(
+                    lambda d, p, lib, _=False: self.open_comparison(d, p, library=lib or None),
+                    r.draft, r.precedent, r.library))
+            act.setToolTip(" | ".join(x for x in r.key() if x))
+
+    # ======================================================================================
+    # background work
+    # ======================================================================================
+    def _run(self, label: str, work: Callable[..., Any], on_done: Callable[[Any], None]) -> tasks.Task | None:
+        if self._task is not None:
+            self._status("Another operation is running; wait for it or press Cancel.")
+            return None
+        self.ws.busy = label
+
+        def finished(result: Any, task_ref: list[tasks.Task | None]) -> None:
+            task = task_ref[0]
+            self._task_ended(task)
+            if task is not self._task:
+                return  # abandoned (cancelled) task: its result is stale
+            self._task = None
+            self.ws.busy = None
+            self.broadcast(Change.BUSY)
+            try:
+                on_done(result)
+            except Exception as exc:  # noqa: BLE001 - never let an exception escape into Qt
+                self._fail(exc)
+                return
+            self.operationFinished.emit(label)
+
+        def failed(exc: BaseException, task_ref: list[tasks.Task | None]) -> None:
+            task = task_ref[0]
+            self._task_ended(task)
+            if task is not self._task:
+                return
+            self._task = None
+            self.ws.busy = None
+            self.broadcast(Change.BUSY)
+            if isinstance(exc, tasks.Cancelled):
+                self._status("Cancelled.")
+                self.operationCancelled.emit()
+            else:
+                self._fail(exc)
+
+        ref: list[tasks.Task | None] = [None]
+        self.progress.setRange(0, 0)
+        self._status(label + "\u2026")
+        task = tasks.start(
+            work,
+            name=label,
+            on_finished=lambda r: finished(r, ref),
+            on_failed=lambda e: failed(e, ref),
+            on_progress=self._progress,
+            pool=self.pool,
+        )
+        ref[0] = task
+        self._task = task
+        self._tasks.add(task)
+        self.broadcast(Change.BUSY)
+        return task
+
+    def _progress(self, p: tasks.Progress) -> None:
+        if self._task is None:
+            return
+        if p.total:
+            self.progress.setRange(0, p.total)
+            self.progress.setValue(min(p.done, p.total))
+        else:
+            self.progress.setRange(0, 0)
+        self._status(p.message)
+
+    def cancel_operation(self) -> None:
+        """Stop the running operation; the window is usable again at once."""
+        task = self._task
+        if task is None:
+            return
+        task.cancel()
+        self._task = None
+        self.ws.busy = None
+        self.broadcast(Change.BUSY)
+        self._status("Cancelled.")
+        self.operationCancelled.emit()
+
+    @property
+    def busy(self) -> bool:
+        return self._task is not None
+
+    def wait_for_background(self, timeout_ms: int = 30000) -> bool:
+        """Wait for every started work function to return (shutdown and tests)."""
+        return self.pool.waitForDone(timeout_ms)
+
+    # ======================================================================================
+    # messages
+    # ======================================================================================
+    def _status(self, text: str) -> None:
+        self.status_text.setText(text)
+
+    def report_problem(self, exc: BaseException) -> None:
+        """Show *exc* as one line in a dialog (the engine's message for a CounterdraftError)."""
+        self._fail(exc)
+
+    def _fail(self, exc: BaseException) -> None:
+        line = one_line(exc)
+        self.last_message = line
+        self._status(line)
+        show_message(self, "Counterdraft", line)
+        self.operationFailed.emit(line)
+
+    # ======================================================================================
+    # drag and drop
+    # ======================================================================================
+    def dragEnterEvent(self, event: QDragEnterEvent) -> None:
+        if event.mimeData().hasUrls() and all(u.isLocalFile() for u in event.mimeData().urls()):
+            event.acceptProposedAction()
+        else:
+            event.ignore()
+
+    def dropEvent(self, event: QDropEvent) -> None:
+        paths = [u.toLocalFile() for u in event.mimeData().urls() if u.isLocalFile()]
+        x = event.position().toPoint()
+        side_pos = self.side.mapFrom(self, x)
+        on_left = self.side.isVisible() and self.side.rect().contains(side_pos) and side_pos.x() < self.side.width() / 2
+        on_right = self.side.isVisible() and self.side.rect().contains(side_pos) and not on_left
+        if not self.side.isVisible():
+            on_left = x.x() < self.width() / 2
+            on_right = not on_left
+        self.handle_dropped(paths, side="precedent" if on_left else "draft" if on_right else None)
+        event.acceptProposedAction()
+
+    def handle_dropped(self, paths: list[str], *, side: str | None) -> None:
+        """Route dropped paths: a folder is a precedent set, a .json a review file, a document
+        goes to the side it was dropped on (left half: precedent, right half: draft) and the
+        comparison starts once both sides are known; two documents at once open the chooser."""
+        folders = [p for p in paths if os.path.isdir(p)]
+        reviews = [p for p in paths if p.lower().endswith(".json")]
+        docs = [p for p in paths if p.lower().endswith(DOCUMENT_SUFFIXES)]
+        others = [p for p in paths if p not in folders and p not in reviews and p not in docs]
+        if others:
+            self._fail(engine.unsupported_file(others[0]))
+            return
+        if reviews:
+            self.open_review_file(reviews[0])
+            return
+        library = folders[0] if folders else None
+        if library and not docs:
+            self.open_library(library)
+            return
+        cur = self.ws.inputs
+        lib = library or (cur.library if cur else None) or self._pending_library
+        if len(docs) >= 2:
+            self.show_open_dialog(draft=docs[0], precedent=docs[1], library=lib or "")
+            return
+        if not docs:
+            return
+        which = side or ("precedent" if self._pending_docs["draft"] and not self._pending_docs["precedent"]
+                         else "draft")
+        self._pending_docs[which] = docs[0]
+        draft = self._pending_docs["draft"] or (cur.draft if cur else "")
+        precedent = self._pending_docs["precedent"] or (cur.precedent if cur else "")
+        if draft and precedent:
+            self._pending_docs = {"draft": "", "precedent": ""}
+            self.open_comparison(draft, precedent, library=lib)
+            return
+        other = "draft" if which == "precedent" else "precedent"
+        half = "right" if other == "draft" else "left"
+        self._status(f"{which.capitalize()}: {Path(docs[0]).name}. Now drop the {other} on the {half} half "
+                     "of the window, or use Compare\u2026")
+
+    # ======================================================================================
+    # window state
+    # ======================================================================================
+    def _restore_state(self) -> None:
+        geo = self.settings.geometry()
+        if geo is None or not self.restoreGeometry(geo):
+            self.resize(*DEFAULT_SIZE)
+        for split in (self.main_split, self.right_split):
+            data = self.settings.splitter(split.objectName())
+            if data is not None and split.restoreState(data):
+                self._splits_restored = True
+
+    def _default_splits(self) -> None:
+        """First-run proportions: the list takes 44 % of the width, the aligned text 56 %;
+        the aligned text takes 58 % of the height above the selected deviation."""
+        self._splits_restored = True
+        w = max(self.main_split.width(), self.width())
+        h = max(self.right_split.height(), self.height() - 120)
+        self.main_split.setSizes([int(w * 0.44), w - int(w * 0.44)])
+        self.right_split.setSizes([int(h * 0.58), h - int(h * 0.58)])
+
+    def save_state(self) -> None:
+        self.settings.set_geometry(self.saveGeometry())
+        for split in (self.main_split, self.right_split):
+            self.settings.set_splitter(split.objectName(), split.saveState())
+        self.settings.sync()
+
+    def closeEvent(self, event: QCloseEvent) -> None:
+        if self.ws.unsaved and self.ask_before_closing:
+            event.ignore()
+            box = QMessageBox(QMessageBox.Icon.Question, "Unsaved decisions",
+                              "Your decisions are not saved in a review file. Close anyway?",
+                              QMessageBox.StandardButton.Save | QMessageBox.StandardButton.Discard
+                              | QMessageBox.StandardButton.Cancel, self)
+            box.setAttribute(Qt.WidgetAttribute.WA_DeleteOnClose)
+
+            def answered(_result: int) -> None:
+                button = box.standardButton(box.clickedButton())
+                if button == QMessageBox.StandardButton.Discard:
+                    self.ask_before_closing = False
+                    QTimer.singleShot(0, self.close)
+                elif button == QMessageBox.StandardButton.Save:
+                    self._save()
+                    if not self.ws.unsaved:
+                        QTimer.singleShot(0, self.close)
+
+            box.finished.connect(answered)
+            box.open()
+            return
+        self.save_state()
+        if self._task is not None:
+            self._task.cancel()
+        for t in list(self._tasks):
+            t.cancel()
+        self.pool.waitForDone(10000)
+        self._tasks = {t for t in self._tasks if not t.done}
+        self._set_library(None)
+        super().closeEvent(event)
+
+
+def _same_deviation(old, review) -> str | None:
+    """The id, in *review*, of the deviation that matches *old* (same change, same provisions,
+    same words), so the selection survives a re-run that renumbered the ids."""
+    if old is None or review is None:
+        return None
+    for d in review.deviations:
+        if (d.change, d.draft_provision, d.precedent_provision, d.draft_text, d.precedent_text) == (
+                old.change, old.draft_provision, old.precedent_provision, old.draft_text, old.precedent_text):
+            return d.id
+    return None

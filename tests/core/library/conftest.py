@@ -1,0 +1,39 @@
+"""Shared fixtures: the demo precedent set (demo_agreements/precedent_set), indexed once."""
+
+from __future__ import annotations
+
+import json
+import shutil
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parents[3]
+DEMO = ROOT / "demo_agreements"
+
+
+@pytest.fixture(scope="session")
+def scenario() -> dict:
+    """The demo generator's record (demo_agreements/scenario.json)."""
+    return json.loads((DEMO / "scenario.json").read_text(encoding="utf-8"))
+
+
+@pytest.fixture(scope="session")
+def demo_set(tmp_path_factory, scenario) -> Path:
+    """A copy of the demo precedent set, indexed (the copy keeps the repository clean)."""
+    from core.library.index import build_library
+
+    folder = tmp_path_factory.mktemp("demo-set") / "precedent_set"
+    shutil.copytree(DEMO / scenario["precedent_set"]["folder"], folder)
+    report = build_library(folder)
+    assert report.failures == ()
+    return folder
+
+
+@pytest.fixture()
+def demo_library(demo_set):
+    from core.library.index import open_library
+
+    lib = open_library(demo_set, refresh=False)
+    yield lib
+    lib.close()

@@ -1,0 +1,113 @@
+"""The ``counterdraft library ...`` commands and ``review --library``.
+
+Outside references:
+* the ``jsonschema`` package validates ``review --json`` output against
+  resources/schemas/review.schema.json (JSON Schema 2020-12), frequency objects included;
+* the demo generator's record (scenario.json) for the precedent set's total;
+* Python's ``csv`` module writes the calibration labels.
+"""
+
+from __future__ import annotations
+
+import csv
+import json
+import shutil
+
+import jsonschema
+import pytest
+from referencing import Registry, Resource
+
+from core.cli import main
+
+from .conftest import DEMO, ROOT
+
+DRAFT = str(DEMO / "draft.docx")
+PRECEDENT = str(DEMO / "precedent.docx")
+
+
+def _validator() -> jsonschema.Draft202012Validator:
+    schemas = ROOT / "resources" / "schemas"
+    review = json.loads((schemas / "review.schema.json").read_text(encoding="utf-8"))
+    document = json.loads((schemas / "document.schema.json").read_text(encoding="utf-8"))
+    registry = Registry().with_resources([(review["$id"], Resource.from_contents(review)),
+                                          (document["$id"], Resource.from_contents(document))])
+    return jsonschema.Draft202012Validator(review, registry=registry)
+
+
+@pytest.fixture()
+def library_copy(tmp_path, demo_set):
+    """The indexed demo set plus a corrupt .docx (a copy of a real one, truncated)."""
+    folder = tmp_path / "set"
+    shutil.copytree(demo_set, folder)
+    data = (folder / "03-saltreach-water-services.docx").read_bytes()
+    (folder / "zz-broken.docx").write_bytes(data[:2000])
+    return folder
+
+
+def test_review_with_library_writes_frequencies(library_copy, capsys, scenario):
+    assert main(["review", DRAFT, "--against", PRECEDENT, "--library", str(library_copy), "--json", "-"]) == 0
+    out, err = capsys.readouterr()
+    review = json.loads(out)
+    _validator().validate(review)  # reference: the review JSON schema, checked by jsonschema
+    # The corrupt file is skipped with a warning naming it; the exit status stays 0.
+    assert "warning: skipped zz-broken.docx" in err
+    total = scenario["precedent_set"]["total"]
+    assert all(p["frequency"] is not None and p["frequency"]["total"] == total for p in review["pairs"])
+    assert all(d["frequency"] is not None for d in review["deviations"])
+    assert any(r.startswith("accepted in ") for d in review["deviations"] for r in d["reasons"])
+
+
+def test_draft_inside_the_library_is_counted(library_copy, capsys, scenario):
+    shutil.copy(DRAFT, library_copy / "draft-copy.docx")
+    assert main(["review", DRAFT, "--against", PRECEDENT, "--library", str(library_copy), "--json", "-"]) == 0
+    review = json.loads(capsys.readouterr().out)
+    assert {p["frequency"]["total"] for p in review["pairs"]} == {scenario["precedent_set"]["total"] + 1}
+
+
+def test_review_without_library_has_null_frequencies(capsys):
+    assert main(["review", DRAFT, "--against", PRECEDENT, "--json", "-"]) == 0
+    review = json.loads(capsys.readouterr().out)
+    assert all(d["frequency"] is None for d in review["deviations"])
+
+
+def test_library_subcommands(library_copy, tmp_path, capsys):
+    assert main(["library", "build", str(library_copy)]) == 0
+    out, err = capsys.readouterr()
+    assert "12 agreements indexed (1 read, 12 unchanged, 0 removed, 1 skipped)" in out
+    assert "skipped zz-broken.docx" in err
+
+    assert main(["library", "stats", str(library_copy)]) == 0
+    assert "12 agreements" in capsys.readouterr().out
+    assert main(["library", "stats", str(library_copy), "--json", "-"]) == 0
+    assert json.loads(capsys.readouterr().out)["documents"] == 12
+    assert main(["library", "stats", str(library_copy), "--variants", "payment"]) == 0
+    assert "04-pellbrook-analytical.docx 9.2" in capsys.readouterr().out
+
+    assert main(["library", "label", str(library_copy), "--document", "04-pellbrook-analytical.docx",
+                 "--provision", "9.2", "--position", "not-acceptable"]) == 0
+    assert "labelled not acceptable" in capsys.readouterr().out
+
+    labels = tmp_path / "labels.csv"
+    with open(labels, "w", newline="", encoding="utf-8") as fh:
+        w = csv.writer(fh)
+        w.writerows([["document", "provision", "label"],
+                     ["01-quenby-astrel-diagnostics.docx", "9.2", "30 days"],
+                     ["04-pellbrook-analytical.docx", "9.2", "60 days"]])
+    assert main(["library", "calibrate", str(library_copy), "--labels", str(labels), "--cutoffs", "0.1,0.2,0.9"]) == 0
+    assert "suggested cut-off: 0.20" in capsys.readouterr().out
+
+    assert main(["library", "patterns", str(library_copy), "--against", PRECEDENT, "--workers", "1",
+                 "--json", "-"]) == 0
+    patterns = json.loads(capsys.readouterr().out)
+    assert patterns["total"] == 12 and patterns["clause_types"]
+
+
+def test_errors_are_one_line_with_status_2(tmp_path, capsys):
+    assert main(["library", "stats", str(tmp_path)]) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "no precedent-set index" in err
+    assert main(["library", "build", str(tmp_path / "missing")]) == 2
+    assert "not a folder" in capsys.readouterr().err
+    assert main(["library", "calibrate", str(tmp_path), "--cutoffs", "a,b"]) == 2
+    assert main(["review", DRAFT, "--against", PRECEDENT, "--library", str(tmp_path / "none")]) == 2
+    assert "does not exist" in capsys.readouterr().err

@@ -1,0 +1,35 @@
+"""Helpers for the review engine's tests: agreements from text, the licence texts of the
+PyPI package ``licensedcode-data`` (real documents from outside the project)."""
+
+from __future__ import annotations
+
+import importlib.resources
+import textwrap
+
+from core.model import Deviation, Document, Review
+from core.reader import read_text
+
+LICENCES = ("apache-2.0", "gpl-3.0", "mpl-2.0")
+
+
+def doc(text: str, source: str = "agreement.txt") -> Document:
+    """The document of an agreement written as plain text (dedented)."""
+    return read_text(textwrap.dedent(text).strip() + "\n", source=source)
+
+
+def licence_text(key: str) -> str:
+    """The text of ``licensedcode/data/licenses/<key>.LICENSE`` (licensedcode-data), without
+    its YAML front matter."""
+    path = importlib.resources.files("licensedcode") / "data" / "licenses" / f"{key}.LICENSE"
+    raw = path.read_text(encoding="utf-8")
+    if raw.startswith("---"):
+        raw = raw.split("\n---", 1)[1].split("\n", 1)[1]
+    return raw
+
+
+def substantive(review: Review) -> list[Deviation]:
+    return [v for v in review.deviations if v.category == "substantive"]
+
+
+def by_category(review: Review, category: str) -> list[Deviation]:
+    return [v for v in review.deviations if v.category == category]

@@ -1,0 +1,152 @@
+"""Alignment of provisions (core.review.align).
+
+References: the definition of a longest increasing subsequence (exhaustive search on small
+inputs); ``scipy.optimize.linear_sum_assignment`` on the whole weight matrix for the
+per-component assignment; scikit-learn's ``TfidfVectorizer`` for the TF-IDF bound.
+"""
+
+from __future__ import annotations
+
+import itertools
+
+import numpy as np
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from scipy.optimize import linear_sum_assignment
+from sklearn.feature_extraction.text import TfidfVectorizer
+
+from core.review.align import (
+    ALIGN_MIN,
+    Features,
+    _solve,
+    _tfidf,
+    align,
+    longest_increasing_subsequence,
+)
+
+
+def F(text: str, heading: str = "", kind: str = "clause", parent: int | None = None,
+      term: str | None = None) -> Features:
+    return Features(tuple(text.lower().split()), tuple(heading.lower().split()), kind, term, parent)
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.lists(st.integers(0, 12), max_size=10))
+def test_lis_is_longest_and_increasing(values):
+    idx = longest_increasing_subsequence(values)
+    assert idx == sorted(idx)
+    assert all(values[a] < values[b] for a, b in zip(idx, idx[1:]))
+    # reference: exhaustive search over all subsequences
+    best = 0
+    for r in range(len(values), 0, -1):
+        if any(all(c[k] < c[k + 1] for k in range(r - 1))
+               for c in itertools.combinations(values, r)):
+            best = r
+            break
+    assert len(idx) == best
+
+
+def test_lis_is_n_log_n_on_a_long_input():
+    values = list(range(0, 200_000, 2)) + [1]  # one late small value
+    idx = longest_increasing_subsequence(values)
+    assert len(idx) == 100_000
+
+
+@settings(max_examples=150, deadline=None)
+@given(st.integers(1, 7), st.integers(1, 7), st.data())
+def test_per_component_assignment_matches_scipy_on_the_whole_matrix(n_d, n_p, data):
+    cells = [(d, p) for d in range(n_d) for p in range(n_p)]
+    chosen = data.draw(st.lists(st.sampled_from(cells), unique=True, max_size=len(cells)))
+    weights = data.draw(st.lists(st.floats(0.1, 3.0), min_size=len(chosen), max_size=len(chosen)))
+    edges = dict(zip(chosen, weights))
+    match = _solve(n_d, n_p, edges)
+    assert len(set(match.values())) == len(match)
+    assert all((d, p) in edges for d, p in match.items())
+    got = sum(edges[(d, p)] for d, p in match.items())
+    dense = np.zeros((n_d, n_p))
+    for (d, p), w in edges.items():
+        dense[d, p] = w
+    r, c = linear_sum_assignment(dense, maximize=True)
+    assert abs(got - dense[r, c].sum()) < 1e-9
+
+
+def test_tfidf_bound_matches_scikit_learn():
+    docs = [["the", "supplier", "shall", "deliver", "the", "goods"],
+            ["the", "customer", "shall", "pay", "the", "fees"],
+            ["goods", "goods", "fees"], []]
+    ours = _tfidf(docs).toarray()
+    ref = TfidfVectorizer(analyzer=lambda x: x, sublinear_tf=True).fit(docs)
+    theirs = ref.transform(docs).toarray()
+    # same columns (vocabulary order differs)
+    vocab = {}
+    for seq in docs:
+        for w in seq:
+            vocab.setdefault(w, len(vocab))
+    order = [vocab[w] for w in ref.get_feature_names_out()]
+    assert np.allclose(ours[:, order], theirs)
+
+
+PREC = [F("", "Definitions"), F("the supplier shall deliver the goods to the site on time", parent=0),
+        F("the customer shall pay every invoice within thirty days of receipt", parent=0),
+        F("either party may terminate this agreement on ninety days notice in writing"),
+        F("this agreement is governed by the law of ardence and the courts of wexmoor")]
+
+
+def test_renumbered_identical_provisions_are_paired_in_order():
+    al = align(PREC, PREC)
+    assert [(g.drafts, g.precedents, g.moved) for g in al.groups] == [
+        ((i,), (i,), False) for i in range(len(PREC))]
+    assert al.added == al.removed == ()
+
+
+def test_moved_provision_is_outside_the_lis():
+    draft = [PREC[0], PREC[1], PREC[4], PREC[2], PREC[3]]
+    al = align(draft, PREC)
+    moved = [(g.drafts, g.precedents) for g in al.groups if g.moved]
+    assert moved == [((2,), (4,))]
+
+
+def test_added_removed_and_nothing_shared():
+    draft = [PREC[0], PREC[1], F("the supplier shall keep insurance with a reputable insurer"),
+             PREC[3], PREC[4]]
+    al = align(draft, PREC)
+    assert al.added == (2,) and al.removed == (2,)
+    other = [F("completely unrelated words about fishing boats and harbour fees"),
+             F("lighthouse keepers rotate their watches at dawn")]
+    empty = align(other, PREC)
+    assert empty.groups == () and empty.added == (0, 1)
+    assert align([], PREC).removed == tuple(range(len(PREC)))
+
+
+def test_split_and_merged():
+    whole = F("the customer shall pay every invoice within thirty days of receipt and "
+              "interest accrues on late payments at four per cent above the base rate")
+    first = F("the customer shall pay every invoice within thirty days of receipt")
+    second = F("interest accrues on late payments at four per cent above the base rate")
+    prec = [PREC[0], whole, PREC[3]]
+    draft = [PREC[0], first, second, PREC[3]]
+    split = align(draft, prec)
+    g = next(g for g in split.groups if g.kind == "split")
+    assert (g.drafts, g.precedents) == ((1, 2), (1,))
+    assert len(g.pair_similarities) == 2 and g.similarity > ALIGN_MIN
+    merged = align(prec, draft)
+    g = next(g for g in merged.groups if g.kind == "merged")
+    assert (g.drafts, g.precedents) == ((1,), (1, 2))
+
+
+def test_repeated_list_items_pair_inside_their_parents():
+    """Word-for-word identical items under different clauses: the pairing follows the
+    parents, not the first identical text found."""
+    item = "any breach of this agreement by the other party"
+    prec = [F("", "Termination"), F(item, parent=0), F("", "Indemnity"), F(item, parent=2)]
+    draft = [F("", "Indemnity"), F(item, parent=0), F("", "Termination"), F(item, parent=2)]
+    al = align(draft, prec)
+    pairs = sorted((g.drafts[0], g.precedents[0]) for g in al.groups)
+    assert pairs == [(0, 2), (1, 3), (2, 0), (3, 1)]
+
+
+def test_definitions_pair_through_the_term_map():
+    prec = [F('"customer" means the buyer named in the order form', kind="definition", term="Customer")]
+    draft = [F('"client" means the entity identified as purchaser', kind="definition", term="Customer")]
+    al = align(draft, prec)
+    assert [(g.drafts, g.precedents) for g in al.groups] == [((0,), (0,))]

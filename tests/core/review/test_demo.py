@@ -1,0 +1,107 @@
+"""The review of the demo pair against the demo generator's record
+(``demo_agreements/scenario.json``, schema counterdraft.demo-scenario/1): every planted
+departure reported with its expected reasons, each renamed term one term mapping and no
+substantive deviation, the moved clauses "moved", renumbering never substantive."""
+
+from __future__ import annotations
+
+import json
+import re
+from pathlib import Path
+
+import pytest
+
+from core.reader import read_document
+from core.review import run_review
+
+DEMO = Path(__file__).resolve().parents[3] / "demo_agreements"
+
+
+@pytest.fixture(scope="module")
+def scenario():
+    path = DEMO / "scenario.json"
+    if not path.exists():
+        pytest.skip("demo agreements not generated")
+    return json.loads(path.read_text(encoding="utf-8"))
+
+
+@pytest.fixture(scope="module")
+def review(scenario):
+    draft = read_document(str(DEMO / scenario["draft"]["file"]))
+    precedent = read_document(str(DEMO / scenario["precedent"]["file"]))
+    return run_review(draft, precedent)
+
+
+def pid(doc, number):
+    """The provision with this rendered number (as the scenario's outline writes it)."""
+    if number is None:
+        return None
+    ids = [p.id for p in doc.provisions if p.number == number]
+    assert len(ids) == 1, (number, ids)
+    return ids[0]
+
+
+def test_every_planted_departure_is_reported_with_its_reasons(scenario, review):
+    for dep in scenario["departures"]:
+        d_id = pid(review.draft, dep["draft_number"])
+        p_id = pid(review.precedent, dep["precedent_number"])
+        hits = [v for v in review.deviations
+                if v.category == "substantive" and v.change == dep["change"]
+                and (d_id is None or v.draft_provision == d_id)
+                and (p_id is None or v.precedent_provision == p_id)]
+        hits = [v for v in hits if " ".join(dep["draft_words"].split())[:40] in " ".join(v.draft_text.split())
+                and " ".join(dep["precedent_words"].split())[:40] in " ".join(v.precedent_text.split())]
+        assert len(hits) == 1, (dep["id"], [(v.change, v.precedent_text, v.draft_text) for v in review.deviations
+                                            if v.draft_provision == d_id or v.precedent_provision == p_id])
+        (v,) = hits
+        assert any(all(x in r.lower() for x in dep["expected_reasons"]) for r in v.reasons), (dep["id"], v.reasons)
+
+
+def test_departures_weigh_as_the_record_says(scenario, review):
+    """The record marks each departure high, medium or low: on average the high ones rank
+    above the low ones."""
+    sev = {}
+    for dep in scenario["departures"]:
+        d_id = pid(review.draft, dep["draft_number"])
+        p_id = pid(review.precedent, dep["precedent_number"])
+        sev.setdefault(dep["weight"], []).append(max(
+            v.severity for v in review.deviations if v.category == "substantive"
+            and v.change == dep["change"] and (d_id is None or v.draft_provision == d_id)
+            and (p_id is None or v.precedent_provision == p_id)))
+    mean = {k: sum(x) / len(x) for k, x in sev.items()}
+    assert mean["high"] > mean["low"]
+    assert min(sev["high"]) >= 45
+
+
+def test_each_renamed_term_is_one_mapping_and_never_substantive(scenario, review):
+    expected = {(t["draft"], t["precedent"]) for t in scenario["renamed_terms"]}
+    assert {(m.draft, m.precedent) for m in review.term_map} == expected
+    terms = [(v.draft_text, v.precedent_text) for v in review.deviations if v.category == "term"]
+    assert sorted(terms) == sorted(expected)
+    for v in review.deviations:
+        if v.category == "substantive" and v.change in ("insert", "delete", "replace"):
+            for d, p in expected:
+                assert not (d in v.draft_text and p in v.precedent_text
+                            and v.draft_text.replace(d, p) == v.precedent_text), v
+
+
+def test_moved_clauses_are_moved(scenario, review):
+    status = {(p.draft, p.precedent): p.status for p in review.pairs}
+    for m in scenario["moved"]:
+        key = (pid(review.draft, m["draft_number"]), pid(review.precedent, m["precedent_number"]))
+        assert status.get(key) == "moved", (m, status.get(key))
+
+
+#: A label or a numbered reference alone: "7.2", "(iii)", "Clause 9.2", "Section 11.2(a)".
+_REFERENCE = re.compile(r"^(?:(?:clause|section|article|schedule|paragraph)\s+)?"
+                        r"(?:\d+(?:\.\d+)*(?:\([0-9a-z]{1,5}\))*|\([0-9a-z]{1,5}\))\.?$", re.IGNORECASE)
+
+
+def test_renumbering_is_never_substantive(review):
+    numbering = [v for v in review.deviations if v.category == "numbering"]
+    assert any(v.reasons[0].startswith("renumbered") for v in numbering)
+    assert any("cross-reference renumbered" in v.reasons[0] for v in numbering)
+    for v in review.deviations:
+        if v.category == "substantive" and v.change == "replace":
+            assert not (_REFERENCE.match(v.precedent_text.strip())
+                        and _REFERENCE.match(v.draft_text.strip())), v

@@ -1,0 +1,186 @@
+"""Severity rules (core.review.severity, resources/severity.toml).
+
+The TOML is read with the standard library's tomllib (TOML 1.0.0); the figures of the rule
+file are the authors' judgement (common practice, no source).  The words-and-figures form
+"thirty (30) days" is the usual drafting convention in English-language contracts (common
+practice, no source).
+"""
+
+from __future__ import annotations
+
+import tomllib
+
+import pytest
+
+from core.errors import CounterdraftError
+from core.review import run_review
+from core.review.severity import (
+    DEFAULT_RULES_PATH,
+    clause_types_for,
+    default_rules,
+    find_quantities,
+    guess_clause_type,
+    load_rules,
+    provision_change_severity,
+    text_change_severity,
+)
+
+from .helpers import doc, substantive
+
+CLAUSE_TYPES = (
+    "definitions interpretation term supply ordering delivery acceptance title_and_risk price "
+    "payment taxes service_levels warranties limitation_of_liability indemnity insurance "
+    "intellectual_property confidentiality data_protection audit compliance termination "
+    "consequences_of_termination force_majeure assignment subcontracting non_solicitation "
+    "governing_law dispute_resolution notices entire_agreement variation waiver severance "
+    "counterparts third_party_rights relationship further_assurance costs publicity").split()
+
+
+def score(p: str, d: str, *, ctype: str | None = "payment") -> tuple[int, tuple[str, ...]]:
+    """Severity of the change between two one-sentence texts (the whole text as the span)."""
+    return text_change_severity(p_text=p, p_span=(0, len(p)), d_text=d, d_span=(0, len(d)),
+                                clause_type=ctype, kind="clause")
+
+
+def test_rule_file_is_valid_toml_with_the_agreed_clause_types():
+    data = tomllib.loads(DEFAULT_RULES_PATH.read_text(encoding="utf-8"))
+    assert data["schema"] == "counterdraft.severity-rules/1"
+    assert set(data["weights"]) - {"default"} <= set(CLAUSE_TYPES)
+    assert set(data["clause_type_keywords"]) == set(CLAUSE_TYPES)
+    rules = default_rules()
+    heavy = ("limitation_of_liability", "indemnity", "termination", "payment", "governing_law",
+             "confidentiality", "intellectual_property", "assignment", "warranties",
+             "data_protection")
+    assert min(rules.weights[t] for t in heavy) > max(rules.weights[t] for t in ("notices", "counterparts"))
+
+
+@pytest.mark.parametrize(("text", "kind", "value", "unit"), [
+    ("within thirty (30) days", "duration", 30, "days"),
+    ("twenty-five (25) Business Days", "duration", 25, "business days"),
+    ("ten per cent (10%) of the Fees", "percentage", 10, "%"),
+    ("one hundred and twenty per cent", "percentage", 120, "%"),
+    ("a cap of £1,000,000", "amount", 1_000_000, "GBP"),
+    ("USD 2.5 million", "amount", 2_500_000, "USD"),
+    ("EUR 5,000,000 (five million euros)", "amount", 5_000_000, "EUR"),
+    ("three (3) months", "duration", 3, "months"),
+])
+def test_figures(text, kind, value, unit):
+    (q,) = find_quantities(text)
+    assert (q.kind, q.value, q.unit) == (kind, value, unit)
+
+
+def test_number_words_alone_are_no_figure():
+    assert find_quantities("one of the parties may give notice") == []
+    assert find_quantities("under Clause 7.2 and clauses 3 and 4") == []
+
+
+def test_changed_figures_give_old_and_new_values():
+    sev, reasons = score("pay within thirty (30) days", "pay within sixty (60) days")
+    assert reasons[0] == "period changed from 30 to 60 days (longer)"
+    assert sev >= 60
+    _sev, reasons = score("a cap of £1,000,000", "a cap of £500,000", ctype="limitation_of_liability")
+    assert reasons[0] == "amount changed from £1,000,000 to £500,000 (lower)"
+    _sev, reasons = score("interest at four per cent (4%)", "interest at two per cent (2%)")
+    assert reasons[0] == "percentage changed from 4% to 2% (lower)"
+    _sev, reasons = score("within 30 days", "within 30 Business Days")
+    assert reasons[0] == "period changed from 30 days to 30 business days"
+
+
+@pytest.mark.parametrize(("old", "new", "signal"), [
+    ("The Supplier shall deliver", "The Supplier may deliver", "obligation weakened from 'shall' to 'may'"),
+    ("The Supplier must deliver", "The Supplier will use reasonable efforts to deliver",
+     "obligation weakened from 'must' to 'will use reasonable efforts to'"),
+    ("The Supplier agrees to deliver", "The Supplier endeavours to deliver",
+     "obligation weakened from 'agrees to' to 'endeavours to'"),
+    ("The Supplier should deliver", "The Supplier shall deliver",
+     "obligation strengthened from 'should' to 'shall'"),
+])
+def test_obligation_strength(old, new, signal):
+    _sev, reasons = score(old, new)
+    assert signal in reasons
+
+
+def test_negation_and_qualifiers():
+    p = "The Supplier shall be liable for losses caused by its negligence."
+    d = "The Supplier shall not be liable for losses caused by its negligence."
+    at = p.index("be")
+    sev, reasons = text_change_severity(p_text=p, p_span=(at, at), d_text=d,
+                                        d_span=(at, at + 3), clause_type=None, kind="clause")
+    assert reasons == ("negation added: 'not'",) and sev == 70
+    _s, reasons = score("liable for losses", "liable for material losses")
+    assert "qualifier added: 'material'" in reasons
+    _s, reasons = score("in its sole discretion", "acting reasonably")
+    assert "qualifier changed from 'sole discretion' to 'reasonably'" in reasons
+    _s, reasons = score("notify promptly", "notify")
+    assert "qualifier removed: 'promptly'" in reasons
+
+
+def test_weight_by_clause_type_orders_equal_changes():
+    heavy, _ = score("shall", "may", ctype="limitation_of_liability")
+    light, _ = score("shall", "may", ctype="notices")
+    assert heavy > light
+    removed_cap, r1 = provision_change_severity(added=False, label="Clause 12", text="cap",
+                                                clause_type="limitation_of_liability", kind="clause")
+    removed_cp, _ = provision_change_severity(added=False, label="Clause 30", text="counterparts",
+                                              clause_type="counterparts", kind="clause")
+    assert removed_cap > removed_cp
+    assert r1[0].startswith("Clause 12 removed")
+
+
+def test_clause_types_from_headings_and_parents():
+    rules = default_rules()
+    assert guess_clause_type("Limitation of Liability", rules=rules) == "limitation_of_liability"
+    assert guess_clause_type("Consequences of Termination", rules=rules) == "consequences_of_termination"
+    assert guess_clause_type("Term and Termination", rules=rules) == "termination"
+    assert guess_clause_type("Governing Law & Jurisdiction", rules=rules) == "governing_law"
+    assert guess_clause_type("Miscellaneous", rules=rules) is None
+    d = doc("""
+        1. Limitation of Liability
+
+        1.1 Nothing limits liability for fraud.
+
+        2. Notices
+
+        2.1 Notices shall be in writing.
+    """)
+    types = clause_types_for(d, rules=rules)
+    assert types == ("limitation_of_liability", "limitation_of_liability", "notices", "notices")
+    better = clause_types_for(d, rules=rules, classifier=lambda p, _doc: "costs" if p.number == "2.1" else None)
+    assert better[3] == "costs"
+
+
+def test_a_firm_can_edit_the_rule_file(tmp_path):
+    text = DEFAULT_RULES_PATH.read_text(encoding="utf-8").replace(
+        "obligation_weakened = 60", "obligation_weakened = 10")
+    path = tmp_path / "house.toml"
+    path.write_text(text, encoding="utf-8")
+    rules = load_rules(path)
+    precedent = doc("1. Orders\n\n1.1 The Supplier shall accept each order.")
+    draft = doc("1. Orders\n\n1.1 The Supplier may accept each order.")
+    (v,) = substantive(run_review(draft, precedent, rules=rules))
+    (w,) = substantive(run_review(draft, precedent))
+    assert v.severity == 10 and w.severity == 60
+
+
+@pytest.mark.parametrize(("content", "problem"), [
+    ("not = [valid", "not valid TOML"),
+    ('schema = "other/1"', "schema must be"),
+    (None, "file not found"),
+])
+def test_bad_rule_files_are_one_line_errors(tmp_path, content, problem):
+    path = tmp_path / "rules.toml"
+    if content is not None:
+        path.write_text(content, encoding="utf-8")
+    with pytest.raises(CounterdraftError) as err:
+        load_rules(path)
+    assert problem in str(err.value) and str(path) in str(err.value)
+    assert "\n" not in str(err.value)
+
+
+def test_out_of_range_figure_names_the_key(tmp_path):
+    text = DEFAULT_RULES_PATH.read_text(encoding="utf-8").replace(
+        "negation_added = 70", "negation_added = 170")
+    path = tmp_path / "rules.toml"
+    path.write_text(text, encoding="utf-8")
+    with pytest.raises(CounterdraftError, match="signals.negation_added must be a number"):
+        load_rules(path)

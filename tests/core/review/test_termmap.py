@@ -1,0 +1,253 @@
+"""Term mapping (core.review.termmap): evidence kinds, confidence, overrides and the traps
+of defined terms.  The agreements are invented; the mapping rules are common drafting
+practice (a term is used with its capitals, plurals and possessives are uses; no source)."""
+
+from __future__ import annotations
+
+import pytest
+
+from core.errors import CounterdraftError
+from core.review import TermOverride, VocabularyModel, run_review
+from core.review.docinfo import build_docinfo, party_role
+from core.review.termmap import MAP_MIN, map_terms
+
+from .helpers import doc, substantive
+
+PRECEDENT = """
+    SUPPLY AGREEMENT
+
+    1. Definitions
+
+    1.1 "Customer" means the person named as the buyer in the Order Form.
+
+    1.2 "Products" means the goods listed in the Order Form, including spare parts.
+
+    2. Supply
+
+    2.1 The Supplier shall supply the Products to the Customer on the delivery date.
+
+    2.2 The Customer shall inspect the Products within five (5) days of delivery.
+
+    2.3 The Customer's acceptance of any Products does not waive the Customers' rights.
+
+    3. Payment
+
+    3.1 The Customer shall pay for the Products within thirty (30) days.
+"""
+
+
+def renamed(text: str) -> str:
+    return (text.replace("Customers'", "Clients'").replace("Customer", "Client")
+            .replace("Products", "Goods"))
+
+
+def test_renamed_terms_are_mapped_with_evidence_and_counted_once():
+    precedent = doc(PRECEDENT)
+    draft = doc(renamed(PRECEDENT))
+    review = run_review(draft, precedent)
+    pairs = {(m.draft, m.precedent): m for m in review.term_map}
+    assert set(pairs) == {("Client", "Customer"), ("Goods", "Products")}
+    client = pairs[("Client", "Customer")]
+    assert client.evidence == ("definition", "substitution")
+    assert MAP_MIN <= client.confidence <= 1
+    # plural and possessive uses count ("Client's", "Clients'"); the reader counts the same
+    assert client.occurrences == next(t.uses for t in draft.terms if t.term == "Client") == 5
+    # one deviation of category term per mapping, and nothing substantive
+    terms = [v for v in review.deviations if v.category == "term"]
+    assert sorted((v.draft_text, v.precedent_text) for v in terms) == [
+        ("Client", "Customer"), ("Goods", "Products")]
+    assert substantive(review) == []
+    assert {p.status for p in review.pairs} == {"same"}
+
+
+def test_identical_names_are_not_listed():
+    precedent = doc(PRECEDENT)
+    review = run_review(doc(PRECEDENT), precedent)
+    assert review.term_map == ()
+    assert review.deviations == ()
+
+
+def test_similar_names_are_not_evidence_services_vs_additional_services():
+    """The draft keeps "Services" and adds "Additional Services": similar names but a new
+    term, never mapped onto "Services", and its uses are not uses of "Services"."""
+    precedent = doc("""
+        1. Definitions
+
+        1.1 "Services" means the maintenance services in Schedule 1.
+
+        1.2 "Fees" means the fees in Schedule 2.
+
+        2. Services
+
+        2.1 The Supplier shall perform the Services with reasonable care.
+    """)
+    draft = doc("""
+        1. Definitions
+
+        1.1 "Services" means the maintenance services in Schedule 1.
+
+        1.2 "Additional Services" means any services ordered in addition to the Services.
+
+        1.3 "Fees" means the fees in Schedule 2.
+
+        2. Services
+
+        2.1 The Supplier shall perform the Services with reasonable care.
+
+        2.2 The Supplier shall perform the Additional Services at the rates in Schedule 2.
+    """)
+    review = run_review(draft, precedent)
+    assert review.term_map == ()
+    info = build_docinfo(draft)
+    assert info.term_uses["Services"] == 3  # 2.1, 1.2's "the Services" and heading 2
+    added = [v for v in review.deviations if v.change == "add-provision"]
+    assert any("Additional Services" in v.draft_text for v in added)
+
+
+def test_a_term_defined_in_one_document_and_used_undefined_in_the_other_is_no_rename():
+    """The precedent uses "Deliverables" (capitalised, undefined) as often as the draft;
+    the draft's new definition of it must not be mapped onto the precedent's "Materials",
+    even though the two definitions read alike."""
+    precedent = doc("""
+        1. Definitions
+
+        1.1 "Materials" means all documents and data provided by the Supplier.
+
+        2. Delivery
+
+        2.1 The Supplier shall deliver the Deliverables and the Materials on time.
+
+        2.2 The Deliverables remain the property of the Supplier until paid for.
+    """)
+    draft = doc("""
+        1. Definitions
+
+        1.1 "Deliverables" means all documents and data provided by the Supplier.
+
+        2. Delivery
+
+        2.1 The Supplier shall deliver the Deliverables and the Materials on time.
+
+        2.2 The Deliverables remain the property of the Supplier until paid for.
+    """)
+    review = run_review(draft, precedent)
+    assert review.term_map == ()
+
+
+PARTIES_PRECEDENT = """
+    SALE AGREEMENT
+
+    This agreement is made between:
+
+    (1) Quillon Ashby Limited, a company incorporated in Ardence (the "Supplier"); and
+
+    (2) [BUYER NAME], a company incorporated in [COUNTRY] (the "Buyer").
+
+    1. Sale
+
+    1.1 The Supplier shall sell and the Buyer shall buy the equipment.
+
+    1.2 The Buyer shall pay the Supplier within thirty (30) days of delivery.
+
+    1.3 The Supplier shall indemnify the Buyer against third party claims.
+
+    1.4 The Buyer may inspect the Supplier's premises on notice.
+"""
+PARTIES_DRAFT = """
+    SALE AGREEMENT
+
+    This agreement is made between:
+
+    (1) Quillon Ashby Limited, a company incorporated in Ardence (the "Vendor"); and
+
+    (2) Marsh Tollard Limited, a company incorporated in Corvanne (the "Customer").
+
+    1. Sale
+
+    1.1 The Vendor shall sell and the Customer shall buy the equipment.
+
+    1.2 The Customer shall pay the Vendor within thirty (30) days of delivery.
+
+    1.3 The Customer shall indemnify the Vendor against third party claims.
+
+    1.4 The Customer may inspect the Vendor's premises on notice.
+"""
+
+
+def test_party_labels_are_mapped_side_to_side_and_never_crossed():
+    """The house "Supplier" is their "Vendor" and their "Customer" is our "Buyer"; in 1.3
+    the draft swaps the parties, which is reported as a substantive party change."""
+    review = run_review(doc(PARTIES_DRAFT), doc(PARTIES_PRECEDENT))
+    assert {(m.draft, m.precedent) for m in review.term_map} == {
+        ("Vendor", "Supplier"), ("Customer", "Buyer")}
+    swaps = [v for v in substantive(review) if any("party changed" in r for r in v.reasons)]
+    assert [(v.precedent_text, v.draft_text) for v in swaps] == [("Supplier", "Customer"),
+                                                                 ("Buyer", "Vendor")]
+    assert len({v.draft_provision for v in swaps}) == 1
+    assert all(v.severity >= 60 for v in swaps)
+    # everything else is explained by the term map (and the parties' own details)
+    others = [v for v in substantive(review) if v not in swaps]
+    assert all(v.draft_provision in ("p3", "p4") for v in others), others
+
+
+def test_party_roles_forbid_crossing_even_against_the_evidence():
+    draft = build_docinfo(doc(PARTIES_DRAFT))
+    precedent = build_docinfo(doc(PARTIES_PRECEDENT))
+    assert draft.party_labels == {"Vendor", "Customer"}
+    assert precedent.party_labels == {"Supplier", "Buyer"}
+    assert party_role("Vendor") == party_role("Supplier") == "supply"
+    assert party_role("Customer") == party_role("Buyer") == "buy"
+    # substitution evidence only for the crossed pairs: still no crossed mapping
+    tm = map_terms(draft, precedent, substitutions={("Customer", "Supplier"): 9,
+                                                    ("Vendor", "Buyer"): 9})
+    assert tm.mappings == ()
+
+
+class Vocabulary:
+    """A stand-in for the precedent set's word-embedding model."""
+
+    def __init__(self, table: dict[frozenset[str], float]) -> None:
+        self.table = table
+
+    def similarity(self, a: str, b: str) -> float | None:
+        return self.table.get(frozenset((a, b)))
+
+
+def test_embedding_evidence_is_recorded_and_optional():
+    vocab = Vocabulary({frozenset(("Client", "Customer")): 0.9})
+    assert isinstance(vocab, VocabularyModel)
+    review = run_review(doc(renamed(PRECEDENT)), doc(PRECEDENT), vocabulary=vocab)
+    client = next(m for m in review.term_map if m.draft == "Client")
+    assert client.evidence == ("definition", "substitution", "embedding")
+    goods = next(m for m in review.term_map if m.draft == "Goods")
+    assert "embedding" not in goods.evidence  # unknown to the model (None)
+    without = run_review(doc(renamed(PRECEDENT)), doc(PRECEDENT))
+    assert client.confidence >= next(m.confidence for m in without.term_map if m.draft == "Client")
+
+
+def test_user_overrides_confirm_reject_and_add():
+    draft, precedent = doc(renamed(PRECEDENT)), doc(PRECEDENT)
+    confirmed = run_review(draft, precedent, overrides=[TermOverride("Client", "Customer", "confirm")])
+    client = next(m for m in confirmed.term_map if m.draft == "Client")
+    assert client.confidence == 1.0 and client.evidence[-1] == "user"
+
+    rejected = run_review(draft, precedent, overrides=[TermOverride("Goods", "Products", "reject")])
+    assert [m.draft for m in rejected.term_map] == ["Client"]
+    # without the mapping, "Goods" for "Products" is a wording change
+    assert any(v.draft_text.startswith("Goods") for v in substantive(rejected))
+
+    # "add": a mapping no evidence supports (an undefined name in the draft)
+    text = PRECEDENT.replace("Supplier", "Seller")
+    added = run_review(doc(text), precedent, overrides=[TermOverride("Seller", "Supplier", "add")])
+    assert [(m.draft, m.precedent, m.evidence) for m in added.term_map] == [
+        ("Seller", "Supplier", ("user",))]
+    assert substantive(added) == []
+
+
+def test_bad_overrides_are_one_line_errors():
+    with pytest.raises(CounterdraftError, match="unknown action"):
+        TermOverride("Client", "Customer", "merge")  # type: ignore[arg-type]
+    with pytest.raises(CounterdraftError, match="needs a precedent term"):
+        TermOverride("Client", None, "confirm")
+    with pytest.raises(CounterdraftError, match="empty draft term"):
+        TermOverride(" ", "Customer")

@@ -1,0 +1,94 @@
+"""Tokens of the review engine (core.review.tokens).
+
+References: the quote and dash characters folded are those of Unicode general categories
+Pi/Pf (quotation marks) and Pd (dashes), checked with the standard library's
+``unicodedata``; term uses are checked against ``core.terms.terms_pattern`` (the reader's
+own definition of a use) on the licence texts of licensedcode-data.
+"""
+
+from __future__ import annotations
+
+import unicodedata
+
+import pytest
+from hypothesis import given
+from hypothesis import strategies as st
+
+from core.reader import read_text
+from core.review.tokens import (
+    DASHES,
+    QUOTES,
+    base_tokens,
+    find_cross_references,
+    find_term_uses,
+    normalise_key,
+    rekey,
+    term_matcher,
+    tokenize,
+)
+from core.terms import terms_pattern
+
+from .helpers import LICENCES, licence_text
+
+
+@given(st.text(alphabet=st.characters(blacklist_categories=("Cs",)), max_size=120))
+def test_tokens_tile_the_text(text):
+    seq = tokenize(text)
+    assert "".join(seq.token(i) for i in range(len(seq))) == text
+    assert seq.starts[0] == 0 and seq.starts[-1] == len(text)
+    assert len(seq.kinds) == len(seq.keys)
+
+
+def test_keys_fold_case_quotes_dashes_and_space():
+    assert normalise_key("Customer") == normalise_key("CUSTOMER") == "customer"
+    assert normalise_key("\u201cGoods\u201d") == normalise_key('"Goods"')
+    assert normalise_key("\u2013") == normalise_key("-")
+    assert normalise_key("\n\t  ") == normalise_key(" ") == " "
+    assert tokenize("1,000.50 and 7.2").keys[0] == "1,000.50"
+
+
+def test_folded_characters_are_unicode_quotes_and_dashes():
+    for c in DASHES:
+        assert unicodedata.category(c) in ("Pd", "Sm"), c  # U+2212 MINUS SIGN is Sm
+    for c in QUOTES:
+        assert unicodedata.category(c) in ("Pi", "Pf", "Ps", "Pe", "Po", "Sk"), c
+
+
+@pytest.mark.parametrize("key", LICENCES)
+def test_term_uses_match_the_readers_definition(key):
+    """Source: licensedcode-data ``<key>.LICENSE``; reference: core.terms.terms_pattern."""
+    d = read_text(licence_text(key), source=f"{key}.txt")
+    names = [t.term for t in d.terms] + ["Additional Services", "Services"]
+    ref, _owner = terms_pattern(names)
+    m = term_matcher(names)
+    n = 0
+    for p in d.provisions:
+        expected = [(x.start(), x.end()) for x in ref.finditer(p.text)]
+        got = [(u.start, u.end) for u in find_term_uses(p.text, m)]
+        assert got == expected
+        n += len(got)
+    assert n > 20
+
+
+def test_term_forms():
+    m = term_matcher(["Party", "Services", "Additional Services", "Customer"])
+    uses = find_term_uses("the Parties' rights, a Party's Additional Services and Customers", m)
+    assert [(u.term, u.form) for u in uses] == [("Party", "plpos"), ("Party", "pos"),
+                                                 ("Additional Services", ""), ("Customer", "pl")]
+
+
+def test_cross_references():
+    text = "subject to clauses 5 and 6.2(a), Section 11.2 or Schedule 1 and paragraph 3(b)(ii)"
+    got = [(text[a:b], n, k) for a, b, n, k in find_cross_references(text)]
+    assert got == [("clauses 5", "5", "clause"), ("6.2(a)", "6.2(a)", "clause"),
+                   ("Section 11.2", "11.2", "section"), ("Schedule 1", "1", "schedule"),
+                   ("paragraph 3(b)(ii)", "3(b)(ii)", "paragraph")]
+
+
+def test_rekey_maps_terms_and_references_without_retokenising():
+    bt = base_tokens("The Client's duty under clause 4.2.", term_matcher(["Client", "Customer"]))
+    seq = rekey(bt, term_key={"Client": "Customer"}, xref=lambda n, k: f"{k}:{n}")
+    other = rekey(base_tokens("The Customer's duty under Section 4.2.", term_matcher(["Customer"])),
+                  term_key={}, xref=lambda n, k: f"clause:{n}")
+    assert seq.keys == other.keys
+    assert bt.term_at == {4: "Client"}

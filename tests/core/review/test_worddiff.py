@@ -1,0 +1,147 @@
+"""The word diff (core.review.worddiff), checked against the standard library's difflib.
+
+Reference: Python's ``difflib.SequenceMatcher`` on the same token keys.  Its matching blocks
+form a common subsequence of the two token sequences; diff-match-patch with no time-out runs
+Myers' algorithm (E. W. Myers, "An O(ND) difference algorithm and its variations",
+Algorithmica 1986), which finds a *longest* common subsequence, so before the semantic
+clean-up the diff keeps at least as many tokens unchanged as difflib does.
+"""
+
+from __future__ import annotations
+
+import difflib
+
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from core.review.tokens import tokenize
+from core.review.worddiff import diff_texts, edits_from_ops, token_ops
+
+WORDS = ["the", "The", "Customer", "shall", "may", "not", "pay", "thirty", "(30)", "days",
+         "“quoted”", '"quoted"', "–", "-", ",", ".", ";", "Supplier's", "Supplier’s", "7.2",
+         "1,000", "notice", "in", "writing", "  ", "\n", "\t"]
+
+texts = st.lists(st.sampled_from(WORDS), max_size=40).map(
+    lambda ws: "".join(w if w.isspace() else w + " " for w in ws).rstrip(" "))
+any_text = st.text(alphabet=st.characters(blacklist_categories=("Cs",)), max_size=80)
+
+
+def reconstruct(edits, a: str, b: str) -> tuple[str, str]:
+    return "".join(a[e.p1:e.p2] for e in edits), "".join(b[e.d1:e.d2] for e in edits)
+
+
+def check_tiling(edits, a: str, b: str) -> None:
+    p = d = 0
+    for e in edits:
+        assert (e.p1, e.d1) == (p, d)
+        assert e.tag in ("equal", "insert", "delete", "replace")
+        if e.tag == "equal":
+            assert a[e.p1:e.p2] == b[e.d1:e.d2]
+        if e.tag == "insert":
+            assert e.p1 == e.p2 and e.d2 > e.d1
+        if e.tag == "delete":
+            assert e.d1 == e.d2 and e.p2 > e.p1
+        p, d = e.p2, e.d2
+    assert (p, d) == (len(a), len(b))
+
+
+@settings(max_examples=300, deadline=None)
+@given(texts, texts)
+def test_diff_reconstructs_both_texts_and_equal_spans_are_equal(a: str, b: str) -> None:
+    edits = diff_texts(a, b)
+    assert reconstruct(edits, a, b) == (a, b)
+    check_tiling(edits, a, b)
+
+
+@settings(max_examples=200, deadline=None)
+@given(any_text, any_text)
+def test_diff_reconstructs_arbitrary_unicode(a: str, b: str) -> None:
+    edits = diff_texts(a, b)
+    assert reconstruct(edits, a, b) == (a, b)
+    check_tiling(edits, a, b)
+
+
+@settings(max_examples=300, deadline=None)
+@given(texts, texts)
+def test_unchanged_tokens_at_least_as_many_as_difflib(a: str, b: str) -> None:
+    """Reference: difflib.SequenceMatcher (autojunk off) on the same keys finds a common
+    subsequence; the exact Myers diff (before clean-up) keeps at least as many tokens."""
+    ta, tb = tokenize(a), tokenize(b)
+    ops = token_ops(ta, tb, semantic=False)
+    kept = sum(op.i2 - op.i1 for op in ops if op.tag in ("equal", "restyle"))
+    sm = difflib.SequenceMatcher(None, ta.keys, tb.keys, autojunk=False)
+    reference = sum(block.size for block in sm.get_matching_blocks())
+    assert kept >= reference
+    # the clean-up only merges, it never loses text
+    edits = edits_from_ops(ta, tb, token_ops(ta, tb))
+    assert reconstruct(edits, a, b) == (a, b)
+
+
+@settings(max_examples=200, deadline=None)
+@given(texts)
+def test_identical_texts_give_one_equal_edit_like_difflib(a: str) -> None:
+    """Reference: difflib reports one 'equal' opcode (or none) for identical inputs."""
+    edits = diff_texts(a, a)
+    ref = difflib.SequenceMatcher(None, a.split(), a.split()).get_opcodes()
+    assert all(tag == "equal" for tag, *_ in ref)
+    assert all(e.tag == "equal" for e in edits)
+    assert len(edits) == (1 if a else 0)
+
+
+def test_word_granularity_and_offsets() -> None:
+    a = "The Customer shall pay within thirty (30) days."
+    b = "The Customer may pay within sixty (60) days."
+    edits = diff_texts(a, b)
+    changed = [(a[e.p1:e.p2], b[e.d1:e.d2]) for e in edits if e.tag != "equal"]
+    assert changed == [("shall", "may"), ("thirty", "sixty"), ("30", "60")]
+
+
+def test_formatting_differences_are_their_own_edits() -> None:
+    """Case, quote style and white space differ: the words still line up (the keys ignore
+    them), differences a token or two apart form one hunk, and everything else is equal."""
+    a = 'The "Goods" shall be  delivered'
+    b = "the “Goods” shall be delivered"
+    edits = diff_texts(a, b)
+    changed = [(a[e.p1:e.p2], b[e.d1:e.d2]) for e in edits if e.tag != "equal"]
+    assert changed == [('The "Goods"', "the “Goods”"), ("  ", " ")]
+
+
+def test_semantic_cleanup_merges_small_equalities() -> None:
+    """diff-match-patch's semantic clean-up turns two replacements around one shared word
+    into one readable replacement (raw Myers keeps the shared 'x')."""
+    a = "a b c d x e f g h"
+    b = "a p q r x s t u v"
+    raw = [e for e in diff_texts(a, b, semantic=False) if e.tag != "equal"]
+    clean = [e for e in diff_texts(a, b) if e.tag != "equal"]
+    assert len(clean) < len(raw)
+    assert reconstruct(diff_texts(a, b), a, b) == (a, b)
+
+
+def test_long_pairs_use_sentence_first_diff_and_still_reconstruct():
+    """Above LINE_MODE_TOKENS the diff goes sentence by sentence first (diff-match-patch's
+    line mode); the result still rebuilds both texts and equal spans are equal, and the
+    changed sentences are the ones difflib (the reference) finds changed."""
+    import random
+
+    from core.review.worddiff import LINE_MODE_TOKENS
+
+    rng = random.Random(3)
+    words = [f"w{i}" for i in range(200)]
+    sentences = [" ".join(rng.choice(words) for _ in range(20)) + "." for _ in range(600)]
+    changed = sorted(rng.sample(range(600), 12))
+    other = list(sentences)
+    for i in changed:
+        other[i] = " ".join(rng.choice(words) for _ in range(18)) + "."
+    a, b = " ".join(sentences), " ".join(other)
+    assert len(tokenize(a)) + len(tokenize(b)) > LINE_MODE_TOKENS
+    edits = diff_texts(a, b)
+    assert reconstruct(edits, a, b) == (a, b)
+    check_tiling(edits, a, b)
+    sm = difflib.SequenceMatcher(None, sentences, other, autojunk=False)
+    ref_changed = {i for tag, i1, i2, _j1, _j2 in sm.get_opcodes() if tag != "equal" for i in range(i1, i2)}
+    assert ref_changed == set(changed)
+    starts = [0]
+    for s in sentences:
+        starts.append(starts[-1] + len(s) + 1)
+    touched = {max(k for k in range(600) if starts[k] <= e.p1) for e in edits if e.tag != "equal"}
+    assert touched == set(changed)

@@ -1,0 +1,237 @@
+"""Decisions and the review file (core.decisions), and the ``decide``/``export`` commands.
+
+The review file is JSON read back with the standard library's ``json`` module and validated
+against resources/schemas/review-file.schema.json with the ``jsonschema`` package's Draft
+2020-12 validator; documents are hashed with ``hashlib.sha256`` as the reference.  Reopening
+re-runs the real review engine (core.review) on the hand-made agreements of
+tests/support/handmade.py.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import shutil
+from pathlib import Path
+
+import jsonschema
+import pytest
+from referencing import Registry, Resource
+
+from core.cli import main
+from core.decisions import (
+    REVIEW_FILE_SCHEMA,
+    Decision,
+    decide,
+    load_review_file,
+    new_review_file,
+    save_review_file,
+)
+from core.docx.compose import ComposeParagraph as CP
+from core.docx.compose import compose_docx
+from core.errors import CounterdraftError
+from core.review.termmap import TermOverride
+from tests.support.handmade import DRAFT, build_scenario
+
+
+SCHEMAS = Path(__file__).resolve().parents[2] / "resources" / "schemas"
+
+
+def _validator() -> jsonschema.Draft202012Validator:
+    schemas = {name: json.loads((SCHEMAS / name).read_text(encoding="utf-8"))
+               for name in ("review-file.schema.json", "review.schema.json", "document.schema.json")}
+    registry = Registry().with_resources([(s["$id"], Resource.from_contents(s)) for s in schemas.values()])
+    top = schemas["review-file.schema.json"]
+    jsonschema.Draft202012Validator.check_schema(top)
+    return jsonschema.Draft202012Validator(top, registry=registry)
+
+
+@pytest.fixture()
+def scenario(tmp_path):
+    return build_scenario(tmp_path)
+
+
+def _dev(review, change, **where):
+    """The deviation of *change* whose draft or precedent words contain the given text."""
+    for d in review.deviations:
+        if d.change != change:
+            continue
+        if all(v in getattr(d, k) for k, v in where.items()):
+            return d
+    raise AssertionError(f"no {change} deviation with {where}")
+
+
+def test_decide_records_and_replaces_decisions(scenario):
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path)
+    pay = _dev(rf.review, "replace", draft_text="sixty")
+    rf = decide(rf, pay.id, "revert", note="Thirty days.")
+    rf = decide(rf, pay.id, "amend", text="forty-five (45) days")
+    (only,) = rf.decisions
+    assert (only.deviation, only.action, only.text, only.note) == (pay.id, "amend", "forty-five (45) days", None)
+    assert only.match["draft_text"] == pay.draft_text and only.match["change"] == "replace"
+
+
+@pytest.mark.parametrize(("args", "message"), [
+    (("v999", "accept"), "no deviation"),
+    (("PAY", "approve"), "unknown decision"),
+    (("PAY", "amend"), "amend needs the new wording"),
+    (("PAY", "revert", "text"), "--text goes with amend"),
+])
+def test_bad_decisions_are_refused_with_one_line(scenario, args, message):
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path)
+    pay = _dev(rf.review, "replace", draft_text="sixty")
+    dev_id = pay.id if args[0] == "PAY" else args[0]
+    with pytest.raises(CounterdraftError, match=message) as err:
+        decide(rf, dev_id, args[1], text=args[2] if len(args) > 2 else None)
+    assert "\n" not in str(err.value)
+
+
+def test_moves_and_renamed_terms_can_only_be_accepted(scenario):
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path)
+    move = next(d for d in rf.review.deviations if d.change == "move")
+    term = next(d for d in rf.review.deviations if d.category == "term")
+    for d in (move, term):
+        with pytest.raises(CounterdraftError):
+            decide(rf, d.id, "revert")
+        assert decide(rf, d.id, "accept").decisions[-1].action == "accept"
+
+
+def test_review_file_round_trip(scenario, tmp_path):
+    overrides = (TermOverride(draft="Client", precedent="Customer", action="confirm"),)
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path, overrides=overrides)
+    pay = _dev(rf.review, "replace", draft_text="sixty")
+    added = _dev(rf.review, "add-provision", draft_text="set off")
+    rf = decide(rf, pay.id, "revert", note="Thirty days is the house term.")
+    rf = decide(rf, added.id, "accept")
+    path = tmp_path / "review.json"
+    save_review_file(path, rf)
+
+    data = json.loads(path.read_text(encoding="utf-8"))
+    _validator().validate(data)  # JSON Schema 2020-12, resources/schemas/review-file.schema.json
+    assert data["schema"] == REVIEW_FILE_SCHEMA
+    assert data["draft"]["path"] == "draft.docx"  # relative to the review file's folder
+    assert data["draft"]["sha256"] == hashlib.sha256(scenario.draft_path.read_bytes()).hexdigest()
+    assert data["precedent"]["sha256"] == hashlib.sha256(scenario.precedent_path.read_bytes()).hexdigest()
+    assert data["overrides"] == [{"draft": "Client", "precedent": "Customer", "action": "confirm"}]
+    assert {d["id"] for d in data["deviations"]} == {d.id for d in rf.review.deviations}
+    assert [(d["deviation"], d["action"], d["note"]) for d in data["decisions"]] == [
+        (pay.id, "revert", "Thirty days is the house term."), (added.id, "accept", None)]
+
+    seen = {}
+
+    def runner(draft, precedent, *, overrides=()):
+        from core.review import run_review
+
+        seen["overrides"] = tuple(overrides)
+        return run_review(draft, precedent, overrides=overrides)
+
+    again = load_review_file(path, runner=runner)
+    assert again.notes == ()  # nothing changed
+    assert seen["overrides"] == overrides
+    assert again.decisions == rf.decisions
+    assert [d.id for d in again.review.deviations] == [d.id for d in rf.review.deviations]
+
+
+def test_the_folder_can_be_moved_as_a_whole(scenario, tmp_path):
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path)
+    rf = decide(rf, _dev(rf.review, "replace", draft_text="sixty").id, "revert")
+    save_review_file(tmp_path / "review.json", rf)
+    moved = tmp_path.parent / (tmp_path.name + "-moved")
+    shutil.copytree(tmp_path, moved)
+    for name in ("draft.docx", "precedent.docx"):
+        (tmp_path / name).unlink()
+    again = load_review_file(moved / "review.json")
+    assert again.draft.path == str((moved / "draft.docx").resolve())
+    assert len(again.decisions) == 1
+
+
+def test_reopening_after_the_draft_changed_keeps_the_decisions_that_still_apply(scenario, tmp_path):
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path)
+    pay = _dev(rf.review, "replace", draft_text="sixty")
+    liab = _dev(rf.review, "insert", draft_text="death")
+    rf = decide(rf, pay.id, "revert", note="House term.")
+    rf = decide(rf, liab.id, "revert")
+    path = tmp_path / "review.json"
+    save_review_file(path, rf)
+
+    # The counterparty sends a new turn: a new clause early on (every later provision id
+    # shifts), the payment words unchanged, the liability words different.
+    new_turn = list(DRAFT)
+    new_turn.insert(2, CP("This Agreement binds the parties' successors.", level=1))
+    new_turn = [CP(p.text.replace("fraud or death", "fraud or personal injury"), level=p.level,
+                   style=p.style, bold=p.bold) for p in new_turn]
+    scenario.draft_path.write_bytes(compose_docx(new_turn))
+
+    again = load_review_file(path)
+    assert any("draft.docx changed since the review was saved" in n for n in again.notes)
+    (kept,) = again.decisions
+    new_pay = _dev(again.review, "replace", draft_text="sixty")
+    assert kept.deviation == new_pay.id and kept.action == "revert" and kept.note == "House term."
+    assert new_pay.draft_provision != pay.draft_provision  # ids shifted; matched by words
+    assert any(liab.id in n and "no longer applies" in n for n in again.notes)
+
+
+def test_broken_review_files_are_refused_with_one_line(scenario, tmp_path):
+    bad = tmp_path / "bad.json"
+    for content, message in [
+        ("{not json", "invalid JSON"),
+        (json.dumps({"schema": "something/1"}), "not a counterdraft.review-file/1"),
+        (json.dumps({"schema": REVIEW_FILE_SCHEMA}), "damaged review file"),
+        (json.dumps({"schema": REVIEW_FILE_SCHEMA, "draft": {"path": "nowhere.docx"},
+                     "precedent": {"path": "precedent.docx"}}), "draft document nowhere.docx"),
+    ]:
+        bad.write_text(content, encoding="utf-8")
+        with pytest.raises(CounterdraftError, match=message) as err:
+            load_review_file(bad)
+        assert "\n" not in str(err.value)
+    with pytest.raises(CounterdraftError, match="not found"):
+        load_review_file(tmp_path / "missing.json")
+
+
+def test_the_review_file_never_overwrites_a_document(scenario):
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path)
+    before = scenario.draft_path.read_bytes()
+    with pytest.raises(CounterdraftError, match="input"):
+        save_review_file(scenario.draft_path, rf)
+    assert scenario.draft_path.read_bytes() == before
+
+
+# --------------------------------------------------------------------------------------
+# The commands
+# --------------------------------------------------------------------------------------
+
+
+def test_review_save_decide_export_from_the_command_line(scenario, tmp_path, capsys):
+    review_file = tmp_path / "r.json"
+    assert main(["review", str(scenario.draft_path), "--against", str(scenario.precedent_path),
+                 "--save", str(review_file)]) == 0
+    data = json.loads(review_file.read_text(encoding="utf-8"))
+    pay = next(d for d in data["deviations"] if "sixty" in d["draft_text"])
+    assert main(["decide", str(review_file), pay["id"], "revert", "--note", "Thirty days."]) == 0
+    assert main(["decide", str(review_file), "1", "accept"]) in (0,)  # by rank, as the table shows
+    assert main(["decide", str(review_file), pay["id"], "amend"]) == 2  # one line, exit 2
+    err = capsys.readouterr().err
+    assert "amend needs the new wording" in err and "Traceback" not in err
+    decisions = json.loads(review_file.read_text(encoding="utf-8"))["decisions"]
+    assert {d["deviation"] for d in decisions} >= {pay["id"]}
+
+    out = tmp_path / "counter.docx"
+    issues = tmp_path / "issues.csv"
+    assert main(["export", str(review_file), "--counter-draft", str(out), "--issues-list", str(issues),
+                 "--author", "Ines Testwright"]) == 0
+    assert out.is_file() and issues.is_file()
+    captured = capsys.readouterr()
+    from core import CAUTION
+
+    assert CAUTION in captured.err
+    # Outputs may not overwrite an input, the review file included.
+    assert main(["export", str(review_file), "--redline", str(scenario.draft_path)]) == 2
+    assert main(["export", str(review_file), "--issues-list", str(review_file)]) == 2
+    assert main(["export", str(review_file)]) == 2
+    assert "nothing to export" in capsys.readouterr().err
+
+
+def test_decisions_are_plain_frozen_data():
+    d = Decision("v1", "accept")
+    with pytest.raises(AttributeError):
+        d.action = "revert"  # type: ignore[misc]

@@ -1,0 +1,529 @@
+"""Counter-draft, comparison redline and issues list (core.export).
+
+Outside references, named at each check:
+* LibreOffice headless (Debian's libreoffice-writer, through UNO: tests/support/lo_uno.py)
+  accepts or rejects every tracked change, reports comments, list labels and custom
+  properties, and converts each .docx to PDF;
+* ECMA-376 Part 1 §17.13 (revisions and comments) through our structural validator, run
+  on every .docx written here;
+* the standard library's ``html.parser`` and ``csv`` modules and python-docx read the issues
+  list back.
+"""
+
+from __future__ import annotations
+
+import csv
+import dataclasses
+import io
+import os
+import zipfile
+from html.parser import HTMLParser
+from pathlib import Path
+
+import docx
+import pytest
+from lxml import etree
+
+from core import CAUTION
+from core.decisions import Decision
+from core.docx.blocks import iter_body_paragraphs
+from core.docx.revisions import w
+from core.docx.validate import validate_docx
+from core.errors import CounterdraftError
+from core.export import (
+    CAUTION_PROPERTY,
+    ISSUE_COLUMNS,
+    REDLINE_BODY_HEADING,
+    REDLINE_END,
+    counter_draft_bytes,
+    issue_rows,
+    plan_counter_draft,
+    write_counter_draft,
+    write_issues_list,
+    write_redline,
+)
+from core.model import Frequency
+from tests.support.handmade import build_scenario
+from tests.support.lo_session import libreoffice
+
+AUTHOR = "Ines Testwright"
+
+
+@pytest.fixture(scope="module")
+def scenario(tmp_path_factory):
+    return build_scenario(tmp_path_factory.mktemp("handmade"))
+
+
+DECISIONS = (
+    Decision("v1", "revert", note="Our standard payment term is thirty days."),
+    Decision("v2", "revert"),
+    Decision("v3", "revert"),
+    Decision("v4", "revert"),
+    Decision("v5", "revert"),
+    Decision("v7", "accept"),
+)
+
+
+def _texts(doc) -> list[str]:
+    return [b.text for b in doc.blocks]
+
+
+# --------------------------------------------------------------------------------------
+# Counter-draft
+# --------------------------------------------------------------------------------------
+
+
+def _expected_counter_draft(scenario) -> list[str]:
+    """The decided text, built on plain strings from the scenario's own words."""
+    draft = _texts(scenario.review.draft)
+    prec = _texts(scenario.review.precedent)
+    out: list[str] = []
+    for t in draft:
+        if "set off" in t:  # v4 reverted: the added provision goes
+            continue
+        t = t.replace("sixty (60)", "thirty (30)")  # v1 reverted
+        t = t.replace(" or death", "")  # v2 reverted
+        out.append(t)
+        if t.startswith("Late payments"):  # v3 and v5 reverted: Audit comes back after 2.2
+            out.extend([x for x in prec if x == "Audit" or "complete records" in x])
+    return out
+
+
+def test_counter_draft_accepted_is_the_decided_text_and_rejected_the_draft(scenario, tmp_path):
+    out = tmp_path / "counter.docx"
+    notes = write_counter_draft(scenario.review, DECISIONS, out, draft_path=str(scenario.draft_path),
+                                author=AUTHOR)
+    assert notes == ()
+    assert validate_docx(out) == []  # ECMA-376 Part 1 §17.13 structure
+    office = libreoffice()
+    accepted = office.inspect(out, action="accept", pdf=tmp_path / "counter.pdf")
+    assert accepted.redlines_before > 0 and accepted.redlines_after == 0
+    assert accepted.paragraphs == _expected_counter_draft(scenario)
+    assert accepted.pdf_bytes and accepted.pdf_bytes > 1000
+    # The restored clause takes its place in the draft's own numbering (LibreOffice's labels).
+    labels = [(el["label"], el["text"]) for el in accepted.body if el["type"] == "paragraph"]
+    assert [lab for lab, _ in labels if lab and lab.count(".") == 1 and lab.endswith(".")] == [
+        "1.", "2.", "3.", "4.", "5."]
+    assert dict((t, lab) for lab, t in labels)["Audit"] == "3."
+    assert any(lab == "3.1" and "complete records" in t for lab, t in labels)
+    # The note is a comment anchored on the changed words.
+    (comment,) = accepted.comments
+    assert comment["content"] == DECISIONS[0].note and comment["author"] == AUTHOR
+    assert comment["anchor"] == "thirty (30)"
+    # The caution travels in the file's custom properties (§22.3), not in the body.
+    assert accepted.user_properties[CAUTION_PROPERTY] == CAUTION
+    assert not any(CAUTION in p for p in accepted.paragraphs)
+
+    rejected = office.inspect(out, action="reject")
+    assert rejected.redlines_after == 0
+    assert rejected.paragraphs == _texts(scenario.review.draft)
+    # LibreOffice numbers the rejected document as our reader numbered the draft.
+    assert [el["label"] for el in rejected.body if el["type"] == "paragraph"] == [
+        b.label for b in scenario.review.draft.blocks]
+
+
+def test_amend_writes_the_reviewers_words(scenario, tmp_path):
+    out = tmp_path / "amended.docx"
+    decisions = [Decision("v1", "amend", text="forty-five (45)"),
+                 Decision("v3", "amend", text="The Supplier shall keep records for three years.")]
+    write_counter_draft(scenario.review, decisions, out, draft_path=str(scenario.draft_path), author=AUTHOR)
+    assert validate_docx(out) == []
+    view = libreoffice().inspect(out, action="accept")
+    draft = _texts(scenario.review.draft)
+    expected = []
+    for t in draft:
+        expected.append(t.replace("sixty (60)", "forty-five (45)"))
+        if t.startswith("Late payments"):
+            expected.append("The Supplier shall keep records for three years.")
+    assert view.paragraphs == expected
+
+
+def _input_paragraph_xml(path: Path) -> list[bytes]:
+    with zipfile.ZipFile(path) as zf:
+        root = etree.fromstring(zf.read("word/document.xml"))
+    return [etree.tostring(p) for p in iter_body_paragraphs(root)]
+
+
+def _is_new_paragraph(p) -> bool:
+    """A paragraph we inserted: its mark and all its runs are tracked insertions."""
+    mark = p.find(f"{w('pPr')}/{w('rPr')}/{w('ins')}")
+    runs = [r for r in p.iter(w("r"))]
+    return mark is not None and bool(runs) and all(r.getparent().tag == w("ins") for r in runs)
+
+
+def test_every_undecided_paragraph_keeps_its_exact_xml(scenario, tmp_path):
+    out = tmp_path / "counter.docx"
+    write_counter_draft(scenario.review, DECISIONS, out, draft_path=str(scenario.draft_path), author=AUTHOR)
+    plan = plan_counter_draft(scenario.review, DECISIONS)
+    touched = {e.block for e in plan.edits} | {d.block for d in plan.deletions}
+    before = _input_paragraph_xml(scenario.draft_path)
+    with zipfile.ZipFile(out) as zf:
+        root = etree.fromstring(zf.read("word/document.xml"))
+    after = [p for p in iter_body_paragraphs(root) if not _is_new_paragraph(p)]
+    assert len(after) == len(before)
+    assert touched  # the decisions did change something
+    for i, (a, b) in enumerate(zip(before, after)):
+        if i in touched:
+            assert a != etree.tostring(b)
+        else:
+            assert a == etree.tostring(b), f"undecided paragraph {i} changed"
+    # Every other part of the package is byte for byte the draft's.
+    with zipfile.ZipFile(scenario.draft_path) as zin, zipfile.ZipFile(out) as zout:
+        for info in zin.infolist():
+            if info.filename in ("word/document.xml", "[Content_Types].xml", "_rels/.rels",
+                                 "word/_rels/document.xml.rels") or info.filename.startswith("docProps/custom"):
+                continue
+            assert zin.read(info) == zout.read(info.filename), info.filename
+
+
+def test_decisions_that_cannot_be_written_are_reported(scenario, tmp_path):
+    plan = plan_counter_draft(scenario.review, [Decision("v99", "revert"),
+                                                Decision("v1", "revert"),
+                                                Decision("v1", "amend", text="ninety (90)")])
+    assert any("v99" in n for n in plan.notes)
+    assert any("overlaps another decision" in n for n in plan.notes)
+    assert len(plan.edits) == 1
+
+
+# --------------------------------------------------------------------------------------
+# Comparison redline
+# --------------------------------------------------------------------------------------
+
+
+def _comparison_body(view) -> list[str]:
+    paras = view.paragraphs
+    start = paras.index(REDLINE_BODY_HEADING) + 1
+    end = paras.index(REDLINE_END)
+    return paras[start:end]
+
+
+def _lines(doc) -> list[str]:
+    return [f"{b.label}\t{b.text}" if b.label else b.text for b in doc.blocks]
+
+
+def test_redline_accepted_is_the_draft_and_rejected_the_precedent(scenario, tmp_path):
+    out = tmp_path / "redline.docx"
+    write_redline(scenario.review, out, author=AUTHOR)
+    assert validate_docx(out) == []  # ECMA-376 Part 1 §17.13, move ranges paired
+    with zipfile.ZipFile(out) as zf:
+        root = etree.fromstring(zf.read("word/document.xml"))
+    # The moved clause (Notices) is a move (§17.13.5.22/.25), not a deletion and insertion.
+    from_names = {e.get(w("name")) for e in root.iter(w("moveFromRangeStart"))}
+    to_names = {e.get(w("name")) for e in root.iter(w("moveToRangeStart"))}
+    assert from_names and from_names == to_names
+    moved_from = "".join(t.text for m in root.iter(w("moveFrom")) for t in m.iter(w("delText")))
+    assert "Notices must be in writing" in moved_from
+
+    office = libreoffice()
+    view = office.inspect(out, pdf=tmp_path / "redline.pdf")
+    assert view.pdf_bytes and view.pdf_bytes > 1000
+    assert CAUTION in view.paragraphs[:4]
+    (table,) = [el for el in view.body if el["type"] == "table"]
+    subs = sorted((d for d in scenario.review.deviations if d.category == "substantive"), key=lambda d: d.rank)
+    assert [row[0] for row in table["rows"][1:]] == [str(d.rank) for d in subs]
+    assert [row[1] for row in table["rows"][1:]] == [str(d.severity) for d in subs]
+
+    accepted = office.inspect(out, action="accept")
+    assert accepted.redlines_after == 0
+    assert _comparison_body(accepted) == _lines(scenario.review.draft)
+    rejected = office.inspect(out, action="reject")
+    assert rejected.redlines_after == 0
+    assert _comparison_body(rejected) == _lines(scenario.review.precedent)
+
+
+# --------------------------------------------------------------------------------------
+# Issues list
+# --------------------------------------------------------------------------------------
+
+
+class _TableReader(HTMLParser):
+    def __init__(self) -> None:
+        super().__init__()
+        self.rows: list[list[str]] = []
+        self.paragraphs: list[str] = []
+        self._cell: list[str] | None = None
+        self._p: list[str] | None = None
+        self.external: list[str] = []
+
+    def handle_starttag(self, tag, attrs):
+        if tag == "tr":
+            self.rows.append([])
+        elif tag in ("td", "th"):
+            self._cell = []
+        elif tag == "p":
+            self._p = []
+        for name, value in attrs:
+            if name in ("src", "href") and value:
+                self.external.append(value)
+
+    def handle_endtag(self, tag):
+        if tag in ("td", "th") and self._cell is not None:
+            self.rows[-1].append("".join(self._cell))
+            self._cell = None
+        elif tag == "p" and self._p is not None:
+            self.paragraphs.append("".join(self._p))
+            self._p = None
+
+    def handle_data(self, data):
+        if self._cell is not None:
+            self._cell.append(data)
+        if self._p is not None:
+            self._p.append(data)
+
+
+def _with_frequency(review):
+    devs = tuple(dataclasses.replace(d, frequency=Frequency(same_type=10, matching=3, total=12))
+                 if d.id == "v1" else d for d in review.deviations)
+    return dataclasses.replace(review, deviations=devs)
+
+
+def _expected_rows(review, decisions):
+    return issue_rows(review, decisions)
+
+
+def test_issues_list_in_three_formats_reads_back(scenario, tmp_path):
+    review = _with_frequency(scenario.review)
+    decisions = [Decision("v1", "revert", note="Thirty days is our floor."),
+                 Decision("v4", "amend", text="Set-off only for undisputed sums.", note="Compromise."),
+                 Decision("v6", "accept")]
+    rows = issue_rows(review, decisions)
+    # Substantive deviations by rank, plus the decided term deviation.
+    assert [r.ref for r in rows] == ["v1", "v2", "v3", "v4", "v5", "v6"]
+
+    csv_path = tmp_path / "issues.csv"
+    write_issues_list(review, csv_path, decisions=decisions)
+    with open(csv_path, newline="", encoding="utf-8") as fh:
+        records = list(csv.reader(fh))  # read back with the standard library
+    assert records[0] == [CAUTION]
+    assert tuple(records[1]) == ISSUE_COLUMNS
+    by_ref = {r[0]: dict(zip(records[1], r)) for r in records[2:]}
+    assert list(by_ref) == [r.ref for r in rows]
+    assert by_ref["v1"]["Draft position"] == "within sixty (60) days"
+    assert by_ref["v1"]["House position"] == "within thirty (30) days"
+    assert by_ref["v1"]["Severity"] == "80"
+    assert by_ref["v1"]["How common in the precedent set"].startswith("3 of 10")
+    assert by_ref["v1"]["Note"] == "Thirty days is our floor."
+    assert by_ref["v4"]["Decision"] == "amend: Set-off only for undisputed sums."
+    assert by_ref["v2"]["Decision"] == "undecided"
+
+    html_path = tmp_path / "issues.html"
+    write_issues_list(review, html_path, decisions=decisions)
+    parser = _TableReader()
+    parser.feed(html_path.read_text(encoding="utf-8"))  # html.parser from the standard library
+    assert CAUTION in parser.paragraphs
+    assert parser.external == []  # self-contained: no linked resource
+    assert tuple(parser.rows[0]) == ISSUE_COLUMNS
+    assert parser.rows[1:] == records[2:]
+
+    docx_path = tmp_path / "issues.docx"
+    write_issues_list(review, docx_path, decisions=decisions, author=AUTHOR)
+    assert validate_docx(docx_path) == []
+    document = docx.Document(str(docx_path))  # python-docx reads the Word table back
+    (table,) = document.tables
+    cells = [[c.text for c in row.cells] for row in table.rows]
+    assert tuple(cells[0]) == ISSUE_COLUMNS
+    assert cells[1:] == records[2:]
+    assert CAUTION in [p.text for p in document.paragraphs]
+    view = libreoffice().inspect(docx_path, pdf=tmp_path / "issues.pdf")
+    assert view.pdf_bytes and view.pdf_bytes > 1000
+
+
+def test_frequency_column_only_when_a_precedent_set_was_used(scenario, tmp_path):
+    path = tmp_path / "issues.csv"
+    write_issues_list(scenario.review, path)
+    header = list(csv.reader(io.StringIO(path.read_text(encoding="utf-8"))))[1]
+    assert "How common in the precedent set" not in header
+    assert header == [c for c in ISSUE_COLUMNS if c != "How common in the precedent set"]
+
+
+# --------------------------------------------------------------------------------------
+# Refusals and atomic writes
+# --------------------------------------------------------------------------------------
+
+
+def test_an_output_path_equal_to_an_input_is_refused(scenario, tmp_path):
+    before = scenario.draft_path.read_bytes()
+    with pytest.raises(CounterdraftError, match="input"):
+        write_counter_draft(scenario.review, DECISIONS, scenario.draft_path,
+                            draft_path=str(scenario.draft_path), author=AUTHOR)
+    with pytest.raises(CounterdraftError, match="input"):
+        write_redline(scenario.review, scenario.precedent_path, author=AUTHOR)
+    alias = scenario.draft_path.parent / "." / scenario.draft_path.name
+    with pytest.raises(CounterdraftError, match="input"):
+        write_issues_list(scenario.review, alias.with_suffix(".docx"))
+    assert scenario.draft_path.read_bytes() == before
+    with pytest.raises(CounterdraftError, match="must end in"):
+        write_issues_list(scenario.review, tmp_path / "issues.pdf")
+
+
+def test_an_interrupted_write_leaves_the_previous_file_intact(scenario, tmp_path, monkeypatch):
+    out = tmp_path / "counter.docx"
+    write_counter_draft(scenario.review, DECISIONS[:1], out, draft_path=str(scenario.draft_path), author=AUTHOR)
+    previous = out.read_bytes()
+
+    import core.fileio
+
+    def fail(fd):
+        raise OSError(28, "No space left on device")  # after part of the data is written
+
+    monkeypatch.setattr(core.fileio.os, "fsync", fail)
+    with pytest.raises(OSError):
+        write_counter_draft(scenario.review, DECISIONS, out, draft_path=str(scenario.draft_path), author=AUTHOR)
+    monkeypatch.undo()
+    assert out.read_bytes() == previous
+    assert sorted(os.listdir(tmp_path)) == ["counter.docx"]  # no temporary file left behind
+
+
+# --------------------------------------------------------------------------------------
+# The demo: revert the three most severe deviations, note one
+# --------------------------------------------------------------------------------------
+
+DEMO = Path(__file__).resolve().parents[2] / "demo_agreements"
+
+
+def _norm(text: str) -> str:
+    return " ".join(text.split())
+
+
+def _house_wording_in_place(review, dev) -> tuple[int, int, int, str]:
+    """(draft block, start, end, words): the precedent's words that belong in place of the
+    draft's at this deviation, built from the review's own fields -- the definition of "the
+    house wording in that place" -- with the draft's names for mapped defined terms."""
+    import re
+
+    prov = review.draft.provision(dev.draft_provision)
+    prec = review.precedent.provision(dev.precedent_provision)
+    seg = prov.segments[0]
+    text = review.draft.blocks[seg.block].text
+    if dev.draft_span is None and dev.precedent_span is None:  # the heading changed
+        if prec.heading:
+            i = text.index(prov.heading)
+            return seg.block, i, i + len(prov.heading), prec.heading
+        return seg.block, text.index(prov.heading), seg.start, ""  # run-in heading removed
+    house = prec.text[dev.precedent_span[0]:dev.precedent_span[1]] if dev.precedent_span else ""
+    for m in review.term_map:
+        house = re.sub(rf"\b{re.escape(m.precedent)}", m.draft, house)
+    assert dev.draft_span is not None, "a pure deletion has no place in the draft to check"
+    return seg.block, seg.start + dev.draft_span[0], seg.start + dev.draft_span[1], house
+
+
+def test_demo_counter_draft_reverting_the_three_most_severe(tmp_path):
+    from core.reader import read_document
+    from core.review import run_review
+
+    draft_path, precedent_path = DEMO / "draft.docx", DEMO / "precedent.docx"
+    review = run_review(read_document(str(draft_path)), read_document(str(precedent_path)))
+    top = sorted(review.deviations, key=lambda d: d.rank)[:3]
+    note = "The house position applies here."
+    decisions = [Decision(d.id, "revert", note=note if i == 0 else None) for i, d in enumerate(top)]
+    out = tmp_path / "counter-draft.docx"
+    notes = write_counter_draft(review, decisions, out, draft_path=str(draft_path), author=AUTHOR)
+    assert notes == ()
+    assert validate_docx(out) == []  # ECMA-376 Part 1 §17.13
+
+    # Expected: the draft's text with the house wording in exactly those three places
+    # (applied from the end of each paragraph so earlier offsets stay valid).
+    expected = [b.text for b in review.draft.blocks]
+    places = sorted((_house_wording_in_place(review, d) for d in top), key=lambda x: (x[0], -x[1]))
+    for block, start, end, words in places:
+        expected[block] = expected[block][:start] + words + expected[block][end:]
+
+    office = libreoffice()
+    accepted = office.inspect(out, action="accept", pdf=tmp_path / "counter-draft.pdf")
+    assert accepted.redlines_after == 0
+    assert accepted.pdf_bytes and accepted.pdf_bytes > 10_000
+    body = [i for i, b in enumerate(review.draft.blocks) if not b.in_table]
+    # Word spacing is compared loosely: removing a word also removes one space beside it.
+    assert [_norm(t) for t in accepted.paragraphs] == [_norm(expected[i]) for i in body]
+    changed = {i for i, b in enumerate(review.draft.blocks) if _norm(expected[i]) != _norm(b.text)}
+    assert changed == {block for block, *_ in places}  # those places and nothing else
+    (comment,) = accepted.comments
+    assert comment["content"] == note and comment["author"] == AUTHOR
+    first_words = _house_wording_in_place(review, top[0])[3]
+    if first_words:  # anchored on the changed words (§17.13.4.3 - .5)
+        assert _norm(comment["anchor"]) == _norm(first_words)
+
+    rejected = office.inspect(out, action="reject")
+    assert rejected.redlines_after == 0
+    assert rejected.paragraphs == [review.draft.blocks[i].text for i in body]
+
+
+def test_demo_redline_accepts_to_the_draft_and_rejects_to_the_precedent(tmp_path):
+    from core.reader import read_document
+    from core.review import run_review
+
+    review = run_review(read_document(str(DEMO / "draft.docx")), read_document(str(DEMO / "precedent.docx")))
+    out = tmp_path / "redline.docx"
+    write_redline(review, out, author=AUTHOR)
+    assert validate_docx(out) == []
+    with zipfile.ZipFile(out) as zf:
+        root = etree.fromstring(zf.read("word/document.xml"))
+    assert any(True for _ in root.iter(w("moveFrom")))  # the demo's moved clauses
+    office = libreoffice()
+    accepted = office.inspect(out, action="accept", pdf=tmp_path / "redline.pdf")
+    assert accepted.pdf_bytes and accepted.pdf_bytes > 10_000
+    assert _comparison_body(accepted) == _lines(review.draft)
+    rejected = office.inspect(out, action="reject")
+    assert _comparison_body(rejected) == _lines(review.precedent)
+
+
+def test_reverting_every_substantive_deviation_found_by_the_engine(scenario, tmp_path):
+    """End to end with the review engine on the hand-made pair: reverting every substantive
+    deviation gives the same decided text as the hand-written review above."""
+    from core.reader import read_document
+    from core.review import run_review
+
+    review = run_review(read_document(str(scenario.draft_path)), read_document(str(scenario.precedent_path)))
+    decisions = [Decision(d.id, "revert") for d in review.deviations if d.category == "substantive"]
+    out = tmp_path / "all-reverted.docx"
+    assert write_counter_draft(review, decisions, out, draft_path=str(scenario.draft_path), author=AUTHOR) == ()
+    assert validate_docx(out) == []
+    view = libreoffice().inspect(out, action="accept")
+    assert view.paragraphs == _expected_counter_draft(scenario)
+
+
+def test_demo_reverting_every_substantive_deviation_leaves_only_cross_references(tmp_path):
+    """Revert all of the demo's substantive deviations, let LibreOffice accept the changes
+    and save the result, then review that result against the precedent again: nothing
+    substantive is left but cross-references, whose numbers the restored and removed
+    clauses shifted (the draft's own references are not renumbered by a counter-draft)."""
+    import re
+
+    from core.reader import read_document
+    from core.review import run_review
+
+    draft_path, precedent_path = DEMO / "draft.docx", DEMO / "precedent.docx"
+    precedent = read_document(str(precedent_path))
+    review = run_review(read_document(str(draft_path)), precedent)
+    decisions = [Decision(d.id, "revert") for d in review.deviations if d.category == "substantive"]
+    assert len(decisions) > 10
+    out = tmp_path / "all-reverted.docx"
+    assert write_counter_draft(review, decisions, out, draft_path=str(draft_path), author=AUTHOR) == ()
+    assert validate_docx(out) == []
+    accepted = tmp_path / "accepted.docx"
+    view = libreoffice().inspect(out, action="accept", save_as=accepted)
+    assert view.redlines_after == 0
+    again = run_review(read_document(str(accepted)), precedent)
+    refs = re.compile(r"^(?:(?:clauses?|sections?|articles?)\s+[\d.]+[,;]?\s*(?:and\s+)?)*$", re.IGNORECASE)
+    left = [d for d in again.deviations if d.category == "substantive"]
+    assert all(refs.match(d.precedent_text.strip()) and refs.match(d.draft_text.strip()) for d in left), [
+        (d.precedent_text, d.draft_text) for d in left if not (refs.match(d.precedent_text.strip())
+                                                              and refs.match(d.draft_text.strip()))]
+
+
+def test_a_draft_with_tracked_changes_of_its_own_is_flagged(tmp_path):
+    from core.reader import read_document
+    from tests.support.docx_fixtures import docx_bytes
+
+    body = ('<w:p><w:r><w:t xml:space="preserve">The Client shall pay </w:t></w:r>'
+            '<w:ins w:id="1" w:author="Other Side" w:date="2024-01-01T00:00:00Z"><w:r><w:t>promptly</w:t></w:r></w:ins>'
+            '<w:r><w:t>.</w:t></w:r></w:p>')
+    path = tmp_path / "draft.docx"
+    path.write_bytes(docx_bytes(body))
+    doc = read_document(str(path))
+    from core.model import Review
+
+    review = Review(draft=doc, precedent=doc, term_map=(), pairs=(), deviations=())
+    data, notes = counter_draft_bytes(review, [], draft_path=str(path), author=AUTHOR)
+    assert any("tracked changes of its own" in n for n in notes)
+    assert validate_docx(data) == []

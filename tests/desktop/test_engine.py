@@ -1,0 +1,41 @@
+"""desktop.engine: the adapters hand the reviewer's calls to the engine unchanged."""
+
+from __future__ import annotations
+
+import pytest
+
+from core.errors import CounterdraftError
+from core.review import TermOverride
+from desktop import engine
+
+from .fixtures import make_record
+
+
+def test_a_new_call_on_a_draft_term_replaces_the_earlier_one():
+    o = engine.add_override((), "confirm", "Client", "Customer")
+    o = engine.add_override(o, "reject", "Client", "Customer")
+    o = engine.add_override(o, "add", "Vendor", "Supplier")
+    assert o == (TermOverride("Client", "Customer", "reject"), TermOverride("Vendor", "Supplier", "add"))
+    with pytest.raises(CounterdraftError):  # the engine's own check: one line for the dialog
+        engine.add_override(o, "add", "Buyer", "")
+
+
+def test_decisions_go_through_the_engine_and_can_be_cleared():
+    rec = make_record()
+    rec = engine.decide(rec, "v2", "amend", text="within 45 days", note="halfway")
+    rec = engine.decide(rec, "v1", "accept", text="ignored for accept")
+    assert [(d.deviation, d.action, d.text) for d in rec.decisions] == [
+        ("v1", "accept", None), ("v2", "amend", "within 45 days")]
+    assert engine.decision_view(rec.decisions[1]) == ("amend", "halfway", "within 45 days")
+    rec = engine.undecide(rec, "v1")
+    assert [d.deviation for d in rec.decisions] == ["v2"]
+    with pytest.raises(CounterdraftError):
+        engine.decide(rec, "v7", "revert")  # a move cannot be reverted: the engine says so
+
+
+def test_term_status_labels_each_mapping_from_the_overrides():
+    status, rejected = engine.term_status((TermOverride("Client", "Customer", "confirm"),
+                                           TermOverride("Vendor", None, "reject")))
+    m = make_record().review.term_map[0]
+    assert status(m) == "confirmed"
+    assert rejected == [("Vendor", "")]
