@@ -4,9 +4,15 @@
 PYTHON ?= python3
 VENV := .venv
 PY := $(VENV)/bin/python
-DEBIAN_PACKAGES := libreoffice-writer python3-uno xvfb
+# LibreOffice (with Debian's python3-uno) is the tests' outside reference for .docx; the font
+# keeps offscreen Qt text readable.  The GUI packages are what Qt's X11 plugin needs on a
+# machine with a display (checked with ldd on libqxcb.so).
+TEST_PACKAGES := libreoffice-writer python3-uno fonts-dejavu-core
+GUI_PACKAGES := libxcb-icccm4 libxcb-keysyms1 libxcb-cursor0 libxkbcommon-x11-0 libegl1 fonts-dejavu-core
+APT_INSTALL = SUDO=$$( [ "$$(id -u)" = 0 ] || echo sudo ); $$SUDO apt-get update -qq && \
+	DEBIAN_FRONTEND=noninteractive $$SUDO apt-get install -y -qq --no-install-recommends
 
-.PHONY: demo test bench system-deps clean
+.PHONY: demo test bench system-deps gui-deps clean
 
 $(VENV)/.installed: pyproject.toml constraints.txt
 	$(PYTHON) -m venv $(VENV)
@@ -14,15 +20,22 @@ $(VENV)/.installed: pyproject.toml constraints.txt
 	$(PY) -m pip install --quiet -c constraints.txt -e '.[test]'
 	touch $@
 
-demo: $(VENV)/.installed
+# The main job on the demo (review, example decisions, counter-draft, redline, issues list in
+# demo_output/), then the window on the same files -- or, without a display, how to open it.
+demo: $(VENV)/.installed gui-deps
 	$(PY) -m core.cli demo
+	$(PY) -m desktop --demo
+
+gui-deps:
+	@if [ -n "$$DISPLAY$$WAYLAND_DISPLAY" ] && ! ldconfig -p | grep -q libxcb-icccm.so.4; then \
+	  $(APT_INSTALL) $(GUI_PACKAGES); \
+	fi
 
 # LibreOffice is the outside reference for numbering labels and tracked changes.
 system-deps:
-	@if ! command -v soffice >/dev/null 2>&1 || ! /usr/bin/python3 -c 'import uno' >/dev/null 2>&1; then \
-	  SUDO=$$( [ "$$(id -u)" = 0 ] || echo sudo ); \
-	  $$SUDO apt-get update -qq && \
-	  DEBIAN_FRONTEND=noninteractive $$SUDO apt-get install -y -qq --no-install-recommends $(DEBIAN_PACKAGES); \
+	@if ! command -v soffice >/dev/null 2>&1 || ! /usr/bin/python3 -c 'import uno' >/dev/null 2>&1 \
+	    || ! [ -d /usr/share/fonts/truetype/dejavu ]; then \
+	  $(APT_INSTALL) $(TEST_PACKAGES); \
 	fi
 
 test: $(VENV)/.installed system-deps

@@ -56,17 +56,7 @@ def _cmd_review(args: argparse.Namespace) -> int:
     for path, doc in ((args.draft, draft), (args.against, precedent)):
         for w in doc.warnings:
             print(f"{path}: note: {w}", file=sys.stderr)
-    if args.library:
-        from .library.commands import open_library_for_cli, review_options
-        from .library.frequency import apply_frequency
-
-        library = open_library_for_cli(args.library)
-        try:
-            review = apply_frequency(run_review(draft, precedent, **review_options(library)), library)
-        finally:
-            library.close()
-    else:
-        review = run_review(draft, precedent)
+    review = _run_review(draft, precedent, library_folder=args.library)
     if args.save:
         from .decisions import new_review_file, save_review_file
 
@@ -83,22 +73,30 @@ def _cmd_review(args: argparse.Namespace) -> int:
     return 0
 
 
-def _review_runner(library_folder: str | None):
+def _run_review(draft, precedent, *, library_folder: str | None, overrides=()):  # noqa: ANN001, ANN202
+    """The one place the CLI runs the engine: with the precedent set's figures when given."""
+    from .review import run_review
+
+    if not library_folder:
+        return run_review(draft, precedent, overrides=tuple(overrides))
+    from .library.commands import open_library_for_cli, review_options
+    from .library.frequency import apply_frequency
+
+    library = open_library_for_cli(library_folder)
+    try:
+        return apply_frequency(run_review(draft, precedent, overrides=tuple(overrides),
+                                          **review_options(library)), library)
+    finally:
+        library.close()
+
+
+def _review_runner(library_folder: str | None):  # noqa: ANN202
     """The runner that reopens a review file: with its precedent set when it recorded one."""
     if not library_folder:
         return None
 
     def run(draft, precedent, *, overrides=()):  # noqa: ANN001, ANN202
-        from .library.commands import open_library_for_cli, review_options
-        from .library.frequency import apply_frequency
-        from .review import run_review
-
-        library = open_library_for_cli(library_folder)
-        try:
-            return apply_frequency(run_review(draft, precedent, overrides=tuple(overrides),
-                                              **review_options(library)), library)
-        finally:
-            library.close()
+        return _run_review(draft, precedent, library_folder=library_folder, overrides=overrides)
 
     return run
 
@@ -165,18 +163,67 @@ def _cmd_export(args: argparse.Namespace) -> int:
     return 0
 
 
+#: Where `counterdraft demo` writes its outputs (ignored by git).
+DEMO_OUTPUT = DEMO_DIR.parent / "demo_output"
+#: How many of the top-ranked deviations the demo reverts, to show a counter-draft.  These are
+#: illustrative decisions made by the demo script, not recommendations.
+DEMO_REVERTS = 3
+
+
 def _cmd_demo(args: argparse.Namespace) -> int:
-    from .outline import format_outline
+    """The main job on the bundled demo: review, save, record example decisions, export."""
+    from .decisions import decide, new_review_file, save_review_file
+    from .export import default_author, write_counter_draft, write_issues_list, write_redline
     from .reader import read_document
+    from .review.report import format_review
+
+    draft_path = str(DEMO_DIR / "draft.docx")
+    precedent_path = str(DEMO_DIR / "precedent.docx")
+    library_folder = str(DEMO_DIR / "precedent_set")
+    out = Path(args.out) if args.out else DEMO_OUTPUT
+    out.mkdir(parents=True, exist_ok=True)
 
     print(CAUTION)
     print()
-    for name in ("precedent.docx", "draft.docx"):
-        path = DEMO_DIR / name
-        doc = read_document(str(path))
-        print(f"== {name} ==")
-        print(format_outline(doc, width=100))
-        print()
+    draft, precedent = read_document(draft_path), read_document(precedent_path)
+    review = _run_review(draft, precedent, library_folder=library_folder)
+    print(format_review(review, width=100))
+    print()
+
+    record = new_review_file(draft_path, precedent_path, review=review, library=library_folder)
+    top = [d for d in review.deviations if d.category == "substantive"
+           and d.change not in ("move",)][:DEMO_REVERTS]
+    for i, dev in enumerate(top):
+        note = ("Illustrative decision recorded by the demo script: restore the house wording."
+                if i == 0 else None)
+        record = decide(record, dev.id, "revert", note=note)
+    review_file = out / "review.json"
+    save_review_file(str(review_file), record)
+    inputs = (draft_path, precedent_path, str(review_file))
+    author = default_author()
+    written = {
+        "review file (decisions)": review_file,
+        "counter-draft (tracked changes)": out / "counter-draft.docx",
+        "comparison redline": out / "redline.docx",
+        "issues list (printable page)": out / "issues-list.html",
+        "issues list (Word table)": out / "issues-list.docx",
+    }
+    for note in write_counter_draft(record.review, record.decisions, written["counter-draft (tracked changes)"],
+                                    draft_path=draft_path, author=author, inputs=inputs):
+        print(f"counterdraft: note: {note}", file=sys.stderr)
+    write_redline(record.review, written["comparison redline"], author=author, inputs=inputs)
+    for key in ("issues list (printable page)", "issues list (Word table)"):
+        write_issues_list(record.review, written[key], decisions=record.decisions,
+                          author=author, inputs=inputs)
+    print(f"The demo reverted the {len(top)} highest-ranked substantive deviations "
+          f"({', '.join(d.id for d in top)}) as an illustration, not a recommendation. Written:")
+    for label, path in written.items():
+        print(f"  {label:34} {path}")
+    print()
+    print("Next steps on your own files:")
+    print("  counterdraft review DRAFT.docx --against PRECEDENT.docx [--library FOLDER] --save REVIEW.json")
+    print("  counterdraft decide REVIEW.json ID accept|revert|amend [--text ...] [--note ...]")
+    print("  counterdraft export REVIEW.json --counter-draft OUT.docx --issues-list OUT.html")
     return 0
 
 
@@ -226,6 +273,7 @@ def build_parser() -> argparse.ArgumentParser:
     p.set_defaults(func=_cmd_export)
 
     p = sub.add_parser("demo", help="run Counterdraft on the bundled demo agreements")
+    p.add_argument("--out", metavar="DIR", help="output folder (default: demo_output/)")
     p.set_defaults(func=_cmd_demo)
 
     from .library.commands import add_library_parser
