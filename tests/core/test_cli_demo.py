@@ -1,0 +1,44 @@
+"""`counterdraft demo` (what `make demo` runs first) does the whole job on the bundled demo."""
+
+import json
+from html.parser import HTMLParser
+
+import docx
+
+from core import CAUTION
+from core.cli import DEMO_REVERTS, main
+from core.docx.validate import validate_docx
+
+
+class _Text(HTMLParser):
+    def __init__(self) -> None:
+        super().__init__()
+        self.chunks: list[str] = []
+
+    def handle_data(self, data: str) -> None:
+        self.chunks.append(data)
+
+
+def test_demo_reviews_decides_and_writes_every_output(tmp_path, capsys):
+    assert main(["demo", "--out", str(tmp_path)]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith(CAUTION)
+    assert "Rank Sev" in out and "illustration, not a recommendation" in out
+
+    record = json.loads((tmp_path / "review.json").read_text(encoding="utf-8"))
+    decided = [d for d in record["decisions"] if d["action"] == "revert"]
+    assert len(decided) == DEMO_REVERTS
+
+    # ECMA-376 Part 1 §17.13: our structural check of every revision element we wrote.
+    for name in ("counter-draft.docx", "redline.docx", "issues-list.docx"):
+        assert validate_docx(tmp_path / name) == [], name
+    # The issues list as a Word table, read back with python-docx: one row per deviation shown.
+    table = docx.Document(str(tmp_path / "issues-list.docx")).tables[0]
+    assert len(table.rows) > DEMO_REVERTS
+    # The printable page carries the caution (stdlib html.parser as the reader).
+    page = _Text()
+    page.feed((tmp_path / "issues-list.html").read_text(encoding="utf-8"))
+    assert "not legal advice" in " ".join(page.chunks)
+    assert not list(tmp_path.glob("*.part"))  # atomic writes left no temporary file
+
+
