@@ -46,6 +46,7 @@ from typing import Any
 
 from .errors import CounterdraftError
 from .fileio import atomic_write_text, file_sha256
+from .labels import clause_label, find_provision  # clause_label: re-exported for the CLI
 from .model import Deviation, Document, Review
 
 __all__ = [
@@ -108,41 +109,17 @@ class ReviewFile:
 
 
 # --------------------------------------------------------------------------------------
-# Deviations, clause labels and the match key
+# Deviations and the match key (clause labels: core.labels)
 # --------------------------------------------------------------------------------------
-
-
-def _provision(doc: Document, pid: str | None):
-    if pid is None:
-        return None
-    try:
-        return doc.provision(pid)
-    except KeyError:
-        return None
-
-
-def clause_label(review: Review, deviation: Deviation) -> str:
-    """"9.1 Notice" -- the draft's number and heading of the deviation's provision, else the
-    precedent's (for a provision the draft removed)."""
-    for doc, pid in ((review.draft, deviation.draft_provision),
-                     (review.precedent, deviation.precedent_provision)):
-        prov = _provision(doc, pid)
-        if prov is None:
-            continue
-        parts = [x for x in (prov.number, prov.heading) if x]
-        if not parts and prov.term:
-            parts = [f'"{prov.term}"']
-        if parts:
-            return " ".join(parts)
-        return prov.kind
-    return ""
 
 
 def match_key(review: Review, deviation: Deviation) -> dict[str, Any]:
     """What identifies a deviation across re-runs: its kind, its provision pair and the
     changed words."""
     def clause(doc: Document, pid: str | None) -> str | None:
-        prov = _provision(doc, pid)
+        # The key keeps its own simple form (number, heading or term): saved review files
+        # match decisions by it, so it must not change when the display label does.
+        prov = find_provision(doc, pid)
         if prov is None:
             return None
         return " ".join(x for x in (prov.number, prov.heading or prov.term) if x) or None

@@ -18,8 +18,9 @@ at :data:`CAUTION_PROPERTY`.
 
 Cost: the counter-draft is linear in the draft's XML; the redline is one
 ``difflib.SequenceMatcher`` over the paragraph keys (O(B^2) worst case for B paragraphs, near
-linear for similar documents) plus one word diff (Myers, O(N·D)) per matched paragraph pair;
-the issues list is linear in the deviations.  ``benchmarks/bench_export.py`` measures them.
+linear for similar documents) plus, per matched paragraph pair, its share of the review's word
+diff (``Pair.edits``: the outputs never diff the texts again); the issues list is linear in
+the deviations.  ``benchmarks/bench_export.py`` measures them.
 """
 
 from __future__ import annotations
@@ -40,10 +41,11 @@ from pathlib import Path
 from rapidfuzz.distance import Indel
 
 from . import CAUTION, __version__
-from .decisions import Decision, clause_label
+from .decisions import Decision
 from .errors import CounterdraftError
 from .fileio import atomic_write_bytes, atomic_write_text, refuse_overwrite_of_inputs
-from .model import Block, Deviation, Document, Provision, Review, TermMapping
+from .labels import clause_label, find_provision
+from .model import Block, Deviation, Document, Edit, Provision, Review, TermMapping
 
 __all__ = [
     "CAUTION_PROPERTY",
@@ -220,20 +222,30 @@ def _block_ranges(prov: Provision, start: int, end: int) -> list[tuple[int, int,
     return out
 
 
-def _map_offset(a: str, b: str, offset: int) -> int:
-    """Where character *offset* of text *a* falls in text *b*, by the review engine's word
-    diff (:func:`core.review.worddiff.diff_texts`): inside equal text it maps one to one;
-    inside changed text it maps to the start of the other side's change."""
-    from .review.worddiff import diff_texts
+def _pair_edits(review: Review, draft_pid: str, precedent_pid: str) -> tuple[Edit, ...]:
+    """The review's word diff of an aligned pair (:attr:`core.model.Pair.edits`; ``()`` when
+    the two provisions are not aligned or the review has no diff for them)."""
+    for pair in review.pairs:
+        if pair.draft == draft_pid and pair.precedent == precedent_pid:
+            return pair.edits
+    return ()
 
-    for e in diff_texts(a, b):
-        if e.p1 <= offset < e.p2 or (offset == e.p2 == len(a) and e.p1 < e.p2):
+
+def _map_offset(edits: Sequence[Edit], offset: int) -> int | None:
+    """Where character *offset* of a pair's precedent text falls in its draft text, by the
+    pair's word diff (*edits*, which tile both texts): inside equal text it maps one to one;
+    inside changed text it maps to the start of the other side's change.  None without a
+    diff."""
+    if not edits:
+        return None
+    for e in edits:
+        if e.p1 <= offset < e.p2 or (offset == e.p2 == edits[-1].p2 and e.p1 < e.p2):
             if e.tag == "equal":
                 return e.d1 + (offset - e.p1)
             return e.d1
         if offset == e.p1 == e.p2 and e.tag == "insert":
             continue  # words inserted at this very place belong before it
-    return len(b)
+    return edits[-1].d2
 
 
 def _term_translator(term_map: Sequence[TermMapping]):
@@ -278,15 +290,6 @@ def _deviation(review: Review, dev_id: str) -> Deviation | None:
     return next((d for d in review.deviations if d.id == dev_id), None)
 
 
-def _prov(doc: Document, pid: str | None) -> Provision | None:
-    if pid is None:
-        return None
-    try:
-        return doc.provision(pid)
-    except KeyError:
-        return None
-
-
 def _draft_anchor(review: Review, precedent_pid: str) -> int:
     """The draft block after which a precedent provision missing from the draft belongs:
     the end of the draft counterpart of the nearest preceding precedent provision that has
@@ -300,12 +303,12 @@ def _draft_anchor(review: Review, precedent_pid: str) -> int:
         return len(review.draft.blocks) - 1
     for prev in reversed(order[:i]):
         dpid = matched.get(prev)
-        dprov = _prov(review.draft, dpid)
+        dprov = find_provision(review.draft, dpid)
         blocks = provision_blocks(review.draft, dprov, owners=owners) if dprov is not None else []
         if blocks:
             return max(blocks)
     for nxt in order[i + 1:]:
-        dprov = _prov(review.draft, matched.get(nxt))
+        dprov = find_provision(review.draft, matched.get(nxt))
         blocks = provision_blocks(review.draft, dprov, owners=owners) if dprov is not None else []
         if blocks:
             return min(blocks) - 1
@@ -355,19 +358,6 @@ def _tidy_spaces(text: str, start: int, end: int, replacement: str) -> tuple[int
         elif after and not after.isspace() and after not in _CLOSING and not replacement[-1].isspace():
             replacement = replacement + " "
     return start, end, replacement
-
-
-def _is_heading_deviation(dev: Deviation, dprov: Provision, pprov: Provision | None) -> bool:
-    """A change of the provision's heading: the review reports it with no spans (the spans
-    are offsets into the provision's text, which excludes the heading) and with reasons
-    that start with "heading"; its words lie in the headings."""
-    if dev.change not in _WORD_CHANGES or dev.draft_span is not None or dev.precedent_span is not None:
-        return False
-    if any(r.startswith("heading") for r in dev.reasons):
-        return True
-    dh = dprov.heading or ""
-    ph = (pprov.heading if pprov is not None else None) or ""
-    return bool(dh or ph) and (dev.draft_text or "") in dh and (dev.precedent_text or "") in ph
 
 
 def _heading_change(review: Review, dev: Deviation, dec: Decision, dprov: Provision,
@@ -429,8 +419,10 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
 
     * revert/amend of words: the draft's changed words (``draft_span``) are replaced by the
       precedent's (``precedent_span``, with the draft's names for mapped defined terms) or by
-      the reviewer's text; a pure deletion in the draft is restored at the place a word diff
-      of the two provisions gives; a heading change replaces the whole heading;
+      the reviewer's text; a pure deletion in the draft is restored at the draft's empty
+      span (its insertion point; for a deviation without one, the place the pair's word
+      diff, ``Pair.edits``, gives); a heading change (``part == "heading"``) replaces the
+      whole heading;
     * a provision the draft added: revert deletes its paragraphs (marks included), with its
       sub-provisions that have no counterpart in the precedent; amend replaces its words;
     * a provision the draft removed: revert inserts the precedent's paragraphs (with its
@@ -480,8 +472,8 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
         note = dec.note
         if dec.action == "accept" and not note:
             continue
-        dprov = _prov(draft, dev.draft_provision)
-        pprov = _prov(precedent, dev.precedent_provision)
+        dprov = find_provision(draft, dev.draft_provision)
+        pprov = find_provision(precedent, dev.precedent_provision)
         where = clause_label(review, dev) or dev.id
         if dec.action != "accept" and (dev.category == "term" or dev.change == "move"):
             notes.append(f"{dev.id} ({where}): a renamed term or a moved provision is not "
@@ -536,7 +528,7 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
             continue
 
         # -- the heading -------------------------------------------------------------------
-        if _is_heading_deviation(dev, dprov, pprov):
+        if dev.part == "heading" and dev.change in _WORD_CHANGES:
             result = _heading_change(review, dev, dec, dprov, pprov, to_draft_terms)
             if result is None:
                 notes.append(f"{dev.id} ({where}): the heading could not be located in the draft; skipped")
@@ -561,9 +553,10 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
         if dev.change == "add-provision":
             d1, d2 = 0, len(dprov.text)  # amend: the reviewer's words replace the provision's
         elif dev.draft_span is not None:
-            d1, d2 = dev.draft_span
-        elif dev.precedent_span is not None and pprov is not None:
-            d1 = d2 = _map_offset(pprov.text, dprov.text, dev.precedent_span[0])
+            d1, d2 = dev.draft_span  # empty at the insertion point for a delete
+        elif (dev.precedent_span is not None and pprov is not None and (at := _map_offset(
+                _pair_edits(review, dprov.id, pprov.id), dev.precedent_span[0])) is not None):
+            d1 = d2 = at  # a deviation made without a draft span: place it by the pair's diff
         elif dec.action == "accept":
             d1, d2 = 0, len(dprov.text)  # a note on the provision as a whole
         else:
@@ -660,24 +653,91 @@ def _line(block: Block) -> str:
     return f"{block.label}\t{block.text}" if block.label else block.text
 
 
-def _word_runs(a: str, b: str, *, moved: bool = False):
-    """Runs showing *a* turned into *b*: equal words plain (or moveTo when *moved*), deleted
-    words ``del``, inserted words ``ins``.  In a moved paragraph deleted words are left out
-    (they show in the moveFrom copy).  The word diff is the review engine's
-    (:func:`core.review.worddiff.diff_texts`, Myers' algorithm via diff-match-patch), which
-    reconstructs both texts exactly."""
+#: One piece of a redline paragraph: (unchanged?, the precedent's text, the draft's text);
+#: an unchanged piece has the same text on both sides.
+_Piece = tuple[bool, str, str]
+
+
+def _affix_pieces(a: str, b: str) -> list[_Piece]:
+    """*a* turned into *b* as an unchanged common beginning and end around one changed middle,
+    never cutting a word.  For the parts of a paragraph the review does not diff (number
+    labels, run-in headings, heading lines, paragraphs outside any aligned pair): O(len)."""
+    if a == b:
+        return [(True, a, b)] if a else []
+    la, lb = len(a), len(b)
+    n = min(la, lb)
+    c1 = 0
+    while c1 < n and a[c1] == b[c1]:
+        c1 += 1
+
+    def inside_word(x: str, y: str, k: int) -> bool:
+        return k > 0 and x[k - 1].isalnum() and ((k < len(x) and x[k].isalnum()) or (k < len(y) and y[k].isalnum()))
+
+    while inside_word(a, b, c1):
+        c1 -= 1
+    c2 = 0
+    while c2 < n - c1 and a[la - 1 - c2] == b[lb - 1 - c2]:
+        c2 += 1
+
+    def cuts_word(k2: int) -> bool:
+        sa, sb = la - k2, lb - k2
+        return k2 > 0 and a[sa].isalnum() and ((sa > 0 and a[sa - 1].isalnum()) or (sb > 0 and b[sb - 1].isalnum()))
+
+    while cuts_word(c2):
+        c2 -= 1
+    out: list[_Piece] = []
+    if c1:
+        out.append((True, a[:c1], b[:c1]))
+    out.append((False, a[c1:la - c2], b[c1:lb - c2]))
+    if c2:
+        out.append((True, a[la - c2:], b[lb - c2:]))
+    return out
+
+
+def _clipped_pieces(edits: Sequence[Edit], ptext: str, dtext: str, p_range: tuple[int, int],
+                    d_range: tuple[int, int]) -> list[_Piece]:
+    """A pair's word diff (*edits*, tiling *ptext* and *dtext*) restricted to one stretch of
+    each text (one paragraph of each provision).  The pieces tile both stretches exactly; an
+    equal hunk stays unchanged where its two sides line up inside the stretches, and what
+    lies outside that is shown deleted or inserted.  O(hunks)."""
+    a0, a1 = p_range
+    b0, b1 = d_range
+    out: list[_Piece] = []
+
+    def changed(pa: int, pb: int, da: int, db: int) -> None:
+        if pa < pb or da < db:
+            out.append((False, ptext[pa:pb] if pa < pb else "", dtext[da:db] if da < db else ""))
+
+    for e in edits:
+        pa, pb = max(e.p1, a0), min(e.p2, a1)
+        da, db = max(e.d1, b0), min(e.d2, b1)
+        pb, db = max(pa, pb), max(da, db)
+        if e.tag == "equal":
+            lo, hi = max(pa - e.p1, da - e.d1), min(pb - e.p1, db - e.d1)
+            if lo < hi:
+                changed(pa, e.p1 + lo, da, e.d1 + lo)
+                out.append((True, ptext[e.p1 + lo:e.p1 + hi], dtext[e.d1 + lo:e.d1 + hi]))
+                changed(e.p1 + hi, pb, e.d1 + hi, db)
+                continue
+        changed(pa, pb, da, db)
+    return out
+
+
+def _piece_runs(pieces: Sequence[_Piece], *, moved: bool = False):
+    """Runs showing the pieces: unchanged text plain (or moveTo when *moved*), the
+    precedent's side of a changed piece ``del``, the draft's ``ins``.  In a moved paragraph
+    deleted words are left out (they show in the moveFrom copy)."""
     from .docx.writer import Run
-    from .review.worddiff import diff_texts
 
     runs: list[Run] = []
-    for e in diff_texts(a, b):
-        if e.tag == "equal":
-            runs.append(Run(b[e.d1:e.d2], "moveTo" if moved else ""))
+    for same, a, b in pieces:
+        if same:
+            runs.append(Run(b, "moveTo" if moved else ""))
             continue
-        if e.tag in ("delete", "replace") and not moved:
-            runs.append(Run(a[e.p1:e.p2], "del"))
-        if e.tag in ("insert", "replace"):
-            runs.append(Run(b[e.d1:e.d2], "ins"))
+        if a and not moved:
+            runs.append(Run(a, "del"))
+        if b:
+            runs.append(Run(b, "ins"))
     merged: list[Run] = []
     for r in runs:
         if not r.text:
@@ -687,6 +747,20 @@ def _word_runs(a: str, b: str, *, moved: bool = False):
         else:
             merged.append(r)
     return tuple(merged)
+
+
+def _segment_in_block(prov: Provision, block: int) -> tuple[int, int, int] | None:
+    """(offset in the provision's text, start, end in the block's text) of the provision's one
+    segment in *block*; None when it has none there or several."""
+    found = None
+    pos = 0
+    for seg in prov.segments:
+        if seg.block == block:
+            if found is not None:
+                return None
+            found = (pos, seg.start, seg.end)
+        pos += seg.end - seg.start + 1
+    return found
 
 
 def _pair_gap(pa: Sequence[int], da: Sequence[int], plines: Sequence[str], dlines: Sequence[str]
@@ -736,6 +810,12 @@ def redline_body(review: Review):
     paragraphs, paired by similarity when close).  Paragraphs of moved provisions never
     match in place: they are shown as moveFrom at the precedent's position and moveTo at the
     draft's, named per aligned pair.
+
+    Word changes are the review's own (``Pair.edits``, no second diff): a paragraph of an
+    aligned pair shows the pair's hunks restricted to its stretch of each provision's text;
+    what the review does not diff -- number labels, run-in headings, heading lines and
+    paragraphs outside any aligned pair -- shows its common beginning and end unchanged and
+    the middle as changed (:func:`_affix_pieces`).
     """
     from .docx.writer import Para, Run
 
@@ -781,6 +861,31 @@ def redline_body(review: Review):
             return ("prov", (one_to_one[own[0]], own[1]))
         return ("draft-only", own)
 
+    pprovs = {p.id: p for p in pdoc.provisions}
+    dprovs = {p.id: p for p in ddoc.provisions}
+    pair_edits = {(pair.draft, pair.precedent): pair.edits for pair in review.pairs
+                  if pair.draft and pair.precedent and pair.edits}
+
+    def pieces(i: int, j: int) -> list[_Piece]:
+        """Precedent paragraph *i* turned into draft paragraph *j*."""
+        pl, dl = plines[i], dlines[j]
+        po, do = powners.get(i), downers.get(j)
+        edits = pair_edits.get((do[0], po[0])) if po is not None and do is not None else None
+        if edits and po[1] >= 0 and do[1] >= 0:
+            pprov, dprov = pprovs[po[0]], dprovs[do[0]]
+            ps, ds = _segment_in_block(pprov, i), _segment_in_block(dprov, j)
+            if ps is not None and ds is not None:
+                # the line is: label, tab, the block's text; the segment sits inside the text
+                pb, db = len(pl) - len(pdoc.blocks[i].text), len(dl) - len(ddoc.blocks[j].text)
+                p_off, p_start, p_end = ps
+                d_off, d_start, d_end = ds
+                return (_affix_pieces(pl[:pb + p_start], dl[:db + d_start])
+                        + _clipped_pieces(edits, pprov.text, dprov.text,
+                                          (p_off, p_off + p_end - p_start),
+                                          (d_off, d_off + d_end - d_start))
+                        + _affix_pieces(pl[pb + p_end:], dl[db + d_end:]))
+        return _affix_pieces(pl, dl)
+
     pkeys = [pkey(i) for i in range(len(plines))]
     dkeys = [dkey(j) for j in range(len(dlines))]
     # Precedent text of each moved draft paragraph, for the word changes inside the move.
@@ -809,7 +914,7 @@ def redline_body(review: Review):
             else:
                 out.append(Para(()))
         else:
-            out.append(Para(_word_runs(plines[i], dlines[j])))
+            out.append(Para(_piece_runs(pieces(i, j))))
 
     def deleted(i: int) -> None:
         own = powners.get(i)
@@ -823,7 +928,7 @@ def redline_body(review: Review):
         own = downers.get(j)
         src = moved_source.get(j)
         if own is not None and own[0] in moved and src is not None:
-            runs = _word_runs(plines[src], dlines[j], moved=True)
+            runs = _piece_runs(pieces(src, j), moved=True)
             out.append(Para(runs, mark="moveTo", move=move_names[moved[own[0]]]))
         else:
             out.append(Para((Run(dlines[j], "ins"),) if dlines[j] else (), mark="ins"))

@@ -15,6 +15,36 @@ Invariants
 * ``Provision.text`` holds the provision's own words only: no number label, no heading,
   no child provisions.  Unnumbered paragraphs that follow a provision belong to it and are
   joined with ``"\\n"``.
+
+Review invariants (what :mod:`core.review` guarantees; writers and views rely on them and
+never recompute them)
+----------------------------------------------------------------------------------------
+* ``Pair.edits`` is the engine's own word diff of the pair, the one it classified: with
+  ``P`` the precedent provision's text and ``D`` the draft provision's text (the original
+  texts, not the term-normalised ones), the hunks tile both texts in order, without gap or
+  overlap: the first hunk starts at ``p1 == d1 == 0``, each next hunk starts where the
+  previous one ended (``p1 == previous p2``, ``d1 == previous d2``), the last ends at
+  ``len(P)`` and ``len(D)``; so ``"".join(P[e.p1:e.p2] for e in edits) == P`` and the same
+  for ``D``.  An ``equal`` hunk covers identical text (``P[e.p1:e.p2] == D[e.d1:e.d2]``); an
+  ``insert`` has ``p1 == p2`` and a ``delete`` ``d1 == d2``; a ``replace`` is non-empty on
+  both sides.  The diff is term-aware: where it matched a use of a renamed defined term
+  (``Review.term_map``) with the other side's use of the same term, that use is a
+  ``replace`` hunk of its own covering exactly the use on each side (plural and possessive
+  endings included), so a view can show it as a term rather than as changed words; a term
+  used inside changed words stays part of their hunk.  Split
+  and merged provisions have one diff per pairing (the two provisions' own texts).
+  ``edits`` is ``()`` for an added or removed provision (one side only), when both texts
+  are empty, and for a pair built without the engine (a hand-made review); a consumer
+  that finds ``()`` on a two-sided pair with different texts has no word diff to show.
+* ``Deviation.part`` says which part of the provision the deviation concerns: ``"text"``
+  (words of ``Provision.text``), ``"heading"`` (``Provision.heading``) or ``"provision"``
+  (the provision as a whole: added, removed, moved, renumbered; or, for a renamed defined
+  term, the two defining provisions).
+* ``Deviation.precedent_span`` / ``draft_span`` are character offsets into
+  ``Provision.text`` and are given exactly when ``part == "text"`` (None otherwise).  They
+  cover the changed words without context; for an ``insert`` the precedent span is empty
+  at the insertion point (``(k, k)``: the words would go before ``P[k]``), for a ``delete``
+  the draft span is empty at the place the words were taken from.
 """
 
 from __future__ import annotations
@@ -30,6 +60,7 @@ __all__ = [
     "Pair",
     "CATEGORIES",
     "CHANGES",
+    "DEVIATION_PARTS",
     "ClosestProvision",
     "PAIR_STATUSES",
     "Review",
@@ -139,6 +170,7 @@ class Document:
 PAIR_STATUSES: tuple[str, ...] = ("same", "changed", "moved", "added", "removed", "split", "merged")
 CATEGORIES: tuple[str, ...] = ("substantive", "term", "formatting", "numbering", "punctuation")
 CHANGES: tuple[str, ...] = ("insert", "delete", "replace", "move", "add-provision", "remove-provision")
+DEVIATION_PARTS: tuple[str, ...] = ("text", "heading", "provision")
 
 
 @dataclass(frozen=True, slots=True)
@@ -181,6 +213,8 @@ class Pair:
     status: str  # one of PAIR_STATUSES
     similarity: float
     frequency: Frequency | None = None
+    #: The engine's word diff of the two provision texts (see the module's invariants).
+    edits: tuple[Edit, ...] = ()
 
 
 @dataclass(frozen=True, slots=True)
@@ -208,10 +242,14 @@ class Deviation:
     draft_text: str  # verbatim from the draft, the draft's own defined terms
     reasons: tuple[str, ...]
     frequency: Frequency | None = None
-    #: Character offsets of the changed words (without context) in each provision's text;
-    #: None when the deviation covers the whole provision or has no words on that side.
+    #: Character offsets of the changed words (without context) in each provision's text,
+    #: given when ``part == "text"``; an empty span ``(k, k)`` marks the insertion point on
+    #: the side without words (the precedent's for an insert, the draft's for a delete).
+    #: None for a heading or a whole provision.
     precedent_span: tuple[int, int] | None = None
     draft_span: tuple[int, int] | None = None
+    #: Which part of the provision the deviation concerns: one of DEVIATION_PARTS.
+    part: str = "text"
 
 
 @dataclass(frozen=True, slots=True)

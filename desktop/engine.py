@@ -21,10 +21,8 @@ from typing import Any
 from core.errors import CounterdraftError
 from core.model import Deviation, Edit, Pair, Review, TermMapping
 
-from .patterns import PatternGroup, PatternMove
 from .state import Inputs
 from .tasks import IsCancelled, Report, check_cancelled
-from .variants import ClosestText, VariantBar
 
 __all__ = [
     "Outcome",
@@ -189,12 +187,11 @@ def rerun_review(
 
 
 def pair_edits(review: Review, pair: Pair) -> Sequence[Edit]:
-    """The word-diff hunks of one aligned pair, as the engine computes them."""
+    """The word-diff hunks of one aligned pair: the engine's own, carried in the review
+    (:attr:`core.model.Pair.edits`, term-aware; never recomputed here)."""
     if pair.draft is None or pair.precedent is None:
         return ()
-    from core.review.worddiff import diff_texts
-
-    return diff_texts(review.precedent.provision(pair.precedent).text, review.draft.provision(pair.draft).text)
+    return pair.edits
 
 
 # ------------------------------------------------------------------------------------------
@@ -290,53 +287,21 @@ def export(kind: str, path: str, report: Report, cancelled: IsCancelled, *, reco
 # ------------------------------------------------------------------------------------------
 # precedent set: variants and patterns
 # ------------------------------------------------------------------------------------------
-#: Bars in the variants chart: the variant holding the provision's own wording, then the most
-#: common others of the clause type (more would not be read).
-VARIANT_BARS = 8
-#: Variants asked of the engine, so that the provision's own variant is found however rare.
-VARIANTS_ASKED = 10_000
-
-
 def variants_content(library: Any, review: Review | None, d: Deviation) -> dict[str, Any] | str:
-    """What the variants view shows for deviation *d*, or a one-line reason why there is nothing."""
-    from core.library.frequency import variants_for
+    """What the variants view shows for deviation *d* (the engine's wording variants of the
+    provision's slot, as they come), or a one-line reason why there is nothing."""
+    from core.library.slots import slot_variants
 
     if review is None:
         return "No review is open."
     if d.draft_provision is not None:
-        doc, pid = review.draft, d.draft_provision
-        renames = {m.draft: m.precedent for m in review.term_map}
+        prov = review.draft.provision(d.draft_provision)
     elif d.precedent_provision is not None:
-        doc, pid, renames = review.precedent, d.precedent_provision, {}
+        prov = review.precedent.provision(d.precedent_provision)
     else:
         return "This deviation concerns the whole document, not one provision."
-    prov = doc.provision(pid)
-    info = variants_for(library, prov, document=doc, renames=renames, max_variants=VARIANTS_ASKED)
-    name = " ".join(x for x in (prov.number, prov.heading) if x) or prov.term or pid
-    if not info.variants:
-        return (f"The precedent set has no provision of this type ({info.label}) to compare "
-                f"\u201c{name}\u201d with.")
-    # The variant holding this provision's wording first (wherever the engine ranks it), then
-    # the most common others in the engine's order.
-    own = [v for v in info.variants if v.is_draft]
-    shown = own + [v for v in info.variants if not v.is_draft][: VARIANT_BARS - len(own)]
-    bars = [VariantBar(label=v.name, count=v.count, text=v.text, position=v.position, is_draft=v.is_draft)
-            for v in shown]
-    closest = [ClosestText(c.document, c.provision, c.similarity, c.text) for c in info.closest]
-    side = "draft" if doc is review.draft else "precedent"
-    heading = (f"{name}: clause type \u201c{info.label}\u201d, found in {info.same_type} of {info.total} "
-               "agreements of the precedent set.")
-    f = d.frequency
-    if f is not None and d.change not in ("add-provision", "remove-provision", "move"):
-        heading += f" This change: the draft's words appear in {f.matching} of {f.total} agreements."
-    return {
-        "heading": heading,
-        "bars": bars,
-        "total": info.total,
-        "title": f"Wordings of \u201c{info.label}\u201d clauses (agreements using each)",
-        "closest": closest,
-        "marker": side,
-    }
+    name = " ".join(x for x in (prov.number, prov.heading) if x) or prov.term or prov.id
+    return {"slot": slot_variants(library, review, d), "provision": name, "deviation": d}
 
 
 def compute_patterns(library: Any, report: Report, cancelled: IsCancelled, *, precedent: Any,
@@ -360,13 +325,7 @@ def compute_patterns(library: Any, report: Report, cancelled: IsCancelled, *, pr
     return groups
 
 
-def pattern_groups(patterns: Any) -> list[PatternGroup]:
-    return [
-        PatternGroup(
-            clause_type=g.clause_type,
-            title=g.title,
-            agreements=g.agreements,
-            moves=tuple(PatternMove(m.description, m.count, m.total, tuple(m.examples)) for m in g.moves),
-        )
-        for g in patterns
-    ]
+def pattern_groups(patterns: Any) -> list[Any]:
+    """The engine's negotiation patterns (``core.library.patterns.PatternGroup``) as the
+    patterns view shows them: as they come, in the engine's order."""
+    return list(patterns)

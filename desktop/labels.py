@@ -5,7 +5,9 @@ Presentation only: every fact shown comes from the engine's objects unchanged.
 
 from __future__ import annotations
 
-from core.model import Deviation, Document, Frequency, Provision, Review
+# clause_label is the engine's one clause label, re-exported for the views.
+from core.labels import clause_label, provision_label
+from core.model import Deviation, Frequency, Provision
 
 __all__ = [
     "CATEGORY_NAMES",
@@ -66,39 +68,11 @@ def short(text: str, limit: int = EXCERPT_CHARS) -> str:
 
 
 def provision_caption(p: Provision | None) -> str:
-    """``"7.2 Limitation of liability"``, ``"Definition of \u201cClient\u201d"`` or ``"(untitled)"``."""
+    """``"7.2 Limitation of liability"``, ``"Definition of \u201cClient\u201d"``: one provision's own
+    number and heading (:func:`core.labels.provision_label`)."""
     if p is None:
         return ""
-    bits = [b for b in (p.number, p.heading) if b]
-    if not bits and p.term:
-        return f"Definition of \u201c{p.term}\u201d"
-    if not bits:
-        return short(p.text, 40) or "(untitled)"
-    return " ".join(bits)
-
-
-def _find(doc: Document, pid: str | None) -> Provision | None:
-    if pid is None:
-        return None
-    try:
-        return doc.provision(pid)
-    except KeyError:
-        return None
-
-
-def clause_label(review: Review, d: Deviation, *, compact: bool = False) -> str:
-    """The clause a deviation concerns, by the draft's numbering, with the precedent's number
-    in brackets when it differs (renumbered or moved) unless *compact*."""
-    dp = _find(review.draft, d.draft_provision)
-    pp = _find(review.precedent, d.precedent_provision)
-    if dp is None and pp is None:
-        return "Whole document" if d.category != "term" else "Defined terms"
-    if dp is None:
-        return f"{provision_caption(pp)} (precedent only)"
-    label = provision_caption(dp)
-    if not compact and pp is not None and pp.number and pp.number != dp.number:
-        label += f" (precedent {pp.number})"
-    return label
+    return provision_label(p)
 
 
 def summary(d: Deviation) -> str:

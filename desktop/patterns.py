@@ -1,14 +1,15 @@
 """The patterns view: what counterparties usually change in each clause type, and how often.
 
-The figures come from the engine's negotiation patterns (``counterdraft library patterns``):
-every past agreement of the precedent set reviewed against the house precedent, the
-departures counted per clause type.  This view only lays them out as a tree.
+The figures come from the engine's negotiation patterns (``counterdraft library patterns``,
+:class:`core.library.patterns.PatternGroup`): every past agreement of the precedent set
+reviewed against the house precedent, the departures counted per clause type.  This view only
+lays them out as a tree, in the engine's order.
 """
 
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
@@ -29,25 +30,13 @@ from .palette import MUTED_INK
 from .state import Change, Workspace
 from .widgets import BarDelegate
 
-__all__ = ["PatternMove", "PatternGroup", "PatternsPanel"]
+if TYPE_CHECKING:  # the window opens without loading the engine
+    from core.library.patterns import PatternGroup
 
+__all__ = ["PatternsPanel"]
 
-@dataclass(frozen=True, slots=True)
-class PatternMove:
-    """One usual change to a clause type: e.g. "liability cap raised", 7 of 24 agreements."""
-
-    description: str
-    count: int
-    total: int
-    examples: tuple[str, ...] = ()  # the variants' wording, as the engine quotes it
-
-
-@dataclass(frozen=True, slots=True)
-class PatternGroup:
-    clause_type: str
-    title: str
-    agreements: int  # agreements with a provision of this type
-    moves: tuple[PatternMove, ...]
+#: Item data role holding a move (the engine's ``PatternMove``) on the tree's move rows.
+MOVE_ROLE = int(Qt.ItemDataRole.UserRole) + 1
 
 
 class PatternsPanel(QWidget):
@@ -56,7 +45,7 @@ class PatternsPanel(QWidget):
     def __init__(self, workspace: Workspace, adapt, parent: QWidget | None = None) -> None:
         super().__init__(parent)
         self._ws = workspace
-        self._adapt = adapt  # engine patterns -> Sequence[PatternGroup]
+        self._adapt = adapt  # the workspace's patterns -> Sequence[PatternGroup]
         self.intro = QLabel(self)
         self.intro.setWordWrap(True)
         self.intro.setStyleSheet(f"color: {MUTED_INK}")
@@ -120,14 +109,14 @@ class PatternsPanel(QWidget):
             for m in g.moves:
                 child = QTreeWidgetItem([m.description, f"{m.count} of {m.total}"])
                 child.setData(1, BAR_ROLE, (m.count / m.total) if m.total else 0.0)
-                child.setData(0, Qt.ItemDataRole.UserRole, m)
+                child.setData(0, MOVE_ROLE, m)
                 top.addChild(child)
             self.tree.addTopLevelItem(top)
             top.setExpanded(True)
 
     def _show_examples(self, item: QTreeWidgetItem | None, _prev: QTreeWidgetItem | None = None) -> None:
-        m = item.data(0, Qt.ItemDataRole.UserRole) if item is not None else None
-        if not isinstance(m, PatternMove):
+        m = item.data(0, MOVE_ROLE) if item is not None else None
+        if m is None:
             self.examples.clear()
             return
         body = "".join(f"<p style='font-family:serif'>{_esc(x)}</p>" for x in m.examples)

@@ -58,7 +58,8 @@ from .state import DisplayOptions
 
 __all__ = ["EditsProvider", "ProvisionDelegate", "SideBySideView", "cell_document"]
 
-#: Gives the word-diff hunks of one aligned pair (from ``core.review.worddiff``).
+#: Gives the word-diff hunks of one aligned pair (the engine's, ``Pair.edits``; see
+#: :func:`desktop.engine.pair_edits`).  Without a provider the view reads ``Pair.edits``.
 EditsProvider = Callable[[Review, Pair], Sequence[Edit]]
 
 #: Indent per numbering level below the top, in pixels: sub-clauses read as sub-clauses.
@@ -416,7 +417,7 @@ class SideBySideView(QWidget):
             return [], []
         edits = self._edit_cache.get(row)
         if edits is None:
-            edits = tuple(self._edits(review, pair)) if self._edits is not None else ()
+            edits = tuple(self._edits(review, pair)) if self._edits is not None else pair.edits
             self._edit_cache[row] = edits
         pm, dm = mk.edit_marks(edits)
         if not edits:  # no word diff available: fall back on the deviations' own spans
@@ -430,7 +431,8 @@ class SideBySideView(QWidget):
         d_text = review.draft.provision(pair.draft).text
         p_terms = mk.term_marks(p_text, [t.precedent for t in review.term_map])
         d_terms = mk.term_marks(d_text, [t.draft for t in review.term_map])
-        # A hunk that is only a renamed defined term is shown as a term, not as an edit.
+        # A hunk that is only a renamed defined term is shown as a term, not as an edit (the
+        # engine's diff gives each such use a hunk of its own: core.model's invariants).
         p_hidden: list[tuple[int, int]] = [(m.start, m.end) for m in p_terms]
         d_hidden: list[tuple[int, int]] = [(m.start, m.end) for m in d_terms]
         for d in self._by_row.get(row, ()):

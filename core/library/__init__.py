@@ -3,7 +3,8 @@
 Modules: :mod:`.normalise` (tokens, term normalisation, shingles), :mod:`.clausetypes`
 (clause typing), :mod:`.index` (the SQLite index and its build), :mod:`.variants` (wording
 variants by hierarchical clustering), :mod:`.vocab` (the Word2Vec vocabulary model),
-:mod:`.frequency` (frequency figures and ranking in a review), :mod:`.patterns` (negotiation
+:mod:`.frequency` (frequency figures and ranking in a review), :mod:`.slots` (the wording
+variants of one provision's slot, for the desktop app), :mod:`.patterns` (negotiation
 patterns), :mod:`.calibrate` (choosing the clustering cut-off).
 
 Every file the library writes holds confidential client text: it lives in the library's
@@ -23,7 +24,8 @@ __all__ = [
     "build_library",
     "clause_type_function",
     "open_library",
-    "variants_for",
+    "provision_slot",
+    "slot_variants",
 ]
 
 _LAZY = {
@@ -32,7 +34,8 @@ _LAZY = {
     "open_library": "index",
     "apply_frequency": "frequency",
     "clause_type_function": "frequency",
-    "variants_for": "frequency",
+    "provision_slot": "frequency",
+    "slot_variants": "slots",
 }
 
 

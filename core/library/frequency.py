@@ -15,9 +15,9 @@ Figures (all counts of library *documents* unless said otherwise):
     same-type provision within the variant cut-off (Jaccard distance of 3-word shingle sets
     after term normalisation, quotes, whitespace and case; default 0.2, see
     :mod:`.variants`) of the draft's wording (a removed provision: the precedent's).
-    For a removed provision's deviation: documents that have no such provision either.
-    For a word-level deviation: documents whose *counterpart* provision (their same-type
-    provision closest to the draft's or the precedent's provision) carries the draft's
+    For a removed provision's deviation: documents that have no such provision either (no
+    counterpart, see below).
+    For a word-level deviation: documents whose *counterpart* provision carries the draft's
     wording of the change: it holds at least ``DEPARTURE_MATCH_MIN`` of the shingles that
     only the draft's side of the change has, and a larger share of them than of the
     precedent's side.  For a renamed defined term: documents defining the draft's name;
@@ -32,20 +32,34 @@ Figures (all counts of library *documents* unless said otherwise):
 ``position``
     the reviewer's label of the variant the matching wording belongs to.
 
+Counterparts (the provision's *slot*): a library document's counterpart of a provision is its
+same-type provision that is nearest to the provision (to either side's provision for a
+word-level deviation) among those that either lie within the cut-off of it (the same wording)
+or share at least one 3-word shingle with it and are nearer to it than to any other
+same-type provision of its own document (mutual nearest: a document's general indemnity is
+not the counterpart of the draft's IP indemnity when the draft has a general indemnity too,
+while a re-worded clause that is the only one of its type still is).  A document without
+such a provision does not have the slot.  :func:`provision_slot` gives the counterparts;
+:mod:`.slots` groups them into the wording variants the desktop app charts, so that the
+chart's figures are these.
+
 Ranking: a substantive deviation's severity is multiplied by ``1 - ACCEPTED_WEIGHT *
 matching / total`` and shifted by ``POSITION_ADJUSTMENT``; its reasons say "accepted in 9 of
 24 past agreements" (or "never accepted in the 24 past agreements") and the position.  Ranks
 are then recomputed 1..N by descending severity, ties in draft order (the ids' order).
 
 Cost: per clause type one sparse product of the review's wordings with the library's
-distinct wordings, O(query shingles x library rows sharing them); phrase checks read only
-the candidate rows' text from the index.
+distinct wordings, O(query shingles x library rows sharing them); a slot adds the same for
+the other same-type provisions of the draft and the precedent (cached per review) and one
+sort of the bucket's (wording, document) entries; phrase checks read only the candidate
+rows' text from the index.
 """
 
 from __future__ import annotations
 
 import dataclasses
 import re
+from collections import defaultdict
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
@@ -55,22 +69,19 @@ from ..model import ClosestProvision, Deviation, Document, Frequency, Pair, Prov
 from .clausetypes import Typing, classify_provisions, document_term_replacer
 from .index import BucketIndex, Library, bucket_of, normalised_wording
 from .normalise import SHINGLE_SIZE, TermReplacer, _word_hash, match_tokens, shingle_hashes
-from .variants import distances_from_counts
+from .variants import distances_from_counts, set_distance
 
 __all__ = [
     "ACCEPTED_WEIGHT",
     "CLOSEST_COUNT",
-    "COUNTERPART_MIN_SIMILARITY",
     "DEPARTURE_MATCH_MIN",
     "POSITION_ADJUSTMENT",
-    "ClosestText",
     "ReviewTypes",
-    "VariantView",
-    "VariantsInfo",
+    "Slot",
     "apply_frequency",
     "clause_type_function",
+    "provision_slot",
     "review_types",
-    "variants_for",
 ]
 
 #: Nearest library provisions listed per wording.
@@ -80,12 +91,6 @@ CLOSEST_COUNT = 3
 #: shingles, and a library text that agrees on the changed word but differs in one
 #: neighbouring word still holds 2 of them.
 DEPARTURE_MATCH_MIN = 0.5
-#: A document's counterpart of a provision must be at least this similar (1 - Jaccard
-#: distance) to the draft's or the precedent's provision; below it the document has no such
-#: provision and is not counted as carrying either wording.  Different clauses of one type
-#: share under 0.1 of their shingles; the same clause reworded keeps 0.2 or more (measured on
-#: the demo precedent set).
-COUNTERPART_MIN_SIMILARITY = 0.15
 #: How much a departure the firm has accepted in every past agreement loses of its severity
 #: (proportionally less for fewer): half, so that frequency re-orders departures of similar
 #: severity without hiding a severe one.  A product choice, no source.
@@ -167,6 +172,7 @@ class _Context:
         self._prec = {p.id: p for p in review.precedent.provisions}
         self._wordings: dict[tuple[str, str], _Wording] = {}
         self._dist: dict[tuple[str, str, str], np.ndarray] = {}
+        self._siblings: dict[tuple[str, str], list[str]] | None = None
 
     def provision(self, side: str, pid: str) -> Provision:
         return (self._draft if side == "d" else self._prec)[pid]
@@ -195,6 +201,21 @@ class _Context:
                     return t.clause_type
         side, pid = ("p", precedent) if precedent is not None else ("d", draft)
         return bucket_of(None, self.provision(side, pid).kind)  # type: ignore[arg-type]
+
+    def siblings(self, side: str, bucket_name: str) -> list[str]:
+        """The provisions of one side's document in bucket *bucket_name*, each in the bucket
+        of its pair (as the frequencies of the pairs read them), in document order."""
+        if self._siblings is None:
+            found: dict[tuple[str, str], list[str]] = defaultdict(list)
+            for pair in self.review.pairs:
+                if pair.draft is None and pair.precedent is None:
+                    continue
+                name = self.bucket_name(pair.draft, pair.precedent)
+                for s, pid in (("d", pair.draft), ("p", pair.precedent)):
+                    if pid is not None and pid not in found[(s, name)]:
+                        found[(s, name)].append(pid)
+            self._siblings = dict(found)
+        return self._siblings.get((side, bucket_name), [])
 
     def distances(self, bucket: BucketIndex, side: str, pid: str) -> np.ndarray:
         key = (bucket.name, side, pid)
@@ -259,9 +280,11 @@ def _whole_frequency(ctx: _Context, bucket_name: str, side: str, pid: str, *,
         return Frequency(0, ctx.total if absent else 0, ctx.total, (), 0 if containing else None)
     dist = ctx.distances(bucket, side, pid)
     within = dist <= ctx.config.cutoff
-    docs = bucket.documents_of(within)
     same_type = len(bucket.all_documents())
-    matching = ctx.total - len(docs) if absent else len(docs)
+    if absent:  # documents without a counterpart of the provision
+        matching = ctx.total - _counterparts(ctx, bucket, ((side, pid),))[1].size
+    else:  # == documents whose counterpart is within the cut-off (the nearest row is the counterpart)
+        matching = len(bucket.documents_of(within))
     cont = int(bucket.count[within].sum()) if containing else None
     position = None if absent else ctx.position_of_rows(bucket, within, dist)
     return Frequency(same_type, matching, ctx.total, ctx.closest(bucket, dist), cont, position)
@@ -302,11 +325,23 @@ def _window(before: list[str], changed: list[str], after: list[str]) -> list[str
     return [*head, *changed, *after[:k]]
 
 
-def _departure_frequency(ctx: _Context, dev: Deviation, bucket_name: str) -> Frequency:
+@dataclass(frozen=True, slots=True)
+class _Change:
+    """The shingles that only one side of a word-level deviation has (each window: the changed
+    words with SHINGLE_SIZE - 1 words of context), and the changed words themselves."""
+
+    only_d: np.ndarray
+    only_p: np.ndarray
+    changed_words: list[str]
+
+
+def _is_word_level(dev: Deviation) -> bool:
+    return (dev.category != "term" and dev.change in ("insert", "delete", "replace")
+            and dev.draft_provision is not None and dev.precedent_provision is not None)
+
+
+def _change(ctx: _Context, dev: Deviation) -> _Change:
     d_id, p_id = dev.draft_provision, dev.precedent_provision
-    bucket = ctx.library.bucket(bucket_name)
-    if bucket is None or bucket.rows == 0:
-        return Frequency(0, 0, ctx.total, (), 0 if dev.change in ("insert", "delete", "replace") else None)
     dprov = ctx.provision("d", d_id)  # type: ignore[arg-type]
     pprov = ctx.provision("p", p_id)  # type: ignore[arg-type]
     dspan = _span_of(dprov.text, dev.draft_span, dev.draft_text if dev.change != "delete" else "")
@@ -317,41 +352,168 @@ def _departure_frequency(ctx: _Context, dev: Deviation, bucket_name: str) -> Fre
         dc = match_tokens(dev.draft_text, terms=ctx.types.draft_terms)
     if pspan is None and dev.change != "insert":
         pc = match_tokens(dev.precedent_text, terms=ctx.types.precedent_terms)
-    d_win = shingle_hashes(_window(db, dc, da))
-    p_win = shingle_hashes(_window(pb, pc, pa))
-    only_d = np.setdiff1d(d_win, p_win, assume_unique=True)
-    only_p = np.setdiff1d(p_win, d_win, assume_unique=True)
+    # An insertion has no words on the precedent's side: there the precedent reads as the
+    # draft's context around the inserted words (terms already read as the precedent's), and
+    # the same for a deletion on the draft's side.
+    if dev.change == "insert" and pspan is None and dspan is not None:
+        pb, pc, pa = db, [], da
+    elif dev.change == "delete" and dspan is None and pspan is not None:
+        db, dc, da = pb, [], pa
+    d_tokens, p_tokens = _window(db, dc, da), _window(pb, pc, pa)
+    d_win, p_win = shingle_hashes(d_tokens), shingle_hashes(p_tokens)
+    changed = dc if dev.change in ("insert", "replace") else pc if dev.change == "delete" else []
+    # A window shorter than a shingle (words inserted at the very end of a short provision's
+    # other side) has no shingle a library text could share: that side has no words of its own.
+    only_d = np.setdiff1d(d_win, p_win, assume_unique=True) if len(d_tokens) >= SHINGLE_SIZE else d_win[:0]
+    only_p = np.setdiff1d(p_win, d_win, assume_unique=True) if len(p_tokens) >= SHINGLE_SIZE else p_win[:0]
+    return _Change(only_d, only_p, changed)
 
+
+# ----------------------------------------------------------------------------------------
+# Slots: a provision's counterpart in each library document
+# ----------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class Slot:
+    """A provision's place in the precedent set (module docstring, "Counterparts").
+
+    ``rows[i]`` (a row of ``bucket``: one distinct wording) is the counterpart in library
+    document ``docs[i]``; documents without a counterpart are not listed.  ``own[i]``: that
+    counterpart carries the wording of ``side`` ("d" the draft's, "p" the precedent's when
+    the draft has no such provision); ``other[i]``: it carries the other side's wording
+    instead.  By words (``words``) for a word-level deviation: the side's wording of the
+    change, as ``matching`` counts it; otherwise the whole wording within the cut-off.
+    """
+
+    bucket_name: str | None
+    bucket: BucketIndex | None
+    side: str
+    rows: np.ndarray
+    docs: np.ndarray
+    own: np.ndarray
+    other: np.ndarray
+    #: Distance of every bucket row to the side's provision, and to the other side's (or None).
+    dist: np.ndarray
+    other_dist: np.ndarray | None
+    words: bool
+    #: Whole wordings only: the draft's and the precedent's provisions read the same (within
+    #: the cut-off of each other), so ``own`` holds both and ``other`` is empty.
+    same_wording: bool = False
+
+    @property
+    def present(self) -> int:
+        """Library documents that have the slot."""
+        return int(self.docs.size)
+
+
+def _counterparts(ctx: _Context, bucket: BucketIndex, sides: Sequence[tuple[str, str]]) -> tuple[np.ndarray, np.ndarray]:
+    """(counterpart row per document, documents ascending) of the provisions *sides* (one
+    provision, or the draft's and the precedent's of a word-level deviation).  A row can be
+    a counterpart when it is within the cut-off of a side's provision, or shares a shingle
+    with it and is no farther from it than from any other same-bucket provision of that
+    side's document; each document's counterpart is its candidate row nearest to either side
+    (ties: the lower row, i.e. the more common wording).  Cost O(rows x sides x siblings)
+    plus one sort of the bucket's (row, document) entries."""
+    n = bucket.rows
+    cutoff = ctx.config.cutoff
+    score = np.full(n, -np.inf)
+    for side, pid in sides:
+        dist = ctx.distances(bucket, side, pid)
+        nearest = np.ones(n, dtype=bool)
+        for sib in ctx.siblings(side, bucket.name):
+            if sib != pid:
+                nearest &= dist <= ctx.distances(bucket, side, sib)
+        ok = (dist <= cutoff) | ((dist < 1.0) & nearest)
+        score = np.where(ok, np.maximum(score, 1.0 - dist), score)
+    lengths = np.diff(bucket.docptr)
+    rows_rep = np.repeat(np.arange(n), lengths)
+    docs = bucket.docs
+    keep = np.isfinite(score[rows_rep])
+    rows_rep, docs = rows_rep[keep], docs[keep]
+    if rows_rep.size == 0:
+        return np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64)
+    order = np.lexsort((rows_rep, -score[rows_rep], docs))
+    first = np.ones(order.size, dtype=bool)
+    first[1:] = docs[order][1:] != docs[order][:-1]
+    return rows_rep[order][first], docs[order][first]
+
+
+def _slot(ctx: _Context, selection: Deviation | Pair, *, change: _Change | None = None) -> Slot:
+    if isinstance(selection, Pair):
+        d_id, p_id, dev = selection.draft, selection.precedent, None
+    else:
+        d_id, p_id, dev = selection.draft_provision, selection.precedent_provision, selection
+    empty = np.zeros(0, dtype=np.int64)
+    nothing = np.zeros(0, dtype=bool)
+    if d_id is None and p_id is None:
+        return Slot(None, None, "d", empty, empty, nothing, nothing, np.zeros(0), None, False)
+    bucket_name = ctx.bucket_name(d_id, p_id)
+    bucket = ctx.library.bucket(bucket_name)
+    side, pid = ("d", d_id) if d_id is not None else ("p", p_id)
+    other = ("p", p_id) if side == "d" and p_id is not None else None
+    if dev is not None and _is_word_level(dev) and change is None:
+        change = _change(ctx, dev)
+    words = change is not None and change.only_d.size > 0
+    if bucket is None or bucket.rows == 0:
+        return Slot(bucket_name, bucket, side, empty, empty, nothing, nothing, np.zeros(0), None, words)
+    dist = ctx.distances(bucket, side, pid)  # type: ignore[arg-type]
+    other_dist = ctx.distances(bucket, *other) if other is not None else None  # type: ignore[arg-type]
+    if words:
+        assert change is not None and other is not None
+        rows, docs = _counterparts(ctx, bucket, ((side, pid), other))  # type: ignore[arg-type]
+        hits_d = bucket.intersections(change.only_d) / change.only_d.size
+        hits_p = (bucket.intersections(change.only_p) / change.only_p.size if change.only_p.size
+                  else np.zeros(bucket.rows))
+        carries_d = (hits_d >= DEPARTURE_MATCH_MIN) & (hits_d > hits_p)
+        if change.only_p.size:
+            carries_p = (hits_p >= DEPARTURE_MATCH_MIN) & (hits_p > hits_d)
+        else:  # no words of the precedent's own: its whole wording, where the draft's is not
+            carries_p = ~carries_d & (other_dist <= ctx.config.cutoff)  # type: ignore[operator]
+        return Slot(bucket_name, bucket, side, rows, docs, carries_d[rows], carries_p[rows], dist, other_dist, True)
+    rows, docs = _counterparts(ctx, bucket, ((side, pid),))  # type: ignore[arg-type]
+    own = dist[rows] <= ctx.config.cutoff
+    same = False
+    if other_dist is not None:
+        same = set_distance(ctx.wording("d", d_id).hashes, ctx.wording("p", p_id).hashes,  # type: ignore[arg-type]
+                            metric=ctx.config.metric) <= ctx.config.cutoff
+    if other_dist is None or same:
+        theirs = np.zeros(rows.size, dtype=bool)
+    else:
+        theirs = (other_dist[rows] <= ctx.config.cutoff) & ~own
+    return Slot(bucket_name, bucket, side, rows, docs, own, theirs, dist, other_dist, False, same)
+
+
+def provision_slot(library: Library, review: Review, selection: Deviation | Pair, *,
+                   types: ReviewTypes | None = None) -> Slot:
+    """The slot of *selection* (a deviation or a pair of *review*) in *library*: its
+    counterpart in each library document, and which carry the draft's wording as the
+    selection's ``frequency.matching`` counts it (module docstring)."""
+    return _slot(_Context(review, library, types or review_types(review, library)), selection)
+
+
+def _departure_frequency(ctx: _Context, dev: Deviation, bucket_name: str) -> Frequency:
+    d_id = dev.draft_provision
+    bucket = ctx.library.bucket(bucket_name)
+    if bucket is None or bucket.rows == 0:
+        return Frequency(0, 0, ctx.total, (), 0 if dev.change in ("insert", "delete", "replace") else None)
+    change = _change(ctx, dev)
     dist_d = ctx.distances(bucket, "d", d_id)  # type: ignore[arg-type]
-    dist_p = ctx.distances(bucket, "p", p_id)  # type: ignore[arg-type]
     same_type = len(bucket.all_documents())
-    changed_words = dc if dev.change in ("insert", "replace") else pc if dev.change == "delete" else []
-    containing = ctx.containing_phrase(bucket, changed_words) if dev.change in ("insert", "delete", "replace") else None
+    containing = (ctx.containing_phrase(bucket, change.changed_words)
+                  if dev.change in ("insert", "delete", "replace") else None)
     closest = ctx.closest(bucket, dist_d)
-    if only_d.size == 0:
+    if change.only_d.size == 0:
         # No wording of the draft's own (e.g. only formatting or terms differ): whole-provision
         # comparison of the draft's wording.
         within = dist_d <= ctx.config.cutoff
         return Frequency(same_type, len(bucket.documents_of(within)), ctx.total, closest, containing,
                          ctx.position_of_rows(bucket, within, dist_d))
-    hits_d = bucket.intersections(only_d) / only_d.size
-    hits_p = bucket.intersections(only_p) / only_p.size if only_p.size else np.zeros(bucket.rows)
-    carries = (hits_d >= DEPARTURE_MATCH_MIN) & (hits_d > hits_p)
-    sim = 1.0 - np.minimum(dist_d, dist_p)
-    # Each document's counterpart: its row most similar to either side.
-    lengths = np.diff(bucket.docptr)
-    rows_rep = np.repeat(np.arange(bucket.rows), lengths)
-    docs = bucket.docs
-    order = np.lexsort((rows_rep, -sim[rows_rep], docs))
-    first = np.ones(order.size, dtype=bool)
-    first[1:] = docs[order][1:] != docs[order][:-1]
-    counterpart_rows = rows_rep[order][first]
-    ok = sim[counterpart_rows] >= COUNTERPART_MIN_SIMILARITY
-    carrying_rows = counterpart_rows[ok & carries[counterpart_rows]]
-    matching = int(carrying_rows.size)  # one counterpart per document
+    slot = _slot(ctx, dev, change=change)
+    carrying_rows = slot.rows[slot.own]
     mask = np.zeros(bucket.rows, dtype=bool)
     mask[carrying_rows] = True
-    return Frequency(same_type, matching, ctx.total, closest, containing,
+    return Frequency(same_type, int(carrying_rows.size), ctx.total, closest, containing,  # one per document
                      ctx.position_of_rows(bucket, mask, dist_d))
 
 
@@ -429,82 +591,3 @@ def apply_frequency(review: Review, library: Library, *, types: ReviewTypes | No
     ranked = sorted(adjusted, key=lambda v: (-v.severity, _id_order(v)))
     deviations = tuple(dataclasses.replace(v, rank=r) for r, v in enumerate(ranked, 1))
     return dataclasses.replace(review, pairs=tuple(pairs), deviations=deviations)
-
-
-# ----------------------------------------------------------------------------------------
-# The variants of one provision's clause type (for the desktop app's variants view)
-# ----------------------------------------------------------------------------------------
-
-
-@dataclass(frozen=True, slots=True)
-class VariantView:
-    id: int
-    name: str  # "Variant 1", most common first
-    count: int  # documents using a wording of the variant
-    text: str  # one wording of the variant, as a library document has it
-    position: str | None
-    is_draft: bool  # the provision's own wording falls in this variant
-
-
-@dataclass(frozen=True, slots=True)
-class ClosestText:
-    document: str
-    provision: str
-    similarity: float
-    text: str
-
-
-@dataclass(frozen=True, slots=True)
-class VariantsInfo:
-    clause_type: str | None
-    label: str
-    total: int
-    same_type: int
-    variants: tuple[VariantView, ...]
-    closest: tuple[ClosestText, ...]
-
-
-#: Variants listed at most by :func:`variants_for` (the rest are rare wordings).
-MAX_VARIANTS_SHOWN = 12
-
-
-def variants_for(library: Library, provision: Provision, *, document: Document | None = None,
-                 renames: Mapping[str, str] | None = None,
-                 max_variants: int = MAX_VARIANTS_SHOWN) -> VariantsInfo:
-    """The wording variants of *provision*'s clause type in *library*, which one holds the
-    provision's own wording, and the closest library provisions with their text.  Give the
-    provision's *document* for its defined terms and clause type, and *renames* (draft term ->
-    precedent term) for a draft provision."""
-    from .clausetypes import heading_type, load_taxonomy
-
-    tax = load_taxonomy()
-    aliases = library.aliases()
-    if document is not None:
-        terms = document_term_replacer(document, aliases=aliases, renames=renames)
-        typing = {t.provision: t for t in classify_provisions(document, neighbours=library.neighbours(), terms=terms)}
-        ctype = typing[provision.id].clause_type if provision.id in typing else None
-    else:
-        terms = TermReplacer({})
-        ctype = heading_type(provision.heading)
-    bucket_name = bucket_of(ctype, provision.kind)
-    bucket = library.bucket(bucket_name)
-    total = library.total
-    if bucket is None or bucket.rows == 0:
-        return VariantsInfo(ctype, tax.label(ctype), total, 0, (), ())
-    toks = normalised_wording(provision.text, provision.heading, terms=terms)
-    q = shingle_hashes(toks)
-    dist = distances_from_counts(bucket.intersections(q), bucket.sizes, np.full(bucket.rows, q.size),
-                                 metric=library.config.metric)
-    nearest = int(np.lexsort((np.arange(bucket.rows), dist))[0])
-    own_variant = int(bucket.variant[nearest]) if dist[nearest] <= library.config.cutoff else None
-    infos = library.variants(bucket=bucket_name)[:max_variants]
-    texts = library.texts([v.sample for v in infos if v.sample is not None])
-    views = tuple(VariantView(v.id, f"Variant {v.ordinal}", v.documents, texts.get(v.sample or -1, ""),
-                              v.position, v.id == own_variant) for v in infos)
-    order = np.lexsort((np.arange(bucket.rows), -bucket.count, dist))[:CLOSEST_COUNT]
-    samples = [int(bucket.sample[i]) for i in order]
-    refs = library.provision_refs(samples)
-    ctexts = library.texts(samples)
-    closest = tuple(ClosestText(refs[s][0], refs[s][1], round(float(1.0 - dist[i]), 3), ctexts.get(s, ""))
-                    for i, s in zip(order.tolist(), samples) if s in refs)
-    return VariantsInfo(ctype, tax.label(ctype), total, len(bucket.all_documents()), views, closest)

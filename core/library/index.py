@@ -199,8 +199,11 @@ def _private_dir(path: Path) -> None:
         path.mkdir(mode=0o700, parents=False, exist_ok=True)
         os.chmod(path, 0o700)
     except OSError as err:
-        raise CounterdraftError(f"cannot create the index folder ({err.strerror}); "
-                                "choose another place with --db", path=str(path)) from None
+        # 'review --library' and the desktop app keep the index inside the folder; only the
+        # 'counterdraft library' commands take another place (--db).
+        raise CounterdraftError(f"cannot create the index folder ({err.strerror}): the precedent set's "
+                                "index is kept inside its folder, so the folder must be writable; copy the "
+                                "agreements to a folder you can write to", path=str(path)) from None
 
 
 def _write_private(path: Path, data: bytes) -> None:
@@ -990,6 +993,14 @@ class Library:
     def texts(self, ids: Sequence[int]) -> dict[int, str]:
         """Provision texts of provision rows *ids* (for display only; never logged)."""
         return self._column("text", ids)
+
+    def term_replacer(self, provision_id: int) -> TermReplacer:
+        """The term normaliser of the document holding provision row *provision_id*: its
+        defined terms read through the library's aliases, as the index normalised it."""
+        row = self.conn.execute("SELECT document_id FROM provisions WHERE id = ?", (int(provision_id),)).fetchone()
+        terms = [] if row is None else [t for (t,) in self.conn.execute(
+            "SELECT term FROM terms WHERE document_id = ?", (row[0],))]
+        return _doc_replacer(terms, self.aliases())
 
     def variant_positions(self) -> dict[int, str]:
         return {v: p for v, p in self.conn.execute("SELECT id, position FROM variants WHERE position IS NOT NULL")}

@@ -45,6 +45,7 @@ __all__ = [
     "shingle_hashes",
     "shingle_set",
     "term_slug",
+    "token_spans",
     "vocab_tokens",
 ]
 
@@ -158,6 +159,33 @@ def match_tokens(text: str, *, terms: TermReplacer | None = None) -> list[str]:
     if terms is not None:
         t = terms.sub(t, lambda c: TERM_MARK + term_slug(c))
     return _TOKEN_RE.findall(t.lower())
+
+
+def token_spans(text: str, *, terms: TermReplacer | None = None) -> tuple[str, list[tuple[str, int, int]]]:
+    """The folded *text* (:func:`fold`) and its :func:`match_tokens` tokens, each with its
+    ``(start, end)`` in the folded text, so that a comparison of tokens can quote the words
+    (a defined term's span covers its whole use, e.g. "Client's")."""
+    t = fold(text)
+    out: list[tuple[str, int, int]] = []
+
+    def plain(a: int, b: int) -> None:
+        seg = t[a:b]
+        low = seg.lower()
+        if len(low) != len(seg):  # a rare letter whose lower case is longer: keep the offsets
+            low = seg
+        for m in _TOKEN_RE.finditer(low):
+            out.append((m.group(0).lower(), a + m.start(), a + m.end()))
+
+    pos = 0
+    regex = terms._regex if terms is not None else None  # noqa: SLF001 - same module
+    if regex is not None:
+        canon = terms._canon  # type: ignore[union-attr]  # noqa: SLF001
+        for m in regex.finditer(t):
+            plain(pos, m.start())
+            out.append((TERM_MARK + term_slug(canon[m.group(0)]), m.start(), m.end()))
+            pos = m.end()
+    plain(pos, len(t))
+    return t, out
 
 
 _VOCAB_WORD_RE = re.compile(r"[A-Za-z][A-Za-z0-9_]*(?:'[a-z]+)?|[0-9]+(?:[.,][0-9]+)*")

@@ -8,11 +8,16 @@
 2. **alignment** (:mod:`.align`): provisions paired by content and heading after term
    normalisation; statuses same / changed / moved / added / removed / split / merged;
 3. **word diff** (:mod:`.worddiff`) of every aligned pair, with the draft's defined terms
-   read as the precedent's and cross-references read as the provision they point at;
+   read as the precedent's and cross-references read as the provision they point at; each
+   pair keeps its diff as ``Pair.edits`` (offsets into the original texts; the invariants
+   are in :mod:`core.model`), which the outputs and the desktop app show as it is;
 4. **classification** (:mod:`.classify`) of each change: formatting, punctuation, numbering,
    term or substantive;
 5. **severity** (:mod:`.severity`, rules in ``resources/severity.toml``) and ranking: by
-   descending severity, ties in draft order.
+   descending severity, ties in draft order.  A heading one side only adds or removes is
+   formatting (the rule file's ``[headings]``); a heading whose words changed is a low
+   substantive deviation.  Each deviation says which part it concerns (``part``: text,
+   heading or the whole provision).
 
 A pair's status is ``same`` when its only differences are renamed defined terms and
 renumbering, ``changed`` otherwise; ``moved``, ``split`` and ``merged`` take precedence.
@@ -29,7 +34,7 @@ from bisect import bisect_right
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 
-from ..model import Deviation, Document, Pair, Provision, Review
+from ..model import Deviation, Document, Edit, Pair, Provision, Review
 from .align import Alignment, Features, Group, align
 from .classify import Change, TermContext, classify_ops
 from .docinfo import DocInfo, build_docinfo
@@ -40,6 +45,7 @@ from .severity import (
     clause_types_for,
     default_rules,
     find_quantities,
+    heading_only_reason,
     provision_change_severity,
     text_change_severity,
 )
@@ -60,7 +66,7 @@ from .tokens import (
     term_matcher,
     word_keys,
 )
-from .worddiff import token_ops
+from .worddiff import pair_edits_from_ops, token_ops
 
 __all__ = ["NO_SHARED_NOTE", "TermOverride", "VocabularyModel", "clear_caches", "review_to_dict",
            "run_review"]
@@ -167,6 +173,7 @@ class _Dev:
     reasons: tuple[str, ...]
     precedent_span: tuple[int, int] | None = None
     draft_span: tuple[int, int] | None = None
+    part: str = "text"  # see core.model.Deviation.part
 
 
 def _local_label(num: str) -> str:
@@ -265,6 +272,8 @@ class _Builder:
         self.tm, self.al, self.rules = tm, al, rules
         self.d_types, self.p_types = d_types, p_types
         self.devs: list[_Dev] = []
+        # (draft position, precedent position) -> the pair's word diff (Pair.edits)
+        self.edits: dict[tuple[int, int], tuple[Edit, ...]] = {}
         # where a removed precedent provision would sit in the draft's order
         self.p_anchor: dict[int, float] = {}
         last = -0.5
@@ -345,14 +354,15 @@ class _Builder:
             sev = category_severity(key, rules=self.rules)
             reasons = (ch.note,) if ch.note else ()
         if heading:
-            if ch.category != "substantive":
+            if ch.category != "substantive" and not ch.note.startswith("heading"):
                 reasons = tuple(f"heading: {r}" for r in reasons)
-            pspan = dspan = None  # type: ignore[assignment]
+        # An insert's precedent span and a delete's draft span are empty at the insertion
+        # point; a heading has no span in the text.
         self.devs.append(_Dev(
             (float(dp), 0 if heading else 1, ch.d_span[0]), sev, ch.category, ch.change,
             self.di.provisions[dp].id, self.pi.provisions[pp].id, ptxt, dtxt, reasons,
-            None if heading or ch.change == "insert" else pspan,
-            None if heading or ch.change == "delete" else dspan))
+            None if heading else pspan, None if heading else dspan,
+            "heading" if heading else "text"))
 
     def _quantities(self, text: str, spans: Sequence[tuple[int, int]]) -> list[tuple[int, int]]:
         """Character spans of the figures near the given spans of *text*."""
@@ -381,6 +391,8 @@ class _Builder:
             pterm, dterm = pbt.term_at, dbt.term_at
         clock.lap("tokens: words, terms, cross-references")
         ops = token_ops(a, b)
+        if len(g.precedents) == 1 and len(g.drafts) == 1:
+            self.edits[(g.drafts[0], g.precedents[0])] = pair_edits_from_ops(a, b, ops)
         clock.lap("word diff: diff-match-patch")
         counted = 0
         if all(op.tag == "equal" for op in ops):
@@ -414,12 +426,29 @@ class _Builder:
             if changes:
                 top = changes[0]
                 kind = "insert" if not ph.strip() else ("delete" if not dh.strip() else "replace")
-                whole = Change(top.category, kind, (0, len(ph)), (0, len(dh)), top.detail,
-                               note=top.note if top.category != "substantive" else "")
+                if (top.category == "substantive" and kind != "replace"
+                        and self.rules.heading_added_or_removed == "formatting"):
+                    # a heading only added or removed: formatting (rule file, [headings])
+                    whole = Change("formatting", kind, (0, len(ph)), (0, len(dh)), "heading",
+                                   note=heading_only_reason(ph, dh))
+                else:
+                    whole = Change(top.category, kind, (0, len(ph)), (0, len(dh)), top.detail,
+                                   note=top.note if top.category != "substantive" else "")
                 counted += 1
                 self._add_change(whole, ptext=ph, pstarts=[0], ppos=g.precedents[:1],
                                  dtext=dh, dstarts=[0], dpos=g.drafts[:1], heading=True)
         return counted
+
+    def _pair_edits(self, d: int, p: int) -> tuple[Edit, ...]:
+        """Pair.edits of draft position *d* and precedent position *p*: the group's own diff
+        for a one-to-one pair; for a split or merged group, a diff of the pairing's two
+        texts with the same keys (term map and cross-references)."""
+        got = self.edits.get((d, p))
+        if got is None:
+            a = self.pside.seq(p, self._xref_precedent)
+            b = self.dside.seq(d, self._xref_draft)
+            got = self.edits[(d, p)] = pair_edits_from_ops(a, b, token_ops(a, b))
+        return got
 
     def _fold(self, info: DocInfo, positions: Sequence[int]) -> list[list[int]]:
         """Group positions into subtrees: a provision whose parent is in the set joins it."""
@@ -459,7 +488,8 @@ class _Builder:
                 status = "same" if n_changes == 0 else "changed"
             for (d, p), s in zip(g.pairings, g.pair_similarities):
                 pairs.append(((float(d), 0, p), Pair(di.provisions[d].id, pi.provisions[p].id,
-                                                     status, round(s, 3))))
+                                                     status, round(s, 3),
+                                                     edits=self._pair_edits(d, p))))
             d0, p0 = g.drafts[0], g.precedents[0]
             if g.moved:
                 dpar, ppar = di.parent_pos[d0], pi.parent_pos[p0]
@@ -470,7 +500,7 @@ class _Builder:
                         "move", di.provisions[d0].id, pi.provisions[p0].id, "", "",
                         (f"moved: {_label(pi, p0)} of the precedent is "
                          f"{_label(di, d0, with_heading=False)} of the draft, in a different "
-                         "place in the order",)))
+                         "place in the order",), part="provision"))
             elif g.kind == "match":
                 dn, pn = di.full_number[d0], pi.full_number[p0]
                 if dn and pn and dn != pn:
@@ -482,7 +512,7 @@ class _Builder:
                             (float(d0), 0, -2), category_severity("numbering", rules=rules),
                             "numbering", "replace", di.provisions[d0].id, pi.provisions[p0].id,
                             pi.provisions[p0].number or pn, di.provisions[d0].number or dn,
-                            (f"renumbered from {pn} to {dn}",)))
+                            (f"renumbered from {pn} to {dn}",), part="provision"))
         # Added and removed provisions: one deviation per subtree.
         for members in self._fold(di, al.added):
             root = members[0]
@@ -495,7 +525,8 @@ class _Builder:
                 reasons = (reasons[0] + f", with {len(members) - 1} sub-provision"
                            f"{'s' * (len(members) > 2)}",) + reasons[1:]
             self.devs.append(_Dev((float(root), 0, -3), sev, "substantive", "add-provision",
-                                  di.provisions[root].id, None, "", text, reasons))
+                                  di.provisions[root].id, None, "", text, reasons,
+                                  part="provision"))
         for d in al.added:
             pairs.append(((float(d), 0, -1), Pair(di.provisions[d].id, None, "added", 0.0)))
         for members in self._fold(pi, al.removed):
@@ -509,7 +540,8 @@ class _Builder:
                 reasons = (reasons[0] + f", with {len(members) - 1} sub-provision"
                            f"{'s' * (len(members) > 2)}",) + reasons[1:]
             self.devs.append(_Dev((self.p_anchor[root], 0, -3), sev, "substantive",
-                                  "remove-provision", None, pi.provisions[root].id, text, "", reasons))
+                                  "remove-provision", None, pi.provisions[root].id, text, "", reasons,
+                                  part="provision"))
         for p in al.removed:
             pairs.append(((self.p_anchor[p], 0, p), Pair(None, pi.provisions[p].id, "removed", 0.0)))
         # One deviation per renamed defined term.
@@ -523,7 +555,7 @@ class _Builder:
                 dprov, pprov, m.precedent, m.draft,
                 (f'defined term renamed: the draft\'s "{m.draft}" is the precedent\'s '
                  f'"{m.precedent}" ({m.occurrences} use{"s" * (m.occurrences != 1)} in the '
-                 f"draft; evidence: {ev}; confidence {m.confidence:.2f})",)))
+                 f"draft; evidence: {ev}; confidence {m.confidence:.2f})",), part="provision"))
 
         pairs.sort(key=lambda t: t[0])
         # ids in draft order, ranks by severity then draft order
@@ -533,7 +565,7 @@ class _Builder:
         deviations = tuple(
             Deviation(ids[id(v)], r, v.severity, v.category, v.change, v.draft_provision,
                       v.precedent_provision, v.precedent_text, v.draft_text, v.reasons,
-                      None, v.precedent_span, v.draft_span)
+                      None, v.precedent_span, v.draft_span, v.part)
             for r, v in enumerate(ranked, 1))
         notes: list[str] = []
         if not al.groups and (di.provisions or pi.provisions):

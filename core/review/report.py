@@ -1,15 +1,18 @@
 """The review as a ranked plain-text table for a terminal (``counterdraft review`` without
-``--json``): rank, severity, clause number and heading, one-line summary, within a given
-width (100 columns by default), followed by the caution."""
+``--json``): rank, severity, the deviation's id (what ``counterdraft decide`` takes), clause
+number and heading (:func:`core.labels.clause_label`), how common the draft's wording is in
+the precedent set when one was used ("2/12": ``Frequency.matching`` of ``Frequency.total``
+agreements), and a one-line summary, within a given width (100 columns by default),
+followed by the caution.  Every cell is read from the review; nothing is recomputed."""
 
 from __future__ import annotations
 
-import re
 import textwrap
 from collections import Counter
 
 from .. import CAUTION
-from ..model import Deviation, Document, Review
+from ..labels import clause_label
+from ..model import Deviation, Review
 
 __all__ = ["SHOW_CHOICES", "format_review", "shown_deviations"]
 
@@ -17,8 +20,13 @@ __all__ = ["SHOW_CHOICES", "format_review", "shown_deviations"]
 SHOW_CHOICES = ("substantive", "all")
 _DEFAULT_CATEGORIES = frozenset({"substantive", "term"})
 _RANK_W, _SEV_W, _CLAUSE_W = 4, 3, 30
+#: Narrowest clause column, and the room the summary keeps before the clause column
+#: narrows (columns): on a narrow terminal both stay readable.
+_CLAUSE_MIN_W, _SUMMARY_MIN_W = 12, 24
 #: Narrowest table the layout supports (columns).
 MIN_WIDTH = 60
+#: Shown in the "Common" column for a deviation without a frequency (e.g. a renamed term).
+NO_FREQUENCY = "-"
 
 
 def shown_deviations(review: Review, *, show: str | None = None) -> list[Deviation]:
@@ -34,37 +42,10 @@ def _cut(s: str, width: int) -> str:
     return s if len(s) <= width else s[: max(0, width - 1)].rstrip() + "\u2026"
 
 
-def _number(num: str | None) -> str:
-    if not num:
-        return ""
-    return re.sub(r"^(?:Article|Section|Clause|Schedule|Part)\s+", "", num.strip(), flags=re.I)
-
-
-def _clause(doc: Document, pid: str | None) -> str:
-    """"14.3 Liability Cap": the provision's number (with its parents') and the nearest
-    heading up its chain."""
-    if pid is None:
-        return ""
-    by_id = {p.id: p for p in doc.provisions}
-    p = by_id.get(pid)
-    if p is None:
-        return pid
-    numbers: list[str] = []
-    heading = None
-    cur = p
-    depth = 0
-    while cur is not None and depth < 64:  # bounded walk up the parent chain
-        n = _number(cur.number)
-        if n and (not numbers or numbers[0].startswith("(")):
-            numbers.insert(0, n)
-        if heading is None and cur.heading:
-            heading = cur.heading
-        cur = by_id.get(cur.parent) if cur.parent else None
-        depth += 1
-    label = "".join(numbers) if numbers else ("def." if p.kind == "definition" else p.kind)
-    if p.kind == "definition" and p.term:
-        heading = f'"{p.term}"'
-    return f"{label} {heading}" if heading else label
+def _common(v: Deviation) -> str:
+    """"2/12": agreements of the precedent set with the draft's wording, of all."""
+    f = v.frequency
+    return NO_FREQUENCY if f is None else f"{f.matching}/{f.total}"
 
 
 def _summary(v: Deviation) -> str:
@@ -90,16 +71,31 @@ def format_review(review: Review, *, show: str | None = None, width: int = 100) 
         lines.extend(textwrap.wrap(f"Note: {note}", width))
     lines.append("")
     rows = shown_deviations(review, show=show)
-    summary_w = width - (_RANK_W + 1 + _SEV_W + 2 + _CLAUSE_W + 2)
-    lines.append(f"{'Rank':>{_RANK_W}} {'Sev':>{_SEV_W}}  {'Clause':<{_CLAUSE_W}}  Summary")
+    ids = [v.id for v in rows]
+    id_w = max([2, *map(len, ids)])
+    common = [_common(v) for v in rows]
+    with_common = any(c != NO_FREQUENCY for c in common)
+    common_w = max([len("Common"), *map(len, common)]) if with_common else 0
+    fixed = _RANK_W + 1 + _SEV_W + 2 + id_w + 2 + 2 + (common_w + 2 if with_common else 0)
+    clause_w = max(_CLAUSE_MIN_W, min(_CLAUSE_W, width - fixed - _SUMMARY_MIN_W))
+    summary_w = max(1, width - fixed - clause_w)
+    if with_common:
+        total = next(v.frequency.total for v in rows if v.frequency is not None)
+        lines.extend(textwrap.wrap(
+            f"Common: agreements of the precedent set ({total}) whose clause of the same type "
+            "has the draft's wording (for a provision left out: lacks it).", width))
+    head = f"{'Rank':>{_RANK_W}} {'Sev':>{_SEV_W}}  {'Id':<{id_w}}  {'Clause':<{clause_w}}  "
+    if with_common:
+        head += f"{'Common':>{common_w}}  "
+    lines.append(head + "Summary")
     lines.append("-" * width)
-    for v in rows:
-        if v.draft_provision is not None:
-            clause = _clause(review.draft, v.draft_provision)
-        else:
-            clause = "precedent " + _clause(review.precedent, v.precedent_provision)
-        lines.append(f"{v.rank:>{_RANK_W}} {v.severity:>{_SEV_W}}  "
-                     f"{_cut(clause, _CLAUSE_W):<{_CLAUSE_W}}  {_cut(_summary(v), summary_w)}".rstrip())
+    for v, c in zip(rows, common):
+        clause = clause_label(review, v, compact=True)
+        line = (f"{v.rank:>{_RANK_W}} {v.severity:>{_SEV_W}}  {v.id:<{id_w}}  "
+                f"{_cut(clause, clause_w):<{clause_w}}  ")
+        if with_common:
+            line += f"{c:>{common_w}}  "
+        lines.append((line + _cut(_summary(v), summary_w)).rstrip())
     if not rows:
         lines.append("(no deviation to show)")
     hidden = len(review.deviations) - len(rows)

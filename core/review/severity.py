@@ -60,6 +60,8 @@ _SIGNALS = (
 )
 _CATEGORY_KEYS = ("term", "move", "numbering", "numbering_cross_reference", "formatting",
                   "punctuation")
+#: Values of ``headings.added_or_removed`` in the rule file.
+HEADING_ADDED_OR_REMOVED_CHOICES = ("formatting", "substantive")
 
 
 class ClauseClassifier(Protocol):
@@ -82,6 +84,9 @@ class SeverityRules:
     qualifiers: tuple[str, ...]
     other_signals: float = 0.25
     sentence_words: int = 8
+    #: Category of a heading that one side only adds or removes (``[headings]`` of the rule
+    #: file): "formatting" or "substantive".
+    heading_added_or_removed: str = "formatting"
     source: str = "built-in"
     _cache: dict = field(default_factory=dict, compare=False, repr=False)
 
@@ -143,6 +148,13 @@ def load_rules(path: str | Path | None = None) -> SeverityRules:
     keywords = {k: _str_list(sp, f"clause_type_keywords.{k}", v)
                 for k, v in data["clause_type_keywords"].items()}
     scale = data["scale"]
+    headings = data.get("headings", {})  # optional: a rule file written before it had it
+    if not isinstance(headings, dict):
+        raise _fail(sp, "[headings] must be a table")
+    heading_rule = headings.get("added_or_removed", "formatting")
+    if heading_rule not in HEADING_ADDED_OR_REMOVED_CHOICES:
+        raise _fail(sp, "headings.added_or_removed must be "
+                        + " or ".join(f'"{c}"' for c in HEADING_ADDED_OR_REMOVED_CHOICES))
     return SeverityRules(
         signals=signals, categories=categories, weights=weights, kind_weights=kind_weights,
         clause_type_keywords=keywords,
@@ -152,6 +164,7 @@ def load_rules(path: str | Path | None = None) -> SeverityRules:
         qualifiers=_str_list(sp, "qualifiers.phrases", data["qualifiers"].get("phrases")),
         other_signals=_number(sp, "scale.other_signals", scale.get("other_signals"), 0, 1),
         sentence_words=int(_number(sp, "scale.sentence_words", scale.get("sentence_words"), 1, 1000)),
+        heading_added_or_removed=heading_rule,
         source=sp,
     )
 
@@ -521,6 +534,13 @@ def _heading_reason(old: str, new: str) -> str:
     return f"heading changed from {_excerpt(old)} to {_excerpt(new)}"
 
 
+def heading_only_reason(old: str, new: str) -> str:
+    """Reason of a heading that one side only adds or removes, reported as formatting
+    (``headings.added_or_removed`` of the rule file)."""
+    return (_heading_reason(old, new) + " (a heading only added or removed is formatting: "
+            "agreements commonly provide that headings do not affect interpretation)")
+
+
 def _combine(rules: SeverityRules, signals: Sequence[Signal], weight: float) -> int:
     pts = sorted((rules.signals[s.name] for s in signals), reverse=True)
     if not pts:
@@ -617,4 +637,5 @@ def default_rules() -> SeverityRules:
     return _default_rules()
 
 
-__all__ += ["category_severity", "clear_caches", "default_rules"]
+__all__ += ["HEADING_ADDED_OR_REMOVED_CHOICES", "category_severity", "clear_caches", "default_rules",
+            "heading_only_reason"]

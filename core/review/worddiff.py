@@ -23,9 +23,9 @@ from dataclasses import dataclass
 from diff_match_patch import diff_match_patch
 
 from ..model import Edit
-from .tokens import TokenSeq, tokenize
+from .tokens import KIND_TERM, KIND_XREF, TokenSeq, tokenize
 
-__all__ = ["TokenOp", "diff_texts", "edits_from_ops", "token_ops"]
+__all__ = ["TokenOp", "diff_texts", "edits_from_ops", "pair_edits_from_ops", "token_ops"]
 
 # Private-use areas (Unicode 15.0 section 23.5): the BMP area, then planes 15 and 16.
 _PUA_RANGES = ((0xE000, 0xF8FF), (0xF0000, 0xFFFFD), (0x100000, 0x10FFFD))
@@ -171,6 +171,47 @@ def edits_from_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp]) -> list[Edi
         else:
             edits.append(Edit(tag, p1, p2, d1, d2))
     return edits
+
+
+def pair_edits_from_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp]) -> tuple[Edit, ...]:
+    """The hunks the review keeps in :attr:`core.model.Pair.edits` (see the invariants in
+    :mod:`core.model`): the ops as character-offset :class:`Edit` hunks of the original
+    texts, with each ``restyle`` op cut token by token -- identical tokens are ``equal``, a
+    restyled defined-term use or cross-reference is a ``replace`` hunk of its own (so that a
+    view can tell a renamed term or a renumbered reference from changed words), other
+    restyled tokens next to each other form one ``replace`` hunk.  Adjacent ``equal`` hunks
+    are merged.  O(tokens)."""
+    out: list[Edit] = []
+    whole: list[bool] = []  # per hunk of out: a term use or cross-reference on its own
+
+    def push(tag: str, p1: int, p2: int, d1: int, d2: int, alone: bool = False) -> None:
+        if p1 == p2 and d1 == d2:
+            return
+        if out and not alone and not whole[-1] and out[-1].tag == tag and tag in ("equal", "replace"):
+            prev = out[-1]
+            out[-1] = Edit(tag, prev.p1, p2, prev.d1, d2)
+            return
+        out.append(Edit(tag, p1, p2, d1, d2))
+        whole.append(alone)
+
+    for op in ops:
+        if op.tag != "restyle":
+            p1, p2 = a.span(op.i1, op.i2)
+            d1, d2 = b.span(op.j1, op.j2)
+            # a replace op from the diff is not merged with restyled tokens next to it
+            push(op.tag, p1, p2, d1, d2, alone=op.tag != "equal")
+            continue
+        for k in range(op.i2 - op.i1):
+            i, j = op.i1 + k, op.j1 + k
+            p1, p2 = a.span(i, i + 1)
+            d1, d2 = b.span(j, j + 1)
+            if a.text[p1:p2] == b.text[d1:d2]:
+                push("equal", p1, p2, d1, d2)
+            else:
+                push("replace", p1, p2, d1, d2, alone=a.kinds[i] in (KIND_TERM, KIND_XREF))
+        if whole and out[-1].tag == "replace" and not whole[-1]:
+            whole[-1] = True  # restyled tokens do not run on into the next op
+    return tuple(out)
 
 
 def diff_texts(precedent: str, draft: str, *, semantic: bool = True) -> list[Edit]:

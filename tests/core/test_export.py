@@ -22,6 +22,8 @@ from pathlib import Path
 
 import docx
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 from lxml import etree
 
 from core import CAUTION
@@ -527,3 +529,124 @@ def test_a_draft_with_tracked_changes_of_its_own_is_flagged(tmp_path):
     data, notes = counter_draft_bytes(review, [], draft_path=str(path), author=AUTHOR)
     assert any("tracked changes of its own" in n for n in notes)
     assert validate_docx(data) == []
+
+
+# --------------------------------------------------------------------------------------
+# The outputs consume the review's own results (Pair.edits, Deviation.part and spans)
+# --------------------------------------------------------------------------------------
+
+
+def _no_second_diff(monkeypatch) -> None:
+    """Make any word diff outside the review engine fail: the outputs must read the review's
+    Pair.edits instead."""
+    import core.review.worddiff as worddiff
+
+    def refuse(*_a, **_k):
+        raise AssertionError("an output diffed the texts again instead of reading Pair.edits")
+
+    monkeypatch.setattr(worddiff, "diff_texts", refuse)
+
+
+def _accept_reject(paras) -> tuple[list[str], list[str]]:
+    """Each paragraph's text with all changes accepted and with all rejected, read from the
+    runs as ECMA-376 Part 1 §17.13.5 defines the marks (ins/moveTo kept on acceptance,
+    del/moveFrom kept on rejection; a paragraph whose mark is deleted or moved away goes)."""
+    accepted = ["".join(r.text for r in p.runs if r.mark in ("", "ins", "moveTo"))
+                for p in paras if p.mark not in ("del", "moveFrom")]
+    rejected = ["".join(r.text for r in p.runs if r.mark in ("", "del", "moveFrom"))
+                for p in paras if p.mark not in ("ins", "moveTo")]
+    return accepted, rejected
+
+
+def test_demo_redline_is_built_from_the_reviews_word_diff(monkeypatch):
+    from core.export import redline_body
+    from core.reader import read_document
+    from core.review import run_review
+
+    review = run_review(read_document(str(DEMO / "draft.docx")), read_document(str(DEMO / "precedent.docx")))
+    _no_second_diff(monkeypatch)
+    paras = redline_body(review)
+    accepted, rejected = _accept_reject(paras)
+    assert accepted == _lines(review.draft)
+    assert rejected == _lines(review.precedent)
+    # the planted 30 -> 60 days shows as the review's own hunks, words only, and each use
+    # of a renamed defined term as a hunk of its own
+    (pay,) = [p for p in paras if any(r.mark == "ins" and r.text == "sixty" for r in p.runs)]
+    deleted = [r.text for r in pay.runs if r.mark == "del"]
+    inserted = [r.text for r in pay.runs if r.mark == "ins"]
+    assert {"thirty", "30", "Customer", "Supplier"} <= set(deleted)
+    assert {"sixty", "60", "Client", "Vendor"} <= set(inserted)
+
+
+def test_redline_of_the_engines_review_on_the_hand_made_pair(scenario, monkeypatch):
+    from core.export import redline_body
+    from core.reader import read_document
+    from core.review import run_review
+
+    review = run_review(read_document(str(scenario.draft_path)), read_document(str(scenario.precedent_path)))
+    _no_second_diff(monkeypatch)
+    accepted, rejected = _accept_reject(redline_body(review))
+    assert accepted == _lines(review.draft) and rejected == _lines(review.precedent)
+
+
+@settings(max_examples=200, deadline=None)
+@given(st.text(alphabet="ab .,\n", max_size=30), st.text(alphabet="ab .,\n", max_size=30),
+       st.data())
+def test_a_pairs_diff_restricted_to_one_paragraph_tiles_both_stretches(a, b, data):
+    """Any stretch of each text: the pieces rebuild exactly those stretches, and the
+    unchanged pieces are identical on both sides."""
+    from core.export import _clipped_pieces
+    from core.review.worddiff import diff_texts
+
+    edits = diff_texts(a, b)  # a word diff tiling both texts, as Pair.edits does
+    a0 = data.draw(st.integers(0, len(a)))
+    a1 = data.draw(st.integers(a0, len(a)))
+    b0 = data.draw(st.integers(0, len(b)))
+    b1 = data.draw(st.integers(b0, len(b)))
+    pieces = _clipped_pieces(edits, a, b, (a0, a1), (b0, b1))
+    assert "".join(p for _, p, _ in pieces) == a[a0:a1]
+    assert "".join(d for _, _, d in pieces) == b[b0:b1]
+    assert all(p == d for same, p, d in pieces if same)
+
+
+def test_a_delete_is_restored_at_the_drafts_empty_span(scenario, monkeypatch):
+    """A delete carries an empty draft span at its insertion point; reverting it puts the
+    precedent's words there (no diff of the texts is needed).  The hand-made pair read the
+    other way round: the draft took "or death" out of the precedent's clause."""
+    from core.reader import read_document
+    from core.review import run_review
+
+    review = run_review(read_document(str(scenario.precedent_path)), read_document(str(scenario.draft_path)))
+    (dev,) = [d for d in review.deviations if d.change == "delete" and d.category == "substantive"]
+    k, k2 = dev.draft_span
+    prov = review.draft.provision(dev.draft_provision)
+    assert k == k2 and prov.text[:k].endswith("fraud")
+    _no_second_diff(monkeypatch)
+    plan = plan_counter_draft(review, [Decision(dev.id, "revert")])
+    (edit,) = plan.edits
+    seg = prov.segments[0]
+    assert (edit.block, edit.start, edit.end) == (seg.block, seg.start + k, seg.start + k)
+    assert edit.replacement == " or death"
+
+
+def test_heading_deviations_are_found_by_their_part_not_guessed(scenario):
+    review = scenario.review
+    notices_d = next(p for p in review.draft.provisions if p.heading == "Notices")
+    notices_p = next(p for p in review.precedent.provisions if p.heading == "Notices")
+    heading = _made_deviation("v8", "replace", notices_d.id, notices_p.id, "Notices", "Notices", None, None,
+                         part="heading")
+    guessed = dataclasses.replace(heading, id="v9", part="text", reasons=("heading changed",))
+    review2 = dataclasses.replace(review, deviations=review.deviations + (heading, guessed))
+    plan = plan_counter_draft(review2, [Decision("v8", "amend", text="Communications")])
+    assert [e.replacement for e in plan.edits] == ["Communications"] and plan.notes == ()
+    # a deviation of the provision's text without any span has no place: it is skipped,
+    # never taken for a heading because of its reasons
+    plan = plan_counter_draft(review2, [Decision("v9", "amend", text="Communications")])
+    assert plan.edits == () and any("v9" in n for n in plan.notes)
+
+
+def _made_deviation(dev_id, change, d, p, ptext, dtext, pspan, dspan, *, part="text"):
+    from core.model import Deviation
+
+    return Deviation(dev_id, 99, 10, "substantive", change, d, p, ptext, dtext, ("a change",),
+                     None, pspan, dspan, part)

@@ -32,3 +32,14 @@ def test_short_and_frequency_text():
     assert short("x" * 80, 10) == "x" * 9 + "\u2026"
     f = make_review(with_frequency=True).deviations[0].frequency
     assert frequency_text(f) == "1 of 12" and frequency_text(None) == ""
+
+
+def test_the_views_use_the_engines_one_clause_label():
+    """No second copy of the label code in the app (core.labels is the one)."""
+    import core.labels
+    from desktop.labels import provision_caption
+
+    assert clause_label is core.labels.clause_label
+    review = make_review()
+    p = review.precedent.provision("p4")
+    assert provision_caption(p) == core.labels.provision_label(p) == "3 Limitation of liability"

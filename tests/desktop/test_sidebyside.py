@@ -106,3 +106,61 @@ def test_added_removed_and_moved_rows_say_so_in_words(qtbot):
     assert "Taken out of the draft" in text[("removed", PairRowsModel.PRECEDENT)]
     assert "moved from precedent 6" in text[("moved", PairRowsModel.DRAFT)]
     assert view.model.index(4, PairRowsModel.GUTTER).data() == "Not in draft"
+
+
+PRECEDENT_TEXT = """
+1. Payment
+
+1.1 The Customer shall pay each invoice within thirty (30) days of receipt.
+
+1.2 The Customer's records are kept by the Supplier for the Customer.
+
+2. "Customer" means the buyer named in the order form.
+"""
+
+
+def test_the_view_shows_the_engines_own_word_diff_and_renamed_terms_as_terms(qtbot, monkeypatch):
+    """With an engine review the view reads Pair.edits (no second diff: diff_texts is made to
+    fail); the words it marks are the words difflib (the reference) finds changed once the
+    draft's term is read as the precedent's, and each use of the renamed term is marked as
+    a term (dotted underline), never as inserted or deleted words."""
+    import core.review.worddiff as worddiff
+    from core.reader import read_text
+    from core.review import run_review
+    from desktop.engine import pair_edits
+
+    draft_text = (PRECEDENT_TEXT.replace("Customer", "Client")
+                  .replace("thirty (30)", "sixty (60)").replace("kept by", "kept for six years by"))
+    review = run_review(read_text(draft_text, source="draft.txt"), read_text(PRECEDENT_TEXT, source="precedent.txt"))
+    assert [(m.draft, m.precedent) for m in review.term_map] == [("Client", "Customer")]
+
+    def refuse(*_a, **_k):
+        raise AssertionError("the view diffed the texts again")
+
+    monkeypatch.setattr(worddiff, "diff_texts", refuse)
+    view = SideBySideView()
+    qtbot.addWidget(view)
+    view.set_review(review, edits=pair_edits)
+    view.set_display(DisplayOptions())
+    seen_terms = 0
+    for row in range(view.model.rowCount()):
+        pair = view.model.pair(row)
+        if pair.draft is None or pair.precedent is None:
+            continue
+        pt = review.precedent.provision(pair.precedent).text
+        dt = review.draft.provision(pair.draft).text
+        pm, dm = view.side_marks(row)
+        only_p, only_d = _word_changes(pt, dt.replace("Client", "Customer"))
+        marked_p = {w for m in pm if m.kind == mk.DELETED for w in re.findall(r"\w+", pt[m.start:m.end])}
+        marked_d = {w for m in dm if m.kind == mk.INSERTED for w in re.findall(r"\w+", dt[m.start:m.end])}
+        assert marked_p == only_p and marked_d == only_d, (row, marked_p, marked_d)
+        terms = [dt[m.start:m.end] for m in dm if m.kind == mk.TERM]
+        assert terms == re.findall(r"Client(?:'s)?", dt)
+        assert "Client" not in marked_d and "Customer" not in marked_p
+        # the inserted marks are the engine's own hunks (Pair.edits), term hunks set apart
+        assert pair.edits or not (pt or dt)
+        engine_ins = {(m.start, m.end) for m in mk.edit_marks(pair.edits)[1]
+                      if not dt[m.start:m.end].startswith("Client")}
+        assert engine_ins == {(m.start, m.end) for m in dm if m.kind == mk.INSERTED}
+        seen_terms += len(terms)
+    assert seen_terms >= 4

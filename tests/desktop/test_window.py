@@ -458,25 +458,24 @@ def test_patterns_view_shows_the_engines_negotiation_patterns(make_window, qtbot
 
 
 def test_variants_chart_shows_the_engines_variants_with_the_drafts_marked(make_window, qtbot, demo_copy):
-    from core.library.frequency import variants_for
+    from core.library.slots import slot_variants
 
     w = _open_demo(make_window, qtbot, demo_copy)
     d = next(d for d in sorted(w.ws.review.deviations, key=lambda d: d.rank)
              if d.category == "substantive" and d.draft_provision and d.change == "replace")
     w.select_deviation(d.id)
     w.inspector.setCurrentWidget(w.variants)
-    review = w.ws.review
-    prov = review.draft.provision(d.draft_provision)
-    info = variants_for(w.ws.library, prov, document=review.draft,
-                        renames={m.draft: m.precedent for m in review.term_map}, max_variants=10_000)
-    bars = w.variants.chart.bars
-    own = [v for v in info.variants if v.is_draft]
-    assert [b.label for b in bars][: len(own)] == [v.name for v in own]  # the draft's first
-    assert {b.label: b.count for b in bars}.items() <= {v.name: v.count for v in info.variants}.items()
-    assert sum(b.is_draft for b in bars) == len(own) <= 1
-    shown_closest = w.variants.wording.toPlainText()
-    for c in info.closest:
-        assert c.document in shown_closest
+    reference = slot_variants(w.ws.library, w.ws.review, d)
+    # The chart shows the engine's variants of this provision's slot as they come.
+    assert w.variants.chart.slot == reference
+    mine = [i for i, v in enumerate(reference.variants) if v.draft]
+    assert len(mine) == 1 and w.variants.chart.current == mine[0]
+    # ... and the draft's bar is the figure of the deviation's "how common" column.
+    assert reference.variants[mine[0]].count == d.frequency.matching
+    assert sum(v.count for v in reference.variants) == reference.present <= w.ws.library.total
+    shown = w.variants.wording.toPlainText()
+    for c in reference.closest:
+        assert c.document in shown
     w.variants.chart.grab()  # paints without error
 
 

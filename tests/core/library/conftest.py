@@ -37,3 +37,27 @@ def demo_library(demo_set):
     lib = open_library(demo_set, refresh=False)
     yield lib
     lib.close()
+
+
+def find_departure(review, dep: dict):
+    """The substantive deviation of *review* that is the demo generator's departure *dep*
+    (an entry of ``scenario.json``'s ``departures``): same change, provision numbers and words."""
+    dn = {p.id: p for p in review.draft.provisions}
+    pn = {p.id: p for p in review.precedent.provisions}
+    hits = []
+    for v in review.deviations:
+        if v.category != "substantive" or v.change != dep["change"]:
+            continue
+        if dep["precedent_number"] is not None and (
+                v.precedent_provision is None or pn[v.precedent_provision].number != dep["precedent_number"]):
+            continue
+        if dep["draft_number"] is not None and (
+                v.draft_provision is None or dn[v.draft_provision].number != dep["draft_number"]):
+            continue
+        if dep["draft_words"] and dep["draft_words"] not in v.draft_text:
+            continue
+        if dep["precedent_words"] and dep["precedent_words"] not in v.precedent_text:
+            continue
+        hits.append(v)
+    assert len(hits) == 1, (dep["id"], hits)
+    return hits[0]

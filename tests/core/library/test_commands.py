@@ -111,3 +111,26 @@ def test_errors_are_one_line_with_status_2(tmp_path, capsys):
     assert main(["library", "calibrate", str(tmp_path), "--cutoffs", "a,b"]) == 2
     assert main(["review", DRAFT, "--against", PRECEDENT, "--library", str(tmp_path / "none")]) == 2
     assert "does not exist" in capsys.readouterr().err
+
+
+def test_a_read_only_precedent_set_folder_says_what_to_do(tmp_path, monkeypatch, capsys):
+    """The index folder cannot be created (simulated: the suite may run as root, who can
+    write anywhere): one line that names the folder and offers no option 'review' lacks."""
+    import errno
+    import os
+    from pathlib import Path
+
+    folder = tmp_path / "set"
+    shutil.copytree(DEMO / "precedent_set", folder, ignore=shutil.ignore_patterns(".counterdraft"))
+    real_mkdir = Path.mkdir
+
+    def refuse(self, *args, **kwargs):  # noqa: ANN001, ANN002, ANN003, ANN202
+        if self.name == ".counterdraft":
+            raise PermissionError(errno.EACCES, os.strerror(errno.EACCES), str(self))
+        return real_mkdir(self, *args, **kwargs)
+
+    monkeypatch.setattr(Path, "mkdir", refuse)
+    assert main(["review", DRAFT, "--against", PRECEDENT, "--library", str(folder)]) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and str(folder / ".counterdraft") in err
+    assert "must be writable" in err and "--db" not in err

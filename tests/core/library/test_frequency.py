@@ -27,6 +27,7 @@ from core.reader import read_document
 from core.review import run_review
 
 from .conftest import DEMO
+from .conftest import find_departure as _find
 
 
 @pytest.fixture(scope="module")
@@ -40,29 +41,6 @@ def reviews(demo_set, documents):
     with open_library(demo_set, refresh=False) as lib:
         plain = run_review(draft, prec, **review_options(lib))
         return plain, apply_frequency(plain, lib)
-
-
-def _find(review, dep):
-    """The substantive deviation of the review that is demo departure *dep*."""
-    dn = {p.id: p for p in review.draft.provisions}
-    pn = {p.id: p for p in review.precedent.provisions}
-    hits = []
-    for v in review.deviations:
-        if v.category != "substantive" or v.change != dep["change"]:
-            continue
-        if dep["precedent_number"] is not None and (
-                v.precedent_provision is None or pn[v.precedent_provision].number != dep["precedent_number"]):
-            continue
-        if dep["draft_number"] is not None and (
-                v.draft_provision is None or dn[v.draft_provision].number != dep["draft_number"]):
-            continue
-        if dep["draft_words"] and dep["draft_words"] not in v.draft_text:
-            continue
-        if dep["precedent_words"] and dep["precedent_words"] not in v.precedent_text:
-            continue
-        hits.append(v)
-    assert len(hits) == 1, (dep["id"], hits)
-    return hits[0]
 
 
 def test_departures_have_the_frequencies_the_demo_generator_recorded(reviews, scenario):
@@ -203,20 +181,3 @@ def test_containing_counts_library_provisions_with_the_words(reviews, scenario, 
         "SELECT COUNT(*) FROM provisions WHERE bucket = 'acceptance' AND instr(' ' || norm || ' ', ' not ') > 0"
     ).fetchone()[0]
     assert v.frequency.containing == expected > 0
-
-
-def test_variants_for_shows_where_the_drafts_wording_sits(demo_library, documents, scenario):
-    from core.library.frequency import variants_for
-
-    draft, _prec = documents
-    dep = next(d for d in scenario["departures"] if d["id"] == "d1")
-    provision = next(p for p in draft.provisions if p.number == dep["draft_number"])
-    info = variants_for(demo_library, provision, document=draft,
-                        renames={m["draft"]: m["precedent"] for m in scenario["renamed_terms"]})
-    assert info.clause_type == "payment" and info.total == 12 and info.same_type == 12
-    mine = [v for v in info.variants if v.is_draft]
-    # Reference: the record's 60-day payment variant is used by 2 past agreements.
-    sixty = next(v for v in scenario["precedent_set"]["variants"] if v["variant"] == "payment-days/60-days")
-    assert len(mine) == 1 and mine[0].count == sixty["count"] == 2
-    assert "sixty (60) days" in mine[0].text
-    assert info.closest[0].document in sixty["documents"] and info.closest[0].similarity > 0.9

@@ -4,7 +4,8 @@ Outside references:
 * the Unicode Standard's characters (U+201C/U+201D quotation marks, U+2019 apostrophe, U+2013
   en dash, U+00A0 no-break space) and Python's ``unicodedata`` NFKC normalisation;
 * ``scipy.spatial.distance.jaccard`` on boolean vectors for the hashed shingle sets;
-* the Apache-2.0 license text of licensedcode-data (real text from outside the project).
+* the Apache-2.0, GPL-3.0 and MPL-2.0 license texts of licensedcode-data (real text from
+  outside the project; Apache-2.0 section 1 defines the terms used below).
 """
 
 from __future__ import annotations
@@ -26,6 +27,7 @@ from core.library.normalise import (
     shingle_hashes,
     shingle_set,
     term_slug,
+    token_spans,
     vocab_tokens,
 )
 from core.library.variants import set_distance
@@ -99,6 +101,27 @@ def test_hashed_shingles_match_the_reference_sets_on_a_real_text():
     assert set_distance(shingle_hashes(a), shingle_hashes(b)) == pytest.approx(jaccard(u, v), abs=1e-12)
     # Same words, same hashes, in any process: the hash is blake2b, not Python's salted hash.
     assert shingle_hashes(a).tolist() == shingle_hashes(list(a)).tolist()
+
+
+@pytest.mark.parametrize("name", ["apache-2.0", "gpl-3.0", "mpl-2.0"])
+def test_token_spans_give_the_match_tokens_and_quote_their_words(name):
+    text = license_text(name)
+    # Terms Apache-2.0 section 1 defines ("Licensor", "Work", "Derivative Works", ...).
+    terms = TermReplacer({t: t for t in ("License", "Licensor", "Legal Entity", "Work", "Derivative Works",
+                                         "Contribution", "Contributor", "You")})
+    for replacer in (None, terms):
+        folded, spans = token_spans(text, terms=replacer)
+        assert folded == fold(text)
+        assert [t for t, _, _ in spans] == match_tokens(text, terms=replacer)
+        starts = [a for _, a, _ in spans]
+        assert starts == sorted(starts) and all(a < b for _, a, b in spans)
+        for token, a, b in spans:
+            if token.startswith(TERM_MARK):
+                assert term_slug(folded[a:b].removesuffix("'s").removesuffix("'")).startswith(token[1:])
+            else:
+                assert folded[a:b].lower() == token
+    if name == "apache-2.0":
+        assert any(t == TERM_MARK + "derivative_works" for t, _, _ in token_spans(text, terms=terms)[1])
 
 
 def test_learn_aliases_maps_roles_and_same_definitions_but_not_co_defined_terms():

@@ -105,3 +105,73 @@ def test_renumbering_is_never_substantive(review):
         if v.category == "substantive" and v.change == "replace":
             assert not (_REFERENCE.match(v.precedent_text.strip())
                         and _REFERENCE.match(v.draft_text.strip())), v
+
+
+def _check_tiling(edits, a: str, b: str) -> None:
+    """core.model's invariant of Pair.edits: the hunks tile both original texts in order."""
+    p = d = 0
+    for e in edits:
+        assert (e.p1, e.d1) == (p, d)
+        if e.tag == "equal":
+            assert a[e.p1:e.p2] == b[e.d1:e.d2]
+        elif e.tag == "insert":
+            assert e.p1 == e.p2 and e.d2 > e.d1
+        elif e.tag == "delete":
+            assert e.d1 == e.d2 and e.p2 > e.p1
+        else:
+            assert e.tag == "replace" and e.p2 > e.p1 and e.d2 > e.d1
+        p, d = e.p2, e.d2
+    assert (p, d) == (len(a), len(b))
+    assert "".join(a[e.p1:e.p2] for e in edits) == a and "".join(b[e.d1:e.d2] for e in edits) == b
+
+
+_XREF_HUNK = re.compile(r"^(?:(?:clause|section|article|schedule|paragraph)s?\s+)?\d", re.IGNORECASE)
+
+
+def test_every_aligned_pair_carries_its_word_diff_on_the_original_texts(scenario, review):
+    """Pair.edits rebuild both provisions' own texts exactly (the draft's own defined terms,
+    not the normalised ones); a pair the engine calls "same" differs only by renamed terms
+    (each use a hunk of its own, named as the term map says) and renumbered references."""
+    renamed = {(m.precedent, m.draft) for m in review.term_map}
+    two_sided = [p for p in review.pairs if p.draft and p.precedent]
+    assert two_sided and all(p.edits for p in two_sided
+                             if review.precedent.provision(p.precedent).text
+                             or review.draft.provision(p.draft).text)
+    term_hunks = 0
+    for pair in two_sided:
+        a = review.precedent.provision(pair.precedent).text
+        b = review.draft.provision(pair.draft).text
+        _check_tiling(pair.edits, a, b)
+        if pair.status != "same":
+            continue
+        for e in pair.edits:
+            if e.tag == "equal":
+                continue
+            pw, dw = a[e.p1:e.p2], b[e.d1:e.d2]
+            is_term = any(pw.startswith(pt) and dw.startswith(dt) and len(pw) - len(pt) <= 3
+                          for pt, dt in renamed)
+            is_ref = bool(_XREF_HUNK.match(pw) and _XREF_HUNK.match(dw))
+            assert is_term or is_ref, (pair, pw, dw)
+            term_hunks += is_term
+    assert term_hunks > 10
+    for pair in review.pairs:
+        if pair.draft is None or pair.precedent is None:
+            assert pair.edits == ()
+
+
+def test_headings_the_draft_only_adds_are_formatting_and_out_of_the_substantive_list(scenario, review):
+    """The draft gives its sub-clauses run-in headings the precedent lacks.  Its own
+    interpretation clause says headings do not affect interpretation (the usual clause:
+    common practice, no source), so those are formatting; a heading whose words changed
+    stays substantive with a low severity."""
+    interpretation = " ".join(p.text.lower() for p in review.draft.provisions)
+    assert "headings shall not affect the interpretation" in interpretation
+    heads = [v for v in review.deviations if v.part == "heading"]
+    added = [v for v in heads if v.change in ("insert", "delete")]
+    assert len(added) >= 12
+    assert all(v.category == "formatting" and v.severity == 0 for v in added)
+    assert all("headings do not affect interpretation" in v.reasons[0] for v in added)
+    changed = [v for v in heads if v.change == "replace" and v.category == "substantive"]
+    assert changed and all(v.severity < 20 for v in changed)
+    top = sorted((v for v in review.deviations if v.category == "substantive"), key=lambda v: v.rank)
+    assert not [v for v in top if v.reasons[0].startswith(("heading added", "heading removed"))]

@@ -57,3 +57,54 @@ def test_show_selects_categories():
 def test_narrow_width_still_fits():
     r = run_review(doc(DRAFT), doc(PRECEDENT))
     assert max(len(line) for line in format_review(r, width=72).splitlines()) <= 72
+
+
+def _rows(out: str) -> list[str]:
+    return [line for line in out.splitlines() if line[:4].strip().isdigit()]
+
+
+def test_each_row_shows_the_id_that_decide_takes(tmp_path):
+    from core.decisions import decide, new_review_file
+    from core.labels import clause_label
+
+    r = run_review(doc(DRAFT), doc(PRECEDENT))
+    out = format_review(r, show="all")
+    header = next(line for line in out.splitlines() if line.startswith("Rank"))
+    assert header.split()[:4] == ["Rank", "Sev", "Id", "Clause"] and "Common" not in header
+    by_id = {v.id: v for v in r.deviations}
+    rows = _rows(out)
+    assert len(rows) == len(r.deviations)
+    for row in rows:
+        rank, sev, dev_id = row.split()[:3]
+        v = by_id[dev_id]
+        assert (int(rank), int(sev)) == (v.rank, v.severity)
+        assert clause_label(r, v, compact=True)[:20] in row
+    # the id is what `counterdraft decide` records a decision on
+    draft_path, precedent_path = tmp_path / "draft.txt", tmp_path / "precedent.txt"
+    draft_path.write_text("x", encoding="utf-8")
+    precedent_path.write_text("x", encoding="utf-8")
+    rf = new_review_file(str(draft_path), str(precedent_path), review=r)
+    first = rows[0].split()[2]
+    assert decide(rf, first, "accept").decisions[-1].deviation == first
+
+
+def test_with_a_precedent_set_the_table_says_how_common_the_drafts_wording_is():
+    import dataclasses
+
+    from core.model import Frequency
+
+    r = run_review(doc(DRAFT), doc(PRECEDENT))
+    devs = tuple(dataclasses.replace(v, frequency=Frequency(same_type=9, matching=2, total=12))
+                 if v.category == "substantive" else v for v in r.deviations)
+    r = dataclasses.replace(r, deviations=devs)
+    for width in (100, 72, 60):
+        out = format_review(r, width=width)
+        assert max(len(line) for line in out.splitlines()) <= width
+    out = format_review(r)
+    assert "Common" in next(line for line in out.splitlines() if line.startswith("Rank"))
+    assert "precedent set (12)" in out
+    for row in _rows(out):
+        v = next(v for v in r.deviations if v.id == row.split()[2])
+        assert ("2/12" in row.split()) == (v.category == "substantive")
+        if v.category == "term":
+            assert " - " in row

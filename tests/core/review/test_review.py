@@ -98,10 +98,12 @@ def test_changed_words_are_verbatim_with_little_context_and_spans_locate_them():
                 assert v.precedent_text in text_of(r.precedent, v.precedent_provision) or \
                     v.precedent_text in (r.precedent.provision(v.precedent_provision).heading or "")
             assert len(v.draft_text.split()) <= 12 and len(v.precedent_text.split()) <= 12
-        if v.change == "insert":
-            assert v.precedent_text == "" and v.precedent_span is None
-        if v.change == "delete":
-            assert v.draft_text == "" and v.draft_span is None
+        if v.change == "insert":  # an empty precedent span at the insertion point
+            assert v.precedent_text == "" and v.precedent_span is not None
+            assert v.precedent_span[0] == v.precedent_span[1]
+        if v.change == "delete":  # an empty draft span at the place the words left
+            assert v.draft_text == "" and v.draft_span is not None
+            assert v.draft_span[0] == v.draft_span[1]
         if v.draft_span is not None:
             a, b = v.draft_span
             assert text_of(r.draft, v.draft_provision)[a:b] in v.draft_text
@@ -227,3 +229,145 @@ def test_documents_that_share_nothing_give_an_empty_alignment_and_a_note():
     assert r.notes == (NO_SHARED_NOTE,)
     assert not [p for p in r.pairs if p.draft and p.precedent]
     assert {v.change for v in r.deviations} == {"add-provision", "remove-provision"}
+
+
+# --------------------------------------------------------------------------------------
+# Deviation.part and the spans (core.model's review invariants)
+# --------------------------------------------------------------------------------------
+
+INSERTED = """
+    1. Liability
+
+    1.1 The Supplier shall be liable for loss caused by its negligence.
+
+    1.2 The Customer shall pay each invoice within thirty (30) days.
+"""
+
+
+def test_insert_and_delete_carry_an_empty_span_at_the_insertion_point():
+    """An insert's precedent span and a delete's draft span are empty, at the place where the
+    words go (or were): putting the changed words there rebuilds the other side's sentence."""
+    with_not = INSERTED.replace("shall be liable", "shall not be liable")
+    for draft, precedent, change, side, other in ((with_not, INSERTED, "insert", "precedent", "draft"),
+                                                  (INSERTED, with_not, "delete", "draft", "precedent")):
+        r = run_review(doc(draft), doc(precedent))
+        (v,) = [v for v in substantive(r) if v.change == change]
+        assert v.part == "text"
+        k, k2 = getattr(v, f"{side}_span")
+        a, b = getattr(v, f"{other}_span")
+        empty_doc, full_doc = (r.precedent, r.draft) if side == "precedent" else (r.draft, r.precedent)
+        empty = empty_doc.provision(getattr(v, f"{side}_provision")).text
+        full = full_doc.provision(getattr(v, f"{other}_provision")).text
+        assert k == k2 and full[a:b] == "not"
+        assert empty[:k].rstrip().endswith("shall") and empty[k:].lstrip().startswith("be liable")
+        assert " ".join((empty[:k] + " not " + empty[k:]).split()) == " ".join(full.split())
+
+
+def test_every_deviation_says_which_part_it_concerns():
+    draft = doc(DRAFT.replace("2. Services", "2. Provision of Services"))
+    r = run_review(draft, doc(PRECEDENT))
+    parts = {v.part for v in r.deviations}
+    assert parts <= {"text", "heading", "provision"}
+    heading = next(v for v in r.deviations if v.part == "heading")
+    assert heading.draft_text == "Provision of Services" and heading.precedent_text == "Services"
+    for v in r.deviations:
+        if v.part == "text":
+            assert v.precedent_span is not None and v.draft_span is not None
+            assert v.change in ("insert", "delete", "replace")
+        else:
+            assert v.precedent_span is None and v.draft_span is None
+        if v.change in ("add-provision", "remove-provision", "move") or v.category == "term" \
+                or (v.category == "numbering" and v.reasons[0].startswith("renumbered")):
+            assert v.part == "provision", v
+
+
+# --------------------------------------------------------------------------------------
+# Headings: only added or removed is formatting (resources/severity.toml, [headings])
+# --------------------------------------------------------------------------------------
+
+HEADED = """
+1. Payment
+
+1.1 The Customer shall pay each invoice within thirty (30) days.
+
+1.2 Interest accrues on late payments at four per cent (4%) a year.
+
+1.3 **Invoices.** Each invoice shall state the Order number.
+"""
+
+
+def _md(text: str, source: str):
+    from core.reader import read_text
+
+    return read_text(text, source=source, markdown=True)
+
+
+def test_a_heading_only_added_or_removed_is_formatting_with_a_reason():
+    """Headings are commonly agreed not to affect interpretation (common practice, no
+    source): a run-in heading one side adds or drops is formatting; its reason says so."""
+    draft = HEADED.replace("1.1 The Customer", "1.1 **Payment Terms.** The Customer") \
+                  .replace("1.3 **Invoices.** Each", "1.3 Each")
+    r = run_review(_md(draft, "draft.md"), _md(HEADED, "precedent.md"))
+    heads = [v for v in r.deviations if v.part == "heading"]
+    assert {(v.change, v.category) for v in heads} == {("insert", "formatting"), ("delete", "formatting")}
+    for v in heads:
+        assert v.severity == 0
+        assert "heading added" in v.reasons[0] or "heading removed" in v.reasons[0]
+        assert "headings do not affect interpretation" in v.reasons[0]
+    assert not substantive(r)
+    # added together with a change of the words: the heading is still formatting, the
+    # words are their own substantive deviation
+    both = draft.replace("thirty (30) days", "sixty (60) days")
+    r2 = run_review(_md(both, "draft.md"), _md(HEADED, "precedent.md"))
+    assert [v.reasons[0] for v in substantive(r2)] == ["period changed from 30 to 60 days (longer)"]
+    assert {v.category for v in r2.deviations if v.part == "heading"} == {"formatting"}
+
+
+def test_a_heading_whose_wording_changed_stays_substantive_but_low():
+    draft = HEADED.replace("**Invoices.**", "**Invoicing Requirements.**")
+    r = run_review(_md(draft, "draft.md"), _md(HEADED, "precedent.md"))
+    (v,) = [v for v in r.deviations if v.part == "heading"]
+    assert v.category == "substantive" and v.change == "replace"
+    assert v.reasons[0] == "heading changed from 'Invoices' to 'Invoicing Requirements'"
+    assert 0 < v.severity < 20
+
+
+def test_the_heading_rule_is_the_firms_to_change(tmp_path):
+    """resources/severity.toml names the rule ([headings] added_or_removed); a firm's copy
+    set to "substantive" reports added headings as substantive deviations again."""
+    from core.review.severity import DEFAULT_RULES_PATH, load_rules
+
+    text = DEFAULT_RULES_PATH.read_text(encoding="utf-8")
+    assert 'added_or_removed = "formatting"' in text
+    path = tmp_path / "rules.toml"
+    path.write_text(text.replace('added_or_removed = "formatting"', 'added_or_removed = "substantive"'),
+                    encoding="utf-8")
+    draft = HEADED.replace("1.1 The Customer", "1.1 **Payment Terms.** The Customer")
+    r = run_review(_md(draft, "draft.md"), _md(HEADED, "precedent.md"), rules=load_rules(path))
+    (v,) = [v for v in r.deviations if v.part == "heading"]
+    assert (v.category, v.change) == ("substantive", "insert")
+    assert v.reasons[0] == "heading added: 'Payment Terms'"
+
+
+def test_split_and_merged_pairings_carry_their_own_word_diff():
+    """One diff per pairing, of the two provisions' own texts (core.model's invariant)."""
+    precedent = doc("""
+        1. Payment
+
+        1.1 The Customer shall pay each invoice within thirty (30) days of receipt and interest accrues on late payments at four per cent (4%) a year above the base rate.
+    """)
+    draft = doc("""
+        1. Payment
+
+        1.1 The Customer shall pay each invoice within thirty (30) days of receipt.
+
+        1.2 Interest accrues on late payments at four per cent (4%) a year above the base rate.
+    """)
+    for r in (run_review(draft, precedent), run_review(precedent, draft)):
+        pairs = [p for p in r.pairs if p.status in ("split", "merged")]
+        assert len(pairs) == 2
+        for p in pairs:
+            a, b = r.precedent.provision(p.precedent).text, r.draft.provision(p.draft).text
+            assert "".join(a[e.p1:e.p2] for e in p.edits) == a
+            assert "".join(b[e.d1:e.d2] for e in p.edits) == b
+            assert any(e.tag == "equal" and len(a[e.p1:e.p2].split()) >= 5 for e in p.edits)

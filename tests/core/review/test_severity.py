@@ -184,3 +184,18 @@ def test_out_of_range_figure_names_the_key(tmp_path):
     path.write_text(text, encoding="utf-8")
     with pytest.raises(CounterdraftError, match="signals.negation_added must be a number"):
         load_rules(path)
+
+
+def test_the_heading_rule_is_optional_and_checked(tmp_path):
+    """[headings] added_or_removed: "formatting" by default (a firm's older rule file without
+    the table still loads); any other value than the two choices is a one-line error."""
+    text = DEFAULT_RULES_PATH.read_text(encoding="utf-8")
+    assert load_rules().heading_added_or_removed == "formatting"
+    old = tmp_path / "old.toml"
+    old.write_text(text.replace("[headings]", "[former_headings]"), encoding="utf-8")
+    assert load_rules(old).heading_added_or_removed == "formatting"
+    bad = tmp_path / "bad.toml"
+    bad.write_text(text.replace('added_or_removed = "formatting"', 'added_or_removed = "ignore"'),
+                   encoding="utf-8")
+    with pytest.raises(CounterdraftError, match='headings.added_or_removed must be "formatting" or "substantive"'):
+        load_rules(bad)

@@ -10,6 +10,7 @@ clean-up the diff keeps at least as many tokens unchanged as difflib does.
 from __future__ import annotations
 
 import difflib
+import re
 
 from hypothesis import given, settings
 from hypothesis import strategies as st
@@ -145,3 +146,55 @@ def test_long_pairs_use_sentence_first_diff_and_still_reconstruct():
         starts.append(starts[-1] + len(s) + 1)
     touched = {max(k for k in range(600) if starts[k] <= e.p1) for e in edits if e.tag != "equal"}
     assert touched == set(changed)
+
+
+# --------------------------------------------------------------------------------------
+# Pair.edits: the term-aware hunks the review keeps (pair_edits_from_ops)
+# --------------------------------------------------------------------------------------
+
+TERM_WORDS = [w for w in WORDS if w not in ("Customer",)] + ["Customer", "Customer's", "Customers"]
+term_texts = st.lists(st.sampled_from(TERM_WORDS), max_size=40).map(
+    lambda ws: "".join(w if w.isspace() else w + " " for w in ws).rstrip(" "))
+
+
+def _term_aware(a: str, b: str):
+    """The review's keys: the draft's "Client" read as the precedent's "Customer"."""
+    from core.review.tokens import base_tokens, rekey, term_matcher
+    from core.review.worddiff import pair_edits_from_ops
+
+    matcher = term_matcher(["Customer", "Client"])
+    ta = rekey(base_tokens(a, matcher), term_key={})
+    tb = rekey(base_tokens(b, matcher), term_key={"Client": "Customer"})
+    return pair_edits_from_ops(ta, tb, token_ops(ta, tb))
+
+
+@settings(max_examples=300, deadline=None)
+@given(term_texts, term_texts)
+def test_pair_edits_rebuild_both_original_texts(a: str, b: str) -> None:
+    b = b.replace("Customer", "Client")
+    edits = _term_aware(a, b)
+    assert reconstruct(edits, a, b) == (a, b)
+    check_tiling(edits, a, b)
+
+
+@settings(max_examples=300, deadline=None)
+@given(term_texts)
+def test_a_renamed_term_is_a_hunk_of_its_own_and_nothing_else_changes(a: str) -> None:
+    """Reference: difflib.SequenceMatcher on the words, with the draft's term read as the
+    precedent's, finds the two texts equal; the review's hunks are then exactly the term's
+    uses, one hunk each."""
+    b = a.replace("Customer", "Client")
+    assert difflib.SequenceMatcher(None, a.split(), b.replace("Client", "Customer").split()).ratio() == 1.0
+    edits = _term_aware(a, b)
+    changed = [(a[e.p1:e.p2], b[e.d1:e.d2]) for e in edits if e.tag != "equal"]
+    assert all(e.tag in ("equal", "replace") for e in edits)
+    assert [p for p, _ in changed] == re.findall(r"Customer(?:'s|s)?", a)
+    assert all(d == p.replace("Customer", "Client") for p, d in changed)
+
+
+def test_restyled_words_stay_one_hunk_but_a_term_use_is_apart() -> None:
+    a = 'The "Customer" shall PAY'
+    b = "The “Client” shall pay"
+    edits = _term_aware(a, b)
+    changed = [(a[e.p1:e.p2], b[e.d1:e.d2]) for e in edits if e.tag != "equal"]
+    assert changed == [('"', "“"), ("Customer", "Client"), ('"', "”"), ("PAY", "pay")]
