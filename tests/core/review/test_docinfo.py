@@ -43,5 +43,5 @@ def test_party_labels_and_roles():
     assert info.party_labels == {"Licensor", "Licensee"}
     assert info.party_roles == {"Licensor": "supply", "Licensee": "buy"}
     assert party_role("Service Provider") == "supply"
-    assert party_role("Acme", 'acting as customer') == "buy"
+    assert party_role("Orlenby", 'acting as customer') == "buy"
     assert party_role("Party") is None
