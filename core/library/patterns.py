@@ -79,6 +79,13 @@ def _short(text: str, limit: int = 80) -> str:
     return t if len(t) <= limit else t[:limit - 1].rstrip() + "\u2026"
 
 
+def _fills_a_blank(dev: Deviation) -> bool:
+    """A blank of the form ("[CUSTOMER NAME]") filled in: every signed copy differs from the
+    precedent there, so it is no negotiation move (common practice, no source).  The review
+    engine names such a deviation's first reason "placeholder ... completed"."""
+    return bool(dev.reasons) and dev.reasons[0].startswith("placeholder ")
+
+
 def _moves_of(dev: Deviation) -> list[tuple[str, str]]:
     """(move description, example) of one substantive deviation."""
     if dev.change == "add-provision":
@@ -146,7 +153,7 @@ def _review_with(library: Library, precedent: Document, rel: str) -> _DocResult:
     prec = {p.id: p for p in precedent.provisions}
     draft = {p.id: p for p in doc.provisions}
     for dev in review.deviations:
-        if dev.category != "substantive":
+        if dev.category != "substantive" or _fills_a_blank(dev):
             continue
         ctype = None
         if dev.precedent_provision is not None:

@@ -132,3 +132,12 @@ def test_no_departures_text():
     assert "No substantive departures" in format_patterns([], total=3)
     g = PatternGroup("payment", "Payment", 3, (PatternMove("period longer", 1, 3, ("x" * 300,)),))
     assert all(len(line) <= 60 for line in format_patterns([g], total=3, width=60).splitlines())
+
+
+def test_filled_in_blanks_are_no_negotiation_move(groups, scenario):
+    # Every signed copy fills the precedent's "[ADDRESS OF CUSTOMER'S PREMISES]" blank, and the
+    # demo generator's record has only the house wording for delivery (all 12 agreements); a
+    # filled blank is no move (common practice, no source), so no delivery pattern may appear.
+    delivery = [v for v in scenario["precedent_set"]["variants"] if v["clause_type"] == "delivery"]
+    assert [v["count"] for v in delivery] == [12] and delivery[0]["variant"].endswith("/house")
+    assert all(g.clause_type != "delivery" for g in groups)
