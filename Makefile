@@ -15,6 +15,8 @@ APT_INSTALL = SUDO=$$( [ "$$(id -u)" = 0 ] || echo sudo ); $$SUDO apt-get update
 .PHONY: demo test bench system-deps gui-deps clean
 
 $(VENV)/.installed: pyproject.toml constraints.txt
+	@# Debian's python3 has no ensurepip (so no venv) until python3-venv is installed.
+	@$(PYTHON) -c 'import ensurepip, venv' 2>/dev/null || { $(APT_INSTALL) python3-venv; }
 	$(PYTHON) -m venv $(VENV)
 	$(PY) -m pip install --quiet --upgrade pip
 	$(PY) -m pip install --quiet -c constraints.txt -e '.[test]'

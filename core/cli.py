@@ -13,7 +13,7 @@ from pathlib import Path
 
 from . import CAUTION, __version__
 from .errors import CounterdraftError
-from .fileio import atomic_write_text
+from .fileio import atomic_write_text, refuse_overwrite_of_inputs
 
 __all__ = ["main"]
 
@@ -33,6 +33,9 @@ def _cmd_inspect(args: argparse.Namespace) -> int:
     from .reader import read_document
     from .serialize import document_to_dict
 
+
+    if args.json and args.json != "-":
+        refuse_overwrite_of_inputs(args.json, args.file)
     doc = read_document(args.file)
     for w in doc.warnings:
         print(f"{args.file}: note: {w}", file=sys.stderr)
@@ -44,13 +47,14 @@ def _cmd_inspect(args: argparse.Namespace) -> int:
 
 
 def _cmd_review(args: argparse.Namespace) -> int:
-    from .fileio import refuse_overwrite_of_inputs
     from .reader import read_document
     from .review import review_to_dict, run_review
     from .review.report import format_review
 
     if args.json and args.json != "-":
         refuse_overwrite_of_inputs(args.json, args.draft, args.against)
+        if args.save and Path(args.save).resolve() == Path(args.json).resolve():
+            raise CounterdraftError("--json and --save name the same file", path=args.save)
     draft = read_document(args.draft)
     precedent = read_document(args.against)
     for path, doc in ((args.draft, draft), (args.against, precedent)):
@@ -132,8 +136,6 @@ def _cmd_decide(args: argparse.Namespace) -> int:
 
 def _cmd_export(args: argparse.Namespace) -> int:
     from .export import default_author, write_counter_draft, write_issues_list, write_redline
-    from .fileio import refuse_overwrite_of_inputs
-
     outputs = [o for o in (args.counter_draft, args.redline, args.issues_list) if o]
     if not outputs:
         raise CounterdraftError("nothing to export: give --counter-draft, --redline or --issues-list")

@@ -16,25 +16,33 @@ def atomic_write_bytes(path: str | os.PathLike[str], data: bytes) -> None:
     """Write *data* to *path* via a temporary file in the same folder, then rename.
 
     A reader never sees a half-written file, and an interrupted write leaves any previous
-    file at *path* intact.
+    file at *path* intact.  A symbolic link is followed (its target is replaced); a folder,
+    a device or any other special file at *path* is refused rather than replaced.  Failures
+    raise :class:`CounterdraftError` naming *path*.
     """
-    target = Path(path)
-    folder = target.parent if str(target.parent) else Path(".")
+    target = Path(os.path.realpath(path))
+    if target.exists() and not target.is_file():
+        raise CounterdraftError("exists and is not a regular file; refusing to replace it", path=str(path))
+    folder = target.parent
     if not folder.is_dir():
-        raise CounterdraftError("the output folder does not exist", path=str(target))
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=folder)
+        raise CounterdraftError("the output folder does not exist", path=str(path))
+    tmp = None
     try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".part", dir=folder)
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)
             fh.flush()
             os.fsync(fh.fileno())
         os.replace(tmp, target)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except FileNotFoundError:
-            pass
-        raise
+        tmp = None
+    except OSError as err:
+        raise CounterdraftError(f"cannot write the file ({err.strerror or err})", path=str(path)) from None
+    finally:
+        if tmp is not None:
+            try:
+                os.unlink(tmp)
+            except FileNotFoundError:
+                pass
 
 
 def atomic_write_text(path: str | os.PathLike[str], text: str) -> None:

@@ -127,12 +127,14 @@ def _cmd_stats(args: argparse.Namespace) -> int:
     with Library(db, root=args.dir) as library:
         if args.variants:
             print(format_variants(library.variants(bucket=args.variants), total=library.total, width=args.width))
-            return 0
-        stats = library_stats(library)
-        if args.json:
-            _write_json(stats_to_dict(stats), args.json)
         else:
+            stats = library_stats(library)
+            if args.json:
+                _write_json(stats_to_dict(stats), args.json)
+                return 0
             print(format_stats(stats, width=args.width))
+    print()
+    print(CAUTION)
     return 0
 
 
