@@ -159,8 +159,12 @@ def _cmd_export(args: argparse.Namespace) -> int:
         write_redline(record.review, args.redline, author=author, inputs=inputs)
         print(f"comparison redline written to {args.redline}")
     if args.issues_list:
+        from .export import ISSUES_DEFAULT_INCLUDE
+        from .model import CATEGORIES
+
         write_issues_list(record.review, args.issues_list, decisions=record.decisions,
-                          author=author, inputs=inputs)
+                          author=author, inputs=inputs,
+                          include=CATEGORIES if args.issues_all else ISSUES_DEFAULT_INCLUDE)
         print(f"issues list written to {args.issues_list}")
     return 0
 
@@ -271,6 +275,8 @@ def build_parser() -> argparse.ArgumentParser:
                    help="the draft with the decisions as tracked changes and notes as comments")
     p.add_argument("--redline", metavar="OUT.docx", help="precedent-to-draft comparison as tracked changes")
     p.add_argument("--issues-list", metavar="OUT", help="the issues list as .docx, .html or .csv")
+    p.add_argument("--issues-all", action="store_true",
+                   help="list formatting, numbering and punctuation differences in the issues list too")
     p.add_argument("--author", help="author of the tracked changes (default: your user name)")
     p.set_defaults(func=_cmd_export)
 

@@ -2,6 +2,13 @@
 
 Used for the comparison redline (paragraphs whose runs are inserted, deleted or moved, as
 ECMA-376 Part 1 §17.13.5 describes) and for the issues list (a real Word table, §17.4).
+
+Tables (§17.4) span the page's text width (``w:tblW``, §17.4.64, in twips: the page width of
+``w:pgSz`` less the left and right ``w:pgMar``), with a fixed layout (``w:tblLayout``,
+§17.4.53; the algorithm in ST_TblLayout, §17.18.87) so that a word processor keeps the column
+widths of the ``w:tblGrid`` (§17.4.49) instead of fitting columns to their contents; the
+header row repeats on every page (``w:tblHeader``, §17.4.50) and no row breaks across a page
+(``w:cantSplit``, §17.4.6).  Section numbers as in ISO/IEC 29500-1.
 The package is the minimum a word processor needs (ECMA-376 Part 2, Open Packaging
 Conventions: ``[Content_Types].xml``, the package relationships, the main document part)
 plus a style sheet, settings and the core and custom file properties (the custom property
@@ -27,10 +34,14 @@ from lxml import etree
 from .revisions import IdAllocator, RevisionStamp, W_NS, make_runs, mark_paragraph, w, wrap
 
 __all__ = [
+    "GROUP_FILL",
+    "HEADER_FILL",
+    "Cell",
     "Para",
     "Run",
     "Table",
     "build_docx",
+    "text_width_twips",
     "custom_properties_xml",
     "CUSTOM_PROPERTIES_CT",
     "CUSTOM_PROPERTIES_REL",
@@ -50,9 +61,23 @@ _VT_NS = "http://schemas.openxmlformats.org/officeDocument/2006/docPropsVTypes"
 _CUSTOM_FMTID = "{D5CDD505-2E9C-101B-9397-08002B2CF9AE}"
 
 _ZIP_DATE = (1980, 1, 1, 0, 0, 0)
-#: Page text width in twips of an A4 page with 2.5 cm margins (11906 - 2 * 1418), used to
-#: size table columns (from memory of Word's A4 defaults).
-_TEXT_WIDTH_TWIPS = 9070
+#: A4 in twips (210 x 297 mm; ECMA-376 Part 1 §17.6.13 measures w:pgSz in twentieths of a
+#: point): the short and the long side.
+_A4_SHORT_TWIPS, _A4_LONG_TWIPS = 11906, 16838
+#: Left and right (and top and bottom) page margin in twips: 2.5 cm, Word's A4 default (from
+#: memory).  The text width is the page width less both margins: 9070 twips (16.0 cm) upright,
+#: 14002 twips (24.7 cm) landscape.
+_MARGIN_TWIPS = 1418
+#: Fill of a table's header row (the cell shading w:shd): a pale grey-green of our own palette,
+#: light enough for black bold text to print legibly in greyscale.
+HEADER_FILL = "DDE6E2"
+#: Fill of the rows from ``Table.divider_before`` on (a set-off group, e.g. informational rows).
+GROUP_FILL = "F3F5F4"
+
+
+def text_width_twips(*, landscape: bool = False) -> int:
+    """The text width of the pages :func:`build_docx` writes: A4 less both side margins."""
+    return (_A4_LONG_TWIPS if landscape else _A4_SHORT_TWIPS) - 2 * _MARGIN_TWIPS
 
 
 @dataclass(frozen=True, slots=True)
@@ -77,14 +102,24 @@ class Para:
     move: str | None = None
 
 
+#: One table cell: plain text, or runs (e.g. some words in bold).  A ``"\n"`` starts a new
+#: paragraph of the cell.
+Cell = str | tuple[Run, ...]
+
+
 @dataclass(frozen=True, slots=True)
 class Table:
-    """A table whose first row is a header row repeated on each page (``w:tblHeader``)."""
+    """A table across the page's text width whose first row is a header row repeated on each
+    page (``w:tblHeader``); no row breaks across pages (``w:cantSplit``)."""
 
     header: tuple[str, ...]
-    rows: tuple[tuple[str, ...], ...]
-    #: Relative column widths (any positive numbers); equal widths when empty.
+    rows: tuple[tuple[Cell, ...], ...]
+    #: Relative column widths (any positive numbers), scaled to the text width; equal widths
+    #: when empty.
     widths: tuple[float, ...] = ()
+    #: Index (into ``rows``) of the first row of a set-off group at the end of the table: a
+    #: heavier rule above it and a light fill; None for none.
+    divider_before: int | None = None
 
 
 Element = Para | Table
@@ -98,7 +133,8 @@ _STYLES = """<?xml version="1.0" encoding="UTF-8" standalone="yes"?>
 <w:style w:type="paragraph" w:styleId="Title"><w:name w:val="Title"/><w:basedOn w:val="Normal"/><w:next w:val="Normal"/><w:qFormat/><w:pPr><w:spacing w:after="240"/><w:outlineLvl w:val="0"/></w:pPr><w:rPr><w:b/><w:sz w:val="32"/><w:szCs w:val="32"/></w:rPr></w:style>
 <w:style w:type="paragraph" w:styleId="Heading1"><w:name w:val="heading 1"/><w:basedOn w:val="Normal"/><w:next w:val="Normal"/><w:qFormat/><w:pPr><w:keepNext/><w:spacing w:before="240" w:after="120"/><w:outlineLvl w:val="0"/></w:pPr><w:rPr><w:b/><w:sz w:val="26"/><w:szCs w:val="26"/></w:rPr></w:style>
 <w:style w:type="paragraph" w:styleId="Caution"><w:name w:val="Caution"/><w:basedOn w:val="Normal"/><w:qFormat/><w:pPr><w:pBdr><w:top w:val="single" w:sz="4" w:space="4" w:color="auto"/><w:bottom w:val="single" w:sz="4" w:space="4" w:color="auto"/></w:pBdr><w:spacing w:after="240"/></w:pPr><w:rPr><w:i/><w:sz w:val="20"/><w:szCs w:val="20"/></w:rPr></w:style>
-<w:style w:type="paragraph" w:styleId="TableText"><w:name w:val="Table Text"/><w:basedOn w:val="Normal"/><w:qFormat/><w:pPr><w:spacing w:after="0" w:line="240" w:lineRule="auto"/></w:pPr><w:rPr><w:sz w:val="18"/><w:szCs w:val="18"/></w:rPr></w:style>
+<w:style w:type="paragraph" w:styleId="TableText"><w:name w:val="Table Text"/><w:basedOn w:val="Normal"/><w:qFormat/><w:pPr><w:spacing w:before="20" w:after="20" w:line="240" w:lineRule="auto"/></w:pPr><w:rPr><w:sz w:val="18"/><w:szCs w:val="18"/></w:rPr></w:style>
+<w:style w:type="paragraph" w:styleId="TableNote"><w:name w:val="Table Note"/><w:basedOn w:val="Normal"/><w:qFormat/><w:pPr><w:spacing w:before="60" w:after="60" w:line="240" w:lineRule="auto"/></w:pPr><w:rPr><w:sz w:val="18"/><w:szCs w:val="18"/></w:rPr></w:style>
 <w:style w:type="character" w:default="1" w:styleId="DefaultParagraphFont"><w:name w:val="Default Paragraph Font"/><w:uiPriority w:val="1"/><w:semiHidden/></w:style>
 <w:style w:type="table" w:default="1" w:styleId="TableNormal"><w:name w:val="Normal Table"/><w:semiHidden/><w:tblPr><w:tblInd w:w="0" w:type="dxa"/><w:tblCellMar><w:top w:w="0" w:type="dxa"/><w:left w:w="108" w:type="dxa"/><w:bottom w:w="0" w:type="dxa"/><w:right w:w="108" w:type="dxa"/></w:tblCellMar></w:tblPr></w:style>
 <w:style w:type="table" w:styleId="TableGrid"><w:name w:val="Table Grid"/><w:basedOn w:val="TableNormal"/><w:tblPr><w:tblBorders><w:top w:val="single" w:sz="4" w:space="0" w:color="auto"/><w:left w:val="single" w:sz="4" w:space="0" w:color="auto"/><w:bottom w:val="single" w:sz="4" w:space="0" w:color="auto"/><w:right w:val="single" w:sz="4" w:space="0" w:color="auto"/><w:insideH w:val="single" w:sz="4" w:space="0" w:color="auto"/><w:insideV w:val="single" w:sz="4" w:space="0" w:color="auto"/></w:tblBorders></w:tblPr></w:style>
@@ -278,13 +314,51 @@ def _add_move_ranges(moves: dict[str, list[etree._Element]], *, stamp: RevisionS
             last.append(end)
 
 
-def _table(table: Table) -> etree._Element:
+def _column_twips(widths: Sequence[float], text_width: int) -> list[int]:
+    """Whole-twip column widths in the proportions of *widths* that add up to *text_width*
+    exactly (the rounding remainder goes to the widest column)."""
+    total = sum(widths)
+    if total <= 0 or any(x <= 0 for x in widths):
+        raise ValueError("column widths must be positive")
+    twips = [max(1, int(text_width * x / total)) for x in widths]
+    twips[twips.index(max(twips))] += text_width - sum(twips)
+    return twips
+
+
+def _cell_paragraphs(value: Cell, *, header: bool) -> list[list[Run]]:
+    """The runs of each paragraph of a cell (split at ``"\n"``)."""
+    runs = (Run(value, bold=header),) if isinstance(value, str) else value
+    paras: list[list[Run]] = [[]]
+    for run in runs:
+        for k, piece in enumerate(run.text.split("\n")):
+            if k:
+                paras.append([])
+            if piece:
+                paras[-1].append(Run(piece, bold=run.bold or header, italic=run.italic))
+    return paras
+
+
+def _border(parent: etree._Element, side: str, size: int) -> None:
+    el = etree.SubElement(parent, w(side))
+    el.set(w("val"), "single")
+    el.set(w("sz"), str(size))  # eighths of a point
+    el.set(w("space"), "0")
+    el.set(w("color"), "auto")
+
+
+def _shade(tcpr: etree._Element, fill: str) -> None:
+    shd = etree.SubElement(tcpr, w("shd"))
+    shd.set(w("val"), "clear")
+    shd.set(w("color"), "auto")
+    shd.set(w("fill"), fill)
+
+
+def _table(table: Table, *, text_width: int) -> etree._Element:
     ncols = len(table.header)
     widths = table.widths or tuple(1.0 for _ in range(ncols))
     if len(widths) != ncols:
         raise ValueError("one width per column")
-    total = sum(widths)
-    twips = [max(1, int(_TEXT_WIDTH_TWIPS * x / total)) for x in widths]
+    twips = _column_twips(widths, text_width)
     tbl = etree.Element(w("tbl"))
     tblpr = etree.SubElement(tbl, w("tblPr"))
     etree.SubElement(tblpr, w("tblStyle")).set(w("val"), "TableGrid")
@@ -298,9 +372,12 @@ def _table(table: Table) -> etree._Element:
     for r, values in enumerate((table.header, *table.rows)):
         if len(values) != ncols:
             raise ValueError("every row needs one value per column")
+        header = r == 0
+        grouped = table.divider_before is not None and r - 1 >= table.divider_before
         tr = etree.SubElement(tbl, w("tr"))
-        if r == 0:
-            trpr = etree.SubElement(tr, w("trPr"))
+        trpr = etree.SubElement(tr, w("trPr"))
+        etree.SubElement(trpr, w("cantSplit"))
+        if header:
             etree.SubElement(trpr, w("tblHeader"))
         for c, value in enumerate(values):
             tc = etree.SubElement(tr, w("tc"))
@@ -308,16 +385,25 @@ def _table(table: Table) -> etree._Element:
             tcw = etree.SubElement(tcpr, w("tcW"))
             tcw.set(w("w"), str(twips[c]))
             tcw.set(w("type"), "dxa")
-            lines = value.split("\n") if value else [""]
-            for line in lines:
+            if grouped and r - 1 == table.divider_before:
+                _border(etree.SubElement(tcpr, w("tcBorders")), "top", 12)
+            if header:
+                _shade(tcpr, HEADER_FILL)
+            elif grouped:
+                _shade(tcpr, GROUP_FILL)
+            for runs in _cell_paragraphs(value, header=header):
                 p = etree.SubElement(tc, w("p"))
                 ppr = etree.SubElement(p, w("pPr"))
                 etree.SubElement(ppr, w("pStyle")).set(w("val"), "TableText")
-                rpr = None
-                if r == 0:
-                    rpr = etree.Element(w("rPr"))
-                    etree.SubElement(rpr, w("b"))
-                p.extend(make_runs(line, rpr))
+                for run in runs:
+                    rpr = None
+                    if run.bold or run.italic:
+                        rpr = etree.Element(w("rPr"))
+                        if run.bold:
+                            etree.SubElement(rpr, w("b"))
+                        if run.italic:
+                            etree.SubElement(rpr, w("i"))
+                    p.extend(make_runs(run.text, rpr))
     return tbl
 
 
@@ -335,19 +421,20 @@ def build_docx(body: Sequence[Element], *, stamp: RevisionStamp, title: str,
         if isinstance(el, Para):
             bod.append(_paragraph(el, stamp=stamp, ids=ids, moves=moves))
         else:
-            bod.append(_table(el))
+            bod.append(_table(el, text_width=text_width_twips(landscape=landscape)))
             # Word needs a paragraph between two tables; one after a table is customary.
             bod.append(etree.Element(w("p")))
     _add_move_ranges(moves, stamp=stamp, ids=ids)
     sect = etree.SubElement(bod, w("sectPr"))
     pg = etree.SubElement(sect, w("pgSz"))
-    # A4 (11906 x 16838 twips), ECMA-376 Part 1 §17.6.13 units; landscape swaps them.
-    pg.set(w("w"), "16838" if landscape else "11906")
-    pg.set(w("h"), "11906" if landscape else "16838")
+    # A4, ECMA-376 Part 1 §17.6.13 units; landscape swaps the sides.
+    pg.set(w("w"), str(_A4_LONG_TWIPS if landscape else _A4_SHORT_TWIPS))
+    pg.set(w("h"), str(_A4_SHORT_TWIPS if landscape else _A4_LONG_TWIPS))
     if landscape:
         pg.set(w("orient"), "landscape")
     mar = etree.SubElement(sect, w("pgMar"))
-    for side, value in (("top", "1418"), ("right", "1418"), ("bottom", "1418"), ("left", "1418"),
+    margin = str(_MARGIN_TWIPS)
+    for side, value in (("top", margin), ("right", margin), ("bottom", margin), ("left", margin),
                         ("header", "709"), ("footer", "709"), ("gutter", "0")):
         mar.set(w(side), value)
     document_xml = etree.tostring(doc, xml_declaration=True, encoding="UTF-8", standalone=True)
