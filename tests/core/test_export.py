@@ -134,6 +134,7 @@ def test_amend_writes_the_reviewers_words(scenario, tmp_path):
     write_counter_draft(scenario.review, decisions, out, draft_path=str(scenario.draft_path), author=AUTHOR)
     assert validate_docx(out) == []
     view = libreoffice().inspect(out, action="accept")
+    assert view.redlines_before > 0 and view.redlines_after == 0  # LibreOffice: all accepted
     draft = _texts(scenario.review.draft)
     expected = []
     for t in draft:
@@ -535,9 +536,11 @@ def test_demo_redline_accepts_to_the_draft_and_rejects_to_the_precedent(tmp_path
     assert any(True for _ in root.iter(w("moveFrom")))  # the demo's moved clauses
     office = libreoffice()
     accepted = office.inspect(out, action="accept", pdf=tmp_path / "redline.pdf")
+    assert accepted.redlines_before > 0 and accepted.redlines_after == 0
     assert accepted.pdf_bytes and accepted.pdf_bytes > 10_000
     assert _comparison_body(accepted) == _lines(review.draft)
     rejected = office.inspect(out, action="reject")
+    assert rejected.redlines_after == 0
     assert _comparison_body(rejected) == _lines(review.precedent)
 
 
@@ -553,6 +556,7 @@ def test_reverting_every_substantive_deviation_found_by_the_engine(scenario, tmp
     assert write_counter_draft(review, decisions, out, draft_path=str(scenario.draft_path), author=AUTHOR) == ()
     assert validate_docx(out) == []
     view = libreoffice().inspect(out, action="accept")
+    assert view.redlines_after == 0
     assert view.paragraphs == _expected_counter_draft(scenario)
 
 
