@@ -95,11 +95,16 @@ def _library_total(library: Any) -> int | None:
 
 def _library_notes(library: Any) -> tuple[str, ...]:
     report = getattr(library, "report", None)
-    if report is None or not report.failures:
+    if report is None:
         return ()
-    n = len(report.failures)
-    return (f"{n} file{'s' if n != 1 else ''} of the precedent set could not be read and "
-            f"{'were' if n != 1 else 'was'} skipped",)
+    notes: tuple[str, ...] = ()
+    if getattr(report, "rebuilt", None):
+        notes += (report.rebuilt[:1].upper() + report.rebuilt[1:],)
+    if report.failures:
+        n = len(report.failures)
+        notes += (f"{n} file{'s' if n != 1 else ''} of the precedent set could not be read and "
+                  f"{'were' if n != 1 else 'was'} skipped",)
+    return notes
 
 
 def _runner(library: Any, report: Report, cancelled: IsCancelled):

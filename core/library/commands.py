@@ -20,7 +20,8 @@ from .. import CAUTION
 from ..errors import CounterdraftError
 from ..fileio import atomic_write_text
 
-__all__ = ["add_library_parser", "open_library_for_cli", "progress_bar", "review_options", "warn_skipped"]
+__all__ = ["add_library_parser", "note_rebuilt", "open_library_for_cli", "progress_bar", "review_options",
+           "warn_skipped"]
 
 
 def progress_bar(description: str) -> tuple[Callable[..., None], Callable[[], None]]:
@@ -50,6 +51,12 @@ def warn_skipped(failures) -> None:  # noqa: ANN001 - Sequence[Failure]
         print(f"counterdraft: warning: skipped {f.path}: {f.problem}", file=sys.stderr)
 
 
+def note_rebuilt(report) -> None:  # noqa: ANN001 - BuildReport
+    """One line on stderr when the build set a damaged index aside and rebuilt it."""
+    if report.rebuilt:
+        print(f"counterdraft: note: {report.rebuilt}", file=sys.stderr)
+
+
 def open_library_for_cli(folder: str, *, db: str | None = None, refresh: bool = True, workers: int = 2):  # noqa: ANN201
     """Open (building or refreshing when *refresh*) the index of *folder*, with a progress
     bar, warning about skipped files."""
@@ -63,6 +70,7 @@ def open_library_for_cli(folder: str, *, db: str | None = None, refresh: bool = 
     finally:
         close()
     if library.report is not None:
+        note_rebuilt(library.report)
         warn_skipped(library.report.failures)
     return library
 
@@ -111,6 +119,7 @@ def _cmd_build(args: argparse.Namespace) -> int:
                                config=_variant_config(args))
     finally:
         close()
+    note_rebuilt(report)
     warn_skipped(report.failures)
     print(f"{report.documents} agreement{'s' * (report.documents != 1)} indexed "
           f"({report.read} read, {report.unchanged} unchanged, {report.removed} removed, "

@@ -84,7 +84,8 @@ __all__ = [
     "review_types",
 ]
 
-#: Nearest library provisions listed per wording.
+#: Nearest library provisions listed per wording: enough to show whether the nearest one is
+#: typical, few enough to read at a glance (a product choice, no source).
 CLOSEST_COUNT = 3
 #: Share of the draft-only shingles of a change a library provision must hold to carry the
 #: draft's wording.  One half: with 3-word shingles a one-word change has 3 draft-only

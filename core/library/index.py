@@ -19,6 +19,12 @@ build.  After the files, the derived data is refreshed only where something chan
 aliases, normalised wordings, neighbour typing of unheaded clauses, variants, the frequency
 cache (``variants.npz``) and the vocabulary model (``vocabulary.npz``).
 
+The index is derived data: when its file is not a usable SQLite database of this schema
+(damaged, truncated, not SQLite, another schema version), the build moves it aside to
+``library.sqlite.damaged-<time>`` (mode 0o600, beside it; kept because it may hold the
+reviewer's labels) and rebuilds it from the agreements; ``BuildReport.rebuilt`` says so in one
+line.  Opening an index without a build (:class:`Library`) reports such a file as an error.
+
 Confidentiality: the folder ``.counterdraft`` is created with mode 0o700 and every file in it
 with mode 0o600 (SQLite gives its journal the database's mode); the build logs no contract text
 (progress reports give file paths only, failure reasons never quote the file).
@@ -42,7 +48,7 @@ import stat
 import time
 from collections.abc import Callable, Iterator, Mapping, Sequence
 from concurrent.futures import ProcessPoolExecutor
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Any
 
@@ -155,6 +161,9 @@ class BuildReport:
     failures: tuple[Failure, ...]  # every file skipped, this build or an earlier one
     cancelled: bool = False
     seconds: float = 0.0
+    #: A one-line note when the index file was not usable (damaged, truncated, another
+    #: schema) and was moved aside and rebuilt from the agreements; else None.
+    rebuilt: str | None = None
 
 
 @dataclass(frozen=True, slots=True)
@@ -212,7 +221,68 @@ def _write_private(path: Path, data: bytes) -> None:
     os.chmod(path, 0o600)
 
 
+#: SQLite's primary result codes for a file that is not a database or is damaged
+#: (SQLITE_CORRUPT = 11, SQLITE_NOTADB = 26; https://www.sqlite.org/rescode.html).  Other
+#: errors (locked, read-only, disk full) say nothing about the file and never set it aside.
+_DAMAGE_CODES = frozenset({11, 26})
+
+
+class _Unusable(Exception):
+    """The index file is not a usable SQLite database of this schema (``problem`` says why)."""
+
+    def __init__(self, problem: str) -> None:
+        super().__init__(problem)
+        self.problem = problem
+
+
+def _is_damage(err: sqlite3.DatabaseError) -> bool:
+    code = getattr(err, "sqlite_errorcode", None)
+    return code is not None and (code & 0xFF) in _DAMAGE_CODES
+
+
+_REFERENCE_COLUMNS: dict[str, list[tuple[Any, ...]]] = {}
+
+
+def _reference_columns() -> dict[str, list[tuple[Any, ...]]]:
+    """``PRAGMA table_info`` of every table of :data:`_SCHEMA`, from an in-memory database."""
+    if not _REFERENCE_COLUMNS:
+        mem = sqlite3.connect(":memory:")
+        try:
+            mem.executescript(_SCHEMA)
+            names = [n for (n,) in mem.execute("SELECT name FROM sqlite_master WHERE type = 'table'")]
+            _REFERENCE_COLUMNS.update({n: mem.execute(f"PRAGMA table_info({n})").fetchall() for n in names})
+        finally:
+            mem.close()
+    return _REFERENCE_COLUMNS
+
+
+def _check_schema(conn: sqlite3.Connection) -> None:
+    """Raise :class:`_Unusable` unless the database is empty or an index of this schema.
+
+    Reading the schema also makes SQLite check the file header: garbage gives SQLITE_NOTADB,
+    a truncated file SQLITE_CORRUPT.  Cost: one read of the schema table, a few pragmas.
+    """
+    try:
+        tables = {n for (n,) in conn.execute("SELECT name FROM sqlite_master WHERE type = 'table'")}
+        if not tables:
+            return  # a new, empty file
+        if "meta" not in tables:
+            raise _Unusable("not a Counterdraft index")
+        version = _meta(conn, "schema")
+        if version != SCHEMA_VERSION:
+            raise _Unusable(f"made by another version of Counterdraft (schema {version})")
+        for name, columns in _reference_columns().items():
+            if name in tables and conn.execute(f"PRAGMA table_info({name})").fetchall() != columns:
+                raise _Unusable(f"table {name} differs from this version's")
+    except sqlite3.DatabaseError as err:
+        if _is_damage(err):
+            raise _Unusable(str(err)) from None
+        raise
+
+
 def _connect(db_path: Path, *, create: bool) -> sqlite3.Connection:
+    """Open the index; raises :class:`_Unusable` when the file is not a usable index of this
+    schema (damaged, truncated, another schema) and CounterdraftError for other problems."""
     if not db_path.exists():
         if not create:
             raise CounterdraftError("no precedent-set index here; build it with "
@@ -228,24 +298,53 @@ def _connect(db_path: Path, *, create: bool) -> sqlite3.Connection:
         os.chmod(db_path, 0o600)
     except OSError:
         pass
+    conn = None
     try:
         # check_same_thread=False: the desktop app opens the index in a worker thread and reads
         # it from the GUI thread, one at a time.
         conn = sqlite3.connect(str(db_path), timeout=30.0, check_same_thread=False)
+        _check_schema(conn)
         conn.execute("PRAGMA foreign_keys = ON")
         conn.execute("PRAGMA synchronous = NORMAL")
         conn.executescript(_SCHEMA)
-        version = _meta(conn, "schema")
-        if version is None:
+        if _meta(conn, "schema") is None:
             _set_meta(conn, "schema", SCHEMA_VERSION)
             conn.commit()
-        elif version != SCHEMA_VERSION:
+    except _Unusable:
+        if conn is not None:
             conn.close()
-            raise CounterdraftError(f"index made by another version of Counterdraft (schema {version}); "
-                                    "delete it and build again", path=str(db_path))
+        raise
     except sqlite3.DatabaseError as err:
-        raise CounterdraftError(f"not a usable index database ({err})", path=str(db_path)) from None
+        if conn is not None:
+            conn.close()
+        if _is_damage(err):
+            raise _Unusable(str(err)) from None
+        raise CounterdraftError(f"cannot open the index ({err})", path=str(db_path)) from None
     return conn
+
+
+def _set_aside(db_path: Path) -> Path:
+    """Rename a damaged index (and any journal SQLite left beside it) to
+    ``<name>.damaged-<local time>``, mode 0o600, and return the new path.  Kept, not deleted:
+    it may hold the reviewer's labels, and a person may want to look at it."""
+    stamp = time.strftime("%Y%m%d-%H%M%S")
+    aside = db_path.with_name(f"{db_path.name}.damaged-{stamp}")
+    n = 1
+    while aside.exists():
+        n += 1
+        aside = db_path.with_name(f"{db_path.name}.damaged-{stamp}-{n}")
+    try:
+        os.replace(db_path, aside)
+        os.chmod(aside, 0o600)
+        for suffix in ("-journal", "-wal", "-shm"):
+            side = db_path.with_name(db_path.name + suffix)
+            if side.exists():
+                os.replace(side, aside.with_name(aside.name + suffix))
+                os.chmod(aside.with_name(aside.name + suffix), 0o600)
+    except OSError as err:
+        raise CounterdraftError(f"the index is damaged and cannot be moved aside ({err.strerror}); "
+                                "delete it and build again", path=str(db_path)) from None
+    return aside
 
 
 def _meta(conn: sqlite3.Connection, key: str) -> str | None:
@@ -440,40 +539,67 @@ def build_library(root: str | os.PathLike[str], *, db_path: str | os.PathLike[st
         db = root_p / DB_DIRNAME / DB_FILENAME
     else:
         db = Path(db_path)
-    conn = _connect(db, create=True)
-    try:
-        if config is not None:
-            old = _meta(conn, "variant_config")
-            new = json.dumps([config.metric, config.linkage, config.cutoff, config.max_items])
-            if old != new:
-                _set_meta(conn, "variant_config", new)
-                conn.execute("DELETE FROM buckets")
-                _set_meta(conn, "stale", "1")
-        files = _scan(root_p, exclude=[*exclude, db])
-        report = _update_files(conn, files, progress=progress, cancel=cancel, workers=workers)
-        changed = report.read > 0 or report.removed > 0 or _meta(conn, "stale") == "1"
-        cancelled = report.cancelled
-        if changed and not cancelled:
-            _set_meta(conn, "stale", "1")
-            conn.commit()
-            cancelled = not _refresh_derived(conn, db.parent, cancel=cancel, vocabulary=vocabulary)
-            if not cancelled:
-                _set_meta(conn, "stale", "0")
-                _set_meta(conn, "generation", str(int(_meta(conn, "generation") or 0) + 1))
-                conn.commit()
-        elif changed:
-            _set_meta(conn, "stale", "1")
-            conn.commit()
-        _set_meta(conn, "root", str(root_p.resolve()))
+    rebuilt: str | None = None
+    while True:
+        try:
+            conn = _connect(db, create=True)
+            try:
+                report = _build_into(conn, root_p, db, progress=progress, cancel=cancel, workers=workers,
+                                     config=config, vocabulary=vocabulary, exclude=exclude,
+                                     fresh=rebuilt is not None)
+            finally:
+                conn.close()
+        except (_Unusable, sqlite3.DatabaseError) as err:
+            if isinstance(err, sqlite3.DatabaseError) and not _is_damage(err):
+                raise CounterdraftError(f"cannot update the index ({err})", path=str(db)) from None
+            problem = err.problem if isinstance(err, _Unusable) else str(err)
+            if rebuilt is not None:  # a fresh file failed too: not the old file's fault
+                raise CounterdraftError(f"cannot rebuild the index ({problem})", path=str(db)) from None
+            aside = _set_aside(db)
+            rebuilt = (f"the index was not usable ({problem}); it was moved aside to {aside.name} "
+                       "and rebuilt from the agreements")
+            continue
+        break
+    return replace(report, rebuilt=rebuilt, seconds=round(time.perf_counter() - started, 3))
+
+
+def _build_into(conn: sqlite3.Connection, root_p: Path, db: Path, *, progress: Progress | None,
+                cancel: Cancel | Any | None, workers: int, config: VariantConfig | None, vocabulary: bool,
+                exclude: Sequence[str | os.PathLike[str]], fresh: bool) -> BuildReport:
+    """The body of :func:`build_library` on an open index (*fresh*: it replaces a damaged one,
+    so the derived files beside it are rewritten even if the folder holds no agreement)."""
+    if fresh:
+        _set_meta(conn, "stale", "1")
         conn.commit()
-        documents = conn.execute("SELECT COUNT(*) FROM documents").fetchone()[0]
-        failures = tuple(Failure(p, m) for p, m in
-                         conn.execute("SELECT path, problem FROM failures ORDER BY path"))
-    finally:
-        conn.close()
+    if config is not None:
+        old = _meta(conn, "variant_config")
+        new = json.dumps([config.metric, config.linkage, config.cutoff, config.max_items])
+        if old != new:
+            _set_meta(conn, "variant_config", new)
+            conn.execute("DELETE FROM buckets")
+            _set_meta(conn, "stale", "1")
+    files = _scan(root_p, exclude=[*exclude, db])
+    report = _update_files(conn, files, progress=progress, cancel=cancel, workers=workers)
+    changed = report.read > 0 or report.removed > 0 or _meta(conn, "stale") == "1"
+    cancelled = report.cancelled
+    if changed and not cancelled:
+        _set_meta(conn, "stale", "1")
+        conn.commit()
+        cancelled = not _refresh_derived(conn, db.parent, cancel=cancel, vocabulary=vocabulary)
+        if not cancelled:
+            _set_meta(conn, "stale", "0")
+            _set_meta(conn, "generation", str(int(_meta(conn, "generation") or 0) + 1))
+            conn.commit()
+    elif changed:
+        _set_meta(conn, "stale", "1")
+        conn.commit()
+    _set_meta(conn, "root", str(root_p.resolve()))
+    conn.commit()
+    documents = conn.execute("SELECT COUNT(*) FROM documents").fetchone()[0]
+    failures = tuple(Failure(p, m) for p, m in
+                     conn.execute("SELECT path, problem FROM failures ORDER BY path"))
     return BuildReport(str(root_p), str(db), report.files, report.read, report.unchanged,
-                       report.removed, documents, failures, cancelled,
-                       round(time.perf_counter() - started, 3))
+                       report.removed, documents, failures, cancelled)
 
 
 def _update_files(conn: sqlite3.Connection, files: Sequence[_FileStat], *, progress: Progress | None,
@@ -848,7 +974,11 @@ class Library:
 
     def __init__(self, db_path: str | os.PathLike[str], *, root: str | os.PathLike[str] | None = None) -> None:
         self.db_path = Path(db_path)
-        self.conn = _connect(self.db_path, create=False)
+        try:
+            self.conn = _connect(self.db_path, create=False)
+        except _Unusable as err:
+            raise CounterdraftError(f"not a usable index database ({err.problem}); 'counterdraft library "
+                                    "build' sets it aside and rebuilds it", path=str(self.db_path)) from None
         stored_root = _meta(self.conn, "root")
         self.root = Path(root) if root is not None else (Path(stored_root) if stored_root else self.db_path.parent)
         self._cache: dict[str, np.ndarray] | None = None

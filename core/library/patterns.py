@@ -42,7 +42,8 @@ __all__ = [
     "patterns_to_dict",
 ]
 
-#: Distinct examples kept per move.
+#: Distinct examples kept per move: a few show the move's range; more repeat it (a product
+#: choice, no source).
 MAX_EXAMPLES = 3
 
 

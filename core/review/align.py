@@ -54,42 +54,82 @@ __all__ = [
     "pair_similarity",
 ]
 
+#: Figures marked "sweep" below come from ``benchmarks/sweep_review_constants.py``: the demo
+#: pair, the three licence texts (licensedcode-data) with every edit of the licence tests
+#: planted at once, and one licence against another; "same alignment" means the same pairs in
+#: all five reviews.
+
 #: Similarity (0..1) under which two provisions are not the same provision.  A provision
 #: with one sentence in three rewritten scores about 0.6; unrelated provisions of the same
-#: agreement score 0.1-0.3 (measured on the licence texts and the demo pair).
+#: agreement score 0.1-0.3 (measured on the licence texts and the demo pair).  Sweep: 0.45
+#: gives the same alignment; 0.35 and below add weak pairings between the two different
+#: licences, 0.5 and above drop one there (two related warranty sections).
 ALIGN_MIN = 0.4
-#: Candidate counterparts kept per provision from the cosine bound.
+#: Candidate counterparts kept per provision (each draft row and each precedent column) from
+#: the cheap cosine bound; only candidates get the exact score, so the exact scoring costs
+#: O(n x CANDIDATES) instead of O(n_d x n_p).  Tuned on the demo and licence texts (sweep):
+#: every pair that reaches ALIGN_MIN ranks at most 3rd in its row or column by the bound, and
+#: any value from 1 to 20 (or every pair) gives the same alignment; 6 is twice the deepest
+#: rank seen, a margin for drafts rewritten more heavily than these.
 CANDIDATES = 6
-#: Cosine below which a pair is not even a candidate.
+#: Bound ((1 - HEADING_WEIGHT) x cosine + HEADING_WEIGHT x heading cosine) under which a pair
+#: is not even a candidate: such a pair cannot reach ALIGN_MIN.  Tuned on the demo and
+#: licence texts (sweep): pairs under 0.05 score at most 0.23 exactly (ALIGN_MIN is 0.4),
+#: every pair reaching ALIGN_MIN has a bound of at least 0.16, and values from 0 to 0.3 give
+#: the same alignment; 0.05 keeps a threefold margin under 0.16 and still drops about 70% of
+#: the demo's pairs (24,324 of 34,782) before the top-CANDIDATES selection.
 CANDIDATE_MIN_COSINE = 0.05
 #: Draft rows per block of the cosine computation (a block holds BLOCK_ROWS x n_p cosines:
 #: 4 MB for a 1,000-provision precedent).
 BLOCK_ROWS = 512
-#: Weight of the heading in the similarity when both provisions have one.
+#: Weight of the heading in the similarity when both provisions have one: a heading is a few
+#: words against the text's many, so it counts for less than half, but enough to pair a
+#: clause rewritten under the same heading.  A judgement value (from memory); sweep: 0.1-0.4
+#: give the same alignment, 0 changes pairs in two perturbed licences and unpairs
+#: same-titled sections of the two different licences, 0.6 unpairs the demo's renamed
+#: "Term" / "Commencement and Duration".
 HEADING_WEIGHT = 0.3
 #: Share of the TF-IDF cosine (rare words count more) in the content similarity; the rest is
-#: the Indel similarity of the word sequences (word order counts).
+#: the Indel similarity of the word sequences (word order counts).  Equal shares, a judgement
+#: value (from memory); sweep: 0-0.6 give the same alignment, 0.7 and above change which
+#: definitions of the two different licences pair.
 COSINE_WEIGHT = 0.5
-#: A provision paired with one of another kind (a definition with a clause) loses this much.
+#: A provision paired with one of another kind (a definition with a clause) loses this much:
+#: the kind is evidence, but a reader's heuristic, not a fact.  From memory; sweep: 0.5-0.9
+#: give the same alignment, 1 (no loss) pairs one licence's closing line with a clause of
+#: the other.
 KIND_MISMATCH_FACTOR = 0.8
 #: Provisions with a heading and no words of their own (a section title line) compared with
-#: one that has words: the heading is all the evidence, worth this much.
+#: one that has words: the heading is all the evidence, worth this much.  From memory; sweep:
+#: 0-0.7 give the same alignment, 0.8 and above pair two unrelated clauses of the two
+#: different licences.
 HEADING_ONLY_FACTOR = 0.6
-#: Tie-breaker among equal cosines when choosing candidates (relative position).
+#: Tie-breaker among equal cosines when choosing candidates (relative position, 0..1): at
+#: most 0.01, under any real difference of bound.  From memory; sweep: 0-0.1 give the same
+#: alignment.
 CANDIDATE_POSITION_WEIGHT = 0.01
 #: Tie-breakers in the assignment objective (not in the reported similarity): same relative
-#: position, and parents that are themselves paired.
+#: position, and parents that are themselves paired.  Small beside the similarities so they
+#: only decide between near-equal pairs (repeated identical list items: see the alignment
+#: tests).  From memory; sweep: 0-0.2 and 0-0.4 give the same alignment.
 POSITION_WEIGHT = 0.02
 PARENT_BONUS = 0.05
-#: Split / merged: the share of the unpaired provision's words found in the paired one, and
-#: the gain in similarity the paired one must get from joining it.
+#: Split / merged: the share of the unpaired provision's words found in the paired one, the
+#: gain in similarity the paired one must get from joining it, and the fewest words a
+#: provision needs to be joined at all (a two-word line is found in any neighbour).  From
+#: memory; sweep: containment 0.8-1 give the same alignment, 0.7 and below join an unrelated
+#: definition to a pair of definitions of the two different licences; gain 0-0.2 and
+#: minimum words 1-10 change nothing here (the split and merged cases of the alignment tests
+#: exercise them).
 SPLIT_CONTAINMENT = 0.75
 SPLIT_GAIN = 0.03
 SPLIT_MIN_WORDS = 3
 #: An unpaired provision is paired with an unpaired counterpart when at least this share of
-#: its children are paired with that counterpart's children.
+#: its children are paired with that counterpart's children: half, so the children's
+#: majority decides.  From memory; sweep: 0.25-0.75 give the same alignment, 1 (every child)
+#: unpairs the demo's lead-in lines ("NOW, THEREFORE, the parties agree as follows" /
+#: "AGREED TERMS").
 CHILD_VOTE_SHARE = 0.5
-
 
 @dataclass(frozen=True, slots=True)
 class Features:

@@ -42,7 +42,11 @@ from .worddiff import TokenOp
 
 __all__ = ["Change", "TermContext", "classify_ops"]
 
+#: Token kinds that carry meaning (tokens.KIND_WORD, KIND_NUMBER, KIND_TERM, KIND_XREF):
+#: space and punctuation are judged apart (formatting, punctuation).
 _WORDLIKE = frozenset("wntx")
+#: "a" / "an" swapped in front of a renamed defined term follows the rename (grammar): it is
+#: part of the term change, not a change of its own.
 _ARTICLES = frozenset({"a", "an"})
 #: Formatting differences of one kind at most this many tokens apart are one change (the
 #: two quotation marks around a word).

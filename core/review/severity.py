@@ -515,7 +515,9 @@ def _qualifier_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d
 
 
 _WORD_RE = re.compile(r"\w+")
-#: Longest quotation of the changed words in a reason (characters).
+#: Longest quotation of the changed words in a reason (characters): long enough for a
+#: phrase, short enough that a reason stays a glance in the report and the deviation list (a
+#: layout choice, no source).
 REASON_QUOTE_CHARS = 60
 
 

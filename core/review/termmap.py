@@ -79,25 +79,36 @@ __all__ = [
 #: Definition similarity (0..1, rapidfuzz Indel normalised similarity) below which two
 #: definitions are no evidence at all.  Unrelated definitions of a contract share their
 #: frame ("means any ... of the Supplier") and score about 0.4-0.6; the same definition
-#: reworded scores above 0.8 (measured on the demo agreements and the licence texts).
+#: reworded scores above 0.8 (measured on the demo agreements and the licence texts; the
+#: sweep above gives the same term maps for 0.5-0.9).
 DEFINITION_MIN = 0.7
 #: Embedding similarity below which the vocabulary model is no evidence.  Word2Vec cosine
 #: similarities of unrelated words are mostly below 0.5 (gensim's word-similarity tutorial
 #: figures; from memory).
 EMBEDDING_MIN = 0.5
 #: How far one kind of evidence can carry a mapping on its own (noisy-or weights): an
-#: identical definition gives 0.9, substitution in many slots 0.95, an embedding 0.6.
+#: identical definition gives 0.9, substitution in many slots 0.95, an embedding 0.6 (a
+#: vocabulary model guesses; the documents' own wording shows).  Judgement values (from
+#: memory), ordered by how directly each kind shows a rename.
 EVIDENCE_WEIGHTS: Mapping[str, float] = {"definition": 0.9, "substitution": 0.95, "embedding": 0.6}
 #: Substitutions needed for the substitution evidence to reach 1 - 1/e of its weight.  One
-#: slot is weak evidence (it could be a single deliberate change); three are strong.
+#: slot is weak evidence (it could be a single deliberate change); three are strong.  From
+#: memory; ``benchmarks/sweep_review_constants.py`` (demo pair, three perturbed licences, one
+#: licence against another) gives the same term maps for 0.5-4.
 SUBSTITUTION_SCALE = 2.0
-#: Confidence needed to accept a mapping: one clear kind of evidence, or two weak ones.
+#: Confidence needed to accept a mapping: one clear kind of evidence, or two weak ones.  From
+#: memory; the same sweep gives the same term maps for 0.3-0.9 (the renames there carry
+#: strong evidence; the term-map tests pin the weak cases).
 MAP_MIN = 0.5
 #: A name of one document that the other document itself uses this often (relative to its
-#: own document, and at least FOREIGN_USE_MIN times) exists on both sides and is not renamed.
+#: own document, and at least FOREIGN_USE_MIN times) exists on both sides and is not renamed:
+#: half as often as its own document, and twice, so that one stray mention does not count.
+#: From memory; the same sweep gives the same term maps for ratios 0.1-1 and minimums 1-5.
 FOREIGN_USE_RATIO = 0.5
 FOREIGN_USE_MIN = 2
-#: Substitution slots: at most this many ordinary words beside the term in a replaced run.
+#: Substitution slots: at most this many ordinary words beside the term in a replaced run
+#: ("the Vendor's" -> "the Supplier's"); more, and the run is a rewrite, not a rename.  From
+#: memory; the same sweep gives the same term maps for 0-5.
 _SLOT_MAX_OTHER_WORDS = 2
 
 

@@ -367,7 +367,7 @@ def test_bold_defined_terms_without_quotes_in_a_definitions_section():
 
 
 def test_definition_outside_a_definitions_section_needs_the_strong_form():
-    doc = text_doc('1. Price\n"Fee" means the fee.\nA "Widget" is a thing.\n')
+    doc = text_doc('1. Price\n"Fee" means the fee.\nA "Quiddlet" is a thing.\n')
     assert [(p.kind, p.term) for p in doc.provisions] == [("clause", None), ("definition", "Fee")]
 
 

@@ -39,3 +39,28 @@ def test_term_status_labels_each_mapping_from_the_overrides():
     m = make_record().review.term_map[0]
     assert status(m) == "confirmed"
     assert rejected == [("Vendor", "")]
+
+
+def test_a_damaged_index_is_rebuilt_and_the_review_says_so(tmp_path):
+    """Garbage in place of the precedent set's index: the review still runs with
+    frequencies, and its notes say the index was moved aside and rebuilt."""
+    import shutil
+
+    from desktop.state import Inputs
+
+    from .conftest import DEMO
+
+    folder = tmp_path / "set"
+    folder.mkdir()
+    for f in sorted((DEMO / "precedent_set").glob("*.docx"))[:3]:
+        shutil.copy(f, folder / f.name)
+    (folder / ".counterdraft").mkdir(mode=0o700)
+    (folder / ".counterdraft" / "library.sqlite").write_bytes(bytes(range(256)) * 64)
+    out = engine.load_and_review(Inputs(str(DEMO / "draft.docx"), str(DEMO / "precedent.docx"), str(folder)),
+                                 lambda *_: None, lambda: False)
+    try:
+        assert out.library_total == 3
+        rebuilt = [n for n in out.notes if "rebuilt from the agreements" in n]
+        assert len(rebuilt) == 1 and rebuilt[0].startswith("The index was not usable")
+    finally:
+        engine.close_library(out.library)

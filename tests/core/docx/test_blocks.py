@@ -169,7 +169,7 @@ def test_nested_field_in_instruction_is_hidden_and_in_result_shown():
     # nothing; a field inside the outer result shows its own result.
     body = p(
         fld("begin"), instr(" IF "), fld("begin"), instr(" MERGEFIELD Party "), fld("separate"),
-        r("Northwind"), fld("end"), instr(' = "" "x" "y" '), fld("separate"),
+        r("Ravelsby"), fld("end"), instr(' = "" "x" "y" '), fld("separate"),
         r("Result "), fld("begin"), instr(" PAGE "), fld("separate"), r("3"), fld("end"),
         fld("end"), r(" end"),
     )
@@ -236,14 +236,14 @@ def test_containers_are_opened():
     body = p(
         '<w:hyperlink r:id="rId9" xmlns:r="http://schemas.openxmlformats.org/officeDocument/2006/'
         'relationships">' + r("Link") + "</w:hyperlink>",
-        '<w:smartTag w:uri="urn:x" w:element="place">' + r(" Kestrel Bay") + "</w:smartTag>",
+        '<w:smartTag w:uri="urn:x" w:element="place">' + r(" Skarnel Bay") + "</w:smartTag>",
         '<w:customXml w:element="party">' + r(" Orvane Ltd") + "</w:customXml>",
         "<w:sdt><w:sdtPr><w:alias w:val=\"Amount\"/></w:sdtPr><w:sdtContent>" + r(" 12,500")
         + "</w:sdtContent></w:sdt>",
         "<w:r><w:ruby><w:rubyPr/><w:rt>" + r("yomi") + "</w:rt><w:rubyBase>" + r(" base")
         + "</w:rubyBase></w:ruby></w:r>",
     )
-    assert _read(body)[0][0].text == "Link Kestrel Bay Orvane Ltd 12,500 base"
+    assert _read(body)[0][0].text == "Link Skarnel Bay Orvane Ltd 12,500 base"
 
 
 # --------------------------------------------------------------------------------------

@@ -20,13 +20,17 @@ def scenario() -> dict:
 
 @pytest.fixture(scope="session")
 def demo_set(tmp_path_factory, scenario) -> Path:
-    """A copy of the demo precedent set, indexed (the copy keeps the repository clean)."""
+    """A copy of the demo precedent set, indexed (the copy keeps the repository clean).  A
+    local ``.counterdraft`` index left in the demo folder (``make demo``) is not copied: the
+    index is always built fresh here."""
     from core.library.index import build_library
 
     folder = tmp_path_factory.mktemp("demo-set") / "precedent_set"
-    shutil.copytree(DEMO / scenario["precedent_set"]["folder"], folder)
+    shutil.copytree(DEMO / scenario["precedent_set"]["folder"], folder,
+                    ignore=shutil.ignore_patterns(".counterdraft"))
     report = build_library(folder)
     assert report.failures == ()
+    assert report.read == scenario["precedent_set"]["total"] and report.unchanged == 0
     return folder
 
 

@@ -134,3 +134,26 @@ def test_a_read_only_precedent_set_folder_says_what_to_do(tmp_path, monkeypatch,
     err = capsys.readouterr().err
     assert err.count("\n") == 1 and str(folder / ".counterdraft") in err
     assert "must be writable" in err and "--db" not in err
+
+
+def test_a_damaged_index_is_rebuilt_by_build_and_review(library_copy, capsys, scenario):
+    """Garbage bytes in place of the index: both commands set it aside, rebuild it from the
+    agreements and say so in one line on stderr; the results are those of a sound index."""
+    db = library_copy / ".counterdraft" / "library.sqlite"
+    db.write_bytes(bytes(range(256)) * 64)
+    assert main(["library", "build", str(library_copy)]) == 0
+    out, err = capsys.readouterr()
+    assert "12 agreements indexed (13 read, 0 unchanged, 0 removed, 1 skipped)" in out
+    notes = [line for line in err.splitlines() if line.startswith("counterdraft: note: ")]
+    assert len(notes) == 1 and "rebuilt from the agreements" in notes[0]
+    assert "file is not a database" in notes[0]  # SQLite's message for SQLITE_NOTADB
+
+    db.write_bytes(b"\x00garbage" * 1000)
+    assert main(["review", DRAFT, "--against", PRECEDENT, "--library", str(library_copy), "--json", "-"]) == 0
+    out, err = capsys.readouterr()
+    assert "rebuilt from the agreements" in err
+    review = json.loads(out)
+    _validator().validate(review)
+    total = scenario["precedent_set"]["total"]
+    assert all(p["frequency"] is not None and p["frequency"]["total"] == total for p in review["pairs"])
+    assert len(list(db.parent.glob("library.sqlite.damaged-*"))) == 2

@@ -3,6 +3,7 @@
 Outside references:
 * ``hashlib.sha256`` (FIPS 180-4) for the stored content hashes;
 * SQLite's own ``PRAGMA integrity_check`` and POSIX file modes (``os.stat``) for the files;
+  SQLite's result codes (SQLITE_CORRUPT, https://www.sqlite.org/rescode.html) for damage;
 * the ZIP file format via ``zipfile`` (a .docx is an OPC/ZIP package, ECMA-376 Part 2 section
   8): a truncated copy of a real .docx is a corrupt package.
 """
@@ -40,8 +41,8 @@ SENTINEL = "Quillowby"  # a word that appears only inside the agreements' text
 def agreement(n: int, *, days: int = 30, extra: str = "") -> str:
     """A small plain-text agreement with recognisable clauses."""
     return (f"SUPPLY AGREEMENT NUMBER {n}\n\n"
-            f"This Agreement is made between {SENTINEL} Mills Limited (\"Supplier\") and Harbour "
-            f"Trading Limited (\"Customer\").\n\n"
+            f"This Agreement is made between {SENTINEL} Mills Limited (\"Supplier\") and Corrimar "
+            f"Vendlowe Limited (\"Customer\").\n\n"
             "1. Definitions\n\n1.1 \"Goods\" means the goods described in the Order.\n\n"
             "2. Payment\n\n2.1 The Customer shall pay each invoice submitted by the Supplier within "
             f"{days} days of the date of the invoice.{extra}\n\n"
@@ -93,7 +94,7 @@ def test_folder_with_bad_files_builds_reports_them_and_indexes_the_rest(tmp_path
             # Reference: hashlib.sha256 of the file's bytes.
             assert digest == hashlib.sha256((root / rel).read_bytes()).hexdigest()
         parties = conn.execute("SELECT parties FROM documents WHERE path = 'a.txt'").fetchone()[0]
-        assert "Harbour Trading Limited (Customer)" in parties
+        assert "Corrimar Vendlowe Limited (Customer)" in parties
         n_terms = conn.execute("SELECT COUNT(*) FROM terms").fetchone()[0]
         assert n_terms >= 6
     with open_library(root, refresh=False) as lib:
@@ -235,3 +236,117 @@ def test_empty_folder_builds_an_empty_index(tmp_path):
     assert report.documents == 0 and report.files == 0
     with open_library(tmp_path, refresh=False) as lib:
         assert lib.total == 0 and lib.bucket("payment") is None and lib.vocabulary is None
+
+
+def _garbage(db: Path) -> None:
+    db.write_bytes(bytes(range(256)) * 64)
+
+
+def _truncated(db: Path) -> None:
+    data = db.read_bytes()
+    db.write_bytes(data[: len(data) // 2])
+
+
+def _other_schema_version(db: Path) -> None:
+    with sqlite3.connect(db) as conn:
+        conn.execute("UPDATE meta SET value = '0' WHERE key = 'schema'")
+    conn.close()
+
+
+def _foreign_database(db: Path) -> None:
+    db.unlink()
+    conn = sqlite3.connect(db)
+    conn.execute("CREATE TABLE recipes(name TEXT)")
+    conn.commit()
+    conn.close()
+
+
+@pytest.mark.parametrize("damage", [_garbage, _truncated, _other_schema_version, _foreign_database],
+                         ids=["garbage", "truncated", "other-version", "foreign"])
+def test_an_unusable_index_is_moved_aside_and_rebuilt(tmp_path, damage):
+    root = make_folder(tmp_path / "lib")
+    first = build_library(root)
+    assert first.rebuilt is None
+    folder = root / DB_DIRNAME
+    db = folder / DB_FILENAME
+    damage(db)
+    damaged = db.read_bytes()
+    # Reading without a build reports it (one line, with the way out) and leaves it alone.
+    with pytest.raises(CounterdraftError, match="not a usable index database .*'counterdraft library build'"):
+        open_library(root, refresh=False)
+    assert db.read_bytes() == damaged
+    old = os.umask(0o022)
+    try:
+        report = build_library(root)
+    finally:
+        os.umask(old)
+    assert report.rebuilt is not None and "\n" not in report.rebuilt
+    assert "moved aside" in report.rebuilt and "rebuilt from the agreements" in report.rebuilt
+    # The same index as the first build, from the agreements.
+    assert (report.documents, report.read, report.unchanged) == (3, 7, 0)
+    assert {f.path for f in report.failures} == {f.path for f in first.failures}
+    # Reference: SQLite's own integrity check of the new file.
+    with sqlite3.connect(db) as conn:
+        assert conn.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
+    conn.close()
+    # The damaged file is kept, byte for byte, beside the new one; everything stays private
+    # (POSIX modes: folder 0o700, files 0o600).
+    aside = [p for p in folder.iterdir() if p.name.startswith(DB_FILENAME + ".damaged-")]
+    assert len(aside) == 1 and aside[0].name in report.rebuilt
+    assert aside[0].read_bytes() == damaged
+    assert stat.S_IMODE(folder.stat().st_mode) == 0o700
+    for p in folder.iterdir():
+        assert stat.S_IMODE(p.stat().st_mode) == 0o600, p.name
+    with open_library(root, refresh=False) as lib:
+        assert lib.total == 3 and lib.documents_with("payment") == 3
+    # The aside file is not a candidate file, and the next build finds nothing to do.
+    again = build_library(root)
+    assert again.rebuilt is None and (again.read, again.unchanged) == (0, 7)
+
+
+def test_damage_found_during_the_build_also_rebuilds(tmp_path, monkeypatch):
+    """A page damaged in the middle of the file is found only when the build reads it: SQLite
+    then raises SQLITE_CORRUPT (the real error, taken from a truncated file)."""
+    root = make_folder(tmp_path / "lib")
+    build_library(root, vocabulary=False)
+    broken = tmp_path / "broken.sqlite"
+    data = (root / DB_DIRNAME / DB_FILENAME).read_bytes()
+    broken.write_bytes(data[: len(data) // 2])
+    corrupt: sqlite3.DatabaseError | None = None
+    conn = sqlite3.connect(broken)
+    try:
+        conn.execute("SELECT COUNT(*) FROM documents").fetchone()
+    except sqlite3.DatabaseError as err:
+        corrupt = err
+    finally:
+        conn.close()
+    assert corrupt is not None and corrupt.sqlite_errorname == "SQLITE_CORRUPT"
+    real = index_module._update_files
+    calls = []
+
+    def update_files(*args, **kwargs):  # noqa: ANN002, ANN003, ANN202
+        calls.append(1)
+        if len(calls) == 1:
+            raise corrupt
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(index_module, "_update_files", update_files)
+    report = build_library(root, vocabulary=False)
+    assert len(calls) == 2 and report.rebuilt and "database disk image is malformed" in report.rebuilt
+    assert report.documents == 3 and report.read == 7
+
+
+def test_other_database_errors_are_one_line_and_keep_the_file(tmp_path, monkeypatch):
+    root = make_folder(tmp_path / "lib")
+    build_library(root, vocabulary=False)
+    db = root / DB_DIRNAME / DB_FILENAME
+    before = db.read_bytes()
+
+    def locked(*args, **kwargs):  # noqa: ANN002, ANN003, ANN202
+        raise sqlite3.OperationalError("database is locked")
+
+    monkeypatch.setattr(index_module, "_update_files", locked)
+    with pytest.raises(CounterdraftError, match="cannot update the index .database is locked."):
+        build_library(root, vocabulary=False)
+    assert db.read_bytes() == before
+    assert not [p for p in db.parent.iterdir() if ".damaged-" in p.name]

@@ -126,9 +126,9 @@ def test_token_spans_give_the_match_tokens_and_quote_their_words(name):
 
 def test_learn_aliases_maps_roles_and_same_definitions_but_not_co_defined_terms():
     defs = [
-        (1, "Customer", "Border Trading Limited"),
+        (1, "Customer", "Ulverack Tessmoor Limited"),
         (1, "Deliverables", "all documents, products and materials developed by the Supplier in the Services"),
-        (2, "Client", "Harbour Mills Limited"),
+        (2, "Client", "Pennoch Straive Limited"),
         (2, "Deliverables", "all documents, products and materials developed by the Supplier in the Services"),
         (3, "Work Product", "all documents, products and materials developed by the Supplier in the Services"),
         (4, "Products", "the goods described in Schedule 1"),

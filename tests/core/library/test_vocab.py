@@ -10,7 +10,6 @@ Outside references:
 from __future__ import annotations
 
 import os
-import time
 
 import gensim
 import numpy as np
@@ -26,13 +25,11 @@ DATA = os.path.join(os.path.dirname(gensim.__file__), "test", "test_data")
 def lee_vectors():
     with open(os.path.join(DATA, "lee_background.cor"), encoding="utf-8") as fh:
         sentences = [vocab_tokens(line) for line in fh]
-    start = time.perf_counter()
-    vectors = train_vectors(sentences)
-    return vectors, time.perf_counter() - start, sentences
+    return train_vectors(sentences), sentences
 
 
 def test_wordsim353_spearman_is_positive_on_the_lee_corpus(lee_vectors):
-    vectors, seconds, _ = lee_vectors
+    vectors, _ = lee_vectors
     pearson, spearman, oov = vectors.evaluate_word_pairs(os.path.join(DATA, "wordsim353.tsv"))
     # Measured with this code (gensim 4.4, 32-dim skip-gram, 40 epochs, seed 2024, one worker):
     # Spearman rho = 0.263 (p = 0.0024), Pearson r = 0.269, 62.6% of the pairs out of vocabulary
@@ -41,11 +38,10 @@ def test_wordsim353_spearman_is_positive_on_the_lee_corpus(lee_vectors):
     assert spearman.pvalue < 0.05
     assert spearman.statistic == pytest.approx(0.263, abs=0.03)
     assert oov < 70.0
-    assert seconds < 20.0
 
 
 def test_training_is_deterministic(lee_vectors):
-    vectors, _, sentences = lee_vectors
+    _, sentences = lee_vectors
     again = train_vectors(sentences[:40])
     twice = train_vectors(sentences[:40])
     assert again.index_to_key == twice.index_to_key

@@ -30,9 +30,9 @@ def test_party_labels_and_roles():
     info = build_docinfo(doc("""
         This agreement is made between:
 
-        (1) Harrow Lyle Limited, a company incorporated in Ardence (the "Licensor"); and
+        (1) Harvenlow Lysk Limited, a company incorporated in Ardence (the "Licensor"); and
 
-        (2) Pell Marsh Limited, a company incorporated in Corvanne (the "Licensee").
+        (2) Pellowen Marrisk Limited, a company incorporated in Corvanne (the "Licensee").
 
         1. Definitions
 
