@@ -9,6 +9,7 @@ import argparse
 import json
 import os
 import sys
+import textwrap
 from pathlib import Path
 
 from . import CAUTION, __version__
@@ -189,7 +190,7 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     out = Path(args.out) if args.out else DEMO_OUTPUT
     out.mkdir(parents=True, exist_ok=True)
 
-    print(CAUTION)
+    print(textwrap.fill(CAUTION, width=100))
     print()
     draft, precedent = read_document(draft_path), read_document(precedent_path)
     review = _run_review(draft, precedent, library_folder=library_folder)
@@ -221,12 +222,12 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     for key in ("issues list (printable page)", "issues list (Word table)"):
         write_issues_list(record.review, written[key], decisions=record.decisions,
                           author=author, inputs=inputs)
-    print(f"The demo reverted the {len(top)} highest-ranked substantive deviations "
-          f"({', '.join(d.id for d in top)}) as an illustration, not a recommendation. Written:")
+    print(f"As an illustration, not a recommendation, the demo reverted the {len(top)} highest-ranked")
+    print(f"substantive deviations ({', '.join(d.id for d in top)}). Written:")
     for label, path in written.items():
         print(f"  {label:34} {path}")
     print()
-    print("Next steps on your own files:")
+    print("Next steps on your own files (from this checkout, the command is .venv/bin/counterdraft):")
     print("  counterdraft review DRAFT.docx --against PRECEDENT.docx [--library FOLDER] --save REVIEW.json")
     print("  counterdraft decide REVIEW.json ID accept|revert|amend [--text ...] [--note ...]")
     print("  counterdraft export REVIEW.json --counter-draft OUT.docx --issues-list OUT.html")
