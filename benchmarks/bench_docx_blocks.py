@@ -14,20 +14,16 @@ Run: ``python benchmarks/bench_docx_blocks.py [--pages N] [--seed S]``.
 
 from __future__ import annotations
 
-import argparse
 import io
 import random
-import resource
-import sys
 import tempfile
-import time
-import tracemalloc
 import zipfile
 from pathlib import Path
 
-sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+# _measure first: importing it puts the repository root on sys.path.
+from _measure import argument_parser, best_of, peak_rss_mb, traced_peak_mb
 
-from core.docx.blocks import read_docx_blocks  # noqa: E402
+from core.docx.blocks import read_docx_blocks
 
 TARGET_SECONDS = 1.0
 TARGET_MB = 200.0
@@ -152,10 +148,7 @@ def make_heavy_docx(*, pages: int, seed: int) -> bytes:
 
 
 def main(argv: list[str] | None = None) -> int:
-    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--pages", type=int, default=100)
-    parser.add_argument("--seed", type=int, default=1)
-    args = parser.parse_args(argv)
+    args = argument_parser(__doc__, pages=100, seed=1).parse_args(argv)
     with tempfile.TemporaryDirectory(prefix="cd-bench-blocks-") as tmp:
         path = Path(tmp) / f"heavy-{args.pages}p.docx"
         path.write_bytes(make_heavy_docx(pages=args.pages, seed=args.seed))
@@ -167,19 +160,12 @@ def main(argv: list[str] | None = None) -> int:
         print(f"input: {path.stat().st_size / 1024:.0f} KiB .docx, word/document.xml "
               f"{xml_size / 2**20:.1f} MiB, {len(blocks)} paragraphs, {words:,} words, "
               f"{numbered} auto-numbered; {'; '.join(warnings)}")
-        best = float("inf")
-        for _ in range(REPEATS):
-            start = time.perf_counter()
-            read_docx_blocks(str(path))
-            best = min(best, time.perf_counter() - start)
-        tracemalloc.start()
-        read_docx_blocks(str(path))
-        _, peak = tracemalloc.get_traced_memory()
-        tracemalloc.stop()
-    rss_mb = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+        best = best_of(lambda: read_docx_blocks(str(path)), repeats=REPEATS)
+        peak_mb = traced_peak_mb(lambda: read_docx_blocks(str(path)))
+    rss_mb = peak_rss_mb()
     print(f"read_docx_blocks best of {REPEATS}: {best:.3f} s "
           f"(target well under {TARGET_SECONDS:.1f} s: {'ok' if best < TARGET_SECONDS else 'OVER'})")
-    print(f"peak Python allocations (tracemalloc): {peak / 2**20:.1f} MB; peak RSS of the "
+    print(f"peak Python allocations (tracemalloc): {peak_mb:.1f} MB; peak RSS of the "
           f"process: {rss_mb:.1f} MB (target <= {TARGET_MB:.0f} MB: "
           f"{'ok' if rss_mb <= TARGET_MB else 'OVER'})")
     return 0

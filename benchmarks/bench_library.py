@@ -21,27 +21,24 @@ time <= 1 s, peak memory <= 1 GB.  Run: ``python benchmarks/bench_library.py [--
 
 from __future__ import annotations
 
-import argparse
 import dataclasses
 import os
-import resource
 import sys
 import tempfile
 import threading
 import time
 from pathlib import Path
 
-sys.path.insert(0, str(Path(__file__).resolve().parent))
-sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+# _measure first: importing it puts the repository root on sys.path.
+from _measure import argument_parser, best_of, peak_rss_mb, verdict
 
-from _corpus import AGREEMENT_LISTS, make_agreement_docx, make_agreement_paragraphs  # noqa: E402
-
-from core.docx.compose import compose_docx  # noqa: E402
-from core.library.commands import review_options  # noqa: E402
-from core.library.frequency import apply_frequency  # noqa: E402
-from core.library.index import build_library, open_library  # noqa: E402
-from core.reader import read_document  # noqa: E402
-from core.review import run_review  # noqa: E402
+from _corpus import AGREEMENT_LISTS, make_agreement_docx, make_agreement_paragraphs
+from core.docx.compose import compose_docx
+from core.library.commands import review_options
+from core.library.frequency import apply_frequency
+from core.library.index import build_library, open_library
+from core.reader import read_document
+from core.review import run_review
 
 #: Targets from the precedent-set issue (2-core machine).
 TARGET_FIRST_BUILD_S = 120.0
@@ -51,10 +48,6 @@ TARGET_PEAK_MB = 1024.0
 REPEATS = 3
 #: Seeds of the library's agreements start here (the review pair uses seed 1).
 LIBRARY_SEED = 1000
-
-
-def _verdict(value: float, target: float) -> str:
-    return "ok" if value <= target else "OVER TARGET"
 
 
 def _corpus(folder: Path, documents: int, pages: int) -> float:
@@ -87,15 +80,6 @@ def _review_pair(folder: Path, pages: int) -> tuple[str, str]:
     prec.write_bytes(compose_docx(paras, lists=AGREEMENT_LISTS))
     draft.write_bytes(compose_docx(edited, lists=AGREEMENT_LISTS))
     return str(draft), str(prec)
-
-
-def _best(fn, repeats: int = REPEATS) -> float:  # noqa: ANN001
-    best = float("inf")
-    for _ in range(repeats):
-        start = time.perf_counter()
-        fn()
-        best = min(best, time.perf_counter() - start)
-    return best
 
 
 class _TreeMemory:
@@ -149,7 +133,7 @@ def _folder_mb(folder: Path) -> float:
 
 
 def main(argv: list[str] | None = None) -> int:
-    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser = argument_parser(__doc__)
     parser.add_argument("--documents", type=int, default=1000)
     parser.add_argument("--pages", type=int, default=10)
     parser.add_argument("--review-pages", type=int, default=100)
@@ -179,7 +163,7 @@ def main(argv: list[str] | None = None) -> int:
 
         draft_path, prec_path = _review_pair(work, args.review_pages)
         draft, prec = read_document(draft_path), read_document(prec_path)
-        plain = _best(lambda: run_review(draft, prec))
+        plain = best_of(lambda: run_review(draft, prec), repeats=REPEATS)
 
         def with_library() -> None:
             library = open_library(corpus, db_path=db, workers=args.workers)
@@ -188,7 +172,7 @@ def main(argv: list[str] | None = None) -> int:
             finally:
                 library.close()
 
-        library_time = _best(with_library)
+        library_time = best_of(with_library, repeats=REPEATS)
         library = open_library(corpus, db_path=db, refresh=False)
         review = run_review(draft, prec, **review_options(library))
         start = time.perf_counter()
@@ -197,25 +181,25 @@ def main(argv: list[str] | None = None) -> int:
         library.close()
         added = library_time - plain
         size_mb = _folder_mb(index_dir)
-        self_mb = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+        self_mb = peak_rss_mb()
         peak = max(self_mb, build_memory.peak_mb)
 
         print(f"review pair: {len(draft.provisions)} draft provisions, {len(reviewed.deviations)} deviations, "
               f"{len(reviewed.pairs)} pairs")
         print()
         print(f"first build             {first:8.1f} s   (target <= {TARGET_FIRST_BUILD_S:.0f} s)   "
-              f"{_verdict(first, TARGET_FIRST_BUILD_S)}")
+              f"{verdict(first, TARGET_FIRST_BUILD_S)}")
         print(f"no-change rebuild       {rebuild:8.2f} s   (target <= {TARGET_REBUILD_S:.0f} s)   "
-              f"{_verdict(rebuild, TARGET_REBUILD_S)}")
+              f"{verdict(rebuild, TARGET_REBUILD_S)}")
         print(f"review without library  {plain:8.2f} s")
         print(f"review with library     {library_time:8.2f} s   (refresh, open, typing, vocabulary, frequency)")
         print(f"  added by the library  {added:8.2f} s   (target <= {TARGET_ADDED_REVIEW_S:.0f} s)   "
-              f"{_verdict(added, TARGET_ADDED_REVIEW_S)}")
+              f"{verdict(added, TARGET_ADDED_REVIEW_S)}")
         print(f"  of which frequency    {freq_only:8.2f} s   (apply_frequency alone, index open)")
         print(f"index size              {size_mb:8.1f} MB  (database, frequency cache, models)")
         print(f"peak memory             {peak:8.0f} MB  (this process's peak {self_mb:.0f} MB; this process "
               f"plus reading workers during the build {build_memory.peak_mb:.0f} MB; target <= "
-              f"{TARGET_PEAK_MB:.0f} MB)   {_verdict(peak, TARGET_PEAK_MB)}")
+              f"{TARGET_PEAK_MB:.0f} MB)   {verdict(peak, TARGET_PEAK_MB)}")
     return 0
 
 

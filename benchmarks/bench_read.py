@@ -15,22 +15,15 @@ Targets on a 2-core machine: <= 1.0 s and <= 200 MB.  Run: ``python benchmarks/b
 
 from __future__ import annotations
 
-import argparse
-import resource
-import sys
 import tempfile
-import time
-import tracemalloc
-from collections.abc import Callable
 from pathlib import Path
 
-sys.path.insert(0, str(Path(__file__).resolve().parent))
-sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+# _measure first: importing it puts the repository root on sys.path.
+from _measure import argument_parser, best_of, peak_rss_mb, traced_peak_mb, verdict
 
-from _corpus import make_agreement_docx  # noqa: E402
-
-from core.docx.blocks import read_docx_blocks  # noqa: E402
-from core.reader import read_document  # noqa: E402
+from _corpus import make_agreement_docx
+from core.docx.blocks import read_docx_blocks
+from core.reader import read_document
 
 #: Targets from the foundation issue (2-core machine).
 TARGET_SECONDS = 1.0
@@ -38,24 +31,8 @@ TARGET_MB = 200.0
 REPEATS = 3
 
 
-def _best_of(fn: Callable[[], object], repeats: int) -> float:
-    best = float("inf")
-    for _ in range(repeats):
-        start = time.perf_counter()
-        fn()
-        best = min(best, time.perf_counter() - start)
-    return best
-
-
-def _verdict(value: float, target: float) -> str:
-    return "ok" if value <= target else "OVER TARGET"
-
-
 def main(argv: list[str] | None = None) -> int:
-    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--pages", type=int, default=100)
-    parser.add_argument("--seed", type=int, default=1)
-    args = parser.parse_args(argv)
+    args = argument_parser(__doc__, pages=100, seed=1).parse_args(argv)
 
     with tempfile.TemporaryDirectory(prefix="cd-bench-read-") as tmp:
         path = Path(tmp) / f"agreement-{args.pages}p.docx"
@@ -68,25 +45,19 @@ def main(argv: list[str] | None = None) -> int:
               f"{words:,} words, {numbered} auto-numbered, {len(doc.provisions)} provisions, "
               f"{len(doc.terms)} defined terms")
 
-        t_read = _best_of(lambda: read_document(str(path)), REPEATS)
-        t_blocks = _best_of(lambda: read_docx_blocks(str(path)), REPEATS)
-
-        tracemalloc.start()
-        read_document(str(path))
-        _, peak = tracemalloc.get_traced_memory()
-        tracemalloc.stop()
-        peak_mb = peak / 2**20
-        # ru_maxrss is in KiB on Linux.
-        rss_mb = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+        t_read = best_of(lambda: read_document(str(path)), repeats=REPEATS)
+        t_blocks = best_of(lambda: read_docx_blocks(str(path)), repeats=REPEATS)
+        peak_mb = traced_peak_mb(lambda: read_document(str(path)))
+        rss_mb = peak_rss_mb()
 
     print(f"read_document     best of {REPEATS}: {t_read:6.3f} s   "
-          f"(target <= {TARGET_SECONDS:.1f} s: {_verdict(t_read, TARGET_SECONDS)})")
+          f"(target <= {TARGET_SECONDS:.1f} s: {verdict(t_read, TARGET_SECONDS)})")
     print(f"read_docx_blocks  best of {REPEATS}: {t_blocks:6.3f} s")
     # tracemalloc sees Python's allocations only, not libxml2's (lxml's parsed trees).
     print(f"peak Python allocations (tracemalloc, one read_document): {peak_mb:6.1f} MB   "
-          f"(target <= {TARGET_MB:.0f} MB: {_verdict(peak_mb, TARGET_MB)})")
+          f"(target <= {TARGET_MB:.0f} MB: {verdict(peak_mb, TARGET_MB)})")
     print(f"peak resident set size of this process (getrusage):      {rss_mb:6.1f} MB   "
-          f"(target <= {TARGET_MB:.0f} MB: {_verdict(rss_mb, TARGET_MB)})")
+          f"(target <= {TARGET_MB:.0f} MB: {verdict(rss_mb, TARGET_MB)})")
     return 0
 
 

@@ -76,7 +76,26 @@ _RIGHT = int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
 _LEFT = int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter)
 
 
-class DeviationTableModel(QAbstractTableModel):
+class _RowsModel(QAbstractTableModel):
+    """A flat table: one row per item of ``_rows``, one column per entry of ``HEADERS``
+    (horizontal header texts).  The Qt counting and header overrides the models share."""
+
+    HEADERS: tuple[str, ...] = ()
+    _rows: Sequence[Any]
+
+    def rowCount(self, parent: Index = QModelIndex()) -> int:  # noqa: B008 (Qt signature)
+        return 0 if parent.isValid() else len(self._rows)
+
+    def columnCount(self, parent: Index = QModelIndex()) -> int:  # noqa: B008
+        return 0 if parent.isValid() else len(self.HEADERS)
+
+    def headerData(self, section: int, orientation: Qt.Orientation, role: int = Qt.ItemDataRole.DisplayRole) -> Any:
+        if orientation == Qt.Orientation.Horizontal and role == Qt.ItemDataRole.DisplayRole:
+            return self.HEADERS[section]
+        return None
+
+
+class DeviationTableModel(_RowsModel):
     """The ranked deviations of a review, one row each, in the engine's rank order."""
 
     RANK, SEVERITY, CLAUSE, KIND, SUMMARY, COMMON, DECISION = range(7)
@@ -123,18 +142,10 @@ class DeviationTableModel(QAbstractTableModel):
         return self._decisions.get(did)
 
     # -- Qt API -------------------------------------------------------------------------
-    def rowCount(self, parent: Index = QModelIndex()) -> int:  # noqa: B008 (Qt signature)
-        return 0 if parent.isValid() else len(self._rows)
-
-    def columnCount(self, parent: Index = QModelIndex()) -> int:  # noqa: B008
-        return 0 if parent.isValid() else len(self.HEADERS)
-
     def headerData(self, section: int, orientation: Qt.Orientation, role: int = Qt.ItemDataRole.DisplayRole) -> Any:
-        if orientation == Qt.Orientation.Horizontal and role == Qt.ItemDataRole.DisplayRole:
-            return self.HEADERS[section]
         if orientation == Qt.Orientation.Horizontal and role == Qt.ItemDataRole.ToolTipRole:
             return _HEADER_TIPS[section]
-        return None
+        return super().headerData(section, orientation, role)
 
     def data(self, index: Index, role: int = Qt.ItemDataRole.DisplayRole) -> Any:
         if not index.isValid():
@@ -252,7 +263,7 @@ class DeviationFilterProxy(QSortFilterProxyModel):
         return True
 
 
-class TermTableModel(QAbstractTableModel):
+class TermTableModel(_RowsModel):
     """The draft <-> precedent term map, plus the mappings the reviewer rejected (greyed),
     so that a rejection can be undone."""
 
@@ -288,17 +299,6 @@ class TermTableModel(QAbstractTableModel):
 
     def status(self, row: int) -> str:
         return self._status[row]
-
-    def rowCount(self, parent: Index = QModelIndex()) -> int:  # noqa: B008
-        return 0 if parent.isValid() else len(self._rows)
-
-    def columnCount(self, parent: Index = QModelIndex()) -> int:  # noqa: B008
-        return 0 if parent.isValid() else len(self.HEADERS)
-
-    def headerData(self, section: int, orientation: Qt.Orientation, role: int = Qt.ItemDataRole.DisplayRole) -> Any:
-        if orientation == Qt.Orientation.Horizontal and role == Qt.ItemDataRole.DisplayRole:
-            return self.HEADERS[section]
-        return None
 
     def evidence_text(self, row: int) -> str:
         m, st = self._rows[row], self._status[row]
@@ -369,7 +369,7 @@ _EVIDENCE_TIPS = {
 }
 
 
-class PairRowsModel(QAbstractTableModel):
+class PairRowsModel(_RowsModel):
     """The aligned provisions: one row per :class:`core.model.Pair`, in the engine's order.
 
     Column 0 is the precedent's provision, column 1 a narrow gutter with the pair's status,
@@ -378,6 +378,7 @@ class PairRowsModel(QAbstractTableModel):
     """
 
     PRECEDENT, GUTTER, DRAFT = range(3)
+    HEADERS = ("Precedent", "", "Draft")
 
     def __init__(self, parent: Any = None) -> None:
         super().__init__(parent)
@@ -385,7 +386,6 @@ class PairRowsModel(QAbstractTableModel):
         self._rows: tuple[Pair, ...] = ()
         self._by_draft: dict[str, int] = {}
         self._by_precedent: dict[str, int] = {}
-        self.headers = ("Precedent", "", "Draft")
 
     def set_review(self, review: Review | None) -> None:
         self.beginResetModel()
@@ -418,17 +418,6 @@ class PairRowsModel(QAbstractTableModel):
     def rows_changed(self, rows: Sequence[int]) -> None:
         for r in sorted(set(rows)):
             self.dataChanged.emit(self.index(r, 0), self.index(r, 2))
-
-    def rowCount(self, parent: Index = QModelIndex()) -> int:  # noqa: B008
-        return 0 if parent.isValid() else len(self._rows)
-
-    def columnCount(self, parent: Index = QModelIndex()) -> int:  # noqa: B008
-        return 0 if parent.isValid() else 3
-
-    def headerData(self, section: int, orientation: Qt.Orientation, role: int = Qt.ItemDataRole.DisplayRole) -> Any:
-        if orientation == Qt.Orientation.Horizontal and role == Qt.ItemDataRole.DisplayRole:
-            return self.headers[section]
-        return None
 
     def data(self, index: Index, role: int = Qt.ItemDataRole.DisplayRole) -> Any:
         if not index.isValid() or self._review is None:

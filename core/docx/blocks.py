@@ -260,38 +260,33 @@ def _walk_paragraph(p: etree._Element, fields: list[bool], tally: _Tally | None)
                 if revisions is not None and child.find(_PPR_CHANGE) is not None:
                     revisions[_PPR_CHANGE] += 1
             continue
-        # Run content.
+        # Run content: text, fixed characters and symbols become pieces.
         if tag == _T:
-            if child.text and not fmt.hidden and all(fields):
-                pieces.append(TextPiece(child.text, run, child))
-                formats.append(fmt)
-                char_styles.append(cstyle)
+            text = child.text
         elif tag in _FIXED_TEXT:
             text = _FIXED_TEXT[tag]
-            if text and not fmt.hidden and all(fields):
-                pieces.append(TextPiece(text, run, child))
-                formats.append(fmt)
-                char_styles.append(cstyle)
-        elif tag == _FLD_CHAR:
-            kind = child.get(_FLD_CHAR_TYPE)
-            if kind == "begin":
-                fields.append(False)
-            elif kind == "separate":
-                if fields:
-                    fields[-1] = True
-            elif kind == "end":
-                if fields:
-                    fields.pop()
         elif tag == _SYM:
             text = _sym_text(child)
-            if text and not fmt.hidden and all(fields):
-                pieces.append(TextPiece(text, run, child))
-                formats.append(fmt)
-                char_styles.append(cstyle)
-        elif tag == _RUBY:
-            base = child.find(_RUBY_BASE)
-            if base is not None:
-                stack.append((iter(base), None, _EMPTY_FORMAT, None))
+        else:
+            if tag == _FLD_CHAR:
+                kind = child.get(_FLD_CHAR_TYPE)
+                if kind == "begin":
+                    fields.append(False)
+                elif kind == "separate":
+                    if fields:
+                        fields[-1] = True
+                elif kind == "end":
+                    if fields:
+                        fields.pop()
+            elif tag == _RUBY:
+                base = child.find(_RUBY_BASE)
+                if base is not None:
+                    stack.append((iter(base), None, _EMPTY_FORMAT, None))
+            continue
+        if text and not fmt.hidden and all(fields):
+            pieces.append(TextPiece(text, run, child))
+            formats.append(fmt)
+            char_styles.append(cstyle)
     return _Walk(pieces, formats, char_styles, mark_deleted)
 
 

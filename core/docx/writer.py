@@ -185,6 +185,19 @@ def _core_properties(title: str, created: str) -> bytes:
     ).encode("utf-8")
 
 
+def _run_properties(run: Run) -> etree._Element | None:
+    """``w:rPr`` with ``w:b``/``w:i`` (ECMA-376 Part 1 §17.3.2, run properties) for a bold or
+    italic run; None for a plain one."""
+    if not (run.bold or run.italic):
+        return None
+    rpr = etree.Element(w("rPr"))
+    if run.bold:
+        etree.SubElement(rpr, w("b"))
+    if run.italic:
+        etree.SubElement(rpr, w("i"))
+    return rpr
+
+
 def _paragraph(para: Para, *, stamp: RevisionStamp, ids: IdAllocator,
                moves: dict[str, list[etree._Element]]) -> etree._Element:
     p = etree.Element(w("p"))
@@ -199,14 +212,7 @@ def _paragraph(para: Para, *, stamp: RevisionStamp, ids: IdAllocator,
         mark = group[0].mark
         runs = []
         for r in group:
-            rpr = None
-            if r.bold or r.italic:
-                rpr = etree.Element(w("rPr"))
-                if r.bold:
-                    etree.SubElement(rpr, w("b"))
-                if r.italic:
-                    etree.SubElement(rpr, w("i"))
-            runs.extend(make_runs(r.text, rpr, deleted=mark in ("del", "moveFrom")))
+            runs.extend(make_runs(r.text, _run_properties(r), deleted=mark in ("del", "moveFrom")))
         if mark:
             p.append(wrap(mark, runs, stamp=stamp, ids=ids))
         else:
@@ -396,14 +402,7 @@ def _table(table: Table, *, text_width: int) -> etree._Element:
                 ppr = etree.SubElement(p, w("pPr"))
                 etree.SubElement(ppr, w("pStyle")).set(w("val"), "TableText")
                 for run in runs:
-                    rpr = None
-                    if run.bold or run.italic:
-                        rpr = etree.Element(w("rPr"))
-                        if run.bold:
-                            etree.SubElement(rpr, w("b"))
-                        if run.italic:
-                            etree.SubElement(rpr, w("i"))
-                    p.extend(make_runs(run.text, rpr))
+                    p.extend(make_runs(run.text, _run_properties(run)))
     return tbl
 
 

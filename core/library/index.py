@@ -189,6 +189,21 @@ def default_db_path(root: str | os.PathLike[str]) -> Path:
     return Path(root) / DB_DIRNAME / DB_FILENAME
 
 
+#: Row ids per ``WHERE id IN (?, ...)`` query: SQLite allowed at most 999 bound parameters
+#: per statement before version 3.32.0 (SQLITE_MAX_VARIABLE_NUMBER,
+#: https://www.sqlite.org/limits.html), so batches of 500 stay well inside on any build.
+_IN_BATCH = 500
+
+
+def _id_batches(ids: Sequence[int]) -> Iterator[tuple[str, list[int]]]:
+    """*ids* as ints without repeats (first order kept), in batches of at most
+    :data:`_IN_BATCH`, each with its ``?,?,...`` placeholders for ``IN (...)``."""
+    unique = list(dict.fromkeys(int(i) for i in ids))
+    for start in range(0, len(unique), _IN_BATCH):
+        chunk = unique[start:start + _IN_BATCH]
+        yield ",".join("?" * len(chunk)), chunk
+
+
 def _norm_hash(norm: str) -> str:
     return hashlib.blake2b(norm.encode("utf-8"), digest_size=16).hexdigest()
 
@@ -1087,20 +1102,14 @@ class Library:
 
     def document_paths(self, ids: Sequence[int]) -> dict[int, str]:
         out: dict[int, str] = {}
-        ids = list(dict.fromkeys(int(i) for i in ids))
-        for start in range(0, len(ids), 500):
-            chunk = ids[start:start + 500]
-            q = ",".join("?" * len(chunk))
+        for q, chunk in _id_batches(ids):
             out.update(self.conn.execute(f"SELECT id, path FROM documents WHERE id IN ({q})", chunk))
         return out
 
     def provision_refs(self, ids: Sequence[int]) -> dict[int, tuple[str, str]]:
         """``{provision row id: (document path, provision number/heading/id)}``."""
         out: dict[int, tuple[str, str]] = {}
-        ids = list(dict.fromkeys(int(i) for i in ids))
-        for start in range(0, len(ids), 500):
-            chunk = ids[start:start + 500]
-            q = ",".join("?" * len(chunk))
+        for q, chunk in _id_batches(ids):
             for pid, path, number, heading, local in self.conn.execute(
                     f"SELECT p.id, d.path, p.number, p.heading, p.pid FROM provisions p "
                     f"JOIN documents d ON d.id = p.document_id WHERE p.id IN ({q})", chunk):
@@ -1109,10 +1118,7 @@ class Library:
 
     def _column(self, column: str, ids: Sequence[int]) -> dict[int, str]:
         out: dict[int, str] = {}
-        ids = list(dict.fromkeys(int(i) for i in ids))
-        for start in range(0, len(ids), 500):
-            chunk = ids[start:start + 500]
-            q = ",".join("?" * len(chunk))
+        for q, chunk in _id_batches(ids):
             out.update(self.conn.execute(f"SELECT id, {column} FROM provisions WHERE id IN ({q})", chunk))
         return out
 

@@ -469,6 +469,26 @@ class _Builder:
             return "\n".join(texts)
         return info.provisions[members[0]].heading or ""
 
+    def _subtree_dev(self, members: Sequence[int], *, added: bool) -> _Dev:
+        """The one deviation for an added subtree of the draft (*added*) or a removed subtree
+        of the precedent; *members* as grouped by :meth:`_fold`, root first."""
+        info, types = (self.di, self.d_types) if added else (self.pi, self.p_types)
+        root = members[0]
+        text = self._whole(info, members)
+        ctype = next((types[m] for m in members if types[m]), None)
+        sev, reasons = provision_change_severity(
+            added=added, label=_label(info, root).capitalize(), text=text, clause_type=ctype,
+            kind=info.provisions[root].kind, rules=self.rules)
+        if len(members) > 1:
+            reasons = (reasons[0] + f", with {len(members) - 1} sub-provision"
+                       f"{'s' * (len(members) > 2)}",) + reasons[1:]
+        root_id = info.provisions[root].id
+        if added:
+            return _Dev((float(root), 0, -3), sev, "substantive", "add-provision",
+                        root_id, None, "", text, reasons, part="provision")
+        return _Dev((self.p_anchor[root], 0, -3), sev, "substantive", "remove-provision",
+                    None, root_id, text, "", reasons, part="provision")
+
     def build(self) -> Review:
         di, pi, al, rules = self.di, self.pi, self.al, self.rules
         pairs: list[tuple[tuple[float, int, int], Pair]] = []
@@ -515,33 +535,11 @@ class _Builder:
                             (f"renumbered from {pn} to {dn}",), part="provision"))
         # Added and removed provisions: one deviation per subtree.
         for members in self._fold(di, al.added):
-            root = members[0]
-            text = self._whole(di, members)
-            ctype = next((self.d_types[m] for m in members if self.d_types[m]), None)
-            sev, reasons = provision_change_severity(
-                added=True, label=_label(di, root).capitalize(), text=text, clause_type=ctype,
-                kind=di.provisions[root].kind, rules=rules)
-            if len(members) > 1:
-                reasons = (reasons[0] + f", with {len(members) - 1} sub-provision"
-                           f"{'s' * (len(members) > 2)}",) + reasons[1:]
-            self.devs.append(_Dev((float(root), 0, -3), sev, "substantive", "add-provision",
-                                  di.provisions[root].id, None, "", text, reasons,
-                                  part="provision"))
+            self.devs.append(self._subtree_dev(members, added=True))
         for d in al.added:
             pairs.append(((float(d), 0, -1), Pair(di.provisions[d].id, None, "added", 0.0)))
         for members in self._fold(pi, al.removed):
-            root = members[0]
-            text = self._whole(pi, members)
-            ctype = next((self.p_types[m] for m in members if self.p_types[m]), None)
-            sev, reasons = provision_change_severity(
-                added=False, label=_label(pi, root).capitalize(), text=text, clause_type=ctype,
-                kind=pi.provisions[root].kind, rules=rules)
-            if len(members) > 1:
-                reasons = (reasons[0] + f", with {len(members) - 1} sub-provision"
-                           f"{'s' * (len(members) > 2)}",) + reasons[1:]
-            self.devs.append(_Dev((self.p_anchor[root], 0, -3), sev, "substantive",
-                                  "remove-provision", None, pi.provisions[root].id, text, "", reasons,
-                                  part="provision"))
+            self.devs.append(self._subtree_dev(members, added=False))
         for p in al.removed:
             pairs.append(((self.p_anchor[p], 0, p), Pair(None, pi.provisions[p].id, "removed", 0.0)))
         # One deviation per renamed defined term.
