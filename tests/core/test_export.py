@@ -671,7 +671,7 @@ def test_redline_of_the_engines_review_on_the_hand_made_pair(scenario, monkeypat
 def test_a_pairs_diff_restricted_to_one_paragraph_tiles_both_stretches(a, b, data):
     """Any stretch of each text: the pieces rebuild exactly those stretches, and the
     unchanged pieces are identical on both sides."""
-    from core.export import _clipped_pieces
+    from core.export.redline import _clipped_pieces
     from core.review.worddiff import diff_texts
 
     edits = diff_texts(a, b)  # a word diff tiling both texts, as Pair.edits does

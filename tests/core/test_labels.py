@@ -98,9 +98,9 @@ def test_one_label_function_serves_every_consumer():
     """The decisions module, the outputs, the review table and the desktop app use the same
     function (no second copy of the label code)."""
     import core.decisions
-    import core.export
+    import core.export.issues
     import core.review.report
 
     assert core.decisions.clause_label is clause_label
-    assert core.export.clause_label is clause_label
+    assert core.export.issues.clause_label is clause_label
     assert core.review.report.clause_label is clause_label

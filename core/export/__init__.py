@@ -1,0 +1,105 @@
+"""The three outputs of a review: the counter-draft, the comparison redline and the issues list.
+
+* **Counter-draft** (:func:`write_counter_draft`): the counterparty's own .docx with every
+  *revert* and *amend* decision written as tracked changes and every note as a comment on the
+  changed words.  Nothing else in the file changes (see :mod:`core.docx.tracked`).
+* **Comparison redline** (:func:`write_redline`): a new .docx showing the precedent-to-draft
+  comparison as tracked changes -- insertions, deletions and moved provisions as
+  ``w:moveFrom``/``w:moveTo`` -- after a short table of the ranked substantive deviations.
+  Accepting all its changes gives the draft's paragraphs, rejecting all gives the precedent's.
+* **Issues list** (:func:`write_issues_list`): the negotiating table -- clause, the draft's
+  position, the house position, severity, how common in the precedent set (when a library
+  was used), decision, note -- as a Word table (.docx), a self-contained printable page
+  (.html) or CSV (.csv), by the output's suffix.  Each position quotes the sentence of that
+  side's provision holding the change (bounded by :data:`POSITION_MAX_WORDS`) with the
+  changed words in bold (in the CSV between :data:`CSV_MARK_OPEN` and
+  :data:`CSV_MARK_CLOSE`, the exact words in columns of their own).  By default it lists the
+  substantive deviations, then the renamed defined terms as a short group for information
+  (:data:`ISSUES_DEFAULT_INCLUDE`).
+
+Every output carries :data:`core.CAUTION` and is written atomically; an output path equal
+to one of the inputs is refused.  Where the caution goes in the counter-draft is explained
+at :data:`CAUTION_PROPERTY`.
+
+Cost: the counter-draft is linear in the draft's XML; the redline is one
+``difflib.SequenceMatcher`` over the paragraph keys (O(B^2) worst case for B paragraphs, near
+linear for similar documents) plus, per matched paragraph pair, its share of the review's word
+diff (``Pair.edits``: the outputs never diff the texts again); the issues list is linear in
+the deviations times the length of their provisions' texts (each position scans its
+provision's sentences once).  ``benchmarks/bench_export.py`` measures them.
+
+The package has one module per output (:mod:`.counter_draft`, :mod:`.redline`,
+:mod:`.issues`) and the helpers they share (:mod:`.common`).
+"""
+
+from __future__ import annotations
+
+from .common import (
+    CAUTION_PROPERTY,
+    block_owners,
+    default_author,
+    provision_blocks,
+)
+from .counter_draft import (
+    CounterDraftPlan,
+    counter_draft_bytes,
+    plan_counter_draft,
+    write_counter_draft,
+)
+from .issues import (
+    CSV_MARK_CLOSE,
+    CSV_MARK_OPEN,
+    ISSUE_COLUMNS,
+    ISSUE_CSV_COLUMNS,
+    ISSUE_WIDTHS_CM,
+    ISSUES_DEFAULT_INCLUDE,
+    POSITION_LEAD_WORDS,
+    POSITION_MAX_WORDS,
+    Excerpt,
+    IssueRow,
+    issue_rows,
+    issues_list_csv,
+    issues_list_docx,
+    issues_list_html,
+    write_issues_list,
+)
+from .redline import (
+    REDLINE_BODY_HEADING,
+    REDLINE_END,
+    REDLINE_TABLE_WIDTHS_CM,
+    redline_body,
+    redline_bytes,
+    write_redline,
+)
+
+__all__ = [
+    "CAUTION_PROPERTY",
+    "CSV_MARK_CLOSE",
+    "CSV_MARK_OPEN",
+    "ISSUES_DEFAULT_INCLUDE",
+    "ISSUE_COLUMNS",
+    "ISSUE_CSV_COLUMNS",
+    "ISSUE_WIDTHS_CM",
+    "POSITION_LEAD_WORDS",
+    "POSITION_MAX_WORDS",
+    "REDLINE_BODY_HEADING",
+    "REDLINE_END",
+    "REDLINE_TABLE_WIDTHS_CM",
+    "CounterDraftPlan",
+    "Excerpt",
+    "IssueRow",
+    "block_owners",
+    "counter_draft_bytes",
+    "default_author",
+    "issue_rows",
+    "issues_list_csv",
+    "issues_list_docx",
+    "issues_list_html",
+    "plan_counter_draft",
+    "provision_blocks",
+    "redline_body",
+    "redline_bytes",
+    "write_counter_draft",
+    "write_issues_list",
+    "write_redline",
+]
