@@ -40,6 +40,13 @@ never recompute them)
   (words of ``Provision.text``), ``"heading"`` (``Provision.heading``) or ``"provision"``
   (the provision as a whole: added, removed, moved, renumbered; or, for a renamed defined
   term, the two defining provisions).
+* ``Deviation.precedent_text_span`` / ``draft_text_span`` locate the words shown
+  (``precedent_text``, ``draft_text``: the changed words, widened to whole figures and, for a
+  change without letters or digits, a word of context) in the same texts:
+  ``P[a:b] == precedent_text`` and ``D[c:d] == draft_text``, neither with white space at
+  either end.  They correspond: ``P[:a]`` and ``D[:c]`` end at the same place of the pair's
+  diff, up to white space, and so do ``P[b:]`` and ``D[d:]``.  A ``replace`` hunk with
+  ``restyle`` set is a renamed term, a renumbered reference or a formatting change.
 * ``Deviation.precedent_span`` / ``draft_span`` are character offsets into
   ``Provision.text`` and are given exactly when ``part == "text"`` (None otherwise).  They
   cover the changed words without context; for an ``insert`` the precedent span is empty
@@ -227,6 +234,11 @@ class Edit:
     p2: int
     d1: int
     d2: int
+    #: True for a ``replace`` hunk whose two sides compare equal once normalised: a renamed
+    #: defined term, a renumbered cross-reference to the same provision, or a change of
+    #: letter case, quote or dash style or white space -- not a change of words.  A writer
+    #: restoring the precedent's words keeps the draft's side of such a hunk.
+    restyle: bool = False
 
 
 @dataclass(frozen=True, slots=True)
@@ -250,6 +262,14 @@ class Deviation:
     draft_span: tuple[int, int] | None = None
     #: Which part of the provision the deviation concerns: one of DEVIATION_PARTS.
     part: str = "text"
+    #: Character offsets of ``precedent_text`` and ``draft_text`` themselves (the words shown,
+    #: context included) in the provision's text (``part == "text"``) or heading (``part ==
+    #: "heading"``); None for a whole provision or a review built without them.  The two
+    #: spans correspond: the text before them is the same stretch of both provisions, and so
+    #: is the text after them, so replacing the draft's span by the precedent's words undoes
+    #: exactly this deviation.  Decisions apply to these spans.
+    precedent_text_span: tuple[int, int] | None = None
+    draft_text_span: tuple[int, int] | None = None
 
 
 @dataclass(frozen=True, slots=True)

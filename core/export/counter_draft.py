@@ -1,5 +1,12 @@
-"""The counter-draft: the counterparty's own .docx with the decisions as tracked changes."""
+"""The counter-draft: the counterparty's own .docx with the decisions as tracked changes.
 
+:func:`plan_counter_draft` turns the decisions into block-level changes (pure data: which
+words of which paragraph become what, which paragraphs are deleted or inserted), through the
+span-edit layer :mod:`.spans`; :func:`counter_draft_bytes` has :mod:`core.docx.tracked` write
+them into a copy of the draft.
+"""
+
+from __future__ import annotations
 
 import dataclasses
 import datetime as _dt
@@ -10,6 +17,7 @@ from pathlib import Path
 
 from .. import CAUTION
 from ..decisions import Decision
+from ..docx.tracked import BlockDeletion, BlockEdit, BlockInsertion
 from ..errors import CounterdraftError
 from ..fileio import atomic_write_bytes
 from ..labels import clause_label, find_provision
@@ -26,8 +34,10 @@ from .common import (
     stamp_date,
     term_translator,
 )
+from .spans import SpanEdit, amend_edits, revert_edits, seam, to_blocks
 
 __all__ = [
+    "ACCEPT_ONLY_CATEGORIES",
     "CounterDraftPlan",
     "counter_draft_bytes",
     "plan_counter_draft",
@@ -40,9 +50,9 @@ __all__ = [
 class CounterDraftPlan:
     """The block-level changes the decisions call for, before any XML is touched."""
 
-    edits: tuple  # tuple[core.docx.tracked.BlockEdit, ...]
-    deletions: tuple  # tuple[BlockDeletion, ...]
-    insertions: tuple  # tuple[BlockInsertion, ...]
+    edits: tuple[BlockEdit, ...]
+    deletions: tuple[BlockDeletion, ...]
+    insertions: tuple[BlockInsertion, ...]
     #: Decisions that could not be written, with the reason (shown to the user).
     notes: tuple[str, ...]
 
@@ -93,41 +103,11 @@ def _like_block(blocks: Sequence[Block], anchor: int, model: Block) -> tuple[int
     return max(anchor, 0), False
 
 
-_WORD_CHANGES = ("insert", "delete", "replace")
-#: Characters before which a word needs no space of its own.
-_CLOSING = ",.;:)]}”’'\"!?"
-
-
-def _tidy_spaces(text: str, start: int, end: int, replacement: str) -> tuple[int, int, str]:
-    """Keep single spaces around words removed or put back.
-
-    The review's spans cover the changed words only.  Removing "not" from "shall not be"
-    must also remove one of the spaces around it, and putting "not" back into "shall be"
-    must add one.
-    """
-    if not replacement and end > start:
-        if start > 0 and text[start - 1] == " " and (end == len(text) or text[end] == " " or text[end] in _CLOSING):
-            return start - 1, end, replacement
-        if start == 0 and end < len(text) and text[end] == " ":
-            return start, end + 1, replacement
-        return start, end, replacement
-    if replacement and start == end:
-        before = text[start - 1] if start > 0 else ""
-        after = text[start] if start < len(text) else ""
-        if before and not before.isspace() and not replacement[0].isspace() and before not in "([{“‘":
-            replacement = " " + replacement
-        elif after and not after.isspace() and after not in _CLOSING and not replacement[-1].isspace():
-            replacement = replacement + " "
-    return start, end, replacement
-
-
-def _heading_change(review: Review, dev: Deviation, dec: Decision, dprov: Provision,
-                    pprov: Provision | None, to_draft_terms):
+def _heading_change(review: Review, dec: Decision, dprov: Provision, pprov: Provision | None,
+                    to_draft_terms):
     """The change that puts the precedent's heading (revert) or the reviewer's (amend) in
     place of the draft's whole heading, or anchors a note on it (accept).  Returns a
     BlockEdit, a BlockDeletion (a heading line to remove) or None when not found."""
-    from ..docx.tracked import BlockDeletion, BlockEdit
-
     draft = review.draft
     dh = dprov.heading or ""
     ph = (pprov.heading if pprov is not None else None) or ""
@@ -146,7 +126,7 @@ def _heading_change(review: Review, dev: Deviation, dec: Decision, dprov: Provis
             return BlockDeletion(head_line)
         i = text.find(dh) if dh else -1
         start, end = (i, i + len(dh)) if i >= 0 else (0, len(text))
-        return BlockEdit(head_line, start, end, replacement or "", tracked=replacement is not None)
+        return _heading_edit(head_line, text, start, end, replacement)
     if not dprov.segments:
         return None
     seg = dprov.segments[0]
@@ -160,7 +140,17 @@ def _heading_change(review: Review, dev: Deviation, dec: Decision, dprov: Provis
         # No heading in the precedent: remove the run-in heading and what separates it from
         # the text (". ", " - ").
         return BlockEdit(seg.block, i, seg.start, "")
-    return BlockEdit(seg.block, i, i + len(dh), replacement or "", tracked=replacement is not None)
+    return _heading_edit(seg.block, draft.blocks[seg.block].text, i, i + len(dh), replacement)
+
+
+def _heading_edit(block: int, text: str, start: int, end: int, replacement: str | None) -> BlockEdit:
+    """The heading ``text[start:end]`` replaced by *replacement* with the smallest tracked
+    change (untracked, for a note only, when *replacement* is None or the same words)."""
+    found = amend_edits(text, (start, end), replacement) if replacement is not None else []
+    if not found:
+        return BlockEdit(block, start, end, "", tracked=False)
+    (edit,) = found
+    return BlockEdit(block, edit.start, edit.end, edit.new)
 
 
 def _subtree(doc: Document, root: Provision, *, keep) -> list[Provision]:
@@ -175,15 +165,234 @@ def _subtree(doc: Document, root: Provision, *, keep) -> list[Provision]:
     return out
 
 
+#: Deviation categories a decision may only accept: restoring the precedent's punctuation,
+#: layout or numbering is not a negotiating point, and the counter-draft keeps the draft's
+#: own (renamed terms and moves are refused by :mod:`core.decisions` for their own reasons).
+ACCEPT_ONLY_CATEGORIES = ("formatting", "punctuation", "numbering")
+
+_WORD_CHANGES = ("insert", "delete", "replace")
+
+
+def _who(review: Review, dev: Deviation) -> str:
+    """How notes name a deviation: its number and clause."""
+    return f"deviation {dev.rank} ({clause_label(review, dev) or dev.id})"
+
+
+class _Planner:
+    """Collects the block-level changes of the decisions, one decision at a time, refusing a
+    change that overlaps one already planned."""
+
+    def __init__(self, review: Review) -> None:
+        self.review = review
+        self.to_draft_terms = term_translator(review.term_map)
+        self.d_owners = block_owners(review.draft)
+        self.p_owners = block_owners(review.precedent)
+        self.in_draft = {p.precedent for p in review.pairs if p.precedent and p.draft}
+        self.in_precedent = {p.draft for p in review.pairs if p.precedent and p.draft}
+        self.by_id = {d.id: d for d in review.deviations}
+        self.edits: list[BlockEdit] = []
+        self.deletions: list[BlockDeletion] = []
+        self.restored: list[tuple[tuple[int, int, int], BlockInsertion]] = []
+        self.restored_ids: set[str] = set()
+        self.notes: list[str] = []
+        self.claimed: dict[int, list[tuple[int, int]]] = {}
+        self.deleted_blocks: set[int] = set()
+
+    # -- bookkeeping ----------------------------------------------------------------------
+    def free(self, block: int, a: int, b: int) -> bool:
+        if block in self.deleted_blocks:
+            return False
+        for x, y in self.claimed.get(block, []):
+            if a < y and x < b or (a == b == x) or (a == b and x < a < y) or (x == y and a < x < b):
+                return False
+        return True
+
+    def add_edits(self, planned: Sequence[BlockEdit], dev: Deviation) -> None:
+        if not all(self.free(x.block, x.start, x.end) for x in planned):
+            self.notes.append(f"{_who(self.review, dev)}: overlaps another decision; skipped")
+            return
+        for x in planned:
+            self.edits.append(x)
+            self.claimed.setdefault(x.block, []).append((x.start, x.end))
+
+    def plan(self) -> CounterDraftPlan:
+        insertions = [ins for _, ins in sorted(self.restored, key=lambda x: x[0])]
+        return CounterDraftPlan(tuple(self.edits), tuple(self.deletions), tuple(insertions),
+                                tuple(self.notes))
+
+    # -- one decision ---------------------------------------------------------------------
+    def add(self, dec: Decision) -> None:
+        review = self.review
+        dev = self.by_id.get(dec.deviation)
+        if dev is None:
+            self.notes.append(f"{dec.deviation}: no such deviation in this review; skipped")
+            return
+        if dec.action == "accept" and not dec.note:
+            return
+        dprov = find_provision(review.draft, dev.draft_provision)
+        pprov = find_provision(review.precedent, dev.precedent_provision)
+        if dec.action != "accept" and (dev.category == "term" or dev.change == "move"
+                                       or dev.category in ACCEPT_ONLY_CATEGORIES):
+            self.notes.append(f"{_who(review, dev)}: a {dev.category} difference can only be "
+                              "accepted; skipped")
+        elif dev.change == "remove-provision" or (dprov is None and pprov is not None):
+            self.restore(dev, dec, pprov)
+        elif dprov is None:
+            self.notes.append(f"{_who(review, dev)}: no draft provision to change; skipped")
+        elif dev.change == "add-provision" and dec.action == "revert":
+            self.strike(dev, dec, dprov)
+        elif dev.part == "heading" and dev.change in _WORD_CHANGES:
+            self.heading(dev, dec, dprov, pprov)
+        else:
+            self.words(dev, dec, dprov, pprov)
+
+    def restore(self, dev: Deviation, dec: Decision, pprov: Provision | None) -> None:
+        """A provision the draft left out: revert inserts the precedent's paragraphs (with its
+        sub-provisions the draft also lacks) after the draft counterpart of the provision
+        before it; amend inserts the reviewer's text there; a note on accept sits there."""
+        review, draft, precedent = self.review, self.review.draft, self.review.precedent
+        if pprov is None:
+            self.notes.append(f"{_who(review, dev)}: provision not found; skipped")
+            return
+        anchor = _draft_anchor(review, pprov.id)
+        if dec.action == "accept":
+            n = len(draft.blocks[anchor].text) if anchor >= 0 else 0
+            if anchor >= 0 and self.free(anchor, n, n):
+                self.add_edits([BlockEdit(anchor, n, n, comment=dec.note, tracked=False)], dev)
+            return
+        provs = [p for p in _subtree(precedent, pprov, keep=lambda p: p.id not in self.in_draft)
+                 if p.id not in self.restored_ids]
+        if not provs:
+            return  # already restored by another decision
+        self.restored_ids.update(p.id for p in provs)
+        blocks = sorted({b for p in provs for b in provision_blocks(precedent, p, owners=self.p_owners)})
+        if dec.action == "revert":
+            lines = [(b, precedent.blocks[b], self.to_draft_terms(precedent.blocks[b].text)) for b in blocks]
+        else:
+            first = blocks[0] if blocks else -1
+            model = precedent.blocks[first] if blocks else Block(0, "")
+            lines = [(first, model, line) for line in (dec.text or "").split("\n")]
+        for k, (b, model, text) in enumerate(lines):
+            like, numbered = _like_block(draft.blocks, anchor, model)
+            self.restored.append(((anchor, b, k), BlockInsertion(
+                anchor, text, like=like, numbered=numbered, comment=dec.note if k == 0 else None)))
+
+    def strike(self, dev: Deviation, dec: Decision, dprov: Provision) -> None:
+        """A provision the draft added: delete its paragraphs, marks included, with its
+        sub-provisions that have no counterpart in the precedent."""
+        provs = _subtree(self.review.draft, dprov, keep=lambda p: p.id not in self.in_precedent)
+        blocks = sorted({b for p in provs
+                         for b in provision_blocks(self.review.draft, p, owners=self.d_owners)})
+        if any(b in self.claimed or b in self.deleted_blocks for b in blocks):
+            self.notes.append(f"{_who(self.review, dev)}: overlaps another decision; skipped")
+            return
+        for k, b in enumerate(blocks):
+            self.deletions.append(BlockDeletion(b, comment=dec.note if k == 0 else None))
+            self.deleted_blocks.add(b)
+
+    def heading(self, dev: Deviation, dec: Decision, dprov: Provision, pprov: Provision | None) -> None:
+        result = _heading_change(self.review, dec, dprov, pprov, self.to_draft_terms)
+        who = _who(self.review, dev)
+        if result is None:
+            self.notes.append(f"{who}: the heading could not be located in the draft; skipped")
+        elif isinstance(result, BlockDeletion):
+            if result.block in self.deleted_blocks:
+                return  # the same heading, already reverted by another decision
+            if result.block in self.claimed:
+                self.notes.append(f"{who}: overlaps another decision; skipped")
+                return
+            self.deletions.append(BlockDeletion(result.block, comment=dec.note))
+            self.deleted_blocks.add(result.block)
+        elif any((e.block, e.start, e.end, e.replacement) == (result.block, result.start, result.end,
+                                                             result.replacement) for e in self.edits):
+            return  # the same heading, already reverted by another decision
+        else:
+            self.add_edits([dataclasses.replace(result, comment=dec.note)], dev)
+
+    def words(self, dev: Deviation, dec: Decision, dprov: Provision, pprov: Provision | None) -> None:
+        """Words inside the provision: the span the review showed, reverted or amended; a note
+        on accept is anchored on it."""
+        review = self.review
+        span_edits = _span_edits(review, dev, dec, dprov, pprov, self.to_draft_terms)
+        if span_edits is None:
+            self.notes.append(f"{_who(review, dev)}: the review gives no place for this change; skipped")
+            return
+        if dec.action == "accept":
+            self.note_on(dev, dec, dprov, span_edits[0] if span_edits else None)
+            return
+        planned: list[BlockEdit] = []
+        for se in span_edits:
+            for b, s, e, text in to_blocks(dprov, se):
+                planned.append(BlockEdit(b, s, e, text, comment=dec.note if not planned else None))
+        if span_edits and not planned:
+            self.notes.append(f"{_who(review, dev)}: its words could not be located in the draft; skipped")
+            return
+        self.add_edits(planned, dev)
+
+    def note_on(self, dev: Deviation, dec: Decision, dprov: Provision, where: SpanEdit | None) -> None:
+        ranges = block_ranges(dprov, where.start, where.end) if where is not None else []
+        if not ranges:
+            blocks = provision_blocks(self.review.draft, dprov, owners=self.d_owners)
+            if blocks:  # a provision without words of its own (a heading): note on it
+                ranges = [(blocks[0], 0, len(self.review.draft.blocks[blocks[0]].text))]
+        if not ranges:
+            self.notes.append(f"{_who(self.review, dev)}: its words could not be located in the draft; skipped")
+            return
+        b, s, e = ranges[0]
+        if self.free(b, s, e):
+            self.add_edits([BlockEdit(b, s, e, comment=dec.note, tracked=False)], dev)
+        else:
+            self.notes.append(f"{_who(self.review, dev)}: its note overlaps another decision; skipped")
+
+
+def _draft_span(review: Review, dev: Deviation, dprov: Provision, pprov: Provision | None
+                ) -> tuple[int, int] | None:
+    """The span of the draft's text the decision applies to: the words the review showed
+    (``draft_text_span``); for a review without it, the changed words, or the insertion point
+    the pair's diff gives; the whole provision for an added one (amend)."""
+    if dev.change == "add-provision":
+        return 0, len(dprov.text)
+    if dev.draft_text_span is not None:
+        return dev.draft_text_span
+    if dev.draft_span is not None:
+        return dev.draft_span
+    if dev.precedent_span is not None and pprov is not None:
+        at = map_offset(edits_of_pair(review, dprov.id, pprov.id), dev.precedent_span[0])
+        if at is not None:
+            return at, at
+    return None
+
+
+def _span_edits(review: Review, dev: Deviation, dec: Decision, dprov: Provision,
+                pprov: Provision | None, to_draft_terms) -> list[SpanEdit] | None:
+    """The edits of the draft provision's text that carry out *dec* (for accept: one empty
+    edit marking where a note goes); None when the review gives no place for it."""
+    span = _draft_span(review, dev, dprov, pprov)
+    if span is None:
+        return [SpanEdit(0, len(dprov.text), "")] if dec.action == "accept" else None
+    if dec.action == "accept":
+        return [SpanEdit(span[0], span[1], "")]
+    if dec.action == "amend":
+        return amend_edits(dprov.text, span, dec.text or "")
+    pair = edits_of_pair(review, dprov.id, pprov.id) if pprov is not None else ()
+    if pair and dev.precedent_text_span is not None and dev.draft_text_span is not None:
+        return revert_edits(pair, pprov.text, dprov.text, precedent=dev.precedent_text_span,
+                            draft=dev.draft_text_span, translate=to_draft_terms)
+    # A review without corresponding spans (built by hand): the precedent's changed words.
+    if pprov is not None and dev.precedent_span is not None:
+        words = pprov.text[dev.precedent_span[0]:dev.precedent_span[1]]
+    else:
+        words = "" if dev.change == "insert" else dev.precedent_text
+    return [seam(dprov.text, span[0], span[1], to_draft_terms(words))]
+
+
 def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> CounterDraftPlan:
     """Block-level edits, deletions and insertions for *decisions* on the draft.
 
-    * revert/amend of words: the draft's changed words (``draft_span``) are replaced by the
-      precedent's (``precedent_span``, with the draft's names for mapped defined terms) or by
-      the reviewer's text; a pure deletion in the draft is restored at the draft's empty
-      span (its insertion point; for a deviation without one, the place the pair's word
-      diff, ``Pair.edits``, gives); a heading change (``part == "heading"``) replaces the
-      whole heading;
+    * revert/amend of words: the span the review showed (``Deviation.draft_text_span``) is
+      reverted hunk by hunk to the precedent's words, with the draft's names for mapped
+      defined terms, or replaced by the reviewer's words (:mod:`.spans`); a heading change
+      (``part == "heading"``) replaces the heading;
     * a provision the draft added: revert deletes its paragraphs (marks included), with its
       sub-provisions that have no counterpart in the precedent; amend replaces its words;
     * a provision the draft removed: revert inserts the precedent's paragraphs (with its
@@ -191,180 +400,14 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
       precedes it, with the paragraph properties of a neighbour at the same list level;
       amend inserts the reviewer's text there;
     * a note becomes a comment on the changed words (on the draft's words for accept);
-    * renamed defined terms and moved provisions are not written (the decision module
-      refuses them); decisions that cannot be placed, or that overlap an earlier one, are
-      skipped and reported in ``notes``.
+    * renamed defined terms, moved provisions and formatting, punctuation or numbering
+      differences are only accepted (:data:`ACCEPT_ONLY_CATEGORIES`); decisions that cannot
+      be placed, or that overlap an earlier one, are skipped and reported in ``notes``.
     """
-    from ..docx.tracked import BlockDeletion, BlockEdit, BlockInsertion
-
-    to_draft_terms = term_translator(review.term_map)
-    edits: list[BlockEdit] = []
-    deletions: list[BlockDeletion] = []
-    notes: list[str] = []
-    claimed: dict[int, list[tuple[int, int]]] = {}  # block -> edited ranges
-    deleted_blocks: set[int] = set()
-    draft = review.draft
-    precedent = review.precedent
-    d_owners, p_owners = block_owners(draft), block_owners(precedent)
-    in_draft = {p.precedent for p in review.pairs if p.precedent and p.draft}
-    in_precedent = {p.draft for p in review.pairs if p.precedent and p.draft}
-    # Restored paragraphs sharing an anchor are written in the precedent's order.
-    restored: list[tuple[tuple[int, int, int], BlockInsertion]] = []
-    restored_ids: set[str] = set()
-    seen_heading_edits: set[BlockEdit] = set()
-
-    def free(block: int, a: int, b: int) -> bool:
-        if block in deleted_blocks:
-            return False
-        for x, y in claimed.get(block, []):
-            if a < y and x < b or (a == b == x) or (a == b and x < a < y) or (x == y and a < x < b):
-                return False
-        return True
-
-    def add_edit(edit: BlockEdit) -> None:
-        edits.append(edit)
-        claimed.setdefault(edit.block, []).append((edit.start, edit.end))
-
+    planner = _Planner(review)
     for dec in decisions:
-        dev = _deviation(review, dec.deviation)
-        if dev is None:
-            notes.append(f"{dec.deviation}: no such deviation in this review; skipped")
-            continue
-        note = dec.note
-        if dec.action == "accept" and not note:
-            continue
-        dprov = find_provision(draft, dev.draft_provision)
-        pprov = find_provision(precedent, dev.precedent_provision)
-        where = clause_label(review, dev) or dev.id
-        if dec.action != "accept" and (dev.category == "term" or dev.change == "move"):
-            notes.append(f"{dev.id} ({where}): a renamed term or a moved provision is not "
-                         "written as a tracked change; skipped")
-            continue
-
-        # -- a provision the draft left out -------------------------------------------
-        if dev.change == "remove-provision" or (dprov is None and pprov is not None):
-            if pprov is None:
-                notes.append(f"{dev.id} ({where}): provision not found; skipped")
-                continue
-            anchor = _draft_anchor(review, pprov.id)
-            if dec.action == "accept":
-                if anchor >= 0 and free(anchor, len(draft.blocks[anchor].text), len(draft.blocks[anchor].text)):
-                    n = len(draft.blocks[anchor].text)
-                    add_edit(BlockEdit(anchor, n, n, comment=note, tracked=False))
-                continue
-            # The provision with its sub-provisions the draft also lacks; parts another
-            # decision already restored are not written twice.
-            provs = [p for p in _subtree(precedent, pprov, keep=lambda p: p.id not in in_draft)
-                     if p.id not in restored_ids]
-            if not provs:
-                continue
-            restored_ids.update(p.id for p in provs)
-            blocks = sorted({b for p in provs for b in provision_blocks(precedent, p, owners=p_owners)})
-            if dec.action == "revert":
-                lines = [(b, precedent.blocks[b], to_draft_terms(precedent.blocks[b].text)) for b in blocks]
-            else:
-                first = blocks[0] if blocks else -1
-                model = precedent.blocks[first] if blocks else Block(0, "")
-                lines = [(first, model, line) for line in (dec.text or "").split("\n")]
-            for k, (b, model, text) in enumerate(lines):
-                like, numbered = _like_block(draft.blocks, anchor, model)
-                restored.append(((anchor, b, k), BlockInsertion(
-                    anchor, text, like=like, numbered=numbered, comment=note if k == 0 else None)))
-            continue
-
-        if dprov is None:
-            notes.append(f"{dev.id} ({where}): no draft provision to change; skipped")
-            continue
-
-        # -- a provision the draft added ------------------------------------------------
-        if dev.change == "add-provision" and dec.action == "revert":
-            provs = _subtree(draft, dprov, keep=lambda p: p.id not in in_precedent)
-            blocks = sorted({b for p in provs for b in provision_blocks(draft, p, owners=d_owners)})
-            if any(b in claimed or b in deleted_blocks for b in blocks):
-                notes.append(f"{dev.id} ({where}): overlaps another decision; skipped")
-                continue
-            for k, b in enumerate(blocks):
-                deletions.append(BlockDeletion(b, comment=note if k == 0 else None))
-                deleted_blocks.add(b)
-            continue
-
-        # -- the heading -------------------------------------------------------------------
-        if dev.part == "heading" and dev.change in _WORD_CHANGES:
-            result = _heading_change(review, dev, dec, dprov, pprov, to_draft_terms)
-            if result is None:
-                notes.append(f"{dev.id} ({where}): the heading could not be located in the draft; skipped")
-            elif isinstance(result, BlockDeletion):
-                if result.block in deleted_blocks:
-                    continue  # the same heading, already reverted by another decision
-                if result.block in claimed:
-                    notes.append(f"{dev.id} ({where}): overlaps another decision; skipped")
-                    continue
-                deletions.append(BlockDeletion(result.block, comment=note))
-                deleted_blocks.add(result.block)
-            elif result in seen_heading_edits:
-                continue  # the same heading, already reverted by another decision
-            elif not free(result.block, result.start, result.end):
-                notes.append(f"{dev.id} ({where}): overlaps another decision; skipped")
-            else:
-                seen_heading_edits.add(result)
-                add_edit(dataclasses.replace(result, comment=note))
-            continue
-
-        # -- words inside the provision ------------------------------------------------
-        if dev.change == "add-provision":
-            d1, d2 = 0, len(dprov.text)  # amend: the reviewer's words replace the provision's
-        elif dev.draft_span is not None:
-            d1, d2 = dev.draft_span  # empty at the insertion point for a delete
-        elif (dev.precedent_span is not None and pprov is not None and (at := map_offset(
-                edits_of_pair(review, dprov.id, pprov.id), dev.precedent_span[0])) is not None):
-            d1 = d2 = at  # a deviation made without a draft span: place it by the pair's diff
-        elif dec.action == "accept":
-            d1, d2 = 0, len(dprov.text)  # a note on the provision as a whole
-        else:
-            notes.append(f"{dev.id} ({where}): the review gives no place for this change; skipped")
-            continue
-        if dec.action == "accept":
-            replacement = None
-        elif dec.action == "amend":
-            replacement = dec.text or ""
-        elif pprov is not None and dev.precedent_span is not None:
-            p1, p2 = dev.precedent_span
-            replacement = to_draft_terms(pprov.text[p1:p2])
-        elif dev.change == "insert" or not dev.precedent_text:
-            replacement = ""
-        else:
-            replacement = to_draft_terms(dev.precedent_text)
-        ranges = block_ranges(dprov, d1, d2)
-        if not ranges and dec.action == "accept":
-            blocks = provision_blocks(draft, dprov, owners=d_owners)
-            if blocks:  # a provision without words of its own (a heading): note on it
-                ranges = [(blocks[0], 0, len(draft.blocks[blocks[0]].text))]
-        if not ranges:
-            notes.append(f"{dev.id} ({where}): its words could not be located in the draft; skipped")
-            continue
-        if replacement is None:
-            b, s, e = ranges[0]
-            if free(b, s, e):
-                add_edit(BlockEdit(b, s, e, comment=note, tracked=False))
-            else:
-                notes.append(f"{dev.id} ({where}): its note overlaps another decision; skipped")
-            continue
-        parts = replacement.split("\n")
-        if len(parts) != len(ranges):
-            parts = [replacement] + [""] * (len(ranges) - 1)
-        planned = []
-        for k, ((b, s, e), text) in enumerate(zip(ranges, parts)):
-            if s == e and not text:
-                continue
-            s, e, text = _tidy_spaces(draft.blocks[b].text, s, e, text)
-            planned.append(BlockEdit(b, s, e, text, comment=note if not planned else None))
-        if not all(free(x.block, x.start, x.end) for x in planned):
-            notes.append(f"{dev.id} ({where}): overlaps another decision; skipped")
-            continue
-        for x in planned:
-            add_edit(x)
-    insertions = [ins for _, ins in sorted(restored, key=lambda x: x[0])]
-    return CounterDraftPlan(tuple(edits), tuple(deletions), tuple(insertions), tuple(notes))
+        planner.add(dec)
+    return planner.plan()
 
 
 def counter_draft_bytes(review: Review, decisions: Sequence[Decision], *, draft_path: str,

@@ -49,6 +49,7 @@ from .severity import (
     provision_change_severity,
     text_change_severity,
 )
+from .spans import corresponding_spans
 from .termmap import (
     TermMap,
     TermOverride,
@@ -66,7 +67,7 @@ from .tokens import (
     term_matcher,
     word_keys,
 )
-from .worddiff import pair_edits_from_ops, token_ops
+from .worddiff import TokenOp, pair_edits_from_ops, token_ops
 
 __all__ = ["NO_SHARED_NOTE", "TermOverride", "VocabularyModel", "clear_caches", "review_to_dict",
            "run_review"]
@@ -142,12 +143,12 @@ def _label(info: DocInfo, pos: int, *, with_heading: bool = True) -> str:
     return base
 
 
-def _with_context(text: str, span: tuple[int, int]) -> str:
-    """``text[span]``; a change with no letter or digit gets a word of context each side."""
+def _with_context(text: str, span: tuple[int, int]) -> tuple[int, int]:
+    """*span*, with a word of context each side when ``text[span]`` has no letter or digit."""
     a, b = span
     s = text[a:b]
     if not s or any(c.isalnum() for c in s):
-        return s
+        return span
     left = text[:a]
     m = re.search(r"(\S+\s*){1,%d}$" % _CONTEXT_WORDS, left)
     if m:
@@ -155,7 +156,16 @@ def _with_context(text: str, span: tuple[int, int]) -> str:
     m = re.match(r"(\s*\S+){1,%d}" % _CONTEXT_WORDS, text[b:])
     if m:
         b += m.end()
-    return text[a:b]
+    return a, b
+
+
+def _trimmed(text: str, span: tuple[int, int]) -> tuple[int, int]:
+    a, b = span
+    while a < b and text[a].isspace():
+        a += 1
+    while b > a and text[b - 1].isspace():
+        b -= 1
+    return a, b
 
 
 @dataclass
@@ -174,6 +184,8 @@ class _Dev:
     precedent_span: tuple[int, int] | None = None
     draft_span: tuple[int, int] | None = None
     part: str = "text"  # see core.model.Deviation.part
+    precedent_text_span: tuple[int, int] | None = None
+    draft_text_span: tuple[int, int] | None = None
 
 
 def _local_label(num: str) -> str:
@@ -319,7 +331,7 @@ class _Builder:
         assert dpos is not None
         return self.d_types[dpos], self.di.provisions[dpos].kind
 
-    def _shown(self, text: str, span: tuple[int, int]) -> str:
+    def _widened(self, text: str, span: tuple[int, int]) -> tuple[int, int]:
         """The changed words as shown: whole figures ("thirty (30) days", not "thirty (30"),
         and a word of context around a change without letters or digits."""
         a, b = span
@@ -328,20 +340,37 @@ class _Builder:
                 a, b = min(a, qs), max(b, qe)
         return _with_context(text, (a, b))
 
+    def _shown_spans(self, ch: Change, ptext: str, dtext: str,
+                     diff: tuple[Sequence[TokenOp], TokenSeq, TokenSeq] | None
+                     ) -> tuple[tuple[int, int], tuple[int, int]]:
+        """Corresponding spans of the words shown on each side (see :mod:`.spans`); without
+        a diff (a heading as a whole) each side's widened span, trimmed."""
+        pw = self._widened(ptext, ch.p_span) if ch.change != "insert" else ch.p_span
+        dw = self._widened(dtext, ch.d_span) if ch.change != "delete" else ch.d_span
+        if diff is not None:
+            ops, a, b = diff
+            return corresponding_spans(ops, a, b, precedent=pw, draft=dw)
+        return _trimmed(ptext, pw), _trimmed(dtext, dw)
+
     def _add_change(self, ch: Change, *, ptext: str, pstarts: Sequence[int], ppos: Sequence[int],
-                    dtext: str, dstarts: Sequence[int], dpos: Sequence[int], heading: bool) -> None:
+                    dtext: str, dstarts: Sequence[int], dpos: Sequence[int], heading: bool,
+                    diff: tuple[Sequence[TokenOp], TokenSeq, TokenSeq] | None = None) -> None:
         if ch.category == "term":
             return  # reported once per term pair
         pk = bisect_right(pstarts, ch.p_span[0]) - 1
         dk = bisect_right(dstarts, ch.d_span[0]) - 1
         pp, dp = ppos[max(pk, 0)], dpos[max(dk, 0)]
         p0, d0 = pstarts[max(pk, 0)], dstarts[max(dk, 0)]
-        plen = len(self.pi.provisions[pp].text)
-        dlen = len(self.di.provisions[dp].text)
+        plen = len(self.pi.provisions[pp].text) if not heading else len(ptext)
+        dlen = len(self.di.provisions[dp].text) if not heading else len(dtext)
         pspan = (ch.p_span[0] - p0, min(ch.p_span[1] - p0, plen))
         dspan = (ch.d_span[0] - d0, min(ch.d_span[1] - d0, dlen))
-        ptxt = self._shown(ptext, ch.p_span) if ch.change != "insert" else ""
-        dtxt = self._shown(dtext, ch.d_span) if ch.change != "delete" else ""
+        (pa, pb), (da, db) = self._shown_spans(ch, ptext, dtext, diff)
+        # Shown spans are clipped to the provision that holds the change (a split or merged
+        # group joins several provisions' texts with "\n").
+        pa, pb = min(max(pa, p0), p0 + plen), min(max(pb, p0), p0 + plen)
+        da, db = min(max(da, d0), d0 + dlen), min(max(db, d0), d0 + dlen)
+        ptxt, dtxt = ptext[pa:pb], dtext[da:db]
         if ch.category == "substantive":
             ctype, kind = self._type_of(pp, dp)
             sev, reasons = text_change_severity(
@@ -362,7 +391,7 @@ class _Builder:
             (float(dp), 0 if heading else 1, ch.d_span[0]), sev, ch.category, ch.change,
             self.di.provisions[dp].id, self.pi.provisions[pp].id, ptxt, dtxt, reasons,
             None if heading else pspan, None if heading else dspan,
-            "heading" if heading else "text"))
+            "heading" if heading else "text", (pa - p0, pb - p0), (da - d0, db - d0)))
 
     def _quantities(self, text: str, spans: Sequence[tuple[int, int]]) -> list[tuple[int, int]]:
         """Character spans of the figures near the given spans of *text*."""
@@ -407,7 +436,8 @@ class _Builder:
             if ch.category not in ("term", "numbering"):
                 counted += 1
             self._add_change(ch, ptext=ptext, pstarts=pstarts, ppos=g.precedents,
-                             dtext=dtext, dstarts=dstarts, dpos=g.drafts, heading=False)
+                             dtext=dtext, dstarts=dstarts, dpos=g.drafts, heading=False,
+                             diff=(ops, a, b))
         clock.lap("severity")
         return self._heading_changes(g, counted)
 
@@ -563,7 +593,8 @@ class _Builder:
         deviations = tuple(
             Deviation(ids[id(v)], r, v.severity, v.category, v.change, v.draft_provision,
                       v.precedent_provision, v.precedent_text, v.draft_text, v.reasons,
-                      None, v.precedent_span, v.draft_span, v.part)
+                      None, v.precedent_span, v.draft_span, v.part, v.precedent_text_span,
+                      v.draft_text_span)
             for r, v in enumerate(ranked, 1))
         notes: list[str] = []
         if not al.groups and (di.provisions or pi.provisions):

@@ -159,7 +159,8 @@ def token_ops(a: TokenSeq, b: TokenSeq, *, semantic: bool = True) -> list[TokenO
 
 
 def edits_from_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp]) -> list[Edit]:
-    """Character-offset :class:`Edit` hunks (``restyle`` becomes ``replace``)."""
+    """Character-offset :class:`Edit` hunks (``restyle`` becomes ``replace`` with its
+    ``restyle`` flag set)."""
     edits: list[Edit] = []
     for op in ops:
         p1, p2 = a.span(op.i1, op.i2)
@@ -169,7 +170,7 @@ def edits_from_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp]) -> list[Edi
             prev = edits.pop()
             edits.append(Edit("equal", prev.p1, p2, prev.d1, d2))
         else:
-            edits.append(Edit(tag, p1, p2, d1, d2))
+            edits.append(Edit(tag, p1, p2, d1, d2, restyle=op.tag == "restyle"))
     return edits
 
 
@@ -179,19 +180,21 @@ def pair_edits_from_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp]) -> tup
     texts, with each ``restyle`` op cut token by token -- identical tokens are ``equal``, a
     restyled defined-term use or cross-reference is a ``replace`` hunk of its own (so that a
     view can tell a renamed term or a renumbered reference from changed words), other
-    restyled tokens next to each other form one ``replace`` hunk.  Adjacent ``equal`` hunks
-    are merged.  O(tokens)."""
+    restyled tokens next to each other form one ``replace`` hunk; every hunk cut from a
+    ``restyle`` op has its ``restyle`` flag set.  Adjacent ``equal`` hunks are merged.  O(tokens)."""
     out: list[Edit] = []
     whole: list[bool] = []  # per hunk of out: a term use or cross-reference on its own
 
-    def push(tag: str, p1: int, p2: int, d1: int, d2: int, alone: bool = False) -> None:
+    def push(tag: str, p1: int, p2: int, d1: int, d2: int, alone: bool = False,
+             restyle: bool = False) -> None:
         if p1 == p2 and d1 == d2:
             return
-        if out and not alone and not whole[-1] and out[-1].tag == tag and tag in ("equal", "replace"):
+        if (out and not alone and not whole[-1] and out[-1].tag == tag and tag in ("equal", "replace")
+                and out[-1].restyle == restyle):
             prev = out[-1]
-            out[-1] = Edit(tag, prev.p1, p2, prev.d1, d2)
+            out[-1] = Edit(tag, prev.p1, p2, prev.d1, d2, restyle=restyle)
             return
-        out.append(Edit(tag, p1, p2, d1, d2))
+        out.append(Edit(tag, p1, p2, d1, d2, restyle=restyle))
         whole.append(alone)
 
     for op in ops:
@@ -208,7 +211,8 @@ def pair_edits_from_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp]) -> tup
             if a.text[p1:p2] == b.text[d1:d2]:
                 push("equal", p1, p2, d1, d2)
             else:
-                push("replace", p1, p2, d1, d2, alone=a.kinds[i] in (KIND_TERM, KIND_XREF))
+                push("replace", p1, p2, d1, d2, alone=a.kinds[i] in (KIND_TERM, KIND_XREF),
+                     restyle=True)
         if whole and out[-1].tag == "replace" and not whole[-1]:
             whole[-1] = True  # restyled tokens do not run on into the next op
     return tuple(out)

@@ -177,11 +177,13 @@ def _house_wording_in_place(review, dev) -> tuple[int, int, int, str]:
             i = text.index(prov.heading)
             return seg.block, i, i + len(prov.heading), prec.heading
         return seg.block, text.index(prov.heading), seg.start, ""  # run-in heading removed
-    house = prec.text[dev.precedent_span[0]:dev.precedent_span[1]] if dev.precedent_span else ""
+    # The words the review showed on each side (Deviation.*_text_span): a decision applies
+    # to exactly those.
+    house = prec.text[dev.precedent_text_span[0]:dev.precedent_text_span[1]]
     for m in review.term_map:
         house = re.sub(rf"\b{re.escape(m.precedent)}", m.draft, house)
-    assert dev.draft_span is not None, "a pure deletion has no place in the draft to check"
-    return seg.block, seg.start + dev.draft_span[0], seg.start + dev.draft_span[1], house
+    assert dev.draft_text_span[0] < dev.draft_text_span[1], "a pure deletion has no place to check"
+    return seg.block, seg.start + dev.draft_text_span[0], seg.start + dev.draft_text_span[1], house
 
 
 def test_demo_counter_draft_reverting_the_three_most_severe(tmp_path):
