@@ -126,7 +126,8 @@ def _cmd_decide(args: argparse.Namespace) -> int:
             raise CounterdraftError(f"no deviation ranked {dev_id} (ranks run 1 to {len(by_rank)})",
                                     path=args.review_file)
         dev_id = by_rank[int(dev_id)]
-    record = decide(record, dev_id, args.action, text=args.text, note=args.note)
+    record = decide(record, dev_id, args.action, text=args.text, note=args.note,
+                    paragraphs=args.paragraphs)
     save_review_file(args.review_file, record)
     dev = next(d for d in record.review.deviations if d.id == dev_id)
     where = clause_label(record.review, dev)
@@ -268,6 +269,8 @@ def build_parser() -> argparse.ArgumentParser:
                    help="accept the draft's words, revert to the precedent's, or amend")
     p.add_argument("--text", help="the new wording (amend only)")
     p.add_argument("--note", help="a note; the counter-draft shows it as a comment")
+    p.add_argument("--paragraphs", action="store_true",
+                   help="amend: line breaks in --text start new paragraphs (else refused)")
     p.set_defaults(func=_cmd_decide)
 
     p = sub.add_parser("export", help="write the counter-draft, the comparison redline or the issues list")

@@ -39,6 +39,7 @@ from __future__ import annotations
 import dataclasses
 import json
 import os
+import unicodedata
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -50,7 +51,9 @@ from .labels import clause_label, find_provision  # clause_label: re-exported fo
 from .model import Deviation, Document, Review
 
 __all__ = [
+    "ACCEPT_ONLY",
     "ACTIONS",
+    "AMEND_MAX_CHARS",
     "REVIEW_FILE_SCHEMA",
     "Decision",
     "DocumentRef",
@@ -59,6 +62,7 @@ __all__ = [
     "decide",
     "decision_for",
     "load_review_file",
+    "check_amend_text",
     "match_key",
     "new_review_file",
     "read_library_folder",
@@ -69,6 +73,13 @@ __all__ = [
 
 REVIEW_FILE_SCHEMA = "counterdraft.review-file/1"
 ACTIONS: tuple[str, ...] = ("accept", "revert", "amend")
+#: Deviation categories that can only be accepted: the counter-draft keeps the draft's own
+#: punctuation, layout and numbering (restoring them is not a negotiating point, and the
+#: numbering follows from the provisions kept -- common practice, no source).
+ACCEPT_ONLY: tuple[str, ...] = ("formatting", "punctuation", "numbering")
+#: Longest amend wording taken, in characters: a rewritten clause of several pages fits; a
+#: longer text is almost certainly a paste gone wrong.
+AMEND_MAX_CHARS = 100_000
 
 
 @dataclass(frozen=True, slots=True)
@@ -152,25 +163,77 @@ def decision_for(decisions: Sequence[Decision], deviation_id: str) -> Decision |
     return None
 
 
+def _bad_character(text: str) -> str | None:
+    """The first character *text* may not hold, as ``U+XXXX``: a control character other
+    than tab and line break, or one that XML 1.0 cannot carry (ECMA-376 parts are XML 1.0,
+    §2.2 Characters: no C0 control but tab, line feed, carriage return; no surrogates, no
+    U+FFFE or U+FFFF)."""
+    for ch in text:
+        code = ord(ch)
+        if ch in "\t\n":
+            continue
+        if unicodedata.category(ch) == "Cc" or 0xD800 <= code <= 0xDFFF or code in (0xFFFE, 0xFFFF):
+            return f"U+{code:04X}"
+    return None
+
+
+def check_amend_text(text: str, *, paragraphs: bool = False) -> str:
+    """The reviewer's amend wording, checked: no control characters, at most
+    :data:`AMEND_MAX_CHARS` characters, and one paragraph unless *paragraphs* says that line
+    breaks start new paragraphs on purpose.  Windows line ends become ``"\\n"``.  Raises
+    :class:`CounterdraftError` with one line saying what is wrong."""
+    text = text.replace("\r\n", "\n")
+    bad = _bad_character(text)
+    if bad is not None:
+        raise CounterdraftError(f"the new wording holds a control character ({bad}); type it again "
+                                "without it")
+    if len(text) > AMEND_MAX_CHARS:
+        raise CounterdraftError(f"the new wording is {len(text):,} characters long; at most "
+                                f"{AMEND_MAX_CHARS:,} are taken")
+    if "\n" in text.strip("\n") and not paragraphs:
+        raise CounterdraftError("the new wording holds a line break; an amendment is one paragraph "
+                                "unless you ask for several (--paragraphs)")
+    return text.strip("\n")
+
+
+def _refuse(dev: Deviation, action: str, who: str) -> None:
+    """Refuse what cannot be written as a tracked change, in one line naming the deviation."""
+    if action == "accept":
+        return
+    if dev.change == "move":
+        raise CounterdraftError(
+            f"{who} is a moved provision; moving it back is not written as a tracked change -- "
+            "accept it, or amend the provision's words")
+    if dev.category == "term":
+        raise CounterdraftError(
+            f"{who} is a renamed defined term; renaming it back everywhere is not written as "
+            "tracked changes -- accept it (the counter-draft keeps the draft's names)")
+    if dev.category in ACCEPT_ONLY:
+        raise CounterdraftError(
+            f"{who} is a {dev.category} difference: it can be accepted, not reverted or amended "
+            "(the counter-draft keeps the draft's own)")
+
+
 def decide(rf: ReviewFile, deviation_id: str, action: str, *, text: str | None = None,
-           note: str | None = None) -> ReviewFile:
-    """*rf* with the decision on *deviation_id* recorded (replacing an earlier one)."""
+           note: str | None = None, paragraphs: bool = False) -> ReviewFile:
+    """*rf* with the decision on *deviation_id* recorded (replacing an earlier one).  Amend
+    wording is checked (:func:`check_amend_text`; *paragraphs* allows line breaks that start
+    new paragraphs)."""
     if action not in ACTIONS:
         raise CounterdraftError(f"unknown decision {action!r}; use one of {', '.join(ACTIONS)}")
     dev = _find_deviation(rf.review, deviation_id)
     if action == "amend":
         if text is None:
             raise CounterdraftError("amend needs the new wording (--text)")
+        text = check_amend_text(text, paragraphs=paragraphs)
     elif text is not None:
         raise CounterdraftError(f"--text goes with amend, not with {action}")
-    if action != "accept" and dev.change == "move":
-        raise CounterdraftError(
-            f"{deviation_id} is a moved provision; moving it back is not written as a tracked "
-            "change -- accept it, or amend the provision's words")
-    if action != "accept" and dev.category == "term":
-        raise CounterdraftError(
-            f"{deviation_id} is a renamed defined term; renaming it back everywhere is not "
-            "written as tracked changes -- accept it (the counter-draft keeps the draft's names)")
+    where = clause_label(rf.review, dev)
+    _refuse(dev, action, f"deviation {dev.rank}" + (f" ({where})" if where else ""))
+    if note is not None:
+        bad = _bad_character(note)
+        if bad is not None:
+            raise CounterdraftError(f"the note holds a control character ({bad}); type it again without it")
     if note is not None and not note.strip():
         note = None
     new = Decision(deviation=deviation_id, action=action, text=text, note=note,
@@ -405,6 +468,10 @@ def load_review_file(path: str | os.PathLike[str], *, runner: Runner | None = No
     for d in decisions:
         if d.action not in ACTIONS:
             raise CounterdraftError(f"damaged review file (unknown decision {d.action!r})", path=spath)
+        for field_name, value in (("text", d.text), ("note", d.note)):
+            if value is not None and (not isinstance(value, str) or _bad_character(value)):
+                raise CounterdraftError(f"damaged review file (the {field_name} of the decision on "
+                                        f"{d.deviation} is not plain text)", path=spath)
     dpath = _locate(refs["draft"], folder, role="draft", review_path=spath)
     ppath = _locate(refs["precedent"], folder, role="precedent", review_path=spath)
     try:

@@ -20,6 +20,7 @@ from PySide6.QtWidgets import (
 
 from core.model import Deviation, Review
 
+from .engine import can_change
 from .labels import CATEGORY_NAMES, CHANGE_NAMES, clause_label, frequency_text
 from .palette import DELETED, INSERTED, MUTED_INK
 from .state import Change, Workspace
@@ -37,6 +38,10 @@ KEYS = {
     "clear": "U",
     "help": "F1",
 }
+
+
+_REVERT_TIP = "Put the precedent's words back (a tracked change in the counter-draft)."
+_AMEND_TIP = "Write your own words (a tracked change in the counter-draft)."
 
 
 class DecisionPanel(QWidget):
@@ -61,8 +66,8 @@ class DecisionPanel(QWidget):
         self.amend_btn = QPushButton(f"Amend\u2026  [{KEYS['amend']}]", self)
         self.clear_btn = QPushButton(f"Clear  [{KEYS['clear']}]", self)
         self.accept_btn.setToolTip("Keep the counterparty's words.")
-        self.revert_btn.setToolTip("Put the precedent's words back (a tracked change in the counter-draft).")
-        self.amend_btn.setToolTip("Write your own words (a tracked change in the counter-draft).")
+        self.revert_btn.setToolTip(_REVERT_TIP)
+        self.amend_btn.setToolTip(_AMEND_TIP)
         self.group = QButtonGroup(self)
         for b in (self.accept_btn, self.revert_btn, self.amend_btn):
             b.setCheckable(True)
@@ -170,6 +175,11 @@ class DecisionPanel(QWidget):
         enabled = d is not None
         for w in (self.accept_btn, self.revert_btn, self.amend_btn, self.clear_btn, self.note, self.note_save):
             w.setEnabled(enabled)
+        only_accept = d is not None and not can_change(d)
+        for w, tip in ((self.revert_btn, _REVERT_TIP), (self.amend_btn, _AMEND_TIP)):
+            # the engine refuses these too (core.decisions): the draft's own stays
+            w.setEnabled(enabled and not only_accept)
+            w.setToolTip(f"A {d.category} difference can only be accepted." if only_accept else tip)
         if changed_deviation:
             for w in (self.amend_label, self.amend_text, self.amend_ok):
                 w.hide()

@@ -235,8 +235,17 @@ def decide(record: Any, deviation_id: str, action: str, *, text: str = "", note:
     """The record with the reviewer's decision on *deviation_id* (the engine checks it)."""
     from core.decisions import decide as core_decide
 
+    # The amend box shows line breaks as typed, so they are new paragraphs on purpose.
     return core_decide(record, deviation_id, action, text=text if action == "amend" else None,
-                       note=note or None)
+                       note=note or None, paragraphs=True)
+
+
+def can_change(deviation: Any) -> bool:
+    """Can the reviewer revert or amend *deviation* (else only accept it)?"""
+    from core.decisions import ACCEPT_ONLY
+
+    return not (deviation.category in ACCEPT_ONLY or deviation.category == "term"
+                or deviation.change == "move")
 
 
 def undecide(record: Any, deviation_id: str) -> Any:

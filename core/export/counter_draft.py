@@ -16,7 +16,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from .. import CAUTION
-from ..decisions import Decision
+from ..decisions import ACCEPT_ONLY, Decision
 from ..docx.tracked import BlockDeletion, BlockEdit, BlockInsertion
 from ..errors import CounterdraftError
 from ..fileio import atomic_write_bytes
@@ -37,8 +37,7 @@ from .common import (
 from .spans import SpanEdit, amend_edits, revert_edits, seam, to_blocks
 
 __all__ = [
-    "ACCEPT_ONLY_CATEGORIES",
-    "CounterDraftPlan",
+        "CounterDraftPlan",
     "counter_draft_bytes",
     "plan_counter_draft",
     "write_counter_draft",
@@ -165,11 +164,6 @@ def _subtree(doc: Document, root: Provision, *, keep) -> list[Provision]:
     return out
 
 
-#: Deviation categories a decision may only accept: restoring the precedent's punctuation,
-#: layout or numbering is not a negotiating point, and the counter-draft keeps the draft's
-#: own (renamed terms and moves are refused by :mod:`core.decisions` for their own reasons).
-ACCEPT_ONLY_CATEGORIES = ("formatting", "punctuation", "numbering")
-
 _WORD_CHANGES = ("insert", "delete", "replace")
 
 
@@ -232,7 +226,7 @@ class _Planner:
         dprov = find_provision(review.draft, dev.draft_provision)
         pprov = find_provision(review.precedent, dev.precedent_provision)
         if dec.action != "accept" and (dev.category == "term" or dev.change == "move"
-                                       or dev.category in ACCEPT_ONLY_CATEGORIES):
+                                       or dev.category in ACCEPT_ONLY):
             self.notes.append(f"{_who(review, dev)}: a {dev.category} difference can only be "
                               "accepted; skipped")
         elif dev.change == "remove-provision" or (dprov is None and pprov is not None):
@@ -401,7 +395,7 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
       amend inserts the reviewer's text there;
     * a note becomes a comment on the changed words (on the draft's words for accept);
     * renamed defined terms, moved provisions and formatting, punctuation or numbering
-      differences are only accepted (:data:`ACCEPT_ONLY_CATEGORIES`); decisions that cannot
+      differences are only accepted (:data:`core.decisions.ACCEPT_ONLY`); decisions that cannot
       be placed, or that overlap an earlier one, are skipped and reported in ``notes``.
     """
     planner = _Planner(review)

@@ -8,7 +8,7 @@ Exactly this shape (``resources/schemas/review.schema.json`` is its JSON Schema)
      "pairs": [{"draft", "precedent", "status", "similarity", "frequency"}],
      "deviations": [{"id", "rank", "severity", "category", "change", "draft_provision",
                      "precedent_provision", "precedent_text", "draft_text", "reasons",
-                     "frequency"}]}
+                     "frequency", "precedent_text_span", "draft_text_span"}]}
 
 ``frequency`` (of a pair and of a deviation) is null until the precedent set fills it
 (:mod:`core.library`).
@@ -53,6 +53,8 @@ def _deviation(v: Deviation) -> dict[str, Any]:
         "draft_text": v.draft_text,
         "reasons": list(v.reasons),
         "frequency": frequency_to_dict(v.frequency),
+        "precedent_text_span": list(v.precedent_text_span) if v.precedent_text_span else None,
+        "draft_text_span": list(v.draft_text_span) if v.draft_text_span else None,
     }
 
 
