@@ -57,6 +57,7 @@ __all__ = [
     "max_annotation_id",
     "paragraph_mark_deletable",
     "paragraph_runs",
+    "split_paragraph_after",
     "w",
     "wrap",
 ]
@@ -155,6 +156,9 @@ class TextEdit:
     #: Write the insertion before the deletion (both orders are valid markup; deletion first
     #: is the usual one).  See :mod:`core.docx.tracked` for when the other order is needed.
     insert_first: bool = False
+    #: A ``"\\n"`` in ``replacement`` starts a new paragraph (:func:`split_paragraph_after`)
+    #: instead of a line break within the paragraph.
+    paragraphs: bool = False
 
 
 # --------------------------------------------------------------------------------------
@@ -571,8 +575,9 @@ def _apply_one(p: etree._Element, edit: TextEdit, *, stamp: RevisionStamp, ids: 
                 insert_after = target
             else:
                 insert_before = target
-    if edit.replacement:
-        ins = wrap("ins", make_runs(edit.replacement, rpr_source), stamp=stamp, ids=ids)
+    lines = edit.replacement.split("\n") if edit.paragraphs else [edit.replacement]
+    if lines[0]:
+        ins = wrap("ins", make_runs(lines[0], rpr_source), stamp=stamp, ids=ids)
         if doomed and edit.insert_first:
             written[0].addprevious(ins)
             written.insert(0, ins)
@@ -584,11 +589,83 @@ def _apply_one(p: etree._Element, edit: TextEdit, *, stamp: RevisionStamp, ids: 
             _append_content(p, ins)
         if ins not in written:
             written.append(ins)
+    if len(lines) > 1:
+        cut = written[-1] if written else insert_after
+        if cut is None and insert_before is not None:
+            cut = insert_before.getprevious()
+        written.extend(_new_paragraphs(p, cut, lines[1:], rpr_source, stamp=stamp, ids=ids))
     if edit.comment is not None:
         if written:
             anchor_comment(written[0], written[-1], edit.comment)
         else:
             _comment_on_text(p, edit.start, edit.end, edit.comment)
+
+
+def _new_paragraphs(p: etree._Element, cut: etree._Element | None, lines: Sequence[str],
+                    rpr: etree._Element | None, *, stamp: RevisionStamp,
+                    ids: IdAllocator) -> list[etree._Element]:
+    """Start a new paragraph after *cut* (a descendant of *p*; None: at the start of *p*'s
+    content) for each of *lines*, each opening with that line as a tracked insertion; the
+    words after *cut* end up in the last one.  Returns the insertions written."""
+    written = []
+    for line in lines:
+        q = split_paragraph_after(p, cut, stamp=stamp, ids=ids)
+        ins = wrap("ins", make_runs(line, rpr), stamp=stamp, ids=ids) if line else None
+        ppr = q.find(_PPR)
+        if ins is not None:
+            if ppr is not None:
+                ppr.addnext(ins)
+            else:
+                q.insert(0, ins)
+            written.append(ins)
+        p, cut = q, ins if ins is not None else ppr
+    return written
+
+
+def split_paragraph_after(p: etree._Element, cut: etree._Element | None, *, stamp: RevisionStamp,
+                          ids: IdAllocator) -> etree._Element:
+    """Cut paragraph *p* after its descendant *cut* (None or its ``w:pPr``: before all its
+    content), as a reviewer pressing Enter there: what follows moves into a new paragraph
+    placed after *p*, and *p*'s paragraph mark is tracked as inserted (ECMA-376 Part 1
+    §17.13.5.16), so rejecting joins the two again.  The new paragraph copies *p*'s
+    properties without numbering (it continues the provision) and without revision marks.
+    Containers between *cut* and *p* (hyperlinks, content controls, revision wrappers) are
+    split in two; a copied revision wrapper gets a fresh id.  Returns the new paragraph."""
+    q = etree.Element(_P)
+    ppr = p.find(_PPR)
+    if ppr is not None:
+        new_ppr = copy.deepcopy(ppr)
+        for child in list(new_ppr):
+            if child.tag in (w("numPr"), w("sectPr"), w("pPrChange")):
+                new_ppr.remove(child)
+        rpr = new_ppr.find(_RPR)
+        if rpr is not None:
+            for mark in [c for c in rpr if c.tag in _RPR_REVISION_TAGS]:
+                rpr.remove(mark)
+        q.append(new_ppr)
+    if cut is None or cut is ppr:
+        moving = [c for c in p if c.tag != _PPR]
+    else:
+        moving = []
+        node = cut
+        while node.getparent() is not p:
+            parent = node.getparent()
+            clone = etree.Element(parent.tag, attrib=dict(parent.attrib))
+            if parent.tag in _REVISION_WRAPPERS:
+                clone.set(_W_ID, str(ids.next()))
+            for el in moving + list(node.itersiblings()):
+                clone.append(el)
+            moving = [clone] if len(clone) else []
+            node = parent
+        moving += list(node.itersiblings())
+    for el in moving:
+        q.append(el)
+    p.addnext(q)
+    mark_paragraph(p, "ins", stamp=stamp, ids=ids)
+    return q
+
+
+_REVISION_WRAPPERS = frozenset({w("ins"), w("del"), w("moveFrom"), w("moveTo")})
 
 
 def _comment_on_text(p: etree._Element, start: int, end: int, comment_id: int) -> None:

@@ -77,6 +77,8 @@ class BlockEdit:
     replacement: str = ""
     comment: str | None = None
     tracked: bool = True
+    #: Each ``"\\n"`` of ``replacement`` starts a new paragraph (else a line break).
+    paragraphs: bool = False
 
 
 @dataclass(frozen=True, slots=True)
@@ -271,7 +273,8 @@ def write_tracked_copy(
         for e in group:
             cid = new_comment(e.comment) if e.comment else None
             if e.tracked:
-                tracked.append(TextEdit(e.start, e.end, e.replacement, comment=cid))
+                tracked.append(TextEdit(e.start, e.end, e.replacement, comment=cid,
+                                        paragraphs=e.paragraphs))
             elif cid is not None:
                 tracked.append(TextEdit(e.start, e.end, "", comment=cid, track=False))
         if starts_with_insertion(index):
@@ -362,7 +365,7 @@ def _end_with_deletion(edits: list[TextEdit], text: str) -> list[TextEdit]:
       so the paragraph does not open with an insertion either: "[del t1][ins new][del t2]".
     """
     last = max(edits, key=lambda e: e.end, default=None)
-    if last is None or not last.track or not last.replacement or last.end != len(text):
+    if last is None or not last.track or not last.replacement or last.end != len(text) or last.paragraphs:
         return edits
     rest = [e for e in edits if e is not last]
     start, replacement = last.start, last.replacement

@@ -317,7 +317,8 @@ class _Planner:
         planned: list[BlockEdit] = []
         for se in span_edits:
             for b, s, e, text in to_blocks(dprov, se):
-                planned.append(BlockEdit(b, s, e, text, comment=dec.note if not planned else None))
+                planned.append(BlockEdit(b, s, e, text, comment=dec.note if not planned else None,
+                                         paragraphs="\n" in text))
         if span_edits and not planned:
             self.notes.append(f"{_who(review, dev)}: its words could not be located in the draft; skipped")
             return

@@ -157,9 +157,10 @@ def amend_edits(text: str, span: Span, new: str, *, tidy: bool = True) -> list[S
 
 def to_blocks(prov: Provision, edit: SpanEdit) -> list[tuple[int, int, int, str]]:
     """(block, start, end, new words) pieces of *edit* in the paragraphs of *prov*: the new
-    words go into the first paragraph the span touches (one per paragraph when the new words
-    have as many lines as the span has paragraphs); the rest of the span is deleted.  An empty
-    list when the span lies outside the provision's segments."""
+    words go into the first paragraph the span touches (one line per paragraph when the new
+    words have as many lines as the span has paragraphs; else every line there, each
+    further line starting a new paragraph); the rest of the span is deleted.  An empty list
+    when the span lies outside the provision's segments."""
     ranges = block_ranges(prov, edit.start, edit.end)
     if not ranges:
         return []
