@@ -49,6 +49,7 @@ from .common import (
 )
 
 __all__ = [
+    "BRACKET_TAIL_MAX",
     "PAIR_GAP_MAX_CELLS",
     "PAIR_PARAGRAPH_MIN_RATIO",
     "REDLINE_BODY_HEADING",
@@ -113,6 +114,13 @@ REDLINE_TABLE_WIDTHS_CM = (1.5, 2.0, 3.8, 8.7)
 #: Information"); the count of uses needs only its header, "Uses in the draft" (about
 #: 2.9 cm in bold 9 pt DejaVu Serif, by the measure above) plus the cell margins.
 REDLINE_TERMS_WIDTHS_CM = (6.25, 6.25, 3.5)
+
+#: The review's word spans stop at the changed word, so a changed figure in brackets often
+#: leaves its bracket open ("ninety (90" then ") days").  The substantive view carries the
+#: mark on to the closing bracket when at most this many identical characters without a
+#: space lead to it on both sides: the bracket itself and a unit sign before it, as in
+#: "(4%)" (the demo's figures; common drafting practice, no source).
+BRACKET_TAIL_MAX = 2
 
 
 # --------------------------------------------------------------------------------------
@@ -543,6 +551,23 @@ def _joined_spans(devs: Sequence[Deviation]) -> list[tuple[int, int, tuple[int, 
     return out
 
 
+def _close_bracket(ptext: str, dtext: str, pspan: tuple[int, int],
+                   dspan: tuple[int, int]) -> tuple[tuple[int, int], tuple[int, int]]:
+    """Both spans carried on to the closing bracket of a figure they open and leave open
+    ("ninety (90" and "thirty (30" before ") days" become "ninety (90)" and "thirty (30)")
+    when the same few characters without a space lead to it on both sides
+    (:data:`BRACKET_TAIL_MAX`); otherwise the spans as they are."""
+    (p1, p2), (d1, d2) = pspan, dspan
+    opened = all(t.count("(") > t.count(")") for t in (ptext[p1:p2], dtext[d1:d2]))
+    close = dtext.find(")", d2, d2 + BRACKET_TAIL_MAX)
+    if not opened or close < 0:
+        return pspan, dspan
+    tail = dtext[d2:close + 1]
+    if any(c.isspace() for c in tail) or ptext[p2:p2 + len(tail)] != tail:
+        return pspan, dspan
+    return (p1, p2 + len(tail)), (d1, d2 + len(tail))
+
+
 def _text_marks(lay: _Layout) -> list[tuple[int, _Mark]]:
     """(draft block, mark) of each substantive deviation in a provision's words: the draft's
     words of its ``draft_span`` inserted, the precedent's words of its ``precedent_span``
@@ -556,6 +581,8 @@ def _text_marks(lay: _Layout) -> list[tuple[int, _Mark]]:
     for (dpid, ppid), devs in groups.items():
         dprov, pprov = lay.dprovs[dpid], lay.pprovs[ppid]
         for d1, d2, pspan in _joined_spans(devs):
+            if pspan is not None:
+                pspan, (d1, d2) = _close_bracket(pprov.text, dprov.text, pspan, (d1, d2))
             deleted = pprov.text[pspan[0]:pspan[1]] if pspan else ""
             for k, (block, start, end) in enumerate(block_ranges(dprov, d1, d2)):
                 out.append((block, _Mark(start, end, deleted if k == 0 else "")))
@@ -715,6 +742,11 @@ def _plural(n: int, one: str, many: str) -> str:
     return f"{n} {one if n == 1 else many}"
 
 
+def _listed(parts: Sequence[str]) -> str:
+    """"a", "a and b", "a, b and c"."""
+    return parts[0] if len(parts) == 1 else ", ".join(parts[:-1]) + " and " + parts[-1]
+
+
 def _ranked_section(review: Review) -> list[Element]:
     """The ranked table of substantive deviations (the first :data:`REDLINE_TABLE_MAX`)."""
     subs = sorted(_substantive(review), key=lambda d: d.rank)
@@ -732,33 +764,40 @@ def _ranked_section(review: Review) -> list[Element]:
 
 
 def _left_out_counts(review: Review) -> str:
-    """One sentence counting the differences the substantive view shows unmarked."""
+    """One sentence counting the other differences the substantive view leaves unmarked:
+    numbering (labels and cross-references), formatting and punctuation, moves."""
     devs = review.deviations
-    moves = sum(d.change == "move" for d in devs)
     numbering = [d for d in devs if d.category == "numbering" and d.change != "move"]
     refs = sum(d.part == "text" for d in numbering)
     other = sum(d.category in ("formatting", "punctuation") for d in devs)
-    return (f"Also shown as the draft has them, not marked: "
-            f"{_plural(len(numbering), 'numbering difference', 'numbering differences')} "
-            f"({_plural(len(numbering) - refs, 'label', 'labels')}, "
-            f"{_plural(refs, 'cross-reference', 'cross-references')}), "
-            f"{_plural(other, 'formatting or punctuation difference', 'formatting and punctuation differences')} "
-            f"and {_plural(moves, 'moved provision', 'moved provisions')} (shown once, where "
-            "the draft has it). The full comparison (counterdraft export --show all) marks "
-            "every difference.")
+    moves = sum(d.change == "move" for d in devs)
+    parts: list[str] = []
+    if numbering:
+        detail = (f" ({_plural(len(numbering) - refs, 'label', 'labels')}, "
+                  f"{_plural(refs, 'cross-reference', 'cross-references')})"
+                  if 0 < refs < len(numbering) else "")
+        parts.append(_plural(len(numbering), "numbering difference", "numbering differences") + detail)
+    if other:
+        parts.append(_plural(other, "formatting or punctuation difference",
+                             "formatting and punctuation differences"))
+    if moves:
+        parts.append(_plural(moves, "moved provision", "moved provisions")
+                     + " (shown once, where the draft has " + ("it)" if moves == 1 else "them)"))
+    if not parts:
+        return "No other difference was found."
+    return (f"Shown as the draft has them, without marks: {_listed(parts)}. The full "
+            "comparison (counterdraft export --show all) marks every difference.")
 
 
 def _left_out_section(review: Review) -> list[Element]:
     """What the substantive view does not mark: the renamed defined terms, then counts."""
     out: list[Element] = [
         Para((Run("Not marked in the comparison"),), style="Heading1"),
-        Para((Run("The comparison shows the draft's own words; only substantive deviations "
-                  "are tracked changes. The draft uses its own names for these defined "
-                  "terms:" if review.term_map else
-                  "The comparison shows the draft's own words; only substantive deviations "
-                  "are tracked changes. No defined term is renamed."),)),
+        Para((Run("The comparison below is the draft's own text: only its substantive "
+                  "deviations from the precedent are tracked changes."),)),
     ]
     if review.term_map:
+        out.append(Para((Run("The draft's names for these defined terms are shown without marks:"),)))
         rows = tuple((m.draft, m.precedent, str(m.occurrences)) for m in review.term_map)
         out.append(Table(("Draft's term", "Precedent's term", "Uses in the draft"), rows,
                          widths=REDLINE_TERMS_WIDTHS_CM))
