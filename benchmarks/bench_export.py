@@ -6,7 +6,8 @@ deviation, and prints the time (best of 3) of:
 
 * the counter-draft (planning the block edits and writing tracked changes into the draft's
   own .docx), and our structural check of its revision markup;
-* the comparison redline (.docx with insertions, deletions and moves);
+* the comparison redline in its two views: substantive deviations only, and every
+  difference (.docx with insertions, deletions and moves);
 * the issues list as .docx, .html and .csv;
 
 with the peak of Python allocations (tracemalloc) while writing the counter-draft and the
@@ -79,18 +80,20 @@ def main(argv: list[str] | None = None) -> int:
               f"{len(notes)} decisions not written)")
         t, problems = _best(lambda: validate_docx(data))
         print(f"  validate counter-draft {t * 1000:8.1f} ms  ({len(problems)} problems)")
-        t, red = _best(lambda: redline_bytes(review, author="Bench"))
-        print(f"  comparison redline     {t * 1000:8.1f} ms  ({len(red) / 1024:.0f} KB)")
+        for show in ("substantive", "all"):
+            t, red = _best(lambda: redline_bytes(review, author="Bench", show=show))
+            label = f"redline ({show})"
+            print(f"  {label:<22} {t * 1000:8.1f} ms  ({len(red) / 1024:.0f} KB)")
         t, _ = _best(lambda: validate_docx(red))
-        print(f"  validate redline       {t * 1000:8.1f} ms")
+        print(f"  validate redline (all) {t * 1000:8.1f} ms")
         for name, fn in (("issues list .docx", lambda: issues_list_docx(review, decisions, author="Bench")),
                          ("issues list .html", lambda: issues_list_html(review, decisions)),
                          ("issues list .csv", lambda: issues_list_csv(review, decisions))):
             t, _ = _best(fn)
             print(f"  {name:<22} {t * 1000:8.1f} ms")
         peak_cd = _peak(lambda: counter_draft_bytes(review, decisions, draft_path=draft_path, author="Bench"))
-        peak_rl = _peak(lambda: redline_bytes(review, author="Bench"))
-        print(f"  peak Python allocations: counter-draft {peak_cd:.0f} MB, redline {peak_rl:.0f} MB")
+        peak_rl = _peak(lambda: redline_bytes(review, author="Bench", show="all"))
+        print(f"  peak Python allocations: counter-draft {peak_cd:.0f} MB, redline (all) {peak_rl:.0f} MB")
     return 0
 
 

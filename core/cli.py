@@ -158,7 +158,7 @@ def _cmd_export(args: argparse.Namespace) -> int:
               f"({sum(d.action != 'accept' for d in record.decisions)} changes, "
               f"{sum(bool(d.note) for d in record.decisions)} notes)")
     if args.redline:
-        write_redline(record.review, args.redline, author=author, inputs=inputs)
+        write_redline(record.review, args.redline, author=author, inputs=inputs, show=args.show)
         print(f"comparison redline written to {args.redline}")
     if args.issues_list:
         from .export import ISSUES_DEFAULT_INCLUDE
@@ -278,6 +278,9 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--counter-draft", metavar="OUT.docx",
                    help="the draft with the decisions as tracked changes and notes as comments")
     p.add_argument("--redline", metavar="OUT.docx", help="precedent-to-draft comparison as tracked changes")
+    p.add_argument("--show", choices=("substantive", "all"), default="substantive",
+                   help="what the redline marks: the substantive deviations on the draft's text "
+                        "(default) or every difference, moves as moves")
     p.add_argument("--issues-list", metavar="OUT", help="the issues list as .docx, .html or .csv")
     p.add_argument("--issues-all", action="store_true",
                    help="list formatting, numbering and punctuation differences in the issues list too")

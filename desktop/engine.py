@@ -290,7 +290,8 @@ def export(kind: str, path: str, report: Report, cancelled: IsCancelled, *, reco
         notes = tuple(ex.write_counter_draft(record.review, record.decisions, path,
                                              draft_path=record.draft.path, inputs=inputs))
     elif kind == "redline":
-        ex.write_redline(record.review, path, inputs=inputs)
+        # The export dialog has no options: the window writes the default (substantive) view.
+        ex.write_redline(record.review, path, inputs=inputs, show=ex.REDLINE_DEFAULT_SHOW)
     elif kind == "issues-list":
         ex.write_issues_list(record.review, path, decisions=record.decisions, inputs=inputs)
     else:

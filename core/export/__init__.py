@@ -3,10 +3,18 @@
 * **Counter-draft** (:func:`write_counter_draft`): the counterparty's own .docx with every
   *revert* and *amend* decision written as tracked changes and every note as a comment on the
   changed words.  Nothing else in the file changes (see :mod:`core.docx.tracked`).
-* **Comparison redline** (:func:`write_redline`): a new .docx showing the precedent-to-draft
-  comparison as tracked changes -- insertions, deletions and moved provisions as
-  ``w:moveFrom``/``w:moveTo`` -- after a short table of the ranked substantive deviations.
-  Accepting all its changes gives the draft's paragraphs, rejecting all gives the precedent's.
+* **Comparison redline** (:func:`write_redline`): a new .docx comparing the precedent with
+  the draft as tracked changes, after the caution and a short table of the ranked
+  substantive deviations.  ``show`` picks the view (:data:`REDLINE_SHOW_CHOICES`):
+  ``"substantive"`` (the default, :data:`REDLINE_DEFAULT_SHOW`) is the draft's own text with
+  only the substantive deviations tracked -- their changed words, changed headings, added
+  and removed provisions -- while renamed defined terms, renumbering, formatting and
+  punctuation differences and moves are shown as the draft has them (a moved provision once,
+  at the draft's position); a table before the ranked one lists the renamed terms and counts
+  what was left unmarked.  ``"all"`` marks every difference word by word, moved provisions
+  as ``w:moveFrom``/``w:moveTo`` inside their range markers.  Accepting all changes gives
+  the draft's paragraphs in either view; in the ``"all"`` view rejecting all gives the
+  precedent's.
 * **Issues list** (:func:`write_issues_list`): the negotiating table -- clause, the draft's
   position, the house position, severity, how common in the precedent set (when a library
   was used), decision, note -- as a Word table (.docx), a self-contained printable page
@@ -24,7 +32,8 @@ at :data:`CAUTION_PROPERTY`.
 Cost: the counter-draft is linear in the draft's XML; the redline is one
 ``difflib.SequenceMatcher`` over the paragraph keys (O(B^2) worst case for B paragraphs, near
 linear for similar documents) plus, per matched paragraph pair, its share of the review's word
-diff (``Pair.edits``: the outputs never diff the texts again); the issues list is linear in
+diff (``Pair.edits``) in the full view, or the substantive deviations' spans in the
+substantive view (the outputs never diff the texts again); the issues list is linear in
 the deviations times the length of their provisions' texts (each position scans its
 provision's sentences once).  ``benchmarks/bench_export.py`` measures them.
 
@@ -65,8 +74,13 @@ from .issues import (
 )
 from .redline import (
     REDLINE_BODY_HEADING,
+    REDLINE_BODY_HEADINGS,
+    REDLINE_DEFAULT_SHOW,
     REDLINE_END,
+    REDLINE_SHOW_CHOICES,
     REDLINE_TABLE_WIDTHS_CM,
+    REDLINE_TERMS_WIDTHS_CM,
+    RedlineShow,
     redline_body,
     redline_bytes,
     write_redline,
@@ -83,8 +97,13 @@ __all__ = [
     "POSITION_LEAD_WORDS",
     "POSITION_MAX_WORDS",
     "REDLINE_BODY_HEADING",
+    "REDLINE_BODY_HEADINGS",
+    "REDLINE_DEFAULT_SHOW",
     "REDLINE_END",
+    "REDLINE_SHOW_CHOICES",
     "REDLINE_TABLE_WIDTHS_CM",
+    "REDLINE_TERMS_WIDTHS_CM",
+    "RedlineShow",
     "CounterDraftPlan",
     "Excerpt",
     "IssueRow",

@@ -10,6 +10,7 @@ JSON lines over stdin/stdout:
     request  {"op": "inspect", "path": "/x/out.docx", "action": "none|accept|reject",
               "pdf": "/x/out.pdf" | null, "save_as": "/x/accepted.docx" | null}
     reply    {"ok": true, "redlines_before": 3, "redlines_after": 0,
+              "redlines": [{"type": "Insert", "author": "...", "text": "..." | null}],
               "body": [{"type": "paragraph", "text": "...", "label": "7.2" | null},
                        {"type": "table", "rows": [["cell", ...], ...]}],
               "comments": [{"author": "...", "content": "...", "anchor": "..."}],
@@ -151,8 +152,22 @@ class Office:
             out.append({
                 "type": r.getPropertyValue("RedlineType"),
                 "author": r.getPropertyValue("RedlineAuthor"),
+                "text": Office._redline_text(r),
             })
         return out
+
+    @staticmethod
+    def _redline_text(redline) -> str | None:
+        """The text a tracked change covers, as LibreOffice holds it (None if it cannot say):
+        a cursor from the change's start to its end."""
+        try:
+            start = redline.getPropertyValue("RedlineStart")
+            end = redline.getPropertyValue("RedlineEnd")
+            cursor = start.getText().createTextCursorByRange(start)
+            cursor.gotoRange(end, True)
+            return cursor.getString()
+        except Exception:
+            return None
 
     @staticmethod
     def _body(doc) -> list:
