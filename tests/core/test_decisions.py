@@ -31,7 +31,7 @@ from core.docx.compose import ComposeParagraph as CP
 from core.docx.compose import compose_docx
 from core.errors import CounterdraftError
 from core.review.termmap import TermOverride
-from tests.support.handmade import DRAFT, build_scenario
+from tests.support.handmade import DRAFT, PRECEDENT, build_scenario
 
 
 SCHEMAS = Path(__file__).resolve().parents[2] / "resources" / "schemas"
@@ -94,6 +94,62 @@ def test_moves_and_renamed_terms_can_only_be_accepted(scenario):
         with pytest.raises(CounterdraftError):
             decide(rf, d.id, "revert")
         assert decide(rf, d.id, "accept").decisions[-1].action == "accept"
+
+
+def test_formatting_punctuation_and_numbering_can_only_be_accepted(tmp_path):
+    """The counter-draft keeps the draft's own layout, punctuation and numbering: restoring
+    them is refused in one line that names the deviation by its number."""
+    precedent, draft = tmp_path / "precedent.docx", tmp_path / "draft.docx"
+    precedent.write_bytes(compose_docx(PRECEDENT))
+    changed = [CP(p.text.replace("Late payments carry", "LATE PAYMENTS carry").replace(
+        " a year above", " a year, above"), level=p.level, bold=p.bold, style=p.style) for p in PRECEDENT]
+    draft.write_bytes(compose_docx(changed))
+    rf = new_review_file(draft, precedent)
+    kinds = {d.category: d for d in rf.review.deviations}
+    assert {"formatting", "punctuation"} <= set(kinds)
+    for dev in (kinds["formatting"], kinds["punctuation"]):
+        for action, text in (("revert", None), ("amend", "whatever")):
+            with pytest.raises(CounterdraftError, match=rf"deviation {dev.rank}\b.*{dev.category} difference") as err:
+                decide(rf, dev.id, action, text=text)
+            assert "\n" not in str(err.value)
+        assert decide(rf, dev.id, "accept", note="Fine.").decisions[-1].action == "accept"
+
+
+@pytest.mark.parametrize(("text", "message"), [
+    ("forty\x07five days", r"control character \(U\+0007\)"),
+    ("forty-five\x00 days", r"control character \(U\+0000\)"),
+    ("forty-five days\nand more", "line break"),
+    ("x" * 100_001, "at most 100,000"),
+])
+def test_amend_wording_is_checked_on_entry(scenario, text, message):
+    """ECMA-376 parts are XML 1.0, which cannot carry C0 controls other than tab and line
+    ends (XML 1.0 §2.2); a line break starts a paragraph only when asked for."""
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path)
+    pay = _dev(rf.review, "replace", draft_text="sixty")
+    with pytest.raises(CounterdraftError, match=message) as err:
+        decide(rf, pay.id, "amend", text=text)
+    assert "\n" not in str(err.value)
+
+
+def test_line_breaks_in_amend_wording_are_taken_when_asked_for(scenario):
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path)
+    pay = _dev(rf.review, "replace", draft_text="sixty")
+    rf = decide(rf, pay.id, "amend", text="forty-five (45) days\r\nTime is of the essence.\n",
+                paragraphs=True)
+    assert rf.decisions[-1].text == "forty-five (45) days\nTime is of the essence."
+
+
+def test_a_hand_edited_decision_with_a_control_character_is_refused_on_load(scenario, tmp_path):
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path)
+    pay = _dev(rf.review, "replace", draft_text="sixty")
+    path = tmp_path / "review.json"
+    save_review_file(path, decide(rf, pay.id, "amend", text="forty-five (45) days"))
+    data = json.loads(path.read_text(encoding="utf-8"))
+    data["decisions"][0]["text"] = "forty\u0007five"
+    path.write_text(json.dumps(data), encoding="utf-8")
+    with pytest.raises(CounterdraftError, match="damaged review file.*not plain text") as err:
+        load_review_file(path)
+    assert "\n" not in str(err.value)
 
 
 def test_review_file_round_trip(scenario, tmp_path):

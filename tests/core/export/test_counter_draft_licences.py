@@ -266,3 +266,33 @@ def _blank():
     from core.model import Deviation
 
     return Deviation("v1", 1, 50, "substantive", "replace", None, None, "", "", ("planted",))
+
+
+def test_amend_wording_of_several_paragraphs_starts_new_paragraphs(rough_mpl, tmp_path):
+    """A line break the reviewer asked for (``decide --paragraphs``) cuts the paragraph as a
+    reviewer pressing Enter would: accepting gives the new paragraphs, rejecting joins them
+    again (LibreOffice over UNO, on mpl-2.0.LICENSE from licensedcode-data)."""
+    draft, review, rejected = rough_mpl
+    prov = next(p for p in review.draft.provisions if len(p.segments) == 1 and len(p.text) > 80)
+    seg = prov.segments[0]
+    span = (20, 40)
+    dev = dataclasses.replace(_blank(), draft_provision=prov.id, precedent_provision=prov.id,
+                              draft_text=prov.text[20:40], draft_text_span=span, precedent_text_span=span)
+    one = dataclasses.replace(review, deviations=(dev,))
+    words = "first new words\nA second paragraph.\nA third one, then"
+    data_bytes, _ = counter_draft_bytes(one, [Decision("v1", "amend", text=words, note="Split.")],
+                                        draft_path=str(draft), author=AUTHOR)
+    out = tmp_path / "paragraphs.docx"
+    out.write_bytes(data_bytes)
+    assert validate_docx(out) == []  # ECMA-376 Part 1 §17.13 markup
+    text = review.draft.blocks[seg.block].text
+    lines = words.split("\n")
+    expected = [b.text for b in review.draft.blocks]
+    expected[seg.block:seg.block + 1] = [text[:seg.start + 20] + lines[0], lines[1],
+                                         lines[2] + text[seg.start + 40:]]
+    office = libreoffice()
+    accepted = office.inspect(out, action="accept", pdf=None)
+    assert accepted.paragraphs == expected
+    # the note joins the other reviewer's comments already in the file
+    assert [c["content"] for c in accepted.comments].count("Split.") == 1
+    assert office.inspect(out, action="reject", pdf=None).paragraphs == rejected
