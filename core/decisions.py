@@ -165,11 +165,11 @@ def decide(rf: ReviewFile, deviation_id: str, action: str, *, text: str | None =
         raise CounterdraftError(f"--text goes with amend, not with {action}")
     if action != "accept" and dev.change == "move":
         raise CounterdraftError(
-            f"{deviation_id} is a moved provision; moving it back is not written as a tracked "
+            f"deviation {dev.rank} is a moved provision; moving it back is not written as a tracked "
             "change -- accept it, or amend the provision's words")
     if action != "accept" and dev.category == "term":
         raise CounterdraftError(
-            f"{deviation_id} is a renamed defined term; renaming it back everywhere is not "
+            f"deviation {dev.rank} is a renamed defined term; renaming it back everywhere is not "
             "written as tracked changes -- accept it (the counter-draft keeps the draft's names)")
     if note is not None and not note.strip():
         note = None

@@ -237,14 +237,14 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
         pprov = find_provision(precedent, dev.precedent_provision)
         where = clause_label(review, dev) or dev.id
         if dec.action != "accept" and (dev.category == "term" or dev.change == "move"):
-            notes.append(f"{dev.id} ({where}): a renamed term or a moved provision is not "
+            notes.append(f"deviation {dev.rank} ({where}): a renamed term or a moved provision is not "
                          "written as a tracked change; skipped")
             continue
 
         # -- a provision the draft left out -------------------------------------------
         if dev.change == "remove-provision" or (dprov is None and pprov is not None):
             if pprov is None:
-                notes.append(f"{dev.id} ({where}): provision not found; skipped")
+                notes.append(f"deviation {dev.rank} ({where}): provision not found; skipped")
                 continue
             anchor = _draft_anchor(review, pprov.id)
             if dec.action == "accept":
@@ -273,7 +273,7 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
             continue
 
         if dprov is None:
-            notes.append(f"{dev.id} ({where}): no draft provision to change; skipped")
+            notes.append(f"deviation {dev.rank} ({where}): no draft provision to change; skipped")
             continue
 
         # -- a provision the draft added ------------------------------------------------
@@ -281,7 +281,7 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
             provs = _subtree(draft, dprov, keep=lambda p: p.id not in in_precedent)
             blocks = sorted({b for p in provs for b in provision_blocks(draft, p, owners=d_owners)})
             if any(b in claimed or b in deleted_blocks for b in blocks):
-                notes.append(f"{dev.id} ({where}): overlaps another decision; skipped")
+                notes.append(f"deviation {dev.rank} ({where}): overlaps another decision; skipped")
                 continue
             for k, b in enumerate(blocks):
                 deletions.append(BlockDeletion(b, comment=note if k == 0 else None))
@@ -292,19 +292,19 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
         if dev.part == "heading" and dev.change in _WORD_CHANGES:
             result = _heading_change(review, dev, dec, dprov, pprov, to_draft_terms)
             if result is None:
-                notes.append(f"{dev.id} ({where}): the heading could not be located in the draft; skipped")
+                notes.append(f"deviation {dev.rank} ({where}): the heading could not be located in the draft; skipped")
             elif isinstance(result, BlockDeletion):
                 if result.block in deleted_blocks:
                     continue  # the same heading, already reverted by another decision
                 if result.block in claimed:
-                    notes.append(f"{dev.id} ({where}): overlaps another decision; skipped")
+                    notes.append(f"deviation {dev.rank} ({where}): overlaps another decision; skipped")
                     continue
                 deletions.append(BlockDeletion(result.block, comment=note))
                 deleted_blocks.add(result.block)
             elif result in seen_heading_edits:
                 continue  # the same heading, already reverted by another decision
             elif not free(result.block, result.start, result.end):
-                notes.append(f"{dev.id} ({where}): overlaps another decision; skipped")
+                notes.append(f"deviation {dev.rank} ({where}): overlaps another decision; skipped")
             else:
                 seen_heading_edits.add(result)
                 add_edit(dataclasses.replace(result, comment=note))
@@ -321,7 +321,7 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
         elif dec.action == "accept":
             d1, d2 = 0, len(dprov.text)  # a note on the provision as a whole
         else:
-            notes.append(f"{dev.id} ({where}): the review gives no place for this change; skipped")
+            notes.append(f"deviation {dev.rank} ({where}): the review gives no place for this change; skipped")
             continue
         if dec.action == "accept":
             replacement = None
@@ -340,14 +340,14 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
             if blocks:  # a provision without words of its own (a heading): note on it
                 ranges = [(blocks[0], 0, len(draft.blocks[blocks[0]].text))]
         if not ranges:
-            notes.append(f"{dev.id} ({where}): its words could not be located in the draft; skipped")
+            notes.append(f"deviation {dev.rank} ({where}): its words could not be located in the draft; skipped")
             continue
         if replacement is None:
             b, s, e = ranges[0]
             if free(b, s, e):
                 add_edit(BlockEdit(b, s, e, comment=note, tracked=False))
             else:
-                notes.append(f"{dev.id} ({where}): its note overlaps another decision; skipped")
+                notes.append(f"deviation {dev.rank} ({where}): its note overlaps another decision; skipped")
             continue
         parts = replacement.split("\n")
         if len(parts) != len(ranges):
@@ -359,7 +359,7 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
             s, e, text = _tidy_spaces(draft.blocks[b].text, s, e, text)
             planned.append(BlockEdit(b, s, e, text, comment=note if not planned else None))
         if not all(free(x.block, x.start, x.end) for x in planned):
-            notes.append(f"{dev.id} ({where}): overlaps another decision; skipped")
+            notes.append(f"deviation {dev.rank} ({where}): overlaps another decision; skipped")
             continue
         for x in planned:
             add_edit(x)
