@@ -336,7 +336,7 @@ def _side(prov: Provision | None, span: tuple[int, int] | None, verbatim: str,
     """One side's quote of a word-level deviation, and its exact changed words (None for a
     side without the provision).  Without a span (a review built by hand), the side's
     verbatim words are looked up in the text, else *at* (the other side's change mapped
-    through the pair's diff) places it, else the side's own words stand for it."""
+    through the pair's diff) places it, else the provision's opening words stand for it."""
     if prov is None:
         return None, verbatim
     text = prov.text
@@ -346,8 +346,8 @@ def _side(prov: Provision | None, span: tuple[int, int] | None, verbatim: str,
             span = (i, i + len(verbatim))
     if span is None and at is not None:
         span = (at, at)
-    if span is None:
-        return (_opening(verbatim) if verbatim.strip() else None), verbatim
+    if span is None:  # nothing places the change: the provision's start stands for it
+        return _opening(text), verbatim
     span = _whole_words(text, span)
     return _snippet(text, span), text[span[0]:span[1]]
 
@@ -526,36 +526,47 @@ def _checked_order(order: str) -> str:
     return order
 
 
-def clause_order(review: Review) -> dict[str, tuple[float, int, int, int]]:
-    """Deviation id -> its place in the draft's clause order: the draft provision's position
-    (a provision only the precedent has sits after the draft provision aligned with the
-    precedent provision before it -- where it would have been), then the heading before the
-    provision's words and the words by their place in the text, then the rank.  A deviation
-    without a provision (the whole document) comes first.  O(provisions + deviations)."""
-    dpos = {p.id: float(i) for i, p in enumerate(review.draft.provisions)}
+def clause_order(review: Review) -> dict[str, tuple[float, int, int, int, int]]:
+    """Deviation id -> its place in the draft's clause order: the draft provision's position.
+    A provision only the precedent has sits where it would have been: after the draft
+    provision aligned with the last precedent provision before it and after the draft's own
+    additions that follow that one, i.e. just before the next provision both documents share
+    (several such in the precedent's order).  Within a provision the heading and the
+    provision as a whole come before its words, the words by their place in the text; ties
+    by rank.  A deviation without a provision (the whole document) comes first.
+    O(provisions + deviations)."""
+    provisions = review.draft.provisions
+    dpos = {p.id: i for i, p in enumerate(provisions)}
     aligned = {pair.precedent: pair.draft for pair in review.pairs
                if pair.draft is not None and pair.precedent is not None}
-    ppos: dict[str, float] = {}
-    last = -0.5
-    for p in review.precedent.provisions:
+    shared = {d for d in aligned.values() if d in dpos}
+    # after[j]: the last position of the run of draft-only provisions from position j on
+    # (j - 1 when the provision at j is shared or j is the end)
+    after = [0] * (len(provisions) + 1)
+    after[-1] = len(provisions) - 1
+    for j in range(len(provisions) - 1, -1, -1):
+        after[j] = after[j + 1] if provisions[j].id not in shared else j - 1
+    ppos: dict[str, tuple[float, int]] = {}
+    last = -1
+    for k, p in enumerate(review.precedent.provisions):
         d = aligned.get(p.id)
         if d is not None and d in dpos:
             last = dpos[d]
-            ppos[p.id] = last
+            ppos[p.id] = (float(last), -1)
         else:
-            ppos[p.id] = last + 0.5
+            ppos[p.id] = (after[last + 1] + 0.5, k)
     out = {}
     for dev in review.deviations:
         if dev.draft_provision in dpos:
-            at = dpos[dev.draft_provision]
+            at, within = float(dpos[dev.draft_provision]), -1
             offset = dev.draft_span[0] if dev.draft_span is not None else 0
         elif dev.precedent_provision in ppos:
-            at = ppos[dev.precedent_provision]
+            at, within = ppos[dev.precedent_provision]
             offset = dev.precedent_span[0] if dev.precedent_span is not None else 0
         else:
-            at, offset = -1.0, 0
+            at, within, offset = -1.0, -1, 0
         part = 1 if dev.part == "text" else 0  # the heading and the whole provision first
-        out[dev.id] = (at, part, offset, dev.rank)
+        out[dev.id] = (at, within, part, offset, dev.rank)
     return out
 
 
@@ -668,10 +679,12 @@ def issues_list_csv(review: Review, decisions: Sequence[Decision] = (), *,
 #: Relative column widths of the issues-list table, in centimetres of the landscape A4 text
 #: width (24.7 cm; scaled exactly to it).  The narrow columns hold their longest word on one
 #: line at 9 pt in a wide serif (DejaVu Serif, LibreOffice's stand-in when Liberation Serif is
-#: missing; measured in LibreOffice's PDF of the table with pdftotext -bbox: bold "No." 0.60
-#: cm, "Decision" 1.53 cm, "common" 1.36 cm, plain "undecided" 1.67 cm, "agreements" 1.72
-#: cm) plus the cell margins (2 x 0.19 cm) and some slack; "What changed" gets the most room,
-#: "Why it matters" the next.  Without the frequency column the others share its width.
+#: missing; measured in LibreOffice's PDF of the demo's table with pdftotext -bbox: bold "No."
+#: 0.61 cm, "Decision" 1.53 cm, "common" 1.52 cm, plain "undecided" 1.67 cm, "agreements"
+#: 1.90 cm, "Confidentiality" 2.37 cm) plus the cell margins (2 x 0.19 cm) and some slack;
+#: "What changed" gets the most room, "Why it matters" the next, "How common" enough that
+#: its sentence takes three lines, not five.  Without the frequency column the others share
+#: its width.
 ISSUE_WIDTHS_CM = {_NUMBER_COLUMN: 1.1, "Clause": 3.2, _WHAT_COLUMN: 7.2, _WHY_COLUMN: 4.4,
                    _FREQUENCY_COLUMN: 3.4, "Decision": 2.3, "Note": 3.1}
 
