@@ -115,23 +115,30 @@ def _open_review_file(path: str):  # noqa: ANN202
     return record
 
 
+def _deviation_by_number(review, given: str, path: str):  # noqa: ANN001, ANN202
+    """The deviation *given* names: its number (the rank every output shows, e.g. "3") or
+    its internal id (e.g. "v12", which saved scripts use)."""
+    devs = review.deviations
+    if given.isdigit():
+        dev = next((d for d in devs if d.rank == int(given)), None)
+    else:
+        dev = next((d for d in devs if d.id == given), None)
+    if dev is None:
+        numbers = f" (numbers run 1 to {len(devs)})" if devs else " (this review has no deviation)"
+        raise CounterdraftError(f"no deviation {given}{numbers}", path=path)
+    return dev
+
+
 def _cmd_decide(args: argparse.Namespace) -> int:
     from .decisions import clause_label, decide, save_review_file
 
     record = _open_review_file(args.review_file)
-    dev_id = args.deviation
-    if dev_id.isdigit():  # a rank, as the review table shows it
-        by_rank = {d.rank: d.id for d in record.review.deviations}
-        if int(dev_id) not in by_rank:
-            raise CounterdraftError(f"no deviation ranked {dev_id} (ranks run 1 to {len(by_rank)})",
-                                    path=args.review_file)
-        dev_id = by_rank[int(dev_id)]
-    record = decide(record, dev_id, args.action, text=args.text, note=args.note,
+    dev = _deviation_by_number(record.review, args.deviation, args.review_file)
+    record = decide(record, dev.id, args.action, text=args.text, note=args.note,
                     paragraphs=args.paragraphs)
     save_review_file(args.review_file, record)
-    dev = next(d for d in record.review.deviations if d.id == dev_id)
     where = clause_label(record.review, dev)
-    print(f"{dev_id} (rank {dev.rank}{f', {where}' if where else ''}): {args.action} recorded "
+    print(f"Deviation {dev.rank}{f', {where}' if where else ''}: {args.action} recorded "
           f"in {args.review_file}")
     return 0
 
@@ -166,7 +173,8 @@ def _cmd_export(args: argparse.Namespace) -> int:
 
         write_issues_list(record.review, args.issues_list, decisions=record.decisions,
                           author=author, inputs=inputs,
-                          include=CATEGORIES if args.issues_all else ISSUES_DEFAULT_INCLUDE)
+                          include=CATEGORIES if args.issues_all else ISSUES_DEFAULT_INCLUDE,
+                          order=args.order)
         print(f"issues list written to {args.issues_list}")
     return 0
 
@@ -176,6 +184,16 @@ DEMO_OUTPUT = DEMO_DIR.parent / "demo_output"
 #: How many of the top-ranked deviations the demo reverts, to show a counter-draft.  These are
 #: illustrative decisions made by the demo script, not recommendations.
 DEMO_REVERTS = 3
+
+
+def _numbers(devs) -> str:  # noqa: ANN001
+    """"deviations 1, 2 and 3": the numbers every output shows, in a sentence."""
+    nums = [str(d.rank) for d in devs]
+    if not nums:
+        return "none"
+    if len(nums) == 1:
+        return f"deviation {nums[0]}"
+    return f"deviations {', '.join(nums[:-1])} and {nums[-1]}"
 
 
 def _cmd_demo(args: argparse.Namespace) -> int:
@@ -223,14 +241,14 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     for key in ("issues list (printable page)", "issues list (Word table)"):
         write_issues_list(record.review, written[key], decisions=record.decisions,
                           author=author, inputs=inputs)
-    print(f"As an illustration, not a recommendation, the demo reverted the {len(top)} highest-ranked")
-    print(f"substantive deviations ({', '.join(d.id for d in top)}). Written:")
+    print(f"As an illustration, not a recommendation, the demo reverted {_numbers(top)},")
+    print(f"the {len(top)} highest-ranked substantive ones. Written:")
     for label, path in written.items():
         print(f"  {label:34} {path}")
     print()
     print("Next steps on your own files (from this checkout, the command is .venv/bin/counterdraft):")
     print("  counterdraft review DRAFT.docx --against PRECEDENT.docx [--library FOLDER] --save REVIEW.json")
-    print("  counterdraft decide REVIEW.json ID accept|revert|amend [--text ...] [--note ...]")
+    print("  counterdraft decide REVIEW.json NUMBER accept|revert|amend [--text ...] [--note ...]")
     print("  counterdraft export REVIEW.json --counter-draft OUT.docx --issues-list OUT.html")
     return 0
 
@@ -264,7 +282,9 @@ def build_parser() -> argparse.ArgumentParser:
 
     p = sub.add_parser("decide", help="record a decision on one deviation in a review file")
     p.add_argument("review_file", metavar="REVIEW.json")
-    p.add_argument("deviation", metavar="ID", help="deviation id (e.g. v12) or its rank in the review table (e.g. 3)")
+    p.add_argument("deviation", metavar="NUMBER",
+                   help="the deviation's number, as the review table shows it (e.g. 3); "
+                        "its internal id (e.g. v12) is accepted too")
     p.add_argument("action", choices=("accept", "revert", "amend"),
                    help="accept the draft's words, revert to the precedent's, or amend")
     p.add_argument("--text", help="the new wording (amend only)")
@@ -284,6 +304,10 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--issues-list", metavar="OUT", help="the issues list as .docx, .html or .csv")
     p.add_argument("--issues-all", action="store_true",
                    help="list formatting, numbering and punctuation differences in the issues list too")
+    from .export.issues import ISSUE_ORDERS, ISSUES_DEFAULT_ORDER
+
+    p.add_argument("--order", choices=ISSUE_ORDERS, default=ISSUES_DEFAULT_ORDER,
+                   help="rows of the issues list in the draft's clause order (default) or by rank")
     p.add_argument("--author", help="author of the tracked changes (default: your user name)")
     p.set_defaults(func=_cmd_export)
 

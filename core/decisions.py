@@ -288,14 +288,14 @@ def remap_decisions(decisions: Sequence[Decision], review: Review) -> tuple[tupl
                 best = (score, dev.id)
         where = old.get("draft_clause") or old.get("precedent_clause") or dec.deviation
         if best is None:
-            notes.append(f"decision '{dec.action}' on {dec.deviation} ({where}) no longer applies: "
+            notes.append(f"decision '{dec.action}' on {where} no longer applies: "
                          "those words changed; decide again")
             continue
         taken.add(best[1])
         dev = next(d for d in review.deviations if d.id == best[1])
         kept.append(dataclasses.replace(dec, deviation=dev.id, match=keys[dev.id]))
         if dev.id != dec.deviation:
-            notes.append(f"decision '{dec.action}' on {dec.deviation} ({where}) now applies to {dev.id}")
+            notes.append(f"decision '{dec.action}' on {where} now applies to deviation {dev.rank}")
     return tuple(kept), notes
 
 

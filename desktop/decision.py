@@ -214,8 +214,8 @@ def deviation_html(review: Review, d: Deviation) -> str:
     change = CHANGE_NAMES.get(d.change, d.change)
     parts = [
         f"<p style='margin:0'><b style='font-size:large'>{_esc(clause_label(review, d))}</b></p>",
-        f"<p style='margin:2px 0 6px 0;color:{MUTED_INK}'>Rank {d.rank} \u00b7 severity {d.severity} of 100 \u00b7 "
-        f"{_esc(kind)} \u00b7 {_esc(change)} \u00b7 reference {d.id}</p>",
+        f"<p style='margin:2px 0 6px 0;color:{MUTED_INK}'>No. {d.rank} \u00b7 severity {d.severity} of 100 \u00b7 "
+        f"{_esc(kind)} \u00b7 {_esc(change)}</p>",
     ]
     if d.reasons:
         parts.append("<p style='margin:0'><b>Why it matters</b></p><ul style='margin-top:0'>"

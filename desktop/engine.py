@@ -278,9 +278,11 @@ def open_review_file(path: str, report: Report, cancelled: IsCancelled, *, libra
                    notes=tuple(record.notes))
 
 
-def export(kind: str, path: str, report: Report, cancelled: IsCancelled, *, record: Any) -> tuple[str, tuple[str, ...]]:
-    """Write the counter-draft, the comparison redline or the issues list of *record*.
-    Returns the path and the engine's notes (e.g. decisions it could not write)."""
+def export(kind: str, path: str, report: Report, cancelled: IsCancelled, *, record: Any,
+           order: str = "clause") -> tuple[str, tuple[str, ...]]:
+    """Write the counter-draft, the comparison redline or the issues list of *record* (its
+    rows in *order*: ``"clause"`` or ``"rank"``).  Returns the path and the engine's notes
+    (e.g. decisions it could not write)."""
     from core import export as ex
 
     report(0, None, f"Writing {Path(path).name}")
@@ -293,7 +295,8 @@ def export(kind: str, path: str, report: Report, cancelled: IsCancelled, *, reco
         # The export dialog has no options: the window writes the default (substantive) view.
         ex.write_redline(record.review, path, inputs=inputs, show=ex.REDLINE_DEFAULT_SHOW)
     elif kind == "issues-list":
-        ex.write_issues_list(record.review, path, decisions=record.decisions, inputs=inputs)
+        ex.write_issues_list(record.review, path, decisions=record.decisions, inputs=inputs,
+                             order=order)
     else:
         raise ValueError(f"unknown export {kind!r}")
     return path, notes

@@ -96,10 +96,11 @@ class _RowsModel(QAbstractTableModel):
 
 
 class DeviationTableModel(_RowsModel):
-    """The ranked deviations of a review, one row each, in the engine's rank order."""
+    """The ranked deviations of a review, one row each, in the engine's rank order.  The
+    first column is each deviation's number -- its rank, the number every output shows."""
 
     RANK, SEVERITY, CLAUSE, KIND, SUMMARY, COMMON, DECISION = range(7)
-    HEADERS = ("Rank", "Severity", "Clause", "Kind", "What changed", "How common", "Decision")
+    HEADERS = ("No.", "Severity", "Clause", "Kind", "What changed", "How common", "Decision")
 
     def __init__(self, parent: Any = None) -> None:
         super().__init__(parent)
@@ -218,7 +219,8 @@ class DeviationTableModel(_RowsModel):
 
 
 _HEADER_TIPS = (
-    "Order by severity, most severe first (ties in draft order)",
+    "The deviation's number: its rank by severity, most severe first (ties in draft order), "
+    "as the issues list and the command line show it",
     "0\u2013100, from the firm's severity rules",
     "Clause by the draft's numbering",
     "Substantive, defined term, numbering, formatting or punctuation",

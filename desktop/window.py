@@ -210,7 +210,10 @@ class MainWindow(QMainWindow):
         self.act_export_cd = A("Counter-draft (.docx, tracked changes)\u2026",
                                lambda: self._ask_export("counter-draft"), key="Ctrl+Shift+E")
         self.act_export_rl = A("Comparison redline (.docx)\u2026", lambda: self._ask_export("redline"))
-        self.act_export_il = A("Issues list (.docx, .html or .csv)\u2026", lambda: self._ask_export("issues-list"))
+        self.act_export_il = A("Issues list in clause order (.docx, .html or .csv)\u2026",
+                               lambda: self._ask_export("issues-list"))
+        self.act_export_il_rank = A("Issues list by rank (.docx, .html or .csv)\u2026",
+                                    lambda: self._ask_export("issues-list", order="rank"))
         self.act_quit = A("Quit", self.close, key=QKeySequence.StandardKey.Quit)
 
         self.act_next = A("Next deviation", lambda: self._step(+1), key=KEYS["next"])
@@ -248,7 +251,7 @@ class MainWindow(QMainWindow):
         m.addAction(self.act_save)
         m.addAction(self.act_save_as)
         ex = m.addMenu("Export")
-        for a in (self.act_export_cd, self.act_export_rl, self.act_export_il):
+        for a in (self.act_export_cd, self.act_export_rl, self.act_export_il, self.act_export_il_rank):
             ex.addAction(a)
         m.addSeparator()
         m.addAction(self.act_quit)
@@ -327,7 +330,7 @@ class MainWindow(QMainWindow):
             for a in (self.act_open, self.act_library, self.act_open_review):
                 a.setEnabled(not busy)
             for a in (self.act_save, self.act_save_as, self.act_export_cd, self.act_export_rl,
-                      self.act_export_il, self.export_button_action):
+                      self.act_export_il, self.act_export_il_rank, self.export_button_action):
                 a.setEnabled(has_review and not busy)
 
     def _refresh_title(self) -> None:
@@ -604,12 +607,13 @@ class MainWindow(QMainWindow):
         self._status(f"Saved {path}")
         self.fileWritten.emit(str(path))
 
-    def export(self, kind: str, path: str) -> None:
-        """Write the counter-draft, the comparison redline or the issues list to *path*."""
+    def export(self, kind: str, path: str, *, order: str = "clause") -> None:
+        """Write the counter-draft, the comparison redline or the issues list to *path* (the
+        issues list's rows in *order*: ``"clause"``, the draft's order, or ``"rank"``)."""
         ws = self.ws
         if ws.review is None or ws.inputs is None:
             return
-        work = functools.partial(engine.export, kind, str(path), record=ws.record)
+        work = functools.partial(engine.export, kind, str(path), record=ws.record, order=order)
 
         def done(result: tuple[str, tuple[str, ...]]) -> None:
             written, notes = result
@@ -638,7 +642,7 @@ class MainWindow(QMainWindow):
         if path:
             self.save_review(path)
 
-    def _ask_export(self, kind: str) -> None:
+    def _ask_export(self, kind: str, *, order: str = "clause") -> None:
         if self.ws.inputs is None:
             return
         stem = Path(self.ws.inputs.draft)
@@ -651,7 +655,7 @@ class MainWindow(QMainWindow):
         start, filt = suggestions[kind]
         path, _ = QFileDialog.getSaveFileName(self, "Export", str(start), filt)
         if path:
-            self.export(kind, path)
+            self.export(kind, path, order=order)
 
     def _ask_library(self) -> None:
         path = QFileDialog.getExistingDirectory(self, "Folder of past agreements (precedent set)")

@@ -15,17 +15,18 @@
   as ``w:moveFrom``/``w:moveTo`` inside their range markers.  Accepting all changes gives
   the draft's paragraphs in either view; in the ``"all"`` view rejecting all gives the
   precedent's.
-* **Issues list** (:func:`write_issues_list`): the negotiating table -- clause, the draft's
-  position, the house position, severity, how common in the precedent set (when a library
-  was used), decision, note -- as a Word table (.docx), a self-contained printable page
-  (.html) or CSV (.csv), by the output's suffix.  Each position quotes the sentence of that
-  side's provision holding the change (bounded by :data:`POSITION_MAX_WORDS`) with the
-  changed words in bold (in the CSV between :data:`CSV_MARK_OPEN` and
-  :data:`CSV_MARK_CLOSE`, the exact words in columns of their own).  By default it lists the
-  substantive deviations, then the renamed defined terms as a short group for information
+* **Issues list** (:func:`write_issues_list`): the table a lawyer circulates -- each
+  deviation's number (its rank), the clause, what changed (the precedent's words → the
+  draft's, the changed words in bold), why it matters, how common the draft's wording is in
+  the precedent set (when a library was used), decision, note -- as a Word table (.docx), a
+  self-contained printable page (.html) or a plain CSV table (.csv, with each side's exact
+  changed words in columns of their own), by the output's suffix; rows in the draft's clause
+  order or by rank (:data:`ISSUE_ORDERS`).  By default it lists the substantive deviations,
+  then the renamed defined terms as a short group for information
   (:data:`ISSUES_DEFAULT_INCLUDE`).
 
-Every output carries :data:`core.CAUTION` and is written atomically; an output path equal
+Every output but the CSV carries :data:`core.CAUTION` (the command line and the desktop app
+show it whenever they write one) and is written atomically; an output path equal
 to one of the inputs is refused.  Where the caution goes in the counter-draft is explained
 at :data:`CAUTION_PROPERTY`.
 
@@ -34,7 +35,7 @@ Cost: the counter-draft is linear in the draft's XML; the redline is one
 linear for similar documents) plus, per matched paragraph pair, its share of the review's word
 diff (``Pair.edits``) in the full view, or the substantive deviations' spans in the
 substantive view (the outputs never diff the texts again); the issues list is linear in
-the deviations times the length of their provisions' texts (each position scans its
+the deviations times the length of their provisions' texts (each quote scans its
 provision's sentences once).  ``benchmarks/bench_export.py`` measures them.
 
 The package has one module per output (:mod:`.counter_draft`, :mod:`.redline`,
@@ -56,16 +57,17 @@ from .counter_draft import (
     write_counter_draft,
 )
 from .issues import (
-    CSV_MARK_CLOSE,
-    CSV_MARK_OPEN,
+    CHANGE_CONTEXT_WORDS,
+    CHANGE_MAX_WORDS,
     ISSUE_COLUMNS,
     ISSUE_CSV_COLUMNS,
+    ISSUE_ORDERS,
     ISSUE_WIDTHS_CM,
     ISSUES_DEFAULT_INCLUDE,
-    POSITION_LEAD_WORDS,
-    POSITION_MAX_WORDS,
+    ISSUES_DEFAULT_ORDER,
     Excerpt,
     IssueRow,
+    clause_order,
     issue_rows,
     issues_list_csv,
     issues_list_docx,
@@ -88,14 +90,14 @@ from .redline import (
 
 __all__ = [
     "CAUTION_PROPERTY",
-    "CSV_MARK_CLOSE",
-    "CSV_MARK_OPEN",
+    "CHANGE_CONTEXT_WORDS",
+    "CHANGE_MAX_WORDS",
     "ISSUES_DEFAULT_INCLUDE",
+    "ISSUES_DEFAULT_ORDER",
     "ISSUE_COLUMNS",
     "ISSUE_CSV_COLUMNS",
+    "ISSUE_ORDERS",
     "ISSUE_WIDTHS_CM",
-    "POSITION_LEAD_WORDS",
-    "POSITION_MAX_WORDS",
     "REDLINE_BODY_HEADING",
     "REDLINE_BODY_HEADINGS",
     "REDLINE_DEFAULT_SHOW",
@@ -108,6 +110,7 @@ __all__ = [
     "Excerpt",
     "IssueRow",
     "block_owners",
+    "clause_order",
     "counter_draft_bytes",
     "default_author",
     "issue_rows",

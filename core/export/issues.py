@@ -1,4 +1,18 @@
-"""The issues list: the negotiating table as .docx, .html or .csv."""
+"""The issues list: the table a lawyer circulates, as .docx, .html or .csv.
+
+One row per deviation shown, seven columns (:data:`ISSUE_COLUMNS`): the deviation's number
+(its rank at review time, :attr:`core.model.Deviation.rank` -- the number the review table,
+``counterdraft decide`` and the desktop window use), the clause, what changed (the
+precedent's words → the draft's, a few words either side, the changed words in bold), why it
+matters (the deviation's reasons), how common the draft's wording is in the firm's past
+agreements (only when a precedent set was used), the decision and the note.  Rows follow the
+draft's clause order (``order="clause"``, the default) or the rank (``order="rank"``); the
+renamed defined terms close the table as a group of their own either way.
+
+The CSV is a plain table for spreadsheets: the header row, then one row per issue, with the
+exact changed words of each side in two more columns at the end.  The .docx and the HTML
+open with :data:`core.CAUTION` and explain the figures in notes under the table.
+"""
 
 
 import bisect
@@ -8,18 +22,19 @@ import html
 import io
 import os
 import re
-from collections.abc import Iterable, Sequence
+from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
 from .. import CAUTION, __version__
 from ..decisions import Decision
 from ..fileio import atomic_write_bytes, atomic_write_text
-from ..labels import clause_label, find_provision
+from ..labels import clause_label, find_provision, full_number
 from ..model import (
     CATEGORIES,
     Deviation,
     Edit,
+    Frequency,
     Provision,
     Review,
 )
@@ -33,15 +48,17 @@ from .common import (
 )
 
 __all__ = [
-    "CSV_MARK_CLOSE",
-    "CSV_MARK_OPEN",
+    "CHANGE_CONTEXT_WORDS",
+    "CHANGE_MAX_WORDS",
     "Excerpt",
+    "ISSUES_DEFAULT_INCLUDE",
+    "ISSUES_DEFAULT_ORDER",
     "ISSUE_COLUMNS",
     "ISSUE_CSV_COLUMNS",
+    "ISSUE_ORDERS",
     "ISSUE_WIDTHS_CM",
     "IssueRow",
-    "POSITION_LEAD_WORDS",
-    "POSITION_MAX_WORDS",
+    "clause_order",
     "issue_rows",
     "issues_list_csv",
     "issues_list_docx",
@@ -50,10 +67,19 @@ __all__ = [
 ]
 
 
-ISSUE_COLUMNS = ("Ref", "Clause", "Draft position", "House position", "Severity",
-                 "How common in the precedent set", "Decision", "Note")
-
-
+_NUMBER_COLUMN = "No."
+_WHAT_COLUMN = "What changed"
+_WHY_COLUMN = "Why it matters"
+_FREQUENCY_COLUMN = "How common"
+#: The table's columns (.docx and HTML), in order; without a precedent set the "How common"
+#: column is left out.
+ISSUE_COLUMNS = (_NUMBER_COLUMN, "Clause", _WHAT_COLUMN, _WHY_COLUMN, _FREQUENCY_COLUMN,
+                 "Decision", "Note")
+_PRECEDENT_WORDS_COLUMN = "Precedent's changed words"
+_DRAFT_WORDS_COLUMN = "Draft's changed words"
+#: The CSV's columns: the table's, then the exact changed words of each side, so that a
+#: spreadsheet can filter and sort on them.
+ISSUE_CSV_COLUMNS = (*ISSUE_COLUMNS, _PRECEDENT_WORDS_COLUMN, _DRAFT_WORDS_COLUMN)
 
 #: Deviation categories the issues list shows unless asked for more: what a negotiator needs
 #: -- the substantive deviations, and the renamed defined terms as a short informational group
@@ -61,35 +87,28 @@ ISSUE_COLUMNS = ("Ref", "Clause", "Draft position", "House position", "Severity"
 #: (``include=CATEGORIES`` or ``counterdraft export --issues-all`` shows them).
 ISSUES_DEFAULT_INCLUDE: tuple[str, ...] = ("substantive", "term")
 
-#: Most words a position quotes.  A position is the sentence that holds the change; a longer
-#: sentence is cut to this many words around the change, with "…" where it was cut, and an
-#: added or removed provision shows its first sentence(s) up to this many words.  50 words are
-#: some six or seven lines of the issues list's position column (5.6 cm at 9 pt) -- a
-#: clause-sized excerpt a negotiator reads at a glance (common practice, no source).
-POSITION_MAX_WORDS = 50
-#: Words of a long sentence's start kept before a cut in its middle ("The Vendor's total
-#: liability to the Client, whether … shall not exceed …"): the subject and its verb usually
-#: sit there, and a position without them does not say whose obligation it is (common
-#: practice, no source).
-POSITION_LEAD_WORDS = 8
-#: Marks around the changed words inside a position in the CSV (plain text, no bold).  Not
-#: square brackets: drafts and precedents use them for placeholders and open points ("[DATE]"
-#: in the demo precedent), so a bracket would read as the agreement's own (common practice,
-#: no source).  Braces are plain ASCII -- any spreadsheet shows them -- and agreements hardly
-#: use them.  The exact changed words are in columns of their own too.
-CSV_MARK_OPEN, CSV_MARK_CLOSE = "{", "}"
+#: Row orders: ``"clause"`` follows the draft (a provision the draft left out sits where it
+#: would have been), ``"rank"`` the review's ranking by severity.
+ISSUE_ORDERS: tuple[str, ...] = ("clause", "rank")
+#: Issues lists are usually read alongside the agreement, clause by clause (common practice,
+#: no source); the rank stays visible as each row's number.
+ISSUES_DEFAULT_ORDER = "clause"
 
-_FREQUENCY_COLUMN = "How common in the precedent set"
-_DRAFT_WORDS_COLUMN = "Draft's changed words"
-_HOUSE_WORDS_COLUMN = "House's changed words"
-#: The CSV's columns: the table's, with the exact changed words of each side after the two
-#: positions (a spreadsheet can filter and sort on them; its cells cannot show bold).
-ISSUE_CSV_COLUMNS = ("Ref", "Clause", "Draft position", "House position", _DRAFT_WORDS_COLUMN,
-                     _HOUSE_WORDS_COLUMN, "Severity", _FREQUENCY_COLUMN, "Decision", "Note")
+#: Words quoted on each side of the changed words in "What changed", within their sentence:
+#: enough to say where the change sits ("within thirty (30) days of the"), few enough that
+#: both sides fit a few lines of the column (common practice, no source).
+CHANGE_CONTEXT_WORDS = 3
+#: Most changed words quoted per side, and most words quoted from an added or removed
+#: provision; "…" marks the cut.  Twenty words are two or three lines of the column (7 cm at
+#: 9 pt); the CSV's last two columns carry every changed word.
+CHANGE_MAX_WORDS = 20
 
 _ELLIPSIS = "\u2026"
-_NO_PROVISION = "(no such provision)"
-_NO_HEADING = "(no heading)"
+#: Between the precedent's words and the draft's: the draft's start a line of their own
+#: (a new paragraph of the cell in the .docx, a line break in the HTML and inside the CSV
+#: cell), so the two quotes read one above the other.
+_ARROW = "\n\u2192 "
+_OPEN_QUOTE, _CLOSE_QUOTE = "\u201c", "\u201d"
 _NO_TEXT = "(no text)"
 #: Abbreviations whose full stop does not end a sentence (lower case, without the stop);
 #: single letters (initials) are treated alike (common practice, no source).
@@ -105,20 +124,11 @@ _WORD = re.compile(r"\S+")
 
 @dataclass(frozen=True, slots=True)
 class Excerpt:
-    """Words quoted from one side, with the changed words at ``marks`` (offsets into
-    ``text``, shown in bold in the .docx and the HTML, between braces in the CSV)."""
+    """Words quoted from the agreements, with the changed words at ``marks`` (offsets into
+    ``text``; bold in the .docx and the HTML)."""
 
     text: str
     marks: tuple[tuple[int, int], ...] = ()
-
-    def marked(self, open_: str = CSV_MARK_OPEN, close: str = CSV_MARK_CLOSE) -> str:
-        """The text with *open_* and *close* around each marked stretch."""
-        out, pos = [], 0
-        for a, b in self.marks:
-            out += [self.text[pos:a], open_, self.text[a:b], close]
-            pos = b
-        out.append(self.text[pos:])
-        return "".join(out)
 
     def pieces(self) -> list[tuple[str, bool]]:
         """(text, marked) pieces in order."""
@@ -135,33 +145,42 @@ class Excerpt:
 
 @dataclass(frozen=True, slots=True)
 class IssueRow:
-    """One row of the issues list.  ``draft_position``/``house_position`` are each side's
-    words in context as plain text (see :data:`POSITION_MAX_WORDS`), the changed words at
-    ``draft_marks``/``house_marks``; ``draft_words``/``house_words`` are the exact changed
-    words (empty on the side that has none)."""
+    """One row of the issues list.  ``number`` is the deviation's rank (what the reader
+    sees); ``ref`` its internal id (for matching, never shown).  ``what_changed`` is plain
+    text with the changed words at ``what_changed_marks``; ``precedent_words`` /
+    ``draft_words`` are the exact changed words of each side (empty on a side without)."""
 
+    number: int
     ref: str
-    rank: int
     clause: str
-    draft_position: str
-    house_position: str
-    severity: int
+    what_changed: str
+    why: str
     frequency: str | None
     decision: str
     note: str
-    draft_marks: tuple[tuple[int, int], ...] = ()
-    house_marks: tuple[tuple[int, int], ...] = ()
+    what_changed_marks: tuple[tuple[int, int], ...] = ()
+    precedent_words: str = ""
     draft_words: str = ""
-    house_words: str = ""
     category: str = "substantive"
 
     @property
-    def draft_excerpt(self) -> Excerpt:
-        return Excerpt(self.draft_position, self.draft_marks)
+    def change_excerpt(self) -> Excerpt:
+        return Excerpt(self.what_changed, self.what_changed_marks)
 
-    @property
-    def house_excerpt(self) -> Excerpt:
-        return Excerpt(self.house_position, self.house_marks)
+    def cells(self, columns: Sequence[str]) -> list[str]:
+        """The row's plain-text cells for *columns* (names from :data:`ISSUE_CSV_COLUMNS`)."""
+        values = {
+            _NUMBER_COLUMN: str(self.number), "Clause": self.clause,
+            _WHAT_COLUMN: self.what_changed, _WHY_COLUMN: self.why,
+            _FREQUENCY_COLUMN: self.frequency or "", "Decision": self.decision, "Note": self.note,
+            _PRECEDENT_WORDS_COLUMN: self.precedent_words, _DRAFT_WORDS_COLUMN: self.draft_words,
+        }
+        return [values[c] for c in columns]
+
+
+# --------------------------------------------------------------------------------------
+# Quoting the changed words
+# --------------------------------------------------------------------------------------
 
 
 def _sentences(text: str) -> list[tuple[int, int]]:
@@ -208,6 +227,21 @@ def _assemble(parts: Sequence[tuple[str, bool]]) -> Excerpt:
     return Excerpt(stripped, tuple(marks))
 
 
+def _concat(*parts: Excerpt | str) -> Excerpt:
+    """The parts one after the other (a plain string is unmarked)."""
+    text = ""
+    marks: list[tuple[int, int]] = []
+    for part in parts:
+        ex = Excerpt(part) if isinstance(part, str) else part
+        marks += [(a + len(text), b + len(text)) for a, b in ex.marks]
+        text += ex.text
+    return Excerpt(text, tuple(marks))
+
+
+def _quoted(ex: Excerpt) -> Excerpt:
+    return _concat(_OPEN_QUOTE, ex, _CLOSE_QUOTE)
+
+
 def _whole_words(text: str, span: tuple[int, int]) -> tuple[int, int]:
     """*span* widened to whole words: a span that starts with a letter or digit reaches back
     to the white space before it, one that ends with a letter or digit reaches on to the white
@@ -234,10 +268,12 @@ def _whole_words(text: str, span: tuple[int, int]) -> tuple[int, int]:
     return s, end
 
 
-def _excerpt(text: str, span: tuple[int, int], *, max_words: int = POSITION_MAX_WORDS) -> Excerpt:
-    """The sentence(s) of *text* holding ``text[span]``, cut to *max_words* words around the
-    span with "…" where cut; the span's words marked.  An empty span marks nothing (the
-    words are missing on this side) but still chooses the sentence.  O(len(text))."""
+def _snippet(text: str, span: tuple[int, int], *, context: int = CHANGE_CONTEXT_WORDS,
+             max_words: int = CHANGE_MAX_WORDS) -> Excerpt:
+    """``text[span]`` with up to *context* words either side, within the sentence(s) that
+    hold it; the span's words marked, cut to *max_words* words.  "…" where the quote stops
+    inside a sentence.  An empty span (words the other side has) marks nothing: the quote
+    shows where they would go.  O(len(text))."""
     n_text = len(text)
     s = min(max(span[0], 0), n_text)
     e = min(max(span[1], s), n_text)
@@ -247,38 +283,20 @@ def _excerpt(text: str, span: tuple[int, int], *, max_words: int = POSITION_MAX_
     b = next((y for x, y in sentences if x <= last < y), n_text)
     words = [(m.start(), m.end()) for m in _WORD.finditer(text, a, b)]
     if not words:
-        return _assemble([(text[s:e], True)])
+        return _assemble([(text[s:e], True)]) if text[s:e].strip() else Excerpt(_NO_TEXT)
     n = len(words)
     changed = [i for i, (x, y) in enumerate(words) if x < e and y > s]
     if changed:
         lo, hi = changed[0], changed[-1] + 1
     else:
         lo = hi = next((i for i, (x, _) in enumerate(words) if x >= s), n)
-
-    def window(budget: int) -> tuple[int, int]:
-        if n <= budget:
-            return 0, n
-        if hi - lo >= budget:
-            return lo, lo + budget
-        spare = budget - (hi - lo)
-        before = min(lo, spare // 2)
-        after = min(n - hi, spare - before)
-        return lo - min(lo, spare - after), hi + after
-
-    w0, w1 = window(max_words)
-    lead = 0  # words kept from the sentence's start before a cut in its middle
-    if w0 > 0 and max_words > 2 * POSITION_LEAD_WORDS:
-        w0, w1 = window(max_words - POSITION_LEAD_WORDS)
-        if w0 <= POSITION_LEAD_WORDS:
-            w0, w1 = 0, min(n, w1 + w0)  # the lead reaches the window: no cut at all
-        else:
-            lead = POSITION_LEAD_WORDS
+    cut = hi - lo > max_words
+    if cut:
+        hi = lo + max_words
+    w0 = max(0, lo - context)
+    w1 = hi if cut else min(n, hi + context)
     c0, c1 = words[w0][0], words[w1 - 1][1]
-    parts: list[tuple[str, bool]] = []
-    if lead:
-        parts.append((text[words[0][0]:words[lead - 1][1]] + " " + _ELLIPSIS + " ", False))
-    elif w0 > 0:
-        parts.append((_ELLIPSIS + " ", False))
+    parts: list[tuple[str, bool]] = [(_ELLIPSIS + " ", False)] if w0 > 0 else []
     m0, m1 = max(s, c0), min(e, c1)
     if m0 < m1:
         parts += [(text[c0:m0], False), (text[m0:m1], True), (text[m1:c1], False)]
@@ -289,7 +307,7 @@ def _excerpt(text: str, span: tuple[int, int], *, max_words: int = POSITION_MAX_
     return _assemble(parts)
 
 
-def _opening(text: str, *, max_words: int = POSITION_MAX_WORDS) -> Excerpt:
+def _opening(text: str, *, max_words: int = CHANGE_MAX_WORDS) -> Excerpt:
     """The first sentence(s) of *text*, as many whole ones as fit in *max_words* words (the
     first one cut to *max_words* when longer), "…" when more follows.  O(len(text))."""
     words = [(m.start(), m.end()) for m in _WORD.finditer(text)]
@@ -313,14 +331,14 @@ def _swap(edits: Sequence[Edit]) -> tuple[Edit, ...]:
     return tuple(Edit(flip.get(e.tag, e.tag), e.d1, e.d2, e.p1, e.p2) for e in edits)
 
 
-def _side_position(prov: Provision | None, span: tuple[int, int] | None, verbatim: str,
-                   at: int | None) -> tuple[Excerpt, str]:
-    """One side's position of a word-level deviation, and its exact changed words.  Without
-    a span (a review built by hand), the side's verbatim words are looked up in the text,
-    else *at* (the other side's change mapped through the pair's diff) places it, else the
-    provision's opening sentence(s) stand for it."""
+def _side(prov: Provision | None, span: tuple[int, int] | None, verbatim: str,
+          at: int | None) -> tuple[Excerpt | None, str]:
+    """One side's quote of a word-level deviation, and its exact changed words (None for a
+    side without the provision).  Without a span (a review built by hand), the side's
+    verbatim words are looked up in the text, else *at* (the other side's change mapped
+    through the pair's diff) places it, else the provision's opening words stand for it."""
     if prov is None:
-        return Excerpt(_NO_PROVISION), ""
+        return None, verbatim
     text = prov.text
     if span is None and verbatim:
         i = text.find(verbatim)
@@ -328,73 +346,157 @@ def _side_position(prov: Provision | None, span: tuple[int, int] | None, verbati
             span = (i, i + len(verbatim))
     if span is None and at is not None:
         span = (at, at)
-    if span is None:
+    if span is None:  # nothing places the change: the provision's start stands for it
         return _opening(text), verbatim
     span = _whole_words(text, span)
-    return _excerpt(text, span), text[span[0]:span[1]]
+    return _snippet(text, span), text[span[0]:span[1]]
 
 
-def _whole(text: str) -> Excerpt:
-    return Excerpt(text, ((0, len(text)),) if text else ())
+def _old_new(old: Excerpt | None, new: Excerpt | None) -> Excerpt:
+    """``“old”`` and, on the next line, ``→ “new”``; a missing side reads "nothing"."""
+    return _concat(_quoted(old) if old else "nothing", _ARROW, _quoted(new) if new else "nothing")
 
 
-def _labelled(label: str, value: str) -> Excerpt:
-    """``"label value"`` with the value marked."""
-    return Excerpt(f"{label}{value}", ((len(label), len(label) + len(value)),))
+def _words_of(text: str, max_words: int = CHANGE_MAX_WORDS) -> Excerpt:
+    """*text* cut to *max_words* words, "…" where cut."""
+    words = text.split()
+    more = f" {_ELLIPSIS}" if len(words) > max_words else ""
+    return Excerpt(" ".join(words[:max_words]) + more)
 
 
-def _positions(review: Review, dev: Deviation) -> tuple[Excerpt, Excerpt, str, str]:
-    """(draft position, house position, draft's changed words, house's changed words)."""
+def _provision_quote(prov: Provision | None) -> Excerpt:
+    """The start of a provision, or its heading when it has no text of its own."""
+    if prov is None:
+        return Excerpt(_NO_TEXT)
+    if not prov.text.strip() and prov.heading:
+        return _quoted(_words_of(prov.heading))
+    return _quoted(_opening(prov.text))
+
+
+def _text_change(review: Review, dev: Deviation, dp: Provision | None,
+                 pp: Provision | None) -> tuple[Excerpt, str, str]:
+    edits = edits_of_pair(review, dp.id, pp.id) if dp is not None and pp is not None else ()
+    d_at = (map_offset(edits, dev.precedent_span[0])
+            if dev.draft_span is None and dev.precedent_span is not None else None)
+    p_at = (map_offset(_swap(edits), dev.draft_span[0])
+            if dev.precedent_span is None and dev.draft_span is not None else None)
+    new, dwords = _side(dp, dev.draft_span, dev.draft_text, d_at)
+    old, pwords = _side(pp, dev.precedent_span, dev.precedent_text, p_at)
+    return _old_new(old, new), pwords, dwords
+
+
+def _what_changed(review: Review, dev: Deviation) -> tuple[Excerpt, str, str]:
+    """(what changed, the precedent's changed words, the draft's changed words)."""
     dp = find_provision(review.draft, dev.draft_provision)
     pp = find_provision(review.precedent, dev.precedent_provision)
     if dev.category == "term":
         uses = next((m.occurrences for m in review.term_map
                      if m.draft == dev.draft_text and m.precedent == dev.precedent_text), None)
-        draft = _labelled("defined term ", f"\u201c{dev.draft_text}\u201d")
+        ex = _concat("Defined term ", _old_new(Excerpt(dev.precedent_text, ((0, len(dev.precedent_text)),)),
+                                               Excerpt(dev.draft_text, ((0, len(dev.draft_text)),))))
         if uses:
-            draft = Excerpt(f"{draft.text} ({uses} uses)", draft.marks)
-        return draft, _labelled("defined term ", f"\u201c{dev.precedent_text}\u201d"), dev.draft_text, dev.precedent_text
+            ex = _concat(ex, f" ({uses} use{'s' * (uses != 1)} in the draft)")
+        return ex, dev.precedent_text, dev.draft_text
+    if dev.change == "add-provision":
+        return _concat("Provision added: ", _provision_quote(dp)), "", dp.text if dp else dev.draft_text
+    if dev.change == "remove-provision":
+        return (_concat("Provision left out: ", _provision_quote(pp)),
+                pp.text if pp else dev.precedent_text, "")
+    if dev.change == "move":
+        dn = full_number(dp, doc=review.draft) if dp else ""
+        pn = full_number(pp, doc=review.precedent) if pp else ""
+        where = f" (precedent {pn}, draft {dn})" if dn and pn else ""
+        return Excerpt(f"Provision moved to another place in the order{where}"), "", ""
     if dev.part == "heading":
         dh = (dp.heading if dp is not None else None) or dev.draft_text
         ph = (pp.heading if pp is not None else None) or dev.precedent_text
-        return (_labelled("Heading: ", dh) if dh else Excerpt(_NO_HEADING),
-                _labelled("Heading: ", ph) if ph else Excerpt(_NO_HEADING), dh or "", ph or "")
-    whole_provision = dev.change in ("add-provision", "remove-provision", "move")
-    if dev.part == "text" and not whole_provision and (dp is not None or pp is not None):
-        edits = edits_of_pair(review, dp.id, pp.id) if dp is not None and pp is not None else ()
-        d_at = (map_offset(edits, dev.precedent_span[0])
-                if dev.draft_span is None and dev.precedent_span is not None else None)
-        p_at = (map_offset(_swap(edits), dev.draft_span[0])
-                if dev.precedent_span is None and dev.draft_span is not None else None)
-        draft, dwords = _side_position(dp, dev.draft_span, dev.draft_text, d_at)
-        house, pwords = _side_position(pp, dev.precedent_span, dev.precedent_text, p_at)
-        return draft, house, dwords, pwords
-    if whole_provision or dp is None or pp is None:
-        draft = _opening(dp.text) if dp is not None else Excerpt(_NO_PROVISION)
-        house = _opening(pp.text) if pp is not None else Excerpt(_NO_PROVISION)
-        if dp is not None and not dp.text.strip() and dp.heading:
-            draft = Excerpt(f"Heading: {dp.heading}")
-        if pp is not None and not pp.text.strip() and pp.heading:
-            house = Excerpt(f"Heading: {pp.heading}")
-        dwords = dp.text if dp is not None and dev.change == "add-provision" else ""
-        pwords = pp.text if pp is not None and dev.change == "remove-provision" else ""
-        return draft, house, dwords, pwords
-    # the provision as a whole otherwise (its number): the deviation's own words
-    return (_whole(dev.draft_text) if dev.draft_text else Excerpt(_NO_TEXT),
-            _whole(dev.precedent_text) if dev.precedent_text else Excerpt(_NO_TEXT),
-            dev.draft_text, dev.precedent_text)
+        old = Excerpt(ph, ((0, len(ph)),)) if ph else None
+        new = Excerpt(dh, ((0, len(dh)),)) if dh else None
+        return _concat("Heading ", _old_new(old, new)), ph or "", dh or ""
+    if dev.part == "text" and (dp is not None or pp is not None):
+        return _text_change(review, dev, dp, pp)
+    if dev.part == "provision" and dev.category == "numbering":
+        return _concat("Renumbered ", _old_new(Excerpt(dev.precedent_text), Excerpt(dev.draft_text))), \
+            dev.precedent_text, dev.draft_text
+    # no provision to quote from (the whole document): the deviation's own words
+    old = _words_of(dev.precedent_text) if dev.precedent_text.strip() else None
+    new = _words_of(dev.draft_text) if dev.draft_text.strip() else None
+    return _old_new(old, new), dev.precedent_text, dev.draft_text
 
 
-def _frequency_text(dev: Deviation) -> str | None:
-    """``"3 of 10"`` (and the reviewer's label of the wording: ``"3 of 10; preferred"``);
-    ``"none"`` when no agreement of the set has such a clause.  Explained under the table."""
+# --------------------------------------------------------------------------------------
+# The other cells
+# --------------------------------------------------------------------------------------
+
+
+def _agreements(n: int) -> str:
+    return f"{n} past agreement{'s' * (n != 1)}"
+
+
+def _share(matching: int, of: int) -> str:
+    """"in 3 of 12 past agreements", "in none of the 12 past agreements", "in all 12 ..."."""
+    if of == 1:
+        return "in the one past agreement" if matching else "not in the one past agreement"
+    if matching == 0:
+        return f"in none of the {_agreements(of)}"
+    if matching >= of:
+        return f"in all {_agreements(of)}"
+    return f"in {matching} of {_agreements(of)}"
+
+
+def _how_common(dev: Deviation) -> str | None:
+    """The "how common" cell in words (see :func:`_table_notes` for what the figures mean);
+    the firm's label of the wording after it.  None without a precedent set."""
     f = dev.frequency
     if f is None:
         return None
-    text = f"{f.matching} of {f.same_type}" if f.same_type else "none"
+    if dev.category == "term":
+        text = (f"the draft's name {_share(f.matching, f.same_type)} that define the term"
+                if f.same_type else "no past agreement defines the term")
+    elif dev.change == "remove-provision":
+        lacking = min(f.matching, f.total)
+        if lacking == 0:
+            text = f"present {_share(f.total, f.total)}"
+        elif f.total == 1:
+            text = "absent from the one past agreement"
+        else:
+            text = (f"absent from all {_agreements(f.total)}" if lacking == f.total
+                    else f"absent from {lacking} of the {_agreements(f.total)}")
+    elif f.same_type:
+        text = f"{_share(f.matching, f.same_type)} with such a clause"
+    else:
+        text = ("the one past agreement has no such clause" if f.total == 1
+                else f"none of the {_agreements(f.total)} has such a clause")
     if f.position:
-        text += f"; {f.position}"
+        text += f"; firm's label: {f.position}"
     return text
+
+
+def _frequency_reasons(freq: Frequency | None) -> tuple[str, ...]:
+    if freq is None:
+        return ()
+    from ..library.frequency import frequency_reasons
+
+    return frequency_reasons(freq)
+
+
+def _why(review: Review, dev: Deviation) -> str:
+    """The deviation's reasons joined, without those that restate the "how common" cell
+    and without the clause type's weight in the ranking (a detail of the firm's rule file,
+    not a reason a reader outside the firm weighs).  A renamed defined term, whose reason
+    repeats the names and uses "what changed" shows, says instead on what evidence the two
+    names are read as one term (:class:`core.model.TermMapping`)."""
+    from ..review.severity import is_weight_reason
+
+    if dev.category == "term":
+        m = next((m for m in review.term_map
+                  if m.draft == dev.draft_text and m.precedent == dev.precedent_text), None)
+        if m is not None:
+            return (f"Read as the same defined term (evidence: {', '.join(m.evidence)}; "
+                    f"confidence {m.confidence:.2f})")
+    repeated = set(_frequency_reasons(dev.frequency))
+    text = "; ".join(r for r in dev.reasons if r not in repeated and not is_weight_reason(r))
+    return text[:1].upper() + text[1:]
 
 
 def _decision_text(dec: Decision | None) -> str:
@@ -405,6 +507,11 @@ def _decision_text(dec: Decision | None) -> str:
     return dec.action
 
 
+# --------------------------------------------------------------------------------------
+# Which rows, in which order
+# --------------------------------------------------------------------------------------
+
+
 def _included(include: Iterable[str]) -> frozenset[str]:
     chosen = frozenset(include)
     unknown = sorted(chosen - set(CATEGORIES))
@@ -413,35 +520,90 @@ def _included(include: Iterable[str]) -> frozenset[str]:
     return chosen
 
 
-def _shown(review: Review, decisions: Sequence[Decision], include: Iterable[str]) -> list[Deviation]:
+def _checked_order(order: str) -> str:
+    if order not in ISSUE_ORDERS:
+        raise ValueError(f"unknown order {order!r}; choose from {ISSUE_ORDERS}")
+    return order
+
+
+def clause_order(review: Review) -> dict[str, tuple[float, int, int, int, int]]:
+    """Deviation id -> its place in the draft's clause order: the draft provision's position.
+    A provision only the precedent has sits where it would have been: after the draft
+    provision aligned with the last precedent provision before it and after the draft's own
+    additions that follow that one, i.e. just before the next provision both documents share
+    (several such in the precedent's order).  Within a provision the heading and the
+    provision as a whole come before its words, the words by their place in the text; ties
+    by rank.  A deviation without a provision (the whole document) comes first.
+    O(provisions + deviations)."""
+    provisions = review.draft.provisions
+    dpos = {p.id: i for i, p in enumerate(provisions)}
+    aligned = {pair.precedent: pair.draft for pair in review.pairs
+               if pair.draft is not None and pair.precedent is not None}
+    shared = {d for d in aligned.values() if d in dpos}
+    # after[j]: the last position of the run of draft-only provisions from position j on
+    # (j - 1 when the provision at j is shared or j is the end)
+    after = [0] * (len(provisions) + 1)
+    after[-1] = len(provisions) - 1
+    for j in range(len(provisions) - 1, -1, -1):
+        after[j] = after[j + 1] if provisions[j].id not in shared else j - 1
+    ppos: dict[str, tuple[float, int]] = {}
+    last = -1
+    for k, p in enumerate(review.precedent.provisions):
+        d = aligned.get(p.id)
+        if d is not None and d in dpos:
+            last = dpos[d]
+            ppos[p.id] = (float(last), -1)
+        else:
+            ppos[p.id] = (after[last + 1] + 0.5, k)
+    out = {}
+    for dev in review.deviations:
+        if dev.draft_provision in dpos:
+            at, within = float(dpos[dev.draft_provision]), -1
+            offset = dev.draft_span[0] if dev.draft_span is not None else 0
+        elif dev.precedent_provision in ppos:
+            at, within = ppos[dev.precedent_provision]
+            offset = dev.precedent_span[0] if dev.precedent_span is not None else 0
+        else:
+            at, within, offset = -1.0, -1, 0
+        part = 1 if dev.part == "text" else 0  # the heading and the whole provision first
+        out[dev.id] = (at, within, part, offset, dev.rank)
+    return out
+
+
+def _shown(review: Review, decisions: Sequence[Decision], include: Iterable[str],
+           order: str) -> list[Deviation]:
     """The deviations the issues list shows, in order: those of the included categories (and
-    every decided one), by rank; renamed defined terms last, as a group of their own."""
+    every decided one), by clause order or by rank; renamed defined terms last, as a group
+    of their own."""
     chosen = _included(include)
     decided = {d.deviation for d in decisions}
-    devs = [d for d in sorted(review.deviations, key=lambda d: (d.rank, d.id))
-            if d.category in chosen or d.id in decided]
+    if _checked_order(order) == "clause":
+        place = clause_order(review)
+        devs = sorted(review.deviations, key=lambda d: place[d.id])
+    else:
+        devs = sorted(review.deviations, key=lambda d: (d.rank, d.id))
+    devs = [d for d in devs if d.category in chosen or d.id in decided]
     return [d for d in devs if d.category != "term"] + [d for d in devs if d.category == "term"]
 
 
 def issue_rows(review: Review, decisions: Sequence[Decision] = (), *,
-               include: Iterable[str] = ISSUES_DEFAULT_INCLUDE) -> list[IssueRow]:
+               include: Iterable[str] = ISSUES_DEFAULT_INCLUDE,
+               order: str = ISSUES_DEFAULT_ORDER) -> list[IssueRow]:
     """The rows of the issues list: one per deviation of the *include* categories (by
     default the substantive ones and the renamed defined terms) and per decided deviation,
-    by rank, with the renamed defined terms last.  Each position is the sentence (or a
-    bounded excerpt) of that side's provision holding the change.  O(deviations x
-    provision length)."""
-    by_id = {d.deviation: d for d in decisions}
+    in the draft's clause order (*order* ``"clause"``) or by rank (``"rank"``), the renamed
+    defined terms last.  O(deviations x provision length)."""
+    by_id: Mapping[str, Decision] = {d.deviation: d for d in decisions}
     rows = []
-    for dev in _shown(review, decisions, include):
+    for dev in _shown(review, decisions, include, order):
         dec = by_id.get(dev.id)
-        draft, house, dwords, pwords = _positions(review, dev)
+        what, pwords, dwords = _what_changed(review, dev)
         rows.append(IssueRow(
-            ref=dev.id, rank=dev.rank, clause=clause_label(review, dev),
-            draft_position=draft.text, house_position=house.text,
-            severity=dev.severity, frequency=_frequency_text(dev), decision=_decision_text(dec),
-            note=(dec.note or "") if dec else "",
-            draft_marks=draft.marks, house_marks=house.marks,
-            draft_words=dwords, house_words=pwords, category=dev.category,
+            number=dev.rank, ref=dev.id, clause=clause_label(review, dev),
+            what_changed=what.text, why=_why(review, dev), frequency=_how_common(dev),
+            decision=_decision_text(dec), note=(dec.note or "") if dec else "",
+            what_changed_marks=what.marks, precedent_words=pwords, draft_words=dwords,
+            category=dev.category,
         ))
     return rows
 
@@ -456,42 +618,32 @@ def _columns(rows: Sequence[IssueRow], columns: Sequence[str] = ISSUE_COLUMNS) -
     return tuple(c for c in columns if c != _FREQUENCY_COLUMN)
 
 
-def _cells(row: IssueRow, columns: Sequence[str], *, marked: bool = False) -> list[str]:
-    """Plain-text cells; with *marked*, the positions carry the CSV's marks."""
-    values = {
-        "Ref": row.ref, "Clause": row.clause,
-        "Draft position": row.draft_excerpt.marked() if marked else row.draft_position,
-        "House position": row.house_excerpt.marked() if marked else row.house_position,
-        _DRAFT_WORDS_COLUMN: row.draft_words, _HOUSE_WORDS_COLUMN: row.house_words,
-        "Severity": str(row.severity),
-        _FREQUENCY_COLUMN: row.frequency or "", "Decision": row.decision, "Note": row.note,
-    }
-    return [values[c] for c in columns]
-
-
 def _first_term_row(rows: Sequence[IssueRow]) -> int | None:
     return next((i for i, r in enumerate(rows) if r.category == "term"), None)
 
 
-def _table_notes(review: Review, rows: Sequence[IssueRow]) -> list[str]:
-    """The notes under the table (.docx and HTML): what the positions quote, the "how
-    common" figures (explained once, with the first row's), the renamed-terms group and what
-    was left out."""
-    notes = [f"Positions quote the sentence of each side's provision that holds the change (at "
-             f"most {POSITION_MAX_WORDS} words; \u201c{_ELLIPSIS}\u201d marks a cut); the changed "
-             "words are in bold. An added or removed provision is quoted from its start."]
-    by_id = {d.id: d for d in review.deviations}
-    freq = next((by_id[r.ref].frequency for r in rows
-                 if r.ref in by_id and by_id[r.ref].frequency is not None), None)
-    if freq is not None:
-        total = max(d.frequency.total for d in review.deviations if d.frequency is not None)
-        x, y = freq.matching, freq.same_type
+def _table_notes(review: Review, rows: Sequence[IssueRow], order: str) -> list[str]:
+    """The notes under the table (.docx and HTML): the numbers and the order, what the
+    "what changed" quotes, the "how common" figures, the renamed-terms group and what was
+    left out."""
+    arranged = ("Rows follow the order of the draft's clauses; a provision the draft leaves "
+                "out sits where it would have been." if order == "clause" else "Rows are in "
+                "order of severity.")
+    notes = [f"{arranged} No. is the deviation's number in this review: its rank by the "
+             "severity the review gives it, 1 the highest.",
+             f"What changed: the precedent's words, then (\u2192) the draft's, with up to "
+             f"{CHANGE_CONTEXT_WORDS} words either side; the changed words are in bold, and "
+             f"\u201c{_ELLIPSIS}\u201d marks a cut."]
+    freqs = [d.frequency for d in review.deviations if d.frequency is not None]
+    if freqs and any(r.frequency is not None for r in rows):
+        total = max(f.total for f in freqs)
         notes.append(
-            f"How common in the precedent set: \u201c{x} of {y}\u201d means that {x} of the {y} "
-            f"agreements of the precedent set that have a clause of this type take the draft's "
-            f"position; the set holds {total} agreements. \u201cnone\u201d: no agreement of the set "
-            "has such a clause. A word after the figure (preferred, acceptable, fallback, not "
-            "acceptable) is the label the firm gave that wording.")
+            f"How common: of the firm's {_agreements(total)} in the precedent set, how many "
+            "that have a clause of the same type carry the draft's wording; for a provision "
+            "the draft leaves out, how many lack it as well; for a renamed defined term, how "
+            "many of those that define the term use the draft's name. \u201cFirm's label\u201d "
+            "is the label the firm gave that wording (preferred, acceptable, fallback, not "
+            "acceptable).")
     if _first_term_row(rows) is not None:
         notes.append("The last rows are renamed defined terms, for information: the draft calls "
                      "a defined term differently, and the comparison reads both names as one term.")
@@ -502,34 +654,39 @@ def _table_notes(review: Review, rows: Sequence[IssueRow]) -> list[str]:
     return notes
 
 
+# --------------------------------------------------------------------------------------
+# The three formats
+# --------------------------------------------------------------------------------------
+
+
 def issues_list_csv(review: Review, decisions: Sequence[Decision] = (), *,
-                    include: Iterable[str] = ISSUES_DEFAULT_INCLUDE) -> str:
-    """CSV (RFC 4180 quoting by the csv module): the caution on the first line, then the
-    header (:data:`ISSUE_CSV_COLUMNS`, without the frequency column when no precedent set
-    was used) and one row per issue.  The caution is its own single-cell row so a
-    spreadsheet shows it above the table and ``csv.reader`` reads it back as one field.
-    The positions mark the changed words with :data:`CSV_MARK_OPEN` / :data:`CSV_MARK_CLOSE`;
-    the exact changed words have columns of their own."""
-    rows = issue_rows(review, decisions, include=include)
+                    include: Iterable[str] = ISSUES_DEFAULT_INCLUDE,
+                    order: str = ISSUES_DEFAULT_ORDER) -> str:
+    """CSV (RFC 4180 quoting by the csv module): the header row
+    (:data:`ISSUE_CSV_COLUMNS`, without the frequency column when no precedent set was
+    used), then one row per issue.  Nothing else: the caution is printed by the command
+    line and shown by the desktop app when they write the file."""
+    rows = issue_rows(review, decisions, include=include, order=order)
     cols = _columns(rows, ISSUE_CSV_COLUMNS)
     buf = io.StringIO()
     writer = csv.writer(buf, lineterminator="\r\n")
-    writer.writerow([CAUTION])
     writer.writerow(cols)
     for r in rows:
-        writer.writerow(_cells(r, cols, marked=True))
+        writer.writerow(r.cells(cols))
     return buf.getvalue()
 
 
 #: Relative column widths of the issues-list table, in centimetres of the landscape A4 text
 #: width (24.7 cm; scaled exactly to it).  The narrow columns hold their longest word on one
 #: line at 9 pt in a wide serif (DejaVu Serif, LibreOffice's stand-in when Liberation Serif is
-#: missing; measured in LibreOffice's PDF of the table with pdftotext -bbox: bold "Severity"
-#: 1.44 cm, "Decision" 1.53 cm, "precedent" 1.78 cm, plain "undecided" 1.67 cm, "v122"
-#: 0.78 cm) plus the cell margins (2 x 0.19 cm) and some slack; the two positions get most
-#: of the room.  Without the frequency column the others share its width.
-ISSUE_WIDTHS_CM = {"Ref": 1.4, "Clause": 3.3, "Draft position": 5.6, "House position": 5.6,
-                   "Severity": 2.0, _FREQUENCY_COLUMN: 2.2, "Decision": 2.2, "Note": 2.4}
+#: missing; measured in LibreOffice's PDF of the demo's table with pdftotext -bbox: bold "No."
+#: 0.61 cm, "Decision" 1.53 cm, "common" 1.52 cm, plain "undecided" 1.67 cm, "agreements"
+#: 1.90 cm, "Confidentiality" 2.37 cm) plus the cell margins (2 x 0.19 cm) and some slack;
+#: "What changed" gets the most room, "Why it matters" the next, "How common" enough that
+#: its sentence takes three lines, not five.  Without the frequency column the others share
+#: its width.
+ISSUE_WIDTHS_CM = {_NUMBER_COLUMN: 1.1, "Clause": 3.2, _WHAT_COLUMN: 7.2, _WHY_COLUMN: 4.4,
+                   _FREQUENCY_COLUMN: 3.4, "Decision": 2.3, "Note": 3.1}
 
 #: The page's palette (ours): ink, secondary text, rules, header fill, the fill of the
 #: renamed-terms group and the wash behind the changed words.  Black-on-pale throughout so a
@@ -559,21 +716,30 @@ p.note {{ font-size: 0.85em; color: {muted}; margin: 0.4em 0; }}
 """.format(**_PALETTE)
 
 
+def _title(review: Review) -> str:
+    return f"Issues list: {Path(review.draft.source).name} against {Path(review.precedent.source).name}"
+
+
+def _html_text(text: str) -> str:
+    return "<br>".join(html.escape(line) for line in text.split("\n"))
+
+
 def _html_excerpt(excerpt: Excerpt) -> str:
-    return "".join(f"<strong>{html.escape(t)}</strong>" if m else html.escape(t)
+    return "".join(f"<strong>{_html_text(t)}</strong>" if m else _html_text(t)
                    for t, m in excerpt.pieces())
 
 
 def issues_list_html(review: Review, decisions: Sequence[Decision] = (), *,
                      date: _dt.datetime | None = None,
-                     include: Iterable[str] = ISSUES_DEFAULT_INCLUDE) -> str:
+                     include: Iterable[str] = ISSUES_DEFAULT_INCLUDE,
+                     order: str = ISSUES_DEFAULT_ORDER) -> str:
     """A self-contained printable HTML page: no external resources, print CSS inline (A4
     landscape, the header row repeated on each page, no row split), the caution under the
-    title, the changed words of each position in bold."""
-    rows = issue_rows(review, decisions, include=include)
+    title, the changed words in bold."""
+    rows = issue_rows(review, decisions, include=include, order=order)
     cols = _columns(rows)
     e = html.escape
-    title = f"Issues list: {Path(review.draft.source).name} against {Path(review.precedent.source).name}"
+    title = _title(review)
     total_cm = sum(ISSUE_WIDTHS_CM[c] for c in cols)
     out = [
         "<!DOCTYPE html>",
@@ -594,54 +760,40 @@ def issues_list_html(review: Review, decisions: Sequence[Decision] = (), *,
         if i == first_term:
             out.append('</tbody><tbody class="terms">')
         cells = []
-        for c, v in zip(cols, _cells(r, cols)):
-            if c == "Draft position":
-                cells.append(f"<td>{_html_excerpt(r.draft_excerpt)}</td>")
-            elif c == "House position":
-                cells.append(f"<td>{_html_excerpt(r.house_excerpt)}</td>")
+        for c, v in zip(cols, r.cells(cols)):
+            if c == _WHAT_COLUMN:
+                cells.append(f"<td>{_html_excerpt(r.change_excerpt)}</td>")
             else:
-                cls = ' class="num"' if c == "Severity" else ""
-                cells.append(f"<td{cls}>{e(v)}</td>")
+                cls = ' class="num"' if c == _NUMBER_COLUMN else ""
+                cells.append(f"<td{cls}>{_html_text(v)}</td>")
         out.append('<tr valign="top">' + "".join(cells) + "</tr>")
     out.append("</tbody></table>")
     if rows:
-        out.extend(f'<p class="note">{e(n)}</p>' for n in _table_notes(review, rows))
+        out.extend(f'<p class="note">{e(n)}</p>' for n in _table_notes(review, rows, order))
     else:
         out.append("<p>No substantive deviation was found.</p>")
     out.append("</body></html>")
     return "\n".join(out) + "\n"
 
 
-def _docx_excerpt(excerpt: Excerpt):
-    from ..docx.writer import Run
-
-    return tuple(Run(t, bold=m) for t, m in excerpt.pieces())
-
-
 def issues_list_docx(review: Review, decisions: Sequence[Decision] = (), *, author: str,
                      date: _dt.datetime | None = None,
-                     include: Iterable[str] = ISSUES_DEFAULT_INCLUDE) -> bytes:
+                     include: Iterable[str] = ISSUES_DEFAULT_INCLUDE,
+                     order: str = ISSUES_DEFAULT_ORDER) -> bytes:
     """The issues list as a Word table (ECMA-376 Part 1 §17.4) on landscape A4 pages: the
     full text width, fixed column widths, the header row repeated on each page, no row split
-    across pages; the changed words of each position in bold; notes under the table."""
+    across pages; the changed words in bold; notes under the table."""
     from ..docx.revisions import RevisionStamp
     from ..docx.writer import Para, Run, Table, build_docx
 
-    rows = issue_rows(review, decisions, include=include)
+    rows = issue_rows(review, decisions, include=include, order=order)
     cols = _columns(rows)
     stamp = RevisionStamp(author=author, date=stamp_date(date))
-    title = f"Issues list: {Path(review.draft.source).name} against {Path(review.precedent.source).name}"
+    title = _title(review)
 
     def cells(r: IssueRow) -> tuple:
-        out = []
-        for c, v in zip(cols, _cells(r, cols)):
-            if c == "Draft position":
-                out.append(_docx_excerpt(r.draft_excerpt))
-            elif c == "House position":
-                out.append(_docx_excerpt(r.house_excerpt))
-            else:
-                out.append(v)
-        return tuple(out)
+        return tuple(tuple(Run(t, bold=m) for t, m in r.change_excerpt.pieces()) if c == _WHAT_COLUMN
+                     else v for c, v in zip(cols, r.cells(cols)))
 
     body: list = [
         Para((Run(title),), style="Title"),
@@ -651,7 +803,7 @@ def issues_list_docx(review: Review, decisions: Sequence[Decision] = (), *, auth
               widths=tuple(ISSUE_WIDTHS_CM[c] for c in cols), divider_before=_first_term_row(rows)),
     ]
     if rows:
-        body.extend(Para((Run(n),), style="TableNote") for n in _table_notes(review, rows))
+        body.extend(Para((Run(n),), style="TableNote") for n in _table_notes(review, rows, order))
     else:
         body.append(Para((Run("No substantive deviation was found."),)))
     return build_docx(body, stamp=stamp, title=title, properties={CAUTION_PROPERTY: CAUTION},
@@ -661,21 +813,26 @@ def issues_list_docx(review: Review, decisions: Sequence[Decision] = (), *, auth
 def write_issues_list(review: Review, out: str | os.PathLike[str], *,
                       decisions: Sequence[Decision] = (), author: str | None = None,
                       date: _dt.datetime | None = None, inputs: Sequence[str] = (),
-                      include: Iterable[str] = ISSUES_DEFAULT_INCLUDE) -> None:
+                      include: Iterable[str] = ISSUES_DEFAULT_INCLUDE,
+                      order: str = ISSUES_DEFAULT_ORDER) -> None:
     """Write the issues list as .docx, .html or .csv (by the suffix of *out*), atomically.
     *include* names the deviation categories listed (:data:`ISSUES_DEFAULT_INCLUDE`; pass
-    :data:`core.model.CATEGORIES` for every difference); decided deviations are always listed."""
+    :data:`core.model.CATEGORIES` for every difference); decided deviations are always listed.
+    *order* is ``"clause"`` (the draft's order, the default) or ``"rank"``."""
     include = tuple(_included(include))
+    _checked_order(order)
     path = check_output(out, (".docx", ".html", ".htm", ".csv"),
-                         [review.draft.source, review.precedent.source, *inputs])
+                        [review.draft.source, review.precedent.source, *inputs])
     suffix = path.suffix.lower()
     if suffix == ".csv":
         # A byte-order mark first: spreadsheet programs then read the file as UTF-8 rather
         # than a legacy code page, so curly quotes and ellipses survive (common practice, no
         # source).  Python reads it back with encoding="utf-8-sig".
-        atomic_write_bytes(path, issues_list_csv(review, decisions, include=include).encode("utf-8-sig"))
+        data = issues_list_csv(review, decisions, include=include, order=order)
+        atomic_write_bytes(path, data.encode("utf-8-sig"))
     elif suffix in (".html", ".htm"):
-        atomic_write_text(path, issues_list_html(review, decisions, date=date, include=include))
+        atomic_write_text(path, issues_list_html(review, decisions, date=date, include=include,
+                                                 order=order))
     else:
         atomic_write_bytes(path, issues_list_docx(review, decisions, author=author or default_author(),
-                                                  date=date, include=include))
+                                                  date=date, include=include, order=order))

@@ -80,6 +80,7 @@ __all__ = [
     "Slot",
     "apply_frequency",
     "clause_type_function",
+    "frequency_reasons",
     "provision_slot",
     "review_types",
 ]
@@ -554,19 +555,30 @@ def _deviation_frequency(ctx: _Context, dev: Deviation) -> Frequency:
     return _departure_frequency(ctx, dev, bucket_name)
 
 
+def frequency_reasons(freq: Frequency) -> tuple[str, ...]:
+    """The reasons :func:`apply_frequency` adds to a substantive deviation whose wording has
+    *freq*: "accepted in 9 of 24 past agreements" (or "never accepted in the 24 past
+    agreements") and the firm's label of the wording when it has one; none for an empty
+    set.  One place for this wording, so that a writer showing the figures in a column of
+    their own (the issues list) can leave these reasons out."""
+    if freq.total <= 0:
+        return ()
+    plural = "s" * (freq.total != 1)
+    out = [f"accepted in {freq.matching} of {freq.total} past agreement{plural}" if freq.matching > 0
+           else f"never accepted in the {freq.total} past agreement{plural}"]
+    if freq.position is not None:
+        out.append(f"the firm's position on this wording: {freq.position}")
+    return tuple(out)
+
+
 def _adjust(dev: Deviation, freq: Frequency) -> Deviation:
     if dev.category != "substantive" or freq.total <= 0:
         return dataclasses.replace(dev, frequency=freq)
     share = freq.matching / freq.total
     severity = dev.severity * (1.0 - ACCEPTED_WEIGHT * share)
-    reasons = list(dev.reasons)
-    if freq.matching > 0:
-        reasons.append(f"accepted in {freq.matching} of {freq.total} past agreement{'s' * (freq.total != 1)}")
-    else:
-        reasons.append(f"never accepted in the {freq.total} past agreement{'s' * (freq.total != 1)}")
+    reasons = (*dev.reasons, *frequency_reasons(freq))
     if freq.position is not None:
         severity += POSITION_ADJUSTMENT.get(freq.position, 0)
-        reasons.append(f"the firm's position on this wording: {freq.position}")
     sev = int(min(100, max(0, round(severity))))
     return dataclasses.replace(dev, severity=sev, reasons=tuple(reasons), frequency=freq)
 

@@ -1,9 +1,10 @@
 """The review as a ranked plain-text table for a terminal (``counterdraft review`` without
-``--json``): rank, severity, the deviation's id (what ``counterdraft decide`` takes), clause
-number and heading (:func:`core.labels.clause_label`), how common the draft's wording is in
-the precedent set when one was used ("2/12": ``Frequency.matching`` of ``Frequency.total``
-agreements), and a one-line summary, within a given width (100 columns by default),
-followed by the caution.  Every cell is read from the review; nothing is recomputed."""
+``--json``): each deviation's number (its rank, :attr:`core.model.Deviation.rank`: what
+``counterdraft decide`` takes and every output shows), severity, clause number and heading
+(:func:`core.labels.clause_label`), how common the draft's wording is in the precedent set
+when one was used ("2/12": ``Frequency.matching`` of ``Frequency.total`` agreements), and a
+one-line summary, within a given width (100 columns by default), followed by the caution.
+Every cell is read from the review; nothing is recomputed."""
 
 from __future__ import annotations
 
@@ -14,12 +15,14 @@ from .. import CAUTION
 from ..labels import clause_label
 from ..model import Deviation, Review
 
-__all__ = ["SHOW_CHOICES", "format_review", "shown_deviations"]
+__all__ = ["NUMBER_HEADING", "SHOW_CHOICES", "format_review", "shown_deviations"]
 
 #: ``--show`` values: the default shows substantive and term deviations.
 SHOW_CHOICES = ("substantive", "all")
 _DEFAULT_CATEGORIES = frozenset({"substantive", "term"})
-_RANK_W, _SEV_W, _CLAUSE_W = 4, 3, 30
+_NUMBER_W, _SEV_W, _CLAUSE_W = 4, 3, 30
+#: Heading of the number column (the rank): the written form every output uses ("No. 7").
+NUMBER_HEADING = "No."
 #: Narrowest clause column, and the room the summary keeps before the clause column
 #: narrows (columns): on a narrow terminal both stay readable.
 _CLAUSE_MIN_W, _SUMMARY_MIN_W = 12, 24
@@ -71,27 +74,28 @@ def format_review(review: Review, *, show: str | None = None, width: int = 100) 
         lines.extend(textwrap.wrap(f"Note: {note}", width))
     lines.append("")
     rows = shown_deviations(review, show=show)
-    ids = [v.id for v in rows]
-    id_w = max([2, *map(len, ids)])
     common = [_common(v) for v in rows]
     with_common = any(c != NO_FREQUENCY for c in common)
     common_w = max([len("Common"), *map(len, common)]) if with_common else 0
-    fixed = _RANK_W + 1 + _SEV_W + 2 + id_w + 2 + 2 + (common_w + 2 if with_common else 0)
+    fixed = _NUMBER_W + 1 + _SEV_W + 2 + 2 + (common_w + 2 if with_common else 0)
     clause_w = max(_CLAUSE_MIN_W, min(_CLAUSE_W, width - fixed - _SUMMARY_MIN_W))
     summary_w = max(1, width - fixed - clause_w)
+    lines.extend(textwrap.wrap(
+        f"{NUMBER_HEADING} is each deviation's number (its rank by severity): the one "
+        "'counterdraft decide' takes.", width))
     if with_common:
         total = next(v.frequency.total for v in rows if v.frequency is not None)
         lines.extend(textwrap.wrap(
             f"Common: agreements of the precedent set ({total}) whose clause of the same type "
             "has the draft's wording (for a provision left out: lacks it).", width))
-    head = f"{'Rank':>{_RANK_W}} {'Sev':>{_SEV_W}}  {'Id':<{id_w}}  {'Clause':<{clause_w}}  "
+    head = f"{NUMBER_HEADING:>{_NUMBER_W}} {'Sev':>{_SEV_W}}  {'Clause':<{clause_w}}  "
     if with_common:
         head += f"{'Common':>{common_w}}  "
     lines.append(head + "Summary")
     lines.append("-" * width)
     for v, c in zip(rows, common):
         clause = clause_label(review, v, compact=True)
-        line = (f"{v.rank:>{_RANK_W}} {v.severity:>{_SEV_W}}  {v.id:<{id_w}}  "
+        line = (f"{v.rank:>{_NUMBER_W}} {v.severity:>{_SEV_W}}  "
                 f"{_cut(clause, clause_w):<{clause_w}}  ")
         if with_common:
             line += f"{c:>{common_w}}  "

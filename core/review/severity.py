@@ -43,6 +43,7 @@ __all__ = [
     "clause_types_for",
     "find_quantities",
     "guess_clause_type",
+    "is_weight_reason",
     "load_rules",
     "provision_change_severity",
     "text_change_severity",
@@ -557,6 +558,16 @@ def _type_reason(clause_type: str | None, kind: str, weight: float) -> str | Non
     if clause_type:
         return f"clause type: {clause_type.replace('_', ' ')} (weight {weight:g})"
     return None
+
+
+_WEIGHT_REASON = re.compile(r" \(weight [^()]*\)$")
+
+
+def is_weight_reason(reason: str) -> bool:
+    """Whether *reason* states only the weight the rule file gives the clause type ("clause
+    type: payment (weight 1.2)", "parties provision (weight 0.6)"): a detail of the ranking
+    that a document for readers outside the firm (the issues list) leaves out."""
+    return _WEIGHT_REASON.search(reason) is not None
 
 
 def text_change_severity(*, p_text: str, p_span: tuple[int, int], d_text: str,

@@ -23,11 +23,17 @@ def test_demo_reviews_decides_and_writes_every_output(tmp_path, capsys):
     assert main(["demo", "--out", str(tmp_path)]) == 0
     out = capsys.readouterr().out
     assert " ".join(out.split("\n\n")[0].split()) == CAUTION
-    assert "Rank Sev" in out and "illustration, not a recommendation" in out
+    assert " No. Sev" in out and "illustration, not a recommendation" in out
 
     record = json.loads((tmp_path / "review.json").read_text(encoding="utf-8"))
     decided = [d for d in record["decisions"] if d["action"] == "revert"]
     assert len(decided) == DEMO_REVERTS
+    # The demo names what it reverted by the numbers the table shows (the saved ranks), never
+    # by internal id.
+    rank = {d["id"]: d["rank"] for d in record["deviations"]}
+    numbers = sorted(rank[d["deviation"]] for d in decided)
+    assert f"reverted deviations {', '.join(map(str, numbers[:-1]))} and {numbers[-1]}," in out
+    assert not any(d["deviation"] in out.split() for d in decided)
 
     # ECMA-376 Part 1 §17.13: our structural check of every revision element we wrote.
     for name in ("counter-draft.docx", "redline.docx", "issues-list.docx"):

@@ -91,7 +91,8 @@ def test_moves_and_renamed_terms_can_only_be_accepted(scenario):
     move = next(d for d in rf.review.deviations if d.change == "move")
     term = next(d for d in rf.review.deviations if d.category == "term")
     for d in (move, term):
-        with pytest.raises(CounterdraftError):
+        # the message names the deviation by the number the user sees (its rank)
+        with pytest.raises(CounterdraftError, match=f"^deviation {d.rank} is a "):
             decide(rf, d.id, "revert")
         assert decide(rf, d.id, "accept").decisions[-1].action == "accept"
 
@@ -224,7 +225,15 @@ def test_reopening_after_the_draft_changed_keeps_the_decisions_that_still_apply(
     new_pay = _dev(again.review, "replace", draft_text="sixty")
     assert kept.deviation == new_pay.id and kept.action == "revert" and kept.note == "House term."
     assert new_pay.draft_provision != pay.draft_provision  # ids shifted; matched by words
-    assert any(liab.id in n and "no longer applies" in n for n in again.notes)
+    liab_clause = kept_clause = None
+    for n in again.notes:  # named by clause (the saved ids mean nothing to the reader)
+        if "no longer applies" in n:
+            liab_clause = n
+        if "now applies to deviation" in n:
+            kept_clause = n
+    assert liab_clause == "decision 'revert' on 4.1 no longer applies: those words changed; decide again"
+    assert kept_clause == (f"decision 'revert' on 2.1 now applies to deviation {new_pay.rank}"
+                           if new_pay.id != pay.id else None)
 
 
 def test_broken_review_files_are_refused_with_one_line(scenario, tmp_path):
@@ -263,13 +272,24 @@ def test_review_save_decide_export_from_the_command_line(scenario, tmp_path, cap
                  "--save", str(review_file)]) == 0
     data = json.loads(review_file.read_text(encoding="utf-8"))
     pay = next(d for d in data["deviations"] if "sixty" in d["draft_text"])
+    capsys.readouterr()
+    # By the internal id (saved scripts use it) and by the number the table shows (the rank);
+    # the answer names the deviation by its number.
     assert main(["decide", str(review_file), pay["id"], "revert", "--note", "Thirty days."]) == 0
-    assert main(["decide", str(review_file), "1", "accept"]) in (0,)  # by rank, as the table shows
+    assert capsys.readouterr().out.startswith(f"Deviation {pay['rank']}, 2.1 Payment: revert recorded in ")
+    top = next(d for d in data["deviations"] if d["rank"] == 1)
+    assert main(["decide", str(review_file), "1", "accept"]) == 0
+    assert capsys.readouterr().out.startswith("Deviation 1, ")
     assert main(["decide", str(review_file), pay["id"], "amend"]) == 2  # one line, exit 2
     err = capsys.readouterr().err
     assert "amend needs the new wording" in err and "Traceback" not in err
+    n = len(data["deviations"])
+    for unknown in (str(n + 1), "v999"):
+        assert main(["decide", str(review_file), unknown, "accept"]) == 2
+        err = capsys.readouterr().err
+        assert f"no deviation {unknown} (numbers run 1 to {n})" in err and err.count("\n") == 1
     decisions = json.loads(review_file.read_text(encoding="utf-8"))["decisions"]
-    assert {d["deviation"] for d in decisions} >= {pay["id"]}
+    assert {d["deviation"] for d in decisions} == {pay["id"], top["id"]}  # the file keeps ids
 
     out = tmp_path / "counter.docx"
     issues = tmp_path / "issues.csv"

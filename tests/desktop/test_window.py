@@ -50,7 +50,10 @@ def test_selecting_a_deviation_frames_its_row_and_scrolls_both_sides_to_it(make_
         "The Client shall pay each invoice within 60 days of receipt."
     assert [p_text[m.start:m.end] for m in pm if m.kind == "focus"] == ["30"]
     assert [d_text[m.start:m.end] for m in dm if m.kind == "focus"] == ["60"]
-    assert "Rank 2" in w.decision.details.toPlainText()
+    # The detail panel calls the deviation by its number (its rank), as every output does,
+    # and never by its internal id.
+    details = w.decision.details.toPlainText()
+    assert "No. 2 \u00b7 severity" in details and "v2" not in details.split()
 
 
 def test_keys_step_through_the_list_and_record_decisions(make_window, qtbot):
@@ -266,6 +269,10 @@ def test_the_demo_review_shows_exactly_the_engines_deviations(make_window, qtbot
     assert w.side.model.rowCount() == len(reference.pairs)
     assert w.ws.library is not None and w.ws.library.total == 12
     assert "How common" in w.deviations.model.HEADERS
+    # The first column is each deviation's number: the rank, as the issues list shows it.
+    assert w.deviations.model.HEADERS[0] == "No."
+    assert [w.deviations.model.index(r, 0).data() for r in range(5)] == [
+        str(d.rank) for d in sorted(reference.deviations, key=lambda d: d.rank)[:5]]
     assert not w.deviations.table.isColumnHidden(w.deviations.model.COMMON)
     assert w.status_text.text().startswith(f"{len(reference.deviations)} deviations")
 
@@ -372,6 +379,21 @@ def test_a_decision_then_an_export_writes_a_counter_draft(make_window, qtbot, de
     text = " ".join(cells)
     assert "Restore" in text or "revert" in text.lower()
     assert core.CAUTION.split(".")[0] in text
+    # File > Export > Issues list by rank: the same engine call with order="rank"; the CSV
+    # (read back with the standard library's csv module) lists the numbers in rank order,
+    # the renamed defined terms last.
+    import csv
+
+    by_rank = tmp_path / "issues.csv"
+    w.export("issues-list", str(by_rank), order="rank")
+    assert wait_for_outcome(qtbot, w) == "written"
+    close_message_boxes()
+    with open(by_rank, newline="", encoding="utf-8-sig") as fh:
+        records = list(csv.reader(fh))
+    assert records[0][0] == "No."
+    numbers = [int(r[0]) for r in records[1:] if not r[2].startswith("Defined term")]
+    assert numbers == sorted(numbers) and numbers[0] == top.rank == 1
+    assert w.act_export_il_rank.isEnabled()
 
 
 def test_saving_and_reopening_a_review_file_keeps_the_decisions(make_window, qtbot, demo_copy, tmp_path):

@@ -148,6 +148,8 @@ def test_decisions_that_cannot_be_written_are_reported(scenario, tmp_path):
                                                 Decision("v1", "amend", text="ninety (90)")])
     assert any("v99" in n for n in plan.notes)
     assert any("overlaps another decision" in n for n in plan.notes)
+    # a note on a deviation of the review names it by its number, as the review table does
+    assert "deviation 1 (2.1 Payment): overlaps another decision; skipped" in plan.notes
     assert len(plan.edits) == 1
 
 

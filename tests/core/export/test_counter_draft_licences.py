@@ -234,7 +234,8 @@ def rough_mpl(tmp_path_factory) -> tuple[Path, Review, list[str]]:
     return draft, review, rejected
 
 
-@settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@settings(max_examples=25, deadline=None, database=None,
+          suppress_health_check=[HealthCheck.function_scoped_fixture])
 @given(data=st.data(), words=_WORDS)
 def test_any_span_amended_with_any_words_is_written_exactly(rough_mpl, tmp_path, data, words):
     draft, review, rejected = rough_mpl

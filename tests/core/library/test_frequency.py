@@ -141,6 +141,13 @@ def test_ranking_reasons_and_ranks(reviews, scenario):
     for v in review.deviations:
         if v.category != "substantive":
             assert v.severity == before[v.id].severity and v.frequency is not None
+    # The reasons the figures add are frequency_reasons' (the issues list leaves them out).
+    from core.library.frequency import frequency_reasons
+
+    for v in review.deviations:
+        if v.category == "substantive":
+            added = frequency_reasons(v.frequency)
+            assert added and v.reasons == (*before[v.id].reasons, *added)
 
 
 def test_a_departure_accepted_often_ranks_below_one_never_accepted(reviews, scenario, demo_set):

@@ -63,29 +63,43 @@ def _rows(out: str) -> list[str]:
     return [line for line in out.splitlines() if line[:4].strip().isdigit()]
 
 
-def test_each_row_shows_the_id_that_decide_takes(tmp_path):
-    from core.decisions import decide, new_review_file
+def _header(out: str) -> str:
+    return next(line for line in out.splitlines() if line.split()[:2] == ["No.", "Sev"])
+
+
+def test_each_row_shows_the_number_that_decide_takes(tmp_path, capsys):
+    """The number column is the rank (Deviation.rank) and nothing else names a deviation:
+    no internal id is shown; `counterdraft decide` takes the number."""
+    import json
+
+    from core.cli import main
+    from core.decisions import new_review_file, save_review_file
     from core.labels import clause_label
 
     r = run_review(doc(DRAFT), doc(PRECEDENT))
     out = format_review(r, show="all")
-    header = next(line for line in out.splitlines() if line.startswith("Rank"))
-    assert header.split()[:4] == ["Rank", "Sev", "Id", "Clause"] and "Common" not in header
-    by_id = {v.id: v for v in r.deviations}
+    header = _header(out)
+    assert header.split()[:3] == ["No.", "Sev", "Clause"] and "Common" not in header and "Id" not in header
+    by_rank = {v.rank: v for v in r.deviations}
     rows = _rows(out)
     assert len(rows) == len(r.deviations)
     for row in rows:
-        rank, sev, dev_id = row.split()[:3]
-        v = by_id[dev_id]
-        assert (int(rank), int(sev)) == (v.rank, v.severity)
+        number, sev = row.split()[:2]
+        v = by_rank[int(number)]
+        assert int(sev) == v.severity
         assert clause_label(r, v, compact=True)[:20] in row
-    # the id is what `counterdraft decide` records a decision on
+    assert not any(word in {v.id for v in r.deviations} for row in rows for word in row.split())
+    # the number is what `counterdraft decide` records a decision on
     draft_path, precedent_path = tmp_path / "draft.txt", tmp_path / "precedent.txt"
-    draft_path.write_text("x", encoding="utf-8")
-    precedent_path.write_text("x", encoding="utf-8")
-    rf = new_review_file(str(draft_path), str(precedent_path), review=r)
-    first = rows[0].split()[2]
-    assert decide(rf, first, "accept").decisions[-1].deviation == first
+    draft_path.write_text(DRAFT, encoding="utf-8")
+    precedent_path.write_text(PRECEDENT, encoding="utf-8")
+    review_file = tmp_path / "r.json"
+    save_review_file(review_file, new_review_file(str(draft_path), str(precedent_path)))
+    first = int(rows[0].split()[0])
+    assert main(["decide", str(review_file), str(first), "accept"]) == 0
+    assert capsys.readouterr().out.startswith(f"Deviation {first}, ")
+    (decision,) = json.loads(review_file.read_text(encoding="utf-8"))["decisions"]
+    assert decision["deviation"] == by_rank[first].id  # the review file keeps the internal id
 
 
 def test_with_a_precedent_set_the_table_says_how_common_the_drafts_wording_is():
@@ -101,10 +115,10 @@ def test_with_a_precedent_set_the_table_says_how_common_the_drafts_wording_is():
         out = format_review(r, width=width)
         assert max(len(line) for line in out.splitlines()) <= width
     out = format_review(r)
-    assert "Common" in next(line for line in out.splitlines() if line.startswith("Rank"))
+    assert "Common" in _header(out)
     assert "precedent set (12)" in out
     for row in _rows(out):
-        v = next(v for v in r.deviations if v.id == row.split()[2])
+        v = next(v for v in r.deviations if v.rank == int(row.split()[0]))
         assert ("2/12" in row.split()) == (v.category == "substantive")
         if v.category == "term":
             assert " - " in row

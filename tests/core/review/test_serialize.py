@@ -53,8 +53,18 @@ def test_demo_review_is_valid_and_exactly_shaped(demo_review):
     assert set(obj["pairs"][0]) == {"draft", "precedent", "status", "similarity", "frequency"}
     assert set(obj["deviations"][0]) == {
         "id", "rank", "severity", "category", "change", "draft_provision", "precedent_provision",
-        "precedent_text", "draft_text", "reasons", "frequency"}
+        "precedent_text", "draft_text", "reasons", "frequency", "precedent_text_span", "draft_text_span"}
     assert all(v["frequency"] is None for v in obj["deviations"])
+    # The spans locate the words shown in the document objects' own provision texts.
+    provs = {(side, p["id"]): p for side in ("draft", "precedent") for p in obj[side]["provisions"]}
+    spanned = [v for v in obj["deviations"] if v["draft_text_span"] is not None]
+    assert len(spanned) > 100
+    for v in spanned:
+        for side in ("draft", "precedent"):
+            a, b = v[f"{side}_text_span"]
+            p = provs[(side, v[f"{side}_provision"])]
+            # the words shown, in the provision's text (or, for a heading change, its heading)
+            assert v[f"{side}_text"] in (p["text"][a:b], (p["heading"] or "")[a:b])
     assert [v["rank"] for v in obj["deviations"]] == list(range(1, len(obj["deviations"]) + 1))
 
 
@@ -80,9 +90,10 @@ def test_schema_rejects_what_the_fields_rule_out():
     v = validator()
     v.validate(obj)
     (ins,) = [d for d in obj["deviations"] if d["change"] == "insert"]
+    assert ins["precedent_text"] == "" and ins["draft_text"] == "not"  # an insert of words
     bad = copy.deepcopy(obj)
-    next(d for d in bad["deviations"] if d["id"] == ins["id"])["precedent_text"] = "x"
-    assert not v.is_valid(bad)  # an insert has no precedent words
+    next(d for d in bad["deviations"] if d["id"] == ins["id"])["draft_text_span"] = [1, 2, 3]
+    assert not v.is_valid(bad)  # a span is [start, end]
     bad = copy.deepcopy(obj)
     bad["deviations"][0]["category"] = "cosmetic"
     assert not v.is_valid(bad)

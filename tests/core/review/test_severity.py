@@ -127,6 +127,23 @@ def test_weight_by_clause_type_orders_equal_changes():
     assert r1[0].startswith("Clause 12 removed")
 
 
+def test_the_weight_reason_is_told_apart_from_the_findings():
+    """is_weight_reason picks out exactly the reason that states the rule file's weight (the
+    issues list leaves it out), never a finding."""
+    from core.review.severity import is_weight_reason
+
+    rules = default_rules()
+    _, reasons = text_change_severity(p_text="within thirty (30) days", p_span=(7, 18),
+                                      d_text="within sixty (60) days", d_span=(7, 17),
+                                      clause_type="payment", kind="clause", rules=rules)
+    _, added = provision_change_severity(added=True, label="Parties", text="the parties are",
+                                         clause_type=None, kind="parties", rules=rules)
+    for found in (reasons, added):
+        assert [is_weight_reason(r) for r in found] == [False] * (len(found) - 1) + [True]
+    assert reasons[-1] == f"clause type: payment (weight {rules.weights['payment']:g})"
+    assert added[-1] == f"parties provision (weight {rules.kind_weights['parties']:g})"
+
+
 def test_clause_types_from_headings_and_parents():
     rules = default_rules()
     assert guess_clause_type("Limitation of Liability", rules=rules) == "limitation_of_liability"
