@@ -795,12 +795,23 @@ def _parts(full: str) -> list[str]:
     return ([head] if head else []) + list(items)
 
 
-def _shown(full: str, typed_head: str) -> str:
-    """A full number as the reference would write it (roman heads in roman)."""
+def _shown(full: str, typed: str) -> str:
+    """A full number written the way *typed* writes numbers: a roman head stays roman, a
+    run-on item stays run-on ("6b"); *typed* may be shorter (a relative "(c)")."""
     parts = _parts(full)
-    if not parts or full.startswith("("):
-        return full
-    return _styled("head", typed_head, parts[0]) + _join("", tuple(parts[1:]))
+    comps = _components(typed)
+    offset = len(parts) - len(comps)
+    out: list[str] = []
+    for k, part in enumerate(parts):
+        natural = "head" if k == 0 and not full.startswith("(") else "item"
+        kind, typed_part = natural, ""
+        if 0 <= k - offset < len(comps):
+            start, end, kind = comps[k - offset]
+            typed_part = typed[start:end].strip("()")
+            if (kind == "head") != (natural == "head"):
+                kind, typed_part = natural, ""
+        out.append(_styled(kind, typed_part, part))
+    return "".join(out)
 
 
 def _rewrite(text: str, n: RefNumber, old_full: str, new_full: str,
@@ -836,12 +847,15 @@ def _rewrite(text: str, n: RefNumber, old_full: str, new_full: str,
 
 
 def _keyword_shown(text: str, ref: Reference) -> str:
-    """The reference's keyword, singular, in the case it is typed in ("Section")."""
+    """The reference's keyword as typed, made singular ("Sections" -> "Section")."""
     km = _KEYWORD_RE.match(text, ref.start)
-    typed = km.group("kw") if km is not None else ref.keyword
-    if typed.isupper():
-        return ref.keyword.upper()
-    return ref.keyword[:1].upper() + ref.keyword[1:] if typed[:1].isupper() else ref.keyword
+    word = km.group("kw") if km is not None else ref.keyword
+    low = word.lower()
+    if low.endswith("ices"):
+        return word[:-4] + ("IX" if word.isupper() else "ix")
+    if low.endswith("xes"):
+        return word[:-2]
+    return word[:-1] if low.endswith("s") else word
 
 
 def _ordinal(part: str) -> int | None:
@@ -888,9 +902,9 @@ def _plan(index: _Index, text: str, ref: Reference, resolutions: tuple[Resolutio
                                          f"no provision is numbered {kw} {n.number}"))
             continue
         t = index.info.position[r.target]
-        typed_head = text[n.start:n.end].split("(")[0].strip()
+        typed = text[n.start:n.end]
         old_full = (index.key[t] or "") + r.tail
-        shown = _shown(old_full, typed_head)
+        shown = _shown(old_full, typed)
         new_key = new_of(t)
         if new_key is None:
             heading = index.info.provisions[t].heading
@@ -907,7 +921,7 @@ def _plan(index: _Index, text: str, ref: Reference, resolutions: tuple[Resolutio
         if edit is not None:
             start, end, new = edit
             changes.append(_Change(start, end, text[start:end], new, t,
-                                   phrase(kw, shown, _shown(new_full, typed_head))))
+                                   phrase(kw, shown, _shown(new_full, typed))))
     problems.extend(_range_problems(text, ref, kw, ends))
     return changes, problems
 
