@@ -822,14 +822,13 @@ def _rewrite(text: str, n: RefNumber, old_full: str, new_full: str,
     comps = _components(typed)
     old_p, new_p = _parts(old_full), _parts(new_full)
     m = len(comps)
-    continuation = not n.relative and n.link and comps and comps[0][2] == "item"
+    continuation = bool(not n.relative and n.link and comps and comps[0][2] == "item")
     if continuation and previous_new is not None and len(new_p) >= m:
         if _parts(previous_new)[:len(new_p) - m] != new_p[:len(new_p) - m]:
             return n.start, n.end, new_full  # "(b)" can no longer ride on the number before
     if len(old_p) != len(new_p) or m > len(old_p):
-        if old_full == new_full:
-            return None
-        return n.start, n.end, new_full if m >= len(old_p) else _join("", tuple(new_p[-m:]))
+        # The depth changed (an item became a clause): write the whole number anew.
+        return None if old_full == new_full else (n.start, n.end, _shown(new_full, typed))
     differ = [j for j in range(m) if old_p[len(old_p) - m + j] != new_p[len(new_p) - m + j]]
     if not differ:
         return None
@@ -1032,8 +1031,10 @@ def renumber_references(doc: Document, new_numbers: Mapping[str, str | None]
     *new_numbers* maps a provision id to its full number after the change, written as
     :func:`core.review.docinfo.build_docinfo` writes full numbers (``"13"``, ``"13.2(b)"``,
     ``"IV"``, ``"A"``; a leading keyword such as ``"Section 13"`` is accepted), or to None
-    when the change removes the provision.  A provision it leaves out keeps its number or
-    follows its parent (see :func:`_new_numbers`).  Every edit replaces only the part of a
+    when the change removes the provision.  A provision it leaves out keeps its number,
+    except that it follows its parent: removed with it, or renumbered with it when its
+    number extends the parent's ("12.1" and "12(b)" become "13.1" and "13(b)" when 12
+    becomes 13), so the top-level numbers are enough for a top-level shift.  Every edit replaces only the part of a
     number that changes and carries its reason; references to removed provisions, ambiguous
     or missing ones and ranges that now span a different number of provisions come back as
     issues.  External references are never touched.  Edits and issues are in document
