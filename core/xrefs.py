@@ -295,6 +295,18 @@ def _roman_value(tok: str) -> int | None:
     return total
 
 
+#: Single letters read as roman figures after "Article" or "Part"; any other single capital
+#: there is a letter ("Part C" is the third part, not the hundredth).
+_ROMAN_LETTERS = frozenset("IVX")
+
+
+def _roman_head(head: str) -> int | None:
+    """The value of an article's or part's roman number ("IV" -> 4), None for a letter."""
+    if len(head) == 1 and head.upper() not in _ROMAN_LETTERS:
+        return None
+    return _roman_value(head)
+
+
 def _roman(value: int, *, upper: bool) -> str:
     out = []
     for sym, val in _ROMAN_VALUES:
@@ -330,7 +342,7 @@ def _canonical(number: str, namespace: str) -> str:
     """The look-up form of a full number: roman articles and parts by value ("IV" -> "4")."""
     head, items = _split("".join(number.split()))
     if namespace in _ROMAN_NAMESPACES and head.isalpha() and head.isupper():
-        value = _roman_value(head)
+        value = _roman_head(head)
         if value is not None:
             head = str(value)
     return _join(head, items)
@@ -395,7 +407,7 @@ def _read_number(text: str, pos: int, namespace: str, *, previous: RefNumber | N
     hm = _HEAD_RE.match(text, pos)
     if hm is not None and hm.group("alpha") is not None:
         alpha = hm.group("alpha")
-        roman_ok = namespace in _ROMAN_NAMESPACES and _roman_value(alpha) is not None
+        roman_ok = namespace in _ROMAN_NAMESPACES and _roman_head(alpha) is not None
         letter_ok = namespace in _LETTER_NAMESPACES and len(alpha) == 1
         if not (roman_ok or letter_ok):
             hm = None
@@ -680,8 +692,7 @@ def _resolve_relative(index: _Index, ref: Reference, n: RefNumber, pos: int) -> 
     """Items counted among the enclosing provision's items, then its siblings', then up."""
     _head, items = _split(n.number)
     first = f"({items[0]})"
-    box = _enclosing(index, pos, ref.scope[1]) if ref.scope and ref.scope[0] == "enclosing" else None
-    cur: int | None = pos
+    box, cur = _relative_start(index, ref, pos)
     for _ in range(MAX_DEPTH):
         hits = index.items.get((cur if cur is not None else -1, first), ())
         if hits and ref.direction and len(hits) > 1:
@@ -704,6 +715,18 @@ def _resolve_relative(index: _Index, ref: Reference, n: RefNumber, pos: int) -> 
                               tail=_join("", items))
         cur = None if cur == box else index.info.parent_pos[cur]
     return Resolution(n, "missing")
+
+
+def _relative_start(index: _Index, ref: Reference, pos: int) -> tuple[int | None, int | None]:
+    """(the provision the search may not climb above, where it starts) for a relative item:
+    from *pos* itself, inside "this clause" for "of this clause", and from the container
+    for "paragraph (a) of Schedule 2"."""
+    if ref.scope is None or ref.scope[0] == "document":
+        return None, pos
+    if ref.scope[0] == "enclosing":
+        return _enclosing(index, pos, ref.scope[1]), pos
+    boxes = _candidates(index, *ref.scope)
+    return (boxes[0], boxes[0]) if len(boxes) == 1 else (None, pos)
 
 
 def _descend(index: _Index, n: RefNumber, start: int, rest: tuple[str, ...]) -> Resolution:
@@ -784,7 +807,7 @@ def _components(typed: str) -> list[tuple[int, int, str]]:
 def _styled(kind: str, typed: str, token: str) -> str:
     """*token* written as *typed* is: roman stays roman, an item keeps its brackets."""
     if kind == "head":
-        if typed.isalpha() and token.isdigit() and _roman_value(typed) is not None:
+        if typed.isalpha() and token.isdigit() and _roman_head(typed) is not None:
             return _roman(int(token), upper=typed.isupper())
         return token
     return token if kind == "bare" else f"({token})"

@@ -672,6 +672,24 @@ def test_roman_articles_are_renumbered_in_roman():
     check_at(doc, edits)
 
 
+def test_parts_by_letter_and_by_roman_figure():
+    # inline example: "Part C" is a letter (the third part), "Part II" a roman figure; an
+    # item of a named schedule is found inside that schedule
+    rows = (("p1", "1", None, "see paragraph (b) of Schedule 2, Part C and Part II"),
+            ("p2", "Schedule 2", None, ""), ("p3", "(a)", "p2", ""), ("p4", "(b)", "p2", ""),
+            ("p5", "Part C", None, ""), ("p6", "Part II", None, ""))
+    provs = tuple(Provision(pid, "schedule" if num.startswith("Schedule") else "clause", num,
+                            None, 1, parent, text) for pid, num, parent, text in rows)
+    doc = Document("hand.txt", provs, ())
+    text = doc.provisions[0].text
+    targets = [res.target for r in find_references(text) for res in resolve(r, doc, within=provs[0])]
+    assert targets == ["p4", "p2", "p5", "p6"]
+    edits, issues = renumber_references(doc, {"p4": "2(c)", "p5": "Part D", "p6": "III"})
+    assert apply(text, list(edits)) == "see paragraph (c) of Schedule 2, Part D and Part III"
+    assert [e.reason for e in edits] == ["paragraph 2(b) is now paragraph 2(c)",
+                                         "Part C is now Part D", "Part II is now Part III"]
+
+
 def test_a_range_that_changes_width_is_reported():
     # inline example: "Sections 3 to 5" when a new 4 is inserted covers one provision more
     doc = hand(("p1", "3", None, ""), ("p2", "4", None, ""), ("p3", "5", None, ""),
