@@ -909,47 +909,52 @@ def _plan(index: _Index, text: str, ref: Reference, resolutions: tuple[Resolutio
     changes: list[_Change] = []
     problems: list[_Problem] = []
     ends: list[tuple[str, str] | None] = []  # per number: (old full, new full) when kept
-    previous_new: str | None = None
+    previous_new: str | None = None  # what an item continuing this number rides on
     for r in resolutions:
         n = r.number
         ends.append(None)
-        if r.status == "ambiguous":
-            problems.append(_Problem(n.number, "ambiguous",
-                                     f"{kw} {n.number} could mean any of {len(r.candidates)} "
-                                     f"provisions numbered {n.number}"))
-            continue
-        if r.status != "found" or r.target is None:
-            if r.status == "missing":
-                problems.append(_Problem(n.number, "missing",
-                                         f"no provision is numbered {kw} {n.number}"))
-            continue
-        t = index.info.position[r.target]
-        typed = text[n.start:n.end]
-        old_full = (index.key[t] or "") + r.tail
-        shown = _shown(old_full, typed)
-        new_key = new_of(t)
-        if new_key is None:
-            heading = index.info.provisions[t].heading
-            named = f' ("{heading}")' if heading else ""
-            why = (f"{kw} {shown}{named} is removed by the change" if gone_kind == "gone"
-                   else f"{kw} {shown}{named} of the precedent has no counterpart here")
-            problems.append(_Problem(n.number, gone_kind, why))
+        t = index.info.position[r.target] if r.status == "found" and r.target else None
+        new_key = new_of(t) if t is not None else None
+        if t is None or new_key is None:
+            problem = _problem(index, kw, r, t, gone_kind=gone_kind, typed=text[n.start:n.end])
+            problems.extend([problem] if problem is not None else [])
             previous_new = None
             continue
-        new_full = new_key + r.tail
+        typed = text[n.start:n.end]
+        old_full, new_full = (index.key[t] or "") + r.tail, new_key + r.tail
         ends[-1] = (old_full, new_full)
         edit = _rewrite(text, n, old_full, new_full, previous_new)
         previous_new = new_full
         if edit is not None:
             start, end, new = edit
             changes.append(_Change(start, end, text[start:end], new, t,
-                                   phrase(kw, shown, _shown(new_full, typed))))
-    problems.extend(_range_problems(text, ref, kw, ends))
+                                   phrase(kw, _shown(old_full, typed), _shown(new_full, typed))))
+    problems.extend(_range_problems(ref, kw, ends))
     return changes, problems
 
 
-def _range_problems(text: str, ref: Reference, kw: str,
-                    ends: list[tuple[str, str] | None]) -> list[_Problem]:
+def _problem(index: _Index, kw: str, r: Resolution, t: int | None, *, gone_kind: str,
+             typed: str) -> _Problem | None:
+    """Why the number of *r* cannot be kept true (None for an external reference)."""
+    n = r.number
+    if r.status == "ambiguous":
+        return _Problem(n.number, "ambiguous", f"{kw} {n.number} could mean any of "
+                                               f"{len(r.candidates)} provisions numbered {n.number}")
+    if r.status == "missing":
+        return _Problem(n.number, "missing", f"no provision is numbered {kw} {n.number}")
+    if t is None:
+        return None
+    shown = _shown((index.key[t] or "") + r.tail, typed)
+    heading = index.info.provisions[t].heading
+    named = f' ("{heading}")' if heading else ""
+    why = (f"{kw} {shown}{named} is removed by the change" if gone_kind == "gone"
+           else f"{kw} {shown}{named} of the precedent has no counterpart here")
+    return _Problem(n.number, gone_kind, why)
+
+
+def _range_problems(ref: Reference, kw: str, ends: list[tuple[str, str] | None]) -> list[_Problem]:
+    """A range whose two ends, renumbered, span a different number of provisions: the
+    provisions inserted into it or taken out of it change what it covers."""
     out: list[_Problem] = []
     for j in range(1, len(ref.numbers)):
         a, b = ends[j - 1], ends[j]
@@ -957,10 +962,11 @@ def _range_problems(text: str, ref: Reference, kw: str,
             continue
         before, after = _range_width(a[0], b[0]), _range_width(a[1], b[1])
         if before is not None and after is not None and before != after:
-            words = text[ref.numbers[j - 1].start:ref.numbers[j].end]
             out.append(_Problem("", "range",
-                                f"{kw}s {words} spanned {before + 1} provisions and now span "
-                                f"{after + 1}: check that the range still covers what it should"))
+                                f"{kw} {ref.numbers[j - 1].number} to {ref.numbers[j].number} "
+                                f"covered {before + 1} provisions and now covers {after + 1} "
+                                "after renumbering: check that the range still means what "
+                                "it should"))
     return out
 
 

@@ -698,7 +698,7 @@ def test_a_range_that_changes_width_is_reported():
     assert [(e.old, e.new) for e in edits] == [("5", "6")]
     [issue] = issues
     assert issue.kind == "range" and issue.words == "Sections 3 to 5"
-    assert "spanned 3 provisions and now span 4" in issue.why
+    assert "Section 3 to 5 covered 3 provisions and now covers 4" in issue.why
     # all three move together: the range keeps its width, no issue
     edits, issues = renumber_references(doc, {"p1": "4", "p2": "5", "p3": "6", "p4": "7"})
     assert apply(doc.provision("p4").text, list(edits)) == "Sections 4 to 6 apply" and issues == ()
