@@ -175,6 +175,11 @@ _CITATION_BEFORE_RE = re.compile(
     r"Order)|(?:[A-Z][\w-]*\s+){1,8}(?:License|Licence|Agreement|Contract))(?:\s+\d{4})?\s*,\s*$")
 #: How far back another instrument's name is looked for (characters: eight words).
 _CITATION_WINDOW = 80
+#: An acronym right before the keyword names another instrument: "FAR Part 27", "GDPR
+#: Article 28" (not in a passage set in capitals, where every word is in capitals).
+_ACRONYM_BEFORE_RE = re.compile(r"(?<![\w.])[A-Z][A-Z0-9&-]*[A-Z0-9]\s+$")
+#: A number followed by a colon and figures is a statute's ("article 7:900 Civil Code").
+_STATUTE_NUMBER_AFTER_RE = re.compile(r":\d")
 
 _ROMAN_RE = re.compile(r"^M{0,3}(?:CM|CD|D?C{0,3})(?:XC|XL|L?X{0,3})(?:IX|IV|V?I{0,3})$")
 _ROMAN_VALUES = (("M", 1000), ("CM", 900), ("D", 500), ("CD", 400), ("C", 100), ("XC", 90),
@@ -395,6 +400,8 @@ def _read_reference(text: str, km: re.Match[str]) -> Reference | None:
     cm = _CITATION_BEFORE_RE.search(before)
     if cm is not None and (cm.group("pre") or "").lower() not in ("this", "these"):
         external = True
+    if not km.group("kw").isupper() and _ACRONYM_BEFORE_RE.search(before):
+        external = True
     return Reference(km.start(), end, keyword, tuple(numbers), external=external,
                      direction=direction, scope=None if external else scope)
 
@@ -423,7 +430,8 @@ def _read_number(text: str, pos: int, namespace: str, *, previous: RefNumber | N
         end = im.end()
     if not head and not items:
         return None
-    if end < len(text) and (text[end].isalnum() or text[end] == "_"):
+    if end < len(text) and (text[end].isalnum() or text[end] == "_"
+                            or _STATUTE_NUMBER_AFTER_RE.match(text, end)):
         return None
     if head and (_QUANTITY_AFTER_RE.match(text, end) or _DATE_AFTER_RE.match(text, end)):
         return None
@@ -499,6 +507,7 @@ class _Index:
     doc: Document
     info: DocInfo
     namespace: tuple[str, ...]  # per position: the numbering the provision counts in
+    keyword: tuple[str, ...]  # per position: its label's keyword ("article"; "" for "7.2")
     key: tuple[str | None, ...]  # per position: the full number in its look-up form
     by_key: dict[tuple[str, str], tuple[int, ...]]  # (namespace, key) -> positions
     items: dict[tuple[int, str], tuple[int, ...]]  # (parent position or -1, "(c)") -> positions
@@ -506,20 +515,21 @@ class _Index:
     window: tuple[tuple[int, int], ...]  # blocks (first, last) where the heading may sit
 
 
-def _own_namespace(prov: Provision, parent_space: str | None, is_item: bool) -> str:
-    if prov.kind == "schedule":
-        return "schedule"
-    if is_item and parent_space is not None:
-        return parent_space  # "(a)" under Article IV counts in the articles' numbering
+def _label_keyword(prov: Provision, parent_keyword: str | None, is_item: bool) -> str:
+    """The keyword a provision's number is labelled with ("Article IV" -> "article"), an
+    item's being its parent's ("(a)" under Article IV counts among the articles); "" for a
+    bare number ("7.2")."""
+    if is_item and parent_keyword is not None:
+        return parent_keyword
     m = _LABEL_KEYWORD_RE.match(prov.number or "")
-    keyword = _KEYWORDS.get(m.group(1).lower()) if m else None
-    return _NAMESPACE[keyword] if keyword else "clause"
+    return _KEYWORDS.get(m.group(1).lower(), "") if m else ""
 
 
 def _build_index(doc: Document) -> _Index:
     info = build_docinfo(doc)
     parent = info.parent_pos
     spaces: list[str] = []
+    keywords: list[str] = []
     keys: list[str | None] = []
     by_key: dict[tuple[str, str], list[int]] = {}
     items: dict[tuple[int, str], list[int]] = {}
@@ -527,10 +537,12 @@ def _build_index(doc: Document) -> _Index:
     for i, prov in enumerate(info.provisions):
         par = parent[i]
         label = item_label(prov.number) if prov.number else None
-        space = _own_namespace(prov, spaces[par] if par is not None else None, label is not None)
+        keyword = _label_keyword(prov, keywords[par] if par is not None else None, label is not None)
+        space = "schedule" if prov.kind == "schedule" else _NAMESPACE.get(keyword, "clause")
         full = info.full_number[i]
         key = _canonical(full, space) if full else None
         spaces.append(space)
+        keywords.append(keyword)
         keys.append(key)
         if key:
             by_key.setdefault((space, key), []).append(i)
@@ -538,7 +550,7 @@ def _build_index(doc: Document) -> _Index:
             items.setdefault((par if par is not None else -1, label), []).append(i)
         schedule_of.append(i if prov.kind == "schedule" else
                            (schedule_of[par] if par is not None else None))
-    return _Index(doc, info, tuple(spaces), tuple(keys),
+    return _Index(doc, info, tuple(spaces), tuple(keywords), tuple(keys),
                   {k: tuple(v) for k, v in by_key.items()},
                   {k: tuple(v) for k, v in items.items()}, tuple(schedule_of),
                   _heading_windows(info.provisions, len(doc.blocks)))
@@ -666,7 +678,8 @@ def _enclosing(index: _Index, pos: int, space: str) -> int | None:
 
 def _narrow(index: _Index, ref: Reference, found: tuple[int, ...], pos: int) -> tuple[int, ...]:
     """Candidates kept by the qualifier, then the referring provision's part of the document,
-    then above/below."""
+    then the one labelled with the reference's own keyword ("Section 2" is the provision
+    labelled "Section 2", not a list item "2." elsewhere), then above/below."""
     cands = list(found)
     if ref.scope is not None:
         kind, value = ref.scope
@@ -682,6 +695,9 @@ def _narrow(index: _Index, ref: Reference, found: tuple[int, ...], pos: int) -> 
         part = None if ref.keyword in _BODY_KEYWORDS else index.schedule_of[pos]
         same = [c for c in cands if index.schedule_of[c] == part]
         cands = same or cands
+    if len(cands) > 1:
+        labelled = [c for c in cands if index.keyword[c] == ref.keyword]
+        cands = labelled or cands
     if len(cands) > 1 and ref.direction:
         side = [c for c in cands if (c < pos if ref.direction == "above" else c > pos)]
         cands = side or cands

@@ -298,6 +298,7 @@ def test_inline_qualifiers_and_directions():
     "this clause applies",  # no number
     "in whole or in part of",  # "part" without a number
     "Section 2006 of the Code",  # four figures: a year or a statute's section
+    "within the meaning of article 7:900 of the Civil Code",  # a statute's numbering
 ])
 def test_not_references(text):
     assert [r for r in find_references(text) if not r.external] == []
@@ -311,10 +312,11 @@ def test_not_references(text):
     "under 15 U.S.C. Section 78",
     "clause 4 of the Escrow Agreement",
     "Article 6(1)(f) of the GDPR",
+    "under GDPR Article 28 and FAR Part 27",
 ])
 def test_inline_external(text):
-    [ref] = find_references(text)
-    assert ref.external
+    refs = find_references(text)
+    assert refs and all(r.external for r in refs)
 
 
 def test_own_document_is_not_external():
@@ -530,6 +532,17 @@ ARTICLES = """
 
     The rates.
 """
+
+
+def test_a_labelled_section_wins_over_a_bare_list_number():
+    # inline example: "Section 2" names the provision labelled "Section 2", not a numbered
+    # list item "2." elsewhere; "clause 2" (no provision labelled "Clause 2") stays ambiguous
+    doc = hand(("p1", "Section 1", None, "see Section 2 and clause 2"), ("p2", "1", "p1", ""),
+               ("p3", "2", "p1", ""), ("p4", "Section 2", None, ""))
+    text = doc.provisions[0].text
+    section, clause = (resolve(r, doc, within=doc.provisions[0])[0] for r in find_references(text))
+    assert section.target == "p4"
+    assert clause.status == "ambiguous" and clause.candidates == ("p3", "p4")
 
 
 def test_roman_articles_sections_and_annexes():
