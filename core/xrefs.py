@@ -151,7 +151,7 @@ _DATE_AFTER_RE = re.compile(
     r"December)(?:\s+|,\s*)\d{2,4}\b")
 _DIRECTION_RE = re.compile(r"[^\S\n]*,?[^\S\n]*(?P<dir>above|below)\b", re.IGNORECASE)
 _HERE_RE = re.compile(r"[^\S\n]+(?:hereof|hereto|herein|hereunder)\b", re.IGNORECASE)
-_QUALIFIER_RE = re.compile(r"[^\S\n]*,?\s+(?:of|in|under|to)\s+", re.IGNORECASE)
+_QUALIFIER_RE = re.compile(r"[^\S\n]*,?\s+(?:of|in|under|to|from)\s+", re.IGNORECASE)
 _THIS_RE = re.compile(r"(?:this|these)\s+(?P<word>[A-Za-z-]+)", re.IGNORECASE)
 #: A capitalised name after "of": "the Companies Act 2006", "the GNU GPL", "the Treaty on
 #: the Functioning of the European Union", "Regulation (EU) 2016/679".
@@ -168,11 +168,13 @@ _SELF_WORDS = frozenset(
 _ACRONYM_RE = re.compile(r"[A-Z][A-Z0-9.&-]*[A-Z0-9]\.?")
 #: Another instrument named right before the keyword: a code citation ("C.F.R. Sections
 #: 730 through 774") or a capitalised name and a comma ("the Companies Act 2006, section
-#: 16", "the GNU Affero General Public License, section 13"), unless "this" names it.
+#: 16", "the GNU Affero General Public License, section 13", "... License version 2,
+#: section 3"), unless "this" names it.
 _CITATION_BEFORE_RE = re.compile(
     r"(?:\bU\.?\s?S\.?\s?C\.?|\bC\.?\s?F\.?\s?R\.?)\s*$|(?:(?P<pre>\w+)\s+)?"
     r"(?:(?:[A-Z][\w-]*\s+){0,8}(?:Act|Acts|Code|Regulations?|Directive|Treaty|Convention|Rules|"
-    r"Order)|(?:[A-Z][\w-]*\s+){1,8}(?:License|Licence|Agreement|Contract))(?:\s+\d{4})?\s*,\s*$")
+    r"Order)|(?:[A-Z][\w-]*\s+){1,8}(?:License|Licence|Agreement|Contract))"
+    r"(?:\s+\d{4}|\s+(?:version|v\.?)\s*\d+(?:\.\d+)?)?\s*,\s*$")
 #: How far back another instrument's name is looked for (characters: eight words).
 _CITATION_WINDOW = 80
 #: An acronym right before the keyword names another instrument: "FAR Part 27", "GDPR

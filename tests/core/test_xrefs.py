@@ -313,6 +313,8 @@ def test_not_references(text):
     "clause 4 of the Escrow Agreement",
     "Article 6(1)(f) of the GDPR",
     "under GDPR Article 28 and FAR Part 27",
+    "as the Example Public License version 2, section 3, requires",
+    "Sections 4(c) and 4(f)(iii) from the XYZPL",
 ])
 def test_inline_external(text):
     refs = find_references(text)
