@@ -31,7 +31,9 @@ GPL`` (a capitalised name with a word such as Act, Regulation, Directive, Code, 
 an acronym), ``C.F.R. Sections 730 through 774`` (after a statute citation).  Not
 references: a number followed by a unit or a month (``clause 3 days``, ``Schedule 1 January
 2024``), an amount (``Section 5,000``), a keyword without a number (``this clause``: it
-names no number, so no renumbering can make it untrue).
+names no number, so no renumbering can make it untrue).  Not read: a number with a capital
+suffix (``clause 14A``; core.structure does not number provisions so either) and an item
+parted from its number by a space (``clause 5 (a)`` is read as clause 5).
 
 How a number is resolved
 ------------------------
@@ -605,7 +607,8 @@ def _index_of(doc: Document) -> _Index:
 
 def resolve(ref: Reference, doc: Document, *, within: Provision) -> tuple[Resolution, ...]:
     """What each number of *ref* names in *doc*, *ref* being typed in *within*'s words (its
-    text or heading): one :class:`Resolution` per number, in order."""
+    text or heading): one :class:`Resolution` per number, in order.  ValueError when
+    *within* is not a provision of *doc*."""
     index = _index_of(doc)
     pos = index.info.position.get(within.id)
     if pos is None:
