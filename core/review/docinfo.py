@@ -9,7 +9,7 @@ from dataclasses import dataclass
 
 from ..model import Document, Provision
 
-__all__ = ["DocInfo", "PARTY_ROLE_WORDS", "build_docinfo", "party_role"]
+__all__ = ["DocInfo", "PARTY_ROLE_WORDS", "build_docinfo", "item_label", "party_role"]
 
 #: Labels the parties give themselves, by side of the deal (common practice in commercial
 #: contracts, no source).  A party label on one side is never mapped onto the other side.
@@ -67,6 +67,31 @@ class DocInfo:
     party_roles: dict[str, str | None]
 
 
+#: Number keywords a label may start with (those core.structure reads as labels); a full
+#: number is written without them ("Section 14.3" -> "14.3", "Exhibit A" -> "A").
+_KEYWORD_PREFIX_RE = re.compile(
+    r"^(?:schedule|clause|section|article|part|annexure|annex|appendix|exhibit|attachment|"
+    r"addendum)", re.IGNORECASE)
+#: A list item's own label in any of the styles core.structure reads: "(b)", "b)", "b"
+#: (from "b."), "(iv)", "1)".  A bare number ("1") is a clause number, not an item.
+_LIST_ITEM_RE = re.compile(r"^(?:\((?P<tok>[A-Za-z]{1,4}|\d{1,3})\)|(?P<close>[A-Za-z]{1,4}|\d{1,3})\)"
+                           r"|(?P<dot>[A-Za-z]{1,4}))$")
+
+
+def item_label(number: str) -> str | None:
+    """A list item's own label written as ``"(b)"``, whichever style the document uses
+    (``"(b)"``, ``"b)"``, ``"b"`` from ``"b."``); None for a clause number (``"7"``,
+    ``"7.2"``, ``"Schedule 2"``).
+
+    >>> item_label("b)"), item_label("(iv)"), item_label("7.2")
+    ('(b)', '(iv)', None)
+    """
+    m = _LIST_ITEM_RE.match("".join(number.split()).rstrip(".:"))
+    if m is None:
+        return None
+    return f"({m.group('tok') or m.group('close') or m.group('dot')})"
+
+
 def _namespace(p: Provision) -> str:
     return "schedule" if p.kind == "schedule" else "clause"
 
@@ -83,10 +108,11 @@ def build_docinfo(doc: Document) -> DocInfo:
             full.append(None)
             continue
         num = "".join(num.split())
-        if num.startswith("(") and parent_pos[i] is not None and full[parent_pos[i]]:
-            num = f"{full[parent_pos[i]]}{num}"
-        num = re.sub(r"^(?:schedule|clause|section|article|part|annex|appendix)", "", num,
-                     flags=re.IGNORECASE)
+        parent = full[parent_pos[i]] if parent_pos[i] is not None else None
+        item = item_label(num)
+        if item is not None and parent:
+            num = f"{parent}{item}"  # "b)" or "b." under section 6 is item 6(b), as "(b)" is
+        num = _KEYWORD_PREFIX_RE.sub("", num)
         full.append(num)
         by_number.setdefault((_namespace(p), num), i)
     names: list[str] = []

@@ -337,37 +337,39 @@ def count_term_uses(bts: Iterable[BaseTokens]) -> dict[str, int]:
 # ----------------------------------------------------------------------------------------
 
 #: Words that introduce a reference to a numbered part of the agreement (common practice
-#: in English-language contracts, no source).
+#: in English-language contracts, no source).  The references themselves are found by
+#: :func:`core.xrefs.find_references`, which knows more keywords and forms.
 XREF_KEYWORD_RE = re.compile(
     r"\b(?:[Cc]lauses?|CLAUSES?|[Ss]ections?|SECTIONS?|[Pp]aragraphs?|[Ss]ub-?clauses?|"
     r"[Ss]ub-?paragraphs?|[Aa]rticles?|[Ss]chedules?|[Aa]nnex(?:es)?|[Aa]ppendi(?:x|ces)|"
     r"[Pp]arts?)\s+(?=\d)"
 )
-_XREF_NUMBER_RE = re.compile(r"\d+(?:\.\d+)*(?:\s?\([a-z0-9]{1,5}\))*")
-_XREF_JOIN_RE = re.compile(r"\s*(?:,|and/or|and|or|to|through|-|\u2013)\s*(?=\d)")
 
 
 def find_cross_references(text: str) -> list[tuple[int, int, str, str]]:
     """``(start, end, number, keyword)`` of every numbered reference in *text*; *number* is
-    the reference without spaces ("7.2(a)") and *keyword* the lower-case introducing word
-    without a plural "s".  The first reference of a list spans its keyword too ("Clause
-    7.2"), so that "clause 9.2" -> "Section 11.2" is one token; the others of the list
-    ("and 6") span their number only."""
+    the reference without spaces ("7.2(a)") and *keyword* the lower-case introducing word,
+    singular ("clause", "sub-clause", "schedule").  The first reference of a list spans its
+    keyword too ("Clause 7.2"), so that "clause 9.2" -> "Section 11.2" is one token; the
+    others of the list ("and 6") span their number only.
+
+    These are the references of :func:`core.xrefs.find_references` (the ones the
+    counter-draft keeps true), less those the review cannot key by a full number: other
+    instruments' ("Section 16 of the Companies Act"), relative items ("paragraph (c)") and
+    numbers that do not start with a figure ("Annex B", "Article IV") stay words.
+    """
+    # core.xrefs builds on core.review.docinfo, so it is imported here, not at the top
+    # (importing it first would import this module before it has finished).
+    from ..xrefs import find_references
+
     out: list[tuple[int, int, str, str]] = []
-    for km in XREF_KEYWORD_RE.finditer(text):
-        word = km.group().split()[0].lower()
-        keyword = word[:-1] if word.endswith("s") and not word.endswith("ss") else word
-        keyword = {"annexe": "annex", "appendice": "appendix"}.get(keyword, keyword)
-        pos = km.end()
-        start = km.start()
-        while True:
-            nm = _XREF_NUMBER_RE.match(text, pos)
-            if nm is None:
-                break
-            out.append((start, nm.end(), "".join(nm.group().split()), keyword))
-            jm = _XREF_JOIN_RE.match(text, nm.end())
-            if jm is None:
-                break
-            pos = jm.end()
-            start = pos
+    for ref in find_references(text):
+        if ref.external:
+            continue
+        first = True
+        for n in ref.numbers:
+            if n.relative or not n.number[:1].isdigit():
+                continue
+            out.append((ref.start if first else n.start, n.end, n.number, ref.keyword))
+            first = False
     return out

@@ -2,7 +2,9 @@
 
 from __future__ import annotations
 
-from core.review.docinfo import build_docinfo, party_role
+from core.reader import read_text
+from core.review.docinfo import build_docinfo, item_label, party_role
+from tests.support.legal_texts import license_text
 
 from .helpers import doc
 
@@ -45,3 +47,19 @@ def test_party_labels_and_roles():
     assert party_role("Service Provider") == "supply"
     assert party_role("Orlenby", 'acting as customer') == "buy"
     assert party_role("Party") is None
+
+
+def test_full_numbers_of_items_in_every_label_style():
+    # gpl-3.0.LICENSE (licensedcode-data) numbers the items of section 5 "a)" ... "d)" (lines
+    # 249-265) and mpl-2.0.LICENSE calls its schedules "Exhibit A" and "Exhibit B" (lines 382,
+    # 396): full numbers are "5(a)" ... and "A", "B", as "(a)" items and "Schedule 2" are.
+    gpl = build_docinfo(read_text(license_text("gpl-3.0"), source="gpl-3.0.LICENSE"))
+    five = [n for p, n in zip(gpl.provisions, gpl.full_number)
+            if p.parent and gpl.provisions[gpl.position[p.parent]].number == "5"]
+    assert five == ["5(a)", "5(b)", "5(c)", "5(d)"]
+    assert gpl.provisions[gpl.by_number[("clause", "6(b)")]].number == "b)"
+    mpl = build_docinfo(read_text(license_text("mpl-2.0"), source="mpl-2.0.LICENSE"))
+    exhibits = [n for p, n in zip(mpl.provisions, mpl.full_number) if p.kind == "schedule"]
+    assert exhibits == ["A", "B"]
+    assert item_label("b)") == item_label("(b)") == item_label("b.") == "(b)"
+    assert item_label("7.2") is None and item_label("Schedule 2") is None

@@ -85,6 +85,22 @@ def test_cross_references():
                    ("paragraph 3(b)(ii)", "3(b)(ii)", "paragraph")]
 
 
+def test_cross_references_are_the_counter_draft_references():
+    # gpl-3.0.LICENSE (licensedcode-data): its 14 own section references (17 numbers, counted
+    # by hand in tests/core/test_xrefs.py) are the review's cross-references; "article 11 of
+    # the WIPO copyright treaty" (lines 217-218) and "the GNU Affero General Public License,
+    # section 13" (lines 594-595) are other instruments' and stay words.
+    d = read_text(licence_text("gpl-3.0"), source="gpl-3.0.txt")
+    got = [n for p in d.provisions for t in (p.heading or "", p.text)
+           for _a, _b, n, _k in find_cross_references(t)]
+    assert got == ["10", "7", "4", "7", "4", "7", "4", "5", "6(b)", "6(d)", "15", "16", "10",
+                   "11", "10", "15", "16"]
+    # inline examples: quantities, dates and other instruments are not cross-references
+    for text in ("within clause 3 days", "see Schedule 1 January 2024",
+                 "under Section 16 of the Companies Act 2006"):
+        assert find_cross_references(text) == []
+
+
 def test_rekey_maps_terms_and_references_without_retokenising():
     bt = base_tokens("The Client's duty under clause 4.2.", term_matcher(["Client", "Customer"]))
     seq = rekey(bt, term_key={"Client": "Customer"}, xref=lambda n, k: f"{k}:{n}")
