@@ -32,8 +32,8 @@ from .common import (
     map_offset,
     provision_blocks,
     stamp_date,
-    term_translator,
 )
+from .references import Wording, accepted_view, counter_numbering, reference_updates
 from .spans import SpanEdit, amend_edits, revert_edits, seam, to_blocks
 
 __all__ = [
@@ -52,6 +52,8 @@ class CounterDraftPlan:
     edits: tuple[BlockEdit, ...]
     deletions: tuple[BlockDeletion, ...]
     insertions: tuple[BlockInsertion, ...]
+    #: The precedent block each insertion copies (-1 for the reviewer's own words).
+    sources: tuple[int, ...]
     #: Decisions that could not be written, with the reason (shown to the user).
     notes: tuple[str, ...]
 
@@ -176,9 +178,10 @@ class _Planner:
     """Collects the block-level changes of the decisions, one decision at a time, refusing a
     change that overlaps one already planned."""
 
-    def __init__(self, review: Review) -> None:
+    def __init__(self, review: Review, wording: Wording) -> None:
         self.review = review
-        self.to_draft_terms = term_translator(review.term_map)
+        self.wording = wording
+        self.to_draft_terms = wording.to_terms
         self.d_owners = block_owners(review.draft)
         self.p_owners = block_owners(review.precedent)
         self.in_draft = {p.precedent for p in review.pairs if p.precedent and p.draft}
@@ -186,7 +189,7 @@ class _Planner:
         self.by_id = {d.id: d for d in review.deviations}
         self.edits: list[BlockEdit] = []
         self.deletions: list[BlockDeletion] = []
-        self.restored: list[tuple[tuple[int, int, int], BlockInsertion]] = []
+        self.restored: list[tuple[tuple[int, int, int], BlockInsertion, int]] = []
         self.restored_ids: set[str] = set()
         self.notes: list[str] = []
         self.claimed: dict[int, list[tuple[int, int]]] = {}
@@ -210,8 +213,9 @@ class _Planner:
             self.claimed.setdefault(x.block, []).append((x.start, x.end))
 
     def plan(self) -> CounterDraftPlan:
-        insertions = [ins for _, ins in sorted(self.restored, key=lambda x: x[0])]
-        return CounterDraftPlan(tuple(self.edits), tuple(self.deletions), tuple(insertions),
+        restored = sorted(self.restored, key=lambda x: x[0])
+        return CounterDraftPlan(tuple(self.edits), tuple(self.deletions),
+                                tuple(ins for _, ins, _ in restored), tuple(src for _, _, src in restored),
                                 tuple(self.notes))
 
     # -- one decision ---------------------------------------------------------------------
@@ -260,16 +264,25 @@ class _Planner:
             return  # already restored by another decision
         self.restored_ids.update(p.id for p in provs)
         blocks = sorted({b for p in provs for b in provision_blocks(precedent, p, owners=self.p_owners)})
+        checks: list[str] = []
+        first = blocks[0] if blocks else -1
         if dec.action == "revert":
-            lines = [(b, precedent.blocks[b], self.to_draft_terms(precedent.blocks[b].text)) for b in blocks]
+            lines = []  # (precedent block copied, its block as a model, the words)
+            for b in blocks:
+                words, found = self.wording.precedent(find_provision(precedent, self.p_owners[b][0]),
+                                                      precedent.blocks[b].text)
+                lines.append((b, precedent.blocks[b], words))
+                checks += found
         else:
-            first = blocks[0] if blocks else -1
             model = precedent.blocks[first] if blocks else Block(0, "")
-            lines = [(first, model, line) for line in (dec.text or "").split("\n")]
-        for k, (b, model, text) in enumerate(lines):
+            lines = [(-1, model, line) for line in (dec.text or "").split("\n")]
+        comment = _joined(dec.note, checks)
+        for k, (source, model, text) in enumerate(lines):
             like, numbered = _like_block(draft.blocks, anchor, model)
-            self.restored.append(((anchor, b, k), BlockInsertion(
-                anchor, text, like=like, numbered=numbered, comment=dec.note if k == 0 else None)))
+            # restored paragraphs sharing an anchor keep the precedent's order
+            order = (anchor, source if source >= 0 else first, k)
+            self.restored.append((order, BlockInsertion(
+                anchor, text, like=like, numbered=numbered, comment=comment if k == 0 else None), source))
 
     def strike(self, dev: Deviation, dec: Decision, dprov: Provision) -> None:
         """A provision the draft added: delete its paragraphs, marks included, with its
@@ -307,7 +320,8 @@ class _Planner:
         """Words inside the provision: the span the review showed, reverted or amended; a note
         on accept is anchored on it."""
         review = self.review
-        span_edits = _span_edits(review, dev, dec, dprov, pprov, self.to_draft_terms)
+        checks: list[str] = []
+        span_edits = _span_edits(review, dev, dec, dprov, pprov, self.wording, checks)
         if span_edits is None:
             self.notes.append(f"{_who(review, dev)}: the review gives no place for this change; skipped")
             return
@@ -315,9 +329,10 @@ class _Planner:
             self.note_on(dev, dec, dprov, span_edits[0] if span_edits else None)
             return
         planned: list[BlockEdit] = []
+        comment = _joined(dec.note, checks)
         for se in span_edits:
             for b, s, e, text in to_blocks(dprov, se):
-                planned.append(BlockEdit(b, s, e, text, comment=dec.note if not planned else None,
+                planned.append(BlockEdit(b, s, e, text, comment=comment if not planned else None,
                                          paragraphs="\n" in text))
         if span_edits and not planned:
             self.notes.append(f"{_who(review, dev)}: its words could not be located in the draft; skipped")
@@ -358,10 +373,16 @@ def _draft_span(review: Review, dev: Deviation, dprov: Provision, pprov: Provisi
     return None
 
 
+def _joined(note: str | None, checks: Sequence[str]) -> str | None:
+    """A decision's comment: the reviewer's note, then any cross-reference to check."""
+    return "\n".join(([note] if note else []) + list(checks)) or None
+
+
 def _span_edits(review: Review, dev: Deviation, dec: Decision, dprov: Provision,
-                pprov: Provision | None, to_draft_terms) -> list[SpanEdit] | None:
+                pprov: Provision | None, wording: Wording, checks: list[str]) -> list[SpanEdit] | None:
     """The edits of the draft provision's text that carry out *dec* (for accept: one empty
-    edit marking where a note goes); None when the review gives no place for it."""
+    edit marking where a note goes); None when the review gives no place for it.  Notes on
+    cross-references in restored words that need checking are added to *checks*."""
     span = _draft_span(review, dev, dprov, pprov)
     if span is None:
         return [SpanEdit(0, len(dprov.text), "")] if dec.action == "accept" else None
@@ -369,19 +390,27 @@ def _span_edits(review: Review, dev: Deviation, dec: Decision, dprov: Provision,
         return [SpanEdit(span[0], span[1], "")]
     if dec.action == "amend":
         return amend_edits(dprov.text, span, dec.text or "")
+    def precedent_words(text: str) -> str:
+        words, found = wording.precedent(pprov, text)
+        checks.extend(found)
+        return words
+
     pair = edits_of_pair(review, dprov.id, pprov.id) if pprov is not None else ()
     if pair and dev.precedent_text_span is not None and dev.draft_text_span is not None:
         return revert_edits(pair, pprov.text, dprov.text, precedent=dev.precedent_text_span,
-                            draft=dev.draft_text_span, translate=to_draft_terms)
+                            draft=dev.draft_text_span,
+                            translate=lambda a, b: precedent_words(pprov.text[a:b]),
+                            keep=lambda a, b: wording.draft(dprov, a, b))
     # A review without corresponding spans (built by hand): the precedent's changed words.
     if pprov is not None and dev.precedent_span is not None:
         words = pprov.text[dev.precedent_span[0]:dev.precedent_span[1]]
     else:
         words = "" if dev.change == "insert" else dev.precedent_text
-    return [seam(dprov.text, span[0], span[1], to_draft_terms(words))]
+    return [seam(dprov.text, span[0], span[1], precedent_words(words))]
 
 
-def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> CounterDraftPlan:
+def plan_counter_draft(review: Review, decisions: Sequence[Decision], *,
+                       wording: Wording | None = None) -> CounterDraftPlan:
     """Block-level edits, deletions and insertions for *decisions* on the draft.
 
     * revert/amend of words: the span the review showed (``Deviation.draft_text_span``) is
@@ -395,11 +424,14 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
       precedes it, with the paragraph properties of a neighbour at the same list level;
       amend inserts the reviewer's text there;
     * a note becomes a comment on the changed words (on the draft's words for accept);
+    * *wording* says how precedent and draft words are written (default: precedent words
+      with the draft's names for defined terms); :func:`counter_draft_bytes` passes one
+      that also knows the counter-draft's numbering (:mod:`.references`);
     * renamed defined terms, moved provisions and formatting, punctuation or numbering
       differences are only accepted (:data:`core.decisions.ACCEPT_ONLY`); decisions that cannot
       be placed, or that overlap an earlier one, are skipped and reported in ``notes``.
     """
-    planner = _Planner(review)
+    planner = _Planner(review, wording or Wording(review))
     for dec in decisions:
         planner.add(dec)
     return planner.plan()
@@ -407,27 +439,44 @@ def plan_counter_draft(review: Review, decisions: Sequence[Decision]) -> Counter
 
 def counter_draft_bytes(review: Review, decisions: Sequence[Decision], *, draft_path: str,
                         author: str, date: _dt.datetime | None = None) -> tuple[bytes, tuple[str, ...]]:
-    """The counter-draft as bytes, and notes on decisions that could not be written."""
-    from ..docx.revisions import RevisionStamp
-    from ..docx.tracked import write_tracked_copy
+    """The counter-draft as bytes, and notes on decisions that could not be written.
 
+    Written in two passes when the decisions change paragraphs (:mod:`.references`): the
+    first pass, read back with every change accepted, gives the counter-draft's numbering;
+    the second writes the decisions with restored words numbered accordingly, plus a tracked
+    change with a comment for every typed cross-reference that would otherwise point
+    elsewhere."""
     if Path(draft_path).suffix.lower() != ".docx":
         raise CounterdraftError("the counter-draft is written on the counterparty's own .docx; "
                                 "this draft is not a .docx", path=draft_path)
     plan = plan_counter_draft(review, decisions)
-    stamp = RevisionStamp(author=author, date=stamp_date(date))
-    data = write_tracked_copy(
-        draft_path, edits=plan.edits, deletions=plan.deletions, insertions=plan.insertions,
-        stamp=stamp, properties={CAUTION_PROPERTY: CAUTION},
-        expected_blocks=len(review.draft.blocks),
-        block_texts={e.block: review.draft.blocks[e.block].text for e in plan.edits},
-    )
+    data = _tracked_copy(review, plan, draft_path=draft_path, author=author, date=date)
+    if plan.insertions or plan.deletions or any(e.tracked for e in plan.edits):
+        numbering = counter_numbering(review, plan, accepted_view(data))
+        second = plan_counter_draft(review, decisions, wording=Wording(review, numbering))
+        updates = reference_updates(review, numbering, second.edits, {d.block for d in second.deletions})
+        second = dataclasses.replace(second, edits=second.edits + tuple(updates))
+        if second != plan:
+            data = _tracked_copy(review, second, draft_path=draft_path, author=author, date=date)
     notes = list(plan.notes)
     own = [w for w in review.draft.warnings if "tracked change" in w]
     if own:
         notes.append(f"the draft already holds tracked changes of its own ({own[0]}); rejecting "
                      "all changes in a word processor rejects those too")
     return data, tuple(notes)
+
+
+def _tracked_copy(review: Review, plan: CounterDraftPlan, *, draft_path: str, author: str,
+                  date: _dt.datetime | None) -> bytes:
+    from ..docx.revisions import RevisionStamp
+    from ..docx.tracked import write_tracked_copy
+
+    return write_tracked_copy(
+        draft_path, edits=plan.edits, deletions=plan.deletions, insertions=plan.insertions,
+        stamp=RevisionStamp(author=author, date=stamp_date(date)), properties={CAUTION_PROPERTY: CAUTION},
+        expected_blocks=len(review.draft.blocks),
+        block_texts={e.block: review.draft.blocks[e.block].text for e in plan.edits},
+    )
 
 
 def write_counter_draft(review: Review, decisions: Sequence[Decision], out: str | os.PathLike[str], *,

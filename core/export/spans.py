@@ -76,22 +76,26 @@ def _hunk_inside(e: Edit, precedent: Span, draft: Span) -> bool:
 
 
 def revert_edits(edits: Sequence[Edit], precedent_text: str, draft_text: str, *, precedent: Span,
-                 draft: Span, translate: Callable[[str], str] = lambda s: s) -> list[SpanEdit]:
+                 draft: Span, translate: Callable[[int, int], str] | None = None,
+                 keep: Callable[[int, int], str] | None = None) -> list[SpanEdit]:
     """The edit of the draft's text that puts back the precedent's words over the
     corresponding spans *precedent* and *draft*, from the pair's word diff *edits* (which
-    tile both texts): every changed hunk inside the spans takes the precedent's words,
-    rewritten by *translate* (the draft's defined-term names, its numbering); restyled hunks
-    and unchanged words keep the draft's.  One edit (so a note can sit on it), cut to the
-    words that differ; none when nothing differs."""
+    tile both texts): every changed hunk inside the spans takes the precedent's words
+    ``precedent_text[p1:p2]`` as ``translate(p1, p2)`` gives them for the draft (its
+    defined-term names, its numbering); restyled hunks and unchanged words keep the draft's,
+    as ``keep(d1, d2)`` gives them (default: as they are).  One edit (so a note can sit on
+    it), cut to the words that differ; none when nothing differs."""
+    translate = translate or (lambda a, b: precedent_text[a:b])
+    keep = keep or (lambda a, b: draft_text[a:b])
     inside = [e for e in edits if e.tag != "equal" and not e.restyle and _hunk_inside(e, precedent, draft)]
     if not inside:
         return []
     start, end = min(draft[0], inside[0].d1), max(draft[1], inside[-1].d2)
     out, pos = [], start
     for e in inside:
-        out += [draft_text[pos:e.d1], translate(precedent_text[e.p1:e.p2])]
+        out += [keep(pos, e.d1), translate(e.p1, e.p2)]
         pos = e.d2
-    out.append(draft_text[pos:end])
+    out.append(keep(pos, end))
     return amend_edits(draft_text, (start, end), "".join(out), tidy=False)
 
 
