@@ -154,94 +154,9 @@ def write_tracked_copy(
     at the wrong place.  Comments are written by *comment_author* (default: the stamp's
     author).  *properties* are added as custom file properties.
     """
-    package = open_docx_package(source)  # the safety checks; also parses the main part
-    with open(source, "rb") as fh:
-        raw = fh.read()
-    zin = zipfile.ZipFile(io.BytesIO(raw))
-    infos = zin.infolist()
-    names = {i.filename for i in infos}
-    main = package.main_part
-    main_info = next(i for i in infos if i.filename.lstrip("/").lower() == main.lower())
-    original_main = zin.read(main_info)
-    root = etree.fromstring(original_main, hardened_parser())
-    paragraphs = list(iter_body_paragraphs(root))
-    if expected_blocks is not None and expected_blocks != len(paragraphs):
+    copy = _TrackedCopy(source, stamp=stamp, comment_author=comment_author)
+    if expected_blocks is not None and expected_blocks != len(copy.paragraphs):
         raise CounterdraftError("the document changed since it was read; review it again", path=source)
-
-    folder, base = posixpath.split(main_info.filename)
-    rels_name = posixpath.join(folder, "_rels", base + ".rels")
-    rels_root = etree.fromstring(zin.read(rels_name), hardened_parser()) if rels_name in names else None
-    comments_name = None
-    if rels_root is not None:
-        for rel in rels_root.iter(f"{{{_REL_NS}}}Relationship"):
-            if rel.get("Type") == COMMENTS_REL and rel.get("TargetMode") != "External":
-                comments_name = posixpath.normpath(posixpath.join(folder, rel.get("Target", "")))
-    existing_comments = zin.read(comments_name) if comments_name in names else None
-    comments_root = etree.fromstring(existing_comments, hardened_parser()) if existing_comments else None
-
-    ids = IdAllocator(max_annotation_id(root, comments_root) + 1)
-    author = comment_author or stamp.author
-    comments: list[Comment] = []
-
-    def new_comment(text: str) -> int:
-        cid = ids.next()
-        comments.append(Comment(id=cid, author=author, date=stamp.date, text=text,
-                                initials=_initials(author)))
-        return cid
-
-    def para(index: int) -> etree._Element:
-        if not 0 <= index < len(paragraphs):
-            raise ValueError(f"block {index} is not in the document ({len(paragraphs)} blocks)")
-        return paragraphs[index]
-
-    # Insertions are anchored on the original paragraphs, so do them first (they do not
-    # change the original paragraphs' XML), then edits and deletions of originals.
-    by_anchor: dict[int, list[BlockInsertion]] = {}
-    group_ends: dict[int, etree._Element] = {}  # anchor block -> last new paragraph after it
-    for ins in insertions:
-        by_anchor.setdefault(ins.after, []).append(ins)
-    for after, group in by_anchor.items():
-        if after >= 0:
-            anchor = para(after)
-        elif paragraphs:
-            anchor = None
-        else:
-            raise ValueError("cannot insert into a document without paragraphs")
-        for ins in group:
-            like = para(ins.like) if ins.like is not None else (anchor if anchor is not None else paragraphs[0])
-            ppr = like.find(w("pPr"))
-            if ppr is not None and not ins.numbered:
-                ppr = _without_numbering(ppr)
-            if anchor is None:
-                placeholder = etree.Element(w("p"))
-                paragraphs[0].addprevious(placeholder)
-                new_p = insert_paragraph_after(placeholder, ins.text, ppr=ppr, rpr=_first_run_rpr(like),
-                                               stamp=stamp, ids=ids)
-                placeholder.getparent().remove(placeholder)
-            else:
-                new_p = insert_paragraph_after(anchor, ins.text, ppr=ppr, rpr=_first_run_rpr(like),
-                                               stamp=stamp, ids=ids)
-            if ins.comment:
-                content = [c for c in new_p if c.tag != w("pPr")]
-                if content:
-                    anchor_comment(content[0], content[-1], new_comment(ins.comment))
-            last = new_p
-            anchor = new_p
-        if after >= 0:
-            group_ends[after] = last
-        if after >= 0 and not followed_by_paragraph(last):
-            # A paragraph mark before a table (or at the end of a cell or the body) cannot be
-            # removed by rejecting it: the paragraph has nothing to merge into, and word
-            # processors leave an empty paragraph behind (LibreOffice 7.4 does, checked on this
-            # machine type).  So the mark that is tracked as inserted is the anchor's own mark
-            # (as when a reviewer presses Enter at the end of the anchor paragraph), and the
-            # last new paragraph keeps an untracked mark.  Rejecting then joins the anchor's
-            # words with that last mark: the text is the draft's again, and the paragraph
-            # properties those of the last new paragraph (its neighbour's, by the caller).
-            _unmark_paragraph(last)
-            mark_paragraph(para(after), "ins", stamp=stamp, ids=ids)
-            del group_ends[after]
-
     by_block: dict[int, list[BlockEdit]] = {}
     for e in edits:
         by_block.setdefault(e.block, []).append(e)
@@ -249,104 +164,226 @@ def write_tracked_copy(
     for index in by_block:
         if index in deleted:
             raise ValueError(f"block {index} is both edited and deleted")
+    # Insertions are anchored on the original paragraphs, so do them first (they do not
+    # change the original paragraphs' XML), then edits and deletions of originals.
+    group_ends = copy.insert(insertions)
+    for index, group in sorted(by_block.items()):
+        copy.edit(index, group, group_ends=group_ends, by_block=by_block,
+                  expected_text=(block_texts or {}).get(index))
+    for index, d in sorted(deleted.items()):
+        copy.delete(index, d.comment)
+    return copy.package(properties)
 
-    def starts_with_insertion(index: int) -> bool:
+
+class _TrackedCopy:
+    """One .docx being copied with tracked changes: its main part parsed once, the
+    paragraphs in block order, new ids above every existing one, the comments written."""
+
+    def __init__(self, source: str, *, stamp: RevisionStamp, comment_author: str | None) -> None:
+        package = open_docx_package(source)  # the safety checks; also parses the main part
+        with open(source, "rb") as fh:
+            self.zin = zipfile.ZipFile(io.BytesIO(fh.read()))
+        self.source = source
+        self.infos = self.zin.infolist()
+        self.names = {i.filename for i in self.infos}
+        self.main_info = next(i for i in self.infos
+                              if i.filename.lstrip("/").lower() == package.main_part.lower())
+        self.original_main = self.zin.read(self.main_info)
+        self.root = etree.fromstring(self.original_main, hardened_parser())
+        self.paragraphs = list(iter_body_paragraphs(self.root))
+        self.folder, base = posixpath.split(self.main_info.filename)
+        self.rels_name = posixpath.join(self.folder, "_rels", base + ".rels")
+        self.rels_root = (etree.fromstring(self.zin.read(self.rels_name), hardened_parser())
+                          if self.rels_name in self.names else None)
+        self.comments_name = None
+        if self.rels_root is not None:
+            for rel in self.rels_root.iter(f"{{{_REL_NS}}}Relationship"):
+                if rel.get("Type") == COMMENTS_REL and rel.get("TargetMode") != "External":
+                    self.comments_name = posixpath.normpath(posixpath.join(self.folder, rel.get("Target", "")))
+        self.existing_comments = (self.zin.read(self.comments_name)
+                                  if self.comments_name in self.names else None)
+        comments_root = (etree.fromstring(self.existing_comments, hardened_parser())
+                         if self.existing_comments else None)
+        self.ids = IdAllocator(max_annotation_id(self.root, comments_root) + 1)
+        self.stamp = stamp
+        self.author = comment_author or stamp.author
+        self.comments: list[Comment] = []
+
+    def new_comment(self, text: str) -> int:
+        cid = self.ids.next()
+        self.comments.append(Comment(id=cid, author=self.author, date=self.stamp.date, text=text,
+                                     initials=_initials(self.author)))
+        return cid
+
+    def para(self, index: int) -> etree._Element:
+        if not 0 <= index < len(self.paragraphs):
+            raise ValueError(f"block {index} is not in the document ({len(self.paragraphs)} blocks)")
+        return self.paragraphs[index]
+
+    # -- the changes ------------------------------------------------------------------------
+    def insert(self, insertions: Sequence[BlockInsertion]) -> dict[int, etree._Element]:
+        """Write the new paragraphs; returns anchor block -> last new paragraph after it (for
+        the anchors whose group ends with its own tracked mark)."""
+        by_anchor: dict[int, list[BlockInsertion]] = {}
+        for ins in insertions:
+            by_anchor.setdefault(ins.after, []).append(ins)
+        group_ends: dict[int, etree._Element] = {}
+        for after, group in by_anchor.items():
+            if after < 0 and not self.paragraphs:
+                raise ValueError("cannot insert into a document without paragraphs")
+            anchor = self.para(after) if after >= 0 else None
+            last = None
+            for ins in group:
+                last = anchor = self._insert_one(ins, anchor)
+            if after >= 0 and last is not None:
+                group_ends[after] = last
+                if not followed_by_paragraph(last):
+                    self._mark_anchor_instead(after, last)
+                    del group_ends[after]
+        return group_ends
+
+    def _insert_one(self, ins: BlockInsertion, anchor: etree._Element | None) -> etree._Element:
+        like = self.para(ins.like) if ins.like is not None else (anchor if anchor is not None else self.paragraphs[0])
+        ppr = like.find(w("pPr"))
+        if ppr is not None and not ins.numbered:
+            ppr = _without_numbering(ppr)
+        if anchor is None:  # before the first paragraph
+            placeholder = etree.Element(w("p"))
+            self.paragraphs[0].addprevious(placeholder)
+            new_p = insert_paragraph_after(placeholder, ins.text, ppr=ppr, rpr=_first_run_rpr(like),
+                                           stamp=self.stamp, ids=self.ids)
+            placeholder.getparent().remove(placeholder)
+        else:
+            new_p = insert_paragraph_after(anchor, ins.text, ppr=ppr, rpr=_first_run_rpr(like),
+                                           stamp=self.stamp, ids=self.ids)
+        if ins.comment:
+            content = [c for c in new_p if c.tag != w("pPr")]
+            if content:
+                anchor_comment(content[0], content[-1], self.new_comment(ins.comment))
+        return new_p
+
+    def _mark_anchor_instead(self, after: int, last: etree._Element) -> None:
+        """A paragraph mark before a table (or at the end of a cell or the body) cannot be
+        removed by rejecting it: the paragraph has nothing to merge into, and word processors
+        leave an empty paragraph behind (LibreOffice 7.4 does, checked on this machine type).
+        So the mark that is tracked as inserted is the anchor's own mark (as when a reviewer
+        presses Enter at the end of the anchor paragraph), and the last new paragraph keeps an
+        untracked mark.  Rejecting then joins the anchor's words with that last mark: the text
+        is the draft's again, and the paragraph properties those of the last new paragraph
+        (its neighbour's, by the caller)."""
+        _unmark_paragraph(last)
+        mark_paragraph(self.para(after), "ins", stamp=self.stamp, ids=self.ids)
+
+    def edit(self, index: int, group: Sequence[BlockEdit], *, group_ends: Mapping[int, etree._Element],
+             by_block: Mapping[int, Sequence[BlockEdit]], expected_text: str | None) -> None:
+        """Write the edits of one paragraph."""
+        p = self.para(index)
+        own = "".join(piece.text for piece in paragraph_pieces(p))
+        if expected_text is not None and own != expected_text:
+            raise CounterdraftError(
+                f"paragraph {index + 1} cannot be edited safely: its text runs across a "
+                "tracked deletion of a paragraph mark; accept or reject the document's own "
+                "tracked changes first, then review it again", path=self.source)
+        tracked = []
+        for e in group:
+            cid = self.new_comment(e.comment) if e.comment else None
+            if e.tracked:
+                tracked.append(TextEdit(e.start, e.end, e.replacement, comment=cid,
+                                        paragraphs=e.paragraphs))
+            elif cid is not None:
+                tracked.append(TextEdit(e.start, e.end, "", comment=cid, track=False))
+        if self._next_opens_with_insertion(index, group_ends, by_block):
+            tracked = _end_with_deletion(tracked, own)
+        apply_paragraph_edits(p, tracked, stamp=self.stamp, ids=self.ids)
+
+    def _next_opens_with_insertion(self, index: int, group_ends: Mapping[int, etree._Element],
+                                   by_block: Mapping[int, Sequence[BlockEdit]]) -> bool:
         """Does the paragraph after block *index* open with inserted words?"""
         if index in group_ends:
             return True  # new paragraphs follow it
-        if index + 1 >= len(paragraphs) or not followed_by_paragraph(paragraphs[index]):
+        if index + 1 >= len(self.paragraphs) or not followed_by_paragraph(self.paragraphs[index]):
             return False
         # A pure insertion there opens it with inserted words; a replacement opens with the
         # deletion (deletion first is the order written unless _end_with_deletion says otherwise).
         return any(e.start == e.end == 0 and e.replacement and e.tracked
                    for e in by_block.get(index + 1, []))
 
-    for index, group in sorted(by_block.items()):
-        p = para(index)
-        own = "".join(piece.text for piece in paragraph_pieces(p))
-        if block_texts is not None and index in block_texts and own != block_texts[index]:
-            raise CounterdraftError(
-                f"paragraph {index + 1} cannot be edited safely: its text runs across a "
-                "tracked deletion of a paragraph mark; accept or reject the document's own "
-                "tracked changes first, then review it again", path=source)
-        tracked = []
-        for e in group:
-            cid = new_comment(e.comment) if e.comment else None
-            if e.tracked:
-                tracked.append(TextEdit(e.start, e.end, e.replacement, comment=cid,
-                                        paragraphs=e.paragraphs))
-            elif cid is not None:
-                tracked.append(TextEdit(e.start, e.end, "", comment=cid, track=False))
-        if starts_with_insertion(index):
-            tracked = _end_with_deletion(tracked, own)
-        apply_paragraph_edits(p, tracked, stamp=stamp, ids=ids)
-    for index, d in sorted(deleted.items()):
-        p = para(index)
-        wrappers = delete_paragraph(p, stamp=stamp, ids=ids)
-        if d.comment:
-            cid = new_comment(d.comment)
+    def delete(self, index: int, comment: str | None) -> None:
+        p = self.para(index)
+        wrappers = delete_paragraph(p, stamp=self.stamp, ids=self.ids)
+        if comment:
+            cid = self.new_comment(comment)
             if wrappers:
                 anchor_comment(wrappers[0], wrappers[-1], cid)
             else:
                 marker = etree.SubElement(p, w("r"))
                 anchor_comment(marker, marker, cid)
 
-    # Assemble the package.
-    replaced: dict[str, bytes] = {main_info.filename: _serialise(root, original_main)}
-    added: list[tuple[str, bytes]] = []
-    content_types = etree.fromstring(zin.read("[Content_Types].xml"), hardened_parser())
-    ct_changed = False
-    if comments:
-        if comments_name is None:
-            comments_name = posixpath.join(folder, "comments.xml")
-            if comments_name in names:
-                comments_name = posixpath.join(folder, "counterdraft-comments.xml")
-            if rels_root is None:
-                rels_root = etree.Element(f"{{{_REL_NS}}}Relationships", nsmap={None: _REL_NS})
-            _add_relationship(rels_root, COMMENTS_REL, posixpath.relpath(comments_name, folder))
-            rels_bytes = etree.tostring(rels_root, xml_declaration=True, encoding="UTF-8", standalone=True)
-            if rels_name in names:
-                replaced[rels_name] = rels_bytes
+    # -- the package --------------------------------------------------------------------------
+    def package(self, properties: Mapping[str, str] | None) -> bytes:
+        """The copy's bytes: every member as it was but the parts we changed or added."""
+        replaced: dict[str, bytes] = {self.main_info.filename: _serialise(self.root, self.original_main)}
+        added: list[tuple[str, bytes]] = []
+        content_types = etree.fromstring(self.zin.read("[Content_Types].xml"), hardened_parser())
+        ct_changed = False
+        if self.comments:
+            ct_changed |= self._comments_part(replaced, added, content_types)
+        if properties:
+            ct_changed |= self._custom_properties(properties, replaced, added, content_types)
+        if ct_changed:
+            replaced["[Content_Types].xml"] = etree.tostring(content_types, xml_declaration=True,
+                                                             encoding="UTF-8", standalone=True)
+        buf = io.BytesIO()
+        with zipfile.ZipFile(buf, "w") as zout:
+            for info in self.infos:
+                data = replaced.get(info.filename)
+                zout.writestr(_copy_info(info), data if data is not None else self.zin.read(info))
+            for name, data in added:
+                info = zipfile.ZipInfo(name, date_time=self.infos[0].date_time if self.infos else (1980, 1, 1, 0, 0, 0))
+                info.compress_type = zipfile.ZIP_DEFLATED
+                info.external_attr = 0o644 << 16
+                zout.writestr(info, data)
+        return buf.getvalue()
+
+    def _comments_part(self, replaced: dict[str, bytes], added: list[tuple[str, bytes]],
+                       content_types: etree._Element) -> bool:
+        name = self.comments_name
+        if name is None:
+            name = posixpath.join(self.folder, "comments.xml")
+            if name in self.names:
+                name = posixpath.join(self.folder, "counterdraft-comments.xml")
+            rels = self.rels_root
+            if rels is None:
+                rels = etree.Element(f"{{{_REL_NS}}}Relationships", nsmap={None: _REL_NS})
+            _add_relationship(rels, COMMENTS_REL, posixpath.relpath(name, self.folder))
+            rels_bytes = etree.tostring(rels, xml_declaration=True, encoding="UTF-8", standalone=True)
+            if self.rels_name in self.names:
+                replaced[self.rels_name] = rels_bytes
             else:
-                added.append((rels_name, rels_bytes))
-            added.append((comments_name, build_comments_part(comments)))
+                added.append((self.rels_name, rels_bytes))
+            added.append((name, build_comments_part(self.comments)))
         else:
-            replaced[comments_name] = build_comments_part(comments, existing=existing_comments)
-        ct_changed |= _ensure_override(content_types, comments_name, COMMENTS_CT)
-    if properties:
-        pkg_rels = etree.fromstring(zin.read("_rels/.rels"), hardened_parser())
+            replaced[name] = build_comments_part(self.comments, existing=self.existing_comments)
+        return _ensure_override(content_types, name, COMMENTS_CT)
+
+    def _custom_properties(self, properties: Mapping[str, str], replaced: dict[str, bytes],
+                           added: list[tuple[str, bytes]], content_types: etree._Element) -> bool:
+        pkg_rels = etree.fromstring(self.zin.read("_rels/.rels"), hardened_parser())
         custom_name = None
         for rel in pkg_rels.iter(f"{{{_REL_NS}}}Relationship"):
             if rel.get("Type") == CUSTOM_PROPERTIES_REL:
                 custom_name = rel.get("Target", "").lstrip("/")
-        if custom_name and custom_name in names:
-            replaced[custom_name] = custom_properties_xml(properties, existing=zin.read(custom_name))
+        if custom_name and custom_name in self.names:
+            replaced[custom_name] = custom_properties_xml(properties, existing=self.zin.read(custom_name))
         else:
             custom_name = "docProps/custom.xml"
-            if custom_name in names:
+            if custom_name in self.names:
                 custom_name = "docProps/counterdraft-custom.xml"
             _add_relationship(pkg_rels, CUSTOM_PROPERTIES_REL, custom_name)
             replaced["_rels/.rels"] = etree.tostring(pkg_rels, xml_declaration=True, encoding="UTF-8",
                                                      standalone=True)
             added.append((custom_name, custom_properties_xml(properties)))
-        ct_changed |= _ensure_override(content_types, custom_name, CUSTOM_PROPERTIES_CT)
-    if ct_changed:
-        replaced["[Content_Types].xml"] = etree.tostring(content_types, xml_declaration=True,
-                                                         encoding="UTF-8", standalone=True)
-
-    buf = io.BytesIO()
-    with zipfile.ZipFile(buf, "w") as zout:
-        for info in infos:
-            data = replaced.get(info.filename)
-            if data is None:
-                data = zin.read(info)
-            zout.writestr(_copy_info(info), data)
-        for name, data in added:
-            info = zipfile.ZipInfo(name, date_time=infos[0].date_time if infos else (1980, 1, 1, 0, 0, 0))
-            info.compress_type = zipfile.ZIP_DEFLATED
-            info.external_attr = 0o644 << 16
-            zout.writestr(info, data)
-    return buf.getvalue()
+        return _ensure_override(content_types, custom_name, CUSTOM_PROPERTIES_CT)
 
 
 def _end_with_deletion(edits: list[TextEdit], text: str) -> list[TextEdit]:
