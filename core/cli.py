@@ -219,7 +219,15 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     record = new_review_file(draft_path, precedent_path, review=review, library=library_folder)
     top = [d for d in review.deviations if d.category == "substantive"
            and d.change not in ("move",)][:DEMO_REVERTS]
-    for i, dev in enumerate(top):
+    # A clause the draft leaves out restored and one it adds struck, so that the counter-draft
+    # shows its cross-references kept true across the renumbering.
+    structural = []
+    for kind in ("remove-provision", "add-provision"):
+        first = next((d for d in review.deviations if d.change == kind and d not in top), None)
+        if first is not None:
+            structural.append(first)
+    structural.sort(key=lambda d: d.rank)
+    for i, dev in enumerate(top + structural):
         note = ("Illustrative decision recorded by the demo script: restore the house wording."
                 if i == 0 else None)
         record = decide(record, dev.id, "revert", note=note)
@@ -241,8 +249,11 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     for key in ("issues list (printable page)", "issues list (Word table)"):
         write_issues_list(record.review, written[key], decisions=record.decisions,
                           author=author, inputs=inputs)
-    print(f"As an illustration, not a recommendation, the demo reverted {_numbers(top)},")
-    print(f"the {len(top)} highest-ranked substantive ones. Written:")
+    print(textwrap.fill(
+        f"As an illustration, not a recommendation, the demo reverted {_numbers(top)}, the "
+        f"{len(top)} highest-ranked substantive ones, and {_numbers(structural)}, restoring a "
+        "clause the draft leaves out and striking one it adds; the counter-draft updates every "
+        "typed cross-reference the renumbering would otherwise break. Written:", width=100))
     for label, path in written.items():
         print(f"  {label:34} {path}")
     print()
