@@ -451,14 +451,21 @@ def counter_draft_bytes(review: Review, decisions: Sequence[Decision], *, draft_
                                 "this draft is not a .docx", path=draft_path)
     plan = plan_counter_draft(review, decisions)
     data = _tracked_copy(review, plan, draft_path=draft_path, author=author, date=date)
-    if plan.insertions or plan.deletions or any(e.tracked for e in plan.edits):
-        numbering = counter_numbering(review, plan, accepted_view(data))
-        second = plan_counter_draft(review, decisions, wording=Wording(review, numbering))
-        updates = reference_updates(review, numbering, second.edits, {d.block for d in second.deletions})
-        second = dataclasses.replace(second, edits=second.edits + tuple(updates))
-        if second != plan:
-            data = _tracked_copy(review, second, draft_path=draft_path, author=author, date=date)
     notes = list(plan.notes)
+    if plan.insertions or plan.deletions or any(e.tracked for e in plan.edits):
+        try:
+            accepted = accepted_view(data)
+        except CounterdraftError:  # e.g. nothing left once every change is accepted
+            accepted = None
+            notes.append("the cross-references could not be checked: the counter-draft has no "
+                         "text once every change is accepted")
+        if accepted is not None:
+            numbering = counter_numbering(review, plan, accepted)
+            second = plan_counter_draft(review, decisions, wording=Wording(review, numbering))
+            updates = reference_updates(review, numbering, second.edits, {d.block for d in second.deletions})
+            second = dataclasses.replace(second, edits=second.edits + tuple(updates))
+            if second != plan:
+                data = _tracked_copy(review, second, draft_path=draft_path, author=author, date=date)
     own = [w for w in review.draft.warnings if "tracked change" in w]
     if own:
         notes.append(f"the draft already holds tracked changes of its own ({own[0]}); rejecting "
