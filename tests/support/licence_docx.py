@@ -37,18 +37,17 @@ from copy import deepcopy
 from lxml import etree
 
 from core.docx.compose import ComposeParagraph, compose_docx
+from core.docx.validate import COMMENTS_CT, COMMENTS_REL
 from core.reader import read_text
 from core.structure import parse_label
 from tests.support.legal_texts import license_text
 
-__all__ = ["FEATURES", "licence_paragraphs", "licence_docx", "roughen"]
+__all__ = ["FEATURES", "licence_paragraphs", "licence_docx", "roughen", "smart_quotes"]
 
 W = "http://schemas.openxmlformats.org/wordprocessingml/2006/main"
 R = "http://schemas.openxmlformats.org/officeDocument/2006/relationships"
 PKG_REL = "http://schemas.openxmlformats.org/package/2006/relationships"
 HYPERLINK_REL = "http://schemas.openxmlformats.org/officeDocument/2006/relationships/hyperlink"
-COMMENTS_REL = "http://schemas.openxmlformats.org/officeDocument/2006/relationships/comments"
-COMMENTS_CT = "application/vnd.openxmlformats-officedocument.wordprocessingml.comments+xml"
 CT_NS = "http://schemas.openxmlformats.org/package/2006/content-types"
 XML_SPACE = "{http://www.w3.org/XML/1998/namespace}space"
 

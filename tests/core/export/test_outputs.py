@@ -1,13 +1,6 @@
-"""Refusals and atomic writes shared by the three outputs (core.export).
-
-Outside references, named at each check:
-* LibreOffice headless (Debian's libreoffice-writer, through UNO: tests/support/lo_uno.py)
-  accepts or rejects every tracked change, reports comments, list labels and custom
-  properties, and converts each .docx to PDF;
-* ECMA-376 Part 1 §17.13 (revisions and comments) through our structural validator, run
-  on every .docx written here;
-* the standard library's ``html.parser`` and ``csv`` modules and python-docx read the issues
-  list back.
+"""Refusals and atomic writes shared by the three outputs (core.export): an output path that
+names an input is refused in one line, and an interrupted write leaves the previous file as
+it was (the temporary file and rename of core.fileio).
 """
 
 from __future__ import annotations
