@@ -49,7 +49,7 @@ def _cmd_inspect(args: argparse.Namespace) -> int:
 
 def _cmd_review(args: argparse.Namespace) -> int:
     from .reader import read_document
-    from .review import review_to_dict, run_review
+    from .review import review_to_dict
     from .review.report import format_review
 
     if args.json and args.json != "-":
@@ -130,13 +130,22 @@ def _deviation_by_number(review, given: str, path: str):  # noqa: ANN001, ANN202
 
 
 def _cmd_decide(args: argparse.Namespace) -> int:
-    from .decisions import clause_label, decide, save_review_file
+    from .decisions import clause_label, decide, read_library_folder, update_review_file
 
-    record = _open_review_file(args.review_file)
-    dev = _deviation_by_number(record.review, args.deviation, args.review_file)
-    record = decide(record, dev.id, args.action, text=args.text, note=args.note,
-                    paragraphs=args.paragraphs)
-    save_review_file(args.review_file, record)
+    found = []
+
+    def record_it(record):  # noqa: ANN001, ANN202
+        for note in record.notes:
+            print(f"counterdraft: note: {note}", file=sys.stderr)
+        dev = _deviation_by_number(record.review, args.deviation, args.review_file)
+        found.append(dev)
+        return decide(record, dev.id, args.action, text=args.text, note=args.note,
+                      paragraphs=args.paragraphs)
+
+    # read, decide and save under one lock: decisions recorded at the same moment all land
+    record = update_review_file(args.review_file, record_it,
+                                runner=_review_runner(read_library_folder(args.review_file)))
+    dev = found[-1]
     where = clause_label(record.review, dev)
     print(f"Deviation {dev.rank}{f', {where}' if where else ''}: {args.action} recorded "
           f"in {args.review_file}")
@@ -336,17 +345,47 @@ def main(argv: list[str] | None = None) -> int:
     parser = build_parser()
     args = parser.parse_args(argv)
     try:
-        return int(args.func(args) or 0)
+        status = int(args.func(args) or 0)
+        sys.stdout.flush()  # a full disk or a closed pipe shows here, not at exit
+        return status
     except CounterdraftError as err:
-        print(f"counterdraft: {err}", file=sys.stderr)
+        primary = _primary_file(args)
+        shown = str(err) if err.path or not primary else f"{primary}: {err}"
+        print(f"counterdraft: {shown}", file=sys.stderr)
         return 2
     except KeyboardInterrupt:
         print("counterdraft: interrupted", file=sys.stderr)
         return 2
     except BrokenPipeError:
-        # The reader of our output went away (e.g. `counterdraft inspect X | head`): not an error.
+        # The reader of our output went away (e.g. `counterdraft inspect X | head`).
+        _drop_stdout()
+        print("counterdraft: standard output was closed before all of it was written", file=sys.stderr)
+        return 1
+    except OSError as err:
+        # Unwrapped I/O failures: a full disk or a device error on standard output.
+        target = err.filename or "standard output"
+        if err.filename is None:
+            _drop_stdout()
+        print(f"counterdraft: {target}: cannot write ({err.strerror or err})", file=sys.stderr)
+        return 2
+
+
+def _drop_stdout() -> None:
+    """Point standard output at the null device, so that nothing is flushed into a closed
+    pipe or a full disk at exit (which would print a second error)."""
+    try:
         os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
-        return 0
+    except OSError:
+        pass
+
+
+def _primary_file(args: argparse.Namespace) -> str | None:
+    """The file a command works on, to name in a refusal that does not name one itself."""
+    for name in ("review_file", "file", "draft", "folder"):
+        value = getattr(args, name, None)
+        if isinstance(value, str):
+            return value
+    return None
 
 
 if __name__ == "__main__":

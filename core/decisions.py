@@ -37,6 +37,7 @@ O(decisions x deviations).
 from __future__ import annotations
 
 import dataclasses
+import functools
 import json
 import os
 import unicodedata
@@ -46,7 +47,7 @@ from pathlib import Path
 from typing import Any
 
 from .errors import CounterdraftError
-from .fileio import atomic_write_text, file_sha256
+from .fileio import atomic_write_text, exclusive, file_sha256
 from .labels import clause_label, find_provision  # clause_label: re-exported for the CLI
 from .model import Deviation, Document, Review
 
@@ -69,6 +70,7 @@ __all__ = [
     "remap_decisions",
     "review_file_to_dict",
     "save_review_file",
+    "update_review_file",
 ]
 
 REVIEW_FILE_SCHEMA = "counterdraft.review-file/1"
@@ -413,6 +415,77 @@ def _locate(entry: Mapping[str, Any], folder: Path, *, role: str, review_path: s
                             path=review_path)
 
 
+#: Longest part of a schema problem quoted in a message (a hand-edited value can be long).
+_PROBLEM_QUOTE_CHARS = 120
+
+
+def _check_schema(data: Any, spath: str) -> None:
+    """Refuse, in one line naming the field and the problem, anything that is not a valid
+    ``counterdraft.review-file/1`` object (resources/schemas/review-file.schema.json); a
+    file of a later schema version is refused as written by a newer Counterdraft."""
+    found = data.get("schema") if isinstance(data, dict) else None
+    if isinstance(found, str) and found.startswith("counterdraft.review-file/") and found != REVIEW_FILE_SCHEMA:
+        raise CounterdraftError(f"written by another version of Counterdraft (schema {found}); this "
+                                f"version reads {REVIEW_FILE_SCHEMA}", path=spath)
+    if found != REVIEW_FILE_SCHEMA:
+        raise CounterdraftError(f"not a {REVIEW_FILE_SCHEMA} file"
+                                + (f" (schema {str(found)[:40]!r})" if found else ""), path=spath)
+    from jsonschema.exceptions import best_match
+
+    error = best_match(_review_file_validator().iter_errors(data))
+    if error is None:
+        return
+    field_ = "".join(f"[{p}]" if isinstance(p, int) else f".{p}" for p in error.absolute_path).lstrip(".")
+    problem = " ".join(error.message.split())
+    if len(problem) > _PROBLEM_QUOTE_CHARS:
+        problem = problem[:_PROBLEM_QUOTE_CHARS - 1] + "\u2026"
+    raise CounterdraftError(f"damaged review file ({field_ or 'top level'}: {problem})", path=spath)
+
+
+@functools.cache
+def _review_file_validator():  # noqa: ANN202 - jsonschema's validator class
+    """The Draft 2020-12 validator of the review-file schema, with the review and document
+    schemas it refers to (the project's own resources/schemas)."""
+    import jsonschema
+    from referencing import Registry, Resource
+
+    folder = Path(__file__).resolve().parent.parent / "resources" / "schemas"
+    schemas = [json.loads((folder / name).read_text(encoding="utf-8"))
+               for name in ("review-file.schema.json", "review.schema.json", "document.schema.json")]
+    registry = Registry().with_resources([(s["$id"], Resource.from_contents(s)) for s in schemas])
+    return jsonschema.Draft202012Validator(schemas[0], registry=registry)
+
+
+def _parsed_decisions(data: Mapping[str, Any], spath: str) -> tuple[tuple[Decision, ...], tuple[Any, ...]]:
+    """The decisions and term overrides of a review file *data* that passed the schema check;
+    wording that is not plain text (control characters, which no .docx can carry) and
+    overrides the engine cannot take are refused in one line."""
+    decisions = tuple(Decision(deviation=d["deviation"], action=d["action"], text=d.get("text"),
+                               note=d.get("note"), match=dict(d.get("match") or {}))
+                      for d in data["decisions"])
+    for d in decisions:
+        for field_name, value in (("text", d.text), ("note", d.note)):
+            if value is not None and _bad_character(value):
+                raise CounterdraftError(f"damaged review file (the {field_name} of the decision on "
+                                        f"{d.deviation} is not plain text)", path=spath)
+    try:
+        overrides = tuple(_override_from_dict(o) for o in data["overrides"])
+    except (TypeError, AttributeError, ValueError, CounterdraftError) as err:
+        raise CounterdraftError(f"damaged review file (term overrides: {err})", path=spath) from None
+    return decisions, overrides
+
+
+def update_review_file(path: str | os.PathLike[str], change: Callable[[ReviewFile], ReviewFile], *,
+                       runner: Runner | None = None) -> ReviewFile:
+    """Reopen the review file at *path*, apply *change* and save it, all under an exclusive
+    lock (:func:`core.fileio.exclusive`): two people recording decisions at the same moment
+    both land, one after the other.  Returns the saved review."""
+    with exclusive(path):
+        rf = change(load_review_file(path, runner=runner))
+        save_review_file(path, rf)
+    return rf
+
+
 def read_library_folder(path: str | os.PathLike[str]) -> str | None:
     """The precedent-set folder a review file records (None if none), without re-running
     anything -- so a caller can open the library and pass a matching *runner*."""
@@ -445,39 +518,15 @@ def load_review_file(path: str | os.PathLike[str], *, runner: Runner | None = No
         raise CounterdraftError(f"cannot read the review file ({err})", path=spath) from None
     try:
         data = json.loads(raw)
-    except json.JSONDecodeError as err:
-        raise CounterdraftError(f"not a review file (invalid JSON at line {err.lineno})", path=spath) from None
-    if not isinstance(data, dict) or data.get("schema") != REVIEW_FILE_SCHEMA:
-        found = data.get("schema") if isinstance(data, dict) else None
-        raise CounterdraftError(
-            f"not a {REVIEW_FILE_SCHEMA} file" + (f" (schema {found!r})" if found else ""), path=spath)
+    except (json.JSONDecodeError, RecursionError) as err:
+        where = f" at line {err.lineno}" if isinstance(err, json.JSONDecodeError) else ""
+        raise CounterdraftError(f"not a review file (invalid JSON{where})", path=spath) from None
+    _check_schema(data, spath)
     folder = Path(spath).resolve().parent
-    try:
-        refs = {role: data[role] for role in ("draft", "precedent")}
-        decisions_raw = data.get("decisions", [])
-        overrides_raw = data.get("overrides", [])
-        if not isinstance(decisions_raw, list) or not isinstance(overrides_raw, list):
-            raise TypeError
-        decisions = tuple(
-            Decision(deviation=str(d["deviation"]), action=str(d["action"]), text=d.get("text"),
-                     note=d.get("note"), match=dict(d.get("match") or {}))
-            for d in decisions_raw
-        )
-    except (KeyError, TypeError, AttributeError):
-        raise CounterdraftError("damaged review file (missing or malformed fields)", path=spath) from None
-    for d in decisions:
-        if d.action not in ACTIONS:
-            raise CounterdraftError(f"damaged review file (unknown decision {d.action!r})", path=spath)
-        for field_name, value in (("text", d.text), ("note", d.note)):
-            if value is not None and (not isinstance(value, str) or _bad_character(value)):
-                raise CounterdraftError(f"damaged review file (the {field_name} of the decision on "
-                                        f"{d.deviation} is not plain text)", path=spath)
+    refs = {role: data[role] for role in ("draft", "precedent")}
+    decisions, overrides = _parsed_decisions(data, spath)
     dpath = _locate(refs["draft"], folder, role="draft", review_path=spath)
     ppath = _locate(refs["precedent"], folder, role="precedent", review_path=spath)
-    try:
-        overrides = tuple(_override_from_dict(o) for o in overrides_raw)
-    except (TypeError, AttributeError, ValueError):
-        raise CounterdraftError("damaged review file (malformed term overrides)", path=spath) from None
     notes: list[str] = []
     hashes = {}
     for role, p in (("draft", dpath), ("precedent", ppath)):

@@ -56,6 +56,8 @@ __all__ = [
     "BlockDeletion",
     "BlockEdit",
     "BlockInsertion",
+    "safe_part_name",
+    "unsafe_part_names",
     "write_tracked_copy",
 ]
 
@@ -336,6 +338,8 @@ class _TrackedCopy:
         buf = io.BytesIO()
         with zipfile.ZipFile(buf, "w") as zout:
             for info in self.infos:
+                if not safe_part_name(info.filename):
+                    continue  # never copied: see safe_part_name
                 data = replaced.get(info.filename)
                 zout.writestr(_copy_info(info), data if data is not None else self.zin.read(info))
             for name, data in added:
@@ -384,6 +388,28 @@ class _TrackedCopy:
                                                      standalone=True)
             added.append((custom_name, custom_properties_xml(properties)))
         return _ensure_override(content_types, custom_name, CUSTOM_PROPERTIES_CT)
+
+
+#: A drive letter at the start of a name ("C:..."): a Windows path, never a part name.
+_DRIVE_RE = re.compile(r"^[A-Za-z]:")
+
+
+def safe_part_name(name: str) -> bool:
+    """Can a zip member of this name be copied into the counter-draft?  A part name is a
+    relative path with forward slashes and no empty, "." or ".." segment (ECMA-376 Part 2,
+    §9.1.1.1); a member named otherwise -- "../x", "/etc/x", "a\\b", "C:x" -- is no part of
+    the document, and a file unpacked from ours would land outside its folder, so it is left
+    out.  Folder entries ("word/") are kept."""
+    if not name or "\\" in name or name.startswith("/") or _DRIVE_RE.match(name):
+        return False
+    segments = name[:-1].split("/") if name.endswith("/") else name.split("/")
+    return all(seg not in ("", ".", "..") for seg in segments)
+
+
+def unsafe_part_names(source: str) -> tuple[str, ...]:
+    """The zip members of *source* that :func:`write_tracked_copy` leaves out."""
+    with zipfile.ZipFile(source) as zf:
+        return tuple(i.filename for i in zf.infolist() if not safe_part_name(i.filename))
 
 
 def _end_with_deletion(edits: list[TextEdit], text: str) -> list[TextEdit]:

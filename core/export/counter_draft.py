@@ -17,7 +17,7 @@ from pathlib import Path
 
 from .. import CAUTION
 from ..decisions import ACCEPT_ONLY, Decision
-from ..docx.tracked import BlockDeletion, BlockEdit, BlockInsertion
+from ..docx.tracked import BlockDeletion, BlockEdit, BlockInsertion, unsafe_part_names
 from ..errors import CounterdraftError
 from ..fileio import atomic_write_bytes
 from ..labels import clause_label, find_provision
@@ -466,6 +466,10 @@ def counter_draft_bytes(review: Review, decisions: Sequence[Decision], *, draft_
             second = dataclasses.replace(second, edits=second.edits + tuple(updates))
             if second != plan:
                 data = _tracked_copy(review, second, draft_path=draft_path, author=author, date=date)
+    left_out = unsafe_part_names(draft_path)
+    if left_out:
+        notes.append(f"{len(left_out)} zip member(s) of the draft with names no .docx part can have "
+                     f"(e.g. {left_out[0]!r}) were left out of the counter-draft")
     own = [w for w in review.draft.warnings if "tracked change" in w]
     if own:
         notes.append(f"the draft already holds tracked changes of its own ({own[0]}); rejecting "

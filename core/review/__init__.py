@@ -226,8 +226,9 @@ def run_review(draft: Document, precedent: Document, *,
     dside.to_key = tm0.to_precedent
     al0 = align(_features(dside), _features(pside))
     clock.lap("alignment: first pass")
-    d_only = [n for n in di.term_names if n not in set(pi.term_names)]
-    p_only = [n for n in pi.term_names if n not in set(di.term_names)]
+    d_names, p_names = set(di.term_names), set(pi.term_names)
+    d_only = [n for n in di.term_names if n not in p_names]
+    p_only = [n for n in pi.term_names if n not in d_names]
     one_to_one = [(g.drafts[0], g.precedents[0]) for g in al0.groups if g.kind == "match"]
     dside.to_key = {}
     subs = count_substitutions(one_to_one, draft_seq=dside.seq, precedent_seq=pside.seq,

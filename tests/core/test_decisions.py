@@ -243,7 +243,8 @@ def test_broken_review_files_are_refused_with_one_line(scenario, tmp_path):
         (json.dumps({"schema": "something/1"}), "not a counterdraft.review-file/1"),
         (json.dumps({"schema": REVIEW_FILE_SCHEMA}), "damaged review file"),
         (json.dumps({"schema": REVIEW_FILE_SCHEMA, "draft": {"path": "nowhere.docx"},
-                     "precedent": {"path": "precedent.docx"}}), "draft document nowhere.docx"),
+                     "precedent": {"path": "precedent.docx"}}), r"damaged review file \(top level: .* is a required property"),
+        (json.dumps({"schema": "counterdraft.review-file/7"}), "another version of Counterdraft"),
     ]:
         bad.write_text(content, encoding="utf-8")
         with pytest.raises(CounterdraftError, match=message) as err:
@@ -311,3 +312,80 @@ def test_decisions_are_plain_frozen_data():
     d = Decision("v1", "accept")
     with pytest.raises(AttributeError):
         d.action = "revert"  # type: ignore[misc]
+
+
+# --------------------------------------------------------------------------------------
+# Several people on one review file
+# --------------------------------------------------------------------------------------
+
+
+def _decide_in_process(path: str, dev_id: str, note: str, start) -> None:  # noqa: ANN001
+    """One reviewer recording a decision (a separate process, as two people would be)."""
+    from core.decisions import decide, update_review_file
+
+    start.wait()
+    update_review_file(path, lambda rf: decide(rf, dev_id, "accept", note=note))
+
+
+def test_decisions_recorded_at_the_same_moment_all_land(scenario, tmp_path):
+    """50 pairs of simultaneous decisions by two processes on one review file: every one
+    is in the file afterwards (the read-modify-write runs under an exclusive lock)."""
+    import multiprocessing
+
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path)
+    ids = [d.id for d in rf.review.deviations[:2]]
+    path = tmp_path / "review.json"
+    ctx = multiprocessing.get_context("fork")
+    for trial in range(50):
+        save_review_file(path, rf)  # no decision yet
+        start = ctx.Event()
+        workers = [ctx.Process(target=_decide_in_process, args=(str(path), dev_id, f"trial {trial}", start))
+                   for dev_id in ids]
+        for w in workers:
+            w.start()
+        start.set()
+        for w in workers:
+            w.join(timeout=120)
+            assert w.exitcode == 0
+        saved = json.loads(path.read_text(encoding="utf-8"))
+        assert sorted(d["deviation"] for d in saved["decisions"]) == sorted(ids), f"trial {trial}"
+
+
+@pytest.mark.parametrize("damage", ["truncated", "decisions-not-a-list", "action-a-number",
+                                    "unknown-id", "text-a-list", "bad-hash", "extra-field"])
+def test_a_hand_edited_review_file_gives_one_line_from_decide_and_export(scenario, tmp_path, capsys, damage):
+    """A review file edited by hand: refused in one line naming the file and the field (its
+    JSON Schema, resources/schemas/review-file.schema.json, checked with the jsonschema
+    package), or -- an id no deviation has -- the decision found again by its words."""
+    path = tmp_path / "review.json"
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path)
+    save_review_file(path, decide(rf, rf.review.deviations[0].id, "accept", note="Fine."))
+    data = json.loads(path.read_text(encoding="utf-8"))
+    text = path.read_text(encoding="utf-8")
+    if damage == "truncated":
+        text = text[: len(text) // 2]
+    else:
+        dec = data["decisions"][0]
+        if damage == "decisions-not-a-list":
+            data["decisions"] = {"v1": "accept"}
+        elif damage == "action-a-number":
+            dec["action"] = 3
+        elif damage == "unknown-id":
+            dec["deviation"] = "v999"  # the match key still finds its deviation
+        elif damage == "text-a-list":
+            dec["text"] = ["forty"]
+        elif damage == "bad-hash":
+            data["draft"]["sha256"] = "not-a-hash"
+        else:
+            data["surprise"] = True
+        text = json.dumps(data)
+    path.write_text(text, encoding="utf-8")
+    for argv in (["decide", str(path), "1", "accept"],
+                 ["export", str(path), "--issues-list", str(tmp_path / "issues.csv")]):
+        status = main(argv)
+        err = capsys.readouterr().err.strip().splitlines()
+        if damage == "unknown-id":
+            assert status == 0 and not any("Traceback" in line for line in err)
+            continue
+        assert status == 2 and len(err) == 1 and str(path) in err[0], err
+        assert "Traceback" not in err[0]

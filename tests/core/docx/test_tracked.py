@@ -317,3 +317,21 @@ def test_random_changes_round_trip_in_libreoffice(tmp_path):
         view = office.inspect(out, action="reject")
         assert view.redlines_after == 0
         assert view.paragraphs == texts, seed
+
+
+def test_members_no_part_can_be_named_are_left_out_of_the_copy(tmp_path):
+    """Zip members named "../x", "/x", "a\\b" or "C:x" are no parts of a .docx (ECMA-376 Part
+    2 §9.1.1.1: a part name is a relative path of non-empty segments other than "." and "..")
+    and would land outside the folder of whoever unpacks the copy: they are not copied."""
+    from core.docx.tracked import unsafe_part_names
+    from tests.support.bad_inputs import healthy_docx, rezip
+
+    bad = {"../escape.txt": b"x", "/etc/owned.txt": b"x", "word\\back.xml": b"x", "C:drive.txt": b"x"}
+    src = tmp_path / "draft.docx"
+    src.write_bytes(rezip(healthy_docx(), replace=dict(bad)))
+    assert sorted(unsafe_part_names(str(src))) == sorted(bad)
+    data = write_tracked_copy(str(src), edits=[BlockEdit(0, 4, 12, "Vendor")],
+                              stamp=RevisionStamp(author="T", date="2026-01-01T00:00:00Z"))
+    with zipfile.ZipFile(io.BytesIO(data)) as zf:
+        names = zf.namelist()
+    assert not set(bad) & set(names) and "word/document.xml" in names
