@@ -381,7 +381,7 @@ def _drop_stdout() -> None:
 
 def _primary_file(args: argparse.Namespace) -> str | None:
     """The file a command works on, to name in a refusal that does not name one itself."""
-    for name in ("review_file", "file", "draft", "folder"):
+    for name in ("review_file", "file", "draft", "dir"):
         value = getattr(args, name, None)
         if isinstance(value, str):
             return value
