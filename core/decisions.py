@@ -70,6 +70,7 @@ __all__ = [
     "remap_decisions",
     "review_file_to_dict",
     "save_review_file",
+    "save_review_file_merged",
     "update_review_file",
 ]
 
@@ -486,6 +487,59 @@ def update_review_file(path: str | os.PathLike[str], change: Callable[[ReviewFil
     return rf
 
 
+def save_review_file_merged(path: str | os.PathLike[str], rf: ReviewFile, *,
+                            base: Sequence[Decision]) -> ReviewFile:
+    """Save *rf* over the review file at *path* without losing what someone else recorded
+    there meanwhile.  *base* is the decisions as this session last read or saved them.
+    Under the exclusive lock the file's current decisions are read (matched to *rf*'s
+    deviations by their words, as on reopening) and merged deviation by deviation: a
+    decision this session changed or cleared since *base* wins; every other one is the
+    file's.  Returns what was saved."""
+    with exclusive(path):
+        theirs: tuple[Decision, ...] = ()
+        if Path(path).exists():
+            data = _read_json(str(path))
+            _check_schema(data, str(path))
+            theirs, _ = remap_decisions(_parsed_decisions(data, str(path))[0], rf.review)
+        merged = _merged(base, rf.decisions, theirs)
+        order = {d.id: i for i, d in enumerate(rf.review.deviations)}
+        rf = dataclasses.replace(rf, decisions=tuple(sorted(merged, key=lambda d: order.get(d.deviation, 0))))
+        save_review_file(path, rf)
+    return rf
+
+
+def _merged(base: Sequence[Decision], mine: Sequence[Decision], theirs: Sequence[Decision]) -> list[Decision]:
+    def by_id(ds: Sequence[Decision]) -> dict[str, Decision]:
+        return {d.deviation: d for d in ds}
+
+    b, m, t = by_id(base), by_id(mine), by_id(theirs)
+    out = []
+    for key in dict.fromkeys([*t, *m, *b]):
+        changed_here = _decision_view(m.get(key)) != _decision_view(b.get(key))
+        chosen = m.get(key) if changed_here else t.get(key)
+        if chosen is not None:
+            out.append(chosen)
+    return out
+
+
+def _decision_view(d: Decision | None) -> tuple[str, str | None, str | None] | None:
+    return None if d is None else (d.action, d.text, d.note)
+
+
+def _read_json(spath: str) -> Any:
+    try:
+        raw = Path(spath).read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise CounterdraftError("review file not found", path=spath) from None
+    except (OSError, UnicodeDecodeError) as err:
+        raise CounterdraftError(f"cannot read the review file ({err})", path=spath) from None
+    try:
+        return json.loads(raw)
+    except (json.JSONDecodeError, RecursionError) as err:
+        where = f" at line {err.lineno}" if isinstance(err, json.JSONDecodeError) else ""
+        raise CounterdraftError(f"not a review file (invalid JSON{where})", path=spath) from None
+
+
 def read_library_folder(path: str | os.PathLike[str]) -> str | None:
     """The precedent-set folder a review file records (None if none), without re-running
     anything -- so a caller can open the library and pass a matching *runner*."""
@@ -510,17 +564,7 @@ def load_review_file(path: str | os.PathLike[str], *, runner: Runner | None = No
     default :func:`core.review.run_review` with the stored overrides) and keep the decisions
     that still apply.  ``notes`` says what changed."""
     spath = str(path)
-    try:
-        raw = Path(spath).read_text(encoding="utf-8")
-    except FileNotFoundError:
-        raise CounterdraftError("review file not found", path=spath) from None
-    except (OSError, UnicodeDecodeError) as err:
-        raise CounterdraftError(f"cannot read the review file ({err})", path=spath) from None
-    try:
-        data = json.loads(raw)
-    except (json.JSONDecodeError, RecursionError) as err:
-        where = f" at line {err.lineno}" if isinstance(err, json.JSONDecodeError) else ""
-        raise CounterdraftError(f"not a review file (invalid JSON{where})", path=spath) from None
+    data = _read_json(spath)
     _check_schema(data, spath)
     folder = Path(spath).resolve().parent
     refs = {role: data[role] for role in ("draft", "precedent")}

@@ -260,10 +260,17 @@ def decision_view(decision: Any) -> tuple[str, str, str]:
     return (decision.action, decision.note or "", decision.text or "")
 
 
-def save_review_file(path: str, record: Any) -> None:
+def save_review_file(path: str, record: Any, *, base: Any = None) -> Any:
+    """Save the review; with *base* (the decisions as this window last read or saved that
+    file) the file's own decisions recorded meanwhile by someone else are kept.  Returns the
+    record as saved."""
     from core.decisions import save_review_file as save
+    from core.decisions import save_review_file_merged
 
-    save(path, record)
+    if base is None:
+        save(path, record)
+        return record
+    return save_review_file_merged(path, record, base=base)
 
 
 def open_review_file(path: str, report: Report, cancelled: IsCancelled, *, library: Any = None) -> Outcome:

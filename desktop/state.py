@@ -103,6 +103,9 @@ class Workspace:
     #: Negotiation patterns of the precedent set against this precedent, once computed.
     patterns: Any = None
     review_path: str | None = None  # where the review file was last saved or opened
+    #: The decisions as that file held them when last opened or saved here: saving merges
+    #: with what others recorded in it since (core.decisions.save_review_file_merged).
+    saved_decisions: tuple[Any, ...] = ()
     unsaved: bool = False
     selected: str | None = None  # id of the selected deviation
     display: DisplayOptions = DisplayOptions()

@@ -442,6 +442,7 @@ class MainWindow(QMainWindow):
         rec = out.record
         ws.inputs = Inputs(rec.draft.path, rec.precedent.path, ws.inputs.library if ws.inputs else None)
         ws.record = rec
+        ws.saved_decisions = tuple(rec.decisions)
         self._set_library(out.library)
         ws.patterns = None
         ws.review_path = path
@@ -594,11 +595,15 @@ class MainWindow(QMainWindow):
         ws = self.ws
         if ws.review is None or ws.inputs is None:
             return
+        same_file = ws.review_path is not None and str(path) == ws.review_path
         try:
-            engine.save_review_file(str(path), ws.record)
+            # saving over the file this review came from keeps what others recorded in it
+            ws.record = engine.save_review_file(str(path), ws.record,
+                                                base=ws.saved_decisions if same_file else None)
         except Exception as exc:  # noqa: BLE001
             self._fail(exc)
             return
+        ws.saved_decisions = tuple(ws.record.decisions)
         ws.review_path = str(path)
         ws.unsaved = False
         self.settings.add_recent(Recent(review_file=str(path)))

@@ -9,6 +9,7 @@ tests/support/handmade.py.
 
 from __future__ import annotations
 
+import dataclasses
 import hashlib
 import json
 import shutil
@@ -389,3 +390,29 @@ def test_a_hand_edited_review_file_gives_one_line_from_decide_and_export(scenari
             continue
         assert status == 2 and len(err) == 1 and str(path) in err[0], err
         assert "Traceback" not in err[0]
+
+
+def test_saving_a_window_review_keeps_what_others_recorded_meanwhile(scenario, tmp_path):
+    """Three-way merge by deviation: what this session changed since it read the file wins
+    (a cleared decision stays cleared); everything else is the file's."""
+    from core.decisions import save_review_file_merged, update_review_file
+
+    path = tmp_path / "review.json"
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path)
+    a, b, c = (d.id for d in rf.review.deviations[:3])
+    rf = decide(rf, c, "accept", note="Was agreed.")
+    save_review_file(path, rf)
+    base = rf.decisions  # what the window read
+    # someone else records a decision on a, and changes the note on c
+    update_review_file(path, lambda other: decide(decide(other, a, "accept", note="Theirs."),
+                                                  c, "accept", note="Changed by them."))
+    # meanwhile this session decides b and clears nothing
+    mine = decide(rf, b, "accept", note="Mine.")
+    saved = save_review_file_merged(path, mine, base=base)
+    notes = {d.deviation: d.note for d in saved.decisions}
+    assert notes == {a: "Theirs.", b: "Mine.", c: "Changed by them."}
+    assert {d["deviation"]: d["note"] for d in json.loads(path.read_text(encoding="utf-8"))["decisions"]} == notes
+    # a decision this session clears stays cleared
+    cleared = dataclasses.replace(saved, decisions=tuple(d for d in saved.decisions if d.deviation != b))
+    again = save_review_file_merged(path, cleared, base=saved.decisions)
+    assert {d.deviation for d in again.decisions} == {a, c}
