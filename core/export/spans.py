@@ -147,16 +147,18 @@ def seam(text: str, start: int, end: int, new: str) -> SpanEdit:
 
 
 def amend_edits(text: str, span: Span, new: str, *, tidy: bool = True) -> list[SpanEdit]:
-    """The smallest edit of *text* that replaces ``text[span]`` by *new*; with *tidy*, the
-    spaces at its seams are kept single (:func:`seam`)."""
+    """The smallest edit of *text* that replaces ``text[span]`` by *new*.  With *tidy*, words
+    put in at a bare insertion point (an empty span) or a span emptied get single spaces at
+    their seams (:func:`seam`); otherwise the result is exactly ``text`` with the span
+    replaced."""
     start, end = span
     old = text[start:end]
     if old == new:
         return []
+    if tidy and (not old or not new):
+        return [seam(text, start, end, new)]
     k, m = _shared_ends(old, new)
-    if not tidy:
-        return [SpanEdit(start + k, end - m, new[k:len(new) - m])]
-    return [seam(text, start + k, end - m, new[k:len(new) - m])]
+    return [SpanEdit(start + k, end - m, new[k:len(new) - m])]
 
 
 def to_blocks(prov: Provision, edit: SpanEdit) -> list[tuple[int, int, int, str]]:
