@@ -31,6 +31,7 @@ import re
 
 __all__ = [
     "BULLET_FORMATS",
+    "MAX_REPEATED_CHARS",
     "MAX_ROMAN",
     "MAX_WORDS_NUMBER",
     "NUMBER_FORMATS",
@@ -62,6 +63,11 @@ BULLET_FORMATS = frozenset({"bullet"})
 #: decimal.  Contracts number clauses in the tens or hundreds at most.
 MAX_WORDS_NUMBER = 999_999
 
+#: Longest label made by repeating one letter or symbol ("AAA...", "***..."): a list counted
+#: from the largest start accepted (32767) shows 1261 letters, as LibreOffice does; beyond
+#: this the value is shown in decimal, so no label costs more than this to build.
+MAX_REPEATED_CHARS = 2_000
+
 #: Roman numerals past 3999 repeat "M" (LibreOffice shows 12345 as "MMMMMMMMMMMMCCCXLV");
 #: beyond this value the label would be absurdly long, so it is shown in decimal.
 MAX_ROMAN = 99_999
@@ -88,6 +94,8 @@ def _repeated(n: int, alphabet: str) -> str:
     """a..z, aa..zz, aaa...: the letter ``(n-1) % N`` repeated ``(n-1) // N + 1`` times, as
     Word and LibreOffice show letter lists.  Arithmetic, not a loop up to *n*."""
     repeat, index = divmod(n - 1, len(alphabet))
+    if repeat >= MAX_REPEATED_CHARS:
+        return str(n)
     return alphabet[index] * (repeat + 1)
 
 
