@@ -12,7 +12,8 @@ structure ("%1.%2" stays "3.4").
 
 The text formats (``ordinal``, ``cardinalText``, ``ordinalText``) depend on the paragraph's
 language, as in LibreOffice: English, French, German, Russian and Spanish ordinals, and
-English, French, German and Russian words; other languages use English.
+English (British English says "one hundred and one"), French, German and Russian words;
+other languages use English.
 
 ``custom`` takes its pattern from ``w:numFmt/@w:format`` (Word 2010 writes it inside
 ``mc:AlternateContent``, e.g. ``"00001, 00002, 00003, ..."``); the first format token is
@@ -293,11 +294,13 @@ _EN_ORDINAL_WORDS = {
 }
 
 
-def _en_below_thousand(n: int) -> str:
+def _en_below_thousand(n: int, *, british: bool = False) -> str:
     hundreds, rest = divmod(n, 100)
     parts = []
     if hundreds:
         parts.append(f"{_EN_ONES[hundreds]} hundred")
+        if rest and british:
+            parts.append("and")  # "one hundred and one" (LibreOffice, en-GB)
     if rest:
         if rest < 20:
             parts.append(_EN_ONES[rest])
@@ -307,20 +310,20 @@ def _en_below_thousand(n: int) -> str:
     return " ".join(parts)
 
 
-def _en_cardinal(n: int) -> str:
+def _en_cardinal(n: int, *, british: bool = False) -> str:
     thousands, rest = divmod(n, 1000)
     parts = []
     if thousands:
-        parts.append(f"{_en_below_thousand(thousands)} thousand")
+        parts.append(f"{_en_below_thousand(thousands, british=british)} thousand")
     if rest:
         if thousands and rest < 100:
             parts.append("and")  # "one thousand and one", as LibreOffice spells it
-        parts.append(_en_below_thousand(rest))
+        parts.append(_en_below_thousand(rest, british=british))
     return " ".join(parts)
 
 
-def _en_ordinal_words(n: int) -> str:
-    words = _en_cardinal(n)
+def _en_ordinal_words(n: int, *, british: bool = False) -> str:
+    words = _en_cardinal(n, british=british)
     head, sep, last = words.rpartition(" ")
     prefix, dash, final = last.rpartition("-")
     if final in _EN_ORDINAL_WORDS:
@@ -504,20 +507,25 @@ def _capitalise(words: str) -> str:
 
 _ORDINAL_SUFFIX = {"fr": lambda n: f"{n}ᵉʳ" if n == 1 else f"{n}ᵉ", "de": lambda n: f"{n}.",
                    "ru": lambda n: f"{n}-й", "es": lambda n: f"{n}.º"}
-_CARDINAL = {"fr": _fr_cardinal, "de": _de_cardinal, "ru": _ru_cardinal}
-_ORDINAL_WORDS = {"fr": _fr_ordinal_words, "de": _de_ordinal_words, "ru": _ru_ordinal_words}
+_CARDINAL = {"fr": _fr_cardinal, "de": _de_cardinal, "ru": _ru_cardinal,
+             "en-gb": lambda n: _en_cardinal(n, british=True)}
+_ORDINAL_WORDS = {"fr": _fr_ordinal_words, "de": _de_ordinal_words, "ru": _ru_ordinal_words,
+                  "en-gb": lambda n: _en_ordinal_words(n, british=True)}
 
 
 def _language(lang: str | None) -> str:
-    """The primary language subtag of a ``w:lang`` value ("fr-FR" -> "fr"), "en" if none."""
+    """The language of a ``w:lang`` value as the tables key it: "en-gb" for British English
+    (which says "one hundred and one"), else the primary subtag ("fr-FR" -> "fr"); "en" when
+    none is given."""
     if not lang:
         return "en"
-    return lang.split("-", 1)[0].split("_", 1)[0].lower()
+    tag = lang.replace("_", "-").lower()
+    return "en-gb" if tag == "en-gb" else tag.split("-", 1)[0]
 
 
 def _text_format(value: int, num_fmt: str, lang: str) -> str | None:
     if num_fmt == "ordinal":
-        return _ORDINAL_SUFFIX.get(lang, _en_ordinal)(value)
+        return _ORDINAL_SUFFIX.get(lang, _en_ordinal)(value)  # en-gb: "1st" as in en
     if value > MAX_WORDS_NUMBER:
         return None
     if num_fmt == "cardinalText":
