@@ -28,8 +28,8 @@ Counting model (checked against LibreOffice, the project's outside reference):
   takes (:mod:`core.docx.compat`).
 
 Bounds.  Every number read here is an ST_DecimalNumber (§17.18.10, an XML Schema integer):
-it is parsed strictly (optional sign and ASCII digits, at most :data:`MAX_NUMBER_DIGITS`;
-anything else counts as absent, as a malformed attribute does in Word), then checked
+it is parsed strictly (optional sign and ASCII digits; anything else counts as absent, and
+an integer longer than :data:`MAX_NUMBER_DIGITS` digits is never converted), then checked
 against a practical limit before use: a level number outside 0-8 makes the level unusable
 (§17.9.3 allows nine levels); a ``w:start`` or ``w:startOverride`` outside
 0..:data:`MAX_LIST_START`, more than :data:`MAX_NUMBERING_ENTRIES` definitions or a level
@@ -89,9 +89,8 @@ MAX_STYLE_LINK_HOPS = 8
 #: thousands of characters long ("AAAA...", computed by arithmetic all the same).
 MAX_LIST_START = 32_767
 
-#: Most digits an ST_DecimalNumber may have before it is read at all: enough for any 64-bit
-#: value; longer digit strings (10^30) are not numbers any document needs, and converting
-#: them would cost time for nothing.
+#: Digits of an ST_DecimalNumber converted exactly: enough for any 64-bit value.  A longer
+#: integer (10^30) is read as +/-10^19, beyond every limit here, without converting it.
 MAX_NUMBER_DIGITS = 19
 
 #: Most ``w:abstractNum`` plus ``w:num`` elements in one numbering part.  Word writes one
@@ -105,25 +104,28 @@ MAX_NUMBERING_ENTRIES = 100_000
 MAX_LEVEL_TEXT_CHARS = 1_000
 
 _PLACEHOLDER = re.compile(r"%([1-9])")
-_DECIMAL_NUMBER = re.compile(r"[+-]?[0-9]{1,%d}" % MAX_NUMBER_DIGITS)
+_DECIMAL_NUMBER = re.compile(r"([+-]?)0*([0-9]+)")
+_HUGE = 10 ** MAX_NUMBER_DIGITS
 
 
 def decimal_number(value: str | None) -> int | None:
     """An ST_DecimalNumber attribute value as an int (ECMA-376 Part 1 §17.18.10: an XML
     Schema integer, white space collapsed), or None when absent or not such a number.
 
-    Stricter than ``int()``: no underscores, no non-ASCII digits, at most
-    :data:`MAX_NUMBER_DIGITS` digits.
+    Stricter than ``int()``: no underscores, no non-ASCII digits.  An integer of more than
+    :data:`MAX_NUMBER_DIGITS` digits reads as +/-10^19 (beyond every limit) unconverted.
 
     >>> decimal_number(" +7 "), decimal_number("1_000"), decimal_number("٣")
     (7, None, None)
     """
     if value is None:
         return None
-    text = value.strip(" \t\r\n")
-    if _DECIMAL_NUMBER.fullmatch(text) is None:
+    m = _DECIMAL_NUMBER.fullmatch(value.strip(" \t\r\n"))
+    if m is None:
         return None
-    return int(text)
+    sign, digits = m.groups()
+    number = int(digits) if len(digits) <= MAX_NUMBER_DIGITS else _HUGE
+    return -number if sign == "-" else number
 
 
 def canonical_id(value: str | None) -> str | None:
