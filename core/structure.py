@@ -571,9 +571,9 @@ def _run_in_heading(rest: str) -> tuple[str, int] | None:
 #: in capitals too; these are the ones typed in lower case or as symbols).
 _CAPS_CONNECTORS = frozenset({"&", "-", "–", "—", "/"})
 #: A heading in capitals of one word needs this many letters: shorter capitals are more often
-#: an acronym opening the sentence ("GDPR Compliance ...") than a heading.  Common practice,
-#: no source.
-MIN_CAPS_HEADING_LETTERS = 4
+#: an acronym opening the sentence ("GDPR Compliance ...", "VAT Invoices ...") than a heading
+#: (so "TERM This Agreement ..." stays unsplit).  Common practice, no source.
+MIN_CAPS_HEADING_LETTERS = 5
 
 
 def _caps_run_in(rest: str) -> tuple[str, int] | None:
@@ -715,6 +715,9 @@ class _Splitter:
         #: Numbered provisions closed by the last unnumbered heading (stack height, entries):
         #: "7.2" after "7.1" / "Exclusions" (a plain sub-heading) continues clause 7.
         self.resumable: tuple[int, list[_Open]] | None = None
+        #: Draft that unnumbered paragraphs after a table go to: the provision the table's
+        #: cell lists were under (None: the last provision, as usual).
+        self.after_table: int | None = None
 
     # -- helpers ---------------------------------------------------------------------
 
@@ -728,6 +731,7 @@ class _Splitter:
 
     def _new(self, kind: str, number: str | None, heading: str | None, level: int,
              parent: int | None, term: str | None = None) -> int:
+        self.after_table = None
         self.drafts.append(_Draft(kind, number, heading, level, parent, term))
         return len(self.drafts) - 1
 
@@ -1032,7 +1036,17 @@ class _Splitter:
     def _append(self, block: Block) -> None:
         if not self.drafts:
             self._new("other", None, None, 0, None)
-        self._add_segment(self.drafts[-1], block, 0)
+        target = self.after_table if self.after_table is not None else len(self.drafts) - 1
+        self._add_segment(self.drafts[target], block, 0)
+
+    def _close_table_items(self) -> None:
+        """The table has ended: its cell-list items close, and words after it go back to the
+        provision the table belongs to."""
+        if not (self.stack and self.stack[-1].in_table):
+            return
+        while self.stack and self.stack[-1].in_table:
+            self.stack.pop()
+        self.after_table = self.stack[-1].draft if self.stack else None
 
     # -- driver ------------------------------------------------------------------------
 
@@ -1041,8 +1055,7 @@ class _Splitter:
         for i, block in enumerate(blocks):
             nxt = blocks[i + 1] if i + 1 < len(blocks) else None
             if not block.in_table:
-                while self.stack and self.stack[-1].in_table:  # the table has ended
-                    self.stack.pop()
+                self._close_table_items()
             label = _label_of(block)
             if label is not None:
                 self.numbered(block, label)
