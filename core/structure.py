@@ -270,6 +270,37 @@ def _keyword_label(text: str, start: int, *, auto: bool) -> Label | None:
                  rank, comps=comps)
 
 
+def _decimal_label(text: str, start: int) -> Label | None:
+    """A decimal label typed at *start*: "7.", "7.2", "7\tPrice", "11 EXPORT ...", "2.Scope"."""
+    m = _DEC_RE.match(text, start)
+    if m:
+        comps = tuple(int(c) for c in m.group("dec").split("."))
+        sep = m.group("sep")
+        after = text[m.end():m.end() + 1]
+        if m.group("dot"):
+            ok = True
+        elif len(comps) >= 2:
+            # "7.2 The ..." yes; "2.5 million ..." no.
+            ok = not after or not after.islower()
+        else:
+            # A bare integer needs a tab or wide gap ("7\tPrice", "7  PRICE") or a heading in
+            # capitals after it ("11 EXPORT RESTRICTIONS Licensee shall").
+            ok = (("\t" in sep or len(sep) >= 2 or not after
+                   or _CAPS_WORD_RE.match(text, m.end()) is not None)
+                  and not after.islower())
+        if ok:
+            label_text = text[start:m.end()].rstrip()
+            return Label(label_text, _strip_number(label_text), m.end(), "dec", "dec", _DEC_RANK,
+                         comps=comps)
+    m = _GLUED_DEC_RE.match(text, start)
+    if m:
+        comps = tuple(int(c) for c in m.group("dec").split("."))
+        label_text = text[start:m.end()]
+        return Label(label_text, _strip_number(label_text), m.end(), "dec", "dec", _DEC_RANK,
+                     comps=comps)
+    return None
+
+
 def parse_label(text: str, *, auto: bool = False) -> Label | None:
     """The number label at the start of *text*, or None.
 
@@ -308,32 +339,9 @@ def parse_label(text: str, *, auto: bool = False) -> Label | None:
         if kw is not None:
             return kw
     if ch.isdigit():
-        m = _DEC_RE.match(text, start)
-        if m:
-            comps = tuple(int(c) for c in m.group("dec").split("."))
-            sep = m.group("sep")
-            after = text[m.end():m.end() + 1]
-            if m.group("dot"):
-                ok = True
-            elif len(comps) >= 2:
-                # "7.2 The ..." yes; "2.5 million ..." no.
-                ok = not after or not after.islower()
-            else:
-                # A bare integer needs a tab or wide gap ("7\tPrice", "7  PRICE") or a heading in
-                # capitals after it ("11 EXPORT RESTRICTIONS Licensee shall").
-                ok = (("\t" in sep or len(sep) >= 2 or not after
-                       or _CAPS_WORD_RE.match(text, m.end()) is not None)
-                      and not after.islower())
-            if ok:
-                label_text = text[start:m.end()].rstrip()
-                return Label(label_text, _strip_number(label_text), m.end(), "dec", "dec", _DEC_RANK,
-                             comps=comps)
-        m = _GLUED_DEC_RE.match(text, start)
-        if m:
-            comps = tuple(int(c) for c in m.group("dec").split("."))
-            label_text = text[start:m.end()]
-            return Label(label_text, _strip_number(label_text), m.end(), "dec", "dec", _DEC_RANK,
-                         comps=comps)
+        dec = _decimal_label(text, start)
+        if dec is not None:
+            return dec
         m = _CLOSE_RE.match(text, start)
         if m:
             return _list_label(m.group("tok"), "close", text[start:m.end()].rstrip(), m.end())

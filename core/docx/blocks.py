@@ -35,15 +35,20 @@ from __future__ import annotations
 import os
 import re
 from collections import Counter
+from collections.abc import Iterator
 from dataclasses import dataclass
-from typing import Iterator
 
 from lxml import etree
 
 from ..errors import CounterdraftError
 from ..model import Block
 from .compat import MC_NS, alternate_branch
-from .numbering import ListCounter, NumberingDefinitions, decimal_number, parse_numbering
+from .numbering import (
+    ListCounter,
+    NumberingDefinitions,
+    decimal_number,
+    parse_numbering,
+)
 from .package import open_docx_package
 from .styles import W_NS, RunFormat, StyleSheet, parse_styles, run_format_of
 
@@ -150,7 +155,7 @@ class _Tally:
     runs: int = 0
 
     @classmethod
-    def new(cls, source: str | None = None) -> "_Tally":
+    def new(cls, source: str | None = None) -> _Tally:
         return cls(Counter(), source)
 
     def paragraph(self) -> None:
@@ -255,7 +260,7 @@ class _ParagraphWalker:
     its result part), shared across paragraphs by the caller; text shows only when every
     open field is in its result part."""
 
-    __slots__ = ("fields", "tally", "revisions", "stack", "walk")
+    __slots__ = ("fields", "revisions", "stack", "tally", "walk")
 
     def __init__(self, fields: list[bool], tally: _Tally | None) -> None:
         self.fields = fields
@@ -618,7 +623,7 @@ def _warnings(tally: _Tally, document_element: etree._Element) -> tuple[str, ...
 class _BlockMaker:
     """Turns walked paragraphs into blocks: style, heading features, numbering label."""
 
-    __slots__ = ("sheet", "defs", "counter")
+    __slots__ = ("counter", "defs", "sheet")
 
     def __init__(self, sheet: StyleSheet, defs: NumberingDefinitions) -> None:
         self.sheet = sheet

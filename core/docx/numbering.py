@@ -43,8 +43,8 @@ plus the length of its label (:mod:`core.docx.numformats` never loops up to the 
 from __future__ import annotations
 
 import re
+from collections.abc import Mapping
 from dataclasses import dataclass, field
-from typing import Mapping
 
 from lxml import etree
 
@@ -57,8 +57,8 @@ __all__ = [
     "MAX_LEVELS",
     "MAX_LEVEL_TEXT_CHARS",
     "MAX_LIST_START",
-    "MAX_NUMBER_DIGITS",
     "MAX_NUMBERING_ENTRIES",
+    "MAX_NUMBER_DIGITS",
     "MAX_STYLE_LINK_HOPS",
     "AbstractNumDef",
     "LevelDef",
@@ -431,7 +431,7 @@ class ListCounter:
     read.  ``advance`` costs O(levels).
     """
 
-    __slots__ = ("_defs", "_counts", "_started")
+    __slots__ = ("_counts", "_defs", "_started")
 
     def __init__(self, definitions: NumberingDefinitions) -> None:
         self._defs = definitions
