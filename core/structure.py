@@ -994,8 +994,9 @@ class _Splitter:
             if term is not None:
                 self.unnumbered_definition(block, term)
                 return
-            if block.lead and self.phase in ("body", "schedule") and not block.bullet:
-                found = _lead_heading(block.lead, None, text, strict=True)
+            if self.phase in ("body", "schedule") and not block.bullet:
+                found = (_lead_heading(block.lead, None, text, strict=True) if block.lead
+                         else _caps_run_in(text))
                 if found is not None:
                     self._headed_paragraph(block, found)
                     return

@@ -323,6 +323,15 @@ def test_run_in_heading_in_capitals_after_an_auto_number():
         ("11", "EXPORT RESTRICTIONS", "Licensee shall comply with export laws.")]
 
 
+def test_unnumbered_run_in_heading_in_capitals_starts_a_provision():
+    doc = text_doc("1. Supply\nThe Supplier supplies the Goods.\n"
+                   "CONFIDENTIALITY Each party keeps the other's secrets.\n")
+    assert [(p.number, p.heading, p.text) for p in doc.provisions] == [
+        ("1", "Supply", "The Supplier supplies the Goods."),
+        (None, "CONFIDENTIALITY", "Each party keeps the other's secrets."),
+    ]
+
+
 @pytest.mark.parametrize("text, number, rest", [
     # A renumbered label glued to its heading (common practice, no source).
     ("2.Scope", "2", "Scope"),
