@@ -138,6 +138,11 @@ _KW_RE = re.compile(
 # What may follow a keyword label: punctuation, a dash, a tab, two spaces or the end.
 _KW_TERMINATOR = re.compile(r"\s*[.:]\s*|\s*[-–—]\s+|\s+[-–—]\s*|\t\s*|\s{2,}|\s*$")
 _DEC_RE = re.compile(r"(?P<dec>\d{1,3}(?:\.\d{1,3})*)(?P<dot>\.)?(?P<sep>[ \t\u00a0]+|$)")
+#: A renumbered label glued to its heading: "2.Scope", "3.1.Definitions" (a trailing dot,
+#: then a capitalised word; "2.5million" or "1.A" are not).  Common practice, no source.
+_GLUED_DEC_RE = re.compile(r"(?P<dec>\d{1,3}(?:\.\d{1,3})*)\.(?=[A-Z][a-z])")
+#: An all-capitals word of two letters or more: "11 EXPORT RESTRICTIONS Licensee shall".
+_CAPS_WORD_RE = re.compile(r"[A-Z][A-Z'’&/-]*[A-Z]\b")
 _PAREN_RE = re.compile(r"\((?P<tok>[A-Za-z]{1,4}|\d{1,3})\)(?P<sep>[ \t\u00a0]+|$)")
 _CLOSE_RE = re.compile(r"(?P<tok>[A-Za-z]{1,4}|\d{1,3})\)(?P<sep>[ \t\u00a0]+|$)")
 _DOT_RE = re.compile(r"(?P<tok>[A-Za-z]{1,4})\.(?P<sep>[ \t\u00a0]+|$)")
@@ -265,6 +270,37 @@ def _keyword_label(text: str, start: int, *, auto: bool) -> Label | None:
                  rank, comps=comps)
 
 
+def _decimal_label(text: str, start: int) -> Label | None:
+    """A decimal label typed at *start*: "7.", "7.2", "7\tPrice", "11 EXPORT ...", "2.Scope"."""
+    m = _DEC_RE.match(text, start)
+    if m:
+        comps = tuple(int(c) for c in m.group("dec").split("."))
+        sep = m.group("sep")
+        after = text[m.end():m.end() + 1]
+        if m.group("dot"):
+            ok = True
+        elif len(comps) >= 2:
+            # "7.2 The ..." yes; "2.5 million ..." no.
+            ok = not after or not after.islower()
+        else:
+            # A bare integer needs a tab or wide gap ("7\tPrice", "7  PRICE") or a heading in
+            # capitals after it ("11 EXPORT RESTRICTIONS Licensee shall").
+            ok = (("\t" in sep or len(sep) >= 2 or not after
+                   or _CAPS_WORD_RE.match(text, m.end()) is not None)
+                  and not after.islower())
+        if ok:
+            label_text = text[start:m.end()].rstrip()
+            return Label(label_text, _strip_number(label_text), m.end(), "dec", "dec", _DEC_RANK,
+                         comps=comps)
+    m = _GLUED_DEC_RE.match(text, start)
+    if m:
+        comps = tuple(int(c) for c in m.group("dec").split("."))
+        label_text = text[start:m.end()]
+        return Label(label_text, _strip_number(label_text), m.end(), "dec", "dec", _DEC_RANK,
+                     comps=comps)
+    return None
+
+
 def parse_label(text: str, *, auto: bool = False) -> Label | None:
     """The number label at the start of *text*, or None.
 
@@ -303,23 +339,9 @@ def parse_label(text: str, *, auto: bool = False) -> Label | None:
         if kw is not None:
             return kw
     if ch.isdigit():
-        m = _DEC_RE.match(text, start)
-        if m:
-            comps = tuple(int(c) for c in m.group("dec").split("."))
-            sep = m.group("sep")
-            after = text[m.end():m.end() + 1]
-            if m.group("dot"):
-                ok = True
-            elif len(comps) >= 2:
-                # "7.2 The ..." yes; "2.5 million ..." no.
-                ok = not after or not after.islower()
-            else:
-                # A bare integer needs a tab or wide gap: "7\tPrice" / "7  PRICE".
-                ok = ("\t" in sep or len(sep) >= 2 or not after) and not after.islower()
-            if ok:
-                label_text = text[start:m.end()].rstrip()
-                return Label(label_text, _strip_number(label_text), m.end(), "dec", "dec", _DEC_RANK,
-                             comps=comps)
+        dec = _decimal_label(text, start)
+        if dec is not None:
+            return dec
         m = _CLOSE_RE.match(text, start)
         if m:
             return _list_label(m.group("tok"), "close", text[start:m.end()].rstrip(), m.end())
@@ -516,6 +538,22 @@ def _heading_like_numbered(block: Block, rest: str, label: Label) -> bool:
     return title
 
 
+def _numbered_heading(block: Block, label: Label, rest: str, *, schedule: bool
+                      ) -> tuple[str, int] | None:
+    """The heading of a numbered paragraph whose words are *rest*: (heading, offset of the
+    words after it), from the emphasised lead-in, the whole line, or text cues."""
+    found = _lead_heading(block.lead, label, rest) if block.lead else None
+    if found is None and schedule:
+        words = rest.split()
+        if rest and len(words) <= MAX_CAPS_HEADING_WORDS and not re.search(r"[.;]\s", rest):
+            found = (_clean_heading(rest), len(rest))
+    if found is None and _heading_like_numbered(block, rest, label):
+        found = (_clean_heading(rest), len(rest))
+    if found is None and label.family != "list":
+        found = _run_in_heading(rest) or _caps_run_in(rest)
+    return found
+
+
 def _run_in_heading(rest: str) -> tuple[str, int] | None:
     """A title-case run-in heading at the start of *rest*: (heading, offset of the words)."""
     m = _RUN_IN_RE.match(rest)
@@ -535,6 +573,39 @@ def _run_in_heading(rest: str) -> tuple[str, int] | None:
     if not (nxt.isupper() or nxt.isdigit() or nxt in _QUOTE_OPEN + "(["):
         return None
     return _clean_heading(head), m.start("next")
+
+
+#: Connecting words allowed inside a heading in capitals ("TERM AND TERMINATION" has them
+#: in capitals too; these are the ones typed in lower case or as symbols).
+_CAPS_CONNECTORS = frozenset({"&", "-", "–", "—", "/"})
+#: A heading in capitals of one word needs this many letters: shorter capitals are more often
+#: an acronym opening the sentence ("GDPR Compliance ...", "VAT Invoices ...") than a heading
+#: (so "TERM This Agreement ..." stays unsplit).  Common practice, no source.
+MIN_CAPS_HEADING_LETTERS = 5
+
+
+def _caps_run_in(rest: str) -> tuple[str, int] | None:
+    """A run-in heading typed in capitals with no separator: "EXPORT RESTRICTIONS Licensee
+    shall ..." -> ("EXPORT RESTRICTIONS", offset of "Licensee").  The words after it must
+    start a sentence (a capital, then lower case)."""
+    words = list(re.finditer(r"\S+", rest))
+    count = 0
+    for w in words:
+        token = w.group()
+        if _CAPS_WORD_RE.fullmatch(token.rstrip(",")) is None and token not in _CAPS_CONNECTORS:
+            break
+        count += 1
+    if count == 0 or count >= len(words) or count > MAX_RUN_IN_WORDS:
+        return None
+    head = rest[:words[count - 1].end()]
+    nxt = words[count].group()
+    if not (nxt[:1].isupper() and any(ch.islower() for ch in nxt)):
+        return None
+    if count == 1 and sum(ch.isalpha() for ch in head) < MIN_CAPS_HEADING_LETTERS:
+        return None
+    if head.split()[0].lower() in _SENTENCE_STARTERS or _RECITAL_TEXT_RE.match(head):
+        return None
+    return _clean_heading(head), words[count].start()
 
 
 def _lead_heading(lead: str, label: Label | None, rest: str, *, strict: bool = False
@@ -636,6 +707,8 @@ class _Open:
     definitions: bool = False
     #: Outline level of the paragraph (heading styles, Markdown "#"), if any.
     outline: int | None = None
+    #: An item of a list inside a table cell: closed when the table ends.
+    in_table: bool = False
 
 
 _CONTAINERS = ("heading", "sched")
@@ -650,6 +723,9 @@ class _Splitter:
         #: Numbered provisions closed by the last unnumbered heading (stack height, entries):
         #: "7.2" after "7.1" / "Exclusions" (a plain sub-heading) continues clause 7.
         self.resumable: tuple[int, list[_Open]] | None = None
+        #: Draft that unnumbered paragraphs after a table go to: the provision the table's
+        #: cell lists were under (None: the last provision, as usual).
+        self.after_table: int | None = None
 
     # -- helpers ---------------------------------------------------------------------
 
@@ -663,6 +739,7 @@ class _Splitter:
 
     def _new(self, kind: str, number: str | None, heading: str | None, level: int,
              parent: int | None, term: str | None = None) -> int:
+        self.after_table = None
         self.drafts.append(_Draft(kind, number, heading, level, parent, term))
         return len(self.drafts) - 1
 
@@ -836,17 +913,7 @@ class _Splitter:
             if term is not None:
                 kind = "definition"
         if term is None:
-            found = None
-            if block.lead:
-                found = _lead_heading(block.lead, label, rest)
-            if found is None and kind == "schedule":
-                words = rest.split()
-                if rest and len(words) <= MAX_CAPS_HEADING_WORDS and not re.search(r"[.;]\s", rest):
-                    found = (_clean_heading(rest), len(rest))
-            if found is None and _heading_like_numbered(block, rest, label):
-                found = (_clean_heading(rest), len(rest))
-            if found is None and label.family != "list":
-                found = _run_in_heading(rest)
+            found = _numbered_heading(block, label, rest, schedule=kind == "schedule")
             if found is not None and found[0]:
                 heading = found[0]
                 pos += found[1]
@@ -865,7 +932,7 @@ class _Splitter:
             draft=idx, family=family, scheme=scheme, rank=label.rank, level=level, base=level,
             comps=label.comps, value=label.value, list_id=block.list_id if block.label else None,
             list_level=block.list_level if block.label else None, definitions=is_defs,
-            outline=block.outline_level,
+            outline=block.outline_level, in_table=block.in_table,
         ))
 
     def unnumbered_definition(self, block: Block, term: str) -> None:
@@ -927,8 +994,9 @@ class _Splitter:
             if term is not None:
                 self.unnumbered_definition(block, term)
                 return
-            if block.lead and self.phase in ("body", "schedule") and not block.bullet:
-                found = _lead_heading(block.lead, None, text, strict=True)
+            if self.phase in ("body", "schedule") and not block.bullet:
+                found = (_lead_heading(block.lead, None, text, strict=True) if block.lead
+                         else _caps_run_in(text))
                 if found is not None:
                     self._headed_paragraph(block, found)
                     return
@@ -977,7 +1045,17 @@ class _Splitter:
     def _append(self, block: Block) -> None:
         if not self.drafts:
             self._new("other", None, None, 0, None)
-        self._add_segment(self.drafts[-1], block, 0)
+        target = self.after_table if self.after_table is not None else len(self.drafts) - 1
+        self._add_segment(self.drafts[target], block, 0)
+
+    def _close_table_items(self) -> None:
+        """The table has ended: its cell-list items close, and words after it go back to the
+        provision the table belongs to."""
+        if not (self.stack and self.stack[-1].in_table):
+            return
+        while self.stack and self.stack[-1].in_table:
+            self.stack.pop()
+        self.after_table = self.stack[-1].draft if self.stack else None
 
     # -- driver ------------------------------------------------------------------------
 
@@ -985,6 +1063,8 @@ class _Splitter:
         blocks = [b for b in self.blocks if b.text.strip() or b.label is not None]
         for i, block in enumerate(blocks):
             nxt = blocks[i + 1] if i + 1 < len(blocks) else None
+            if not block.in_table:
+                self._close_table_items()
             label = _label_of(block)
             if label is not None:
                 self.numbered(block, label)
@@ -1017,10 +1097,13 @@ def _title_like(block: Block) -> bool:
 
 
 def _label_of(block: Block) -> Label | None:
+    """The block's label: its auto-number label, else one typed at the start of its text.
+
+    In a table cell only a list (an auto-number label) numbers a paragraph: typed text that
+    looks like a label ("1.", "(a)") is a cell's content, and a cell list's items are list
+    items under the provision the table belongs to, whatever their labels look like."""
     if block.label is not None and not block.bullet:
-        if block.in_table:
-            return None
-        lab = parse_label(block.label, auto=True)
+        lab = None if block.in_table else parse_label(block.label, auto=True)
         if lab is not None:
             return lab
         text = block.label.strip()

@@ -35,13 +35,20 @@ from __future__ import annotations
 import os
 import re
 from collections import Counter
+from collections.abc import Iterator
 from dataclasses import dataclass
-from typing import Iterator
 
 from lxml import etree
 
+from ..errors import CounterdraftError
 from ..model import Block
-from .numbering import ListCounter, NumberingDefinitions, parse_numbering
+from .compat import MC_NS, alternate_branch
+from .numbering import (
+    ListCounter,
+    NumberingDefinitions,
+    decimal_number,
+    parse_numbering,
+)
 from .package import open_docx_package
 from .styles import W_NS, RunFormat, StyleSheet, parse_styles, run_format_of
 
@@ -55,7 +62,7 @@ __all__ = [
 ]
 
 _W = "{%s}" % W_NS
-_MC = "{http://schemas.openxmlformats.org/markup-compatibility/2006}"
+_MC = "{%s}" % MC_NS
 _VAL = _W + "val"
 
 _BODY = _W + "body"
@@ -85,6 +92,7 @@ _RUBY = _W + "ruby"
 _RUBY_BASE = _W + "rubyBase"
 _TXBX_CONTENT = _W + "txbxContent"
 _MC_FALLBACK = _MC + "Fallback"
+_ALTERNATE = _MC + "AlternateContent"
 
 #: Paragraph-level elements whose children are walked like the paragraph's own.
 _TRANSPARENT = frozenset(
@@ -115,37 +123,69 @@ class TextPiece:
 
 
 # --------------------------------------------------------------------------------------
+# Bounds
+# --------------------------------------------------------------------------------------
+
+#: Most paragraphs read from one document.  A 100-page agreement has about 1,500; a
+#: 1,000-page one 20,000 or so.  More than this is no agreement a reviewer reads, and the
+#: review's cost grows with it, so the file is refused in one line.
+MAX_PARAGRAPHS = 200_000
+
+#: Most runs (``w:r``) read from one document: a heavily formatted 100-page agreement has
+#: some 30,000; ten runs a paragraph on average at the paragraph limit.
+MAX_RUNS = 2_000_000
+
+
+# --------------------------------------------------------------------------------------
 # Reading order
 # --------------------------------------------------------------------------------------
 
 
 @dataclass(slots=True)
 class _Tally:
-    """Counts gathered while walking (tracked changes, content not read)."""
+    """Counts gathered while walking (tracked changes, content not read, bounds)."""
 
     revisions: Counter[str]
+    source: str | None = None
     alt_chunks: int = 0
     #: Complex fields still open at the end of the body (a damaged field hides what follows).
     open_fields: int = 0
+    bodies: int = 0
+    paragraphs: int = 0
+    runs: int = 0
 
     @classmethod
-    def new(cls) -> "_Tally":
-        return cls(Counter())
+    def new(cls, source: str | None = None) -> _Tally:
+        return cls(Counter(), source)
+
+    def paragraph(self) -> None:
+        self.paragraphs += 1
+        if self.paragraphs > MAX_PARAGRAPHS:
+            raise CounterdraftError(f"refused: the document has more than {MAX_PARAGRAPHS} "
+                                    "paragraphs (the limit)", path=self.source)
+
+    def run(self) -> None:
+        self.runs += 1
+        if self.runs > MAX_RUNS:
+            raise CounterdraftError(f"refused: the document has more than {MAX_RUNS} runs of "
+                                    "text (w:r, the limit)", path=self.source)
 
 
-def _body_of(document_element: etree._Element) -> etree._Element:
+def _bodies(document_element: etree._Element) -> list[etree._Element]:
+    """Every ``w:body`` of a ``w:document`` in order (ECMA-376 allows one; a second one,
+    which LibreOffice shows, is read too), or ``[element]`` for a body given directly."""
     if document_element.tag == _DOCUMENT:
-        body = document_element.find(_BODY)
-        if body is None:
-            raise ValueError("w:document has no w:body")
-        return body
-    return document_element
+        return [child for child in document_element if child.tag == _BODY]
+    return [document_element]
 
 
 def _iter_paragraphs(document_element: etree._Element, tally: _Tally | None = None
                      ) -> Iterator[tuple[etree._Element, bool]]:
     """(w:p, in_table) in reading order; an explicit stack, so nesting costs no recursion."""
-    stack: list[tuple[Iterator[etree._Element], int]] = [(iter(_body_of(document_element)), 0)]
+    bodies = _bodies(document_element)
+    if tally is not None:
+        tally.bodies = len(bodies)
+    stack: list[tuple[Iterator[etree._Element], int]] = [(iter(b), 0) for b in reversed(bodies)]
     while stack:
         it, depth = stack[-1]
         child = next(it, None)
@@ -154,16 +194,14 @@ def _iter_paragraphs(document_element: etree._Element, tally: _Tally | None = No
             continue
         tag = child.tag
         if tag == _P:
+            if tally is not None:
+                tally.paragraph()
             yield child, depth > 0
         elif tag == _TBL:
             stack.append((iter(child), depth + 1))
         elif tag == _TR:
             if tally is not None:
-                trpr = child.find(_TRPR)
-                if trpr is not None:
-                    for rev in trpr:
-                        if rev.tag in (_INS, _DEL):
-                            tally.revisions[rev.tag] += 1
+                _count_row_revisions(child, tally)
             stack.append((iter(child), depth))
         elif tag == _TC or tag == _CUSTOM_XML:
             stack.append((iter(child), depth))
@@ -171,13 +209,26 @@ def _iter_paragraphs(document_element: etree._Element, tally: _Tally | None = No
             content = child.find(_SDT_CONTENT)
             if content is not None:
                 stack.append((iter(content), depth))
+        elif tag == _ALTERNATE:
+            branch = alternate_branch(child)
+            if branch is not None:
+                stack.append((iter(branch), depth))
         elif tag == _ALT_CHUNK and tally is not None:
             tally.alt_chunks += 1
 
 
+def _count_row_revisions(row: etree._Element, tally: _Tally) -> None:
+    trpr = row.find(_TRPR)
+    if trpr is not None:
+        for rev in trpr:
+            if rev.tag in (_INS, _DEL):
+                tally.revisions[rev.tag] += 1
+
+
 def iter_body_paragraphs(document_element: etree._Element) -> Iterator[etree._Element]:
     """The body's ``w:p`` elements in reading order (table cells and nested tables included,
-    content controls and custom XML opened), the same order as :func:`read_docx_blocks`.
+    content controls, custom XML and markup-compatibility choices opened), the same order as
+    :func:`read_docx_blocks`.
 
     *document_element* is the ``w:document`` root or its ``w:body``.
     """
@@ -200,67 +251,94 @@ class _Walk:
     mark_deleted: bool
 
 
-def _walk_paragraph(p: etree._Element, fields: list[bool], tally: _Tally | None) -> _Walk:
-    """Walk one paragraph.  *fields* is the open complex-field stack (True = in its result
-    part), shared across paragraphs by the caller; text shows only when every open field is
-    in its result part."""
-    pieces: list[TextPiece] = []
-    formats: list[RunFormat] = []
-    char_styles: list[str | None] = []
-    mark_deleted = False
-    revisions = tally.revisions if tally is not None else None
+#: One level of the walker's stack: (children, current run or None, run format, char style).
+_Frame = tuple[Iterator[etree._Element], "etree._Element | None", RunFormat, "str | None"]
 
-    # (iterator over children, current run or None, run format, char style id)
-    stack: list[tuple[Iterator[etree._Element], etree._Element | None, RunFormat, str | None]]
-    stack = [(iter(p), None, _EMPTY_FORMAT, None)]
-    while stack:
-        it, run, fmt, cstyle = stack[-1]
-        child = next(it, None)
-        if child is None:
-            stack.pop()
-            continue
+
+class _ParagraphWalker:
+    """Walks one paragraph's content.  *fields* is the open complex-field stack (True = in
+    its result part), shared across paragraphs by the caller; text shows only when every
+    open field is in its result part."""
+
+    __slots__ = ("fields", "revisions", "stack", "tally", "walk")
+
+    def __init__(self, fields: list[bool], tally: _Tally | None) -> None:
+        self.fields = fields
+        self.tally = tally
+        self.revisions = tally.revisions if tally is not None else None
+
+    def __call__(self, p: etree._Element) -> _Walk:
+        self.walk = _Walk([], [], [], False)
+        self.stack: list[_Frame] = [(iter(p), None, _EMPTY_FORMAT, None)]
+        stack = self.stack
+        while stack:
+            it, run, fmt, cstyle = stack[-1]
+            child = next(it, None)
+            if child is None:
+                stack.pop()
+            elif run is None:
+                self._paragraph_content(child)
+            else:
+                self._run_content(child, run, fmt, cstyle)
+        return self.walk
+
+    def _count(self, tag: str) -> None:
+        if self.revisions is not None:
+            self.revisions[tag] += 1
+
+    def _open(self, element: etree._Element | None) -> None:
+        if element is not None:
+            self.stack.append((iter(element), None, _EMPTY_FORMAT, None))
+
+    def _paragraph_content(self, child: etree._Element) -> None:
         tag = child.tag
-        if run is None:
-            # Paragraph-level content.
-            if tag == _R:
-                rpr = child.find(_RPR)
-                rfmt = run_format_of(rpr)
-                rstyle = None
-                if rpr is not None:
-                    rs = rpr.find(_W + "rStyle")
-                    if rs is not None:
-                        rstyle = rs.get(_VAL)
-                    if revisions is not None and rpr.find(_RPR_CHANGE) is not None:
-                        revisions[_RPR_CHANGE] += 1
-                stack.append((iter(child), child, rfmt, rstyle))
-            elif tag == _INS or tag == _MOVE_TO:
-                if revisions is not None:
-                    revisions[tag] += 1
-                stack.append((iter(child), None, _EMPTY_FORMAT, None))
-            elif tag == _DEL or tag == _MOVE_FROM:
-                if revisions is not None:
-                    revisions[tag] += 1
-            elif tag in _TRANSPARENT:
-                stack.append((iter(child), None, _EMPTY_FORMAT, None))
-            elif tag == _SDT:
-                content = child.find(_SDT_CONTENT)
-                if content is not None:
-                    stack.append((iter(content), None, _EMPTY_FORMAT, None))
-            elif tag == _PPR:
-                rpr = child.find(_RPR)
-                if rpr is not None:
-                    for mark in rpr:
-                        mtag = mark.tag
-                        if mtag == _DEL or mtag == _MOVE_FROM:
-                            mark_deleted = True
-                            if revisions is not None:
-                                revisions[mtag] += 1
-                        elif (mtag == _INS or mtag == _MOVE_TO) and revisions is not None:
-                            revisions[mtag] += 1
-                if revisions is not None and child.find(_PPR_CHANGE) is not None:
-                    revisions[_PPR_CHANGE] += 1
-            continue
-        # Run content: text, fixed characters and symbols become pieces.
+        if tag == _R:
+            self._enter_run(child)
+        elif tag == _INS or tag == _MOVE_TO:
+            self._count(tag)
+            self._open(child)
+        elif tag == _DEL or tag == _MOVE_FROM:
+            self._count(tag)
+        elif tag in _TRANSPARENT:
+            self._open(child)
+        elif tag == _SDT:
+            self._open(child.find(_SDT_CONTENT))
+        elif tag == _ALTERNATE:
+            self._open(alternate_branch(child))
+        elif tag == _PPR:
+            self._paragraph_mark(child)
+
+    def _enter_run(self, run: etree._Element) -> None:
+        if self.tally is not None:
+            self.tally.run()
+        rpr = run.find(_RPR)
+        rstyle = None
+        if rpr is not None:
+            rs = rpr.find(_W + "rStyle")
+            if rs is not None:
+                rstyle = rs.get(_VAL)
+            if rpr.find(_RPR_CHANGE) is not None:
+                self._count(_RPR_CHANGE)
+        self.stack.append((iter(run), run, run_format_of(rpr), rstyle))
+
+    def _paragraph_mark(self, ppr: etree._Element) -> None:
+        rpr = ppr.find(_RPR)
+        if rpr is not None:
+            for mark in rpr:
+                mtag = mark.tag
+                if mtag == _DEL or mtag == _MOVE_FROM:
+                    self.walk.mark_deleted = True
+                    self._count(mtag)
+                elif mtag == _INS or mtag == _MOVE_TO:
+                    self._count(mtag)
+        if ppr.find(_PPR_CHANGE) is not None:
+            self._count(_PPR_CHANGE)
+
+    def _run_content(self, child: etree._Element, run: etree._Element, fmt: RunFormat,
+                     cstyle: str | None) -> None:
+        """Text, fixed characters and symbols become pieces; field characters move the field
+        stack; ruby bases and markup-compatibility branches are opened."""
+        tag = child.tag
         if tag == _T:
             text = child.text
         elif tag in _FIXED_TEXT:
@@ -269,25 +347,34 @@ def _walk_paragraph(p: etree._Element, fields: list[bool], tally: _Tally | None)
             text = _sym_text(child)
         else:
             if tag == _FLD_CHAR:
-                kind = child.get(_FLD_CHAR_TYPE)
-                if kind == "begin":
-                    fields.append(False)
-                elif kind == "separate":
-                    if fields:
-                        fields[-1] = True
-                elif kind == "end":
-                    if fields:
-                        fields.pop()
+                self._field_char(child.get(_FLD_CHAR_TYPE))
             elif tag == _RUBY:
-                base = child.find(_RUBY_BASE)
-                if base is not None:
-                    stack.append((iter(base), None, _EMPTY_FORMAT, None))
-            continue
-        if text and not fmt.hidden and all(fields):
-            pieces.append(TextPiece(text, run, child))
-            formats.append(fmt)
-            char_styles.append(cstyle)
-    return _Walk(pieces, formats, char_styles, mark_deleted)
+                self._open(child.find(_RUBY_BASE))
+            elif tag == _ALTERNATE:
+                branch = alternate_branch(child)
+                if branch is not None:
+                    self.stack.append((iter(branch), run, fmt, cstyle))
+            return
+        if text and not fmt.hidden and all(self.fields):
+            walk = self.walk
+            walk.pieces.append(TextPiece(text, run, child))
+            walk.formats.append(fmt)
+            walk.char_styles.append(cstyle)
+
+    def _field_char(self, kind: str | None) -> None:
+        fields = self.fields
+        if kind == "begin":
+            fields.append(False)
+        elif kind == "separate":
+            if fields:
+                fields[-1] = True
+        elif kind == "end":
+            if fields:
+                fields.pop()
+
+
+def _walk_paragraph(p: etree._Element, fields: list[bool], tally: _Tally | None) -> _Walk:
+    return _ParagraphWalker(fields, tally)(p)
 
 
 def _sym_text(sym: etree._Element) -> str:
@@ -444,13 +531,25 @@ def _emphasis(text: str, pieces: list[TextPiece], emph: list[bool], caps: list[b
 # --------------------------------------------------------------------------------------
 
 
-def _ppr_values(p: etree._Element) -> tuple[str | None, str | None, int | None, int | None]:
-    """(pStyle, numId, ilvl, outlineLvl) set directly on the paragraph."""
+@dataclass(frozen=True, slots=True)
+class _ParagraphProps:
+    """What ``w:pPr`` sets directly: style, numbering, outline level, paragraph-mark run
+    properties (their language is the paragraph's, for the number formats that spell)."""
+
+    style_id: str | None = None
+    num_id: str | None = None
+    ilvl: int | None = None
+    outline: int | None = None
+    mark: RunFormat = _EMPTY_FORMAT
+
+
+def _ppr_values(p: etree._Element) -> _ParagraphProps:
     ppr = p.find(_PPR)
     if ppr is None:
-        return None, None, None, None
+        return _ParagraphProps()
     style = num_id = None
     ilvl = outline = None
+    mark = _EMPTY_FORMAT
     for child in ppr:
         tag = child.tag
         if tag == _W + "pStyle":
@@ -460,16 +559,12 @@ def _ppr_values(p: etree._Element) -> tuple[str | None, str | None, int | None, 
                 if np_.tag == _W + "numId":
                     num_id = np_.get(_VAL)
                 elif np_.tag == _W + "ilvl":
-                    try:
-                        ilvl = int(np_.get(_VAL, ""))
-                    except ValueError:
-                        ilvl = None
+                    ilvl = decimal_number(np_.get(_VAL))
         elif tag == _W + "outlineLvl":
-            try:
-                outline = int(child.get(_VAL, ""))
-            except ValueError:
-                outline = None
-    return style, num_id, ilvl, outline
+            outline = decimal_number(child.get(_VAL))
+        elif tag == _RPR:
+            mark = run_format_of(child)
+    return _ParagraphProps(style, num_id, ilvl, outline, mark)
 
 
 def _revision_warning(revisions: Counter[str]) -> str | None:
@@ -506,74 +601,14 @@ def _text_box_count(document_element: etree._Element) -> int:
     return count
 
 
-def blocks_from_document(
-    document_element: etree._Element,
-    *,
-    styles: StyleSheet | None = None,
-    numbering: NumberingDefinitions | None = None,
-) -> tuple[tuple[Block, ...], tuple[str, ...]]:
-    """Blocks and warnings from parsed parts (the pure core of :func:`read_docx_blocks`)."""
-    sheet = styles if styles is not None else StyleSheet()
-    defs = numbering if numbering is not None else NumberingDefinitions()
-    counter = ListCounter(defs)
-    tally = _Tally.new()
-    blocks: list[Block] = []
-    default_run = sheet.default_run
-    for p, in_table, walk in _merged_walks(document_element, tally):
-        style_id, num_id, ilvl, outline_raw = _ppr_values(p)
-        style = sheet.paragraph_style(style_id)
-        para_run = style.run.over(default_run) if style is not None else default_run
-        pieces = walk.pieces
-        text = "".join(piece.text for piece in pieces)
-
-        emph: list[bool] = []
-        caps: list[bool] = []
-        for fmt, cstyle in zip(walk.formats, walk.char_styles):
-            cdef = sheet.get(cstyle)
-            full = fmt.over(cdef.run.over(para_run)) if cdef is not None else fmt.over(para_run)
-            is_caps = bool(full.caps)
-            emph.append(bool(full.bold) or bool(full.underline) or is_caps)
-            caps.append(is_caps)
-        features = _emphasis(text, pieces, emph, caps)
-
-        label = None
-        list_level = list_id = None
-        bullet = False
-        merged_away = walk.mark_deleted and not pieces
-        if not merged_away:
-            numpr = defs.paragraph_numbering(num_id=num_id, ilvl=ilvl, style=style)
-            if numpr is not None:
-                shown = counter.advance(*numpr)
-                if shown is not None:
-                    label = shown.text
-                    bullet = shown.bullet
-                    list_level = shown.ilvl
-                    list_id = shown.list_id
-
-        if outline_raw is not None:
-            outline = outline_raw + 1 if 0 <= outline_raw <= 8 else None
-        else:
-            outline = style.outline_level if style is not None else None
-
-        blocks.append(Block(
-            index=len(blocks),
-            text=text,
-            label=label,
-            list_level=list_level,
-            list_id=list_id,
-            bullet=bullet,
-            style=style.name if style is not None else None,
-            outline_level=outline,
-            lead=features.lead,
-            emphasised=features.emphasised,
-            all_caps=features.all_caps,
-            in_table=in_table,
-        ))
-
+def _warnings(tally: _Tally, document_element: etree._Element) -> tuple[str, ...]:
     warnings: list[str] = []
     rev = _revision_warning(tally.revisions)
     if rev:
         warnings.append(rev)
+    if tally.bodies > 1:
+        warnings.append(f"the document has {tally.bodies} bodies (w:body; ECMA-376 allows one): "
+                        "all are read, in order")
     if tally.alt_chunks:
         warnings.append(f"{tally.alt_chunks} embedded document chunk(s) (w:altChunk) not read")
     if tally.open_fields:
@@ -582,17 +617,93 @@ def blocks_from_document(
     boxes = _text_box_count(document_element)
     if boxes:
         warnings.append(f"text in {boxes} text box(es) not read")
-    return tuple(blocks), tuple(warnings)
+    return tuple(warnings)
+
+
+class _BlockMaker:
+    """Turns walked paragraphs into blocks: style, heading features, numbering label."""
+
+    __slots__ = ("counter", "defs", "sheet")
+
+    def __init__(self, sheet: StyleSheet, defs: NumberingDefinitions) -> None:
+        self.sheet = sheet
+        self.defs = defs
+        self.counter = ListCounter(defs)
+
+    def __call__(self, index: int, p: etree._Element, in_table: bool, walk: _Walk) -> Block:
+        props = _ppr_values(p)
+        style = self.sheet.paragraph_style(props.style_id)
+        default_run = self.sheet.default_run
+        para_run = style.run.over(default_run) if style is not None else default_run
+        text = "".join(piece.text for piece in walk.pieces)
+        features = self._emphasis(text, walk, para_run)
+        shown = None
+        if not (walk.mark_deleted and not walk.pieces):  # a paragraph merged away
+            numpr = self.defs.paragraph_numbering(num_id=props.num_id, ilvl=props.ilvl,
+                                                  style=style)
+            if numpr is not None:
+                shown = self.counter.advance(*numpr, lang=props.mark.over(para_run).lang)
+        if props.outline is not None:
+            outline = props.outline + 1 if 0 <= props.outline <= 8 else None
+        else:
+            outline = style.outline_level if style is not None else None
+        return Block(
+            index=index,
+            text=text,
+            label=shown.text if shown is not None else None,
+            list_level=shown.ilvl if shown is not None else None,
+            list_id=shown.list_id if shown is not None else None,
+            bullet=shown.bullet if shown is not None else False,
+            style=style.name if style is not None else None,
+            outline_level=outline,
+            lead=features.lead,
+            emphasised=features.emphasised,
+            all_caps=features.all_caps,
+            in_table=in_table,
+        )
+
+    def _emphasis(self, text: str, walk: _Walk, para_run: RunFormat) -> _Emphasis:
+        emph: list[bool] = []
+        caps: list[bool] = []
+        for fmt, cstyle in zip(walk.formats, walk.char_styles):
+            cdef = self.sheet.get(cstyle)
+            full = fmt.over(cdef.run.over(para_run)) if cdef is not None else fmt.over(para_run)
+            is_caps = bool(full.caps)
+            emph.append(bool(full.bold) or bool(full.underline) or is_caps)
+            caps.append(is_caps)
+        return _emphasis(text, walk.pieces, emph, caps)
+
+
+def blocks_from_document(
+    document_element: etree._Element,
+    *,
+    styles: StyleSheet | None = None,
+    numbering: NumberingDefinitions | None = None,
+    source: str | None = None,
+) -> tuple[tuple[Block, ...], tuple[str, ...]]:
+    """Blocks and warnings from parsed parts (the pure core of :func:`read_docx_blocks`).
+
+    *source* names the file in the :class:`~core.errors.CounterdraftError` raised beyond
+    :data:`MAX_PARAGRAPHS` or :data:`MAX_RUNS`.  A ``w:document`` without a ``w:body`` has
+    no blocks (:func:`core.docx.package.open_docx_package` refuses such a file).
+    """
+    make = _BlockMaker(styles if styles is not None else StyleSheet(),
+                       numbering if numbering is not None else NumberingDefinitions())
+    tally = _Tally.new(source)
+    blocks = [make(i, p, in_table, walk)
+              for i, (p, in_table, walk) in enumerate(_merged_walks(document_element, tally))]
+    return tuple(blocks), _warnings(tally, document_element)
 
 
 def read_docx_blocks(path: str | os.PathLike[str]) -> tuple[tuple[Block, ...], tuple[str, ...]]:
     """Read the .docx at *path* into blocks (one per body paragraph, reading order) and
     warnings, after the safety checks of :func:`core.docx.package.open_docx_package`.
 
-    Raises :class:`core.errors.CounterdraftError` for bad input.
+    Raises :class:`core.errors.CounterdraftError` for bad input, and for a document beyond
+    the bounds of :mod:`core.docx.numbering` or of this module (one line naming the file).
     """
     package = open_docx_package(path)
     sheet = parse_styles(package.styles)
-    defs = parse_numbering(package.numbering, styles=sheet)
-    return blocks_from_document(package.document, styles=sheet, numbering=defs)
-
+    defs = parse_numbering(package.numbering, styles=sheet, source=package.path)
+    return blocks_from_document(package.document, styles=sheet, numbering=defs,
+                                source=package.path)

@@ -21,23 +21,44 @@ Counting model (checked against LibreOffice, the project's outside reference):
   then "2." when a list opens at its second level);
 * ``w:isLgl`` (§17.9.4) shows the numbers of the higher levels in decimal;
 * ``numId`` 0 removes numbering (§17.9.18); a bullet level (numFmt ``bullet`` or a picture
-  bullet) has no label.
+  bullet) has no label;
+* number formats are rendered by :mod:`core.docx.numformats` (every ST_NumberFormat value),
+  in the paragraph's language for the text formats; ``w:numFmt`` inside
+  ``mc:AlternateContent`` (a Word 2010 custom format) is read from the branch a consumer
+  takes (:mod:`core.docx.compat`).
 
-Cost: parsing is linear in numbering.xml; each numbered paragraph costs O(levels) = O(9).
+Bounds.  Every number read here is an ST_DecimalNumber (§17.18.10, an XML Schema integer):
+it is parsed strictly (optional sign and ASCII digits; anything else counts as absent, and
+an integer longer than :data:`MAX_NUMBER_DIGITS` digits is never converted), then checked
+against a practical limit before use: a level number outside 0-8 makes the level unusable
+(§17.9.3 allows nine levels); a ``w:start`` or ``w:startOverride`` outside
+0..:data:`MAX_LIST_START`, more than :data:`MAX_NUMBERING_ENTRIES` definitions or a level
+text longer than :data:`MAX_LEVEL_TEXT_CHARS` is refused with a
+:class:`~core.errors.CounterdraftError` naming the file and the limit.
+
+Cost: parsing is linear in numbering.xml; each numbered paragraph costs O(levels) = O(9)
+plus the length of its label (:mod:`core.docx.numformats` never loops up to the value).
 """
 
 from __future__ import annotations
 
 import re
+from collections.abc import Mapping
 from dataclasses import dataclass, field
-from typing import Mapping
 
 from lxml import etree
 
+from ..errors import CounterdraftError
+from .compat import MC_NS, alternate_branch
+from .numformats import BULLET_FORMATS, format_number
 from .styles import W_NS, StyleDef, StyleSheet, on_off
 
 __all__ = [
     "MAX_LEVELS",
+    "MAX_LEVEL_TEXT_CHARS",
+    "MAX_LIST_START",
+    "MAX_NUMBERING_ENTRIES",
+    "MAX_NUMBER_DIGITS",
     "MAX_STYLE_LINK_HOPS",
     "AbstractNumDef",
     "LevelDef",
@@ -45,12 +66,15 @@ __all__ = [
     "NumDef",
     "NumberLabel",
     "NumberingDefinitions",
+    "canonical_id",
+    "decimal_number",
     "format_number",
     "parse_numbering",
 ]
 
 _W = "{%s}" % W_NS
 _VAL = _W + "val"
+_ALTERNATE = f"{{{MC_NS}}}AlternateContent"
 
 #: ECMA-376 Part 1 §17.9.6 (w:ilvl): levels 0..8.
 MAX_LEVELS = 9
@@ -59,17 +83,56 @@ MAX_LEVELS = 9
 #: before giving up (a legitimate link is one hop; this bounds cycles in hostile input).
 MAX_STYLE_LINK_HOPS = 8
 
-#: Largest number spelled out in words (cardinalText/ordinalText); larger values are shown in
-#: decimal.  Contracts number clauses in the tens or hundreds at most.
-MAX_WORDS_NUMBER = 999_999
+#: Largest ``w:start`` / ``w:startOverride`` accepted.  LibreOffice 7.4 keeps start values up
+#: to 32767 and no further (checked: 65535 shows as 32768, 99999 as 1), and no agreement
+#: numbers a list from higher; beyond it the file is refused rather than given a label
+#: thousands of characters long ("AAAA...", computed by arithmetic all the same).
+MAX_LIST_START = 32_767
 
-#: Roman numerals are written with the standard seven letters up to 3999; above that the
-#: value is shown in decimal (Word and LibreOffice extend differently; no document needs it).
-MAX_ROMAN = 3999
+#: Digits of an ST_DecimalNumber converted exactly: enough for any 64-bit value.  A longer
+#: integer (10^30) is read as +/-10^19, beyond every limit here, without converting it.
+MAX_NUMBER_DIGITS = 19
+
+#: Most ``w:abstractNum`` plus ``w:num`` elements in one numbering part.  Word writes one
+#: ``w:num`` per list and real agreements hold tens to a few thousand; a part with more is
+#: refused rather than indexed.
+MAX_NUMBERING_ENTRIES = 100_000
+
+#: Longest ``w:lvlText`` accepted.  A level text is a label pattern such as "Article %1." or
+#: "%1.%2.%3"; Word's dialog takes short patterns, and a long one would be copied into every
+#: numbered paragraph's label.
+MAX_LEVEL_TEXT_CHARS = 1_000
 
 _PLACEHOLDER = re.compile(r"%([1-9])")
-#: Formats rendered as bullets (no number): ECMA-376 §17.18.59 ST_NumberFormat "bullet".
-_BULLET_FORMATS = frozenset({"bullet"})
+_DECIMAL_NUMBER = re.compile(r"([+-]?)0*([0-9]+)")
+_HUGE = 10 ** MAX_NUMBER_DIGITS
+
+
+def decimal_number(value: str | None) -> int | None:
+    """An ST_DecimalNumber attribute value as an int (ECMA-376 Part 1 §17.18.10: an XML
+    Schema integer, white space collapsed), or None when absent or not such a number.
+
+    Stricter than ``int()``: no underscores, no non-ASCII digits.  An integer of more than
+    :data:`MAX_NUMBER_DIGITS` digits reads as +/-10^19 (beyond every limit) unconverted.
+
+    >>> decimal_number(" +7 "), decimal_number("1_000"), decimal_number("٣")
+    (7, None, None)
+    """
+    if value is None:
+        return None
+    m = _DECIMAL_NUMBER.fullmatch(value.strip(" \t\r\n"))
+    if m is None:
+        return None
+    sign, digits = m.groups()
+    number = int(digits) if len(digits) <= MAX_NUMBER_DIGITS else _HUGE
+    return -number if sign == "-" else number
+
+
+def canonical_id(value: str | None) -> str | None:
+    """A ``w:numId`` / ``w:abstractNumId`` as a key: the decimal number it states ("007" and
+    "7" are the same list), or None when it is not an ST_DecimalNumber."""
+    number = decimal_number(value)
+    return None if number is None else str(number)
 
 
 @dataclass(frozen=True, slots=True)
@@ -89,10 +152,12 @@ class LevelDef:
     #: ``w:pStyle``: the paragraph style this level is linked to (§17.9.23).
     style_id: str | None = None
     picture_bullet: bool = False
+    #: ``w:numFmt/@w:format`` of a ``custom`` format ("001, 002, 003, ..."), else None.
+    custom_format: str | None = None
 
     @property
     def is_bullet(self) -> bool:
-        return self.picture_bullet or self.num_fmt in _BULLET_FORMATS
+        return self.picture_bullet or self.num_fmt in BULLET_FORMATS
 
 
 @dataclass(frozen=True, slots=True)
@@ -123,43 +188,62 @@ class NumberLabel:
     list_id: str
 
 
-def _int(value: str | None, default: int | None = None) -> int | None:
+def _start_value(el: etree._Element, source: str | None) -> int:
+    """``w:start`` / ``w:startOverride`` checked against :data:`MAX_LIST_START`."""
+    raw = el.get(_VAL)
+    value = decimal_number(raw)
     if value is None:
-        return default
-    try:
-        return int(value)
-    except ValueError:
-        return default
+        return 0  # absent or not a number: §17.9.25's default
+    if not 0 <= value <= MAX_LIST_START:
+        shown = raw.strip() if raw is not None and len(raw) <= 40 else f"{raw[:20]}..."
+        raise CounterdraftError(
+            f"refused: a list in word/numbering.xml starts at {shown} (w:{etree.QName(el).localname}); "
+            f"the limit is 0 to {MAX_LIST_START}", path=source)
+    return value
 
 
-def _parse_level(el: etree._Element) -> LevelDef | None:
-    ilvl = _int(el.get(_W + "ilvl"))
+def _level_children(el: etree._Element) -> list[etree._Element]:
+    """The children of a ``w:lvl``, with ``mc:AlternateContent`` replaced by the branch a
+    consumer takes (ECMA-376 Part 3 §10.2)."""
+    out: list[etree._Element] = []
+    for child in el:
+        if child.tag == _ALTERNATE:
+            branch = alternate_branch(child)
+            if branch is not None:
+                out.extend(branch)
+        else:
+            out.append(child)
+    return out
+
+
+def _parse_level(el: etree._Element, source: str | None) -> LevelDef | None:
+    ilvl = decimal_number(el.get(_W + "ilvl"))
     if ilvl is None or not 0 <= ilvl < MAX_LEVELS:
         return None
-    num_fmt = "decimal"
-    lvl_text = ""
-    start = 0
-    restart = None
-    is_lgl = False
-    style_id = None
-    picture = False
-    for child in el:
+    values: dict[str, object] = {}
+    for child in _level_children(el):
         tag = child.tag
         if tag == _W + "start":
-            start = _int(child.get(_VAL), 0) or 0
+            values["start"] = _start_value(child, source)
         elif tag == _W + "numFmt":
-            num_fmt = child.get(_VAL) or "decimal"
+            values["num_fmt"] = child.get(_VAL) or "decimal"
+            values["custom_format"] = child.get(_W + "format")
         elif tag == _W + "lvlText":
-            lvl_text = child.get(_VAL) or ""
+            text = child.get(_VAL) or ""
+            if len(text) > MAX_LEVEL_TEXT_CHARS:
+                raise CounterdraftError(
+                    f"refused: a list level text in word/numbering.xml is {len(text)} characters "
+                    f"long; the limit is {MAX_LEVEL_TEXT_CHARS}", path=source)
+            values["lvl_text"] = text
         elif tag == _W + "lvlRestart":
-            restart = _int(child.get(_VAL))
+            values["restart"] = decimal_number(child.get(_VAL))
         elif tag == _W + "isLgl":
-            is_lgl = bool(on_off(child))
+            values["is_lgl"] = bool(on_off(child))
         elif tag == _W + "pStyle":
-            style_id = child.get(_VAL)
+            values["style_id"] = child.get(_VAL)
         elif tag == _W + "lvlPicBulletId":
-            picture = True
-    return LevelDef(ilvl, num_fmt, lvl_text, start, restart, is_lgl, style_id, picture)
+            values["picture_bullet"] = True
+    return LevelDef(ilvl, **values)  # type: ignore[arg-type]
 
 
 @dataclass(frozen=True, slots=True)
@@ -202,7 +286,8 @@ class NumberingDefinitions:
         (§17.9.23).  Without any ``w:ilvl`` the level linked to the paragraph style by
         ``w:lvl/w:pStyle`` is used, else level 0.  ``numId`` "0" means "not numbered".
         """
-        nid = num_id if num_id is not None else (style.num_id if style is not None else None)
+        raw = num_id if num_id is not None else (style.num_id if style is not None else None)
+        nid = canonical_id(raw)
         if nid is None or nid == "0" or nid not in self.nums:
             return None
         level = ilvl
@@ -219,65 +304,84 @@ class NumberingDefinitions:
         return nid, level
 
 
-def parse_numbering(root: etree._Element | None, *, styles: StyleSheet | None = None) -> NumberingDefinitions:
-    """Parse the ``w:numbering`` element (None -> no numbering)."""
+def parse_numbering(root: etree._Element | None, *, styles: StyleSheet | None = None,
+                    source: str | None = None) -> NumberingDefinitions:
+    """Parse the ``w:numbering`` element (None -> no numbering).
+
+    *source* names the file in the :class:`~core.errors.CounterdraftError` raised when a
+    value is beyond a limit (see the module's "Bounds").
+    """
     if root is None:
         return NumberingDefinitions()
+    entries = sum(1 for el in root if el.tag in (_W + "abstractNum", _W + "num"))
+    if entries > MAX_NUMBERING_ENTRIES:
+        raise CounterdraftError(
+            f"refused: word/numbering.xml defines {entries} lists; the limit is "
+            f"{MAX_NUMBERING_ENTRIES}", path=source)
     abstracts: dict[str, AbstractNumDef] = {}
     nums: dict[str, NumDef] = {}
     for el in root:
         if el.tag == _W + "abstractNum":
-            aid = el.get(_W + "abstractNumId")
-            if aid is None or aid in abstracts:
-                continue
-            levels: dict[int, LevelDef] = {}
-            num_style_link = style_link = None
-            for child in el:
-                if child.tag == _W + "lvl":
-                    lvl = _parse_level(child)
-                    if lvl is not None:
-                        levels.setdefault(lvl.ilvl, lvl)
-                elif child.tag == _W + "numStyleLink":
-                    num_style_link = child.get(_VAL)
-                elif child.tag == _W + "styleLink":
-                    style_link = child.get(_VAL)
-            abstracts[aid] = AbstractNumDef(aid, levels, num_style_link, style_link)
+            abstract = _parse_abstract(el, source)
+            if abstract is not None:
+                abstracts.setdefault(abstract.abstract_id, abstract)
         elif el.tag == _W + "num":
-            nid = el.get(_W + "numId")
-            anum = el.find(_W + "abstractNumId")
-            if nid is None or anum is None or anum.get(_VAL) is None or nid in nums:
-                continue
-            starts: dict[int, int] = {}
-            overrides: dict[int, LevelDef] = {}
-            for ov in el.iterfind(_W + "lvlOverride"):
-                ilvl = _int(ov.get(_W + "ilvl"))
-                if ilvl is None or not 0 <= ilvl < MAX_LEVELS:
-                    continue
-                so = ov.find(_W + "startOverride")
-                if so is not None:
-                    value = _int(so.get(_VAL))
-                    if value is not None:
-                        starts[ilvl] = value
-                lvl_el = ov.find(_W + "lvl")
-                if lvl_el is not None:
-                    lvl = _parse_level(lvl_el)
-                    if lvl is not None:
-                        overrides[ilvl] = LevelDef(
-                            ilvl, lvl.num_fmt, lvl.lvl_text, lvl.start, lvl.restart,
-                            lvl.is_lgl, lvl.style_id, lvl.picture_bullet,
-                        )
-            nums[nid] = NumDef(nid, anum.get(_VAL) or "", starts, overrides)
+            num = _parse_num(el, source)
+            if num is not None:
+                nums.setdefault(num.num_id, num)
 
-    resolved: dict[str, str] = {}
-    for nid, num in nums.items():
-        resolved[nid] = _follow_style_link(num.abstract_id, abstracts, nums, styles)
-
+    resolved = {nid: _follow_style_link(num.abstract_id, abstracts, nums, styles)
+                for nid, num in nums.items()}
     style_levels: dict[tuple[str, str], int] = {}
     for aid, abstract in abstracts.items():
         for lvl in abstract.levels.values():
             if lvl.style_id is not None:
                 style_levels.setdefault((aid, lvl.style_id), lvl.ilvl)
     return NumberingDefinitions(abstracts, nums, resolved, style_levels)
+
+
+def _parse_abstract(el: etree._Element, source: str | None) -> AbstractNumDef | None:
+    aid = canonical_id(el.get(_W + "abstractNumId"))
+    if aid is None:
+        return None
+    levels: dict[int, LevelDef] = {}
+    num_style_link = style_link = None
+    for child in el:
+        if child.tag == _W + "lvl":
+            lvl = _parse_level(child, source)
+            if lvl is not None:
+                levels.setdefault(lvl.ilvl, lvl)
+        elif child.tag == _W + "numStyleLink":
+            num_style_link = child.get(_VAL)
+        elif child.tag == _W + "styleLink":
+            style_link = child.get(_VAL)
+    return AbstractNumDef(aid, levels, num_style_link, style_link)
+
+
+def _parse_num(el: etree._Element, source: str | None) -> NumDef | None:
+    nid = canonical_id(el.get(_W + "numId"))
+    anum = el.find(_W + "abstractNumId")
+    aid = canonical_id(anum.get(_VAL)) if anum is not None else None
+    if nid is None or aid is None:
+        return None
+    starts: dict[int, int] = {}
+    overrides: dict[int, LevelDef] = {}
+    for ov in el.iterfind(_W + "lvlOverride"):
+        ilvl = decimal_number(ov.get(_W + "ilvl"))
+        if ilvl is None or not 0 <= ilvl < MAX_LEVELS:
+            continue
+        so = ov.find(_W + "startOverride")
+        if so is not None and decimal_number(so.get(_VAL)) is not None:
+            starts[ilvl] = _start_value(so, source)
+        lvl_el = ov.find(_W + "lvl")
+        if lvl_el is not None:
+            lvl = _parse_level(lvl_el, source)
+            if lvl is not None:
+                # The override applies at the level it names, whatever its own w:ilvl says.
+                overrides[ilvl] = LevelDef(
+                    ilvl, lvl.num_fmt, lvl.lvl_text, lvl.start, lvl.restart, lvl.is_lgl,
+                    lvl.style_id, lvl.picture_bullet, lvl.custom_format)
+    return NumDef(nid, aid, starts, overrides)
 
 
 def _follow_style_link(
@@ -293,130 +397,14 @@ def _follow_style_link(
         if abstract is None or abstract.num_style_link is None or styles is None:
             return current
         style = styles.get(abstract.num_style_link)
-        if style is None or style.num_id is None or style.num_id not in nums:
+        num_id = canonical_id(style.num_id) if style is not None else None
+        if num_id is None or num_id not in nums:
             return current
-        target = nums[style.num_id].abstract_id
+        target = nums[num_id].abstract_id
         if target == current:
             return current
         current = target
     return current
-
-
-# --------------------------------------------------------------------------------------
-# Number formats (ECMA-376 Part 1 §17.18.59 ST_NumberFormat)
-# --------------------------------------------------------------------------------------
-
-_ROMAN = (
-    (1000, "m"), (900, "cm"), (500, "d"), (400, "cd"), (100, "c"), (90, "xc"),
-    (50, "l"), (40, "xl"), (10, "x"), (9, "ix"), (5, "v"), (4, "iv"), (1, "i"),
-)
-
-_ONES = (
-    "zero", "one", "two", "three", "four", "five", "six", "seven", "eight", "nine", "ten",
-    "eleven", "twelve", "thirteen", "fourteen", "fifteen", "sixteen", "seventeen", "eighteen",
-    "nineteen",
-)
-_TENS = ("", "", "twenty", "thirty", "forty", "fifty", "sixty", "seventy", "eighty", "ninety")
-_ORDINAL_WORDS = {
-    "one": "first", "two": "second", "three": "third", "five": "fifth", "eight": "eighth",
-    "nine": "ninth", "twelve": "twelfth",
-}
-
-
-def _roman(n: int) -> str:
-    out = []
-    for value, letters in _ROMAN:
-        while n >= value:
-            out.append(letters)
-            n -= value
-    return "".join(out)
-
-
-def _letters(n: int) -> str:
-    """a..z, then aa..zz, aaa..., as Word and LibreOffice ("a, ..., z, aa, bb") show them."""
-    repeat, index = divmod(n - 1, 26)
-    return chr(ord("a") + index) * (repeat + 1)
-
-
-def _words_below_thousand(n: int) -> str:
-    hundreds, rest = divmod(n, 100)
-    parts = []
-    if hundreds:
-        parts.append(f"{_ONES[hundreds]} hundred")
-    if rest:
-        if rest < 20:
-            parts.append(_ONES[rest])
-        else:
-            tens, ones = divmod(rest, 10)
-            parts.append(_TENS[tens] + (f"-{_ONES[ones]}" if ones else ""))
-    return " ".join(parts)
-
-
-def _cardinal_words(n: int) -> str:
-    if n == 0:
-        return _ONES[0]
-    thousands, rest = divmod(n, 1000)
-    parts = []
-    if thousands:
-        parts.append(f"{_words_below_thousand(thousands)} thousand")
-    if rest:
-        if thousands and rest < 100:
-            parts.append("and")  # "one thousand and one", as LibreOffice spells it
-        parts.append(_words_below_thousand(rest))
-    return " ".join(parts)
-
-
-def _ordinal_words(n: int) -> str:
-    words = _cardinal_words(n)
-    head, sep, last = words.rpartition(" ")
-    prefix, dash, final = last.rpartition("-")
-    if final in _ORDINAL_WORDS:
-        final = _ORDINAL_WORDS[final]
-    elif final.endswith("y"):
-        final = final[:-1] + "ieth"
-    else:
-        final += "th"
-    return head + sep + prefix + dash + final
-
-
-def _ordinal_suffix(n: int) -> str:
-    if 10 <= n % 100 <= 20:
-        return f"{n}th"
-    return f"{n}" + {1: "st", 2: "nd", 3: "rd"}.get(n % 10, "th")
-
-
-def _capitalise(words: str) -> str:
-    return words[:1].upper() + words[1:]
-
-
-def format_number(value: int, num_fmt: str) -> str:
-    """*value* rendered in ST_NumberFormat *num_fmt* (§17.18.59).
-
-    Supported: decimal, decimalZero, lowerLetter, upperLetter, lowerRoman, upperRoman,
-    ordinal, cardinalText, ordinalText (English), none.  Other formats (East Asian, Hebrew,
-    Arabic, ...) are shown in decimal, which keeps the label's structure.
-    """
-    if num_fmt == "none" or num_fmt in _BULLET_FORMATS:
-        return ""
-    if num_fmt == "decimalZero":
-        return f"{value:02d}" if 0 <= value < 10 else str(value)
-    if value >= 1:
-        if num_fmt == "lowerLetter":
-            return _letters(value)
-        if num_fmt == "upperLetter":
-            return _letters(value).upper()
-        if num_fmt == "lowerRoman" and value <= MAX_ROMAN:
-            return _roman(value)
-        if num_fmt == "upperRoman" and value <= MAX_ROMAN:
-            return _roman(value).upper()
-        if num_fmt == "ordinal":
-            return _ordinal_suffix(value)
-    if 0 <= value <= MAX_WORDS_NUMBER:
-        if num_fmt == "cardinalText":
-            return _capitalise(_cardinal_words(value))
-        if num_fmt == "ordinalText" and value >= 1:
-            return _capitalise(_ordinal_words(value))
-    return str(value)
 
 
 # --------------------------------------------------------------------------------------
@@ -443,15 +431,16 @@ class ListCounter:
     read.  ``advance`` costs O(levels).
     """
 
-    __slots__ = ("_defs", "_counts", "_started")
+    __slots__ = ("_counts", "_defs", "_started")
 
     def __init__(self, definitions: NumberingDefinitions) -> None:
         self._defs = definitions
         self._counts: dict[str, dict[int, int]] = {}
         self._started: set[str] = set()
 
-    def advance(self, num_id: str, ilvl: int) -> NumberLabel | None:
-        """Count one paragraph numbered (*num_id*, *ilvl*) and return what it shows."""
+    def advance(self, num_id: str, ilvl: int, *, lang: str | None = None) -> NumberLabel | None:
+        """Count one paragraph numbered (*num_id*, *ilvl*) and return what it shows; *lang*
+        is the paragraph's language (``w:lang``), which the text formats follow."""
         defs = self._defs
         level = defs.level(num_id, ilvl)
         if level is None:
@@ -487,7 +476,8 @@ class ListCounter:
             fmt = ref.num_fmt if ref is not None else "decimal"
             if level.is_lgl and k < ilvl and fmt != "none":
                 fmt = "decimal"
-            return format_number(value, fmt)
+            custom = ref.custom_format if ref is not None else None
+            return format_number(value, fmt, lang=lang, custom=custom)
 
         text = _PLACEHOLDER.sub(render, level.lvl_text)
         return NumberLabel(text=text if text.strip() else None, bullet=False, ilvl=ilvl,

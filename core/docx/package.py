@@ -10,7 +10,8 @@ the file, everything a user may hand us instead of a healthy .docx:
   tells the two apart;
 * anything that is not a zip, or a corrupt or truncated zip;
 * a zip without a main document part (``word/document.xml``), or whose main part is not
-  WordprocessingML;
+  WordprocessingML or has no ``w:body`` (ECMA-376 Part 1 §17.2.2: the body is optional, but
+  a document without one has nothing to review);
 * a zip bomb: limits on entry count, declared sizes and compression ratio are checked from
   the zip directory before anything is decompressed, and again while reading;
 * any XML part with a DOCTYPE declaration (entity expansion or external entities; python-docx
@@ -467,6 +468,8 @@ def _open_zip(zf: zipfile.ZipFile, path: str) -> DocxPackage:
                     "Word document (.docx) and try again", path)
     if document.tag != f"{{{W_NS}}}document":
         raise _fail(f"not a Word document: its main part {main} is not WordprocessingML", path)
+    if document.find(f"{{{W_NS}}}body") is None:
+        raise _fail(f"no text to read: the main part {main} has no body (w:body)", path)
 
     main_dir, main_name = posixpath.split(main)
     rels_name = posixpath.join(main_dir, "_rels", main_name + ".rels")

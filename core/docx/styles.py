@@ -84,6 +84,8 @@ class RunFormat:
     underline: bool | None = None
     caps: bool | None = None  # w:caps or w:smallCaps
     hidden: bool | None = None  # w:vanish
+    #: ``w:lang/@w:val`` (§17.3.2.20), the language of Latin text, e.g. "fr-FR".
+    lang: str | None = None
 
     def over(self, base: "RunFormat") -> "RunFormat":
         """These properties where set, else *base*'s."""
@@ -92,6 +94,7 @@ class RunFormat:
             underline=self.underline if self.underline is not None else base.underline,
             caps=self.caps if self.caps is not None else base.caps,
             hidden=self.hidden if self.hidden is not None else base.hidden,
+            lang=self.lang if self.lang is not None else base.lang,
         )
 
 
@@ -99,10 +102,11 @@ _EMPTY_FORMAT = RunFormat()
 
 
 def run_format_of(rpr: etree._Element | None) -> RunFormat:
-    """Read bold/underline/caps/hidden from a ``w:rPr`` element (§17.3.2)."""
+    """Read bold/underline/caps/hidden/language from a ``w:rPr`` element (§17.3.2)."""
     if rpr is None:
         return _EMPTY_FORMAT
     bold = underline = caps = hidden = None
+    lang: str | None = None
     for child in rpr:
         tag = child.tag
         if tag == _W + "b":
@@ -114,9 +118,11 @@ def run_format_of(rpr: etree._Element | None) -> RunFormat:
             caps = v if caps is None else (caps or bool(v))
         elif tag == _W + "vanish":
             hidden = on_off(child)
-    if bold is None and underline is None and caps is None and hidden is None:
+        elif tag == _W + "lang":
+            lang = child.get(_VAL) or None
+    if bold is None and underline is None and caps is None and hidden is None and lang is None:
         return _EMPTY_FORMAT
-    return RunFormat(bold=bold, underline=underline, caps=caps, hidden=hidden)
+    return RunFormat(bold=bold, underline=underline, caps=caps, hidden=hidden, lang=lang)
 
 
 @dataclass(frozen=True, slots=True)

@@ -109,3 +109,25 @@ def test_healthy_docx_is_read(tmp_path, capsys):
     assert out.is_file()
     assert "The Supplier shall supply the Goods" in out.read_text(encoding="utf-8")
     assert capsys.readouterr().err == ""
+
+
+@pytest.mark.parametrize("start, fmt", [("1" + "0" * 30, "decimal"), ("1000000000000", "decimal"),
+                                        ("2147483647", "upperLetter")])
+def test_inspect_refuses_a_list_start_beyond_the_limit(tmp_path, capsys, start, fmt):
+    """A numbering level whose w:start (ECMA-376 Part 1 §17.9.25, an ST_DecimalNumber) is
+    beyond core.docx.numbering.MAX_LIST_START: one line naming the file and the limit."""
+    numbering = ('<w:abstractNum w:abstractNumId="1"><w:lvl w:ilvl="0">'
+                 f'<w:start w:val="{start}"/><w:numFmt w:val="{fmt}"/><w:lvlText w:val="%1."/>'
+                 '</w:lvl></w:abstractNum><w:num w:numId="1"><w:abstractNumId w:val="1"/></w:num>')
+    body = ('<w:p><w:pPr><w:numPr><w:ilvl w:val="0"/><w:numId w:val="1"/></w:numPr></w:pPr>'
+            "<w:r><w:t>The Supplier shall deliver the Goods.</w:t></w:r></w:p>")
+    from tests.support.docx_fixtures import build_docx
+
+    inputs = tmp_path / "in"
+    inputs.mkdir()
+    path = build_docx(inputs / "absurd-list.docx", body, numbering=numbering)
+    out = tmp_path / "out"
+    out.mkdir()
+    _refused(capsys, inputs / "absurd-list.docx", out, json_out=str(out / "doc.json"),
+             words=("limit is 0 to 32767",))
+    assert path.endswith("absurd-list.docx")

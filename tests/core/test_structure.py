@@ -297,6 +297,96 @@ def test_plain_text_headings_need_body_text_after_them():
     ]
 
 
+@pytest.mark.parametrize("text, number, heading, words", [
+    # A run-in heading typed in capitals, no separator (common practice, no source).
+    ("11 EXPORT RESTRICTIONS Licensee shall not export the Software.", "11", "EXPORT RESTRICTIONS",
+     "Licensee shall not export the Software."),
+    ("7. TERM AND TERMINATION This Agreement runs for two years.", "7", "TERM AND TERMINATION",
+     "This Agreement runs for two years."),
+    ("8.2 FEES & EXPENSES The Customer pays them.", "8.2", "FEES & EXPENSES", "The Customer pays them."),
+    # Not headings: an acronym opening the sentence, a whole line in capitals, a recital.
+    ("5. GDPR Compliance is required of both parties.", "5", None,
+     "GDPR Compliance is required of both parties."),
+    ("9. THE SOFTWARE IS PROVIDED AS IS.", "9", "THE SOFTWARE IS PROVIDED AS IS", ""),
+    ("3. EXPORT restrictions apply to the Goods.", "3", None, "EXPORT restrictions apply to the Goods."),
+])
+def test_run_in_headings_in_capitals(text, number, heading, words):
+    doc = text_doc(text)
+    (prov,) = doc.provisions
+    assert (prov.number, prov.heading, prov.text) == (number, heading, words)
+
+
+def test_run_in_heading_in_capitals_after_an_auto_number():
+    doc = doc_of(B("EXPORT RESTRICTIONS Licensee shall comply with export laws.", label="11.",
+                   list_id="1", list_level=0))
+    assert [(p.number, p.heading, p.text) for p in doc.provisions] == [
+        ("11", "EXPORT RESTRICTIONS", "Licensee shall comply with export laws.")]
+
+
+def test_unnumbered_run_in_heading_in_capitals_starts_a_provision():
+    doc = text_doc("1. Supply\nThe Supplier supplies the Goods.\n"
+                   "CONFIDENTIALITY Each party keeps the other's secrets.\n")
+    assert [(p.number, p.heading, p.text) for p in doc.provisions] == [
+        ("1", "Supply", "The Supplier supplies the Goods."),
+        (None, "CONFIDENTIALITY", "Each party keeps the other's secrets."),
+    ]
+
+
+@pytest.mark.parametrize("text, number, rest", [
+    # A renumbered label glued to its heading (common practice, no source).
+    ("2.Scope", "2", "Scope"),
+    ("3.1.Definitions", "3.1", "Definitions"),
+    ("12.Governing Law. This Agreement is governed by the law of Wexmoor.", "12",
+     "Governing Law. This Agreement is governed by the law of Wexmoor."),
+])
+def test_glued_labels(text, number, rest):
+    label = parse_label(text)
+    assert label is not None and label.number == number
+    assert text[label.end:] == rest
+
+
+@pytest.mark.parametrize("text", ["2.5million units", "1.A Scope", "3.1.definitions", "v2.Final"])
+def test_not_glued_labels(text):
+    assert parse_label(text) is None
+
+
+def test_glued_labels_nest_and_carry_headings():
+    doc = text_doc("2.Scope\n2.1.The Supplier supplies the Goods.\n3.Price\nThe Customer pays.\n")
+    got = [(p.number, p.heading, p.level, parent_number(doc, p.parent), p.text) for p in doc.provisions]
+    assert got == [("2", "Scope", 1, None, ""),
+                   ("2.1", None, 2, "2", "The Supplier supplies the Goods."),
+                   ("3", "Price", 1, None, "The Customer pays.")]
+
+
+def test_lists_in_table_cells_keep_their_labels_under_the_clause():
+    """An auto-numbered list inside a table cell is a list under the clause the table
+    belongs to (its labels as the reader rendered them: tests/core/docx/test_numbering.py
+    checks those against LibreOffice); typed "1." in a cell is cell text; the table's items
+    end with the table."""
+    doc = doc_of(
+        B("Service Levels", label="4.", list_id="1", list_level=0, emphasised=True),
+        B("The Supplier meets these levels:", label="4.1", list_id="1", list_level=1),
+        B("1.", in_table=True),
+        B("Availability of 99.5% each month", label="(a)", list_id="9", list_level=0, in_table=True),
+        B("Measured at the gateway", label="(i)", list_id="9", list_level=1, in_table=True),
+        B("Response within 4 hours", label="(b)", list_id="9", list_level=0, in_table=True),
+        B("2.", in_table=True),
+        B("The levels are reviewed each year."),
+        B("Price", label="5.", list_id="1", list_level=0, emphasised=True),
+    )
+    got = [(p.number, p.level, parent_number(doc, p.parent), p.text) for p in doc.provisions]
+    assert got == [
+        ("4", 1, None, ""),
+        ("4.1", 2, "4", "The Supplier meets these levels:\n1.\nThe levels are reviewed each year."),
+        ("(a)", 3, "4.1", "Availability of 99.5% each month"),
+        ("(i)", 4, "(a)", "Measured at the gateway"),
+        ("(b)", 3, "4.1", "Response within 4 hours\n2."),
+        ("5", 1, None, ""),
+    ]
+    # After the table, unnumbered words belong to the clause again, not to the last cell item.
+    assert "reviewed" not in doc.provisions[4].text
+
+
 # --------------------------------------------------------------------------------------
 # Kinds: parties, recitals, definitions, signature
 # --------------------------------------------------------------------------------------

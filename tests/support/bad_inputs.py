@@ -195,6 +195,11 @@ BAD_INPUTS: tuple[BadInput, ...] = (
              _writer("external.docx",
                      lambda: rezip(healthy_docx(), replace={"docProps/core.xml": _EXTERNAL_ENTITY})),
              ("doctype",)),
+    BadInput("no-body",  # ECMA-376 Part 1 §17.2.2: w:body is optional, but nothing to read
+             _writer("nobody.docx", lambda: rezip(healthy_docx(), replace={
+                 "word/document.xml": b'<w:document xmlns:w="http://schemas.openxmlformats.org/'
+                                      b'wordprocessingml/2006/main"/>'})),
+             ("no body (w:body)",)),
     BadInput("malformed-xml",
              _writer("broken.docx", lambda: rezip(
                  healthy_docx(),

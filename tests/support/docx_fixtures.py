@@ -32,13 +32,15 @@ def docx_bytes(
     numbering: str | None = None,
     style_numbering: Mapping[str, tuple[str, int | None]] | None = None,
     extra_styles: str = "",
+    default_lang: str | None = None,
 ) -> bytes:
     """A .docx whose body is *body* (inline XML).
 
     *numbering* is the inner XML of ``w:numbering`` (abstractNum and num elements);
     *style_numbering* maps a paragraph style id of python-docx's default template (e.g.
     "Heading1") to the (numId, ilvl) its ``w:pPr/w:numPr`` should carry (ilvl None = leave it
-    out); *extra_styles* is appended to ``w:styles`` (inline ``w:style`` elements).
+    out); *extra_styles* is appended to ``w:styles`` (inline ``w:style`` elements);
+    *default_lang* sets the document's language (``w:docDefaults`` ``w:lang``, e.g. "fr-FR").
     """
     document = docx.Document()
     body_el = document.element.body
@@ -76,6 +78,12 @@ def docx_bytes(
         index = sum(1 for child in ppr if child.tag in before)
         ppr.insert(index, parse_xml(
             f'<w:numPr {W_DECL}>{level}<w:numId w:val="{num_id}"/></w:numPr>'))
+    if default_lang is not None:
+        # The document's language (ECMA-376 Part 1 §17.3.2.20 w:lang in w:docDefaults).
+        lang = styles.find(f"{{{W}}}docDefaults/{{{W}}}rPrDefault/{{{W}}}rPr/{{{W}}}lang")
+        if lang is None:
+            raise KeyError("w:docDefaults has no w:lang")
+        lang.set(f"{{{W}}}val", default_lang)
     out = io.BytesIO()
     document.save(out)
     return out.getvalue()

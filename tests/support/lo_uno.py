@@ -12,7 +12,8 @@ JSON lines over stdin/stdout:
     reply    {"ok": true, "redlines_before": 3, "redlines_after": 0,
               "redlines": [{"type": "Insert", "author": "...", "text": "..." | null}],
               "body": [{"type": "paragraph", "text": "...", "label": "7.2" | null},
-                       {"type": "table", "rows": [["cell", ...], ...]}],
+                       {"type": "table", "rows": [["cell", ...], ...],
+                        "paragraphs": [{"type": "paragraph", "text": ..., "label": ...}]}],
               "comments": [{"author": "...", "content": "...", "anchor": "..."}],
               "user_properties": {"name": "value"}, "pdf_bytes": 12345 | null}
     request  {"op": "quit"}
@@ -186,13 +187,33 @@ class Office:
                             continue
                         row.append(cell.getString())
                     rows.append(row)
-                out.append({"type": "table", "rows": rows})
+                out.append({"type": "table", "rows": rows,
+                            "paragraphs": Office._table_paragraphs(el)})
             elif el.supportsService("com.sun.star.text.Paragraph"):
-                try:
-                    label = el.getPropertyValue("ListLabelString") or None
-                except Exception:
-                    label = None
-                out.append({"type": "paragraph", "text": el.getString(), "label": label})
+                out.append(Office._paragraph(el))
+        return out
+
+    @staticmethod
+    def _paragraph(el) -> dict:
+        try:
+            label = el.getPropertyValue("ListLabelString") or None
+        except Exception:
+            label = None
+        return {"type": "paragraph", "text": el.getString(), "label": label}
+
+    @staticmethod
+    def _table_paragraphs(table) -> list:
+        """Every paragraph of a table's cells in reading order (cell by cell as
+        ``getCellNames`` lists them, nested tables opened where they stand)."""
+        out = []
+        for name in table.getCellNames():
+            enum = table.getCellByName(name).getText().createEnumeration()
+            while enum.hasMoreElements():
+                el = enum.nextElement()
+                if el.supportsService("com.sun.star.text.TextTable"):
+                    out.extend(Office._table_paragraphs(el))
+                elif el.supportsService("com.sun.star.text.Paragraph"):
+                    out.append(Office._paragraph(el))
         return out
 
     @staticmethod

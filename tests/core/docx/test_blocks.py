@@ -439,3 +439,138 @@ def test_text_boxes_are_reported_not_read(boxes):
     blocks, warnings = _read(p(r("Main"), *([box] * boxes)))
     assert [b.text for b in blocks] == ["Main"]
     assert warnings == ((f"text in {boxes} text box(es) not read",) if boxes else ())
+
+
+# --------------------------------------------------------------------------------------
+# What LibreOffice shows, paragraph by paragraph: field results (§17.16), markup
+# compatibility (ECMA-376 Part 3 §10.2), a second w:body
+# --------------------------------------------------------------------------------------
+
+MC_DECL = ('xmlns:mc="http://schemas.openxmlformats.org/markup-compatibility/2006" '
+           'xmlns:w14="http://schemas.microsoft.com/office/word/2010/wordml"')
+
+
+def _alternate(requires: str, choice: str, fallback: str, extra: str = "") -> str:
+    return (f'<mc:AlternateContent {MC_DECL} {extra}><mc:Choice Requires="{requires}">{choice}'
+            f"</mc:Choice><mc:Fallback>{fallback}</mc:Fallback></mc:AlternateContent>")
+
+
+def _lo_texts(path) -> list[str]:
+    from tests.support.lo_session import libreoffice
+
+    out: list[str] = []
+    for el in libreoffice().inspect(path).body:
+        rows = el["paragraphs"] if el["type"] == "table" else [el]
+        out.extend(p["text"] for p in rows)
+    return out
+
+
+def test_field_results_and_alternate_content_equal_libreoffice(tmp_path):
+    """The text of every paragraph equals LibreOffice's: the visible result of simple and
+    complex fields (a document property, a merge field, a text form field, a hyperlink, a
+    quotation, a sequence number, one nested in another's result, one across paragraphs,
+    one in a table cell), and the branch of mc:AlternateContent a consumer takes, in a
+    paragraph, around paragraphs and in a run."""
+    form = ('<w:r><w:fldChar w:fldCharType="begin"><w:ffData><w:name w:val="Days"/><w:enabled/>'
+            "<w:textInput/></w:ffData></w:fldChar></w:r>")
+    body = (
+        p(r("Client: "), '<w:fldSimple w:instr=" DOCPROPERTY Client "><w:r><w:t>Hallowmere Ltd'
+          "</w:t></w:r></w:fldSimple>", r("."))
+        + p(r("Party: "), fld("begin"), instr(" MERGEFIELD Party "), fld("separate"), r("Tarrant Vale"),
+            fld("end"))
+        + p(r("Within "), form, instr(" FORMTEXT "), fld("separate"), r("forty-five"), fld("end"),
+            r(" days."))
+        + p(r("See "), fld("begin"), instr(' HYPERLINK "https://example.invalid/terms" '),
+            fld("separate"), r("the Terms"), fld("end"), r("."))
+        + p(r("Outer "), fld("begin"), instr(' QUOTE "x" '), fld("separate"), r("shown "),
+            fld("begin"), instr(' QUOTE "inner" '), fld("separate"), r("inner"), fld("end"),
+            fld("end"), r(" end"))
+        + p(r("Table "), fld("begin"), instr(" SEQ Table \\* ARABIC "), fld("separate"), r("1"),
+            fld("end"))
+        + p(fld("begin"), instr(' QUOTE "two lines" '), fld("separate"), r("first line"))
+        + p(r("second line"), fld("end"), r(" after"))
+        + f"<w:tbl><w:tr><w:tc>{p(r('Cell '), fld('begin'), instr(' QUOTE ' + chr(34) + 'c' + chr(34)), fld('separate'), r('cell result'), fld('end'))}</w:tc></w:tr></w:tbl>"
+        + p(r("Choice: "), _alternate("w14", r("the w14 branch"), r("the fallback")))
+        + _alternate("w14", p(r("A paragraph in a w14 choice")), p(r("Its fallback")))
+        + p(r("Unknown: "), _alternate("zz", r("not understood"), r("fallback read"),
+                                       'xmlns:zz="urn:example:unknown"'))
+        + p("<w:r><w:t xml:space=\"preserve\">Run </w:t>" + _alternate("zz", "<w:t>choice</w:t>", "<w:t>fallback</w:t>",
+                                                 'xmlns:zz="urn:example:unknown"') + "</w:r>")
+    )
+    path = build_docx(tmp_path / "fields.docx", body)
+    blocks, _ = read_docx_blocks(path)
+    assert [b.text for b in blocks] == _lo_texts(path)  # LibreOffice's rendering
+    assert blocks[2].text == "Within forty-five days."
+    assert blocks[-1].text == "Run fallback"
+
+
+def _rewrite_document(path, edit) -> None:
+    import zipfile
+
+    with zipfile.ZipFile(path) as zin:
+        entries = [(info, zin.read(info)) for info in zin.infolist()]
+    with zipfile.ZipFile(path, "w", zipfile.ZIP_DEFLATED) as zout:
+        for info, data in entries:
+            if info.filename == "word/document.xml":
+                data = edit(data.decode("utf-8")).encode("utf-8")
+            zout.writestr(info, data)
+
+
+def test_a_second_body_is_read_as_libreoffice_shows_it(tmp_path):
+    """ECMA-376 Part 1 §17.2.2 allows one w:body; LibreOffice shows a second one after the
+    first, so its words are read too (nothing the other side sees is left out of the
+    review), with a warning."""
+    path = build_docx(tmp_path / "two.docx", p(r("First body words.")))
+    _rewrite_document(path, lambda xml: xml.replace(
+        "</w:body>", "</w:body><w:body>" + p(r("Second body words.")) + "</w:body>"))
+    blocks, warnings = read_docx_blocks(path)
+    assert [b.text for b in blocks] == _lo_texts(path) == ["First body words.",
+                                                           "Second body words."]
+    assert warnings == ("the document has 2 bodies (w:body; ECMA-376 allows one): all are read, "
+                        "in order",)
+    assert [b.index for b in blocks] == [0, 1]
+
+
+def test_a_document_without_a_body_is_refused_in_one_line(tmp_path):
+    from core.errors import CounterdraftError
+
+    path = build_docx(tmp_path / "nobody.docx", p(r("Words.")))
+    _rewrite_document(path, lambda xml: xml[:xml.index("<w:body>")] + "</w:document>")
+    with pytest.raises(CounterdraftError) as err:
+        read_docx_blocks(path)
+    assert str(err.value) == f"{path}: no text to read: the main part word/document.xml has no body (w:body)"
+    # The pure walker given such an element reads no paragraphs (no exception).
+    empty = etree.fromstring(f"<w:document {W_DECL}/>")
+    assert blocks_from_document(empty) == ((), ())
+    assert list(iter_body_paragraphs(empty)) == []
+
+
+@pytest.mark.parametrize("limit, body", [
+    ("MAX_PARAGRAPHS", p(r("one")) * 6),
+    ("MAX_RUNS", p(r("a"), r("b"), r("c")) + p(r("d"), r("e"), r("f"))),
+])
+def test_paragraph_and_run_counts_are_bounded(monkeypatch, limit, body):
+    from core.docx import blocks as blocks_module
+    from core.errors import CounterdraftError
+
+    monkeypatch.setattr(blocks_module, limit, 5)
+    with pytest.raises(CounterdraftError, match="the limit") as err:
+        blocks_from_document(body_element(body), source="long.docx")
+    assert str(err.value).startswith("long.docx: refused: the document has more than 5 ")
+    monkeypatch.setattr(blocks_module, limit, 6)
+    assert len(blocks_from_document(body_element(body))[0]) in (2, 6)
+
+
+def test_the_paragraph_language_reaches_the_text_formats():
+    # w:lang (§17.3.2.20) on the paragraph mark, else the style, else the document default.
+    numbering = ('<w:abstractNum w:abstractNumId="1"><w:lvl w:ilvl="0"><w:start w:val="1"/>'
+                 '<w:numFmt w:val="ordinalText"/><w:lvlText w:val="%1"/></w:lvl></w:abstractNum>'
+                 '<w:num w:numId="1"><w:abstractNumId w:val="1"/></w:num>')
+    numpr = '<w:numPr><w:ilvl w:val="0"/><w:numId w:val="1"/></w:numPr>'
+    styles = ('<w:docDefaults><w:rPrDefault><w:rPr><w:lang w:val="de-DE"/></w:rPr></w:rPrDefault>'
+              '</w:docDefaults><w:style w:type="paragraph" w:styleId="Fr"><w:name w:val="Fr"/>'
+              '<w:rPr><w:lang w:val="fr-FR"/></w:rPr></w:style>')
+    body = (p(r("x"), ppr=numpr) + p(r("x"), ppr='<w:pStyle w:val="Fr"/>' + numpr)
+            + p(r("x"), ppr=numpr + '<w:rPr><w:lang w:val="ru-RU"/></w:rPr>'))
+    blocks, _ = _read(body, styles=styles, numbering=numbering)
+    assert [b.label for b in blocks] == ["Erste", "Deuxième", "Третий"]

@@ -16,7 +16,14 @@ import pytest
 from lxml import etree
 
 from core.docx.blocks import blocks_from_document, read_docx_blocks
-from core.docx.numbering import ListCounter, format_number, parse_numbering
+from core.docx.numbering import (
+    MAX_LIST_START,
+    MAX_NUMBERING_ENTRIES,
+    ListCounter,
+    decimal_number,
+    format_number,
+    parse_numbering,
+)
 from core.docx.styles import parse_styles
 from tests.support.docx_fixtures import W_DECL, body_element, build_docx
 from tests.support.libreoffice import docx_to_text, soffice_version
@@ -415,3 +422,148 @@ def test_counter_is_per_abstract_definition():
     shown = [counter.advance(n, 0) for n in ("1", "2", "3", "3", "1")]
     assert [s.text for s in shown] == ["1.", "2.", "5.", "6.", "7."]
     assert {s.list_id for s in shown} == {"7"}
+
+
+# --------------------------------------------------------------------------------------
+# Bounds: every number from numbering.xml is an ST_DecimalNumber (§17.18.10) within a limit
+# --------------------------------------------------------------------------------------
+
+
+def _list_docx(path, *, start: str = "1", fmt: str = "decimal", override: str | None = None,
+               text: str = "%1.") -> str:
+    over = (f'<w:lvlOverride w:ilvl="0"><w:startOverride w:val="{override}"/></w:lvlOverride>'
+            if override is not None else "")
+    numbering = ('<w:abstractNum w:abstractNumId="1"><w:lvl w:ilvl="0">'
+                 f'<w:start w:val="{start}"/><w:numFmt w:val="{fmt}"/>'
+                 f'<w:lvlText w:val="{text}"/></w:lvl></w:abstractNum>'
+                 f'<w:num w:numId="1"><w:abstractNumId w:val="1"/>{over}</w:num>')
+    return build_docx(path, _np(1, 0).replace("</w:p>", "<w:r><w:t>Item</w:t></w:r></w:p>") * 2,
+                      numbering=numbering)
+
+
+@pytest.mark.parametrize("kwargs", [
+    {"start": str(10**30)},  # was OverflowError
+    {"start": str(10**12)},  # was MemoryError
+    {"start": "2147483647", "fmt": "upperLetter"},  # was minutes and 7.6 GB
+    {"start": "-5"},
+    {"start": "32768"},
+    {"override": "2147483647", "fmt": "upperLetter"},
+    {"text": "%1" * 1000},
+])
+def test_numbers_beyond_the_limits_are_refused_in_one_line(tmp_path, kwargs):
+    from core.errors import CounterdraftError
+
+    path = _list_docx(tmp_path / "bad.docx", **kwargs)
+    with pytest.raises(CounterdraftError) as err:
+        read_docx_blocks(path)
+    message = str(err.value)
+    assert "\n" not in message and message.startswith(str(path))
+    assert "limit" in message
+    assert len(message) < 300
+
+
+def test_the_largest_start_gives_the_label_libreoffice_shows(tmp_path):
+    """MAX_LIST_START (32767) is the largest start LibreOffice 7.4 keeps; its upper-letter
+    label there is 1261 letters, computed by arithmetic: LibreOffice's rendering."""
+    from tests.support.lo_session import libreoffice
+
+    path = _list_docx(tmp_path / "big.docx", start=str(MAX_LIST_START), fmt="upperLetter",
+                      text="%1")
+    lo = [el["label"] for el in libreoffice().inspect(path).body if el["type"] == "paragraph"]
+    ours = [b.label for b in read_docx_blocks(path)[0]]
+    assert ours == lo
+    assert len(ours[0]) == 1261 and len(ours[1]) == 1261
+
+
+@pytest.mark.parametrize("raw, value", [
+    ("7", 7), (" +7 ", 7), ("007", 7), ("-3", -3),
+    ("1_000", None), ("\u0663", None), ("7.0", None), ("", None), ("1e3", None),
+    ("9" * 5000, 10**19), ("-" + "9" * 40, -10**19),  # never converted: beyond every limit
+])
+def test_decimal_numbers_are_read_strictly(raw, value):
+    # ECMA-376 Part 1 §17.18.10 ST_DecimalNumber: an XML Schema integer (optional sign,
+    # ASCII digits; XML Schema Part 2 §3.3.13), white space collapsed.  Python's int()
+    # would accept "1_000" and Arabic-Indic digits.
+    assert decimal_number(raw) == value
+
+
+def test_ids_compare_as_numbers_and_bad_values_count_as_absent():
+    # numId "007" names w:num 7 (both are ST_DecimalNumber); a start that is not a number
+    # is absent, so the level starts at 0 (§17.9.25).
+    numbering = ('<w:abstractNum w:abstractNumId="01"><w:lvl w:ilvl="0"><w:start w:val="1_0"/>'
+                 '<w:numFmt w:val="decimal"/><w:lvlText w:val="%1."/></w:lvl></w:abstractNum>'
+                 '<w:num w:numId="7"><w:abstractNumId w:val="1"/></w:num>')
+    paras = ('<w:p><w:pPr><w:numPr><w:ilvl w:val="0"/><w:numId w:val="007"/></w:numPr></w:pPr></w:p>'
+             '<w:p><w:pPr><w:numPr><w:ilvl w:val="x"/><w:numId w:val="7"/></w:numPr></w:pPr></w:p>')
+    assert _labels(numbering, paras) == ["0.", "1."]
+
+
+def test_too_many_list_definitions_are_refused():
+    from core.errors import CounterdraftError
+
+    nums = '<w:num w:numId="1"><w:abstractNumId w:val="1"/></w:num>' * (MAX_NUMBERING_ENTRIES + 1)
+    root = etree.fromstring(f"<w:numbering {W_DECL}>{nums}</w:numbering>")
+    with pytest.raises(CounterdraftError, match=f"limit is {MAX_NUMBERING_ENTRIES}") as err:
+        parse_numbering(root, source="many.docx")
+    assert str(err.value).startswith("many.docx: ")
+
+
+def test_a_refused_file_does_not_stop_a_library_build(tmp_path):
+    """One precedent with an absurd list start is reported as a failure; the build goes on."""
+    from core.library.index import build_library
+
+    folder = tmp_path / "precedents"
+    folder.mkdir()
+    _list_docx(folder / "absurd.docx", start="2147483647", fmt="upperLetter")
+    report = build_library(folder, vocabulary=False, workers=1)
+    problems = {f.path: f.problem for f in report.failures}
+    assert set(problems) == {"absurd.docx"}
+    assert "limit is 0 to 32767" in problems["absurd.docx"]
+
+
+# --------------------------------------------------------------------------------------
+# Lists inside table cells: LibreOffice's rendering
+# --------------------------------------------------------------------------------------
+
+
+def test_lists_in_table_cells_equal_libreoffice(tmp_path):
+    """A clause list that runs through a table (its items in cells, nested table included),
+    a list of its own inside a cell, and typed "1." text in a cell (not a list): the labels
+    of every paragraph, in and out of tables, equal LibreOffice's."""
+    from tests.support.lo_session import libreoffice
+
+    numbering = (
+        '<w:abstractNum w:abstractNumId="1">' + _lvl(0, "decimal", "%1.")
+        + _lvl(1, "lowerLetter", "(%2)") + _lvl(2, "lowerRoman", "(%3)") + "</w:abstractNum>"
+        '<w:abstractNum w:abstractNumId="2">' + _lvl(0, "upperLetter", "%1)") + "</w:abstractNum>"
+        '<w:num w:numId="1"><w:abstractNumId w:val="1"/></w:num>'
+        '<w:num w:numId="2"><w:abstractNumId w:val="2"/></w:num>'
+    )
+
+    def item(num: int, ilvl: int, text: str) -> str:
+        return _np(num, ilvl).replace("</w:p>", f"<w:r><w:t>{text}</w:t></w:r></w:p>")
+
+    def cell(*content: str) -> str:
+        return f"<w:tc>{''.join(content)}</w:tc>"
+
+    nested = f"<w:tbl><w:tr>{cell(item(1, 2, 'nested roman'))}</w:tr></w:tbl>"
+    body = (
+        item(1, 0, "Clause before the table")
+        + "<w:tbl>"
+        + f"<w:tr>{cell(item(1, 1, 'cell letter a'), item(1, 1, 'cell letter b'))}"
+        + f"{cell(item(2, 0, 'own list A'), item(2, 0, 'own list B'))}</w:tr>"
+        + f"<w:tr>{cell(nested, item(1, 2, 'after nested'))}"
+        + f"{cell('<w:p><w:r><w:t>1. typed in a cell</w:t></w:r></w:p>', item(1, 0, 'cell clause'))}</w:tr>"
+        + "</w:tbl>"
+        + item(1, 0, "Clause after the table") + item(1, 1, "its letter")
+    )
+    path = build_docx(tmp_path / "cells.docx", body, numbering=numbering)
+    view = libreoffice().inspect(path)
+    lo: list[tuple[str, str | None]] = []
+    for el in view.body:
+        rows = el["paragraphs"] if el["type"] == "table" else [el]
+        lo.extend((p["text"], p["label"]) for p in rows)
+    blocks = read_docx_blocks(path)[0]
+    assert [(b.text, b.label) for b in blocks] == lo
+    in_table = [b for b in blocks if b.in_table and b.label]
+    assert len(in_table) == 7
