@@ -164,18 +164,25 @@ def _cmd_export(args: argparse.Namespace) -> int:
     record = _open_review_file(args.review_file)
     inputs = (record.draft.path, record.precedent.path, args.review_file)
     author = args.author or default_author()
-    print(CAUTION, file=sys.stderr)
+    cautioned = []
+
+    def written(message: str) -> None:
+        if not cautioned:  # once, with the first output written (an output carries the caution)
+            print(CAUTION, file=sys.stderr)
+            cautioned.append(True)
+        print(message)
+
     if args.counter_draft:
         notes = write_counter_draft(record.review, record.decisions, args.counter_draft,
                                     draft_path=record.draft.path, author=author, inputs=inputs)
+        written(f"counter-draft written to {args.counter_draft} "
+                f"({sum(d.action != 'accept' for d in record.decisions)} changes, "
+                f"{sum(bool(d.note) for d in record.decisions)} notes)")
         for note in notes:
             print(f"counterdraft: note: {note}", file=sys.stderr)
-        print(f"counter-draft written to {args.counter_draft} "
-              f"({sum(d.action != 'accept' for d in record.decisions)} changes, "
-              f"{sum(bool(d.note) for d in record.decisions)} notes)")
     if args.redline:
         write_redline(record.review, args.redline, author=author, inputs=inputs, show=args.show)
-        print(f"comparison redline written to {args.redline}")
+        written(f"comparison redline written to {args.redline}")
     if args.issues_list:
         from .export import ISSUES_DEFAULT_INCLUDE
         from .model import CATEGORIES
@@ -184,7 +191,7 @@ def _cmd_export(args: argparse.Namespace) -> int:
                           author=author, inputs=inputs,
                           include=CATEGORIES if args.issues_all else ISSUES_DEFAULT_INCLUDE,
                           order=args.order)
-        print(f"issues list written to {args.issues_list}")
+        written(f"issues list written to {args.issues_list}")
     return 0
 
 

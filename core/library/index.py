@@ -55,7 +55,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import CounterdraftError
-from ..fileio import atomic_write_bytes, file_sha256
+from ..fileio import atomic_write_bytes, exclusive, file_sha256, remove_orphaned_parts
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
 from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
 from .variants import VariantConfig, cluster_wordings, incidence_matrix
@@ -545,7 +545,6 @@ def build_library(root: str | os.PathLike[str], *, db_path: str | os.PathLike[st
     variant clustering (stored; a change re-clusters).  *vocabulary* False skips training the
     vocabulary model.  Files in *exclude* are not indexed.
     """
-    started = time.perf_counter()
     root_p = Path(root)
     if not root_p.is_dir():
         raise CounterdraftError("not a folder", path=str(root))
@@ -554,6 +553,18 @@ def build_library(root: str | os.PathLike[str], *, db_path: str | os.PathLike[st
         db = root_p / DB_DIRNAME / DB_FILENAME
     else:
         db = Path(db_path)
+    # One builder at a time per index: SQLite keeps the rows consistent, the lock keeps the
+    # derived files (clause types, variants, vocabulary) from being computed from two states.
+    with exclusive(db):
+        remove_orphaned_parts(db.parent)
+        return _build_locked(root_p, db, progress=progress, cancel=cancel, workers=workers,
+                             config=config, vocabulary=vocabulary, exclude=exclude)
+
+
+def _build_locked(root_p: Path, db: Path, *, progress: Progress | None, cancel: Cancel | Any | None,
+                  workers: int, config: VariantConfig | None, vocabulary: bool,
+                  exclude: Sequence[str | os.PathLike[str]]) -> BuildReport:
+    started = time.perf_counter()
     rebuilt: str | None = None
     while True:
         try:
