@@ -37,11 +37,12 @@ def _args() -> argparse.Namespace:
 def main() -> int:
     args = _args()
     here = Path(__file__).resolve().parent.parent
-    sys.path.insert(0, str(here))  # tests.support (the reference) from this checkout
-    sys.path.insert(0, args.root)  # core from the measured checkout
-    from tests.support.version_pairs import PAIRS, measure, review_pair
+    sys.path.insert(0, args.root)
+    import core  # the measured checkout's engine (its submodules load from there too)
 
-    import core
+    sys.path.remove(args.root)
+    sys.path.insert(0, str(here))  # the reference from this checkout
+    from tests.support.version_pairs import PAIRS, measure, review_pair
 
     print(f"core: {Path(core.__file__).parent}")
     print(f"{'pair':<52} {'changes':>7} {'subst':>5} {'false':>5} {'noise':>5} "
