@@ -175,7 +175,8 @@ class Document:
 # --------------------------------------------------------------------------------------
 
 PAIR_STATUSES: tuple[str, ...] = ("same", "changed", "moved", "added", "removed", "split", "merged")
-CATEGORIES: tuple[str, ...] = ("substantive", "term", "formatting", "numbering", "punctuation")
+CATEGORIES: tuple[str, ...] = ("substantive", "term", "formatting", "numbering", "punctuation",
+                               "completion")
 CHANGES: tuple[str, ...] = ("insert", "delete", "replace", "move", "add-provision", "remove-provision")
 DEVIATION_PARTS: tuple[str, ...] = ("text", "heading", "provision")
 

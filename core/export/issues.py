@@ -82,10 +82,12 @@ _DRAFT_WORDS_COLUMN = "Draft's changed words"
 ISSUE_CSV_COLUMNS = (*ISSUE_COLUMNS, _PRECEDENT_WORDS_COLUMN, _DRAFT_WORDS_COLUMN)
 
 #: Deviation categories the issues list shows unless asked for more: what a negotiator needs
-#: -- the substantive deviations, and the renamed defined terms as a short informational group
-#: at the end.  Formatting, numbering and punctuation differences are left out by default
-#: (``include=CATEGORIES`` or ``counterdraft export --issues-all`` shows them).
-ISSUES_DEFAULT_INCLUDE: tuple[str, ...] = ("substantive", "term")
+#: -- the substantive deviations, the blanks of the precedent the draft filled in (for
+#: information: what was filled in is the reader's to check), and the renamed defined terms
+#: as a short informational group at the end.  Formatting, numbering and punctuation
+#: differences are left out by default (``include=CATEGORIES`` or ``counterdraft export
+#: --issues-all`` shows them).
+ISSUES_DEFAULT_INCLUDE: tuple[str, ...] = ("substantive", "completion", "term")
 
 #: Row orders: ``"clause"`` follows the draft (a provision the draft left out sits where it
 #: would have been), ``"rank"`` the review's ranking by severity.

@@ -32,7 +32,7 @@ import re
 import time
 from bisect import bisect_right
 from collections.abc import Callable, Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from ..model import Deviation, Document, Edit, Pair, Provision, Review
 from .align import Alignment, Features, Group, align
@@ -63,6 +63,7 @@ from .tokens import (
     TokenSeq,
     base_tokens,
     count_term_uses,
+    plain_terms,
     rekey,
     term_matcher,
     word_keys,
@@ -188,6 +189,44 @@ class _Dev:
     draft_text_span: tuple[int, int] | None = None
 
 
+def _pieces(text: str, starts: Sequence[int], span: tuple[int, int]) -> list[tuple[int, int]]:
+    """*span* of a joined text (provisions joined with "\\n" from *starts*) cut at the
+    provisions' boundaries, each piece trimmed of white space; [span] for an empty span."""
+    a, b = span
+    if a == b:
+        return [span]
+    k0 = bisect_right(starts, a) - 1
+    k1 = bisect_right(starts, b - 1) - 1
+    if k0 == k1:
+        return [span]
+    ends = [*starts[1:], len(text) + 1]
+    out = [_trimmed(text, (max(a, starts[k]), min(b, ends[k] - 1))) for k in range(k0, k1 + 1)]
+    return [p for p in out if p[0] < p[1]] or [span]
+
+
+def _per_provision(ch: Change, ptext: str, pstarts: Sequence[int], dtext: str,
+                   dstarts: Sequence[int]) -> list[Change]:
+    """*ch* cut where a split or merged group's joined texts pass from one provision to the
+    next, so that each deviation stays within one provision on each side (a change that ran
+    on into the next provision would otherwise be clipped to the first, and the rest lost).
+    Pieces pair up in order; a piece left over on one side is a deletion (or insertion) at
+    the end of the other side's change."""
+    pp = _pieces(ptext, pstarts, ch.p_span)
+    dp = _pieces(dtext, dstarts, ch.d_span)
+    if len(pp) == 1 and len(dp) == 1:
+        return [ch]
+    n = max(len(pp), len(dp))
+    pend, dend = (ch.p_span[1],) * 2, (ch.d_span[1],) * 2
+    out = []
+    for k in range(n):
+        ps = pp[k] if k < len(pp) else pend
+        ds = dp[k] if k < len(dp) else dend
+        kind = "insert" if ps[0] == ps[1] else ("delete" if ds[0] == ds[1] else "replace")
+        out.append(replace(ch, change=kind, p_span=ps, d_span=ds,
+                           signals=ch.signals if k == 0 else ()))
+    return out
+
+
 def _local_label(num: str) -> str:
     m = re.search(r"\([^()]*\)$", num)
     if m:
@@ -284,6 +323,7 @@ class _Builder:
         self.tm, self.al, self.rules = tm, al, rules
         self.d_types, self.p_types = d_types, p_types
         self.devs: list[_Dev] = []
+        self.keep_terms: frozenset[str] | None = None
         # (draft position, precedent position) -> the pair's word diff (Pair.edits)
         self.edits: dict[tuple[int, int], tuple[Edit, ...]] = {}
         # where a removed precedent provision would sit in the draft's order
@@ -418,6 +458,7 @@ class _Builder:
             a = rekey(pbt, term_key={}, xref=self._xref_precedent)
             b = rekey(dbt, term_key=self.dside.to_key, xref=self._xref_draft)
             pterm, dterm = pbt.term_at, dbt.term_at
+        a, b = self._plain(a), self._plain(b)
         clock.lap("tokens: words, terms, cross-references")
         ops = token_ops(a, b)
         if len(g.precedents) == 1 and len(g.drafts) == 1:
@@ -432,12 +473,13 @@ class _Builder:
                     self._quantities(dtext, [b.span(op.j1, op.j2) for op in changed]))
         changes = classify_ops(a, b, ops, self._ctx(dterm, pterm), keep_together=together)
         clock.lap("classification")
-        for ch in changes:
-            if ch.category not in ("term", "numbering"):
-                counted += 1
-            self._add_change(ch, ptext=ptext, pstarts=pstarts, ppos=g.precedents,
-                             dtext=dtext, dstarts=dstarts, dpos=g.drafts, heading=False,
-                             diff=(ops, a, b))
+        for whole in changes:
+            for ch in _per_provision(whole, ptext, pstarts, dtext, dstarts):
+                if ch.category not in ("term", "numbering"):
+                    counted += 1
+                self._add_change(ch, ptext=ptext, pstarts=pstarts, ppos=g.precedents,
+                                 dtext=dtext, dstarts=dstarts, dpos=g.drafts, heading=False,
+                                 diff=(ops, a, b))
         clock.lap("severity")
         return self._heading_changes(g, counted)
 
@@ -451,7 +493,8 @@ class _Builder:
             hb, hdt = rekey(hdb, term_key=self.dside.to_key), hdb.term_at
             changes = [c for c in classify_ops(ha, hb, token_ops(ha, hb), self._ctx(hdt, hpt))
                        if c.category != "term"]
-            rank = {"substantive": 0, "punctuation": 1, "formatting": 2, "numbering": 3}
+            rank = {"substantive": 0, "completion": 1, "punctuation": 2, "formatting": 3,
+                    "numbering": 4}
             changes.sort(key=lambda c: rank[c.category])
             if changes:
                 top = changes[0]
@@ -469,14 +512,22 @@ class _Builder:
                                  dtext=dh, dstarts=[0], dpos=g.drafts[:1], heading=True)
         return counted
 
+    def _plain(self, seq: TokenSeq) -> TokenSeq:
+        """*seq* keyed for the word diff: the uses of defined terms that are neither renamed
+        nor a party's label compare as plain words (see :func:`.tokens.plain_terms`)."""
+        keep = self.keep_terms
+        if keep is None:
+            keep = self.keep_terms = frozenset(self.tm.to_precedent.values()) | self.pi.party_labels
+        return plain_terms(seq, keep=keep)
+
     def _pair_edits(self, d: int, p: int) -> tuple[Edit, ...]:
         """Pair.edits of draft position *d* and precedent position *p*: the group's own diff
         for a one-to-one pair; for a split or merged group, a diff of the pairing's two
         texts with the same keys (term map and cross-references)."""
         got = self.edits.get((d, p))
         if got is None:
-            a = self.pside.seq(p, self._xref_precedent)
-            b = self.dside.seq(d, self._xref_draft)
+            a = self._plain(self.pside.seq(p, self._xref_precedent))
+            b = self._plain(self.dside.seq(d, self._xref_draft))
             got = self.edits[(d, p)] = pair_edits_from_ops(a, b, token_ops(a, b))
         return got
 

@@ -56,11 +56,15 @@ _SIGNALS = (
     "number_changed", "number_added", "number_removed", "obligation_weakened",
     "obligation_strengthened", "obligation_added", "obligation_removed", "negation_added",
     "negation_removed", "qualifier_added", "qualifier_removed", "qualifier_changed",
-    "party_swapped", "name_changed", "placeholder_completed", "cross_reference_changed", "wording_changed", "sentence_inserted",
+    "party_swapped", "name_changed", "cross_reference_changed", "wording_changed", "sentence_inserted",
     "sentence_deleted", "heading_changed", "provision_added", "provision_removed",
 )
 _CATEGORY_KEYS = ("term", "move", "numbering", "numbering_cross_reference", "formatting",
                   "punctuation")
+#: Category keys a rule file may leave out (it was written before they existed), with the
+#: severity used then: a blank of the precedent filled in is informational, scored like a
+#: punctuation difference.
+_OPTIONAL_CATEGORY_KEYS = {"completion": 2.0}
 #: Values of ``headings.added_or_removed`` in the rule file.
 HEADING_ADDED_OR_REMOVED_CHOICES = ("formatting", "substantive")
 
@@ -143,6 +147,8 @@ def load_rules(path: str | Path | None = None) -> SeverityRules:
         if k not in data["categories"]:
             raise _fail(sp, f"missing categories.{k}")
         categories[k] = _number(sp, f"categories.{k}", data["categories"][k], 0, 100)
+    for k, default in _OPTIONAL_CATEGORY_KEYS.items():
+        categories[k] = _number(sp, f"categories.{k}", data["categories"].get(k, default), 0, 100)
     weights = {k: _number(sp, f"weights.{k}", v, 0, 10) for k, v in data["weights"].items()}
     kind_weights = {k: _number(sp, f"kind_weights.{k}", v, 0, 10)
                     for k, v in data["kind_weights"].items()}
@@ -578,9 +584,7 @@ def text_change_severity(*, p_text: str, p_span: tuple[int, int], d_text: str,
     ``d_text[d_span]`` (draft)."""
     rules = rules or _default_rules()
     signals: list[Signal] = list(extra)
-    if any(s.name == "placeholder_completed" for s in signals):
-        signals = [s for s in signals if s.name == "placeholder_completed"]
-    elif heading:  # a heading is a label: only its change is reported
+    if heading:  # a heading is a label: only its change is reported
         signals.append(Signal("heading_changed", _heading_reason(p_text, d_text)))
     else:
         signals += _figure_signals(p_text, p_span, d_text, d_span)
