@@ -38,12 +38,14 @@ from ..model import Deviation, Document, Edit, Pair, Provision, Review
 from .align import Alignment, Features, Group, align
 from .classify import Change, TermContext, classify_ops
 from .docinfo import DocInfo, build_docinfo
+from .figures import figure_reasons, figures_in
 from .serialize import review_to_dict
 from .severity import (
     SeverityRules,
     category_severity,
     clause_types_for,
     default_rules,
+    figure_severity,
     find_quantities,
     heading_only_reason,
     provision_change_severity,
@@ -512,6 +514,44 @@ class _Builder:
                                  dtext=dh, dstarts=[0], dpos=g.drafts[:1], heading=True)
         return counted
 
+    # -- numbers are always substance (core.review.figures) ----------------------------
+    def _figures_of(self, v: _Dev) -> tuple[tuple[str, ...], tuple[str, ...]] | None:
+        """The figures of each side of a deviation (the words it shows), or None for a
+        deviation the guard does not read: a label renumbered or a provision moved (their
+        digits are labels), a provision added or removed (substantive already)."""
+        if v.part == "provision":
+            if v.category != "term":
+                return None
+            return figures_in(v.precedent_text), figures_in(v.draft_text)
+        sides = []
+        for info, pid, span in ((self.pi, v.precedent_provision, v.precedent_text_span),
+                                (self.di, v.draft_provision, v.draft_text_span)):
+            p = info.provisions[info.position[pid]] if pid is not None else None
+            text = (p.heading or "") if p is not None and v.part == "heading" else (p.text if p else "")
+            sides.append(figures_in(text, span) if span is not None else ())
+        return sides[0], sides[1]
+
+    def _guard_figures(self) -> None:
+        """Make every deviation whose figures differ substantive, with the old and new
+        values in its reasons (:mod:`.figures`); it runs after every other rule, so none can
+        override it."""
+        for v in self.devs:
+            got = self._figures_of(v)
+            if got is None or got[0] == got[1]:
+                continue
+            found = figure_reasons(*got)
+            pp = self.pi.position.get(v.precedent_provision) if v.precedent_provision else None
+            dp = self.di.position.get(v.draft_provision) if v.draft_provision else None
+            ctype, kind = self._type_of(pp, dp) if (pp, dp) != (None, None) else (None, "clause")
+            sev = figure_severity(found, clause_type=ctype, kind=kind, rules=self.rules)
+            if v.category == "substantive":
+                known = set(figures_in(" ".join(v.reasons)))
+                v.reasons += tuple(r for r in found if not set(figures_in(r)) <= known)
+            else:
+                v.category = "substantive"
+                v.reasons = found + v.reasons
+            v.severity = max(v.severity, sev)
+
     def _plain(self, seq: TokenSeq) -> TokenSeq:
         """*seq* keyed for the word diff: the uses of defined terms that are neither renamed
         nor a party's label compare as plain words (see :func:`.tokens.plain_terms`)."""
@@ -636,6 +676,7 @@ class _Builder:
                  f'"{m.precedent}" ({m.occurrences} use{"s" * (m.occurrences != 1)} in the '
                  f"draft; evidence: {ev}; confidence {m.confidence:.2f})",), part="provision"))
 
+        self._guard_figures()  # numbers are always substance: the last rule
         pairs.sort(key=lambda t: t[0])
         # ids in draft order, ranks by severity then draft order
         in_order = sorted(self.devs, key=lambda v: v.order)

@@ -481,15 +481,18 @@ def _splits_and_merges(draft: Sequence[Features], precedent: Sequence[Features],
     def grow(n_own: int, own: Sequence[Features], other: Sequence[Features],
              mine: dict[int, int], extra: dict[int, list[int]]) -> None:
         """Attach each unpaired provision of *own* to the pair of a neighbour whose
-        counterpart in *other* holds its words (see SPLIT_CONTAINMENT, SPLIT_GAIN)."""
+        counterpart in *other* holds its words (see SPLIT_CONTAINMENT, SPLIT_GAIN); a
+        neighbour already attached to a pair counts as that pair, so that a provision
+        spread over several consecutive ones is gathered whole."""
         taken = set(mine)
+        anchor_of: dict[int, int] = {}
         for u in range(n_own):
             if u in taken or len(own[u].words) < SPLIT_MIN_WORDS:
                 continue
             for nb in (u - 1, u + 1):
-                if nb not in mine:
+                anchor = nb if nb in mine else anchor_of.get(nb)
+                if anchor is None:
                     continue
-                anchor = nb
                 q = mine[anchor]
                 run = sorted([anchor, *extra.get(anchor, [])])
                 if not (run[0] - 1 <= u <= run[-1] + 1):
@@ -503,6 +506,7 @@ def _splits_and_merges(draft: Sequence[Features], precedent: Sequence[Features],
                 if after >= before + SPLIT_GAIN:
                     extra.setdefault(anchor, []).append(u)
                     taken.add(u)
+                    anchor_of[u] = anchor
                     break
 
     grow(len(draft), draft, precedent, p_of, split_extra)

@@ -644,6 +644,18 @@ def clear_caches(rules: SeverityRules | None = None) -> None:
                 del r._cache[k]
 
 
+def figure_severity(reasons: Sequence[str], *, clause_type: str | None, kind: str,
+                    rules: SeverityRules | None = None) -> int:
+    """Severity of the figure changes *reasons* name (:func:`.figures.figure_reasons`:
+    "figure changed ...", "figure added ...", "figure removed ..."), scored like the same
+    changes found in words: ``number_changed`` / ``number_added`` / ``number_removed``
+    times the clause type's weight."""
+    rules = rules or _default_rules()
+    names = {"changed": "number_changed", "added": "number_added", "removed": "number_removed"}
+    signals = [Signal(names[r.split()[1].rstrip(":")], r) for r in reasons]
+    return _combine(rules, signals, rules.weight(clause_type, kind))
+
+
 def category_severity(category: str, *, rules: SeverityRules | None = None) -> int:
     rules = rules or _default_rules()
     return round(rules.categories[category])
@@ -655,4 +667,4 @@ def default_rules() -> SeverityRules:
 
 
 __all__ += ["HEADING_ADDED_OR_REMOVED_CHOICES", "category_severity", "clear_caches", "default_rules",
-            "heading_only_reason"]
+            "figure_severity", "heading_only_reason"]
