@@ -418,8 +418,9 @@ def _what_changed(review: Review, dev: Deviation) -> tuple[Excerpt, str, str]:
     if dev.part == "text" and (dp is not None or pp is not None):
         return _text_change(review, dev, dp, pp)
     if dev.part == "provision" and dev.category == "numbering":
-        return _concat("Renumbered ", _old_new(Excerpt(dev.precedent_text), Excerpt(dev.draft_text))), \
-            dev.precedent_text, dev.draft_text
+        old = Excerpt(dev.precedent_text) if dev.precedent_text else None
+        new = Excerpt(dev.draft_text) if dev.draft_text else None
+        return _concat("Renumbered ", _old_new(old, new)), dev.precedent_text, dev.draft_text
     # no provision to quote from (the whole document): the deviation's own words
     old = _words_of(dev.precedent_text) if dev.precedent_text.strip() else None
     new = _words_of(dev.draft_text) if dev.draft_text.strip() else None

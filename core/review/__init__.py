@@ -560,6 +560,29 @@ class _Builder:
             keep = self.keep_terms = frozenset(self.tm.to_precedent.values()) | self.pi.party_labels
         return plain_terms(seq, keep=keep)
 
+    def _label_dev(self, d0: int, p0: int) -> _Dev | None:
+        """The numbering deviation of a pair whose labels differ: renumbered, or labelled on
+        one side only ("Appendix:" dropped, a paragraph numbered); None when the labels
+        agree or differ only because the parents were renumbered."""
+        di, pi, al = self.di, self.pi, self.al
+        dn, pn = di.full_number[d0], pi.full_number[p0]
+        draw, praw = di.provisions[d0].number or "", pi.provisions[p0].number or ""
+        ids = (di.provisions[d0].id, pi.provisions[p0].id)
+        sev = category_severity("numbering", rules=self.rules)
+        if bool(draw) != bool(praw):
+            reason = f"label added: {draw}" if draw else f"label removed: {praw}"
+            return _Dev((float(d0), 0, -2), sev, "numbering", "insert" if draw else "delete",
+                        *ids, praw, draw, (reason,), part="provision")
+        if not (dn and pn and dn != pn):
+            return None
+        dpar, ppar = di.parent_pos[d0], pi.parent_pos[p0]
+        parents_paired = (dpar is not None and ppar is not None
+                          and al.draft_to_precedent.get(dpar) == ppar)
+        if parents_paired and _local_label(dn) == _local_label(pn):
+            return None
+        return _Dev((float(d0), 0, -2), sev, "numbering", "replace", *ids, praw or pn,
+                    draw or dn, (f"renumbered from {pn} to {dn}",), part="provision")
+
     def _pair_edits(self, d: int, p: int) -> tuple[Edit, ...]:
         """Pair.edits of draft position *d* and precedent position *p*: the group's own diff
         for a one-to-one pair; for a split or merged group, a diff of the pairing's two
@@ -643,17 +666,9 @@ class _Builder:
                          f"{_label(di, d0, with_heading=False)} of the draft, in a different "
                          "place in the order",), part="provision"))
             elif g.kind == "match":
-                dn, pn = di.full_number[d0], pi.full_number[p0]
-                if dn and pn and dn != pn:
-                    dpar, ppar = di.parent_pos[d0], pi.parent_pos[p0]
-                    parents_paired = (dpar is not None and ppar is not None
-                                      and al.draft_to_precedent.get(dpar) == ppar)
-                    if not (parents_paired and _local_label(dn) == _local_label(pn)):
-                        self.devs.append(_Dev(
-                            (float(d0), 0, -2), category_severity("numbering", rules=rules),
-                            "numbering", "replace", di.provisions[d0].id, pi.provisions[p0].id,
-                            pi.provisions[p0].number or pn, di.provisions[d0].number or dn,
-                            (f"renumbered from {pn} to {dn}",), part="provision"))
+                label = self._label_dev(d0, p0)
+                if label is not None:
+                    self.devs.append(label)
         # Added and removed provisions: one deviation per subtree.
         for members in self._fold(di, al.added):
             self.devs.append(self._subtree_dev(members, added=True))

@@ -29,24 +29,28 @@ _REFERRING = ("clause", "clauses", "section", "sections", "paragraph", "paragrap
               "sub-clause", "subclause", "sub-paragraph", "subparagraph", "item", "items",
               "limb", "point", "points", "article", "schedule", "part", "annex", "exhibit")
 #: A lettered or roman label in brackets, "(ii)", standing alone (not "4(b)"), except where
-#: a reference keyword names the item ("clause (b) above").
-_LETTER_LABEL_RE = re.compile(
-    rf"(?<![\w)\]])(?P<label>\(\s?{_LETTER_ITEM}\s?\))(?=[\s,;:.]|$)", re.IGNORECASE)
+#: a reference keyword names the item ("clause (b) above").  Every pattern here starts with
+#: the label itself, so that the regular-expression engine skips to the candidates (a
+#: pattern that starts with a look-behind is tried at every position: ten times slower);
+#: the context before it is checked apart.
+_LETTER_LABEL_RE = re.compile(rf"\(\s?{_LETTER_ITEM}\s?\)(?=[\s,;:.]|$)", re.IGNORECASE)
 _REFERRING_BEFORE_RE = re.compile(r"\b(?:" + "|".join(map(re.escape, _REFERRING)) + r")\s*$",
                                   re.IGNORECASE)
 #: A numbered label in brackets, "(2)", only where a list item starts: at the start of the
 #: text or a line, or after ":", ";", "," or "and" / "or" ("thirty (30) days" repeats a
 #: figure; "Section 4(2)" refers to an item).
-_NUMBER_LABEL_RE = re.compile(
-    r"(?:(?<=^)|(?<=[\n:;,])|(?<=\band)|(?<=\bor)|(?<=\bnor))[ \t\u00a0]*"
-    r"(?P<label>\(\s?\d{1,3}\s?\))(?=[\s,;:]|$)")
+_NUMBER_LABEL_RE = re.compile(r"\(\s?\d{1,3}\s?\)(?=[\s,;:]|$)")
+_LIST_START_BEFORE_RE = re.compile(r"(?:^|[\n:;,]|\band|\bor|\bnor)[ \t\u00a0]*$")
 #: A label ending in "." or ")" ("b.", "iv)", "2.", "2.1", "2.1.3"), at the start of the
-#: text or a line, or after the end of a sentence; also when glued to the next word
-#: ("2.Scope").  A bare letter needs the full stop or bracket ("a" alone is a word).
+#: text or a line, or after the end of a sentence (:data:`_SENTENCE_START_RE`); also when
+#: glued to the next word ("2.Scope").  A bare letter needs the full stop or bracket ("a"
+#: alone is a word).
 _DOTTED_LABEL_RE = re.compile(
-    r"(?:(?<=^)|(?<=\n)|(?<=[.:;]\s))[ \t\u00a0]*"
-    rf"(?P<label>{_ITEM}[.)](?:\d{{1,3}}[.)]?)*|\d{{1,3}}(?:\.\d{{1,3}})+)(?=\s|[A-Z]|$)",
-    re.IGNORECASE)
+    rf"[ \t\u00a0]*(?P<label>{_ITEM}[.)](?:\d{{1,3}}[.)]?)*|\d{{1,3}}(?:\.\d{{1,3}})+)"
+    r"(?=\s|[A-Z]|$)", re.IGNORECASE)
+_SENTENCE_START_RE = re.compile(r"\n|[.:;]\s")
+#: Characters looked at before a label in brackets for its context.
+_CONTEXT_CHARS = 20
 
 
 def label_spans(text: str) -> list[tuple[int, int]]:
@@ -56,10 +60,19 @@ def label_spans(text: str) -> list[tuple[int, int]]:
     >>> [t[a:b] for a, b in label_spans(t)]
     ['(i)', '(ii)', 'b.']
     """
-    spans = {(m.start("label"), m.end("label")) for m in _LETTER_LABEL_RE.finditer(text)
-             if not _REFERRING_BEFORE_RE.search(text, max(0, m.start() - 20), m.start())}
-    for rx in (_NUMBER_LABEL_RE, _DOTTED_LABEL_RE):
-        spans |= {(m.start("label"), m.end("label")) for m in rx.finditer(text)}
+    spans: set[tuple[int, int]] = set()
+    for m in _LETTER_LABEL_RE.finditer(text):
+        before = text[max(0, m.start() - _CONTEXT_CHARS):m.start()]
+        if not (before[-1:].isalnum() or before[-1:] in (")", "]", "_")
+                or _REFERRING_BEFORE_RE.search(before)):
+            spans.add(m.span())
+    for m in _NUMBER_LABEL_RE.finditer(text):
+        if _LIST_START_BEFORE_RE.search(text, max(0, m.start() - _CONTEXT_CHARS), m.start()):
+            spans.add(m.span())
+    for k in (0, *(m.end() for m in _SENTENCE_START_RE.finditer(text))):
+        m = _DOTTED_LABEL_RE.match(text, k)
+        if m:
+            spans.add(m.span("label"))
     return sorted(spans)
 
 
