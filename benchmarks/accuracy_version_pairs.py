@@ -6,8 +6,9 @@ PyPI package ``licensedcode-data`` as precedent, newer as draft) the review is m
 against the standard library's ``difflib.SequenceMatcher`` on the normalised words of the
 two texts (the reference and the counting rules are in ``tests/support/version_pairs.py``).
 Prints one line per pair: reference changes, substantive deviations, false substantive
-deviations (by cause: noise, rename, unchanged) and missed changes; with ``--details`` the
-false deviations and the missed changes themselves.
+deviations (by cause: noise, rename, unchanged), missed changes and changes of figures that
+no substantive deviation covers; with ``--details`` the false deviations and the missed
+changes themselves.
 
 Run from the repository (the ``core`` package imported is the one beside this file):
 
@@ -22,6 +23,10 @@ from __future__ import annotations
 import argparse
 import sys
 from pathlib import Path
+
+
+#: Column widths of the table.
+WIDTHS = (7, 5, 5, 5, 6, 6, 6, 7)
 
 
 def _args() -> argparse.Namespace:
@@ -46,8 +51,8 @@ def main() -> int:
 
     print(f"core: {Path(core.__file__).parent}")
     print(f"{'pair':<52} {'changes':>7} {'subst':>5} {'false':>5} {'noise':>5} "
-          f"{'rename':>6} {'unchgd':>6} {'missed':>6}")
-    totals = [0] * 7
+          f"{'rename':>6} {'unchgd':>6} {'missed':>6} {'figures':>7}")
+    totals = [0] * 8
     for pair in PAIRS:
         if args.pair and not any(pair.precedent.startswith(p) or pair.draft.startswith(p)
                                  for p in args.pair):
@@ -56,16 +61,18 @@ def main() -> int:
         fig = measure(review_pair(pair), name=name)
         whys = [w for w, _v in fig.false_substantive]
         row = [fig.changes, fig.substantive, len(whys), whys.count("noise"), whys.count("rename"),
-               whys.count("unchanged"), len(fig.missed)]
+               whys.count("unchanged"), len(fig.missed), len(fig.figures_not_substantive)]
         totals = [t + r for t, r in zip(totals, row)]
-        print(f"{name:<52} " + " ".join(f"{v:>{w}}" for v, w in zip(row, (7, 5, 5, 5, 6, 6, 6))))
+        print(f"{name:<52} " + " ".join(f"{v:>{w}}" for v, w in zip(row, WIDTHS)))
         if args.details:
             for why, v in fig.false_substantive:
                 print(f"    false ({why}) {v.id} {v.part} {v.change}: "
                       f"{v.precedent_text[:70]!r} -> {v.draft_text[:70]!r}")
             for rc in fig.missed:
                 print(f"    missed {rc.tag}: {rc.shown()[:150]}")
-    print(f"{'total':<52} " + " ".join(f"{v:>{w}}" for v, w in zip(totals, (7, 5, 5, 5, 6, 6, 6))))
+            for rc in fig.figures_not_substantive:
+                print(f"    figures not substantive {rc.tag}: {rc.shown()[:150]}")
+    print(f"{'total':<52} " + " ".join(f"{v:>{w}}" for v, w in zip(totals, WIDTHS)))
     return 0
 
 

@@ -522,7 +522,8 @@ class _Builder:
         if v.part == "provision":
             if v.category != "term":
                 return None
-            return figures_in(v.precedent_text), figures_in(v.draft_text)
+            return (figures_in(v.precedent_text, references=True),
+                    figures_in(v.draft_text, references=True))
         sides = []
         for info, pid, span in ((self.pi, v.precedent_provision, v.precedent_text_span),
                                 (self.di, v.draft_provision, v.draft_text_span)):
@@ -544,9 +545,9 @@ class _Builder:
             dp = self.di.position.get(v.draft_provision) if v.draft_provision else None
             ctype, kind = self._type_of(pp, dp) if (pp, dp) != (None, None) else (None, "clause")
             sev = figure_severity(found, clause_type=ctype, kind=kind, rules=self.rules)
-            if v.category == "substantive":
-                known = set(figures_in(" ".join(v.reasons)))
-                v.reasons += tuple(r for r in found if not set(figures_in(r)) <= known)
+            if v.category == "substantive":  # add the values its reasons do not give yet
+                known = set(re.findall(r"\d+", " ".join(v.reasons)))
+                v.reasons += tuple(r for r in found if not set(re.findall(r"\d+", r)) <= known)
             else:
                 v.category = "substantive"
                 v.reasons = found + v.reasons

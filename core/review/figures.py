@@ -48,11 +48,13 @@ def _normal(figure: str) -> str:
     return _THOUSANDS_RE.sub("", _DASH_RE.sub("-", figure))
 
 
-def figures_in(text: str, span: tuple[int, int] | None = None) -> tuple[str, ...]:
+def figures_in(text: str, span: tuple[int, int] | None = None, *,
+               references: bool = False) -> tuple[str, ...]:
     """The figures of ``text[span]`` (the whole text by default) in order, written without
     thousands separators and with dashes unified; a figure that overlaps the span counts
     whole.  List labels and the numbers of cross-references within the agreement are left
-    out (see the module's docstring).
+    out (see the module's docstring), unless *references* is true: for a defined term's
+    name, whose words are never read as a reference ("Schedule 1 Services").
 
     >>> figures_in("within 1,000 days of Section 4.2 under (b) of Regulation 2016/679")
     ('1000', '2016/679')
@@ -62,7 +64,8 @@ def figures_in(text: str, span: tuple[int, int] | None = None) -> tuple[str, ...
     a, b = span if span is not None else (0, len(text))
     if not any(c.isdigit() for c in text[max(0, a - 40):b + 40]):
         return ()
-    skip = label_spans(text) + [(s, e) for s, e, *_ in find_cross_references(text)]
+    skip = [] if references else (label_spans(text)
+                                  + [(s, e) for s, e, *_ in find_cross_references(text)])
     out: list[str] = []
     for m in FIGURE_RE.finditer(text):
         if m.end() <= a or m.start() >= b or (a == b and not m.start() < a < m.end()):

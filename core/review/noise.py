@@ -76,13 +76,14 @@ def label_spans(text: str) -> list[tuple[int, int]]:
     return sorted(spans)
 
 
-#: A blank of a form: a bracketed placeholder ("[●]", "[•]", "[ ]", "[insert date]",
-#: "[CUSTOMER NAME]"), a line of at least three underscores or of at least four dots (or
+#: A blank of a form: a placeholder in square brackets ("[●]", "[•]", "[ ]", "[insert date]",
+#: "[CUSTOMER NAME]") or in angle brackets as licence templates write them ("<year>",
+#: "<name of author>"), a line of at least three underscores or of at least four dots (or
 #: two ellipsis characters), as templates leave them to be filled in.
-BLANK_RE = re.compile(r"\[[^\[\]\n]{0,80}\]|_{3,}|\.{4,}|\u2026{2,}")
+_BLANK = r"\[[^\[\]\n]{0,80}\]|<[^<>\n]{1,80}>|_{3,}|\.{4,}|\u2026{2,}"
+BLANK_RE = re.compile(_BLANK)
 #: The changed words are blanks only (several blanks with separators between them count).
-_BLANKS_ONLY_RE = re.compile(
-    r"(?:(?:\[[^\[\]\n]{0,80}\]|_{3,}|\.{4,}|\u2026{2,})[\s,;:.]*(?:(?:and|or)\s+)?)+")
+_BLANKS_ONLY_RE = re.compile(rf"(?:(?:{_BLANK})[\s,;:.]*(?:(?:and|or)\s+)?)+")
 #: An empty field of a form: "Name:" (a label of at most four words and a colon) with
 #: nothing after it on its line.
 _FIELD_RE = re.compile(r"[ \t]*[A-Za-z][\w.'\u2019 ]{0,40}:")

@@ -38,6 +38,7 @@ from dataclasses import dataclass
 from core.model import Deviation, Document, Provision, Review
 from core.reader import read_text
 from core.review import run_review
+from core.review.tokens import find_cross_references
 
 from .legal_texts import license_text
 
@@ -377,6 +378,9 @@ class PairFigures:
     covered_by: tuple[tuple[str, int], ...]  # category -> reference changes it covers
     false_substantive: tuple[tuple[str, Deviation], ...]  # (why, deviation)
     substantive: int
+    #: reference changes of figures (outside cross-references) that no substantive
+    #: deviation touches: numbers are always substance
+    figures_not_substantive: tuple[RefChange, ...] = ()
 
     def false_count(self, *, without: Sequence[str] = ()) -> int:
         return sum(why not in without for why, _v in self.false_substantive)
@@ -551,7 +555,34 @@ def measure(review: Review, *, name: str) -> PairFigures:
             covered[c] = covered.get(c, 0) + 1
     return PairFigures(name, len(refs), tuple(missed), tuple(reordered),
                        tuple(sorted(covered.items())), false,
-                       sum(v.category == "substantive" for v in review.deviations))
+                       sum(v.category == "substantive" for v in review.deviations),
+                       _figures_not_substantive(review, refs, spans))
+
+
+def _figure_words(doc: Document, words: Sequence[Word]) -> list[Word]:
+    """The words of *words* with a digit, less the numbers of cross-references to the
+    agreement's own provisions (the review follows those to the provision they name:
+    core.review.tokens.find_cross_references)."""
+    out = []
+    for w in words:
+        if any(c.isdigit() for c in w.key):
+            refs = find_cross_references(doc.blocks[w.block].text)
+            if not any(a <= w.start < b for a, b, *_ in refs):
+                out.append(w)
+    return out
+
+
+def _figures_not_substantive(review: Review, refs: Sequence[RefChange],
+                             spans: Sequence[tuple[Deviation, tuple[Ranges, Ranges]]]
+                             ) -> tuple[RefChange, ...]:
+    """Reference changes of figures that no substantive deviation touches."""
+    out = []
+    for rc in refs:
+        pf, df = _figure_words(review.precedent, rc.p), _figure_words(review.draft, rc.d)
+        if (pf or df) and not any(v.category == "substantive" and (_touches(pr, pf) or _touches(dr, df))
+                                  for v, (pr, dr) in spans):
+            out.append(rc)
+    return tuple(out)
 
 
 def review_pair(pair: VersionPair) -> Review:
