@@ -24,7 +24,6 @@ import argparse
 import sys
 from pathlib import Path
 
-
 #: Column widths of the table.
 WIDTHS = (7, 5, 5, 5, 6, 6, 6, 7)
 

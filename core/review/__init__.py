@@ -12,12 +12,18 @@
    pair keeps its diff as ``Pair.edits`` (offsets into the original texts; the invariants
    are in :mod:`core.model`), which the outputs and the desktop app show as it is;
 4. **classification** (:mod:`.classify`) of each change: formatting, punctuation, numbering,
-   term or substantive;
-5. **severity** (:mod:`.severity`, rules in ``resources/severity.toml``) and ranking: by
-   descending severity, ties in draft order.  A heading one side only adds or removes is
-   formatting (the rule file's ``[headings]``); a heading whose words changed is a low
-   substantive deviation.  Each deviation says which part it concerns (``part``: text,
-   heading or the whole provision).
+   completion (a blank of the precedent filled in), term or substantive; a change that runs
+   from one provision of a split or merged group into the next is cut at the boundary, so
+   that each provision keeps its own deviation;
+5. **severity** (:mod:`.severity`, rules in ``resources/severity.toml``).  A heading one
+   side only adds or removes is formatting (the rule file's ``[headings]``); a heading whose
+   words changed is a low substantive deviation.  Each deviation says which part it
+   concerns (``part``: text, heading or the whole provision);
+6. **numbers are always substance** (:mod:`.figures`): last, every deviation whose figures
+   differ (digits, amounts, dates, versions; list labels and references followed to their
+   provision aside) becomes substantive with the old and new values in its reasons,
+   whatever the stages before said; then the ranking: by descending severity, ties in
+   draft order.
 
 A pair's status is ``same`` when its only differences are renamed defined terms and
 renumbering, ``changed`` otherwise; ``moved``, ``split`` and ``merged`` take precedence.

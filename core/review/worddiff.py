@@ -152,7 +152,7 @@ def _ops(diffs: Sequence[tuple[int, str]]) -> list[TokenOp]:
 
 def _anchored(a: TokenSeq, ops: Sequence[TokenOp], exact: Sequence[TokenOp]) -> list[TokenOp]:
     """*ops* (after the semantic clean-up) with the equal runs of the *exact* diff of at
-    least ANCHOR_WORDS words that fall inside a ``replace`` op kept equal.  O(ops)."""
+    least ANCHOR_WORDS words that fall inside a ``replace`` op kept equal.  O(tokens)."""
     anchors = [op for op in exact if op.tag == "equal" and sum(
         a.kinds[i] in _WORDLIKE for i in range(op.i1, op.i2)) >= ANCHOR_WORDS]
     if not anchors:

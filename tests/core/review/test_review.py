@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from core.review import NO_SHARED_NOTE, run_review
 
-from .helpers import by_category, doc, substantive
+from .helpers import by_category, doc, excerpt, substantive
 
 PRECEDENT = """
     SERVICES AGREEMENT
@@ -371,3 +371,16 @@ def test_split_and_merged_pairings_carry_their_own_word_diff():
             assert "".join(a[e.p1:e.p2] for e in p.edits) == a
             assert "".join(b[e.d1:e.d2] for e in p.edits) == b
             assert any(e.tag == "equal" and len(a[e.p1:e.p2].split()) >= 5 for e in p.edits)
+
+
+def test_a_label_dropped_by_the_draft_is_numbering():
+    """gpl-1.0's appendix is headed "Appendix: How to Apply These Terms to Your New
+    Programs"; gpl-2.0 drops the "Appendix:" label (licensedcode-data).  The heading and
+    words agree; the label is reported once, as numbering."""
+    body = excerpt("gpl-1.0", "If you develop a new program", "change under these terms.")
+    start = "1. Copying\n\nYou may copy the Program.\n\n"
+    heading = "How to Apply These Terms to Your New Programs"
+    review = run_review(doc(f"{start}{heading}\n\n{body}\n"),
+                        doc(f"{start}Appendix: {heading}\n\n{body}\n"))
+    assert [(v.category, v.change, v.part, v.precedent_text, v.reasons) for v in review.deviations] == [
+        ("numbering", "delete", "provision", "Appendix", ("label removed: Appendix",))]

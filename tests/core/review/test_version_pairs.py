@@ -31,7 +31,13 @@ import pytest
 
 from core.model import CATEGORIES
 
-from ...support.version_pairs import PAIRS, PairFigures, VersionPair, measure, review_pair
+from ...support.version_pairs import (
+    PAIRS,
+    PairFigures,
+    VersionPair,
+    measure,
+    review_pair,
+)
 
 #: At most this many false substantive deviations per pair (the issue's bound).
 MAX_FALSE_PER_PAIR = 1
