@@ -64,6 +64,9 @@ def main() -> int:
         totals = [t + r for t, r in zip(totals, row)]
         print(f"{name:<52} " + " ".join(f"{v:>{w}}" for v, w in zip(row, WIDTHS)))
         if args.details:
+            print("    changes covered, by category: "
+                  + ", ".join(f"{c} {n}" for c, n in fig.covered_by)
+                  + f"; described as a reordering: {len(fig.reordered)}")
             for why, v in fig.false_substantive:
                 print(f"    false ({why}) {v.id} {v.part} {v.change}: "
                       f"{v.precedent_text[:70]!r} -> {v.draft_text[:70]!r}")

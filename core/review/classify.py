@@ -279,11 +279,35 @@ def _completion_rule(h: _Hunk, ctx: TermContext) -> Change | None:
     if h.change == "delete":
         return None
     blank = is_blank_fill(h.a.text, h.p_span)
-    if blank is None:
+    if blank is None and not (h.change == "replace" and _fills_fields(h)):
         return None
     dw = h.words()[1]
-    what = h.a.text[slice(*blank)] if blank[0] < blank[1] else "an empty field"
+    what = h.a.text[slice(*blank)] if blank and blank[0] < blank[1] else "an empty field"
     return h.mk("completion", "blank", note=f"{BLANK_FILLED}: {what} -> {_short(dw)}")
+
+
+def _fills_fields(h: _Hunk) -> bool:
+    """Whether the draft's side is the precedent's words with values added after empty form
+    fields ("Name:" / "Name: Mira Solberg"): the clean-up of the diff merges such a short
+    field label between two values into one replacement."""
+    a, b = h.a, h.b
+    pk = [i for i in range(h.i1, h.i2) if a.kinds[i] != KIND_SPACE]
+    points: list[int] = []  # where the draft adds words, as offsets of the precedent
+    k = 0
+    added = False
+    for j in range(h.j1, h.j2):
+        if b.kinds[j] == KIND_SPACE:
+            continue
+        if k < len(pk) and fold_text(a.token(pk[k])) == fold_text(b.token(j)):
+            if added:
+                points.append(a.starts[pk[k]])
+            added = False
+            k += 1
+        else:
+            added = True
+    if added and pk:
+        points.append(a.starts[pk[-1] + 1])
+    return k == len(pk) and bool(points) and all(is_blank_fill(a.text, (p, p)) for p in points)
 
 
 #: How the reason of a filled-in blank starts (the precedent-set statistics leave such

@@ -384,3 +384,46 @@ def test_a_label_dropped_by_the_draft_is_numbering():
                         doc(f"{start}Appendix: {heading}\n\n{body}\n"))
     assert [(v.category, v.change, v.part, v.precedent_text, v.reasons) for v in review.deviations] == [
         ("numbering", "delete", "provision", "Appendix", ("label removed: Appendix",))]
+
+
+PARTIES_FORM = """
+    AGREEMENT
+
+    THIS AGREEMENT is dated [insert date]
+
+    PARTIES
+
+    (1) [NAME OF SUPPLIER] Limited, a company incorporated in [\u25cf] (company number [\u25cf]) (the "Supplier"); and
+
+    (2) [NAME OF CUSTOMER] (the "Customer").
+
+    1. Supply
+
+    1.1 The Supplier shall supply the Goods to the Customer.
+
+    SIGNED by ____________ for and on behalf of the Supplier
+    Name:
+    Title:
+"""
+
+
+def test_parties_and_signature_blocks_completed_are_completion_but_figures_substance():
+    """A form's parties and signature blocks filled in by the draft (an invented form and
+    invented parties; the blanks are common practice in templates, no source): each name
+    filled in is a completion; the date and the company number are figures, so substantive
+    -- with the blank they fill among their reasons."""
+    filled = (PARTIES_FORM.replace("[insert date]", "3 March 2026")
+              .replace("[NAME OF SUPPLIER]", "Ardence Tools")
+              .replace("in [\u25cf]", "in Wexmoor").replace("number [\u25cf]", "number 04417730")
+              .replace("[NAME OF CUSTOMER]", "Brennick Foods Ltd")
+              .replace("____________", "Mira Solberg")
+              .replace("Name:\n", "Name: Mira Solberg\n").replace("Title:\n", "Title: Director\n"))
+    review = run_review(doc(filled), doc(PARTIES_FORM))
+    filled_in = {v.draft_text.split("\n")[0] for v in by_category(review, "completion")}
+    assert {"Ardence Tools", "in Wexmoor (company", "Brennick Foods Ltd", "by Mira Solberg for",
+            "Mira Solberg"} == filled_in
+    figures = {(v.draft_text, v.reasons[0]) for v in substantive(review)}
+    assert figures == {("3 March 2026", "figure added: 3"),
+                       ("number 04417730)", "figure added: 04417730")}
+    assert all(any(r.startswith("blank of the precedent filled in") for r in v.reasons)
+               for v in substantive(review))
