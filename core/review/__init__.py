@@ -297,10 +297,12 @@ def run_review(draft: Document, precedent: Document, *,
 def clear_caches() -> None:
     """Forget the engine's caches of token keys, figures and phrase matches (they only
     speed up reviews of the same texts; benchmarks clear them to time cold runs)."""
+    from .noise import clear_label_cache
     from .severity import clear_caches as _clear_severity
     from .tokens import clear_token_cache
 
     clear_token_cache()
+    clear_label_cache()
     _clear_severity()
 
 

@@ -11,10 +11,12 @@ over the text per call.
 from __future__ import annotations
 
 import re
+from functools import lru_cache
 
 __all__ = [
     "BLANK_RE",
     "blank_at",
+    "clear_label_cache",
     "empty_field_at",
     "is_blank_fill",
     "label_spans",
@@ -54,12 +56,26 @@ _CONTEXT_CHARS = 20
 
 
 def label_spans(text: str) -> list[tuple[int, int]]:
-    """Character spans of the list labels written into *text*, sorted.
+    """Character spans of the list labels written into *text*, sorted (cached per text).
 
     >>> t = "utilizing: (i) the name, and (ii) the title. b. Each time"
     >>> [t[a:b] for a, b in label_spans(t)]
     ['(i)', '(ii)', 'b.']
     """
+    return list(_label_spans(text))
+
+
+def clear_label_cache() -> None:
+    """Forget the labels found (benchmarks measure cold runs)."""
+    _label_spans.cache_clear()
+
+
+#: Texts whose labels are kept (a long agreement has a few thousand provision texts).
+_LABEL_CACHE_SIZE = 4096
+
+
+@lru_cache(maxsize=_LABEL_CACHE_SIZE)
+def _label_spans(text: str) -> tuple[tuple[int, int], ...]:
     spans: set[tuple[int, int]] = set()
     for m in _LETTER_LABEL_RE.finditer(text):
         before = text[max(0, m.start() - _CONTEXT_CHARS):m.start()]
@@ -73,7 +89,7 @@ def label_spans(text: str) -> list[tuple[int, int]]:
         m = _DOTTED_LABEL_RE.match(text, k)
         if m:
             spans.add(m.span("label"))
-    return sorted(spans)
+    return tuple(sorted(spans))
 
 
 #: A blank of a form: a placeholder in square brackets ("[●]", "[•]", "[ ]", "[insert date]",

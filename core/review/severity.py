@@ -32,6 +32,7 @@ from typing import Protocol
 
 from ..errors import CounterdraftError
 from ..model import Document, Provision
+from .noise import label_spans
 from .tokens import find_cross_references
 
 __all__ = [
@@ -377,9 +378,11 @@ def _find_quantities(text: str, lo: int = 0, hi: int | None = None) -> list[Quan
                                   text[prev.start:end])
         else:
             merged.append(q)
-    xrefs = find_cross_references(text)
+    # the numbers of references to the agreement's own provisions and of list labels ("3."
+    # of "3.Scope") are no figures (core.review.figures)
+    skip = [(a, b) for a, b, *_ in find_cross_references(text)] + label_spans(text)
     return [q for q in merged
-            if not (q.kind == "number" and any(a <= q.start < b for a, b, *_ in xrefs))]
+            if not (q.kind == "number" and any(a <= q.start < b for a, b in skip))]
 
 
 # ----------------------------------------------------------------------------------------
