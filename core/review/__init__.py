@@ -499,8 +499,8 @@ class _Builder:
         dh = self.di.provisions[g.drafts[0]].heading or ""
         if ph != dh:
             hpb, hdb = self.pside.head(g.precedents[0]), self.dside.head(g.drafts[0])
-            ha, hpt = rekey(hpb, term_key={}), hpb.term_at
-            hb, hdt = rekey(hdb, term_key=self.dside.to_key), hdb.term_at
+            ha, hpt = self._plain(rekey(hpb, term_key={})), hpb.term_at
+            hb, hdt = self._plain(rekey(hdb, term_key=self.dside.to_key)), hdb.term_at
             changes = [c for c in classify_ops(ha, hb, token_ops(ha, hb), self._ctx(hdt, hpt))
                        if c.category != "term"]
             rank = {"substantive": 0, "completion": 1, "punctuation": 2, "formatting": 3,
@@ -552,7 +552,8 @@ class _Builder:
             pp = self.pi.position.get(v.precedent_provision) if v.precedent_provision else None
             dp = self.di.position.get(v.draft_provision) if v.draft_provision else None
             ctype, kind = self._type_of(pp, dp) if (pp, dp) != (None, None) else (None, "clause")
-            sev = figure_severity(found, clause_type=ctype, kind=kind, rules=self.rules)
+            sev = figure_severity(found, clause_type=ctype, kind=kind, rules=self.rules,
+                                  filled_in=self._fills_blank_with_a_value(v))
             if v.category == "substantive":  # add the values its reasons do not give yet
                 known = set(re.findall(r"\d+", " ".join(v.reasons)))
                 v.reasons += tuple(r for r in found if not set(re.findall(r"\d+", r)) <= known)
@@ -560,6 +561,14 @@ class _Builder:
                 v.category = "substantive"
                 v.reasons = found + v.reasons
             v.severity = max(v.severity, sev)
+
+    def _fills_blank_with_a_value(self, v: _Dev) -> bool:
+        """A completion whose figures name something (a date, an address, a company
+        number) rather than an amount, percentage or period: "[●] days" filled in as "30
+        days" scores as a figure added, "[ADDRESS]" as "15 Mill Lane" as a blank filled in."""
+        if v.category != "completion":
+            return False
+        return all(q.kind == "number" for q in find_quantities(v.draft_text))
 
     def _plain(self, seq: TokenSeq) -> TokenSeq:
         """*seq* keyed for the word diff: the uses of defined terms that are neither renamed

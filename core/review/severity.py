@@ -62,6 +62,10 @@ _SIGNALS = (
 )
 _CATEGORY_KEYS = ("term", "move", "numbering", "numbering_cross_reference", "formatting",
                   "punctuation")
+#: Signal keys a rule file may leave out (it was written before they existed), with the
+#: points used then: a figure that fills in a blank of the precedent (a date, an address, a
+#: company number) is substantive, but the precedent asked for a value there.
+_OPTIONAL_SIGNALS = {"number_filled_in": 15.0}
 #: Category keys a rule file may leave out (it was written before they existed), with the
 #: severity used then: a blank of the precedent filled in is informational, scored like a
 #: punctuation difference.
@@ -143,6 +147,8 @@ def load_rules(path: str | Path | None = None) -> SeverityRules:
         if k not in data["signals"]:
             raise _fail(sp, f"missing signals.{k}")
         signals[k] = _number(sp, f"signals.{k}", data["signals"][k], 0, 100)
+    for k, default in _OPTIONAL_SIGNALS.items():
+        signals[k] = _number(sp, f"signals.{k}", data["signals"].get(k, default), 0, 100)
     categories = {}
     for k in _CATEGORY_KEYS:
         if k not in data["categories"]:
@@ -648,13 +654,15 @@ def clear_caches(rules: SeverityRules | None = None) -> None:
 
 
 def figure_severity(reasons: Sequence[str], *, clause_type: str | None, kind: str,
-                    rules: SeverityRules | None = None) -> int:
+                    rules: SeverityRules | None = None, filled_in: bool = False) -> int:
     """Severity of the figure changes *reasons* name (:func:`.figures.figure_reasons`:
     "figure changed ...", "figure added ...", "figure removed ..."), scored like the same
     changes found in words: ``number_changed`` / ``number_added`` / ``number_removed``
-    times the clause type's weight."""
+    times the clause type's weight; figures that fill in a blank of the precedent (*filled_in*)
+    score ``number_filled_in`` instead of ``number_added``."""
     rules = rules or _default_rules()
-    names = {"changed": "number_changed", "added": "number_added", "removed": "number_removed"}
+    names = {"changed": "number_changed", "removed": "number_removed",
+             "added": "number_filled_in" if filled_in else "number_added"}
     signals = [Signal(names[r.split()[1].rstrip(":")], r) for r in reasons]
     return _combine(rules, signals, rules.weight(clause_type, kind))
 

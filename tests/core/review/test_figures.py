@@ -166,3 +166,19 @@ def test_labels_glued_to_their_headings_are_numbering_not_figures():
     (added,) = substantive(review)
     assert "Delivery" in added.draft_text
     assert not any(r.startswith("figure") for r in added.reasons)
+
+
+def test_a_period_filling_a_blank_outranks_a_date_filling_one():
+    """Both are substantive (numbers are always substance); a period or amount written into
+    a blank ("[\u25cf] days", common practice in templates, no source) is the deal's own
+    term and scores as a figure added, a date or address scores number_filled_in (the rule
+    file): the precedent asked for a value there.  Invented clause."""
+    form = ("1. Payment\n\nThe Customer shall pay each invoice within [\u25cf] days of the "
+            "date of the invoice dated [insert date].\n")
+    filled = form.replace("[\u25cf] days", "45 days").replace("[insert date]", "1 May 2026")
+    review = run_review(doc(filled), doc(form))
+    period = next(v for v in review.deviations if "45" in v.draft_text)
+    date = next(v for v in review.deviations if "2026" in v.draft_text)
+    assert period.category == date.category == "substantive"
+    assert period.reasons[0] == "figure added: 45"
+    assert period.severity > date.severity > 0
