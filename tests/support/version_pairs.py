@@ -19,12 +19,17 @@ Against it, :func:`measure` counts for one review:
 * **missed** changes: reference changes that no deviation touches (the changed words of a
   deviation in a provision's text or heading, the whole provision for an added, removed,
   moved or renumbered one; a renamed defined term covers the uses the pair's diff marks as
-  renamed);
+  renamed).  A phrase moved inside a sentence can be cut two ways ("sublicense, distribute
+  or transfer" -> "sublicense, or distribute": delete "transfer", or delete "distribute"
+  and insert it again); a change whose words the review's own diff keeps unchanged, with a
+  deviation within :data:`NEAR_WORDS` words, is counted apart as *reordered*, not missed;
 * **false substantive** deviations: substantive deviations whose words are equal after the
   normalisation above (``noise``), equal once the review's own term map is applied
   (``rename``, which the term-map engineer owns) or whose changed words the reference finds
-  unchanged (``unchanged``: text split into a deletion and a re-insertion, or provisions
-  paired wrongly).
+  unchanged in the same place, with no change within NEAR_WORDS words (``unchanged``: text
+  split into a deletion and a re-insertion, or provisions paired wrongly);
+* changes of **figures** (words with a digit, outside references to the document's own
+  provisions) that no substantive deviation touches.
 """
 
 from __future__ import annotations
