@@ -62,6 +62,7 @@ __all__ = [
     "clause_label",
     "decide",
     "decision_for",
+    "is_renamed_term",
     "load_review_file",
     "check_amend_text",
     "match_key",
@@ -199,6 +200,15 @@ def check_amend_text(text: str, *, paragraphs: bool = False) -> str:
     return text.strip("\n")
 
 
+def is_renamed_term(dev: Deviation) -> bool:
+    """Whether *dev* reports a renamed defined term: category ``term``, or a rename that the
+    review's figures guard made substantive because a figure of the name changed ("Schedule
+    1 Services" -> "Schedule 2 Services"): a whole-provision ``replace`` that is no
+    renumbering.  Either way it is accepted, never written back as tracked changes."""
+    return dev.category == "term" or (dev.part == "provision" and dev.change == "replace"
+                                      and dev.category == "substantive")
+
+
 def _refuse(dev: Deviation, action: str, who: str) -> None:
     """Refuse what cannot be written as a tracked change, in one line naming the deviation."""
     if action == "accept":
@@ -207,7 +217,7 @@ def _refuse(dev: Deviation, action: str, who: str) -> None:
         raise CounterdraftError(
             f"{who} is a moved provision; moving it back is not written as a tracked change -- "
             "accept it, or amend the provision's words")
-    if dev.category == "term":
+    if is_renamed_term(dev):
         raise CounterdraftError(
             f"{who} is a renamed defined term; renaming it back everywhere is not written as "
             "tracked changes -- accept it (the counter-draft keeps the draft's names)")

@@ -175,7 +175,8 @@ class Document:
 # --------------------------------------------------------------------------------------
 
 PAIR_STATUSES: tuple[str, ...] = ("same", "changed", "moved", "added", "removed", "split", "merged")
-CATEGORIES: tuple[str, ...] = ("substantive", "term", "formatting", "numbering", "punctuation")
+CATEGORIES: tuple[str, ...] = ("substantive", "term", "formatting", "numbering", "punctuation",
+                               "completion")
 CHANGES: tuple[str, ...] = ("insert", "delete", "replace", "move", "add-provision", "remove-provision")
 DEVIATION_PARTS: tuple[str, ...] = ("text", "heading", "provision")
 
@@ -236,7 +237,8 @@ class Edit:
     d2: int
     #: True for a ``replace`` hunk whose two sides compare equal once normalised: a renamed
     #: defined term, a renumbered cross-reference to the same provision, or a change of
-    #: letter case, quote or dash style or white space -- not a change of words.  A writer
+    #: letter case, quote or dash style or white space (also between a defined term's use
+    #: and the same word written plainly: "You" / "you") -- not a change of words.  A writer
     #: restoring the precedent's words keeps the draft's side of such a hunk.
     restyle: bool = False
 

@@ -242,9 +242,9 @@ def decide(record: Any, deviation_id: str, action: str, *, text: str = "", note:
 
 def can_change(deviation: Any) -> bool:
     """Can the reviewer revert or amend *deviation* (else only accept it)?"""
-    from core.decisions import ACCEPT_ONLY
+    from core.decisions import ACCEPT_ONLY, is_renamed_term
 
-    return not (deviation.category in ACCEPT_ONLY or deviation.category == "term"
+    return not (deviation.category in ACCEPT_ONLY or is_renamed_term(deviation)
                 or deviation.change == "move")
 
 

@@ -31,6 +31,7 @@ CATEGORY_NAMES = {
     "formatting": "Formatting",
     "numbering": "Numbering",
     "punctuation": "Punctuation",
+    "completion": "Blank filled in",
 }
 
 CHANGE_NAMES = {

@@ -223,7 +223,7 @@ _HEADER_TIPS = (
     "as the issues list and the command line show it",
     "0\u2013100, from the firm's severity rules",
     "Clause by the draft's numbering",
-    "Substantive, defined term, numbering, formatting or punctuation",
+    "Substantive, blank filled in, defined term, numbering, formatting or punctuation",
     "The engine's first reason, or the changed words",
     "How many agreements of the precedent set carry the draft's wording",
     "Your decision: accept the draft, restore the precedent, or amend",

@@ -53,8 +53,9 @@ class Inputs:
 class DisplayOptions:
     """Which classes of change are shown (in the side-by-side marks and the deviation list).
 
-    Substantive changes are always shown.  The defaults match the command line's default
-    listing (substantive and term changes).
+    Substantive changes and blanks of the precedent filled in are always shown.  The
+    defaults match the command line's default listing (substantive, completion and term
+    changes).
     """
 
     terms: bool = True
@@ -62,7 +63,7 @@ class DisplayOptions:
     formatting: bool = False  # formatting and punctuation
 
     def shown_categories(self) -> frozenset[str]:
-        shown = {"substantive"}
+        shown = {"substantive", "completion"}
         if self.terms:
             shown.add("term")
         if self.numbering:

@@ -16,7 +16,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from .. import CAUTION
-from ..decisions import ACCEPT_ONLY, Decision
+from ..decisions import ACCEPT_ONLY, Decision, is_renamed_term
 from ..docx.tracked import BlockDeletion, BlockEdit, BlockInsertion, unsafe_part_names
 from ..errors import CounterdraftError
 from ..fileio import atomic_write_bytes
@@ -229,7 +229,7 @@ class _Planner:
             return
         dprov = find_provision(review.draft, dev.draft_provision)
         pprov = find_provision(review.precedent, dev.precedent_provision)
-        if dec.action != "accept" and (dev.category == "term" or dev.change == "move"
+        if dec.action != "accept" and (is_renamed_term(dev) or dev.change == "move"
                                        or dev.category in ACCEPT_ONLY):
             self.notes.append(f"{_who(review, dev)}: a {dev.category} difference can only be "
                               "accepted; skipped")

@@ -82,10 +82,12 @@ _DRAFT_WORDS_COLUMN = "Draft's changed words"
 ISSUE_CSV_COLUMNS = (*ISSUE_COLUMNS, _PRECEDENT_WORDS_COLUMN, _DRAFT_WORDS_COLUMN)
 
 #: Deviation categories the issues list shows unless asked for more: what a negotiator needs
-#: -- the substantive deviations, and the renamed defined terms as a short informational group
-#: at the end.  Formatting, numbering and punctuation differences are left out by default
-#: (``include=CATEGORIES`` or ``counterdraft export --issues-all`` shows them).
-ISSUES_DEFAULT_INCLUDE: tuple[str, ...] = ("substantive", "term")
+#: -- the substantive deviations, the blanks of the precedent the draft filled in (for
+#: information: what was filled in is the reader's to check), and the renamed defined terms
+#: as a short informational group at the end.  Formatting, numbering and punctuation
+#: differences are left out by default (``include=CATEGORIES`` or ``counterdraft export
+#: --issues-all`` shows them).
+ISSUES_DEFAULT_INCLUDE: tuple[str, ...] = ("substantive", "completion", "term")
 
 #: Row orders: ``"clause"`` follows the draft (a provision the draft left out sits where it
 #: would have been), ``"rank"`` the review's ranking by severity.
@@ -416,8 +418,9 @@ def _what_changed(review: Review, dev: Deviation) -> tuple[Excerpt, str, str]:
     if dev.part == "text" and (dp is not None or pp is not None):
         return _text_change(review, dev, dp, pp)
     if dev.part == "provision" and dev.category == "numbering":
-        return _concat("Renumbered ", _old_new(Excerpt(dev.precedent_text), Excerpt(dev.draft_text))), \
-            dev.precedent_text, dev.draft_text
+        old = Excerpt(dev.precedent_text) if dev.precedent_text else None
+        new = Excerpt(dev.draft_text) if dev.draft_text else None
+        return _concat("Renumbered ", _old_new(old, new)), dev.precedent_text, dev.draft_text
     # no provision to quote from (the whole document): the deviation's own words
     old = _words_of(dev.precedent_text) if dev.precedent_text.strip() else None
     new = _words_of(dev.draft_text) if dev.draft_text.strip() else None

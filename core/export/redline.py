@@ -765,12 +765,14 @@ def _ranked_section(review: Review) -> list[Element]:
 
 def _left_out_counts(review: Review) -> str:
     """One sentence counting the other differences the substantive view leaves unmarked:
-    numbering (labels and cross-references), formatting and punctuation, moves."""
+    numbering (labels and cross-references), formatting and punctuation, blanks filled in,
+    moves."""
     devs = review.deviations
     numbering = [d for d in devs if d.category == "numbering" and d.change != "move"]
     refs = sum(d.part == "text" for d in numbering)
     other = sum(d.category in ("formatting", "punctuation") for d in devs)
     moves = sum(d.change == "move" for d in devs)
+    filled = sum(d.category == "completion" for d in devs)
     parts: list[str] = []
     if numbering:
         detail = (f" ({_plural(len(numbering) - refs, 'label', 'labels')}, "
@@ -780,6 +782,9 @@ def _left_out_counts(review: Review) -> str:
     if other:
         parts.append(_plural(other, "formatting or punctuation difference",
                              "formatting and punctuation differences"))
+    if filled:
+        parts.append(_plural(filled, "blank of the precedent filled in",
+                             "blanks of the precedent filled in"))
     if moves:
         parts.append(_plural(moves, "moved provision", "moved provisions")
                      + " (shown once, where the draft has " + ("it)" if moves == 1 else "them)"))

@@ -83,8 +83,12 @@ def _short(text: str, limit: int = 80) -> str:
 def _fills_a_blank(dev: Deviation) -> bool:
     """A blank of the form ("[CUSTOMER NAME]") filled in: every signed copy differs from the
     precedent there, so it is no negotiation move (common practice, no source).  The review
-    engine names such a deviation's first reason "placeholder ... completed"."""
-    return bool(dev.reasons) and dev.reasons[0].startswith("placeholder ")
+    engine files it under ``completion``, or, when figures fill it (made substantive by the
+    figures guard), keeps the reason :data:`core.review.classify.BLANK_FILLED` among its
+    reasons."""
+    from ..review.classify import BLANK_FILLED
+
+    return dev.category == "completion" or any(r.startswith(BLANK_FILLED) for r in dev.reasons)
 
 
 def _moves_of(dev: Deviation) -> list[tuple[str, str]]:

@@ -12,12 +12,18 @@
    pair keeps its diff as ``Pair.edits`` (offsets into the original texts; the invariants
    are in :mod:`core.model`), which the outputs and the desktop app show as it is;
 4. **classification** (:mod:`.classify`) of each change: formatting, punctuation, numbering,
-   term or substantive;
-5. **severity** (:mod:`.severity`, rules in ``resources/severity.toml``) and ranking: by
-   descending severity, ties in draft order.  A heading one side only adds or removes is
-   formatting (the rule file's ``[headings]``); a heading whose words changed is a low
-   substantive deviation.  Each deviation says which part it concerns (``part``: text,
-   heading or the whole provision).
+   completion (a blank of the precedent filled in), term or substantive; a change that runs
+   from one provision of a split or merged group into the next is cut at the boundary, so
+   that each provision keeps its own deviation;
+5. **severity** (:mod:`.severity`, rules in ``resources/severity.toml``).  A heading one
+   side only adds or removes is formatting (the rule file's ``[headings]``); a heading whose
+   words changed is a low substantive deviation.  Each deviation says which part it
+   concerns (``part``: text, heading or the whole provision);
+6. **numbers are always substance** (:mod:`.figures`): last, every deviation whose figures
+   differ (digits, amounts, dates, versions; list labels and references followed to their
+   provision aside) becomes substantive with the old and new values in its reasons,
+   whatever the stages before said; then the ranking: by descending severity, ties in
+   draft order.
 
 A pair's status is ``same`` when its only differences are renamed defined terms and
 renumbering, ``changed`` otherwise; ``moved``, ``split`` and ``merged`` take precedence.
@@ -32,18 +38,20 @@ import re
 import time
 from bisect import bisect_right
 from collections.abc import Callable, Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from ..model import Deviation, Document, Edit, Pair, Provision, Review
 from .align import Alignment, Features, Group, align
 from .classify import Change, TermContext, classify_ops
 from .docinfo import DocInfo, build_docinfo
+from .figures import figure_reasons, figures_in
 from .serialize import review_to_dict
 from .severity import (
     SeverityRules,
     category_severity,
     clause_types_for,
     default_rules,
+    figure_severity,
     find_quantities,
     heading_only_reason,
     provision_change_severity,
@@ -63,6 +71,7 @@ from .tokens import (
     TokenSeq,
     base_tokens,
     count_term_uses,
+    plain_terms,
     rekey,
     term_matcher,
     word_keys,
@@ -188,6 +197,44 @@ class _Dev:
     draft_text_span: tuple[int, int] | None = None
 
 
+def _pieces(text: str, starts: Sequence[int], span: tuple[int, int]) -> list[tuple[int, int]]:
+    """*span* of a joined text (provisions joined with "\\n" from *starts*) cut at the
+    provisions' boundaries, each piece trimmed of white space; [span] for an empty span."""
+    a, b = span
+    if a == b:
+        return [span]
+    k0 = bisect_right(starts, a) - 1
+    k1 = bisect_right(starts, b - 1) - 1
+    if k0 == k1:
+        return [span]
+    ends = [*starts[1:], len(text) + 1]
+    out = [_trimmed(text, (max(a, starts[k]), min(b, ends[k] - 1))) for k in range(k0, k1 + 1)]
+    return [p for p in out if p[0] < p[1]] or [span]
+
+
+def _per_provision(ch: Change, ptext: str, pstarts: Sequence[int], dtext: str,
+                   dstarts: Sequence[int]) -> list[Change]:
+    """*ch* cut where a split or merged group's joined texts pass from one provision to the
+    next, so that each deviation stays within one provision on each side (a change that ran
+    on into the next provision would otherwise be clipped to the first, and the rest lost).
+    Pieces pair up in order; a piece left over on one side is a deletion (or insertion) at
+    the end of the other side's change."""
+    pp = _pieces(ptext, pstarts, ch.p_span)
+    dp = _pieces(dtext, dstarts, ch.d_span)
+    if len(pp) == 1 and len(dp) == 1:
+        return [ch]
+    n = max(len(pp), len(dp))
+    pend, dend = (ch.p_span[1],) * 2, (ch.d_span[1],) * 2
+    out = []
+    for k in range(n):
+        ps = pp[k] if k < len(pp) else pend
+        ds = dp[k] if k < len(dp) else dend
+        kind = "insert" if ps[0] == ps[1] else ("delete" if ds[0] == ds[1] else "replace")
+        out.append(replace(ch, change=kind, p_span=ps, d_span=ds,
+                           signals=ch.signals if k == 0 else ()))
+    return out
+
+
 def _local_label(num: str) -> str:
     m = re.search(r"\([^()]*\)$", num)
     if m:
@@ -251,10 +298,12 @@ def run_review(draft: Document, precedent: Document, *,
 def clear_caches() -> None:
     """Forget the engine's caches of token keys, figures and phrase matches (they only
     speed up reviews of the same texts; benchmarks clear them to time cold runs)."""
+    from .noise import clear_label_cache
     from .severity import clear_caches as _clear_severity
     from .tokens import clear_token_cache
 
     clear_token_cache()
+    clear_label_cache()
     _clear_severity()
 
 
@@ -285,6 +334,7 @@ class _Builder:
         self.tm, self.al, self.rules = tm, al, rules
         self.d_types, self.p_types = d_types, p_types
         self.devs: list[_Dev] = []
+        self.keep_terms: frozenset[str] | None = None
         # (draft position, precedent position) -> the pair's word diff (Pair.edits)
         self.edits: dict[tuple[int, int], tuple[Edit, ...]] = {}
         # where a removed precedent provision would sit in the draft's order
@@ -419,6 +469,7 @@ class _Builder:
             a = rekey(pbt, term_key={}, xref=self._xref_precedent)
             b = rekey(dbt, term_key=self.dside.to_key, xref=self._xref_draft)
             pterm, dterm = pbt.term_at, dbt.term_at
+        a, b = self._plain(a), self._plain(b)
         clock.lap("tokens: words, terms, cross-references")
         ops = token_ops(a, b)
         if len(g.precedents) == 1 and len(g.drafts) == 1:
@@ -433,12 +484,13 @@ class _Builder:
                     self._quantities(dtext, [b.span(op.j1, op.j2) for op in changed]))
         changes = classify_ops(a, b, ops, self._ctx(dterm, pterm), keep_together=together)
         clock.lap("classification")
-        for ch in changes:
-            if ch.category not in ("term", "numbering"):
-                counted += 1
-            self._add_change(ch, ptext=ptext, pstarts=pstarts, ppos=g.precedents,
-                             dtext=dtext, dstarts=dstarts, dpos=g.drafts, heading=False,
-                             diff=(ops, a, b))
+        for whole in changes:
+            for ch in _per_provision(whole, ptext, pstarts, dtext, dstarts):
+                if ch.category not in ("term", "numbering"):
+                    counted += 1
+                self._add_change(ch, ptext=ptext, pstarts=pstarts, ppos=g.precedents,
+                                 dtext=dtext, dstarts=dstarts, dpos=g.drafts, heading=False,
+                                 diff=(ops, a, b))
         clock.lap("severity")
         return self._heading_changes(g, counted)
 
@@ -448,11 +500,12 @@ class _Builder:
         dh = self.di.provisions[g.drafts[0]].heading or ""
         if ph != dh:
             hpb, hdb = self.pside.head(g.precedents[0]), self.dside.head(g.drafts[0])
-            ha, hpt = rekey(hpb, term_key={}), hpb.term_at
-            hb, hdt = rekey(hdb, term_key=self.dside.to_key), hdb.term_at
+            ha, hpt = self._plain(rekey(hpb, term_key={})), hpb.term_at
+            hb, hdt = self._plain(rekey(hdb, term_key=self.dside.to_key)), hdb.term_at
             changes = [c for c in classify_ops(ha, hb, token_ops(ha, hb), self._ctx(hdt, hpt))
                        if c.category != "term"]
-            rank = {"substantive": 0, "punctuation": 1, "formatting": 2, "numbering": 3}
+            rank = {"substantive": 0, "completion": 1, "punctuation": 2, "formatting": 3,
+                    "numbering": 4}
             changes.sort(key=lambda c: rank[c.category])
             if changes:
                 top = changes[0]
@@ -470,14 +523,93 @@ class _Builder:
                                  dtext=dh, dstarts=[0], dpos=g.drafts[:1], heading=True)
         return counted
 
+    # -- numbers are always substance (core.review.figures) ----------------------------
+    def _figures_of(self, v: _Dev) -> tuple[tuple[str, ...], tuple[str, ...]] | None:
+        """The figures of each side of a deviation (the words it shows), or None for a
+        deviation the guard does not read: a label renumbered or a provision moved (their
+        digits are labels), a provision added or removed (substantive already)."""
+        if v.part == "provision":
+            if v.category != "term":
+                return None
+            return (figures_in(v.precedent_text, references=True),
+                    figures_in(v.draft_text, references=True))
+        sides = []
+        for info, pid, span in ((self.pi, v.precedent_provision, v.precedent_text_span),
+                                (self.di, v.draft_provision, v.draft_text_span)):
+            p = info.provisions[info.position[pid]] if pid is not None else None
+            text = (p.heading or "") if p is not None and v.part == "heading" else (p.text if p else "")
+            sides.append(figures_in(text, span) if span is not None else ())
+        return sides[0], sides[1]
+
+    def _guard_figures(self) -> None:
+        """Make every deviation whose figures differ substantive, with the old and new
+        values in its reasons (:mod:`.figures`); it runs after every other rule, so none can
+        override it."""
+        for v in self.devs:
+            got = self._figures_of(v)
+            if got is None or got[0] == got[1]:
+                continue
+            found = figure_reasons(*got)
+            pp = self.pi.position.get(v.precedent_provision) if v.precedent_provision else None
+            dp = self.di.position.get(v.draft_provision) if v.draft_provision else None
+            ctype, kind = self._type_of(pp, dp) if (pp, dp) != (None, None) else (None, "clause")
+            sev = figure_severity(found, clause_type=ctype, kind=kind, rules=self.rules,
+                                  filled_in=self._fills_blank_with_a_value(v))
+            if v.category == "substantive":  # add the values its reasons do not give yet
+                known = set(re.findall(r"\d+", " ".join(v.reasons)))
+                v.reasons += tuple(r for r in found if not set(re.findall(r"\d+", r)) <= known)
+            else:
+                v.category = "substantive"
+                v.reasons = found + v.reasons
+            v.severity = max(v.severity, sev)
+
+    def _fills_blank_with_a_value(self, v: _Dev) -> bool:
+        """A completion whose figures name something (a date, an address, a company
+        number) rather than an amount, percentage or period: "[●] days" filled in as "30
+        days" scores as a figure added, "[ADDRESS]" as "15 Mill Lane" as a blank filled in."""
+        if v.category != "completion":
+            return False
+        return all(q.kind == "number" for q in find_quantities(v.draft_text))
+
+    def _plain(self, seq: TokenSeq) -> TokenSeq:
+        """*seq* keyed for the word diff: the uses of defined terms that are neither renamed
+        nor a party's label compare as plain words (see :func:`.tokens.plain_terms`)."""
+        keep = self.keep_terms
+        if keep is None:
+            keep = self.keep_terms = frozenset(self.tm.to_precedent.values()) | self.pi.party_labels
+        return plain_terms(seq, keep=keep)
+
+    def _label_dev(self, d0: int, p0: int) -> _Dev | None:
+        """The numbering deviation of a pair whose labels differ: renumbered, or labelled on
+        one side only ("Appendix:" dropped, a paragraph numbered); None when the labels
+        agree or differ only because the parents were renumbered."""
+        di, pi, al = self.di, self.pi, self.al
+        dn, pn = di.full_number[d0], pi.full_number[p0]
+        draw, praw = di.provisions[d0].number or "", pi.provisions[p0].number or ""
+        ids = (di.provisions[d0].id, pi.provisions[p0].id)
+        sev = category_severity("numbering", rules=self.rules)
+        if bool(draw) != bool(praw):
+            reason = f"label added: {draw}" if draw else f"label removed: {praw}"
+            return _Dev((float(d0), 0, -2), sev, "numbering", "insert" if draw else "delete",
+                        *ids, praw, draw, (reason,), part="provision")
+        if not (dn and pn and dn != pn):
+            return None
+        dpar, ppar = di.parent_pos[d0], pi.parent_pos[p0]
+        parents_paired = (dpar is not None and ppar is not None
+                          and al.draft_to_precedent.get(dpar) == ppar)
+        if parents_paired and _local_label(dn) == _local_label(pn):
+            return None
+        return _Dev((float(d0), 0, -2), sev, "numbering", "replace", *ids, praw or pn,
+                    draw or dn, (f"renumbered from {pn} to {dn}",), part="provision")
+
     def _pair_edits(self, d: int, p: int) -> tuple[Edit, ...]:
         """Pair.edits of draft position *d* and precedent position *p*: the group's own diff
         for a one-to-one pair; for a split or merged group, a diff of the pairing's two
         texts with the same keys (term map and cross-references)."""
         got = self.edits.get((d, p))
         if got is None:
-            a = self.pside.seq(p, self._xref_precedent)
-            b = self.dside.seq(d, self._xref_draft)
+            a = self._plain(self.pside.seq(p, self._xref_precedent))
+            b = self._plain(self.dside.seq(d, self._xref_draft))
             got = self.edits[(d, p)] = pair_edits_from_ops(a, b, token_ops(a, b))
         return got
 
@@ -553,17 +685,9 @@ class _Builder:
                          f"{_label(di, d0, with_heading=False)} of the draft, in a different "
                          "place in the order",), part="provision"))
             elif g.kind == "match":
-                dn, pn = di.full_number[d0], pi.full_number[p0]
-                if dn and pn and dn != pn:
-                    dpar, ppar = di.parent_pos[d0], pi.parent_pos[p0]
-                    parents_paired = (dpar is not None and ppar is not None
-                                      and al.draft_to_precedent.get(dpar) == ppar)
-                    if not (parents_paired and _local_label(dn) == _local_label(pn)):
-                        self.devs.append(_Dev(
-                            (float(d0), 0, -2), category_severity("numbering", rules=rules),
-                            "numbering", "replace", di.provisions[d0].id, pi.provisions[p0].id,
-                            pi.provisions[p0].number or pn, di.provisions[d0].number or dn,
-                            (f"renumbered from {pn} to {dn}",), part="provision"))
+                label = self._label_dev(d0, p0)
+                if label is not None:
+                    self.devs.append(label)
         # Added and removed provisions: one deviation per subtree.
         for members in self._fold(di, al.added):
             self.devs.append(self._subtree_dev(members, added=True))
@@ -586,6 +710,7 @@ class _Builder:
                  f'"{m.precedent}" ({m.occurrences} use{"s" * (m.occurrences != 1)} in the '
                  f"draft; evidence: {ev}; confidence {m.confidence:.2f})",), part="provision"))
 
+        self._guard_figures()  # numbers are always substance: the last rule
         pairs.sort(key=lambda t: t[0])
         # ids in draft order, ranks by severity then draft order
         in_order = sorted(self.devs, key=lambda v: v.order)

@@ -485,6 +485,38 @@ def _pair_by_children(draft: Sequence[Features], precedent: Sequence[Features],
         sims[(d, q)] = pair_similarity(draft[d], precedent[q], *cosines.get(d, q))
 
 
+def _grow(own: Sequence[Features], other: Sequence[Features], mine: dict[int, int],
+          extra: dict[int, list[int]]) -> None:
+    """Attach each unpaired provision of *own* to the pair of a neighbour whose
+    counterpart in *other* holds its words (see SPLIT_CONTAINMENT, SPLIT_GAIN); a
+    neighbour already attached to a pair counts as that pair, so that a provision
+    spread over several consecutive ones is gathered whole."""
+    taken = set(mine)
+    anchor_of: dict[int, int] = {}
+    for u in range(len(own)):
+        if u in taken or len(own[u].words) < SPLIT_MIN_WORDS:
+            continue
+        for nb in (u - 1, u + 1):
+            anchor = nb if nb in mine else anchor_of.get(nb)
+            if anchor is None:
+                continue
+            q = mine[anchor]
+            run = sorted([anchor, *extra.get(anchor, [])])
+            if not (run[0] - 1 <= u <= run[-1] + 1):
+                continue
+            if _containment(own[u].words, other[q].words) < SPLIT_CONTAINMENT:
+                continue
+            before = Indel.normalized_similarity(_joined([own[i] for i in run]).words, other[q].words)
+            after_run = sorted([*run, u])
+            after = Indel.normalized_similarity(_joined([own[i] for i in after_run]).words,
+                                                other[q].words)
+            if after >= before + SPLIT_GAIN:
+                extra.setdefault(anchor, []).append(u)
+                taken.add(u)
+                anchor_of[u] = anchor
+                break
+
+
 def _splits_and_merges(draft: Sequence[Features], precedent: Sequence[Features],
                        match: dict[int, int], sims: dict[tuple[int, int], float],
                        cosines: _Cosines) -> list[Group]:
@@ -493,35 +525,8 @@ def _splits_and_merges(draft: Sequence[Features], precedent: Sequence[Features],
     split_extra: dict[int, list[int]] = {}  # matched draft d -> extra draft positions
     merge_extra: dict[int, list[int]] = {}  # matched precedent p -> extra precedent positions
 
-    def grow(n_own: int, own: Sequence[Features], other: Sequence[Features],
-             mine: dict[int, int], extra: dict[int, list[int]]) -> None:
-        """Attach each unpaired provision of *own* to the pair of a neighbour whose
-        counterpart in *other* holds its words (see SPLIT_CONTAINMENT, SPLIT_GAIN)."""
-        taken = set(mine)
-        for u in range(n_own):
-            if u in taken or len(own[u].words) < SPLIT_MIN_WORDS:
-                continue
-            for nb in (u - 1, u + 1):
-                if nb not in mine:
-                    continue
-                anchor = nb
-                q = mine[anchor]
-                run = sorted([anchor, *extra.get(anchor, [])])
-                if not (run[0] - 1 <= u <= run[-1] + 1):
-                    continue
-                if _containment(own[u].words, other[q].words) < SPLIT_CONTAINMENT:
-                    continue
-                before = Indel.normalized_similarity(_joined([own[i] for i in run]).words, other[q].words)
-                after_run = sorted([*run, u])
-                after = Indel.normalized_similarity(_joined([own[i] for i in after_run]).words,
-                                                    other[q].words)
-                if after >= before + SPLIT_GAIN:
-                    extra.setdefault(anchor, []).append(u)
-                    taken.add(u)
-                    break
-
-    grow(len(draft), draft, precedent, p_of, split_extra)
-    grow(len(precedent), precedent, draft, d_of, merge_extra)
+    _grow(draft, precedent, p_of, split_extra)
+    _grow(precedent, draft, d_of, merge_extra)
 
     groups: list[Group] = []
     used_p: set[int] = set()

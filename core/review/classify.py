@@ -3,14 +3,20 @@
 Categories (:data:`core.model.CATEGORIES`):
 
 ``formatting``
-    only white space, quote style, dash style or letter case differ;
+    only white space, quote style (TeX-style ````x''`` included), dash style or letter case
+    differ -- also where one side writes a defined term ("You") and the other the same word
+    as a plain word ("you");
 ``punctuation``
     the same words, different punctuation (or the same letters joined differently:
     "e-mail" / "email");
 ``numbering``
     a cross-reference renumbered to keep pointing at the same aligned provision
-    ("Section 5.2" -> "Section 6.2"), or an unchanged reference that lands elsewhere only
-    because of renumbering;
+    ("Section 5.2" -> "Section 6.2"), an unchanged reference that lands elsewhere only
+    because of renumbering, or list labels written into the text that changed, came or
+    went ("(i)" -> "(a)"; :func:`.noise.label_spans`) with the words around them unchanged;
+``completion``
+    the draft fills in a blank of the precedent ("[●]", "[insert date]", "____", an empty
+    "Name:" line; :mod:`.noise`): informational;
 ``term``
     a use of a defined term the draft names differently (the term map explains it), and
     "a"/"an" adjusted in front of it; the review reports one deviation per term pair;
@@ -19,16 +25,20 @@ Categories (:data:`core.model.CATEGORIES`):
     the other party named in a party's place, a proper name replaced, a cross-reference
     pointed at another provision.
 
+Whatever the category, a change of figures is made substantive afterwards by the figures
+guard (:mod:`.figures`), which runs last.
+
 Adjacent hunks separated only by spaces and punctuation are one change (so "thirty (30)" ->
 "sixty (60)" is one change, not two).  Cost: O(tokens of the pair).
 """
 
 from __future__ import annotations
 
-import re
+from bisect import bisect_right
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
+from .noise import is_blank_fill, label_spans
 from .severity import Signal
 from .tokens import (
     DASHES,
@@ -36,11 +46,13 @@ from .tokens import (
     KIND_TERM,
     KIND_XREF,
     QUOTES,
+    TEX_QUOTES,
     TokenSeq,
+    fold_text,
 )
 from .worddiff import TokenOp
 
-__all__ = ["Change", "TermContext", "classify_ops"]
+__all__ = ["BLANK_FILLED", "Change", "TermContext", "classify_ops"]
 
 #: Token kinds that carry meaning (tokens.KIND_WORD, KIND_NUMBER, KIND_TERM, KIND_XREF):
 #: space and punctuation are judged apart (formatting, punctuation).
@@ -79,11 +91,19 @@ class Change:
     note: str = ""  # a reason for the non-substantive categories
 
 
+def _quotes_folded(s: str) -> str:
+    for tex, plain in TEX_QUOTES.items():
+        s = s.replace(tex, plain)
+    return "".join(QUOTES.get(c, c) for c in s)
+
+
 def _fold_detail(a: str, b: str) -> str:
     if a.casefold() == b.casefold():
         return "case"
-    qa = "".join(QUOTES.get(c, c) for c in a)
-    qb = "".join(QUOTES.get(c, c) for c in b)
+    if "".join(a.split()) == "".join(b.split()):
+        return "whitespace"
+    qa = _quotes_folded(a)
+    qb = _quotes_folded(b)
     if qa.casefold() == qb.casefold():
         return "quote style"
     da = "".join(DASHES.get(c, c) for c in qa)
@@ -114,13 +134,13 @@ def _restyle_changes(a: TokenSeq, b: TokenSeq, op: TokenOp, ctx: TermContext) ->
         ta, tb = a.token(i), b.token(j)
         if ta == tb:
             continue
-        kind = a.kinds[i]
+        kind = a.kinds[i] if a.kinds[i] == b.kinds[j] else ""  # "": a term against a word
         terms: tuple[tuple[str, str], ...] = ()
         note = ""
         if kind == KIND_TERM:
             dn = ctx.draft_term_at.get(b.starts[j], tb)
             pn = ctx.precedent_term_at.get(a.starts[i], ta)
-            if dn != pn:
+            if dn != pn and fold_text(ta) != fold_text(tb):
                 cat, detail, terms = "term", "term", ((dn, pn),)
             else:
                 cat, detail = "formatting", _fold_detail(ta, tb) if ta.strip() else "whitespace"
@@ -147,73 +167,166 @@ def _restyle_changes(a: TokenSeq, b: TokenSeq, op: TokenOp, ctx: TermContext) ->
     return out
 
 
-def _classify_hunk(a: TokenSeq, b: TokenSeq, i1: int, i2: int, j1: int, j2: int,
-                   ctx: TermContext) -> Change:
+@dataclass(frozen=True, slots=True)
+class _Hunk:
+    """One run of edits: precedent tokens i1..i2 became draft tokens j1..j2."""
+
+    a: TokenSeq
+    b: TokenSeq
+    i1: int
+    i2: int
+    j1: int
+    j2: int
+    change: str  # insert | delete | replace
+    p_span: tuple[int, int]
+    d_span: tuple[int, int]
+    wa: list[int]  # word-like tokens of each side
+    wb: list[int]
+    la: frozenset[int]  # tokens of list labels on each side (the whole text's)
+    lb: frozenset[int]
+
+    def mk(self, cat: str, detail: str, **kw) -> Change:
+        return Change(cat, self.change, self.p_span, self.d_span, detail, **kw)
+
+    def words(self) -> tuple[str, str]:
+        return self.a.text[slice(*self.p_span)], self.b.text[slice(*self.d_span)]
+
+
+def _hunk(a: TokenSeq, b: TokenSeq, i1: int, i2: int, j1: int, j2: int,
+          labels: tuple[frozenset[int], frozenset[int]]) -> _Hunk:
     change = "insert" if i1 == i2 else ("delete" if j1 == j2 else "replace")
     p_span = _trim(a, i1, i2) if i1 < i2 else (a.starts[i1], a.starts[i1])
     d_span = _trim(b, j1, j2) if j1 < j2 else (b.starts[j1], b.starts[j1])
     wa = [i for i in range(i1, i2) if a.kinds[i] in _WORDLIKE]
     wb = [j for j in range(j1, j2) if b.kinds[j] in _WORDLIKE]
-    ka = [a.keys[i] for i in wa]
-    kb = [b.keys[j] for j in wb]
-    pa = [a.keys[i] for i in range(i1, i2) if a.kinds[i] == "p"]
-    pb = [b.keys[j] for j in range(j1, j2) if b.kinds[j] == "p"]
+    return _Hunk(a, b, i1, i2, j1, j2, change, p_span, d_span, wa, wb, *labels)
 
-    def mk(cat: str, detail: str, **kw) -> Change:
-        return Change(cat, change, p_span, d_span, detail, **kw)
 
-    # "a" <-> "an" in front of a renamed term
-    if len(ka) == len(kb) == 1 and {ka[0], kb[0]} <= _ARTICLES and ka != kb:
-        nxt = next((j for j in range(j2, len(b)) if b.kinds[j] in _WORDLIKE), None)
-        if nxt is not None and b.kinds[nxt] == KIND_TERM:
-            dn = ctx.draft_term_at.get(b.starts[nxt])
-            if dn is not None and ctx.mapped and dn in ctx.mapped:
-                return mk("term", "article", terms=((dn, ctx.mapped[dn]),))
-    # cross-references
-    if wa and len(ka) == len(kb):
-        diff_pos = [k for k in range(len(ka)) if ka[k] != kb[k]]
-        if diff_pos and all(a.kinds[wa[k]] == KIND_XREF and b.kinds[wb[k]] == KIND_XREF for k in diff_pos):
-            changed = [(a.token(wa[k]), b.token(wb[k])) for k in diff_pos
-                       if a.token(wa[k]) != b.token(wb[k])]
-            if not changed:
-                ta = a.token(wa[diff_pos[0]])
-                return mk("numbering", "cross-reference",
-                          note=f"cross-reference {ta} is unchanged but, after renumbering, "
-                               "now refers to a different provision")
-            sigs = tuple(Signal("cross_reference_changed",
-                                f"cross-reference changed from {x} to {y}, which is not the "
-                                "provision the precedent refers to") for x, y in changed[:2])
-            return mk("substantive", "cross-reference", signals=sigs)
+def _article_rule(h: _Hunk, ctx: TermContext) -> Change | None:
+    """"a" <-> "an" in front of a renamed term follows the rename."""
+    ka = [h.a.keys[i] for i in h.wa]
+    kb = [h.b.keys[j] for j in h.wb]
+    if not (len(ka) == len(kb) == 1 and {ka[0], kb[0]} <= _ARTICLES and ka != kb):
+        return None
+    nxt = next((j for j in range(h.j2, len(h.b)) if h.b.kinds[j] in _WORDLIKE), None)
+    if nxt is not None and h.b.kinds[nxt] == KIND_TERM:
+        dn = ctx.draft_term_at.get(h.b.starts[nxt])
+        if dn is not None and ctx.mapped and dn in ctx.mapped:
+            return h.mk("term", "article", terms=((dn, ctx.mapped[dn]),))
+    return None
+
+
+def _xref_rule(h: _Hunk, ctx: TermContext) -> Change | None:
+    """Cross-references that differ in what they point at, or only in their words."""
+    a, b, wa, wb = h.a, h.b, h.wa, h.wb
+    if not wa or len(wa) != len(wb):
+        return None
+    diff_pos = [k for k in range(len(wa)) if a.keys[wa[k]] != b.keys[wb[k]]]
+    if not diff_pos or not all(a.kinds[wa[k]] == KIND_XREF and b.kinds[wb[k]] == KIND_XREF
+                               for k in diff_pos):
+        return None
+    changed = [(a.token(wa[k]), b.token(wb[k])) for k in diff_pos
+               if a.token(wa[k]) != b.token(wb[k])]
+    if not changed:
+        return h.mk("numbering", "cross-reference",
+                    note=f"cross-reference {a.token(wa[diff_pos[0]])} is unchanged but, after "
+                         "renumbering, now refers to a different provision")
+    sigs = tuple(Signal("cross_reference_changed",
+                        f"cross-reference changed from {x} to {y}, which is not the "
+                        "provision the precedent refers to") for x, y in changed[:2])
+    return h.mk("substantive", "cross-reference", signals=sigs)
+
+
+def _label_note(h: _Hunk) -> str:
+    def shown(seq: TokenSeq, lo: int, hi: int, marks: frozenset[int]) -> str:
+        return " ".join("".join(seq.token(k) for k in range(lo, hi) if k in marks).split())
+
+    old, new = shown(h.a, h.i1, h.i2, h.la), shown(h.b, h.j1, h.j2, h.lb)
+    if old and new:
+        return f"list label changed from {old} to {new}"
+    return f"list label added: {new}" if new else f"list label removed: {old}"
+
+
+def _noise_rule(h: _Hunk, ctx: TermContext) -> Change | None:
+    """Formatting, punctuation and list labels: the same words once noise is set aside."""
+    pw, dw = h.words()
+    if h.change == "replace" and fold_text(pw) == fold_text(dw):
+        detail = _fold_detail(pw, dw)
+        return h.mk("formatting", detail, note=f"{detail} differs")
+    a, b = h.a, h.b
+
+    def kept(seq: TokenSeq, lo: int, hi: int, marks: frozenset[int], kinds: str) -> list[str]:
+        return [seq.keys[k] for k in range(lo, hi) if seq.kinds[k] in kinds and k not in marks]
+
+    ka, kb = kept(a, h.i1, h.i2, h.la, _WORDLIKE), kept(b, h.j1, h.j2, h.lb, _WORDLIKE)
+    pa, pb = kept(a, h.i1, h.i2, h.la, "p"), kept(b, h.j1, h.j2, h.lb, "p")
+    labelled = any(k in h.la for k in range(h.i1, h.i2)) or any(k in h.lb for k in range(h.j1, h.j2))
+    if labelled and ka == kb and pa == pb:
+        return h.mk("numbering", "list label", note=_label_note(h))
     if ka == kb:
         if pa != pb:
-            return mk("punctuation", "punctuation", note="punctuation differs")
-        return mk("formatting", "whitespace", note="whitespace differs")
+            return h.mk("punctuation", "punctuation", note="punctuation differs")
+        return h.mk("formatting", "whitespace", note="whitespace differs")
     if "".join(ka).replace("-", "") == "".join(kb).replace("-", ""):
         if pa != pb:
-            return mk("punctuation", "joining", note="words joined or hyphenated differently")
-        return mk("formatting", "whitespace", note="words joined differently")
-    # substantive: token-level signals
-    signals: list[Signal] = []
-    if change == "replace" and _in_placeholder(a.text, p_span):
-        return mk("substantive", "placeholder", signals=(Signal(
-            "placeholder_completed", f"placeholder {a.text[slice(*_placeholder(a.text, p_span))]} "
-                                     "completed by the draft"),))
-    if ctx.party_labels:
-        pparty = [(a.token(i), a.keys[i]) for i in wa if a.kinds[i] == KIND_TERM]
-        dparty = [(b.token(j), b.keys[j]) for j in wb if b.kinds[j] == KIND_TERM]
-        pnames = {_name(k) for _t, k in pparty} & ctx.party_labels
-        dnames = {_name(k) for _t, k in dparty} & ctx.party_labels
-        gone = pnames - dnames
-        came = dnames - pnames
-        if gone and came:
-            x = sorted(gone)[0]
-            y = sorted(came)[0]
-            ytext = next(t for t, k in dparty if _name(k) == y)
-            also = "" if ytext.rstrip("'\u2019s") == y or ytext == y else f" (the precedent's {y})"
-            signals.append(Signal("party_swapped",
-                                  f"party changed: the draft names {ytext}{also} where the "
-                                  f"precedent names the {x}"))
-    if change == "replace" and not signals:
+            return h.mk("punctuation", "joining", note="words joined or hyphenated differently")
+        return h.mk("formatting", "whitespace", note="words joined differently")
+    return None
+
+
+def _completion_rule(h: _Hunk, ctx: TermContext) -> Change | None:
+    """The draft fills in a blank of the precedent (informational)."""
+    if h.change == "delete":
+        return None
+    blank = is_blank_fill(h.a.text, h.p_span)
+    if blank is None and not (h.change == "replace" and _fills_fields(h)):
+        return None
+    dw = h.words()[1]
+    what = h.a.text[slice(*blank)] if blank and blank[0] < blank[1] else "an empty field"
+    return h.mk("completion", "blank", note=f"{BLANK_FILLED}: {what} -> {_short(dw)}")
+
+
+def _fills_fields(h: _Hunk) -> bool:
+    """Whether the draft's side is the precedent's words with values added after empty form
+    fields ("Name:" / "Name: Mira Solberg"): the clean-up of the diff merges such a short
+    field label between two values into one replacement."""
+    a, b = h.a, h.b
+    pk = [i for i in range(h.i1, h.i2) if a.kinds[i] != KIND_SPACE]
+    points: list[int] = []  # where the draft adds words, as offsets of the precedent
+    k = 0
+    added = False
+    for j in range(h.j1, h.j2):
+        if b.kinds[j] == KIND_SPACE:
+            continue
+        if k < len(pk) and fold_text(a.token(pk[k])) == fold_text(b.token(j)):
+            if added:
+                points.append(a.starts[pk[k]])
+            added = False
+            k += 1
+        else:
+            added = True
+    if added and pk:
+        points.append(a.starts[pk[-1] + 1])
+    return k == len(pk) and bool(points) and all(is_blank_fill(a.text, (p, p)) for p in points)
+
+
+#: How the reason of a filled-in blank starts (the precedent-set statistics leave such
+#: deviations out of negotiation patterns).
+BLANK_FILLED = "blank of the precedent filled in"
+#: Longest quotation of a filled-in value in a completion's reason (a layout choice).
+_COMPLETION_QUOTE_CHARS = 60
+
+
+def _short(s: str) -> str:
+    s = " ".join(s.split())
+    return s if len(s) <= _COMPLETION_QUOTE_CHARS else s[:_COMPLETION_QUOTE_CHARS - 1] + "\u2026"
+
+
+def _substantive(h: _Hunk, ctx: TermContext) -> Change:
+    """Everything else, with the token-level signals the severity rules need."""
+    a, b, wa, wb = h.a, h.b, h.wa, h.wb
+    signals: list[Signal] = list(_party_signals(h, ctx))
+    if h.change == "replace" and not signals:
         na, nb = _names(a, wa), _names(b, wb)
         if na and nb and na != nb:
             signals.append(Signal("name_changed", f"name changed from '{' '.join(na)}' to "
@@ -223,28 +336,50 @@ def _classify_hunk(a: TokenSeq, b: TokenSeq, i1: int, i2: int, j1: int, j2: int,
     if xa and xb and xa != xb:
         signals.append(Signal("cross_reference_changed",
                               f"cross-reference changed from {xa[0]} to {xb[0]}"))
-    return mk("substantive", "words", signals=tuple(signals))
+    return h.mk("substantive", "words", signals=tuple(signals))
 
 
-_PLACEHOLDER_RE = re.compile(r"\[[^\[\]\n]{1,80}\]")
-_PLACEHOLDERS_ONLY_RE = re.compile(r"(?:\[[^\[\]\n]{1,80}\][\s,;:.]*(?:and\s+|or\s+)?)+")
+def _party_signals(h: _Hunk, ctx: TermContext) -> list[Signal]:
+    """The other party named where the precedent names one of ours."""
+    if not ctx.party_labels:
+        return []
+    pparty = [(h.a.token(i), h.a.keys[i]) for i in h.wa if h.a.kinds[i] == KIND_TERM]
+    dparty = [(h.b.token(j), h.b.keys[j]) for j in h.wb if h.b.kinds[j] == KIND_TERM]
+    pnames = {_name(k) for _t, k in pparty} & ctx.party_labels
+    dnames = {_name(k) for _t, k in dparty} & ctx.party_labels
+    gone, came = pnames - dnames, dnames - pnames
+    if not (gone and came):
+        return []
+    x, y = min(gone), min(came)
+    ytext = next(t for t, k in dparty if _name(k) == y)
+    also = "" if ytext.rstrip("'\u2019s") == y or ytext == y else f" (the precedent's {y})"
+    return [Signal("party_swapped", f"party changed: the draft names {ytext}{also} where the "
+                                    f"precedent names the {x}")]
 
 
-def _placeholder(text: str, span: tuple[int, int]) -> tuple[int, int]:
-    """The span of the bracketed placeholders ("[CUSTOMER NAME]", common practice in
-    templates, no source) that the changed words *span* of *text* are, or lie in; (-1, -1)
-    when they are not one."""
-    a, b = span
-    if _PLACEHOLDERS_ONLY_RE.fullmatch(text[a:b].strip()):
-        return a, b
-    for m in _PLACEHOLDER_RE.finditer(text):
-        if m.start() <= a and b <= m.end():
-            return m.start(), m.end()
-    return (-1, -1)
+_RULES = (_article_rule, _xref_rule, _noise_rule, _completion_rule)
 
 
-def _in_placeholder(text: str, span: tuple[int, int]) -> bool:
-    return _placeholder(text, span)[0] >= 0
+def _classify_hunk(h: _Hunk, ctx: TermContext) -> Change:
+    for rule in _RULES:
+        got = rule(h, ctx)
+        if got is not None:
+            return got
+    return _substantive(h, ctx)
+
+
+def _label_tokens(seq: TokenSeq) -> frozenset[int]:
+    """Indices of the tokens that make up list labels written into the text."""
+    spans = label_spans(seq.text)
+    if not spans:
+        return frozenset()
+    out = set()
+    for s, e in spans:
+        k = bisect_right(seq.starts, s) - 1
+        while k < len(seq) and seq.starts[k] < e:
+            out.add(k)
+            k += 1
+    return frozenset(out)
 
 
 def _names(seq: TokenSeq, idx: Sequence[int]) -> list[str]:
@@ -285,6 +420,7 @@ def classify_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp], ctx: TermCont
     n = len(ops)
     k = 0
     pq, dq = keep_together
+    labels = (_label_tokens(a), _label_tokens(b))
     while k < n:
         op = ops[k]
         if op.tag == "equal":
@@ -311,6 +447,6 @@ def classify_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp], ctx: TermCont
                 break
             i2, j2 = ops[nxt].i2, ops[nxt].j2
             m = nxt + 1
-        out.append(_classify_hunk(a, b, i1, i2, j1, j2, ctx))
+        out.append(_classify_hunk(_hunk(a, b, i1, i2, j1, j2, labels), ctx))
         k = m
     return out

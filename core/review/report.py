@@ -17,9 +17,11 @@ from ..model import Deviation, Review
 
 __all__ = ["NUMBER_HEADING", "SHOW_CHOICES", "format_review", "shown_deviations"]
 
-#: ``--show`` values: the default shows substantive and term deviations.
+#: ``--show`` values: the default shows substantive and term deviations and the blanks of
+#: the precedent that the draft filled in (informational, but what was filled in -- a
+#: party's name, a place -- is for the reader to check).
 SHOW_CHOICES = ("substantive", "all")
-_DEFAULT_CATEGORIES = frozenset({"substantive", "term"})
+_DEFAULT_CATEGORIES = frozenset({"substantive", "term", "completion"})
 _NUMBER_W, _SEV_W, _CLAUSE_W = 4, 3, 30
 #: Heading of the number column (the rank): the written form every output uses ("No. 7").
 NUMBER_HEADING = "No."
@@ -66,7 +68,7 @@ def format_review(review: Review, *, show: str | None = None, width: int = 100) 
     pname = review.precedent.source.replace("\\", "/").rsplit("/", 1)[-1]
     lines.append(_cut(f"Review of {dname} against the precedent {pname}", width))
     counts = Counter(v.category for v in review.deviations)
-    order = ("substantive", "term", "numbering", "punctuation", "formatting")
+    order = ("substantive", "completion", "term", "numbering", "punctuation", "formatting")
     lines.append(_cut("Deviations: " + ", ".join(f"{counts[c]} {c}" for c in order), width))
     status = Counter(p.status for p in review.pairs)
     lines.append(_cut("Provisions: " + ", ".join(f"{n} {s}" for s, n in sorted(status.items())), width))

@@ -32,6 +32,7 @@ from typing import Protocol
 
 from ..errors import CounterdraftError
 from ..model import Document, Provision
+from .noise import label_spans
 from .tokens import find_cross_references
 
 __all__ = [
@@ -56,11 +57,19 @@ _SIGNALS = (
     "number_changed", "number_added", "number_removed", "obligation_weakened",
     "obligation_strengthened", "obligation_added", "obligation_removed", "negation_added",
     "negation_removed", "qualifier_added", "qualifier_removed", "qualifier_changed",
-    "party_swapped", "name_changed", "placeholder_completed", "cross_reference_changed", "wording_changed", "sentence_inserted",
+    "party_swapped", "name_changed", "cross_reference_changed", "wording_changed", "sentence_inserted",
     "sentence_deleted", "heading_changed", "provision_added", "provision_removed",
 )
 _CATEGORY_KEYS = ("term", "move", "numbering", "numbering_cross_reference", "formatting",
                   "punctuation")
+#: Signal keys a rule file may leave out (it was written before they existed), with the
+#: points used then: a figure that fills in a blank of the precedent (a date, an address, a
+#: company number) is substantive, but the precedent asked for a value there.
+_OPTIONAL_SIGNALS = {"number_filled_in": 15.0}
+#: Category keys a rule file may leave out (it was written before they existed), with the
+#: severity used then: a blank of the precedent filled in is informational, scored like a
+#: punctuation difference.
+_OPTIONAL_CATEGORY_KEYS = {"completion": 2.0}
 #: Values of ``headings.added_or_removed`` in the rule file.
 HEADING_ADDED_OR_REMOVED_CHOICES = ("formatting", "substantive")
 
@@ -138,11 +147,15 @@ def load_rules(path: str | Path | None = None) -> SeverityRules:
         if k not in data["signals"]:
             raise _fail(sp, f"missing signals.{k}")
         signals[k] = _number(sp, f"signals.{k}", data["signals"][k], 0, 100)
+    for k, default in _OPTIONAL_SIGNALS.items():
+        signals[k] = _number(sp, f"signals.{k}", data["signals"].get(k, default), 0, 100)
     categories = {}
     for k in _CATEGORY_KEYS:
         if k not in data["categories"]:
             raise _fail(sp, f"missing categories.{k}")
         categories[k] = _number(sp, f"categories.{k}", data["categories"][k], 0, 100)
+    for k, default in _OPTIONAL_CATEGORY_KEYS.items():
+        categories[k] = _number(sp, f"categories.{k}", data["categories"].get(k, default), 0, 100)
     weights = {k: _number(sp, f"weights.{k}", v, 0, 10) for k, v in data["weights"].items()}
     kind_weights = {k: _number(sp, f"kind_weights.{k}", v, 0, 10)
                     for k, v in data["kind_weights"].items()}
@@ -371,9 +384,11 @@ def _find_quantities(text: str, lo: int = 0, hi: int | None = None) -> list[Quan
                                   text[prev.start:end])
         else:
             merged.append(q)
-    xrefs = find_cross_references(text)
+    # the numbers of references to the agreement's own provisions and of list labels ("3."
+    # of "3.Scope") are no figures (core.review.figures)
+    skip = [(a, b) for a, b, *_ in find_cross_references(text)] + label_spans(text)
     return [q for q in merged
-            if not (q.kind == "number" and any(a <= q.start < b for a, b, *_ in xrefs))]
+            if not (q.kind == "number" and any(a <= q.start < b for a, b in skip))]
 
 
 # ----------------------------------------------------------------------------------------
@@ -578,9 +593,7 @@ def text_change_severity(*, p_text: str, p_span: tuple[int, int], d_text: str,
     ``d_text[d_span]`` (draft)."""
     rules = rules or _default_rules()
     signals: list[Signal] = list(extra)
-    if any(s.name == "placeholder_completed" for s in signals):
-        signals = [s for s in signals if s.name == "placeholder_completed"]
-    elif heading:  # a heading is a label: only its change is reported
+    if heading:  # a heading is a label: only its change is reported
         signals.append(Signal("heading_changed", _heading_reason(p_text, d_text)))
     else:
         signals += _figure_signals(p_text, p_span, d_text, d_span)
@@ -640,6 +653,20 @@ def clear_caches(rules: SeverityRules | None = None) -> None:
                 del r._cache[k]
 
 
+def figure_severity(reasons: Sequence[str], *, clause_type: str | None, kind: str,
+                    rules: SeverityRules | None = None, filled_in: bool = False) -> int:
+    """Severity of the figure changes *reasons* name (:func:`.figures.figure_reasons`:
+    "figure changed ...", "figure added ...", "figure removed ..."), scored like the same
+    changes found in words: ``number_changed`` / ``number_added`` / ``number_removed``
+    times the clause type's weight; figures that fill in a blank of the precedent (*filled_in*)
+    score ``number_filled_in`` instead of ``number_added``."""
+    rules = rules or _default_rules()
+    names = {"changed": "number_changed", "removed": "number_removed",
+             "added": "number_filled_in" if filled_in else "number_added"}
+    signals = [Signal(names[r.split()[1].rstrip(":")], r) for r in reasons]
+    return _combine(rules, signals, rules.weight(clause_type, kind))
+
+
 def category_severity(category: str, *, rules: SeverityRules | None = None) -> int:
     rules = rules or _default_rules()
     return round(rules.categories[category])
@@ -651,4 +678,4 @@ def default_rules() -> SeverityRules:
 
 
 __all__ += ["HEADING_ADDED_OR_REMOVED_CHOICES", "category_severity", "clear_caches", "default_rules",
-            "heading_only_reason"]
+            "figure_severity", "heading_only_reason"]

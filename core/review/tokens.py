@@ -15,28 +15,32 @@ one for cross-references, so O(length of text).
 from __future__ import annotations
 
 import re
-from collections.abc import Callable, Iterable, Mapping, Sequence
+from collections.abc import Callable, Container, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
 from ..terms import terms_pattern
 
 __all__ = [
-    "BaseTokens",
     "DASHES",
     "QUOTES",
+    "TEX_QUOTES",
+    "XREF_KEYWORD_RE",
+    "BaseTokens",
     "Special",
     "TermMatcher",
     "TermUse",
     "TokenSeq",
-    "XREF_KEYWORD_RE",
-    "find_cross_references",
-    "find_term_uses",
     "base_tokens",
     "clear_token_cache",
     "count_term_uses",
+    "find_cross_references",
+    "find_term_uses",
+    "fold_text",
     "normalise_key",
+    "plain_terms",
     "rekey",
     "term_matcher",
+    "term_name",
     "tokenize",
     "word_keys",
 ]
@@ -54,8 +58,13 @@ DASHES = {c: "-" for c in "\u2010\u2011\u2012\u2013\u2014\u2015\u2212\ufe58\ufe6
 _FOLD = str.maketrans({**QUOTES, **DASHES})
 
 # Numbers first ("1,000.50" and "7.2" are one token), then words (an apostrophe joins the
-# parts of "party's"), then runs of white space, then any other single character.
-_TOKEN_RE = re.compile(r"\d+(?:[.,]\d+)*|\w+(?:['\u2019]\w+)*|\s+|[^\w\s]")
+# parts of "party's"), then runs of white space, then the typewriter and TeX spelling of
+# double quotation marks (two backticks open, two apostrophes close: ``x''), then any other
+# single character.
+_TOKEN_RE = re.compile(r"\d+(?:[.,]\d+)*|\w+(?:['\u2019]\w+)*|\s+|``|''|[^\w\s]")
+#: Two-character spellings of a double quotation mark (TeX and typewriter usage: ``x''),
+#: folded onto '"' like the curly quotes.
+TEX_QUOTES = {"``": '"', "''": '"'}
 
 #: Token kinds: w word, n number, s space, p punctuation, t defined-term use, x cross-ref.
 KIND_WORD, KIND_NUMBER, KIND_SPACE, KIND_PUNCT, KIND_TERM, KIND_XREF = "wnsptx"
@@ -66,7 +75,18 @@ def normalise_key(token: str) -> str:
     collapsed to one space."""
     if token[:1].isspace():
         return " "
+    tex = TEX_QUOTES.get(token)
+    if tex is not None:
+        return tex
     return token.translate(_FOLD).casefold()
+
+
+def fold_text(text: str) -> str:
+    """*text* with what the review reports as formatting taken out: letter case, quote and
+    dash style (TeX-style ````x''`` included) and white space (removed)."""
+    for tex, plain in TEX_QUOTES.items():
+        text = text.replace(tex, plain)
+    return "".join(text.translate(_FOLD).casefold().split())
 
 
 def _kind_of(tok: str) -> str:
@@ -219,6 +239,27 @@ def rekey(bt: BaseTokens, *, term_key: Mapping[str, str],
     for i, number, keyword in bt.xrefs:
         keys[i] = "\x00X" + (xref(number, keyword) if xref is not None else "#")
     seq = bt.seq
+    return TokenSeq(seq.text, seq.starts, tuple(keys), seq.kinds)
+
+
+def term_name(key: str) -> str:
+    """The term a defined-term token's key names (the key is ``"\\x00T" + name + "\\x00" +
+    form``)."""
+    return key[2:].split("\x00", 1)[0]
+
+
+def plain_terms(seq: TokenSeq, *, keep: Container[str]) -> TokenSeq:
+    """*seq* with each use of a defined term that is not in *keep* keyed by its words as a
+    plain word would be (letter case, quotes, dashes folded, white space collapsed), so that
+    "Services" used as a defined term on one side and "SERVICES" or "services" written as a
+    word on the other compare equal and show as a change of letter case.  The uses of the
+    terms in *keep* (renamed terms, party labels) keep their term keys.  O(tokens)."""
+    if KIND_TERM not in seq.kinds:
+        return seq
+    keys = list(seq.keys)
+    for i, kind in enumerate(seq.kinds):
+        if kind == KIND_TERM and term_name(keys[i]) not in keep:
+            keys[i] = " ".join(normalise_key(seq.token(i)).split())
     return TokenSeq(seq.text, seq.starts, tuple(keys), seq.kinds)
 
 

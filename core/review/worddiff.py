@@ -5,10 +5,14 @@ single punctuation character to itself, every other key to a private-use code po
 Unicode 15.0 section 23.5), the two code-point strings are diffed with diff-match-patch
 (Myers' O(ND) algorithm, with no time-out so that the result is exact and reproducible), and
 diff-match-patch's semantic clean-up merges the small equalities that make a diff hard to
-read.  Equal runs are then compared token by token on the *original* texts: tokens whose keys
-agree but whose text differs (letter case, quote or dash style, white space, a renamed
-defined term, a renumbered cross-reference) become edits of their own, so an ``equal`` edit
-always covers identical text on both sides.
+read.  The clean-up may also swallow long unchanged stretches between two larger edits (it
+merges an equality shorter than the edits on both sides of it), which would show unchanged
+words as deleted and inserted again; every run of at least :data:`ANCHOR_WORDS` unchanged
+words that the exact diff found inside a merged edit is therefore kept unchanged.  Equal
+runs are then compared token by token on the *original* texts: tokens whose keys agree but
+whose text differs (letter case, quote or dash style, white space, a renamed defined term, a
+renumbered cross-reference) become edits of their own, so an ``equal`` edit always covers
+identical text on both sides.
 
 Cost: O((N + M) + N·D) per pair for N, M tokens and D differing tokens (Myers), with no
 time-out; D is small for an aligned pair because alignment requires similar texts.  Pairs
@@ -25,6 +29,9 @@ from diff_match_patch import diff_match_patch
 from ..model import Edit
 from .tokens import KIND_TERM, KIND_XREF, TokenSeq, tokenize
 
+#: Token kinds that are words (word, number, defined-term use, cross-reference).
+_WORDLIKE = frozenset("wntx")
+
 __all__ = ["TokenOp", "diff_texts", "edits_from_ops", "pair_edits_from_ops", "token_ops"]
 
 # Private-use areas (Unicode 15.0 section 23.5): the BMP area, then planes 15 and 16.
@@ -32,6 +39,12 @@ _PUA_RANGES = ((0xE000, 0xF8FF), (0xF0000, 0xFFFFD), (0x100000, 0x10FFFD))
 _PUA_SIZE = sum(b - a + 1 for a, b in _PUA_RANGES)
 #: Restyled tokens (same key, different text) at most this many tokens apart are one hunk.
 RESTYLE_JOIN_GAP = 2
+#: Unchanged words in a row that the semantic clean-up may not merge into an edit: three
+#: words in the same order on both sides are the text kept, not chance ("the" or "of the"
+#: between two rewritten phrases is chance, and merging it keeps the change readable).
+#: A judgement value; on the licence version pairs (benchmarks/accuracy_version_pairs.py) it
+#: keeps every unchanged stretch of a provision split over several draft provisions.
+ANCHOR_WORDS = 3
 #: Above this many tokens in a pair (about 4,000 words of each text), diff sentence by
 #: sentence first (diff-match-patch's line mode, full stops encoded as line breaks), then word
 #: by word inside the changed sentences: a heavily rewritten 10,000-word provision then takes
@@ -101,7 +114,14 @@ def token_ops(a: TokenSeq, b: TokenSeq, *, semantic: bool = True) -> list[TokenO
         dmp = _dmp()
         diffs = dmp.diff_main(sa, sb, len(sa) + len(sb) > LINE_MODE_TOKENS)
         if semantic:
+            exact = list(diffs)
             dmp.diff_cleanupSemantic(diffs)
+            return _restyled(a, b, _anchored(a, _ops(diffs), _ops(exact)))
+    return _restyled(a, b, _ops(diffs))
+
+
+def _ops(diffs: Sequence[tuple[int, str]]) -> list[TokenOp]:
+    """diff-match-patch's (op, text) list as token opcodes."""
     raw: list[TokenOp] = []
     i = j = 0
     pend_del = pend_ins = 0
@@ -127,8 +147,51 @@ def token_ops(a: TokenSeq, b: TokenSeq, *, semantic: bool = True) -> list[TokenO
         else:
             pend_ins += n
     flush()
-    # Split equal-key runs where the original texts differ; differing tokens at most
-    # RESTYLE_JOIN_GAP tokens apart form one restyle op (the quotation marks around a word).
+    return raw
+
+
+def _anchored(a: TokenSeq, ops: Sequence[TokenOp], exact: Sequence[TokenOp]) -> list[TokenOp]:
+    """*ops* (after the semantic clean-up) with the equal runs of the *exact* diff of at
+    least ANCHOR_WORDS words that fall inside a ``replace`` op kept equal.  O(tokens)."""
+    anchors = [op for op in exact if op.tag == "equal" and sum(
+        a.kinds[i] in _WORDLIKE for i in range(op.i1, op.i2)) >= ANCHOR_WORDS]
+    if not anchors:
+        return list(ops)
+    out: list[TokenOp] = []
+    k = 0
+    for op in ops:
+        if op.tag != "replace":
+            out.append(op)
+            continue
+        while k < len(anchors) and anchors[k].i2 <= op.i1:
+            k += 1
+        i, j = op.i1, op.j1
+        m = k
+        while m < len(anchors) and anchors[m].i1 < op.i2:
+            e = anchors[m]
+            lo = max(0, op.i1 - e.i1, op.j1 - e.j1, i - e.i1, j - e.j1)
+            hi = min(e.i2 - e.i1, op.i2 - e.i1, op.j2 - e.j1)
+            if hi - lo > 0 and sum(a.kinds[t] in _WORDLIKE
+                                   for t in range(e.i1 + lo, e.i1 + hi)) >= ANCHOR_WORDS:
+                out.extend(_edit_op(i, e.i1 + lo, j, e.j1 + lo))
+                out.append(TokenOp("equal", e.i1 + lo, e.i1 + hi, e.j1 + lo, e.j1 + hi))
+                i, j = e.i1 + hi, e.j1 + hi
+            m += 1
+        out.extend(_edit_op(i, op.i2, j, op.j2))
+    return out
+
+
+def _edit_op(i1: int, i2: int, j1: int, j2: int) -> list[TokenOp]:
+    """The op for tokens i1..i2 becoming j1..j2 (none when both are empty)."""
+    if i1 == i2 and j1 == j2:
+        return []
+    tag = "replace" if i1 < i2 and j1 < j2 else ("delete" if i1 < i2 else "insert")
+    return [TokenOp(tag, i1, i2, j1, j2)]
+
+
+def _restyled(a: TokenSeq, b: TokenSeq, raw: Sequence[TokenOp]) -> list[TokenOp]:
+    """Split equal-key runs where the original texts differ; differing tokens at most
+    RESTYLE_JOIN_GAP tokens apart form one restyle op (the quotation marks around a word)."""
     out: list[TokenOp] = []
     for op in raw:
         if op.tag != "equal":

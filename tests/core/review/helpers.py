@@ -27,6 +27,15 @@ def licence_text(key: str) -> str:
     return raw
 
 
+def excerpt(key: str, start: str, end: str) -> str:
+    """The words of licence *key* (licensedcode-data) from *start* up to and including *end*
+    (both matched across line breaks), lines joined with single spaces."""
+    text = " ".join(licence_text(key).split())
+    i = text.index(" ".join(start.split()))
+    end = " ".join(end.split())
+    return text[i:text.index(end, i) + len(end)]
+
+
 def substantive(review: Review) -> list[Deviation]:
     return [v for v in review.deviations if v.category == "substantive"]
 

@@ -134,6 +134,27 @@ def test_split_and_merged():
     assert (g.drafts, g.precedents) == ((1,), (1, 2))
 
 
+def test_a_provision_spread_over_several_is_gathered_whole():
+    """cc-by-2.5's "Miscellaneous" (licensedcode-data) is one provision of five unlabelled
+    paragraphs; cc-by-3.0 gives each its own label.  The paragraphs that follow the one
+    paired with it join the split one after another, not only the paired one's neighbour."""
+    paras = [
+        ("each time you distribute the work the licensor offers to the recipient a license "
+         "to the work on the same terms and conditions"),
+        ("if any provision of this license is invalid or unenforceable under applicable law "
+         "it shall not affect the validity of the remainder"),
+        ("no term or provision of this license shall be deemed waived and no breach "
+         "consented to unless such waiver shall be in writing"),
+        ("this license constitutes the entire agreement between the parties with respect to "
+         "the work licensed here"),
+    ]
+    whole = F(" ".join(paras), "Miscellaneous")
+    prec = [PREC[0], whole, PREC[3]]
+    draft = [PREC[0], F("", "Miscellaneous"), *(F(t) for t in paras), PREC[3]]
+    g = next(g for g in align(draft, prec).groups if g.kind == "split")
+    assert (g.drafts, g.precedents) == ((1, 2, 3, 4, 5), (1,))
+
+
 def test_repeated_list_items_pair_inside_their_parents():
     """Word-for-word identical items under different clauses: the pairing follows the
     parents, not the first identical text found."""

@@ -12,7 +12,7 @@ from core.review.classify import TermContext, classify_ops
 from core.review.tokens import tokenize
 from core.review.worddiff import token_ops
 
-from .helpers import by_category, doc, substantive
+from .helpers import by_category, doc, excerpt, substantive
 
 
 def changes(a: str, b: str):
@@ -146,3 +146,66 @@ def test_reference_pointed_at_another_provision_is_substantive():
     (v,) = substantive(review)
     assert (v.precedent_text, v.draft_text) == ("clause 3.1", "clause 1.1")
     assert any("cross-reference changed" in r for r in v.reasons)
+
+
+# ----------------------------------------------------------------------------------------
+# Noise is not substance: excerpts of the licences of licensedcode-data, each with one kind
+# of noise planted (or two versions of the same licence where they differ only so).
+# ----------------------------------------------------------------------------------------
+
+def test_typewriter_quotes_against_curly_ones_are_formatting():
+    # apache-1.1: 'THIS SOFTWARE IS PROVIDED ``AS IS'' AND ANY EXPRESSED OR IMPLIED'
+    old = excerpt("apache-1.1", "THIS SOFTWARE IS PROVIDED", "OR IMPLIED")
+    assert "``AS IS''" in old
+    new = old.replace("``AS IS''", "\u201cAS IS\u201d")
+    assert changes(old, new) == [("formatting", "quote style", "``", "\u201c"),
+                                 ("formatting", "quote style", "''", "\u201d")]
+    assert {c[:2] for c in changes(old, old.replace("``AS IS''", '"AS IS"'))} == {
+        ("formatting", "quote style")}
+
+
+def test_letter_case_of_a_defined_term_against_a_plain_word_is_formatting():
+    """google-tos-2013 defines "Services" and writes its disclaimer in capitals ("ABOUT THE
+    SERVICES"); the draft writes the disclaimer in sentence case, so "Services" there is a
+    use of the defined term on one side and a plain word on the other."""
+    definition = excerpt("google-tos-2013", "Thanks for using our products", '("Services").')
+    caps = excerpt("google-tos-2013", "NEITHER GOOGLE NOR ITS SUPPLIERS", "ABOUT THE SERVICES.")
+    lower = caps[0] + caps[1:].lower().replace("google", "Google").replace("services", "Services")
+    precedent = doc(f"1. Services\n\n{definition}\n\n2. Warranties\n\n{caps}\n")
+    draft = doc(f"1. Services\n\n{definition}\n\n2. Warranties\n\n{lower}\n")
+    review = run_review(draft, precedent)
+    assert substantive(review) == []
+    details = {r for v in by_category(review, "formatting") for r in v.reasons}
+    assert details == {"case differs"}
+
+
+def test_list_labels_restyled_inside_a_sentence_are_numbering():
+    # cc-by-3.0, section 4(b): "(i) ... (ii) ... (iii)" written "(a) ... (b) ... (c)"
+    old = excerpt("cc-by-3.0", "You are utilizing: (i)", "(iii) to the extent")
+    new = old.replace("(i)", "(a)").replace("(ii)", "(b)").replace("(iii)", "(c)")
+    got = changes(old, new)
+    assert [(c[0], c[1]) for c in got] == [("numbering", "list label")] * 3
+    assert [c[2] for c in got] == ["i", "ii", "iii"]
+
+
+def test_list_label_added_or_glued_label_renumbered_is_numbering():
+    # cc-by-3.0, section 8: item "b." follows the end of a sentence once lines are joined
+    old = excerpt("cc-by-3.0", "granted to You under this License. b. Each time", "Licensor offers")
+    assert changes(old, old.replace(" b. Each", " Each")) == [("numbering", "list label", "b.", "")]
+    # a label glued to its heading ("2.Scope", common practice in converted documents)
+    assert [c[0] for c in changes("2.Scope of the Licence", "3.Scope of the Licence")] == [
+        "numbering"]
+
+
+def test_a_blank_of_the_precedent_filled_in_is_completion():
+    # apache-2.0, appendix: "Copyright [yyyy] [name of copyright owner]"
+    old = excerpt("apache-2.0", "Copyright [yyyy]", "copyright owner]")
+    got = changes(old, "Copyright 2026 Ardence Tools Ltd")
+    assert [(c[0], c[1], c[2]) for c in got] == [
+        ("completion", "blank", "[yyyy] [name of copyright owner]")]
+    # "[●]" and an empty "Name:" line of a signature block (common practice, no source)
+    assert [c[:2] for c in changes("Signed for [\u25cf] by:\nName:\nTitle:",
+                                   "Signed for Ardence Tools Ltd by:\nName: Mira Solberg\nTitle:")
+            ] == [("completion", "blank"), ("completion", "blank")]
+    # words that replace a blank's neighbour are no completion
+    assert changes("pay [\u25cf] within", "pay [\u25cf] before")[0][0] == "substantive"

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from core.review import NO_SHARED_NOTE, run_review
 
-from .helpers import by_category, doc, substantive
+from .helpers import by_category, doc, excerpt, substantive
 
 PRECEDENT = """
     SERVICES AGREEMENT
@@ -371,3 +371,59 @@ def test_split_and_merged_pairings_carry_their_own_word_diff():
             assert "".join(a[e.p1:e.p2] for e in p.edits) == a
             assert "".join(b[e.d1:e.d2] for e in p.edits) == b
             assert any(e.tag == "equal" and len(a[e.p1:e.p2].split()) >= 5 for e in p.edits)
+
+
+def test_a_label_dropped_by_the_draft_is_numbering():
+    """gpl-1.0's appendix is headed "Appendix: How to Apply These Terms to Your New
+    Programs"; gpl-2.0 drops the "Appendix:" label (licensedcode-data).  The heading and
+    words agree; the label is reported once, as numbering."""
+    body = excerpt("gpl-1.0", "If you develop a new program", "change under these terms.")
+    start = "1. Copying\n\nYou may copy the Program.\n\n"
+    heading = "How to Apply These Terms to Your New Programs"
+    review = run_review(doc(f"{start}{heading}\n\n{body}\n"),
+                        doc(f"{start}Appendix: {heading}\n\n{body}\n"))
+    assert [(v.category, v.change, v.part, v.precedent_text, v.reasons) for v in review.deviations] == [
+        ("numbering", "delete", "provision", "Appendix", ("label removed: Appendix",))]
+
+
+PARTIES_FORM = """
+    AGREEMENT
+
+    THIS AGREEMENT is dated [insert date]
+
+    PARTIES
+
+    (1) [NAME OF SUPPLIER] Limited, a company incorporated in [\u25cf] (company number [\u25cf]) (the "Supplier"); and
+
+    (2) [NAME OF CUSTOMER] (the "Customer").
+
+    1. Supply
+
+    1.1 The Supplier shall supply the Goods to the Customer.
+
+    SIGNED by ____________ for and on behalf of the Supplier
+    Name:
+    Title:
+"""
+
+
+def test_parties_and_signature_blocks_completed_are_completion_but_figures_substance():
+    """A form's parties and signature blocks filled in by the draft (an invented form and
+    invented parties; the blanks are common practice in templates, no source): each name
+    filled in is a completion; the date and the company number are figures, so substantive
+    -- with the blank they fill among their reasons."""
+    filled = (PARTIES_FORM.replace("[insert date]", "3 March 2026")
+              .replace("[NAME OF SUPPLIER]", "Ardence Tools")
+              .replace("in [\u25cf]", "in Wexmoor").replace("number [\u25cf]", "number 04417730")
+              .replace("[NAME OF CUSTOMER]", "Brennick Foods Ltd")
+              .replace("____________", "Mira Solberg")
+              .replace("Name:\n", "Name: Mira Solberg\n").replace("Title:\n", "Title: Director\n"))
+    review = run_review(doc(filled), doc(PARTIES_FORM))
+    filled_in = {v.draft_text.split("\n")[0] for v in by_category(review, "completion")}
+    assert {"Ardence Tools", "in Wexmoor (company", "Brennick Foods Ltd", "by Mira Solberg for",
+            "Mira Solberg"} == filled_in
+    figures = {(v.draft_text, v.reasons[0]) for v in substantive(review)}
+    assert figures == {("3 March 2026", "figure added: 3"),
+                       ("number 04417730)", "figure added: 04417730")}
+    assert all(any(r.startswith("blank of the precedent filled in") for r in v.reasons)
+               for v in substantive(review))

@@ -18,6 +18,8 @@ from hypothesis import strategies as st
 from core.review.tokens import tokenize
 from core.review.worddiff import diff_texts, edits_from_ops, token_ops
 
+from .helpers import excerpt
+
 WORDS = ["the", "The", "Customer", "shall", "may", "not", "pay", "thirty", "(30)", "days",
          "“quoted”", '"quoted"', "–", "-", ",", ".", ";", "Supplier's", "Supplier’s", "7.2",
          "1,000", "notice", "in", "writing", "  ", "\n", "\t"]
@@ -198,3 +200,25 @@ def test_restyled_words_stay_one_hunk_but_a_term_use_is_apart() -> None:
     edits = _term_aware(a, b)
     changed = [(a[e.p1:e.p2], b[e.d1:e.d2]) for e in edits if e.tag != "equal"]
     assert changed == [('"', "“"), ("Customer", "Client"), ('"', "”"), ("PAY", "pay")]
+
+
+def test_unchanged_words_between_two_rewrites_stay_unchanged() -> None:
+    """artistic-1.0 and artistic-2.0 (licensedcode-data), the verbatim-copies permission:
+    the clause is rewritten around "provided that you duplicate all of the original
+    copyright notices and associated disclaimers", which both versions keep.  Reference:
+    difflib's word-level SequenceMatcher finds that run as one matching block; the review's
+    diff must keep it unchanged too rather than show it deleted and inserted again (the
+    semantic clean-up would merge it into the rewrites on each side)."""
+    from core.review.worddiff import ANCHOR_WORDS
+
+    a = excerpt("artistic-1.0", "You may make and give away verbatim copies", "associated disclaimers.")
+    b = excerpt("artistic-2.0", "You may Distribute verbatim copies", "Compiled form of the Package.")
+    edits = diff_texts(a, b)
+    assert reconstruct(edits, a, b) == (a, b)
+    kept = [a[e.p1:e.p2] for e in edits if e.tag == "equal"]
+    aw, bw = a.split(), b.split()
+    blocks = difflib.SequenceMatcher(None, aw, bw, autojunk=False).get_matching_blocks()
+    long_runs = [" ".join(aw[m.a:m.a + m.size]).rstrip(".") for m in blocks if m.size >= 2 * ANCHOR_WORDS]
+    assert "provided that you duplicate all of the original copyright notices and associated disclaimers" in long_runs
+    for run in long_runs:
+        assert any(run in k for k in kept), run
