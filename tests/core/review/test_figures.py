@@ -152,9 +152,9 @@ def test_merged_provisions_keep_the_figures_of_the_second():
 
 def test_labels_glued_to_their_headings_are_numbering_not_figures():
     """Clause labels glued to their headings ("2.Scope", as documents converted from other
-    formats often have them: common practice, no source; invented clauses).  Where the
-    reader keeps them in the text, a new clause 2 renumbers Scope and Price: the labels are
-    numbering, and the new clause's reasons name no label as a figure."""
+    formats often have them: common practice, no source; invented clauses).  The reader
+    takes them as labels (core.structure), so a new clause 2 renumbers Scope and Price: the
+    labels are numbering, and the new clause's reasons name no label as a figure."""
     precedent = doc("1.Definitions\n\nThe Goods means the goods.\n\n2.Scope\n\nThe Supplier "
                     "shall supply the Goods.\n\n3.Price\n\nThe price is 100 euros.\n")
     draft = doc("1.Definitions\n\nThe Goods means the goods.\n\n2.Delivery\n\nThe Supplier "
@@ -162,7 +162,7 @@ def test_labels_glued_to_their_headings_are_numbering_not_figures():
                 "\n\n4.Price\n\nThe price is 100 euros.\n")
     review = run_review(draft, precedent)
     assert [(v.precedent_text, v.draft_text, v.reasons) for v in by_category(review, "numbering")
-            ] == [("3", "4", ("list label changed from 3 to 4",))]
+            ] == [("2", "3", ("renumbered from 2 to 3",)), ("3", "4", ("renumbered from 3 to 4",))]
     (added,) = substantive(review)
     assert "Delivery" in added.draft_text
     assert not any(r.startswith("figure") for r in added.reasons)
