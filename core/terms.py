@@ -623,7 +623,7 @@ def term_forms(term: str) -> tuple[str, ...]:
     return tuple(forms)
 
 
-_POSSESSIVE = r"(?:['’]s(?!\w)|(?<=s)['’](?!\w))?"
+_POSSESSIVE = r"(?:['’][sS](?!\w)|(?<=[sS])['’](?!\w))?"
 
 
 def _forms_regex(forms: Iterable[str]) -> str:
@@ -667,7 +667,7 @@ def terms_pattern(terms: Sequence[str], *, aliases: Mapping[str, str] | None = N
 
 def _form_of(match_text: str) -> str:
     text = " ".join(match_text.split())
-    for suffix in ("'s", "’s", "'", "’"):
+    for suffix in ("'s", "’s", "'S", "’S", "'", "’"):
         if text.endswith(suffix):
             return text[: -len(suffix)]
     return text

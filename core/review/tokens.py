@@ -15,7 +15,7 @@ one for cross-references, so O(length of text).
 from __future__ import annotations
 
 import re
-from collections.abc import Callable, Iterable, Mapping, Sequence
+from collections.abc import Callable, Collection, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
 from ..terms import terms_pattern
@@ -208,13 +208,22 @@ def base_tokens(text: str, matcher: TermMatcher | None, *, xrefs: bool = True) -
 
 
 def rekey(bt: BaseTokens, *, term_key: Mapping[str, str],
-          xref: Callable[[str, str], str] | None = None) -> TokenSeq:
+          xref: Callable[[str, str], str] | None = None,
+          as_words: Collection[str] = frozenset()) -> TokenSeq:
     """*bt*'s tokens with each term use keyed by ``term_key.get(name, name)`` and form, and
-    each cross-reference by ``xref(number, keyword)`` ("#" for all when *xref* is None)."""
+    each cross-reference by ``xref(number, keyword)`` ("#" for all when *xref* is None).
+
+    The uses of the names in *as_words* are keyed as their words (the key a plain word
+    has): a term that only one document has is compared as the words it is written with,
+    so that the draft's defined "Reproduce" and the precedent's plain "reproduce" differ
+    in letter case only."""
     if not bt.terms and not bt.xrefs:
         return bt.seq
     keys = list(bt.seq.keys)
     for i, name, form in bt.terms:
+        if name in as_words:
+            keys[i] = normalise_key(" ".join(bt.seq.token(i).split()))
+            continue
         keys[i] = "\x00T" + term_key.get(name, name) + "\x00" + form
     for i, number, keyword in bt.xrefs:
         keys[i] = "\x00X" + (xref(number, keyword) if xref is not None else "#")
@@ -247,13 +256,17 @@ class TermMatcher:
     endings, any white space between words, whole words, longest form first so that
     "Additional Services" is one use and not a use of "Services"); the pattern is built as a
     trie of the forms so that the regular-expression engine can skip every position whose
-    first character starts no form (about ten times faster on an agreement's text)."""
+    first character starts no form (about ten times faster on an agreement's text).  An
+    alias's forms belong to its term (``owner``); ``written`` maps each form to the name it
+    is a form of, so that "Your" (an alias of "You") is a singular use and "Clients" a
+    plural one."""
 
     pattern: re.Pattern[str]
     owner: Mapping[str, str]
+    written: Mapping[str, str]
 
 
-_POSSESSIVE = r"(?P<pos>['\u2019]s(?!\w)|(?<=s)['\u2019](?!\w))?(?!\w)"
+_POSSESSIVE = r"(?P<pos>['\u2019][sS](?!\w)|(?<=[sS])['\u2019](?!\w))?(?!\w)"
 
 
 def _trie_regex(forms: Iterable[str]) -> str:
@@ -290,14 +303,24 @@ def _trie_regex(forms: Iterable[str]) -> str:
     return parts[id(root)]
 
 
-def term_matcher(terms: Iterable[str]) -> TermMatcher | None:
-    """The matcher of *terms* (None when there is no term)."""
-    names = list(dict.fromkeys(t for t in terms if t.strip()))
-    if not names:
+def term_matcher(terms: Iterable[str], *, aliases: Mapping[str, str] | None = None,
+                 capitals: bool = False) -> TermMatcher | None:
+    """The matcher of *terms* and of *aliases* (alias -> its term; a use of an alias is a
+    use of its term); None when there is no name.  With *capitals*, a name written all in
+    capitals ("LICENSOR", in a disclaimer set in capitals) is a use of it too."""
+    alias_of = {a: t for a, t in (aliases or {}).items() if a.strip() and a != t}
+    names = list(dict.fromkeys(t for t in terms if t.strip() and t not in alias_of))
+    if not names and not alias_of:
         return None
-    _reference, owner = terms_pattern(names)
+    if capitals:
+        for n in [*names, *alias_of]:
+            up = n.upper()
+            if up != n and up not in alias_of and up not in names:
+                alias_of[up] = alias_of.get(n, n)
+    _reference, owner = terms_pattern(names, aliases=alias_of)
+    _reference, written = terms_pattern([*names, *alias_of])
     pattern = re.compile(r"(?P<form>" + _trie_regex(owner) + r")" + _POSSESSIVE)
-    return TermMatcher(pattern, owner)
+    return TermMatcher(pattern, owner, written)
 
 
 def find_term_uses(text: str, matcher: TermMatcher | None) -> list[TermUse]:
@@ -318,7 +341,7 @@ def find_term_uses(text: str, matcher: TermMatcher | None) -> list[TermUse]:
             if term is None:
                 continue
         pos = m.group("pos")
-        form = ("pl" if f != term else "") + ("pos" if pos else "")
+        form = ("pl" if f != matcher.written.get(f, term) else "") + ("pos" if pos else "")
         uses.append(TermUse(start, m.end(), term, form))
     return uses
 
