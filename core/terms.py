@@ -118,7 +118,7 @@ def _body(m: re.Match[str], tag: str) -> str | None:
 _QN = _quoted(None)
 _QUOTED_RE = re.compile(_quoted("q"))
 #: Between two names of a list: "A", "B" or "C"; "A" and "B"; "I"/"Me"; "A," "B".
-_LIST_SEP = r"\s*(?:,\s*|/\s*)?(?:(?:and/or|and|or)\s+)?(?:the\s+)?"
+_LIST_SEP = r"\s*(?:,\s*|/\s*)?(?i:(?:and/or|and|or)\s+)?(?i:the\s+)?"
 #: Most names in one list ("The terms "commercial item", "commercial computer software",
 #: ... have the meanings": nine in the licence texts).
 MAX_LIST_NAMES = 10
@@ -143,7 +143,7 @@ _SUBJECT_RE = re.compile(
     + r"(?P<alias>\s*\([^()\n]{0,80}\))?"
     + r"(?P<between>(?:,?\s+(?!(?:means|mean|shall|will|has|have|refers|refer|includes|include)\b)"
     + r"[\w’'-]+){0,%d}?)" % MAX_WORDS_BEFORE_VERB
-    + r"\s*[,:]?\s+(?P<verb>" + _VERBS + r")"
+    + r"\s*[,:]?\s+(?P<verb>(?i:" + _VERBS + r"))"  # verbs in capitals too (a notice in capitals)
 )
 #: Words that may precede a quoted subject of "includes" in its clause: "the term", "To",
 #: "A", "and".  Stronger verbs ("means", "refers to") allow a short introduction ("For the
@@ -162,13 +162,19 @@ _CLAUSE_BLOCKERS = frozenset(
 #: Longest introduction before a quoted subject (words): "As used in section 3.2 of the
 #: OPL" has seven.
 MAX_SUBJECT_INTRO_WORDS = 8
+#: First words of such an introduction: a preposition ("For the purposes of ...", "As used
+#: in ...") or a determiner of a noun the term qualifies ("A section "Entitled XYZ"
+#: means"); "He said "this" means" is no definition.
+_INTRO_STARTS = frozenset(
+    "for in as under throughout within with where wherever notwithstanding solely save "
+    "except a an the any each every".split())
 _WEAK_VERB_RE = re.compile(r"\binclude")
 #: Words between a quoted term and its verb that show a new clause: no definition then.
 _CONNECTORS = frozenset(
     "and or but that which who whom whose if when where while then because so is are was "
     "were be been shall will may must can could would should not".split())
 #: Boundaries of the clause a subject opens.
-_CLAUSE_BOUNDARY_RE = re.compile(r"[.;:(\n,]")
+_CLAUSE_BOUNDARY_RE = re.compile(r"[;:(\n,]|\.(?=\s)")
 
 #: Words that may stand in a parenthesis around a term being defined: (the "X"),
 #: (each a "X"), (together, the "X"), (hereinafter referred to as "X"), (or "Y").
@@ -311,6 +317,12 @@ def _subject_position(text: str, start: int, *, strict: bool) -> bool:
         return True
     if strict or len(words) > MAX_SUBJECT_INTRO_WORDS:
         return False
+    while words[:1] in (["and"], ["or"]):
+        words = words[1:]
+    if not words:
+        return True
+    if words[0] not in _INTRO_STARTS and not (len(words) == 1 and len(words[0]) == 1):
+        return False  # a one-letter bullet ("o") is no sentence
     return not any(w in _CLAUSE_BLOCKERS for w in words)
 
 
@@ -332,7 +344,7 @@ def _subject_definitions(text: str) -> list[_Found]:
 
 def _subject_found(text: str, m: re.Match[str]) -> list[_Found] | None:
     """The definitions of a subject-and-verb match, or None when it is none."""
-    verb = m.group("verb")
+    verb = m.group("verb").lower()
     if verb.startswith("mean") and _NOUN_MEANS_RE.match(text, m.end()):
         return None
     if not _subject_position(text, m.start(), strict=_WEAK_VERB_RE.match(verb) is not None):
