@@ -62,6 +62,7 @@ from scipy.optimize import linear_sum_assignment
 
 from ..errors import CounterdraftError
 from ..model import TermMapping
+from ..terms import term_forms
 from .docinfo import DocInfo, party_role
 from .tokens import (
     KIND_PUNCT,
@@ -285,8 +286,8 @@ def _name_words(words: Sequence[str], *, lone_word: bool = False) -> str | None:
             last = last[: -len(end)]
             break
     ws = [*words[:-1], last]
-    if any(not w.replace("-", "").isalpha() for w in ws):
-        return None  # figures, apostrophes inside, punctuation
+    if any(not w.replace("-", "").isalpha() or len(w) < 2 for w in ws):
+        return None  # figures, apostrophes inside, punctuation, a variant letter ("-P", "-W")
     caps = [w[:1].isupper() for w in ws]
     if caps[0] and caps[-1] and all(c or w in _NAME_JOINERS for c, w in zip(caps, ws)):
         return " ".join(ws) if ws[0].lower() not in _FUNCTION_WORDS else None
@@ -306,14 +307,14 @@ def _words_of(seq: TokenSeq, lo: int, hi: int) -> list[int] | None:
 def _side_name(seq: TokenSeq, idx: Sequence[int], *, lone_word: bool) -> tuple[str, bool] | None:
     """The name the tokens *idx* of *seq* write (a defined name or words), and whether it
     is capitalised; None when they are no name."""
-    if any(seq.kinds[i] == KIND_TERM for i in idx):
-        if len(idx) != 1:
-            return None
+    if len(idx) == 1 and seq.kinds[idx[0]] == KIND_TERM:
         name = _term_name_of_key(seq.keys[idx[0]])
         return name, name[:1].isupper()
-    if any(seq.kinds[i] != "w" for i in idx):
+    if any(seq.kinds[i] not in ("w", KIND_TERM) for i in idx):
         return None
-    name = _name_words([seq.token(i) for i in idx], lone_word=lone_word)
+    # a defined name inside a longer one ("Apache License") counts as the words it writes
+    words = [w for i in idx for w in seq.token(i).split()]
+    name = _name_words(words, lone_word=lone_word)
     return (name, name[:1].isupper()) if name is not None else None
 
 
@@ -360,39 +361,56 @@ def _name_slot(a: TokenSeq, b: TokenSeq, op: TokenOp) -> tuple[str, str, bool] |
 
 
 def _replaced_runs(a: TokenSeq, ops: Sequence[TokenOp]) -> list[TokenOp]:
-    """The replace ops of a word diff of *a* (ops), with the ones separated by white space
-    alone joined: "Digital Creations" -> "Zope Corporation" is one run, not two around an
-    unchanged space."""
+    """The changed runs of a word diff of *a* (*ops*) that replace something: the changes
+    separated by white space alone are one run, so "Digital Creations" -> "Zope
+    Corporation" (two replaced words around an unchanged space) and "Apache License" ->
+    "Kaka" (a word replaced, a word deleted) are single runs."""
     runs: list[TokenOp] = []
-    gap_ok = False
+    cur: TokenOp | None = None
     for op in ops:
-        if op.tag == "replace":
-            if gap_ok and runs:
-                last = runs[-1]
-                runs[-1] = TokenOp("replace", last.i1, op.i2, last.j1, op.j2)
-            else:
-                runs.append(op)
-            gap_ok = True
-        elif op.tag == "equal" and gap_ok and all(a.kinds[i] == KIND_SPACE for i in range(op.i1, op.i2)):
-            continue
+        if op.tag != "equal":
+            cur = op if cur is None else TokenOp("replace", cur.i1, op.i2, cur.j1, op.j2)
+        elif cur is not None and all(a.kinds[i] == KIND_SPACE for i in range(op.i1, op.i2)):
+            continue  # a space between two changes: the run goes on
         else:
-            gap_ok = False
+            if cur is not None and cur.i1 < cur.i2 and cur.j1 < cur.j2:
+                runs.append(cur)
+            cur = None
+    if cur is not None and cur.i1 < cur.i2 and cur.j1 < cur.j2:
+        runs.append(cur)
     return runs
 
 
-def _merge_case_variants(slots: Counter[tuple[str, str]], mid: Counter[tuple[str, str]]
-                         ) -> tuple[Counter[tuple[str, str]], Counter[tuple[str, str]]]:
-    """Count a rename written in capitals ("LICENSOR" -> "GRANTOR", in a disclaimer) with
-    the same rename as the documents otherwise write it."""
+def _singular(name: str) -> str | None:
+    """The singular whose plural form (:func:`core.terms.term_forms`) *name* is, if any."""
+    if not name.endswith(("s", "S")):
+        return None
+    for cand in (name[:-1], name[:-2], name[:-3] + ("Y" if name.isupper() else "y")):
+        if cand and len(term_forms(cand)) > 1 and term_forms(cand)[1] == name:
+            return cand
+    return None
+
+
+def _fold_variants(slots: Counter[tuple[str, str]], mid: Counter[tuple[str, str]]
+                   ) -> tuple[Counter[tuple[str, str]], Counter[tuple[str, str]]]:
+    """Count a rename written in the plural ("the Licensors" -> "the Grantors") or in
+    capitals ("LICENSOR" -> "GRANTOR", in a disclaimer) with the same rename as the
+    documents otherwise write it: the singular, in the documents' own letter case."""
+    def fold(pair: tuple[str, str]) -> tuple[str, str]:
+        y, x = pair
+        ys, xs = _singular(y), _singular(x)
+        return (ys, xs) if ys is not None and xs is not None else pair
+
     rep: dict[tuple[str, str], tuple[str, str]] = {}
-    for y, x in sorted(slots, key=lambda k: (k[0].isupper() or k[1].isupper(), k)):
+    for y, x in sorted({fold(k) for k in slots}, key=lambda k: (k[0].isupper() or k[1].isupper(), k)):
         rep.setdefault((y.casefold(), x.casefold()), (y, x))
     out: Counter[tuple[str, str]] = Counter()
     out_mid: Counter[tuple[str, str]] = Counter()
-    for (y, x), n in slots.items():
+    for pair, n in slots.items():
+        y, x = fold(pair)
         key = rep[(y.casefold(), x.casefold())]
         out[key] += n
-        out_mid[key] += mid[(y, x)]
+        out_mid[key] += mid[pair]
     return out, out_mid
 
 
@@ -432,7 +450,7 @@ def scan_slots(pairs: Iterable[tuple[int, int]], *, draft_seq: Callable[[int], T
                 mid[got[:2]] += got[2]
     if not slots:
         return SlotScan(terms, ())
-    slots, mid = _merge_case_variants(slots, mid)
+    slots, mid = _fold_variants(slots, mid)
     wanted = {x for _y, x in slots}
     matcher = term_matcher([*wanted, *known], capitals=True)
     aligned: Counter[str] = Counter()

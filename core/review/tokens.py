@@ -306,8 +306,9 @@ def _trie_regex(forms: Iterable[str]) -> str:
 def term_matcher(terms: Iterable[str], *, aliases: Mapping[str, str] | None = None,
                  capitals: bool = False) -> TermMatcher | None:
     """The matcher of *terms* and of *aliases* (alias -> its term; a use of an alias is a
-    use of its term); None when there is no name.  With *capitals*, a name written all in
-    capitals ("LICENSOR", in a disclaimer set in capitals) is a use of it too."""
+    use of its term); None when there is no name.  With *capitals*, a capitalised name
+    written all in capitals ("LICENSOR", in a disclaimer set in capitals) is a use of it
+    too; an ordinary phrase ("source code") in capitals is left as words."""
     alias_of = {a: t for a, t in (aliases or {}).items() if a.strip() and a != t}
     names = list(dict.fromkeys(t for t in terms if t.strip() and t not in alias_of))
     if not names and not alias_of:
@@ -315,7 +316,7 @@ def term_matcher(terms: Iterable[str], *, aliases: Mapping[str, str] | None = No
     if capitals:
         for n in [*names, *alias_of]:
             up = n.upper()
-            if up != n and up not in alias_of and up not in names:
+            if n[:1].isupper() and up != n and up not in alias_of and up not in names:
                 alias_of[up] = alias_of.get(n, n)
     _reference, owner = terms_pattern(names, aliases=alias_of)
     _reference, written = terms_pattern([*names, *alias_of])
