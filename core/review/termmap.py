@@ -52,7 +52,7 @@ from __future__ import annotations
 
 import math
 from collections import Counter
-from collections.abc import Callable, Iterable, Mapping, Sequence
+from collections.abc import Callable, Collection, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from typing import Literal, Protocol, runtime_checkable
 
@@ -391,13 +391,16 @@ def _singular(name: str) -> str | None:
     return None
 
 
-def _fold_variants(slots: Counter[tuple[str, str]], mid: Counter[tuple[str, str]]
-                   ) -> tuple[Counter[tuple[str, str]], Counter[tuple[str, str]]]:
+def _fold_variants(slots: Counter[tuple[str, str]], mid: Counter[tuple[str, str]], *,
+                   known: Collection[str]) -> tuple[Counter[tuple[str, str]], Counter[tuple[str, str]]]:
     """Count a rename written in the plural ("the Licensors" -> "the Grantors") or in
     capitals ("LICENSOR" -> "GRANTOR", in a disclaimer) with the same rename as the
-    documents otherwise write it: the singular, in the documents' own letter case."""
+    documents otherwise write it: the singular, in the documents' own letter case.  The
+    documents' own names (*known*: "Goods", "Products") are never folded."""
     def fold(pair: tuple[str, str]) -> tuple[str, str]:
         y, x = pair
+        if y in known or x in known:
+            return pair
         ys, xs = _singular(y), _singular(x)
         return (ys, xs) if ys is not None and xs is not None else pair
 
@@ -450,7 +453,7 @@ def scan_slots(pairs: Iterable[tuple[int, int]], *, draft_seq: Callable[[int], T
                 mid[got[:2]] += got[2]
     if not slots:
         return SlotScan(terms, ())
-    slots, mid = _fold_variants(slots, mid)
+    slots, mid = _fold_variants(slots, mid, known=set(known))
     wanted = {x for _y, x in slots}
     matcher = term_matcher([*wanted, *known], capitals=True)
     aligned: Counter[str] = Counter()

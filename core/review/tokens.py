@@ -342,8 +342,11 @@ def find_term_uses(text: str, matcher: TermMatcher | None) -> list[TermUse]:
             if term is None:
                 continue
         pos = m.group("pos")
+        end = m.end()
+        if pos in ("'", "\u2019") and text[start - 1:start] in ("'", "\u2018"):
+            pos, end = None, end - 1  # 'Services': a closing quote, not a plural possessive
         form = ("pl" if f != matcher.written.get(f, term) else "") + ("pos" if pos else "")
-        uses.append(TermUse(start, m.end(), term, form))
+        uses.append(TermUse(start, end, term, form))
     return uses
 
 

@@ -82,7 +82,9 @@ def rename_everywhere(text: str, old: str, new: str) -> str:
     return _phrase_re(old.upper()).sub(new.upper(), text) if old[:1].isupper() else text
 
 
-SYLLABLES = ("ka", "lo", "mir", "ren", "tas", "vo", "quel", "dor", "zan", "bri", "ost", "wen")
+#: Syllables of invented names.  None ends in "s", so that "s" added to a name makes its
+#: plural, as it does for the phrases renamed.
+SYLLABLES = ("ka", "lo", "mir", "ren", "tav", "vo", "quel", "dor", "zan", "bri", "ost", "wen")
 invented_word = st.lists(st.sampled_from(SYLLABLES), min_size=2, max_size=4).map("".join)
 
 
