@@ -30,7 +30,9 @@ agreements, no source):
   (``Block.in_table``): a .docx table gives one block per cell, a Markdown table one block
   per row with the cells joined by tabs.  A table is a definition table when its header
   names its columns so ("Term" | "Meaning", "Expression" | "Definition", ...) or when most
-  of its rows pair a term-like cell with a meaning that reads like one;
+  of its rows pair a term-like cell with a meaning that reads like one (starting with a
+  defining verb or a lower-case word), or with any meaning of a few words when the term
+  cell is bold or underlined (``Block.emphasised``);
 * **emphasis**: a bold or underlined term (``Block.lead``) followed by ``means`` or a colon.
 
 Straight, curly, typewriter and TeX-style quotes (``"X"``, ``“X”``, ``‘X’``, ``'X'``,
@@ -163,18 +165,18 @@ _CLAUSE_BLOCKERS = frozenset(
 #: OPL" has seven.
 MAX_SUBJECT_INTRO_WORDS = 8
 #: First words of such an introduction: a preposition ("For the purposes of ...", "As used
-#: in ...") or a determiner of a noun the term qualifies ("A section "Entitled XYZ"
-#: means"); "He said "this" means" is no definition.
+#: in ..."), "References to", or a determiner of a noun the term qualifies ("A section
+#: "Entitled XYZ" means"); "He said "this" means" is no definition.
 _INTRO_STARTS = frozenset(
     "for in as under throughout within with where wherever notwithstanding solely save "
-    "except a an the any each every".split())
+    "except references reference a an the any each every all".split())
 _WEAK_VERB_RE = re.compile(r"\binclude")
 #: Words between a quoted term and its verb that show a new clause: no definition then.
 _CONNECTORS = frozenset(
     "and or but that which who whom whose if when where while then because so is are was "
     "were be been shall will may must can could would should not".split())
 #: Boundaries of the clause a subject opens.
-_CLAUSE_BOUNDARY_RE = re.compile(r"[;:(\n,]|\.(?=\s)")
+_CLAUSE_BOUNDARY_RE = re.compile(r"[;:(\n,]|\.(?!\d)")  # a full stop, not the one of "3.2"
 
 #: Words that may stand in a parenthesis around a term being defined: (the "X"),
 #: (each a "X"), (together, the "X"), (hereinafter referred to as "X"), (or "Y").
@@ -319,6 +321,8 @@ def _subject_position(text: str, start: int, *, strict: bool) -> bool:
         return False
     while words[:1] in (["and"], ["or"]):
         words = words[1:]
+    if words[:3] == ["in", "which", "case"]:  # "..., in which case "you" will mean the entity"
+        words = words[3:]
     if not words:
         return True
     if words[0] not in _INTRO_STARTS and not (len(words) == 1 and len(words[0]) == 1):
@@ -372,7 +376,7 @@ def _line_start_definitions(text: str, *, in_definitions: bool) -> list[_Found]:
     for m in _UNQUOTED_RE.finditer(text):
         name = m.group("name")
         first = name.split()[0].lower()
-        if first in _NOT_TERM_STARTS:
+        if first in _NOT_TERM_STARTS or (first in ("a", "an") and len(name.split()) == 1):
             continue
         colon = m.group("sep").strip() != "" and m.group("sep").strip() != ","
         rest = text[m.end():m.end() + 2]
@@ -380,6 +384,8 @@ def _line_start_definitions(text: str, *, in_definitions: bool) -> list[_Found]:
             continue
         if m.group("verb") is not None and _NOUN_MEANS_UNQUOTED_RE.match(text, m.end()):
             continue
+        if first in ("a", "an") and len(name.split()) > 1:
+            name = name.split(None, 1)[1]  # "An Apple Operating System means": the article goes
         term = _clean_all([name])
         if not term:
             continue
@@ -528,7 +534,8 @@ def _table_definitions(run: Sequence[Block], places: Mapping[int, _Place],
     header = bool(rows) and bool(_TABLE_HEADER_RE.match(rows[0][1])) and bool(
         _TABLE_HEADER_RE.match(rows[0][2] or "x"))
     body = rows[1:] if header else rows
-    good = [r for r in body if _table_cell_term(r[1]) is not None and _reads_as_meaning(r[2])]
+    good = [r for r in body if _table_cell_term(r[1]) is not None and (
+        _reads_as_meaning(r[2]) or (r[0][0].emphasised and len(r[2].split()) >= MIN_MEANING_WORDS))]
     if not header and (len(good) < TABLE_MIN_ROWS or len(good) < TABLE_DEFINITION_SHARE * len(body)):
         return []
     out = []

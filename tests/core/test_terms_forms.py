@@ -314,3 +314,18 @@ def test_definitions_in_a_schedule_inline():
                     "Buyer: means the person named in the Order.\n")
     check_document(doc)
     assert [(t.term, t.uses) for t in doc.terms] == [("Seller", 1), ("Kit", 1), ("Buyer", 1)]
+
+
+def test_docx_table_with_bold_terms_inline(tmp_path):
+    # Inline example: a particulars table whose term cells are bold (w:b, ECMA-376 Part 1
+    # §17.3.2.1) and whose meanings are names, not sentences.
+    def bold_tc(text: str) -> str:
+        return (f"<w:tc><w:p><w:r><w:rPr><w:b/></w:rPr><w:t>{text}</w:t></w:r></w:p></w:tc>")
+
+    rows = [("Supplier", "Quillon Ashby Limited of 4 Wexmoor Road, Ardence"),
+            ("Customer", "Marsh Tollard Limited of 9 Corvanne Quay, Ardence")]
+    table = "<w:tbl>" + "".join(f"<w:tr>{bold_tc(a)}{_tc(b)}</w:tr>" for a, b in rows) + "</w:tbl>"
+    body = _p("PARTICULARS") + table + _p("1. The Supplier sells the lamps to the Customer.")
+    doc = read_document(build_docx(tmp_path / "particulars.docx", body))
+    check_document(doc)
+    assert [(t.term, t.uses) for t in doc.terms] == [("Supplier", 1), ("Customer", 1)]
