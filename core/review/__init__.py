@@ -4,7 +4,11 @@
 
 1. **term map** (:mod:`.termmap`): a first map from the definitions (and the vocabulary model
    when there is one), an alignment with it, then the final map with the substitution
-   evidence of the aligned provisions; the alignment is redone when the map changed;
+   evidence of the aligned provisions, which also finds names renamed throughout that
+   neither document defines (the documents are then tokenised again with those names as
+   terms); the alignment is redone when the map changed.  Each document's aliases are its
+   terms ("Your" is "You"), and every name that is not renamed and no party's label is
+   compared as the words it is written with;
 2. **alignment** (:mod:`.align`): provisions paired by content and heading after term
    normalisation; statuses same / changed / moved / added / removed / split / merged;
 3. **word diff** (:mod:`.worddiff`) of every aligned pair, with the draft's defined terms

@@ -181,7 +181,8 @@ class TermMap:
     mappings: tuple[TermMapping, ...]
     #: draft term name -> the precedent name it stands for (mapped terms only)
     to_precedent: Mapping[str, str]
-    #: every name whose uses are tokenised as terms (both documents' terms + overrides)
+    #: every name whose uses are tokenised as terms: both documents' terms and aliases, the
+    #: overrides' names and the names of the renames found from the text
     names: tuple[str, ...]
 
     def key(self, name: str) -> str:
@@ -216,9 +217,11 @@ def tokenize_with_terms(text: str, *, matcher: TermMatcher | None, to_key: Mappi
 
 def _count_uses(info: DocInfo, names: Iterable[str], *, among: Iterable[str] = ()) -> Counter[str]:
     """Uses of *names* in *info*'s texts and headings, matching them together with the
-    longer names of *among* (so "Order" inside "Purchase Order" is no use of "Order")."""
+    longer names of *among* (so "Order" inside "Purchase Order" is no use of "Order"), the
+    document's aliases as their terms and capitalised names in capitals too (as the review
+    tokenises them)."""
     wanted = set(names)
-    matcher = term_matcher([*wanted, *among], aliases=info.alias_of)
+    matcher = term_matcher([*wanted, *among], aliases=info.alias_of, capitals=True)
     c: Counter[str] = Counter()
     if matcher is None or not wanted:
         return c
