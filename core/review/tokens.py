@@ -213,22 +213,29 @@ def rekey(bt: BaseTokens, *, term_key: Mapping[str, str],
     """*bt*'s tokens with each term use keyed by ``term_key.get(name, name)`` and form, and
     each cross-reference by ``xref(number, keyword)`` ("#" for all when *xref* is None).
 
-    The uses of the names in *as_words* are keyed as their words (the key a plain word
-    has): a term that only one document has is compared as the words it is written with,
-    so that the draft's defined "Reproduce" and the precedent's plain "reproduce" differ
-    in letter case only."""
+    The uses of the names in *as_words* are words (kind and key of a plain word): a term
+    that is not renamed is compared as the words it is written with, so that the draft's
+    defined "Reproduce" and the precedent's plain "reproduce" differ in letter case only."""
     if not bt.terms and not bt.xrefs:
         return bt.seq
     keys = list(bt.seq.keys)
+    words: list[int] = []
     for i, name, form in bt.terms:
         if name in as_words:
             keys[i] = normalise_key(" ".join(bt.seq.token(i).split()))
+            words.append(i)
             continue
         keys[i] = "\x00T" + term_key.get(name, name) + "\x00" + form
     for i, number, keyword in bt.xrefs:
         keys[i] = "\x00X" + (xref(number, keyword) if xref is not None else "#")
     seq = bt.seq
-    return TokenSeq(seq.text, seq.starts, tuple(keys), seq.kinds)
+    kinds = seq.kinds
+    if words:
+        chars = list(kinds)
+        for i in words:
+            chars[i] = KIND_WORD
+        kinds = "".join(chars)
+    return TokenSeq(seq.text, seq.starts, tuple(keys), kinds)
 
 
 def word_keys(seq: TokenSeq) -> list[str]:
