@@ -211,6 +211,11 @@ class TermMapping:
     #: otherwise uses its own (kept visible for a drafting check; the diff reads them as the
     #: same term, so no deviation shows them).
     stale: int = 0
+    #: The substitution evidence counted: aligned places where the draft writes its name
+    #: where the precedent writes its own, out of ``aligned`` uses of the precedent's name in
+    #: the aligned provisions (0 when not counted); their ratio is the rename's consistency.
+    substitutions: int = 0
+    aligned: int = 0
 
 
 @dataclass(frozen=True, slots=True)

@@ -203,6 +203,8 @@ def _rename_reason(m: TermMapping, *, defined: bool) -> str:
     """The reason of a renamed term's deviation; stale uses of the precedent's name that
     the draft keeps are named, never hidden."""
     uses = f'{m.occurrences} use{"s" * (m.occurrences != 1)} in the draft'
+    if m.substitutions and m.aligned:
+        uses += f"; replaced in {m.substitutions} of {m.aligned} aligned places"
     if m.stale:
         uses += (f', and {m.stale} stale use{"s" * (m.stale != 1)} of "{m.precedent}" left '
                  "in it")

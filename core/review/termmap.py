@@ -684,9 +684,13 @@ def map_terms(draft: DocInfo, precedent: DocInfo, *, overrides: Sequence[TermOve
                                                                          (dn, chosen[dn][0]))]))
     d_uses = uses[0]
     order = {n: i for i, n in enumerate(draft.term_names)}
+    scanned = {(r.draft, r.precedent): r for r in renames}
     mappings = []
     for dn in sorted(chosen, key=lambda n: (order.get(n, len(order)), n)):
         pn, conf, kinds = chosen[dn]
         occ = draft.term_uses.get(dn, d_uses.get(dn, 0))
-        mappings.append(TermMapping(dn, pn, round(conf, 2), kinds, occ, stale=d_uses.get(pn, 0)))
+        r = scanned.get((dn, pn))
+        n_sub = r.slots if r is not None else (substitutions or {}).get((dn, pn), 0)
+        mappings.append(TermMapping(dn, pn, round(conf, 2), kinds, occ, stale=d_uses.get(pn, 0),
+                                    substitutions=n_sub, aligned=r.aligned if r is not None else 0))
     return TermMap(tuple(mappings), {m.draft: m.precedent for m in mappings}, all_names)

@@ -217,11 +217,15 @@ def test_an_undefined_name_renamed_throughout_is_one_mapping():
     # Invented agreement: the supplier's undefined name "Quillon Ashby" is "Marsh Tollard"
     # in the draft, everywhere.
     review = run_review(doc(INVENTED.replace("Quillon Ashby", "Marsh Tollard")), doc(INVENTED))
+    # "Quillon Ashby" is used six times (1.1, 1.2, 1.3, 2.1, 2.2, 3.2; counted by hand), all
+    # in aligned clauses, all replaced.
     [m] = review.term_map
     assert (m.draft, m.precedent, m.evidence, m.occurrences, m.stale) == (
         "Marsh Tollard", "Quillon Ashby", ("substitution",), 6, 0)
+    assert (m.substitutions, m.aligned) == (6, 6)
     [dev] = [v for v in review.deviations if v.category == "term"]
     assert dev.reasons[0].startswith('renamed throughout: the draft writes "Marsh Tollard"')
+    assert "replaced in 6 of 6 aligned places" in dev.reasons[0]
     assert substantive(review) == []
 
 
@@ -250,6 +254,7 @@ def test_confidence_follows_consistency():
                          doc(INVENTED))
     [a], [b] = full.term_map, partial.term_map
     assert (a.stale, b.stale) == (0, 1)
+    assert (b.substitutions, b.aligned) == (5, 6)
     assert b.confidence < a.confidence
 
 
