@@ -121,8 +121,9 @@ _QN = _quoted(None)
 _QUOTED_RE = re.compile(_quoted("q"))
 #: Between two names of a list: "A", "B" or "C"; "A" and "B"; "I"/"Me"; "A," "B".
 _LIST_SEP = r"\s*(?:,\s*|/\s*)?(?i:(?:and/or|and|or)\s+)?(?i:the\s+)?"
-#: Most names in one list ("The terms "commercial item", "commercial computer software",
-#: ... have the meanings": nine in the licence texts).
+#: Most names in one list.  The licence texts have lists of four ("BugSense," "we," "us,"
+#: and "our" refers to ...; amazon-redshift-jdbc's four "are defined" terms); ten leave a
+#: margin and keep a run of quoted titles from reading as one list.
 MAX_LIST_NAMES = 10
 _NAME_LIST = _QN + r"(?:" + _LIST_SEP + _QN + r"){0,%d}" % (MAX_LIST_NAMES - 1)
 
