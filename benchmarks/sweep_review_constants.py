@@ -65,6 +65,9 @@ SWEEPS: dict[str, dict[str, list[float]]] = {
         "FOREIGN_USE_RATIO": [0.1, 0.25, 0.75, 1.0],
         "FOREIGN_USE_MIN": [1, 3, 5],
         "_SLOT_MAX_OTHER_WORDS": [0, 1, 3, 5],
+        "RENAME_MIN_SHARE": [0.5, 0.6, 0.9, 1.0],
+        "RENAME_MIN_SLOTS": [1, 3, 4],
+        "MAX_NAME_WORDS": [1, 2, 3, 6],
     },
 }
 

@@ -147,10 +147,28 @@ class Provision:
 
 @dataclass(frozen=True, slots=True)
 class DefinedTerm:
+    """A term the document defines.
+
+    ``aliases`` are the other names defined as the same term in the same breath (``"You"
+    (or "Your")``, ``the terms "Licensee", "You" and "Your" shall refer to``): a use of an
+    alias is a use of the term.  ``span`` locates the definition's source in the defining
+    provision's text: ``provision.text[a:b]`` is the whole provision for a definition
+    provision, else the sentence or table row that defines the term; ``definition`` is that
+    slice (an inline one cut at ``core.terms.MAX_INLINE_DEFINITION_CHARS`` with "…").  None
+    for a term built by hand without it.
+    """
+
     term: str
     definition: str
     provision: str  # id of the provision that defines it
-    uses: int  # capitalised uses elsewhere, plural and possessive forms counted
+    uses: int  # uses elsewhere as written (any of its names), plural and possessive forms counted
+    aliases: tuple[str, ...] = ()
+    span: tuple[int, int] | None = None
+
+    @property
+    def names(self) -> tuple[str, ...]:
+        """The term and its aliases."""
+        return (self.term, *self.aliases)
 
 
 @dataclass(frozen=True, slots=True)
@@ -190,6 +208,15 @@ class TermMapping:
     confidence: float  # 0..1
     evidence: tuple[str, ...]  # subset of ("definition", "substitution", "embedding", "user")
     occurrences: int  # uses of the draft term in the draft, plural and possessive included
+    #: Stale uses: places where the draft still writes the precedent's name although it
+    #: otherwise uses its own (kept visible for a drafting check; the diff reads them as the
+    #: same term, so no deviation shows them).
+    stale: int = 0
+    #: The substitution evidence counted: aligned places where the draft writes its name
+    #: where the precedent writes its own, out of ``aligned`` uses of the precedent's name in
+    #: the aligned provisions (0 when not counted); their ratio is the rename's consistency.
+    substitutions: int = 0
+    aligned: int = 0
 
 
 @dataclass(frozen=True, slots=True)

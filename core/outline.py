@@ -98,5 +98,6 @@ def format_outline(doc: Document, *, width: int = 100) -> str:
         lines.append("")
         lines.append(_fit("Defined terms (uses elsewhere):", width))
         for t in doc.terms:
-            lines.append(_fit(f"  {_one_line(t.term)} ({t.provision}): {t.uses}", width))
+            also = f" [also {', '.join(_one_line(a) for a in t.aliases)}]" if t.aliases else ""
+            lines.append(_fit(f"  {_one_line(t.term)}{also} ({t.provision}): {t.uses}", width))
     return "\n".join(lines)

@@ -41,7 +41,7 @@ def document_from_blocks(blocks: Sequence[Block], *, source: str,
     """The document whose paragraphs are *blocks* (provisions and terms inferred)."""
     blocks = tuple(blocks)
     provisions = split_provisions(blocks, source=source)
-    return Document(source=source, provisions=provisions, terms=find_terms(provisions),
+    return Document(source=source, provisions=provisions, terms=find_terms(provisions, blocks=blocks),
                     blocks=blocks, warnings=tuple(warnings))
 
 

@@ -6,7 +6,10 @@ Exactly this shape (``resources/schemas/document.schema.json`` is its JSON Schem
      "source": "<base name of the file>",
      "provisions": [{"id", "kind", "number", "heading", "level", "parent", "text"
                      [, "term" only when kind is "definition"]}],
-     "terms": [{"term", "definition", "provision", "uses"}]}
+     "terms": [{"term", "definition", "provision", "uses", "aliases", "span"}]}
+
+``aliases`` lists the term's other names (a use of one is a use of the term); ``span`` is
+``[start, end]`` of the definition in the defining provision's text, or null.
 """
 
 from __future__ import annotations
@@ -48,7 +51,8 @@ def document_to_dict(doc: Document) -> dict[str, Any]:
         "source": _base_name(doc.source),
         "provisions": [provision_to_dict(p) for p in doc.provisions],
         "terms": [
-            {"term": t.term, "definition": t.definition, "provision": t.provision, "uses": t.uses}
+            {"term": t.term, "definition": t.definition, "provision": t.provision, "uses": t.uses,
+             "aliases": list(t.aliases), "span": list(t.span) if t.span is not None else None}
             for t in doc.terms
         ],
     }

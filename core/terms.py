@@ -1,42 +1,68 @@
 """Find the defined terms of an agreement and count their uses.
 
-A term is defined
+A term is defined, in any of the forms drafters use (common practice in English-language
+agreements, no source):
 
-* by a definition provision (kind ``"definition"``, found by :mod:`core.structure` in a
-  definitions section: ``"X" means ...``, bold ``X`` means ...); an alternative form in the
-  same breath (``"You" (or "Your") shall mean``) is defined by the same provision;
-* inline, anywhere: ``"X" means`` / ``shall mean`` / ``has the meaning given in`` /
-  ``refers to`` / ``includes`` (a few words may sit between: ``"Source" form shall mean``,
-  ``The "source code" for a work means``); in parentheses after what it names
-  (``(the "X")``, ``("X")``, ``(each a "X")``, ``(together, the "X")``,
-  ``(hereinafter referred to as "X")``, ``(each a "Party" and together the "Parties")``);
-  ``hereinafter "X"``; ``each a "X" and together the "Y"`` without parentheses;
-  ``is called a "X"``.
+* **by a definition provision** (kind ``"definition"``, found by :mod:`core.structure` in a
+  definitions section: ``"X" means ...``, bold ``X`` means ...);
+* **subject and verb**: a term, quoted or not, followed by ``means`` / ``shall mean`` /
+  ``has the meaning given in`` / ``refers to`` / ``shall refer to`` / ``includes``
+  (a few words may sit between: ``"Source" form shall mean``, ``The "source code" for a
+  work means``).  A quoted term must stand where a subject stands: at the start of a
+  sentence or clause, after nothing but ``the`` / ``a`` / ``to`` / ``the term`` and the like
+  (``Where the "Licensed Material" includes ...`` defines nothing).  An **unquoted** term
+  (``1.5 Initial Developer means ...``, ``Licensee: means ...``) must be a short title-case
+  name at the start of a provision or of one of its lines, and the verb must not be the
+  noun "means" (``Electronic means shall include ...`` defines nothing);
+* **lists of names**: ``the terms "Licensee", "You" and "Your" shall refer to``, ``"Use",
+  "Used" or "Using" means``: the names are **aliases** of one term; ``The terms "reproduce"
+  and "distribution" have the same meaning here as under ...`` defines separate terms;
+* **in parentheses** after what they name: ``(the "X")``, ``("X")``, ``("You" or
+  "Customer")`` (names joined by "or" or commas are aliases), ``(each a "X" and together
+  the "Y")`` and ``(the "Supplier" and the "Customer")`` (joined by "and": separate terms),
+  ``(hereinafter referred to as "X")``; ``hereinafter "X"``; ``each a "X" and together the
+  "Y"``; ``is called a "X"``, ``are referred to as "You", "Your" and "Mirrorer"``,
+  ``refer to "Google" as "we", "our", or "us"``; ``You (or Your) means``;
+  ``Your has a corresponding meaning`` (an alias of the term the provision defines);
+* **colon forms** at the start of a provision or line: ``"Customer": the buyer``,
+  ``Applications: means ...``; in a definitions section also ``Customer: the buyer ...``;
+* **definition tables**: two-column tables (term | meaning) read from the blocks
+  (``Block.in_table``): a .docx table gives one block per cell, a Markdown table one block
+  per row with the cells joined by tabs.  A table is a definition table when its header
+  names its columns so ("Term" | "Meaning", "Expression" | "Definition", ...) or when most
+  of its rows pair a term-like cell with a meaning that reads like one (starting with a
+  defining verb or a lower-case word), or with any meaning of a few words when the term
+  cell is bold or underlined (``Block.emphasised``);
+* **emphasis**: a bold or underlined term (``Block.lead``) followed by ``means`` or a colon.
 
-Straight and curly quotes (``"X"``, ``“X”``, ``‘X’``) are recognised.  The first definition
-of a term wins; a later one of the same term is ignored.
+Straight, curly, typewriter and TeX-style quotes (``"X"``, ``“X”``, ``‘X’``, ``'X'``,
+```` ``X'' ````, ``''X''``, ``«X»``) are recognised.  The first definition of a name wins;
+a later one of the same name is ignored.  Definitions in schedules count like any other.
 
-Uses are counted case-sensitively as the term is written (so ``"Customer"`` counts
+Uses are counted case-sensitively as the names are written (so ``"Customer"`` counts
 capitalised uses), whole words only, in every provision's text and heading except the
 defining provision's; plural (``Services``, ``Parties``, ``Liabilities``) and possessive
-(``Customer's``, ``Customers'``) forms count.  All terms are matched together, longest
-first, so ``Additional Services`` is a use of that term and not also of ``Services``.
+(``Customer's``, ``Customers'``) forms count, and a use of an alias is a use of its term.
+All names are matched together, longest first, so ``Additional Services`` is a use of that
+term and not also of ``Services``.
 
-Cost: one pass of a few regular expressions over the provision texts to find the
-definitions, then one pass of a single alternation of all term forms to count uses:
-O(total text length x number of terms) in the worst case of the regex engine, in practice
-close to linear.
+Cost: one pass of a few regular expressions over the provision texts and one over the
+blocks to find the definitions, then one pass of a single alternation of all name forms to
+count uses: O(total text length x number of terms) in the worst case of the regex engine,
+in practice close to linear.
 """
 
 from __future__ import annotations
 
 import re
-from collections.abc import Iterable, Sequence
+from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import dataclass
 
-from .model import DefinedTerm, Provision
+from .model import Block, DefinedTerm, Provision
 from .structure import clean_term
 
-__all__ = ["find_terms", "term_forms", "term_pattern", "terms_pattern"]
+__all__ = ["MAX_INLINE_DEFINITION_CHARS", "find_terms", "term_forms", "term_pattern",
+           "terms_pattern"]
 
 #: Longest definition text kept for an inline definition (characters): one sentence of a
 #: provision is the definition; a run-on sentence is cut here.
@@ -44,49 +70,200 @@ MAX_INLINE_DEFINITION_CHARS = 600
 #: An alternative form defined with the term ("You" (or "Your")) starts within this many
 #: characters after the term in a definition provision.
 ALIAS_WINDOW = 20
-#: Words that may sit between a quoted term and "means" ("Source" form shall mean ...).
+#: Words that may sit between a quoted term and "means" ("Source" form shall mean ...; the
+#: longest in the licence texts is GPL 3's "for a work in object code form", seven words).
 MAX_WORDS_BEFORE_VERB = 7
+#: Longest unquoted term (words).  Without quotes only a short title-case name reads as a
+#: term; the longest unquoted names of the licence texts ("Copyright and Similar Rights",
+#: "Sui Generis Database Rights") have four words, so five leave a margin.
+MAX_UNQUOTED_TERM_WORDS = 5
+#: Rows a table needs before its shape alone (no header) makes it a definition table, and
+#: the share of its rows that must then read as term | meaning: one row is a coincidence;
+#: two of three rows is a pattern (judgement values, common practice, no source).
+TABLE_MIN_ROWS = 2
+TABLE_DEFINITION_SHARE = 2 / 3
+#: Words a meaning cell needs to read as a definition ("the buyer named in the Order"); a
+#: shorter cell is a value (an amount, a date, a name).
+MIN_MEANING_WORDS = 3
 
-_TERM_Q = r"(?:[\"“](?P<t1>[^\"“”\n]{1,80}?)[\"”]|‘(?P<t2>[^‘’\n]{1,80}?)’)"
-_QUOTED_RE = re.compile(r"[\"“](?P<t1>[^\"“”\n]{1,80}?)[\"”]|‘(?P<t2>[^‘’\n]{1,80}?)’")
+# --------------------------------------------------------------------------------------
+# Quoted names
+# --------------------------------------------------------------------------------------
+
+#: (opening quote, body, closing quote) of each quoting style, in the order tried.
+_QUOTE_STYLES = (
+    (r"(?:``|'')", r"[^`'\"“”\n]{1,80}?", r"''"),  # TeX and typewriter: ``X'' and ''X''
+    (r"[\"“”„]", r"[^\"“”\n]{1,80}?", r"(?:[\"”“]|'')"),  # double quotes ("You'' too)
+    (r"‘", r"[^‘’\n]{1,80}?", r"[’']"),
+    (r"(?<![\w'’])'(?=[^\s'])", r"[^'\n]{1,80}?", r"(?<=\S)'(?![\w'])"),  # not an apostrophe
+    (r"«\s?", r"[^«»\n]{1,80}?", r"\s?»"),
+)
+
+
+def _quoted(tag: str | None) -> str:
+    """A regex of a quoted name; with *tag*, its body is captured in a group ``<tag><k>``."""
+    alts = []
+    for k, (opening, body, closing) in enumerate(_QUOTE_STYLES):
+        inner = f"(?P<{tag}{k}>{body})" if tag else f"(?:{body})"
+        alts.append(opening + inner + closing)
+    return "(?:" + "|".join(alts) + ")"
+
+
+def _body(m: re.Match[str], tag: str) -> str | None:
+    for k in range(len(_QUOTE_STYLES)):
+        v = m.group(f"{tag}{k}")
+        if v is not None:
+            return v
+    return None
+
+
+_QN = _quoted(None)
+_QUOTED_RE = re.compile(_quoted("q"))
+#: Between two names of a list: "A", "B" or "C"; "A" and "B"; "I"/"Me"; "A," "B".
+_LIST_SEP = r"\s*(?:,\s*|/\s*)?(?i:(?:and/or|and|or)\s+)?(?i:the\s+)?"
+#: Most names in one list.  The licence texts have lists of four ("BugSense," "we," "us,"
+#: and "our" refers to ...; amazon-redshift-jdbc's four "are defined" terms); ten leave a
+#: margin and keep a run of quoted titles from reading as one list.
+MAX_LIST_NAMES = 10
+_NAME_LIST = _QN + r"(?:" + _LIST_SEP + _QN + r"){0,%d}" % (MAX_LIST_NAMES - 1)
+
 _VERBS = (
-    r"(?:shall\s+be\s+deemed\s+to\s+mean|shall\s+mean|shall\s+have\s+the\s+meanings?|"
-    r"has\s+the\s+meanings?|have\s+the\s+meanings?|also\s+means|means|mean|refers\s+to|"
-    r"refer\s+to|shall\s+refer\s+to|shall\s+include|includes|include|is\s+defined|are\s+defined)\b"
+    r"(?:shall\s+be\s+deemed\s+to\s+mean|shall\s+mean|will\s+mean|shall\s+have\s+the\s+meanings?|"
+    r"has\s+the\s+(?:same\s+)?meanings?|have\s+the\s+(?:same\s+)?meanings?|also\s+means|means|mean|"
+    r"(?:shall|will)\s+refer\s+to|refers\s+to|refer\s+to|(?:shall|will)\s+include|includes|include|"
+    r"is\s+defined|are\s+defined)\b"
 )
-_MEANS_RE = re.compile(
-    _TERM_Q
+#: Verbs after which a list of names are separate terms, each with the meaning given.
+_SEPARATE_VERB_RE = re.compile(r"meanings\b|same\s+meaning|\bdefined\b")
+#: "means" the noun ("Electronic means shall include"), not the verb.  Checked after a
+#: quoted term too, and more strictly without quotes, where "means that", "means which"
+#: and a comma also show the noun ("Electronic means, such as email, ...").
+_NOUN_MEANS_RE = re.compile(r"\s+(?:shall|will|may|must|is|are|was|were|of|by)\b|\s*[.;]")
+_NOUN_MEANS_UNQUOTED_RE = re.compile(
+    r"\s+(?:shall|will|may|must|is|are|was|were|of|by|that|which|whereby)\b|\s*[.,;:]")
+_SUBJECT_RE = re.compile(
+    r"(?P<list>" + _NAME_LIST + r")"
     + r"(?P<alias>\s*\([^()\n]{0,80}\))?"
-    + r"(?:\s+(?!(?:means|mean|shall|has|have|refers|includes|include)\b)[\w’'-]+)"
-    + r"{0,%d}?" % MAX_WORDS_BEFORE_VERB
-    + r"\s*,?\s+" + _VERBS
+    + r"(?P<between>(?:,?\s+(?!(?:means|mean|shall|will|has|have|refers|refer|includes|include)\b)"
+    + r"[\w’'-]+){0,%d}?)" % MAX_WORDS_BEFORE_VERB
+    + r"\s*[,:]?\s+(?P<verb>(?i:" + _VERBS + r"))"  # verbs in capitals too (a notice in capitals)
 )
-_COLON_START_RE = re.compile(r"^\s*" + _TERM_Q + r"\s*[:–—]")
-_PAREN_RE = re.compile(r"\((?P<inner>[^()\n]{1,200})\)")
-_HEREINAFTER_RE = re.compile(
-    r"\bhereinafter(?:\s+(?:referred\s+to\s+as|called|known\s+as))?\s*,?\s*(?:the\s+)?" + _TERM_Q,
-    re.IGNORECASE,
-)
-_COLLECTIVE_RE = re.compile(
-    r"\b(?:each|together|collectively|individually|jointly|both)\b(?:\s*,)?(?:\s+(?:a|an|the|being))?"
-    r"(?:\s*,)?\s+" + _TERM_Q,
-    re.IGNORECASE,
-)
-_CALLED_RE = re.compile(
-    r"\b(?:is|are|be|being)\s+(?:called|referred\s+to\s+as|known\s+as|designated\s+as|termed)\s+"
-    r"(?:the\s+|an?\s+)?" + _TERM_Q
-)
+#: Words that may precede a quoted subject of "includes" in its clause: "the term", "To",
+#: "A", "and".  Stronger verbs ("means", "refers to") allow a short introduction ("For the
+#: purposes of redistribution", "A section", "As used in section 3.2") without
+#: :data:`_CLAUSE_BLOCKERS`.
+_SUBJECT_LEAD = frozenset(
+    "the a an to term terms expression expressions word words phrase phrases and or also "
+    "each any".split())
+#: Words that show the quoted name sits inside a clause, not at its head ("Where the",
+#: "it is", "displays").
+_CLAUSE_BLOCKERS = frozenset(
+    "if when whenever while unless whether although though because since "
+    "that which who whom whose is are was were be been being has have had shall will may "
+    "must can could would should does do did not no displays display called named marked "
+    "see".split())
+#: Longest introduction before a quoted subject (words): "As used in section 3.2 of the
+#: OPL" has seven.
+MAX_SUBJECT_INTRO_WORDS = 8
+#: First words of such an introduction: a preposition ("For the purposes of ...", "As used
+#: in ..."), "References to", or a determiner of a noun the term qualifies ("A section
+#: "Entitled XYZ" means"); "He said "this" means" is no definition.
+_INTRO_STARTS = frozenset(
+    "for in as under throughout within with where wherever notwithstanding solely save "
+    "except references reference a an the any each every all".split())
+_WEAK_VERB_RE = re.compile(r"\binclude")
+#: Words between a quoted term and its verb that show a new clause: no definition then.
+_CONNECTORS = frozenset(
+    "and or but that which who whom whose if when where while then because so is are was "
+    "were be been shall will may must can could would should not".split())
+#: Boundaries of the clause a subject opens.
+_CLAUSE_BOUNDARY_RE = re.compile(r"[;:(\n,]|\.(?!\d)")  # a full stop, not the one of "3.2"
+
 #: Words that may stand in a parenthesis around a term being defined: (the "X"),
 #: (each a "X"), (together, the "X"), (hereinafter referred to as "X"), (or "Y").
 _PAREN_CUES = frozenset(
     "the a an each together collectively individually jointly severally both hereinafter "
     "hereafter herein referred to as called known also or and being in case any one".split()
 )
-_SENTENCE_SPLIT_RE = re.compile(r"(?<=[.;])\s+(?=[A-Z\"“‘(])")
+#: Cue words after which a name is a term of its own ("each a X and together the Y").
+_SEPARATE_CUES = frozenset("and each together collectively individually jointly severally both".split())
+_PAREN_RE = re.compile(r"\((?P<inner>[^()\n]{1,200})\)")
+_HEREINAFTER_RE = re.compile(
+    r"\bhereinafter(?:\s+(?:referred\s+to\s+as|called|known\s+as))?\s*,?\s*(?:the\s+)?"
+    r"(?P<list>" + _NAME_LIST + ")", re.IGNORECASE)
+_COLLECTIVE_RE = re.compile(
+    r"\b(?:each|together|collectively|individually|jointly|both)\b(?:\s*,)?(?:\s+(?:a|an|the|being))?"
+    r"(?:\s*,)?\s+" + _quoted("q"), re.IGNORECASE)
+_CALLED_RE = re.compile(
+    r"\b(?:is|are|be|being)\s+(?:called|refer(?:red|eed|ed)\s+to\s+as|known\s+as|designated\s+as|termed)\s+"
+    r"(?:the\s+|an?\s+)?(?P<list>" + _NAME_LIST + ")")
+_REFER_AS_RE = re.compile(
+    r"\brefer\s+to\s+" + _quoted("q") + r"\s+as\s+(?:the\s+)?(?P<list>" + _NAME_LIST + ")")
+#: "a "commercial item," as that term is defined in 48 C.F.R. 2.101": a term defined by
+#: reference to another instrument.
+_AS_DEFINED_RE = re.compile(
+    _quoted("q") + r"\s*,?\s*as\s+(?:that|such|the|this)\s+terms?\s+(?:is|are)\s+(?:defined|used)\b")
+_SENTENCE_SPLIT_RE = re.compile(r"(?<=[.;])\s+(?=[A-Z\"“‘(])|\n\s*")
+
+# --------------------------------------------------------------------------------------
+# Unquoted names at the start of a provision or line
+# --------------------------------------------------------------------------------------
+
+_CAP_WORD = r"[A-Z][\w’'&-]*"
+_SMALL = r"(?:of|and|or|for|in|the|to|on|by|with|a|an|under)"
+_TITLE_PHRASE = _CAP_WORD + r"(?:[ \t]+(?:" + _SMALL + r"[ \t]+){0,2}" + _CAP_WORD + r"){0,%d}" % (
+    MAX_UNQUOTED_TERM_WORDS - 1)
+#: A label typed at the start of a line the structure reader left in the text: "1.5.", "(a)".
+_LINE_LABEL = r"(?:(?:\d{1,3}(?:\.\d{1,3})*\.?|\(?[a-zA-Z]{1,4}[.)]|\([a-z0-9]{1,4}\))\s+)?"
+_UNQUOTED_VERBS = (
+    r"(?:means|shall\s+mean|will\s+mean|shall\s+have\s+the\s+meaning|has\s+the\s+meaning|"
+    r"(?:shall|will)\s+refer\s+to|refers\s+to|is\s+defined\s+as)\b"
+)
+_UNQUOTED_RE = re.compile(
+    r"(?m)^[ \t]*" + _LINE_LABEL + r"(?P<name>" + _TITLE_PHRASE + r")"
+    r"(?P<alias>\s*\([^()\n]{1,60}\))?"
+    r"(?P<sep>[ \t]*[:–—][ \t]*|[ \t]*,?[ \t]+)(?P<verb>" + _UNQUOTED_VERBS + r")?")
+_QUOTED_LINE_START_RE = re.compile(
+    r"(?m)^[ \t]*" + _LINE_LABEL + r"(?:(?:the|a|an|to)\s+)?(?P<list>" + _NAME_LIST + r")"
+    r"(?P<alias>\s*\([^()\n]{0,80}\))?\s*(?P<sep>[:–—]|\s-\s)")
+#: First words that start a sentence, never an unquoted term (common practice, no source).
+_NOT_TERM_STARTS = frozenset(
+    "this that these those such each every any all no none it its if in for where when "
+    "whereas while our their his her your my we they he she you'll subject notwithstanding "
+    "provided unless upon on at by as to from with without".split())
+_CORRESPONDING_RE = re.compile(
+    r"(?:^|(?<=[.;]\s))(?P<names>(?:" + _QN + r"|" + _CAP_WORD + r")(?:" + _LIST_SEP
+    + r"(?:" + _QN + r"|" + _CAP_WORD + r"))?)\s+(?:has|have)\s+(?:a\s+)?corresponding\s+meanings?\b")
+_DEFINITIONS_HEADING_RE = re.compile(
+    r"^\W*(?:(?:the\s+)?definitions?|defined\s+terms|interpretation|glossary|"
+    r"definitions?\s+(?:and|&)\s+\w+|\w+\s+(?:and|&)\s+definitions?)\W*$", re.IGNORECASE)
 
 
-def _group_term(m: re.Match[str]) -> str | None:
-    return clean_term(m.group("t1") or m.group("t2") or "")
+@dataclass(frozen=True, slots=True)
+class _Found:
+    """Names defined at one place of a text: the term first, then its aliases."""
+
+    offset: int
+    names: tuple[str, ...]
+
+
+def _clean_all(raws: Iterable[str | None]) -> tuple[str, ...]:
+    out: list[str] = []
+    for raw in raws:
+        t = clean_term(raw or "")
+        if t is not None and t not in out:
+            out.append(t)
+    return tuple(out)
+
+
+def _list_names(text: str) -> tuple[str, ...]:
+    return _clean_all(_body(m, "q") for m in _QUOTED_RE.finditer(text))
+
+
+def _list_is_separate(text: str) -> bool:
+    """Do the names of a list stand for separate terms ("A" and "B") rather than aliases?"""
+    between = _QUOTED_RE.sub("\x00", text).split("\x00")[1:-1]
+    return any(w in _SEPARATE_CUES for b in between for w in re.findall(r"[a-z]+", b.lower()))
 
 
 def _cue_words_only(text: str) -> bool:
@@ -94,27 +271,181 @@ def _cue_words_only(text: str) -> bool:
     return all(w in _PAREN_CUES or not w for w in words)
 
 
-def _paren_terms(inner: str) -> list[str]:
-    """Terms defined in a parenthesis: ("X"), (the "X"), (each a "X" and together the "Y")."""
+def _paren_groups(inner: str) -> list[tuple[str, ...]]:
+    """Terms defined in a parenthesis, each with its aliases: ("X"), (the "X"), ("You" or
+    "Customer"), (each a "X" and together the "Y")."""
     quotes = list(_QUOTED_RE.finditer(inner))
     if not quotes:
         return []
+    groups: list[list[str | None]] = []
     pos = 0
-    terms = []
     for q in quotes:
-        if not _cue_words_only(inner[pos:q.start()]):
+        gap = inner[pos:q.start()]
+        if not _cue_words_only(gap):
             return []
-        t = _group_term(q)
-        if t is None:
-            return []
-        terms.append(t)
+        separate = any(w.strip(",;:").lower() in _SEPARATE_CUES for w in gap.split())
+        if not groups or separate:
+            groups.append([])
+        groups[-1].append(_body(q, "q"))
         pos = q.end()
     if inner[pos:].strip(" ,;.:"):
         return []
-    return terms
+    out = [_clean_all(g) for g in groups]
+    return [g for g in out if g]
 
 
-def _sentence_at(text: str, offset: int) -> str:
+def _unquoted_alias_names(paren: str) -> tuple[str, ...]:
+    """(or Your), (or "Your"), ("Your"): the other names of an unquoted term."""
+    inner = paren.strip()[1:-1]
+    groups = _paren_groups(inner)
+    if groups:
+        return tuple(n for g in groups for n in g)
+    m = re.fullmatch(r"\s*(?:or|also|each\s+an?)\s+(" + _TITLE_PHRASE + r")\s*", inner)
+    return _clean_all([m.group(1)]) if m else ()
+
+
+def _subject_position(text: str, start: int, *, strict: bool) -> bool:
+    """Is *start* where a subject stands: the start of a sentence or clause, after nothing
+    but "the", "To", "the term" and the like (*strict*), or after a short introduction
+    without a verb or a subordinating word?"""
+    lo = max(0, start - 120)
+    before = text[lo:start]
+    cut = -1
+    for m in _CLAUSE_BOUNDARY_RE.finditer(before):
+        cut = m.end()
+    if cut < 0 and lo > 0:
+        return False
+    words = [w.lower() for w in re.findall(r"[A-Za-z][\w'’-]*", before[max(cut, 0):])]
+    if words[-1:] in (["term"], ["terms"]) or all(w in _SUBJECT_LEAD for w in words):
+        return True
+    if strict or len(words) > MAX_SUBJECT_INTRO_WORDS:
+        return False
+    while words[:1] in (["and"], ["or"]):
+        words = words[1:]
+    if words[:3] == ["in", "which", "case"]:  # "..., in which case "you" will mean the entity"
+        words = words[3:]
+    if not words:
+        return True
+    if words[0] not in _INTRO_STARTS and not (len(words) == 1 and len(words[0]) == 1):
+        return False  # a one-letter bullet ("o") is no sentence
+    return not any(w in _CLAUSE_BLOCKERS for w in words)
+
+
+def _subject_definitions(text: str) -> list[_Found]:
+    """Subject-and-verb definitions.  After a match that is no definition the search goes
+    on one character after its start, so a long match does not hide a shorter one inside
+    it (``as "X."  "X" means``: the second "X")."""
+    found: list[_Found] = []
+    pos = 0
+    while (m := _SUBJECT_RE.search(text, pos)) is not None:
+        got = _subject_found(text, m)
+        if got is None:
+            pos = m.start() + 1
+        else:
+            found.extend(got)
+            pos = m.end()
+    return found
+
+
+def _subject_found(text: str, m: re.Match[str]) -> list[_Found] | None:
+    """The definitions of a subject-and-verb match, or None when it is none."""
+    verb = m.group("verb").lower()
+    if verb.startswith("mean") and _NOUN_MEANS_RE.match(text, m.end()):
+        return None
+    if not _subject_position(text, m.start(), strict=_WEAK_VERB_RE.match(verb) is not None):
+        return None
+    between = [w.lower() for w in m.group("between").replace(",", " ").split()]
+    if between[1:2] == ["used"]:  # "X", when used in this Agreement, shall mean
+        between = between[2:]
+    if any(w in _CONNECTORS for w in between):
+        return None
+    names = _list_names(m.group("list"))
+    if not names:
+        return None
+    aliases: tuple[str, ...] = ()
+    if m.group("alias"):
+        aliases = tuple(n for g in _paren_groups(m.group("alias").strip()[1:-1]) for n in g)
+    if len(names) > 1 and _SEPARATE_VERB_RE.search(verb):
+        return [_Found(m.start(), (n,)) for n in names]
+    return [_Found(m.start(), names + aliases)]
+
+
+def _line_start_definitions(text: str, *, in_definitions: bool) -> list[_Found]:
+    """Definitions at the start of the text or of one of its lines: unquoted terms with a
+    defining verb, quoted terms with a colon or dash."""
+    found: list[_Found] = []
+    for m in _UNQUOTED_RE.finditer(text):
+        name = m.group("name")
+        first = name.split()[0].lower()
+        if first in _NOT_TERM_STARTS or (first in ("a", "an") and len(name.split()) == 1):
+            continue
+        colon = m.group("sep").strip() != "" and m.group("sep").strip() != ","
+        rest = text[m.end():m.end() + 2]
+        if m.group("verb") is None and not (colon and in_definitions and rest[:1].islower()):
+            continue
+        if m.group("verb") is not None and _NOUN_MEANS_UNQUOTED_RE.match(text, m.end()):
+            continue
+        if first in ("a", "an") and len(name.split()) > 1:
+            name = name.split(None, 1)[1]  # "An Apple Operating System means": the article goes
+        term = _clean_all([name])
+        if not term:
+            continue
+        aliases = _unquoted_alias_names(m.group("alias")) if m.group("alias") else ()
+        found.append(_Found(m.start("name"), term + aliases))
+    for m in _QUOTED_LINE_START_RE.finditer(text):
+        names = _list_names(m.group("list"))
+        if names:
+            aliases = _unquoted_alias_names(m.group("alias")) if m.group("alias") else ()
+            found.append(_Found(m.start("list"), names + aliases))
+    return found
+
+
+def _other_definitions(text: str) -> list[_Found]:
+    """Parentheses, "hereinafter", "each a ... together the", "is called", "refer to X as"."""
+    found: list[_Found] = []
+    for m in _PAREN_RE.finditer(text):
+        found.extend(_Found(m.start(), g) for g in _paren_groups(m.group("inner")))
+    for rx in (_HEREINAFTER_RE, _CALLED_RE):
+        for m in rx.finditer(text):
+            names = _list_names(m.group("list"))
+            if names and rx is _HEREINAFTER_RE and _list_is_separate(m.group("list")):
+                found.extend(_Found(m.start(), (n,)) for n in names)
+            elif names:
+                found.append(_Found(m.start(), names))
+    for rx in (_COLLECTIVE_RE, _AS_DEFINED_RE):
+        for m in rx.finditer(text):
+            names = _clean_all([_body(m, "q")])
+            if names:
+                found.append(_Found(m.start(), names))
+    for m in _REFER_AS_RE.finditer(text):
+        names = _clean_all([_body(m, "q")]) + _list_names(m.group("list"))
+        if names:
+            found.append(_Found(m.start(), names))
+    return found
+
+
+def _inline_definitions(text: str, *, in_definitions: bool = False) -> list[_Found]:
+    """Every definition in *text*, in order of offset."""
+    found = [*_subject_definitions(text), *_line_start_definitions(text, in_definitions=in_definitions),
+             *_other_definitions(text)]
+    found.sort(key=lambda f: f.offset)
+    return found
+
+
+def _corresponding_aliases(text: str) -> list[tuple[int, tuple[str, ...]]]:
+    """"Your has a corresponding meaning": (offset, names) of the other forms of the term
+    the provision defines."""
+    out = []
+    for m in _CORRESPONDING_RE.finditer(text) if "corresponding" in text else ():
+        raw = m.group("names")
+        names = _list_names(raw) or _clean_all(re.split(r"\s*,?\s*(?:and|or)\s+|\s*,\s*", raw))
+        if names:
+            out.append((m.start(), names))
+    return out
+
+
+def _sentence_span(text: str, offset: int) -> tuple[int, int]:
+    """The sentence of *text* around *offset*, white space trimmed."""
     start = 0
     for m in _SENTENCE_SPLIT_RE.finditer(text):
         if m.end() > offset:
@@ -122,38 +453,157 @@ def _sentence_at(text: str, offset: int) -> str:
         start = m.end()
     nxt = _SENTENCE_SPLIT_RE.search(text, max(offset, start))
     end = nxt.start() if nxt else len(text)
-    sentence = text[start:end].strip()
-    if len(sentence) > MAX_INLINE_DEFINITION_CHARS:
-        sentence = sentence[:MAX_INLINE_DEFINITION_CHARS].rstrip() + "…"
-    return sentence
+    while start < end and text[start].isspace():
+        start += 1
+    while end > start and text[end - 1].isspace():
+        end -= 1
+    return start, end
 
 
-def _inline_definitions(text: str) -> list[tuple[int, str]]:
-    """(offset, term) of every inline definition in *text*, in order."""
-    found: list[tuple[int, str]] = []
-    for m in _MEANS_RE.finditer(text):
-        t = _group_term(m)
-        if t is not None:
-            found.append((m.start(), t))
-        alias = m.group("alias")
-        if alias:
-            for a in _paren_terms(alias.strip()[1:-1]):
-                found.append((m.start("alias"), a))
-    m0 = _COLON_START_RE.match(text)
-    if m0:
-        t = _group_term(m0)
-        if t is not None:
-            found.append((m0.start(), t))
-    for m in _PAREN_RE.finditer(text):
-        for t in _paren_terms(m.group("inner")):
-            found.append((m.start(), t))
-    for rx in (_HEREINAFTER_RE, _COLLECTIVE_RE, _CALLED_RE):
-        for m in rx.finditer(text):
-            t = _group_term(m)
-            if t is not None:
-                found.append((m.start(), t))
-    found.sort(key=lambda ft: ft[0])
-    return found
+def _shown(text: str, span: tuple[int, int]) -> str:
+    a, b = span
+    if b - a > MAX_INLINE_DEFINITION_CHARS:
+        return text[a:a + MAX_INLINE_DEFINITION_CHARS].rstrip() + "…"
+    return text[a:b]
+
+
+# --------------------------------------------------------------------------------------
+# Definition tables and emphasised terms (from the blocks)
+# --------------------------------------------------------------------------------------
+
+_TABLE_HEADER_RE = re.compile(
+    r"^\W*(?:defined\s+)?(?:terms?|expressions?|words?|names?|definitions?|meanings?|"
+    r"interpretations?|descriptions?)\W*$", re.IGNORECASE)
+_MEANING_START_RE = re.compile(
+    r"^\W{0,2}(?:" + _UNQUOTED_VERBS + r"|[a-z])")
+
+
+@dataclass(frozen=True, slots=True)
+class _Place:
+    """Where a block's text sits in a provision's text."""
+
+    pid: str
+    offset: int
+
+
+def _places(provisions: Sequence[Provision]) -> dict[int, _Place]:
+    out: dict[int, _Place] = {}
+    for p in provisions:
+        off = 0
+        for s in p.segments:
+            out.setdefault(s.block, _Place(p.id, off - s.start))
+            off += s.end - s.start + 1
+    return out
+
+
+def _table_cell_term(cell: str) -> str | None:
+    cell = cell.strip()
+    m = _QUOTED_RE.fullmatch(cell.rstrip(":"))
+    raw = _body(m, "q") if m else cell.rstrip(":–—").strip()
+    words = raw.split()
+    if not words or len(words) > MAX_UNQUOTED_TERM_WORDS or raw.endswith((".", ";")):
+        return None
+    if not raw[:1].isupper() and m is None:
+        return None
+    return clean_term(raw)
+
+
+def _table_rows(run: Sequence[Block]) -> list[tuple[list[Block], str, str]]:
+    """(blocks, first cell, rest) of each row of a table run: a block with tabs is a row
+    (Markdown); otherwise cells alternate, a term-like cell starting a row (.docx)."""
+    rows: list[tuple[list[Block], str, str]] = []
+    for b in run:
+        if "\t" in b.text:
+            first, _, rest = b.text.partition("\t")
+            rows.append(([b], first, rest.replace("\t", " ").strip()))
+        elif not rows or (_table_cell_term(b.text) is not None and rows[-1][2]):
+            rows.append(([b], b.text, ""))
+        else:
+            blocks, first, rest = rows[-1]
+            rows[-1] = ([*blocks, b], first, (rest + " " + b.text).strip())
+    return rows
+
+
+def _reads_as_meaning(text: str) -> bool:
+    return len(text.split()) >= MIN_MEANING_WORDS and _MEANING_START_RE.match(text) is not None
+
+
+def _table_definitions(run: Sequence[Block], places: Mapping[int, _Place],
+                       texts: Mapping[str, str]) -> list[tuple[str, _Found, tuple[int, int]]]:
+    """(provision id, found, span) of the definitions of one table (a run of table blocks)."""
+    rows = _table_rows(run)
+    header = bool(rows) and bool(_TABLE_HEADER_RE.match(rows[0][1])) and bool(
+        _TABLE_HEADER_RE.match(rows[0][2] or "x"))
+    body = rows[1:] if header else rows
+    good = [r for r in body if _table_cell_term(r[1]) is not None and (
+        _reads_as_meaning(r[2]) or (r[0][0].emphasised and len(r[2].split()) >= MIN_MEANING_WORDS))]
+    if not header and (len(good) < TABLE_MIN_ROWS or len(good) < TABLE_DEFINITION_SHARE * len(body)):
+        return []
+    out = []
+    for blocks, first, rest in body:
+        term = _table_cell_term(first)
+        start, end = places.get(blocks[0].index), places.get(blocks[-1].index)
+        if term is None or not rest or start is None or end is None or start.pid != end.pid:
+            continue
+        first_block, last_block = blocks[0].text, blocks[-1].text
+        a = max(start.offset + len(first_block) - len(first_block.lstrip()), 0)
+        b = min(end.offset + len(last_block.rstrip()), len(texts[start.pid]))
+        if a < b:
+            out.append((start.pid, _Found(a, (term,)), (a, b)))
+    return out
+
+
+def _block_definitions(blocks: Sequence[Block], provisions: Sequence[Provision], *,
+                       in_definitions: frozenset[str]) -> list[tuple[str, _Found, tuple[int, int]]]:
+    """Definitions that only the blocks show: tables and emphasised (bold) lead-in terms;
+    *in_definitions* holds the ids of the provisions in a definitions section."""
+    places = _places(provisions)
+    texts = {p.id: p.text for p in provisions}
+    out: list[tuple[str, _Found, tuple[int, int]]] = []
+    run: list[Block] = []
+    for b in [*blocks, None]:
+        if b is not None and b.in_table:
+            if b.text.strip():
+                run.append(b)
+            continue
+        if run:
+            out.extend(_table_definitions(run, places, texts))
+            run = []
+        if b is not None and b.lead:
+            got = _lead_definition(b, places, texts, in_definitions=in_definitions)
+            if got is not None:
+                out.append(got)
+    return out
+
+
+_LEAD_VERB_RE = re.compile(r"\s*(?:\([^()\n]{1,60}\))?\s*[:–—]?\s*" + _UNQUOTED_VERBS)
+
+
+def _lead_definition(b: Block, places: Mapping[int, _Place], texts: Mapping[str, str], *,
+                     in_definitions: frozenset[str]) -> tuple[str, _Found, tuple[int, int]] | None:
+    """A bold or underlined term at the start of a paragraph, then "means" (or, in a
+    definitions section, a colon and the meaning).  The structure reader may have made the
+    term the provision's heading: the text then starts after it."""
+    place = places.get(b.index)
+    lead = (b.lead or "").strip()
+    k = b.text.find(lead)
+    if place is None or not lead or k < 0:
+        return None
+    text = texts[place.pid]
+    at = place.offset + k
+    if at < 0 or text[at:at + len(lead)] != lead:
+        at = max(at + len(lead), 0)  # the lead is the heading: the meaning starts the text
+        tail = text[at:]
+    else:
+        tail = text[at + len(lead):]
+    colon = lead.endswith((":", "–", "—")) or tail.lstrip()[:1] in (":", "–", "—")
+    if _LEAD_VERB_RE.match(tail) is None and not (
+            colon and place.pid in in_definitions and tail.lstrip(" :–—")[:1].islower()):
+        return None
+    term = _table_cell_term(lead.strip("\"“”'‘’ :–—.")) if lead[:1].isalnum() or lead[:1] in "\"“‘'" else None
+    if term is None:
+        return None
+    return place.pid, _Found(at, (term,)), _sentence_span(text, at)
 
 
 # --------------------------------------------------------------------------------------
@@ -193,7 +643,7 @@ def term_forms(term: str) -> tuple[str, ...]:
     return tuple(forms)
 
 
-_POSSESSIVE = r"(?:['’]s(?!\w)|(?<=s)['’](?!\w))?"
+_POSSESSIVE = r"(?:['’][sS](?!\w)|(?<=[sS])['’](?!\w))?"
 
 
 def _forms_regex(forms: Iterable[str]) -> str:
@@ -213,19 +663,23 @@ def term_pattern(term: str) -> re.Pattern[str]:
     return re.compile(_forms_regex(term_forms(term)))
 
 
-def terms_pattern(terms: Sequence[str]) -> tuple[re.Pattern[str], dict[str, str]]:
+def terms_pattern(terms: Sequence[str], *, aliases: Mapping[str, str] | None = None
+                  ) -> tuple[re.Pattern[str], dict[str, str]]:
     """One pattern for all *terms*, longest form first, and a map form -> term.
 
     Each match's text, minus any possessive ending and with white space collapsed, is a
     key of the map.  Because the longest form is tried first at each position, a longer
-    term that contains a shorter one is matched as the longer term.
+    term that contains a shorter one is matched as the longer term.  *aliases* maps other
+    names (alias -> term, the term among *terms*): their forms are matched too and map to
+    their term.
     """
     owner: dict[str, str] = {}
-    for t in terms:  # exact terms first, so "Services" the term beats "Service"'s plural
-        owner.setdefault(t, t)
-    for t in terms:
+    names = [*terms, *(aliases or {})]
+    for t in names:  # exact names first, so "Services" the term beats "Service"'s plural
+        owner.setdefault(t, (aliases or {}).get(t, t))
+    for t in names:
         for f in term_forms(t):
-            owner.setdefault(f, t)
+            owner.setdefault(f, owner[t])
     if not owner:
         return re.compile(r"(?!x)x"), owner
     return re.compile(_forms_regex(owner)), owner
@@ -233,7 +687,7 @@ def terms_pattern(terms: Sequence[str]) -> tuple[re.Pattern[str], dict[str, str]
 
 def _form_of(match_text: str) -> str:
     text = " ".join(match_text.split())
-    for suffix in ("'s", "’s", "'", "’"):
+    for suffix in ("'s", "’s", "'S", "’S", "'", "’"):
         if text.endswith(suffix):
             return text[: -len(suffix)]
     return text
@@ -244,30 +698,90 @@ def _form_of(match_text: str) -> str:
 # --------------------------------------------------------------------------------------
 
 
-def find_terms(provisions: Sequence[Provision]) -> tuple[DefinedTerm, ...]:
-    """The defined terms of a document, in order of definition, with their use counts."""
-    defs: dict[str, tuple[str, str]] = {}  # term -> (definition, provision id)
-    order: list[str] = []
+class _Collector:
+    """Definitions in document order; the first definition of a name wins."""
 
-    def add(term: str, definition: str, pid: str) -> None:
-        if term not in defs:
-            defs[term] = (definition, pid)
-            order.append(term)
+    def __init__(self) -> None:
+        self.defs: dict[str, tuple[str, str, tuple[int, int]]] = {}  # term -> (definition, pid, span)
+        self.aliases: dict[str, list[str]] = {}
+        self.owner: dict[str, str] = {}  # every name -> its term
 
+    def add(self, names: Sequence[str], definition: str, pid: str, span: tuple[int, int]) -> None:
+        names = [n for n in dict.fromkeys(names)]
+        if not names:
+            return
+        head = names[0]
+        if head in self.owner:
+            term = self.owner[head]
+            if self.defs[term][1] != pid:
+                return
+        else:
+            term = head
+            self.defs[term] = (definition, pid, span)
+            self.aliases[term] = []
+            self.owner[term] = term
+        for a in names[1:]:
+            if a not in self.owner:
+                self.owner[a] = term
+                self.aliases[term].append(a)
+
+
+def _in_definitions(p: Provision, by_id: Mapping[str, Provision]) -> bool:
+    """Is *p* a definition or inside a definitions section (an ancestor headed so)?"""
+    q: Provision | None = p
+    seen = 0
+    while q is not None and seen < 64:  # bounded: the nesting depth of a document
+        if q.kind == "definition" or (q.heading and _DEFINITIONS_HEADING_RE.match(q.heading)):
+            return True
+        q = by_id.get(q.parent) if q.parent else None
+        seen += 1
+    return False
+
+
+def _provision_definitions(p: Provision, c: _Collector, *, in_definitions: bool) -> None:
+    text = p.text
+    inline = _inline_definitions(text, in_definitions=in_definitions)
+    if p.kind == "definition" and p.term:
+        head = text.find(p.term) + len(p.term) + ALIAS_WINDOW
+        names = [p.term]
+        for f in inline:
+            if f.offset <= head and p.term in f.names:
+                names.extend(f.names)
+        for f in inline:  # an alternative form in the same breath: "You" (or "Your")
+            if f.offset <= head and p.term not in f.names:
+                names.extend(f.names)
+        c.add(names, text, p.id, (0, len(text)))
+    for f in inline:
+        span = _sentence_span(text, f.offset)
+        c.add(f.names, _shown(text, span), p.id, span)
+    for off, names in _corresponding_aliases(text):
+        owner = next((c.owner[f.names[0]] for f in reversed(inline) if f.offset < off
+                      and f.names[0] in c.owner and c.defs[c.owner[f.names[0]]][1] == p.id), None)
+        if owner is not None:
+            c.add([owner, *names], "", p.id, (0, 0))
+
+
+def find_terms(provisions: Sequence[Provision], *, blocks: Sequence[Block] = ()
+               ) -> tuple[DefinedTerm, ...]:
+    """The defined terms of a document, in order of definition, with their aliases, the
+    span of their definitions and their use counts.  *blocks* (the document's paragraphs,
+    whose indices the provisions' segments name) add the definitions only the blocks show:
+    definition tables and bold or underlined terms."""
+    c = _Collector()
+    by_id = {p.id: p for p in provisions}
+    in_defs = frozenset(p.id for p in provisions if _in_definitions(p, by_id))
+    from_blocks: dict[str, list[tuple[_Found, tuple[int, int]]]] = {}
+    for pid, f, span in _block_definitions(blocks, provisions, in_definitions=in_defs) if blocks else ():
+        from_blocks.setdefault(pid, []).append((f, span))
     for p in provisions:
-        inline = _inline_definitions(p.text)
-        if p.kind == "definition" and p.term:
-            add(p.term, p.text, p.id)
-            head = p.text.find(p.term) + len(p.term) + ALIAS_WINDOW
-            for off, t in inline:
-                if t != p.term and off <= head:
-                    add(t, p.text, p.id)  # an alternative form: "You" (or "Your")
-        for off, t in inline:
-            add(t, _sentence_at(p.text, off), p.id)
-
+        _provision_definitions(p, c, in_definitions=p.id in in_defs)
+        for f, span in from_blocks.get(p.id, ()):
+            c.add(f.names, _shown(p.text, span), p.id, span)
+    order = list(c.defs)
     if not order:
         return ()
-    pattern, owner = terms_pattern(order)
+    alias_of = {a: t for t, al in c.aliases.items() for a in al}
+    pattern, owner = terms_pattern(order, aliases=alias_of)
     uses = dict.fromkeys(order, 0)
     for p in provisions:
         for text in (p.heading or "", p.text):
@@ -275,7 +789,8 @@ def find_terms(provisions: Sequence[Provision]) -> tuple[DefinedTerm, ...]:
                 continue
             for m in pattern.finditer(text):
                 term = owner.get(_form_of(m.group(0)))
-                if term is not None and defs[term][1] != p.id:
+                if term is not None and c.defs[term][1] != p.id:
                     uses[term] += 1
-    return tuple(DefinedTerm(term=t, definition=defs[t][0], provision=defs[t][1], uses=uses[t])
+    return tuple(DefinedTerm(term=t, definition=c.defs[t][0], provision=c.defs[t][1], uses=uses[t],
+                             aliases=tuple(c.aliases[t]), span=c.defs[t][2])
                  for t in order)

@@ -4,7 +4,11 @@
 
 1. **term map** (:mod:`.termmap`): a first map from the definitions (and the vocabulary model
    when there is one), an alignment with it, then the final map with the substitution
-   evidence of the aligned provisions; the alignment is redone when the map changed;
+   evidence of the aligned provisions, which also finds names renamed throughout that
+   neither document defines (the documents are then tokenised again with those names as
+   terms); the alignment is redone when the map changed.  Each document's aliases are its
+   terms ("Your" is "You"), and every name that is not renamed and no party's label is
+   compared as the words it is written with;
 2. **alignment** (:mod:`.align`): provisions paired by content and heading after term
    normalisation; statuses same / changed / moved / added / removed / split / merged;
 3. **word diff** (:mod:`.worddiff`) of every aligned pair, with the draft's defined terms
@@ -40,7 +44,7 @@ from bisect import bisect_right
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, replace
 
-from ..model import Deviation, Document, Edit, Pair, Provision, Review
+from ..model import Deviation, Document, Edit, Pair, Provision, Review, TermMapping
 from .align import Alignment, Features, Group, align
 from .classify import Change, TermContext, classify_ops
 from .docinfo import DocInfo, build_docinfo
@@ -62,8 +66,8 @@ from .termmap import (
     TermMap,
     TermOverride,
     VocabularyModel,
-    count_substitutions,
     map_terms,
+    scan_slots,
 )
 from .tokens import (
     BaseTokens,
@@ -98,6 +102,8 @@ class _Side:
         self._text: list[BaseTokens | None] = [None] * n
         self._head: list[BaseTokens | None] = [None] * n
         self.to_key: Mapping[str, str] = {}
+        #: names compared as their words (terms that only one document has)
+        self.plain: frozenset[str] = frozenset()
 
     def text(self, i: int) -> BaseTokens:
         bt = self._text[i]
@@ -112,7 +118,12 @@ class _Side:
         return bt
 
     def seq(self, i: int, xref: Callable[[str, str], str] | None = None) -> TokenSeq:
-        return rekey(self.text(i), term_key=self.to_key, xref=xref)
+        return rekey(self.text(i), term_key=self.to_key, xref=xref, as_words=self.plain)
+
+    def rekey(self, bt: BaseTokens, *, mapped: bool,
+              xref: Callable[[str, str], str] | None = None) -> TokenSeq:
+        """*bt* (a text of this side) keyed for the diff; with *mapped*, the term map."""
+        return rekey(bt, term_key=self.to_key if mapped else {}, xref=xref, as_words=self.plain)
 
 
 def _features(side: _Side) -> list[Features]:
@@ -125,7 +136,7 @@ def _features(side: _Side) -> list[Features]:
             party_term.setdefault(t.provision, t.term)
     for i, p in enumerate(info.provisions):
         seq = side.seq(i)
-        hseq = rekey(side.head(i), term_key=side.to_key)
+        hseq = side.rekey(side.head(i), mapped=True)
         name = p.term if p.kind == "definition" else party_term.get(p.id)
         term = side.to_key.get(name, name) if name else None
         out.append(Features(tuple(word_keys(seq)), tuple(word_keys(hseq)), p.kind, term,
@@ -235,6 +246,21 @@ def _per_provision(ch: Change, ptext: str, pstarts: Sequence[int], dtext: str,
     return out
 
 
+def _rename_reason(m: TermMapping, *, defined: bool) -> str:
+    """The reason of a renamed term's deviation; stale uses of the precedent's name that
+    the draft keeps are named, never hidden."""
+    uses = f'{m.occurrences} use{"s" * (m.occurrences != 1)} in the draft'
+    if m.substitutions and m.aligned:
+        uses += f"; replaced in {m.substitutions} of {m.aligned} aligned places"
+    if m.stale:
+        uses += (f', and {m.stale} stale use{"s" * (m.stale != 1)} of "{m.precedent}" left '
+                 "in it")
+    tail = f"({uses}; evidence: {', '.join(m.evidence)}; confidence {m.confidence:.2f})"
+    if defined:
+        return f'defined term renamed: the draft\'s "{m.draft}" is the precedent\'s "{m.precedent}" {tail}'
+    return f'renamed throughout: the draft writes "{m.draft}" where the precedent writes "{m.precedent}" {tail}'
+
+
 def _local_label(num: str) -> str:
     m = re.search(r"\([^()]*\)$", num)
     if m:
@@ -259,18 +285,15 @@ def run_review(draft: Document, precedent: Document, *,
     rules = rules or default_rules()
     di, pi = build_docinfo(draft), build_docinfo(precedent)
     extra = [n for o in overrides for n in (o.draft, o.precedent or "") if n.strip()]
-    matcher = term_matcher([*di.term_names, *pi.term_names, *extra])
-    dside, pside = _Side(di, matcher), _Side(pi, matcher)
-
-    n_d, n_p = len(di.provisions), len(pi.provisions)
-    uses = (count_term_uses([*(dside.text(i) for i in range(n_d)), *(dside.head(i) for i in range(n_d))]),
-            count_term_uses([*(pside.text(i) for i in range(n_p)), *(pside.head(i) for i in range(n_p))]))
+    names = list(dict.fromkeys([*di.all_names, *pi.all_names, *extra]))
+    dside, pside, uses = _sides(di, pi, names)
     clock.lap("tokens: words, terms, cross-references")
 
     # 1-2. term map and alignment, twice: the substitution evidence needs an alignment.
     tm0 = map_terms(di, pi, overrides=overrides, vocabulary=vocabulary, uses=uses)
     clock.lap("term map: definitions")
     dside.to_key = tm0.to_precedent
+    dside.plain = pside.plain = _as_words(di, pi, tm0)
     al0 = align(_features(dside), _features(pside))
     clock.lap("alignment: first pass")
     d_names, p_names = set(di.term_names), set(pi.term_names)
@@ -278,12 +301,18 @@ def run_review(draft: Document, precedent: Document, *,
     p_only = [n for n in pi.term_names if n not in d_names]
     one_to_one = [(g.drafts[0], g.precedents[0]) for g in al0.groups if g.kind == "match"]
     dside.to_key = {}
-    subs = count_substitutions(one_to_one, draft_seq=dside.seq, precedent_seq=pside.seq,
-                               draft_names=d_only, precedent_names=p_only)
-    tm = map_terms(di, pi, overrides=overrides, vocabulary=vocabulary, substitutions=subs,
-                   uses=uses)
+    dside.plain = pside.plain = frozenset()  # the slots compare every name as a name
+    scan = scan_slots(one_to_one, draft_seq=dside.seq, precedent_seq=pside.seq,
+                      draft_names=d_only, precedent_names=p_only, known=names)
+    tm = map_terms(di, pi, overrides=overrides, vocabulary=vocabulary, substitutions=scan.terms,
+                   uses=uses, renames=scan.renames)
     clock.lap("term map: substitutions")
+    found = [n for n in tm.names if n not in set(names)]
+    if found:  # names found from the text are terms from now on: tokenise again
+        dside, pside, _uses = _sides(di, pi, [*names, *found])
+        clock.lap("tokens: words, terms, cross-references")
     dside.to_key = tm.to_precedent
+    dside.plain = pside.plain = _as_words(di, pi, tm)
     al = al0 if dict(tm.to_precedent) == dict(tm0.to_precedent) else align(_features(dside), _features(pside))
     clock.lap("alignment: with the term map")
 
@@ -293,6 +322,27 @@ def run_review(draft: Document, precedent: Document, *,
     review = builder.build()
     clock.lap("ranking and output")
     return review
+
+
+def _as_words(di: DocInfo, pi: DocInfo, tm: TermMap) -> frozenset[str]:
+    """Names compared as the words they are written with: all but the renamed ones (whose
+    uses must compare equal across the two names) and the parties' labels (whose swaps
+    the classifier reports).  A term that only one document defines, or that one document
+    writes in lower case, then differs from the other's words by letter case alone."""
+    keep = set(tm.to_precedent) | set(tm.to_precedent.values()) | di.party_labels | pi.party_labels
+    return frozenset(n for n in tm.names if n not in keep)
+
+
+def _sides(di: DocInfo, pi: DocInfo, names: Sequence[str]
+           ) -> tuple[_Side, _Side, tuple[dict[str, int], dict[str, int]]]:
+    """Both documents tokenised with every name of *names* as a term (each document's own
+    aliases read as their terms), and the uses of each name in each document."""
+    dside = _Side(di, term_matcher(names, aliases=di.alias_of, capitals=True))
+    pside = _Side(pi, term_matcher(names, aliases=pi.alias_of, capitals=True))
+    n_d, n_p = len(di.provisions), len(pi.provisions)
+    uses = (count_term_uses([*(dside.text(i) for i in range(n_d)), *(dside.head(i) for i in range(n_d))]),
+            count_term_uses([*(pside.text(i) for i in range(n_p)), *(pside.head(i) for i in range(n_p))]))
+    return dside, pside, uses
 
 
 def clear_caches() -> None:
@@ -466,8 +516,8 @@ class _Builder:
         else:
             pbt = base_tokens(ptext, self.pside.matcher)
             dbt = base_tokens(dtext, self.dside.matcher)
-            a = rekey(pbt, term_key={}, xref=self._xref_precedent)
-            b = rekey(dbt, term_key=self.dside.to_key, xref=self._xref_draft)
+            a = self.pside.rekey(pbt, mapped=False, xref=self._xref_precedent)
+            b = self.dside.rekey(dbt, mapped=True, xref=self._xref_draft)
             pterm, dterm = pbt.term_at, dbt.term_at
         a, b = self._plain(a), self._plain(b)
         clock.lap("tokens: words, terms, cross-references")
@@ -500,8 +550,8 @@ class _Builder:
         dh = self.di.provisions[g.drafts[0]].heading or ""
         if ph != dh:
             hpb, hdb = self.pside.head(g.precedents[0]), self.dside.head(g.drafts[0])
-            ha, hpt = self._plain(rekey(hpb, term_key={})), hpb.term_at
-            hb, hdt = self._plain(rekey(hdb, term_key=self.dside.to_key)), hdb.term_at
+            ha, hpt = self._plain(self.pside.rekey(hpb, mapped=False)), hpb.term_at
+            hb, hdt = self._plain(self.dside.rekey(hdb, mapped=True)), hdb.term_at
             changes = [c for c in classify_ops(ha, hb, token_ops(ha, hb), self._ctx(hdt, hpt))
                        if c.category != "term"]
             rank = {"substantive": 0, "completion": 1, "punctuation": 2, "formatting": 3,
@@ -697,18 +747,15 @@ class _Builder:
             self.devs.append(self._subtree_dev(members, added=False))
         for p in al.removed:
             pairs.append(((self.p_anchor[p], 0, p), Pair(None, pi.provisions[p].id, "removed", 0.0)))
-        # One deviation per renamed defined term.
+        # One deviation per renamed term.
         for m in self.tm.mappings:
             dprov = di.defining_provision.get(m.draft)
             pprov = pi.defining_provision.get(m.precedent)
             dpos = di.position.get(dprov, -1) if dprov else -1
-            ev = ", ".join(m.evidence)
             self.devs.append(_Dev(
                 (float(dpos), -1, 0), category_severity("term", rules=rules), "term", "replace",
-                dprov, pprov, m.precedent, m.draft,
-                (f'defined term renamed: the draft\'s "{m.draft}" is the precedent\'s '
-                 f'"{m.precedent}" ({m.occurrences} use{"s" * (m.occurrences != 1)} in the '
-                 f"draft; evidence: {ev}; confidence {m.confidence:.2f})",), part="provision"))
+                dprov, pprov, m.precedent, m.draft, (_rename_reason(m, defined=bool(dprov or pprov)),),
+                part="provision"))
 
         self._guard_figures()  # numbers are always substance: the last rule
         pairs.sort(key=lambda t: t[0])

@@ -1,11 +1,11 @@
 """Per-document facts the review stages share: provision positions, full clause numbers,
-defined-term names and the parties' own labels.  Built once per document, O(provisions +
-terms)."""
+defined-term names (each term's own name and its aliases) and the parties' own labels.
+Built once per document, O(provisions + terms)."""
 
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 from ..model import Document, Provision
 
@@ -65,6 +65,17 @@ class DocInfo:
     term_uses: dict[str, int]  # term -> DefinedTerm.uses
     party_labels: frozenset[str]
     party_roles: dict[str, str | None]
+    #: alias -> the term it names ("Your" -> "You"); aliases are never in ``term_names``
+    alias_of: dict[str, str] = field(default_factory=dict)
+
+    @property
+    def all_names(self) -> tuple[str, ...]:
+        """Every name of every term: the terms, then the aliases."""
+        return (*self.term_names, *self.alias_of)
+
+    def names_of(self, term: str) -> tuple[str, ...]:
+        """*term* and its aliases."""
+        return (term, *(a for a, t in self.alias_of.items() if t == term))
 
 
 #: Number keywords a label may start with (those core.structure reads as labels); a full
@@ -119,22 +130,37 @@ def build_docinfo(doc: Document) -> DocInfo:
     definitions: dict[str, str] = {}
     defining: dict[str, str] = {}
     uses: dict[str, int] = {}
+    alias_of: dict[str, str] = {}
     for t in doc.terms:
-        if t.term in definitions:
+        if t.term in definitions or t.term in alias_of:
             continue
         names.append(t.term)
         definitions[t.term] = t.definition
         defining[t.term] = t.provision
         uses[t.term] = t.uses
+        for a in t.aliases:
+            if a not in definitions:
+                alias_of.setdefault(a, t.term)
     parties: set[str] = set()
     for t in doc.terms:
-        if t.term.casefold() in _GENERIC_PARTY_TERMS:
+        if t.term.casefold() in _GENERIC_PARTY_TERMS or t.term not in definitions:
             continue
         kind = provs[position[t.provision]].kind if t.provision in position else ""
-        words = t.term.casefold().split()
+        words = [w for n in t.names for w in n.casefold().split()]
         role_word = any(w in _ALL_ROLE_WORDS for w in words)
         if kind == "parties" or (role_word and _ENTITY_RE.search(t.definition)):
             parties.add(t.term)
-    roles = {t: party_role(t, definitions.get(t, "")) for t in parties}
+    roles = {t: _role_of_names(t, [a for a, o in alias_of.items() if o == t], definitions.get(t, ""))
+             for t in parties}
     return DocInfo(doc, provs, position, parent_pos, tuple(full), by_number, tuple(names),
-                   definitions, defining, uses, frozenset(parties), roles)
+                   definitions, defining, uses, frozenset(parties), roles, alias_of)
+
+
+def _role_of_names(term: str, aliases: list[str], definition: str) -> str | None:
+    """The side of a party label, from its own name first, then from its aliases ("You"
+    (or "Licensee")), then from its definition."""
+    for name in (term, *aliases):
+        role = party_role(name)
+        if role is not None:
+            return role
+    return party_role(term, definition)

@@ -4,7 +4,8 @@ Exactly this shape (``resources/schemas/review.schema.json`` is its JSON Schema)
 
     {"schema": "counterdraft.review/1",
      "draft": {counterdraft.document/1}, "precedent": {counterdraft.document/1},
-     "term_map": [{"draft", "precedent", "confidence", "evidence", "occurrences"}],
+     "term_map": [{"draft", "precedent", "confidence", "evidence", "occurrences", "stale",
+                   "substitutions", "aligned"}],
      "pairs": [{"draft", "precedent", "status", "similarity", "frequency"}],
      "deviations": [{"id", "rank", "severity", "category", "change", "draft_provision",
                      "precedent_provision", "precedent_text", "draft_text", "reasons",
@@ -66,7 +67,8 @@ def review_to_dict(review: Review) -> dict[str, Any]:
         "precedent": document_to_dict(review.precedent),
         "term_map": [
             {"draft": m.draft, "precedent": m.precedent, "confidence": m.confidence,
-             "evidence": list(m.evidence), "occurrences": m.occurrences}
+             "evidence": list(m.evidence), "occurrences": m.occurrences, "stale": m.stale,
+             "substitutions": m.substitutions, "aligned": m.aligned}
             for m in review.term_map
         ],
         "pairs": [

@@ -15,7 +15,7 @@ one for cross-references, so O(length of text).
 from __future__ import annotations
 
 import re
-from collections.abc import Callable, Container, Iterable, Mapping, Sequence
+from collections.abc import Callable, Collection, Container, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
 from ..terms import terms_pattern
@@ -228,18 +228,34 @@ def base_tokens(text: str, matcher: TermMatcher | None, *, xrefs: bool = True) -
 
 
 def rekey(bt: BaseTokens, *, term_key: Mapping[str, str],
-          xref: Callable[[str, str], str] | None = None) -> TokenSeq:
+          xref: Callable[[str, str], str] | None = None,
+          as_words: Collection[str] = frozenset()) -> TokenSeq:
     """*bt*'s tokens with each term use keyed by ``term_key.get(name, name)`` and form, and
-    each cross-reference by ``xref(number, keyword)`` ("#" for all when *xref* is None)."""
+    each cross-reference by ``xref(number, keyword)`` ("#" for all when *xref* is None).
+
+    The uses of the names in *as_words* are words (kind and key of a plain word): a term
+    that is not renamed is compared as the words it is written with, so that the draft's
+    defined "Reproduce" and the precedent's plain "reproduce" differ in letter case only."""
     if not bt.terms and not bt.xrefs:
         return bt.seq
     keys = list(bt.seq.keys)
+    words: list[int] = []
     for i, name, form in bt.terms:
+        if name in as_words:
+            keys[i] = normalise_key(" ".join(bt.seq.token(i).split()))
+            words.append(i)
+            continue
         keys[i] = "\x00T" + term_key.get(name, name) + "\x00" + form
     for i, number, keyword in bt.xrefs:
         keys[i] = "\x00X" + (xref(number, keyword) if xref is not None else "#")
     seq = bt.seq
-    return TokenSeq(seq.text, seq.starts, tuple(keys), seq.kinds)
+    kinds = seq.kinds
+    if words:
+        chars = list(kinds)
+        for i in words:
+            chars[i] = KIND_WORD
+        kinds = "".join(chars)
+    return TokenSeq(seq.text, seq.starts, tuple(keys), kinds)
 
 
 def term_name(key: str) -> str:
@@ -288,13 +304,17 @@ class TermMatcher:
     endings, any white space between words, whole words, longest form first so that
     "Additional Services" is one use and not a use of "Services"); the pattern is built as a
     trie of the forms so that the regular-expression engine can skip every position whose
-    first character starts no form (about ten times faster on an agreement's text)."""
+    first character starts no form (about ten times faster on an agreement's text).  An
+    alias's forms belong to its term (``owner``); ``written`` maps each form to the name it
+    is a form of, so that "Your" (an alias of "You") is a singular use and "Clients" a
+    plural one."""
 
     pattern: re.Pattern[str]
     owner: Mapping[str, str]
+    written: Mapping[str, str]
 
 
-_POSSESSIVE = r"(?P<pos>['\u2019]s(?!\w)|(?<=s)['\u2019](?!\w))?(?!\w)"
+_POSSESSIVE = r"(?P<pos>['\u2019][sS](?!\w)|(?<=[sS])['\u2019](?!\w))?(?!\w)"
 
 
 def _trie_regex(forms: Iterable[str]) -> str:
@@ -331,14 +351,25 @@ def _trie_regex(forms: Iterable[str]) -> str:
     return parts[id(root)]
 
 
-def term_matcher(terms: Iterable[str]) -> TermMatcher | None:
-    """The matcher of *terms* (None when there is no term)."""
-    names = list(dict.fromkeys(t for t in terms if t.strip()))
-    if not names:
+def term_matcher(terms: Iterable[str], *, aliases: Mapping[str, str] | None = None,
+                 capitals: bool = False) -> TermMatcher | None:
+    """The matcher of *terms* and of *aliases* (alias -> its term; a use of an alias is a
+    use of its term); None when there is no name.  With *capitals*, a capitalised name
+    written all in capitals ("LICENSOR", in a disclaimer set in capitals) is a use of it
+    too; an ordinary phrase ("source code") in capitals is left as words."""
+    alias_of = {a: t for a, t in (aliases or {}).items() if a.strip() and a != t}
+    names = list(dict.fromkeys(t for t in terms if t.strip() and t not in alias_of))
+    if not names and not alias_of:
         return None
-    _reference, owner = terms_pattern(names)
+    if capitals:
+        for n in [*names, *alias_of]:
+            up = n.upper()
+            if n[:1].isupper() and up != n and up not in alias_of and up not in names:
+                alias_of[up] = alias_of.get(n, n)
+    _reference, owner = terms_pattern(names, aliases=alias_of)
+    _reference, written = terms_pattern([*names, *alias_of])
     pattern = re.compile(r"(?P<form>" + _trie_regex(owner) + r")" + _POSSESSIVE)
-    return TermMatcher(pattern, owner)
+    return TermMatcher(pattern, owner, written)
 
 
 def find_term_uses(text: str, matcher: TermMatcher | None) -> list[TermUse]:
@@ -359,8 +390,11 @@ def find_term_uses(text: str, matcher: TermMatcher | None) -> list[TermUse]:
             if term is None:
                 continue
         pos = m.group("pos")
-        form = ("pl" if f != term else "") + ("pos" if pos else "")
-        uses.append(TermUse(start, m.end(), term, form))
+        end = m.end()
+        if pos in ("'", "\u2019") and text[start - 1:start] in ("'", "\u2018"):
+            pos, end = None, end - 1  # 'Services': a closing quote, not a plural possessive
+        form = ("pl" if f != matcher.written.get(f, term) else "") + ("pos" if pos else "")
+        uses.append(TermUse(start, end, term, form))
     return uses
 
 

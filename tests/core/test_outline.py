@@ -55,3 +55,11 @@ def test_display_width():
     assert display_width("abc") == 3
     assert display_width("責任") == 4
     assert display_width("e\u0301") == 1  # e + combining acute accent
+
+
+def test_outline_names_a_term_s_aliases():
+    # apache-2.0.LICENSE (licensedcode-data): '"You" (or "Your") shall mean ...'.
+    doc = read_text(license_text("apache-2.0"))
+    lines = format_outline(doc, width=100).split("\n")
+    you = next(t for t in doc.terms if t.term == "You")
+    assert f"  You [also Your] ({you.provision}): {you.uses}" in lines

@@ -64,9 +64,12 @@ def test_docx_document_validates_and_has_exactly_the_agreed_keys(validator, tmp_
         "id": "p3", "kind": "definition", "number": None, "heading": None, "level": 0, "parent": "p2",
         "text": '"Goods" means lamp housings supplied by Quillmere (the "Supplier").', "term": "Goods",
     }
+    whole = [0, len(obj["provisions"][2]["text"])]  # each definition is the whole provision
     assert obj["terms"] == [
-        {"term": "Goods", "definition": obj["provisions"][2]["text"], "provision": "p3", "uses": 1},
-        {"term": "Supplier", "definition": obj["provisions"][2]["text"], "provision": "p3", "uses": 1},
+        {"term": "Goods", "definition": obj["provisions"][2]["text"], "provision": "p3", "uses": 1,
+         "aliases": [], "span": whole},
+        {"term": "Supplier", "definition": obj["provisions"][2]["text"], "provision": "p3", "uses": 1,
+         "aliases": [], "span": whole},
     ]
 
 

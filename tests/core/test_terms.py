@@ -40,7 +40,7 @@ def terms_of(*texts: str) -> dict[str, tuple[str, int]]:
     ('“Goods” means lamp housings.', ["Goods"]),
     ("‘Goods’ means lamp housings.", ["Goods"]),
     ('"Source" form shall mean the preferred form.', ["Source"]),
-    ('"You" (or "Your") shall mean an individual.', ["You", "Your"]),
+    ('"You" (or "Your") shall mean an individual.', ["You"]),  # "Your": an alias
     ('Quillmere Fabrication Limited (the "Supplier") agrees.', ["Supplier"]),
     ('Quillmere Fabrication Limited ("Supplier") agrees.', ["Supplier"]),
     ('the companies listed below (each a "Member") agree.', ["Member"]),

@@ -549,6 +549,8 @@ def measure(review: Review, *, name: str) -> PairFigures:
         cats = {v.category for v, (pr, dr) in spans if _touches(pr, rc.p) or _touches(dr, rc.d)}
         if not cats and any(_touches(pr, rc.p) or _touches(dr, rc.d) for pr, dr in terms):
             cats = {"term"}
+        if not cats and rc.p and rc.d and _renamed(review, [w.key for w in rc.d]) == [w.key for w in rc.p]:
+            cats = {"term"}  # a use of a renamed term inside a longer change: reported once, as the rename
         if not cats:
             near = [shown[k].near(*sp, near=NEAR_WORDS) for k, words in ((0, rc.p), (1, rc.d))
                     for sp in [_span_of(shown[k], words)] if sp]

@@ -63,3 +63,31 @@ def test_full_numbers_of_items_in_every_label_style():
     assert exhibits == ["A", "B"]
     assert item_label("b)") == item_label("(b)") == item_label("b.") == "(b)"
     assert item_label("7.2") is None and item_label("Schedule 2") is None
+
+
+def test_aliases_are_names_of_their_term_not_terms():
+    # apache-2.0.LICENSE: '"You" (or "Your") shall mean ...' (licensedcode-data).
+    info = build_docinfo(read_text(license_text("apache-2.0")))
+    assert "You" in info.term_names and "Your" not in info.term_names
+    assert info.alias_of == {"Your": "You"}
+    assert info.names_of("You") == ("You", "Your")
+    assert info.all_names[-1] == "Your"
+
+
+def test_a_party_label_takes_its_side_from_an_alias():
+    # netapp-sdk-aug2020.LICENSE (licensedcode-data): 'between you ... (“You”, “Your” or
+    # “Licensee”) and NetApp, Inc.' -- "You" has no side of its own; "Licensee" is the
+    # buyer's side (common practice, no source).
+    info = build_docinfo(doc("""
+        LICENCE AGREEMENT
+
+        This agreement is made between:
+
+        (1) Quillon Ashby Limited, a company incorporated in Ardence ("Licensor"); and
+
+        (2) Marsh Tollard Limited, a company incorporated in Corvanne ("You", "Your" or "Licensee").
+
+        1. The Licensor grants You a licence.
+    """))
+    assert info.party_labels == {"Licensor", "You"}
+    assert info.party_roles == {"Licensor": "supply", "You": "buy"}

@@ -49,7 +49,8 @@ def test_demo_review_is_valid_and_exactly_shaped(demo_review):
     assert obj["schema"] == "counterdraft.review/1"
     assert obj["draft"] == document_to_dict(demo_review.draft)
     assert obj["precedent"] == document_to_dict(demo_review.precedent)
-    assert set(obj["term_map"][0]) == {"draft", "precedent", "confidence", "evidence", "occurrences"}
+    assert set(obj["term_map"][0]) == {"draft", "precedent", "confidence", "evidence", "occurrences",
+                                       "stale", "substitutions", "aligned"}
     assert set(obj["pairs"][0]) == {"draft", "precedent", "status", "similarity", "frequency"}
     assert set(obj["deviations"][0]) == {
         "id", "rank", "severity", "category", "change", "draft_provision", "precedent_provision",

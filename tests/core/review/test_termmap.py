@@ -251,3 +251,43 @@ def test_bad_overrides_are_one_line_errors():
         TermOverride("Client", None, "confirm")
     with pytest.raises(CounterdraftError, match="empty draft term"):
         TermOverride(" ", "Customer")
+
+
+ALIAS_PRECEDENT = """
+    1. Definitions
+
+    1.1 "Buyer" (or "Purchaser") means the person who orders the lamps.
+
+    2. Orders
+
+    2.1 The Buyer shall place each order in writing.
+
+    2.2 The Purchaser shall collect the lamps from the depot.
+
+    2.3 The Buyer shall pay within thirty (30) days.
+"""
+
+
+def test_aliases_are_one_term_in_the_term_map():
+    """Invented agreements: the draft's "Customer" (or "Buyer") is the precedent's "Buyer"
+    (or "Purchaser"): the two terms share a name, so they are one term, mapped once, and
+    every use of either name of either side reads as that term."""
+    draft = ALIAS_PRECEDENT.replace('"Buyer" (or "Purchaser")', '"Customer" (or "Buyer")') \
+        .replace("2.1 The Buyer", "2.1 The Customer").replace("The Purchaser", "The Buyer")
+    review = run_review(doc(draft), doc(ALIAS_PRECEDENT))
+    [m] = review.term_map
+    # the shared name is definition evidence; 2.1 ("Customer" for "Buyer") adds a slot
+    assert (m.draft, m.precedent, m.evidence) == ("Customer", "Buyer", ("definition", "substitution"))
+    assert m.confidence >= MAP_MIN
+    assert substantive(review) == []
+
+
+def test_stale_uses_are_recorded_on_a_defined_rename():
+    """Invented agreement: the draft renames "Customer" "Client" but leaves one "Customer"
+    (in 2.3): one stale use, kept visible on the mapping and in its reason."""
+    draft = renamed(PRECEDENT).replace("3.1 The Client shall pay", "3.1 The Customer shall pay")
+    review = run_review(doc(draft), doc(PRECEDENT))
+    client = next(m for m in review.term_map if m.draft == "Client")
+    assert (client.precedent, client.stale) == ("Customer", 1)
+    reason = next(v.reasons[0] for v in review.deviations if v.category == "term" and v.draft_text == "Client")
+    assert '1 stale use of "Customer" left in it' in reason

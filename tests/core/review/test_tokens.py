@@ -108,3 +108,43 @@ def test_rekey_maps_terms_and_references_without_retokenising():
                   term_key={}, xref=lambda n, k: f"clause:{n}")
     assert seq.keys == other.keys
     assert bt.term_at == {4: "Client"}
+
+
+def test_alias_uses_are_uses_of_their_term():
+    # Inline example: "Your" is an alias of "You" (apache-2.0.LICENSE defines them so:
+    # '"You" (or "Your") shall mean'); "Clients" is the plural of "Client".
+    m = term_matcher(["You", "Client"], aliases={"Your": "You"})
+    uses = find_term_uses("You and Your Clients' files; the Client's copy.", m)
+    assert [(u.term, u.form) for u in uses] == [
+        ("You", ""), ("You", ""), ("Client", "plpos"), ("Client", "pos")]
+
+
+def test_capitalised_names_in_capitals_are_uses_when_asked():
+    # Inline example: a disclaimer set in capitals writes "LICENSOR'S" for "Licensor's"; an
+    # ordinary phrase in capitals ("SOURCE CODE") stays words.
+    text = "THE LICENSOR'S LIABILITY FOR SOURCE CODE; the Licensor and the source code."
+    plain = term_matcher(["Licensor", "source code"])
+    caps = term_matcher(["Licensor", "source code"], capitals=True)
+    assert [u.term for u in find_term_uses(text, plain)] == ["Licensor", "source code"]
+    assert [(u.term, u.form) for u in find_term_uses(text, caps)] == [
+        ("Licensor", "pos"), ("Licensor", ""), ("source code", "")]
+
+
+def test_a_closing_quote_after_a_name_ending_in_s_is_no_possessive():
+    # Inline example: ‘Services’ in single curly quotes; Services’ fees (a possessive).
+    m = term_matcher(["Services"])
+    uses = find_term_uses("the ‘Services’ and the Services’ fees", m)
+    assert [("pos" in u.form, "the ‘Services’ and the Services’ fees"[u.start:u.end]) for u in uses] == [
+        (False, "Services"), (True, "Services’")]
+
+
+def test_names_keyed_as_words_compare_by_their_letters():
+    # A name only one document has is keyed as its words: "Reproduce" (a term) and
+    # "reproduce" (a word) share a key, as cc-by-3.0 and cc-by-2.5 write them
+    # (licensedcode-data cc-by-3.0.LICENSE defines "Reproduce"; cc-by-2.5 uses the word).
+    m = term_matcher(["Reproduce"])
+    term = rekey(base_tokens("to Reproduce the Work", m), term_key={}, as_words={"Reproduce"})
+    word = rekey(base_tokens("to reproduce the Work", m), term_key={})
+    assert term.keys == word.keys
+    kept = rekey(base_tokens("to Reproduce the Work", m), term_key={})
+    assert kept.keys != word.keys
