@@ -54,6 +54,8 @@ in practice close to linear.
 
 from __future__ import annotations
 
+import bisect
+import functools
 import re
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
@@ -444,15 +446,21 @@ def _corresponding_aliases(text: str) -> list[tuple[int, tuple[str, ...]]]:
     return out
 
 
+@functools.lru_cache(maxsize=64)
+def _sentence_splits(text: str) -> tuple[tuple[int, ...], tuple[int, ...]]:
+    """(starts, ends) of the sentence breaks of *text*, found once per text (a provision
+    holding thousands of definitions asks for thousands of sentences)."""
+    found = list(_SENTENCE_SPLIT_RE.finditer(text))
+    return tuple(m.start() for m in found), tuple(m.end() for m in found)
+
+
 def _sentence_span(text: str, offset: int) -> tuple[int, int]:
-    """The sentence of *text* around *offset*, white space trimmed."""
-    start = 0
-    for m in _SENTENCE_SPLIT_RE.finditer(text):
-        if m.end() > offset:
-            break
-        start = m.end()
-    nxt = _SENTENCE_SPLIT_RE.search(text, max(offset, start))
-    end = nxt.start() if nxt else len(text)
+    """The sentence of *text* around *offset*, white space trimmed.  O(log sentences)."""
+    starts, ends = _sentence_splits(text)
+    k = bisect.bisect_right(ends, offset)  # breaks ending at or before offset
+    start = ends[k - 1] if k else 0
+    j = bisect.bisect_left(starts, max(offset, start))
+    end = starts[j] if j < len(starts) else len(text)
     while start < end and text[start].isspace():
         start += 1
     while end > start and text[end - 1].isspace():

@@ -307,7 +307,8 @@ def run_review(draft: Document, precedent: Document, *,
     tm = map_terms(di, pi, overrides=overrides, vocabulary=vocabulary, substitutions=scan.terms,
                    uses=uses, renames=scan.renames)
     clock.lap("term map: substitutions")
-    found = [n for n in tm.names if n not in set(names)]
+    known_names = set(names)
+    found = [n for n in tm.names if n not in known_names]
     if found:  # names found from the text are terms from now on: tokenise again
         dside, pside, _uses = _sides(di, pi, [*names, *found])
         clock.lap("tokens: words, terms, cross-references")
