@@ -8,7 +8,7 @@ mark                  colour family               non-colour cue
 ====================  ==========================  =========================================
 words in the draft    teal green on a light mint  solid underline
 words of precedent    violet on a mid lavender    strikethrough
-renamed defined term  neutral grey                dotted underline
+renamed defined term  dark grey on pale sand     dotted underline
 selected change       a deeper shade of the above bold type and a frame round the row
 added / removed       teal / violet side stripe   caption text and a hatched empty side
 moved                 grey side stripe            caption text ("moved from ... to ...")
@@ -18,7 +18,7 @@ Teal against violet is our own pair: it is neither the blue/orange nor the red/b
 other comparison screens, nor the red/green of text diffs (which collapses for the commonest
 colour-vision deficiencies).  It keeps apart for the three dichromacies because the two
 families differ on both opponent axes (teal is green-blue, violet red-blue) *and* in
-lightness: the deletion wash is about eleven CIE L* units darker than the insertion wash, so
+lightness: the deletion wash is about ten CIE L* units darker than the insertion wash, so
 a greyscale print still shows two different greys, besides the underline and the strike.
 The test ``tests/desktop/test_palette.py`` checks these claims with published formulas:
 contrast ratio of text against its background (WCAG 2.1), simulated dichromat vision
@@ -48,9 +48,9 @@ class MarkStyle:
 #: Words the draft has and the precedent does not (shown in the draft column).
 INSERTED = MarkStyle(ink="#00564a", background="#e1f6ec", strong_background="#a8e5cc")
 #: Words the precedent has and the draft does not (shown in the precedent column).
-DELETED = MarkStyle(ink="#3c1b70", background="#d9ccef", strong_background="#b6a3e3")
+DELETED = MarkStyle(ink="#4a1a6c", background="#e0cdef", strong_background="#c3a4e0")
 #: A defined term the draft calls by another name (both columns).
-TERM = MarkStyle(ink="#2b2b2b", background="#e8e8e3", strong_background="#cfcfc6")
+TERM = MarkStyle(ink="#2b2b2b", background="#f0e6cc", strong_background="#e3d5a8")
 
 #: Ordinary text and secondary text.
 INK = "#1d1d1f"
@@ -62,7 +62,7 @@ class RowColours:
     """Side stripes and fills of the aligned rows."""
 
     added_stripe: str = "#117a68"
-    removed_stripe: str = "#6a4aa8"
+    removed_stripe: str = "#774ba0"
     moved_stripe: str = "#6d6f78"
     changed_stripe: str = "#9aa3b5"
     hatch: str = "#b9bcc4"
@@ -91,9 +91,11 @@ class TallyColours:
 
     filled: str = "#3b4a63"
     draft: str = "#117a68"
-    precedent: str = "#6a4aa8"
-    outline: str = "#8d93a0"
+    precedent: str = "#774ba0"
+    outline: str = "#7d8390"
     empty: str = "#ffffff"
+    #: Under the hatching of the agreements that have no such provision.
+    hatch_ground: str = "#e4e5e9"
 
 
 BAR = BarColours()

@@ -87,8 +87,9 @@ def paint_tally(painter: QPainter, left: float, middle: float, t: Tally, *, side
         for _ in range(size):
             square = QRect(x, top, side, side)
             if drawn < t.filled and hatched:
+                painter.fillRect(square, QColor(TALLY.hatch_ground))
                 painter.fillRect(square, QBrush(QColor(TALLY.outline), Qt.BrushStyle.BDiagPattern))
-                painter.setPen(QPen(QColor(TALLY.filled), 1))
+                painter.setPen(QPen(QColor(TALLY.outline), 1))
                 painter.drawRect(square.adjusted(0, 0, -1, -1))
             elif drawn < t.filled:
                 painter.fillRect(square, QColor(fill))

@@ -699,7 +699,7 @@ ISSUE_WIDTHS_CM = {_NUMBER_COLUMN: 1.1, "Clause": 3.2, _WHAT_COLUMN: 7.2, _WHY_C
 #: window.  Dark ink on pale throughout so a greyscale print stays legible; the two washes
 #: differ in lightness, and the changed words are bold as well as washed.
 _PALETTE = {"ink": "#1e2b29", "muted": "#56625f", "rule": "#8a9a95", "head": "#dde6e2",
-            "group": "#f3f5f4", "was": "#d9ccef", "now": "#e1f6ec"}
+            "group": "#f3f5f4", "was": "#e0cdef", "now": "#e1f6ec"}
 
 _HTML_STYLE = """
 body {{ font-family: "Liberation Serif", "DejaVu Serif", Georgia, serif; margin: 2em; color: {ink}; }}
