@@ -134,7 +134,7 @@ def main(argv: list[str] | None = None) -> int:
 
     from .window import MainWindow
 
-    app = QApplication.instance() or QApplication(sys.argv[:1])
+    app = QApplication.instance() or QApplication(["counterdraft"])  # WM_CLASS "counterdraft"
     app.setApplicationName("Counterdraft")
     app.setOrganizationName("Counterdraft")
     app.setApplicationVersion(core.__version__)

@@ -54,7 +54,7 @@ from .terms import TermsPanel
 from .variants import VariantsView
 from .widgets import CautionBand, one_line, show_message
 
-__all__ = ["DEFAULT_SIZE", "FIT_SCREEN", "Hub", "MainWindow", "first_run_size"]
+__all__ = ["DEFAULT_SIZE", "FIT_SCREEN", "FRAME_PX", "TITLE_BAR_PX", "Hub", "MainWindow", "first_run_size"]
 
 #: The smallest common laptop screen we design for, in pixels (common practice, no source).
 FIT_SCREEN = (1366, 768)
@@ -62,8 +62,9 @@ FIT_SCREEN = (1366, 768)
 #: (1366 x 698), with a margin; later runs restore the user's size.  A smaller screen gets
 #: :func:`first_run_size`.
 DEFAULT_SIZE = (1320, 680)
-#: Share of a smaller screen's free area a first run takes.
-SCREEN_SHARE = 0.94
+#: What the window manager adds round the window: a title bar above, a frame at the sides
+#: (pixels; common practice, no source).
+TITLE_BAR_PX, FRAME_PX = 30, 8
 #: First-run share of the width for the deviation list: enough for its columns with about
 #: 180 pixels of "What changed" at the default size.
 LIST_SHARE = 0.46
@@ -933,12 +934,13 @@ class MainWindow(QMainWindow):
 
 
 def first_run_size(free: tuple[int, int] | None) -> tuple[int, int]:
-    """:data:`DEFAULT_SIZE`, or :data:`SCREEN_SHARE` of a screen's *free* area (width,
-    height) when that is smaller, never below the window's useful minimum."""
+    """:data:`DEFAULT_SIZE`, or less on a screen whose *free* area (width, height: the screen
+    less its task bars, Qt's ``availableGeometry``) cannot hold it with the window's frame
+    and title bar."""
     if free is None:
         return DEFAULT_SIZE
     w, h = DEFAULT_SIZE
-    return (min(w, max(640, int(free[0] * SCREEN_SHARE))), min(h, max(480, int(free[1] * SCREEN_SHARE))))
+    return min(w, free[0] - FRAME_PX), min(h, free[1] - TITLE_BAR_PX)
 
 
 def _same_deviation(old, review) -> str | None:
