@@ -214,7 +214,8 @@ def _esc(s: str) -> str:
 
 
 def deviation_html(review: Review, d: Deviation) -> str:
-    """The selected deviation as a short HTML page (all facts from the engine)."""
+    """The selected deviation as a short HTML page (all facts from the engine): the clause,
+    the changed words of each side, their past use, then why it matters."""
     kind = CATEGORY_NAMES.get(d.category, d.category)
     change = CHANGE_NAMES.get(d.change, d.change)
     parts = [
@@ -222,9 +223,6 @@ def deviation_html(review: Review, d: Deviation) -> str:
         f"<p style='margin:2px 0 6px 0;color:{MUTED_INK}'>No. {d.rank} \u00b7 severity {d.severity} of 100 \u00b7 "
         f"{_esc(kind)} \u00b7 {_esc(change)}</p>",
     ]
-    if d.reasons:
-        parts.append("<p style='margin:0'><b>Why it matters</b></p><ul style='margin-top:0'>"
-                     + "".join(f"<li>{_esc(r)}</li>" for r in d.reasons) + "</ul>")
     if d.precedent_text or d.draft_text:
         parts.append("<table cellspacing='0' cellpadding='4' width='100%'>")
         if d.precedent_text:
@@ -239,6 +237,9 @@ def deviation_html(review: Review, d: Deviation) -> str:
                 f"<u>{_esc(d.draft_text)}</u></td></tr>")
         parts.append("</table>")
     parts.append(_past_use_html(d))
+    if d.reasons:
+        parts.append("<p style='margin:6px 0 0 0'><b>Why it matters</b></p><ul style='margin-top:0'>"
+                     + "".join(f"<li>{_esc(r)}</li>" for r in d.reasons) + "</ul>")
     return "".join(parts)
 
 

@@ -59,6 +59,9 @@ class _TableReader(HTMLParser):
         self._p: list[str] | None = None
         self._in_style = False
         self.external: list[str] = []
+        #: (class attribute, text) of every <strong>: the side its wash marks.
+        self.strong_sides: list[tuple[str, str]] = []
+        self._strong_class = ""
 
     def handle_starttag(self, tag, attrs):
         self.tags.append(tag)
@@ -72,6 +75,7 @@ class _TableReader(HTMLParser):
             self._cell.append("\n")
         elif tag == "strong" and self._cell is not None:
             self._strong = []
+            self._strong_class = dict(attrs).get("class") or ""
         elif tag == "p":
             self._p = []
         elif tag == "style":
@@ -86,6 +90,7 @@ class _TableReader(HTMLParser):
             self._cell = None
         elif tag == "strong" and self._strong is not None:
             self.strong[-1][-1].append("".join(self._strong))
+            self.strong_sides.append((self._strong_class, "".join(self._strong)))
             self._strong = None
         elif tag == "p" and self._p is not None:
             self.paragraphs.append("".join(self._p))
@@ -188,6 +193,13 @@ def test_issues_list_in_three_formats_reads_back_as_one_table(scenario, tmp_path
     what = ISSUE_COLUMNS.index("What changed")
     assert page.strong[1][what] == ["thirty (30)", "sixty (60)"]
     assert [cell for i, cell in enumerate(page.strong[1]) if i != what] == [[]] * (len(ISSUE_COLUMNS) - 1)
+    # ... washed by side: the precedent's words before the arrow, the draft's after it, each
+    # with its own background in the page's style sheet (the window's two washes).
+    assert ("was", "thirty (30)") in page.strong_sides and ("now", "sixty (60)") in page.strong_sides
+    assert ("was", "Customer") in page.strong_sides and ("now", "Client") in page.strong_sides
+    assert {side for side, _ in page.strong_sides} == {"was", "now"}
+    assert re.search(r"strong\.was \{ background: #[0-9a-f]{6}; \}", page.style)
+    assert re.search(r"strong\.now \{ background: #[0-9a-f]{6}; \}", page.style)
     # The figure is explained once, in a note under the table.
     assert sum(p.startswith("Past use: of the firm's 12 past agreements") for p in page.paragraphs) == 1
 
