@@ -5,10 +5,15 @@ PYTHON ?= python3
 VENV := .venv
 PY := $(VENV)/bin/python
 # LibreOffice (with Debian's python3-uno) is the tests' outside reference for .docx; the font
-# keeps offscreen Qt text readable.  The GUI packages are what Qt's X11 plugin needs on a
-# machine with a display (checked with ldd on libqxcb.so).
-TEST_PACKAGES := libreoffice-writer python3-uno fonts-dejavu-core
+# keeps offscreen Qt text readable; Xvfb and xwininfo (x11-utils) let a test open the real
+# window on a virtual screen, as the command printed by a headless `make demo` does.
+TEST_PACKAGES := libreoffice-writer python3-uno fonts-dejavu-core xvfb xauth x11-utils
+# What Qt's X11 plugin (PySide6's libqxcb.so) needs beyond a minimal Debian: the libraries
+# `ldd libqxcb.so` reported "not found" on one (libxcb-icccm4, libxcb-keysyms1) and those a
+# fresh container may lack, plus a font.
 GUI_PACKAGES := libxcb-icccm4 libxcb-keysyms1 libxcb-cursor0 libxkbcommon-x11-0 libegl1 fonts-dejavu-core
+# Without a display the window runs on a virtual screen (xvfb-run, which wants xauth).
+HEADLESS_PACKAGES := xvfb xauth
 APT_INSTALL = SUDO=$$( [ "$$(id -u)" = 0 ] || echo sudo ); $$SUDO apt-get update -qq && \
 	DEBIAN_FRONTEND=noninteractive $$SUDO apt-get install -y -qq --no-install-recommends
 
@@ -23,24 +28,33 @@ $(VENV)/.installed: pyproject.toml constraints.txt
 	touch $@
 
 # The main job on the demo (review, example decisions, counter-draft, redline, issues list in
-# demo_output/), then the window on the same files -- or, without a display, how to open it.
+# demo_output/), then the window on the same files -- or, without a display, the exact
+# commands that open it (on a virtual screen here, or on a machine with a display).
 demo: $(VENV)/.installed gui-deps
 	$(PY) -m core.cli demo
 	$(PY) -m desktop --demo
 
-gui-deps:
-	@if [ -n "$$DISPLAY$$WAYLAND_DISPLAY" ] && ! ldconfig -p | grep -q libxcb-icccm.so.4; then \
+# Qt's X11 plugin must find every library it links (ldd on libqxcb.so); without a display,
+# xvfb-run too.  Installed only when missing.
+gui-deps: $(VENV)/.installed
+	@qxcb=$$($(PY) -c 'import pathlib, PySide6; print(pathlib.Path(PySide6.__file__).parent / "Qt/plugins/platforms/libqxcb.so")'); \
+	if ldd "$$qxcb" | grep -q "not found"; then \
 	  $(APT_INSTALL) $(GUI_PACKAGES); \
 	fi
+	@if [ -z "$$DISPLAY$$WAYLAND_DISPLAY" ] && ! command -v xvfb-run >/dev/null 2>&1; then \
+	  $(APT_INSTALL) $(HEADLESS_PACKAGES); \
+	fi
 
-# LibreOffice is the outside reference for numbering labels and tracked changes.
+# LibreOffice is the outside reference for numbering labels and tracked changes; Xvfb for the
+# window on a virtual screen.
 system-deps:
 	@if ! command -v soffice >/dev/null 2>&1 || ! /usr/bin/python3 -c 'import uno' >/dev/null 2>&1 \
-	    || ! [ -d /usr/share/fonts/truetype/dejavu ]; then \
+	    || ! [ -d /usr/share/fonts/truetype/dejavu ] || ! command -v xvfb-run >/dev/null 2>&1 \
+	    || ! command -v xauth >/dev/null 2>&1 || ! command -v xwininfo >/dev/null 2>&1; then \
 	  $(APT_INSTALL) $(TEST_PACKAGES); \
 	fi
 
-test: $(VENV)/.installed system-deps
+test: $(VENV)/.installed system-deps gui-deps
 	QT_QPA_PLATFORM=offscreen $(PY) -m pytest
 
 bench: $(VENV)/.installed

@@ -43,7 +43,9 @@ def _cmd_inspect(args: argparse.Namespace) -> int:
     if args.json:
         _write_json(document_to_dict(doc), args.json)
     else:
-        print(format_outline(doc, width=args.width))
+        from .review.report import terminal_width
+
+        print(format_outline(doc, width=args.width or terminal_width()))
     return 0
 
 
@@ -217,19 +219,20 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     from .decisions import decide, new_review_file, save_review_file
     from .export import default_author, write_counter_draft, write_issues_list, write_redline
     from .reader import read_document
-    from .review.report import format_review
+    from .review.report import format_review, terminal_width
 
+    width = terminal_width()
     draft_path = str(DEMO_DIR / "draft.docx")
     precedent_path = str(DEMO_DIR / "precedent.docx")
     library_folder = str(DEMO_DIR / "precedent_set")
     out = Path(args.out) if args.out else DEMO_OUTPUT
     out.mkdir(parents=True, exist_ok=True)
 
-    print(textwrap.fill(CAUTION, width=100))
+    print(textwrap.fill(CAUTION, width=width))
     print()
     draft, precedent = read_document(draft_path), read_document(precedent_path)
     review = _run_review(draft, precedent, library_folder=library_folder)
-    print(format_review(review, width=100))
+    print(format_review(review, width=width))
     print()
 
     record = new_review_file(draft_path, precedent_path, review=review, library=library_folder)
@@ -269,7 +272,7 @@ def _cmd_demo(args: argparse.Namespace) -> int:
         f"As an illustration, not a recommendation, the demo reverted {_numbers(top)}, the "
         f"{len(top)} highest-ranked substantive ones, and {_numbers(structural)}, restoring a "
         "clause the draft leaves out and striking one it adds; the counter-draft updates every "
-        "typed cross-reference the renumbering would otherwise break. Written:", width=100))
+        "typed cross-reference the renumbering would otherwise break. Written:", width=width))
     for label, path in written.items():
         print(f"  {label:34} {path}")
     print()
@@ -291,7 +294,7 @@ def build_parser() -> argparse.ArgumentParser:
     p = sub.add_parser("inspect", help="read one agreement and show its provisions and defined terms")
     p.add_argument("file")
     p.add_argument("--json", metavar="OUT", help="write the document object as JSON ('-' for stdout)")
-    p.add_argument("--width", type=int, default=100, help=argparse.SUPPRESS)
+    p.add_argument("--width", type=int, default=None, help=argparse.SUPPRESS)
     p.set_defaults(func=_cmd_inspect)
 
     p = sub.add_parser("review", help="compare a draft with the precedent and rank the deviations")
@@ -304,7 +307,8 @@ def build_parser() -> argparse.ArgumentParser:
                    help="folder of past agreements: say how common each wording is (indexed in DIR/.counterdraft)")
     p.add_argument("--save", metavar="REVIEW.json",
                    help="also save a review file to record decisions on (see 'decide', 'export')")
-    p.add_argument("--width", type=int, default=100, help=argparse.SUPPRESS)
+    p.add_argument("--width", type=int, default=None,
+                   help="columns of the table (default: COLUMNS, else the terminal's width)")
     p.set_defaults(func=_cmd_review)
 
     p = sub.add_parser("decide", help="record a decision on one deviation in a review file")

@@ -13,15 +13,23 @@ from __future__ import annotations
 
 import argparse
 import os
+import shlex
+import shutil
 import sys
 import traceback
 from pathlib import Path
 
 import core
 
-__all__ = ["DEMO_DIR", "build_parser", "demo_inputs", "has_display", "main", "no_display_message"]
+__all__ = [
+    "DEMO_DIR", "XVFB_SCREEN", "build_parser", "cli_command", "demo_inputs", "has_display", "main",
+    "no_display_message", "python_command", "virtual_screen_command", "window_command",
+]
 
 DEMO_DIR = Path(__file__).resolve().parent.parent / "demo_agreements"
+#: The virtual screen xvfb-run gives the window: a common laptop size (the window's design
+#: size, :data:`desktop.window.FIT_SCREEN`), 24-bit colour.  Xvfb's own default is 640x480.
+XVFB_SCREEN = "-screen 0 1366x768x24"
 
 
 def demo_inputs() -> tuple[str, str, str]:
@@ -39,32 +47,61 @@ def has_display(environ: dict[str, str] | os._Environ[str] | None = None, *, pla
     return any(env.get(k) for k in ("DISPLAY", "WAYLAND_DISPLAY", "QT_QPA_PLATFORM"))
 
 
+def _shown_path(path: Path) -> str:
+    """*path* relative to the current folder when it lies inside it (".venv/bin/python"),
+    else absolute: a path that works when pasted here."""
+    try:
+        return str(path.relative_to(Path.cwd()))
+    except ValueError:
+        return str(path)
+
+
+def python_command() -> str:
+    """The interpreter running this program, as a command to paste (not a bare ``python``,
+    which may be another interpreter without Counterdraft)."""
+    return shlex.quote(_shown_path(Path(sys.executable).absolute()))
+
+
+def cli_command() -> str:
+    """The ``counterdraft`` command beside this interpreter, else ``PYTHON -m core.cli``."""
+    script = Path(sys.executable).absolute().parent / "counterdraft"
+    if script.is_file():
+        return shlex.quote(_shown_path(script))
+    return python_command() + " -m core.cli"
+
+
+def window_command(*, demo: bool) -> str:
+    """The command that opens the window (on the demo, or on two files)."""
+    return f"{python_command()} -m desktop " + ("--demo" if demo else "DRAFT PRECEDENT")
+
+
+def virtual_screen_command(*, demo: bool) -> str:
+    """The same command on a virtual screen (Xvfb), for a machine without a display."""
+    return f"xvfb-run -a -s {shlex.quote(XVFB_SCREEN)} {window_command(demo=demo)}"
+
+
 def no_display_message(*, demo: bool) -> str:
-    draft, precedent, library = demo_inputs()
-    here = Path.cwd()
-
-    def rel(p: str) -> str:
-        try:
-            return str(Path(p).relative_to(here))
-        except ValueError:
-            return p
-
+    """What ``python -m desktop`` prints without a display: the exact commands that open the
+    window elsewhere or here on a virtual screen, and the command-line alternative."""
+    draft, precedent, library = (_shown_path(Path(p)) for p in demo_inputs())
     lines = [
         "Counterdraft's window needs a display, and none was found",
         "(DISPLAY, WAYLAND_DISPLAY and QT_QPA_PLATFORM are all unset).",
         "",
         "To open the window:",
-        "  - on a desktop session, run:  python -m desktop" + (" --demo" if demo else " DRAFT PRECEDENT"),
-        "  - over SSH, forward X11 (ssh -X) and run the same command;",
-        "  - on a headless machine with the xvfb package installed:",
-        "        xvfb-run -a python -m desktop" + (" --demo" if demo else " DRAFT PRECEDENT"),
-        "",
-        "The same review on the command line:",
+        "  - on a machine with a display, in this folder:",
+        f"        {window_command(demo=demo)}",
+        "  - over SSH, connect with ssh -X and run the same command;",
+        "  - here, on a virtual screen (it keeps running until you press Ctrl+C):",
+        f"        {virtual_screen_command(demo=demo)}",
     ]
+    if shutil.which("xvfb-run") is None:
+        lines.append("    (xvfb-run is in Debian's xvfb package: sudo apt-get install xvfb)")
+    lines += ["", "The same review on the command line:"]
     if demo:
-        lines.append(f"  counterdraft review {rel(draft)} --against {rel(precedent)} --library {rel(library)}")
+        lines.append(f"        {cli_command()} review {draft} --against {precedent} --library {library}")
     else:
-        lines.append("  counterdraft review DRAFT --against PRECEDENT [--library DIR]")
+        lines.append(f"        {cli_command()} review DRAFT --against PRECEDENT [--library DIR]")
     lines += ["", core.CAUTION]
     return "\n".join(lines)
 
@@ -97,7 +134,7 @@ def main(argv: list[str] | None = None) -> int:
 
     from .window import MainWindow
 
-    app = QApplication.instance() or QApplication(sys.argv[:1])
+    app = QApplication.instance() or QApplication(["counterdraft"])  # WM_CLASS "counterdraft"
     app.setApplicationName("Counterdraft")
     app.setOrganizationName("Counterdraft")
     app.setApplicationVersion(core.__version__)

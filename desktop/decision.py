@@ -21,8 +21,9 @@ from PySide6.QtWidgets import (
 from core.model import Deviation, Review
 
 from .engine import can_change
-from .labels import CATEGORY_NAMES, CHANGE_NAMES, clause_label, frequency_text
-from .palette import DELETED, INSERTED, MUTED_INK
+from .labels import CATEGORY_NAMES, CHANGE_NAMES, PAST_USE, clause_label, frequency_sentence
+from .tally import tally, tally_glyphs
+from .palette import DELETED, INSERTED, MUTED_INK, TALLY
 from .state import Change, Workspace
 
 __all__ = ["DecisionPanel", "KEYS"]
@@ -39,6 +40,10 @@ KEYS = {
     "help": "F1",
 }
 
+
+#: Height of the note box, in pixels: two lines of text (a longer note scrolls), so the
+#: detail above keeps its room in a 768-pixel-high screen.
+NOTE_PX = 44
 
 _REVERT_TIP = "Put the precedent's words back (a tracked change in the counter-draft)."
 _AMEND_TIP = "Write your own words (a tracked change in the counter-draft)."
@@ -94,7 +99,7 @@ class DecisionPanel(QWidget):
         self.note = QPlainTextEdit(self)
         self.note.setObjectName("decisionNote")
         self.note.setPlaceholderText("Optional note\u2026")
-        self.note.setFixedHeight(52)
+        self.note.setFixedHeight(NOTE_PX)
         self.note_save = QPushButton("Save note", self)
         self.note_save.clicked.connect(self.save_note)
         note_row = QHBoxLayout()
@@ -209,7 +214,8 @@ def _esc(s: str) -> str:
 
 
 def deviation_html(review: Review, d: Deviation) -> str:
-    """The selected deviation as a short HTML page (all facts from the engine)."""
+    """The selected deviation as a short HTML page (all facts from the engine): the clause,
+    the changed words of each side, their past use, then why it matters."""
     kind = CATEGORY_NAMES.get(d.category, d.category)
     change = CHANGE_NAMES.get(d.change, d.change)
     parts = [
@@ -217,9 +223,6 @@ def deviation_html(review: Review, d: Deviation) -> str:
         f"<p style='margin:2px 0 6px 0;color:{MUTED_INK}'>No. {d.rank} \u00b7 severity {d.severity} of 100 \u00b7 "
         f"{_esc(kind)} \u00b7 {_esc(change)}</p>",
     ]
-    if d.reasons:
-        parts.append("<p style='margin:0'><b>Why it matters</b></p><ul style='margin-top:0'>"
-                     + "".join(f"<li>{_esc(r)}</li>" for r in d.reasons) + "</ul>")
     if d.precedent_text or d.draft_text:
         parts.append("<table cellspacing='0' cellpadding='4' width='100%'>")
         if d.precedent_text:
@@ -233,13 +236,23 @@ def deviation_html(review: Review, d: Deviation) -> str:
                 f"<td style='background:{INSERTED.background};color:{INSERTED.ink};font-family:serif'>"
                 f"<u>{_esc(d.draft_text)}</u></td></tr>")
         parts.append("</table>")
-    f = d.frequency
-    if f is not None:
-        line = (f"<p style='margin-top:6px'><b>Precedent set:</b> the draft's wording appears in "
-                f"{frequency_text(f)} agreements ({f.same_type} have a provision of this type)")
-        if f.containing is not None:
-            line += f"; {f.containing} same-type provisions contain the changed words"
-        if f.position:
-            line += f"; your position on it: <b>{_esc(f.position)}</b>"
-        parts.append(line + ".</p>")
+    parts.append(_past_use_html(d))
+    if d.reasons:
+        parts.append("<p style='margin:6px 0 0 0'><b>Why it matters</b></p><ul style='margin-top:0'>"
+                     + "".join(f"<li>{_esc(r)}</li>" for r in d.reasons) + "</ul>")
     return "".join(parts)
+
+
+def _past_use_html(d: Deviation) -> str:
+    """The "Past use" paragraph: the tally strip as glyphs, the figure, and the sentence
+    (:func:`desktop.labels.frequency_sentence`); empty without a precedent set."""
+    f = d.frequency
+    t = tally(f.matching, f.total) if f is not None else None
+    if f is None or t is None:
+        return ""
+    extra = ""
+    if f.containing is not None and d.category != "term":
+        extra = f" {f.containing} provisions of this type contain the changed words."
+    return (f"<p style='margin-top:6px'><b>{PAST_USE}</b> &nbsp;"
+            f"<span style='color:{TALLY.filled};font-family:DejaVu Sans,sans-serif'>{tally_glyphs(t)}</span>"
+            f" &nbsp;{f.matching}/{f.total}<br>{_esc(frequency_sentence(d))}{_esc(extra)}</p>")

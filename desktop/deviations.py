@@ -17,9 +17,15 @@ from PySide6.QtWidgets import (
 
 from .models import DeviationFilterProxy, DeviationTableModel
 from .state import Change, DeviationFilter, Workspace
-from .widgets import BarDelegate
+from .widgets import BarDelegate, TallyDelegate
 
-__all__ = ["DeviationsPanel"]
+__all__ = ["COLUMN_WIDTHS", "DeviationsPanel"]
+
+#: First widths of the list's columns, in pixels (the reviewer can drag them; "What changed"
+#: takes what is left, about 180 pixels in a 1366-pixel-wide window).  "Past use" holds a
+#: strip of twelve squares at five pixels and "12/12" -- the demo's precedent set -- and
+#: shrinks its squares in a narrower column.
+COLUMN_WIDTHS = ((0, 40), (1, 58), (2, 124), (3, 92), (4, 180), (5, 124), (6, 66))
 
 
 class DeviationsPanel(QWidget):
@@ -67,11 +73,11 @@ class DeviationsPanel(QWidget):
         self.table.verticalHeader().setDefaultSectionSize(26)
         bar = BarDelegate(self.table)
         self.table.setItemDelegateForColumn(DeviationTableModel.SEVERITY, bar)
-        self.table.setItemDelegateForColumn(DeviationTableModel.COMMON, bar)
+        self.table.setItemDelegateForColumn(DeviationTableModel.COMMON, TallyDelegate(self.table))
         hh = self.table.horizontalHeader()
         hh.setSectionResizeMode(QHeaderView.ResizeMode.Interactive)
         hh.setStretchLastSection(False)
-        for col, w in ((0, 46), (1, 66), (2, 146), (3, 92), (4, 200), (5, 100), (6, 78)):
+        for col, w in COLUMN_WIDTHS:
             self.table.setColumnWidth(col, w)
         hh.setSectionResizeMode(DeviationTableModel.SUMMARY, QHeaderView.ResizeMode.Stretch)
         hh.sortIndicatorChanged.connect(self._sort_changed)

@@ -13,14 +13,20 @@ __all__ = [
     "CATEGORY_NAMES",
     "CHANGE_NAMES",
     "DECISION_NAMES",
+    "PAST_USE",
     "SHORT_DECISION_NAMES",
     "STATUS_NAMES",
     "clause_label",
+    "frequency_sentence",
     "frequency_text",
     "provision_caption",
     "short",
     "summary",
 ]
+
+#: Our name for how often the precedent set carries a wording (column headers, the detail
+#: panel): the same name on every screen and report.
+PAST_USE = "Past use"
 
 #: Longest quoted excerpt in a one-line summary, in characters (fits the table column).
 EXCERPT_CHARS = 60
@@ -91,7 +97,31 @@ def summary(d: Deviation) -> str:
 
 
 def frequency_text(f: Frequency | None) -> str:
-    """``"6 of 20"``: documents whose same-type provision has this wording, of the set."""
+    """``"6/20"``: documents whose same-type provision has this wording, of the set (the
+    figure beside the tally strip, as the command line's table writes it)."""
     if f is None:
         return ""
-    return f"{f.matching} of {f.total}"
+    return f"{f.matching}/{f.total}"
+
+
+def frequency_sentence(d: Deviation) -> str:
+    """The deviation's figures in a sentence: the tally strip in words
+    (:func:`desktop.tally.tally_words`), what the figure counts for this kind of change,
+    and the firm's label of the wording."""
+    from .tally import tally, tally_words
+
+    f = d.frequency
+    t = tally(f.matching, f.total) if f is not None else None
+    if f is None or t is None:
+        return "No figure for this deviation."
+    if d.category == "term":
+        text = tally_words(t, verb=("uses", "use"), rest="the draft's name for this defined term")
+    elif d.change == "remove-provision":
+        text = tally_words(t, verb=("lacks", "lack"), rest="this provision, as the draft does")
+    else:
+        text = tally_words(t, rest="the draft's wording")
+        text += f"; {f.same_type} {'has' if f.same_type == 1 else 'have'} a provision of this type"
+    text = text[:1].upper() + text[1:] + "."
+    if f.position:
+        text += f" The firm's label for this wording: {f.position}."
+    return text

@@ -26,6 +26,8 @@ from .labels import (
     SHORT_DECISION_NAMES,
     STATUS_NAMES,
     clause_label,
+    PAST_USE,
+    frequency_sentence,
     frequency_text,
     provision_caption,
     summary,
@@ -35,11 +37,13 @@ from .state import DeviationFilter, DisplayOptions
 __all__ = [
     "BAR_ROLE",
     "NO_BAR",
+    "NO_TALLY",
     "DeviationFilterProxy",
     "DeviationTableModel",
     "ITEM_ROLE",
     "PairRowsModel",
     "SORT_ROLE",
+    "TALLY_ROLE",
     "TermTableModel",
     "source_data",
 ]
@@ -52,6 +56,10 @@ ITEM_ROLE = Qt.ItemDataRole.UserRole + 1
 SORT_ROLE = Qt.ItemDataRole.UserRole + 2
 #: A fraction 0..1 drawn as a small inline bar; NO_BAR (negative) for no bar.
 BAR_ROLE = Qt.ItemDataRole.UserRole + 3
+#: (matching, total) drawn as a tally strip (desktop.tally); NO_TALLY for none.
+TALLY_ROLE = Qt.ItemDataRole.UserRole + 4
+#: TALLY_ROLE value of a cell without a strip (never None: see NO_BAR).
+NO_TALLY = (0, 0)
 #: BAR_ROLE value of a cell without a bar.  A number, not None: with PySide6 6.12 on
 #: Python 3.11, every C++ ``data()`` call that answers an invalid QVariant to Python drops
 #: one reference to ``None`` (measured on this machine; Python 3.12 makes None immortal), and
@@ -100,7 +108,7 @@ class DeviationTableModel(_RowsModel):
     first column is each deviation's number -- its rank, the number every output shows."""
 
     RANK, SEVERITY, CLAUSE, KIND, SUMMARY, COMMON, DECISION = range(7)
-    HEADERS = ("No.", "Severity", "Clause", "Kind", "What changed", "How common", "Decision")
+    HEADERS = ("No.", "Severity", "Clause", "Kind", "What changed", PAST_USE, "Decision")
 
     def __init__(self, parent: Any = None) -> None:
         super().__init__(parent)
@@ -192,9 +200,12 @@ class DeviationTableModel(_RowsModel):
         if role == BAR_ROLE:
             if col == self.SEVERITY:
                 return d.severity / 100.0
-            if col == self.COMMON and self._library and d.frequency is not None and d.frequency.total:
-                return d.frequency.matching / d.frequency.total
             return NO_BAR
+        if role == TALLY_ROLE:
+            f = d.frequency
+            if col == self.COMMON and self._library and f is not None and f.total:
+                return (f.matching, f.total)
+            return NO_TALLY
         if role == Qt.ItemDataRole.TextAlignmentRole:
             return _RIGHT if col in (self.RANK, self.SEVERITY) else _LEFT
         if role == Qt.ItemDataRole.ToolTipRole:
@@ -208,11 +219,7 @@ class DeviationTableModel(_RowsModel):
                     return "Open a precedent set to see how common this wording is."
                 if f is None:
                     return "No figure for this deviation."
-                return (
-                    f"{f.matching} of {f.total} agreements in the precedent set have this wording; "
-                    f"{f.same_type} have a provision of this type."
-                    + (f" Your label for it: {f.position}." if f.position else "")
-                )
+                return frequency_sentence(d)
             if col == self.DECISION and decision is not None and decision[1]:
                 return decision[1]
         return None
@@ -225,7 +232,8 @@ _HEADER_TIPS = (
     "Clause by the draft's numbering",
     "Substantive, blank filled in, defined term, numbering, formatting or punctuation",
     "The engine's first reason, or the changed words",
-    "How many agreements of the precedent set carry the draft's wording",
+    "Past use: one square per agreement of the precedent set, filled for each that carries "
+    "the draft's wording (in groups of five), and the figure",
     "Your decision: accept the draft, restore the precedent, or amend",
 )
 

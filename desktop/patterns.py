@@ -25,10 +25,11 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from .models import BAR_ROLE, NO_BAR
+from .models import NO_TALLY, TALLY_ROLE
 from .palette import MUTED_INK
 from .state import Change, Workspace
-from .widgets import BarDelegate
+from .tally import tally, tally_glyphs, tally_words
+from .widgets import TallyDelegate
 
 if TYPE_CHECKING:  # the window opens without loading the engine
     from core.library.patterns import PatternGroup
@@ -57,8 +58,8 @@ class PatternsPanel(QWidget):
         self.tree = QTreeWidget(self)
         self.tree.setObjectName("patternTree")
         self.tree.setColumnCount(2)
-        self.tree.setHeaderLabels(["Clause type and usual change", "How often"])
-        self.tree.setItemDelegateForColumn(1, BarDelegate(self.tree))
+        self.tree.setHeaderLabels(["Clause type and usual change", "Agreements"])
+        self.tree.setItemDelegateForColumn(1, TallyDelegate(self.tree))
         self.tree.header().setSectionResizeMode(0, QHeaderView.ResizeMode.Stretch)
         self.tree.header().setStretchLastSection(False)
         self.tree.setColumnWidth(1, 150)
@@ -101,14 +102,14 @@ class PatternsPanel(QWidget):
         self.tree.clear()
         for g in self._groups:
             top = QTreeWidgetItem([g.title, f"{g.agreements} agreements"])
-            top.setData(1, BAR_ROLE, NO_BAR)  # never None: see desktop.models.NO_BAR
+            top.setData(1, TALLY_ROLE, NO_TALLY)  # never None: see desktop.models.NO_BAR
             top.setData(0, Qt.ItemDataRole.UserRole, g.clause_type)
             f = top.font(0)
             f.setBold(True)
             top.setFont(0, f)
             for m in g.moves:
-                child = QTreeWidgetItem([m.description, f"{m.count} of {m.total}"])
-                child.setData(1, BAR_ROLE, (m.count / m.total) if m.total else 0.0)
+                child = QTreeWidgetItem([m.description, f"{m.count}/{m.total}"])
+                child.setData(1, TALLY_ROLE, (m.count, m.total))
                 child.setData(0, MOVE_ROLE, m)
                 top.addChild(child)
             self.tree.addTopLevelItem(top)
@@ -120,7 +121,10 @@ class PatternsPanel(QWidget):
             self.examples.clear()
             return
         body = "".join(f"<p style='font-family:serif'>{_esc(x)}</p>" for x in m.examples)
-        self.examples.setHtml(f"<p><b>{_esc(m.description)}</b> \u2014 {m.count} of {m.total} agreements</p>"
+        t = tally(m.count, m.total)
+        count = (f"<br>{tally_glyphs(t)} &nbsp;"
+                 f"{_esc(tally_words(t, verb=('makes', 'make'), rest='this change'))}" if t else "")
+        self.examples.setHtml(f"<p><b>{_esc(m.description)}</b>{count}</p>"
                               + (body or f"<p style='color:{MUTED_INK}'>No wording recorded.</p>"))
 
 

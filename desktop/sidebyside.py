@@ -5,8 +5,8 @@ narrow gutter with the pair's status, column 2 the draft's provision.  Correspon
 provisions therefore always sit level and one scroll bar moves both sides in step.  Each
 cell is a small rich-text document painted by :class:`ProvisionDelegate`:
 
-* words only the draft has: blue, **underlined**; words only the precedent has: orange,
-  **struck through**; a renamed defined term: grey, dotted underline (see
+* words only the draft has: teal on mint, **underlined**; words only the precedent has:
+  violet on lavender, **struck through**; a renamed defined term: grey, dotted underline (see
   :mod:`desktop.palette`);
 * the selected deviation's words in a darker shade and bold, and a frame round its row;
 * an added or removed provision: a coloured side stripe, a caption, and a hatched empty side;
@@ -522,14 +522,15 @@ def _esc(s: str) -> str:
 
 
 def _legend_html() -> str:
+    """The marks on one line, the row glyphs of the gutter on the next."""
     return (
-        f"<span style='color:{MUTED_INK}'>Key:</span> "
+        f"<span style='color:{MUTED_INK}'>Marks:</span> "
         f"<span style='background:{INSERTED.background};color:{INSERTED.ink};text-decoration:underline'>"
         "&nbsp;only in the draft (underlined)&nbsp;</span> &nbsp; "
         f"<span style='background:{DELETED.background};color:{DELETED.ink};text-decoration:line-through'>"
         "&nbsp;only in the precedent (struck through)&nbsp;</span> &nbsp; "
-        f"<span style='background:{TERM.background};color:{TERM.ink}'>&nbsp;renamed defined term "
-        "(dotted underline)&nbsp;</span> &nbsp; "
-        f"<span style='color:{MUTED_INK}'>{_GLYPHS['moved']} moved &nbsp; + added &nbsp; "
-        f"{_GLYPHS['removed']} not in draft &nbsp; {_GLYPHS['changed']} changed &nbsp; = same</span>"
+        f"<span style='background:{TERM.background};color:{TERM.ink}'>&nbsp;renamed term "
+        "(dotted)&nbsp;</span><br>"
+        f"<span style='color:{MUTED_INK}'>Rows: {_GLYPHS['moved']} moved &nbsp; + added in the draft &nbsp; "
+        f"{_GLYPHS['removed']} not in the draft &nbsp; {_GLYPHS['changed']} changed &nbsp; = same</span>"
     )

@@ -1,20 +1,21 @@
 """The variants view: how the past agreements word the selected provision.
 
-It shows the engine's :class:`core.library.slots.SlotVariants` as they come: one horizontal
-bar per wording of the provision's slot (the agreements that word it that way), the
-reviewer's position label beside it, a marker on the draft's and the precedent's wording,
-and a row for the agreements with no such provision.  Which agreement belongs to which bar,
-the counts and the order are the engine's; this module only paints them (with
-:class:`QPainter`; there is no chart library).  Beside the chart: the wording of the bar the
-reviewer clicks, and the closest precedent-set texts.
+It shows the engine's :class:`core.library.slots.SlotVariants` as they come: one row per
+wording of the provision's slot with its tally strip (:mod:`desktop.tally`: one square per
+past agreement, filled for each that words it that way), the firm's position label beside
+it, a marker on the draft's and the precedent's wording, and a row for the agreements with
+no such provision (hatched squares).  Which agreement belongs to which wording, the counts
+and the order are the engine's; this module only paints them (with :class:`QPainter`; there
+is no chart library).  Beside the chart: the wording of the row the reviewer clicks, and
+the closest precedent-set texts.
 """
 
 from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
-from PySide6.QtCore import QPointF, QRectF, QSize, Qt, Signal
-from PySide6.QtGui import QBrush, QColor, QFont, QFontMetrics, QMouseEvent, QPainter, QPaintEvent, QPen, QPolygonF
+from PySide6.QtCore import QRectF, QSize, Qt, Signal
+from PySide6.QtGui import QColor, QFont, QFontMetrics, QMouseEvent, QPainter, QPaintEvent
 from PySide6.QtWidgets import (
     QFrame,
     QLabel,
@@ -26,7 +27,9 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from .palette import BAR, DELETED, INK, MUTED_INK, ROW
+from .palette import INK, MUTED_INK, ROW, TALLY
+from .tally import tally, tally_glyphs, tally_words
+from .widgets import paint_tally
 
 if TYPE_CHECKING:  # the window opens without loading the engine
     from core.library.slots import SlotVariant, SlotVariants
@@ -44,13 +47,15 @@ POSITION_MARKS = {
 #: The name of the row of agreements that have no such provision.
 ABSENT_ROW = "No such provision"
 
-#: Height of one row (two lines: name and gist, then the bar), in pixels.
+#: Height of one row (two lines: name and gist, then the tally strip), in pixels.
 ROW_PX = 46
 #: Height of the title line above the rows, in pixels.
 TITLE_PX = 30
-#: Room right of the bars for the count and the position, in pixels.
-COUNT_PX = 230
-#: The agreements' names listed under a clicked bar before "and n more" (display only).
+#: Side of a tally square in the chart, in pixels: twice a table cell's, the chart's own
+#: scale (twelve squares take about 200 pixels).
+SQUARE_PX = 11
+_LEFT = int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter)
+#: The agreements' names listed under a clicked row before "and n more" (display only).
 DOCUMENTS_LISTED = 12
 
 
@@ -61,7 +66,7 @@ def _marker(draft: bool, precedent: bool) -> str:
 
 
 class VariantChart(QWidget):
-    """Horizontal bars of the wordings of one provision; click a bar to read that wording.
+    """The wordings of one provision, each with its tally strip; click a row to read it.
 
     Row *i* < ``len(variants)`` is the engine's variant *i*; one more row, when shown, is
     the agreements without such a provision (:data:`ABSENT_ROW`)."""
@@ -143,12 +148,9 @@ class VariantChart(QWidget):
         p.fillRect(self.rect(), QColor("#ffffff"))
         bold = QFont(self.font())
         bold.setBold(True)
-        italic = QFont(self.font())
-        italic.setItalic(True)
-        left = int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter)
         p.setFont(bold)
         p.setPen(QColor(INK))
-        p.drawText(QRectF(8, 4, self.width() - 16, TITLE_PX - 4), left,
+        p.drawText(QRectF(8, 4, self.width() - 16, TITLE_PX - 4), _LEFT,
                    QFontMetrics(bold).elidedText(self._title, Qt.TextElideMode.ElideRight, self.width() - 16))
         s = self._slot
         if s is None or self.row_count == 0:
@@ -158,74 +160,64 @@ class VariantChart(QWidget):
                        "No wording to show for this provision.")
             p.end()
             return
-        total = max(s.total, 1)
-        bar_left = 8.0
-        bar_span = max(40.0, self.width() - 16 - COUNT_PX)
         for i in range(self.row_count):
-            r = self.row_rect(i)
-            absent = i >= len(s.variants)
-            if absent:
-                name, count, gist, position = ABSENT_ROW, s.absent, "", None
-                marker = _marker(s.draft_absent, s.precedent_absent)
-                emphasised = s.draft_absent
-            else:
-                v = s.variants[i]
-                name, count, gist, position = v.name, v.count, v.gist, v.position
-                marker = _marker(v.draft, v.precedent)
-                emphasised = v.draft
-            if i == self._current:
-                p.fillRect(r.adjusted(-4, -2, 4, 2), QColor("#eef1f6"))
-            half = r.height() / 2
-            # Line 1: the wording's name, its marker, and what sets it apart.
-            head = name + (f"  {marker}" if marker else "")
-            font = bold if emphasised or marker else self.font()
-            fm = QFontMetrics(font)
-            p.setFont(font)
-            p.setPen(QColor(INK))
-            head_w = min(fm.horizontalAdvance(head), int(r.width()))
-            p.drawText(QRectF(r.left(), r.top(), head_w + 2, half), left,
-                       fm.elidedText(head, Qt.TextElideMode.ElideRight, int(r.width())))
-            if gist and head_w + 24 < r.width():
-                p.setFont(italic)
-                p.setPen(QColor(MUTED_INK))
-                room = int(r.width() - head_w - 14)
-                p.drawText(QRectF(r.left() + head_w + 12, r.top(), room, half), left,
-                           QFontMetrics(italic).elidedText(gist, Qt.TextElideMode.ElideRight, room))
-            # Line 2: the bar, then "n of N agreements" and the position.
-            track = QRectF(bar_left, r.top() + half + 3, bar_span, half - 7)
-            p.fillRect(track, QColor(BAR.track))
-            w = bar_span * (count / total)
-            if absent:  # no wording: an outlined, hatched bar
-                p.fillRect(QRectF(track.left(), track.top(), w, track.height()),
-                           QBrush(QColor(ROW.hatch).darker(130), Qt.BrushStyle.BDiagPattern))
-            else:
-                # The draft's wording in the draft's blue, the precedent's in the precedent's
-                # orange (as in the side-by-side columns), other wordings grey.
-                fill = QColor(BAR.draft_variant if emphasised
-                              else DELETED.strong_background if not absent and s.variants[i].precedent
-                              else BAR.other_variant)
-                p.fillRect(QRectF(track.left(), track.top(), w, track.height()), fill)
-            if marker:  # a non-colour cue: a triangle at the bar's end
-                tip = QPointF(track.left() + w + 1, track.center().y())
-                p.setBrush(QColor(INK))
-                p.setPen(Qt.PenStyle.NoPen)
-                p.drawPolygon(QPolygonF([tip, QPointF(tip.x() + 8, tip.y() - 6), QPointF(tip.x() + 8, tip.y() + 6)]))
-            p.setFont(self.font())
-            p.setPen(QPen(QColor(INK)))
-            text_left = track.left() + bar_span + 12
-            count_text = f"{count} of {s.total}"
-            p.drawText(QRectF(text_left, track.top() - 4, COUNT_PX, track.height() + 8), left, count_text)
-            if not absent:
-                shift = QFontMetrics(self.font()).horizontalAdvance(count_text + "   ")
-                if position:
-                    p.setPen(QColor(INK))
-                    label = f"{POSITION_MARKS.get(position, '')} {position}"
-                else:
-                    p.setPen(QColor(MUTED_INK))
-                    label = "no position recorded"
-                p.drawText(QRectF(text_left + shift, track.top() - 4, COUNT_PX - shift, track.height() + 8), left,
-                           QFontMetrics(self.font()).elidedText(label, Qt.TextElideMode.ElideRight, int(COUNT_PX - shift)))
+            self._paint_row(p, i, s)
         p.end()
+
+    def row_facts(self, i: int) -> tuple[str, int, str, str | None, str, bool, str]:
+        """(name, count, gist, position, marker, emphasised, fill) of row *i*: what the row
+        shows, read from the engine's variant (or the "no such provision" row)."""
+        s = self._slot
+        assert s is not None
+        if i >= len(s.variants):
+            return (ABSENT_ROW, s.absent, "", None, _marker(s.draft_absent, s.precedent_absent),
+                    s.draft_absent, ROW.hatch)
+        v = s.variants[i]
+        # The draft's wording in the draft column's colour, the precedent's in the precedent
+        # column's (as in the side-by-side view), other wordings in the neutral ink.
+        fill = TALLY.draft if v.draft else TALLY.precedent if v.precedent else TALLY.filled
+        return v.name, v.count, v.gist, v.position, _marker(v.draft, v.precedent), v.draft, fill
+
+    def _paint_row(self, p: QPainter, i: int, s: SlotVariants) -> None:
+        """Line 1: the wording's name, its marker and what sets it apart; line 2: its tally
+        strip (one square per past agreement, filled for those that word it this way), the
+        count and the firm's position."""
+        r = self.row_rect(i)
+        name, count, gist, position, marker, emphasised, fill = self.row_facts(i)
+        absent = i >= len(s.variants)
+        if i == self._current:
+            p.fillRect(r.adjusted(-4, -2, 4, 2), QColor("#eef1f6"))
+        half = r.height() / 2
+        head = name + (f"  {marker}" if marker else "")
+        font = QFont(self.font())
+        font.setBold(bool(emphasised or marker))
+        fm = QFontMetrics(font)
+        p.setFont(font)
+        p.setPen(QColor(INK))
+        head_w = min(fm.horizontalAdvance(head), int(r.width()))
+        p.drawText(QRectF(r.left(), r.top(), head_w + 2, half), _LEFT,
+                   fm.elidedText(head, Qt.TextElideMode.ElideRight, int(r.width())))
+        if gist and head_w + 24 < r.width():
+            italic = QFont(self.font())
+            italic.setItalic(True)
+            p.setFont(italic)
+            p.setPen(QColor(MUTED_INK))
+            room = int(r.width() - head_w - 14)
+            p.drawText(QRectF(r.left() + head_w + 12, r.top(), room, half), _LEFT,
+                       QFontMetrics(italic).elidedText(gist, Qt.TextElideMode.ElideRight, room))
+        t = tally(count, s.total)
+        middle = r.top() + half + half / 2
+        right = r.left()
+        if t is not None:
+            right = paint_tally(p, r.left(), middle, t, side=SQUARE_PX, fill=fill, hatched=absent)
+        label = f"{count} agreement{'s' * (count != 1)}"
+        if position and not absent:
+            label += f"   {POSITION_MARKS.get(position, '')} {position}"
+        p.setFont(self.font())
+        p.setPen(QColor(INK))
+        room = int(r.right() - right - 12)
+        p.drawText(QRectF(right + 12, middle - half / 2, room, half), _LEFT,
+                   QFontMetrics(self.font()).elidedText(label, Qt.TextElideMode.ElideRight, room))
 
 
 class VariantsView(QWidget):
@@ -278,10 +270,7 @@ class VariantsView(QWidget):
             v = s.variants[i]
             marker = _marker(v.draft, v.precedent)
             parts.append(f"<h4 style='margin:0'>{_esc(v.name)}{(' ' + _esc(marker)) if marker else ''}</h4>")
-            facts = [f"{v.count} of {s.total} agreements",
-                     f"{POSITION_MARKS.get(v.position, '')} {v.position}" if v.position else "no position recorded"]
-            line = " \u00b7 ".join(facts)
-            parts.append(f"<p style='margin:2px 0;color:{MUTED_INK}'>{_esc(line)}</p>")
+            parts.append(_facts_html(v.count, s.total, v.position))
             if v.gist:
                 parts.append(f"<p style='margin:2px 0;color:{MUTED_INK}'><i>{_esc(v.gist)}</i></p>")
             if v.documents:
@@ -297,9 +286,10 @@ class VariantsView(QWidget):
                 parts.append(f"<p style='color:{MUTED_INK}'>No past agreement words it this way.</p>")
         elif s is not None and i == len(s.variants) and self.chart.shows_absent_row():
             marker = _marker(s.draft_absent, s.precedent_absent)
+            t = tally(s.absent, s.total)
+            words = tally_words(t, verb=("has", "have"), rest="no provision corresponding to this one") if t else ""
             parts.append(f"<h4 style='margin:0'>{ABSENT_ROW}{(' ' + _esc(marker)) if marker else ''}</h4>"
-                         f"<p style='margin:2px 0;color:{MUTED_INK}'>{s.absent} of {s.total} agreements "
-                         "have no provision corresponding to this one.</p>")
+                         f"<p style='margin:2px 0;color:{MUTED_INK}'>{_esc(words[:1].upper() + words[1:])}.</p>")
         if s is not None and s.closest:
             parts.append("<h4 style='margin:10px 0 0 0'>Closest texts in the precedent set</h4>")
             for c in s.closest:
@@ -312,7 +302,7 @@ class VariantsView(QWidget):
 
 
 def _heading(s: SlotVariants, provision: str, deviation: Any) -> str:
-    """One paragraph above the chart: what the bars count."""
+    """One paragraph above the chart: what the squares count."""
     agreements = f"agreement{'s' * (s.total != 1)}"
     if s.draft_absent:
         text = (f"{provision} (clause type \u201c{s.label}\u201d) is not in the draft. {s.present} of the "
@@ -321,16 +311,29 @@ def _heading(s: SlotVariants, provision: str, deviation: Any) -> str:
         text = (f"None of the {s.total} past {agreements} has a provision like {provision} "
                 f"(clause type \u201c{s.label}\u201d).")
     else:
-        what = ("how they word this change" if s.by_change
-                else "how they word the provision (near-identical wordings count as one)")
+        what = ("this change" if s.by_change
+                else "the provision (near-identical wordings count as one)")
         text = (f"{provision} (clause type \u201c{s.label}\u201d): {s.present} of the {s.total} past "
-                f"{agreements} have a provision like it. The bars count them by {what}; "
+                f"{agreements} have a provision like it. One row per way they word {what}; "
+                "each square is one past agreement, filled where it words it that way. "
                 "\u25c0 marks the draft's and the precedent's wording.")
     f = getattr(deviation, "frequency", None)
     if f is not None and getattr(deviation, "category", None) == "term":
         text += (f" This change renames a defined term: {f.matching} of the {f.same_type} past agreements "
                  "that define either name use the draft's.")
     return text
+
+
+def _facts_html(count: int, total: int, position: str | None) -> str:
+    """The count as a tally strip and in words, then the firm's position on the wording."""
+    t = tally(count, total)
+    if t is None:
+        return ""
+    words = tally_words(t, verb=("words", "word"), rest="it this way")
+    pos = f"{POSITION_MARKS.get(position, '')} {position}" if position else "no position recorded"
+    return (f"<p style='margin:2px 0'><span style='color:{TALLY.filled}'>{tally_glyphs(t)}</span>"
+            f"<span style='color:{MUTED_INK}'> &nbsp;{_esc(words[:1].upper() + words[1:])} \u00b7 "
+            f"{_esc(pos)}</span></p>")
 
 
 def _esc(s: str) -> str:

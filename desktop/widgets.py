@@ -1,17 +1,19 @@
-"""Small shared widgets: the inline bar delegate, the caution band, one-line message boxes."""
+"""Small shared widgets: the inline bar and tally-strip delegates, the caution band, one-line
+message boxes."""
 
 from __future__ import annotations
 
 from PySide6.QtCore import QModelIndex, QPersistentModelIndex, QRect, Qt
-from PySide6.QtGui import QColor, QPainter
+from PySide6.QtGui import QBrush, QColor, QPainter, QPen
 from PySide6.QtWidgets import QLabel, QMessageBox, QStyle, QStyledItemDelegate, QStyleOptionViewItem, QWidget
 
 import core
 
-from .models import BAR_ROLE, source_data
-from .palette import BAR, CAUTION_BAND
+from .models import BAR_ROLE, TALLY_ROLE, source_data
+from .palette import BAR, CAUTION_BAND, TALLY
+from .tally import Tally, tally
 
-__all__ = ["BarDelegate", "CautionBand", "one_line", "show_message"]
+__all__ = ["BarDelegate", "CautionBand", "TallyDelegate", "one_line", "paint_tally", "show_message", "tally_width"]
 
 #: Width of an inline bar, in pixels; the figure is written right of it.
 BAR_PX = 46
@@ -46,6 +48,89 @@ class BarDelegate(QStyledItemDelegate):
         selected = bool(option.state & QStyle.StateFlag.State_Selected)
         painter.setPen(option.palette.highlightedText().color() if selected else option.palette.text().color())
         painter.drawText(r.adjusted(bar_px + 12, 0, -4, 0), int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter), text)
+        painter.restore()
+
+
+#: Gap between two squares of a tally strip, and the extra gap between groups of five, as
+#: fractions of a square's side (our own proportions: the groups must read as groups).
+TALLY_GAP, TALLY_GROUP_GAP = 0.4, 1.0
+#: Smallest and largest square side in a table cell, in pixels (below four a square reads
+#: as a dot, above seven a strip of twenty overflows the column).
+TALLY_MIN_PX, TALLY_MAX_PX = 4, 7
+
+
+def _gaps(side: int) -> tuple[int, int]:
+    """(gap between squares, extra gap between groups) in whole pixels for squares of *side*."""
+    return max(1, round(side * TALLY_GAP)), max(2, round(side * TALLY_GROUP_GAP))
+
+
+def tally_width(t: Tally, side: int) -> int:
+    """Width in pixels of strip *t* drawn with squares of *side* pixels."""
+    gap, group_gap = _gaps(side)
+    return t.cells * side + (t.cells - 1) * gap + (len(t.groups()) - 1) * group_gap
+
+
+def paint_tally(painter: QPainter, left: float, middle: float, t: Tally, *, side: int,
+                fill: str = TALLY.filled, hatched: bool = False) -> float:
+    """Draw strip *t* with its left edge at *left*, centred on the line *middle*: filled
+    squares in *fill* (hatched and outlined when *hatched*: agreements without the
+    provision), empty ones outlined.  Squares sit on whole pixels.  Returns the x just right
+    of the strip."""
+    painter.save()
+    painter.setRenderHint(QPainter.RenderHint.Antialiasing, False)
+    gap, group_gap = _gaps(side)
+    x, drawn = int(left), 0
+    top = int(middle - side / 2)
+    for g, size in enumerate(t.groups()):
+        if g:
+            x += group_gap
+        for _ in range(size):
+            square = QRect(x, top, side, side)
+            if drawn < t.filled and hatched:
+                painter.fillRect(square, QColor(TALLY.hatch_ground))
+                painter.fillRect(square, QBrush(QColor(TALLY.outline), Qt.BrushStyle.BDiagPattern))
+                painter.setPen(QPen(QColor(TALLY.outline), 1))
+                painter.drawRect(square.adjusted(0, 0, -1, -1))
+            elif drawn < t.filled:
+                painter.fillRect(square, QColor(fill))
+            else:
+                painter.fillRect(square, QColor(TALLY.empty))
+                painter.setPen(QPen(QColor(TALLY.outline), 1))
+                painter.drawRect(square.adjusted(0, 0, -1, -1))
+            drawn += 1
+            x += side + gap
+    painter.restore()
+    return x - gap
+
+
+class TallyDelegate(QStyledItemDelegate):
+    """Draws a tally strip (:mod:`desktop.tally`) from ``TALLY_ROLE`` = (matching, total),
+    then the cell's text (the exact figure).  Squares shrink to fit the column, down to
+    :data:`TALLY_MIN_PX`; a cell without a figure is drawn as plain text."""
+
+    def paint(self, painter: QPainter, option: QStyleOptionViewItem, index: QModelIndex | QPersistentModelIndex) -> None:
+        value = source_data(index, TALLY_ROLE)
+        t = tally(*value) if isinstance(value, (tuple, list)) and len(value) == 2 else None
+        if t is None:
+            super().paint(painter, option, index)
+            return
+        self.initStyleOption(option, index)
+        text = option.text
+        option.text = ""
+        style = option.widget.style() if option.widget else None
+        if style is not None:
+            style.drawControl(QStyle.ControlElement.CE_ItemViewItem, option, painter, option.widget)
+        r: QRect = option.rect
+        room = r.width() - 12 - option.fontMetrics.horizontalAdvance(text + " ")
+        side = TALLY_MAX_PX
+        while side > TALLY_MIN_PX and tally_width(t, side) > room:
+            side -= 1
+        right = paint_tally(painter, r.left() + 6, r.center().y() + 0.5, t, side=side)
+        painter.save()
+        selected = bool(option.state & QStyle.StateFlag.State_Selected)
+        painter.setPen(option.palette.highlightedText().color() if selected else option.palette.text().color())
+        painter.drawText(QRect(int(right) + 5, r.top(), max(0, r.right() - int(right) - 8), r.height()),
+                         int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter), text)
         painter.restore()
 
 

@@ -54,10 +54,24 @@ from .terms import TermsPanel
 from .variants import VariantsView
 from .widgets import CautionBand, one_line, show_message
 
-__all__ = ["DEFAULT_SIZE", "Hub", "MainWindow"]
+__all__ = ["DEFAULT_SIZE", "FIT_SCREEN", "FRAME_PX", "TITLE_BAR_PX", "Hub", "MainWindow", "first_run_size"]
 
-#: First-run window size (fits a 1440x900 screen); later runs restore the user's size.
-DEFAULT_SIZE = (1440, 900)
+#: The smallest common laptop screen we design for, in pixels (common practice, no source).
+FIT_SCREEN = (1366, 768)
+#: First-run window size: the screen above less a 40-pixel task bar and a 30-pixel title bar
+#: (1366 x 698), with a margin; later runs restore the user's size.  A smaller screen gets
+#: :func:`first_run_size`.
+DEFAULT_SIZE = (1320, 680)
+#: What the window manager adds round the window: a title bar above, a frame at the sides
+#: (pixels; common practice, no source).
+TITLE_BAR_PX, FRAME_PX = 30, 8
+#: First-run share of the width for the deviation list: enough for its columns with about
+#: 180 pixels of "What changed" at the default size.
+LIST_SHARE = 0.46
+#: First-run share of the right-hand height for the aligned text; the rest (the selected
+#: deviation, or the wordings chart) needs about 300 pixels to show its decision buttons,
+#: note and at least four lines of detail at the default size.
+ALIGNED_SHARE = 0.5
 #: Suffixes the readers accept (``core.reader``); other dropped files are refused.
 DOCUMENT_SUFFIXES = (".docx", ".txt", ".md")
 
@@ -862,20 +876,23 @@ class MainWindow(QMainWindow):
     def _restore_state(self) -> None:
         geo = self.settings.geometry()
         if geo is None or not self.restoreGeometry(geo):
-            self.resize(*DEFAULT_SIZE)
+            screen = self.screen()
+            free = screen.availableGeometry() if screen is not None else None
+            self.resize(*first_run_size((free.width(), free.height()) if free is not None else None))
         for split in (self.main_split, self.right_split):
             data = self.settings.splitter(split.objectName())
             if data is not None and split.restoreState(data):
                 self._splits_restored = True
 
     def _default_splits(self) -> None:
-        """First-run proportions: the list takes 44 % of the width, the aligned text 56 %;
-        the aligned text takes 58 % of the height above the selected deviation."""
+        """First-run proportions: the list takes :data:`LIST_SHARE` of the width, the aligned
+        text the rest; the aligned text takes :data:`ALIGNED_SHARE` of the height above the
+        selected deviation."""
         self._splits_restored = True
         w = max(self.main_split.width(), self.width())
         h = max(self.right_split.height(), self.height() - 120)
-        self.main_split.setSizes([int(w * 0.44), w - int(w * 0.44)])
-        self.right_split.setSizes([int(h * 0.58), h - int(h * 0.58)])
+        self.main_split.setSizes([int(w * LIST_SHARE), w - int(w * LIST_SHARE)])
+        self.right_split.setSizes([int(h * ALIGNED_SHARE), h - int(h * ALIGNED_SHARE)])
 
     def save_state(self) -> None:
         self.settings.set_geometry(self.saveGeometry())
@@ -914,6 +931,16 @@ class MainWindow(QMainWindow):
         self._tasks = {t for t in self._tasks if not t.done}
         self._set_library(None)
         super().closeEvent(event)
+
+
+def first_run_size(free: tuple[int, int] | None) -> tuple[int, int]:
+    """:data:`DEFAULT_SIZE`, or less on a screen whose *free* area (width, height: the screen
+    less its task bars, Qt's ``availableGeometry``) cannot hold it with the window's frame
+    and title bar."""
+    if free is None:
+        return DEFAULT_SIZE
+    w, h = DEFAULT_SIZE
+    return min(w, free[0] - FRAME_PX), min(h, free[1] - TITLE_BAR_PX)
 
 
 def _same_deviation(old, review) -> str | None:

@@ -2,18 +2,15 @@
 
     python scripts/screenshots.py [--out docs]
 
-Runs on Qt's offscreen platform (no display needed), at 1440x900, with throw-away settings:
-the overview, the defined-terms view, a selected deviation, the variants chart of that
-deviation's provision and the negotiation patterns.
+Runs on Qt's offscreen platform (no display needed), at the window's first-run size
+(:data:`desktop.window.DEFAULT_SIZE`, which fits a 1366x768 screen), with throw-away
+settings: the overview, the defined-terms view, a selected deviation, the wordings of that
+deviation's provision in the precedent set and the usual changes.
 
-It works on a temporary copy of ``demo_agreements/`` (never on the repository's folder, and
-without any ``.counterdraft`` index found there), so the index it builds and the labels it
-records are thrown away afterwards.  The demo precedent set carries no reviewer positions, so
-before opening the window the script labels a few wording variants in the copy's index,
-through the library's public API (``Library.label_variant``, as ``counterdraft library label``
-does), the way a supplier-side firm might: see :data:`ILLUSTRATIVE_POSITIONS`.  These labels
-are illustrative only, invented for the pictures; they are no firm's real positions and no
-advice on what a position should be.
+The pictures show exactly what ``make demo`` (``python -m desktop --demo``) opens: the
+bundled demo as it is, nothing added.  The script works on a temporary copy of
+``demo_agreements/`` (without any ``.counterdraft`` index found there), so the index it
+builds is thrown away afterwards and the repository is left untouched.
 """
 
 from __future__ import annotations
@@ -32,27 +29,11 @@ sys.path.insert(0, str(ROOT))
 from PySide6.QtCore import QEventLoop, QSettings, Qt, QTimer  # noqa: E402
 from PySide6.QtWidgets import QApplication  # noqa: E402
 
-#: Window size of the screenshots (a common laptop resolution).
-SIZE = (1440, 900)
 #: Longest wait for the demo review, in milliseconds (it takes a few seconds).
 WAIT_MS = 120_000
 #: The deviation shown selected: the first listed one whose reasons mention this word, so
 #: the picture shows a change a lawyer recognises at once (a payment or notice period).
 SHOWCASE_WORD = "days"
-#: Illustrative reviewer positions recorded in the temporary copy's index (invented for the
-#: screenshots, see the module docstring): (clause type, words the variant's sample wording
-#: must all contain, position).  Each must match exactly one variant of the demo precedent set.
-ILLUSTRATIVE_POSITIONS: tuple[tuple[str, tuple[str, ...], str], ...] = (
-    ("termination", ("for convenience", "ninety (90) days"), "preferred"),
-    ("termination", ("for convenience", "sixty (60) days"), "fallback"),
-    ("termination", ("for convenience", "thirty (30) days"), "not acceptable"),
-    ("payment", ("shall pay each invoice", "thirty (30) days"), "preferred"),
-    ("payment", ("shall pay each invoice", "forty-five (45) days"), "acceptable"),
-    ("payment", ("shall pay each invoice", "sixty (60) days"), "fallback"),
-    ("limitation_of_liability", ("total liability", "(100%)"), "preferred"),
-    ("limitation_of_liability", ("total liability", "(150%)"), "fallback"),
-    ("limitation_of_liability", ("total liability", "(200%)"), "not acceptable"),
-)
 #: The negotiation pattern shown selected: the first move of this clause type whose
 #: description mentions this word (the clause type of the selected deviation).
 SHOWCASE_PATTERN = ("termination", "period")
@@ -81,28 +62,6 @@ def copy_demo(dest: Path) -> tuple[str, str, str]:
     return tuple(str(dest / Path(p).relative_to(DEMO_DIR)) for p in demo_inputs())  # type: ignore[return-value]
 
 
-def label_illustrative_positions(folder: str) -> list[str]:
-    """Build the index of the precedent set in *folder* and record
-    :data:`ILLUSTRATIVE_POSITIONS` in it; returns one line per label.  Raises
-    ``CounterdraftError`` when a wording is not found exactly once (the demo changed)."""
-    from core.errors import CounterdraftError
-    from core.library import open_library
-
-    done = []
-    with open_library(folder) as library:
-        variants = library.variants()
-        texts = library.texts([v.sample for v in variants if v.sample is not None])
-        for bucket, words, position in ILLUSTRATIVE_POSITIONS:
-            hits = [v for v in variants if v.bucket == bucket and v.sample is not None
-                    and all(w in texts.get(v.sample, "") for w in words)]
-            if len(hits) != 1:
-                raise CounterdraftError(f"{len(hits)} {bucket} variants contain {' + '.join(words)!r}; "
-                                        "expected exactly one", path=folder)
-            library.label_variant(hits[0].id, position)
-            done.append(f"{bucket} variant {hits[0].ordinal} ({' '.join(words)}): {position}")
-    return done
-
-
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--out", default=str(ROOT / "docs"))
@@ -110,23 +69,16 @@ def main(argv: list[str] | None = None) -> int:
     out = Path(args.out)
     out.mkdir(parents=True, exist_ok=True)
 
-    from core.errors import CounterdraftError
-    from desktop.window import MainWindow
+    from desktop.window import DEFAULT_SIZE, MainWindow
 
     app = QApplication.instance() or QApplication([])
     app.setStyle("Fusion")
     with tempfile.TemporaryDirectory() as tmp:
-        try:
-            draft, precedent, library = copy_demo(Path(tmp) / "demo_agreements")
-            labelled = label_illustrative_positions(library)
-        except CounterdraftError as exc:
-            print(f"could not prepare the demo copy: {exc}", file=sys.stderr)
-            return 1
-        print("illustrative positions:", *labelled, sep="\n  ")
+        draft, precedent, library = copy_demo(Path(tmp) / "demo_agreements")
         settings = QSettings(str(Path(tmp) / "settings.ini"), QSettings.Format.IniFormat)
         w = MainWindow(settings=settings)
         w.ask_before_closing = False
-        w.resize(*SIZE)
+        w.resize(*DEFAULT_SIZE)
         w.show()
         w.open_comparison(draft, precedent, library=library)
         _wait((w.reviewShown, w.operationFailed, w.operationCancelled), WAIT_MS)

@@ -4,8 +4,8 @@ One row per deviation shown, seven columns (:data:`ISSUE_COLUMNS`): the deviatio
 (its rank at review time, :attr:`core.model.Deviation.rank` -- the number the review table,
 ``counterdraft decide`` and the desktop window use), the clause, what changed (the
 precedent's words → the draft's, a few words either side, the changed words in bold), why it
-matters (the deviation's reasons), how common the draft's wording is in the firm's past
-agreements (only when a precedent set was used), the decision and the note.  Rows follow the
+matters (the deviation's reasons), its past use -- how often the firm's past agreements carry
+the draft's wording (only when a precedent set was used), the decision and the note.  Rows follow the
 draft's clause order (``order="clause"``, the default) or the rank (``order="rank"``); the
 renamed defined terms close the table as a group of their own either way.
 
@@ -70,9 +70,9 @@ __all__ = [
 _NUMBER_COLUMN = "No."
 _WHAT_COLUMN = "What changed"
 _WHY_COLUMN = "Why it matters"
-_FREQUENCY_COLUMN = "How common"
-#: The table's columns (.docx and HTML), in order; without a precedent set the "How common"
-#: column is left out.
+_FREQUENCY_COLUMN = "Past use"
+#: The table's columns (.docx and HTML), in order; without a precedent set the "Past use"
+#: column (how often the firm's past agreements carry the draft's wording) is left out.
 ISSUE_COLUMNS = (_NUMBER_COLUMN, "Clause", _WHAT_COLUMN, _WHY_COLUMN, _FREQUENCY_COLUMN,
                  "Decision", "Note")
 _PRECEDENT_WORDS_COLUMN = "Precedent's changed words"
@@ -448,7 +448,7 @@ def _share(matching: int, of: int) -> str:
 
 
 def _how_common(dev: Deviation) -> str | None:
-    """The "how common" cell in words (see :func:`_table_notes` for what the figures mean);
+    """The "past use" cell in words (see :func:`_table_notes` for what the figures mean);
     the firm's label of the wording after it.  None without a precedent set."""
     f = dev.frequency
     if f is None:
@@ -484,7 +484,7 @@ def _frequency_reasons(freq: Frequency | None) -> tuple[str, ...]:
 
 
 def _why(review: Review, dev: Deviation) -> str:
-    """The deviation's reasons joined, without those that restate the "how common" cell
+    """The deviation's reasons joined, without those that restate the "past use" cell
     and without the clause type's weight in the ranking (a detail of the firm's rule file,
     not a reason a reader outside the firm weighs).  A renamed defined term, whose reason
     repeats the names and uses "what changed" shows, says instead on what evidence the two
@@ -627,7 +627,7 @@ def _first_term_row(rows: Sequence[IssueRow]) -> int | None:
 
 def _table_notes(review: Review, rows: Sequence[IssueRow], order: str) -> list[str]:
     """The notes under the table (.docx and HTML): the numbers and the order, what the
-    "what changed" quotes, the "how common" figures, the renamed-terms group and what was
+    "what changed" quotes, the "past use" figures, the renamed-terms group and what was
     left out."""
     arranged = ("Rows follow the order of the draft's clauses; a provision the draft leaves "
                 "out sits where it would have been." if order == "clause" else "Rows are in "
@@ -641,7 +641,7 @@ def _table_notes(review: Review, rows: Sequence[IssueRow], order: str) -> list[s
     if freqs and any(r.frequency is not None for r in rows):
         total = max(f.total for f in freqs)
         notes.append(
-            f"How common: of the firm's {_agreements(total)} in the precedent set, how many "
+            f"Past use: of the firm's {_agreements(total)} in the precedent set, how many "
             "that have a clause of the same type carry the draft's wording; for a provision "
             "the draft leaves out, how many lack it as well; for a renamed defined term, how "
             "many of those that define the term use the draft's name. \u201cFirm's label\u201d "
@@ -683,19 +683,23 @@ def issues_list_csv(review: Review, decisions: Sequence[Decision] = (), *,
 #: width (24.7 cm; scaled exactly to it).  The narrow columns hold their longest word on one
 #: line at 9 pt in a wide serif (DejaVu Serif, LibreOffice's stand-in when Liberation Serif is
 #: missing; measured in LibreOffice's PDF of the demo's table with pdftotext -bbox: bold "No."
-#: 0.61 cm, "Decision" 1.53 cm, "common" 1.52 cm, plain "undecided" 1.67 cm, "agreements"
-#: 1.90 cm, "Confidentiality" 2.37 cm) plus the cell margins (2 x 0.19 cm) and some slack;
-#: "What changed" gets the most room, "Why it matters" the next, "How common" enough that
-#: its sentence takes three lines, not five.  Without the frequency column the others share
+#: 0.61 cm, "Decision" 1.53 cm, plain "undecided" 1.67 cm, "agreements" 1.90 cm,
+#: "Confidentiality" 2.37 cm; the header words "Past" and "use" have fewer letters than
+#: "Decision") plus the cell margins (2 x 0.19 cm) and some slack; "What changed" gets the
+#: most room, "Why it matters" the next, "Past use" enough that its sentence takes three
+#: lines, not five.  Without the frequency column the others share
 #: its width.
 ISSUE_WIDTHS_CM = {_NUMBER_COLUMN: 1.1, "Clause": 3.2, _WHAT_COLUMN: 7.2, _WHY_COLUMN: 4.4,
                    _FREQUENCY_COLUMN: 3.4, "Decision": 2.3, "Note": 3.1}
 
 #: The page's palette (ours): ink, secondary text, rules, header fill, the fill of the
-#: renamed-terms group and the wash behind the changed words.  Black-on-pale throughout so a
-#: greyscale print stays legible; the changed words are bold as well as washed.
+#: renamed-terms group, and the washes behind the changed words -- the precedent's ("was",
+#: before the arrow) and the draft's ("now", after it): the desktop window's lavender and
+#: mint (``desktop.palette.DELETED`` / ``INSERTED`` backgrounds), so the page reads like the
+#: window.  Dark ink on pale throughout so a greyscale print stays legible; the two washes
+#: differ in lightness, and the changed words are bold as well as washed.
 _PALETTE = {"ink": "#1e2b29", "muted": "#56625f", "rule": "#8a9a95", "head": "#dde6e2",
-            "group": "#f3f5f4", "mark": "#f3e4c0"}
+            "group": "#f3f5f4", "was": "#e0cdef", "now": "#e1f6ec"}
 
 _HTML_STYLE = """
 body {{ font-family: "Liberation Serif", "DejaVu Serif", Georgia, serif; margin: 2em; color: {ink}; }}
@@ -708,7 +712,8 @@ th, td {{ border: 1px solid {rule}; padding: 0.3em 0.4em; vertical-align: top; t
           overflow-wrap: break-word; }}
 th {{ background: {head}; }}
 td.num {{ text-align: right; }}
-strong {{ background: {mark}; }}
+strong.was {{ background: {was}; }}
+strong.now {{ background: {now}; }}
 tbody.terms tr:first-child td {{ border-top: 2px solid {ink}; }}
 tbody.terms td {{ background: {group}; }}
 thead {{ display: table-header-group; }}
@@ -728,8 +733,18 @@ def _html_text(text: str) -> str:
 
 
 def _html_excerpt(excerpt: Excerpt) -> str:
-    return "".join(f"<strong>{_html_text(t)}</strong>" if m else _html_text(t)
-                   for t, m in excerpt.pieces())
+    """The excerpt with its changed words in bold, washed as the precedent's words before
+    the arrow (:data:`_ARROW`) and as the draft's after it."""
+    arrow = excerpt.text.find(_ARROW)
+    out, pos = [], 0
+    for t, m in excerpt.pieces():
+        if m:
+            side = "now" if 0 <= arrow < pos else "was"
+            out.append(f'<strong class="{side}">{_html_text(t)}</strong>')
+        else:
+            out.append(_html_text(t))
+        pos += len(t)
+    return "".join(out)
 
 
 def issues_list_html(review: Review, decisions: Sequence[Decision] = (), *,

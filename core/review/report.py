@@ -1,13 +1,16 @@
 """The review as a ranked plain-text table for a terminal (``counterdraft review`` without
 ``--json``): each deviation's number (its rank, :attr:`core.model.Deviation.rank`: what
 ``counterdraft decide`` takes and every output shows), severity, clause number and heading
-(:func:`core.labels.clause_label`), how common the draft's wording is in the precedent set
-when one was used ("2/12": ``Frequency.matching`` of ``Frequency.total`` agreements), and a
-one-line summary, within a given width (100 columns by default), followed by the caution.
+(:func:`core.labels.clause_label`), its past use when a precedent set was used ("2/12":
+``Frequency.matching`` of ``Frequency.total`` agreements), and a summary, followed by the
+caution.  The table fills the terminal's width (:func:`terminal_width`: ``COLUMNS`` when
+set, else the terminal's own size, else :data:`DEFAULT_WIDTH`); a clause label or a summary
+longer than its column wraps onto the next lines, indented to its column, and is never cut.
 Every cell is read from the review; nothing is recomputed."""
 
 from __future__ import annotations
 
+import shutil
 import textwrap
 from collections import Counter
 
@@ -15,7 +18,10 @@ from .. import CAUTION
 from ..labels import clause_label
 from ..model import Deviation, Review
 
-__all__ = ["NUMBER_HEADING", "SHOW_CHOICES", "format_review", "shown_deviations"]
+__all__ = [
+    "DEFAULT_WIDTH", "NUMBER_HEADING", "PAST_USE_HEADING", "SHOW_CHOICES", "format_review",
+    "shown_deviations", "terminal_width",
+]
 
 #: ``--show`` values: the default shows substantive and term deviations and the blanks of
 #: the precedent that the draft filled in (informational, but what was filled in -- a
@@ -30,8 +36,20 @@ NUMBER_HEADING = "No."
 _CLAUSE_MIN_W, _SUMMARY_MIN_W = 12, 24
 #: Narrowest table the layout supports (columns).
 MIN_WIDTH = 60
-#: Shown in the "Common" column for a deviation without a frequency (e.g. a renamed term).
+#: Width when neither ``COLUMNS`` nor a terminal tells one (output to a file or a pipe): the
+#: table as it always was.
+DEFAULT_WIDTH = 100
+#: Heading of the past-use column (the name the window and the issues list use too).
+PAST_USE_HEADING = "Past use"
+#: Shown in the past-use column for a deviation without a frequency (e.g. a renamed term).
 NO_FREQUENCY = "-"
+
+
+def terminal_width() -> int:
+    """Columns to fill: ``COLUMNS`` when set to a number, else the size of the terminal on
+    standard output, else :data:`DEFAULT_WIDTH` (:func:`shutil.get_terminal_size` in that
+    order)."""
+    return shutil.get_terminal_size((DEFAULT_WIDTH, 24)).columns
 
 
 def shown_deviations(review: Review, *, show: str | None = None) -> list[Deviation]:
@@ -42,9 +60,10 @@ def shown_deviations(review: Review, *, show: str | None = None) -> list[Deviati
     return [v for v in review.deviations if v.category in cats]
 
 
-def _cut(s: str, width: int) -> str:
-    s = " ".join(s.split())
-    return s if len(s) <= width else s[: max(0, width - 1)].rstrip() + "\u2026"
+def _wrap(s: str, width: int) -> list[str]:
+    """*s* on lines of at most *width* columns, broken between words (a word longer than a
+    line is broken inside); at least one line."""
+    return textwrap.wrap(" ".join(s.split()), max(1, width), break_on_hyphens=False) or [""]
 
 
 def _common(v: Deviation) -> str:
@@ -54,31 +73,53 @@ def _common(v: Deviation) -> str:
 
 
 def _summary(v: Deviation) -> str:
-    """One line: the first reason (the term pair for a renamed term)."""
+    """The first reason, whole (the term pair for a renamed term)."""
     if v.category == "term":
         return f'term: draft "{v.draft_text}" = precedent "{v.precedent_text}"'
     return v.reasons[0] if v.reasons else v.category
 
 
-def format_review(review: Review, *, show: str | None = None, width: int = 100) -> str:
-    """The ranked table of *review* (see the module's notes), at most *width* columns."""
-    width = max(width, MIN_WIDTH)
-    lines: list[str] = []
+def _heading_lines(review: Review, width: int) -> list[str]:
     dname = review.draft.source.replace("\\", "/").rsplit("/", 1)[-1]
     pname = review.precedent.source.replace("\\", "/").rsplit("/", 1)[-1]
-    lines.append(_cut(f"Review of {dname} against the precedent {pname}", width))
     counts = Counter(v.category for v in review.deviations)
     order = ("substantive", "completion", "term", "numbering", "punctuation", "formatting")
-    lines.append(_cut("Deviations: " + ", ".join(f"{counts[c]} {c}" for c in order), width))
     status = Counter(p.status for p in review.pairs)
-    lines.append(_cut("Provisions: " + ", ".join(f"{n} {s}" for s, n in sorted(status.items())), width))
-    for note in review.notes:
-        lines.extend(textwrap.wrap(f"Note: {note}", width))
+    lines: list[str] = []
+    for text in (f"Review of {dname} against the precedent {pname}",
+                 "Deviations: " + ", ".join(f"{counts[c]} {c}" for c in order),
+                 "Provisions: " + ", ".join(f"{n} {s}" for s, n in sorted(status.items())),
+                 *(f"Note: {note}" for note in review.notes)):
+        lines.extend(textwrap.wrap(text, width, subsequent_indent="  "))
+    return lines
+
+
+def _row_lines(v: Deviation, clause: str, common: str | None, widths: tuple[int, int, int]) -> list[str]:
+    """One deviation's lines: the figures on the first, the clause and the summary wrapped
+    in their columns below it."""
+    clause_w, common_w, summary_w = widths
+    clauses = _wrap(clause, clause_w)
+    summaries = _wrap(_summary(v), summary_w)
+    out = []
+    for i in range(max(len(clauses), len(summaries))):
+        number = f"{v.rank:>{_NUMBER_W}} {v.severity:>{_SEV_W}}" if i == 0 else " " * (_NUMBER_W + 1 + _SEV_W)
+        line = f"{number}  {(clauses[i] if i < len(clauses) else ''):<{clause_w}}  "
+        if common is not None:
+            line += f"{(common if i == 0 else ''):>{common_w}}  "
+        out.append((line + (summaries[i] if i < len(summaries) else "")).rstrip())
+    return out
+
+
+def format_review(review: Review, *, show: str | None = None, width: int | None = None) -> str:
+    """The ranked table of *review* (see the module's notes), at most *width* columns
+    (default: :func:`terminal_width`)."""
+    width = max(terminal_width() if width is None else width, MIN_WIDTH)
+    lines = _heading_lines(review, width)
     lines.append("")
     rows = shown_deviations(review, show=show)
     common = [_common(v) for v in rows]
     with_common = any(c != NO_FREQUENCY for c in common)
-    common_w = max([len("Common"), *map(len, common)]) if with_common else 0
+    common_w = max([len(PAST_USE_HEADING), *map(len, common)]) if with_common else 0
     fixed = _NUMBER_W + 1 + _SEV_W + 2 + 2 + (common_w + 2 if with_common else 0)
     clause_w = max(_CLAUSE_MIN_W, min(_CLAUSE_W, width - fixed - _SUMMARY_MIN_W))
     summary_w = max(1, width - fixed - clause_w)
@@ -88,26 +129,22 @@ def format_review(review: Review, *, show: str | None = None, width: int = 100) 
     if with_common:
         total = next(v.frequency.total for v in rows if v.frequency is not None)
         lines.extend(textwrap.wrap(
-            f"Common: agreements of the precedent set ({total}) whose clause of the same type "
-            "has the draft's wording (for a provision left out: lacks it).", width))
+            f"{PAST_USE_HEADING}: agreements of the precedent set ({total}) whose clause of the "
+            "same type has the draft's wording (for a provision left out: lacks it).", width))
     head = f"{NUMBER_HEADING:>{_NUMBER_W}} {'Sev':>{_SEV_W}}  {'Clause':<{clause_w}}  "
     if with_common:
-        head += f"{'Common':>{common_w}}  "
+        head += f"{PAST_USE_HEADING:>{common_w}}  "
     lines.append(head + "Summary")
     lines.append("-" * width)
     for v, c in zip(rows, common):
         clause = clause_label(review, v, compact=True)
-        line = (f"{v.rank:>{_NUMBER_W}} {v.severity:>{_SEV_W}}  "
-                f"{_cut(clause, clause_w):<{clause_w}}  ")
-        if with_common:
-            line += f"{c:>{common_w}}  "
-        lines.append((line + _cut(_summary(v), summary_w)).rstrip())
+        lines.extend(_row_lines(v, clause, c if with_common else None, (clause_w, common_w, summary_w)))
     if not rows:
         lines.append("(no deviation to show)")
     hidden = len(review.deviations) - len(rows)
     if hidden:
-        lines.append(_cut(f"{hidden} more deviation{'s' * (hidden != 1)} not shown "
-                          "(formatting, numbering, punctuation or term); use --show all", width))
+        lines.extend(textwrap.wrap(f"{hidden} more deviation{'s' * (hidden != 1)} not shown "
+                                   "(formatting, numbering, punctuation or term); use --show all", width))
     lines.append("")
     lines.extend(textwrap.wrap(CAUTION, width))
     return "\n".join(lines)

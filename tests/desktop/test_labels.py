@@ -31,7 +31,7 @@ def test_short_and_frequency_text():
     assert short("a  b\nc", 10) == "a b c"
     assert short("x" * 80, 10) == "x" * 9 + "\u2026"
     f = make_review(with_frequency=True).deviations[0].frequency
-    assert frequency_text(f) == "1 of 12" and frequency_text(None) == ""
+    assert frequency_text(f) == "1/12" and frequency_text(None) == ""
 
 
 def test_the_views_use_the_engines_one_clause_label():

@@ -13,6 +13,8 @@ from desktop.models import (
     BAR_ROLE,
     ITEM_ROLE,
     NO_BAR,
+    NO_TALLY,
+    TALLY_ROLE,
     DeviationFilterProxy,
     DeviationTableModel,
     PairRowsModel,
@@ -40,8 +42,11 @@ def test_deviation_model_passes_qt_model_tester_and_lists_every_deviation(qtmode
     top = model.index(0, DeviationTableModel.CLAUSE).data(D)
     assert top == "3 Limitation of liability"
     assert model.index(0, DeviationTableModel.SUMMARY).data(D) == "liability cap changed from 12 to 24 months"
-    assert model.index(0, DeviationTableModel.COMMON).data(D) == "1 of 12"
-    assert model.index(0, DeviationTableModel.COMMON).data(BAR_ROLE) == 1 / 12
+    assert model.headerData(DeviationTableModel.COMMON, Qt.Orientation.Horizontal) == "Past use"
+    assert model.index(0, DeviationTableModel.COMMON).data(D) == "1/12"
+    # the past-use figure is drawn as a tally strip, never as a proportional bar
+    assert model.data(model.index(0, DeviationTableModel.COMMON), TALLY_ROLE) == (1, 12)
+    assert model.data(model.index(0, DeviationTableModel.COMMON), BAR_ROLE) == NO_BAR
     assert model.index(0, DeviationTableModel.SEVERITY).data(BAR_ROLE) == 0.88
     # a removed provision is labelled by the precedent's clause
     assert model.index(4, DeviationTableModel.CLAUSE).data(D) == "4 Publicity (precedent only)"
@@ -52,6 +57,7 @@ def test_without_a_library_the_how_common_column_is_empty():
     model.set_review(make_review(), library_loaded=False)
     assert model.index(0, DeviationTableModel.COMMON).data(D) == ""
     assert model.data(model.index(0, DeviationTableModel.COMMON), BAR_ROLE) == NO_BAR
+    assert model.data(model.index(0, DeviationTableModel.COMMON), TALLY_ROLE) == NO_TALLY
 
 
 def test_proxy_filters_by_shown_categories_text_and_decisions_and_sorts_numbers_as_numbers(qtmodeltester):

@@ -43,56 +43,64 @@ REMOVED = SlotVariants(
 )
 
 
-def _ink_columns(img: QImage, y: int, colour: str) -> int:
-    """How many pixels of row *y* have exactly *colour* (to measure a painted bar)."""
-    return sum(1 for x in range(img.width()) if img.pixelColor(x, y).name() == colour)
+def _squares(img: QImage, chart: VariantChart, i: int, colour: str) -> int:
+    """How many tally squares of row *i* have their top edge painted in *colour*: runs of
+    that colour along the strip's top line, left to right (a filled square's top edge is its
+    fill colour, an empty or hatched square's its outline colour)."""
+    from desktop.variants import SQUARE_PX
 
-
-def _bar_y(chart: VariantChart, i: int) -> int:
     r = chart.row_rect(i)
-    return int(r.top() + r.height() * 3 / 4)  # the bar is on the row's second line
+    middle = r.top() + r.height() / 2 + r.height() / 4  # the strip is on the row's second line
+    y = int(middle - SQUARE_PX / 2)
+    runs, inside = 0, False
+    for x in range(int(r.left()), int(r.right())):
+        here = img.pixelColor(x, y).name() == colour
+        if here and not inside:
+            runs += 1
+        inside = here
+    return runs
 
 
-def test_bar_lengths_are_proportional_to_the_counts_of_all_agreements(qtbot):
-    from desktop.palette import BAR, DELETED
+def test_each_row_fills_one_square_per_agreement_with_that_wording(qtbot):
+    """The tally strip (desktop.tally): one square per agreement of the set, filled for each
+    agreement with the wording; measured on the pixels Qt paints."""
+    from desktop.palette import TALLY
 
     chart = VariantChart()
     qtbot.addWidget(chart)
     chart.resize(800, 260)
     chart.set_slot(SLOT, title="How the 12 past agreements word 3.1")
     img = chart.grab().toImage()
-    lengths = []
     for i, b in enumerate(SLOT.variants):
-        colour = BAR.draft_variant if b.draft else DELETED.strong_background if b.precedent else BAR.other_variant
-        lengths.append(_ink_columns(img, _bar_y(chart, i), colour))
-    # lengths scale with count / total (allowing two pixels of rounding per bar)
-    unit = lengths[1] / 9
-    assert unit > 10
-    for n, b in zip(lengths, SLOT.variants):
-        assert abs(n - b.count * unit) <= 2
+        colour = TALLY.draft if b.draft else TALLY.precedent if b.precedent else TALLY.filled
+        assert _squares(img, chart, i, colour) == b.count
+        assert _squares(img, chart, i, TALLY.outline) == SLOT.total - b.count
     assert chart.current == 0  # the draft's wording is the current row
     assert chart.row_count == 3  # every agreement has the provision: no "no such provision" row
 
 
-def test_clicking_a_bar_shows_its_wording_documents_position_and_closest_texts(qtbot):
+def test_clicking_a_row_shows_its_wording_documents_position_and_closest_texts(qtbot):
     view = VariantsView()
     qtbot.addWidget(view)
     view.resize(1000, 320)
     view.show()
     view.set_content(slot=SLOT, provision="Section 3.1 Termination for Convenience")
     text = view.wording.toPlainText()
-    assert text.startswith("The draft's wording \u25c0 draft") and "1 of 12 agreements" in text
+    assert text.startswith("The draft's wording \u25c0 draft")
+    assert "\u25a0\u25a1\u25a1\u25a1\u25a1 \u25a1\u25a1\u25a1\u25a1\u25a1 \u25a1\u25a1" in text
+    assert "1 past agreement out of 12 words it this way" in text
     assert "thirty (30) days' written notice" in text
     r = view.chart.row_rect(1).toRect()
     qtbot.mouseClick(view.chart, Qt.MouseButton.LeftButton, pos=QPoint(r.left() + 5, r.center().y()))
     text = view.wording.toPlainText()
     assert text.startswith("The precedent's wording \u25c0 precedent")
-    assert "9 of 12 agreements \u00b7 \u2605 preferred" in text and "ninety (90)" in text
+    assert "9 past agreements out of 12 word it this way \u00b7 \u2605 preferred" in text
+    assert "ninety (90)" in text
     assert "In: 00-agreement.docx, 01-agreement.docx" in text
     assert "ardent.docx \u00b7 20.1 \u00b7 similarity 0.90" in text
     heading = view.heading.text()
     assert "12 of the 12 past agreements have a provision like it" in heading
-    assert "how they word this change" in heading
+    assert "One row per way they word this change" in heading
 
 
 def test_a_removed_provision_shows_the_agreements_without_it_as_the_drafts_choice(qtbot):
@@ -104,14 +112,17 @@ def test_a_removed_provision_shows_the_agreements_without_it_as_the_drafts_choic
     chart = view.chart
     assert chart.row_count == 2 and chart.current == 1  # the "no such provision" row is the draft's
     assert view.wording.toPlainText().startswith(f"{ABSENT_ROW} \u25c0 draft")
-    assert "2 of 12 agreements have no provision corresponding to this one" in view.wording.toPlainText()
+    assert ("2 past agreements out of 12 have no provision corresponding to this one"
+            in view.wording.toPlainText())
     assert "is not in the draft" in view.heading.text() and "2 have none" in view.heading.text()
     img = chart.grab().toImage()
-    from desktop.palette import BAR
+    from desktop.palette import TALLY
 
-    # The absent row is hatched, never painted in a variant's colour.
-    y = _bar_y(chart, 1)
-    assert _ink_columns(img, y, BAR.draft_variant) == 0 and _ink_columns(img, y, BAR.other_variant) == 0
+    # The absent row's two agreements are hatched squares, never a variant's colour.
+    assert _squares(img, chart, 1, TALLY.draft) == 0 and _squares(img, chart, 1, TALLY.filled) == 0
+    assert _squares(img, chart, 1, TALLY.outline) == REMOVED.total  # all squares outlined
+    y = int(chart.row_rect(1).top() + chart.row_rect(1).height() * 3 / 4)
+    assert sum(img.pixelColor(x, y).name() == TALLY.hatch_ground for x in range(img.width())) > 0
 
 
 def test_clear_empties_the_chart(qtbot):

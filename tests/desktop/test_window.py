@@ -12,7 +12,7 @@ from desktop.dialogs import KEY_LIST
 from desktop.settings import Recent
 from desktop.models import PairRowsModel
 
-from desktop.models import ITEM_ROLE
+from desktop.models import ITEM_ROLE, TALLY_ROLE
 from desktop.state import DisplayOptions
 
 from .conftest import close_message_boxes, message_boxes, wait_for_outcome
@@ -268,7 +268,7 @@ def test_the_demo_review_shows_exactly_the_engines_deviations(make_window, qtbot
     assert w.deviations.count.text() == f"{len(reference.deviations)} deviations"
     assert w.side.model.rowCount() == len(reference.pairs)
     assert w.ws.library is not None and w.ws.library.total == 12
-    assert "How common" in w.deviations.model.HEADERS
+    assert "Past use" in w.deviations.model.HEADERS
     # The first column is each deviation's number: the rank, as the issues list shows it.
     assert w.deviations.model.HEADERS[0] == "No."
     assert [w.deviations.model.index(r, 0).data() for r in range(5)] == [
@@ -475,7 +475,8 @@ def test_patterns_view_shows_the_engines_negotiation_patterns(make_window, qtbot
         assert top.text(0) == g.title and top.childCount() == len(g.moves)
         for j, m in enumerate(g.moves):
             assert top.child(j).text(0) == m.description
-            assert top.child(j).text(1) == f"{m.count} of {m.total}"
+            assert top.child(j).text(1) == f"{m.count}/{m.total}"
+            assert tuple(top.child(j).data(1, TALLY_ROLE)) == (m.count, m.total)
     assert not w.patterns.compute_btn.isVisible()
 
 
@@ -492,7 +493,7 @@ def test_variants_chart_shows_the_engines_variants_with_the_drafts_marked(make_w
     assert w.variants.chart.slot == reference
     mine = [i for i, v in enumerate(reference.variants) if v.draft]
     assert len(mine) == 1 and w.variants.chart.current == mine[0]
-    # ... and the draft's bar is the figure of the deviation's "how common" column.
+    # ... and the draft's tally strip is the figure of the deviation's "past use" column.
     assert reference.variants[mine[0]].count == d.frequency.matching
     assert sum(v.count for v in reference.variants) == reference.present <= w.ws.library.total
     shown = w.variants.wording.toPlainText()

@@ -37,7 +37,7 @@ from tests.core.export.conftest import AUTHOR, DEMO
 from tests.core.export.conftest import made_deviation as _made_deviation
 from tests.support.lo_session import libreoffice
 
-FREQ = "How common"
+FREQ = "Past use"
 #: The table's columns without the frequency column (no precedent set used).
 NO_FREQ_COLUMNS = tuple(c for c in ISSUE_COLUMNS if c != FREQ)
 
@@ -59,6 +59,9 @@ class _TableReader(HTMLParser):
         self._p: list[str] | None = None
         self._in_style = False
         self.external: list[str] = []
+        #: (class attribute, text) of every <strong>: the side its wash marks.
+        self.strong_sides: list[tuple[str, str]] = []
+        self._strong_class = ""
 
     def handle_starttag(self, tag, attrs):
         self.tags.append(tag)
@@ -72,6 +75,7 @@ class _TableReader(HTMLParser):
             self._cell.append("\n")
         elif tag == "strong" and self._cell is not None:
             self._strong = []
+            self._strong_class = dict(attrs).get("class") or ""
         elif tag == "p":
             self._p = []
         elif tag == "style":
@@ -86,6 +90,7 @@ class _TableReader(HTMLParser):
             self._cell = None
         elif tag == "strong" and self._strong is not None:
             self.strong[-1][-1].append("".join(self._strong))
+            self.strong_sides.append((self._strong_class, "".join(self._strong)))
             self._strong = None
         elif tag == "p" and self._p is not None:
             self.paragraphs.append("".join(self._p))
@@ -145,7 +150,7 @@ def test_issues_list_in_three_formats_reads_back_as_one_table(scenario, tmp_path
     # caution is printed by the command line; it is no data row).
     assert tuple(records[0]) == ISSUE_CSV_COLUMNS
     assert ISSUE_CSV_COLUMNS[:7] == ISSUE_COLUMNS == (
-        "No.", "Clause", "What changed", "Why it matters", "How common", "Decision", "Note")
+        "No.", "Clause", "What changed", "Why it matters", "Past use", "Decision", "Note")
     assert ISSUE_CSV_COLUMNS[7:] == ("Precedent's changed words", "Draft's changed words")
     assert all(len(r) == len(ISSUE_CSV_COLUMNS) for r in records)
     assert CAUTION not in csv_path.read_text(encoding="utf-8-sig")
@@ -162,7 +167,7 @@ def test_issues_list_in_three_formats_reads_back_as_one_table(scenario, tmp_path
                                    "\u2192 \u201c\u2026 each invoice within sixty (60) days of receipt.\u201d")
     assert (pay["Precedent's changed words"], pay["Draft's changed words"]) == ("thirty (30)", "sixty (60)")
     assert pay["Why it matters"] == "Payment period changed from 30 to 60 days"
-    assert pay["How common"] == "in 3 of 10 past agreements with such a clause"
+    assert pay["Past use"] == "in 3 of 10 past agreements with such a clause"
     assert (pay["Decision"], pay["Note"]) == ("revert", "Thirty days is our floor.")
     # Added and removed provisions, and the renamed defined term, in words.
     assert rows["4"]["What changed"] == ("Provision added: \u201cThe Client may set off any amount the "
@@ -174,7 +179,7 @@ def test_issues_list_in_three_formats_reads_back_as_one_table(scenario, tmp_path
     assert rows["3"]["Clause"] == "3.1 Audit (precedent only)"
     assert rows["6"]["What changed"] == "Defined term \u201cCustomer\u201d\n\u2192 \u201cClient\u201d (3 uses in the draft)"
     assert rows["6"]["Why it matters"] == "Read as the same defined term (evidence: definition; confidence 0.95)"
-    assert rows["2"]["Decision"] == "undecided" and rows["2"]["How common"] == ""
+    assert rows["2"]["Decision"] == "undecided" and rows["2"]["Past use"] == ""
     table_rows = [r[:len(ISSUE_COLUMNS)] for r in records[1:]]
 
     html_path = tmp_path / "issues.html"
@@ -188,8 +193,15 @@ def test_issues_list_in_three_formats_reads_back_as_one_table(scenario, tmp_path
     what = ISSUE_COLUMNS.index("What changed")
     assert page.strong[1][what] == ["thirty (30)", "sixty (60)"]
     assert [cell for i, cell in enumerate(page.strong[1]) if i != what] == [[]] * (len(ISSUE_COLUMNS) - 1)
+    # ... washed by side: the precedent's words before the arrow, the draft's after it, each
+    # with its own background in the page's style sheet (the window's two washes).
+    assert ("was", "thirty (30)") in page.strong_sides and ("now", "sixty (60)") in page.strong_sides
+    assert ("was", "Customer") in page.strong_sides and ("now", "Client") in page.strong_sides
+    assert {side for side, _ in page.strong_sides} == {"was", "now"}
+    assert re.search(r"strong\.was \{ background: #[0-9a-f]{6}; \}", page.style)
+    assert re.search(r"strong\.now \{ background: #[0-9a-f]{6}; \}", page.style)
     # The figure is explained once, in a note under the table.
-    assert sum(p.startswith("How common: of the firm's 12 past agreements") for p in page.paragraphs) == 1
+    assert sum(p.startswith("Past use: of the firm's 12 past agreements") for p in page.paragraphs) == 1
 
     docx_path = tmp_path / "issues.docx"
     write_issues_list(review, docx_path, decisions=decisions, author=AUTHOR)
@@ -201,7 +213,7 @@ def test_issues_list_in_three_formats_reads_back_as_one_table(scenario, tmp_path
     bold = [[r.text for p in c.paragraphs for r in p.runs if r.bold] for c in document.tables[0].rows[1].cells]
     assert bold[what] == ["thirty (30)", "sixty (60)"]
     assert CAUTION in [p.text for p in document.paragraphs]
-    assert sum(p.text.startswith("How common: of the firm's 12") for p in document.paragraphs) == 1
+    assert sum(p.text.startswith("Past use: of the firm's 12") for p in document.paragraphs) == 1
     view = libreoffice().inspect(docx_path, pdf=tmp_path / "issues.pdf")
     assert view.pdf_bytes and view.pdf_bytes > 1000
 
@@ -213,7 +225,7 @@ def test_frequency_column_only_when_a_precedent_set_was_used(scenario, tmp_path)
     assert tuple(_read_html(tmp_path / "issues.html").rows[0]) == NO_FREQ_COLUMNS
     assert tuple(_read_docx_table(tmp_path / "issues.docx")[0]) == NO_FREQ_COLUMNS
     page = _read_html(tmp_path / "issues.html")
-    assert not any(p.startswith("How common") for p in page.paragraphs)
+    assert not any(p.startswith("Past use") for p in page.paragraphs)
 
 
 # --------------------------------------------------------------------------------------
@@ -467,7 +479,7 @@ def test_how_common_reads_in_words_with_the_firms_label_and_is_explained_once(sc
     path = tmp_path / "issues.html"
     write_issues_list(review, path)
     page = _read_html(path)
-    (note,) = [p for p in page.paragraphs if p.startswith("How common")]
+    (note,) = [p for p in page.paragraphs if p.startswith("Past use")]
     assert "of the firm's 12 past agreements in the precedent set" in note and "preferred" in note
     col = ISSUE_COLUMNS.index(FREQ)
     assert page.rows[1][col] == by_ref["v1"].frequency  # v1 is the first clause

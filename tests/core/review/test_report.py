@@ -2,9 +2,13 @@
 
 from __future__ import annotations
 
+import shutil
+
+import pytest
+
 from core import CAUTION
 from core.review import run_review
-from core.review.report import format_review, shown_deviations
+from core.review.report import format_review, shown_deviations, terminal_width
 
 from .helpers import doc
 
@@ -34,7 +38,7 @@ DRAFT = """
 
 def test_table_fits_100_columns_ranks_and_ends_with_the_caution():
     r = run_review(doc(DRAFT), doc(PRECEDENT))
-    out = format_review(r)
+    out = format_review(r, width=100)
     lines = out.splitlines()
     assert max(len(line) for line in lines) <= 100
     assert " ".join(" ".join(lines[-3:]).split()) == CAUTION
@@ -51,7 +55,8 @@ def test_show_selects_categories():
     assert {v.category for v in shown_deviations(r, show="substantive")} == {"substantive"}
     every = shown_deviations(r, show="all")
     assert len(every) == len(r.deviations) and "formatting" in {v.category for v in every}
-    assert "not shown" in format_review(r) and "not shown" not in format_review(r, show="all")
+    assert "not shown" in format_review(r, width=100)
+    assert "not shown" not in format_review(r, show="all", width=100)
 
 
 def test_narrow_width_still_fits():
@@ -79,7 +84,7 @@ def test_each_row_shows_the_number_that_decide_takes(tmp_path, capsys):
     r = run_review(doc(DRAFT), doc(PRECEDENT))
     out = format_review(r, show="all")
     header = _header(out)
-    assert header.split()[:3] == ["No.", "Sev", "Clause"] and "Common" not in header and "Id" not in header
+    assert header.split()[:3] == ["No.", "Sev", "Clause"] and "Past use" not in header and "Id" not in header
     by_rank = {v.rank: v for v in r.deviations}
     rows = _rows(out)
     assert len(rows) == len(r.deviations)
@@ -114,11 +119,75 @@ def test_with_a_precedent_set_the_table_says_how_common_the_drafts_wording_is():
     for width in (100, 72, 60):
         out = format_review(r, width=width)
         assert max(len(line) for line in out.splitlines()) <= width
-    out = format_review(r)
-    assert "Common" in _header(out)
+    out = format_review(r, width=100)
+    assert "Past use" in _header(out)
     assert "precedent set (12)" in out
     for row in _rows(out):
         v = next(v for v in r.deviations if v.rank == int(row.split()[0]))
         assert ("2/12" in row.split()) == (v.category == "substantive")
         if v.category == "term":
             assert " - " in row
+
+
+# -- the terminal's width ----------------------------------------------------------------
+#
+# Outside reference: Python's shutil.get_terminal_size, documented to read the COLUMNS
+# environment variable first, then the terminal of standard output, then the fallback.
+
+LONG_REASON = ("interest on late payment changed from four per cent (4%) to two per cent (2%) "
+               "a year above the base rate of the central bank of Ardence, calculated daily")
+
+
+def _long_review():
+    import dataclasses
+
+    r = run_review(doc(DRAFT), doc(PRECEDENT))
+    first = r.deviations[0]
+    devs = (dataclasses.replace(first, reasons=(LONG_REASON, *first.reasons[1:])), *r.deviations[1:])
+    return dataclasses.replace(r, deviations=devs), first.rank
+
+
+def _row_block(out: str, rank: int) -> list[str]:
+    """The lines of deviation *rank*: its numbered line and the continuation lines below."""
+    lines = out.splitlines()
+    start = next(i for i, line in enumerate(lines) if line[:4].strip() == str(rank))
+    block = [lines[start]]
+    for line in lines[start + 1:]:
+        if line[:8].strip() or not line.strip():
+            break
+        block.append(line)
+    return block
+
+
+@pytest.mark.parametrize("columns", [80, 160])
+def test_the_table_fills_the_width_columns_gives_and_wraps_long_wording(monkeypatch, columns):
+    monkeypatch.setenv("COLUMNS", str(columns))
+    assert terminal_width() == columns == shutil.get_terminal_size().columns
+    r, rank = _long_review()
+    out = format_review(r)  # no width given: the terminal's
+    lines = out.splitlines()
+    assert max(len(line) for line in lines) <= columns
+    assert max(len(line) for line in lines) >= columns - 10  # the rule under the header fills it
+    block = _row_block(out, rank)
+    # the summary column starts where the header's "Summary" does; every wrapped line of the
+    # reason sits in that column, and together they give the reason whole, uncut
+    at = _header(out).index("Summary")
+    text = " ".join(line[at:].strip() for line in block)
+    assert text == LONG_REASON and "\u2026" not in text
+    assert (len(block) > 1) == (len(LONG_REASON) > columns - at)
+
+
+def test_cli_review_uses_columns(monkeypatch, tmp_path, capsys):
+    from core.cli import main
+
+    draft, precedent = tmp_path / "draft.txt", tmp_path / "precedent.txt"
+    draft.write_text(DRAFT, encoding="utf-8")
+    precedent.write_text(PRECEDENT, encoding="utf-8")
+    widths = {}
+    for columns in (80, 160):
+        monkeypatch.setenv("COLUMNS", str(columns))
+        assert main(["review", str(draft), "--against", str(precedent)]) == 0
+        out = capsys.readouterr().out
+        widths[columns] = max(len(line) for line in out.splitlines())
+        assert widths[columns] <= columns
+    assert widths[80] < widths[160]
