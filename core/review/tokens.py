@@ -18,7 +18,7 @@ import re
 from collections.abc import Callable, Collection, Container, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
-from ..terms import terms_pattern
+from ..terms import REGEX_FORMS_MAX, char_trie, term_owners, walk_forms
 
 __all__ = [
     "DASHES",
@@ -309,9 +309,15 @@ class TermMatcher:
     is a form of, so that "Your" (an alias of "You") is a singular use and "Clients" a
     plural one."""
 
-    pattern: re.Pattern[str]
+    pattern: re.Pattern[str] | None
     owner: Mapping[str, str]
     written: Mapping[str, str]
+    #: For many names (over :data:`core.terms.REGEX_FORMS_MAX` forms) a character trie
+    #: walked in Python (:func:`core.terms.walk_forms`) instead of the pattern, whose
+    #: compilation grows too slow.
+    trie: dict | None = None
+
+
 
 
 _POSSESSIVE = r"(?P<pos>['\u2019][sS](?!\w)|(?<=[sS])['\u2019](?!\w))?(?!\w)"
@@ -362,14 +368,26 @@ def term_matcher(terms: Iterable[str], *, aliases: Mapping[str, str] | None = No
     if not names and not alias_of:
         return None
     if capitals:
+        known = set(names)
         for n in [*names, *alias_of]:
             up = n.upper()
-            if n[:1].isupper() and up != n and up not in alias_of and up not in names:
+            if n[:1].isupper() and up != n and up not in alias_of and up not in known:
                 alias_of[up] = alias_of.get(n, n)
-    _reference, owner = terms_pattern(names, aliases=alias_of)
-    _reference, written = terms_pattern([*names, *alias_of])
+    owner = term_owners(names, aliases=alias_of)
+    written = term_owners([*names, *alias_of])
+    if len(owner) > REGEX_FORMS_MAX:
+        return TermMatcher(None, owner, written, char_trie(owner))
     pattern = re.compile(r"(?P<form>" + _trie_regex(owner) + r")" + _POSSESSIVE)
     return TermMatcher(pattern, owner, written)
+
+
+def _matches(text: str, matcher: TermMatcher) -> Iterable[tuple[int, int, str, str | None]]:
+    if matcher.trie is not None:
+        yield from walk_forms(text, matcher.trie)
+        return
+    assert matcher.pattern is not None
+    for m in matcher.pattern.finditer(text):
+        yield m.start(), m.end(), m.group("form"), m.group("pos")
 
 
 def find_term_uses(text: str, matcher: TermMatcher | None) -> list[TermUse]:
@@ -378,19 +396,15 @@ def find_term_uses(text: str, matcher: TermMatcher | None) -> list[TermUse]:
         return []
     uses: list[TermUse] = []
     owner = matcher.owner
-    for m in matcher.pattern.finditer(text):
-        start = m.start()
+    for start, end, f, pos in _matches(text, matcher):
         if start and (text[start - 1].isalnum() or text[start - 1] in "_-"):
             continue  # not the start of a word (core.terms: (?<![\w-]))
-        f = m.group("form")
         term = owner.get(f)
         if term is None:
             f = " ".join(f.split())
             term = owner.get(f)
             if term is None:
                 continue
-        pos = m.group("pos")
-        end = m.end()
         if pos in ("'", "\u2019") and text[start - 1:start] in ("'", "\u2018"):
             pos, end = None, end - 1  # 'Services': a closing quote, not a plural possessive
         form = ("pl" if f != matcher.written.get(f, term) else "") + ("pos" if pos else "")

@@ -166,3 +166,21 @@ def test_terms_of_a_read_document():
     check_document(doc)
     assert [(t.term, t.uses) for t in doc.terms] == [("Goods", 2), ("Price", 2)]
     assert doc.terms[0].provision == next(p.id for p in doc.provisions if p.term == "Goods")
+
+
+def test_uses_counted_by_the_trie_walk_equal_the_patterns_count():
+    """Above REGEX_FORMS_MAX forms the uses are counted by walking a character trie; on a
+    real text (apache-2.0.LICENSE, licensedcode-data) it counts what the compiled pattern
+    (Python's re, the reference) counts."""
+    from core import terms as terms_module
+    from tests.support.legal_texts import license_text
+
+    doc = read_text(license_text("apache-2.0"))
+    by_pattern = [(t.term, t.uses) for t in doc.terms]
+    saved = terms_module.REGEX_FORMS_MAX
+    terms_module.REGEX_FORMS_MAX = 0
+    try:
+        by_walk = [(t.term, t.uses) for t in terms_module.find_terms(doc.provisions, blocks=doc.blocks)]
+    finally:
+        terms_module.REGEX_FORMS_MAX = saved
+    assert by_walk == by_pattern and sum(u for _, u in by_walk) > 50

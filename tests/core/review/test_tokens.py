@@ -11,7 +11,7 @@ from __future__ import annotations
 import unicodedata
 
 import pytest
-from hypothesis import given
+from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from core.reader import read_text
@@ -148,3 +148,30 @@ def test_names_keyed_as_words_compare_by_their_letters():
     assert term.keys == word.keys
     kept = rekey(base_tokens("to Reproduce the Work", m), term_key={})
     assert kept.keys != word.keys
+
+
+# --------------------------------------------------------------------------------------
+# The character-trie walk for many names against the compiled pattern (the slow reference)
+# --------------------------------------------------------------------------------------
+
+_NAME_WORDS = ["Services", "Service", "Customer", "Sub-Contractor", "Data", "Group", "Price"]
+
+
+@settings(max_examples=400, deadline=None)
+@given(names=st.lists(st.lists(st.sampled_from(_NAME_WORDS), min_size=1, max_size=3).map(" ".join),
+                      min_size=1, max_size=6, unique=True),
+       pieces=st.lists(st.sampled_from([*_NAME_WORDS, "services", "s", "'s", "\u2019", "'", " ", "  ",
+                                        "\n", ",", ".", "(", ")", "-", "x", "9", "Ltd"]), max_size=40))
+def test_the_trie_walk_finds_what_the_pattern_finds(names, pieces):
+    """Above REGEX_FORMS_MAX forms the uses are found by walking a character trie; on any
+    text it finds exactly the uses the compiled pattern (Python's re, the reference) finds."""
+    import dataclasses
+
+    from core.review.tokens import find_term_uses, term_matcher
+    from core.terms import char_trie
+
+    text = "".join(pieces)
+    regex = term_matcher(names, capitals=True)
+    assert regex is not None and regex.pattern is not None
+    walked = dataclasses.replace(regex, pattern=None, trie=char_trie(regex.owner))
+    assert find_term_uses(text, walked) == find_term_uses(text, regex)
