@@ -43,7 +43,7 @@ def _cmd_inspect(args: argparse.Namespace) -> int:
     if args.json:
         _write_json(document_to_dict(doc), args.json)
     else:
-        from .review.report import terminal_width
+        from .console import terminal_width
 
         print(format_outline(doc, width=args.width or terminal_width()))
     return 0
@@ -219,7 +219,8 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     from .decisions import decide, new_review_file, save_review_file
     from .export import default_author, write_counter_draft, write_issues_list, write_redline
     from .reader import read_document
-    from .review.report import format_review, terminal_width
+    from .console import terminal_width
+    from .review.report import format_review
 
     width = terminal_width()
     draft_path = str(DEMO_DIR / "draft.docx")

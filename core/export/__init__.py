@@ -44,49 +44,49 @@ The package has one module per output (:mod:`.counter_draft`, :mod:`.redline`,
 
 from __future__ import annotations
 
-from .common import (
-    CAUTION_PROPERTY,
-    block_owners,
-    default_author,
-    provision_blocks,
-)
-from .counter_draft import (
-    CounterDraftPlan,
-    counter_draft_bytes,
-    plan_counter_draft,
-    write_counter_draft,
-)
-from .issues import (
-    CHANGE_CONTEXT_WORDS,
-    CHANGE_MAX_WORDS,
-    ISSUE_COLUMNS,
-    ISSUE_CSV_COLUMNS,
-    ISSUE_ORDERS,
-    ISSUE_WIDTHS_CM,
-    ISSUES_DEFAULT_INCLUDE,
-    ISSUES_DEFAULT_ORDER,
-    Excerpt,
-    IssueRow,
-    clause_order,
-    issue_rows,
-    issues_list_csv,
-    issues_list_docx,
-    issues_list_html,
-    write_issues_list,
-)
-from .redline import (
-    REDLINE_BODY_HEADING,
-    REDLINE_BODY_HEADINGS,
-    REDLINE_DEFAULT_SHOW,
-    REDLINE_END,
-    REDLINE_SHOW_CHOICES,
-    REDLINE_TABLE_WIDTHS_CM,
-    REDLINE_TERMS_WIDTHS_CM,
-    RedlineShow,
-    redline_body,
-    redline_bytes,
-    write_redline,
-)
+import importlib
+from typing import Any
+
+#: Where each public name lives.  The package loads a module only when one of its names is
+#: first used (PEP 562 module ``__getattr__``), so a command that needs one output -- or
+#: only the issues list's constants -- does not import the engine behind the others.
+_HOME = {
+    "CAUTION_PROPERTY": "common",
+    "CHANGE_CONTEXT_WORDS": "issues",
+    "CHANGE_MAX_WORDS": "issues",
+    "CounterDraftPlan": "counter_draft",
+    "Excerpt": "issues",
+    "ISSUES_DEFAULT_INCLUDE": "issues",
+    "ISSUES_DEFAULT_ORDER": "issues",
+    "ISSUE_COLUMNS": "issues",
+    "ISSUE_CSV_COLUMNS": "issues",
+    "ISSUE_ORDERS": "issues",
+    "ISSUE_WIDTHS_CM": "issues",
+    "IssueRow": "issues",
+    "REDLINE_BODY_HEADING": "redline",
+    "REDLINE_BODY_HEADINGS": "redline",
+    "REDLINE_DEFAULT_SHOW": "redline",
+    "REDLINE_END": "redline",
+    "REDLINE_SHOW_CHOICES": "redline",
+    "REDLINE_TABLE_WIDTHS_CM": "redline",
+    "REDLINE_TERMS_WIDTHS_CM": "redline",
+    "RedlineShow": "redline",
+    "block_owners": "common",
+    "clause_order": "issues",
+    "counter_draft_bytes": "counter_draft",
+    "default_author": "common",
+    "issue_rows": "issues",
+    "issues_list_csv": "issues",
+    "issues_list_docx": "issues",
+    "issues_list_html": "issues",
+    "plan_counter_draft": "counter_draft",
+    "provision_blocks": "common",
+    "redline_body": "redline",
+    "redline_bytes": "redline",
+    "write_counter_draft": "counter_draft",
+    "write_issues_list": "issues",
+    "write_redline": "redline",
+}
 
 __all__ = [
     "CAUTION_PROPERTY",
@@ -125,3 +125,16 @@ __all__ = [
     "write_issues_list",
     "write_redline",
 ]
+
+
+def __getattr__(name: str) -> Any:
+    home = _HOME.get(name)
+    if home is None:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    value = getattr(importlib.import_module(f"{__name__}.{home}"), name)
+    globals()[name] = value
+    return value
+
+
+def __dir__() -> list[str]:
+    return sorted(__all__)

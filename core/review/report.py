@@ -10,11 +10,11 @@ Every cell is read from the review; nothing is recomputed."""
 
 from __future__ import annotations
 
-import shutil
 import textwrap
 from collections import Counter
 
 from .. import CAUTION
+from ..console import DEFAULT_WIDTH, terminal_width
 from ..labels import clause_label
 from ..model import Deviation, Review
 
@@ -36,20 +36,10 @@ NUMBER_HEADING = "No."
 _CLAUSE_MIN_W, _SUMMARY_MIN_W = 12, 24
 #: Narrowest table the layout supports (columns).
 MIN_WIDTH = 60
-#: Width when neither ``COLUMNS`` nor a terminal tells one (output to a file or a pipe): the
-#: table as it always was.
-DEFAULT_WIDTH = 100
 #: Heading of the past-use column (the name the window and the issues list use too).
 PAST_USE_HEADING = "Past use"
 #: Shown in the past-use column for a deviation without a frequency (e.g. a renamed term).
 NO_FREQUENCY = "-"
-
-
-def terminal_width() -> int:
-    """Columns to fill: ``COLUMNS`` when set to a number, else the size of the terminal on
-    standard output, else :data:`DEFAULT_WIDTH` (:func:`shutil.get_terminal_size` in that
-    order)."""
-    return shutil.get_terminal_size((DEFAULT_WIDTH, 24)).columns
 
 
 def shown_deviations(review: Review, *, show: str | None = None) -> list[Deviation]:
