@@ -38,7 +38,6 @@ training is bounded by ``vocab.MAX_TRAINING_WORDS``.
 from __future__ import annotations
 
 import hashlib
-import io
 import json
 import multiprocessing
 import os
@@ -46,6 +45,7 @@ import re
 import sqlite3
 import stat
 import time
+from collections import defaultdict
 from collections.abc import Callable, Iterator, Mapping, Sequence
 from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, replace
@@ -56,9 +56,18 @@ import numpy as np
 
 from ..errors import CounterdraftError
 from ..fileio import atomic_write_bytes, exclusive, file_sha256, remove_orphaned_parts
+from .bucketcache import BucketArrays, assemble, compact
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
-from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
-from .variants import VariantConfig, cluster_wordings, incidence_matrix
+from .normalise import (
+    TermReplacer,
+    _word_hash,
+    canonical_role,
+    fold,
+    learn_aliases,
+    match_tokens,
+    shingle_hashes,
+)
+from .variants import RegroupTooLarge, VariantConfig, cluster_wordings, regroup
 
 __all__ = [
     "DB_DIRNAME",
@@ -74,8 +83,8 @@ __all__ = [
     "Library",
     "Progress",
     "VariantInfo",
-    "build_library",
     "bucket_of",
+    "build_library",
     "default_db_path",
     "normalised_wording",
     "open_library",
@@ -85,7 +94,8 @@ __all__ = [
 SUFFIXES: tuple[str, ...] = (".docx", ".txt", ".md")
 DB_DIRNAME = ".counterdraft"
 DB_FILENAME = "library.sqlite"
-CACHE_FILENAME = "variants.npz"
+CACHE_FILENAME = "variants.npz"  # the frequency cache of earlier versions (one file), removed
+BUCKETS_DIRNAME = "buckets"  # the frequency cache: one file per bucket (core.library.bucketcache)
 NEIGHBOURS_FILENAME = "clausetypes.npz"
 VOCAB_FILENAME = "vocabulary.npz"
 SCHEMA_VERSION = "1"
@@ -98,6 +108,30 @@ MIN_AGREEMENT_TYPES = 3
 #: Below this many files to read, reading stays in this process: starting worker processes
 #: (spawn, which is safe beside the desktop app's threads) costs about a second.
 POOL_MIN_FILES = 16
+
+#: Layout of the derived files (meta ``derived``): an index whose derived data has another
+#: layout gets it all anew on its next build.
+DERIVED_FORMAT = "2"
+
+#: A bucket of at most this many distinct wordings is clustered in full whenever it changes:
+#: its 80,000 distances and their linkage take milliseconds, and a full clustering is the
+#: reference the incremental path approximates.
+ALWAYS_FULL_WORDINGS = 400
+
+#: Wordings added to or removed from a larger bucket are regrouped into its variants
+#: (:func:`core.library.variants.regroup`) until the wordings added and removed since its
+#: last full clustering exceed this share of the wordings it then had; the change after that
+#: clusters it in full again.  A tenth: regrouping is exact for single linkage and, for
+#: average and complete linkage, departs from a full clustering only when sub-groups of two
+#: variants lie within the cut-off of each other (none on the demo set and the test
+#: corpora), so the drift stays small, while one full clustering of a 3,000-wording bucket
+#: costs seconds -- a tenth of the wordings is ~100 added agreements at 1,000.
+CLUSTER_DRIFT = 0.10
+
+#: A build trains the vocabulary model in a worker process, beside the clustering, when the
+#: training corpus holds at least this many words (about 1.5 s of training): below that,
+#: starting a process and importing gensim in it (about a second) costs more than it saves.
+PARALLEL_TRAINING_MIN_WORDS = 200_000
 
 #: The reviewer's positions on a variant, strongest first.
 POSITIONS: tuple[str, ...] = ("preferred", "acceptable", "fallback", "not acceptable")
@@ -138,6 +172,9 @@ CREATE TABLE IF NOT EXISTS labels(
     bucket TEXT NOT NULL, norm_hash TEXT NOT NULL, position TEXT NOT NULL, seq INTEGER NOT NULL,
     PRIMARY KEY(bucket, norm_hash));
 CREATE TABLE IF NOT EXISTS buckets(bucket TEXT PRIMARY KEY, fingerprint TEXT NOT NULL);
+CREATE TABLE IF NOT EXISTS dirty(bucket TEXT PRIMARY KEY);
+CREATE TABLE IF NOT EXISTS bucket_state(
+    bucket TEXT PRIMARY KEY, clustered INTEGER NOT NULL, drift INTEGER NOT NULL);
 """
 
 
@@ -602,11 +639,13 @@ def _build_into(conn: sqlite3.Connection, root_p: Path, db: Path, *, progress: P
         new = json.dumps([config.metric, config.linkage, config.cutoff, config.max_items])
         if old != new:
             _set_meta(conn, "variant_config", new)
-            conn.execute("DELETE FROM buckets")
+            conn.execute("DELETE FROM bucket_state")
+            conn.execute("INSERT OR IGNORE INTO dirty(bucket) SELECT DISTINCT bucket FROM provisions")
             _set_meta(conn, "stale", "1")
     files = _scan(root_p, exclude=[*exclude, db])
     report = _update_files(conn, files, progress=progress, cancel=cancel, workers=workers)
-    changed = report.read > 0 or report.removed > 0 or _meta(conn, "stale") == "1"
+    changed = (report.read > 0 or report.removed > 0 or _meta(conn, "stale") == "1"
+               or _meta(conn, "derived") != DERIVED_FORMAT)
     cancelled = report.cancelled
     if changed and not cancelled:
         _set_meta(conn, "stale", "1")
@@ -638,6 +677,7 @@ def _update_files(conn: sqlite3.Connection, files: Sequence[_FileStat], *, progr
     removed = 0
     for path, (doc_id, *_rest) in known.items():
         if path not in on_disk:
+            _mark_dirty(conn, doc_id)
             conn.execute("DELETE FROM documents WHERE id = ?", (doc_id,))
             removed += 1
     for path in failed:
@@ -703,6 +743,9 @@ def _update_files(conn: sqlite3.Connection, files: Sequence[_FileStat], *, progr
 
 
 def _store(conn: sqlite3.Connection, f: _FileStat, res: _Extract | _Problem) -> None:
+    previous = conn.execute("SELECT id FROM documents WHERE path = ?", (f.rel,)).fetchone()
+    if previous is not None:
+        _mark_dirty(conn, previous[0])
     conn.execute("DELETE FROM documents WHERE path = ?", (f.rel,))
     conn.execute("DELETE FROM failures WHERE path = ?", (f.rel,))
     if isinstance(res, _Problem):
@@ -724,6 +767,7 @@ def _store(conn: sqlite3.Connection, f: _FileStat, res: _Extract | _Problem) -> 
          in enumerate(res.provisions)])
     conn.executemany("INSERT INTO terms(document_id, term, definition, provision, uses) VALUES(?,?,?,?,?)",
                      [(doc_id, *t) for t in res.terms])
+    _mark_dirty(conn, doc_id)
 
 
 # ----------------------------------------------------------------------------------------
@@ -741,19 +785,74 @@ def _doc_replacer(terms: Sequence[str], aliases: Mapping[str, str]) -> TermRepla
 
 def _refresh_derived(conn: sqlite3.Connection, folder: Path, *, cancel: Cancel | Any | None,
                      vocabulary: bool) -> bool:
-    """Refresh everything computed from the documents.  False when cancelled."""
-    # 1. Aliases between the documents' defined terms.
+    """Refresh what is computed from the documents, only where something changed (the module
+    docstring).  False when cancelled: what is done is kept, the rest stays marked."""
+    _upgrade_derived(conn, folder)
+    aliases = _refresh_aliases(conn)
+    normalised = _normalise_pending(conn, aliases, cancel=cancel)
+    if normalised is None or _cancelled(cancel):
+        return False
+    _retype_by_neighbours(conn, folder, normalised)
+    conn.commit()
+    if _cancelled(cancel):
+        return False
+    training = _start_vocabulary(conn, folder, aliases) if vocabulary else None
+    try:
+        done = _refresh_variants(conn, folder, cancel=cancel)
+    except BaseException:
+        if training is not None:
+            training.stop()
+        raise
+    if training is not None:
+        if done:
+            training.finish(conn)
+        else:
+            training.stop()
+    return done
+
+
+def _upgrade_derived(conn: sqlite3.Connection, folder: Path) -> None:
+    """An index whose derived files have an earlier layout (or none) gets all of them anew."""
+    if _meta(conn, "derived") == DERIVED_FORMAT:
+        return
+    conn.execute("DELETE FROM bucket_state")
+    conn.execute("INSERT OR IGNORE INTO dirty(bucket) SELECT DISTINCT bucket FROM provisions")
+    conn.execute("DELETE FROM meta WHERE key IN ('neighbour_examples', 'vocabulary')")
+    try:
+        os.unlink(folder / CACHE_FILENAME)  # the earlier single frequency cache
+    except FileNotFoundError:
+        pass
+    _set_meta(conn, "derived", DERIVED_FORMAT)
+    conn.commit()
+
+
+def _mark_dirty(conn: sqlite3.Connection, document_id: int) -> None:
+    """The buckets of a document's provisions need their variants and cache refreshed."""
+    conn.execute("INSERT OR IGNORE INTO dirty(bucket) SELECT DISTINCT bucket FROM provisions "
+                 "WHERE document_id = ?", (document_id,))
+
+
+def _refresh_aliases(conn: sqlite3.Connection) -> dict[str, str]:
+    """Aliases between the documents' defined terms; when they change, every document is
+    normalised again and every bucket refreshed."""
     aliases = learn_aliases(conn.execute("SELECT document_id, term, definition FROM terms"))
     encoded = json.dumps(aliases, sort_keys=True)
     if _meta(conn, "aliases") != encoded:
         conn.execute("UPDATE documents SET normalised = 0")
+        conn.execute("INSERT OR IGNORE INTO dirty(bucket) SELECT DISTINCT bucket FROM provisions")
         _set_meta(conn, "aliases", encoded)
-    # 2. Normalised wordings of documents not yet normalised.
+    return aliases
+
+
+def _normalise_pending(conn: sqlite3.Connection, aliases: Mapping[str, str], *,
+                       cancel: Cancel | Any | None) -> list[int] | None:
+    """Normalised wordings and shingles of the documents not yet normalised; their ids, or
+    None when cancelled."""
     todo = [r[0] for r in conn.execute("SELECT id FROM documents WHERE normalised = 0 ORDER BY id")]
     for n, doc_id in enumerate(todo):
         if n % 25 == 0 and _cancelled(cancel):
             conn.commit()
-            return False
+            return None
         terms = [r[0] for r in conn.execute("SELECT term FROM terms WHERE document_id = ?", (doc_id,))]
         replacer = _doc_replacer(terms, aliases)
         rows = []
@@ -765,48 +864,50 @@ def _refresh_derived(conn: sqlite3.Connection, folder: Path, *, cancel: Cancel |
         conn.executemany("UPDATE provisions SET norm = ?, norm_hash = ?, shingles = ? WHERE id = ?", rows)
         conn.execute("UPDATE documents SET normalised = 1 WHERE id = ?", (doc_id,))
     conn.commit()
-    if _cancelled(cancel):
-        return False
-    # 3. Neighbour typing of unheaded or oddly headed clauses.
-    _retype_by_neighbours(conn, folder)
-    conn.commit()
-    if _cancelled(cancel):
-        return False
-    # 4. Variants and the frequency cache.
-    _refresh_variants(conn, folder)
-    conn.commit()
-    if _cancelled(cancel):
-        return False
-    # 5. Vocabulary model.
-    if vocabulary:
-        from .vocab import train_library_vocabulary
-
-        train_library_vocabulary(conn, folder / VOCAB_FILENAME)
-    return True
+    return todo
 
 
-def _retype_by_neighbours(conn: sqlite3.Connection, folder: Path) -> None:
-    tax = load_taxonomy()
-    examples: list[tuple[str, str]] = []
+def _neighbour_examples(conn: sqlite3.Connection) -> tuple[list[tuple[str, str]], str]:
+    """The neighbour classifier's examples (typed by heading or parent, per type the first
+    MAX_EXAMPLES_PER_TYPE distinct wordings by hash) and their fingerprint."""
     from .clausetypes import MAX_EXAMPLES_PER_TYPE
 
-    for tid in tax.ids:
-        examples.extend(
-            (norm, tid) for (norm,) in conn.execute(
-                "SELECT DISTINCT norm FROM provisions WHERE type_source IN ('heading', 'parent') "
-                "AND clause_type = ? AND norm != '' ORDER BY norm_hash LIMIT ?",
-                (tid, MAX_EXAMPLES_PER_TYPE)))
-    clf = NeighbourClassifier.fit(examples, taxonomy=tax)
-    _write_private(folder / NEIGHBOURS_FILENAME, clf.to_npz_bytes())
-    rows = conn.execute("SELECT id, kind, norm, clause_type FROM provisions "
-                        "WHERE type_source IN ('neighbour', 'none')").fetchall()
+    examples: list[tuple[str, str]] = []
+    digest = hashlib.blake2b(digest_size=16)
+    for tid in load_taxonomy().ids:
+        for norm, h in conn.execute(
+                "SELECT DISTINCT norm, norm_hash FROM provisions WHERE type_source IN ('heading', 'parent') "
+                "AND clause_type = ? AND norm != '' ORDER BY norm_hash LIMIT ?", (tid, MAX_EXAMPLES_PER_TYPE)):
+            examples.append((norm, tid))
+            digest.update(f"{tid}:{h}\n".encode())
+    return examples, digest.hexdigest()
+
+
+def _retype_by_neighbours(conn: sqlite3.Connection, folder: Path, normalised: Sequence[int]) -> None:
+    """Type unheaded provisions by their library neighbours.  The classifier is refitted only
+    when its examples changed; then every neighbour-typed provision is typed again, else only
+    those of the documents just normalised (the same classifier gives the same types)."""
+    examples, fingerprint = _neighbour_examples(conn)
+    path = folder / NEIGHBOURS_FILENAME
+    sql = "SELECT id, kind, norm, clause_type, bucket FROM provisions WHERE type_source IN ('neighbour', 'none')"
+    if _meta(conn, "neighbour_examples") == fingerprint and path.exists():
+        clf = NeighbourClassifier.from_npz_bytes(path.read_bytes())
+        rows = [r for q, chunk in _id_batches(normalised)
+                for r in conn.execute(f"{sql} AND document_id IN ({q})", chunk)]
+    else:
+        clf = NeighbourClassifier.fit(examples, taxonomy=load_taxonomy())
+        _write_private(path, clf.to_npz_bytes())
+        _set_meta(conn, "neighbour_examples", fingerprint)
+        rows = conn.execute(sql).fetchall()
     if not rows:
         return
     preds = clf.predict([r[2] or "" for r in rows])
-    updates = [(tid, "neighbour" if tid else "none", bucket_of(tid, kind), pid)
-               for (pid, kind, _norm, old), (tid, _s) in zip(rows, preds) if tid != old]
+    updates = [(tid, "neighbour" if tid else "none", bucket_of(tid, kind), pid, old_bucket)
+               for (pid, kind, _norm, old, old_bucket), (tid, _s) in zip(rows, preds) if tid != old]
+    conn.executemany("INSERT OR IGNORE INTO dirty(bucket) VALUES(?)",
+                     [(b,) for u in updates for b in (u[2], u[4])])
     conn.executemany("UPDATE provisions SET clause_type = ?, type_source = ?, bucket = ? WHERE id = ?",
-                     updates)
+                     [u[:4] for u in updates])
 
 
 def _variant_config(conn: sqlite3.Connection) -> VariantConfig:
@@ -825,77 +926,186 @@ def _bucket_rows(conn: sqlite3.Connection, bucket: str) -> list[tuple[str, int, 
         "GROUP BY norm_hash ORDER BY n DESC, norm_hash", (bucket,)).fetchall()
 
 
-def _refresh_variants(conn: sqlite3.Connection, folder: Path) -> None:
+def _str_batches(values: Sequence[str]) -> Iterator[tuple[str, list[str]]]:
+    for start in range(0, len(values), _IN_BATCH):
+        chunk = list(values[start:start + _IN_BATCH])
+        yield ",".join("?" * len(chunk)), chunk
+
+
+@dataclass(frozen=True, slots=True)
+class _Wordings:
+    """A bucket's distinct wordings in its order (most provisions first, then by hash)."""
+
+    hashes: list[str]
+    count: np.ndarray
+    sample: np.ndarray  # per wording, its provision in the first document by path
+    doc_lists: list[list[int]]
+
+
+def _bucket_wordings(conn: sqlite3.Connection, bucket: str) -> _Wordings:
+    """One pass over the bucket's provisions.  The sample of a wording is its provision in the
+    document first by path (first by position there): what a full build, which stores the
+    documents in path order, finds as the lowest row id."""
+    count: dict[str, int] = defaultdict(int)
+    docs: dict[str, set[int]] = defaultdict(set)
+    best: dict[str, tuple[str, int, int]] = {}
+    for h, doc, pid, path, ordinal in conn.execute(
+            "SELECT p.norm_hash, p.document_id, p.id, d.path, p.ordinal FROM provisions p "
+            "JOIN documents d ON d.id = p.document_id WHERE p.bucket = ?", (bucket,)):
+        count[h] += 1
+        docs[h].add(doc)
+        key = (path, ordinal, pid)
+        if h not in best or key < best[h]:
+            best[h] = key
+    hashes = sorted(count, key=lambda h: (-count[h], h))
+    return _Wordings(hashes, np.array([count[h] for h in hashes], dtype=np.int32),
+                     np.array([best[h][2] for h in hashes], dtype=np.int64),
+                     [sorted(docs[h]) for h in hashes])
+
+
+def _new_wording_sets(conn: sqlite3.Connection, bucket: str,
+                      hashes: Sequence[str]) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+    """``{hash: (shingle hashes, word hashes)}`` of wordings the bucket's cache lacks."""
+    out: dict[str, tuple[np.ndarray, np.ndarray]] = {}
+    for q, chunk in _str_batches(hashes):
+        for h, blob, norm in conn.execute(
+                f"SELECT norm_hash, shingles, norm FROM provisions WHERE bucket = ? AND norm_hash IN ({q}) "
+                "GROUP BY norm_hash", (bucket, *chunk)):
+            words = (np.unique(np.fromiter((_word_hash(w) for w in norm.split()), dtype=np.uint64))
+                     if norm else np.zeros(0, dtype=np.uint64))
+            out[h] = (np.frombuffer(blob or b"", dtype=np.uint64), words)
+    return out
+
+
+def _bucket_file(folder: Path, bucket: str) -> Path:
+    name = hashlib.blake2b(bucket.encode("utf-8"), digest_size=12).hexdigest()
+    return folder / BUCKETS_DIRNAME / f"{name}.npz"
+
+
+def _read_bucket(path: Path) -> BucketArrays | None:
+    try:
+        return BucketArrays.from_npz_bytes(path.read_bytes())
+    except (OSError, ValueError, KeyError, EOFError):  # missing or not a file this code wrote
+        return None
+
+
+def _refresh_variants(conn: sqlite3.Connection, folder: Path, *, cancel: Cancel | Any | None) -> bool:
+    """Variants and frequency cache of every bucket marked dirty.  False when cancelled."""
     config = _variant_config(conn)
-    buckets = [r[0] for r in conn.execute("SELECT DISTINCT bucket FROM provisions ORDER BY bucket")]
-    conn.execute("DELETE FROM buckets WHERE bucket NOT IN (SELECT DISTINCT bucket FROM provisions)")
-    conn.execute("DELETE FROM variants WHERE bucket NOT IN (SELECT DISTINCT bucket FROM provisions)")
-    arrays: dict[str, np.ndarray] = {}
-    for bi, bucket in enumerate(buckets):
-        rows = _bucket_rows(conn, bucket)
-        hashes = [r[0] for r in rows]
-        position_of = {h: i for i, h in enumerate(hashes)}
-        doc_lists: list[list[int]] = [[] for _ in rows]
-        for h, doc_id in conn.execute("SELECT DISTINCT norm_hash, document_id FROM provisions "
-                                      "WHERE bucket = ? ORDER BY document_id", (bucket,)):
-            doc_lists[position_of[h]].append(doc_id)
-        fp = hashlib.blake2b("\n".join(sorted(hashes)).encode(), digest_size=16).hexdigest()
-        old = conn.execute("SELECT fingerprint FROM buckets WHERE bucket = ?", (bucket,)).fetchone()
-        sets = [np.frombuffer(r[2], dtype=np.uint64) for r in rows]
-        if old is None or old[0] != fp:
-            labels = cluster_wordings(sets, config=config)
-            _store_variants(conn, bucket, rows, doc_lists, labels)
-            conn.execute("INSERT INTO buckets(bucket, fingerprint) VALUES(?, ?) ON CONFLICT(bucket) "
-                         "DO UPDATE SET fingerprint = excluded.fingerprint", (bucket, fp))
+    _private_dir(folder / BUCKETS_DIRNAME)
+    for (bucket,) in conn.execute("SELECT bucket FROM dirty ORDER BY bucket").fetchall():
+        if _cancelled(cancel):
+            return False
+        _refresh_bucket(conn, folder, bucket, config)
+        conn.execute("DELETE FROM dirty WHERE bucket = ?", (bucket,))
+        conn.commit()
+    return True
+
+
+def _refresh_bucket(conn: sqlite3.Connection, folder: Path, bucket: str, config: VariantConfig) -> None:
+    """One bucket's variants and cache from its previous cache and its changed wordings."""
+    path = _bucket_file(folder, bucket)
+    words = _bucket_wordings(conn, bucket)
+    if not words.hashes:
+        conn.execute("DELETE FROM variants WHERE bucket = ?", (bucket,))
+        conn.execute("DELETE FROM bucket_state WHERE bucket = ?", (bucket,))
+        try:
+            os.unlink(path)
+        except FileNotFoundError:
+            pass
+        return
+    old = _read_bucket(path)
+    known = set(old.hashes.tolist()) if old is not None else set()
+    fresh = [h for h in words.hashes if h.encode("ascii") not in known]
+    arrays = assemble(old, hashes=words.hashes, count=words.count, sample=words.sample,
+                      doc_lists=words.doc_lists, new_sets=_new_wording_sets(conn, bucket, fresh))
+    gone = len(known) - (len(words.hashes) - len(fresh))
+    labels, full = _cluster_bucket(conn, bucket, arrays, old, gone=gone, config=config)
+    variant = _write_variants(conn, bucket, arrays, labels, full=full)
+    arrays = replace(arrays, variant=variant)
+    _write_private(path, (compact(arrays) if full else arrays).to_npz_bytes())
+
+
+def _cluster_bucket(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays, old: BucketArrays | None, *,
+                    gone: int, config: VariantConfig) -> tuple[np.ndarray, bool]:
+    """Per-wording labels and whether they come from a full clustering (new labels all) or
+    from :func:`~.variants.regroup` (the variants' ids where kept).  Full when the bucket is
+    new, small (ALWAYS_FULL_WORDINGS) or has drifted (CLUSTER_DRIFT)."""
+    state = conn.execute("SELECT clustered, drift FROM bucket_state WHERE bucket = ?", (bucket,)).fetchone()
+    fresh = arrays.variant < 0
+    changes = int(fresh.sum()) + gone
+    labels: np.ndarray | None = None
+    if old is not None and state is not None and arrays.rows > ALWAYS_FULL_WORDINGS \
+            and state[1] + changes <= CLUSTER_DRIFT * state[0]:
+        keep = set(arrays.hashes.tolist())
+        broken = sorted({int(v) for h, v in zip(old.hashes.tolist(), old.variant.tolist()) if h not in keep})
+        try:
+            labels = regroup(arrays.shingle_matrix(), arrays.sizes.astype(np.int64), arrays.variant,
+                             fresh=fresh, broken=broken, config=config)
+        except RegroupTooLarge:
+            labels = None
+    if labels is not None:
+        conn.execute("UPDATE bucket_state SET drift = drift + ? WHERE bucket = ?", (changes, bucket))
+        return labels, False
+    labels = cluster_wordings(arrays.shingle_sets(), config=config)
+    conn.execute("INSERT INTO bucket_state(bucket, clustered, drift) VALUES(?, ?, 0) ON CONFLICT(bucket) "
+                 "DO UPDATE SET clustered = excluded.clustered, drift = 0", (bucket, arrays.rows))
+    return labels, True
+
+
+def _variant_figures(arrays: BucketArrays, labels: np.ndarray) -> dict[str, np.ndarray]:
+    """Per distinct label (sorted): wordings, provisions, documents, ordinal (most provisions
+    first, ties by first wording in the bucket's order), sample; and each row's label index."""
+    uniq, inv = np.unique(labels, return_inverse=True)
+    n = arrays.rows
+    first = np.full(uniq.size, n, dtype=np.int64)
+    np.minimum.at(first, inv, np.arange(n))
+    provisions = np.bincount(inv, weights=arrays.count, minlength=uniq.size).astype(np.int64)
+    row_of_doc = np.repeat(np.arange(n), np.diff(arrays.docptr))
+    span = int(arrays.docs.max()) + 1 if arrays.docs.size else 1
+    pairs = np.unique(inv[row_of_doc].astype(np.int64) * span + arrays.docs)
+    documents = np.bincount(pairs // span, minlength=uniq.size)
+    ordinal = np.empty(uniq.size, dtype=np.int64)
+    ordinal[np.lexsort((first, -provisions))] = np.arange(1, uniq.size + 1)
+    return {"labels": uniq, "inv": inv, "wordings": np.bincount(inv, minlength=uniq.size),
+            "provisions": provisions, "documents": documents, "ordinal": ordinal,
+            "sample": arrays.sample[first]}
+
+
+def _write_variants(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays, labels: np.ndarray, *,
+                    full: bool) -> np.ndarray:
+    """Store the bucket's variants (rows changed only) and its provisions' variant ids; the
+    variant id of every wording."""
+    f = _variant_figures(arrays, labels)
+    stored = {r[0]: r[1:] for r in conn.execute(
+        "SELECT id, ordinal, wordings, provisions, documents, sample FROM variants WHERE bucket = ?", (bucket,))}
+    ids = np.empty(f["labels"].size, dtype=np.int64)
+    changed = []
+    for k, lab in enumerate(f["labels"].tolist()):
+        row = (int(f["ordinal"][k]), int(f["wordings"][k]), int(f["provisions"][k]), int(f["documents"][k]),
+               int(f["sample"][k]))
+        if not full and lab in stored:
+            ids[k] = lab
+            if tuple(stored.pop(lab)) != row:
+                changed.append((*row, lab))
         else:
-            _refresh_assignments(conn, bucket, rows, doc_lists)
-        _cache_bucket(conn, bi, bucket, rows, sets, doc_lists, arrays)
-    arrays["buckets"] = np.array(buckets, dtype=str) if buckets else np.zeros(0, dtype="<U1")
-    buf = io.BytesIO()
-    np.savez(buf, **arrays)
-    _write_private(folder / CACHE_FILENAME, buf.getvalue())
-
-
-def _store_variants(conn: sqlite3.Connection, bucket: str, rows: Sequence[tuple],
-                    doc_lists: Sequence[Sequence[int]], labels: np.ndarray) -> None:
-    conn.execute("UPDATE provisions SET variant_id = NULL WHERE bucket = ?", (bucket,))
-    conn.execute("DELETE FROM variants WHERE bucket = ?", (bucket,))
-    groups: dict[int, list[int]] = {}
-    for i, lab in enumerate(labels.tolist()):
-        groups.setdefault(lab, []).append(i)
-    ordered = sorted(groups.items(), key=lambda kv: (-sum(rows[i][1] for i in kv[1]), kv[0]))
-    has_labels = conn.execute("SELECT 1 FROM labels WHERE bucket = ? LIMIT 1", (bucket,)).fetchone()
-    updates = []
-    for ordinal, (_lab, members) in enumerate(ordered, start=1):
-        n_prov = sum(rows[i][1] for i in members)
-        n_docs = len({d for i in members for d in doc_lists[i]})
-        cur = conn.execute("INSERT INTO variants(bucket, ordinal, wordings, provisions, documents, sample) "
-                           "VALUES(?,?,?,?,?,?)", (bucket, ordinal, len(members), n_prov, n_docs,
-                                                   rows[members[0]][4]))
-        vid = cur.lastrowid
-        updates.extend((vid, bucket, rows[i][0]) for i in members)
-    conn.executemany("UPDATE provisions SET variant_id = ? WHERE bucket = ? AND norm_hash = ?", updates)
-    if has_labels:
-        for (vid,) in conn.execute("SELECT id FROM variants WHERE bucket = ?", (bucket,)).fetchall():
+            ids[k] = conn.execute("INSERT INTO variants(bucket, ordinal, wordings, provisions, documents, sample) "
+                                  "VALUES(?,?,?,?,?,?)", (bucket, *row)).lastrowid
+    conn.executemany("UPDATE variants SET ordinal = ?, wordings = ?, provisions = ?, documents = ?, sample = ? "
+                     "WHERE id = ?", changed)
+    conn.executemany("DELETE FROM variants WHERE id = ?", [(v,) for v in stored])
+    variant = ids[f["inv"]]
+    moved = set(np.flatnonzero(variant != arrays.variant).tolist())
+    unset = {h for (h,) in conn.execute("SELECT DISTINCT norm_hash FROM provisions WHERE bucket = ? "
+                                        "AND variant_id IS NULL", (bucket,))}
+    hashes = arrays.hashes.tolist()
+    conn.executemany("UPDATE provisions SET variant_id = ? WHERE bucket = ? AND norm_hash = ?",
+                     [(int(variant[i]), bucket, hashes[i].decode("ascii")) for i in range(len(hashes))
+                      if i in moved or hashes[i].decode("ascii") in unset])
+    if conn.execute("SELECT 1 FROM labels WHERE bucket = ? LIMIT 1", (bucket,)).fetchone():
+        for vid in set(ids.tolist()):
             _update_position(conn, vid)
-
-
-def _refresh_assignments(conn: sqlite3.Connection, bucket: str, rows: Sequence[tuple],
-                         doc_lists: Sequence[Sequence[int]]) -> None:
-    """Same distinct wordings as when the bucket was clustered, but other documents may use
-    them now: give new provisions their wording's variant and recount the variants."""
-    vid_of = dict(conn.execute("SELECT norm_hash, MAX(variant_id) FROM provisions WHERE bucket = ? "
-                               "GROUP BY norm_hash", (bucket,)))
-    conn.executemany("UPDATE provisions SET variant_id = ? WHERE bucket = ? AND norm_hash = ? "
-                     "AND variant_id IS NULL", [(vid_of[r[0]], bucket, r[0]) for r in rows])
-    members: dict[int, list[int]] = {}
-    for i, r in enumerate(rows):
-        vid = vid_of.get(r[0])
-        if vid is not None:
-            members.setdefault(vid, []).append(i)
-    conn.executemany("UPDATE variants SET provisions = ?, documents = ?, sample = ? WHERE id = ?",
-                     [(sum(rows[i][1] for i in m), len({d for i in m for d in doc_lists[i]}), rows[m[0]][4], vid)
-                      for vid, m in members.items()])
+    return variant
 
 
 def _update_position(conn: sqlite3.Connection, variant_id: int) -> str | None:
@@ -911,30 +1121,91 @@ def _update_position(conn: sqlite3.Connection, variant_id: int) -> str | None:
     return position
 
 
-def _cache_bucket(conn: sqlite3.Connection, bi: int, bucket: str, rows: Sequence[tuple],
-                  sets: Sequence[np.ndarray], doc_lists: Sequence[Sequence[int]],
-                  arrays: dict[str, np.ndarray]) -> None:
-    """Arrays of one bucket for :class:`BucketIndex` (no text: hashes and ids only)."""
-    m, cols = incidence_matrix(sets)
-    word_sets = [np.unique(np.fromiter((_word_hash(w) for w in r[3].split()), dtype=np.uint64))
-                 if r[3] else np.zeros(0, dtype=np.uint64) for r in rows]
-    wm, wcols = incidence_matrix(word_sets)
-    hashes = [r[0] for r in rows]
-    variant = {h: v for h, v in conn.execute(
-        "SELECT DISTINCT norm_hash, variant_id FROM provisions WHERE bucket = ?", (bucket,))}
-    p = f"b{bi}_"
-    arrays[p + "cols"] = cols
-    arrays[p + "indptr"] = m.indptr.astype(np.int64)
-    arrays[p + "indices"] = m.indices.astype(np.int32)
-    arrays[p + "sizes"] = np.fromiter((s.size for s in sets), dtype=np.int32, count=len(sets))
-    arrays[p + "wcols"] = wcols
-    arrays[p + "windptr"] = wm.indptr.astype(np.int64)
-    arrays[p + "windices"] = wm.indices.astype(np.int32)
-    arrays[p + "count"] = np.array([r[1] for r in rows], dtype=np.int32)
-    arrays[p + "sample"] = np.array([r[4] for r in rows], dtype=np.int64)
-    arrays[p + "variant"] = np.array([variant.get(h) or -1 for h in hashes], dtype=np.int64)
-    arrays[p + "docptr"] = np.cumsum([0] + [len(d) for d in doc_lists]).astype(np.int64)
-    arrays[p + "docs"] = np.array([d for ds in doc_lists for d in ds], dtype=np.int64)
+# ----------------------------------------------------------------------------------------
+# The vocabulary model
+# ----------------------------------------------------------------------------------------
+
+
+def _training_documents(conn: sqlite3.Connection,
+                        fingerprints: list[str]) -> Iterator[tuple[list[str], list[tuple[str, str]]]]:
+    """Documents in path order for :func:`~.vocab.training_sentences`; appends each one's
+    fingerprint (path and SHA-256) to *fingerprints* as it is consumed."""
+    for doc_id, path, sha in conn.execute("SELECT id, path, sha256 FROM documents ORDER BY path").fetchall():
+        fingerprints.append(f"{path}\x00{sha}")
+        terms = [t for (t,) in conn.execute("SELECT term FROM terms WHERE document_id = ?", (doc_id,))]
+        yield terms, conn.execute("SELECT text, norm_hash FROM provisions WHERE document_id = ? "
+                                  "ORDER BY ordinal", (doc_id,)).fetchall()
+
+
+class _Training:
+    """A vocabulary training decided by :func:`_start_vocabulary`: in a worker process (large
+    corpus: it runs beside the clustering, on the other core) or here at :meth:`finish`."""
+
+    def __init__(self, folder: Path, sentences: list[list[str]], state: dict[str, Any]) -> None:
+        self.path = folder / VOCAB_FILENAME
+        self.sentences = sentences
+        self.state = state
+        self._pool: Any = None
+        self._job: Any = None
+        if state["words"] >= PARALLEL_TRAINING_MIN_WORDS:
+            from .vocab import train_model
+
+            self._pool = multiprocessing.get_context("spawn").Pool(1)
+            self._job = self._pool.apply_async(train_model, (sentences,))
+
+    def finish(self, conn: sqlite3.Connection) -> None:
+        from .vocab import train_model
+
+        if self._job is not None:
+            model = self._job.get()
+            self.stop()
+        else:
+            model = train_model(self.sentences)
+        if model is None:
+            try:
+                os.unlink(self.path)
+            except FileNotFoundError:
+                pass
+        else:
+            _write_private(self.path, model.to_npz_bytes())
+        _set_meta(conn, "vocabulary", json.dumps(self.state))
+        conn.commit()
+
+    def stop(self) -> None:
+        if self._pool is not None:
+            self._pool.terminate()
+            self._pool.join()
+            self._pool = None
+
+
+def _start_vocabulary(conn: sqlite3.Connection, folder: Path, aliases: Mapping[str, str]) -> _Training | None:
+    """A :class:`_Training` when the model must be (re)trained (:func:`~.vocab.needs_training`:
+    its corpus drifted), else None: the model on disk is the one this library gives."""
+    from .vocab import (
+        MAX_TRAINING_WORDS,
+        needs_training,
+        training_sentences,
+        vocabulary_drift,
+    )
+
+    raw = _meta(conn, "vocabulary")
+    state = json.loads(raw) if raw else None
+    alias_key = hashlib.blake2b(json.dumps(aliases, sort_keys=True).encode(), digest_size=16).hexdigest()
+    total = int(conn.execute("SELECT COUNT(*) FROM documents").fetchone()[0])
+    if state is None or state.get("aliases") != alias_key:
+        drift = 1.0
+    else:
+        trained = state["documents"]
+        current = [f"{p}\x00{h}" for p, h in conn.execute(
+            "SELECT path, sha256 FROM documents ORDER BY path LIMIT ?", (len(trained),))]
+        drift = vocabulary_drift(trained=trained, current=current, exhausted=state["exhausted"], documents=total)
+    if not needs_training(drift=drift, words=state["words"] if state else 0, has_model=state is not None):
+        return None
+    fingerprints: list[str] = []
+    sentences, used, words = training_sentences(_training_documents(conn, fingerprints))
+    new_state = {"documents": fingerprints[:used], "words": words, "exhausted": words < MAX_TRAINING_WORDS,
+                 "aliases": alias_key}
+    return _Training(folder, sentences, new_state)
 
 
 # ----------------------------------------------------------------------------------------
@@ -1007,7 +1278,6 @@ class Library:
                                     "build' sets it aside and rebuilds it", path=str(self.db_path)) from None
         stored_root = _meta(self.conn, "root")
         self.root = Path(root) if root is not None else (Path(stored_root) if stored_root else self.db_path.parent)
-        self._cache: dict[str, np.ndarray] | None = None
         self._buckets: dict[str, BucketIndex | None] = {}
         self._neighbours: NeighbourClassifier | None = None
         self._vocab: Any = None
@@ -1071,39 +1341,21 @@ class Library:
             self._vocab = LibraryVocabulary.load(path) if path.exists() else False
         return self._vocab or None
 
-    def _arrays(self) -> dict[str, np.ndarray]:
-        if self._cache is None:
-            path = self.folder / CACHE_FILENAME
-            if not path.exists():
-                self._cache = {}
-            else:
-                with np.load(path, allow_pickle=False) as data:
-                    self._cache = {k: data[k] for k in data.files}
-        return self._cache
-
     def bucket_names(self) -> tuple[str, ...]:
-        arr = self._arrays().get("buckets")
-        return tuple(arr.tolist()) if arr is not None else ()
+        """The buckets (clause types, ``~kind``) that hold provisions, sorted."""
+        return tuple(b for (b,) in self.conn.execute("SELECT bucket FROM bucket_state ORDER BY bucket"))
 
     def bucket(self, name: str) -> BucketIndex | None:
-        """The frequency index of one bucket (clause type or ``~kind``), None if empty."""
+        """The frequency index of one bucket (clause type or ``~kind``), None if empty.  Read
+        from the bucket's own cache file when first asked for (a review reads only the buckets
+        its provisions fall in)."""
         if name in self._buckets:
             return self._buckets[name]
-        from scipy.sparse import csr_matrix
-
-        names = self.bucket_names()
-        if name not in names:
-            self._buckets[name] = None
-            return None
-        a = self._arrays()
-        p = f"b{names.index(name)}_"
-        n = a[p + "sizes"].size
-        sh = csr_matrix((np.ones(a[p + "indices"].size, dtype=np.int32), a[p + "indices"], a[p + "indptr"]),
-                        shape=(n, a[p + "cols"].size)).tocsc()
-        wm = csr_matrix((np.ones(a[p + "windices"].size, dtype=np.int32), a[p + "windices"], a[p + "windptr"]),
-                        shape=(n, a[p + "wcols"].size)).tocsc()
-        b = BucketIndex(name, a[p + "cols"], sh, a[p + "sizes"], a[p + "wcols"], wm, a[p + "count"],
-                        a[p + "sample"], a[p + "variant"], a[p + "docptr"], a[p + "docs"])
+        a = _read_bucket(_bucket_file(self.folder, name))
+        b = None
+        if a is not None and a.rows:
+            b = BucketIndex(name, a.cols, a.shingle_matrix().tocsc(), a.sizes, a.wcols, a.word_matrix().tocsc(),
+                            a.count, a.sample, a.variant, a.docptr, a.docs)
         self._buckets[name] = b
         return b
 

@@ -247,10 +247,10 @@ def regroup(matrix, sizes: np.ndarray, labels: np.ndarray, *, fresh: np.ndarray,
     labels = np.asarray(labels, dtype=np.int64).copy()
     fresh = np.asarray(fresh, dtype=bool)
     new_rows = np.flatnonzero(fresh)
-    groups = _touched_groups(matrix, sizes, labels, new_rows, fresh, set(int(b) for b in broken), config)
+    groups = _touched_groups(matrix, sizes, labels, new_rows, fresh, {int(b) for b in broken}, config)
     if not groups:
         return labels
-    next_label = int(labels[~fresh].max()) + 1 if (~fresh).any() else 0
+    next_label = max([int(labels[~fresh].max()) if (~fresh).any() else -1, *(int(b) for b in broken)]) + 1
     old_members = {lab: set(np.flatnonzero((labels == lab) & ~fresh).tolist())
                    for g in groups for lab in g[0]}
     for group_labels, group_new in groups:

@@ -131,12 +131,12 @@ def _apply_phrases(sentence: Sequence[str], phraser) -> list[str]:  # noqa: ANN0
 def train_vectors(sentences: Sequence[Sequence[str]]):  # noqa: ANN201 - gensim KeyedVectors | None
     """Phrases, then Word2Vec, on tokenised *sentences*; the KeyedVectors, or None when the
     corpus is too small to learn anything (no word seen MIN_COUNT times)."""
-    from gensim.models import Word2Vec
-    from gensim.models.phrases import ENGLISH_CONNECTOR_WORDS, Phrases
-
     sentences = [list(s) for s in sentences if s]
     if not sentences:
         return None
+    from gensim.models import Word2Vec
+    from gensim.models.phrases import ENGLISH_CONNECTOR_WORDS, Phrases
+
     phrases = Phrases((seg for s in sentences for seg in _segments(s)), min_count=PHRASES_MIN_COUNT,
                       threshold=PHRASES_THRESHOLD, connector_words=ENGLISH_CONNECTOR_WORDS)
     frozen = phrases.freeze()
