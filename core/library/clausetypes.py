@@ -277,28 +277,21 @@ class NeighbourClassifier:
         return cls(vocab, idf, unfitted.transform(texts), labels)
 
     def transform(self, texts: Sequence[str]):  # noqa: ANN201 - scipy.sparse.csr_matrix
-        """TF-IDF rows of *texts* over the fitted vocabulary: (1 + log tf) * idf, l2-normed."""
+        """TF-IDF rows of *texts* over the fitted vocabulary: (1 + log tf) * idf, l2-normed
+        (array work over all texts at once; only the n-gram lookup is per word)."""
         from scipy.sparse import csr_matrix
 
-        indptr = [0]
-        indices: list[int] = []
-        data: list[float] = []
-        for text in texts:
-            counts: dict[int, int] = defaultdict(int)
-            for gram in _ngrams(text):
-                j = self._index.get(gram)
-                if j is not None:
-                    counts[j] += 1
-            cols = sorted(counts)
-            w = np.array([(1.0 + np.log(counts[j])) * self._idf[j] for j in cols], dtype=np.float64)
-            norm = float(np.sqrt((w * w).sum())) if w.size else 0.0
-            if norm > 0:
-                w /= norm
-            indices.extend(cols)
-            data.extend(w.tolist())
-            indptr.append(len(indices))
-        return csr_matrix((np.array(data, dtype=np.float64), np.array(indices, dtype=np.int64),
-                           np.array(indptr, dtype=np.int64)), shape=(len(texts), len(self._terms)))
+        width = max(len(self._terms), 1)
+        keys: list[int] = []
+        for r, text in enumerate(texts):
+            base = r * width
+            keys.extend(base + j for j in map(self._index.get, _ngrams(text)) if j is not None)
+        uniq, counts = np.unique(np.array(keys, dtype=np.int64), return_counts=True)
+        rows, cols = np.divmod(uniq, width)
+        w = (1.0 + np.log(counts.astype(np.float64))) * self._idf[cols]
+        norms = np.sqrt(np.bincount(rows, weights=w * w, minlength=len(texts)))
+        w = w / np.where(norms[rows] > 0, norms[rows], 1.0)
+        return csr_matrix((w, (rows, cols)), shape=(len(texts), len(self._terms)), dtype=np.float64)
 
     def predict(self, texts: Sequence[str]) -> list[tuple[str | None, float]]:
         """For each normalised token string: (clause type or None, best cosine similarity)."""

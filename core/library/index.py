@@ -154,7 +154,7 @@ CREATE TABLE IF NOT EXISTS provisions(
     clause_type TEXT, type_source TEXT NOT NULL, bucket TEXT NOT NULL,
     norm TEXT, norm_hash TEXT, shingles BLOB, variant_id INTEGER);
 CREATE INDEX IF NOT EXISTS provisions_document ON provisions(document_id);
-CREATE INDEX IF NOT EXISTS provisions_bucket ON provisions(bucket, norm_hash);
+CREATE INDEX IF NOT EXISTS provisions_wording ON provisions(bucket, norm_hash, document_id, ordinal, variant_id);
 CREATE INDEX IF NOT EXISTS provisions_source ON provisions(type_source, clause_type, norm_hash);
 CREATE TABLE IF NOT EXISTS terms(
     document_id INTEGER NOT NULL REFERENCES documents(id) ON DELETE CASCADE,
@@ -942,25 +942,38 @@ class _Wordings:
     doc_lists: list[list[int]]
 
 
-def _bucket_wordings(conn: sqlite3.Connection, bucket: str) -> _Wordings:
-    """One pass over the bucket's provisions.  The sample of a wording is its provision in the
-    document first by path (first by position there): what a full build, which stores the
-    documents in path order, finds as the lowest row id."""
-    count: dict[str, int] = defaultdict(int)
-    docs: dict[str, set[int]] = defaultdict(set)
-    best: dict[str, tuple[str, int, int]] = {}
-    for h, doc, pid, path, ordinal in conn.execute(
-            "SELECT p.norm_hash, p.document_id, p.id, d.path, p.ordinal FROM provisions p "
-            "JOIN documents d ON d.id = p.document_id WHERE p.bucket = ?", (bucket,)):
-        count[h] += 1
-        docs[h].add(doc)
-        key = (path, ordinal, pid)
-        if h not in best or key < best[h]:
-            best[h] = key
-    hashes = sorted(count, key=lambda h: (-count[h], h))
-    return _Wordings(hashes, np.array([count[h] for h in hashes], dtype=np.int32),
-                     np.array([best[h][2] for h in hashes], dtype=np.int64),
-                     [sorted(docs[h]) for h in hashes])
+def _document_ranks(conn: sqlite3.Connection) -> tuple[np.ndarray, np.ndarray]:
+    """(document ids sorted, each one's rank by path) for :func:`_bucket_wordings`."""
+    ids = np.array([i for (i,) in conn.execute("SELECT id FROM documents ORDER BY path")], dtype=np.int64)
+    order = np.argsort(ids)
+    return ids[order], order.astype(np.int64)
+
+
+def _bucket_wordings(conn: sqlite3.Connection, bucket: str,
+                     ranks: tuple[np.ndarray, np.ndarray]) -> _Wordings:
+    """One index-only pass over the bucket's provisions (index ``provisions_wording``), then
+    array work.  The sample of a wording is its provision in the document first by path
+    (first by position there): what a full build, which stores the documents in path order,
+    finds as the lowest row id."""
+    rows = conn.execute("SELECT norm_hash, document_id, ordinal, id FROM provisions WHERE bucket = ?",
+                        (bucket,)).fetchall()
+    if not rows:
+        return _Wordings([], np.zeros(0, np.int32), np.zeros(0, np.int64), [])
+    hashes_of, doc, ordinal, pid = zip(*rows)
+    uniq, inv = np.unique(np.array(hashes_of, dtype="S32"), return_inverse=True)
+    doc_a = np.array(doc, dtype=np.int64)
+    rank = ranks[1][np.searchsorted(ranks[0], doc_a)]
+    count = np.bincount(inv, minlength=uniq.size)
+    by_place = np.lexsort((np.array(ordinal, dtype=np.int64), rank, inv))
+    firsts = by_place[np.r_[0, np.flatnonzero(np.diff(inv[by_place])) + 1]]
+    sample = np.array(pid, dtype=np.int64)[firsts]
+    pairs = np.unique(inv.astype(np.int64) * (int(doc_a.max()) + 1) + doc_a)
+    owner, docs = np.divmod(pairs, int(doc_a.max()) + 1)
+    cuts = np.searchsorted(owner, np.arange(uniq.size + 1))
+    order = np.lexsort((uniq, -count))
+    names = [h.decode("ascii") for h in uniq[order].tolist()]
+    return _Wordings(names, count[order].astype(np.int32), sample[order],
+                     [docs[cuts[i]:cuts[i + 1]].tolist() for i in order.tolist()])
 
 
 def _new_wording_sets(conn: sqlite3.Connection, bucket: str,
@@ -990,22 +1003,30 @@ def _read_bucket(path: Path) -> BucketArrays | None:
 
 
 def _refresh_variants(conn: sqlite3.Connection, folder: Path, *, cancel: Cancel | Any | None) -> bool:
-    """Variants and frequency cache of every bucket marked dirty.  False when cancelled."""
+    """Variants and frequency cache of every bucket marked dirty.  False when cancelled.
+
+    A bucket's file is written before the transaction that clears its mark commits: after a
+    crash between the two the bucket is still marked and its next refresh starts from the
+    file, whose wordings are the current ones, so nothing is lost or counted twice."""
     config = _variant_config(conn)
     _private_dir(folder / BUCKETS_DIRNAME)
-    for (bucket,) in conn.execute("SELECT bucket FROM dirty ORDER BY bucket").fetchall():
-        if _cancelled(cancel):
-            return False
-        _refresh_bucket(conn, folder, bucket, config)
-        conn.execute("DELETE FROM dirty WHERE bucket = ?", (bucket,))
+    ranks = _document_ranks(conn)
+    try:
+        for (bucket,) in conn.execute("SELECT bucket FROM dirty ORDER BY bucket").fetchall():
+            if _cancelled(cancel):
+                return False
+            _refresh_bucket(conn, folder, bucket, config, ranks)
+            conn.execute("DELETE FROM dirty WHERE bucket = ?", (bucket,))
+    finally:
         conn.commit()
     return True
 
 
-def _refresh_bucket(conn: sqlite3.Connection, folder: Path, bucket: str, config: VariantConfig) -> None:
+def _refresh_bucket(conn: sqlite3.Connection, folder: Path, bucket: str, config: VariantConfig,
+                    ranks: tuple[np.ndarray, np.ndarray]) -> None:
     """One bucket's variants and cache from its previous cache and its changed wordings."""
     path = _bucket_file(folder, bucket)
-    words = _bucket_wordings(conn, bucket)
+    words = _bucket_wordings(conn, bucket, ranks)
     if not words.hashes:
         conn.execute("DELETE FROM variants WHERE bucket = ?", (bucket,))
         conn.execute("DELETE FROM bucket_state WHERE bucket = ?", (bucket,))
@@ -1021,16 +1042,17 @@ def _refresh_bucket(conn: sqlite3.Connection, folder: Path, bucket: str, config:
                       doc_lists=words.doc_lists, new_sets=_new_wording_sets(conn, bucket, fresh))
     gone = len(known) - (len(words.hashes) - len(fresh))
     labels, full = _cluster_bucket(conn, bucket, arrays, old, gone=gone, config=config)
-    variant = _write_variants(conn, bucket, arrays, labels, full=full)
+    variant = _write_variants(conn, bucket, arrays, labels)
     arrays = replace(arrays, variant=variant)
     _write_private(path, (compact(arrays) if full else arrays).to_npz_bytes())
 
 
 def _cluster_bucket(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays, old: BucketArrays | None, *,
                     gone: int, config: VariantConfig) -> tuple[np.ndarray, bool]:
-    """Per-wording labels and whether they come from a full clustering (new labels all) or
-    from :func:`~.variants.regroup` (the variants' ids where kept).  Full when the bucket is
-    new, small (ALWAYS_FULL_WORDINGS) or has drifted (CLUSTER_DRIFT)."""
+    """Per-wording labels (a kept variant's id, else a label no variant of the bucket has)
+    and whether they come from a full clustering rather than from
+    :func:`~.variants.regroup`.  Full when the bucket is new, small
+    (ALWAYS_FULL_WORDINGS) or has drifted (CLUSTER_DRIFT)."""
     state = conn.execute("SELECT clustered, drift FROM bucket_state WHERE bucket = ?", (bucket,)).fetchone()
     fresh = arrays.variant < 0
     changes = int(fresh.sum()) + gone
@@ -1047,10 +1069,25 @@ def _cluster_bucket(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays,
     if labels is not None:
         conn.execute("UPDATE bucket_state SET drift = drift + ? WHERE bucket = ?", (changes, bucket))
         return labels, False
-    labels = cluster_wordings(arrays.shingle_sets(), config=config)
+    labels = _keep_ids(cluster_wordings(arrays.shingle_sets(), config=config), arrays.variant)
     conn.execute("INSERT INTO bucket_state(bucket, clustered, drift) VALUES(?, ?, 0) ON CONFLICT(bucket) "
                  "DO UPDATE SET clustered = excluded.clustered, drift = 0", (bucket, arrays.rows))
     return labels, True
+
+
+def _keep_ids(clusters: np.ndarray, previous: np.ndarray) -> np.ndarray:
+    """Labels for a full clustering's *clusters* (0..k-1): a cluster whose wordings are all
+    and only the current wordings of one earlier variant (*previous*: variant ids, -1 for
+    new wordings) keeps that variant's id, so its provisions need no update; the others get
+    -1, -2, ... (new variants)."""
+    out = np.empty(clusters.size, dtype=np.int64)
+    prev_sizes = dict(zip(*np.unique(previous, return_counts=True)))
+    for k in range(int(clusters.max()) + 1 if clusters.size else 0):
+        members = clusters == k
+        ids = np.unique(previous[members])
+        same = ids.size == 1 and ids[0] >= 0 and prev_sizes[ids[0]] == int(members.sum())
+        out[members] = int(ids[0]) if same else -(k + 1)
+    return out
 
 
 def _variant_figures(arrays: BucketArrays, labels: np.ndarray) -> dict[str, np.ndarray]:
@@ -1072,10 +1109,10 @@ def _variant_figures(arrays: BucketArrays, labels: np.ndarray) -> dict[str, np.n
             "sample": arrays.sample[first]}
 
 
-def _write_variants(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays, labels: np.ndarray, *,
-                    full: bool) -> np.ndarray:
-    """Store the bucket's variants (rows changed only) and its provisions' variant ids; the
-    variant id of every wording."""
+def _write_variants(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays, labels: np.ndarray) -> np.ndarray:
+    """Store the bucket's variants (rows changed only; a label that is a stored variant of the
+    bucket keeps it, others are new variants) and its provisions' variant ids; the variant id
+    of every wording."""
     f = _variant_figures(arrays, labels)
     stored = {r[0]: r[1:] for r in conn.execute(
         "SELECT id, ordinal, wordings, provisions, documents, sample FROM variants WHERE bucket = ?", (bucket,))}
@@ -1084,7 +1121,7 @@ def _write_variants(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays,
     for k, lab in enumerate(f["labels"].tolist()):
         row = (int(f["ordinal"][k]), int(f["wordings"][k]), int(f["provisions"][k]), int(f["documents"][k]),
                int(f["sample"][k]))
-        if not full and lab in stored:
+        if lab in stored:
             ids[k] = lab
             if tuple(stored.pop(lab)) != row:
                 changed.append((*row, lab))
@@ -1099,9 +1136,10 @@ def _write_variants(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays,
     unset = {h for (h,) in conn.execute("SELECT DISTINCT norm_hash FROM provisions WHERE bucket = ? "
                                         "AND variant_id IS NULL", (bucket,))}
     hashes = arrays.hashes.tolist()
-    conn.executemany("UPDATE provisions SET variant_id = ? WHERE bucket = ? AND norm_hash = ?",
-                     [(int(variant[i]), bucket, hashes[i].decode("ascii")) for i in range(len(hashes))
-                      if i in moved or hashes[i].decode("ascii") in unset])
+    conn.executemany("UPDATE provisions SET variant_id = ? WHERE bucket = ? AND norm_hash = ? "
+                     "AND (variant_id IS NULL OR variant_id != ?)",
+                     [(int(variant[i]), bucket, hashes[i].decode("ascii"), int(variant[i]))
+                      for i in range(len(hashes)) if i in moved or hashes[i].decode("ascii") in unset])
     if conn.execute("SELECT 1 FROM labels WHERE bucket = ? LIMIT 1", (bucket,)).fetchone():
         for vid in set(ids.tolist()):
             _update_position(conn, vid)
