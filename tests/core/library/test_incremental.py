@@ -1,0 +1,191 @@
+"""Incremental builds: adding, changing or removing one agreement gives what a fresh build of
+the same folder gives.
+
+Outside references:
+* a fresh full build of the same files is the reference for every incremental build; its
+  clustering is checked against scipy's ``linkage`` + ``fcluster`` and scikit-learn's
+  ``AgglomerativeClustering`` in test_variants.py, so equality here carries those references
+  over to the incremental path;
+* the demo generator's record (demo_agreements/scenario.json): the demo precedent set whose
+  files are added, changed and removed;
+* ``hashlib.sha256`` (FIPS 180-4) via the index's stored file hashes (a changed file is
+  re-read).
+
+What is compared: every provision's clause type, how it was typed, its bucket and normalised
+wording; every variant's wordings (the partition), ordinal, counts, sample provision and the
+reviewer's position; every bucket's frequency cache (wordings in order, counts, samples, the
+documents using each wording, shingle and word sets, variants); the frequency figures of
+the demo review; the negotiation patterns.  Row ids are not compared: they record insertion
+order, which a fresh build and an incremental one need not share.
+"""
+
+from __future__ import annotations
+
+import shutil
+from pathlib import Path
+
+import pytest
+
+import core.library.index as index_module
+from core.library.commands import review_options
+from core.library.frequency import apply_frequency
+from core.library.index import _bucket_file, _read_bucket, build_library, open_library
+from core.library.patterns import negotiation_patterns
+from core.reader import read_document
+from core.review import run_review
+
+from .conftest import DEMO
+
+SET = DEMO / "precedent_set"
+ADDED = "07-caddow-fenn-biosciences.docx"
+CHANGED = "03-saltreach-water-services.docx"
+REMOVED = "11-hollin-vree-energy.docx"
+LABELLED = ("05-vantry-and-loame-manufacturing.docx", "7.1")  # a payment clause
+
+
+def _provisions(lib) -> list[tuple]:
+    return sorted(lib.conn.execute(
+        "SELECT d.path, p.pid, p.clause_type, p.type_source, p.bucket, p.norm_hash FROM provisions p "
+        "JOIN documents d ON d.id = p.document_id"))
+
+
+def _variants(lib) -> list[tuple]:
+    """Each variant as (bucket, ordinal, its wordings, counts, sample path and provision, position)."""
+    members: dict[int, set[str]] = {}
+    for vid, h in lib.conn.execute("SELECT DISTINCT variant_id, norm_hash FROM provisions"):
+        members.setdefault(vid, set()).add(h)
+    refs = lib.provision_refs([v.sample for v in lib.variants() if v.sample is not None])
+    out = []
+    for v in lib.variants():
+        sample = lib.conn.execute("SELECT d.path, p.pid FROM provisions p JOIN documents d ON d.id = p.document_id "
+                                  "WHERE p.id = ?", (v.sample,)).fetchone()
+        out.append((v.bucket, v.ordinal, frozenset(members[v.id]), v.wordings, v.provisions, v.documents,
+                    tuple(sample), refs[v.sample], v.position))
+    assert None not in members  # every provision has a variant
+    return sorted(out, key=lambda t: (t[0], t[1]))
+
+
+def _caches(lib) -> dict[str, tuple]:
+    """Each bucket's cache with ids turned into what they name (paths, provision ids, wordings)."""
+    paths = dict(lib.conn.execute("SELECT id, path FROM documents"))
+    pids = dict(lib.conn.execute("SELECT p.id, d.path || '#' || p.pid FROM provisions p "
+                                 "JOIN documents d ON d.id = p.document_id"))
+    wordings = {}
+    for vid, h in lib.conn.execute("SELECT DISTINCT variant_id, norm_hash FROM provisions"):
+        wordings.setdefault(vid, set()).add(h)
+    out = {}
+    for name in lib.bucket_names():
+        a = _read_bucket(_bucket_file(lib.folder, name))
+        rows = []
+        for i, sh, wd in zip(range(a.rows), a.shingle_sets(), _word_sets(a)):
+            docs = frozenset(paths[d] for d in a.docs[a.docptr[i]:a.docptr[i + 1]].tolist())
+            rows.append((a.hashes[i].decode(), int(a.count[i]), pids[int(a.sample[i])], docs,
+                         tuple(sh.tolist()), tuple(wd.tolist()), frozenset(wordings[int(a.variant[i])])))
+        out[name] = tuple(rows)
+    return out
+
+
+def _word_sets(a) -> list:
+    return [a.wcols[a.windices[a.windptr[i]:a.windptr[i + 1]]] for i in range(a.rows)]
+
+
+def _frequencies(lib) -> tuple:
+    draft = read_document(str(DEMO / "draft.docx"))
+    prec = read_document(str(DEMO / "precedent.docx"))
+    review = apply_frequency(run_review(draft, prec, **review_options(lib)), lib)
+    return (tuple(p.frequency for p in review.pairs), tuple(d.frequency for d in review.deviations),
+            tuple((d.rank, d.severity) for d in review.deviations))
+
+
+def _snapshot(root: Path, *, patterns: bool = False) -> dict:
+    with open_library(root, refresh=False) as lib:
+        snap = {"total": lib.total, "provisions": _provisions(lib), "variants": _variants(lib),
+                "caches": _caches(lib), "frequencies": _frequencies(lib)}
+        if patterns:
+            snap["patterns"] = negotiation_patterns(lib, read_document(str(DEMO / "precedent.docx")))
+    return snap
+
+
+def _label(root: Path) -> None:
+    with open_library(root, refresh=False) as lib:
+        lib.label_variant(lib.variant_of(*LABELLED), "preferred")
+
+
+def _fresh(state: Path, tmp: Path, name: str) -> dict:
+    """Reference: a fresh full build of a copy of *state*'s files, labelled the same way."""
+    copy = tmp / name
+    shutil.copytree(state, copy, ignore=shutil.ignore_patterns(".counterdraft"))
+    build_library(copy)
+    _label(copy)
+    return _snapshot(copy, patterns=name == "after-remove")
+
+
+@pytest.fixture(scope="module")
+def references(tmp_path_factory):
+    """The folder's states after each step and their fresh builds' snapshots."""
+    tmp = tmp_path_factory.mktemp("fresh")
+    state = tmp / "state"
+    shutil.copytree(SET, state, ignore=shutil.ignore_patterns(".counterdraft"))
+    refs = {}
+    for step in _STEPS:
+        step(state)
+        refs[step.__name__] = _fresh(state, tmp, step.__name__.replace("_", "-"))
+    return refs
+
+
+def start(folder: Path) -> None:
+    (folder / ADDED).unlink()
+
+
+def after_add(folder: Path) -> None:
+    shutil.copy(SET / ADDED, folder / ADDED)
+
+
+def after_change(folder: Path) -> None:
+    # The draft on the buyer's own paper: other wordings, other defined terms.
+    (folder / CHANGED).write_bytes((DEMO / "draft.docx").read_bytes())
+
+
+def after_remove(folder: Path) -> None:
+    (folder / REMOVED).unlink()
+
+
+_STEPS = (start, after_add, after_change, after_remove)
+
+
+@pytest.mark.parametrize("regroup", [False, True], ids=["defaults", "regroup-every-bucket"])
+def test_adding_changing_and_removing_one_agreement_equals_a_fresh_build(tmp_path, monkeypatch, references,
+                                                                         regroup):
+    regrouped: list[int] = []
+    if regroup:  # the demo's buckets are small: make every change go through regroup
+        monkeypatch.setattr(index_module, "ALWAYS_FULL_WORDINGS", 0)
+        monkeypatch.setattr(index_module, "CLUSTER_DRIFT", 1e9)
+        real = index_module.regroup
+        monkeypatch.setattr(index_module, "regroup", lambda *a, **k: regrouped.append(1) or real(*a, **k))
+    folder = tmp_path / "library"
+    shutil.copytree(SET, folder, ignore=shutil.ignore_patterns(".counterdraft"))
+    for step in _STEPS:
+        step(folder)
+        report = build_library(folder)
+        if step is start:
+            _label(folder)  # labelled once; the later builds must keep the position right
+            assert report.read == 11
+        else:
+            assert report.read + report.removed == 1  # one agreement read or dropped, no more
+        got = _snapshot(folder, patterns=step is after_remove and regroup)
+        want = references[step.__name__]
+        for key in got:
+            assert got[key] == want[key], (step.__name__, key)
+    assert (len(regrouped) > 10) == regroup  # the path under test did run
+
+
+def test_a_no_change_build_touches_nothing(tmp_path):
+    folder = tmp_path / "library"
+    shutil.copytree(SET, folder, ignore=shutil.ignore_patterns(".counterdraft"))
+    build_library(folder)
+    before = {p: p.stat().st_mtime_ns for p in (folder / ".counterdraft").rglob("*") if p.is_file()}
+    again = build_library(folder)
+    assert (again.read, again.removed) == (0, 0)
+    after = {p: p.stat().st_mtime_ns for p in (folder / ".counterdraft").rglob("*") if p.is_file()}
+    derived = {p: t for p, t in after.items() if p.suffix == ".npz"}
+    assert derived == {p: before[p] for p in derived}  # no derived file rewritten
