@@ -6,18 +6,45 @@ files and folders, Office lock files ``~$...`` and the index's own folder are sk
 
 * ``documents``: path (relative to the root, with "/"), SHA-256, size, modification time,
   title and parties when found;
-* ``provisions``: kind, number, heading, level, text, clause type (and how it was found), the
-  normalised wording, its shingle hashes and its variant;
+* ``provisions``: kind, number, heading, level, text, clause type (and how it was found), its
+  bucket, the normalised wording and its hash, and its variant (the ``shingles`` column is
+  left empty: the bucket caches hold the shingles);
 * ``terms``: the defined terms and their definitions;
 * ``failures``: files that could not be read or are not agreements, with the problem;
-* ``variants`` and ``labels``: wording variants per clause type and the reviewer's positions.
+* ``variants`` and ``labels``: wording variants per clause type and the reviewer's positions;
+* ``dirty`` and ``bucket_state``: buckets to refresh, and each bucket's wordings at its last
+  full clustering and the wordings added or removed since.
 
 The build is incremental: a file whose size and modification time are unchanged is not
 opened; a file whose stat changed is hashed and re-read only when its SHA-256 changed; files
 that disappeared are dropped.  Unreadable files are listed and skipped; nothing aborts the
-build.  After the files, the derived data is refreshed only where something changed: term
-aliases, normalised wordings, neighbour typing of unheaded clauses, variants, the frequency
-cache (``variants.npz``) and the vocabulary model (``vocabulary.npz``).
+build.  After the files, the derived data is refreshed only where something changed:
+
+* every bucket (clause type) holding a provision of a file read or dropped is marked dirty
+  (table ``dirty``, in the same transaction as the change, so a cancelled or killed build
+  leaves the marks for the next one); only marked buckets are refreshed;
+* term aliases are learnt again from the stored terms (cheap); when they change, every
+  document is normalised again and every bucket marked;
+* only new documents are normalised;
+* the neighbour classifier of unheaded clauses is refitted only when its examples (the first
+  ``MAX_EXAMPLES_PER_TYPE`` distinct typed wordings per type, by hash) changed, and then types
+  every unheaded clause again; otherwise it types only the new documents' (the same
+  classifier gives the same answers, so the result is a full build's);
+* each marked bucket's frequency cache (``buckets/<name>.npz``, :mod:`.bucketcache`) is made
+  from its previous version and its new wordings, and its variants are updated by
+  :func:`.variants.regroup` -- the variants a new wording lies within the cut-off of, and the
+  variants that lost a wording, are clustered again on their own -- until the wordings added
+  and removed since the bucket's last full clustering exceed ``CLUSTER_DRIFT`` of its
+  wordings; a small bucket (``ALWAYS_FULL_WORDINGS``), a new one and a drifted one are
+  clustered in full.  Regrouping is exact for single linkage; for average and complete
+  linkage it can differ from a full clustering only where sub-groups of two variants lie
+  within the cut-off of each other (see :func:`.variants.regroup`); a full build of the same
+  files gives the same variants on the demo set and the test corpora
+  (tests/core/library/test_incremental.py);
+* the vocabulary model (``vocabulary.npz``) is retrained only when its training corpus has
+  drifted (:func:`.vocab.vocabulary_drift`, ``vocab.RETRAIN_DRIFT``), in a worker process
+  beside the clustering when the corpus is large; until then it is the model of the
+  documents it was trained on.
 
 The index is derived data: when its file is not a usable SQLite database of this schema
 (damaged, truncated, not SQLite, another schema version), the build moves it aside to
@@ -29,10 +56,13 @@ Confidentiality: the folder ``.counterdraft`` is created with mode 0o700 and eve
 with mode 0o600 (SQLite gives its journal the database's mode); the build logs no contract text
 (progress reports give file paths only, failure reasons never quote the file).
 
-Cost: reading dominates (the reader's cost per file; spread over ``workers`` processes).  The
-derived data costs O(provisions) for normalisation and typing, O(n^2) per clause type for the
-variants of its n distinct wordings (bounded by ``MAX_CLUSTER_ITEMS``), and the vocabulary
-training is bounded by ``vocab.MAX_TRAINING_WORDS``.
+Cost: reading dominates a first build (the reader's cost per file; spread over ``workers``
+processes).  The derived data of a first build costs O(provisions) for normalisation and
+typing, O(n^2) per clause type for the variants of its n distinct wordings (bounded by
+``MAX_CLUSTER_ITEMS``) and a vocabulary training bounded by ``vocab.MAX_TRAINING_WORDS``.
+Adding, changing or removing one agreement costs its reading, one index-only scan and array
+work linear in the size of the buckets it touches, one sparse product of its new wordings
+with those buckets, and O(g^2) for each regrouped set of g wordings.
 """
 
 from __future__ import annotations
@@ -89,6 +119,7 @@ __all__ = [
     "normalised_wording",
     "open_library",
     "scan_files",
+    "wording_shingles",
 ]
 
 SUFFIXES: tuple[str, ...] = (".docx", ".txt", ".md")
@@ -427,8 +458,20 @@ def scan_files(root: str | os.PathLike[str], *, exclude: Sequence[str | os.PathL
     return [f.path for f in _scan(Path(root), exclude=exclude)]
 
 
+def _file_ids(paths: Sequence[str | os.PathLike[str]]) -> set[tuple[int, int]]:
+    """(device, inode) of each existing file of *paths*: the same file under any name."""
+    out = set()
+    for p in paths:
+        try:
+            st = os.stat(p)
+        except OSError:
+            continue
+        out.add((st.st_dev, st.st_ino))
+    return out
+
+
 def _scan(root: Path, *, exclude: Sequence[str | os.PathLike[str]] = ()) -> list[_FileStat]:
-    excluded = {os.path.realpath(p) for p in exclude}
+    excluded = _file_ids(exclude)  # compared by inode: no path resolution per file found
     out: list[_FileStat] = []
     stack = [root]
     while stack:  # iterative walk: no recursion on the folder depth
@@ -450,7 +493,7 @@ def _scan(root: Path, *, exclude: Sequence[str | os.PathLike[str]] = ()) -> list
                 st = e.stat()
             except OSError:
                 continue
-            if not stat.S_ISREG(st.st_mode) or os.path.realpath(e.path) in excluded:
+            if not stat.S_ISREG(st.st_mode) or (st.st_dev, st.st_ino) in excluded:
                 continue
             rel = Path(e.path).relative_to(root).as_posix()
             out.append(_FileStat(rel, e.path, st.st_size, st.st_mtime_ns))
@@ -846,8 +889,8 @@ def _refresh_aliases(conn: sqlite3.Connection) -> dict[str, str]:
 
 def _normalise_pending(conn: sqlite3.Connection, aliases: Mapping[str, str], *,
                        cancel: Cancel | Any | None) -> list[int] | None:
-    """Normalised wordings and shingles of the documents not yet normalised; their ids, or
-    None when cancelled."""
+    """Normalised wordings of the documents not yet normalised; their ids, or None when
+    cancelled."""
     todo = [r[0] for r in conn.execute("SELECT id FROM documents WHERE normalised = 0 ORDER BY id")]
     for n, doc_id in enumerate(todo):
         if n % 25 == 0 and _cancelled(cancel):
@@ -858,10 +901,11 @@ def _normalise_pending(conn: sqlite3.Connection, aliases: Mapping[str, str], *,
         rows = []
         for pid, heading, text in conn.execute(
                 "SELECT id, heading, text FROM provisions WHERE document_id = ?", (doc_id,)):
-            tokens = normalised_wording(text, heading, terms=replacer)
-            norm = " ".join(tokens)
-            rows.append((norm, _norm_hash(norm), shingle_hashes(tokens).tobytes(), pid))
-        conn.executemany("UPDATE provisions SET norm = ?, norm_hash = ?, shingles = ? WHERE id = ?", rows)
+            norm = " ".join(normalised_wording(text, heading, terms=replacer))
+            rows.append((norm, _norm_hash(norm), pid))
+        # Shingles are not stored (the column stays NULL): the bucket caches hold them, made
+        # once per distinct wording from its normalised text (wording_shingles).
+        conn.executemany("UPDATE provisions SET norm = ?, norm_hash = ?, shingles = NULL WHERE id = ?", rows)
         conn.execute("UPDATE documents SET normalised = 1 WHERE id = ?", (doc_id,))
     conn.commit()
     return todo
@@ -984,10 +1028,18 @@ def _new_wording_sets(conn: sqlite3.Connection, bucket: str,
         for h, blob, norm in conn.execute(
                 f"SELECT norm_hash, shingles, norm FROM provisions WHERE bucket = ? AND norm_hash IN ({q}) "
                 "GROUP BY norm_hash", (bucket, *chunk)):
-            words = (np.unique(np.fromiter((_word_hash(w) for w in norm.split()), dtype=np.uint64))
-                     if norm else np.zeros(0, dtype=np.uint64))
-            out[h] = (np.frombuffer(blob or b"", dtype=np.uint64), words)
+            tokens = (norm or "").split()
+            words = np.unique(np.fromiter((_word_hash(w) for w in tokens), dtype=np.uint64, count=len(tokens)))
+            out[h] = (wording_shingles(blob, norm), words)
     return out
+
+
+def wording_shingles(blob: bytes | None, norm: str | None) -> np.ndarray:
+    """A wording's shingle hashes: the stored ones (indexes of earlier versions), else made
+    from its normalised text (its tokens joined by single spaces; no token holds a space)."""
+    if blob is not None:
+        return np.frombuffer(blob, dtype=np.uint64)
+    return shingle_hashes((norm or "").split())
 
 
 def _bucket_file(folder: Path, bucket: str) -> Path:

@@ -67,6 +67,9 @@ MAX_CLUSTER_ITEMS = 3000
 #: Wordings beyond ``max_items`` compared with the clustered ones per sparse product (bounds
 #: memory to OVERFLOW_BATCH x max_items counts).
 OVERFLOW_BATCH = 256
+#: Rows of the distance matrix computed per sparse product: 256 x 3,000 counts are 3 MB,
+#: where the whole square matrix and its index arrays took some 150 MB at MAX_CLUSTER_ITEMS.
+DISTANCE_BLOCK = 256
 
 
 @dataclass(frozen=True, slots=True)
@@ -152,9 +155,21 @@ def matrix_distances(matrix, sizes: np.ndarray, *, metric: str = DEFAULT_METRIC)
     n = matrix.shape[0]
     if n < 2:
         return np.zeros(0, dtype=np.float64)
-    inter = (matrix @ matrix.T).toarray()
-    iu = np.triu_indices(n, k=1)
-    return distances_from_counts(inter[iu], sizes[iu[0]], sizes[iu[1]], metric=metric)
+    out = np.empty(n * (n - 1) // 2, dtype=np.float64)
+    mt = matrix.T.tocsc()
+    sizes = np.asarray(sizes, dtype=np.int64)
+    pos = 0
+    for start in range(0, n - 1, DISTANCE_BLOCK):  # a block of rows at a time: O(n) memory besides the result
+        stop = min(start + DISTANCE_BLOCK, n - 1)
+        inter = (matrix[start:stop] @ mt).toarray()
+        rows = np.arange(start, stop)
+        upper = np.arange(n)[None, :] > rows[:, None]  # row-major: the condensed order
+        size_a = np.broadcast_to(sizes[rows][:, None], upper.shape)[upper]
+        size_b = np.broadcast_to(sizes[None, :], upper.shape)[upper]
+        block = distances_from_counts(inter[upper], size_a, size_b, metric=metric)
+        out[pos:pos + block.size] = block
+        pos += block.size
+    return out
 
 
 def cluster_condensed(condensed: np.ndarray, n: int, *, linkage: str = DEFAULT_LINKAGE,
