@@ -78,7 +78,7 @@ import time
 from collections import defaultdict
 from collections.abc import Callable, Iterator, Mapping, Sequence
 from concurrent.futures import ProcessPoolExecutor
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any
 
@@ -186,7 +186,7 @@ CREATE TABLE IF NOT EXISTS provisions(
     norm TEXT, norm_hash TEXT, shingles BLOB, variant_id INTEGER);
 CREATE INDEX IF NOT EXISTS provisions_document ON provisions(document_id);
 CREATE INDEX IF NOT EXISTS provisions_wording ON provisions(bucket, norm_hash, document_id, ordinal, variant_id);
-CREATE INDEX IF NOT EXISTS provisions_source ON provisions(type_source, clause_type, norm_hash);
+CREATE INDEX IF NOT EXISTS provisions_typed ON provisions(type_source, clause_type, norm_hash, document_id);
 CREATE TABLE IF NOT EXISTS terms(
     document_id INTEGER NOT NULL REFERENCES documents(id) ON DELETE CASCADE,
     term TEXT NOT NULL, definition TEXT NOT NULL, provision TEXT, uses INTEGER NOT NULL);
@@ -912,17 +912,31 @@ def _normalise_pending(conn: sqlite3.Connection, aliases: Mapping[str, str], *,
 
 
 def _neighbour_examples(conn: sqlite3.Connection) -> tuple[list[tuple[str, str]], str]:
-    """The neighbour classifier's examples (typed by heading or parent, per type the first
-    MAX_EXAMPLES_PER_TYPE distinct wordings by hash) and their fingerprint."""
+    """The neighbour classifier's examples and their fingerprint: per clause type, the first
+    MAX_EXAMPLES_PER_TYPE distinct wordings typed by heading or parent, documents taken in the
+    order of their content hashes (SHA-256) and each document's provisions in order.  That
+    order is a fixed pseudo-random sample of the library, unrelated to file names, and once a
+    type has its examples, an agreement added, changed or removed further down the order
+    leaves them as they are -- the classifier need not be refitted, nor its types redone."""
     from .clausetypes import MAX_EXAMPLES_PER_TYPE
 
-    examples: list[tuple[str, str]] = []
+    chosen: dict[str, dict[str, int]] = defaultdict(dict)
+    # Index-only on provisions (provisions_typed); a document's row ids follow its order.
+    for tid, h, pid in conn.execute(
+            "SELECT p.clause_type, p.norm_hash, p.id FROM provisions p JOIN documents d ON d.id = p.document_id "
+            "WHERE p.type_source IN ('heading', 'parent') AND p.clause_type IS NOT NULL AND p.norm_hash != ? "
+            "ORDER BY d.sha256, d.path, p.id", (_norm_hash(""),)):
+        per_type = chosen[tid]
+        if len(per_type) < MAX_EXAMPLES_PER_TYPE and h not in per_type:
+            per_type[h] = pid
+    norms = {}
+    for q, chunk in _id_batches([pid for per_type in chosen.values() for pid in per_type.values()]):
+        norms.update(conn.execute(f"SELECT id, norm FROM provisions WHERE id IN ({q})", chunk))
     digest = hashlib.blake2b(digest_size=16)
-    for tid in load_taxonomy().ids:
-        for norm, h in conn.execute(
-                "SELECT DISTINCT norm, norm_hash FROM provisions WHERE type_source IN ('heading', 'parent') "
-                "AND clause_type = ? AND norm != '' ORDER BY norm_hash LIMIT ?", (tid, MAX_EXAMPLES_PER_TYPE)):
-            examples.append((norm, tid))
+    examples: list[tuple[str, str]] = []
+    for tid in sorted(chosen):
+        for h in sorted(chosen[tid]):
+            examples.append((norms[chosen[tid][h]], tid))
             digest.update(f"{tid}:{h}\n".encode())
     return examples, digest.hexdigest()
 
@@ -1063,19 +1077,25 @@ def _refresh_variants(conn: sqlite3.Connection, folder: Path, *, cancel: Cancel 
     config = _variant_config(conn)
     _private_dir(folder / BUCKETS_DIRNAME)
     ranks = _document_ranks(conn)
+    # Set while a variants step runs: when found set, the last one stopped between writing a
+    # cache file and committing, so this one reads the stored variants from the table.
+    trusted = _meta(conn, "variants_running") != "1"
+    _set_meta(conn, "variants_running", "1")
+    conn.commit()
     try:
         for (bucket,) in conn.execute("SELECT bucket FROM dirty ORDER BY bucket").fetchall():
             if _cancelled(cancel):
                 return False
-            _refresh_bucket(conn, folder, bucket, config, ranks)
+            _refresh_bucket(conn, folder, bucket, config, ranks, trusted=trusted)
             conn.execute("DELETE FROM dirty WHERE bucket = ?", (bucket,))
+        _set_meta(conn, "variants_running", "0")
     finally:
         conn.commit()
     return True
 
 
 def _refresh_bucket(conn: sqlite3.Connection, folder: Path, bucket: str, config: VariantConfig,
-                    ranks: tuple[np.ndarray, np.ndarray]) -> None:
+                    ranks: tuple[np.ndarray, np.ndarray], *, trusted: bool) -> None:
     """One bucket's variants and cache from its previous cache and its changed wordings."""
     path = _bucket_file(folder, bucket)
     words = _bucket_wordings(conn, bucket, ranks)
@@ -1094,7 +1114,8 @@ def _refresh_bucket(conn: sqlite3.Connection, folder: Path, bucket: str, config:
                       doc_lists=words.doc_lists, new_sets=_new_wording_sets(conn, bucket, fresh))
     gone = len(known) - (len(words.hashes) - len(fresh))
     labels, full = _cluster_bucket(conn, bucket, arrays, old, gone=gone, config=config)
-    variant = _write_variants(conn, bucket, arrays, labels)
+    stored = _stored_figures(conn, bucket, old, trusted)
+    variant = _write_variants(conn, bucket, arrays, labels, stored=stored, trusted=trusted and old is not None)
     arrays = replace(arrays, variant=variant)
     _write_private(path, (compact(arrays) if full else arrays).to_npz_bytes())
 
@@ -1142,9 +1163,13 @@ def _keep_ids(clusters: np.ndarray, previous: np.ndarray) -> np.ndarray:
     return out
 
 
-def _variant_figures(arrays: BucketArrays, labels: np.ndarray) -> dict[str, np.ndarray]:
-    """Per distinct label (sorted): wordings, provisions, documents, ordinal (most provisions
-    first, ties by first wording in the bucket's order), sample; and each row's label index."""
+_FIGURES = ("ordinal", "wordings", "provisions", "documents", "sample")  # the columns of table variants
+
+
+def _variant_figures(arrays: BucketArrays, labels: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(distinct labels sorted, each row's index into them, per label the _FIGURES: ordinal --
+    most provisions first, ties by first wording in the bucket's order -- wordings,
+    provisions, documents and the sample of its first wording)."""
     uniq, inv = np.unique(labels, return_inverse=True)
     n = arrays.rows
     first = np.full(uniq.size, n, dtype=np.int64)
@@ -1156,42 +1181,52 @@ def _variant_figures(arrays: BucketArrays, labels: np.ndarray) -> dict[str, np.n
     documents = np.bincount(pairs // span, minlength=uniq.size)
     ordinal = np.empty(uniq.size, dtype=np.int64)
     ordinal[np.lexsort((first, -provisions))] = np.arange(1, uniq.size + 1)
-    return {"labels": uniq, "inv": inv, "wordings": np.bincount(inv, minlength=uniq.size),
-            "provisions": provisions, "documents": documents, "ordinal": ordinal,
-            "sample": arrays.sample[first]}
+    figures = np.column_stack([ordinal, np.bincount(inv, minlength=uniq.size), provisions, documents,
+                               arrays.sample[first]]).astype(np.int64)
+    return uniq, inv, figures
 
 
-def _write_variants(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays, labels: np.ndarray) -> np.ndarray:
-    """Store the bucket's variants (rows changed only; a label that is a stored variant of the
-    bucket keeps it, others are new variants) and its provisions' variant ids; the variant id
-    of every wording."""
-    f = _variant_figures(arrays, labels)
-    stored = {r[0]: r[1:] for r in conn.execute(
-        "SELECT id, ordinal, wordings, provisions, documents, sample FROM variants WHERE bucket = ?", (bucket,))}
-    ids = np.empty(f["labels"].size, dtype=np.int64)
-    changed = []
-    for k, lab in enumerate(f["labels"].tolist()):
-        row = (int(f["ordinal"][k]), int(f["wordings"][k]), int(f["provisions"][k]), int(f["documents"][k]),
-               int(f["sample"][k]))
-        if lab in stored:
-            ids[k] = lab
-            if tuple(stored.pop(lab)) != row:
-                changed.append((*row, lab))
-        else:
-            ids[k] = conn.execute("INSERT INTO variants(bucket, ordinal, wordings, provisions, documents, sample) "
-                                  "VALUES(?,?,?,?,?,?)", (bucket, *row)).lastrowid
-    conn.executemany("UPDATE variants SET ordinal = ?, wordings = ?, provisions = ?, documents = ?, sample = ? "
-                     "WHERE id = ?", changed)
-    conn.executemany("DELETE FROM variants WHERE id = ?", [(v,) for v in stored])
-    variant = ids[f["inv"]]
-    moved = set(np.flatnonzero(variant != arrays.variant).tolist())
-    unset = {h for (h,) in conn.execute("SELECT DISTINCT norm_hash FROM provisions WHERE bucket = ? "
-                                        "AND variant_id IS NULL", (bucket,))}
-    hashes = arrays.hashes.tolist()
+def _stored_figures(conn: sqlite3.Connection, bucket: str, old: BucketArrays | None,
+                    trusted: bool) -> tuple[np.ndarray, np.ndarray]:
+    """(variant ids sorted, their _FIGURES) as table variants holds them: computed from the
+    bucket's previous cache when it is *trusted* (every variants step that wrote the cache
+    committed the same figures), else read from the table."""
+    if trusted and old is not None and old.rows and (old.variant >= 0).all():
+        ids, _, figures = _variant_figures(old, old.variant)
+        return ids, figures
+    rows = conn.execute(f"SELECT id, {', '.join(_FIGURES)} FROM variants WHERE bucket = ? ORDER BY id",
+                        (bucket,)).fetchall()
+    table = np.array(rows, dtype=np.int64).reshape(len(rows), 1 + len(_FIGURES))
+    return table[:, 0], table[:, 1:]
+
+
+def _write_variants(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays, labels: np.ndarray, *,
+                    stored: tuple[np.ndarray, np.ndarray], trusted: bool) -> np.ndarray:
+    """Store the bucket's variants -- a label that is a *stored* variant id keeps it, other
+    labels become new variants; only changed rows are written -- and its provisions' variant
+    ids; returns the variant id of every wording."""
+    uniq, inv, figures = _variant_figures(arrays, labels)
+    st_ids, st_figures = stored
+    pos = np.minimum(np.searchsorted(st_ids, uniq), max(st_ids.size - 1, 0))
+    kept = (st_ids[pos] == uniq) if st_ids.size else np.zeros(uniq.size, bool)
+    changed = kept & (st_figures[pos] != figures).any(axis=1) if st_ids.size else kept
+    conn.executemany(f"UPDATE variants SET {' = ?, '.join(_FIGURES)} = ? WHERE id = ?",
+                     [(*figures[k].tolist(), int(uniq[k])) for k in np.flatnonzero(changed).tolist()])
+    conn.executemany("DELETE FROM variants WHERE id = ?",
+                     [(int(v),) for v in st_ids[~np.isin(st_ids, uniq[kept])].tolist()])
+    ids = uniq.copy()
+    for k in np.flatnonzero(~kept).tolist():
+        ids[k] = conn.execute(f"INSERT INTO variants(bucket, {', '.join(_FIGURES)}) VALUES(?,?,?,?,?,?)",
+                              (bucket, *figures[k].tolist())).lastrowid
+    variant = ids[inv]
+    unset = np.array([h.encode("ascii") for (h,) in conn.execute(
+        "SELECT DISTINCT norm_hash FROM provisions WHERE bucket = ? AND variant_id IS NULL", (bucket,))], dtype="S32")
+    todo = np.ones(arrays.rows, bool) if not trusted else \
+        (variant != arrays.variant) | np.isin(arrays.hashes, unset)
     conn.executemany("UPDATE provisions SET variant_id = ? WHERE bucket = ? AND norm_hash = ? "
                      "AND (variant_id IS NULL OR variant_id != ?)",
-                     [(int(variant[i]), bucket, hashes[i].decode("ascii"), int(variant[i]))
-                      for i in range(len(hashes)) if i in moved or hashes[i].decode("ascii") in unset])
+                     [(int(variant[i]), bucket, arrays.hashes[i].decode("ascii"), int(variant[i]))
+                      for i in np.flatnonzero(todo).tolist()])
     if conn.execute("SELECT 1 FROM labels WHERE bucket = ? LIMIT 1", (bucket,)).fetchone():
         for vid in set(ids.tolist()):
             _update_position(conn, vid)
@@ -1309,35 +1344,42 @@ class BucketIndex:
 
     name: str
     cols: np.ndarray  # sorted shingle hashes
-    shingles: Any  # scipy.sparse.csc_matrix, rows = distinct wordings
+    shingles: Any  # scipy.sparse.csr_matrix, rows = distinct wordings
     sizes: np.ndarray  # shingles per row
     wcols: np.ndarray
-    words: Any  # csc_matrix of distinct words per row
+    words: Any  # csr_matrix of distinct words per row
     count: np.ndarray  # provisions per row
     sample: np.ndarray  # one provision id per row
     variant: np.ndarray  # variant id per row (-1 if none)
     docptr: np.ndarray
     docs: np.ndarray
+    document_count: int = 0  # distinct documents with a provision in the bucket
+    #: Column-major copies made when first needed (a review asks word questions of few buckets).
+    _columns: dict[str, Any] = field(default_factory=dict, compare=False, repr=False)
 
     @property
     def rows(self) -> int:
         return int(self.sizes.size)
 
     def documents_of(self, row_mask: np.ndarray) -> set[int]:
-        out: set[int] = set()
-        for i in np.flatnonzero(row_mask).tolist():
-            out.update(self.docs[self.docptr[i]:self.docptr[i + 1]].tolist())
-        return out
+        rows = np.flatnonzero(row_mask)
+        return set(self.docs[_ragged(self.docptr, rows)].tolist())
 
     def all_documents(self) -> set[int]:
         return set(self.docs.tolist())
 
+    def _by_column(self, key: str) -> Any:
+        m = self._columns.get(key)
+        if m is None:
+            m = self._columns[key] = (self.shingles if key == "s" else self.words).tocsc()
+        return m
+
     def intersections(self, hashes: np.ndarray) -> np.ndarray:
         """|row shingles & hashes| for every row (hashes: sorted unique uint64)."""
-        return self._hits(self.cols, self.shingles, hashes)
+        return self._hits(self.cols, self._by_column("s"), hashes)
 
     def word_hits(self, hashes: np.ndarray) -> np.ndarray:
-        return self._hits(self.wcols, self.words, hashes)
+        return self._hits(self.wcols, self._by_column("w"), hashes)
 
     @staticmethod
     def _hits(cols: np.ndarray, matrix: Any, hashes: np.ndarray) -> np.ndarray:
@@ -1349,7 +1391,19 @@ class BucketIndex:
         pos = pos[cols[pos] == hashes[ok]]
         if pos.size == 0:
             return np.zeros(matrix.shape[0], dtype=np.int64)
-        return np.asarray(matrix[:, pos].sum(axis=1)).ravel().astype(np.int64)
+        # The rows of the chosen columns of the CSC matrix, counted (no sparse slicing).
+        return np.bincount(matrix.indices[_ragged(matrix.indptr, pos)], minlength=matrix.shape[0]).astype(np.int64)
+
+
+def _ragged(indptr: np.ndarray, picks: np.ndarray) -> np.ndarray:
+    """Positions ``indptr[p]:indptr[p + 1]`` for every p of *picks*, concatenated."""
+    starts = indptr[picks].astype(np.int64)
+    lengths = indptr[picks + 1].astype(np.int64) - starts
+    total = int(lengths.sum())
+    if total == 0:
+        return np.zeros(0, dtype=np.int64)
+    offsets = np.repeat(starts - np.cumsum(lengths) + lengths, lengths)
+    return offsets + np.arange(total, dtype=np.int64)
 
 
 class Library:
@@ -1444,14 +1498,14 @@ class Library:
         a = _read_bucket(_bucket_file(self.folder, name))
         b = None
         if a is not None and a.rows:
-            b = BucketIndex(name, a.cols, a.shingle_matrix().tocsc(), a.sizes, a.wcols, a.word_matrix().tocsc(),
-                            a.count, a.sample, a.variant, a.docptr, a.docs)
+            b = BucketIndex(name, a.cols, a.shingle_matrix(), a.sizes, a.wcols, a.word_matrix(),
+                            a.count, a.sample, a.variant, a.docptr, a.docs, int(np.unique(a.docs).size))
         self._buckets[name] = b
         return b
 
     def documents_with(self, bucket: str) -> int:
         b = self.bucket(bucket)
-        return 0 if b is None else len(b.all_documents())
+        return 0 if b is None else b.document_count
 
     def document_paths(self, ids: Sequence[int]) -> dict[int, str]:
         out: dict[int, str] = {}

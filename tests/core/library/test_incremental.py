@@ -21,6 +21,7 @@ order, which a fresh build and an incremental one need not share.
 
 from __future__ import annotations
 
+import importlib.util
 import shutil
 from pathlib import Path
 
@@ -34,7 +35,7 @@ from core.library.patterns import negotiation_patterns
 from core.reader import read_document
 from core.review import run_review
 
-from .conftest import DEMO
+from .conftest import DEMO, ROOT
 
 SET = DEMO / "precedent_set"
 ADDED = "07-caddow-fenn-biosciences.docx"
@@ -89,18 +90,18 @@ def _word_sets(a) -> list:
     return [a.wcols[a.windices[a.windptr[i]:a.windptr[i + 1]]] for i in range(a.rows)]
 
 
-def _frequencies(lib) -> tuple:
-    draft = read_document(str(DEMO / "draft.docx"))
-    prec = read_document(str(DEMO / "precedent.docx"))
+def _frequencies(lib, pair: tuple[Path, Path] = (DEMO / "draft.docx", DEMO / "precedent.docx")) -> tuple:
+    draft = read_document(str(pair[0]))
+    prec = read_document(str(pair[1]))
     review = apply_frequency(run_review(draft, prec, **review_options(lib)), lib)
     return (tuple(p.frequency for p in review.pairs), tuple(d.frequency for d in review.deviations),
             tuple((d.rank, d.severity) for d in review.deviations))
 
 
-def _snapshot(root: Path, *, patterns: bool = False) -> dict:
+def _snapshot(root: Path, *, patterns: bool = False, pair: tuple[Path, Path] | None = None) -> dict:
     with open_library(root, refresh=False) as lib:
         snap = {"total": lib.total, "provisions": _provisions(lib), "variants": _variants(lib),
-                "caches": _caches(lib), "frequencies": _frequencies(lib)}
+                "caches": _caches(lib), "frequencies": _frequencies(lib, *([pair] if pair else []))}
         if patterns:
             snap["patterns"] = negotiation_patterns(lib, read_document(str(DEMO / "precedent.docx")))
     return snap
@@ -189,3 +190,55 @@ def test_a_no_change_build_touches_nothing(tmp_path):
     after = {p: p.stat().st_mtime_ns for p in (folder / ".counterdraft").rglob("*") if p.is_file()}
     derived = {p: t for p, t in after.items() if p.suffix == ".npz"}
     assert derived == {p: before[p] for p in derived}  # no derived file rewritten
+
+
+def _generated_corpus(folder: Path, count: int) -> None:
+    """Agreements from the benchmarks' deterministic generator (benchmarks/_corpus.py)."""
+    spec = importlib.util.spec_from_file_location("_bench_corpus", ROOT / "benchmarks" / "_corpus.py")
+    corpus = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(corpus)
+    folder.mkdir(parents=True)
+    for i in range(count):
+        (folder / f"g{i:03d}.docx").write_bytes(corpus.make_agreement_docx(pages=GENERATED_PAGES, seed=500 + i))
+    (folder.parent / "pair").mkdir()
+    for name, seed in (("draft", 7), ("precedent", 8)):
+        (folder.parent / "pair" / f"{name}.docx").write_bytes(
+            corpus.make_agreement_docx(pages=GENERATED_PAGES, seed=seed))
+
+
+GENERATED = 30
+GENERATED_PAGES = 4
+
+
+def test_a_generated_corpus_built_incrementally_equals_a_fresh_build(tmp_path, monkeypatch):
+    """The generated agreements share sentence parts, so near-duplicate wordings abound and
+    variants hold several wordings: regroup works on real clusters here (its buckets are
+    regrouped, not clustered in full, once past 20 wordings)."""
+    monkeypatch.setattr(index_module, "ALWAYS_FULL_WORDINGS", 20)
+    source = tmp_path / "source" / "set"
+    _generated_corpus(source, GENERATED + 1)
+    pair = (source.parent / "pair" / "draft.docx", source.parent / "pair" / "precedent.docx")
+    folder = tmp_path / "library"
+    shutil.copytree(source, folder)
+    extra = folder / f"g{GENERATED:03d}.docx"
+    extra.unlink()
+    build_library(folder)
+    regrouped: list[int] = []
+    real = index_module.regroup
+    monkeypatch.setattr(index_module, "regroup", lambda *a, **k: regrouped.append(1) or real(*a, **k))
+    steps = (lambda: shutil.copy(source / extra.name, extra),
+             lambda: (folder / "g005.docx").write_bytes((source / "g017.docx").read_bytes()),
+             lambda: (folder / "g011.docx").unlink())
+    for n, step in enumerate(steps):
+        step()
+        report = build_library(folder)
+        assert report.read + report.removed == 1
+        copy = tmp_path / f"fresh{n}"
+        shutil.copytree(folder, copy, ignore=shutil.ignore_patterns(".counterdraft"))
+        build_library(copy)
+        # Reference: a fresh full build of the same files.
+        want, got = _snapshot(copy, pair=pair), _snapshot(folder, pair=pair)
+        for key in want:
+            assert got[key] == want[key], (n, key)
+        assert any(len(v[2]) > 1 for v in got["variants"])  # variants of several wordings exist
+    assert regrouped  # the incremental path ran
