@@ -242,3 +242,37 @@ def test_a_generated_corpus_built_incrementally_equals_a_fresh_build(tmp_path, m
             assert got[key] == want[key], (n, key)
         assert any(len(v[2]) > 1 for v in got["variants"])  # variants of several wordings exist
     assert regrouped  # the incremental path ran
+
+
+def test_a_build_killed_between_a_cache_file_and_its_commit_is_repaired_by_the_next(tmp_path, monkeypatch):
+    """A build that dies after rewriting some bucket files but before committing their
+    variants (simulated by an error on the third file) leaves the next build to finish the
+    job; the result is a fresh build's."""
+    monkeypatch.setattr(index_module, "ALWAYS_FULL_WORDINGS", 0)  # regroup every bucket
+    folder = tmp_path / "library"
+    shutil.copytree(SET, folder, ignore=shutil.ignore_patterns(".counterdraft"))
+    (folder / ADDED).unlink()
+    build_library(folder)
+    shutil.copy(SET / ADDED, folder / ADDED)
+    real = index_module._write_private
+    written: list[Path] = []
+
+    def failing(path: Path, data: bytes) -> None:
+        if path.parent.name == index_module.BUCKETS_DIRNAME:
+            written.append(path)
+            if len(written) == 3:
+                raise OSError("simulated end of the process")
+        real(path, data)
+
+    monkeypatch.setattr(index_module, "_write_private", failing)
+    with pytest.raises(OSError, match="simulated"):
+        build_library(folder)
+    monkeypatch.setattr(index_module, "_write_private", real)
+    build_library(folder)
+    # Reference: a fresh full build of the same files.
+    copy = tmp_path / "fresh"
+    shutil.copytree(folder, copy, ignore=shutil.ignore_patterns(".counterdraft"))
+    build_library(copy)
+    want, got = _snapshot(copy), _snapshot(folder)
+    for key in want:
+        assert got[key] == want[key], key
