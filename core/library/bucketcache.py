@@ -24,7 +24,7 @@ import numpy as np
 
 from .variants import incidence_matrix
 
-__all__ = ["BucketArrays", "assemble", "compact"]
+__all__ = ["BucketArrays", "assemble", "compact", "rows_of"]
 
 _FIELDS = ("hashes", "cols", "indptr", "indices", "sizes", "wcols", "windptr", "windices", "count", "sample",
            "variant", "docptr", "docs")
@@ -105,14 +105,13 @@ def _merge(cols: np.ndarray, matrix, take: np.ndarray,  # noqa: ANN001
 
 
 def assemble(old: BucketArrays | None, *, hashes: Sequence[str], count: np.ndarray, sample: np.ndarray,
-             doc_lists: Sequence[Sequence[int]], new_sets: Mapping[str, tuple[np.ndarray, np.ndarray]],
+             docptr: np.ndarray, docs: np.ndarray, new_sets: Mapping[str, tuple[np.ndarray, np.ndarray]],
              variant: np.ndarray | None = None) -> BucketArrays:
     """The arrays of a bucket whose wordings are now *hashes* (in the bucket's order), moving
     known wordings' rows from *old* and taking the others' ``(shingle hashes, word hashes)``
     from *new_sets*.  *variant* defaults to the old rows' variants (-1 for new rows)."""
-    key = np.array([h.encode("ascii") for h in hashes], dtype="S32") if len(hashes) else np.zeros(0, "S32")
-    old_index = {h: i for i, h in enumerate(old.hashes.tolist())} if old is not None else {}
-    take = np.array([old_index.get(h, -1) for h in key.tolist()], dtype=np.int64)
+    key = np.array(list(hashes), dtype="S32") if len(hashes) else np.zeros(0, "S32")
+    take = rows_of(old.hashes if old is not None else np.zeros(0, "S32"), key)
     fresh = [hashes[i] for i in np.flatnonzero(take < 0).tolist()]
     empty = np.zeros(0, np.uint64)
     oc, om = (old.cols, old.shingle_matrix()) if old is not None else (empty, None)
@@ -124,11 +123,20 @@ def assemble(old: BucketArrays | None, *, hashes: Sequence[str], count: np.ndarr
         variant = np.full(take.size, -1, dtype=np.int64)
         if old is not None and old.rows:
             variant[take >= 0] = old.variant[take[take >= 0]]
-    docptr = np.cumsum([0] + [len(d) for d in doc_lists]).astype(np.int64)
-    docs = np.array([d for ds in doc_lists for d in ds], dtype=np.int64)
     return BucketArrays(key, cols, indptr, indices, sizes, wcols, windptr, windices,
                         np.asarray(count, dtype=np.int32), np.asarray(sample, dtype=np.int64),
-                        np.asarray(variant, dtype=np.int64), docptr, docs)
+                        np.asarray(variant, dtype=np.int64), np.asarray(docptr, dtype=np.int64),
+                        np.asarray(docs, dtype=np.int64))
+
+
+def rows_of(known: np.ndarray, wanted: np.ndarray) -> np.ndarray:
+    """For each hash of *wanted*, its row in *known* ("S32" arrays, any order), or -1."""
+    if known.size == 0:
+        return np.full(wanted.size, -1, dtype=np.int64)
+    sorter = np.argsort(known)
+    pos = np.minimum(np.searchsorted(known, wanted, sorter=sorter), known.size - 1)
+    rows = sorter[pos]
+    return np.where(known[rows] == wanted, rows, -1).astype(np.int64)
 
 
 def _compact_columns(cols: np.ndarray, indices: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

@@ -86,7 +86,7 @@ import numpy as np
 
 from ..errors import CounterdraftError
 from ..fileio import atomic_write_bytes, exclusive, file_sha256, remove_orphaned_parts
-from .bucketcache import BucketArrays, assemble, compact
+from .bucketcache import BucketArrays, assemble, compact, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
 from .normalise import (
     TermReplacer,
@@ -997,7 +997,8 @@ class _Wordings:
     hashes: list[str]
     count: np.ndarray
     sample: np.ndarray  # per wording, its provision in the first document by path
-    doc_lists: list[list[int]]
+    docptr: np.ndarray  # the documents using wording i: docs[docptr[i]:docptr[i + 1]], ascending
+    docs: np.ndarray
 
 
 def _document_ranks(conn: sqlite3.Connection) -> tuple[np.ndarray, np.ndarray]:
@@ -1009,29 +1010,31 @@ def _document_ranks(conn: sqlite3.Connection) -> tuple[np.ndarray, np.ndarray]:
 
 def _bucket_wordings(conn: sqlite3.Connection, bucket: str,
                      ranks: tuple[np.ndarray, np.ndarray]) -> _Wordings:
-    """One index-only pass over the bucket's provisions (index ``provisions_wording``), then
-    array work.  The sample of a wording is its provision in the document first by path
-    (first by position there): what a full build, which stores the documents in path order,
-    finds as the lowest row id."""
-    rows = conn.execute("SELECT norm_hash, document_id, ordinal, id FROM provisions WHERE bucket = ?",
-                        (bucket,)).fetchall()
-    if not rows:
-        return _Wordings([], np.zeros(0, np.int32), np.zeros(0, np.int64), [])
-    hashes_of, doc, ordinal, pid = zip(*rows)
-    uniq, inv = np.unique(np.array(hashes_of, dtype="S32"), return_inverse=True)
-    doc_a = np.array(doc, dtype=np.int64)
-    rank = ranks[1][np.searchsorted(ranks[0], doc_a)]
-    count = np.bincount(inv, minlength=uniq.size)
-    by_place = np.lexsort((np.array(ordinal, dtype=np.int64), rank, inv))
-    firsts = by_place[np.r_[0, np.flatnonzero(np.diff(inv[by_place])) + 1]]
-    sample = np.array(pid, dtype=np.int64)[firsts]
-    pairs = np.unique(inv.astype(np.int64) * (int(doc_a.max()) + 1) + doc_a)
-    owner, docs = np.divmod(pairs, int(doc_a.max()) + 1)
-    cuts = np.searchsorted(owner, np.arange(uniq.size + 1))
-    order = np.lexsort((uniq, -count))
-    names = [h.decode("ascii") for h in uniq[order].tolist()]
-    return _Wordings(names, count[order].astype(np.int32), sample[order],
-                     [docs[cuts[i]:cuts[i + 1]].tolist() for i in order.tolist()])
+    """Two index-only passes over the bucket's provisions in the order of index
+    ``provisions_wording`` (the wordings with their counts, then every provision's document,
+    position and id), then array work.  The sample of a wording is its provision in the
+    document first by path (first by position there): what a full build, which stores the
+    documents in path order, finds as the lowest row id."""
+    groups = conn.execute("SELECT norm_hash, COUNT(*) FROM provisions WHERE bucket = ? GROUP BY norm_hash "
+                          "ORDER BY norm_hash", (bucket,)).fetchall()
+    if not groups:
+        return _Wordings([], np.zeros(0, np.int32), np.zeros(0, np.int64), np.zeros(1, np.int64),
+                         np.zeros(0, np.int64))
+    places = np.array(conn.execute("SELECT document_id, ordinal, id FROM provisions WHERE bucket = ? "
+                                   "ORDER BY norm_hash, document_id, ordinal", (bucket,)).fetchall(), dtype=np.int64)
+    count = np.array([g[1] for g in groups], dtype=np.int64)
+    inv = np.repeat(np.arange(count.size), count)
+    doc, ordinal, pid = places[:, 0], places[:, 1], places[:, 2]
+    rank = ranks[1][np.searchsorted(ranks[0], doc)]
+    by_place = np.lexsort((ordinal, rank, inv))
+    sample = pid[by_place[np.r_[0, np.cumsum(count)[:-1]]]]
+    new_pair = np.r_[True, (inv[1:] != inv[:-1]) | (doc[1:] != doc[:-1])]  # rows come sorted by (wording, document)
+    docs, owner = doc[new_pair], inv[new_pair]
+    cuts = np.searchsorted(owner, np.arange(count.size + 1))
+    order = np.lexsort((np.arange(count.size), -count))  # most provisions first, then by hash
+    docptr = np.r_[0, np.cumsum(np.diff(cuts)[order])].astype(np.int64)
+    return _Wordings([groups[i][0] for i in order.tolist()], count[order].astype(np.int32), sample[order],
+                     docptr, docs[_ragged(cuts, order)])
 
 
 def _new_wording_sets(conn: sqlite3.Connection, bucket: str,
@@ -1108,11 +1111,11 @@ def _refresh_bucket(conn: sqlite3.Connection, folder: Path, bucket: str, config:
             pass
         return
     old = _read_bucket(path)
-    known = set(old.hashes.tolist()) if old is not None else set()
-    fresh = [h for h in words.hashes if h.encode("ascii") not in known]
-    arrays = assemble(old, hashes=words.hashes, count=words.count, sample=words.sample,
-                      doc_lists=words.doc_lists, new_sets=_new_wording_sets(conn, bucket, fresh))
-    gone = len(known) - (len(words.hashes) - len(fresh))
+    take = rows_of(old.hashes if old is not None else np.zeros(0, "S32"), np.array(words.hashes, dtype="S32"))
+    fresh = [words.hashes[i] for i in np.flatnonzero(take < 0).tolist()]
+    arrays = assemble(old, hashes=words.hashes, count=words.count, sample=words.sample, docptr=words.docptr,
+                      docs=words.docs, new_sets=_new_wording_sets(conn, bucket, fresh))
+    gone = (old.rows if old is not None else 0) - (len(words.hashes) - len(fresh))
     labels, full = _cluster_bucket(conn, bucket, arrays, old, gone=gone, config=config)
     stored = _stored_figures(conn, bucket, old, trusted)
     variant = _write_variants(conn, bucket, arrays, labels, stored=stored, trusted=trusted and old is not None)
@@ -1132,8 +1135,7 @@ def _cluster_bucket(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays,
     labels: np.ndarray | None = None
     if old is not None and state is not None and arrays.rows > ALWAYS_FULL_WORDINGS \
             and state[1] + changes <= CLUSTER_DRIFT * state[0]:
-        keep = set(arrays.hashes.tolist())
-        broken = sorted({int(v) for h, v in zip(old.hashes.tolist(), old.variant.tolist()) if h not in keep})
+        broken = np.unique(old.variant[rows_of(arrays.hashes, old.hashes) < 0]).tolist()
         try:
             labels = regroup(arrays.shingle_matrix(), arrays.sizes.astype(np.int64), arrays.variant,
                              fresh=fresh, broken=broken, config=config)

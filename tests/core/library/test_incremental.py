@@ -23,6 +23,7 @@ from __future__ import annotations
 
 import importlib.util
 import shutil
+import sqlite3
 from pathlib import Path
 
 import pytest
@@ -274,5 +275,27 @@ def test_a_build_killed_between_a_cache_file_and_its_commit_is_repaired_by_the_n
     shutil.copytree(folder, copy, ignore=shutil.ignore_patterns(".counterdraft"))
     build_library(copy)
     want, got = _snapshot(copy), _snapshot(folder)
+    for key in want:
+        assert got[key] == want[key], key
+
+
+def test_an_index_with_the_earlier_derived_layout_gets_it_anew(tmp_path):
+    """An index whose derived files have the earlier layout (one variants.npz, no bucket
+    files) is brought up to date by the next build, with no file re-read."""
+    folder = tmp_path / "library"
+    shutil.copytree(SET, folder, ignore=shutil.ignore_patterns(".counterdraft"))
+    build_library(folder)
+    want = _snapshot(folder)
+    index = folder / ".counterdraft"
+    shutil.rmtree(index / index_module.BUCKETS_DIRNAME)
+    (index / index_module.CACHE_FILENAME).write_bytes(b"an earlier cache")
+    with sqlite3.connect(index / index_module.DB_FILENAME) as conn:
+        conn.execute("DELETE FROM meta WHERE key IN ('derived', 'vocabulary', 'neighbour_examples')")
+        conn.execute("DELETE FROM bucket_state")
+    conn.close()
+    report = build_library(folder)
+    assert (report.read, report.removed) == (0, 0)
+    assert not (index / index_module.CACHE_FILENAME).exists()
+    got = _snapshot(folder)
     for key in want:
         assert got[key] == want[key], key
