@@ -262,6 +262,11 @@ class _Context:
         words = np.unique(np.fromiter((_word_hash(t) for t in toks), dtype=np.uint64, count=len(toks)))
         hits = bucket.word_hits(words)
         cand = np.flatnonzero(hits == words.size)
+        if cand.size and len(toks) >= SHINGLE_SIZE:
+            # A text holding the phrase holds each of its shingles: a cheaper, exact filter
+            # before reading the candidates' texts.
+            grams = shingle_hashes(toks)
+            cand = cand[bucket.intersections(grams)[cand] == grams.size]
         if cand.size == 0:
             return 0
         phrase = " " + " ".join(toks) + " "

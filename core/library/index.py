@@ -1116,20 +1116,24 @@ def _refresh_bucket(conn: sqlite3.Connection, folder: Path, bucket: str, config:
     arrays = assemble(old, hashes=words.hashes, count=words.count, sample=words.sample, docptr=words.docptr,
                       docs=words.docs, new_sets=_new_wording_sets(conn, bucket, fresh))
     gone = (old.rows if old is not None else 0) - (len(words.hashes) - len(fresh))
-    labels, full = _cluster_bucket(conn, bucket, arrays, old, gone=gone, config=config)
+    state = conn.execute("SELECT clustered, drift FROM bucket_state WHERE bucket = ?", (bucket,)).fetchone()
+    # A cache file is this index's own only when the index has a state for its bucket (a
+    # rebuilt, upgraded or re-configured index has none): otherwise only its content-derived
+    # arrays (wordings' shingles and words) are reused, never its variants.
+    trusted = trusted and old is not None and state is not None
+    labels, full = _cluster_bucket(conn, bucket, arrays, old if trusted else None, state, gone=gone, config=config)
     stored = _stored_figures(conn, bucket, old, trusted)
-    variant = _write_variants(conn, bucket, arrays, labels, stored=stored, trusted=trusted and old is not None)
+    variant = _write_variants(conn, bucket, arrays, labels, stored=stored, trusted=trusted)
     arrays = replace(arrays, variant=variant)
     _write_private(path, (compact(arrays) if full else arrays).to_npz_bytes())
 
 
-def _cluster_bucket(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays, old: BucketArrays | None, *,
-                    gone: int, config: VariantConfig) -> tuple[np.ndarray, bool]:
+def _cluster_bucket(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays, old: BucketArrays | None,
+                    state: tuple[int, int] | None, *, gone: int, config: VariantConfig) -> tuple[np.ndarray, bool]:
     """Per-wording labels (a kept variant's id, else a label no variant of the bucket has)
     and whether they come from a full clustering rather than from
     :func:`~.variants.regroup`.  Full when the bucket is new, small
     (ALWAYS_FULL_WORDINGS) or has drifted (CLUSTER_DRIFT)."""
-    state = conn.execute("SELECT clustered, drift FROM bucket_state WHERE bucket = ?", (bucket,)).fetchone()
     fresh = arrays.variant < 0
     changes = int(fresh.sum()) + gone
     labels: np.ndarray | None = None

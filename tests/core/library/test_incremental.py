@@ -299,3 +299,17 @@ def test_an_index_with_the_earlier_derived_layout_gets_it_anew(tmp_path):
     got = _snapshot(folder)
     for key in want:
         assert got[key] == want[key], key
+
+
+def test_bucket_files_left_beside_a_new_database_are_not_taken_for_its_own(tmp_path):
+    """The database removed (or set aside as damaged) while the bucket files stay: the new
+    index reuses their content-derived arrays but stores every variant anew."""
+    folder = tmp_path / "library"
+    shutil.copytree(SET, folder, ignore=shutil.ignore_patterns(".counterdraft"))
+    build_library(folder)
+    want = _snapshot(folder)
+    (folder / ".counterdraft" / index_module.DB_FILENAME).unlink()
+    build_library(folder)
+    got = _snapshot(folder)
+    for key in want:
+        assert got[key] == want[key], key
