@@ -26,8 +26,6 @@ from collections import defaultdict
 from collections.abc import Sequence
 from dataclasses import dataclass
 
-import numpy as np
-
 from ..errors import CounterdraftError
 from .index import Library, _bucket_rows, wording_shingles
 from .variants import LINKAGES, METRICS, cluster_condensed, pairwise_distances

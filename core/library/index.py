@@ -88,15 +88,7 @@ from ..errors import CounterdraftError
 from ..fileio import atomic_write_bytes, exclusive, file_sha256, remove_orphaned_parts
 from .bucketcache import BucketArrays, assemble, compact, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
-from .normalise import (
-    TermReplacer,
-    _word_hash,
-    canonical_role,
-    fold,
-    learn_aliases,
-    match_tokens,
-    shingle_hashes,
-)
+from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
 from .variants import RegroupTooLarge, VariantConfig, cluster_wordings, regroup
 
 __all__ = [
