@@ -19,7 +19,9 @@ each ratio measured side by side in the same run:
   0.1 s).
 
 ``--json OUT`` writes the figures; ``--before JSON`` prints them beside an earlier run's (e.g.
-the same script run against an older checkout).  ``--large`` runs 10,000 agreements instead
+the same script run against an older checkout; ``benchmarks/baselines/
+bench_library_before_incremental.json`` holds the figures of the index before it was made
+incremental, measured on the 2-core development machine).  ``--large`` runs 10,000 agreements instead
 (about 3.5 minutes to generate the first time, then cached).
 
 Targets on a 2-core machine: no-change rebuild <= 1 % and one-file rebuild <= 2 % of the first
@@ -310,7 +312,8 @@ def main(argv: list[str] | None = None) -> int:
     figures.update(_derived(figures))
     before = None
     if args.before:
-        before = json.loads(Path(args.before).read_text(encoding="utf-8"))
+        before = {k: v for k, v in json.loads(Path(args.before).read_text(encoding="utf-8")).items()
+                  if not k.startswith("_")}
     _print(figures, before)
     if args.json:
         Path(args.json).write_text(json.dumps(figures, indent=2) + "\n", encoding="utf-8")
