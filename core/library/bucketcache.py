@@ -58,8 +58,10 @@ class BucketArrays:
     def word_matrix(self):  # noqa: ANN201 - scipy.sparse.csr_matrix
         return _csr(self.windptr, self.windices, self.rows, self.wcols.size)
 
-    def shingle_sets(self) -> list[np.ndarray]:
-        return [self.cols[self.indices[self.indptr[i]:self.indptr[i + 1]]] for i in range(self.rows)]
+    def shingle_sets(self) -> Sequence[np.ndarray]:
+        """Each row's shingle hashes, made when asked for (a slice gives a list), so that a
+        bucket of 100,000 wordings is not copied into as many arrays at once."""
+        return _RowSets(self.cols, self.indptr, self.indices)
 
     def to_npz_bytes(self) -> bytes:
         buf = io.BytesIO()
@@ -70,6 +72,28 @@ class BucketArrays:
     def from_npz_bytes(cls, data: bytes) -> BucketArrays:
         with np.load(io.BytesIO(data), allow_pickle=False) as a:
             return cls(**{f: a[f] for f in _FIELDS})
+
+
+class _RowSets(Sequence[np.ndarray]):
+    """The rows of a CSR incidence matrix as hash arrays, made on access."""
+
+    def __init__(self, cols: np.ndarray, indptr: np.ndarray, indices: np.ndarray) -> None:
+        self._cols, self._indptr, self._indices = cols, indptr, indices
+
+    def __len__(self) -> int:
+        return int(self._indptr.size - 1)
+
+    def _row(self, i: int) -> np.ndarray:
+        return self._cols[self._indices[self._indptr[i]:self._indptr[i + 1]]]
+
+    def __getitem__(self, key):  # noqa: ANN001, ANN204 - int or slice, as a Sequence
+        if isinstance(key, slice):
+            return [self._row(i) for i in range(*key.indices(len(self)))]
+        if key < 0:
+            key += len(self)
+        if not 0 <= key < len(self):
+            raise IndexError(key)
+        return self._row(key)
 
 
 def _csr(indptr: np.ndarray, indices: np.ndarray, rows: int, cols: int):  # noqa: ANN202
@@ -84,6 +108,9 @@ def _merge(cols: np.ndarray, matrix, take: np.ndarray,  # noqa: ANN001
     sets of *new_sets* (``take[i] < 0``)."""
     from scipy.sparse import vstack
 
+    if not (take >= 0).any():  # no old row (a new bucket, a first build): build directly, in order
+        m, merged = incidence_matrix(list(new_sets))
+        return merged, m.indptr.astype(np.int64), m.indices.astype(np.int32)
     flat = np.unique(np.concatenate(list(new_sets))) if new_sets else np.zeros(0, np.uint64)
     pos = np.searchsorted(cols, flat)
     known = (pos < cols.size) & (cols[np.minimum(pos, max(cols.size - 1, 0))] == flat) if cols.size \

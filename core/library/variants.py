@@ -35,6 +35,7 @@ __all__ = [
     "DEFAULT_CUTOFF",
     "DEFAULT_LINKAGE",
     "DEFAULT_METRIC",
+    "INCIDENCE_CHUNK",
     "LINKAGES",
     "MAX_CLUSTER_ITEMS",
     "METRICS",
@@ -119,22 +120,39 @@ def set_distance(a: np.ndarray, b: np.ndarray, *, metric: str = DEFAULT_METRIC) 
                                        metric=metric)[0])
 
 
+#: Hashes located per step when an incidence matrix is built: bounds the temporary 64-bit
+#: positions to 8 MB however many wordings a bucket holds.
+INCIDENCE_CHUNK = 1 << 20
+
+
 def incidence_matrix(sets: Sequence[np.ndarray], *, columns: np.ndarray | None = None):  # noqa: ANN201
     """(CSR matrix rows x columns of 0/1 int32, sorted column hashes) for hash arrays *sets*.
 
-    With *columns* given, hashes not among them are dropped (the caller keeps the row sizes)."""
+    With *columns* given, hashes not among them are dropped (the caller keeps the row sizes).
+    Built directly in CSR form (a row's hashes, sorted and unique as :func:`shingle_hashes`
+    makes them, give sorted indices); memory about 16 bytes per hash besides the result."""
     from scipy.sparse import csr_matrix
 
     lengths = np.fromiter((s.size for s in sets), dtype=np.int64, count=len(sets))
     flat = np.concatenate(list(sets)) if len(sets) else np.zeros(0, dtype=np.uint64)
     if columns is None:
         columns = np.unique(flat)
-    pos = np.searchsorted(columns, flat)
-    pos_clipped = np.minimum(pos, max(columns.size - 1, 0))
-    keep = (pos < columns.size) & (columns[pos_clipped] == flat) if columns.size else np.zeros(flat.size, bool)
-    row_of = np.repeat(np.arange(len(sets)), lengths)
-    data = np.ones(int(keep.sum()), dtype=np.int32)
-    m = csr_matrix((data, (row_of[keep], pos[keep])), shape=(len(sets), columns.size), dtype=np.int32)
+    indices = np.empty(flat.size, dtype=np.int32)
+    keep = np.ones(flat.size, dtype=bool)
+    for start in range(0, flat.size, INCIDENCE_CHUNK):
+        part = flat[start:start + INCIDENCE_CHUNK]
+        pos = np.searchsorted(columns, part)
+        if columns.size:
+            found = columns[np.minimum(pos, columns.size - 1)] == part
+        else:
+            found = np.zeros(part.size, dtype=bool)
+        keep[start:start + part.size] = found
+        indices[start:start + part.size] = np.where(found, pos, 0)
+    if not keep.all():
+        lengths = np.bincount(np.repeat(np.arange(len(sets)), lengths)[keep], minlength=len(sets))
+        indices = indices[keep]
+    indptr = np.concatenate([[0], np.cumsum(lengths)]).astype(np.int64)
+    m = csr_matrix((np.ones(indices.size, dtype=np.int32), indices, indptr), shape=(len(sets), columns.size))
     return m, columns
 
 
