@@ -26,10 +26,11 @@ build.  After the files, the derived data is refreshed only where something chan
 * term aliases are learnt again from the stored terms (cheap); when they change, every
   document is normalised again and every bucket marked;
 * only new documents are normalised;
-* the neighbour classifier of unheaded clauses is refitted only when its examples (the first
-  ``MAX_EXAMPLES_PER_TYPE`` distinct typed wordings per type, by hash) changed, and then types
-  every unheaded clause again; otherwise it types only the new documents' (the same
-  classifier gives the same answers, so the result is a full build's);
+* the neighbour classifier of unheaded clauses is refitted only when its examples (per type,
+  the first ``MAX_EXAMPLES_PER_TYPE`` distinct typed wordings, documents taken in the order of
+  their SHA-256) changed, and then types every unheaded clause again; otherwise it types only
+  the new documents' (the same classifier gives the same answers, so the result is a full
+  build's);
 * each marked bucket's frequency cache (``buckets/<name>.npz``, :mod:`.bucketcache`) is made
   from its previous version and its new wordings, and its variants are updated by
   :func:`.variants.regroup` -- the variants a new wording lies within the cut-off of, and the
