@@ -5,13 +5,15 @@ Modules: :mod:`.normalise` (tokens, term normalisation, shingles), :mod:`.clause
 variants by hierarchical clustering), :mod:`.vocab` (the Word2Vec vocabulary model),
 :mod:`.frequency` (frequency figures and ranking in a review), :mod:`.slots` (the wording
 variants of one provision's slot, for the desktop app), :mod:`.patterns` (negotiation
-patterns), :mod:`.calibrate` (choosing the clustering cut-off).
+patterns), :mod:`.calibrate` (choosing the clustering cut-off), :mod:`.bucketcache` (each clause
+type's frequency cache, one file per type, updated in place by an incremental build).
 
 Every file the library writes holds confidential client text: it lives in the library's
 ``.counterdraft`` folder (mode 0o700) with mode 0o600, and no provision text is logged.
 
-The names below are the entry points; importing this package loads no heavy module
-(scikit-learn, gensim, scipy load when first used).
+The names below are the entry points; importing this package loads no heavy module (scipy
+loads when first used; gensim only to train the vocabulary model during a build, never to
+read it; scikit-learn not at all outside the tests, which use it as a reference).
 """
 
 from __future__ import annotations

@@ -26,10 +26,8 @@ from collections import defaultdict
 from collections.abc import Sequence
 from dataclasses import dataclass
 
-import numpy as np
-
 from ..errors import CounterdraftError
-from .index import Library, _bucket_rows
+from .index import Library, _bucket_rows, wording_shingles
 from .variants import LINKAGES, METRICS, cluster_condensed, pairwise_distances
 
 __all__ = [
@@ -124,7 +122,7 @@ def calibrate(library: Library, labelled: Sequence[Labelled] | None = None, *,
     prepared = []
     for bucket in sorted(by_bucket):
         rows = _bucket_rows(library.conn, bucket)
-        sets = [np.frombuffer(r[2], dtype=np.uint64) for r in rows]
+        sets = [wording_shingles(r[2], r[3]) for r in rows]
         if len(sets) > config.max_items:
             raise CounterdraftError(f"clause type {bucket} has {len(sets)} distinct wordings; calibration "
                                     f"clusters at most {config.max_items}")

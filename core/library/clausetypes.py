@@ -7,7 +7,7 @@ A provision is typed by, in order (see the taxonomy file's header for the reason
 2. its heading (or run-in lead), matched against the taxonomy's heading keywords;
 3. its parent's type, when the parent's type itself came from a heading (an unheaded
    sub-clause deals with its clause's subject);
-4. its nearest typed neighbours: TF-IDF cosine (scikit-learn) between the provision's words
+4. its nearest typed neighbours: TF-IDF cosine (scikit-learn's weighting, computed with numpy) between the provision's words
    and typed provisions of the precedent set plus the taxonomy's seed phrases; the k nearest
    vote, weighted by similarity.
 
@@ -18,6 +18,7 @@ is one sparse matrix product, O(query words * examples sharing them).
 
 from __future__ import annotations
 
+import importlib.util
 import io
 import re
 import tomllib
@@ -38,8 +39,8 @@ __all__ = [
     "HEADING_LINE_MAX_WORDS",
     "MAX_EXAMPLES_PER_TYPE",
     "NEIGHBOUR_K",
-    "NEIGHBOUR_MIN_SIMILARITY",
     "NEIGHBOUR_MIN_SHARE",
+    "NEIGHBOUR_MIN_SIMILARITY",
     "NEIGHBOUR_MIN_WORDS",
     "UNTYPED_KINDS",
     "ClauseType",
@@ -185,11 +186,30 @@ _LEGAL_STOP_WORDS = frozenset({"shall", "agreement", "party", "parties", "may", 
                                "provided", "accordance", "clause", "hereby", "such", "any"})
 
 
-@lru_cache(maxsize=1)
-def _stop_words() -> frozenset[str]:
+def _english_stop_words() -> frozenset[str]:
+    """scikit-learn's English stop-word list.  Read from its own module file (a plain list,
+    no imports) without importing the scikit-learn package, whose import costs about half a
+    second to a second -- more than clause typing itself in ``review --library`` and in a
+    one-file rebuild; through the package when that file is not where this version keeps it."""
+    spec = importlib.util.find_spec("sklearn")  # finds the package without running it
+    folder = spec.submodule_search_locations if spec is not None else None
+    path = Path(folder[0]) / "feature_extraction" / "_stop_words.py" if folder else None
+    if path is not None and path.is_file():
+        module_spec = importlib.util.spec_from_file_location("_counterdraft_stop_words", path)
+        if module_spec is not None and module_spec.loader is not None:
+            module = importlib.util.module_from_spec(module_spec)
+            module_spec.loader.exec_module(module)
+            words = getattr(module, "ENGLISH_STOP_WORDS", None)
+            if isinstance(words, frozenset):
+                return words
     from sklearn.feature_extraction.text import ENGLISH_STOP_WORDS
 
-    return frozenset(ENGLISH_STOP_WORDS) | _LEGAL_STOP_WORDS
+    return frozenset(ENGLISH_STOP_WORDS)
+
+
+@lru_cache(maxsize=1)
+def _stop_words() -> frozenset[str]:
+    return _english_stop_words() | _LEGAL_STOP_WORDS
 
 
 def _ngrams(tokens: str) -> list[str]:
@@ -227,9 +247,11 @@ class NeighbourClassifier:
     def fit(cls, examples: Iterable[tuple[str, str]], *, taxonomy: Taxonomy | None = None,
             max_per_type: int = MAX_EXAMPLES_PER_TYPE) -> NeighbourClassifier:
         """Fit on *examples*.  Per type, the first *max_per_type* distinct examples in sorted
-        order are kept, so the result does not depend on the examples' order."""
-        from sklearn.feature_extraction.text import TfidfVectorizer
+        order are kept, so the result does not depend on the examples' order.
 
+        The weighting is scikit-learn's ``TfidfVectorizer(sublinear_tf=True, norm="l2")``
+        (smooth idf ``ln((1 + n) / (1 + df)) + 1``, features in sorted order), computed here
+        with numpy so that fitting does not import scikit-learn (tested against it)."""
         tax = taxonomy or load_taxonomy()
         per_type: dict[str, set[str]] = defaultdict(set)
         for text, tid in examples:
@@ -244,36 +266,32 @@ class NeighbourClassifier:
             for text in sorted(per_type.get(t.id, ()))[:max_per_type]:
                 texts.append(text)
                 labels.append(t.id)
-        vec = TfidfVectorizer(analyzer=_ngrams, sublinear_tf=True, norm="l2", dtype=np.float64)
-        matrix = vec.fit_transform(texts)
-        vocab = [""] * len(vec.vocabulary_)
-        for term, i in vec.vocabulary_.items():
-            vocab[i] = term
-        return cls(vocab, vec.idf_, matrix, labels)
+        grams = [set(_ngrams(text)) for text in texts]
+        vocab = sorted(set().union(*grams)) if grams else []
+        index = {g: i for i, g in enumerate(vocab)}
+        df = np.zeros(len(vocab), dtype=np.float64)
+        for gs in grams:
+            df[[index[g] for g in gs]] += 1.0
+        idf = np.log((1.0 + len(texts)) / (1.0 + df)) + 1.0
+        unfitted = cls(vocab, idf, _empty_matrix(len(vocab)), labels)
+        return cls(vocab, idf, unfitted.transform(texts), labels)
 
     def transform(self, texts: Sequence[str]):  # noqa: ANN201 - scipy.sparse.csr_matrix
-        """TF-IDF rows of *texts* over the fitted vocabulary: (1 + log tf) * idf, l2-normed."""
+        """TF-IDF rows of *texts* over the fitted vocabulary: (1 + log tf) * idf, l2-normed
+        (array work over all texts at once; only the n-gram lookup is per word)."""
         from scipy.sparse import csr_matrix
 
-        indptr = [0]
-        indices: list[int] = []
-        data: list[float] = []
-        for text in texts:
-            counts: dict[int, int] = defaultdict(int)
-            for gram in _ngrams(text):
-                j = self._index.get(gram)
-                if j is not None:
-                    counts[j] += 1
-            cols = sorted(counts)
-            w = np.array([(1.0 + np.log(counts[j])) * self._idf[j] for j in cols], dtype=np.float64)
-            norm = float(np.sqrt((w * w).sum())) if w.size else 0.0
-            if norm > 0:
-                w /= norm
-            indices.extend(cols)
-            data.extend(w.tolist())
-            indptr.append(len(indices))
-        return csr_matrix((np.array(data, dtype=np.float64), np.array(indices, dtype=np.int64),
-                           np.array(indptr, dtype=np.int64)), shape=(len(texts), len(self._terms)))
+        width = max(len(self._terms), 1)
+        keys: list[int] = []
+        for r, text in enumerate(texts):
+            base = r * width
+            keys.extend(base + j for j in map(self._index.get, _ngrams(text)) if j is not None)
+        uniq, counts = np.unique(np.array(keys, dtype=np.int64), return_counts=True)
+        rows, cols = np.divmod(uniq, width)
+        w = (1.0 + np.log(counts.astype(np.float64))) * self._idf[cols]
+        norms = np.sqrt(np.bincount(rows, weights=w * w, minlength=len(texts)))
+        w = w / np.where(norms[rows] > 0, norms[rows], 1.0)
+        return csr_matrix((w, (rows, cols)), shape=(len(texts), len(self._terms)), dtype=np.float64)
 
     def predict(self, texts: Sequence[str]) -> list[tuple[str | None, float]]:
         """For each normalised token string: (clause type or None, best cosine similarity)."""
@@ -319,6 +337,12 @@ class NeighbourClassifier:
         with np.load(io.BytesIO(data), allow_pickle=False) as a:
             matrix = csr_matrix((a["data"], a["indices"], a["indptr"]), shape=tuple(a["shape"].tolist()))
             return cls(a["vocabulary"].tolist(), a["idf"], matrix, a["labels"].tolist())
+
+
+def _empty_matrix(columns: int):  # noqa: ANN202 - scipy.sparse.csr_matrix
+    from scipy.sparse import csr_matrix
+
+    return csr_matrix((0, columns), dtype=np.float64)
 
 
 @lru_cache(maxsize=1)

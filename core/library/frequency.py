@@ -233,7 +233,11 @@ class _Context:
     def closest(self, bucket: BucketIndex, dist: np.ndarray) -> tuple[ClosestProvision, ...]:
         if bucket.rows == 0:
             return ()
-        order = np.lexsort((np.arange(bucket.rows), -bucket.count, dist))[:CLOSEST_COUNT]
+        # Only rows within the CLOSEST_COUNT-th smallest distance can be among the nearest:
+        # sorting them alone gives the order a sort of every row gives.
+        k = min(CLOSEST_COUNT, bucket.rows)
+        near = np.flatnonzero(dist <= np.partition(dist, k - 1)[k - 1])
+        order = near[np.lexsort((near, -bucket.count[near], dist[near]))][:CLOSEST_COUNT]
         refs = self.library.provision_refs([int(bucket.sample[i]) for i in order])
         out = []
         for i in order.tolist():
@@ -258,6 +262,11 @@ class _Context:
         words = np.unique(np.fromiter((_word_hash(t) for t in toks), dtype=np.uint64, count=len(toks)))
         hits = bucket.word_hits(words)
         cand = np.flatnonzero(hits == words.size)
+        if cand.size and len(toks) >= SHINGLE_SIZE:
+            # A text holding the phrase holds each of its shingles: a cheaper, exact filter
+            # before reading the candidates' texts.
+            grams = shingle_hashes(toks)
+            cand = cand[bucket.intersections(grams)[cand] == grams.size]
         if cand.size == 0:
             return 0
         phrase = " " + " ".join(toks) + " "
@@ -282,7 +291,7 @@ def _whole_frequency(ctx: _Context, bucket_name: str, side: str, pid: str, *,
         return Frequency(0, ctx.total if absent else 0, ctx.total, (), 0 if containing else None)
     dist = ctx.distances(bucket, side, pid)
     within = dist <= ctx.config.cutoff
-    same_type = len(bucket.all_documents())
+    same_type = bucket.document_count
     if absent:  # documents without a counterpart of the provision
         matching = ctx.total - _counterparts(ctx, bucket, ((side, pid),))[1].size
     else:  # == documents whose counterpart is within the cut-off (the nearest row is the counterpart)
@@ -501,7 +510,7 @@ def _departure_frequency(ctx: _Context, dev: Deviation, bucket_name: str) -> Fre
         return Frequency(0, 0, ctx.total, (), 0 if dev.change in ("insert", "delete", "replace") else None)
     change = _change(ctx, dev)
     dist_d = ctx.distances(bucket, "d", d_id)  # type: ignore[arg-type]
-    same_type = len(bucket.all_documents())
+    same_type = bucket.document_count
     containing = (ctx.containing_phrase(bucket, change.changed_words)
                   if dev.change in ("insert", "delete", "replace") else None)
     closest = ctx.closest(bucket, dist_d)

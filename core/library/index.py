@@ -6,18 +6,46 @@ files and folders, Office lock files ``~$...`` and the index's own folder are sk
 
 * ``documents``: path (relative to the root, with "/"), SHA-256, size, modification time,
   title and parties when found;
-* ``provisions``: kind, number, heading, level, text, clause type (and how it was found), the
-  normalised wording, its shingle hashes and its variant;
+* ``provisions``: kind, number, heading, level, text, clause type (and how it was found), its
+  bucket, the normalised wording and its hash, and its variant (the ``shingles`` column is
+  left empty: the bucket caches hold the shingles);
 * ``terms``: the defined terms and their definitions;
 * ``failures``: files that could not be read or are not agreements, with the problem;
-* ``variants`` and ``labels``: wording variants per clause type and the reviewer's positions.
+* ``variants`` and ``labels``: wording variants per clause type and the reviewer's positions;
+* ``dirty`` and ``bucket_state``: buckets to refresh, and each bucket's wordings at its last
+  full clustering and the wordings added or removed since.
 
 The build is incremental: a file whose size and modification time are unchanged is not
 opened; a file whose stat changed is hashed and re-read only when its SHA-256 changed; files
 that disappeared are dropped.  Unreadable files are listed and skipped; nothing aborts the
-build.  After the files, the derived data is refreshed only where something changed: term
-aliases, normalised wordings, neighbour typing of unheaded clauses, variants, the frequency
-cache (``variants.npz``) and the vocabulary model (``vocabulary.npz``).
+build.  After the files, the derived data is refreshed only where something changed:
+
+* every bucket (clause type) holding a provision of a file read or dropped is marked dirty
+  (table ``dirty``, in the same transaction as the change, so a cancelled or killed build
+  leaves the marks for the next one); only marked buckets are refreshed;
+* term aliases are learnt again from the stored terms (cheap); when they change, every
+  document is normalised again and every bucket marked;
+* only new documents are normalised;
+* the neighbour classifier of unheaded clauses is refitted only when its examples (per type,
+  the first ``MAX_EXAMPLES_PER_TYPE`` distinct typed wordings, documents taken in the order of
+  their SHA-256) changed, and then types every unheaded clause again; otherwise it types only
+  the new documents' (the same classifier gives the same answers, so the result is a full
+  build's);
+* each marked bucket's frequency cache (``buckets/<name>.npz``, :mod:`.bucketcache`) is made
+  from its previous version and its new wordings, and its variants are updated by
+  :func:`.variants.regroup` -- the variants a new wording lies within the cut-off of, and the
+  variants that lost a wording, are clustered again on their own -- until the wordings added
+  and removed since the bucket's last full clustering exceed ``CLUSTER_DRIFT`` of its
+  wordings; a small bucket (``ALWAYS_FULL_WORDINGS``), a new one and a drifted one are
+  clustered in full.  Regrouping is exact for single linkage; for average and complete
+  linkage it can differ from a full clustering only where sub-groups of two variants lie
+  within the cut-off of each other (see :func:`.variants.regroup`); a full build of the same
+  files gives the same variants on the demo set and the test corpora
+  (tests/core/library/test_incremental.py);
+* the vocabulary model (``vocabulary.npz``) is retrained only when its training corpus has
+  drifted (:func:`.vocab.vocabulary_drift`, ``vocab.RETRAIN_DRIFT``), in a worker process
+  beside the clustering when the corpus is large; until then it is the model of the
+  documents it was trained on.
 
 The index is derived data: when its file is not a usable SQLite database of this schema
 (damaged, truncated, not SQLite, another schema version), the build moves it aside to
@@ -29,16 +57,18 @@ Confidentiality: the folder ``.counterdraft`` is created with mode 0o700 and eve
 with mode 0o600 (SQLite gives its journal the database's mode); the build logs no contract text
 (progress reports give file paths only, failure reasons never quote the file).
 
-Cost: reading dominates (the reader's cost per file; spread over ``workers`` processes).  The
-derived data costs O(provisions) for normalisation and typing, O(n^2) per clause type for the
-variants of its n distinct wordings (bounded by ``MAX_CLUSTER_ITEMS``), and the vocabulary
-training is bounded by ``vocab.MAX_TRAINING_WORDS``.
+Cost: reading dominates a first build (the reader's cost per file; spread over ``workers``
+processes).  The derived data of a first build costs O(provisions) for normalisation and
+typing, O(n^2) per clause type for the variants of its n distinct wordings (bounded by
+``MAX_CLUSTER_ITEMS``) and a vocabulary training bounded by ``vocab.MAX_TRAINING_WORDS``.
+Adding, changing or removing one agreement costs its reading, one index-only scan and array
+work linear in the size of the buckets it touches, one sparse product of its new wordings
+with those buckets, and O(g^2) for each regrouped set of g wordings.
 """
 
 from __future__ import annotations
 
 import hashlib
-import io
 import json
 import multiprocessing
 import os
@@ -46,9 +76,10 @@ import re
 import sqlite3
 import stat
 import time
+from collections import defaultdict
 from collections.abc import Callable, Iterator, Mapping, Sequence
 from concurrent.futures import ProcessPoolExecutor
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any
 
@@ -56,9 +87,10 @@ import numpy as np
 
 from ..errors import CounterdraftError
 from ..fileio import atomic_write_bytes, exclusive, file_sha256, remove_orphaned_parts
+from .bucketcache import BucketArrays, assemble, compact, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
 from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
-from .variants import VariantConfig, cluster_wordings, incidence_matrix
+from .variants import RegroupTooLarge, VariantConfig, cluster_wordings, regroup
 
 __all__ = [
     "DB_DIRNAME",
@@ -74,18 +106,20 @@ __all__ = [
     "Library",
     "Progress",
     "VariantInfo",
-    "build_library",
     "bucket_of",
+    "build_library",
     "default_db_path",
     "normalised_wording",
     "open_library",
     "scan_files",
+    "wording_shingles",
 ]
 
 SUFFIXES: tuple[str, ...] = (".docx", ".txt", ".md")
 DB_DIRNAME = ".counterdraft"
 DB_FILENAME = "library.sqlite"
-CACHE_FILENAME = "variants.npz"
+CACHE_FILENAME = "variants.npz"  # the frequency cache of earlier versions (one file), removed
+BUCKETS_DIRNAME = "buckets"  # the frequency cache: one file per bucket (core.library.bucketcache)
 NEIGHBOURS_FILENAME = "clausetypes.npz"
 VOCAB_FILENAME = "vocabulary.npz"
 SCHEMA_VERSION = "1"
@@ -98,6 +132,30 @@ MIN_AGREEMENT_TYPES = 3
 #: Below this many files to read, reading stays in this process: starting worker processes
 #: (spawn, which is safe beside the desktop app's threads) costs about a second.
 POOL_MIN_FILES = 16
+
+#: Layout of the derived files (meta ``derived``): an index whose derived data has another
+#: layout gets it all anew on its next build.
+DERIVED_FORMAT = "2"
+
+#: A bucket of at most this many distinct wordings is clustered in full whenever it changes:
+#: its 80,000 distances and their linkage take milliseconds, and a full clustering is the
+#: reference the incremental path approximates.
+ALWAYS_FULL_WORDINGS = 400
+
+#: Wordings added to or removed from a larger bucket are regrouped into its variants
+#: (:func:`core.library.variants.regroup`) until the wordings added and removed since its
+#: last full clustering exceed this share of the wordings it then had; the change after that
+#: clusters it in full again.  A tenth: regrouping is exact for single linkage and, for
+#: average and complete linkage, departs from a full clustering only when sub-groups of two
+#: variants lie within the cut-off of each other (none on the demo set and the test
+#: corpora), so the drift stays small, while one full clustering of a 3,000-wording bucket
+#: costs seconds -- a tenth of the wordings is ~100 added agreements at 1,000.
+CLUSTER_DRIFT = 0.10
+
+#: A build trains the vocabulary model in a worker process, beside the clustering, when the
+#: training corpus holds at least this many words (about 1.5 s of training): below that,
+#: starting a process and importing gensim in it (about a second) costs more than it saves.
+PARALLEL_TRAINING_MIN_WORDS = 200_000
 
 #: The reviewer's positions on a variant, strongest first.
 POSITIONS: tuple[str, ...] = ("preferred", "acceptable", "fallback", "not acceptable")
@@ -120,8 +178,8 @@ CREATE TABLE IF NOT EXISTS provisions(
     clause_type TEXT, type_source TEXT NOT NULL, bucket TEXT NOT NULL,
     norm TEXT, norm_hash TEXT, shingles BLOB, variant_id INTEGER);
 CREATE INDEX IF NOT EXISTS provisions_document ON provisions(document_id);
-CREATE INDEX IF NOT EXISTS provisions_bucket ON provisions(bucket, norm_hash);
-CREATE INDEX IF NOT EXISTS provisions_source ON provisions(type_source, clause_type, norm_hash);
+CREATE INDEX IF NOT EXISTS provisions_wording ON provisions(bucket, norm_hash, document_id, ordinal, variant_id);
+CREATE INDEX IF NOT EXISTS provisions_typed ON provisions(type_source, clause_type, norm_hash, document_id);
 CREATE TABLE IF NOT EXISTS terms(
     document_id INTEGER NOT NULL REFERENCES documents(id) ON DELETE CASCADE,
     term TEXT NOT NULL, definition TEXT NOT NULL, provision TEXT, uses INTEGER NOT NULL);
@@ -138,6 +196,9 @@ CREATE TABLE IF NOT EXISTS labels(
     bucket TEXT NOT NULL, norm_hash TEXT NOT NULL, position TEXT NOT NULL, seq INTEGER NOT NULL,
     PRIMARY KEY(bucket, norm_hash));
 CREATE TABLE IF NOT EXISTS buckets(bucket TEXT PRIMARY KEY, fingerprint TEXT NOT NULL);
+CREATE TABLE IF NOT EXISTS dirty(bucket TEXT PRIMARY KEY);
+CREATE TABLE IF NOT EXISTS bucket_state(
+    bucket TEXT PRIMARY KEY, clustered INTEGER NOT NULL, drift INTEGER NOT NULL);
 """
 
 
@@ -390,8 +451,20 @@ def scan_files(root: str | os.PathLike[str], *, exclude: Sequence[str | os.PathL
     return [f.path for f in _scan(Path(root), exclude=exclude)]
 
 
+def _file_ids(paths: Sequence[str | os.PathLike[str]]) -> set[tuple[int, int]]:
+    """(device, inode) of each existing file of *paths*: the same file under any name."""
+    out = set()
+    for p in paths:
+        try:
+            st = os.stat(p)
+        except OSError:
+            continue
+        out.add((st.st_dev, st.st_ino))
+    return out
+
+
 def _scan(root: Path, *, exclude: Sequence[str | os.PathLike[str]] = ()) -> list[_FileStat]:
-    excluded = {os.path.realpath(p) for p in exclude}
+    excluded = _file_ids(exclude)  # compared by inode: no path resolution per file found
     out: list[_FileStat] = []
     stack = [root]
     while stack:  # iterative walk: no recursion on the folder depth
@@ -413,7 +486,7 @@ def _scan(root: Path, *, exclude: Sequence[str | os.PathLike[str]] = ()) -> list
                 st = e.stat()
             except OSError:
                 continue
-            if not stat.S_ISREG(st.st_mode) or os.path.realpath(e.path) in excluded:
+            if not stat.S_ISREG(st.st_mode) or (st.st_dev, st.st_ino) in excluded:
                 continue
             rel = Path(e.path).relative_to(root).as_posix()
             out.append(_FileStat(rel, e.path, st.st_size, st.st_mtime_ns))
@@ -602,11 +675,13 @@ def _build_into(conn: sqlite3.Connection, root_p: Path, db: Path, *, progress: P
         new = json.dumps([config.metric, config.linkage, config.cutoff, config.max_items])
         if old != new:
             _set_meta(conn, "variant_config", new)
-            conn.execute("DELETE FROM buckets")
+            conn.execute("DELETE FROM bucket_state")
+            conn.execute("INSERT OR IGNORE INTO dirty(bucket) SELECT DISTINCT bucket FROM provisions")
             _set_meta(conn, "stale", "1")
     files = _scan(root_p, exclude=[*exclude, db])
     report = _update_files(conn, files, progress=progress, cancel=cancel, workers=workers)
-    changed = report.read > 0 or report.removed > 0 or _meta(conn, "stale") == "1"
+    changed = (report.read > 0 or report.removed > 0 or _meta(conn, "stale") == "1"
+               or _meta(conn, "derived") != DERIVED_FORMAT)
     cancelled = report.cancelled
     if changed and not cancelled:
         _set_meta(conn, "stale", "1")
@@ -638,6 +713,7 @@ def _update_files(conn: sqlite3.Connection, files: Sequence[_FileStat], *, progr
     removed = 0
     for path, (doc_id, *_rest) in known.items():
         if path not in on_disk:
+            _mark_dirty(conn, doc_id)
             conn.execute("DELETE FROM documents WHERE id = ?", (doc_id,))
             removed += 1
     for path in failed:
@@ -703,6 +779,9 @@ def _update_files(conn: sqlite3.Connection, files: Sequence[_FileStat], *, progr
 
 
 def _store(conn: sqlite3.Connection, f: _FileStat, res: _Extract | _Problem) -> None:
+    previous = conn.execute("SELECT id FROM documents WHERE path = ?", (f.rel,)).fetchone()
+    if previous is not None:
+        _mark_dirty(conn, previous[0])
     conn.execute("DELETE FROM documents WHERE path = ?", (f.rel,))
     conn.execute("DELETE FROM failures WHERE path = ?", (f.rel,))
     if isinstance(res, _Problem):
@@ -724,6 +803,7 @@ def _store(conn: sqlite3.Connection, f: _FileStat, res: _Extract | _Problem) -> 
          in enumerate(res.provisions)])
     conn.executemany("INSERT INTO terms(document_id, term, definition, provision, uses) VALUES(?,?,?,?,?)",
                      [(doc_id, *t) for t in res.terms])
+    _mark_dirty(conn, doc_id)
 
 
 # ----------------------------------------------------------------------------------------
@@ -741,72 +821,144 @@ def _doc_replacer(terms: Sequence[str], aliases: Mapping[str, str]) -> TermRepla
 
 def _refresh_derived(conn: sqlite3.Connection, folder: Path, *, cancel: Cancel | Any | None,
                      vocabulary: bool) -> bool:
-    """Refresh everything computed from the documents.  False when cancelled."""
-    # 1. Aliases between the documents' defined terms.
+    """Refresh what is computed from the documents, only where something changed (the module
+    docstring).  False when cancelled: what is done is kept, the rest stays marked."""
+    _upgrade_derived(conn, folder)
+    aliases = _refresh_aliases(conn)
+    normalised = _normalise_pending(conn, aliases, cancel=cancel)
+    if normalised is None or _cancelled(cancel):
+        return False
+    _retype_by_neighbours(conn, folder, normalised)
+    conn.commit()
+    if _cancelled(cancel):
+        return False
+    training = _start_vocabulary(conn, folder, aliases) if vocabulary else None
+    try:
+        done = _refresh_variants(conn, folder, cancel=cancel)
+    except BaseException:
+        if training is not None:
+            training.stop()
+        raise
+    if training is not None:
+        if done:
+            training.finish(conn)
+        else:
+            training.stop()
+    return done
+
+
+def _upgrade_derived(conn: sqlite3.Connection, folder: Path) -> None:
+    """An index whose derived files have an earlier layout (or none) gets all of them anew."""
+    if _meta(conn, "derived") == DERIVED_FORMAT:
+        return
+    conn.execute("DELETE FROM bucket_state")
+    conn.execute("INSERT OR IGNORE INTO dirty(bucket) SELECT DISTINCT bucket FROM provisions")
+    conn.execute("DELETE FROM meta WHERE key IN ('neighbour_examples', 'vocabulary')")
+    try:
+        os.unlink(folder / CACHE_FILENAME)  # the earlier single frequency cache
+    except FileNotFoundError:
+        pass
+    _set_meta(conn, "derived", DERIVED_FORMAT)
+    conn.commit()
+
+
+def _mark_dirty(conn: sqlite3.Connection, document_id: int) -> None:
+    """The buckets of a document's provisions need their variants and cache refreshed."""
+    conn.execute("INSERT OR IGNORE INTO dirty(bucket) SELECT DISTINCT bucket FROM provisions "
+                 "WHERE document_id = ?", (document_id,))
+
+
+def _refresh_aliases(conn: sqlite3.Connection) -> dict[str, str]:
+    """Aliases between the documents' defined terms; when they change, every document is
+    normalised again and every bucket refreshed."""
     aliases = learn_aliases(conn.execute("SELECT document_id, term, definition FROM terms"))
     encoded = json.dumps(aliases, sort_keys=True)
     if _meta(conn, "aliases") != encoded:
         conn.execute("UPDATE documents SET normalised = 0")
+        conn.execute("INSERT OR IGNORE INTO dirty(bucket) SELECT DISTINCT bucket FROM provisions")
         _set_meta(conn, "aliases", encoded)
-    # 2. Normalised wordings of documents not yet normalised.
+    return aliases
+
+
+def _normalise_pending(conn: sqlite3.Connection, aliases: Mapping[str, str], *,
+                       cancel: Cancel | Any | None) -> list[int] | None:
+    """Normalised wordings of the documents not yet normalised; their ids, or None when
+    cancelled."""
     todo = [r[0] for r in conn.execute("SELECT id FROM documents WHERE normalised = 0 ORDER BY id")]
     for n, doc_id in enumerate(todo):
         if n % 25 == 0 and _cancelled(cancel):
             conn.commit()
-            return False
+            return None
         terms = [r[0] for r in conn.execute("SELECT term FROM terms WHERE document_id = ?", (doc_id,))]
         replacer = _doc_replacer(terms, aliases)
         rows = []
         for pid, heading, text in conn.execute(
                 "SELECT id, heading, text FROM provisions WHERE document_id = ?", (doc_id,)):
-            tokens = normalised_wording(text, heading, terms=replacer)
-            norm = " ".join(tokens)
-            rows.append((norm, _norm_hash(norm), shingle_hashes(tokens).tobytes(), pid))
-        conn.executemany("UPDATE provisions SET norm = ?, norm_hash = ?, shingles = ? WHERE id = ?", rows)
+            norm = " ".join(normalised_wording(text, heading, terms=replacer))
+            rows.append((norm, _norm_hash(norm), pid))
+        # Shingles are not stored (the column stays NULL): the bucket caches hold them, made
+        # once per distinct wording from its normalised text (wording_shingles).
+        conn.executemany("UPDATE provisions SET norm = ?, norm_hash = ?, shingles = NULL WHERE id = ?", rows)
         conn.execute("UPDATE documents SET normalised = 1 WHERE id = ?", (doc_id,))
     conn.commit()
-    if _cancelled(cancel):
-        return False
-    # 3. Neighbour typing of unheaded or oddly headed clauses.
-    _retype_by_neighbours(conn, folder)
-    conn.commit()
-    if _cancelled(cancel):
-        return False
-    # 4. Variants and the frequency cache.
-    _refresh_variants(conn, folder)
-    conn.commit()
-    if _cancelled(cancel):
-        return False
-    # 5. Vocabulary model.
-    if vocabulary:
-        from .vocab import train_library_vocabulary
-
-        train_library_vocabulary(conn, folder / VOCAB_FILENAME)
-    return True
+    return todo
 
 
-def _retype_by_neighbours(conn: sqlite3.Connection, folder: Path) -> None:
-    tax = load_taxonomy()
-    examples: list[tuple[str, str]] = []
+def _neighbour_examples(conn: sqlite3.Connection) -> tuple[list[tuple[str, str]], str]:
+    """The neighbour classifier's examples and their fingerprint: per clause type, the first
+    MAX_EXAMPLES_PER_TYPE distinct wordings typed by heading or parent, documents taken in the
+    order of their content hashes (SHA-256) and each document's provisions in order.  That
+    order is a fixed pseudo-random sample of the library, unrelated to file names, and once a
+    type has its examples, an agreement added, changed or removed further down the order
+    leaves them as they are -- the classifier need not be refitted, nor its types redone."""
     from .clausetypes import MAX_EXAMPLES_PER_TYPE
 
-    for tid in tax.ids:
-        examples.extend(
-            (norm, tid) for (norm,) in conn.execute(
-                "SELECT DISTINCT norm FROM provisions WHERE type_source IN ('heading', 'parent') "
-                "AND clause_type = ? AND norm != '' ORDER BY norm_hash LIMIT ?",
-                (tid, MAX_EXAMPLES_PER_TYPE)))
-    clf = NeighbourClassifier.fit(examples, taxonomy=tax)
-    _write_private(folder / NEIGHBOURS_FILENAME, clf.to_npz_bytes())
-    rows = conn.execute("SELECT id, kind, norm, clause_type FROM provisions "
-                        "WHERE type_source IN ('neighbour', 'none')").fetchall()
+    chosen: dict[str, dict[str, int]] = defaultdict(dict)
+    # Index-only on provisions (provisions_typed); a document's row ids follow its order.
+    for tid, h, pid in conn.execute(
+            "SELECT p.clause_type, p.norm_hash, p.id FROM provisions p JOIN documents d ON d.id = p.document_id "
+            "WHERE p.type_source IN ('heading', 'parent') AND p.clause_type IS NOT NULL AND p.norm_hash != ? "
+            "ORDER BY d.sha256, d.path, p.id", (_norm_hash(""),)):
+        per_type = chosen[tid]
+        if len(per_type) < MAX_EXAMPLES_PER_TYPE and h not in per_type:
+            per_type[h] = pid
+    norms = {}
+    for q, chunk in _id_batches([pid for per_type in chosen.values() for pid in per_type.values()]):
+        norms.update(conn.execute(f"SELECT id, norm FROM provisions WHERE id IN ({q})", chunk))
+    digest = hashlib.blake2b(digest_size=16)
+    examples: list[tuple[str, str]] = []
+    for tid in sorted(chosen):
+        for h in sorted(chosen[tid]):
+            examples.append((norms[chosen[tid][h]], tid))
+            digest.update(f"{tid}:{h}\n".encode())
+    return examples, digest.hexdigest()
+
+
+def _retype_by_neighbours(conn: sqlite3.Connection, folder: Path, normalised: Sequence[int]) -> None:
+    """Type unheaded provisions by their library neighbours.  The classifier is refitted only
+    when its examples changed; then every neighbour-typed provision is typed again, else only
+    those of the documents just normalised (the same classifier gives the same types)."""
+    examples, fingerprint = _neighbour_examples(conn)
+    path = folder / NEIGHBOURS_FILENAME
+    sql = "SELECT id, kind, norm, clause_type, bucket FROM provisions WHERE type_source IN ('neighbour', 'none')"
+    if _meta(conn, "neighbour_examples") == fingerprint and path.exists():
+        clf = NeighbourClassifier.from_npz_bytes(path.read_bytes())
+        rows = [r for q, chunk in _id_batches(normalised)
+                for r in conn.execute(f"{sql} AND document_id IN ({q})", chunk)]
+    else:
+        clf = NeighbourClassifier.fit(examples, taxonomy=load_taxonomy())
+        _write_private(path, clf.to_npz_bytes())
+        _set_meta(conn, "neighbour_examples", fingerprint)
+        rows = conn.execute(sql).fetchall()
     if not rows:
         return
     preds = clf.predict([r[2] or "" for r in rows])
-    updates = [(tid, "neighbour" if tid else "none", bucket_of(tid, kind), pid)
-               for (pid, kind, _norm, old), (tid, _s) in zip(rows, preds) if tid != old]
+    updates = [(tid, "neighbour" if tid else "none", bucket_of(tid, kind), pid, old_bucket)
+               for (pid, kind, _norm, old, old_bucket), (tid, _s) in zip(rows, preds) if tid != old]
+    conn.executemany("INSERT OR IGNORE INTO dirty(bucket) VALUES(?)",
+                     [(b,) for u in updates for b in (u[2], u[4])])
     conn.executemany("UPDATE provisions SET clause_type = ?, type_source = ?, bucket = ? WHERE id = ?",
-                     updates)
+                     [u[:4] for u in updates])
 
 
 def _variant_config(conn: sqlite3.Connection) -> VariantConfig:
@@ -825,77 +977,259 @@ def _bucket_rows(conn: sqlite3.Connection, bucket: str) -> list[tuple[str, int, 
         "GROUP BY norm_hash ORDER BY n DESC, norm_hash", (bucket,)).fetchall()
 
 
-def _refresh_variants(conn: sqlite3.Connection, folder: Path) -> None:
+def _str_batches(values: Sequence[str]) -> Iterator[tuple[str, list[str]]]:
+    for start in range(0, len(values), _IN_BATCH):
+        chunk = list(values[start:start + _IN_BATCH])
+        yield ",".join("?" * len(chunk)), chunk
+
+
+@dataclass(frozen=True, slots=True)
+class _Wordings:
+    """A bucket's distinct wordings in its order (most provisions first, then by hash)."""
+
+    hashes: list[str]
+    count: np.ndarray
+    sample: np.ndarray  # per wording, its provision in the first document by path
+    docptr: np.ndarray  # the documents using wording i: docs[docptr[i]:docptr[i + 1]], ascending
+    docs: np.ndarray
+
+
+def _document_ranks(conn: sqlite3.Connection) -> tuple[np.ndarray, np.ndarray]:
+    """(document ids sorted, each one's rank by path) for :func:`_bucket_wordings`."""
+    ids = np.array([i for (i,) in conn.execute("SELECT id FROM documents ORDER BY path")], dtype=np.int64)
+    order = np.argsort(ids)
+    return ids[order], order.astype(np.int64)
+
+
+def _bucket_wordings(conn: sqlite3.Connection, bucket: str,
+                     ranks: tuple[np.ndarray, np.ndarray]) -> _Wordings:
+    """Two index-only passes over the bucket's provisions in the order of index
+    ``provisions_wording`` (the wordings with their counts, then every provision's document,
+    position and id), then array work.  The sample of a wording is its provision in the
+    document first by path (first by position there): what a full build, which stores the
+    documents in path order, finds as the lowest row id."""
+    groups = conn.execute("SELECT norm_hash, COUNT(*) FROM provisions WHERE bucket = ? GROUP BY norm_hash "
+                          "ORDER BY norm_hash", (bucket,)).fetchall()
+    if not groups:
+        return _Wordings([], np.zeros(0, np.int32), np.zeros(0, np.int64), np.zeros(1, np.int64),
+                         np.zeros(0, np.int64))
+    places = np.array(conn.execute("SELECT document_id, ordinal, id FROM provisions WHERE bucket = ? "
+                                   "ORDER BY norm_hash, document_id, ordinal", (bucket,)).fetchall(), dtype=np.int64)
+    count = np.array([g[1] for g in groups], dtype=np.int64)
+    inv = np.repeat(np.arange(count.size), count)
+    doc, ordinal, pid = places[:, 0], places[:, 1], places[:, 2]
+    rank = ranks[1][np.searchsorted(ranks[0], doc)]
+    by_place = np.lexsort((ordinal, rank, inv))
+    sample = pid[by_place[np.r_[0, np.cumsum(count)[:-1]]]]
+    new_pair = np.r_[True, (inv[1:] != inv[:-1]) | (doc[1:] != doc[:-1])]  # rows come sorted by (wording, document)
+    docs, owner = doc[new_pair], inv[new_pair]
+    cuts = np.searchsorted(owner, np.arange(count.size + 1))
+    order = np.lexsort((np.arange(count.size), -count))  # most provisions first, then by hash
+    docptr = np.r_[0, np.cumsum(np.diff(cuts)[order])].astype(np.int64)
+    return _Wordings([groups[i][0] for i in order.tolist()], count[order].astype(np.int32), sample[order],
+                     docptr, docs[_ragged(cuts, order)])
+
+
+def _new_wording_sets(conn: sqlite3.Connection, bucket: str,
+                      hashes: Sequence[str]) -> dict[str, tuple[np.ndarray, np.ndarray]]:
+    """``{hash: (shingle hashes, word hashes)}`` of wordings the bucket's cache lacks."""
+    out: dict[str, tuple[np.ndarray, np.ndarray]] = {}
+    for q, chunk in _str_batches(hashes):
+        for h, blob, norm in conn.execute(
+                f"SELECT norm_hash, shingles, norm FROM provisions WHERE bucket = ? AND norm_hash IN ({q}) "
+                "GROUP BY norm_hash", (bucket, *chunk)):
+            tokens = (norm or "").split()
+            words = np.unique(np.fromiter((_word_hash(w) for w in tokens), dtype=np.uint64, count=len(tokens)))
+            out[h] = (wording_shingles(blob, norm), words)
+    return out
+
+
+def wording_shingles(blob: bytes | None, norm: str | None) -> np.ndarray:
+    """A wording's shingle hashes: the stored ones (indexes of earlier versions), else made
+    from its normalised text (its tokens joined by single spaces; no token holds a space)."""
+    if blob is not None:
+        return np.frombuffer(blob, dtype=np.uint64)
+    return shingle_hashes((norm or "").split())
+
+
+def _bucket_file(folder: Path, bucket: str) -> Path:
+    name = hashlib.blake2b(bucket.encode("utf-8"), digest_size=12).hexdigest()
+    return folder / BUCKETS_DIRNAME / f"{name}.npz"
+
+
+def _read_bucket(path: Path) -> BucketArrays | None:
+    try:
+        return BucketArrays.from_npz_bytes(path.read_bytes())
+    except (OSError, ValueError, KeyError, EOFError):  # missing or not a file this code wrote
+        return None
+
+
+def _refresh_variants(conn: sqlite3.Connection, folder: Path, *, cancel: Cancel | Any | None) -> bool:
+    """Variants and frequency cache of every bucket marked dirty.  False when cancelled.
+
+    A bucket's file is written before the transaction that clears its mark commits: after a
+    crash between the two the bucket is still marked and its next refresh starts from the
+    file, whose wordings are the current ones, so nothing is lost or counted twice."""
     config = _variant_config(conn)
-    buckets = [r[0] for r in conn.execute("SELECT DISTINCT bucket FROM provisions ORDER BY bucket")]
-    conn.execute("DELETE FROM buckets WHERE bucket NOT IN (SELECT DISTINCT bucket FROM provisions)")
-    conn.execute("DELETE FROM variants WHERE bucket NOT IN (SELECT DISTINCT bucket FROM provisions)")
-    arrays: dict[str, np.ndarray] = {}
-    for bi, bucket in enumerate(buckets):
-        rows = _bucket_rows(conn, bucket)
-        hashes = [r[0] for r in rows]
-        position_of = {h: i for i, h in enumerate(hashes)}
-        doc_lists: list[list[int]] = [[] for _ in rows]
-        for h, doc_id in conn.execute("SELECT DISTINCT norm_hash, document_id FROM provisions "
-                                      "WHERE bucket = ? ORDER BY document_id", (bucket,)):
-            doc_lists[position_of[h]].append(doc_id)
-        fp = hashlib.blake2b("\n".join(sorted(hashes)).encode(), digest_size=16).hexdigest()
-        old = conn.execute("SELECT fingerprint FROM buckets WHERE bucket = ?", (bucket,)).fetchone()
-        sets = [np.frombuffer(r[2], dtype=np.uint64) for r in rows]
-        if old is None or old[0] != fp:
-            labels = cluster_wordings(sets, config=config)
-            _store_variants(conn, bucket, rows, doc_lists, labels)
-            conn.execute("INSERT INTO buckets(bucket, fingerprint) VALUES(?, ?) ON CONFLICT(bucket) "
-                         "DO UPDATE SET fingerprint = excluded.fingerprint", (bucket, fp))
-        else:
-            _refresh_assignments(conn, bucket, rows, doc_lists)
-        _cache_bucket(conn, bi, bucket, rows, sets, doc_lists, arrays)
-    arrays["buckets"] = np.array(buckets, dtype=str) if buckets else np.zeros(0, dtype="<U1")
-    buf = io.BytesIO()
-    np.savez(buf, **arrays)
-    _write_private(folder / CACHE_FILENAME, buf.getvalue())
+    _private_dir(folder / BUCKETS_DIRNAME)
+    ranks = _document_ranks(conn)
+    # Set while a variants step runs: when found set, the last one stopped between writing a
+    # cache file and committing, so this one reads the stored variants from the table.
+    trusted = _meta(conn, "variants_running") != "1"
+    _set_meta(conn, "variants_running", "1")
+    conn.commit()
+    try:
+        for (bucket,) in conn.execute("SELECT bucket FROM dirty ORDER BY bucket").fetchall():
+            if _cancelled(cancel):
+                return False
+            _refresh_bucket(conn, folder, bucket, config, ranks, trusted=trusted)
+            conn.execute("DELETE FROM dirty WHERE bucket = ?", (bucket,))
+        _set_meta(conn, "variants_running", "0")
+    finally:
+        conn.commit()
+    return True
 
 
-def _store_variants(conn: sqlite3.Connection, bucket: str, rows: Sequence[tuple],
-                    doc_lists: Sequence[Sequence[int]], labels: np.ndarray) -> None:
-    conn.execute("UPDATE provisions SET variant_id = NULL WHERE bucket = ?", (bucket,))
-    conn.execute("DELETE FROM variants WHERE bucket = ?", (bucket,))
-    groups: dict[int, list[int]] = {}
-    for i, lab in enumerate(labels.tolist()):
-        groups.setdefault(lab, []).append(i)
-    ordered = sorted(groups.items(), key=lambda kv: (-sum(rows[i][1] for i in kv[1]), kv[0]))
-    has_labels = conn.execute("SELECT 1 FROM labels WHERE bucket = ? LIMIT 1", (bucket,)).fetchone()
-    updates = []
-    for ordinal, (_lab, members) in enumerate(ordered, start=1):
-        n_prov = sum(rows[i][1] for i in members)
-        n_docs = len({d for i in members for d in doc_lists[i]})
-        cur = conn.execute("INSERT INTO variants(bucket, ordinal, wordings, provisions, documents, sample) "
-                           "VALUES(?,?,?,?,?,?)", (bucket, ordinal, len(members), n_prov, n_docs,
-                                                   rows[members[0]][4]))
-        vid = cur.lastrowid
-        updates.extend((vid, bucket, rows[i][0]) for i in members)
-    conn.executemany("UPDATE provisions SET variant_id = ? WHERE bucket = ? AND norm_hash = ?", updates)
-    if has_labels:
-        for (vid,) in conn.execute("SELECT id FROM variants WHERE bucket = ?", (bucket,)).fetchall():
-            _update_position(conn, vid)
+def _refresh_bucket(conn: sqlite3.Connection, folder: Path, bucket: str, config: VariantConfig,
+                    ranks: tuple[np.ndarray, np.ndarray], *, trusted: bool) -> None:
+    """One bucket's variants and cache from its previous cache and its changed wordings."""
+    path = _bucket_file(folder, bucket)
+    words = _bucket_wordings(conn, bucket, ranks)
+    if not words.hashes:
+        conn.execute("DELETE FROM variants WHERE bucket = ?", (bucket,))
+        conn.execute("DELETE FROM bucket_state WHERE bucket = ?", (bucket,))
+        try:
+            os.unlink(path)
+        except FileNotFoundError:
+            pass
+        return
+    old = _read_bucket(path)
+    take = rows_of(old.hashes if old is not None else np.zeros(0, "S32"), np.array(words.hashes, dtype="S32"))
+    fresh = [words.hashes[i] for i in np.flatnonzero(take < 0).tolist()]
+    arrays = assemble(old, hashes=words.hashes, count=words.count, sample=words.sample, docptr=words.docptr,
+                      docs=words.docs, new_sets=_new_wording_sets(conn, bucket, fresh))
+    gone = (old.rows if old is not None else 0) - (len(words.hashes) - len(fresh))
+    state = conn.execute("SELECT clustered, drift FROM bucket_state WHERE bucket = ?", (bucket,)).fetchone()
+    # A cache file is this index's own only when the index has a state for its bucket (a
+    # rebuilt, upgraded or re-configured index has none): otherwise only its content-derived
+    # arrays (wordings' shingles and words) are reused, never its variants.
+    trusted = trusted and old is not None and state is not None
+    labels, full = _cluster_bucket(conn, bucket, arrays, old if trusted else None, state, gone=gone, config=config)
+    stored = _stored_figures(conn, bucket, old, trusted)
+    variant = _write_variants(conn, bucket, arrays, labels, stored=stored, trusted=trusted)
+    arrays = replace(arrays, variant=variant)
+    _write_private(path, (compact(arrays) if full else arrays).to_npz_bytes())
 
 
-def _refresh_assignments(conn: sqlite3.Connection, bucket: str, rows: Sequence[tuple],
-                         doc_lists: Sequence[Sequence[int]]) -> None:
-    """Same distinct wordings as when the bucket was clustered, but other documents may use
-    them now: give new provisions their wording's variant and recount the variants."""
-    vid_of = dict(conn.execute("SELECT norm_hash, MAX(variant_id) FROM provisions WHERE bucket = ? "
-                               "GROUP BY norm_hash", (bucket,)))
+def _cluster_bucket(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays, old: BucketArrays | None,
+                    state: tuple[int, int] | None, *, gone: int, config: VariantConfig) -> tuple[np.ndarray, bool]:
+    """Per-wording labels (a kept variant's id, else a label no variant of the bucket has)
+    and whether they come from a full clustering rather than from
+    :func:`~.variants.regroup`.  Full when the bucket is new, small
+    (ALWAYS_FULL_WORDINGS) or has drifted (CLUSTER_DRIFT)."""
+    fresh = arrays.variant < 0
+    changes = int(fresh.sum()) + gone
+    labels: np.ndarray | None = None
+    if old is not None and state is not None and arrays.rows > ALWAYS_FULL_WORDINGS \
+            and state[1] + changes <= CLUSTER_DRIFT * state[0]:
+        broken = np.unique(old.variant[rows_of(arrays.hashes, old.hashes) < 0]).tolist()
+        try:
+            labels = regroup(arrays.shingle_matrix(), arrays.sizes.astype(np.int64), arrays.variant,
+                             fresh=fresh, broken=broken, config=config)
+        except RegroupTooLarge:
+            labels = None
+    if labels is not None:
+        conn.execute("UPDATE bucket_state SET drift = drift + ? WHERE bucket = ?", (changes, bucket))
+        return labels, False
+    labels = _keep_ids(cluster_wordings(arrays.shingle_sets(), config=config), arrays.variant)
+    conn.execute("INSERT INTO bucket_state(bucket, clustered, drift) VALUES(?, ?, 0) ON CONFLICT(bucket) "
+                 "DO UPDATE SET clustered = excluded.clustered, drift = 0", (bucket, arrays.rows))
+    return labels, True
+
+
+def _keep_ids(clusters: np.ndarray, previous: np.ndarray) -> np.ndarray:
+    """Labels for a full clustering's *clusters* (0..k-1): a cluster whose wordings are all
+    and only the current wordings of one earlier variant (*previous*: variant ids, -1 for
+    new wordings) keeps that variant's id, so its provisions need no update; the others get
+    -1, -2, ... (new variants)."""
+    out = np.empty(clusters.size, dtype=np.int64)
+    prev_sizes = dict(zip(*np.unique(previous, return_counts=True)))
+    for k in range(int(clusters.max()) + 1 if clusters.size else 0):
+        members = clusters == k
+        ids = np.unique(previous[members])
+        same = ids.size == 1 and ids[0] >= 0 and prev_sizes[ids[0]] == int(members.sum())
+        out[members] = int(ids[0]) if same else -(k + 1)
+    return out
+
+
+_FIGURES = ("ordinal", "wordings", "provisions", "documents", "sample")  # the columns of table variants
+
+
+def _variant_figures(arrays: BucketArrays, labels: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(distinct labels sorted, each row's index into them, per label the _FIGURES: ordinal --
+    most provisions first, ties by first wording in the bucket's order -- wordings,
+    provisions, documents and the sample of its first wording)."""
+    uniq, inv = np.unique(labels, return_inverse=True)
+    n = arrays.rows
+    first = np.full(uniq.size, n, dtype=np.int64)
+    np.minimum.at(first, inv, np.arange(n))
+    provisions = np.bincount(inv, weights=arrays.count, minlength=uniq.size).astype(np.int64)
+    row_of_doc = np.repeat(np.arange(n), np.diff(arrays.docptr))
+    span = int(arrays.docs.max()) + 1 if arrays.docs.size else 1
+    pairs = np.unique(inv[row_of_doc].astype(np.int64) * span + arrays.docs)
+    documents = np.bincount(pairs // span, minlength=uniq.size)
+    ordinal = np.empty(uniq.size, dtype=np.int64)
+    ordinal[np.lexsort((first, -provisions))] = np.arange(1, uniq.size + 1)
+    figures = np.column_stack([ordinal, np.bincount(inv, minlength=uniq.size), provisions, documents,
+                               arrays.sample[first]]).astype(np.int64)
+    return uniq, inv, figures
+
+
+def _stored_figures(conn: sqlite3.Connection, bucket: str, old: BucketArrays | None,
+                    trusted: bool) -> tuple[np.ndarray, np.ndarray]:
+    """(variant ids sorted, their _FIGURES) as table variants holds them: computed from the
+    bucket's previous cache when it is *trusted* (every variants step that wrote the cache
+    committed the same figures), else read from the table."""
+    if trusted and old is not None and old.rows and (old.variant >= 0).all():
+        ids, _, figures = _variant_figures(old, old.variant)
+        return ids, figures
+    rows = conn.execute(f"SELECT id, {', '.join(_FIGURES)} FROM variants WHERE bucket = ? ORDER BY id",
+                        (bucket,)).fetchall()
+    table = np.array(rows, dtype=np.int64).reshape(len(rows), 1 + len(_FIGURES))
+    return table[:, 0], table[:, 1:]
+
+
+def _write_variants(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays, labels: np.ndarray, *,
+                    stored: tuple[np.ndarray, np.ndarray], trusted: bool) -> np.ndarray:
+    """Store the bucket's variants -- a label that is a *stored* variant id keeps it, other
+    labels become new variants; only changed rows are written -- and its provisions' variant
+    ids; returns the variant id of every wording."""
+    uniq, inv, figures = _variant_figures(arrays, labels)
+    st_ids, st_figures = stored
+    pos = np.minimum(np.searchsorted(st_ids, uniq), max(st_ids.size - 1, 0))
+    kept = (st_ids[pos] == uniq) if st_ids.size else np.zeros(uniq.size, bool)
+    changed = kept & (st_figures[pos] != figures).any(axis=1) if st_ids.size else kept
+    conn.executemany(f"UPDATE variants SET {' = ?, '.join(_FIGURES)} = ? WHERE id = ?",
+                     [(*figures[k].tolist(), int(uniq[k])) for k in np.flatnonzero(changed).tolist()])
+    conn.executemany("DELETE FROM variants WHERE id = ?",
+                     [(int(v),) for v in st_ids[~np.isin(st_ids, uniq[kept])].tolist()])
+    ids = uniq.copy()
+    for k in np.flatnonzero(~kept).tolist():
+        ids[k] = conn.execute(f"INSERT INTO variants(bucket, {', '.join(_FIGURES)}) VALUES(?,?,?,?,?,?)",
+                              (bucket, *figures[k].tolist())).lastrowid
+    variant = ids[inv]
+    unset = np.array([h.encode("ascii") for (h,) in conn.execute(
+        "SELECT DISTINCT norm_hash FROM provisions WHERE bucket = ? AND variant_id IS NULL", (bucket,))], dtype="S32")
+    todo = np.ones(arrays.rows, bool) if not trusted else \
+        (variant != arrays.variant) | np.isin(arrays.hashes, unset)
     conn.executemany("UPDATE provisions SET variant_id = ? WHERE bucket = ? AND norm_hash = ? "
-                     "AND variant_id IS NULL", [(vid_of[r[0]], bucket, r[0]) for r in rows])
-    members: dict[int, list[int]] = {}
-    for i, r in enumerate(rows):
-        vid = vid_of.get(r[0])
-        if vid is not None:
-            members.setdefault(vid, []).append(i)
-    conn.executemany("UPDATE variants SET provisions = ?, documents = ?, sample = ? WHERE id = ?",
-                     [(sum(rows[i][1] for i in m), len({d for i in m for d in doc_lists[i]}), rows[m[0]][4], vid)
-                      for vid, m in members.items()])
+                     "AND (variant_id IS NULL OR variant_id != ?)",
+                     [(int(variant[i]), bucket, arrays.hashes[i].decode("ascii"), int(variant[i]))
+                      for i in np.flatnonzero(todo).tolist()])
+    if conn.execute("SELECT 1 FROM labels WHERE bucket = ? LIMIT 1", (bucket,)).fetchone():
+        for vid in set(ids.tolist()):
+            _update_position(conn, vid)
+    return variant
 
 
 def _update_position(conn: sqlite3.Connection, variant_id: int) -> str | None:
@@ -911,30 +1245,91 @@ def _update_position(conn: sqlite3.Connection, variant_id: int) -> str | None:
     return position
 
 
-def _cache_bucket(conn: sqlite3.Connection, bi: int, bucket: str, rows: Sequence[tuple],
-                  sets: Sequence[np.ndarray], doc_lists: Sequence[Sequence[int]],
-                  arrays: dict[str, np.ndarray]) -> None:
-    """Arrays of one bucket for :class:`BucketIndex` (no text: hashes and ids only)."""
-    m, cols = incidence_matrix(sets)
-    word_sets = [np.unique(np.fromiter((_word_hash(w) for w in r[3].split()), dtype=np.uint64))
-                 if r[3] else np.zeros(0, dtype=np.uint64) for r in rows]
-    wm, wcols = incidence_matrix(word_sets)
-    hashes = [r[0] for r in rows]
-    variant = {h: v for h, v in conn.execute(
-        "SELECT DISTINCT norm_hash, variant_id FROM provisions WHERE bucket = ?", (bucket,))}
-    p = f"b{bi}_"
-    arrays[p + "cols"] = cols
-    arrays[p + "indptr"] = m.indptr.astype(np.int64)
-    arrays[p + "indices"] = m.indices.astype(np.int32)
-    arrays[p + "sizes"] = np.fromiter((s.size for s in sets), dtype=np.int32, count=len(sets))
-    arrays[p + "wcols"] = wcols
-    arrays[p + "windptr"] = wm.indptr.astype(np.int64)
-    arrays[p + "windices"] = wm.indices.astype(np.int32)
-    arrays[p + "count"] = np.array([r[1] for r in rows], dtype=np.int32)
-    arrays[p + "sample"] = np.array([r[4] for r in rows], dtype=np.int64)
-    arrays[p + "variant"] = np.array([variant.get(h) or -1 for h in hashes], dtype=np.int64)
-    arrays[p + "docptr"] = np.cumsum([0] + [len(d) for d in doc_lists]).astype(np.int64)
-    arrays[p + "docs"] = np.array([d for ds in doc_lists for d in ds], dtype=np.int64)
+# ----------------------------------------------------------------------------------------
+# The vocabulary model
+# ----------------------------------------------------------------------------------------
+
+
+def _training_documents(conn: sqlite3.Connection,
+                        fingerprints: list[str]) -> Iterator[tuple[list[str], list[tuple[str, str]]]]:
+    """Documents in path order for :func:`~.vocab.training_sentences`; appends each one's
+    fingerprint (path and SHA-256) to *fingerprints* as it is consumed."""
+    for doc_id, path, sha in conn.execute("SELECT id, path, sha256 FROM documents ORDER BY path").fetchall():
+        fingerprints.append(f"{path}\x00{sha}")
+        terms = [t for (t,) in conn.execute("SELECT term FROM terms WHERE document_id = ?", (doc_id,))]
+        yield terms, conn.execute("SELECT text, norm_hash FROM provisions WHERE document_id = ? "
+                                  "ORDER BY ordinal", (doc_id,)).fetchall()
+
+
+class _Training:
+    """A vocabulary training decided by :func:`_start_vocabulary`: in a worker process (large
+    corpus: it runs beside the clustering, on the other core) or here at :meth:`finish`."""
+
+    def __init__(self, folder: Path, sentences: list[list[str]], state: dict[str, Any]) -> None:
+        self.path = folder / VOCAB_FILENAME
+        self.sentences = sentences
+        self.state = state
+        self._pool: Any = None
+        self._job: Any = None
+        if state["words"] >= PARALLEL_TRAINING_MIN_WORDS:
+            from .vocab import train_model
+
+            self._pool = multiprocessing.get_context("spawn").Pool(1)
+            self._job = self._pool.apply_async(train_model, (sentences,))
+
+    def finish(self, conn: sqlite3.Connection) -> None:
+        from .vocab import train_model
+
+        if self._job is not None:
+            model = self._job.get()
+            self.stop()
+        else:
+            model = train_model(self.sentences)
+        if model is None:
+            try:
+                os.unlink(self.path)
+            except FileNotFoundError:
+                pass
+        else:
+            _write_private(self.path, model.to_npz_bytes())
+        _set_meta(conn, "vocabulary", json.dumps(self.state))
+        conn.commit()
+
+    def stop(self) -> None:
+        if self._pool is not None:
+            self._pool.terminate()
+            self._pool.join()
+            self._pool = None
+
+
+def _start_vocabulary(conn: sqlite3.Connection, folder: Path, aliases: Mapping[str, str]) -> _Training | None:
+    """A :class:`_Training` when the model must be (re)trained (:func:`~.vocab.needs_training`:
+    its corpus drifted), else None: the model on disk is the one this library gives."""
+    from .vocab import (
+        MAX_TRAINING_WORDS,
+        needs_training,
+        training_sentences,
+        vocabulary_drift,
+    )
+
+    raw = _meta(conn, "vocabulary")
+    state = json.loads(raw) if raw else None
+    alias_key = hashlib.blake2b(json.dumps(aliases, sort_keys=True).encode(), digest_size=16).hexdigest()
+    total = int(conn.execute("SELECT COUNT(*) FROM documents").fetchone()[0])
+    if state is None or state.get("aliases") != alias_key:
+        drift = 1.0
+    else:
+        trained = state["documents"]
+        current = [f"{p}\x00{h}" for p, h in conn.execute(
+            "SELECT path, sha256 FROM documents ORDER BY path LIMIT ?", (len(trained),))]
+        drift = vocabulary_drift(trained=trained, current=current, exhausted=state["exhausted"], documents=total)
+    if not needs_training(drift=drift, words=state["words"] if state else 0, has_model=state is not None):
+        return None
+    fingerprints: list[str] = []
+    sentences, used, words = training_sentences(_training_documents(conn, fingerprints))
+    new_state = {"documents": fingerprints[:used], "words": words, "exhausted": words < MAX_TRAINING_WORDS,
+                 "aliases": alias_key}
+    return _Training(folder, sentences, new_state)
 
 
 # ----------------------------------------------------------------------------------------
@@ -948,35 +1343,42 @@ class BucketIndex:
 
     name: str
     cols: np.ndarray  # sorted shingle hashes
-    shingles: Any  # scipy.sparse.csc_matrix, rows = distinct wordings
+    shingles: Any  # scipy.sparse.csr_matrix, rows = distinct wordings
     sizes: np.ndarray  # shingles per row
     wcols: np.ndarray
-    words: Any  # csc_matrix of distinct words per row
+    words: Any  # csr_matrix of distinct words per row
     count: np.ndarray  # provisions per row
     sample: np.ndarray  # one provision id per row
     variant: np.ndarray  # variant id per row (-1 if none)
     docptr: np.ndarray
     docs: np.ndarray
+    document_count: int = 0  # distinct documents with a provision in the bucket
+    #: Column-major copies made when first needed (a review asks word questions of few buckets).
+    _columns: dict[str, Any] = field(default_factory=dict, compare=False, repr=False)
 
     @property
     def rows(self) -> int:
         return int(self.sizes.size)
 
     def documents_of(self, row_mask: np.ndarray) -> set[int]:
-        out: set[int] = set()
-        for i in np.flatnonzero(row_mask).tolist():
-            out.update(self.docs[self.docptr[i]:self.docptr[i + 1]].tolist())
-        return out
+        rows = np.flatnonzero(row_mask)
+        return set(self.docs[_ragged(self.docptr, rows)].tolist())
 
     def all_documents(self) -> set[int]:
         return set(self.docs.tolist())
 
+    def _by_column(self, key: str) -> Any:
+        m = self._columns.get(key)
+        if m is None:
+            m = self._columns[key] = (self.shingles if key == "s" else self.words).tocsc()
+        return m
+
     def intersections(self, hashes: np.ndarray) -> np.ndarray:
         """|row shingles & hashes| for every row (hashes: sorted unique uint64)."""
-        return self._hits(self.cols, self.shingles, hashes)
+        return self._hits(self.cols, self._by_column("s"), hashes)
 
     def word_hits(self, hashes: np.ndarray) -> np.ndarray:
-        return self._hits(self.wcols, self.words, hashes)
+        return self._hits(self.wcols, self._by_column("w"), hashes)
 
     @staticmethod
     def _hits(cols: np.ndarray, matrix: Any, hashes: np.ndarray) -> np.ndarray:
@@ -988,7 +1390,19 @@ class BucketIndex:
         pos = pos[cols[pos] == hashes[ok]]
         if pos.size == 0:
             return np.zeros(matrix.shape[0], dtype=np.int64)
-        return np.asarray(matrix[:, pos].sum(axis=1)).ravel().astype(np.int64)
+        # The rows of the chosen columns of the CSC matrix, counted (no sparse slicing).
+        return np.bincount(matrix.indices[_ragged(matrix.indptr, pos)], minlength=matrix.shape[0]).astype(np.int64)
+
+
+def _ragged(indptr: np.ndarray, picks: np.ndarray) -> np.ndarray:
+    """Positions ``indptr[p]:indptr[p + 1]`` for every p of *picks*, concatenated."""
+    starts = indptr[picks].astype(np.int64)
+    lengths = indptr[picks + 1].astype(np.int64) - starts
+    total = int(lengths.sum())
+    if total == 0:
+        return np.zeros(0, dtype=np.int64)
+    offsets = np.repeat(starts - np.cumsum(lengths) + lengths, lengths)
+    return offsets + np.arange(total, dtype=np.int64)
 
 
 class Library:
@@ -1007,7 +1421,6 @@ class Library:
                                     "build' sets it aside and rebuilds it", path=str(self.db_path)) from None
         stored_root = _meta(self.conn, "root")
         self.root = Path(root) if root is not None else (Path(stored_root) if stored_root else self.db_path.parent)
-        self._cache: dict[str, np.ndarray] | None = None
         self._buckets: dict[str, BucketIndex | None] = {}
         self._neighbours: NeighbourClassifier | None = None
         self._vocab: Any = None
@@ -1071,45 +1484,27 @@ class Library:
             self._vocab = LibraryVocabulary.load(path) if path.exists() else False
         return self._vocab or None
 
-    def _arrays(self) -> dict[str, np.ndarray]:
-        if self._cache is None:
-            path = self.folder / CACHE_FILENAME
-            if not path.exists():
-                self._cache = {}
-            else:
-                with np.load(path, allow_pickle=False) as data:
-                    self._cache = {k: data[k] for k in data.files}
-        return self._cache
-
     def bucket_names(self) -> tuple[str, ...]:
-        arr = self._arrays().get("buckets")
-        return tuple(arr.tolist()) if arr is not None else ()
+        """The buckets (clause types, ``~kind``) that hold provisions, sorted."""
+        return tuple(b for (b,) in self.conn.execute("SELECT bucket FROM bucket_state ORDER BY bucket"))
 
     def bucket(self, name: str) -> BucketIndex | None:
-        """The frequency index of one bucket (clause type or ``~kind``), None if empty."""
+        """The frequency index of one bucket (clause type or ``~kind``), None if empty.  Read
+        from the bucket's own cache file when first asked for (a review reads only the buckets
+        its provisions fall in)."""
         if name in self._buckets:
             return self._buckets[name]
-        from scipy.sparse import csr_matrix
-
-        names = self.bucket_names()
-        if name not in names:
-            self._buckets[name] = None
-            return None
-        a = self._arrays()
-        p = f"b{names.index(name)}_"
-        n = a[p + "sizes"].size
-        sh = csr_matrix((np.ones(a[p + "indices"].size, dtype=np.int32), a[p + "indices"], a[p + "indptr"]),
-                        shape=(n, a[p + "cols"].size)).tocsc()
-        wm = csr_matrix((np.ones(a[p + "windices"].size, dtype=np.int32), a[p + "windices"], a[p + "windptr"]),
-                        shape=(n, a[p + "wcols"].size)).tocsc()
-        b = BucketIndex(name, a[p + "cols"], sh, a[p + "sizes"], a[p + "wcols"], wm, a[p + "count"],
-                        a[p + "sample"], a[p + "variant"], a[p + "docptr"], a[p + "docs"])
+        a = _read_bucket(_bucket_file(self.folder, name))
+        b = None
+        if a is not None and a.rows:
+            b = BucketIndex(name, a.cols, a.shingle_matrix(), a.sizes, a.wcols, a.word_matrix(),
+                            a.count, a.sample, a.variant, a.docptr, a.docs, int(np.unique(a.docs).size))
         self._buckets[name] = b
         return b
 
     def documents_with(self, bucket: str) -> int:
         b = self.bucket(bucket)
-        return 0 if b is None else len(b.all_documents())
+        return 0 if b is None else b.document_count
 
     def document_paths(self, ids: Sequence[int]) -> dict[int, str]:
         out: dict[int, str] = {}

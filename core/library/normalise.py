@@ -290,12 +290,17 @@ def learn_aliases(definitions: Iterable[tuple[int, str, str]]) -> dict[str, str]
 
     docs_of: dict[str, set[int]] = defaultdict(set)
     defs_of: dict[str, Counter[str]] = defaultdict(Counter)
+    words_of: dict[tuple[str, str], tuple[str, str]] = {}  # agreements repeat their definitions
     for doc, term, definition in definitions:
-        name = fold(term).strip()
+        known = words_of.get((term, definition))
+        if known is None:
+            name = fold(term).strip()
+            known = words_of[(term, definition)] = (name, _definition_words(name, definition) if name else "")
+        name, words = known
         if not name:
             continue
         docs_of[name].add(doc)
-        defs_of[name][_definition_words(name, definition)] += 1
+        defs_of[name][words] += 1
     aliases: dict[str, str] = {}
     for name in docs_of:
         role = canonical_role(name)

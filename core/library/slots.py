@@ -147,7 +147,7 @@ def slot_variants(library: Library, review: Review, selection: Deviation | Pair,
     ctype = name if name is not None and not name.startswith("~") else None
     label = load_taxonomy().label(ctype)
     bucket = slot.bucket
-    same_type = len(bucket.all_documents()) if bucket is not None else 0
+    same_type = bucket.document_count if bucket is not None else 0
     builder = _Bars(ctx, slot, d_id, p_id, dev)
     bars = builder.bars(max_variants=max_variants)
     closest = builder.closest()

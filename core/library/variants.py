@@ -35,16 +35,20 @@ __all__ = [
     "DEFAULT_CUTOFF",
     "DEFAULT_LINKAGE",
     "DEFAULT_METRIC",
+    "INCIDENCE_CHUNK",
     "LINKAGES",
     "MAX_CLUSTER_ITEMS",
     "METRICS",
+    "RegroupTooLarge",
     "VariantConfig",
     "cluster_condensed",
     "cluster_wordings",
     "distances_from_counts",
     "incidence_matrix",
     "jaccard_distance",
+    "matrix_distances",
     "pairwise_distances",
+    "regroup",
     "set_distance",
 ]
 
@@ -64,6 +68,9 @@ MAX_CLUSTER_ITEMS = 3000
 #: Wordings beyond ``max_items`` compared with the clustered ones per sparse product (bounds
 #: memory to OVERFLOW_BATCH x max_items counts).
 OVERFLOW_BATCH = 256
+#: Rows of the distance matrix computed per sparse product: 256 x 3,000 counts are 3 MB,
+#: where the whole square matrix and its index arrays took some 150 MB at MAX_CLUSTER_ITEMS.
+DISTANCE_BLOCK = 256
 
 
 @dataclass(frozen=True, slots=True)
@@ -113,22 +120,39 @@ def set_distance(a: np.ndarray, b: np.ndarray, *, metric: str = DEFAULT_METRIC) 
                                        metric=metric)[0])
 
 
+#: Hashes located per step when an incidence matrix is built: bounds the temporary 64-bit
+#: positions to 8 MB however many wordings a bucket holds.
+INCIDENCE_CHUNK = 1 << 20
+
+
 def incidence_matrix(sets: Sequence[np.ndarray], *, columns: np.ndarray | None = None):  # noqa: ANN201
     """(CSR matrix rows x columns of 0/1 int32, sorted column hashes) for hash arrays *sets*.
 
-    With *columns* given, hashes not among them are dropped (the caller keeps the row sizes)."""
+    With *columns* given, hashes not among them are dropped (the caller keeps the row sizes).
+    Built directly in CSR form (a row's hashes, sorted and unique as :func:`shingle_hashes`
+    makes them, give sorted indices); memory about 16 bytes per hash besides the result."""
     from scipy.sparse import csr_matrix
 
     lengths = np.fromiter((s.size for s in sets), dtype=np.int64, count=len(sets))
     flat = np.concatenate(list(sets)) if len(sets) else np.zeros(0, dtype=np.uint64)
     if columns is None:
         columns = np.unique(flat)
-    pos = np.searchsorted(columns, flat)
-    pos_clipped = np.minimum(pos, max(columns.size - 1, 0))
-    keep = (pos < columns.size) & (columns[pos_clipped] == flat) if columns.size else np.zeros(flat.size, bool)
-    row_of = np.repeat(np.arange(len(sets)), lengths)
-    data = np.ones(int(keep.sum()), dtype=np.int32)
-    m = csr_matrix((data, (row_of[keep], pos[keep])), shape=(len(sets), columns.size), dtype=np.int32)
+    indices = np.empty(flat.size, dtype=np.int32)
+    keep = np.ones(flat.size, dtype=bool)
+    for start in range(0, flat.size, INCIDENCE_CHUNK):
+        part = flat[start:start + INCIDENCE_CHUNK]
+        pos = np.searchsorted(columns, part)
+        if columns.size:
+            found = columns[np.minimum(pos, columns.size - 1)] == part
+        else:
+            found = np.zeros(part.size, dtype=bool)
+        keep[start:start + part.size] = found
+        indices[start:start + part.size] = np.where(found, pos, 0)
+    if not keep.all():
+        lengths = np.bincount(np.repeat(np.arange(len(sets)), lengths)[keep], minlength=len(sets))
+        indices = indices[keep]
+    indptr = np.concatenate([[0], np.cumsum(lengths)]).astype(np.int64)
+    m = csr_matrix((np.ones(indices.size, dtype=np.int32), indices, indptr), shape=(len(sets), columns.size))
     return m, columns
 
 
@@ -139,10 +163,31 @@ def pairwise_distances(sets: Sequence[np.ndarray], *, metric: str = DEFAULT_METR
     if n < 2:
         return np.zeros(0, dtype=np.float64)
     m, _ = incidence_matrix(sets)
-    inter = (m @ m.T).toarray()
     sizes = np.fromiter((s.size for s in sets), dtype=np.int64, count=n)
-    iu = np.triu_indices(n, k=1)
-    return distances_from_counts(inter[iu], sizes[iu[0]], sizes[iu[1]], metric=metric)
+    return matrix_distances(m, sizes, metric=metric)
+
+
+def matrix_distances(matrix, sizes: np.ndarray, *, metric: str = DEFAULT_METRIC) -> np.ndarray:  # noqa: ANN001
+    """:func:`pairwise_distances` of the rows of a 0/1 incidence matrix (CSR) whose rows hold
+    *sizes* hashes each (columns may have been dropped, sizes are the true set sizes)."""
+    n = matrix.shape[0]
+    if n < 2:
+        return np.zeros(0, dtype=np.float64)
+    out = np.empty(n * (n - 1) // 2, dtype=np.float64)
+    mt = matrix.T.tocsc()
+    sizes = np.asarray(sizes, dtype=np.int64)
+    pos = 0
+    for start in range(0, n - 1, DISTANCE_BLOCK):  # a block of rows at a time: O(n) memory besides the result
+        stop = min(start + DISTANCE_BLOCK, n - 1)
+        inter = (matrix[start:stop] @ mt).toarray()
+        rows = np.arange(start, stop)
+        upper = np.arange(n)[None, :] > rows[:, None]  # row-major: the condensed order
+        size_a = np.broadcast_to(sizes[rows][:, None], upper.shape)[upper]
+        size_b = np.broadcast_to(sizes[None, :], upper.shape)[upper]
+        block = distances_from_counts(inter[upper], size_a, size_b, metric=metric)
+        out[pos:pos + block.size] = block
+        pos += block.size
+    return out
 
 
 def cluster_condensed(condensed: np.ndarray, n: int, *, linkage: str = DEFAULT_LINKAGE,
@@ -200,3 +245,94 @@ def cluster_wordings(sets: Sequence[np.ndarray], *, config: VariantConfig = Vari
                     labels[start + k] = next_label
                     next_label += 1
     return labels
+
+
+class RegroupTooLarge(Exception):
+    """A group to re-cluster holds more than ``config.max_items`` wordings: cluster in full."""
+
+
+def regroup(matrix, sizes: np.ndarray, labels: np.ndarray, *, fresh: np.ndarray,  # noqa: ANN001
+            broken: Sequence[int] = (), config: VariantConfig = VariantConfig()) -> np.ndarray:
+    """Variant labels after wordings were added (*fresh*) or removed, re-clustering only the
+    variants the change can touch, with the clustering's own linkage and cut-off.
+
+    *matrix*: 0/1 incidence (CSR) of every current wording's shingles, one row each, in the
+    bucket's order; *sizes* their set sizes; *labels*: each wording's variant (any
+    non-negative ints; ignored where *fresh*); *broken*: variants that lost a wording.  A
+    fresh wording touches every variant with a member within the cut-off of it, and every
+    fresh wording within the cut-off of it (transitively); each group of touched variants,
+    fresh wordings and broken variants is clustered again on its own by
+    :func:`cluster_wordings` (rows in the bucket's order).  Other wordings keep their labels;
+    a re-clustered group's clusters keep the label of an old variant they equal, else get new
+    labels above every label in use.
+
+    Exactness: a variant none of whose members lies within the cut-off of a fresh wording
+    cannot be merged with it under single, average or complete linkage (every linkage
+    distance to the fresh wording exceeds the cut-off), so for single linkage the result is
+    the full clustering's partition.  For average and complete linkage it can differ from a
+    full clustering when a sub-group of a touched variant lies within the cut-off of a
+    sub-group of an untouched one, which a full clustering would have joined first had the
+    fresh wording not been there; the index bounds that drift by clustering a bucket in full
+    after enough changes.  Raises :class:`RegroupTooLarge` when a group holds more than
+    ``config.max_items`` wordings.  Cost: one sparse product of the fresh rows with all rows,
+    then O(g^2) per group of g wordings.
+    """
+    labels = np.asarray(labels, dtype=np.int64).copy()
+    fresh = np.asarray(fresh, dtype=bool)
+    new_rows = np.flatnonzero(fresh)
+    groups = _touched_groups(matrix, sizes, labels, new_rows, fresh, {int(b) for b in broken}, config)
+    if not groups:
+        return labels
+    next_label = max([int(labels[~fresh].max()) if (~fresh).any() else -1, *(int(b) for b in broken)]) + 1
+    old_members = {lab: set(np.flatnonzero((labels == lab) & ~fresh).tolist())
+                   for g in groups for lab in g[0]}
+    for group_labels, group_new in groups:
+        rows = sorted({r for lab in group_labels for r in old_members[lab]} | group_new)
+        if len(rows) > config.max_items:
+            raise RegroupTooLarge(f"{len(rows)} wordings")
+        idx = np.array(rows, dtype=np.int64)
+        local = cluster_condensed(matrix_distances(matrix[idx], sizes[idx], metric=config.metric),
+                                  idx.size, linkage=config.linkage, cutoff=config.cutoff)
+        for k in range(int(local.max()) + 1 if local.size else 0):
+            members = idx[local == k]
+            same = [lab for lab in group_labels if old_members[lab] == set(members.tolist())]
+            if same:
+                labels[members] = same[0]
+            else:
+                labels[members] = next_label
+                next_label += 1
+    return labels
+
+
+def _touched_groups(matrix, sizes: np.ndarray, labels: np.ndarray, new_rows: np.ndarray,  # noqa: ANN001
+                    fresh: np.ndarray, broken: set[int],
+                    config: VariantConfig) -> list[tuple[set[int], set[int]]]:
+    """Groups ``(old labels, fresh rows)`` linked by fresh wordings within the cut-off (union
+    -find over labels and fresh rows), plus each broken label on its own if not linked."""
+    parent: dict[tuple[str, int], tuple[str, int]] = {}
+
+    def find(x: tuple[str, int]) -> tuple[str, int]:
+        parent.setdefault(x, x)
+        while parent[x] != x:
+            parent[x] = parent[parent[x]]
+            x = parent[x]
+        return x
+
+    def union(a: tuple[str, int], b: tuple[str, int]) -> None:
+        parent[find(a)] = find(b)
+
+    for start in range(0, new_rows.size, OVERFLOW_BATCH):
+        batch = new_rows[start:start + OVERFLOW_BATCH]
+        inter = (matrix[batch] @ matrix.T).toarray()
+        for k, r in enumerate(batch.tolist()):
+            d = distances_from_counts(inter[k], sizes, np.full(sizes.size, sizes[r]), metric=config.metric)
+            find(("n", r))
+            for j in np.flatnonzero(d <= config.cutoff).tolist():
+                union(("n", r), ("n", j) if fresh[j] else ("l", int(labels[j])))
+    for lab in broken:
+        find(("l", lab))
+    groups: dict[tuple[str, int], tuple[set[int], set[int]]] = {}
+    for node in list(parent):
+        labs, rows = groups.setdefault(find(node), (set(), set()))
+        (rows if node[0] == "n" else labs).add(node[1])
+    return list(groups.values())

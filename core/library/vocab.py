@@ -16,15 +16,18 @@ on gensim's Lee corpus it is the difference between a WordSim-353 Spearman near 
 
 Cost: O(words * epochs * window) for training; the number of epochs falls as the corpus grows
 (``TARGET_WORD_EPOCHS``) and the corpus is capped at ``MAX_TRAINING_WORDS`` distinct-provision
-words, so training takes seconds at any library size.
+words, so training takes seconds at any library size.  A build retrains only when the
+training corpus has drifted (:func:`vocabulary_drift`, :data:`RETRAIN_DRIFT`): adding an
+agreement that sorts after the documents the model was trained on changes nothing, so the
+model stays the one a full build would train.  Loading and querying
+(:class:`LibraryVocabulary`) use numpy alone.
 """
 
 from __future__ import annotations
 
 import io
 import os
-import sqlite3
-from collections.abc import Sequence
+from collections.abc import Iterable, Sequence
 from pathlib import Path
 
 import numpy as np
@@ -38,15 +41,19 @@ __all__ = [
     "MIN_EPOCHS",
     "PHRASES_MIN_COUNT",
     "PHRASES_THRESHOLD",
+    "RETRAIN_DRIFT",
     "SEED",
     "SKIP_GRAM",
+    "SMALL_CORPUS_WORDS",
     "TARGET_WORD_EPOCHS",
     "VECTOR_SIZE",
     "WINDOW",
     "LibraryVocabulary",
-    "library_sentences",
-    "train_library_vocabulary",
+    "needs_training",
+    "train_model",
     "train_vectors",
+    "training_sentences",
+    "vocabulary_drift",
 ]
 
 #: Small vectors train fast; 32 dimensions are enough for a vocabulary of a few thousand words
@@ -77,6 +84,18 @@ MAX_TRAINING_WORDS = 600_000
 #: defaults are 5 and 10.0).
 PHRASES_MIN_COUNT = 5
 PHRASES_THRESHOLD = 10.0
+#: A build retrains the model once this share of the documents it was trained on has been
+#: changed, removed or pushed out of the training corpus (documents are taken in path order
+#: up to MAX_TRAINING_WORDS), or, when the corpus held every document, added since.  A tenth:
+#: the term mapper only asks about names many agreements use, whose vectors a tenth of new
+#: text barely moves (common experience with Word2Vec, no source), while retraining costs
+#: seconds -- several times the budget of a one-file rebuild at 1,000 agreements.  Until
+#: then a new defined term is simply unknown to the model (the mapper works without it).
+RETRAIN_DRIFT = 0.10
+#: Below this many training words the model is retrained after every change: that takes about
+#: a second or less (2.5 million word-epochs take about 4 s), so a small library's model
+#: always equals a full build's.
+SMALL_CORPUS_WORDS = 100_000
 
 
 def _is_term(token: str) -> bool:
@@ -112,12 +131,12 @@ def _apply_phrases(sentence: Sequence[str], phraser) -> list[str]:  # noqa: ANN0
 def train_vectors(sentences: Sequence[Sequence[str]]):  # noqa: ANN201 - gensim KeyedVectors | None
     """Phrases, then Word2Vec, on tokenised *sentences*; the KeyedVectors, or None when the
     corpus is too small to learn anything (no word seen MIN_COUNT times)."""
-    from gensim.models import Word2Vec
-    from gensim.models.phrases import ENGLISH_CONNECTOR_WORDS, Phrases
-
     sentences = [list(s) for s in sentences if s]
     if not sentences:
         return None
+    from gensim.models import Word2Vec
+    from gensim.models.phrases import ENGLISH_CONNECTOR_WORDS, Phrases
+
     phrases = Phrases((seg for s in sentences for seg in _segments(s)), min_count=PHRASES_MIN_COUNT,
                       threshold=PHRASES_THRESHOLD, connector_words=ENGLISH_CONNECTOR_WORDS)
     frozen = phrases.freeze()
@@ -135,17 +154,29 @@ def train_vectors(sentences: Sequence[Sequence[str]]):  # noqa: ANN201 - gensim 
 
 class LibraryVocabulary:
     """Word vectors of the precedent set; ``similarity(a, b)`` is the cosine of two words or
-    defined-term names, None when either is unknown (the ``VocabularyModel`` protocol)."""
+    defined-term names, None when either is unknown (the ``VocabularyModel`` protocol).
 
-    def __init__(self, vectors) -> None:  # noqa: ANN001 - gensim KeyedVectors
-        self.vectors = vectors
+    Plain numpy: loading and querying never import gensim (importing it costs about a
+    second, longer than the whole library side of a review; measured by
+    ``benchmarks/bench_library.py``).  The cosine is gensim's ``KeyedVectors.similarity``
+    (the dot product of the two unit vectors), tested against it.
+    """
+
+    def __init__(self, words: Sequence[str], vectors: np.ndarray) -> None:
+        self.words = list(words)
+        self.vectors = np.asarray(vectors, dtype=np.float32)
+        self.key_to_index = {w: i for i, w in enumerate(self.words)}
+
+    @classmethod
+    def from_keyed_vectors(cls, kv) -> LibraryVocabulary:  # noqa: ANN001 - gensim KeyedVectors
+        return cls(list(kv.index_to_key), kv.vectors)
 
     def key(self, name: str) -> str | None:
         """The model's token for a term name or word, or None."""
         name = name.strip()
         candidates = ["_".join(name.split()), name.lower(), "_".join(name.lower().split())]
         for c in candidates:
-            if c in self.vectors.key_to_index:
+            if c in self.key_to_index:
                 return c
         return None
 
@@ -153,41 +184,54 @@ class LibraryVocabulary:
         ka, kb = self.key(a), self.key(b)
         if ka is None or kb is None:
             return None
-        return float(self.vectors.similarity(ka, kb))
+        va = self.vectors[self.key_to_index[ka]].astype(np.float64)
+        vb = self.vectors[self.key_to_index[kb]].astype(np.float64)
+        na, nb = float(np.linalg.norm(va)), float(np.linalg.norm(vb))
+        if na == 0.0 or nb == 0.0:
+            return 0.0
+        return float(np.dot(va / na, vb / nb))
 
     def to_npz_bytes(self) -> bytes:
+        """The words as one UTF-8 text (one per line: a token never holds a line break) and
+        the vectors as float32: a few bytes per word more than the vectors themselves."""
         buf = io.BytesIO()
-        np.savez(buf, words=np.array(self.vectors.index_to_key, dtype=str),
-                 vectors=self.vectors.vectors.astype(np.float32))
+        text = "\n".join(self.words).encode("utf-8")
+        np.savez(buf, words_utf8=np.frombuffer(text, dtype=np.uint8), vectors=self.vectors)
         return buf.getvalue()
 
     @classmethod
     def from_npz_bytes(cls, data: bytes) -> LibraryVocabulary:
-        from gensim.models import KeyedVectors
-
         with np.load(io.BytesIO(data), allow_pickle=False) as a:
+            if "words_utf8" in a.files:
+                raw = a["words_utf8"].tobytes().decode("utf-8")
+                words = raw.split("\n") if raw else []
+            else:  # the earlier layout: a fixed-width unicode array
+                words = a["words"].tolist()
             vectors = a["vectors"]
-            kv = KeyedVectors(vector_size=int(vectors.shape[1]) if vectors.ndim == 2 else VECTOR_SIZE)
-            kv.add_vectors(a["words"].tolist(), vectors)
-        return cls(kv)
+        if vectors.ndim != 2 or vectors.shape[0] != len(words):  # not a file this code wrote
+            return cls([], np.zeros((0, VECTOR_SIZE), dtype=np.float32))
+        return cls(words, vectors)
 
     @classmethod
     def load(cls, path: str | os.PathLike[str]) -> LibraryVocabulary:
         return cls.from_npz_bytes(Path(path).read_bytes())
 
 
-def library_sentences(conn: sqlite3.Connection, *, max_words: int = MAX_TRAINING_WORDS) -> list[list[str]]:
-    """Training sentences from the index: one per distinct provision wording (by normalised
-    hash), documents in index order, each document's own defined terms joined into tokens;
-    at most *max_words* words."""
+def training_sentences(documents: Iterable[tuple[Sequence[str], Iterable[tuple[str, str]]]], *,
+                       max_words: int = MAX_TRAINING_WORDS) -> tuple[list[list[str]], int, int]:
+    """Training sentences from *documents* -- ``(defined terms, [(provision text, normalised
+    wording hash), ...])`` in the index's path order: one sentence per distinct wording, each
+    document's own defined terms joined into tokens, at most *max_words* words.  Returns the
+    sentences, the number of documents they came from (the last one perhaps in part) and the
+    number of words."""
     seen: set[str] = set()
     out: list[list[str]] = []
     words = 0
-    for (doc_id,) in conn.execute("SELECT id FROM documents ORDER BY path").fetchall():
-        terms = [t for (t,) in conn.execute("SELECT term FROM terms WHERE document_id = ?", (doc_id,))]
+    used = 0
+    for terms, provisions in documents:
+        used += 1
         replacer = TermReplacer({t: t for t in terms})
-        for text, h in conn.execute("SELECT text, norm_hash FROM provisions WHERE document_id = ? "
-                                    "ORDER BY ordinal", (doc_id,)):
+        for text, h in provisions:
             if h in seen:
                 continue
             seen.add(h)
@@ -197,21 +241,36 @@ def library_sentences(conn: sqlite3.Connection, *, max_words: int = MAX_TRAINING
             out.append(toks)
             words += len(toks)
             if words >= max_words:
-                return out
-    return out
+                return out, used, words
+    return out, used, words
 
 
-def train_library_vocabulary(conn: sqlite3.Connection, path: Path) -> LibraryVocabulary | None:
-    """Train on the index and save to *path* (mode 0o600); remove *path* if nothing to learn."""
-    from .index import _write_private
+def vocabulary_drift(*, trained: Sequence[str], current: Sequence[str], exhausted: bool,
+                     documents: int) -> float:
+    """How far the training corpus has moved since the model was trained: the share of the
+    documents it was trained on (*trained*, fingerprints in path order) that are no longer
+    among the first documents of the library (*current*: the first ``len(trained)``
+    fingerprints now), plus, when training used every document (*exhausted*), the documents
+    added since.  0.0 means the same documents give the same sentences, so retraining would
+    give the same model (training is deterministic)."""
+    if not trained:
+        return 1.0 if documents else 0.0
+    gone = len(set(trained) - set(current))
+    added = max(0, documents - len(trained)) if exhausted else 0
+    return (gone + added) / len(trained)
 
-    vectors = train_vectors(library_sentences(conn))
-    if vectors is None:
-        try:
-            os.unlink(path)
-        except FileNotFoundError:
-            pass
-        return None
-    vocab = LibraryVocabulary(vectors)
-    _write_private(path, vocab.to_npz_bytes())
-    return vocab
+
+def needs_training(*, drift: float, words: int, has_model: bool) -> bool:
+    """Whether a build retrains the model (see :data:`RETRAIN_DRIFT`)."""
+    if drift <= 0.0:
+        return False
+    if not has_model or words < SMALL_CORPUS_WORDS:
+        return True
+    return drift > RETRAIN_DRIFT
+
+
+def train_model(sentences: Sequence[Sequence[str]]) -> LibraryVocabulary | None:
+    """:func:`train_vectors` as a :class:`LibraryVocabulary` (None when nothing to learn).
+    Runs in a worker process during a large build, beside the variant clustering."""
+    vectors = train_vectors(sentences)
+    return None if vectors is None else LibraryVocabulary.from_keyed_vectors(vectors)

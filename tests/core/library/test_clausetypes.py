@@ -19,6 +19,7 @@ from sklearn.feature_extraction.text import TfidfVectorizer
 
 from core.library.clausetypes import (
     NeighbourClassifier,
+    _english_stop_words,
     _ngrams,
     classifier_text,
     classify_document,
@@ -90,6 +91,27 @@ def test_query_weighting_equals_scikit_learn():
     # A saved and loaded model predicts the same.
     again = NeighbourClassifier.from_npz_bytes(clf.to_npz_bytes())
     assert again.predict(queries) == clf.predict(queries)
+
+
+def test_fitting_equals_scikit_learn_and_the_stop_words_are_its_list():
+    from sklearn.feature_extraction.text import ENGLISH_STOP_WORDS
+
+    texts = [" ".join(match_tokens(s)) for t in load_taxonomy().types for s in t.seeds]
+    clf = NeighbourClassifier.fit([(x, "payment") for x in texts[:30]])
+    seeds = [" ".join(match_tokens(" . ".join(t.seeds))) for t in load_taxonomy().types]
+    examples = []
+    for i, t in enumerate(load_taxonomy().types):
+        examples.append(seeds[i])
+        if t.id == "payment":
+            examples.extend(sorted(set(texts[:30])))
+    # Reference: scikit-learn's TfidfVectorizer fit_transform on the same examples.
+    vec = TfidfVectorizer(analyzer=_ngrams, sublinear_tf=True, norm="l2")
+    ref = vec.fit_transform(examples).toarray()
+    assert clf._terms == list(vec.get_feature_names_out())
+    np.testing.assert_allclose(clf._idf, vec.idf_, atol=1e-12)
+    np.testing.assert_allclose(clf._matrix.toarray(), ref, atol=1e-12)
+    # Reference: scikit-learn's English stop words, read without importing the package.
+    assert _english_stop_words() == ENGLISH_STOP_WORDS
 
 
 def test_demo_departures_have_the_recorded_clause_types(scenario):

@@ -23,6 +23,7 @@ import pytest
 import core.library.index as index_module
 from core.errors import CounterdraftError
 from core.library.index import (
+    BUCKETS_DIRNAME,
     CACHE_FILENAME,
     DB_DIRNAME,
     DB_FILENAME,
@@ -153,9 +154,12 @@ def test_index_files_are_private(tmp_path):
     # POSIX modes: the folder rwx for the owner only, every file rw for the owner only.
     assert stat.S_IMODE(folder.stat().st_mode) == 0o700
     names = {p.name for p in folder.iterdir()}
-    assert {DB_FILENAME, CACHE_FILENAME, NEIGHBOURS_FILENAME, VOCAB_FILENAME} <= names
-    for p in folder.iterdir():
-        assert stat.S_IMODE(p.stat().st_mode) == 0o600, p.name
+    assert {DB_FILENAME, BUCKETS_DIRNAME, NEIGHBOURS_FILENAME, VOCAB_FILENAME} <= names
+    assert CACHE_FILENAME not in names  # the single cache file of earlier versions
+    assert any((folder / BUCKETS_DIRNAME).iterdir())
+    for p in folder.rglob("*"):
+        expected = 0o700 if p.is_dir() else 0o600
+        assert stat.S_IMODE(p.stat().st_mode) == expected, p.name
     # An index path of your choice is private too.
     other = tmp_path / "elsewhere"
     other.mkdir()
@@ -295,8 +299,8 @@ def test_an_unusable_index_is_moved_aside_and_rebuilt(tmp_path, damage):
     assert len(aside) == 1 and aside[0].name in report.rebuilt
     assert aside[0].read_bytes() == damaged
     assert stat.S_IMODE(folder.stat().st_mode) == 0o700
-    for p in folder.iterdir():
-        assert stat.S_IMODE(p.stat().st_mode) == 0o600, p.name
+    for p in folder.rglob("*"):
+        assert stat.S_IMODE(p.stat().st_mode) == (0o700 if p.is_dir() else 0o600), p.name
     with open_library(root, refresh=False) as lib:
         assert lib.total == 3 and lib.documents_with("payment") == 3
     # The aside file is not a candidate file, and the next build finds nothing to do.

@@ -23,6 +23,7 @@ from sklearn.cluster import AgglomerativeClustering
 from core.library.normalise import match_tokens, shingle_hashes, shingle_set
 from core.library.variants import (
     LINKAGES,
+    RegroupTooLarge,
     VariantConfig,
     cluster_condensed,
     cluster_wordings,
@@ -30,6 +31,7 @@ from core.library.variants import (
     incidence_matrix,
     jaccard_distance,
     pairwise_distances,
+    regroup,
     set_distance,
 )
 from tests.support.legal_texts import license_text
@@ -180,3 +182,62 @@ def test_small_inputs_and_bad_config():
         VariantConfig(cutoff=1.5)
     with pytest.raises(ValueError):
         VariantConfig(metric="cosine")
+
+
+def _regrouped(sets, keep: list[int], add: list[int], config: VariantConfig) -> np.ndarray:
+    """Cluster ``sets[keep]`` in full, then add ``sets[add]`` with :func:`regroup`; labels of
+    ``keep + add`` (in that order)."""
+    old = cluster_wordings([sets[i] for i in keep], config=config)
+    rows = keep + add
+    m, _ = incidence_matrix([sets[i] for i in rows])
+    sizes = np.array([sets[i].size for i in rows], dtype=np.int64)
+    labels = np.concatenate([old, np.full(len(add), -1)])
+    fresh = np.array([False] * len(keep) + [True] * len(add))
+    return regroup(m.tocsr(), sizes, labels, fresh=fresh, config=config)
+
+
+@pytest.mark.parametrize("method", LINKAGES)
+def test_adding_wordings_by_regroup_equals_scipy_on_the_whole_set(method):
+    sets = _wordings_with_variants()
+    config = VariantConfig(linkage=method, cutoff=0.2513)
+    rng = np.random.default_rng(7)
+    for _ in range(5):
+        order = rng.permutation(len(sets)).tolist()
+        keep, add = order[:-6], order[-6:]
+        ours = _regrouped(sets, keep, add, config)
+        # Reference: scipy's linkage + fcluster on every wording at once.
+        z = linkage(pairwise_distances([sets[i] for i in keep + add]), method=method)
+        ref = fcluster(z, t=config.cutoff, criterion="distance")
+        # Exact for single linkage (see regroup); on these texts, whose variants lie far
+        # apart, also for average and complete linkage.
+        assert _partition(ours) == _partition(ref)
+
+
+@pytest.mark.parametrize("method", LINKAGES)
+def test_removing_wordings_by_regroup_equals_scipy_on_what_is_left(method):
+    sets = _wordings_with_variants()
+    config = VariantConfig(linkage=method, cutoff=0.2513)
+    full = cluster_wordings(sets, config=config)
+    rng = np.random.default_rng(11)
+    for _ in range(5):
+        gone = set(rng.choice(len(sets), size=5, replace=False).tolist())
+        left = [i for i in range(len(sets)) if i not in gone]
+        m, _ = incidence_matrix([sets[i] for i in left])
+        sizes = np.array([sets[i].size for i in left], dtype=np.int64)
+        ours = regroup(m.tocsr(), sizes, full[left], fresh=np.zeros(len(left), bool),
+                       broken=sorted({int(full[i]) for i in gone}), config=config)
+        # Reference: scipy's linkage + fcluster on the wordings left.
+        z = linkage(pairwise_distances([sets[i] for i in left]), method=method)
+        assert _partition(ours) == _partition(fcluster(z, t=config.cutoff, criterion="distance"))
+
+
+def test_regroup_keeps_untouched_labels_and_refuses_oversized_groups():
+    sets = _wordings_with_variants()
+    config = VariantConfig(cutoff=0.2513)
+    keep, add = list(range(len(sets) - 1)), [len(sets) - 1]
+    old = cluster_wordings([sets[i] for i in keep], config=config)
+    ours = _regrouped(sets, keep, add, config)
+    changed = {int(old[i]) for i in range(len(keep)) if ours[i] != old[i]}
+    assert len(changed) <= 1  # only the variant the new wording joined, if any
+    with pytest.raises(RegroupTooLarge):
+        _regrouped(sets, keep[:5], list(range(5, len(sets))), VariantConfig(cutoff=0.99, max_items=3))

@@ -10,13 +10,24 @@ Outside references:
 from __future__ import annotations
 
 import os
+import subprocess
+import sys
 
 import gensim
 import numpy as np
 import pytest
 
 from core.library.normalise import vocab_tokens
-from core.library.vocab import LibraryVocabulary, train_vectors
+from core.library.vocab import (
+    RETRAIN_DRIFT,
+    SMALL_CORPUS_WORDS,
+    LibraryVocabulary,
+    needs_training,
+    train_vectors,
+    vocabulary_drift,
+)
+
+from .conftest import ROOT
 
 DATA = os.path.join(os.path.dirname(gensim.__file__), "test", "test_data")
 
@@ -64,3 +75,40 @@ def test_library_vocabulary_knows_defined_terms_and_round_trips(demo_library):
 def test_nothing_to_learn_gives_no_model():
     assert train_vectors([]) is None
     assert train_vectors([["only", "once"]]) is None
+
+
+def test_numpy_similarity_equals_gensims(lee_vectors):
+    vectors, _ = lee_vectors
+    ours = LibraryVocabulary.from_keyed_vectors(vectors)
+    words = vectors.index_to_key[:60]
+    for a, b in zip(words, reversed(words)):
+        # Reference: gensim's KeyedVectors.similarity (cosine of the two vectors).
+        assert ours.similarity(a, b) == pytest.approx(float(vectors.similarity(a, b)), abs=1e-5)
+    again = LibraryVocabulary.from_npz_bytes(ours.to_npz_bytes())
+    assert again.words == ours.words
+    np.testing.assert_array_equal(again.vectors, ours.vectors)
+
+
+def test_reading_the_model_does_not_import_gensim(demo_set):
+    code = ("import sys\n"
+            "from core.library.index import open_library\n"
+            f"lib = open_library({str(demo_set)!r}, refresh=False)\n"
+            "assert lib.vocabulary.similarity('Customer', 'Supplier') is not None\n"
+            "assert 'gensim' not in sys.modules and 'sklearn' not in sys.modules, sorted(sys.modules)\n")
+    subprocess.run([sys.executable, "-c", code], check=True, cwd=ROOT)
+
+
+def test_drift_decides_retraining():
+    trained = [f"doc{i}" for i in range(100)]
+    # The same first documents: nothing to retrain (training is deterministic).
+    assert vocabulary_drift(trained=trained, current=trained, exhausted=False, documents=500) == 0.0
+    # A document added after them changes nothing unless training used every document.
+    assert vocabulary_drift(trained=trained, current=trained, exhausted=True, documents=101) == 0.01
+    # Five of the first hundred replaced.
+    moved = trained[:95] + ["new1", "new2", "new3", "new4", "new5"]
+    assert vocabulary_drift(trained=trained, current=moved, exhausted=False, documents=500) == 0.05
+    assert not needs_training(drift=0.05, words=SMALL_CORPUS_WORDS, has_model=True)
+    assert needs_training(drift=RETRAIN_DRIFT + 0.01, words=SMALL_CORPUS_WORDS, has_model=True)
+    assert needs_training(drift=0.01, words=SMALL_CORPUS_WORDS - 1, has_model=True)  # small: always exact
+    assert needs_training(drift=0.01, words=10**6, has_model=False)
+    assert not needs_training(drift=0.0, words=10, has_model=False)

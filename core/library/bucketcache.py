@@ -1,0 +1,178 @@
+"""The frequency cache of one bucket (clause type): its distinct wordings as arrays.
+
+One file per bucket (``.counterdraft/buckets/<name>.npz``) holds, for every distinct
+normalised wording of the bucket (rows ordered most frequent first, then by wording hash):
+its hash, its shingle and word hash sets as 0/1 CSR incidence matrices over sorted hash
+columns, its provision count, a sample provision, its variant and the documents using it.
+No text.  :func:`assemble` makes the next version of a bucket's arrays from the previous one
+and the wordings that are new, moving whole rows (no re-hashing of known wordings), so a
+build that adds one agreement rewrites only the buckets that agreement touches, in time
+linear in their size.
+
+Cost: :func:`assemble` is O(nnz) array work (row selection, column remapping) plus
+O(new wordings' words) hashing; :func:`compact` (dropping hash columns no row uses) sorts the
+used columns once.
+"""
+
+from __future__ import annotations
+
+import io
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from .variants import incidence_matrix
+
+__all__ = ["BucketArrays", "assemble", "compact", "rows_of"]
+
+_FIELDS = ("hashes", "cols", "indptr", "indices", "sizes", "wcols", "windptr", "windices", "count", "sample",
+           "variant", "docptr", "docs")
+
+
+@dataclass(frozen=True, slots=True)
+class BucketArrays:
+    """One bucket's distinct wordings (see the module docstring); rows align across fields."""
+
+    hashes: np.ndarray  # "S32": the wordings' hex hashes
+    cols: np.ndarray  # sorted shingle hashes (uint64)
+    indptr: np.ndarray  # CSR rows over cols
+    indices: np.ndarray
+    sizes: np.ndarray  # shingles per row (int32)
+    wcols: np.ndarray  # sorted word hashes
+    windptr: np.ndarray
+    windices: np.ndarray
+    count: np.ndarray  # provisions per row (int32)
+    sample: np.ndarray  # one provision row id per row (int64)
+    variant: np.ndarray  # variant id per row (int64, -1 if none)
+    docptr: np.ndarray  # documents of row i: docs[docptr[i]:docptr[i + 1]]
+    docs: np.ndarray
+
+    @property
+    def rows(self) -> int:
+        return int(self.hashes.size)
+
+    def shingle_matrix(self):  # noqa: ANN201 - scipy.sparse.csr_matrix
+        return _csr(self.indptr, self.indices, self.rows, self.cols.size)
+
+    def word_matrix(self):  # noqa: ANN201 - scipy.sparse.csr_matrix
+        return _csr(self.windptr, self.windices, self.rows, self.wcols.size)
+
+    def shingle_sets(self) -> Sequence[np.ndarray]:
+        """Each row's shingle hashes, made when asked for (a slice gives a list), so that a
+        bucket of 100,000 wordings is not copied into as many arrays at once."""
+        return _RowSets(self.cols, self.indptr, self.indices)
+
+    def to_npz_bytes(self) -> bytes:
+        buf = io.BytesIO()
+        np.savez(buf, **{f: getattr(self, f) for f in _FIELDS})
+        return buf.getvalue()
+
+    @classmethod
+    def from_npz_bytes(cls, data: bytes) -> BucketArrays:
+        with np.load(io.BytesIO(data), allow_pickle=False) as a:
+            return cls(**{f: a[f] for f in _FIELDS})
+
+
+class _RowSets(Sequence[np.ndarray]):
+    """The rows of a CSR incidence matrix as hash arrays, made on access."""
+
+    def __init__(self, cols: np.ndarray, indptr: np.ndarray, indices: np.ndarray) -> None:
+        self._cols, self._indptr, self._indices = cols, indptr, indices
+
+    def __len__(self) -> int:
+        return int(self._indptr.size - 1)
+
+    def _row(self, i: int) -> np.ndarray:
+        return self._cols[self._indices[self._indptr[i]:self._indptr[i + 1]]]
+
+    def __getitem__(self, key):  # noqa: ANN001, ANN204 - int or slice, as a Sequence
+        if isinstance(key, slice):
+            return [self._row(i) for i in range(*key.indices(len(self)))]
+        if key < 0:
+            key += len(self)
+        if not 0 <= key < len(self):
+            raise IndexError(key)
+        return self._row(key)
+
+
+def _csr(indptr: np.ndarray, indices: np.ndarray, rows: int, cols: int):  # noqa: ANN202
+    from scipy.sparse import csr_matrix
+
+    return csr_matrix((np.ones(indices.size, dtype=np.int32), indices, indptr), shape=(rows, cols))
+
+
+def _merge(cols: np.ndarray, matrix, take: np.ndarray,  # noqa: ANN001
+           new_sets: Sequence[np.ndarray]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(columns, indptr, indices) of rows that are old rows ``take[i] >= 0`` or, in order, the
+    sets of *new_sets* (``take[i] < 0``)."""
+    from scipy.sparse import vstack
+
+    if not (take >= 0).any():  # no old row (a new bucket, a first build): build directly, in order
+        m, merged = incidence_matrix(list(new_sets))
+        return merged, m.indptr.astype(np.int64), m.indices.astype(np.int32)
+    flat = np.unique(np.concatenate(list(new_sets))) if new_sets else np.zeros(0, np.uint64)
+    pos = np.searchsorted(cols, flat)
+    known = (pos < cols.size) & (cols[np.minimum(pos, max(cols.size - 1, 0))] == flat) if cols.size \
+        else np.zeros(flat.size, bool)
+    missing = flat[~known]
+    merged = np.insert(cols, np.searchsorted(cols, missing), missing)
+    old_rows = take[take >= 0]
+    sub = matrix[old_rows] if matrix is not None else _csr(np.zeros(1, np.int64), np.zeros(0, np.int32), 0, 0)
+    sub = _csr(sub.indptr.astype(np.int64), (np.arange(cols.size) + np.searchsorted(missing, cols))[sub.indices],
+               old_rows.size, merged.size)
+    new_m, _ = incidence_matrix(list(new_sets), columns=merged)
+    stacked = vstack([sub, new_m.tocsr()], format="csr")
+    order = np.empty(take.size, dtype=np.int64)
+    order[take >= 0] = np.arange(old_rows.size)
+    order[take < 0] = old_rows.size + np.arange(int((take < 0).sum()))
+    out = stacked[order]
+    out.sort_indices()
+    return merged, out.indptr.astype(np.int64), out.indices.astype(np.int32)
+
+
+def assemble(old: BucketArrays | None, *, hashes: Sequence[str], count: np.ndarray, sample: np.ndarray,
+             docptr: np.ndarray, docs: np.ndarray, new_sets: Mapping[str, tuple[np.ndarray, np.ndarray]],
+             variant: np.ndarray | None = None) -> BucketArrays:
+    """The arrays of a bucket whose wordings are now *hashes* (in the bucket's order), moving
+    known wordings' rows from *old* and taking the others' ``(shingle hashes, word hashes)``
+    from *new_sets*.  *variant* defaults to the old rows' variants (-1 for new rows)."""
+    key = np.array(list(hashes), dtype="S32") if len(hashes) else np.zeros(0, "S32")
+    take = rows_of(old.hashes if old is not None else np.zeros(0, "S32"), key)
+    fresh = [hashes[i] for i in np.flatnonzero(take < 0).tolist()]
+    empty = np.zeros(0, np.uint64)
+    oc, om = (old.cols, old.shingle_matrix()) if old is not None else (empty, None)
+    ow, owm = (old.wcols, old.word_matrix()) if old is not None else (empty, None)
+    cols, indptr, indices = _merge(oc, om, take, [new_sets[h][0] for h in fresh])
+    wcols, windptr, windices = _merge(ow, owm, take, [new_sets[h][1] for h in fresh])
+    sizes = np.diff(indptr).astype(np.int32)
+    if variant is None:
+        variant = np.full(take.size, -1, dtype=np.int64)
+        if old is not None and old.rows:
+            variant[take >= 0] = old.variant[take[take >= 0]]
+    return BucketArrays(key, cols, indptr, indices, sizes, wcols, windptr, windices,
+                        np.asarray(count, dtype=np.int32), np.asarray(sample, dtype=np.int64),
+                        np.asarray(variant, dtype=np.int64), np.asarray(docptr, dtype=np.int64),
+                        np.asarray(docs, dtype=np.int64))
+
+
+def rows_of(known: np.ndarray, wanted: np.ndarray) -> np.ndarray:
+    """For each hash of *wanted*, its row in *known* ("S32" arrays, any order), or -1."""
+    if known.size == 0:
+        return np.full(wanted.size, -1, dtype=np.int64)
+    sorter = np.argsort(known)
+    pos = np.minimum(np.searchsorted(known, wanted, sorter=sorter), known.size - 1)
+    rows = sorter[pos]
+    return np.where(known[rows] == wanted, rows, -1).astype(np.int64)
+
+
+def _compact_columns(cols: np.ndarray, indices: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    used = np.unique(indices)
+    return cols[used], np.searchsorted(used, indices).astype(np.int32)
+
+
+def compact(arrays: BucketArrays) -> BucketArrays:
+    """The same rows without the hash columns no row uses any more (after removals)."""
+    cols, indices = _compact_columns(arrays.cols, arrays.indices)
+    wcols, windices = _compact_columns(arrays.wcols, arrays.windices)
+    return replace(arrays, cols=cols, indices=indices, wcols=wcols, windices=windices)
