@@ -81,6 +81,8 @@ def test_changed_figures_give_old_and_new_values():
     _sev, reasons = score("a cap of £1,000,000", "a cap of £500,000", ctype="limitation_of_liability")
     assert reasons[0] == "amount changed from £1,000,000 to £500,000 (lower)"
     _sev, reasons = score("interest at four per cent (4%)", "interest at two per cent (2%)")
+    assert reasons[0] == "interest rate changed from 4% to 2% (lower)"  # an interest rate: its own signal
+    _sev, reasons = score("a discount of four per cent (4%)", "a discount of two per cent (2%)")
     assert reasons[0] == "percentage changed from 4% to 2% (lower)"
     _sev, reasons = score("within 30 days", "within 30 Business Days")
     assert reasons[0] == "period changed from 30 days to 30 business days"

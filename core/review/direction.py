@@ -1,0 +1,919 @@
+"""Whose side a change is on: each deviation judged for the party the reviewer acts for.
+
+``counterdraft review ... --acting-for Supplier`` names one of the precedent's parties (its
+defined term, any letter case).  Every deviation then gets a *direction* for that party
+(:data:`DIRECTIONS`):
+
+``adverse``
+    the change takes from that party: a heavier obligation on it, a lighter one on the other
+    side, a right of its own narrowed or one of the other side's widened;
+``favourable``
+    the opposite;
+``neutral``
+    no change of meaning (formatting, numbering, a renamed term, a heading), or a change of
+    a provision that binds both parties alike ("each party shall", "the Receiving Party");
+``unclear``
+    the wording does not tell (a new governing law, a changed name, a sentence whose holder
+    or effect cannot be read).  Without ``--acting-for`` every direction is ``unclear``.
+
+How a change is read (common practice of contract reading, no source; the word lists are
+the authors'):
+
+1. **Who holds the provision.**  In the clause around the change (the sentence, cut at ";"),
+   the modal phrase that governs the changed words -- the last one before them, else the
+   first after -- and its subject: the nearest party named before it ("the Supplier shall",
+   "Licensee's liability shall not exceed"), a party right after it ("in no event shall
+   LICENSOR be liable") or the agent of a passive ("shall be paid by the Customer").  A
+   clause without either takes the lead-in of its parent provision ("The Customer shall:").
+   Parties are the precedent's defined terms that name a party (:func:`party_terms`), the
+   draft's names for them (the term map), and the generic "each party", "either party",
+   "the Receiving Party" ... which bind both sides.
+2. **What the clause is for its holder.**  A *burden* -- an obligation (shall, must, will,
+   agrees to, warrants, grants, is liable) or a restriction (shall not, may not) -- or a
+   *benefit* -- a right (may, is entitled to, reserves the right to) or a release from
+   liability (shall not be liable, shall have no obligation).
+3. **Which way the change moves it** for the holder (+1 favourable, -1 adverse): an
+   obligation weakened ("shall" -> "may"), an efforts standard lowered, a softening
+   qualifier ("reasonable", "material") added to a burden, a carve-out ("except", "unless")
+   added to a burden, a deadline lengthened ("within 30 days" -> "within 60 days"), a cap on
+   its liability lowered, an amount it pays lowered, a right of its own widened, "not" added
+   to its obligation ... are +1; their opposites -1.  A payment period's deadline helps the
+   payer; a notice period burdens whoever must give or wait for it; a limit ("shall not
+   exceed", "up to") on a burden helps its holder, on a benefit narrows it.  "and" -> "or"
+   lightens the list of things an obligation requires, and widens the conditions that
+   trigger it ("if A and B" -> "if A or B").  A party swapped moves the burden or benefit
+   from one party to the other.  Sentences and provisions added or removed count each of
+   their clauses: a burden added on a party is -1 for it, a benefit added +1, and the
+   reverse when removed.
+4. **For whom.**  The holder's +1 is favourable to the acting party when the holder is that
+   party or on its side of the deal (:data:`core.review.docinfo.PARTY_ROLE_WORDS`), adverse
+   when the holder is on the other side, and neutral when the clause binds each party.
+
+Each judged deviation gains one reason naming the parties ("lightens the Licensee's
+obligation ('shall pay ...'): favourable to the Licensee").  The ranking keeps the rules'
+severity first; at equal severity an adverse deviation ranks above an unclear, neutral or
+favourable one, and a favourable deviation ranks as if its severity were
+:data:`FAVOURABLE_RANK_SHARE` of it, so that a gain never tops the list.
+
+Cost: O(parties x text) once per document for the party mentions, then O(clause) per
+deviation.
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import dataclass
+from functools import lru_cache
+
+from ..errors import CounterdraftError
+from ..model import DIRECTIONS, Document, Provision, TermMapping
+from .docinfo import PARTY_ROLE_WORDS
+from .severity import (
+    CONJUNCTIONS,
+    SeverityRules,
+    Signal,
+    efforts_level,
+    find_quantities,
+    sentence_bounds,
+)
+from .severity import _matches as _phrase_matches  # the rule file's obligation phrases
+
+__all__ = [
+    "ADVERSE",
+    "DIRECTIONS",
+    "FAVOURABLE",
+    "FAVOURABLE_RANK_SHARE",
+    "NEUTRAL",
+    "RANK_ORDER",
+    "UNCLEAR",
+    "Judge",
+    "Parties",
+    "direction_rank_key",
+    "find_parties",
+    "party_terms",
+    "resolve_acting_for",
+]
+
+ADVERSE, FAVOURABLE, NEUTRAL, UNCLEAR = "adverse", "favourable", "neutral", "unclear"
+#: The directions in the order they rank at equal severity.
+RANK_ORDER: tuple[str, ...] = (ADVERSE, UNCLEAR, NEUTRAL, FAVOURABLE)
+#: A favourable deviation ranks as if its severity were this share of it: a change in the
+#: acting party's favour needs reading, seldom negotiating, so it should not sit above the
+#: changes against it (the authors' judgement, common practice, no source).
+FAVOURABLE_RANK_SHARE = 0.5
+
+#: Party labels by side of the deal: the review's own (:data:`.docinfo.PARTY_ROLE_WORDS`)
+#: and the names licences and end-user agreements give the two sides (common practice, no
+#: source).
+ROLE_WORDS: dict[str, frozenset[str]] = {
+    "supply": PARTY_ROLE_WORDS["supply"] | {"licenser", "contributor", "grantor", "owner",
+                                            "holder", "author", "publisher", "franchisor",
+                                            "employer", "assignor", "seller", "issuer"},
+    "buy": PARTY_ROLE_WORDS["buy"] | {"you", "user", "recipient", "grantee", "subscriber",
+                                      "member", "franchisee", "employee", "assignee",
+                                      "end-user", "licencee"},
+}
+_ROLE_OF_WORD = {w: side for side, words in ROLE_WORDS.items() for w in words}
+#: Words that name both parties, or a role either may take: a clause they hold binds each
+#: side alike.
+_MUTUAL_RE = re.compile(
+    r"\b(?:(?:each|either|both|neither|any|a|the\s+other|each\s+of\s+the|one)\s+part(?:y|ies)(?:'s|\u2019s|s')?"
+    r"|(?:the\s+)?parties(?:'|\u2019)?"
+    r"|(?:receiving|disclosing|indemnifying|indemnified|affected|defaulting|non-defaulting|"
+    r"notifying|breaching|non-breaching|terminating)\s+party(?:'s|\u2019s)?)\b",
+    re.IGNORECASE)
+#: Words of a definition that describe someone who can be a party (common practice, no
+#: source).
+_PERSON_RE = re.compile(
+    r"\b(?:individual|person|legal\s+entity|entity|company|corporation|organi[sz]ation|firm|"
+    r"partnership|incorporated|registered|limited|ltd|llc|inc|gmbh|plc|s\.a\.|b\.v\.|"
+    r"university|institute|foundation|association)\b", re.IGNORECASE)
+#: Names that describe a person but are never a party to the agreement.
+_NOT_PARTY_WORDS = frozenset({"affiliate", "affiliates", "entity", "person", "third", "party",
+                              "parties", "representative", "representatives", "personnel",
+                              "subsidiary", "group", "competitor", "control", "users", "end"})
+#: How often a term defined as a person must be the subject of a modal to count as a party
+#: (an "Affiliate" seldom is): once could be a quotation, twice is a pattern (a judgement,
+#: no source).
+MIN_SUBJECT_USES = 2
+#: How often a capitalised role word that the document does not define ("the Licensor")
+#: must occur to count as a party when it is never the subject of a modal.
+MIN_UNDEFINED_USES = 3
+
+# -- modal phrases ---------------------------------------------------------------------
+#: Permissions among the rule file's weak obligation phrases and beyond: a benefit of their
+#: subject.
+_PERMISSIONS = frozenset({
+    "may", "might", "could", "can", "is entitled to", "are entitled to", "shall be entitled to",
+    "will be entitled to", "reserves the right to", "reserve the right to", "has the right to",
+    "have the right to", "shall have the right to", "will have the right to", "is permitted to",
+    "are permitted to", "is free to", "are free to", "retains the right to", "may elect to",
+})
+#: Verbs that make their subject promise or give something (a burden), beyond the rule
+#: file's obligation words.
+_EXTRA_DUTY_RE = re.compile(
+    r"(?<![\w'])(?:hereby\s+)?(?:grants?|warrants?|represents?|undertakes?|covenants?|agrees?|"
+    r"acknowledges?|assumes?|bears?|accrues?|indemnif(?:y|ies)|(?:is|are)\s+(?:liable|responsible|obliged|"
+    r"required|bound|due|payable))(?![\w])", re.IGNORECASE)
+_EXTRA_RIGHT_RE = re.compile(
+    r"(?<![\w'])(?:(?:shall|will)\s+(?:be\s+entitled|have\s+the\s+right)\s+to|"
+    r"(?:has|have|retains?)\s+the\s+right\s+to|(?:is|are)\s+(?:entitled|permitted|free)\s+to)(?![\w])",
+    re.IGNORECASE)
+#: A negation right after a modal ("shall not", "may never") or before it ("in no event
+#: shall", "no ... shall").
+_NEG_AFTER_RE = re.compile(r"\s*(?:not\b|never\b|n['\u2019]t\b|in\s+no\s+event\b|under\s+no\s+circumstances\b)",
+                           re.IGNORECASE)
+_NEG_BEFORE_RE = re.compile(r"(?:\b(?:in\s+no\s+event|under\s+no\s+circumstances|neither|nor|no)\s+(?:\S+\s+){0,3})$",
+                            re.IGNORECASE)
+#: Words after a negated modal that release from a burden rather than forbid an act
+#: ("shall not be liable", "shall have no obligation").
+_RELEASE_RE = re.compile(
+    r"^(?:\s*(?:not|never|in\s+any\s+event|in\s+no\s+event|under\s+any\s+circumstances))?\s*(?:\w+\s+){0,2}?"
+    r"(?:be\s+(?:held\s+)?(?:liable|responsible|obliged|obligated|required|bound)|"
+    r"have\s+(?:any|no)\s+(?:liability|obligation|responsibility|duty)|"
+    r"(?:liable|responsible|obliged|required|bound)\b|(?:any|no)\s+(?:liability|obligation|responsibility))",
+    re.IGNORECASE)
+#: Nouns that, negated ("has no right to"), take a benefit away.
+_RIGHT_NOUN_RE = re.compile(r"^\s*(?:\w+\s+){0,2}?(?:right|rights|licen[cs]e|entitlement|claim|remedy|permission)\b",
+                            re.IGNORECASE)
+#: Words that open a condition: a change inside one moves when the clause applies.
+_CONDITION_RE = re.compile(r"\b(?:if|where|when|whenever|in\s+the\s+event|provided\s+that|upon|"
+                           r"in\s+case|on\s+the\s+occurrence)\b", re.IGNORECASE)
+
+# -- qualifiers, carve-outs, figures ----------------------------------------------------
+#: Qualifiers that soften what they qualify (a duty is lighter, a right's trigger harder to
+#: meet); the others tighten it; discretion favours whoever holds it (common practice, no
+#: source).
+_SOFTENERS = ("reasonable", "reasonably", "unreasonably", "material", "materially", "substantially",
+              "in all material respects", "to the knowledge of", "to the best of its knowledge",
+              "so far as it is aware", "reasonable efforts", "reasonable endeavours",
+              "commercially reasonable efforts", "as soon as reasonably practicable",
+              "commercially", "practicable")
+_TIGHTENERS = ("promptly", "without undue delay", "immediately", "best efforts", "best endeavours",
+               "all reasonable endeavours", "in good faith", "forthwith", "without delay")
+_DISCRETION = ("sole discretion", "absolute discretion", "sole and absolute discretion",
+               "at its option", "discretion")
+#: Words that cut an exception out of what a clause says (common practice, no source).
+_CARVE_OUT_RE = re.compile(r"\b(?:except|excepting|unless|provided\s+that|provided\s+however|save\s+"
+                           r"(?:as|that|for|where)|other\s+than|subject\s+to|to\s+the\s+extent|excluding|"
+                           r"solely|only|but\s+not|limited\s+to|up\s+to|not\s+exceed\w*|in\s+excess\s+of|"
+                           r"no\s+more\s+than|not\s+more\s+than|maximum|cap(?:ped)?)\b", re.IGNORECASE)
+#: Words that widen what a clause covers.
+_WIDEN_RE = re.compile(r"\b(?:including|includes|any\s+and\s+all|and/or|without\s+limitation|"
+                       r"whatsoever|howsoever|all|any|every|each|indirect|consequential)\b",
+                       re.IGNORECASE)
+#: Before a period: a deadline (more time helps whoever must act) ...
+_DEADLINE_RE = re.compile(r"\b(?:within|no\s+later\s+than|not\s+later\s+than|by|before|prior\s+to\s+the\s+end|"
+                          r"up\s+to|at\s+the\s+latest|no\s+more\s+than|not\s+more\s+than)\s*$", re.IGNORECASE)
+#: ... a notice or waiting period (a longer one burdens whoever must give or wait for it) ...
+_NOTICE_RE = re.compile(r"(?:\b(?:notice|prior|advance|in\s+advance|at\s+least|not\s+less\s+than|"
+                        r"no\s+less\s+than|minimum\s+of|after|following)\b)", re.IGNORECASE)
+#: ... words that say what a figure limits ("shall not exceed", "up to", "a maximum of").
+_LIMIT_RE = re.compile(r"\b(?:exceed\w*|up\s+to|maximum|max|cap(?:ped)?|limit(?:ed)?|in\s+excess\s+of|"
+                       r"more\s+than|greater\s+than|at\s+most)\b", re.IGNORECASE)
+#: ... and words of money or liability: a figure that measures a burden of whoever pays.
+_PAYMENT_RE = re.compile(r"\b(?:pay\w*|paid|fees?|price|charges?|costs?|interest|royalt\w+|"
+                         r"compensat\w+|damages|penalt\w+|liab\w+|sum|amounts?|refund\w*|"
+                         r"reimburs\w+|invoice\w*|deposit)\b", re.IGNORECASE)
+_RECEIVE_RE = re.compile(r"\b(?:charge|invoice|receive|recover|claim|collect|be\s+paid|be\s+entitled)\b",
+                         re.IGNORECASE)
+#: Characters before a figure read for the words that say what it is.
+_FIGURE_CONTEXT = 60
+
+
+@dataclass(frozen=True, slots=True)
+class Parties:
+    """The parties of a review, by the precedent's names: ``side`` maps each party to
+    "supply", "buy" or None; ``forms`` each name either document writes for a party
+    (case-folded) to the precedent's name."""
+
+    names: tuple[str, ...]
+    side: Mapping[str, str | None]
+    forms: Mapping[str, str]
+
+    def pattern(self) -> re.Pattern[str] | None:
+        return _mention_re(tuple(sorted(self.forms, key=len, reverse=True)))
+
+
+@lru_cache(maxsize=64)
+def _mention_re(forms: tuple[str, ...]) -> re.Pattern[str] | None:
+    if not forms:
+        return None
+    body = "|".join(r"\s+".join(map(re.escape, f.split())) for f in forms)
+    return re.compile(r"(?<![\w-])(?:" + body + r")(?:'s|\u2019s|s'|s\u2019)?(?![\w-])", re.IGNORECASE)
+
+
+def _role(names: Iterable[str]) -> str | None:
+    for name in names:
+        for w in re.split(r"[\s-]+", name.casefold()):
+            if w in _ROLE_OF_WORD:
+                return _ROLE_OF_WORD[w]
+    return None
+
+
+_SUBJECT_RE_CACHE: dict[str, re.Pattern[str]] = {}
+
+
+def _subject_uses(text: str, name: str) -> int:
+    """How often *name* (as written, capitalised) is the subject of a modal in *text*."""
+    pat = _SUBJECT_RE_CACHE.get(name)
+    if pat is None:
+        pat = _SUBJECT_RE_CACHE[name] = re.compile(
+            r"(?<![\w-])" + r"\s+".join(map(re.escape, name.split()))
+            + r"(?:'s|\u2019s)?\s+(?:\w+\s+){0,2}?(?:shall|will|must|may|agrees|warrants|"
+            r"represents|undertakes|grants|is\s+(?:liable|responsible|entitled))\b")
+    return sum(1 for _ in pat.finditer(text))
+
+
+def party_terms(doc: Document) -> tuple[str, ...]:
+    """The names of the parties of *doc*: its defined terms that name a side of the deal
+    (a role word such as "Supplier", "Licensee", "You"), or that are defined as a person or
+    company and act as the subject of obligations, or that open the parties provision; and
+    capitalised role words used undefined as the subject of obligations at least
+    :data:`MIN_SUBJECT_USES` times ("The Licensor shall ...").  In document order."""
+    text = "\n".join(p.text for p in doc.provisions)
+    kinds = {p.id: p.kind for p in doc.provisions}
+    found: list[str] = []
+    for t in doc.terms:
+        words = {w for n in t.names for w in re.split(r"[\s-]+", n.casefold())}
+        if words & _NOT_PARTY_WORDS and not words & set(_ROLE_OF_WORD):
+            continue
+        if _role(t.names) is not None:
+            found.append(t.term)
+        elif kinds.get(t.provision) == "parties" and _PERSON_RE.search(t.definition):
+            found.append(t.term)
+        elif _PERSON_RE.search(t.definition) and sum(_subject_uses(text, n) for n in t.names) >= MIN_SUBJECT_USES:
+            found.append(t.term)
+    known = {n.casefold() for t in doc.terms for n in t.names}
+    counts: dict[str, int] = {}
+    for m in re.finditer(r"(?<![\w-])[A-Z][A-Za-z]+(?![\w-])", text):
+        w = m.group()
+        if w.casefold() in _ROLE_OF_WORD and w.casefold() not in known and w.casefold() != "you":
+            counts[w] = counts.get(w, 0) + 1
+    for w, n in counts.items():
+        if w.casefold() in known:
+            continue
+        if n >= MIN_UNDEFINED_USES or _subject_uses(text, w) >= 1:
+            found.append(w)
+            known.add(w.casefold())
+    return tuple(dict.fromkeys(found))
+
+
+def _names_of(doc: Document, term: str) -> tuple[str, ...]:
+    for t in doc.terms:
+        if t.term == term:
+            return t.names
+    return (term,)
+
+
+def resolve_acting_for(precedent: Document, given: str) -> str:
+    """The precedent's party term *given* names (any letter case, or one of its aliases);
+    one line naming the party terms found when none matches."""
+    wanted = " ".join(given.split()).casefold()
+    names = party_terms(precedent)
+    for n in names:
+        if wanted in {a.casefold() for a in _names_of(precedent, n)}:
+            return n
+    found = ", ".join(names) if names else "none"
+    raise CounterdraftError(f"--acting-for {given!r} is no party of the precedent (party terms found: {found})",
+                            path=precedent.source)
+
+
+def find_parties(draft: Document, precedent: Document, term_map: Sequence[TermMapping]) -> Parties:
+    """The parties of a review: the precedent's party terms with every name either document
+    writes for them (aliases, and the draft's names through the term map)."""
+    names = party_terms(precedent)
+    forms: dict[str, str] = {}
+    side: dict[str, str | None] = {}
+    for n in names:
+        aliases = _names_of(precedent, n)
+        side[n] = _role(aliases)
+        for a in aliases:
+            forms.setdefault(a.casefold(), n)
+    to_precedent = {m.draft: m.precedent for m in term_map}
+    for n in party_terms(draft):
+        target = to_precedent.get(n, n)
+        owner = forms.get(target.casefold())
+        if owner is None:
+            continue
+        for a in _names_of(draft, n):
+            forms.setdefault(a.casefold(), owner)
+    # "You" is also written "you", "your": the same party
+    for form in list(forms):
+        if form == "you":
+            forms.setdefault("your", forms[form])
+    # two parties of unknown sides are opposite sides
+    unknown = [n for n in names if side[n] is None]
+    known = {s for s in side.values() if s}
+    if len(names) == 2 and unknown:
+        if len(unknown) == 2:
+            side[names[0]], side[names[1]] = "supply", "buy"
+        else:
+            other = next(s for s in ("supply", "buy") if s not in known) if len(known) == 1 else None
+            side[unknown[0]] = other
+    return Parties(names, side, forms)
+
+
+# ----------------------------------------------------------------------------------------
+# Reading a clause
+# ----------------------------------------------------------------------------------------
+
+BURDEN, BENEFIT = -1, 1
+
+
+@dataclass(frozen=True, slots=True)
+class Holding:
+    """What a clause is for whom: *holder* (a precedent party name, ``MUTUAL`` or None),
+    *stance* (BURDEN or BENEFIT), the modal phrase, and whether it is negated."""
+
+    holder: str | None
+    stance: int
+    modal: str
+    negated: bool
+    release: bool
+    start: int  # offset of the modal in the text
+    end: int
+
+
+MUTUAL = "\x00each party"
+
+
+def _clause_bounds(text: str, span: tuple[int, int]) -> tuple[int, int]:
+    return sentence_bounds(text, span)
+
+
+def _whole_sentence(text: str, span: tuple[int, int]) -> tuple[int, int]:
+    """The sentence around *span*, not cut at ";" (a list of items after "shall not:")."""
+    a, b = span
+    start = 0
+    for m in re.finditer(r"(?<=[.!?])\s+(?=[A-Z(\"\u201c0-9])|\n\s*\n", text[:a]):
+        start = m.end()
+    m = re.compile(r"(?<=[.!?])\s+(?=[A-Z(\"\u201c0-9])|\n\s*\n").search(text, max(b, start))
+    return start, (m.start() if m else len(text))
+
+
+class Judge:
+    """Judges deviations for one review (see the module's notes)."""
+
+    def __init__(self, *, parties: Parties, acting_for: str, rules: SeverityRules,
+                 draft: Document, precedent: Document) -> None:
+        self.parties = parties
+        self.acting_for = acting_for
+        self.rules = rules
+        self.draft = draft
+        self.precedent = precedent
+        self._mentions = parties.pattern()
+        self._dpos = {p.id: p for p in draft.provisions}
+        self._ppos = {p.id: p for p in precedent.provisions}
+
+    # -- mentions and modals --------------------------------------------------------------
+    def _party_at(self, text: str, lo: int, hi: int) -> list[tuple[int, int, str]]:
+        """Party mentions in text[lo:hi]: (start, end, party name or MUTUAL)."""
+        out: list[tuple[int, int, str]] = []
+        if self._mentions is not None:
+            for m in self._mentions.finditer(text, lo, hi):
+                s = m.group()
+                base = re.sub(r"(?:'s|\u2019s|s'|s\u2019)$", "", s)
+                owner = self.parties.forms.get(" ".join(base.split()).casefold())
+                if owner is None:
+                    owner = self.parties.forms.get(" ".join(s.split()).casefold())
+                if owner is None:
+                    continue
+                if not s[:1].isupper() and base.casefold() not in ("you", "your"):
+                    continue  # "licensee" in lower case is a word, not the party
+                out.append((m.start(), m.end(), owner))
+        for m in _MUTUAL_RE.finditer(text, lo, hi):
+            if any(a < m.end() and m.start() < b for a, b, _o in out):
+                continue
+            out.append((m.start(), m.end(), MUTUAL))
+        out.sort()
+        return out
+
+    def _modals(self, text: str, lo: int, hi: int) -> list[tuple[int, int, str]]:
+        found = [m for m in _phrase_matches(self.rules, "obligation", text) if lo <= m[0] < hi]
+        for rx in (_EXTRA_DUTY_RE, _EXTRA_RIGHT_RE):
+            for m in rx.finditer(text, lo, hi):
+                if not any(a < m.end() and m.start() < b for a, b, _p in found):
+                    found.append((m.start(), m.end(), " ".join(m.group().lower().split())))
+        found.sort()
+        return found
+
+    def _holding_of(self, text: str, modal: tuple[int, int, str], lo: int,
+                    modals: Sequence[tuple[int, int, str]], parent: str | None) -> Holding:
+        ms, me, phrase = modal
+        after = text[me:me + 80]
+        before = text[max(lo, ms - 60):ms]
+        negated = bool(_NEG_AFTER_RE.match(after)) or bool(_NEG_BEFORE_RE.search(before))
+        if not negated and _EXTRA_DUTY_RE.fullmatch(phrase) is None and re.match(r"\s+(?:have|has)\s+no\b", after):
+            negated = True
+        permission = phrase in _PERMISSIONS or bool(_EXTRA_RIGHT_RE.fullmatch(phrase))
+        release = False
+        if negated and not permission and _RELEASE_RE.match(after):
+            release = True
+        right_noun = negated and bool(_RIGHT_NOUN_RE.match(re.sub(r"^\s*(?:not|no|have|has)\s+", "", after)))
+        if re.match(r"(?:is|are)\s+(?:liable|responsible|obliged|required|bound)", phrase) and negated:
+            release = True
+        if permission:
+            stance = BURDEN if negated else BENEFIT
+        elif release:
+            stance = BENEFIT
+        elif right_noun:
+            stance = BURDEN
+        else:
+            stance = BURDEN
+        holder = self._holder(text, modal, lo, modals, parent)
+        return Holding(holder, stance, phrase, negated, release, ms, me)
+
+    def _holder(self, text: str, modal: tuple[int, int, str], lo: int,
+                modals: Sequence[tuple[int, int, str]], parent: str | None) -> str | None:
+        ms, me, _phrase = modal
+        # the passive's agent: "shall be paid by the Customer"
+        m = re.match(r"(?:\s+not)?\s+be\s+\w+(?:ed|en|id|wn)\s+(?:\w+\s+){0,3}?by\s+", text[me:me + 80])
+        if m:
+            got = self._party_at(text, me + m.end(), me + m.end() + 40)
+            if got and got[0][0] - (me + m.end()) <= 5:
+                return got[0][2]
+        # inverted: "in no event shall LICENSOR be liable"
+        got = self._party_at(text, me, me + 40)
+        if got and re.fullmatch(r"\s*(?:the\s+)?", text[me:got[0][0]], re.IGNORECASE) and \
+                re.search(r"\b(?:event|circumstances?|neither|nor)\s*$", text[max(lo, ms - 30):ms], re.IGNORECASE):
+            return got[0][2]
+        # the subject: the nearest party before the modal, after the previous modal
+        prev_end = max([e for s, e, _p in modals if e <= ms] or [lo])
+        mentions = self._party_at(text, max(lo, prev_end), ms)
+        subjects = [mm for mm in mentions if not re.search(
+            r"\b(?:to|from|against|with|for|by|than|on\s+behalf\s+of|notify|inform)\s+(?:the\s+)?$",
+            text[max(lo, mm[0] - 25):mm[0]], re.IGNORECASE)]
+        if subjects:
+            return subjects[-1][2]
+        if mentions:
+            return mentions[-1][2]
+        # no party since the previous modal: that modal's holder ("Licensor warrants that
+        # the Software will ...")
+        earlier = [md for md in modals if md[1] <= ms]
+        if earlier:
+            return self._holder(text, earlier[-1], lo, [md for md in modals if md[1] <= earlier[-1][0]], parent)
+        if parent is not None:
+            return parent
+        # money owed without a subject: its payer ("interest accrues on sums due from the
+        # Customer", "fees are payable by Licensee")
+        _lo, hi = _clause_bounds(text, (ms, me))
+        if _PAYMENT_RE.search(text, lo, hi):
+            for s, _e, owner in self._party_at(text, me, hi):
+                if re.search(r"\b(?:by|from|of)\s+(?:the\s+)?$", text[max(me, s - 12):s], re.IGNORECASE):
+                    return owner
+        return None
+
+    def holding(self, text: str, span: tuple[int, int], *, parent_text: str | None = None
+                ) -> Holding | None:
+        """How the clause of *text* around *span* stands for whom (None: no modal, no
+        parent lead-in)."""
+        lo, hi = _clause_bounds(text, span)
+        modals = self._modals(text, lo, hi)
+        if not modals:  # a list item: the sentence's lead-in, else the parent's
+            slo, shi = _whole_sentence(text, span)
+            modals = [m for m in self._modals(text, slo, shi) if m[1] <= span[0]]
+            if modals:
+                lo = slo
+        parent = None
+        parent_holding = None
+        if parent_text:
+            parent_holding = self._lead_in(parent_text)
+            parent = parent_holding.holder if parent_holding else None
+        if not modals:
+            return parent_holding
+        before = [m for m in modals if m[0] < max(span[1], span[0] + 1)]
+        modal = before[-1] if before else modals[0]
+        return self._holding_of(text, modal, lo, modals, parent)
+
+    def _lead_in(self, text: str) -> Holding | None:
+        """The holding of a parent provision's last clause ("The Customer shall:")."""
+        if not text.strip():
+            return None
+        lo, hi = _clause_bounds(text, (len(text.rstrip()), len(text.rstrip())))
+        modals = self._modals(text, lo, hi)
+        if not modals:
+            return None
+        return self._holding_of(text, modals[-1], lo, modals, None)
+
+    # -- the judgement --------------------------------------------------------------------
+    def relative(self, holder: str | None) -> int | None:
+        """+1 when *holder* is the acting party or on its side, -1 when on the other side,
+        0 for a clause binding each party, None when unknown."""
+        if holder is None:
+            return None
+        if holder == MUTUAL:
+            return 0
+        if holder == self.acting_for:
+            return 1
+        a, h = self.parties.side.get(self.acting_for), self.parties.side.get(holder)
+        if a is not None and h is not None:
+            return 1 if a == h else -1
+        return -1
+
+    def _name(self, holder: str) -> str:
+        return "each party" if holder == MUTUAL else f"the {holder}" if not holder.casefold() in ("you",) else holder
+
+
+    # -- effects --------------------------------------------------------------------------
+    def judge(self, v) -> tuple[str, str | None]:  # noqa: ANN001 - a deviation (core.review._Dev)
+        """(direction, reason naming the parties or None) of deviation *v*, which has the
+        attributes of :class:`core.model.Deviation` and the ``signals`` the rules found."""
+        if v.category != "substantive" or v.part == "heading" or v.change == "move":
+            return NEUTRAL, None
+        if v.part == "provision":
+            if v.change == "add-provision":
+                p = self._dpos.get(v.draft_provision)
+                return self._verdict(self._clauses(p.text if p else v.draft_text, added=True))
+            if v.change == "remove-provision":
+                p = self._ppos.get(v.precedent_provision)
+                return self._verdict(self._clauses(p.text if p else v.precedent_text, added=False))
+            return NEUTRAL, None
+        dp, pp = self._dpos.get(v.draft_provision), self._ppos.get(v.precedent_provision)
+        if dp is None or pp is None or v.draft_span is None or v.precedent_span is None:
+            return UNCLEAR, None
+        return self._verdict(self._text_effects(v, pp, dp))
+
+    def _parent_text(self, doc_pos: Mapping[str, Provision], p: Provision) -> str | None:
+        parent = doc_pos.get(p.parent) if p.parent else None
+        return parent.text if parent is not None else None
+
+    def _text_effects(self, v, pp: Provision, dp: Provision) -> list[_Effect]:  # noqa: ANN001
+        P, D = pp.text, dp.text
+        ps, ds = tuple(v.precedent_span), tuple(v.draft_span)
+        hp = self.holding(P, ps, parent_text=self._parent_text(self._ppos, pp))
+        hd = self.holding(D, ds, parent_text=self._parent_text(self._dpos, dp))
+        h = hd or hp
+        names = {s.name for s in v.signals}
+        out: list[_Effect] = []
+        if "party_swapped" in names and hp and hd and hp.holder != hd.holder:
+            what = "obligation" if hd.stance == BURDEN else "right"
+            quote = _excerpt(D, hd.start)
+            out.append(_Effect(hd.stance, hd.holder, f"moves the {what} ('{quote}') from "
+                               f"{self._name(hp.holder) if hp.holder else 'the precedent party'} to "
+                               f"{self._name(hd.holder) if hd.holder else 'another party'}", hd.stance))
+            if hp.holder is not None:
+                out.append(_Effect(-hp.stance, hp.holder, "", hp.stance))
+            return out
+        modal_signals = names & {"obligation_weakened", "obligation_strengthened", "obligation_added",
+                                 "obligation_removed", "negation_added", "negation_removed"}
+        if modal_signals and hp and hd:
+            got = self._modal_effect(hp, hd, modal_signals, D)
+            if got is not None:
+                out.append(got)
+        if h is None:
+            return out + self._new_clauses(v, P, D, ps, ds)
+        for s in v.signals:
+            if s.name == "efforts_weakened":
+                out.append(self._effect(h, +1, D, "lowers the efforts standard of"))
+            elif s.name == "efforts_strengthened":
+                out.append(self._effect(h, -1, D, "raises the efforts standard of"))
+            elif s.name in ("qualifier_added", "qualifier_removed", "qualifier_changed"):
+                e = self._qualifier_effect(s, h, D, ds)
+                if e is not None:
+                    out.append(e)
+            elif s.name in ("conjunction_in_obligation", "conjunction_changed"):
+                e = self._conjunction_effect(s, h, D, ds)
+                if e is not None:
+                    out.append(e)
+        if names & {"number_changed", "number_added", "number_removed", "interest_rate_changed"} or \
+                any(r.startswith("figure ") for r in v.reasons):
+            out += self._figure_effects(h, P, ps, D, ds)
+        if not out and names & {"sentence_inserted", "sentence_deleted", "wording_changed",
+                                "obligation_added", "obligation_removed"}:
+            out += self._new_clauses(v, P, D, ps, ds)
+            if not out:
+                out += self._scope_effects(h, P, ps, D, ds)
+        return out
+
+    def _effect(self, h: Holding, narrows_or_plus: int, text: str, verb: str) -> _Effect:
+        """An effect on a burden or benefit: *narrows_or_plus* +1 lightens a burden (or,
+        for a benefit, -1 narrows it)..."""
+        value = narrows_or_plus if h.stance == BURDEN else -narrows_or_plus
+        return _Effect(value, h.holder, f"{verb} ('{_excerpt(text, h.start)}')", h.stance)
+
+    def _narrowing(self, h: Holding, narrows: bool, text: str) -> _Effect:
+        """A change that narrows (or widens) what the clause gives or asks of its holder."""
+        value = (-h.stance if narrows else h.stance)
+        return _Effect(value, h.holder, f"('{_excerpt(text, h.start)}')", h.stance, release=h.release)
+
+    def _modal_effect(self, hp: Holding, hd: Holding, names: set[str], D: str) -> _Effect | None:
+        def val(h: Holding) -> float:
+            if h.stance == BENEFIT:
+                return 1.0
+            weak = h.modal not in self.rules.strong and not _EXTRA_DUTY_RE.fullmatch(h.modal)
+            return -0.5 if weak and not h.negated else -1.0
+        delta = val(hd) - val(hp)
+        if delta == 0 and "negation_added" in names:
+            delta = 1.0 if hp.stance == BURDEN else -1.0
+        elif delta == 0 and "negation_removed" in names:
+            delta = -1.0 if hd.stance == BURDEN else 1.0
+        if delta == 0:
+            return None
+        holder = hd.holder or hp.holder
+        return _Effect(1 if delta > 0 else -1, holder,
+                       f"('{_excerpt(D, hd.start)}', was '{hp.modal}{' not' if hp.negated else ''}')",
+                       hp.stance)
+
+    def _qualifier_effect(self, s: Signal, h: Holding, D: str, ds) -> _Effect | None:  # noqa: ANN001
+        quoted = re.findall(r"'([^']*)'", s.reason)
+        if not quoted:
+            return None
+        if s.name == "qualifier_changed" and len(quoted) >= 2:
+            old, new = _qualifier_kind(quoted[0]), _qualifier_kind(quoted[1])
+            if old == new:
+                return None
+            if 0 in (old, new):  # discretion gained or lost by the holder
+                return _Effect(1 if new == 0 else -1, h.holder,
+                               f"('{_excerpt(D, h.start)}'): discretion {'given to' if new == 0 else 'taken from'}",
+                               h.stance)
+            narrows = new < old
+        else:
+            kind = _qualifier_kind(quoted[0])
+            added = s.name == "qualifier_added"
+            if kind == 0:
+                return _Effect(1 if added else -1, h.holder,
+                               f"('{_excerpt(D, h.start)}'): discretion {'given to' if added else 'taken from'}",
+                               h.stance)
+            narrows = (kind < 0) == added
+        if self._in_carve_out(D, ds, h):
+            narrows = not narrows
+        return self._narrowing(h, narrows, D)
+
+    def _in_carve_out(self, text: str, span, h: Holding) -> bool:  # noqa: ANN001
+        """Whether *span* lies in an exception of the clause ("unless", "except"): a change
+        there works the other way round."""
+        lo, _hi = _clause_bounds(text, span)
+        before = text[max(lo, h.end):span[0]]
+        return re.search(r"\b(?:except|excepting|unless|other\s+than|excluding|save\s+(?:as|that|for|where))\b",
+                         before, re.IGNORECASE) is not None
+
+    def _in_condition(self, text: str, span, h: Holding) -> bool:  # noqa: ANN001
+        lo, _hi = _clause_bounds(text, span)
+        conds = list(_CONDITION_RE.finditer(text, lo, span[0]))
+        if not conds:
+            return False
+        last = conds[-1].end()
+        return not (last < h.start < span[0])
+
+    def _conjunction_effect(self, s: Signal, h: Holding, D: str, ds) -> _Effect | None:  # noqa: ANN001
+        quoted = re.findall(r"'([^']*)'", s.reason)
+        if len(quoted) < 2:
+            return None
+        old, new = quoted[0].split(), quoted[1].split()
+        if not ({*old, *new} <= {"and", "or", "and/or"}) or not old or not new:
+            return None
+        to_or = new[-1] in ("or", "and/or") and old[-1] == "and"
+        to_and = new[-1] == "and" and old[-1] in ("or", "and/or")
+        if not (to_or or to_and):
+            return None
+        if self._in_condition(D, ds, h):
+            widens = to_or  # "if A and B" -> "if A or B": applies more often
+        elif h.negated:
+            widens = to_or  # "shall not A and B" -> "shall not A or B": forbids more
+        else:
+            widens = to_and  # "shall A or B" -> "shall A and B": asks more
+        if self._in_carve_out(D, ds, h):
+            widens = not widens
+        return self._narrowing(h, not widens, D)
+
+    def _figure_effects(self, h: Holding, P: str, ps, D: str, ds) -> list[_Effect]:  # noqa: ANN001
+        def inside(text: str, span) -> list:  # noqa: ANN001
+            a, b = span
+            qs = find_quantities(text, around=span)
+            if a == b:
+                return [q for q in qs if q.start < a < q.end]
+            return [q for q in qs if q.start < b and q.end > a]
+
+        olds, news = inside(P, ps), inside(D, ds)
+        out: list[_Effect] = []
+        for kind in ("amount", "percentage", "duration", "number"):
+            o = [q for q in olds if q.kind == kind]
+            n = [q for q in news if q.kind == kind]
+            for a, b in zip(o, n):
+                va, vb = _magnitude(a), _magnitude(b)
+                if va == vb:
+                    continue
+                e = self._figure_effect(h, D, b, higher=vb > va)
+                if e is not None:
+                    out.append(e)
+            for q in n[len(o):]:
+                e = self._limit_effect(h, D, q, added=True)
+                if e is not None:
+                    out.append(e)
+            for q in o[len(n):]:
+                e = self._limit_effect(h, P, q, added=False)
+                if e is not None:
+                    out.append(e)
+        return out
+
+    def _context(self, text: str, q) -> tuple[str, str, str]:  # noqa: ANN001
+        lo, hi = _clause_bounds(text, (q.start, q.end))
+        return (text[max(lo, q.start - _FIGURE_CONTEXT):q.start], text[q.end:min(hi, q.end + 30)],
+                text[lo:hi])
+
+    def _figure_effect(self, h: Holding, D: str, q, *, higher: bool) -> _Effect | None:  # noqa: ANN001
+        before, after, clause = self._context(D, q)
+        what = f"('{_excerpt(D, h.start)}')"
+        if q.kind == "duration":
+            if _DEADLINE_RE.search(before):  # more time to act helps whoever acts
+                return _Effect(1 if higher else -1, h.holder, what, h.stance, "time")
+            if _NOTICE_RE.search(before[-25:]) or re.match(r"\W*\s*(?:written\s+|prior\s+)?(?:notice|prior|in\s+advance|before)",
+                                                         after, re.IGNORECASE):
+                return _Effect(-1 if higher else 1, h.holder, what, h.stance, "notice")
+            return _Effect(h.stance if higher else -h.stance, h.holder, what, h.stance)
+        money = _PAYMENT_RE.search(clause) is not None
+        receives = h.stance == BENEFIT and not h.release and _RECEIVE_RE.search(clause) is not None
+        if _LIMIT_RE.search(before[-30:]) or _LIMIT_RE.search(after[:15]):
+            if money and not receives:  # a cap on what the holder pays or owes
+                return _Effect(-1 if higher else 1, h.holder, what, h.stance, "cap")
+            return _Effect(1 if higher else -1, h.holder, what, h.stance, "limit")
+        if money:
+            sign = 1 if receives or (h.stance == BENEFIT and not h.release) else -1
+            return _Effect(sign if higher else -sign, h.holder, what, h.stance, "amount")
+        return _Effect(h.stance if higher else -h.stance, h.holder, what, h.stance)
+
+    def _limit_effect(self, h: Holding, text: str, q, *, added: bool) -> _Effect | None:  # noqa: ANN001
+        """A figure that only one side has: a cap or limit introduced (or dropped)."""
+        before, after, clause = self._context(text, q)
+        if not (_LIMIT_RE.search(before[-30:]) or _LIMIT_RE.search(after[:15])):
+            return None
+        money = _PAYMENT_RE.search(clause) is not None
+        receives = h.stance == BENEFIT and not h.release and _RECEIVE_RE.search(clause) is not None
+        helps = money and not receives  # a cap on a burden helps its holder
+        value = 1 if helps else -1
+        return _Effect(value if added else -value, h.holder, f"('{_excerpt(text, h.start)}')", h.stance, "cap")
+
+    def _new_clauses(self, v, P: str, D: str, ps, ds) -> list[_Effect]:  # noqa: ANN001
+        """Clauses with their own modal inside the words added (or removed)."""
+        out: list[_Effect] = []
+        for text, span, added in ((D, ds, True), (P, ps, False)):
+            a, b = span
+            if b - a < 3:
+                continue
+            modals = [m for m in self._modals(text, a, b)]
+            for m in modals:
+                lo, _hi = _clause_bounds(text, (m[0], m[1]))
+                h = self._holding_of(text, m, lo, self._modals(text, lo, _hi), None)
+                if h.holder is None:
+                    continue
+                value = h.stance if added else -h.stance
+                verb = "adds" if added else "removes"
+                what = "an obligation on" if h.stance == BURDEN else "a right of"
+                if h.release:
+                    what = "a release of"
+                out.append(_Effect(value, h.holder, f"{verb} {what} {{holder}} ('{_excerpt(text, m[0])}')",
+                                   h.stance, "clause"))
+        return out
+
+    def _scope_effects(self, h: Holding, P: str, ps, D: str, ds) -> list[_Effect]:  # noqa: ANN001
+        """Words added or removed that cut an exception out of the clause or widen it."""
+        added, removed = D[ds[0]:ds[1]], P[ps[0]:ps[1]]
+        score = 0
+        if _CARVE_OUT_RE.search(added):
+            score += 1
+        if _CARVE_OUT_RE.search(removed):
+            score -= 1
+        if score == 0:
+            if _WIDEN_RE.search(added) and not _WIDEN_RE.search(removed):
+                score = -1
+            elif _WIDEN_RE.search(removed) and not _WIDEN_RE.search(added):
+                score = 1
+        if score == 0:
+            return []
+        return [self._narrowing(h, score > 0, D)]
+
+    def _clauses(self, text: str, *, added: bool) -> list[_Effect]:
+        return self._new_clauses(None, "" if added else text, text if added else "",
+                                 (0, 0 if added else len(text)), (0, len(text) if added else 0))
+
+    # -- the verdict ------------------------------------------------------------------------
+    def _verdict(self, effects: Sequence[_Effect]) -> tuple[str, str | None]:
+        known = [(e, self.relative(e.holder)) for e in effects]
+        judged = [(e, r) for e, r in known if r is not None]
+        if not judged:
+            return UNCLEAR, None
+        if all(r == 0 for _e, r in judged):
+            e = judged[0][0]
+            return NEUTRAL, f"{self._describe(e)}: it binds each party alike"
+        total = sum(e.value * r for e, r in judged)
+        if total == 0:
+            return UNCLEAR, None
+        direction = FAVOURABLE if total > 0 else ADVERSE
+        lead = next(e for e, r in judged if r != 0 and e.text)
+        return direction, f"{self._describe(lead)}: {direction} to the {self.acting_for}" \
+            if self.acting_for.casefold() != "you" else f"{self._describe(lead)}: {direction} to You"
+
+    def _describe(self, e: _Effect) -> str:
+        holder = self._name(e.holder) if e.holder else "a party"
+        possessive = "each party's" if e.holder == MUTUAL else (
+            f"{holder}'s" if not holder.endswith("s") else f"{holder}'")
+        if "{holder}" in e.text:
+            return e.text.replace("{holder}", holder)
+        if e.text.startswith("moves") or e.text.startswith("lowers") or e.text.startswith("raises"):
+            if e.text.startswith(("lowers", "raises")):
+                verb, rest = e.text.split(" of ", 1)
+                return f"{verb} of {possessive} obligation {rest}"
+            return e.text
+        if e.kind == "time":
+            return f"{'gives' if e.value > 0 else 'leaves'} {holder} {'more' if e.value > 0 else 'less'} time {e.text}"
+        if e.kind == "notice":
+            return f"{'shortens' if e.value > 0 else 'lengthens'} a notice period {holder} must give or wait for {e.text}"
+        if e.kind == "cap":
+            return f"{'lowers' if e.value > 0 else 'raises'} the limit of {possessive} liability or payment {e.text}"
+        if e.stance == BURDEN:
+            verb = "lightens" if e.value > 0 else "adds to"
+            return f"{verb} {possessive} obligation {e.text}"
+        verb = "widens" if e.value > 0 else "narrows"
+        return f"{verb} {possessive} {'protection' if e.release else 'right'} {e.text}"
+
+
+@dataclass(frozen=True, slots=True)
+class _Effect:
+    """+1 (*value*) when the change favours *holder*, -1 when it goes against it."""
+
+    value: int
+    holder: str | None
+    text: str
+    stance: int
+    kind: str = ""
+    release: bool = False
+
+
+#: Rough length of each unit of a period in days, to compare "30 days" with "1 month".
+_UNIT_DAYS = {"minutes": 1 / 1440, "hours": 1 / 24, "days": 1.0, "business days": 1.4,
+              "working days": 1.4, "banking days": 1.4, "calendar days": 1.0, "clear days": 1.0,
+              "weeks": 7.0, "months": 30.0, "quarters": 91.0, "years": 365.0}
+
+
+def _magnitude(q) -> float:  # noqa: ANN001
+    if q.kind == "duration":
+        return q.value * _UNIT_DAYS.get(q.unit, _UNIT_DAYS.get(q.unit.split()[-1], 1.0))
+    return q.value
+
+
+def _excerpt(text: str, start: int, words: int = 8) -> str:
+    w = text[start:].split()
+    s = " ".join(w[:words])
+    return s + ("\u2026" if len(w) > words else "")
+
+
+def _qualifier_kind(q: str) -> int:
+    """+1 a qualifier that tightens, -1 one that softens, 0 discretion (see _DISCRETION)."""
+    q = q.casefold()
+    if any(q == d or q.endswith(d) for d in _DISCRETION):
+        return 0
+    if any(q == t or t in q for t in _TIGHTENERS):
+        return 1
+    return -1
+
+
+def direction_rank_key(severity: int, direction: str) -> tuple[float, int]:
+    """Sort key of a deviation for the ranking (ascending): severity first, a favourable
+    one as if :data:`FAVOURABLE_RANK_SHARE` of it; at equal severity, :data:`RANK_ORDER`."""
+    effective = severity * FAVOURABLE_RANK_SHARE if direction == FAVOURABLE else float(severity)
+    return (-effective, RANK_ORDER.index(direction) if direction in RANK_ORDER else len(RANK_ORDER))
+
+
+__all__ += ["BENEFIT", "BURDEN", "Holding", "MUTUAL"]
