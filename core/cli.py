@@ -63,7 +63,7 @@ def _cmd_review(args: argparse.Namespace) -> int:
     for path, doc in ((args.draft, draft), (args.against, precedent)):
         for w in doc.warnings:
             print(f"{path}: note: {w}", file=sys.stderr)
-    review = _run_review(draft, precedent, library_folder=args.library)
+    review = _run_review(draft, precedent, library_folder=args.library, acting_for=args.acting_for)
     if args.save:
         from .decisions import new_review_file, save_review_file
 
@@ -80,19 +80,21 @@ def _cmd_review(args: argparse.Namespace) -> int:
     return 0
 
 
-def _run_review(draft, precedent, *, library_folder: str | None, overrides=()):  # noqa: ANN001, ANN202
-    """The one place the CLI runs the engine: with the precedent set's figures when given."""
+def _run_review(draft, precedent, *, library_folder: str | None, overrides=(),  # noqa: ANN001, ANN202
+                acting_for: str | None = None):
+    """The one place the CLI runs the engine: with the precedent set's figures when given,
+    acting for a party when given."""
     from .review import run_review
 
     if not library_folder:
-        return run_review(draft, precedent, overrides=tuple(overrides))
+        return run_review(draft, precedent, overrides=tuple(overrides), acting_for=acting_for)
     from .library.commands import open_library_for_cli, review_options
     from .library.frequency import apply_frequency
 
     library = open_library_for_cli(library_folder)
     try:
         return apply_frequency(run_review(draft, precedent, overrides=tuple(overrides),
-                                          **review_options(library)), library)
+                                          acting_for=acting_for, **review_options(library)), library)
     finally:
         library.close()
 
@@ -102,8 +104,9 @@ def _review_runner(library_folder: str | None):  # noqa: ANN202
     if not library_folder:
         return None
 
-    def run(draft, precedent, *, overrides=()):  # noqa: ANN001, ANN202
-        return _run_review(draft, precedent, library_folder=library_folder, overrides=overrides)
+    def run(draft, precedent, *, overrides=(), acting_for=None):  # noqa: ANN001, ANN202
+        return _run_review(draft, precedent, library_folder=library_folder, overrides=overrides,
+                           acting_for=acting_for)
 
     return run
 
@@ -308,6 +311,9 @@ def build_parser() -> argparse.ArgumentParser:
                    help="folder of past agreements: say how common each wording is (indexed in DIR/.counterdraft)")
     p.add_argument("--save", metavar="REVIEW.json",
                    help="also save a review file to record decisions on (see 'decide', 'export')")
+    p.add_argument("--acting-for", metavar="PARTY",
+                   help="the precedent's defined term for the party you act for (e.g. Supplier): "
+                        "each deviation is then judged adverse, favourable, neutral or unclear for it")
     p.add_argument("--width", type=int, default=None,
                    help="columns of the table (default: COLUMNS, else the terminal's width)")
     p.set_defaults(func=_cmd_review)

@@ -68,7 +68,7 @@ from functools import lru_cache
 
 from ..errors import CounterdraftError
 from ..model import DIRECTIONS, Document, Provision, TermMapping
-from .docinfo import PARTY_ROLE_WORDS
+from .classify import BLANK_FILLED
 from .severity import (
     CONJUNCTIONS,
     SeverityRules,
@@ -78,6 +78,7 @@ from .severity import (
     sentence_bounds,
 )
 from .severity import _matches as _phrase_matches  # the rule file's obligation phrases
+from .severity import _words_value  # "twenty-five" -> 25
 
 __all__ = [
     "ADVERSE",
@@ -103,18 +104,24 @@ RANK_ORDER: tuple[str, ...] = (ADVERSE, UNCLEAR, NEUTRAL, FAVOURABLE)
 #: changes against it (the authors' judgement, common practice, no source).
 FAVOURABLE_RANK_SHARE = 0.5
 
-#: Party labels by side of the deal: the review's own (:data:`.docinfo.PARTY_ROLE_WORDS`)
-#: and the names licences and end-user agreements give the two sides (common practice, no
-#: source).
+#: Party labels by side of the deal (common practice in commercial agreements, licences
+#: and end-user agreements, no source), and labels that name a party of either side
+#: ("the Company", "the Agent").
 ROLE_WORDS: dict[str, frozenset[str]] = {
-    "supply": PARTY_ROLE_WORDS["supply"] | {"licenser", "contributor", "grantor", "owner",
-                                            "holder", "author", "publisher", "franchisor",
-                                            "employer", "assignor", "seller", "issuer"},
-    "buy": PARTY_ROLE_WORDS["buy"] | {"you", "user", "recipient", "grantee", "subscriber",
-                                      "member", "franchisee", "employee", "assignee",
-                                      "end-user", "licencee"},
+    "supply": frozenset({"supplier", "vendor", "seller", "provider", "licensor", "licenser",
+                         "contractor", "consultant", "lessor", "landlord", "lender",
+                         "manufacturer", "grantor", "contributor", "owner", "holder", "author",
+                         "publisher", "franchisor", "assignor", "issuer", "creditor",
+                         "licensors"}),
+    "buy": frozenset({"customer", "client", "buyer", "purchaser", "licensee", "licencee",
+                      "lessee", "tenant", "borrower", "you", "user", "recipient", "grantee",
+                      "subscriber", "member", "franchisee", "assignee", "debtor", "licensees"}),
 }
+_EITHER_SIDE_WORDS = frozenset({"company", "authority", "principal", "agent", "employer",
+                                "employee", "developer", "distributor", "reseller", "partner",
+                                "contributors"})
 _ROLE_OF_WORD = {w: side for side, words in ROLE_WORDS.items() for w in words}
+_PARTY_WORDS = frozenset(_ROLE_OF_WORD) | _EITHER_SIDE_WORDS
 #: Words that name both parties, or a role either may take: a clause they hold binds each
 #: side alike.
 _MUTUAL_RE = re.compile(
@@ -129,10 +136,21 @@ _PERSON_RE = re.compile(
     r"\b(?:individual|person|legal\s+entity|entity|company|corporation|organi[sz]ation|firm|"
     r"partnership|incorporated|registered|limited|ltd|llc|inc|gmbh|plc|s\.a\.|b\.v\.|"
     r"university|institute|foundation|association)\b", re.IGNORECASE)
-#: Names that describe a person but are never a party to the agreement.
-_NOT_PARTY_WORDS = frozenset({"affiliate", "affiliates", "entity", "person", "third", "party",
-                              "parties", "representative", "representatives", "personnel",
-                              "subsidiary", "group", "competitor", "control", "users", "end"})
+#: Names of things and of people who are not parties: a term whose name ends in one of
+#: them is no party ("Customer Data", "Licensee Products", "End User", "Affiliate").
+_NOT_PARTY_WORDS = frozenset({
+    "affiliate", "affiliates", "entity", "entities", "person", "persons", "third", "party",
+    "parties", "representative", "representatives", "personnel", "subsidiary", "subsidiaries",
+    "group", "competitor", "control", "agreement", "software", "licence", "license", "licenses",
+    "licences", "documentation", "product", "products", "service", "services", "code", "data",
+    "term", "release", "version", "application", "applications", "materials", "material",
+    "information", "work", "works", "platform", "platforms", "tools", "account", "use",
+    "content", "site", "order", "orders", "form", "fees", "price", "marks", "rights",
+    "property", "derivative", "derivatives", "modifications", "deliverables", "equipment",
+    "goods", "premises", "territory", "not", "will", "shall", "end"})
+#: Words a definition of a person starts with ("means an individual or legal entity"):
+#: the first words of the definition, so that "a product of the company" does not count.
+_PERSON_WORDS_WINDOW = 14
 #: How often a term defined as a person must be the subject of a modal to count as a party
 #: (an "Affiliate" seldom is): once could be a quotation, twice is a pattern (a judgement,
 #: no source).
@@ -158,7 +176,9 @@ _EXTRA_DUTY_RE = re.compile(
     r"required|bound|due|payable))(?![\w])", re.IGNORECASE)
 _EXTRA_RIGHT_RE = re.compile(
     r"(?<![\w'])(?:(?:shall|will)\s+(?:be\s+entitled|have\s+the\s+right)\s+to|"
-    r"(?:has|have|retains?)\s+the\s+right\s+to|(?:is|are)\s+(?:entitled|permitted|free)\s+to)(?![\w])",
+    r"(?:(?:shall|will)\s+have|has|have|retains?)\s+(?:the\s+|sole\s+|exclusive\s+|full\s+|absolute\s+)*"
+    r"(?:right|control|option|discretion|authority|benefit)s?\b(?:\s+to)?|"
+    r"(?:is|are)\s+(?:entitled|permitted|free)\s+to)(?![\w])",
     re.IGNORECASE)
 #: A negation right after a modal ("shall not", "may never") or before it ("in no event
 #: shall", "no ... shall").
@@ -177,6 +197,9 @@ _RELEASE_RE = re.compile(
 #: Nouns that, negated ("has no right to"), take a benefit away.
 _RIGHT_NOUN_RE = re.compile(r"^\s*(?:\w+\s+){0,2}?(?:right|rights|licen[cs]e|entitlement|claim|remedy|permission)\b",
                             re.IGNORECASE)
+#: Provisions that carry no terms of the deal: what changes there (a party's address, a
+#: date, the title) favours no one.
+_FORMAL_KINDS = frozenset({"title", "parties", "signature"})
 #: Words that open a condition: a change inside one moves when the clause applies.
 _CONDITION_RE = re.compile(r"\b(?:if|where|when|whenever|in\s+the\s+event|provided\s+that|upon|"
                            r"in\s+case|on\s+the\s+occurrence)\b", re.IGNORECASE)
@@ -194,6 +217,9 @@ _TIGHTENERS = ("promptly", "without undue delay", "immediately", "best efforts",
                "all reasonable endeavours", "in good faith", "forthwith", "without delay")
 _DISCRETION = ("sole discretion", "absolute discretion", "sole and absolute discretion",
                "at its option", "discretion")
+_QUALIFIER_WORD_RE = re.compile(r"\b(?:" + "|".join(
+    r"\s+".join(map(re.escape, q.split())) for q in sorted({*_SOFTENERS, *_TIGHTENERS}, key=len, reverse=True))
+    + r")\b", re.IGNORECASE)
 #: Words that cut an exception out of what a clause says (common practice, no source).
 _CARVE_OUT_RE = re.compile(r"\b(?:except|excepting|unless|provided\s+that|provided\s+however|save\s+"
                            r"(?:as|that|for|where)|other\s+than|subject\s+to|to\s+the\s+extent|excluding|"
@@ -203,6 +229,9 @@ _CARVE_OUT_RE = re.compile(r"\b(?:except|excepting|unless|provided\s+that|provid
 _WIDEN_RE = re.compile(r"\b(?:including|includes|any\s+and\s+all|and/or|without\s+limitation|"
                        r"whatsoever|howsoever|all|any|every|each|indirect|consequential)\b",
                        re.IGNORECASE)
+#: Words that add an item to a list (", defend", "or lost data", "A and"): the clause
+#: covers more.
+_LIST_ITEM_RE = re.compile(r"^\s*(?:,|and\b|or\b|as\s+well\s+as\b)|(?:,|\band|\bor)\s*$", re.IGNORECASE)
 #: Before a period: a deadline (more time helps whoever must act) ...
 _DEADLINE_RE = re.compile(r"\b(?:within|no\s+later\s+than|not\s+later\s+than|by|before|prior\s+to\s+the\s+end|"
                           r"up\s+to|at\s+the\s+latest|no\s+more\s+than|not\s+more\s+than)\s*$", re.IGNORECASE)
@@ -244,12 +273,41 @@ def _mention_re(forms: tuple[str, ...]) -> re.Pattern[str] | None:
     return re.compile(r"(?<![\w-])(?:" + body + r")(?:'s|\u2019s|s'|s\u2019)?(?![\w-])", re.IGNORECASE)
 
 
+def _head(name: str) -> str:
+    """The last word of a name, case-folded ("Customer Data" -> "data")."""
+    words = re.split(r"[\s-]+", name.casefold().strip())
+    return re.sub(r"(?:'s|\u2019s)$", "", words[-1]) if words else ""
+
+
 def _role(names: Iterable[str]) -> str | None:
+    """"supply", "buy" or None: the side a party's names say (by their last word)."""
     for name in names:
-        for w in re.split(r"[\s-]+", name.casefold()):
-            if w in _ROLE_OF_WORD:
-                return _ROLE_OF_WORD[w]
+        side = _ROLE_OF_WORD.get(_head(name))
+        if side is not None:
+            return side
     return None
+
+
+def _describes_a_person(term: str, definition: str) -> bool:
+    """Whether *definition* says *term* is a person or company: "means an individual or
+    legal entity", or the words around the quoted name ("Altova GmbH ("Altova")", "("Esri"),
+    a California corporation")."""
+    if _PERSON_RE.search(" ".join(definition.split()[:_PERSON_WORDS_WINDOW])) and re.match(
+            r"\s*(?:[\"\u201c]?[^\"\u201d]*[\"\u201d]?\s*)?(?:means|shall\s+mean|refers\s+to|is)\b",
+            definition, re.IGNORECASE):
+        return True
+    m = re.search(r"[\"\u201c\u2018']" + re.escape(term) + r"[\"\u201d\u2019']", definition)
+    if m is None:
+        return False
+    return _PERSON_RE.search(definition, max(0, m.start() - _PERSON_NEAR), m.end() + _PERSON_NEAR) is not None
+
+
+#: Characters around a quoted name read for the words that say it is a company.
+_PERSON_NEAR = 80
+
+
+def _names_a_party(names: Sequence[str]) -> bool:
+    return any(_head(n) in _PARTY_WORDS for n in names)
 
 
 _SUBJECT_RE_CACHE: dict[str, re.Pattern[str]] = {}
@@ -276,20 +334,23 @@ def party_terms(doc: Document) -> tuple[str, ...]:
     kinds = {p.id: p.kind for p in doc.provisions}
     found: list[str] = []
     for t in doc.terms:
-        words = {w for n in t.names for w in re.split(r"[\s-]+", n.casefold())}
-        if words & _NOT_PARTY_WORDS and not words & set(_ROLE_OF_WORD):
+        if all(_head(n) in _NOT_PARTY_WORDS for n in t.names):
             continue
-        if _role(t.names) is not None:
+        person = _describes_a_person(t.term, t.definition)
+        if _names_a_party(t.names):
             found.append(t.term)
-        elif kinds.get(t.provision) == "parties" and _PERSON_RE.search(t.definition):
+        elif kinds.get(t.provision) in ("parties", "title") and person:
             found.append(t.term)
-        elif _PERSON_RE.search(t.definition) and sum(_subject_uses(text, n) for n in t.names) >= MIN_SUBJECT_USES:
+        elif person and sum(_subject_uses(text, n) for n in t.names) >= MIN_SUBJECT_USES:
             found.append(t.term)
     known = {n.casefold() for t in doc.terms for n in t.names}
     counts: dict[str, int] = {}
-    for m in re.finditer(r"(?<![\w-])[A-Z][A-Za-z]+(?![\w-])", text):
+    # a capitalised role word on its own: not part of a longer name ("User Product", "The
+    # Qt Company"), not a plural of a known name
+    for m in re.finditer(r"(?<![\w-])(?<![A-Z][\w-]\s)(?<![A-Z][\w-]{2}\s)(?<![A-Z][\w-]{3}\s)[A-Z][A-Za-z]+(?![\w-])(?!\s+[A-Z])", text):
         w = m.group()
-        if w.casefold() in _ROLE_OF_WORD and w.casefold() not in known and w.casefold() != "you":
+        fold = w.casefold()
+        if fold in _PARTY_WORDS and fold not in known and fold != "you" and fold.rstrip("s") not in known:
             counts[w] = counts.get(w, 0) + 1
     for w, n in counts.items():
         if w.casefold() in known:
@@ -343,15 +404,18 @@ def find_parties(draft: Document, precedent: Document, term_map: Sequence[TermMa
     for form in list(forms):
         if form == "you":
             forms.setdefault("your", forms[form])
-    # two parties of unknown sides are opposite sides
-    unknown = [n for n in names if side[n] is None]
-    known = {s for s in side.values() if s}
-    if len(names) == 2 and unknown:
-        if len(unknown) == 2:
-            side[names[0]], side[names[1]] = "supply", "buy"
-        else:
-            other = next(s for s in ("supply", "buy") if s not in known) if len(known) == 1 else None
-            side[unknown[0]] = other
+    # a party whose name says no side ("the Company") is on the side no other party is on:
+    # among the parties the precedent defines, then among all
+    defined = {t.term for t in precedent.terms}
+    for group in ([n for n in names if n in defined], list(names)):
+        known = {side[n] for n in group if side[n]}
+        unknown = [n for n in group if side[n] is None]
+        if unknown and len(known) == 1:
+            other = "buy" if "supply" in known else "supply"
+            for n in unknown:
+                side[n] = other
+        elif len(unknown) == 2 and not known:
+            side[unknown[0]], side[unknown[1]] = "supply", "buy"
     return Parties(names, side, forms)
 
 
@@ -379,8 +443,19 @@ class Holding:
 MUTUAL = "\x00each party"
 
 
+#: A clause that only qualifies the one before it ("; provided that ...", "; and ..."):
+#: read with it.
+_PROVISO_RE = re.compile(r"\s*(?:\([a-z0-9]{1,4}\)\s*)?(?:provided|but|and|or|unless|except|save|subject|"
+                         r"in\s+which\s+case|failing\s+which)\b", re.IGNORECASE)
+
+
 def _clause_bounds(text: str, span: tuple[int, int]) -> tuple[int, int]:
-    return sentence_bounds(text, span)
+    """The clause around *span*: its sentence cut at ";", joined with the clause before when
+    it only qualifies it ("...; provided, however, that ...")."""
+    lo, hi = sentence_bounds(text, span)
+    while lo > 1 and text[lo - 1].isspace() and text[:lo].rstrip().endswith(";") and _PROVISO_RE.match(text, lo):
+        lo = sentence_bounds(text, (lo - 2, lo - 2))[0]
+    return lo, hi
 
 
 def _whole_sentence(text: str, span: tuple[int, int]) -> tuple[int, int]:
@@ -431,11 +506,13 @@ class Judge:
         return out
 
     def _modals(self, text: str, lo: int, hi: int) -> list[tuple[int, int, str]]:
-        found = [m for m in _phrase_matches(self.rules, "obligation", text) if lo <= m[0] < hi]
-        for rx in (_EXTRA_DUTY_RE, _EXTRA_RIGHT_RE):
-            for m in rx.finditer(text, lo, hi):
-                if not any(a < m.end() and m.start() < b for a, b, _p in found):
-                    found.append((m.start(), m.end(), " ".join(m.group().lower().split())))
+        rights = [(m.start(), m.end(), " ".join(m.group().lower().split()))
+                  for m in _EXTRA_RIGHT_RE.finditer(text, lo, hi)]  # "shall have the right to" first
+        found = [m for m in _phrase_matches(self.rules, "obligation", text) if lo <= m[0] < hi
+                 and not any(a < m[1] and m[0] < b for a, b, _p in rights)] + rights
+        for m in _EXTRA_DUTY_RE.finditer(text, lo, hi):
+            if not any(a < m.end() and m.start() < b for a, b, _p in found):
+                found.append((m.start(), m.end(), " ".join(m.group().lower().split())))
         found.sort()
         return found
 
@@ -487,6 +564,12 @@ class Judge:
             text[max(lo, mm[0] - 25):mm[0]], re.IGNORECASE)]
         if subjects:
             return subjects[-1][2]
+        if mentions and re.fullmatch(r"(?:is|are)\s+(?:due|payable)", _phrase):
+            # "invoices issued by the Supplier are due": the other party pays
+            by = mentions[-1][2]
+            sides = self.parties.side
+            others = [n for n in self.parties.names if n != by and sides.get(n) and sides.get(n) != sides.get(by)]
+            return others[0] if others else None
         if mentions:
             return mentions[-1][2]
         # no party since the previous modal: that modal's holder ("Licensor warrants that
@@ -516,6 +599,14 @@ class Judge:
             modals = [m for m in self._modals(text, slo, shi) if m[1] <= span[0]]
             if modals:
                 lo = slo
+        if not modals and lo > 0:
+            # a sentence without a modal that qualifies the one before ("The Supplier shall
+            # deliver ... Time of delivery is not of the essence."): the provision's last
+            # modal before it
+            earlier = self._modals(text, 0, lo)
+            if earlier:
+                lo = _clause_bounds(text, (earlier[-1][0], earlier[-1][1]))[0]
+                modals = self._modals(text, lo, earlier[-1][1])
         parent = None
         parent_holding = None
         if parent_text:
@@ -550,7 +641,9 @@ class Judge:
         a, h = self.parties.side.get(self.acting_for), self.parties.side.get(holder)
         if a is not None and h is not None:
             return 1 if a == h else -1
-        return -1
+        if len(self.parties.names) == 2:
+            return -1  # the other party
+        return None  # a third party of unknown side
 
     def _name(self, holder: str) -> str:
         return "each party" if holder == MUTUAL else f"the {holder}" if not holder.casefold() in ("you",) else holder
@@ -561,6 +654,8 @@ class Judge:
         """(direction, reason naming the parties or None) of deviation *v*, which has the
         attributes of :class:`core.model.Deviation` and the ``signals`` the rules found."""
         if v.category != "substantive" or v.part == "heading" or v.change == "move":
+            return NEUTRAL, None
+        if any(r.startswith(BLANK_FILLED) for r in v.reasons):  # a value the precedent asked for
             return NEUTRAL, None
         if v.part == "provision":
             if v.change == "add-provision":
@@ -573,7 +668,10 @@ class Judge:
         dp, pp = self._dpos.get(v.draft_provision), self._ppos.get(v.precedent_provision)
         if dp is None or pp is None or v.draft_span is None or v.precedent_span is None:
             return UNCLEAR, None
-        return self._verdict(self._text_effects(v, pp, dp))
+        effects = self._text_effects(v, pp, dp)
+        if not effects and pp.kind in _FORMAL_KINDS:  # the names and dates of the parties
+            return NEUTRAL, None
+        return self._verdict(effects)
 
     def _parent_text(self, doc_pos: Mapping[str, Provision], p: Provision) -> str | None:
         parent = doc_pos.get(p.parent) if p.parent else None
@@ -620,6 +718,11 @@ class Judge:
         if names & {"number_changed", "number_added", "number_removed", "interest_rate_changed"} or \
                 any(r.startswith("figure ") for r in v.reasons):
             out += self._figure_effects(h, P, ps, D, ds)
+        elif "wording_changed" in names:  # "one copy" -> "two copies": a count in words
+            counts = [_count_in_words(text[a:b]) for text, (a, b) in ((P, ps), (D, ds))]
+            if None not in counts and counts[0] != counts[1]:
+                out.append(_Effect(h.stance if counts[1] > counts[0] else -h.stance, h.holder,
+                                   f"('{_excerpt(D, h.start)}')", h.stance, release=h.release))
         if not out and names & {"sentence_inserted", "sentence_deleted", "wording_changed",
                                 "obligation_added", "obligation_removed"}:
             out += self._new_clauses(v, P, D, ps, ds)
@@ -811,6 +914,12 @@ class Judge:
         """Words added or removed that cut an exception out of the clause or widen it."""
         added, removed = D[ds[0]:ds[1]], P[ps[0]:ps[1]]
         score = 0
+        for words, sign in ((added, 1), (removed, -1)):  # "promptly", "reasonably" ...
+            for q in _QUALIFIER_WORD_RE.findall(words):
+                kind = _qualifier_kind(q)
+                score += sign * (-1 if kind > 0 else 1) if kind != 0 else 0
+        if score:
+            return [self._narrowing(h, score > 0, D)]
         if _CARVE_OUT_RE.search(added):
             score += 1
         if _CARVE_OUT_RE.search(removed):
@@ -820,9 +929,17 @@ class Judge:
                 score = -1
             elif _WIDEN_RE.search(removed) and not _WIDEN_RE.search(added):
                 score = 1
+        if score == 0:  # an item added to a list ("indemnify, defend and hold"), or removed
+            if _LIST_ITEM_RE.search(added) and not removed.strip():
+                score = -1
+            elif _LIST_ITEM_RE.search(removed) and not added.strip():
+                score = 1
         if score == 0:
             return []
-        return [self._narrowing(h, score > 0, D)]
+        narrows = score > 0
+        if self._in_carve_out(D, ds, h):
+            narrows = not narrows
+        return [self._narrowing(h, narrows, D)]
 
     def _clauses(self, text: str, *, added: bool) -> list[_Effect]:
         return self._new_clauses(None, "" if added else text, text if added else "",
@@ -879,6 +996,14 @@ class _Effect:
     stance: int
     kind: str = ""
     release: bool = False
+
+
+def _count_in_words(s: str) -> float | None:
+    """The count a few words give ("two copies" -> 2), or None."""
+    words = s.casefold().split()
+    if not words or len(words) > 3:
+        return None
+    return _words_value(words[0])
 
 
 #: Rough length of each unit of a period in days, to compare "30 days" with "1 month".

@@ -679,7 +679,7 @@ def _law_forum_signal(p_text: str, p_span, d_text: str, d_span, clause_type: str
     return Signal("law_or_forum_changed", f"{what} changed: {_excerpt(pw)} removed")
 
 
-_INTEREST_RE = re.compile(r"\binterest\b", re.IGNORECASE)
+_INTEREST_RE = re.compile(r"\b(?:interest|late(?:-|\s+)(?:payment\s+)?(?:charges?|fees?))\b", re.IGNORECASE)
 _LATE_RE = re.compile(r"\b(?:late|overdue|unpaid|outstanding|due\s+date|arrears)\b", re.IGNORECASE)
 
 
