@@ -13,10 +13,14 @@ __all__ = [
     "CATEGORY_NAMES",
     "CHANGE_NAMES",
     "DECISION_NAMES",
+    "DIRECTION_MARKS",
+    "DIRECTION_ORDER",
     "PAST_USE",
     "SHORT_DECISION_NAMES",
     "STATUS_NAMES",
     "clause_label",
+    "direction_sentence",
+    "direction_text",
     "frequency_sentence",
     "frequency_text",
     "provision_caption",
@@ -94,6 +98,29 @@ def summary(d: Deviation) -> str:
     if d.change == "replace":
         return f"\u201c{old}\u201d \u2192 \u201c{new}\u201d"
     return CHANGE_NAMES.get(d.change, d.change)
+
+
+#: Directions in the list's sort order (adverse first, as the engine ranks them at equal
+#: severity) and the mark before each word: a downward and an upward pointing triangle, an
+#: equals sign, a question mark -- shapes, so that they read without colour.
+DIRECTION_ORDER = {"adverse": 0, "unclear": 1, "neutral": 2, "favourable": 3}
+DIRECTION_MARKS = {"adverse": "\u25bc", "favourable": "\u25b2", "neutral": "=", "unclear": "?"}
+
+
+def direction_text(d: Deviation) -> str:
+    """"▼ adverse": the deviation's direction for the party acted for, with its mark."""
+    return f"{DIRECTION_MARKS.get(d.direction, '')} {d.direction}".strip()
+
+
+def direction_sentence(d: Deviation, acting_for: str) -> str:
+    """The direction in a sentence, with the engine's reason naming the parties."""
+    what = {"adverse": f"Against the {acting_for}, the party you act for.",
+            "favourable": f"For the {acting_for}, the party you act for.",
+            "neutral": "For neither party: no change of meaning, or a clause binding each party alike.",
+            "unclear": "The wording does not tell whose side this change is on."}.get(d.direction, "")
+    why = next((r for r in d.reasons if f"to the {acting_for}" in r or r.endswith("alike")
+                or r.endswith(f"to {acting_for}")), "")
+    return f"{what}\n{why}".strip()
 
 
 def frequency_text(f: Frequency | None) -> str:
