@@ -178,7 +178,7 @@ _EXTRA_RIGHT_RE = re.compile(
     r"(?<![\w'])(?:(?:shall|will)\s+(?:be\s+entitled|have\s+the\s+right)\s+to|"
     r"(?:(?:shall|will)\s+have|has|have|retains?)\s+(?:the\s+|sole\s+|exclusive\s+|full\s+|absolute\s+)*"
     r"(?:right|control|option|discretion|authority|benefit)s?\b(?:\s+to)?|"
-    r"(?:is|are)\s+(?:entitled|permitted|free)\s+to)(?![\w])",
+    r"(?:is|are)\s+(?:entitled|permitted|free)\s+to|(?:is|are)\s+refundable)(?![\w])",
     re.IGNORECASE)
 #: A negation right after a modal ("shall not", "may never") or before it ("in no event
 #: shall", "no ... shall").
@@ -200,6 +200,8 @@ _RIGHT_NOUN_RE = re.compile(r"^\s*(?:\w+\s+){0,2}?(?:right|rights|licen[cs]e|ent
 #: Provisions that carry no terms of the deal: what changes there (a party's address, a
 #: date, the title) favours no one.
 _FORMAL_KINDS = frozenset({"title", "parties", "signature"})
+#: Modal phrases of money owed, whose holder is its payer (:meth:`Judge._payer`).
+_MONEY_PHRASE_RE = re.compile(r"(?:is|are)\s+(?:due|payable|refundable)|accrues?", re.IGNORECASE)
 #: Words that open a condition: a change inside one moves when the clause applies.
 _CONDITION_RE = re.compile(r"\b(?:if|where|when|whenever|in\s+the\s+event|provided\s+that|upon|"
                            r"in\s+case|on\s+the\s+occurrence)\b", re.IGNORECASE)
@@ -214,7 +216,8 @@ _SOFTENERS = ("reasonable", "reasonably", "unreasonably", "material", "materiall
               "commercially reasonable efforts", "as soon as reasonably practicable",
               "commercially", "practicable")
 _TIGHTENERS = ("promptly", "without undue delay", "immediately", "best efforts", "best endeavours",
-               "all reasonable endeavours", "in good faith", "forthwith", "without delay")
+               "all reasonable endeavours", "in good faith", "forthwith", "without delay", "fully",
+               "strictly", "at all times", "in full")
 _DISCRETION = ("sole discretion", "absolute discretion", "sole and absolute discretion",
                "at its option", "discretion")
 _QUALIFIER_WORD_RE = re.compile(r"\b(?:" + "|".join(
@@ -233,7 +236,7 @@ _WIDEN_RE = re.compile(r"\b(?:including|includes|any\s+and\s+all|and/or|without\
 #: covers more.
 _LIST_ITEM_RE = re.compile(r"^\s*(?:,|and\b|or\b|as\s+well\s+as\b)|(?:,|\band|\bor)\s*$", re.IGNORECASE)
 #: Before a period: a deadline (more time helps whoever must act) ...
-_DEADLINE_RE = re.compile(r"\b(?:within|no\s+later\s+than|not\s+later\s+than|by|before|prior\s+to\s+the\s+end|"
+_DEADLINE_RE = re.compile(r"\b(?:within|no\s+later\s+than|not\s+later\s+than|by|before|prior\s+to\s+the\s+end|net|"
                           r"up\s+to|at\s+the\s+latest|no\s+more\s+than|not\s+more\s+than)\s*$", re.IGNORECASE)
 #: ... a notice or waiting period (a longer one burdens whoever must give or wait for it) ...
 _NOTICE_RE = re.compile(r"(?:\b(?:notice|prior|advance|in\s+advance|at\s+least|not\s+less\s+than|"
@@ -302,6 +305,15 @@ def _describes_a_person(term: str, definition: str) -> bool:
     return _PERSON_RE.search(definition, max(0, m.start() - _PERSON_NEAR), m.end() + _PERSON_NEAR) is not None
 
 
+def _named_company(term: str, text: str) -> bool:
+    """Whether *text* defines *term* as the short name of a company: "Tanuki Software, Ltd.
+    ("TSI")", "Altova GmbH ("Altova")"."""
+    for m in re.finditer(r"\(\s*(?:the\s+)?[\"\u201c\u2018']" + re.escape(term) + r"[\"\u201d\u2019']", text):
+        if _PERSON_RE.search(text, max(0, m.start() - _PERSON_NEAR), m.start()):
+            return True
+    return False
+
+
 #: Characters around a quoted name read for the words that say it is a company.
 _PERSON_NEAR = 80
 
@@ -336,7 +348,7 @@ def party_terms(doc: Document) -> tuple[str, ...]:
     for t in doc.terms:
         if all(_head(n) in _NOT_PARTY_WORDS for n in t.names):
             continue
-        person = _describes_a_person(t.term, t.definition)
+        person = _describes_a_person(t.term, t.definition) or _named_company(t.term, text)
         if _names_a_party(t.names):
             found.append(t.term)
         elif kinds.get(t.provision) in ("parties", "title") and person:
@@ -559,17 +571,21 @@ class Judge:
         # the subject: the nearest party before the modal, after the previous modal
         prev_end = max([e for s, e, _p in modals if e <= ms] or [lo])
         mentions = self._party_at(text, max(lo, prev_end), ms)
-        subjects = [mm for mm in mentions if not re.search(
-            r"\b(?:to|from|against|with|for|by|than|on\s+behalf\s+of|notify|inform)\s+(?:the\s+)?$",
-            text[max(lo, mm[0] - 25):mm[0]], re.IGNORECASE)]
+
+        def after(words: str, mm: tuple[int, int, str]) -> bool:
+            return re.search(r"\b(?:" + words + r")\s+(?:the\s+)?$", text[max(lo, mm[0] - 25):mm[0]],
+                             re.IGNORECASE) is not None
+
+        subjects = [mm for mm in mentions
+                    if not after(r"to|from|against|with|for|by|than|of|on\s+behalf\s+of|notify|inform", mm)]
         if subjects:
             return subjects[-1][2]
-        if mentions and re.fullmatch(r"(?:is|are)\s+(?:due|payable)", _phrase):
-            # "invoices issued by the Supplier are due": the other party pays
-            by = mentions[-1][2]
-            sides = self.parties.side
-            others = [n for n in self.parties.names if n != by and sides.get(n) and sides.get(n) != sides.get(by)]
-            return others[0] if others else None
+        if _MONEY_PHRASE_RE.fullmatch(_phrase):
+            return self._payer(text, ms, me, lo, mentions, after)
+        # "damages from X to Y shall not exceed", "liability of X": the one who owes
+        owing = [mm for mm in mentions if after(r"from|of|by", mm)]
+        if owing:
+            return owing[-1][2]
         if mentions:
             return mentions[-1][2]
         # no party since the previous modal: that modal's holder ("Licensor warrants that
@@ -577,16 +593,28 @@ class Judge:
         earlier = [md for md in modals if md[1] <= ms]
         if earlier:
             return self._holder(text, earlier[-1], lo, [md for md in modals if md[1] <= earlier[-1][0]], parent)
-        if parent is not None:
-            return parent
-        # money owed without a subject: its payer ("interest accrues on sums due from the
-        # Customer", "fees are payable by Licensee")
+        return parent
+
+    def _payer(self, text: str, ms: int, me: int, lo: int, mentions, after) -> str | None:  # noqa: ANN001
+        """Who owes money that "is due", "is payable", "accrues" or "is refundable": the
+        party it is payable by ("payable by Licensee"), else the other side of the party that
+        issues the invoice ("invoices issued by the Supplier are due"), else the buying side,
+        who pays in a commercial agreement ("all amounts payable are due net 30 days"; common
+        practice, no source)."""
         _lo, hi = _clause_bounds(text, (ms, me))
-        if _PAYMENT_RE.search(text, lo, hi):
-            for s, _e, owner in self._party_at(text, me, hi):
-                if re.search(r"\b(?:by|from|of)\s+(?:the\s+)?$", text[max(me, s - 12):s], re.IGNORECASE):
-                    return owner
-        return None
+        for s, _e, owner in self._party_at(text, me, hi):
+            if re.search(r"\b(?:by|from)\s+(?:the\s+)?$", text[max(me, s - 12):s], re.IGNORECASE):
+                return owner
+        sides = self.parties.side
+        issuers = [mm for mm in mentions if after(r"by|to", mm)]
+        if issuers:
+            by = issuers[-1][2]
+            others = [n for n in self.parties.names if sides.get(n) and sides.get(n) != sides.get(by)]
+            return others[0] if others else None
+        payers = [mm for mm in mentions if after(r"from|of", mm)]
+        if payers:
+            return payers[-1][2]
+        return next((n for n in self.parties.names if sides.get(n) == "buy"), None)
 
     def holding(self, text: str, span: tuple[int, int], *, parent_text: str | None = None
                 ) -> Holding | None:
@@ -723,6 +751,13 @@ class Judge:
             if None not in counts and counts[0] != counts[1]:
                 out.append(_Effect(h.stance if counts[1] > counts[0] else -h.stance, h.holder,
                                    f"('{_excerpt(D, h.start)}')", h.stance, release=h.release))
+            else:  # "twice the fees" for "the fees": a multiple added or removed
+                factor = _multiplier(D[ds[0]:ds[1]]) / _multiplier(P[ps[0]:ps[1]])
+                if factor != 1:
+                    at = _Figure(ds[0], max(ds[1], ds[0] + 1), "amount")
+                    e = self._figure_effect(h, D, at, higher=factor > 1)
+                    if e is not None:
+                        out.append(e)
         if not out and names & {"sentence_inserted", "sentence_deleted", "wording_changed",
                                 "obligation_added", "obligation_removed"}:
             out += self._new_clauses(v, P, D, ps, ds)
@@ -996,6 +1031,26 @@ class _Effect:
     stance: int
     kind: str = ""
     release: bool = False
+
+
+@dataclass(frozen=True, slots=True)
+class _Figure:
+    """Where a figure stands in a text, and its kind (as :class:`.severity.Quantity`)."""
+
+    start: int
+    end: int
+    kind: str
+
+
+#: Words that multiply the sum they come before ("twice the fees"; common English).
+_MULTIPLIERS = {"twice": 2.0, "double": 2.0, "treble": 3.0, "triple": 3.0, "half": 0.5,
+                "one half": 0.5, "two times": 2.0, "three times": 3.0, "quarter": 0.25}
+
+
+def _multiplier(words: str) -> float:
+    """The factor *words* put before a sum (1 when none)."""
+    w = " ".join(words.casefold().replace(" of", "").split())
+    return _MULTIPLIERS.get(w, 1.0)
 
 
 def _count_in_words(s: str) -> float | None:
