@@ -200,6 +200,11 @@ _RIGHT_NOUN_RE = re.compile(r"^\s*(?:\w+\s+){0,2}?(?:right|rights|licen[cs]e|ent
 #: Provisions that carry no terms of the deal: what changes there (a party's address, a
 #: date, the title) favours no one.
 _FORMAL_KINDS = frozenset({"title", "parties", "signature"})
+#: After a party's possessive: what it owes, may do or bears ("Licensee's aggregate
+#: liability", "the Supplier's obligations").
+_OWED_NOUN_RE = re.compile(r"\s+(?:\w+\s+){0,2}?(?:liabilit\w*|obligations?|responsibilit\w*|dut(?:y|ies)|"
+                           r"rights?|remed(?:y|ies)|consent|approval|discretion|option|election|decision)\b",
+                           re.IGNORECASE)
 #: Modal phrases of money owed, whose holder is its payer (:meth:`Judge._payer`).
 _MONEY_PHRASE_RE = re.compile(r"(?:is|are)\s+(?:due|payable|refundable)|accrues?", re.IGNORECASE)
 #: Words that open a condition: a change inside one moves when the clause applies.
@@ -238,6 +243,10 @@ _LIST_ITEM_RE = re.compile(r"^\s*(?:,|and\b|or\b|as\s+well\s+as\b)|(?:,|\band|\b
 #: Before a period: a deadline (more time helps whoever must act) ...
 _DEADLINE_RE = re.compile(r"\b(?:within|no\s+later\s+than|not\s+later\s+than|by|before|prior\s+to\s+the\s+end|net|"
                           r"up\s+to|at\s+the\s+latest|no\s+more\s+than|not\s+more\s+than)\s*$", re.IGNORECASE)
+#: ... how long a duty or right lasts ("for no less than three (3) years", "for a period of")
+_DURATION_RE = re.compile(r"\b(?:for|during|period\s+of|term\s+of|lasting)\s+(?:a\s+(?:further\s+)?period\s+of\s+)?"
+                          r"(?:at\s+least|no\s+less\s+than|not\s+less\s+than|up\s+to|a\s+minimum\s+of)?\s*$",
+                          re.IGNORECASE)
 #: ... a notice or waiting period (a longer one burdens whoever must give or wait for it) ...
 _NOTICE_RE = re.compile(r"(?:\b(?:notice|prior|advance|in\s+advance|at\s+least|not\s+less\s+than|"
                         r"no\s+less\s+than|minimum\s+of|after|following)\b)", re.IGNORECASE)
@@ -273,7 +282,9 @@ def _mention_re(forms: tuple[str, ...]) -> re.Pattern[str] | None:
     if not forms:
         return None
     body = "|".join(r"\s+".join(map(re.escape, f.split())) for f in forms)
-    return re.compile(r"(?<![\w-])(?:" + body + r")(?:'s|\u2019s|s'|s\u2019)?(?![\w-])", re.IGNORECASE)
+    # not the first word of a longer name ("LSI Licensed Code", "Licensee Products")
+    return re.compile(r"(?<![\w-])(?:" + body + r")(?:'s|\u2019s|s'|s\u2019)?(?![\w-])(?!(?-i:[ \t]+[A-Z][a-z]))",
+                      re.IGNORECASE)
 
 
 def _head(name: str) -> str:
@@ -570,7 +581,7 @@ class Judge:
             return got[0][2]
         # the subject: the nearest party before the modal, after the previous modal
         prev_end = max([e for s, e, _p in modals if e <= ms] or [lo])
-        mentions = self._party_at(text, max(lo, prev_end), ms)
+        mentions = [mm for mm in self._party_at(text, max(lo, prev_end), ms) if not self._owns_a_thing(text, mm)]
 
         def after(words: str, mm: tuple[int, int, str]) -> bool:
             return re.search(r"\b(?:" + words + r")\s+(?:the\s+)?$", text[max(lo, mm[0] - 25):mm[0]],
@@ -594,6 +605,16 @@ class Judge:
         if earlier:
             return self._holder(text, earlier[-1], lo, [md for md in modals if md[1] <= earlier[-1][0]], parent)
         return parent
+
+    @staticmethod
+    def _owns_a_thing(text: str, mention: tuple[int, int, str]) -> bool:
+        """Whether a possessive mention names what a party owns ("LSI's confidential
+        information") rather than what it owes or may do ("Licensee's liability", "the
+        Supplier's obligations"), which makes it no subject."""
+        s, e, _owner = mention
+        if not re.search(r"(?:'s|\u2019s|s'|s\u2019)$", text[s:e]):
+            return False
+        return not _OWED_NOUN_RE.match(text, e)
 
     def _payer(self, text: str, ms: int, me: int, lo: int, mentions, after) -> str | None:  # noqa: ANN001
         """Who owes money that "is due", "is payable", "accrues" or "is refundable": the
@@ -895,8 +916,11 @@ class Judge:
         before, after, clause = self._context(D, q)
         what = f"('{_excerpt(D, h.start)}')"
         if q.kind == "duration":
+            if _DURATION_RE.search(before):  # how long the duty or right lasts
+                return _Effect(h.stance if higher else -h.stance, h.holder, what, h.stance)
             if _DEADLINE_RE.search(before):  # more time to act helps whoever acts
-                return _Effect(1 if higher else -1, h.holder, what, h.stance, "time")
+                actor = self._actor(D, h, q.start)
+                return _Effect(1 if higher else -1, actor, what, h.stance, "time")
             if _NOTICE_RE.search(before[-25:]) or re.match(r"\W*\s*(?:written\s+|prior\s+)?(?:notice|prior|in\s+advance|before)",
                                                          after, re.IGNORECASE):
                 return _Effect(-1 if higher else 1, h.holder, what, h.stance, "notice")
@@ -911,6 +935,21 @@ class Judge:
             sign = 1 if receives or (h.stance == BENEFIT and not h.release) else -1
             return _Effect(sign if higher else -sign, h.holder, what, h.stance, "amount")
         return _Effect(h.stance if higher else -h.stance, h.holder, what, h.stance)
+
+    def _actor(self, text: str, h: Holding, at: int) -> str | None:
+        """Who must act by a deadline at *at*: the subject named between the clause's modal
+        and the deadline ("LSI may terminate ... unless Licensee cures the breach within 60
+        days"), else the clause's holder."""
+        lo, _hi = _clause_bounds(text, (at, at))
+        start = h.end if lo <= h.end <= at else lo
+        for s, _e, owner in reversed(self._party_at(text, start, at)):
+            if not re.search(r"\b(?:to|from|against|with|for|by|than|of|notify|inform)\s+(?:the\s+)?$",
+                             text[max(start, s - 25):s], re.IGNORECASE) and \
+                    re.match(r"(?:'s|\u2019s)?\s+(?:\w+\s+){0,2}?\w+(?:s|es)\b", text[_e:_e + 40]) and \
+                    not re.match(r"\s+(?:is|are|was|were|be|been)\s+\w+(?:ed|en)\b", text[_e:_e + 40]) and \
+                    owner != MUTUAL:
+                return owner
+        return h.holder
 
     def _limit_effect(self, h: Holding, text: str, q, *, added: bool) -> _Effect | None:  # noqa: ANN001
         """A figure that only one side has: a cap or limit introduced (or dropped)."""
