@@ -241,8 +241,8 @@ class Frequency:
     closest: tuple[ClosestProvision, ...] = ()
     #: For inserted or removed words: same-type library provisions that contain them.
     containing: int | None = None
-    #: The reviewer's label of the matching variant: preferred, acceptable, fallback,
-    #: not acceptable; None when unlabelled.
+    #: The firm's stance on the matching variant (core.library.index.POSITIONS): house
+    #: wording, can live with, last concession, refuse; None when unlabelled.
     position: str | None = None
 
 

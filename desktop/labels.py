@@ -134,7 +134,7 @@ def frequency_text(f: Frequency | None) -> str:
 def frequency_sentence(d: Deviation) -> str:
     """The deviation's figures in a sentence: the tally strip in words
     (:func:`desktop.tally.tally_words`), what the figure counts for this kind of change,
-    and the firm's label of the wording."""
+    and the firm's stance on the wording."""
     from .tally import tally, tally_words
 
     f = d.frequency
@@ -150,5 +150,5 @@ def frequency_sentence(d: Deviation) -> str:
         text += f"; {f.same_type} {'has' if f.same_type == 1 else 'have'} a provision of this type"
     text = text[:1].upper() + text[1:] + "."
     if f.position:
-        text += f" The firm's label for this wording: {f.position}."
+        text += f" The firm's stance on this wording: {f.position}."
     return text

@@ -454,7 +454,7 @@ def _share(matching: int, of: int) -> str:
 
 def _how_common(dev: Deviation) -> str | None:
     """The "past use" cell in words (see :func:`_table_notes` for what the figures mean);
-    the firm's label of the wording after it.  None without a precedent set."""
+    the firm's stance on the wording after it.  None without a precedent set."""
     f = dev.frequency
     if f is None:
         return None
@@ -476,7 +476,7 @@ def _how_common(dev: Deviation) -> str | None:
         text = ("the one past agreement has no such clause" if f.total == 1
                 else f"none of the {_agreements(f.total)} has such a clause")
     if f.position:
-        text += f"; firm's label: {f.position}"
+        text += f"; firm's stance: {f.position}"
     return text
 
 
@@ -652,9 +652,9 @@ def _table_notes(review: Review, rows: Sequence[IssueRow], order: str) -> list[s
             f"Past use: of the firm's {_agreements(total)} in the precedent set, how many "
             "that have a clause of the same type carry the draft's wording; for a provision "
             "the draft leaves out, how many lack it as well; for a renamed defined term, how "
-            "many of those that define the term use the draft's name. \u201cFirm's label\u201d "
-            "is the label the firm gave that wording (preferred, acceptable, fallback, not "
-            "acceptable).")
+            "many of those that define the term use the draft's name. \u201cFirm's stance\u201d "
+            "is the firm's stance on that wording (house wording, can live with, last concession, "
+            "refuse).")
     if review.acting_for and any(r.direction is not None for r in rows):
         notes.append(f"Direction: for the {review.acting_for}, the party acted for -- adverse "
                      "(against it), favourable (for it), neutral (no change of meaning, or a "

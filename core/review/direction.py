@@ -111,15 +111,13 @@ ROLE_WORDS: dict[str, frozenset[str]] = {
     "supply": frozenset({"supplier", "vendor", "seller", "provider", "licensor", "licenser",
                          "contractor", "consultant", "lessor", "landlord", "lender",
                          "manufacturer", "grantor", "contributor", "owner", "holder", "author",
-                         "publisher", "franchisor", "assignor", "issuer", "creditor",
-                         "licensors"}),
+                         "publisher", "franchisor", "assignor", "issuer", "creditor"}),
     "buy": frozenset({"customer", "client", "buyer", "purchaser", "licensee", "licencee",
                       "lessee", "tenant", "borrower", "you", "user", "recipient", "grantee",
-                      "subscriber", "member", "franchisee", "assignee", "debtor", "licensees"}),
+                      "subscriber", "member", "franchisee", "assignee", "debtor"}),
 }
 _EITHER_SIDE_WORDS = frozenset({"company", "authority", "principal", "agent", "employer",
-                                "employee", "developer", "distributor", "reseller", "partner",
-                                "contributors"})
+                                "employee", "developer", "distributor", "reseller", "partner"})
 _ROLE_OF_WORD = {w: side for side, words in ROLE_WORDS.items() for w in words}
 _PARTY_WORDS = frozenset(_ROLE_OF_WORD) | _EITHER_SIDE_WORDS
 #: Words that name both parties, or a role either may take: a clause they hold binds each
@@ -148,6 +146,11 @@ _NOT_PARTY_WORDS = frozenset({
     "content", "site", "order", "orders", "form", "fees", "price", "marks", "rights",
     "property", "derivative", "derivatives", "modifications", "deliverables", "equipment",
     "goods", "premises", "territory", "not", "will", "shall", "end"})
+#: Words that may stand, capitalised, before a party's label ("The Supplier", "Each
+#: Licensee").
+_DETERMINERS = frozenset({"the", "this", "that", "each", "any", "either", "such", "neither",
+                          "no", "every", "a", "an", "if", "where", "when", "unless", "and", "or",
+                          "to", "by", "of", "for"})
 #: Words a definition of a person starts with ("means an individual or legal entity"):
 #: the first words of the definition, so that "a product of the company" does not count.
 _PERSON_WORDS_WINDOW = 14
@@ -155,9 +158,10 @@ _PERSON_WORDS_WINDOW = 14
 #: (an "Affiliate" seldom is): once could be a quotation, twice is a pattern (a judgement,
 #: no source).
 MIN_SUBJECT_USES = 2
-#: How often a capitalised role word that the document does not define ("the Licensor")
-#: must occur to count as a party when it is never the subject of a modal.
-MIN_UNDEFINED_USES = 3
+#: How often a capitalised role word that the document does not define ("the Licensor",
+#: "the Customer") must occur, on its own, to count as a party: a capitalised role word is
+#: a party's label in the agreements we read (common practice, no source).
+MIN_UNDEFINED_USES = 1
 
 # -- modal phrases ---------------------------------------------------------------------
 #: Permissions among the rule file's weak obligation phrases and beyond: a benefit of their
@@ -313,7 +317,10 @@ def _describes_a_person(term: str, definition: str) -> bool:
     m = re.search(r"[\"\u201c\u2018']" + re.escape(term) + r"[\"\u201d\u2019']", definition)
     if m is None:
         return False
-    return _PERSON_RE.search(definition, max(0, m.start() - _PERSON_NEAR), m.end() + _PERSON_NEAR) is not None
+    if _PERSON_RE.search(definition, max(0, m.start() - _PERSON_NEAR), m.start()):
+        return True  # "a company incorporated in Ontario ("SOLACE")"
+    after = re.match(r"\)?\s*,\s*(?:a|an)\s+(?:\S+\s+){0,4}?", definition[m.end():m.end() + _PERSON_NEAR])
+    return after is not None and _PERSON_RE.match(definition, m.end() + after.end()) is not None
 
 
 def _named_company(term: str, text: str) -> bool:
@@ -369,12 +376,21 @@ def party_terms(doc: Document) -> tuple[str, ...]:
     known = {n.casefold() for t in doc.terms for n in t.names}
     counts: dict[str, int] = {}
     # a capitalised role word on its own: not part of a longer name ("User Product", "The
-    # Qt Company"), not a plural of a known name
-    for m in re.finditer(r"(?<![\w-])(?<![A-Z][\w-]\s)(?<![A-Z][\w-]{2}\s)(?<![A-Z][\w-]{3}\s)[A-Z][A-Za-z]+(?![\w-])(?!\s+[A-Z])", text):
+    # Qt Company"), not a sentence's first word (capitalised anyway)
+    for m in re.finditer(r"(?<![\w-])[A-Z][A-Za-z]+(?![\w-])(?!(?-i:\s+[A-Z][a-z]))", text):
         w = m.group()
         fold = w.casefold()
-        if fold in _PARTY_WORDS and fold not in known and fold != "you" and fold.rstrip("s") not in known:
-            counts[w] = counts.get(w, 0) + 1
+        if fold not in _PARTY_WORDS or fold in known or fold == "you":
+            continue
+        before = text[max(0, m.start() - 40):m.start()]
+        prev = re.search(r"(\S+)\s+$", before)
+        if prev is None or re.search(r"[.!?:;]$", prev.group(1)) or re.fullmatch(r"\(?(?:[0-9]+(?:\.[0-9]+)*|[a-z]|[ivx]+)[.)]?\)?", prev.group(1)):
+            continue  # the first word of a sentence, a line or a list item
+        if prev.group(1)[:1].isupper() and prev.group(1).casefold() not in _DETERMINERS:
+            continue  # "The Qt Company", "SNMP Agent"
+        if w.isupper() and len(w) > 1 and prev.group(1).isupper():
+            continue  # a disclaimer in capitals ("... ANY AGENT OR EMPLOYEE ...")
+        counts[w] = counts.get(w, 0) + 1
     for w, n in counts.items():
         if w.casefold() in known:
             continue

@@ -461,7 +461,7 @@ def test_long_changes_and_added_provisions_are_cut_with_an_ellipsis():
 def test_how_common_reads_in_words_with_the_firms_label_and_is_explained_once(scenario, tmp_path):
     from core.library.frequency import frequency_reasons
 
-    f = {"v1": Frequency(same_type=10, matching=3, total=12, position="preferred"),
+    f = {"v1": Frequency(same_type=10, matching=3, total=12, position="house wording"),
          "v2": Frequency(same_type=0, matching=0, total=12),
          "v3": Frequency(same_type=9, matching=2, total=12),  # a provision the draft left out
          "v4": Frequency(same_type=9, matching=0, total=12),
@@ -471,7 +471,7 @@ def test_how_common_reads_in_words_with_the_firms_label_and_is_explained_once(sc
                  if d.id in f else d for d in scenario.review.deviations)
     review = dataclasses.replace(scenario.review, deviations=devs)
     by_ref = {r.ref: r for r in issue_rows(review)}
-    assert by_ref["v1"].frequency == "in 3 of 10 past agreements with such a clause; firm's label: preferred"
+    assert by_ref["v1"].frequency == "in 3 of 10 past agreements with such a clause; firm's stance: house wording"
     assert by_ref["v2"].frequency == "none of the 12 past agreements has such a clause"
     assert by_ref["v3"].frequency == "absent from 2 of the 12 past agreements"
     assert by_ref["v5"].frequency == "present in all 12 past agreements"
@@ -484,7 +484,7 @@ def test_how_common_reads_in_words_with_the_firms_label_and_is_explained_once(sc
     write_issues_list(review, path)
     page = _read_html(path)
     (note,) = [p for p in page.paragraphs if p.startswith("Past use")]
-    assert "of the firm's 12 past agreements in the precedent set" in note and "preferred" in note
+    assert "of the firm's 12 past agreements in the precedent set" in note and "house wording" in note
     col = COLS.index(FREQ)
     assert page.rows[1][col] == by_ref["v1"].frequency  # v1 is the first clause
 
