@@ -723,12 +723,11 @@ class Judge:
         if any(r.startswith(BLANK_FILLED) for r in v.reasons):  # a value the precedent asked for
             return NEUTRAL, None
         if v.part == "provision":
+            # the words of the whole subtree added or removed
             if v.change == "add-provision":
-                p = self._dpos.get(v.draft_provision)
-                return self._verdict(self._clauses(p.text if p else v.draft_text, added=True))
+                return self._verdict(self._clauses(v.draft_text, added=True))
             if v.change == "remove-provision":
-                p = self._ppos.get(v.precedent_provision)
-                return self._verdict(self._clauses(p.text if p else v.precedent_text, added=False))
+                return self._verdict(self._clauses(v.precedent_text, added=False))
             return NEUTRAL, None
         dp, pp = self._dpos.get(v.draft_provision), self._ppos.get(v.precedent_provision)
         if dp is None or pp is None or v.draft_span is None or v.precedent_span is None:
