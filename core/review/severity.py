@@ -680,7 +680,8 @@ def _law_forum_signal(p_text: str, p_span, d_text: str, d_span, clause_type: str
 
 
 _INTEREST_RE = re.compile(r"\b(?:interest|late(?:-|\s+)(?:payment\s+)?(?:charges?|fees?))\b", re.IGNORECASE)
-_LATE_RE = re.compile(r"\b(?:late|overdue|unpaid|outstanding|due\s+date|arrears)\b", re.IGNORECASE)
+_LATE_RE = re.compile(r"\b(?:late|overdue|unpaid|outstanding|due\s+date|arrears|not\s+paid|when\s+due|past\s+due)\b",
+                      re.IGNORECASE)
 
 
 def _interest_signals(d_text: str, d_span, signals: list[Signal]) -> list[Signal]:
