@@ -205,6 +205,25 @@ DEMO_OUTPUT = DEMO_DIR.parent / "demo_output"
 #: How many of the top-ranked deviations the demo reverts, to show a counter-draft.  These are
 #: illustrative decisions made by the demo script, not recommendations.
 DEMO_REVERTS = 3
+#: The party the demo acts for: the precedent is the (invented) supplier's own paper.
+DEMO_ACTING_FOR = "Supplier"
+#: Illustrative stances the demo records in its precedent set (past agreement, provision,
+#: stance): the house wording of the payment period (30 days) and a refusal of the 60 days
+#: a past counterparty obtained, so that the window and the issues list show stances.
+DEMO_STANCES = (("01-quenby-astrel-diagnostics.docx", "9.2", "house wording"),
+                ("04-pellbrook-analytical.docx", "9.2", "refuse"))
+
+
+def apply_demo_stances(library_folder: str | os.PathLike[str]) -> None:
+    """Record :data:`DEMO_STANCES` in the demo precedent set's index (built or refreshed
+    first); the window's demo and the screenshots use the same."""
+    from .library.index import open_library
+
+    with open_library(library_folder) as library:
+        for document, provision, stance in DEMO_STANCES:
+            vid = library.variant_of(document, provision)
+            if vid is not None:
+                library.label_variant(vid, stance)
 
 
 def _numbers(devs) -> str:  # noqa: ANN001
@@ -235,7 +254,8 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     print(textwrap.fill(CAUTION, width=width))
     print()
     draft, precedent = read_document(draft_path), read_document(precedent_path)
-    review = _run_review(draft, precedent, library_folder=library_folder)
+    apply_demo_stances(library_folder)
+    review = _run_review(draft, precedent, library_folder=library_folder, acting_for=DEMO_ACTING_FOR)
     print(format_review(review, width=width))
     print()
 
@@ -273,6 +293,9 @@ def _cmd_demo(args: argparse.Namespace) -> int:
         write_issues_list(record.review, written[key], decisions=record.decisions,
                           author=author, inputs=inputs)
     print(textwrap.fill(
+        f"The demo acts for the {DEMO_ACTING_FOR} (the precedent is its own paper) and records two "
+        "stances of the firm in the precedent set (the 30-day payment period as house wording, "
+        "a past 60-day one as refused). "
         f"As an illustration, not a recommendation, the demo reverted {_numbers(top)}, the "
         f"{len(top)} highest-ranked substantive ones, and {_numbers(structural)}, restoring a "
         "clause the draft leaves out and striking one it adds; the counter-draft updates every "
@@ -281,7 +304,8 @@ def _cmd_demo(args: argparse.Namespace) -> int:
         print(f"  {label:34} {path}")
     print()
     print("Next steps on your own files (from this checkout, the command is .venv/bin/counterdraft):")
-    print("  counterdraft review DRAFT.docx --against PRECEDENT.docx [--library FOLDER] --save REVIEW.json")
+    print("  counterdraft review DRAFT.docx --against PRECEDENT.docx [--library FOLDER] [--acting-for PARTY] "
+          "--save REVIEW.json")
     print("  counterdraft decide REVIEW.json NUMBER accept|revert|amend [--text ...] [--note ...]")
     print("  counterdraft export REVIEW.json --counter-draft OUT.docx --issues-list OUT.html")
     return 0

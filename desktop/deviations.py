@@ -26,7 +26,7 @@ __all__ = ["COLUMN_WIDTHS", "DeviationsPanel"]
 #: strip of twelve squares at five pixels and "12/12" -- the demo's precedent set -- and
 #: shrinks its squares in a narrower column.  "Direction" (shown when the review acts for a
 #: party) holds "▲ favourable", and sits after the severity.
-COLUMN_WIDTHS = ((0, 40), (1, 58), (2, 124), (3, 92), (4, 180), (5, 124), (6, 66), (7, 96))
+COLUMN_WIDTHS = ((0, 40), (1, 58), (2, 124), (3, 92), (4, 180), (5, 124), (6, 66), (7, 84))
 
 
 class DeviationsPanel(QWidget):
