@@ -70,15 +70,13 @@ from ..errors import CounterdraftError
 from ..model import DIRECTIONS, Document, Provision, TermMapping
 from .classify import BLANK_FILLED
 from .severity import (
-    CONJUNCTIONS,
     SeverityRules,
     Signal,
-    efforts_level,
     find_quantities,
+    number_in_words,
+    phrase_matches,
     sentence_bounds,
 )
-from .severity import _matches as _phrase_matches  # the rule file's obligation phrases
-from .severity import _words_value  # "twenty-five" -> 25
 
 __all__ = [
     "ADVERSE",
@@ -547,7 +545,7 @@ class Judge:
     def _modals(self, text: str, lo: int, hi: int) -> list[tuple[int, int, str]]:
         rights = [(m.start(), m.end(), " ".join(m.group().lower().split()))
                   for m in _EXTRA_RIGHT_RE.finditer(text, lo, hi)]  # "shall have the right to" first
-        found = [m for m in _phrase_matches(self.rules, "obligation", text) if lo <= m[0] < hi
+        found = [m for m in phrase_matches(self.rules, "obligation", text) if lo <= m[0] < hi
                  and not any(a < m[1] and m[0] < b for a, b, _p in rights)] + rights
         for m in _EXTRA_DUTY_RE.finditer(text, lo, hi):
             if not any(a < m.end() and m.start() < b for a, b, _p in found):
@@ -1112,7 +1110,7 @@ def _count_in_words(s: str) -> float | None:
     words = s.casefold().split()
     if not words or len(words) > 3:
         return None
-    return _words_value(words[0])
+    return number_in_words(words[0])
 
 
 #: Rough length of each unit of a period in days, to compare "30 days" with "1 month".

@@ -884,12 +884,23 @@ def category_severity(category: str, *, rules: SeverityRules | None = None) -> i
     return round(rules.categories[category])
 
 
+def phrase_matches(rules: SeverityRules, name: str, text: str) -> list[tuple[int, int, str]]:
+    """(start, end, phrase) of every phrase of list *name* ("obligation": the rule file's
+    obligation words and every efforts form; "negation"; "qualifier") in *text*; cached."""
+    return _matches(rules, name, text)
+
+
+def number_in_words(s: str) -> float | None:
+    """The number *s* writes in words ("twenty-five" -> 25), or None."""
+    return _words_value(s)
+
+
 def default_rules() -> SeverityRules:
     """The rules of ``resources/severity.toml`` (read once)."""
     return _default_rules()
 
 
 __all__ += ["CONJUNCTIONS", "EFFORTS_LEVELS", "LAW_FORUM_TYPES", "Assessment", "assess_text_change",
-            "efforts_level", "sentence_bounds",
+            "efforts_level", "number_in_words", "phrase_matches", "sentence_bounds",
             "HEADING_ADDED_OR_REMOVED_CHOICES", "category_severity", "clear_caches", "default_rules",
             "figure_severity", "heading_only_reason"]
