@@ -646,3 +646,25 @@ def test_export_lists_every_difference_with_issues_all(scenario, tmp_path, capsy
     assert sorted(numbers[short]) == sorted(d["rank"] for d in deviations
                                             if d["category"] in ("substantive", "term"))
     assert len(numbers[short]) < len(numbers[full])
+
+
+def test_direction_column_only_when_acting_for_a_party(scenario, tmp_path):
+    """A review acting for a party shows each deviation's direction in its own column (CSV,
+    HTML, .docx) and explains it under the table; without one the column is left out."""
+    from core.review import run_review
+
+    review = run_review(scenario.review.draft, scenario.review.precedent, acting_for="Customer")
+    for name in ("issues.csv", "issues.html", "issues.docx"):
+        write_issues_list(review, tmp_path / name, author=AUTHOR)
+    records = _read_csv(tmp_path / "issues.csv")
+    assert "Direction" in records[0]
+    rows = [dict(zip(records[0], r)) for r in records[1:]]
+    by_number = {d.rank: d.direction for d in review.deviations}
+    assert all(r["Direction"] == by_number[int(r["No."])] for r in rows)
+    pay = next(r for r in rows if "sixty (60)" in r["Draft's changed words"])
+    assert pay["Direction"] == "favourable"  # more time for the Customer to pay
+    page = _read_html(tmp_path / "issues.html")
+    assert "Direction" in page.rows[0]
+    assert any(p.startswith("Direction: for the Customer, the party acted for") for p in page.paragraphs)
+    table = docx.Document(str(tmp_path / "issues.docx")).tables[0]
+    assert "Direction" in [c.text for c in table.rows[0].cells]
