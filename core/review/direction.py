@@ -170,6 +170,12 @@ _PERMISSIONS = frozenset({
     "have the right to", "shall have the right to", "will have the right to", "is permitted to",
     "are permitted to", "is free to", "are free to", "retains the right to", "may elect to",
 })
+
+
+def _is_permission(phrase: str) -> bool:
+    """Whether a modal phrase grants a right ("may", "is entitled to", "has the right to",
+    also negated: "is not entitled to")."""
+    return phrase in _PERMISSIONS or _EXTRA_RIGHT_RE.fullmatch(phrase) is not None
 #: Verbs that make their subject promise or give something (a burden), beyond the rule
 #: file's obligation words.
 _EXTRA_DUTY_RE = re.compile(
@@ -177,10 +183,10 @@ _EXTRA_DUTY_RE = re.compile(
     r"acknowledges?|assumes?|bears?|accrues?|indemnif(?:y|ies)|(?:is|are)\s+(?:liable|responsible|obliged|"
     r"required|bound|due|payable))(?![\w])", re.IGNORECASE)
 _EXTRA_RIGHT_RE = re.compile(
-    r"(?<![\w'])(?:(?:shall|will)\s+(?:be\s+entitled|have\s+the\s+right)\s+to|"
-    r"(?:(?:shall|will)\s+have|has|have|retains?)\s+(?:the\s+|sole\s+|exclusive\s+|full\s+|absolute\s+)*"
+    r"(?<![\w'])(?:(?:shall|will)\s+(?:not\s+)?(?:be\s+entitled|have\s+the\s+right)\s+to|"
+    r"(?:(?:shall|will)\s+(?:not\s+)?have|has|have|retains?)\s+(?:the\s+|no\s+|sole\s+|exclusive\s+|full\s+|absolute\s+)*"
     r"(?:right|control|option|discretion|authority|benefit)s?\b(?:\s+to)?|"
-    r"(?:is|are)\s+(?:entitled|permitted|free)\s+to|(?:is|are)\s+refundable)(?![\w])",
+    r"(?:is|are)\s+(?:not\s+)?(?:entitled|permitted|free)\s+to|(?:is|are)\s+(?:not\s+|non-?)?refundable)(?![\w])",
     re.IGNORECASE)
 #: A negation right after a modal ("shall not", "may never") or before it ("in no event
 #: shall", "no ... shall").
@@ -558,10 +564,11 @@ class Judge:
         ms, me, phrase = modal
         after = text[me:me + 80]
         before = text[max(lo, ms - 60):ms]
-        negated = bool(_NEG_AFTER_RE.match(after)) or bool(_NEG_BEFORE_RE.search(before))
+        negated = (bool(_NEG_AFTER_RE.match(after)) or bool(_NEG_BEFORE_RE.search(before))
+                   or re.search(r"\b(?:not|no)\s|\bnon-?refundable", phrase) is not None)
         if not negated and _EXTRA_DUTY_RE.fullmatch(phrase) is None and re.match(r"\s+(?:have|has)\s+no\b", after):
             negated = True
-        permission = phrase in _PERMISSIONS or bool(_EXTRA_RIGHT_RE.fullmatch(phrase))
+        permission = _is_permission(phrase)
         release = False
         if negated and not permission and _RELEASE_RE.match(after):
             release = True
@@ -934,8 +941,9 @@ class Judge:
             if _DEADLINE_RE.search(before):  # more time to act helps whoever acts
                 actor = self._actor(D, h, q.start)
                 return _Effect(1 if higher else -1, actor, what, h.stance, "time")
-            if _NOTICE_RE.search(before[-25:]) or re.match(r"\W*\s*(?:written\s+|prior\s+)?(?:notice|prior|in\s+advance|before)",
-                                                         after, re.IGNORECASE):
+            if _NOTICE_RE.search(before[-25:]) or re.match(
+                    r"\W*\s*(?:(?:written\s+|prior\s+)?(?:notice|prior|in\s+advance|before)|"
+                    r"(?:after|following)\s+(?:\w+\s+){0,2}?notice)", after, re.IGNORECASE):
                 return _Effect(-1 if higher else 1, h.holder, what, h.stance, "notice")
             return _Effect(h.stance if higher else -h.stance, h.holder, what, h.stance)
         money = _PAYMENT_RE.search(clause) is not None

@@ -5,9 +5,9 @@ Source of every text here: the licence texts shipped in the PyPI package
 ``licensedcode-data`` (``licensedcode/data/licenses/<key>.LICENSE``), each named beside its
 plants: two end-user licence agreements between a "Licensor" and a "Licensee" --
 ``agentxpp.LICENSE`` (LICENSOR / LICENSEE, in capitals) and ``appfire-eula.LICENSE``
-(Licensor / Licensee, who is also "you") -- and a commercial software licence,
-``solace-software-eula-2020.LICENSE`` (its licensor is defined by name, "SOLACE", and the
-other side as "Licensee").
+(Licensor / Licensee, who is also "you") -- a commercial software licence, ``solace-software-eula-2020.LICENSE`` (its licensor is
+defined by name, "SOLACE", and the other side as "Licensee"), and a free-software licence
+written as a contract between a Licensor and a Licensee, ``cecill-2.1.LICENSE``.
 
 Each test plants edits whose direction a reader of the clause can tell (which party's
 obligation, right, cap, period or payment changed, and which way: the expectation is the
@@ -158,10 +158,31 @@ SOLACE_PLANTS = (
           "Licensee should reproduce all copyright and other proprietary notices", "Licensee", "must", "should"),
 )
 
+CECILL = "cecill-2.1"  # licensedcode-data: cecill-2.1.LICENSE (Licensor / Licensee)
+CECILL_PLANTS = (
+    # the Licensor may terminate sooner after its notice
+    Plant("the Licensor may automatically terminate this Agreement\nthirty (30) days after notice",
+          "the Licensor may automatically terminate this Agreement ten (10) days after notice", "Licensor",
+          "thirty (30)", "ten (10)"),
+    # the Licensor's help in an infringement defence made optional
+    Plant("the Licensor shall provide it with technical and legal\nexpertise",
+          "the Licensor may provide it with technical and legal expertise", "Licensor", "shall", "may"),
+    # the Licensee's right to claim compensation taken away
+    Plant("the Licensee shall be\nentitled to claim compensation", "the Licensee shall not be entitled to claim compensation",
+          "Licensor", "", "not", "claim"),
+    # the Licensee's undertaking not to infringe narrowed to direct infringement
+    Plant("The Licensee undertakes not to directly or indirectly infringe", "The Licensee undertakes not to directly infringe",
+          "Licensee", "or indirectly", ""),
+    # the Licensor's right to offer services taken away
+    Plant("However, the Licensor is entitled to offer this type of services.",
+          "However, the Licensor is not entitled to offer this type of services.", "Licensee", "", "not", "offer"),
+)
+
 CASES = {
     AGENTXPP: (("LICENSOR", "LICENSEE"), AGENTXPP_PLANTS),
     APPFIRE: (("Licensor", "Licensee"), APPFIRE_PLANTS),
     SOLACE: (("SOLACE", "Licensee"), SOLACE_PLANTS),
+    CECILL: (("Licensor", "Licensee"), CECILL_PLANTS),
 }
 
 
