@@ -194,6 +194,10 @@ _NEG_AFTER_RE = re.compile(r"\s*(?:not\b|never\b|n['\u2019]t\b|in\s+no\s+event\b
                            re.IGNORECASE)
 _NEG_BEFORE_RE = re.compile(r"(?:\b(?:in\s+no\s+event|under\s+no\s+circumstances|neither|nor|no)\s+(?:\S+\s+){0,3})$",
                             re.IGNORECASE)
+#: A clause that opens with a negation governing its first modal ("In no event and under no
+#: legal theory ... shall any Contributor be liable").
+_NEG_OPENING_RE = re.compile(r"\s*(?:\(?\w{1,4}[.)]\s*)?(?:in\s+no\s+event|under\s+no\s+circumstances|neither\b|"
+                             r"nothing\b|no\s+(?!later|less|more|fewer)\w+)", re.IGNORECASE)
 #: Words after a negated modal that release from a burden rather than forbid an act
 #: ("shall not be liable", "shall have no obligation").
 _RELEASE_RE = re.compile(
@@ -565,7 +569,9 @@ class Judge:
         after = text[me:me + 80]
         before = text[max(lo, ms - 60):ms]
         negated = (bool(_NEG_AFTER_RE.match(after)) or bool(_NEG_BEFORE_RE.search(before))
-                   or re.search(r"\b(?:not|no)\s|\bnon-?refundable", phrase) is not None)
+                   or re.search(r"\b(?:not|no)\s|\bnon-?refundable", phrase) is not None
+                   or (_NEG_OPENING_RE.match(text, lo) is not None
+                       and not any(lo <= m[0] < ms for m in modals if m[0] != ms)))
         if not negated and _EXTRA_DUTY_RE.fullmatch(phrase) is None and re.match(r"\s+(?:have|has)\s+no\b", after):
             negated = True
         permission = _is_permission(phrase)
@@ -597,9 +603,10 @@ class Judge:
                 return got[0][2]
         # inverted: "in no event shall LICENSOR be liable"
         got = self._party_at(text, me, me + 40)
-        if got and re.fullmatch(r"\s*(?:the\s+)?", text[me:got[0][0]], re.IGNORECASE) and \
-                re.search(r"\b(?:event|circumstances?|neither|nor)\s*$", text[max(lo, ms - 30):ms], re.IGNORECASE):
-            return got[0][2]
+        if got and re.fullmatch(r"\s*(?:(?:the|any|a|an|each)\s+)?", text[me:got[0][0]], re.IGNORECASE) and (
+                re.search(r"\b(?:event|circumstances?|neither|nor)\s*$", text[max(lo, ms - 30):ms], re.IGNORECASE)
+                or re.search(r"[,;]\s*$", text[max(lo, ms - 3):ms])):
+            return got[0][2]  # "..., shall any Contributor be liable"
         # the subject: the nearest party before the modal, after the previous modal
         prev_end = max([e for s, e, _p in modals if e <= ms] or [lo])
         mentions = [mm for mm in self._party_at(text, max(lo, prev_end), ms) if not self._owns_a_thing(text, mm)]
@@ -1059,7 +1066,7 @@ class Judge:
 
     def _describe(self, e: _Effect) -> str:
         holder = self._name(e.holder) if e.holder else "a party"
-        possessive = "each party's" if e.holder == MUTUAL else (
+        possessive = "each party's" if e.holder == MUTUAL else "Your" if holder.casefold() == "you" else (
             f"{holder}'s" if not holder.endswith("s") else f"{holder}'")
         if "{holder}" in e.text:
             return e.text.replace("{holder}", holder)
