@@ -62,7 +62,7 @@ deviation.
 from __future__ import annotations
 
 import re
-from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -322,7 +322,7 @@ def _describes_a_person(term: str, definition: str) -> bool:
             r"\s*(?:[\"\u201c]?[^\"\u201d]*[\"\u201d]?\s*)?(?:means|shall\s+mean|refers\s+to|is)\b",
             definition, re.IGNORECASE):
         return True
-    m = re.search(r"[\"\u201c\u2018']" + re.escape(term) + r"[\"\u201d\u2019']", definition)
+    m = next(_quoted(term, definition), None)
     if m is None:
         return False
     if _PERSON_RE.search(definition, max(0, m.start() - _PERSON_NEAR), m.start()):
@@ -334,10 +334,24 @@ def _describes_a_person(term: str, definition: str) -> bool:
 def _named_company(term: str, text: str) -> bool:
     """Whether *text* defines *term* as the short name of a company: "Tanuki Software, Ltd.
     ("TSI")", "Altova GmbH ("Altova")"."""
-    for m in re.finditer(r"\(\s*(?:the\s+)?[\"\u201c\u2018']" + re.escape(term) + r"[\"\u201d\u2019']", text):
-        if _PERSON_RE.search(text, max(0, m.start() - _PERSON_NEAR), m.start()):
+    for m in _quoted(term, text):
+        if re.search(r"\(\s*(?:the\s+)?$", text[max(0, m.start() - 8):m.start()], re.IGNORECASE) and \
+                _PERSON_RE.search(text, max(0, m.start() - _PERSON_NEAR), m.start()):
             return True
     return False
+
+
+#: A name in quotation marks (straight or curly, double or single).
+_QUOTED_RE = re.compile(r"[\"\u201c\u2018']([^\"\u201c\u201d\u2018\u2019'\n]{1,80})[\"\u201d\u2019']")
+
+
+def _quoted(term: str, text: str) -> Iterator[re.Match[str]]:
+    """Every place *text* quotes *term* (one compiled pattern for all terms)."""
+    if term not in text:
+        return
+    for m in _QUOTED_RE.finditer(text):
+        if m.group(1) == term:
+            yield m
 
 
 #: Characters around a quoted name read for the words that say it is a company.
@@ -370,11 +384,15 @@ def party_terms(doc: Document) -> tuple[str, ...]:
     :data:`MIN_SUBJECT_USES` times ("The Licensor shall ...").  In document order."""
     text = "\n".join(p.text for p in doc.provisions)
     kinds = {p.id: p.kind for p in doc.provisions}
+    own_text = {p.id: p.text for p in doc.provisions}
     found: list[str] = []
     for t in doc.terms:
         if all(_head(n) in _NOT_PARTY_WORDS for n in t.names):
             continue
-        person = _describes_a_person(t.term, t.definition) or _named_company(t.term, text)
+        around = own_text.get(t.provision, "")
+        if t.span is not None:  # the definition's own sentence and a little before it
+            around = around[max(0, t.span[0] - _PERSON_NEAR):t.span[1]]
+        person = _describes_a_person(t.term, t.definition) or _named_company(t.term, around)
         if _names_a_party(t.names):
             found.append(t.term)
         elif kinds.get(t.provision) in ("parties", "title") and person:
