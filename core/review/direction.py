@@ -378,10 +378,11 @@ def _subject_uses(text: str, name: str) -> int:
 
 def party_terms(doc: Document) -> tuple[str, ...]:
     """The names of the parties of *doc*: its defined terms that name a side of the deal
-    (a role word such as "Supplier", "Licensee", "You"), or that are defined as a person or
-    company and act as the subject of obligations, or that open the parties provision; and
-    capitalised role words used undefined as the subject of obligations at least
-    :data:`MIN_SUBJECT_USES` times ("The Licensor shall ...").  In document order."""
+    (a role word such as "Supplier", "Licensee", "You" as their last word), that open the
+    parties provision defined as a person or company, or that are defined as a person or
+    company and act as the subject of obligations at least :data:`MIN_SUBJECT_USES` times;
+    then capitalised role words the document uses undefined, on their own, at least
+    :data:`MIN_UNDEFINED_USES` times ("The Licensor shall ...").  In that order."""
     text = "\n".join(p.text for p in doc.provisions)
     kinds = {p.id: p.kind for p in doc.provisions}
     own_text = {p.id: p.text for p in doc.provisions}
@@ -420,7 +421,7 @@ def party_terms(doc: Document) -> tuple[str, ...]:
     for w, n in counts.items():
         if w.casefold() in known:
             continue
-        if n >= MIN_UNDEFINED_USES or _subject_uses(text, w) >= 1:
+        if n >= MIN_UNDEFINED_USES:
             found.append(w)
             known.add(w.casefold())
     return tuple(dict.fromkeys(found))
@@ -831,10 +832,11 @@ class Judge:
                 out += self._scope_effects(h, P, ps, D, ds)
         return out
 
-    def _effect(self, h: Holding, narrows_or_plus: int, text: str, verb: str) -> _Effect:
-        """An effect on a burden or benefit: *narrows_or_plus* +1 lightens a burden (or,
-        for a benefit, -1 narrows it)..."""
-        value = narrows_or_plus if h.stance == BURDEN else -narrows_or_plus
+    def _effect(self, h: Holding, lighter: int, text: str, verb: str) -> _Effect:
+        """The effect of a change that makes the clause lighter (*lighter* +1) or heavier
+        (-1) for its holder when it is a burden -- and the reverse when it is a benefit (a
+        lighter standard narrows a right)."""
+        value = lighter if h.stance == BURDEN else -lighter
         return _Effect(value, h.holder, f"{verb} ('{_excerpt(text, h.start)}')", h.stance)
 
     def _narrowing(self, h: Holding, narrows: bool, text: str) -> _Effect:
