@@ -253,7 +253,7 @@ _WIDEN_RE = re.compile(r"\b(?:including|includes|any\s+and\s+all|and/or|without\
 #: covers more.
 _LIST_ITEM_RE = re.compile(r"^\s*(?:,|and\b|or\b|as\s+well\s+as\b)|(?:,|\band|\bor)\s*$", re.IGNORECASE)
 #: Before a period: a deadline (more time helps whoever must act) ...
-_DEADLINE_RE = re.compile(r"\b(?:within|no\s+later\s+than|not\s+later\s+than|by|before|prior\s+to\s+the\s+end|net|"
+_DEADLINE_RE = re.compile(r"\b(?:within|no\s+later\s+than|not\s+later\s+than|by|before|prior\s+to(?:\s+the\s+end\s+of)?|net|"
                           r"up\s+to|at\s+the\s+latest|no\s+more\s+than|not\s+more\s+than)\s*$", re.IGNORECASE)
 #: ... how long a duty or right lasts ("for no less than three (3) years", "for a period of")
 _DURATION_RE = re.compile(r"\b(?:for|during|period\s+of|term\s+of|lasting)\s+(?:a\s+(?:further\s+)?period\s+of\s+)?"
@@ -993,7 +993,9 @@ class Judge:
         for s, _e, owner in reversed(self._party_at(text, start, at)):
             if not re.search(r"\b(?:to|from|against|with|for|by|than|of|notify|inform)\s+(?:the\s+)?$",
                              text[max(start, s - 25):s], re.IGNORECASE) and \
-                    re.match(r"(?:'s|\u2019s)?\s+(?:\w+\s+){0,2}?\w+(?:s|es)\b", text[_e:_e + 40]) and \
+                    re.match(r"\s+(?:\w+ly\s+)?(?!(?:of|to|and|or|with|for|by|from|in|on|at|under|that|which|"
+                             r"who|as|is|are|was|were|has|have|had|be|been|shall|will|may|must)\b)[a-z]\w*\b",
+                             text[_e:_e + 40]) and \
                     not re.match(r"\s+(?:is|are|was|were|be|been)\s+\w+(?:ed|en)\b", text[_e:_e + 40]) and \
                     owner != MUTUAL:
                 return owner
