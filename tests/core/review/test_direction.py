@@ -7,7 +7,9 @@ plants: two end-user licence agreements between a "Licensor" and a "Licensee" --
 ``agentxpp.LICENSE`` (LICENSOR / LICENSEE, in capitals) and ``appfire-eula.LICENSE``
 (Licensor / Licensee, who is also "you") -- a commercial software licence, ``solace-software-eula-2020.LICENSE`` (its licensor is
 defined by name, "SOLACE", and the other side as "Licensee"), and a free-software licence
-written as a contract between a Licensor and a Licensee, ``cecill-2.1.LICENSE``.
+written as a contract between a Licensor and a Licensee, ``cecill-2.1.LICENSE``, and the
+Mozilla Public License 2.0, ``mpl-2.0.LICENSE``, whose licensee is "You" (or "Your") and
+whose licensors are the Contributors.
 
 Each test plants edits whose direction a reader of the clause can tell (which party's
 obligation, right, cap, period or payment changed, and which way: the expectation is the
@@ -178,11 +180,29 @@ CECILL_PLANTS = (
           "However, the Licensor is not entitled to offer this type of services.", "Licensee", "", "not", "offer"),
 )
 
+MPL = "mpl-2.0"  # licensedcode-data: mpl-2.0.LICENSE (You / Contributor)
+MPL_PLANTS = (
+    # Your duty to tell recipients where the source is made optional
+    Plant("You must inform recipients that the Source", "You may inform recipients that the Source", "You", "must", "may"),
+    # a restriction on You lifted
+    Plant("You may not remove or alter the substance of any license notices",
+          "You may remove or alter the substance of any license notices", "You", "not", ""),
+    # a right of Yours taken away
+    Plant("You may include additional", "You may not include additional", "Contributor", "", "not", "include"),
+    # less time for You to become compliant again
+    Plant("and You become compliant prior to 30 days after", "and You become compliant prior to 10 days after",
+          "Contributor", "30", "10"),
+    # the rights granted to You no longer end when You sue
+    Plant("2.1 of this License shall terminate.", "2.1 of this License shall not terminate.", "You", "", "not",
+          "terminate"),
+)
+
 CASES = {
     AGENTXPP: (("LICENSOR", "LICENSEE"), AGENTXPP_PLANTS),
     APPFIRE: (("Licensor", "Licensee"), APPFIRE_PLANTS),
     SOLACE: (("SOLACE", "Licensee"), SOLACE_PLANTS),
     CECILL: (("Licensor", "Licensee"), CECILL_PLANTS),
+    MPL: (("Contributor", "You"), MPL_PLANTS),
 }
 
 
@@ -247,7 +267,8 @@ def test_the_reason_names_whom_a_change_favours(key):
         if p.favours in (None, "each"):
             continue
         v = _planted(review, p)
-        said = [r for r in v.reasons if r.endswith(f"{v.direction} to the {parties[1]}")]
+        whom = "You" if parties[1] == "You" else f"the {parties[1]}"
+        said = [r for r in v.reasons if r.endswith(f"{v.direction} to {whom}")]
         assert len(said) == 1, v.reasons
         assert any(name in said[0] for name in parties)  # whose obligation or right it is
 
