@@ -193,6 +193,15 @@ def main(argv: list[str] | None = None) -> int:
             print(f"  {stage:<32} {secs * 1000:8.1f} ms")
         print(f"  {'whole review':<32} {total_best * 1000:8.1f} ms   (target <= 2000 ms)")
 
+        # acting for a party: the same review, each deviation's direction judged as well
+        from core.review.direction import party_terms
+
+        parties = party_terms(precedent)
+        if parties:
+            secs = _best(lambda: (clear_caches(), run_review(draft, precedent, acting_for=parties[0])))
+            print(f"  {'whole review acting for the ' + parties[0]:<32} {secs * 1000:8.1f} ms   "
+                  "(directions judged too; same target)")
+
         got = found(review, plan)
         ok = sum(min(got[k], plan.counts[k]) for k in KINDS)
         moved = [p for p in review.pairs if p.status == "moved"]

@@ -63,7 +63,7 @@ def _cmd_review(args: argparse.Namespace) -> int:
     for path, doc in ((args.draft, draft), (args.against, precedent)):
         for w in doc.warnings:
             print(f"{path}: note: {w}", file=sys.stderr)
-    review = _run_review(draft, precedent, library_folder=args.library)
+    review = _run_review(draft, precedent, library_folder=args.library, acting_for=args.acting_for)
     if args.save:
         from .decisions import new_review_file, save_review_file
 
@@ -80,19 +80,21 @@ def _cmd_review(args: argparse.Namespace) -> int:
     return 0
 
 
-def _run_review(draft, precedent, *, library_folder: str | None, overrides=()):  # noqa: ANN001, ANN202
-    """The one place the CLI runs the engine: with the precedent set's figures when given."""
+def _run_review(draft, precedent, *, library_folder: str | None, overrides=(),  # noqa: ANN001, ANN202
+                acting_for: str | None = None):
+    """The one place the CLI runs the engine: with the precedent set's figures when given,
+    acting for a party when given."""
     from .review import run_review
 
     if not library_folder:
-        return run_review(draft, precedent, overrides=tuple(overrides))
+        return run_review(draft, precedent, overrides=tuple(overrides), acting_for=acting_for)
     from .library.commands import open_library_for_cli, review_options
     from .library.frequency import apply_frequency
 
     library = open_library_for_cli(library_folder)
     try:
         return apply_frequency(run_review(draft, precedent, overrides=tuple(overrides),
-                                          **review_options(library)), library)
+                                          acting_for=acting_for, **review_options(library)), library)
     finally:
         library.close()
 
@@ -102,8 +104,9 @@ def _review_runner(library_folder: str | None):  # noqa: ANN202
     if not library_folder:
         return None
 
-    def run(draft, precedent, *, overrides=()):  # noqa: ANN001, ANN202
-        return _run_review(draft, precedent, library_folder=library_folder, overrides=overrides)
+    def run(draft, precedent, *, overrides=(), acting_for=None):  # noqa: ANN001, ANN202
+        return _run_review(draft, precedent, library_folder=library_folder, overrides=overrides,
+                           acting_for=acting_for)
 
     return run
 
@@ -202,6 +205,25 @@ DEMO_OUTPUT = DEMO_DIR.parent / "demo_output"
 #: How many of the top-ranked deviations the demo reverts, to show a counter-draft.  These are
 #: illustrative decisions made by the demo script, not recommendations.
 DEMO_REVERTS = 3
+#: The party the demo acts for: the precedent is the (invented) supplier's own paper.
+DEMO_ACTING_FOR = "Supplier"
+#: Illustrative stances the demo records in its precedent set (past agreement, provision,
+#: stance): the house wording of the payment period (30 days) and a refusal of the 60 days
+#: a past counterparty obtained, so that the window and the issues list show stances.
+DEMO_STANCES = (("01-quenby-astrel-diagnostics.docx", "9.2", "house wording"),
+                ("04-pellbrook-analytical.docx", "9.2", "refuse"))
+
+
+def apply_demo_stances(library_folder: str | os.PathLike[str]) -> None:
+    """Record :data:`DEMO_STANCES` in the demo precedent set's index (built or refreshed
+    first); the window's demo and the screenshots use the same."""
+    from .library.index import open_library
+
+    with open_library(library_folder) as library:
+        for document, provision, stance in DEMO_STANCES:
+            vid = library.variant_of(document, provision)
+            if vid is not None:
+                library.label_variant(vid, stance)
 
 
 def _numbers(devs) -> str:  # noqa: ANN001
@@ -232,7 +254,8 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     print(textwrap.fill(CAUTION, width=width))
     print()
     draft, precedent = read_document(draft_path), read_document(precedent_path)
-    review = _run_review(draft, precedent, library_folder=library_folder)
+    apply_demo_stances(library_folder)
+    review = _run_review(draft, precedent, library_folder=library_folder, acting_for=DEMO_ACTING_FOR)
     print(format_review(review, width=width))
     print()
 
@@ -270,6 +293,9 @@ def _cmd_demo(args: argparse.Namespace) -> int:
         write_issues_list(record.review, written[key], decisions=record.decisions,
                           author=author, inputs=inputs)
     print(textwrap.fill(
+        f"The demo acts for the {DEMO_ACTING_FOR} (the precedent is its own paper) and records two "
+        "stances of the firm in the precedent set (the 30-day payment period as house wording, "
+        "a past 60-day one as refused). "
         f"As an illustration, not a recommendation, the demo reverted {_numbers(top)}, the "
         f"{len(top)} highest-ranked substantive ones, and {_numbers(structural)}, restoring a "
         "clause the draft leaves out and striking one it adds; the counter-draft updates every "
@@ -278,7 +304,8 @@ def _cmd_demo(args: argparse.Namespace) -> int:
         print(f"  {label:34} {path}")
     print()
     print("Next steps on your own files (from this checkout, the command is .venv/bin/counterdraft):")
-    print("  counterdraft review DRAFT.docx --against PRECEDENT.docx [--library FOLDER] --save REVIEW.json")
+    print("  counterdraft review DRAFT.docx --against PRECEDENT.docx [--library FOLDER] [--acting-for PARTY] "
+          "--save REVIEW.json")
     print("  counterdraft decide REVIEW.json NUMBER accept|revert|amend [--text ...] [--note ...]")
     print("  counterdraft export REVIEW.json --counter-draft OUT.docx --issues-list OUT.html")
     return 0
@@ -308,6 +335,9 @@ def build_parser() -> argparse.ArgumentParser:
                    help="folder of past agreements: say how common each wording is (indexed in DIR/.counterdraft)")
     p.add_argument("--save", metavar="REVIEW.json",
                    help="also save a review file to record decisions on (see 'decide', 'export')")
+    p.add_argument("--acting-for", metavar="PARTY",
+                   help="the precedent's defined term for the party you act for (e.g. Supplier): "
+                        "each deviation is then judged adverse, favourable, neutral or unclear for it")
     p.add_argument("--width", type=int, default=None,
                    help="columns of the table (default: COLUMNS, else the terminal's width)")
     p.set_defaults(func=_cmd_review)

@@ -18,6 +18,7 @@ Review file layout::
      "draft":     {"path": "draft.docx", "absolute_path": "/...", "sha256": "..."},
      "precedent": {"path": "precedent.docx", "absolute_path": "/...", "sha256": "..."},
      "library": {"path": "precedent_set", "absolute_path": "/..."} | null,
+     "acting_for": "Supplier" | null,   (absent in files written before it existed)
      "overrides": [{"draft": "Client", "precedent": "Customer", "action": "confirm"}],
      "term_map":  [...as in counterdraft.review/1...],
      "deviations": [...as in counterdraft.review/1...],
@@ -355,6 +356,7 @@ def review_file_to_dict(rf: ReviewFile, *, folder: str | os.PathLike[str] = ".")
                       "absolute_path": rf.precedent.path, "sha256": rf.precedent.sha256},
         "library": ({"path": _stored_path(rf.library, base), "absolute_path": rf.library}
                     if rf.library else None),
+        "acting_for": rf.review.acting_for,
         "overrides": [_override_to_dict(o) for o in rf.overrides],
         "term_map": rd.get("term_map", []),
         "deviations": rd.get("deviations", []),
@@ -379,10 +381,11 @@ def save_review_file(path: str | os.PathLike[str], rf: ReviewFile) -> None:
 Runner = Callable[..., Review]
 
 
-def _default_runner(draft: Document, precedent: Document, *, overrides: Sequence[Any]) -> Review:
+def _default_runner(draft: Document, precedent: Document, *, overrides: Sequence[Any],
+                    acting_for: str | None = None) -> Review:
     from .review import run_review
 
-    return run_review(draft, precedent, overrides=overrides)
+    return run_review(draft, precedent, overrides=overrides, acting_for=acting_for)
 
 
 def _read_documents(draft_path: str, precedent_path: str) -> tuple[Document, Document]:
@@ -394,16 +397,19 @@ def _read_documents(draft_path: str, precedent_path: str) -> tuple[Document, Doc
 def new_review_file(draft_path: str | os.PathLike[str], precedent_path: str | os.PathLike[str], *,
                     overrides: Sequence[Any] = (), review: Review | None = None,
                     runner: Runner | None = None,
-                    library: str | os.PathLike[str] | None = None) -> ReviewFile:
-    """Start a review file for two documents (running the review unless *review* is given).
-    *library* records the precedent-set folder the review used."""
+                    library: str | os.PathLike[str] | None = None,
+                    acting_for: str | None = None) -> ReviewFile:
+    """Start a review file for two documents (running the review unless *review* is given,
+    acting for *acting_for* when given; a given review carries its own).  *library* records
+    the precedent-set folder the review used."""
     dpath, ppath = str(Path(draft_path).resolve()), str(Path(precedent_path).resolve())
     for p in (dpath, ppath):
         if not Path(p).is_file():
             raise CounterdraftError("file not found", path=p)
     if review is None:
         draft, precedent = _read_documents(dpath, ppath)
-        review = (runner or _default_runner)(draft, precedent, overrides=tuple(overrides))
+        extra = {"acting_for": acting_for} if acting_for else {}
+        review = (runner or _default_runner)(draft, precedent, overrides=tuple(overrides), **extra)
     return ReviewFile(draft=DocumentRef(dpath, file_sha256(dpath)),
                       precedent=DocumentRef(ppath, file_sha256(ppath)),
                       review=review, overrides=tuple(overrides),
@@ -589,7 +595,9 @@ def load_review_file(path: str | os.PathLike[str], *, runner: Runner | None = No
             notes.append(f"the {role} {Path(p).name} changed since the review was saved; "
                          "the review was run again")
     draft, precedent = _read_documents(dpath, ppath)
-    review = (runner or _default_runner)(draft, precedent, overrides=overrides)
+    acting_for = data.get("acting_for")  # absent from files written before it existed
+    extra = {"acting_for": acting_for} if acting_for else {}
+    review = (runner or _default_runner)(draft, precedent, overrides=overrides, **extra)
     kept, remap_notes = remap_decisions(decisions, review)
     notes.extend(remap_notes)
     return ReviewFile(draft=DocumentRef(dpath, hashes["draft"]),

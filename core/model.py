@@ -68,6 +68,7 @@ __all__ = [
     "CATEGORIES",
     "CHANGES",
     "DEVIATION_PARTS",
+    "DIRECTIONS",
     "ClosestProvision",
     "PAIR_STATUSES",
     "Review",
@@ -197,6 +198,10 @@ CATEGORIES: tuple[str, ...] = ("substantive", "term", "formatting", "numbering",
                                "completion")
 CHANGES: tuple[str, ...] = ("insert", "delete", "replace", "move", "add-provision", "remove-provision")
 DEVIATION_PARTS: tuple[str, ...] = ("text", "heading", "provision")
+#: Whose side a deviation is on, for the party the review acts for (core.review.direction):
+#: against it, for it, for neither (no change of meaning, or a clause binding each party
+#: alike), or not to be told from the wording.
+DIRECTIONS: tuple[str, ...] = ("adverse", "favourable", "neutral", "unclear")
 
 
 @dataclass(frozen=True, slots=True)
@@ -236,8 +241,8 @@ class Frequency:
     closest: tuple[ClosestProvision, ...] = ()
     #: For inserted or removed words: same-type library provisions that contain them.
     containing: int | None = None
-    #: The reviewer's label of the matching variant: preferred, acceptable, fallback,
-    #: not acceptable; None when unlabelled.
+    #: The firm's stance on the matching variant (core.library.index.POSITIONS): house
+    #: wording, can live with, last concession, refuse; None when unlabelled.
     position: str | None = None
 
 
@@ -299,6 +304,10 @@ class Deviation:
     #: exactly this deviation.  Decisions apply to these spans.
     precedent_text_span: tuple[int, int] | None = None
     draft_text_span: tuple[int, int] | None = None
+    #: Whose side the change is on, for the party the review acts for
+    #: (``Review.acting_for``): one of DIRECTIONS; "unclear" for a review without one
+    #: (see :mod:`core.review.direction`).
+    direction: str = "unclear"
 
 
 @dataclass(frozen=True, slots=True)
@@ -310,3 +319,6 @@ class Review:
     deviations: tuple[Deviation, ...]
     #: Human-readable notes, e.g. "the documents share no provision".
     notes: tuple[str, ...] = ()
+    #: The precedent's defined term for the party the reviewer acts for ("Supplier"), or
+    #: None: then every deviation's direction is "unclear".
+    acting_for: str | None = None

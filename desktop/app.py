@@ -149,8 +149,11 @@ def main(argv: list[str] | None = None) -> int:
 
     sys.excepthook = unexpected
     if args.demo:
+        from core.cli import DEMO_ACTING_FOR
+
         draft, precedent, library = demo_inputs()
-        window.open_comparison(draft, precedent, library=library if Path(library).is_dir() else None)
+        window.open_comparison(draft, precedent, library=library if Path(library).is_dir() else None,
+                               acting_for=DEMO_ACTING_FOR)
     elif args.review:
         window.open_review_file(args.review)
     elif args.draft:

@@ -24,8 +24,9 @@ __all__ = ["COLUMN_WIDTHS", "DeviationsPanel"]
 #: First widths of the list's columns, in pixels (the reviewer can drag them; "What changed"
 #: takes what is left, about 180 pixels in a 1366-pixel-wide window).  "Past use" holds a
 #: strip of twelve squares at five pixels and "12/12" -- the demo's precedent set -- and
-#: shrinks its squares in a narrower column.
-COLUMN_WIDTHS = ((0, 40), (1, 58), (2, 124), (3, 92), (4, 180), (5, 124), (6, 66))
+#: shrinks its squares in a narrower column.  "Direction" (shown when the review acts for a
+#: party) holds "▲ favourable", and sits after the severity.
+COLUMN_WIDTHS = ((0, 40), (1, 58), (2, 124), (3, 92), (4, 180), (5, 124), (6, 66), (7, 84))
 
 
 class DeviationsPanel(QWidget):
@@ -82,6 +83,8 @@ class DeviationsPanel(QWidget):
         hh.setSectionResizeMode(DeviationTableModel.SUMMARY, QHeaderView.ResizeMode.Stretch)
         hh.sortIndicatorChanged.connect(self._sort_changed)
         self.table.setColumnHidden(DeviationTableModel.KIND, True)
+        self.table.setColumnHidden(DeviationTableModel.DIRECTION, True)
+        hh.moveSection(hh.visualIndex(DeviationTableModel.DIRECTION), hh.visualIndex(DeviationTableModel.CLAUSE))
         self.table.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
         self.table.setTextElideMode(Qt.TextElideMode.ElideRight)
         self.table.selectionModel().currentRowChanged.connect(self._current_changed)
@@ -99,6 +102,8 @@ class DeviationsPanel(QWidget):
             review = self._ws.review
             self.model.set_review(review, library_loaded=self._ws.library is not None)
             self.table.setColumnHidden(DeviationTableModel.COMMON, self._ws.library is None)
+            self.table.setColumnHidden(DeviationTableModel.DIRECTION,
+                                       review is None or review.acting_for is None)
         if change & (Change.REVIEW | Change.DECISIONS | Change.LIBRARY):
             self.model.set_decisions({k: self._decision_view(v) for k, v in self._ws.decisions.items()})
         if change & (Change.REVIEW | Change.DECISIONS | Change.DISPLAY | Change.LIBRARY):

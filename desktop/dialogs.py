@@ -6,13 +6,16 @@ through signals, so the window (and the offscreen tests) never sit in a nested e
 
 from __future__ import annotations
 
+import os
 import platform
 import sys
+from collections.abc import Callable, Sequence
 from importlib import metadata
 
 from PySide6 import __version__ as pyside_version
 from PySide6.QtCore import Qt, Signal, qVersion
 from PySide6.QtWidgets import (
+    QComboBox,
     QDialog,
     QDialogButtonBox,
     QFileDialog,
@@ -32,7 +35,7 @@ import core
 
 from .decision import KEYS
 
-__all__ = ["AGREEMENT_FILTER", "KEY_LIST", "REVIEW_FILTER", "OpenDialog", "about_text", "show_about", "show_keys"]
+__all__ = ["AGREEMENT_FILTER", "KEY_LIST", "NO_PARTY", "REVIEW_FILTER", "OpenDialog", "about_text", "show_about", "show_keys"]
 
 AGREEMENT_FILTER = "Agreements (*.docx *.txt *.md);;All files (*)"
 REVIEW_FILTER = "Counterdraft review files (*.json);;All files (*)"
@@ -41,19 +44,34 @@ REVIEW_FILTER = "Counterdraft review files (*.json);;All files (*)"
 ABOUT_PACKAGES = ("python-docx", "lxml", "diff-match-patch", "rapidfuzz", "scipy", "scikit-learn", "gensim", "numpy")
 
 
+#: The "acting for" choice that judges no direction.
+NO_PARTY = "No one (directions not judged)"
+
+
 class OpenDialog(QDialog):
-    """Pick the draft, the precedent and (optionally) a precedent-set folder."""
+    """Pick the draft, the precedent, (optionally) a precedent-set folder, and the party the
+    reviewer acts for: one of the precedent's party terms (*parties(path)* lists them),
+    preset to the one chosen last with that precedent (*remembered(path)*)."""
 
     chosen = Signal(str, str, str)  # draft, precedent, library ("" for none)
 
-    def __init__(self, parent: QWidget | None = None, *, draft: str = "", precedent: str = "", library: str = "") -> None:
+    def __init__(self, parent: QWidget | None = None, *, draft: str = "", precedent: str = "", library: str = "",
+                 parties: Callable[[str], Sequence[str]] | None = None,
+                 remembered: Callable[[str], str | None] | None = None) -> None:
         super().__init__(parent)
         self.setObjectName("openDialog")
         self.setWindowTitle("Compare a draft with the precedent")
+        self._parties = parties or (lambda _path: ())
+        self._remembered = remembered or (lambda _path: None)
+        self._parties_of = ""
         self.draft = QLineEdit(draft, self)
         self.precedent = QLineEdit(precedent, self)
         self.library = QLineEdit(library, self)
         self.library.setPlaceholderText("optional: a folder of past agreements")
+        self.acting_for = QComboBox(self)
+        self.acting_for.setObjectName("actingFor")
+        self.acting_for.setToolTip("The party you act for, by the precedent's name for it: each "
+                                   "deviation is then marked adverse, favourable, neutral or unclear for it")
         grid = QGridLayout()
         rows = (
             ("Counterparty's draft", self.draft, self._pick_draft),
@@ -66,6 +84,10 @@ class OpenDialog(QDialog):
             b = QPushButton("Browse\u2026", self)
             b.clicked.connect(pick)
             grid.addWidget(b, i, 2)
+        grid.addWidget(QLabel("Acting for", self), len(rows), 0)
+        grid.addWidget(self.acting_for, len(rows), 1)
+        self.precedent.editingFinished.connect(self._fill_parties)
+        self._fill_parties()
         swap = QPushButton("Swap draft and precedent", self)
         swap.clicked.connect(self._swap)
         self.buttons = QDialogButtonBox(QDialogButtonBox.StandardButton.Cancel, self)
@@ -97,6 +119,26 @@ class OpenDialog(QDialog):
 
     def _pick_precedent(self) -> None:
         self._pick(self.precedent, "The house precedent")
+        self._fill_parties()
+
+    def _fill_parties(self) -> None:
+        """The precedent's party terms as the choices, the one chosen last preset."""
+        path = self.precedent.text().strip()
+        if path == self._parties_of:
+            return
+        self._parties_of = path
+        names = list(self._parties(path)) if path and os.path.isfile(path) else []
+        self.acting_for.clear()
+        self.acting_for.addItem(NO_PARTY, "")
+        for n in names:
+            self.acting_for.addItem(n, n)
+        last = self._remembered(path) if path else None
+        at = self.acting_for.findData(last) if last else -1
+        self.acting_for.setCurrentIndex(max(at, 0))
+
+    def party(self) -> str:
+        """The party chosen ("" for none)."""
+        return str(self.acting_for.currentData() or "")
 
     def _pick_library(self) -> None:
         path = QFileDialog.getExistingDirectory(self, "Folder of past agreements", self.library.text())

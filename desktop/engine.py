@@ -35,6 +35,7 @@ __all__ = [
     "load_and_review",
     "open_review_file",
     "pair_edits",
+    "party_terms",
     "pattern_groups",
     "rerun_review",
     "save_review_file",
@@ -111,12 +112,14 @@ def _runner(library: Any, report: Report, cancelled: IsCancelled):
     """A review runner in the shape :mod:`core.decisions` expects, adding the precedent
     set's vocabulary and frequencies when a library is open."""
 
-    def run(draft: Any, precedent: Any, *, overrides: Sequence[Any] = ()) -> Review:
+    def run(draft: Any, precedent: Any, *, overrides: Sequence[Any] = (),
+            acting_for: str | None = None) -> Review:
         from core.review import run_review
 
         report(0, None, "Comparing provisions")
         vocabulary = getattr(library, "vocabulary", None) if library is not None else None
-        review = run_review(draft, precedent, overrides=tuple(overrides), vocabulary=vocabulary)
+        review = run_review(draft, precedent, overrides=tuple(overrides), vocabulary=vocabulary,
+                            acting_for=acting_for)
         check_cancelled(cancelled)
         if library is not None:
             from core.library.frequency import apply_frequency
@@ -151,7 +154,8 @@ def load_and_review(
         report(0, None, "Indexing the precedent set")
         library = _open_library(inputs.library, report, cancelled)
         check_cancelled(cancelled)
-    review = _runner(library, report, cancelled)(draft, precedent, overrides=overrides)
+    review = _runner(library, report, cancelled)(draft, precedent, overrides=overrides,
+                                                 acting_for=inputs.acting_for)
     record = new_review_file(inputs.draft, inputs.precedent, overrides=tuple(overrides), review=review)
     return Outcome(record=record, library=library, library_total=_library_total(library),
                    notes=tuple(review.notes) + _library_notes(library))
@@ -173,9 +177,11 @@ def rerun_review(
     overrides: Sequence[Any],
     library: Any = None,
     library_folder: str | None = None,
+    acting_for: str | None | object = ...,
 ) -> Outcome:
-    """Review the same two documents again (new term overrides, or a precedent set opened
-    since), without re-reading them; the decisions that still apply are kept."""
+    """Review the same two documents again (new term overrides, a precedent set opened
+    since, or another party acted for: *acting_for*, by default the review's own), without
+    re-reading them; the decisions that still apply are kept."""
     import dataclasses
 
     if library_folder is not None:
@@ -183,12 +189,26 @@ def rerun_review(
         library = _open_library(library_folder, report, cancelled)
         check_cancelled(cancelled)
     old = record.review
-    review = _runner(library, report, cancelled)(old.draft, old.precedent, overrides=overrides)
+    party = old.acting_for if acting_for is ... else acting_for
+    review = _runner(library, report, cancelled)(old.draft, old.precedent, overrides=overrides,
+                                                 acting_for=party)
     decisions, notes = _remap(record.decisions, review)
     new = dataclasses.replace(record, review=review, overrides=tuple(overrides), decisions=decisions,
                               notes=tuple(notes))
     return Outcome(record=new, library=library, library_total=_library_total(library),
                    notes=tuple(review.notes) + tuple(notes) + (_library_notes(library) if library_folder else ()))
+
+
+def party_terms(path: str) -> tuple[str, ...]:
+    """The party terms of the agreement at *path* (its defined terms that name a party), for
+    the "acting for" choice; () when it cannot be read (the review will say why)."""
+    from core.reader import read_document
+    from core.review.direction import party_terms as terms_of
+
+    try:
+        return terms_of(read_document(path))
+    except (CounterdraftError, OSError):
+        return ()
 
 
 def pair_edits(review: Review, pair: Pair) -> Sequence[Edit]:

@@ -13,10 +13,14 @@ __all__ = [
     "CATEGORY_NAMES",
     "CHANGE_NAMES",
     "DECISION_NAMES",
+    "DIRECTION_MARKS",
+    "DIRECTION_ORDER",
     "PAST_USE",
     "SHORT_DECISION_NAMES",
     "STATUS_NAMES",
     "clause_label",
+    "direction_sentence",
+    "direction_text",
     "frequency_sentence",
     "frequency_text",
     "provision_caption",
@@ -96,6 +100,29 @@ def summary(d: Deviation) -> str:
     return CHANGE_NAMES.get(d.change, d.change)
 
 
+#: Directions in the list's sort order (adverse first, as the engine ranks them at equal
+#: severity) and the mark before each word: a downward and an upward pointing triangle, an
+#: equals sign, a question mark -- shapes, so that they read without colour.
+DIRECTION_ORDER = {"adverse": 0, "unclear": 1, "neutral": 2, "favourable": 3}
+DIRECTION_MARKS = {"adverse": "\u25bc", "favourable": "\u25b2", "neutral": "=", "unclear": "?"}
+
+
+def direction_text(d: Deviation) -> str:
+    """"▼ adverse": the deviation's direction for the party acted for, with its mark."""
+    return f"{DIRECTION_MARKS.get(d.direction, '')} {d.direction}".strip()
+
+
+def direction_sentence(d: Deviation, acting_for: str) -> str:
+    """The direction in a sentence, with the engine's reason naming the parties."""
+    what = {"adverse": f"Against the {acting_for}, the party you act for.",
+            "favourable": f"For the {acting_for}, the party you act for.",
+            "neutral": "For neither party: no change of meaning, or a clause binding each party alike.",
+            "unclear": "The wording does not tell whose side this change is on."}.get(d.direction, "")
+    why = next((r for r in d.reasons if f"to the {acting_for}" in r or r.endswith("alike")
+                or r.endswith(f"to {acting_for}")), "")
+    return f"{what}\n{why}".strip()
+
+
 def frequency_text(f: Frequency | None) -> str:
     """``"6/20"``: documents whose same-type provision has this wording, of the set (the
     figure beside the tally strip, as the command line's table writes it)."""
@@ -107,7 +134,7 @@ def frequency_text(f: Frequency | None) -> str:
 def frequency_sentence(d: Deviation) -> str:
     """The deviation's figures in a sentence: the tally strip in words
     (:func:`desktop.tally.tally_words`), what the figure counts for this kind of change,
-    and the firm's label of the wording."""
+    and the firm's stance on the wording."""
     from .tally import tally, tally_words
 
     f = d.frequency
@@ -123,5 +150,5 @@ def frequency_sentence(d: Deviation) -> str:
         text += f"; {f.same_type} {'has' if f.same_type == 1 else 'have'} a provision of this type"
     text = text[:1].upper() + text[1:] + "."
     if f.position:
-        text += f" The firm's label for this wording: {f.position}."
+        text += f" The firm's stance on this wording: {f.position}."
     return text

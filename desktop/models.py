@@ -23,9 +23,12 @@ from core.model import Deviation, Pair, Review, TermMapping
 
 from .labels import (
     CATEGORY_NAMES,
+    DIRECTION_ORDER,
     SHORT_DECISION_NAMES,
     STATUS_NAMES,
     clause_label,
+    direction_sentence,
+    direction_text,
     PAST_USE,
     frequency_sentence,
     frequency_text,
@@ -107,8 +110,8 @@ class DeviationTableModel(_RowsModel):
     """The ranked deviations of a review, one row each, in the engine's rank order.  The
     first column is each deviation's number -- its rank, the number every output shows."""
 
-    RANK, SEVERITY, CLAUSE, KIND, SUMMARY, COMMON, DECISION = range(7)
-    HEADERS = ("No.", "Severity", "Clause", "Kind", "What changed", PAST_USE, "Decision")
+    RANK, SEVERITY, CLAUSE, KIND, SUMMARY, COMMON, DECISION, DIRECTION = range(8)
+    HEADERS = ("No.", "Severity", "Clause", "Kind", "What changed", PAST_USE, "Decision", "Direction")
 
     def __init__(self, parent: Any = None) -> None:
         super().__init__(parent)
@@ -118,6 +121,7 @@ class DeviationTableModel(_RowsModel):
         self._clauses_full: list[str] = []
         self._decisions: Mapping[str, tuple[str, str]] = {}
         self._library = False
+        self._acting_for: str | None = None
 
     # -- data in ------------------------------------------------------------------------
     def set_review(self, review: Review | None, *, library_loaded: bool) -> None:
@@ -127,6 +131,7 @@ class DeviationTableModel(_RowsModel):
         self._clauses = [clause_label(review, d, compact=True) for d in self._rows] if review else []
         self._clauses_full = [clause_label(review, d) for d in self._rows] if review else []
         self._library = library_loaded
+        self._acting_for = review.acting_for if review else None
         self.endResetModel()
 
     def set_decisions(self, decisions: Mapping[str, tuple[str, str]]) -> None:
@@ -184,7 +189,11 @@ class DeviationTableModel(_RowsModel):
                     return ""
                 name = SHORT_DECISION_NAMES.get(decision[0], decision[0])
                 return name + (" \u270e" if decision[1] else "")
+            if col == self.DIRECTION:
+                return direction_text(d) if self._acting_for else ""
         if role == SORT_ROLE:
+            if col == self.DIRECTION:
+                return DIRECTION_ORDER.get(d.direction, len(DIRECTION_ORDER))
             if col == self.RANK:
                 return d.rank
             if col == self.SEVERITY:
@@ -222,6 +231,8 @@ class DeviationTableModel(_RowsModel):
                 return frequency_sentence(d)
             if col == self.DECISION and decision is not None and decision[1]:
                 return decision[1]
+            if col == self.DIRECTION and self._acting_for:
+                return direction_sentence(d, self._acting_for)
         return None
 
 
@@ -235,6 +246,8 @@ _HEADER_TIPS = (
     "Past use: one square per agreement of the precedent set, filled for each that carries "
     "the draft's wording (in groups of five), and the figure",
     "Your decision: accept the draft, restore the precedent, or amend",
+    "For the party you act for: adverse (against it), favourable (for it), neutral (no change "
+    "of meaning, or a clause binding each party alike), unclear (the wording does not tell)",
 )
 
 

@@ -1,4 +1,5 @@
-"""Remembered window state: size, splitter positions, recent files (QSettings).
+"""Remembered window state: size, splitter positions, recent files, the party acted for
+with each precedent (QSettings).
 
 The window takes its :class:`QSettings` from the caller, so tests use a temporary INI file
 and never touch the user's settings.
@@ -28,6 +29,14 @@ class Recent:
 
     def key(self) -> tuple[str, str, str, str]:
         return (self.draft, self.precedent, self.library, self.review_file)
+
+
+def _key(path: str) -> str:
+    """A settings key for a file path (QSettings keys treat "/" and "\\" as groups)."""
+    import hashlib
+    import os
+
+    return hashlib.sha256(os.path.abspath(str(path)).encode("utf-8")).hexdigest()[:24]
 
 
 def default_settings() -> QSettings:
@@ -75,6 +84,14 @@ class WindowSettings:
                          "review_file": r.review_file} for r in items]),
         )
         return items
+
+    def acting_for(self, precedent: str) -> str | None:
+        """The party the reviewer last acted for with this precedent (None: none yet)."""
+        v = self.q.value(f"acting_for/{_key(precedent)}")
+        return str(v) if v else None
+
+    def set_acting_for(self, precedent: str, party: str | None) -> None:
+        self.q.setValue(f"acting_for/{_key(precedent)}", party or "")
 
     def sync(self) -> None:
         self.q.sync()

@@ -47,6 +47,8 @@ class Inputs:
     draft: str
     precedent: str
     library: str | None = None
+    #: The precedent's party term the reviewer acts for (core.review.direction), or None.
+    acting_for: str | None = None
 
 
 @dataclass(frozen=True, slots=True)

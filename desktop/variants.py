@@ -2,7 +2,7 @@
 
 It shows the engine's :class:`core.library.slots.SlotVariants` as they come: one row per
 wording of the provision's slot with its tally strip (:mod:`desktop.tally`: one square per
-past agreement, filled for each that words it that way), the firm's position label beside
+past agreement, filled for each that words it that way), the firm's stance on it beside
 it, a marker on the draft's and the precedent's wording, and a row for the agreements with
 no such provision (hatched squares).  Which agreement belongs to which wording, the counts
 and the order are the engine's; this module only paints them (with :class:`QPainter`; there
@@ -37,12 +37,15 @@ if TYPE_CHECKING:  # the window opens without loading the engine
 __all__ = ["ABSENT_ROW", "POSITION_MARKS", "VariantChart", "VariantsView"]
 
 
-#: A symbol for each position label, so the label reads without colour.
+#: A mark for each of the firm's stances (core.library.index.POSITIONS), so the stance
+#: reads without colour: a house for the house wording, "almost equal" for a wording the
+#: firm can live with, a dashed arrow down for ground given only as a last concession, a
+#: slashed circle for a refusal (all in DejaVu Sans, the font the window falls back on).
 POSITION_MARKS = {
-    "preferred": "\u2605",
-    "acceptable": "\u2713",
-    "fallback": "\u21ba",
-    "not acceptable": "\u2715",
+    "house wording": "\u2302",
+    "can live with": "\u2248",
+    "last concession": "\u21e3",
+    "refuse": "\u2298",
 }
 #: The name of the row of agreements that have no such provision.
 ABSENT_ROW = "No such provision"

@@ -28,6 +28,7 @@ from PySide6.QtCore import QObject, QSettings, QThreadPool, QTimer, Qt, Signal
 from PySide6.QtGui import QAction, QCloseEvent, QDragEnterEvent, QDropEvent, QKeySequence
 from PySide6.QtWidgets import (
     QFileDialog,
+    QInputDialog,
     QLabel,
     QMainWindow,
     QMessageBox,
@@ -237,6 +238,9 @@ class MainWindow(QMainWindow):
         self.act_amend = A("Amend\u2026", self.decision.start_amend, key=KEYS["amend"])
         self.act_note = A("Note\u2026", self.decision.focus_note, key=KEYS["note"])
         self.act_clear = A("Clear decision", self.decision.clear, key=KEYS["clear"])
+        self.act_acting_for = A("Acting for\u2026", self._ask_acting_for,
+                                tip="The party you act for: each deviation is marked adverse, "
+                                    "favourable, neutral or unclear for it")
         self.act_filter = A("Filter the list", self._focus_filter, key=QKeySequence.StandardKey.Find)
         self.act_cancel = A("Cancel operation", self.cancel_operation, key=QKeySequence(Qt.Key.Key_Escape))
 
@@ -276,6 +280,7 @@ class MainWindow(QMainWindow):
         for a in (self.act_accept, self.act_revert, self.act_amend, self.act_note, self.act_clear):
             m.addAction(a)
         m.addSeparator()
+        m.addAction(self.act_acting_for)
         m.addAction(self.act_filter)
         m.addAction(self.act_cancel)
         m = mb.addMenu("&Show")
@@ -344,14 +349,17 @@ class MainWindow(QMainWindow):
             for a in (self.act_open, self.act_library, self.act_open_review):
                 a.setEnabled(not busy)
             for a in (self.act_save, self.act_save_as, self.act_export_cd, self.act_export_rl,
-                      self.act_export_il, self.act_export_il_rank, self.export_button_action):
+                      self.act_export_il, self.act_export_il_rank, self.export_button_action,
+                      self.act_acting_for):
                 a.setEnabled(has_review and not busy)
 
     def _refresh_title(self) -> None:
         ws = self.ws
         title = "Counterdraft"
         if ws.inputs is not None:
-            title = f"{Path(ws.inputs.draft).name} against {Path(ws.inputs.precedent).name} \u2014 Counterdraft"
+            acting = f", acting for the {ws.review.acting_for}" if ws.review is not None and ws.review.acting_for else ""
+            title = (f"{Path(ws.inputs.draft).name} against {Path(ws.inputs.precedent).name}{acting}"
+                     " \u2014 Counterdraft")
         if ws.unsaved:
             title = "\u2022 " + title
         self.setWindowTitle(title)
@@ -390,15 +398,25 @@ class MainWindow(QMainWindow):
             draft=draft or (ws.inputs.draft if ws.inputs else ""),
             precedent=precedent or (ws.inputs.precedent if ws.inputs else ""),
             library=library or (ws.inputs.library or "" if ws.inputs else "") or (self._pending_library or ""),
+            parties=engine.party_terms, remembered=self.settings.acting_for,
         )
         dlg.setAttribute(Qt.WidgetAttribute.WA_DeleteOnClose)
-        dlg.chosen.connect(lambda d, p, lib: self.open_comparison(d, p, library=lib or None))
+
+        def chosen(d: str, p: str, lib: str) -> None:
+            self.settings.set_acting_for(p, dlg.party() or None)  # asked once, kept per precedent
+            self.open_comparison(d, p, library=lib or None)
+
+        dlg.chosen.connect(chosen)
         dlg.open()
         return dlg
 
-    def open_comparison(self, draft: str, precedent: str, *, library: str | None = None) -> None:
-        """Read both files, review them (with the precedent set when given) off the GUI thread."""
-        inputs = Inputs(draft=str(draft), precedent=str(precedent), library=str(library) if library else None)
+    def open_comparison(self, draft: str, precedent: str, *, library: str | None = None,
+                        acting_for: str | None | object = ...) -> None:
+        """Read both files, review them (with the precedent set when given) off the GUI thread,
+        acting for *acting_for* (by default the party last chosen with this precedent)."""
+        party = self.settings.acting_for(str(precedent)) if acting_for is ... else acting_for
+        inputs = Inputs(draft=str(draft), precedent=str(precedent), library=str(library) if library else None,
+                        acting_for=party or None)
         work = functools.partial(engine.load_and_review, inputs, overrides=())
         self._run("Reading and comparing", work, lambda out: self._review_loaded(inputs, out, fresh=True))
 
@@ -409,7 +427,7 @@ class MainWindow(QMainWindow):
             self._pending_library = folder
             self._status(f"Precedent set {folder} will be used for the next comparison.")
             return
-        inputs = Inputs(self.ws.inputs.draft, self.ws.inputs.precedent, folder)
+        inputs = Inputs(self.ws.inputs.draft, self.ws.inputs.precedent, folder, self.ws.inputs.acting_for)
         work = functools.partial(engine.rerun_review, self.ws.record, overrides=self.ws.overrides,
                                  library_folder=folder)
         self._run("Indexing the precedent set and comparing", work,
@@ -454,7 +472,8 @@ class MainWindow(QMainWindow):
     def _review_file_opened(self, path: str, out: engine.Outcome) -> None:
         ws = self.ws
         rec = out.record
-        ws.inputs = Inputs(rec.draft.path, rec.precedent.path, ws.inputs.library if ws.inputs else None)
+        ws.inputs = Inputs(rec.draft.path, rec.precedent.path, ws.inputs.library if ws.inputs else None,
+                           rec.review.acting_for)
         ws.record = rec
         ws.saved_decisions = tuple(rec.decisions)
         self._set_library(out.library)
@@ -527,6 +546,46 @@ class MainWindow(QMainWindow):
             self._review_loaded(inputs, out, fresh=False)
 
         self._run("Re-running the review with your term decision", work, done)
+
+    def change_acting_for(self, party: str | None) -> None:
+        """Judge the review again for *party* (a precedent party term; None: no one), and
+        remember the choice for this precedent."""
+        ws = self.ws
+        if ws.review is None or ws.inputs is None:
+            return
+        self.settings.set_acting_for(ws.inputs.precedent, party)
+        inputs = Inputs(ws.inputs.draft, ws.inputs.precedent, ws.inputs.library, party)
+        work = functools.partial(engine.rerun_review, ws.record, overrides=ws.overrides,
+                                 library=ws.library, acting_for=party)
+
+        def done(out: engine.Outcome) -> None:
+            ws.unsaved = True
+            self._review_loaded(inputs, out, fresh=False)
+
+        self._run("Judging each deviation for the party you act for", work, done)
+
+    def _ask_acting_for(self) -> QInputDialog | None:
+        """Choose the party acted for among the precedent's party terms (non-blocking)."""
+        ws = self.ws
+        if ws.review is None:
+            return None
+        from core.review.direction import party_terms
+
+        from .dialogs import NO_PARTY
+
+        names = [NO_PARTY, *party_terms(ws.review.precedent)]
+        dlg = QInputDialog(self)
+        dlg.setObjectName("actingForDialog")
+        dlg.setWindowTitle("Acting for")
+        dlg.setLabelText("The party you act for (the precedent's name for it):")
+        dlg.setComboBoxItems(names)
+        dlg.setComboBoxEditable(False)
+        current = ws.review.acting_for
+        dlg.setTextValue(current if current in names else NO_PARTY)
+        dlg.setAttribute(Qt.WidgetAttribute.WA_DeleteOnClose)
+        dlg.textValueSelected.connect(lambda t: self.change_acting_for(None if t == NO_PARTY else t))
+        dlg.open()
+        return dlg
 
     def select_deviation(self, did: str | None) -> None:
         if did == self.ws.selected:

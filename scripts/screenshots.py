@@ -7,8 +7,9 @@ Runs on Qt's offscreen platform (no display needed), at the window's first-run s
 settings: the overview, the defined-terms view, a selected deviation, the wordings of that
 deviation's provision in the precedent set and the usual changes.
 
-The pictures show exactly what ``make demo`` (``python -m desktop --demo``) opens: the
-bundled demo as it is, nothing added.  The script works on a temporary copy of
+The pictures show exactly what ``make demo`` opens: the bundled demo, acting for its
+supplier, with the two illustrative stances ``counterdraft demo`` records in the precedent
+set (:data:`core.cli.DEMO_STANCES`), nothing else added.  The script works on a temporary copy of
 ``demo_agreements/`` (without any ``.counterdraft`` index found there), so the index it
 builds is thrown away afterwards and the repository is left untouched.
 """
@@ -80,7 +81,10 @@ def main(argv: list[str] | None = None) -> int:
         w.ask_before_closing = False
         w.resize(*DEFAULT_SIZE)
         w.show()
-        w.open_comparison(draft, precedent, library=library)
+        from core.cli import DEMO_ACTING_FOR, apply_demo_stances
+
+        apply_demo_stances(library)  # as `make demo` records them before opening the window
+        w.open_comparison(draft, precedent, library=library, acting_for=DEMO_ACTING_FOR)
         _wait((w.reviewShown, w.operationFailed, w.operationCancelled), WAIT_MS)
         if w.ws.review is None:
             print(f"the demo review did not finish: {w.last_message or 'timeout'}", file=sys.stderr)

@@ -71,10 +71,13 @@ _NUMBER_COLUMN = "No."
 _WHAT_COLUMN = "What changed"
 _WHY_COLUMN = "Why it matters"
 _FREQUENCY_COLUMN = "Past use"
+_DIRECTION_COLUMN = "Direction"
 #: The table's columns (.docx and HTML), in order; without a precedent set the "Past use"
-#: column (how often the firm's past agreements carry the draft's wording) is left out.
-ISSUE_COLUMNS = (_NUMBER_COLUMN, "Clause", _WHAT_COLUMN, _WHY_COLUMN, _FREQUENCY_COLUMN,
-                 "Decision", "Note")
+#: column (how often the firm's past agreements carry the draft's wording) is left out, and
+#: without a party acted for (``review --acting-for``) the "Direction" column (adverse,
+#: favourable, neutral or unclear for that party).
+ISSUE_COLUMNS = (_NUMBER_COLUMN, "Clause", _DIRECTION_COLUMN, _WHAT_COLUMN, _WHY_COLUMN,
+                 _FREQUENCY_COLUMN, "Decision", "Note")
 _PRECEDENT_WORDS_COLUMN = "Precedent's changed words"
 _DRAFT_WORDS_COLUMN = "Draft's changed words"
 #: The CSV's columns: the table's, then the exact changed words of each side, so that a
@@ -164,6 +167,8 @@ class IssueRow:
     precedent_words: str = ""
     draft_words: str = ""
     category: str = "substantive"
+    #: The deviation's direction for the party acted for; None for a review without one.
+    direction: str | None = None
 
     @property
     def change_excerpt(self) -> Excerpt:
@@ -175,7 +180,7 @@ class IssueRow:
             _NUMBER_COLUMN: str(self.number), "Clause": self.clause,
             _WHAT_COLUMN: self.what_changed, _WHY_COLUMN: self.why,
             _FREQUENCY_COLUMN: self.frequency or "", "Decision": self.decision, "Note": self.note,
-            _PRECEDENT_WORDS_COLUMN: self.precedent_words, _DRAFT_WORDS_COLUMN: self.draft_words,
+            _DIRECTION_COLUMN: self.direction or "", _PRECEDENT_WORDS_COLUMN: self.precedent_words, _DRAFT_WORDS_COLUMN: self.draft_words,
         }
         return [values[c] for c in columns]
 
@@ -449,7 +454,7 @@ def _share(matching: int, of: int) -> str:
 
 def _how_common(dev: Deviation) -> str | None:
     """The "past use" cell in words (see :func:`_table_notes` for what the figures mean);
-    the firm's label of the wording after it.  None without a precedent set."""
+    the firm's stance on the wording after it.  None without a precedent set."""
     f = dev.frequency
     if f is None:
         return None
@@ -471,7 +476,7 @@ def _how_common(dev: Deviation) -> str | None:
         text = ("the one past agreement has no such clause" if f.total == 1
                 else f"none of the {_agreements(f.total)} has such a clause")
     if f.position:
-        text += f"; firm's label: {f.position}"
+        text += f"; firm's stance: {f.position}"
     return text
 
 
@@ -606,7 +611,7 @@ def issue_rows(review: Review, decisions: Sequence[Decision] = (), *,
             what_changed=what.text, why=_why(review, dev), frequency=_how_common(dev),
             decision=_decision_text(dec), note=(dec.note or "") if dec else "",
             what_changed_marks=what.marks, precedent_words=pwords, draft_words=dwords,
-            category=dev.category,
+            category=dev.category, direction=dev.direction if review.acting_for else None,
         ))
     return rows
 
@@ -616,9 +621,12 @@ def _left_out(review: Review, rows: Sequence[IssueRow]) -> int:
 
 
 def _columns(rows: Sequence[IssueRow], columns: Sequence[str] = ISSUE_COLUMNS) -> tuple[str, ...]:
-    if any(r.frequency is not None for r in rows):
-        return tuple(columns)
-    return tuple(c for c in columns if c != _FREQUENCY_COLUMN)
+    left_out = set()
+    if not any(r.frequency is not None for r in rows):
+        left_out.add(_FREQUENCY_COLUMN)
+    if not any(r.direction is not None for r in rows):
+        left_out.add(_DIRECTION_COLUMN)
+    return tuple(c for c in columns if c not in left_out)
 
 
 def _first_term_row(rows: Sequence[IssueRow]) -> int | None:
@@ -644,9 +652,13 @@ def _table_notes(review: Review, rows: Sequence[IssueRow], order: str) -> list[s
             f"Past use: of the firm's {_agreements(total)} in the precedent set, how many "
             "that have a clause of the same type carry the draft's wording; for a provision "
             "the draft leaves out, how many lack it as well; for a renamed defined term, how "
-            "many of those that define the term use the draft's name. \u201cFirm's label\u201d "
-            "is the label the firm gave that wording (preferred, acceptable, fallback, not "
-            "acceptable).")
+            "many of those that define the term use the draft's name. \u201cFirm's stance\u201d "
+            "is the firm's stance on that wording (house wording, can live with, last concession, "
+            "refuse).")
+    if review.acting_for and any(r.direction is not None for r in rows):
+        notes.append(f"Direction: for the {review.acting_for}, the party acted for -- adverse "
+                     "(against it), favourable (for it), neutral (no change of meaning, or a "
+                     "clause binding each party alike), unclear (the wording does not tell).")
     if _first_term_row(rows) is not None:
         notes.append("The last rows are renamed defined terms, for information: the draft calls "
                      "a defined term differently, and the comparison reads both names as one term.")
@@ -687,10 +699,11 @@ def issues_list_csv(review: Review, decisions: Sequence[Decision] = (), *,
 #: "Confidentiality" 2.37 cm; the header words "Past" and "use" have fewer letters than
 #: "Decision") plus the cell margins (2 x 0.19 cm) and some slack; "What changed" gets the
 #: most room, "Why it matters" the next, "Past use" enough that its sentence takes three
-#: lines, not five.  Without the frequency column the others share
-#: its width.
-ISSUE_WIDTHS_CM = {_NUMBER_COLUMN: 1.1, "Clause": 3.2, _WHAT_COLUMN: 7.2, _WHY_COLUMN: 4.4,
-                   _FREQUENCY_COLUMN: 3.4, "Decision": 2.3, "Note": 3.1}
+#: lines, not five; "Direction" as much as "Decision" (its longest word, "favourable", is
+#: about as long as "undecided").  Without the frequency or direction column the others
+#: share its width.
+ISSUE_WIDTHS_CM = {_NUMBER_COLUMN: 1.1, "Clause": 3.2, _DIRECTION_COLUMN: 2.3, _WHAT_COLUMN: 7.2,
+                   _WHY_COLUMN: 4.4, _FREQUENCY_COLUMN: 3.4, "Decision": 2.3, "Note": 3.1}
 
 #: The page's palette (ours): ink, secondary text, rules, header fill, the fill of the
 #: renamed-terms group, and the washes behind the changed words -- the precedent's ("was",

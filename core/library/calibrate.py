@@ -1,7 +1,7 @@
 """Choosing the variant cut-off from a few labelled provisions.
 
 The reviewer labels a few provisions of the precedent set (any labels: positions such as
-"preferred" / "not acceptable", or names such as "30 days" / "60 days").  For each candidate
+"house wording" / "refuse", or names such as "30 days" / "60 days").  For each candidate
 cut-off, the clause types of the labelled provisions are clustered exactly as
 :mod:`.variants` does, and :func:`calibrate` counts
 

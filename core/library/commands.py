@@ -148,9 +148,13 @@ def _cmd_stats(args: argparse.Namespace) -> int:
 
 
 def _cmd_label(args: argparse.Namespace) -> int:
-    from .index import Library, default_db_path
+    from .index import Library, default_db_path, position_name
 
-    position = None if args.position == "none" else args.position.replace("-", " ")
+    position = None
+    if args.position.strip().casefold() != "none":
+        position, notice = position_name(args.position)
+        if notice:
+            print(f"counterdraft: note: {notice}", file=sys.stderr)
     db = args.db or default_db_path(args.dir)
     with Library(db, root=args.dir) as library:
         if args.variant is not None:
@@ -251,9 +255,9 @@ def add_library_parser(sub) -> None:  # noqa: ANN001 - argparse's subparsers act
     p.add_argument("--variant", type=int, metavar="ID", help="variant id (see 'library stats --variants TYPE')")
     p.add_argument("--document", metavar="PATH", help="a document of the variant (path inside DIR)")
     p.add_argument("--provision", metavar="NUMBER", help="its provision (number, heading or id)")
-    p.add_argument("--position", required=True,
-                   choices=[*POSITIONS, *(x.replace(" ", "-") for x in POSITIONS if " " in x), "none"],
-                   help="the position; 'none' removes the label")
+    p.add_argument("--position", required=True, metavar="STANCE",
+                   help="the firm's stance on the wording: " + ", ".join(f"'{x}'" for x in POSITIONS)
+                        + " (hyphens for spaces are fine); 'none' removes the label")
     p.set_defaults(func=_cmd_label)
 
     p = lsub.add_parser("calibrate", help="clusters and mixed clusters per variant cut-off")

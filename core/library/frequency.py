@@ -98,12 +98,13 @@ DEPARTURE_MATCH_MIN = 0.5
 #: severity without hiding a severe one.  A product choice, no source.
 ACCEPTED_WEIGHT = 0.5
 #: Severity points added for the reviewer's position on the draft's wording (a product choice,
-#: no source): a wording the firm prefers or accepts matters less, one it does not accept more.
+#: no source): the firm's own wording or one it can live with matters less, one it refuses
+#: more (core.library.index.POSITIONS).
 POSITION_ADJUSTMENT: Mapping[str, int] = {
-    "preferred": -20,
-    "acceptable": -10,
-    "fallback": 0,
-    "not acceptable": 15,
+    "house wording": -20,
+    "can live with": -10,
+    "last concession": 0,
+    "refuse": 15,
 }
 
 
@@ -567,7 +568,7 @@ def _deviation_frequency(ctx: _Context, dev: Deviation) -> Frequency:
 def frequency_reasons(freq: Frequency) -> tuple[str, ...]:
     """The reasons :func:`apply_frequency` adds to a substantive deviation whose wording has
     *freq*: "accepted in 9 of 24 past agreements" (or "never accepted in the 24 past
-    agreements") and the firm's label of the wording when it has one; none for an empty
+    agreements") and the firm's stance on the wording when it has one; none for an empty
     set.  One place for this wording, so that a writer showing the figures in a column of
     their own (the issues list) can leave these reasons out."""
     if freq.total <= 0:
@@ -576,7 +577,7 @@ def frequency_reasons(freq: Frequency) -> tuple[str, ...]:
     out = [f"accepted in {freq.matching} of {freq.total} past agreement{plural}" if freq.matching > 0
            else f"never accepted in the {freq.total} past agreement{plural}"]
     if freq.position is not None:
-        out.append(f"the firm's position on this wording: {freq.position}")
+        out.append(f"the firm's stance on this wording: {freq.position}")
     return tuple(out)
 
 

@@ -93,10 +93,12 @@ from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_ali
 from .variants import RegroupTooLarge, VariantConfig, cluster_wordings, regroup
 
 __all__ = [
+    "position_name",
     "DB_DIRNAME",
     "DB_FILENAME",
     "MIN_AGREEMENT_TYPES",
     "POOL_MIN_FILES",
+    "FORMER_POSITIONS",
     "POSITIONS",
     "SUFFIXES",
     "BucketIndex",
@@ -157,8 +159,29 @@ CLUSTER_DRIFT = 0.10
 #: starting a process and importing gensim in it (about a second) costs more than it saves.
 PARALLEL_TRAINING_MIN_WORDS = 200_000
 
-#: The reviewer's positions on a variant, strongest first.
-POSITIONS: tuple[str, ...] = ("preferred", "acceptable", "fallback", "not acceptable")
+#: The firm's stance on a wording variant, most favoured first (our own names): the wording
+#: the firm itself drafts with; one it can live with; one it concedes only as a last resort;
+#: one it refuses.
+POSITIONS: tuple[str, ...] = ("house wording", "can live with", "last concession", "refuse")
+#: The names an index or a review file written by an earlier version used, and the stance
+#: each now reads as (an index is converted in place when it is opened: :func:`_migrate_positions`).
+FORMER_POSITIONS: Mapping[str, str] = {
+    "preferred": "house wording", "acceptable": "can live with", "fallback": "last concession",
+    "not acceptable": "refuse",
+}
+
+
+def position_name(given: str) -> tuple[str, str | None]:
+    """The stance *given* names -- one of :data:`POSITIONS` in any letter case, hyphens for
+    spaces ("can-live-with"), or a former name -- and a one-line notice when it was a former
+    name.  Raises :class:`CounterdraftError` for anything else."""
+    key = " ".join(given.replace("-", " ").split()).casefold()
+    if key in POSITIONS:
+        return key, None
+    if key in FORMER_POSITIONS:
+        new = FORMER_POSITIONS[key]
+        return new, f'"{given}" is a former name of the stance "{new}"; recorded as "{new}"'
+    raise CounterdraftError(f"position must be one of: {', '.join(POSITIONS)} (or none)")
 
 Progress = Callable[[int, int, str], None]
 Cancel = Callable[[], bool]
@@ -386,6 +409,7 @@ def _connect(db_path: Path, *, create: bool) -> sqlite3.Connection:
         if _meta(conn, "schema") is None:
             _set_meta(conn, "schema", SCHEMA_VERSION)
             conn.commit()
+        _migrate_positions(conn)
     except _Unusable:
         if conn is not None:
             conn.close()
@@ -397,6 +421,23 @@ def _connect(db_path: Path, *, create: bool) -> sqlite3.Connection:
             raise _Unusable(str(err)) from None
         raise CounterdraftError(f"cannot open the index ({err})", path=str(db_path)) from None
     return conn
+
+
+#: Meta key recording that the stances of an index carry the names of :data:`POSITIONS`.
+_POSITION_NAMES_KEY = "position_names"
+
+
+def _migrate_positions(conn: sqlite3.Connection) -> None:
+    """Rename the stances an index written by an earlier version stores
+    (:data:`FORMER_POSITIONS`) to their names of :data:`POSITIONS`, once: the labels and the
+    variants' positions.  O(labels + variants) the first time, one meta read after."""
+    if _meta(conn, _POSITION_NAMES_KEY) == "2":
+        return
+    with conn:
+        for old, new in FORMER_POSITIONS.items():
+            conn.execute("UPDATE labels SET position = ? WHERE position = ?", (new, old))
+            conn.execute("UPDATE variants SET position = ? WHERE position = ?", (new, old))
+        _set_meta(conn, _POSITION_NAMES_KEY, "2")
 
 
 def _set_aside(db_path: Path) -> Path:
@@ -1573,8 +1614,8 @@ class Library:
     def label_variant(self, variant_id: int, position: str | None) -> int:
         """Give every wording of variant *variant_id* the reviewer's *position* (one of
         :data:`POSITIONS`; None removes the label).  Returns the number of wordings labelled."""
-        if position is not None and position not in POSITIONS:
-            raise CounterdraftError(f"position must be one of: {', '.join(POSITIONS)}")
+        if position is not None:
+            position = position_name(position)[0]
         row = self.conn.execute("SELECT bucket FROM variants WHERE id = ?", (variant_id,)).fetchone()
         if row is None:
             raise CounterdraftError(f"no variant {variant_id} in the index (see 'counterdraft library stats')",

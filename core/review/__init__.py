@@ -47,19 +47,22 @@ from dataclasses import dataclass, replace
 from ..model import Deviation, Document, Edit, Pair, Provision, Review, TermMapping
 from .align import Alignment, Features, Group, align
 from .classify import Change, TermContext, classify_ops
+from .direction import Judge, direction_rank_key, find_parties, resolve_acting_for
 from .docinfo import DocInfo, build_docinfo
 from .figures import figure_reasons, figures_in
 from .serialize import review_to_dict
 from .severity import (
     SeverityRules,
+    Signal,
+    assess_text_change,
     category_severity,
     clause_types_for,
     default_rules,
     figure_severity,
     find_quantities,
     heading_only_reason,
+    is_weight_reason,
     provision_change_severity,
-    text_change_severity,
 )
 from .spans import corresponding_spans
 from .termmap import (
@@ -206,6 +209,10 @@ class _Dev:
     part: str = "text"  # see core.model.Deviation.part
     precedent_text_span: tuple[int, int] | None = None
     draft_text_span: tuple[int, int] | None = None
+    #: The signals the severity rules found in a substantive change of words (what its
+    #: direction is judged from); () for the other deviations.
+    signals: tuple[Signal, ...] = ()
+    direction: str = "unclear"  # see core.model.Deviation.direction
 
 
 def _pieces(text: str, starts: Sequence[int], span: tuple[int, int]) -> list[tuple[int, int]]:
@@ -273,16 +280,23 @@ def run_review(draft: Document, precedent: Document, *,
                vocabulary: VocabularyModel | None = None,
                rules: SeverityRules | None = None,
                clause_type: Callable[[Provision, Document], str | None] | None = None,
+               acting_for: str | None = None,
                timings: dict[str, float] | None = None) -> Review:
     """Compare *draft* (the counterparty's) with *precedent* (the house document).
 
     *overrides* confirm, reject or add term mappings; *vocabulary* is the precedent set's
     vocabulary model (optional); *rules* the severity rules (default
     ``resources/severity.toml``); *clause_type* a better clause-type classifier than the
-    rules' heading keywords (optional).  When *timings* is given it receives each stage's
-    wall-clock time in seconds (for ``benchmarks/bench_review.py``)."""
+    rules' heading keywords (optional).  *acting_for* names the precedent's party the
+    reviewer acts for (its defined term, any letter case; :mod:`.direction`): every
+    deviation is then judged adverse, favourable, neutral or unclear for it, and ranked so;
+    an unknown party raises :class:`CounterdraftError` naming the party terms found.  When
+    *timings* is given it receives each stage's wall-clock time in seconds (for
+    ``benchmarks/bench_review.py``)."""
     clock = _Clock(timings)
     rules = rules or default_rules()
+    if acting_for is not None:
+        acting_for = resolve_acting_for(precedent, acting_for)
     di, pi = build_docinfo(draft), build_docinfo(precedent)
     extra = [n for o in overrides for n in (o.draft, o.precedent or "") if n.strip()]
     names = list(dict.fromkeys([*di.all_names, *pi.all_names, *extra]))
@@ -320,6 +334,7 @@ def run_review(draft: Document, precedent: Document, *,
     d_types = clause_types_for(draft, rules=rules, classifier=clause_type)
     p_types = clause_types_for(precedent, rules=rules, classifier=clause_type)
     builder = _Builder(di, pi, dside, pside, tm, al, rules, d_types, p_types, clock)
+    builder.acting_for = acting_for
     review = builder.build()
     clock.lap("ranking and output")
     return review
@@ -385,6 +400,7 @@ class _Builder:
         self.tm, self.al, self.rules = tm, al, rules
         self.d_types, self.p_types = d_types, p_types
         self.devs: list[_Dev] = []
+        self.acting_for: str | None = None  # the precedent's party term (run_review)
         self.keep_terms: frozenset[str] | None = None
         # (draft position, precedent position) -> the pair's word diff (Pair.edits)
         self.edits: dict[tuple[int, int], tuple[Edit, ...]] = {}
@@ -473,11 +489,13 @@ class _Builder:
         pa, pb = min(max(pa, p0), p0 + plen), min(max(pb, p0), p0 + plen)
         da, db = min(max(da, d0), d0 + dlen), min(max(db, d0), d0 + dlen)
         ptxt, dtxt = ptext[pa:pb], dtext[da:db]
+        signals: tuple[Signal, ...] = ()
         if ch.category == "substantive":
             ctype, kind = self._type_of(pp, dp)
-            sev, reasons = text_change_severity(
+            got = assess_text_change(
                 p_text=ptext, p_span=ch.p_span, d_text=dtext, d_span=ch.d_span,
                 clause_type=ctype, kind=kind, rules=self.rules, extra=ch.signals, heading=heading)
+            sev, reasons, signals = got.severity, got.reasons, got.signals
         else:
             key = ch.category
             if ch.category == "numbering" and "unchanged" in ch.note:
@@ -493,7 +511,7 @@ class _Builder:
             (float(dp), 0 if heading else 1, ch.d_span[0]), sev, ch.category, ch.change,
             self.di.provisions[dp].id, self.pi.provisions[pp].id, ptxt, dtxt, reasons,
             None if heading else pspan, None if heading else dspan,
-            "heading" if heading else "text", (pa - p0, pb - p0), (da - d0, db - d0)))
+            "heading" if heading else "text", (pa - p0, pb - p0), (da - d0, db - d0), signals))
 
     def _quantities(self, text: str, spans: Sequence[tuple[int, int]]) -> list[tuple[int, int]]:
         """Character spans of the figures near the given spans of *text*."""
@@ -605,7 +623,8 @@ class _Builder:
             dp = self.di.position.get(v.draft_provision) if v.draft_provision else None
             ctype, kind = self._type_of(pp, dp) if (pp, dp) != (None, None) else (None, "clause")
             sev = figure_severity(found, clause_type=ctype, kind=kind, rules=self.rules,
-                                  filled_in=self._fills_blank_with_a_value(v))
+                                  filled_in=self._fills_blank_with_a_value(v),
+                                  interest=any(s.name == "interest_rate_changed" for s in v.signals))
             if v.category == "substantive":  # add the values its reasons do not give yet
                 known = set(re.findall(r"\d+", " ".join(v.reasons)))
                 v.reasons += tuple(r for r in found if not set(re.findall(r"\d+", r)) <= known)
@@ -759,20 +778,39 @@ class _Builder:
                 part="provision"))
 
         self._guard_figures()  # numbers are always substance: the last rule
+        self._judge_directions()
         pairs.sort(key=lambda t: t[0])
-        # ids in draft order, ranks by severity then draft order
+        # ids in draft order, ranks by severity (and, acting for a party, direction) then
+        # draft order
         in_order = sorted(self.devs, key=lambda v: v.order)
         ids = {id(v): f"v{i}" for i, v in enumerate(in_order, 1)}
-        ranked = sorted(in_order, key=lambda v: (-v.severity, v.order))
+        if self.acting_for is None:
+            ranked = sorted(in_order, key=lambda v: (-v.severity, v.order))
+        else:
+            ranked = sorted(in_order, key=lambda v: (direction_rank_key(v.severity, v.direction), v.order))
         deviations = tuple(
             Deviation(ids[id(v)], r, v.severity, v.category, v.change, v.draft_provision,
                       v.precedent_provision, v.precedent_text, v.draft_text, v.reasons,
                       None, v.precedent_span, v.draft_span, v.part, v.precedent_text_span,
-                      v.draft_text_span)
+                      v.draft_text_span, v.direction)
             for r, v in enumerate(ranked, 1))
         notes: list[str] = []
         if not al.groups and (di.provisions or pi.provisions):
             notes.append(NO_SHARED_NOTE)
         return Review(di.doc, pi.doc, self.tm.mappings, tuple(p for _k, p in pairs), deviations,
-                      tuple(notes))
+                      tuple(notes), self.acting_for)
+
+    def _judge_directions(self) -> None:
+        """Each deviation's direction for the party acted for (:mod:`.direction`), with a
+        reason naming the parties before the clause type's weight."""
+        if self.acting_for is None:
+            return
+        parties = find_parties(self.di.doc, self.pi.doc, self.tm.mappings)
+        judge = Judge(parties=parties, acting_for=self.acting_for, rules=self.rules,
+                      draft=self.di.doc, precedent=self.pi.doc)
+        for v in self.devs:
+            v.direction, reason = judge.judge(v)
+            if reason:  # before the weight of the clause type, after the findings
+                k = next((i for i, r in enumerate(v.reasons) if is_weight_reason(r)), len(v.reasons))
+                v.reasons = (*v.reasons[:k], reason, *v.reasons[k:])
 

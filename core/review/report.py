@@ -19,7 +19,7 @@ from ..labels import clause_label
 from ..model import Deviation, Review
 
 __all__ = [
-    "DEFAULT_WIDTH", "NUMBER_HEADING", "PAST_USE_HEADING", "SHOW_CHOICES", "format_review",
+    "DEFAULT_WIDTH", "DIRECTION_HEADING", "NUMBER_HEADING", "PAST_USE_HEADING", "SHOW_CHOICES", "format_review",
     "shown_deviations", "terminal_width",
 ]
 
@@ -40,6 +40,10 @@ MIN_WIDTH = 60
 PAST_USE_HEADING = "Past use"
 #: Shown in the past-use column for a deviation without a frequency (e.g. a renamed term).
 NO_FREQUENCY = "-"
+#: Heading of the direction column (a review acting for a party) and its width: the longest
+#: direction, "favourable".
+DIRECTION_HEADING = "Direction"
+_DIRECTION_W = 10
 
 
 def shown_deviations(review: Review, *, show: str | None = None) -> list[Deviation]:
@@ -84,15 +88,18 @@ def _heading_lines(review: Review, width: int) -> list[str]:
     return lines
 
 
-def _row_lines(v: Deviation, clause: str, common: str | None, widths: tuple[int, int, int]) -> list[str]:
+def _row_lines(v: Deviation, clause: str, common: str | None, widths: tuple[int, int, int],
+               direction: bool = False) -> list[str]:
     """One deviation's lines: the figures on the first, the clause and the summary wrapped
-    in their columns below it."""
+    in their columns below it; with *direction*, the direction after the severity."""
     clause_w, common_w, summary_w = widths
     clauses = _wrap(clause, clause_w)
     summaries = _wrap(_summary(v), summary_w)
     out = []
     for i in range(max(len(clauses), len(summaries))):
         number = f"{v.rank:>{_NUMBER_W}} {v.severity:>{_SEV_W}}" if i == 0 else " " * (_NUMBER_W + 1 + _SEV_W)
+        if direction:
+            number += f"  {(v.direction if i == 0 else ''):<{_DIRECTION_W}}"
         line = f"{number}  {(clauses[i] if i < len(clauses) else ''):<{clause_w}}  "
         if common is not None:
             line += f"{(common if i == 0 else ''):>{common_w}}  "
@@ -110,7 +117,9 @@ def format_review(review: Review, *, show: str | None = None, width: int | None 
     common = [_common(v) for v in rows]
     with_common = any(c != NO_FREQUENCY for c in common)
     common_w = max([len(PAST_USE_HEADING), *map(len, common)]) if with_common else 0
-    fixed = _NUMBER_W + 1 + _SEV_W + 2 + 2 + (common_w + 2 if with_common else 0)
+    acting = review.acting_for is not None
+    fixed = (_NUMBER_W + 1 + _SEV_W + 2 + 2 + (common_w + 2 if with_common else 0)
+             + (_DIRECTION_W + 2 if acting else 0))
     clause_w = max(_CLAUSE_MIN_W, min(_CLAUSE_W, width - fixed - _SUMMARY_MIN_W))
     summary_w = max(1, width - fixed - clause_w)
     lines.extend(textwrap.wrap(
@@ -121,14 +130,24 @@ def format_review(review: Review, *, show: str | None = None, width: int | None 
         lines.extend(textwrap.wrap(
             f"{PAST_USE_HEADING}: agreements of the precedent set ({total}) whose clause of the "
             "same type has the draft's wording (for a provision left out: lacks it).", width))
-    head = f"{NUMBER_HEADING:>{_NUMBER_W}} {'Sev':>{_SEV_W}}  {'Clause':<{clause_w}}  "
+    if acting:
+        lines.extend(textwrap.wrap(
+            f"{DIRECTION_HEADING}: for the {review.acting_for}, the party you act for -- adverse "
+            "(against it), favourable (for it), neutral (no change of meaning, or binding each "
+            "party alike), unclear (the wording does not tell). At equal severity adverse ranks "
+            "first; a favourable change ranks as if half as severe.", width))
+    head = f"{NUMBER_HEADING:>{_NUMBER_W}} {'Sev':>{_SEV_W}}  "
+    if acting:
+        head += f"{DIRECTION_HEADING:<{_DIRECTION_W}}  "
+    head += f"{'Clause':<{clause_w}}  "
     if with_common:
         head += f"{PAST_USE_HEADING:>{common_w}}  "
     lines.append(head + "Summary")
     lines.append("-" * width)
     for v, c in zip(rows, common):
         clause = clause_label(review, v, compact=True)
-        lines.extend(_row_lines(v, clause, c if with_common else None, (clause_w, common_w, summary_w)))
+        lines.extend(_row_lines(v, clause, c if with_common else None, (clause_w, common_w, summary_w),
+                                direction=acting))
     if not rows:
         lines.append("(no deviation to show)")
     hidden = len(review.deviations) - len(rows)

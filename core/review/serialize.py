@@ -2,14 +2,19 @@
 
 Exactly this shape (``resources/schemas/review.schema.json`` is its JSON Schema)::
 
-    {"schema": "counterdraft.review/1",
+    {"schema": "counterdraft.review/1", "acting_for": "Supplier" | null,
      "draft": {counterdraft.document/1}, "precedent": {counterdraft.document/1},
      "term_map": [{"draft", "precedent", "confidence", "evidence", "occurrences", "stale",
                    "substitutions", "aligned"}],
      "pairs": [{"draft", "precedent", "status", "similarity", "frequency"}],
      "deviations": [{"id", "rank", "severity", "category", "change", "draft_provision",
                      "precedent_provision", "precedent_text", "draft_text", "reasons",
-                     "frequency", "precedent_text_span", "draft_text_span"}]}
+                     "frequency", "precedent_text_span", "draft_text_span",
+                     "direction"}]}
+
+``acting_for`` is the precedent's party term the review acts for (``--acting-for``), and
+``direction`` each deviation's direction for it: "adverse", "favourable", "neutral" or
+"unclear" (always "unclear" without ``acting_for``; :mod:`core.review.direction`).
 
 ``frequency`` (of a pair and of a deviation) is null until the precedent set fills it
 (:mod:`core.library`).
@@ -56,6 +61,7 @@ def _deviation(v: Deviation) -> dict[str, Any]:
         "frequency": frequency_to_dict(v.frequency),
         "precedent_text_span": list(v.precedent_text_span) if v.precedent_text_span else None,
         "draft_text_span": list(v.draft_text_span) if v.draft_text_span else None,
+        "direction": v.direction,
     }
 
 
@@ -63,6 +69,7 @@ def review_to_dict(review: Review) -> dict[str, Any]:
     """The JSON-ready ``counterdraft.review/1`` object of *review*."""
     return {
         "schema": REVIEW_SCHEMA_ID,
+        "acting_for": review.acting_for,
         "draft": document_to_dict(review.draft),
         "precedent": document_to_dict(review.precedent),
         "term_map": [

@@ -65,7 +65,13 @@ _CATEGORY_KEYS = ("term", "move", "numbering", "numbering_cross_reference", "for
 #: Signal keys a rule file may leave out (it was written before they existed), with the
 #: points used then: a figure that fills in a blank of the precedent (a date, an address, a
 #: company number) is substantive, but the precedent asked for a value there.
-_OPTIONAL_SIGNALS = {"number_filled_in": 15.0}
+_OPTIONAL_SIGNALS = {
+    "number_filled_in": 15.0,
+    # written before the recalibration of issue 12: the points of resources/severity.toml
+    "conjunction_in_obligation": 55.0, "conjunction_changed": 30.0,
+    "efforts_weakened": 45.0, "efforts_strengthened": 35.0,
+    "law_or_forum_changed": 65.0, "interest_rate_changed": 40.0,
+}
 #: Category keys a rule file may leave out (it was written before they existed), with the
 #: severity used then: a blank of the precedent filled in is informational, scored like a
 #: punctuation difference.
@@ -401,6 +407,43 @@ def _phrase_re(phrases: Sequence[str]) -> re.Pattern[str]:
     return re.compile(r"(?<![\w'])(?:" + body + r")(?![\w])", re.IGNORECASE)
 
 
+#: An efforts obligation in any of its drafting forms: "shall use reasonable endeavours to",
+#: "will use its commercially reasonable efforts to", "agrees to use best efforts to".  The
+#: words between "use" and "efforts" set the standard (:data:`EFFORTS_LEVELS`).
+_EFFORTS_RE = re.compile(
+    r"(?<![\w'])(?:(?:shall|will|must|should|agrees?\s+to|undertakes?\s+to)\s+)?use\s+"
+    r"(?P<std>(?:(?:its|their|his|her|all|every|commercially|reasonable|best|good|faith|diligent|"
+    r"utmost|prudent|practicable|own|and|its\s+own)\s+){0,5}?)(?:efforts|endeavou?rs)(?:\s+to\b)?",
+    re.IGNORECASE)
+#: Efforts standards, strongest first, with their level: the English courts read "best
+#: endeavours" as the most onerous, "all reasonable endeavours" between it and "reasonable
+#: endeavours" (Rhodia v Huntsman [2007] EWHC 292 (Comm); Jet2.com v Blackpool Airport
+#: [2012] EWCA Civ 417 -- from memory), and "commercially reasonable" lets the obligor weigh
+#: its own commercial interests, so lower still (common practice, no source).  A standard
+#: not listed ("diligent efforts") counts as "reasonable".
+EFFORTS_LEVELS: tuple[tuple[str, int], ...] = (
+    ("utmost", 5), ("best", 5), ("all reasonable", 4), ("all commercially reasonable", 3),
+    ("commercially reasonable", 2), ("reasonable", 3), ("good faith", 2),
+)
+
+
+def efforts_level(phrase: str) -> tuple[int, str]:
+    """(level, standard) of an efforts phrase: ``(3, "reasonable endeavours")`` for "shall use
+    reasonable endeavours to" (see :data:`EFFORTS_LEVELS`)."""
+    m = _EFFORTS_RE.search(phrase)
+    std = " ".join(m.group("std").lower().split()) if m else ""
+    std = re.sub(r"^(?:its own|its|their|his|her|own)\s*", "", std).strip()
+    noun = "endeavours" if m and "endeav" in m.group().lower() else "efforts"
+    for words, level in EFFORTS_LEVELS:
+        if std == words or std.endswith(" " + words) or std.startswith(words + " "):
+            return level, f"{std} {noun}".strip()
+    return 3, f"{std} {noun}".strip()
+
+
+def _efforts_matches(text: str) -> list[tuple[int, int, str]]:
+    return [(m.start(), m.end(), " ".join(m.group().lower().split())) for m in _EFFORTS_RE.finditer(text)]
+
+
 def _matches(rules: SeverityRules, name: str, text: str) -> list[tuple[int, int, str]]:
     key = ("re", name)
     pat = rules._cache.get(key)
@@ -415,6 +458,13 @@ def _matches(rules: SeverityRules, name: str, text: str) -> list[tuple[int, int,
         hit = [(m.start(), m.end(), " ".join(m.group().lower().split())) for m in pat.finditer(text)]
         if name == "negation":
             hit += [(m.start(), m.end(), "n't") for m in re.finditer(r"n['\u2019]t\b", text)]
+        elif name == "obligation":
+            # an efforts obligation is one (weak) obligation phrase, whatever its standard:
+            # "shall use commercially reasonable endeavours to" is no bare "shall"
+            efforts = _efforts_matches(text)
+            if efforts:
+                hit = sorted([h for h in hit if not any(a < h[1] and h[0] < b for a, b, _x in efforts)]
+                             + efforts)
         if len(tcache) > 4096:
             tcache.clear()
         tcache[text] = hit
@@ -530,6 +580,129 @@ def _qualifier_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d
     return out
 
 
+def _efforts_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
+    """An efforts standard raised or lowered ("reasonable endeavours" -> "commercially
+    reasonable endeavours"): a qualifier of the obligation, reported as what it does to the
+    standard, not as obligation words removed."""
+    pe = [m for m in _inside(_efforts_matches(p_text), p_span)]
+    de = [m for m in _inside(_efforts_matches(d_text), d_span)]
+    if not (pe and de):
+        return []
+    (pl, pstd), (dl, dstd) = efforts_level(pe[0][2]), efforts_level(de[0][2])
+    if pl == dl:
+        return []
+    if dl < pl:
+        return [Signal("efforts_weakened", f"efforts standard lowered from {_quote(pstd)} to "
+                                           f"{_quote(dstd)}: a qualifier that weakens the obligation")]
+    return [Signal("efforts_strengthened", f"efforts standard raised from {_quote(pstd)} to {_quote(dstd)}")]
+
+
+#: Words that join the things a provision requires or allows; swapping one for another
+#: ("and" -> "or") can change who must do what, or how much (common practice, no source).
+CONJUNCTIONS = frozenset({"and", "or", "and/or", "nor", "any", "all", "each", "either", "every",
+                          "both", "some"})
+_CONJ_TOKEN_RE = re.compile(r"and/or|\w+", re.IGNORECASE)
+#: Sentence breaks: after ".", "!", "?" or ";" followed by white space, or a line break.
+_SENTENCE_BREAK_RE = re.compile(r"(?<=[.!?;])\s+|\n+")
+
+
+def sentence_bounds(text: str, span: tuple[int, int]) -> tuple[int, int]:
+    """The sentence (or ";"-clause, or line) of *text* that holds *span*, as offsets."""
+    a, b = span
+    start = 0
+    for m in _SENTENCE_BREAK_RE.finditer(text, 0, a):
+        start = m.end()
+    m = _SENTENCE_BREAK_RE.search(text, max(b, start))
+    end = m.start() if m else len(text)
+    return start, max(end, b)
+
+
+def _conjunction_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
+    """"and" <-> "or" (and "any"/"all", "each"/"either", ...) when it is the whole change;
+    ranked high inside an obligation, where it can change who must do what."""
+    pw = [w.lower() for w in _CONJ_TOKEN_RE.findall(p_text[p_span[0]:p_span[1]])]
+    dw = [w.lower() for w in _CONJ_TOKEN_RE.findall(d_text[d_span[0]:d_span[1]])]
+    pc = [w for w in pw if w in CONJUNCTIONS]
+    dc = [w for w in dw if w in CONJUNCTIONS]
+    if not (pc and dc) or pc == dc or [w for w in pw if w not in CONJUNCTIONS] != [
+            w for w in dw if w not in CONJUNCTIONS]:
+        return []
+    old, new = " ".join(pc), " ".join(dc)
+    sa, sb = sentence_bounds(d_text, d_span)
+    duty = [m[2] for m in _matches(rules, "obligation", d_text) if sa <= m[0] < sb]
+    if duty:
+        return [Signal("conjunction_in_obligation",
+                       f"conjunction changed from {_quote(old)} to {_quote(new)} inside an obligation "
+                       f"({_quote(duty[0])}): it can change who must do what")]
+    return [Signal("conjunction_changed", f"conjunction changed from {_quote(old)} to {_quote(new)}")]
+
+
+#: Words of a choice of law or of a forum for disputes (common practice, no source).
+_LAW_FORUM_RE = re.compile(
+    r"\b(?:governed\s+by|governing\s+law|laws?\s+of|construed\s+in\s+accordance|jurisdictions?|"
+    r"courts?\s+of|tribunals?|venue|forum|arbitrat\w*|seat\s+of)\b", re.IGNORECASE)
+_LAW_RE = re.compile(r"\b(?:governed|governing\s+law|laws?\s+of|construed)\b", re.IGNORECASE)
+#: Clause types whose every change of words is a change of law or forum.
+LAW_FORUM_TYPES = frozenset({"governing_law", "dispute_resolution"})
+#: Characters between a changed word and a word of law or forum for the change to count as
+#: a change of law or forum outside a governing-law clause ("the courts of Wexmoor have
+#: exclusive jurisdiction": a dozen words apart at most; a layout choice, no source).
+LAW_FORUM_WINDOW = 80
+
+
+def _law_forum_signal(p_text: str, p_span, d_text: str, d_span, clause_type: str | None,
+                      signals: Sequence[Signal]) -> Signal | None:
+    """A change of the governing law or of the forum for disputes: a name or words changed
+    in a sentence that chooses a law or a court, in a governing-law or dispute clause or
+    within :data:`LAW_FORUM_WINDOW` characters of such words."""
+    if not any(s.name in ("name_changed", "wording_changed", "negation_added", "negation_removed",
+                          "qualifier_added", "qualifier_removed", "qualifier_changed",
+                          "sentence_inserted", "sentence_deleted")
+               for s in signals):
+        return None
+    sa, sb = sentence_bounds(d_text, d_span)
+    if clause_type in LAW_FORUM_TYPES:
+        found = _LAW_FORUM_RE.search(d_text, sa, sb)
+    else:
+        lo, hi = max(sa, d_span[0] - LAW_FORUM_WINDOW), min(sb, d_span[1] + LAW_FORUM_WINDOW)
+        found = _LAW_FORUM_RE.search(d_text, lo, hi)
+    if found is None:
+        return None
+    law = _LAW_RE.search(d_text, sa, sb) is not None and not re.search(
+        r"courts?|jurisdiction|arbitrat|venue|forum", found.group(), re.IGNORECASE)
+    what = "governing law" if law else "forum for disputes"
+    pw, dw = p_text[p_span[0]:p_span[1]], d_text[d_span[0]:d_span[1]]
+    if pw.strip() and dw.strip():
+        return Signal("law_or_forum_changed", f"{what} changed from {_excerpt(pw)} to {_excerpt(dw)}")
+    if dw.strip():
+        return Signal("law_or_forum_changed", f"{what} changed: {_excerpt(dw)} added")
+    return Signal("law_or_forum_changed", f"{what} changed: {_excerpt(pw)} removed")
+
+
+_INTEREST_RE = re.compile(r"\b(?:interest|late(?:-|\s+)(?:payment\s+)?(?:charges?|fees?))\b", re.IGNORECASE)
+_LATE_RE = re.compile(r"\b(?:late|overdue|unpaid|outstanding|due\s+date|arrears|not\s+paid|when\s+due|past\s+due)\b",
+                      re.IGNORECASE)
+
+
+def _interest_signals(d_text: str, d_span, signals: list[Signal]) -> list[Signal]:
+    """A changed percentage in a sentence about interest is a change of the interest rate:
+    it matters less than the sum or the date it runs on (statutes supply interest on late
+    commercial payments where a contract gives none -- e.g. the UK's Late Payment of
+    Commercial Debts (Interest) Act 1998 and the EU's Directive 2011/7/EU, from memory)."""
+    sa, sb = sentence_bounds(d_text, d_span)
+    if not _INTEREST_RE.search(d_text, sa, sb):
+        return signals
+    late = "late-payment " if _LATE_RE.search(d_text, sa, sb) else ""
+    out = []
+    for s in signals:
+        if s.name == "number_changed" and s.reason.startswith("percentage changed"):
+            out.append(Signal("interest_rate_changed",
+                              f"{late}interest rate changed" + s.reason[len("percentage changed"):]))
+        else:
+            out.append(s)
+    return out
+
+
 _WORD_RE = re.compile(r"\w+")
 #: Longest quotation of the changed words in a reason (characters): long enough for a
 #: phrase, short enough that a reason stays a glance in the report and the deviation list (a
@@ -585,21 +758,49 @@ def is_weight_reason(reason: str) -> bool:
     return _WEIGHT_REASON.search(reason) is not None
 
 
+@dataclass(frozen=True, slots=True)
+class Assessment:
+    """What the rules make of one change: its severity, its reasons (the signals' reasons,
+    then the clause type's weight) and the signals themselves."""
+
+    severity: int
+    reasons: tuple[str, ...]
+    signals: tuple[Signal, ...]
+
+
 def text_change_severity(*, p_text: str, p_span: tuple[int, int], d_text: str,
                          d_span: tuple[int, int], clause_type: str | None, kind: str,
                          rules: SeverityRules | None = None, extra: Sequence[Signal] = (),
                          heading: bool = False) -> tuple[int, tuple[str, ...]]:
     """Severity and reasons of a substantive change: ``p_text[p_span]`` (precedent) became
     ``d_text[d_span]`` (draft)."""
+    got = assess_text_change(p_text=p_text, p_span=p_span, d_text=d_text, d_span=d_span,
+                             clause_type=clause_type, kind=kind, rules=rules, extra=extra,
+                             heading=heading)
+    return got.severity, got.reasons
+
+
+def assess_text_change(*, p_text: str, p_span: tuple[int, int], d_text: str,
+                       d_span: tuple[int, int], clause_type: str | None, kind: str,
+                       rules: SeverityRules | None = None, extra: Sequence[Signal] = (),
+                       heading: bool = False) -> Assessment:
+    """:func:`text_change_severity` with the signals found (what the direction of a change
+    is judged from, :mod:`.direction`)."""
     rules = rules or _default_rules()
     signals: list[Signal] = list(extra)
     if heading:  # a heading is a label: only its change is reported
         signals.append(Signal("heading_changed", _heading_reason(p_text, d_text)))
     else:
-        signals += _figure_signals(p_text, p_span, d_text, d_span)
+        signals += _interest_signals(d_text, d_span, _figure_signals(p_text, p_span, d_text, d_span))
         signals += _obligation_signals(rules, p_text, p_span, d_text, d_span)
+        efforts = _efforts_signals(rules, p_text, p_span, d_text, d_span)
+        signals += efforts
         signals += _negation_signals(rules, p_text, p_span, d_text, d_span)
-        signals += _qualifier_signals(rules, p_text, p_span, d_text, d_span)
+        qualifiers = _qualifier_signals(rules, p_text, p_span, d_text, d_span)
+        if efforts:  # the efforts standard says it: not again as a qualifier
+            qualifiers = [q for q in qualifiers if not re.search(r"efforts|endeavou?rs", q.reason)]
+        signals += qualifiers
+        signals += _conjunction_signals(rules, p_text, p_span, d_text, d_span)
         pw = p_text[p_span[0]:p_span[1]]
         dw = d_text[d_span[0]:d_span[1]]
         nw_p = len(_WORD_RE.findall(pw))
@@ -616,12 +817,20 @@ def text_change_severity(*, p_text: str, p_span: tuple[int, int], d_text: str,
             else:
                 signals.append(Signal("wording_changed",
                                       f"wording changed from {_excerpt(pw)} to {_excerpt(dw)}"))
+        law = _law_forum_signal(p_text, p_span, d_text, d_span, clause_type, signals)
+        if law is not None:  # it says what the name or wording change means
+            signals = [law, *(s for s in signals if s.name not in ("name_changed", "wording_changed"))]
+    return _scored(rules, signals, clause_type=clause_type, kind=kind)
+
+
+def _scored(rules: SeverityRules, signals: Sequence[Signal], *, clause_type: str | None,
+            kind: str) -> Assessment:
     weight = rules.weight(clause_type, kind)
     reasons = [s.reason for s in signals]
     tr = _type_reason(clause_type, kind, weight)
     if tr:
         reasons.append(tr)
-    return _combine(rules, signals, weight), tuple(reasons)
+    return Assessment(_combine(rules, signals, weight), tuple(reasons), tuple(signals))
 
 
 def provision_change_severity(*, added: bool, label: str, text: str, clause_type: str | None,
@@ -654,14 +863,17 @@ def clear_caches(rules: SeverityRules | None = None) -> None:
 
 
 def figure_severity(reasons: Sequence[str], *, clause_type: str | None, kind: str,
-                    rules: SeverityRules | None = None, filled_in: bool = False) -> int:
+                    rules: SeverityRules | None = None, filled_in: bool = False,
+                    interest: bool = False) -> int:
     """Severity of the figure changes *reasons* name (:func:`.figures.figure_reasons`:
     "figure changed ...", "figure added ...", "figure removed ..."), scored like the same
     changes found in words: ``number_changed`` / ``number_added`` / ``number_removed``
     times the clause type's weight; figures that fill in a blank of the precedent (*filled_in*)
-    score ``number_filled_in`` instead of ``number_added``."""
+    score ``number_filled_in`` instead of ``number_added``; a changed figure of an interest
+    rate (*interest*: the change's own signals said so) scores ``interest_rate_changed``."""
     rules = rules or _default_rules()
-    names = {"changed": "number_changed", "removed": "number_removed",
+    names = {"changed": "interest_rate_changed" if interest else "number_changed",
+             "removed": "number_removed",
              "added": "number_filled_in" if filled_in else "number_added"}
     signals = [Signal(names[r.split()[1].rstrip(":")], r) for r in reasons]
     return _combine(rules, signals, rules.weight(clause_type, kind))
@@ -672,10 +884,23 @@ def category_severity(category: str, *, rules: SeverityRules | None = None) -> i
     return round(rules.categories[category])
 
 
+def phrase_matches(rules: SeverityRules, name: str, text: str) -> list[tuple[int, int, str]]:
+    """(start, end, phrase) of every phrase of list *name* ("obligation": the rule file's
+    obligation words and every efforts form; "negation"; "qualifier") in *text*; cached."""
+    return _matches(rules, name, text)
+
+
+def number_in_words(s: str) -> float | None:
+    """The number *s* writes in words ("twenty-five" -> 25), or None."""
+    return _words_value(s)
+
+
 def default_rules() -> SeverityRules:
     """The rules of ``resources/severity.toml`` (read once)."""
     return _default_rules()
 
 
-__all__ += ["HEADING_ADDED_OR_REMOVED_CHOICES", "category_severity", "clear_caches", "default_rules",
+__all__ += ["CONJUNCTIONS", "EFFORTS_LEVELS", "LAW_FORUM_TYPES", "Assessment", "assess_text_change",
+            "efforts_level", "number_in_words", "phrase_matches", "sentence_bounds",
+            "HEADING_ADDED_OR_REMOVED_CHOICES", "category_severity", "clear_caches", "default_rules",
             "figure_severity", "heading_only_reason"]

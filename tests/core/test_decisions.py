@@ -416,3 +416,61 @@ def test_saving_a_window_review_keeps_what_others_recorded_meanwhile(scenario, t
     cleared = dataclasses.replace(saved, decisions=tuple(d for d in saved.decisions if d.deviation != b))
     again = save_review_file_merged(path, cleared, base=saved.decisions)
     assert {d.deviation for d in again.decisions} == {a, c}
+
+
+def test_the_party_acted_for_is_kept_in_the_review_file(scenario, tmp_path, capsys):
+    """``review --acting-for`` judges each deviation for the party and the review file keeps
+    the party: every re-run (decide, export) judges for it again.  The hand-made scenario
+    (tests/support/handmade.py): the draft gives the Customer ("Client") sixty days to pay
+    instead of thirty and a right of set-off, and drops the Supplier's duty to keep records."""
+    review_file = tmp_path / "r.json"
+    assert main(["review", str(scenario.draft_path), "--against", str(scenario.precedent_path),
+                 "--acting-for", "customer", "--save", str(review_file), "--width", "120"]) == 0
+    table = capsys.readouterr().out
+    assert "Direction" in table and "favourable" in table and "adverse" in table
+    data = json.loads(review_file.read_text(encoding="utf-8"))
+    _validator().validate(data)
+    assert data["acting_for"] == "Customer"
+    by_words = {d["draft_text"] or d["precedent_text"]: d["direction"] for d in data["deviations"]
+                if d["category"] == "substantive"}
+    assert by_words["sixty (60) days"] == "favourable"  # more time for the Customer to pay
+    assert next(v for k, v in by_words.items() if "set off" in k) == "favourable"  # a right of its own
+    assert next(v for k, v in by_words.items() if "keep complete records" in k) == "adverse"  # the Supplier's duty gone
+    pay = next(d for d in data["deviations"] if d["draft_text"] == "sixty (60) days")
+    assert main(["decide", str(review_file), pay["id"], "accept"]) == 0
+    again = json.loads(review_file.read_text(encoding="utf-8"))
+    assert again["acting_for"] == "Customer"
+    assert [(d["id"], d["direction"]) for d in again["deviations"]] == [(d["id"], d["direction"]) for d in data["deviations"]]
+
+    # an unknown party: one line naming the party terms found, exit 2, nothing written
+    capsys.readouterr()
+    assert main(["review", str(scenario.draft_path), "--against", str(scenario.precedent_path),
+                 "--acting-for", "Lessor"]) == 2
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "precedent.docx" in err and "party terms found: Customer, Supplier" in err
+
+
+def test_a_review_file_of_the_earlier_version_loads_and_is_converted(scenario, tmp_path):
+    """A review file written before the party acted for and the stances' new names existed:
+    no "acting_for", no "direction", a stance under its former name.  It loads (the schema's
+    new fields are optional, the former names accepted) and saving it again writes the
+    current shape."""
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path)
+    path = tmp_path / "old.json"
+    save_review_file(path, rf)
+    data = json.loads(path.read_text(encoding="utf-8"))
+    del data["acting_for"]
+    for d in data["deviations"]:
+        del d["direction"]
+    data["deviations"][0]["frequency"] = {"same_type": 3, "matching": 1, "total": 4, "closest": [],
+                                          "containing": None, "position": "not acceptable"}
+    path.write_text(json.dumps(data), encoding="utf-8")
+    _validator().validate(data)
+
+    old = load_review_file(path)
+    assert old.review.acting_for is None and {d.direction for d in old.review.deviations} == {"unclear"}
+    save_review_file(path, old)
+    data = json.loads(path.read_text(encoding="utf-8"))
+    _validator().validate(data)
+    assert data["acting_for"] is None and all(d["direction"] == "unclear" for d in data["deviations"])
+    assert "not acceptable" not in path.read_text(encoding="utf-8")

@@ -8,6 +8,7 @@ from __future__ import annotations
 from PySide6.QtCore import Qt
 
 from core.decisions import Decision
+from core.review.termmap import TermOverride
 from desktop.engine import term_status
 from desktop.models import (
     BAR_ROLE,
@@ -21,7 +22,6 @@ from desktop.models import (
     TermTableModel,
 )
 from desktop.state import DeviationFilter, DisplayOptions
-from core.review.termmap import TermOverride
 
 from .fixtures import make_review
 
@@ -114,3 +114,27 @@ def test_decision_objects_are_shown_as_recorded():
 
     assert decision_view(Decision("v2", "amend", text="within 45 days", note="meet halfway")) == (
         "amend", "meet halfway", "within 45 days")
+
+
+def test_direction_column_shows_the_engines_direction_only_when_acting_for_a_party(qtmodeltester):
+    import dataclasses
+
+    review = make_review()
+    model = DeviationTableModel()
+    model.set_review(review, library_loaded=False)
+    assert model.headerData(DeviationTableModel.DIRECTION, Qt.Orientation.Horizontal) == "Direction"
+    assert model.index(0, DeviationTableModel.DIRECTION).data(D) == ""  # no party acted for
+    directions = ("adverse", "favourable", "neutral", "unclear")
+    acting = dataclasses.replace(review, acting_for="Supplier", deviations=tuple(
+        dataclasses.replace(d, direction=directions[i % 4]) for i, d in enumerate(review.deviations)))
+    model.set_review(acting, library_loaded=False)
+    qtmodeltester.check(model)
+    shown = [model.index(r, DeviationTableModel.DIRECTION).data(D) for r in range(4)]
+    assert shown == ["\u25bc adverse", "\u25b2 favourable", "= neutral", "? unclear"]
+    tip = model.index(0, DeviationTableModel.DIRECTION).data(Qt.ItemDataRole.ToolTipRole)
+    assert tip.startswith("Against the Supplier, the party you act for.")
+    # sorting the column puts adverse first, favourable last (the engine's order at equal severity)
+    from desktop.models import SORT_ROLE
+
+    keys = [model.index(r, DeviationTableModel.DIRECTION).data(SORT_ROLE) for r in range(4)]
+    assert sorted(range(4), key=lambda r: keys[r]) == [0, 3, 2, 1]

@@ -27,8 +27,8 @@ SLOT = SlotVariants(
         _bar("The draft's wording", 1, gist="\u2026than thirty (30) days\u2026", draft=True,
              text="not less than thirty (30) days' written notice"),
         _bar("The precedent's wording", 9, gist="\u2026than ninety (90) days\u2026", precedent=True,
-             position="preferred", text="not less than ninety (90) days' written notice"),
-        _bar("Other wording A", 2, gist="\u2026than sixty (60) days\u2026", position="fallback",
+             position="house wording", text="not less than ninety (90) days' written notice"),
+        _bar("Other wording A", 2, gist="\u2026than sixty (60) days\u2026", position="last concession",
              text="not less than sixty (60) days' written notice"),
     ),
     closest=(ClosestText("ardent.docx", "20.1", 0.9, "thirty (30) days"),),
@@ -94,7 +94,7 @@ def test_clicking_a_row_shows_its_wording_documents_position_and_closest_texts(q
     qtbot.mouseClick(view.chart, Qt.MouseButton.LeftButton, pos=QPoint(r.left() + 5, r.center().y()))
     text = view.wording.toPlainText()
     assert text.startswith("The precedent's wording \u25c0 precedent")
-    assert "9 past agreements out of 12 word it this way \u00b7 \u2605 preferred" in text
+    assert "9 past agreements out of 12 word it this way \u00b7 \u2302 house wording" in text
     assert "ninety (90)" in text
     assert "In: 00-agreement.docx, 01-agreement.docx" in text
     assert "ardent.docx \u00b7 20.1 \u00b7 similarity 0.90" in text

@@ -9,10 +9,8 @@ from PySide6.QtWidgets import QApplication
 import core
 from desktop.decision import KEYS
 from desktop.dialogs import KEY_LIST
+from desktop.models import ITEM_ROLE, TALLY_ROLE, PairRowsModel
 from desktop.settings import Recent
-from desktop.models import PairRowsModel
-
-from desktop.models import ITEM_ROLE, TALLY_ROLE
 from desktop.state import DisplayOptions
 
 from .conftest import close_message_boxes, message_boxes, wait_for_outcome
@@ -231,7 +229,7 @@ def test_help_lists_every_single_key(make_window, qtbot):
 # ---------------------------------------------------------------------------------------
 
 
-def _engine_review(demo, *, overrides=()):
+def _engine_review(demo, *, overrides=(), acting_for=None):
     """The review the engine gives on its own, without the window (the reference)."""
     from core.library.frequency import apply_frequency
     from core.library.index import open_library
@@ -241,7 +239,7 @@ def _engine_review(demo, *, overrides=()):
     lib = open_library(demo["library"])
     try:
         review = run_review(read_document(demo["draft"]), read_document(demo["precedent"]),
-                            overrides=overrides, vocabulary=lib.vocabulary)
+                            overrides=overrides, vocabulary=lib.vocabulary, acting_for=acting_for)
         return apply_frequency(review, lib)
     finally:
         lib.close()
@@ -544,3 +542,50 @@ def test_painting_does_not_leak_references_to_none(make_window, qtbot):
     for _ in range(20):
         w.grab()
     assert sys.getrefcount(None) - before > -100
+
+
+def test_the_party_acted_for_is_asked_once_remembered_per_precedent_and_judged_as_the_engine_does(
+        make_window, qtbot, demo_copy, settings):
+    """The Compare dialog lists the precedent's party terms and presets the one chosen last
+    with that precedent; the list shows each deviation's direction exactly as the engine
+    judges it (core.review.direction), and Review > Acting for judges again for another."""
+    from core.review.direction import party_terms
+    from desktop.dialogs import NO_PARTY
+
+    w = make_window()
+    w.show()
+    dlg = w.show_open_dialog(draft=demo_copy["draft"], precedent=demo_copy["precedent"],
+                             library=demo_copy["library"])
+    choices = [dlg.acting_for.itemText(i) for i in range(dlg.acting_for.count())]
+    from core.reader import read_document
+
+    assert choices == [NO_PARTY, *party_terms(read_document(demo_copy["precedent"]))] == [NO_PARTY, "Supplier", "Customer"]
+    assert dlg.party() == ""  # nothing chosen yet with this precedent
+    dlg.acting_for.setCurrentIndex(choices.index("Supplier"))
+    dlg.compare.click()
+    assert wait_for_outcome(qtbot, w) == "shown"
+    assert w.ws.review.acting_for == "Supplier" and "acting for the Supplier" in w.windowTitle()
+    model = w.deviations.model
+    assert not w.deviations.table.isColumnHidden(model.DIRECTION)
+    reference = {d.id: d.direction for d in _engine_review(demo_copy, acting_for="Supplier").deviations}
+    shown = {model.deviation(r).id: model.index(r, model.DIRECTION).data() for r in range(model.rowCount())}
+    assert {k: v.split()[-1] for k, v in shown.items()} == reference
+    assert "adverse" in reference.values() and shown[next(k for k, v in reference.items() if v == "adverse")] == "\u25bc adverse"
+
+    # remembered for this precedent: the next Compare dialog presets it
+    again = w.show_open_dialog(precedent=demo_copy["precedent"])
+    assert again.party() == "Supplier"
+    again.reject()
+
+    # Review > Acting for: another party, judged again; favourable and adverse swap
+    before = {d.id: d.direction for d in w.ws.review.deviations}
+    w.change_acting_for("Customer")
+    assert wait_for_outcome(qtbot, w) == "shown"
+    after = {d.id: d.direction for d in w.ws.review.deviations}
+    swap = {"adverse": "favourable", "favourable": "adverse"}
+    assert all(after[k] == swap[v] for k, v in before.items() if v in swap)
+    w.change_acting_for(None)
+    assert wait_for_outcome(qtbot, w) == "shown"
+    assert w.deviations.table.isColumnHidden(model.DIRECTION)
+    assert {d.direction for d in w.ws.review.deviations} == {"unclear"}
+

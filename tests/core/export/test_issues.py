@@ -39,7 +39,10 @@ from tests.support.lo_session import libreoffice
 
 FREQ = "Past use"
 #: The table's columns without the frequency column (no precedent set used).
-NO_FREQ_COLUMNS = tuple(c for c in ISSUE_COLUMNS if c != FREQ)
+#: The table of a review acting for no party (no "Direction" column), with and without the
+#: precedent set's "Past use" column.
+COLS = tuple(c for c in ISSUE_COLUMNS if c != "Direction")
+NO_FREQ_COLUMNS = tuple(c for c in COLS if c != FREQ)
 
 
 class _TableReader(HTMLParser):
@@ -148,11 +151,12 @@ def test_issues_list_in_three_formats_reads_back_as_one_table(scenario, tmp_path
     records = _read_csv(csv_path)
     # A clean table: the header row first, then one row per issue, and nothing else (the
     # caution is printed by the command line; it is no data row).
-    assert tuple(records[0]) == ISSUE_CSV_COLUMNS
-    assert ISSUE_CSV_COLUMNS[:7] == ISSUE_COLUMNS == (
-        "No.", "Clause", "What changed", "Why it matters", "Past use", "Decision", "Note")
-    assert ISSUE_CSV_COLUMNS[7:] == ("Precedent's changed words", "Draft's changed words")
-    assert all(len(r) == len(ISSUE_CSV_COLUMNS) for r in records)
+    # (a review acting for no party: no "Direction" column)
+    assert tuple(records[0]) == tuple(c for c in ISSUE_CSV_COLUMNS if c != "Direction")
+    assert ISSUE_CSV_COLUMNS[:8] == ISSUE_COLUMNS == (
+        "No.", "Clause", "Direction", "What changed", "Why it matters", "Past use", "Decision", "Note")
+    assert ISSUE_CSV_COLUMNS[8:] == ("Precedent's changed words", "Draft's changed words")
+    assert all(len(r) == len(ISSUE_CSV_COLUMNS) - 1 for r in records)
     assert CAUTION not in csv_path.read_text(encoding="utf-8-sig")
     rows = {r[0]: dict(zip(records[0], r)) for r in records[1:]}
     # The number is the rank (handmade.py: v1 rank 1 ... v6 rank 6); the internal ids never show.
@@ -180,19 +184,19 @@ def test_issues_list_in_three_formats_reads_back_as_one_table(scenario, tmp_path
     assert rows["6"]["What changed"] == "Defined term \u201cCustomer\u201d\n\u2192 \u201cClient\u201d (3 uses in the draft)"
     assert rows["6"]["Why it matters"] == "Read as the same defined term (evidence: definition; confidence 0.95)"
     assert rows["2"]["Decision"] == "undecided" and rows["2"]["Past use"] == ""
-    table_rows = [r[:len(ISSUE_COLUMNS)] for r in records[1:]]
+    table_rows = [r[:len(COLS)] for r in records[1:]]
 
     html_path = tmp_path / "issues.html"
     write_issues_list(review, html_path, decisions=decisions)
     page = _read_html(html_path)
     assert CAUTION in page.paragraphs
     assert page.external == []  # self-contained: no linked resource
-    assert tuple(page.rows[0]) == ISSUE_COLUMNS
+    assert tuple(page.rows[0]) == COLS
     assert page.rows[1:] == table_rows
     # The changed words are bold (<strong>), nothing else.
-    what = ISSUE_COLUMNS.index("What changed")
+    what = COLS.index("What changed")
     assert page.strong[1][what] == ["thirty (30)", "sixty (60)"]
-    assert [cell for i, cell in enumerate(page.strong[1]) if i != what] == [[]] * (len(ISSUE_COLUMNS) - 1)
+    assert [cell for i, cell in enumerate(page.strong[1]) if i != what] == [[]] * (len(COLS) - 1)
     # ... washed by side: the precedent's words before the arrow, the draft's after it, each
     # with its own background in the page's style sheet (the window's two washes).
     assert ("was", "thirty (30)") in page.strong_sides and ("now", "sixty (60)") in page.strong_sides
@@ -207,7 +211,7 @@ def test_issues_list_in_three_formats_reads_back_as_one_table(scenario, tmp_path
     write_issues_list(review, docx_path, decisions=decisions, author=AUTHOR)
     assert validate_docx(docx_path) == []
     cells = _read_docx_table(docx_path)
-    assert tuple(cells[0]) == ISSUE_COLUMNS
+    assert tuple(cells[0]) == COLS
     assert cells[1:] == table_rows
     document = docx.Document(str(docx_path))
     bold = [[r.text for p in c.paragraphs for r in p.runs if r.bold] for c in document.tables[0].rows[1].cells]
@@ -221,7 +225,7 @@ def test_issues_list_in_three_formats_reads_back_as_one_table(scenario, tmp_path
 def test_frequency_column_only_when_a_precedent_set_was_used(scenario, tmp_path):
     for name in ("issues.csv", "issues.html", "issues.docx"):
         write_issues_list(scenario.review, tmp_path / name, author=AUTHOR)
-    assert _read_csv(tmp_path / "issues.csv")[0] == [c for c in ISSUE_CSV_COLUMNS if c != FREQ]
+    assert _read_csv(tmp_path / "issues.csv")[0] == [c for c in ISSUE_CSV_COLUMNS if c not in (FREQ, "Direction")]
     assert tuple(_read_html(tmp_path / "issues.html").rows[0]) == NO_FREQ_COLUMNS
     assert tuple(_read_docx_table(tmp_path / "issues.docx")[0]) == NO_FREQ_COLUMNS
     page = _read_html(tmp_path / "issues.html")
@@ -457,7 +461,7 @@ def test_long_changes_and_added_provisions_are_cut_with_an_ellipsis():
 def test_how_common_reads_in_words_with_the_firms_label_and_is_explained_once(scenario, tmp_path):
     from core.library.frequency import frequency_reasons
 
-    f = {"v1": Frequency(same_type=10, matching=3, total=12, position="preferred"),
+    f = {"v1": Frequency(same_type=10, matching=3, total=12, position="house wording"),
          "v2": Frequency(same_type=0, matching=0, total=12),
          "v3": Frequency(same_type=9, matching=2, total=12),  # a provision the draft left out
          "v4": Frequency(same_type=9, matching=0, total=12),
@@ -467,7 +471,7 @@ def test_how_common_reads_in_words_with_the_firms_label_and_is_explained_once(sc
                  if d.id in f else d for d in scenario.review.deviations)
     review = dataclasses.replace(scenario.review, deviations=devs)
     by_ref = {r.ref: r for r in issue_rows(review)}
-    assert by_ref["v1"].frequency == "in 3 of 10 past agreements with such a clause; firm's label: preferred"
+    assert by_ref["v1"].frequency == "in 3 of 10 past agreements with such a clause; firm's stance: house wording"
     assert by_ref["v2"].frequency == "none of the 12 past agreements has such a clause"
     assert by_ref["v3"].frequency == "absent from 2 of the 12 past agreements"
     assert by_ref["v5"].frequency == "present in all 12 past agreements"
@@ -480,8 +484,8 @@ def test_how_common_reads_in_words_with_the_firms_label_and_is_explained_once(sc
     write_issues_list(review, path)
     page = _read_html(path)
     (note,) = [p for p in page.paragraphs if p.startswith("Past use")]
-    assert "of the firm's 12 past agreements in the precedent set" in note and "preferred" in note
-    col = ISSUE_COLUMNS.index(FREQ)
+    assert "of the firm's 12 past agreements in the precedent set" in note and "house wording" in note
+    col = COLS.index(FREQ)
     assert page.rows[1][col] == by_ref["v1"].frequency  # v1 is the first clause
 
 
@@ -597,7 +601,7 @@ def test_demo_issues_list_and_redline_tables_span_the_page(tmp_path):
     assert checked > 20
     office = libreoffice()
     for name, data, columns, minimum, landscape in (
-            ("issues.docx", issues_list_docx(review, author=AUTHOR), ISSUE_COLUMNS, ISSUES_MIN_CM, True),
+            ("issues.docx", issues_list_docx(review, author=AUTHOR), COLS, ISSUES_MIN_CM, True),
             # the full view opens with the ranked table (the substantive view puts the renamed
             # terms first: tests/core/export/test_redline.py checks both of its tables)
             ("redline.docx", redline_bytes(review, author=AUTHOR, show="all"), ("Rank", "Severity", "Clause", "Deviation"),
@@ -642,3 +646,25 @@ def test_export_lists_every_difference_with_issues_all(scenario, tmp_path, capsy
     assert sorted(numbers[short]) == sorted(d["rank"] for d in deviations
                                             if d["category"] in ("substantive", "term"))
     assert len(numbers[short]) < len(numbers[full])
+
+
+def test_direction_column_only_when_acting_for_a_party(scenario, tmp_path):
+    """A review acting for a party shows each deviation's direction in its own column (CSV,
+    HTML, .docx) and explains it under the table; without one the column is left out."""
+    from core.review import run_review
+
+    review = run_review(scenario.review.draft, scenario.review.precedent, acting_for="Customer")
+    for name in ("issues.csv", "issues.html", "issues.docx"):
+        write_issues_list(review, tmp_path / name, author=AUTHOR)
+    records = _read_csv(tmp_path / "issues.csv")
+    assert "Direction" in records[0]
+    rows = [dict(zip(records[0], r)) for r in records[1:]]
+    by_number = {d.rank: d.direction for d in review.deviations}
+    assert all(r["Direction"] == by_number[int(r["No."])] for r in rows)
+    pay = next(r for r in rows if "sixty (60)" in r["Draft's changed words"])
+    assert pay["Direction"] == "favourable"  # more time for the Customer to pay
+    page = _read_html(tmp_path / "issues.html")
+    assert "Direction" in page.rows[0]
+    assert any(p.startswith("Direction: for the Customer, the party acted for") for p in page.paragraphs)
+    table = docx.Document(str(tmp_path / "issues.docx")).tables[0]
+    assert "Direction" in [c.text for c in table.rows[0].cells]

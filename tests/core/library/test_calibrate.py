@@ -82,7 +82,7 @@ def test_without_labels_the_stored_positions_are_used(tmp_path, demo_set):
     with open_library(folder, refresh=False) as lib:
         with pytest.raises(CounterdraftError, match="no labelled provisions"):
             calibrate(lib)
-        lib.label_variant(lib.variant_of("04-pellbrook-analytical.docx", "9.2"), "not acceptable")
-        lib.label_variant(lib.variant_of("01-quenby-astrel-diagnostics.docx", "9.2"), "preferred")
+        lib.label_variant(lib.variant_of("04-pellbrook-analytical.docx", "9.2"), "refuse")
+        lib.label_variant(lib.variant_of("01-quenby-astrel-diagnostics.docx", "9.2"), "house wording")
         rows = calibrate(lib, cutoffs=(0.2, 0.9))
     assert [r.mixed for r in rows] == [0, 1]

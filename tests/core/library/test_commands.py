@@ -85,7 +85,18 @@ def test_library_subcommands(library_copy, tmp_path, capsys):
 
     assert main(["library", "label", str(library_copy), "--document", "04-pellbrook-analytical.docx",
                  "--provision", "9.2", "--position", "not-acceptable"]) == 0
-    assert "labelled not acceptable" in capsys.readouterr().out
+    out, err = capsys.readouterr()  # a former name is taken, with a one-line notice
+    assert "labelled refuse" in out and err.count("\n") == 1 and 'former name of the stance "refuse"' in err
+    assert main(["library", "label", str(library_copy), "--document", "04-pellbrook-analytical.docx",
+                 "--provision", "9.2", "--position", "Can-Live-With"]) == 0
+    out, err = capsys.readouterr()
+    assert "labelled can live with" in out and err == ""
+    assert main(["library", "label", str(library_copy), "--document", "04-pellbrook-analytical.docx",
+                 "--provision", "9.2", "--position", "preferable"]) == 2
+    assert "position must be one of: house wording, can live with, last concession, refuse" in capsys.readouterr().err
+    assert main(["library", "label", str(library_copy), "--document", "04-pellbrook-analytical.docx",
+                 "--provision", "9.2", "--position", "refuse"]) == 0
+    assert "labelled refuse" in capsys.readouterr().out
 
     labels = tmp_path / "labels.csv"
     with open(labels, "w", newline="", encoding="utf-8") as fh:

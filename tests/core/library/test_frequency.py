@@ -171,12 +171,12 @@ def test_the_firms_position_is_reported_and_weighs(tmp_path, scenario, documents
         plain = run_review(draft, prec, **review_options(lib))
         before = _find(apply_frequency(plain, lib), by_id["d1"])
         vid = lib.variant_of("04-pellbrook-analytical.docx", "9.2")  # the 60-day wording
-        lib.label_variant(vid, "not acceptable")
+        lib.label_variant(vid, "refuse")
     with open_library(folder, refresh=False) as lib:
         after = _find(apply_frequency(plain, lib), by_id["d1"])
-    assert after.frequency.position == "not acceptable"
-    assert "the firm's position on this wording: not acceptable" in after.reasons
-    assert after.severity == min(100, before.severity + POSITION_ADJUSTMENT["not acceptable"])
+    assert after.frequency.position == "refuse"
+    assert "the firm's stance on this wording: refuse" in after.reasons
+    assert after.severity == min(100, before.severity + POSITION_ADJUSTMENT["refuse"])
 
 
 def test_containing_counts_library_provisions_with_the_words(reviews, scenario, demo_library):

@@ -110,7 +110,7 @@ def _snapshot(root: Path, *, patterns: bool = False, pair: tuple[Path, Path] | N
 
 def _label(root: Path) -> None:
     with open_library(root, refresh=False) as lib:
-        lib.label_variant(lib.variant_of(*LABELLED), "preferred")
+        lib.label_variant(lib.variant_of(*LABELLED), "house wording")
 
 
 def _fresh(state: Path, tmp: Path, name: str) -> dict:

@@ -208,21 +208,49 @@ def test_labels_survive_a_rebuild_and_apply_to_every_member(tmp_path):
     with open_library(root, refresh=False) as lib:
         vid = lib.variant_of("a.txt", "2.1")
         assert vid is not None and vid == lib.variant_of("a2.txt", "2.1")
-        assert lib.label_variant(vid, "preferred") == 1  # one distinct wording, two documents
+        assert lib.label_variant(vid, "house wording") == 1  # one distinct wording, two documents
         info = [v for v in lib.variants(bucket="payment") if v.id == vid][0]
-        assert info.position == "preferred" and info.documents == 2
+        assert info.position == "house wording" and info.documents == 2
         with pytest.raises(CounterdraftError):
             lib.label_variant(vid, "great")
         with pytest.raises(CounterdraftError):
-            lib.label_variant(10**9, "preferred")
+            lib.label_variant(10**9, "house wording")
     (root / "a3.txt").write_text(agreement(4), encoding="utf-8")
     build_library(root)  # the payment type is re-clustered with a new member
     with open_library(root, refresh=False) as lib:
         vid = lib.variant_of("a3.txt", "2.1")
         info = [v for v in lib.variants(bucket="payment") if v.id == vid]
-        assert [(v.position, v.documents) for v in info] == [("preferred", 3)]
+        assert [(v.position, v.documents) for v in info] == [("house wording", 3)]
         lib.label_variant(vid, None)
         assert [v.position for v in lib.variants(bucket="payment") if v.id == vid] == [None]
+
+
+def test_an_index_with_the_former_stance_names_is_converted_when_opened(tmp_path):
+    """An index written before the stances were renamed stores "preferred" ... "not
+    acceptable"; opening it renames them in place (labels and variants), once, and a
+    refresh keeps them."""
+    from core.library.index import FORMER_POSITIONS, POSITIONS
+
+    root = make_folder(tmp_path / "lib")
+    build_library(root)
+    with open_library(root, refresh=False) as lib:
+        vid = lib.variant_of("a.txt", "2.1")
+        lib.label_variant(vid, "last concession")
+    db = root / DB_DIRNAME / DB_FILENAME
+    with sqlite3.connect(db) as conn:  # what an index of the earlier version holds
+        conn.execute("UPDATE labels SET position = 'fallback'")
+        conn.execute("UPDATE variants SET position = 'fallback' WHERE position IS NOT NULL")
+        conn.execute("DELETE FROM meta WHERE key = 'position_names'")
+    conn.close()
+    with open_library(root, refresh=False) as lib:
+        assert lib.variant_positions() == {vid: "last concession"}
+    with sqlite3.connect(db) as conn:
+        assert conn.execute("SELECT DISTINCT position FROM labels").fetchall() == [("last concession",)]
+    conn.close()
+    build_library(root)
+    with open_library(root) as lib:
+        assert set(lib.variant_positions().values()) == {"last concession"}
+    assert dict(zip(FORMER_POSITIONS.values(), POSITIONS)) == {p: p for p in POSITIONS}  # same order
 
 
 def test_bad_arguments(tmp_path):

@@ -171,15 +171,15 @@ def test_positions_of_the_bars(tmp_path, scenario, demo_set):
     precedent = read_document(str(DEMO / "precedent.docx"))
     dep = next(d for d in scenario["departures"] if d["id"] == "d1")
     with open_library(folder, refresh=False) as lib:
-        lib.label_variant(lib.variant_of("04-pellbrook-analytical.docx", "9.2"), "not acceptable")  # 60 days
-        lib.label_variant(lib.variant_of("01-quenby-astrel-diagnostics.docx", "9.2"), "preferred")  # 30 days
+        lib.label_variant(lib.variant_of("04-pellbrook-analytical.docx", "9.2"), "refuse")  # 60 days
+        lib.label_variant(lib.variant_of("01-quenby-astrel-diagnostics.docx", "9.2"), "house wording")  # 30 days
     with open_library(folder, refresh=False) as lib:
         review = apply_frequency(run_review(draft, precedent, **review_options(lib)), lib)
         v = find_departure(review, dep)
         chart = slot_variants(lib, review, v)
     positions = {b.name: b.position for b in chart.variants}
-    assert positions == {DRAFT_WORDING: "not acceptable", PRECEDENT_WORDING: "preferred", f"{OTHER_WORDING} A": None}
-    assert v.frequency.position == "not acceptable"
+    assert positions == {DRAFT_WORDING: "refuse", PRECEDENT_WORDING: "house wording", f"{OTHER_WORDING} A": None}
+    assert v.frequency.position == "refuse"
 
 
 @pytest.fixture(scope="module")

@@ -4,6 +4,7 @@ PyPI package ``licensedcode-data`` (real documents from outside the project)."""
 from __future__ import annotations
 
 import importlib.resources
+import re
 import textwrap
 
 from core.model import Deviation, Document, Review
@@ -42,3 +43,12 @@ def substantive(review: Review) -> list[Deviation]:
 
 def by_category(review: Review, category: str) -> list[Deviation]:
     return [v for v in review.deviations if v.category == category]
+
+
+def replace_once(text: str, old: str, new: str) -> str:
+    """*text* with the first *old* replaced by *new* (the words of *old* may be broken over
+    lines or spaced differently in the licence); fails when *old* is not there."""
+    pattern = r"\s+".join(re.escape(w) for w in old.split())
+    m = re.search(pattern, text)
+    assert m is not None, old
+    return text[:m.start()] + new + text[m.end():]

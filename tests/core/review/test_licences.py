@@ -23,7 +23,7 @@ import pytest
 from core.model import Review
 from core.review import run_review
 
-from .helpers import doc, licence_text, substantive
+from .helpers import doc, licence_text, replace_once, substantive
 
 
 @dataclass(frozen=True)
@@ -105,14 +105,6 @@ def _line_start(text: str, marker: str) -> int:
     return text.rfind("\n", 0, i) + 1
 
 
-def _replace_once(text: str, old: str, new: str) -> str:
-    """Replace the first *old* (its words may be broken over lines in the licence)."""
-    pattern = r"\s+".join(re.escape(w) for w in old.split(" "))
-    m = re.search(pattern, text)
-    assert m is not None, old
-    return text[:m.start()] + new + text[m.end():]
-
-
 def rename(t: str, plan: Plan) -> str:
     old, new = plan.rename
     assert new not in t
@@ -128,20 +120,20 @@ def move(t: str, plan: Plan) -> str:
 
 
 def number(t: str, plan: Plan) -> str:
-    return _replace_once(t, plan.number[0], plan.number[1])
+    return replace_once(t, plan.number[0], plan.number[1])
 
 
 def weaken(t: str, plan: Plan) -> str:
-    return _replace_once(t, *plan.weaken)
+    return replace_once(t, *plan.weaken)
 
 
 def negate(t: str, plan: Plan) -> str:
-    return _replace_once(t, *plan.negate)
+    return replace_once(t, *plan.negate)
 
 
 def sentence(t: str, plan: Plan) -> str:
     after, new = plan.sentence
-    return _replace_once(t, after, f"{after} {new}")
+    return replace_once(t, after, f"{after} {new}")
 
 
 def delete(t: str, plan: Plan) -> str:
@@ -163,7 +155,7 @@ def noise(t: str, plan: Plan) -> str:
     t = re.sub(r"(?<=[a-z])\.( {1,2})(?=[A-Z])", lambda m: ".  " if m.group(1) == " " else ". ",
                t, count=8)
     t = t.replace(plan.dash[0], plan.dash[1])
-    return _replace_once(t, *plan.heading)
+    return replace_once(t, *plan.heading)
 
 
 def review_of(plan: Plan, *edits: Callable[[str, Plan], str]) -> Review:

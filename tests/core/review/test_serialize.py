@@ -45,8 +45,14 @@ def demo_review():
 def test_demo_review_is_valid_and_exactly_shaped(demo_review):
     obj = json.loads(json.dumps(review_to_dict(demo_review)))
     validator().validate(obj)
-    assert list(obj) == ["schema", "draft", "precedent", "term_map", "pairs", "deviations"]
+    assert list(obj) == ["schema", "acting_for", "draft", "precedent", "term_map", "pairs", "deviations"]
     assert obj["schema"] == "counterdraft.review/1"
+    assert obj["acting_for"] is None and {v["direction"] for v in obj["deviations"]} == {"unclear"}
+    # an object written before the party acted for existed (no acting_for, no direction)
+    # still validates: the schema's new fields are optional
+    old = {k: v for k, v in obj.items() if k != "acting_for"}
+    old["deviations"] = [{k: x for k, x in v.items() if k != "direction"} for v in obj["deviations"]]
+    validator().validate(old)
     assert obj["draft"] == document_to_dict(demo_review.draft)
     assert obj["precedent"] == document_to_dict(demo_review.precedent)
     assert set(obj["term_map"][0]) == {"draft", "precedent", "confidence", "evidence", "occurrences",
@@ -54,7 +60,8 @@ def test_demo_review_is_valid_and_exactly_shaped(demo_review):
     assert set(obj["pairs"][0]) == {"draft", "precedent", "status", "similarity", "frequency"}
     assert set(obj["deviations"][0]) == {
         "id", "rank", "severity", "category", "change", "draft_provision", "precedent_provision",
-        "precedent_text", "draft_text", "reasons", "frequency", "precedent_text_span", "draft_text_span"}
+        "precedent_text", "draft_text", "reasons", "frequency", "precedent_text_span", "draft_text_span",
+        "direction"}
     assert all(v["frequency"] is None for v in obj["deviations"])
     # The spans locate the words shown in the document objects' own provision texts.
     provs = {(side, p["id"]): p for side in ("draft", "precedent") for p in obj[side]["provisions"]}
@@ -74,14 +81,28 @@ def test_frequency_objects_serialise_and_validate():
                    doc("1. Orders\n\n1.1 The Supplier shall accept each order."))
     f = Frequency(same_type=7, matching=2, total=12,
                   closest=(ClosestProvision("past-3.docx", "p14", 0.93),), containing=1,
-                  position="acceptable")
+                  position="can live with")
     r2 = dataclasses.replace(r, deviations=tuple(dataclasses.replace(v, frequency=f) for v in r.deviations))
     obj = review_to_dict(r2)
     validator().validate(obj)
     assert obj["deviations"][0]["frequency"] == {
         "same_type": 7, "matching": 2, "total": 12,
         "closest": [{"document": "past-3.docx", "provision": "p14", "similarity": 0.93}],
-        "containing": 1, "position": "acceptable"}
+        "containing": 1, "position": "can live with"}
+
+
+def test_a_review_acting_for_a_party_serialises_and_validates():
+    r = run_review(doc("1. Orders\n\n1.1 The Supplier may accept each order placed by the Customer."),
+                   doc("1. Orders\n\n1.1 The Supplier shall accept each order placed by the Customer."),
+                   acting_for="customer")
+    obj = review_to_dict(r)
+    validator().validate(obj)
+    assert obj["acting_for"] == "Customer"
+    (v,) = [d for d in obj["deviations"] if d["category"] == "substantive"]
+    assert v["direction"] == "adverse"  # the Supplier's obligation to accept orders weakened
+    bad = copy.deepcopy(obj)
+    bad["deviations"][0]["direction"] = "hostile"
+    assert not validator().is_valid(bad)
 
 
 def test_schema_rejects_what_the_fields_rule_out():

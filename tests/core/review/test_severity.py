@@ -81,6 +81,8 @@ def test_changed_figures_give_old_and_new_values():
     _sev, reasons = score("a cap of £1,000,000", "a cap of £500,000", ctype="limitation_of_liability")
     assert reasons[0] == "amount changed from £1,000,000 to £500,000 (lower)"
     _sev, reasons = score("interest at four per cent (4%)", "interest at two per cent (2%)")
+    assert reasons[0] == "interest rate changed from 4% to 2% (lower)"  # an interest rate: its own signal
+    _sev, reasons = score("a discount of four per cent (4%)", "a discount of two per cent (2%)")
     assert reasons[0] == "percentage changed from 4% to 2% (lower)"
     _sev, reasons = score("within 30 days", "within 30 Business Days")
     assert reasons[0] == "period changed from 30 days to 30 business days"
@@ -216,3 +218,65 @@ def test_the_heading_rule_is_optional_and_checked(tmp_path):
                    encoding="utf-8")
     with pytest.raises(CounterdraftError, match='headings.added_or_removed must be "formatting" or "substantive"'):
         load_rules(bad)
+
+
+def test_recalibrated_ranking_on_a_real_licence_agreement():
+    """Planted edits in a real software licence agreement (licensedcode-data:
+    lsi-proprietary-eula.LICENSE): a change of governing law and one of the courts rank
+    high, "and" -> "or" inside an obligation next (it can change who must do what), a tweak
+    of the late-payment interest rate below them (statute supplies interest anyway; the
+    weights' reasons are in resources/severity.toml)."""
+    from core.reader import read_text
+
+    from .helpers import licence_text, replace_once
+
+    base = licence_text("lsi-proprietary-eula")
+    plants = {
+        "law": ("accordance with the law of the State of California", "accordance with the law of the State of Nevada"),
+        "forum": ("California state courts of Santa Clara County", "California state courts of Alameda County"),
+        "and/or": ("Licensee shall follow all export control laws and\n    regulations",
+                   "Licensee shall follow all export control laws or regulations"),
+        "interest": ("at a rate of 1.5% per month", "at a rate of 2% per month"),
+    }
+    draft = base
+    for old, new in plants.values():
+        draft = replace_once(draft, old, new)
+    review = run_review(read_text(draft, source="draft.txt"), read_text(base, source="precedent.txt"))
+    found = {}
+    for key, shows in {"law": "Nevada", "forum": "Alameda", "and/or": "or", "interest": "2%"}.items():
+        (v,) = [v for v in substantive(review) if v.draft_text.split() and shows in v.draft_text.split()
+                or v.draft_text == shows]
+        found[key] = v
+    assert found["law"].reasons[0] == "governing law changed from 'California' to 'Nevada'"
+    assert found["forum"].reasons[0] == "forum for disputes changed from 'Santa Clara' to 'Alameda'"
+    assert found["and/or"].reasons[0].startswith("conjunction changed from 'and' to 'or' inside an obligation ('shall')")
+    assert found["interest"].reasons[0] == "late-payment interest rate changed from 1.5% to 2% (higher)"
+    sev = {k: v.severity for k, v in found.items()}
+    assert sev["law"] >= 80 and sev["forum"] >= 80
+    assert sev["law"] > sev["and/or"] > sev["interest"]
+    assert found["law"].rank < found["and/or"].rank < found["interest"].rank
+
+
+def test_commercially_before_reasonable_efforts_is_a_weaker_standard_not_words_removed():
+    """A real EULA (licensedcode-data: appfire-eula.LICENSE): "Licensor will use reasonable
+    efforts to notify you" becomes "commercially reasonable efforts"."""
+    from core.reader import read_text
+
+    from .helpers import licence_text, replace_once
+
+    base = licence_text("appfire-eula")
+    draft = replace_once(base, "Licensor will use reasonable efforts to notify you",
+                         "Licensor will use commercially reasonable efforts to notify you")
+    review = run_review(read_text(draft, source="draft.txt"), read_text(base, source="precedent.txt"))
+    (v,) = substantive(review)
+    assert v.draft_text == "commercially"
+    assert v.reasons[0] == ("efforts standard lowered from 'reasonable efforts' to 'commercially "
+                            "reasonable efforts': a qualifier that weakens the obligation")
+    assert not any("obligation words" in r or "qualifier added" in r for r in v.reasons)
+    # the same in the English form and from an unqualified duty
+    _s, reasons = score("The Supplier shall use reasonable endeavours to deliver",
+                        "The Supplier shall use commercially reasonable endeavours to deliver")
+    assert reasons[0].startswith("efforts standard lowered from 'reasonable endeavours'")
+    _s, reasons = score("The Supplier shall use best endeavours to deliver",
+                        "The Supplier shall use reasonable endeavours to deliver")
+    assert reasons[0].startswith("efforts standard lowered from 'best endeavours' to 'reasonable endeavours'")
