@@ -1,0 +1,680 @@
+"""Drafting checks: the mechanical reading a careful associate gives every draft.
+
+Five kinds (:data:`CHECK_KINDS`), each a plain :class:`Check` naming the document, the
+provision and the words concerned:
+
+``undefined-term``
+    A capitalised phrase used the way a defined term is used, that the document defines
+    nowhere.  Two readings, both conservative (a well-drafted document should raise none):
+
+    * a term the *precedent* defines that the draft uses, capitalised, without defining it
+      (the draft lost a definition, or borrowed a term of the house form);
+    * on the draft alone, a phrase with the shape of a defined term (see
+      :func:`undefined_terms`): capitalised in the middle of a sentence, written of a
+      common noun (the document writes each of its capitalised words in lower case
+      elsewhere, or uses it after "any", "each", "such" ...), and none of: a word starting
+      a sentence or a line, a heading or a title line, words in quotation marks, an acronym,
+      a name of a month or a day, a section word ("Section", "Schedule"), the document's
+      name for itself ("this Agreement"), the title of an instrument ("the Data Protection
+      Act"), the name of a body or place ("the Free Software Foundation"), a word that
+      English capitalises by convention ("Internet").  A term counts as defined in any of
+      its forms: singular or plural, any letter case, any of its aliases; and so does a
+      phrase the document puts in quotation marks anywhere, or names in a parenthesis
+      (``(the Licensor)``), since a reader takes either for a definition.
+``unused-definition``
+    A defined term that the document never uses outside its own definition (any of its
+    names, any letter case, plural and possessive forms included).  A term imported by
+    reference ("a "commercial item," as that term is defined in 48 C.F.R. 2.101") is a
+    statement about the agreement, not a definition to use, and is not checked.
+``stale-term``
+    A use, in the draft, of the precedent's name of a renamed term (the term map counts
+    them on :attr:`core.model.TermMapping.stale`; this check says where each one is).
+``dangling-reference``
+    A typed cross-reference (:func:`core.xrefs.find_references`) whose number names no
+    provision of the document (:func:`core.xrefs.resolve` says "missing").  Only absolute
+    numbers are checked ("Section 14.7", not "paragraph (c) above"), and only in a
+    numbering the document has: a reference to "Exhibit C" in a document with no exhibit
+    at all names an attachment sent separately, not a missing clause.
+``definition-changed``
+    A definition whose words changed in substance between the precedent and the draft (a
+    substantive deviation of the review inside the definition), which silently changes
+    every clause that uses the term: the check names the term and the provisions using it.
+
+Pure functions over :mod:`core.model` dataclasses; the review engine runs them last
+(:func:`review_checks`) and the outputs show them as they are.
+
+Cost: one pass of a few regular expressions over each document's text, one term-use pass
+per document (:func:`core.review.tokens.find_term_uses`) and one cross-reference pass
+(:func:`core.xrefs.find_references`, resolved through an index built once): linear in the
+documents' length in practice.
+"""
+
+from __future__ import annotations
+
+import re
+from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import dataclass, field
+
+from ..model import DefinedTerm, Document, Provision, Review
+from ..terms import term_forms
+from .tokens import find_term_uses, term_matcher
+
+__all__ = [
+    "CHECK_DOCUMENTS",
+    "CHECK_KINDS",
+    "Check",
+    "MAX_TERM_WORDS",
+    "TITLE_LINE_SHARE",
+    "document_checks",
+    "review_checks",
+    "undefined_terms",
+]
+
+CHECK_KINDS: tuple[str, ...] = ("undefined-term", "unused-definition", "stale-term",
+                                "dangling-reference", "definition-changed")
+CHECK_DOCUMENTS: tuple[str, ...] = ("draft", "precedent")
+
+
+@dataclass(frozen=True, slots=True)
+class Check:
+    """One drafting problem.
+
+    ``text`` is the words concerned, verbatim: ``provision.text[a:b]`` (or
+    ``provision.heading[a:b]`` when ``part == "heading"``) with ``span == (a, b)``; None
+    span when the check concerns no particular words.  ``term`` names the defined term a
+    term check concerns; ``provisions`` lists the other provisions concerned, in document
+    order: where an undefined term is also used, the provisions using a changed
+    definition's term."""
+
+    kind: str  # one of CHECK_KINDS
+    document: str  # one of CHECK_DOCUMENTS
+    provision: str | None
+    text: str
+    message: str
+    span: tuple[int, int] | None = None
+    part: str = "text"  # "text" or "heading"
+    term: str | None = None
+    provisions: tuple[str, ...] = field(default=())
+
+
+# --------------------------------------------------------------------------------------
+# What a defined term looks like (common practice in English-language agreements, no source)
+# --------------------------------------------------------------------------------------
+
+#: Longest phrase read as one term (words, small joining words included): the longest
+#: defined terms of agreements run to four or five words ("Data Protection Legislation",
+#: "Copyright and Similar Rights"); a longer capitalised run is a title.
+MAX_TERM_WORDS = 6
+#: A line of which at least this share of words are capitalised (and at least
+#: :data:`TITLE_LINE_MIN_WORDS` words) is a title or heading line, not prose: "Sun
+#: Microsystems Binary Code License Agreement".  Prose capitalises about one word in ten.
+TITLE_LINE_SHARE = 0.6
+TITLE_LINE_MIN_WORDS = 3
+#: Longest abbreviation read as one ("COPPA", "DFARS"): a longer word in capitals is a
+#: name, not initials.
+ABBREVIATION_MAX_LETTERS = 6
+
+_CAP_WORD = r"[A-Z][a-z]+(?:-[A-Za-z][a-z]*)*"
+#: Small words inside a capitalised name ("Statement of Work", "Terms of the Offer").
+_JOINERS = r"(?:of|for|the|in|on|to|de|la|du|von|van)"
+_POSSESSIVE = r"(?:['’]s|(?<=s)['’])?"
+_PHRASE_RE = re.compile(
+    r"(?<![\w'’\"“”‘.@/\\&+-])(?P<phrase>" + _CAP_WORD
+    + r"(?:[ \t]+(?:" + _JOINERS + r"[ \t]+){0,2}" + _CAP_WORD + r"){0,%d})" % (MAX_TERM_WORDS - 1)
+    + _POSSESSIVE + r"(?![\w@/\\&+-]|\.\w)")
+#: A word written in lower case as a word of prose (not part of a file name, an address or
+#: a program identifier: "java.lang", "www.example.org").
+_LOWER_WORD_RE = re.compile(r"(?<![\w.@/\\:-])[a-z]+(?:-[a-z]+)*(?![\w@/\\]|\.\w)")
+_WORD_RE = re.compile(r"[A-Za-z][A-Za-z'’-]*")
+_PREVIOUS_WORD_RE = re.compile(r"(?P<word>[A-Za-z]+)[ \t]+$")
+
+#: Determiners that go with a common noun, never with a proper name: "any Service Credits",
+#: "each Contributor" (whereas "the" goes with both: "the United States").
+_COMMON_DETERMINERS = frozenset("a an any each every such no another all other these those".split())
+#: Closed classes of capitalised words that are no defined terms.
+_CALENDAR = frozenset(
+    "January February March April May June July August September October November December "
+    "Monday Tuesday Wednesday Thursday Friday Saturday Sunday".split())
+#: Words that name a part of a document ("Section 3", "the Schedule").
+_SECTION_WORDS = frozenset(
+    "Clause Clauses Sub-clause Sub-clauses Section Sections Sub-section Sub-sections Subsection "
+    "Subsections Paragraph Paragraphs Sub-paragraph Sub-paragraphs Subparagraph Subparagraphs "
+    "Article Articles Part Parts Schedule Schedules Annex Annexes Annexure Annexures Appendix "
+    "Appendices Exhibit Exhibits Attachment Attachments Addendum Addenda Recital Recitals "
+    "Preamble Title Chapter Chapters Item Items Table Figure Page Pages Line Lines".split())
+#: Names a document gives itself or another instrument: "this Agreement", "the License",
+#: "the Privacy Policy", "the Data Protection Act".  A phrase ending in one is a title.
+_INSTRUMENT_WORDS = frozenset(
+    "Agreement Agreements Contract Contracts Deed Deeds License Licenses Licence Licences Terms "
+    "Conditions Policy Policies Addendum Amendment Amendments Guidelines Requirements Rules "
+    "Act Acts Regulation Regulations Directive Directives Convention Conventions Treaty "
+    "Treaties Statute Statutes Ordinance Constitution Protocol Charter Declaration Notice "
+    "Agreement's License's Licence's".split())
+#: Words that make a phrase the name of a body or a place: "the Free Software Foundation",
+#: "the State of California", "the Government", "the Courts".
+_BODY_WORDS = frozenset(
+    "Foundation Corporation Incorporated Inc Ltd Limited Company Co Corp LLC LLP PLC GmbH "
+    "University College Institute Association Society Consortium Initiative Alliance Council "
+    "Commission Committee Office Department Agency Bureau Ministry Court Courts Tribunal "
+    "Government Parliament Congress Senate Republic Kingdom Empire States State Union Nations "
+    "Organization Organisation Project Board Bank District County Province Commonwealth City "
+    "Territory Territories Region Area Community Communities Federation Authority Group "
+    "Inc's".split())
+#: Common nouns that English style capitalises by convention.
+_CONVENTION_WORDS = frozenset("Internet Web Earth God".split())
+
+_QUOTED_RE = re.compile(r"[\"“”„]([^\"“”„\n]{1,80})[\"“”]|‘([^‘’\n]{1,80})’|«\s?([^«»\n]{1,80}?)\s?»"
+                        r"|(?<![\w'’])'([^'\n]{1,80})'(?![\w'])|``([^`'\n]{1,80})''")
+#: An unquoted name in a parenthesis after what it names: "(the Licensor)", "(Customer)".
+_PAREN_NAME_RE = re.compile(
+    r"\((?:(?:hereinafter|hereafter)\s+(?:referred\s+to\s+as\s+|called\s+)?)?(?:the\s+|each\s+a\s+|a\s+)?"
+    r"(?P<name>" + _CAP_WORD + r"(?:\s+(?:" + _JOINERS + r"\s+)?" + _CAP_WORD + r"){0,4})\)")
+_HEREINAFTER_NAME_RE = re.compile(
+    r"\b(?:hereinafter|hereafter)\s+(?:referred\s+to\s+as\s+|called\s+)?(?:the\s+)?"
+    r"(?P<name>" + _CAP_WORD + r"(?:\s+(?:" + _JOINERS + r"\s+)?" + _CAP_WORD + r"){0,4})")
+#: "a "commercial item," as that term is defined in ...": a term imported by reference.
+_BY_REFERENCE_RE = re.compile(
+    r"\bas\s+(?:that|such|the|this|these|those)\s+terms?\s+(?:is|are)\s+(?:defined|used)\b"
+    r"|\b(?:has|have)\s+the\s+same\s+meanings?\b"
+    r"|\b(?:has|have)\s+the\s+meanings?\s+(?:given|set\s+out|ascribed|assigned)\s+"
+    r"(?:to\s+(?:it|them)\s+)?(?:in|under|by)\s+(?!this\b|clause|section|paragraph|schedule)",
+    re.IGNORECASE)
+#: Provision kinds whose words are no prose to check: a title, signature blocks.
+_NOT_PROSE = frozenset({"title", "signature"})
+
+
+def _singulars(word: str) -> set[str]:
+    """*word* (lower case) and the singular it may be the plural of."""
+    out = {word}
+    if word.endswith("ies") and len(word) > 4:
+        out.add(word[:-3] + "y")
+    if word.endswith("es") and len(word) > 3:
+        out.add(word[:-2])
+    if word.endswith("s") and len(word) > 2:
+        out.add(word[:-1])
+    return out
+
+
+def _name_forms(names: Iterable[str]) -> set[str]:
+    """Every name, its plural and singular, case-folded: the forms that count as uses."""
+    out: set[str] = set()
+    for n in names:
+        n = " ".join(n.split())
+        for f in term_forms(n):
+            out.add(f.casefold())
+        words = n.split(" ")
+        for s in _singulars(words[-1].casefold()):
+            out.add(" ".join([*(w.casefold() for w in words[:-1]), s]))
+    return out
+
+
+def _strip_possessive(phrase: str) -> str:
+    for suffix in ("'s", "’s", "'", "’"):
+        if phrase.endswith(suffix):
+            return phrase[: -len(suffix)]
+    return phrase
+
+
+# --------------------------------------------------------------------------------------
+# One document's words
+# --------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class _Texts:
+    """The prose of a document: (provision, part, text) in document order."""
+
+    doc: Document
+    parts: tuple[tuple[Provision, str, str], ...]
+
+    @staticmethod
+    def of(doc: Document) -> _Texts:
+        parts: list[tuple[Provision, str, str]] = []
+        for p in doc.provisions:
+            if p.heading:
+                parts.append((p, "heading", p.heading))
+            if p.text:
+                parts.append((p, "text", p.text))
+        return _Texts(doc, tuple(parts))
+
+
+def _lower_words(texts: Iterable[str]) -> set[str]:
+    out: set[str] = set()
+    for t in texts:
+        out.update(_LOWER_WORD_RE.findall(t))
+    return out
+
+
+def _marked_names(texts: Iterable[str]) -> set[str]:
+    """Phrases a reader takes for defined names although the term finder may not: any
+    phrase in quotation marks, a name in a parenthesis, a name after "hereinafter"."""
+    out: set[str] = set()
+    for t in texts:
+        for m in _QUOTED_RE.finditer(t):
+            body = next(g for g in m.groups() if g is not None)
+            out.add(" ".join(body.strip(" ,.;:").split()).casefold())
+        for rx in (_PAREN_NAME_RE, _HEREINAFTER_NAME_RE):
+            for m in rx.finditer(t):
+                out.add(" ".join(m.group("name").split()).casefold())
+    return {n for n in out if n}
+
+
+def _title_line(line: str) -> bool:
+    words = _WORD_RE.findall(line)
+    if len(words) < TITLE_LINE_MIN_WORDS:
+        return False
+    caps = sum(1 for w in words if w[:1].isupper())
+    return caps >= TITLE_LINE_SHARE * len(words)
+
+
+def _masked(text: str, pattern: re.Pattern[str] | None) -> str:
+    """*text* with every match of *pattern* (term uses, quoted words) blanked out."""
+    if pattern is None:
+        return text
+    return pattern.sub(lambda m: "\x00" * len(m.group(0)), text)
+
+
+_DASHES = "-\u2010\u2011\u2012\u2013\u2014\u2212"
+_DASH_RE = re.compile("[" + _DASHES + "]")
+
+
+def _fold(name: str) -> str:
+    """*name* as compared: case-folded, white space collapsed, any dash a hyphen."""
+    return _DASH_RE.sub("-", " ".join(name.split())).casefold()
+
+
+def _form_regex(form: str) -> str:
+    """A regex of *form*: any run of white space between words, any dash for a hyphen."""
+    words = [("[" + _DASHES + "]").join(re.escape(p) for p in w.split("-")) for w in form.split(" ")]
+    return r"\s+".join(words)
+
+
+def _names_pattern(names: Iterable[str]) -> re.Pattern[str] | None:
+    """Uses of *names* in any letter case and with any dash, plural and possessive forms
+    included."""
+    forms = sorted({_fold(f) for n in names for f in term_forms(" ".join(n.split())) if f},
+                   key=len, reverse=True)
+    if not forms:
+        return None
+    body = "|".join(_form_regex(f) for f in forms)
+    return re.compile(r"(?<![\w-])(?:" + body + r")" + _POSSESSIVE + r"(?!\w)", re.IGNORECASE)
+
+
+@dataclass(frozen=True, slots=True)
+class _Use:
+    provision: Provision
+    part: str
+    start: int
+    end: int
+    phrase: str
+    determiner: str | None  # the word before, lower case
+
+
+def _candidate_uses(texts: _Texts, known: re.Pattern[str] | None) -> list[_Use]:
+    """Capitalised phrases in the middle of sentences of prose, outside quotation marks and
+    known names."""
+    out: list[_Use] = []
+    for prov, part, text in texts.parts:
+        if part == "heading" or prov.kind in _NOT_PROSE:
+            continue
+        masked = _masked(_masked(text, known), _QUOTED_RE)
+        pos = 0
+        for line in masked.split("\n"):
+            start = pos
+            pos += len(line) + 1
+            if _title_line(text[start:start + len(line)]):
+                continue
+            for m in _PHRASE_RE.finditer(line):
+                before = _PREVIOUS_WORD_RE.search(line, 0, m.start())
+                if before is None or not before.group("word").islower():
+                    continue  # the start of a sentence, a line, a list item or a name list
+                phrase = _strip_possessive(m.group("phrase"))
+                a = start + m.start("phrase")
+                out.append(_Use(prov, part, a, a + len(phrase), phrase, before.group("word")))
+    return out
+
+
+def _excluded(phrase: str) -> bool:
+    """Is *phrase* a closed-class word or a name that is no defined term?"""
+    words = phrase.split()
+    caps = [w for w in words if w[:1].isupper()]
+    if any(w in _CALENDAR for w in caps) or any(w in _CONVENTION_WORDS for w in caps):
+        return True
+    if words[0] in _SECTION_WORDS and len(words) == 1:
+        return True
+    if words[-1] in _INSTRUMENT_WORDS:
+        return True
+    return any(w in _BODY_WORDS for w in caps)
+
+
+def _common_noun(phrase: str, lower: set[str]) -> bool:
+    """Does the document write every capitalised word of *phrase* in lower case elsewhere
+    (as a word of prose, any singular or plural form)?"""
+    for w in phrase.split():
+        if not w[:1].isupper():
+            continue
+        forms = _singulars(w.lower()) | {w.lower() + "s", w.lower() + "es"}
+        if not forms & lower:
+            return False
+    return True
+
+
+def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Mapping[str, str] | None = None,
+                    document: str = "draft") -> tuple[Check, ...]:
+    """The undefined-term checks of *doc* (see the module's notes).
+
+    *defined* adds names that count as defined (the names of renamed terms, whose stale
+    uses another check reports); *foreign* maps the names another document (the precedent)
+    defines to how it defines them: a capitalised use of one that *doc* does not define is
+    reported whatever its shape."""
+    texts = _Texts.of(doc)
+    own = [n for t in doc.terms for n in t.names] + list(defined)
+    marked = _marked_names(t for _p, _k, t in texts.parts)
+    own_forms = _name_forms(own) | _name_forms(marked)
+    lower = _lower_words(t for _p, _k, t in texts.parts)
+    found: dict[str, list[_Use]] = {}
+    foreign_forms = {f: n for n in (foreign or {}) for f in _name_forms([n])}
+    for use in _candidate_uses(texts, _names_pattern([*own, *marked])):
+        key = use.phrase.casefold()
+        if key in own_forms:
+            continue
+        if key in foreign_forms:
+            found.setdefault(key, []).append(use)
+            continue
+        if _excluded(use.phrase):
+            continue
+        found.setdefault(key, []).append(use)
+    # Uses at the start of a sentence of a term the precedent defines count too.
+    out: list[Check] = []
+    for key, uses in found.items():
+        first = uses[0]
+        name = foreign_forms.get(key)
+        if name is None:
+            if not _common_noun(first.phrase, lower) and not any(
+                    u.determiner in _COMMON_DETERMINERS for u in uses):
+                continue
+            why = "is capitalised like a defined term but defined nowhere in the document"
+        else:
+            why = "is defined in the precedent but not in this document"
+        n_prov = len({u.provision.id for u in uses})
+        where = f"; used in {n_prov} provisions" if n_prov > 1 else ""
+        out.append(Check(
+            kind="undefined-term", document=document, provision=first.provision.id,
+            text=first.provision.text[first.start:first.end] if first.part == "text" else first.phrase,
+            message=f'"{first.phrase}" {why}{where}', span=(first.start, first.end), part=first.part,
+            term=first.phrase,
+            provisions=tuple(dict.fromkeys(u.provision.id for u in uses[1:] if u.provision.id != first.provision.id))))
+    return tuple(out)
+
+
+# --------------------------------------------------------------------------------------
+# Unused definitions
+# --------------------------------------------------------------------------------------
+
+
+def _definition_area(doc: Document, t: DefinedTerm) -> tuple[str, tuple[int, int] | None]:
+    """The defining provision's id and the span of its text that defines *t*: None for the
+    whole provision (a definition provision of its own: ``"X" means ...``), else the
+    sentence or table row the term finder gave."""
+    try:
+        prov = doc.provision(t.provision)
+    except KeyError:
+        return t.provision, None
+    if (prov.kind == "definition" and prov.term == t.term) or t.span is None or t.span == (0, 0):
+        return prov.id, None
+    return prov.id, t.span
+
+
+def _use_name(name: str) -> str:
+    """The name whose uses count as uses of a defined *name*: "to propagate" is used as
+    "propagate"."""
+    words = name.split()
+    return " ".join(words[1:]) if len(words) > 1 and words[0].casefold() == "to" else name
+
+
+def unused_definitions(doc: Document, *, document: str = "draft") -> tuple[Check, ...]:
+    """Defined terms that *doc* never uses outside their definitions.
+
+    A definition provision of its own (``"X" means ...``) is the definition in its first
+    paragraph (its words may name the term again); a term defined inside a sentence is used
+    by any other mention, in that sentence too ("(the "EAR") and that you will comply with
+    the EAR").  Names are compared in any letter case, so two terms that differ only by
+    case ("AGREEMENT" in a notice in capitals, "Agreement") share their uses."""
+    if not doc.terms:
+        return ()
+    lookup: dict[str, set[str]] = {}
+    for t in doc.terms:
+        for n in _written_names(t):
+            n = _use_name(n)
+            for f in [*term_forms(" ".join(n.split())), *_verb_forms(n)]:
+                lookup.setdefault(_fold(f), set()).add(t.term)
+    pattern = _names_pattern(lookup)
+    assert pattern is not None
+    areas = {t.term: _definition_area(doc, t) for t in doc.terms}
+    defining_seen: set[str] = set()
+    used: set[str] = set()
+    for prov, part, text in _Texts.of(doc).parts:
+        first_paragraph = text.find("\n") if "\n" in text else len(text)
+        for m in pattern.finditer(text):
+            for term in lookup.get(_fold(_strip_possessive(m.group(0))), ()):
+                if term in used:
+                    continue
+                pid, span = areas[term]
+                if pid == prov.id and part == "text":
+                    if span is None and m.start() < first_paragraph:
+                        continue  # inside the definition itself
+                    if span is not None and span[0] <= m.start() < span[1] and term not in defining_seen:
+                        defining_seen.add(term)  # the defining mention
+                        continue
+                used.add(term)
+    out = []
+    for t in doc.terms:
+        if (t.term in used or not t.term[:1].isupper() or _BY_REFERENCE_RE.search(t.definition or "")
+                or _NOT_A_NAME_RE.search(t.term) or _abbreviation(t, doc)):
+            continue
+        pid, span = areas[t.term]
+        try:
+            prov = doc.provision(pid)
+        except KeyError:
+            continue
+        at = _name_span(prov.text, t.term, span)
+        out.append(Check(
+            kind="unused-definition", document=document, provision=pid,
+            text=prov.text[at[0]:at[1]] if at else t.term,
+            message=f'"{t.term}" is defined but never used outside its definition',
+            span=at, term=t.term))
+    return tuple(out)
+
+
+#: An optional ending written in brackets: "Program(s)", "You(r)".
+_OPTIONAL_ENDING_RE = re.compile(r"\((?:s|es|r)\)$")
+#: Characters of a name that a reader takes for no name: "based on [the Program/...]".
+_NOT_A_NAME_RE = re.compile(r"[\[\]/{}<>=]")
+
+
+_NAME_PARTS_RE = re.compile(r"\s+(?:or|and/or)\s+|\s*\(([^()]+)\)\s*$")
+
+
+def _written_names(t: DefinedTerm) -> list[str]:
+    """The names of *t* as they may be written: "Program(s)" is used as "Program" and
+    "Programs", "You(r)" as "You" and "Your", "Party or Parties" as either, "Application
+    Programming Interfaces (APIs)" as either."""
+    out: list[str] = []
+    for n in t.names:
+        m = _OPTIONAL_ENDING_RE.search(n)
+        if m:
+            out.extend([n[:m.start()], n[:m.start()] + m.group(0)[1:-1]])
+            continue
+        out.append(n)
+        out.extend(p for p in _NAME_PARTS_RE.split(n) if p and p.strip() and p != n)
+    return out
+
+
+def _abbreviation(t: DefinedTerm, doc: Document) -> bool:
+    """Is *t* an abbreviation of the words before it ("the Federal Arbitration Act
+    ("FAA")")?  Introducing an abbreviation is a convention of style, not a defined term
+    the agreement relies on, so an unused one is not reported."""
+    term = t.term
+    if not (2 <= len(term) <= ABBREVIATION_MAX_LETTERS and term.isupper() and term.isalpha()):
+        return False
+    try:
+        text = doc.provision(t.provision).text
+    except KeyError:
+        return False
+    a = (t.span or (0, len(text)))[0]
+    at = text.find(term, a)
+    if at < 0:
+        return False
+    initials = "".join(w[0] for w in _WORD_RE.findall(text[max(0, at - 120):at])[-12:]).upper()
+    it = iter(initials)
+    return all(ch in it for ch in term)
+
+
+def _verb_forms(name: str) -> list[str]:
+    """A one-word name may be a verb ("Incorporate" means to publish ...): its inflected
+    forms ("incorporated", "incorporating") are uses of it."""
+    if " " in name or not name.isalpha() or len(name) < 3:
+        return []
+    stem = name[:-1] if name.endswith("e") else name
+    return [stem + "ed", stem + "ing", name + "d" if name.endswith("e") else name + "ed"]
+
+
+def _name_span(text: str, name: str, within: tuple[int, int] | None) -> tuple[int, int] | None:
+    """Where *name* is written in *text* (inside *within* when given)."""
+    a, b = within or (0, len(text))
+    m = re.compile(r"(?<!\w)" + re.escape(name).replace(r"\ ", r"\s+") + r"(?!\w)").search(text, a, b)
+    return (m.start(), m.end()) if m else None
+
+
+# --------------------------------------------------------------------------------------
+# Cross-references to no provision
+# --------------------------------------------------------------------------------------
+
+
+def dangling_references(doc: Document, *, document: str = "draft") -> tuple[Check, ...]:
+    """Typed cross-references whose number names no provision of *doc*."""
+    from ..xrefs import find_references, numbered_in, resolve
+
+    out: list[Check] = []
+    for prov, part, text in _Texts.of(doc).parts:
+        for ref in find_references(text):
+            if ref.external:
+                continue
+            for r in resolve(ref, doc, within=prov):
+                n = r.number
+                if r.status != "missing" or n.relative or not numbered_in(ref, doc):
+                    continue
+                words = text[ref.start:ref.end]
+                out.append(Check(
+                    kind="dangling-reference", document=document, provision=prov.id,
+                    text=words, part=part, span=(ref.start, ref.end),
+                    message=f'"{words}" refers to {ref.keyword} {n.number}, which the document does not have'))
+    return tuple(out)
+
+
+# --------------------------------------------------------------------------------------
+# Checks of a review: the draft's own, and those against the precedent
+# --------------------------------------------------------------------------------------
+
+
+def document_checks(doc: Document, *, document: str = "draft", defined: Iterable[str] = (),
+                    foreign: Mapping[str, str] | None = None) -> tuple[Check, ...]:
+    """The checks one document allows on its own: undefined terms, unused definitions and
+    dangling references (*defined* and *foreign* as for :func:`undefined_terms`)."""
+    return (*undefined_terms(doc, defined=defined, foreign=foreign, document=document),
+            *unused_definitions(doc, document=document),
+            *dangling_references(doc, document=document))
+
+
+def stale_terms(review: Review) -> tuple[Check, ...]:
+    """Each use, in the draft, of the precedent's name of a renamed term."""
+    stale = [m for m in review.term_map if m.stale]
+    if not stale:
+        return ()
+    draft = review.draft
+    names = [n for t in draft.terms for n in t.names]
+    alias_of = {a: t.term for t in draft.terms for a in t.aliases}
+    every = list(dict.fromkeys([*names, *(m.draft for m in review.term_map),
+                                *(m.precedent for m in review.term_map)]))
+    matcher = term_matcher(every, aliases=alias_of, capitals=True)
+    wanted = {m.precedent: m for m in stale}
+    out: list[Check] = []
+    for prov, part, text in _Texts.of(draft).parts:
+        for u in find_term_uses(text, matcher):
+            m = wanted.get(u.term)
+            if m is None:
+                continue
+            out.append(Check(
+                kind="stale-term", document="draft", provision=prov.id, text=text[u.start:u.end],
+                part=part, span=(u.start, u.end), term=m.draft,
+                message=(f'"{text[u.start:u.end]}" is the precedent\'s name for what the draft '
+                         f'calls "{m.draft}" ({m.occurrences} uses); {m.stale} such '
+                         f'use{"s" * (m.stale != 1)} left in the draft')))
+    return tuple(out)
+
+
+def definitions_changed(review: Review) -> tuple[Check, ...]:
+    """Definitions of the draft whose words changed in substance against the precedent."""
+    draft, precedent = review.draft, review.precedent
+    p_terms = {t.term: t for t in precedent.terms}
+    to_precedent = {m.draft: m.precedent for m in review.term_map}
+    out: list[Check] = []
+    for t in draft.terms:
+        pt = p_terms.get(to_precedent.get(t.term, t.term))
+        if pt is None:
+            continue
+        d_pid, d_span = _definition_area(draft, t)
+        p_pid, p_span = _definition_area(precedent, pt)
+        devs = [v for v in review.deviations
+                if v.category == "substantive" and v.part == "text"
+                and v.draft_provision == d_pid and v.precedent_provision == p_pid
+                and _inside(v.draft_span, d_span) and _inside(v.precedent_span, p_span)]
+        if not devs:
+            continue
+        users = _provisions_using(draft, t, exclude=d_pid)
+        prov = draft.provision(d_pid)
+        a, b = d_span or (0, len(prov.text))
+        ranks = ", ".join(str(v.rank) for v in sorted(devs, key=lambda v: v.rank))
+        n = len(users)
+        out.append(Check(
+            kind="definition-changed", document="draft", provision=d_pid, text=prov.text[a:b],
+            span=(a, b), term=t.term, provisions=users,
+            message=(f'the definition of "{t.term}" changed (No. {ranks}): '
+                     f'{n} provision{"s" * (n != 1)} use{"s" * (n == 1)} the term')))
+    return tuple(out)
+
+
+def _inside(span: tuple[int, int] | None, area: tuple[int, int] | None) -> bool:
+    """Does a deviation's span touch the definition's area (None: the whole provision)?"""
+    if area is None:
+        return True
+    if span is None:
+        return False
+    a, b = span
+    return a <= area[1] and b >= area[0]
+
+
+def _provisions_using(doc: Document, t: DefinedTerm, *, exclude: str) -> tuple[str, ...]:
+    alias_of = {a: x.term for x in doc.terms for a in x.aliases}
+    matcher = term_matcher([x.term for x in doc.terms], aliases=alias_of, capitals=True)
+    out = []
+    for prov in doc.provisions:
+        if prov.id == exclude:
+            continue
+        if any(u.term == t.term for text in (prov.heading or "", prov.text)
+               for u in find_term_uses(text, matcher)):
+            out.append(prov.id)
+    return tuple(out)
+
+
+def review_checks(review: Review) -> tuple[Check, ...]:
+    """Every drafting check of *review*'s draft, in :data:`CHECK_KINDS` order, each kind in
+    document order."""
+    renamed = [n for m in review.term_map for n in (m.draft, m.precedent)]
+    foreign = {n: t.definition for t in review.precedent.terms for n in t.names}
+    checks = [*document_checks(review.draft, defined=renamed, foreign=foreign),
+              *stale_terms(review), *definitions_changed(review)]
+    position = {p.id: i for i, p in enumerate(review.draft.provisions)}
+    kind_order = {k: i for i, k in enumerate(CHECK_KINDS)}
+    return tuple(sorted(checks, key=lambda c: (kind_order[c.kind], position.get(c.provision or "", -1),
+                                              c.part != "heading", (c.span or (0, 0))[0])))
