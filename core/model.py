@@ -57,7 +57,10 @@ never recompute them)
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Literal
+from typing import TYPE_CHECKING, Literal
+
+if TYPE_CHECKING:
+    from .review.checks import Check
 
 __all__ = [
     "Block",
@@ -310,3 +313,6 @@ class Review:
     deviations: tuple[Deviation, ...]
     #: Human-readable notes, e.g. "the documents share no provision".
     notes: tuple[str, ...] = ()
+    #: The drafting checks of the draft (:mod:`core.review.checks`): undefined terms, unused
+    #: definitions, stale names of renamed terms, dangling references, changed definitions.
+    checks: tuple[Check, ...] = ()

@@ -62,6 +62,7 @@ from .tokens import find_term_uses, term_matcher
 __all__ = [
     "CHECK_DOCUMENTS",
     "CHECK_KINDS",
+    "CHECK_TITLES",
     "Check",
     "MAX_TERM_WORDS",
     "TITLE_LINE_SHARE",
@@ -73,6 +74,14 @@ __all__ = [
 CHECK_KINDS: tuple[str, ...] = ("undefined-term", "unused-definition", "stale-term",
                                 "dangling-reference", "definition-changed")
 CHECK_DOCUMENTS: tuple[str, ...] = ("draft", "precedent")
+#: How the outputs name each kind (the trade's own words).
+CHECK_TITLES: dict[str, str] = {
+    "undefined-term": "Undefined term",
+    "unused-definition": "Unused definition",
+    "stale-term": "Old name of a renamed term",
+    "dangling-reference": "Reference to no provision",
+    "definition-changed": "Definition changed",
+}
 
 
 @dataclass(frozen=True, slots=True)
@@ -130,13 +139,40 @@ _JOINERS = r"(?:of|for|the|in|on|to|de|la|du|von|van)"
 _POSSESSIVE = r"(?:['’]s|(?<=s)['’])?"
 _PHRASE_RE = re.compile(
     r"(?<![\w'’\"“”‘.@/\\&+-])(?P<phrase>" + _CAP_WORD
-    + r"(?:[ \t]+(?:" + _JOINERS + r"[ \t]+){0,2}" + _CAP_WORD + r"){0,%d})" % (MAX_TERM_WORDS - 1)
+    + r"(?:(?:[ \t]+|[ \t]*\n[ \t]*)(?:(?:" + _JOINERS + r"|and|or|&)\s+){0,2}" + _CAP_WORD + r")*)"
     + _POSSESSIVE + r"(?![\w@/\\&+-]|\.\w)")
+#: A run parts into phrases at "and", "or" and "&" ("Licensor and Licensee").
+_SPLIT_RE = re.compile(r"\s+(?:and|or|&)\s+")
+_HONORIFICS = frozenset("Mr Mrs Ms Dr Prof Sir Dame Lord Lady St".split())
+#: A run-in heading: title-case words at the start of a line, up to a full stop or colon.
+_RUN_IN_RE = re.compile(r"[ \t]*(?P<words>[A-Z][^.:;!?\n]{0,120}?)[.:][ \t]+(?=\S)")
+#: Longest run-in heading (words): "Warranty of Provenance and Disclaimer of Warranty".
+MAX_RUN_IN_WORDS = 12
+_AFTER_RE = re.compile(r"[ \t]*\n?[ \t]*(?P<next>[A-Za-z0-9(©]+)")
+#: A designation after a phrase makes it a label, not a term: "Product X", "Exhibit 2".
+_DESIGNATION_RE = re.compile(r"^(?:[A-Z]|\d+|[IVX]+)$")
+_NOTICE_RE = re.compile(r"[ \t]*(?:\(c\)|©|\d{4})", re.IGNORECASE)
+#: Function words: a capitalised one is no term ("This License", "Your use"): articles,
+#: pronouns, prepositions, conjunctions, auxiliaries (common practice, no source).
+_FUNCTION_WORDS = frozenset(
+    "a an the this that these those such any each every all no none some other another both "
+    "either neither i me my mine you your yours yourself we us our ours he him his she her hers "
+    "it its they them their theirs who whom whose which what of in on at to by for from with "
+    "without within into onto upon under over between among about against through during before "
+    "after above below and or nor but if unless whether than then so as not only also is are "
+    "was were be been being has have had do does did shall will may must can could would should "
+    "might here there hereby herein hereof hereunder thereof therein where when while".split())
+_FUNCTION_WORDS_CAPITALISED = frozenset(w.capitalize() for w in _FUNCTION_WORDS)
+#: Words frequent in any English text and rare in other languages: their share tells an
+#: English document (about a quarter of the words of an agreement; under 3 % of a German
+#: or French one).  Judgement value, common practice, no source.
+_ENGLISH_MARKERS = frozenset("the of and to or any shall be is by with this that which".split())
+ENGLISH_MIN_SHARE = 0.08
 #: A word written in lower case as a word of prose (not part of a file name, an address or
 #: a program identifier: "java.lang", "www.example.org").
 _LOWER_WORD_RE = re.compile(r"(?<![\w.@/\\:-])[a-z]+(?:-[a-z]+)*(?![\w@/\\]|\.\w)")
 _WORD_RE = re.compile(r"[A-Za-z][A-Za-z'’-]*")
-_PREVIOUS_WORD_RE = re.compile(r"(?P<word>[A-Za-z]+)[ \t]+$")
+_PREVIOUS_WORD_RE = re.compile(r"(?P<word>[A-Za-z]+)(?:[ \t]+|[ \t]*\n[ \t]*)$")
 
 #: Determiners that go with a common noun, never with a proper name: "any Service Credits",
 #: "each Contributor" (whereas "the" goes with both: "the United States").
@@ -151,17 +187,19 @@ _SECTION_WORDS = frozenset(
     "Subsections Paragraph Paragraphs Sub-paragraph Sub-paragraphs Subparagraph Subparagraphs "
     "Article Articles Part Parts Schedule Schedules Annex Annexes Annexure Annexures Appendix "
     "Appendices Exhibit Exhibits Attachment Attachments Addendum Addenda Recital Recitals "
-    "Preamble Title Chapter Chapters Item Items Table Figure Page Pages Line Lines".split())
+    "Preamble Title Chapter Chapters Item Items Table Figure Page Pages Line Lines Glossary".split())
 #: Names a document gives itself or another instrument: "this Agreement", "the License",
 #: "the Privacy Policy", "the Data Protection Act".  A phrase ending in one is a title.
 _INSTRUMENT_WORDS = frozenset(
     "Agreement Agreements Contract Contracts Deed Deeds License Licenses Licence Licences Terms "
     "Conditions Policy Policies Addendum Amendment Amendments Guidelines Requirements Rules "
     "Act Acts Regulation Regulations Directive Directives Convention Conventions Treaty "
-    "Treaties Statute Statutes Ordinance Constitution Protocol Charter Declaration Notice "
+    "Treaties Statute Statutes Ordinance Constitution Protocol Charter Declaration Notice List "
     "Covenant Covenants Agreement's License's Licence's".split())
 #: A document's names for itself: "of the Agreement" is this document.
 _SELF_WORDS = frozenset("Agreement Contract Deed License Licence Terms Conditions".split())
+#: First words of an instrument's title: "Terms of Service", "Rules of Arbitration".
+_TITLE_FIRST_WORDS = frozenset("Terms Conditions Rules Code Principles Standards".split())
 #: Words that make a phrase the name of a body or a place: "the Free Software Foundation",
 #: "the State of California", "the Government", "the Courts".
 _BODY_WORDS = frozenset(
@@ -172,6 +210,8 @@ _BODY_WORDS = frozenset(
     "Organization Organisation Project Board Bank District County Province Commonwealth City "
     "Territory Territories Region Area Community Communities Federation Authority Group "
     "Inc's".split())
+#: Words that make a run of capitalised words, however parted by "and", a title.
+_TITLE_WORDS = _INSTRUMENT_WORDS | _BODY_WORDS
 #: Common nouns that English style capitalises by convention.
 _CONVENTION_WORDS = frozenset("Internet Web Earth God".split())
 
@@ -179,10 +219,22 @@ _QUOTED_RE = re.compile(r"[\"“”„]([^\"“”„\n]{1,80})[\"“”]|‘([^
                         r"|(?<![\w'’])'([^'\n]{1,80})'(?![\w'])|``([^`'\n]{1,80})''")
 #: An unquoted name in a parenthesis after what it names: "(the Licensor)", "(Customer)".
 _PAREN_NAME_RE = re.compile(
-    r"\((?:(?:hereinafter|hereafter)\s+(?:referred\s+to\s+as\s+|called\s+)?)?(?:the\s+|each\s+a\s+|a\s+)?"
+    r"\((?:(?:hereinafter|hereafter)\s+(?:referred\s+to\s+as\s+|called\s+)?)?"
+    r"(?:(?:collectively|together|jointly|each|individually),?\s+)?(?:the\s+|an?\s+)?"
     r"(?P<name>" + _CAP_WORD + r"(?:\s+(?:" + _JOINERS + r"\s+)?" + _CAP_WORD + r"){0,4})\)")
+#: "Affiliates (as defined below)", "Content Viewer (as defined in the terms of use)": the
+#: drafter points to a definition.
+_AS_DEFINED_NAME_RE = re.compile(
+    r"(?P<name>" + _CAP_WORD + r"(?:\s+(?:" + _JOINERS + r"\s+)?" + _CAP_WORD + r"){0,4})"
+    r"['’]?s?\s*,?\s*\(?\s*(?:as\s+)?(?:is\s+|are\s+)?(?:defined|described|set\s+(?:forth|out))\b")
+#: A glossary line: a title-case name, then a colon or a dash ("Participation Obligation -
+#: a licensing obligation ...").
+_GLOSSARY_NAME_RE = re.compile(
+    r"(?m)^[ \t]*(?:[\w.()]{1,6}[ \t]+)?(?P<name>" + _CAP_WORD + r"(?:[ \t]+(?:" + _JOINERS + r"[ \t]+)?"
+    + _CAP_WORD + r"){0,4})[ \t]*(?::|[ \t][-\u2013\u2014][ \t])")
 _HEREINAFTER_NAME_RE = re.compile(
-    r"\b(?:hereinafter|hereafter)\s+(?:referred\s+to\s+as\s+|called\s+)?(?:the\s+)?"
+    r"\b(?:hereinafter|hereafter|(?:is|are)\s+(?:referred\s+to|called|known)(?:\s+herein)?(?:\s+as)?)\s+"
+    r"(?:referred\s+to\s+as\s+|called\s+)?(?:the\s+)?"
     r"(?P<name>" + _CAP_WORD + r"(?:\s+(?:" + _JOINERS + r"\s+)?" + _CAP_WORD + r"){0,4})")
 #: "a "commercial item," as that term is defined in ...": a term imported by reference.
 _BY_REFERENCE_RE = re.compile(
@@ -204,19 +256,6 @@ def _singulars(word: str) -> set[str]:
         out.add(word[:-2])
     if word.endswith("s") and len(word) > 2:
         out.add(word[:-1])
-    return out
-
-
-def _name_forms(names: Iterable[str]) -> set[str]:
-    """Every name, its plural and singular, case-folded: the forms that count as uses."""
-    out: set[str] = set()
-    for n in names:
-        n = " ".join(n.split())
-        for f in term_forms(n):
-            out.add(f.casefold())
-        words = n.split(" ")
-        for s in _singulars(words[-1].casefold()):
-            out.add(" ".join([*(w.casefold() for w in words[:-1]), s]))
     return out
 
 
@@ -265,7 +304,7 @@ def _marked_names(texts: Iterable[str]) -> set[str]:
         for m in _QUOTED_RE.finditer(t):
             body = next(g for g in m.groups() if g is not None)
             out.add(" ".join(body.strip(" ,.;:").split()).casefold())
-        for rx in (_PAREN_NAME_RE, _HEREINAFTER_NAME_RE):
+        for rx in (_PAREN_NAME_RE, _HEREINAFTER_NAME_RE, _AS_DEFINED_NAME_RE, _GLOSSARY_NAME_RE):
             for m in rx.finditer(t):
                 out.add(" ".join(m.group("name").split()).casefold())
     return {n for n in out if n}
@@ -314,36 +353,105 @@ def _names_pattern(names: Iterable[str]) -> re.Pattern[str] | None:
 
 @dataclass(frozen=True, slots=True)
 class _Use:
+    """A capitalised phrase in the middle of a sentence."""
+
     provision: Provision
     part: str
     start: int
     end: int
     phrase: str
-    determiner: str | None  # the word before, lower case
+    #: After a determiner of a common noun that goes with it ("any Service Credits"; not
+    #: "a Delaware corporation", where "a" goes with "corporation").
+    common: bool = False
+    #: Followed by a content word it qualifies ("Places listings", "Microsoft URL").
+    attributive: bool = False
 
 
-def _candidate_uses(texts: _Texts, known: re.Pattern[str] | None) -> list[_Use]:
-    """Capitalised phrases in the middle of sentences of prose, outside quotation marks and
-    known names."""
+def _run_in_heading_end(line: str) -> int:
+    """Where a run-in heading at the start of *line* ends ("Acceptance and Termination. If
+    You ..."): title-case words up to a full stop or colon; 0 when there is none."""
+    m = _RUN_IN_RE.match(line)
+    if m is None:
+        return 0
+    words = _WORD_RE.findall(m.group("words"))
+    caps = sum(1 for w in words if w[:1].isupper() or w.lower() in _FUNCTION_WORDS)
+    if not words or len(words) > MAX_RUN_IN_WORDS or caps < len(words):
+        return 0
+    return m.end()
+
+
+def _candidate_uses(texts: _Texts) -> list[_Use]:
+    """Capitalised phrases in the middle of sentences of prose, outside quotation marks,
+    title lines and run-in headings (see the module's notes).  A phrase may run over a
+    line break ("its Board\nof Directors"): lines of a paragraph wrap anywhere."""
     out: list[_Use] = []
     for prov, part, text in texts.parts:
         if part == "heading" or prov.kind in _NOT_PROSE:
             continue
-        masked = _masked(_masked(text, known), _QUOTED_RE)
+        chars = list(_masked(text, _QUOTED_RE))
         pos = 0
-        for line in masked.split("\n"):
-            start = pos
+        for line in text.split("\n"):
+            cut = len(line) if _title_line(line) else _run_in_heading_end(line)
+            chars[pos:pos + cut] = "\x00" * cut
             pos += len(line) + 1
-            if _title_line(text[start:start + len(line)]):
-                continue
-            for m in _PHRASE_RE.finditer(line):
-                before = _PREVIOUS_WORD_RE.search(line, 0, m.start())
-                if before is None or not before.group("word").islower():
-                    continue  # the start of a sentence, a line, a list item or a name list
-                phrase = _strip_possessive(m.group("phrase"))
-                a = start + m.start("phrase")
-                out.append(_Use(prov, part, a, a + len(phrase), phrase, before.group("word")))
+        masked = "".join(chars)
+        for m in _PHRASE_RE.finditer(masked):
+            out.extend(_uses_in_run(masked, m, prov, part, 0))
     return out
+
+
+def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: str, offset: int) -> list[_Use]:
+    """The phrases of one run of capitalised words (parted at "and" / "or"), unless the run
+    is a title, starts a sentence or is a verb ("to Preserve its Title")."""
+    run = m.group("phrase")
+    caps = [w for w in run.split() if w[:1].isupper()]
+    if len(caps) > MAX_TERM_WORDS or (len(caps) > 1 and any(w in _TITLE_WORDS for w in caps)):
+        return []  # a title: "the Berne Convention for the Protection of Literary and Artistic Works"
+    before = _PREVIOUS_WORD_RE.search(line, 0, m.start())
+    if before is None or not before.group("word").islower():
+        return []  # the start of a sentence, a line, a list item or a list of names
+    after = _AFTER_RE.match(line, m.end())
+    nxt = after.group("next") if after else ""
+    if _DESIGNATION_RE.match(nxt) or (run.endswith("Copyright") and _NOTICE_RE.match(line, m.end())):
+        return []  # "Product X", "Schedule 2", "Copyright (C) 2002"
+    if before.group("word") == "to" and nxt.lower() in _FUNCTION_WORDS and " " not in run:
+        return []  # a verb: "to Use the Software"
+    attributive = bool(nxt) and nxt[0].isalpha() and nxt.lower() not in _FUNCTION_WORDS
+    out: list[_Use] = []
+    cuts = [0, *(x for sep in _SPLIT_RE.finditer(run) for x in (sep.start(), sep.end())), len(run)]
+    pieces = [(cuts[i], run[cuts[i]:cuts[i + 1]]) for i in range(0, len(cuts), 2)]
+    determiner = before.group("word")
+    for k, (piece_start, piece) in enumerate(pieces):
+        words = piece.split()
+        lead = 0
+        while lead < len(words) and words[lead].lower() in _FUNCTION_WORDS:
+            determiner = words[lead].lower()  # "by Your Modifications": the phrase is "Modifications"
+            lead += 1
+        rest = words[lead:]
+        while rest and not rest[-1][:1].isupper():
+            rest.pop()
+        if not rest or rest[0] in _HONORIFICS:
+            determiner = None
+            continue
+        phrase = _strip_possessive(" ".join(rest))
+        a = offset + m.start("phrase") + piece_start + piece.index(rest[0])
+        b = offset + m.start("phrase") + piece_start + piece.rindex(rest[-1]) + len(rest[-1])
+        b -= len(rest[-1]) - len(_strip_possessive(rest[-1]))
+        last = k == len(pieces) - 1
+        out.append(_Use(prov, part, a, b, phrase,
+                        common=determiner in _COMMON_DETERMINERS and not (last and attributive),
+                        attributive=last and attributive))
+        determiner = None
+    return out
+
+
+def _english(texts: _Texts) -> bool:
+    """Is the document written in English (whose capitals these checks read)?  German
+    capitalises every noun; a French or Dutch text has its own conventions."""
+    words = [w.lower() for _p, _k, t in texts.parts for w in _WORD_RE.findall(t)]
+    if not words:
+        return False
+    return sum(1 for w in words if w in _ENGLISH_MARKERS) >= ENGLISH_MIN_SHARE * len(words)
 
 
 def _excluded(phrase: str) -> bool:
@@ -354,8 +462,8 @@ def _excluded(phrase: str) -> bool:
         return True
     if words[0] in _SECTION_WORDS and len(words) == 1:
         return True
-    if words[-1] in _INSTRUMENT_WORDS:
-        return True
+    if words[-1] in _INSTRUMENT_WORDS or (len(words) > 1 and words[0] in _TITLE_FIRST_WORDS):
+        return True  # "the Privacy Policy", "the Terms of Service"
     return any(w in _BODY_WORDS for w in caps)
 
 
@@ -371,52 +479,108 @@ def _common_noun(phrase: str, lower: set[str]) -> bool:
     return True
 
 
-def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Mapping[str, str] | None = None,
+def _word_key(name: str) -> tuple[str, ...]:
+    """A name's words as compared: case-folded, parted at spaces and hyphens, each reduced
+    to its stem (:func:`_stem`: "Front-Cover Texts" -> ("front", "cover", "text"),
+    "Distributing" -> ("distribut",)), so that a plural or another form of a defined word
+    is the same name."""
+    return tuple(_stem(w) for w in re.split(r"[" + _DASHES + r"\s]+", _strip_possessive(name).casefold()) if w)
+
+
+_SUFFIXES = ("ations", "ation", "ions", "ion", "ings", "ing", "ies", "ied", "ers", "er", "ed", "es", "s", "e", "y")
+
+
+def _stem(word: str) -> str:
+    """A crude English stem: the word without one inflection or derivation ending
+    ("controlled" -> "controll" -> "control", "distribution" -> "distribut", "uses" ->
+    "us"), never shorter than three letters.  Enough to tell that two words are forms of
+    one, which is all the checks ask."""
+    for suffix in _SUFFIXES:
+        if word.endswith(suffix) and len(word) - len(suffix) >= 3:
+            word = word[: -len(suffix)]
+            break
+    if len(word) > 3 and word[-1] == word[-2] and word[-1] not in "aeiou":
+        word = word[:-1]  # "controll" -> "control"
+    return word
+
+
+def _overlaps(words: tuple[str, ...], names: Iterable[tuple[str, ...]]) -> bool:
+    """Is *words* part of one of *names*, or one of them part of it (word for word)?  A
+    phrase inside a defined name ("Source" of "Source Code", "Entitled" of "Entitled XYZ")
+    is a piece of that term; a phrase holding one ("Front-Cover Texts" holding "Cover Texts",
+    "Runtime Software" holding "Software") is built on it."""
+    for n in names:
+        short, long_ = (words, n) if len(words) <= len(n) else (n, words)
+        if any(long_[i:i + len(short)] == short for i in range(len(long_) - len(short) + 1)):
+            return True
+    return False
+
+
+def _uses_of(doc: Document, texts: _Texts, names: Mapping[str, str]) -> dict[str, list[_Use]]:
+    """Capitalised uses, anywhere in the prose, of the precedent's terms *names* (form ->
+    term) that *doc* does not define."""
+    out: dict[str, list[_Use]] = {}
+    matcher = term_matcher(list(dict.fromkeys(names.values())))
+    for prov, part, text in texts.parts:
+        if prov.kind in _NOT_PROSE:
+            continue
+        for u in find_term_uses(text, matcher):
+            mid = bool(_PREVIOUS_WORD_RE.search(text, max(0, u.start - 40), u.start))
+            out.setdefault(u.term, []).append(_Use(prov, part, u.start, u.end, text[u.start:u.end],
+                                                   common=mid))
+    return out
+
+
+def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iterable[str] = (),
                     document: str = "draft") -> tuple[Check, ...]:
     """The undefined-term checks of *doc* (see the module's notes).
 
     *defined* adds names that count as defined (the names of renamed terms, whose stale
-    uses another check reports); *foreign* maps the names another document (the precedent)
-    defines to how it defines them: a capitalised use of one that *doc* does not define is
-    reported whatever its shape."""
+    uses another check reports); *foreign* names the terms another document (the precedent)
+    defines: a capitalised use of one that *doc* does not define is reported whatever its
+    shape (in the middle of a sentence at least once, or a name of several words)."""
     texts = _Texts.of(doc)
-    own = [n for t in doc.terms for n in t.names] + list(defined)
+    own = [n for t in doc.terms for n in _written_names(t)] + list(defined)
     marked = _marked_names(t for _p, _k, t in texts.parts)
-    own_forms = _name_forms(own) | _name_forms(marked)
+    known = {_word_key(n) for n in [*own, *marked] if n.strip()}
+    out: list[Check] = []
+    own_keys = {_word_key(n) for n in own}
+    missing = {n: n for n in foreign if _word_key(n) not in own_keys and n[:1].isupper()
+               and n not in _FUNCTION_WORDS_CAPITALISED}
+    reported: set[tuple[str, ...]] = set()
+    for term, uses in _uses_of(doc, texts, missing).items():
+        if any(u.common for u in uses) or " " in term:
+            out.append(_undefined_check(uses, document=document, term=term,
+                                        why="is defined in the precedent but not in this document"))
+            reported.add(_word_key(term))
+    if not _english(texts):
+        return tuple(out)
     lower = _lower_words(t for _p, _k, t in texts.parts)
-    found: dict[str, list[_Use]] = {}
-    foreign_forms = {f: n for n in (foreign or {}) for f in _name_forms([n])}
-    for use in _candidate_uses(texts, _names_pattern([*own, *marked])):
-        key = use.phrase.casefold()
-        if key in own_forms:
-            continue
-        if key in foreign_forms:
-            found.setdefault(key, []).append(use)
-            continue
-        if _excluded(use.phrase):
+    found: dict[tuple[str, ...], list[_Use]] = {}
+    for use in _candidate_uses(texts):
+        key = _word_key(use.phrase)
+        if key in reported or _overlaps(key, known) or _excluded(use.phrase):
             continue
         found.setdefault(key, []).append(use)
-    # Uses at the start of a sentence of a term the precedent defines count too.
-    out: list[Check] = []
     for key, uses in found.items():
-        first = uses[0]
-        name = foreign_forms.get(key)
-        if name is None:
-            if not _common_noun(first.phrase, lower) and not any(
-                    u.determiner in _COMMON_DETERMINERS for u in uses):
-                continue
-            why = "is capitalised like a defined term but defined nowhere in the document"
-        else:
-            why = "is defined in the precedent but not in this document"
-        n_prov = len({u.provision.id for u in uses})
-        where = f"; used in {n_prov} provisions" if n_prov > 1 else ""
-        out.append(Check(
-            kind="undefined-term", document=document, provision=first.provision.id,
-            text=first.provision.text[first.start:first.end] if first.part == "text" else first.phrase,
-            message=f'"{first.phrase}" {why}{where}', span=(first.start, first.end), part=first.part,
-            term=first.phrase,
-            provisions=tuple(dict.fromkeys(u.provision.id for u in uses[1:] if u.provision.id != first.provision.id))))
+        if all(u.attributive for u in uses):
+            continue
+        if not (_common_noun(uses[0].phrase, lower) or any(u.common for u in uses)):
+            continue
+        out.append(_undefined_check(uses, document=document, term=uses[0].phrase,
+                                    why="is capitalised like a defined term but defined nowhere in the document"))
     return tuple(out)
+
+
+def _undefined_check(uses: Sequence[_Use], *, document: str, term: str, why: str) -> Check:
+    first = uses[0]
+    n_prov = len({u.provision.id for u in uses})
+    where = f"; used in {n_prov} provisions" if n_prov > 1 else ""
+    text = (first.provision.text if first.part == "text" else first.provision.heading or "")[first.start:first.end]
+    return Check(kind="undefined-term", document=document, provision=first.provision.id, text=text,
+                 message=f'"{term}" {why}{where}', span=(first.start, first.end), part=first.part, term=term,
+                 provisions=tuple(dict.fromkeys(u.provision.id for u in uses[1:]
+                                                if u.provision.id != first.provision.id)))
 
 
 # --------------------------------------------------------------------------------------
@@ -745,7 +909,7 @@ def dangling_references(doc: Document, *, document: str = "draft") -> tuple[Chec
 
 
 def document_checks(doc: Document, *, document: str = "draft", defined: Iterable[str] = (),
-                    foreign: Mapping[str, str] | None = None) -> tuple[Check, ...]:
+                    foreign: Iterable[str] = ()) -> tuple[Check, ...]:
     """The checks one document allows on its own: undefined terms, unused definitions and
     dangling references (*defined* and *foreign* as for :func:`undefined_terms`)."""
     return (*undefined_terms(doc, defined=defined, foreign=foreign, document=document),
@@ -782,14 +946,17 @@ def stale_terms(review: Review) -> tuple[Check, ...]:
 
 def definitions_changed(review: Review) -> tuple[Check, ...]:
     """Definitions of the draft whose words changed in substance against the precedent."""
+    from .docinfo import build_docinfo
+
     draft, precedent = review.draft, review.precedent
     p_terms = {t.term: t for t in precedent.terms}
     to_precedent = {m.draft: m.precedent for m in review.term_map}
+    parties = build_docinfo(draft).party_labels | build_docinfo(precedent).party_labels
     out: list[Check] = []
     for t in draft.terms:
         pt = p_terms.get(to_precedent.get(t.term, t.term))
-        if pt is None:
-            continue
+        if pt is None or t.term in parties or pt.term in parties:
+            continue  # a party's label names whoever signs: a new party is no new meaning
         d_pid, d_span = _definition_area(draft, t)
         p_pid, p_span = _definition_area(precedent, pt)
         devs = [v for v in review.deviations
@@ -838,7 +1005,7 @@ def review_checks(review: Review) -> tuple[Check, ...]:
     """Every drafting check of *review*'s draft, in :data:`CHECK_KINDS` order, each kind in
     document order."""
     renamed = [n for m in review.term_map for n in (m.draft, m.precedent)]
-    foreign = {n: t.definition for t in review.precedent.terms for n in t.names}
+    foreign = [t.term for t in review.precedent.terms]
     checks = [*document_checks(review.draft, defined=renamed, foreign=foreign),
               *stale_terms(review), *definitions_changed(review)]
     position = {p.id: i for i, p in enumerate(review.draft.provisions)}

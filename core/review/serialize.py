@@ -9,7 +9,9 @@ Exactly this shape (``resources/schemas/review.schema.json`` is its JSON Schema)
      "pairs": [{"draft", "precedent", "status", "similarity", "frequency"}],
      "deviations": [{"id", "rank", "severity", "category", "change", "draft_provision",
                      "precedent_provision", "precedent_text", "draft_text", "reasons",
-                     "frequency", "precedent_text_span", "draft_text_span"}]}
+                     "frequency", "precedent_text_span", "draft_text_span"}],
+     "checks": [{"kind", "document", "provision", "text", "message", "span", "part", "term",
+                 "provisions"}]}
 
 ``frequency`` (of a pair and of a deviation) is null until the precedent set fills it
 (:mod:`core.library`).
@@ -20,9 +22,10 @@ from __future__ import annotations
 from typing import Any
 
 from ..model import Deviation, Frequency, Review
+from .checks import Check
 from ..serialize import document_to_dict
 
-__all__ = ["REVIEW_SCHEMA_ID", "frequency_to_dict", "review_to_dict"]
+__all__ = ["REVIEW_SCHEMA_ID", "check_to_dict", "frequency_to_dict", "review_to_dict"]
 
 REVIEW_SCHEMA_ID = "counterdraft.review/1"
 
@@ -59,6 +62,21 @@ def _deviation(v: Deviation) -> dict[str, Any]:
     }
 
 
+def check_to_dict(c: Check) -> dict[str, Any]:
+    """The JSON object of one drafting check."""
+    return {
+        "kind": c.kind,
+        "document": c.document,
+        "provision": c.provision,
+        "text": c.text,
+        "message": c.message,
+        "span": list(c.span) if c.span else None,
+        "part": c.part,
+        "term": c.term,
+        "provisions": list(c.provisions),
+    }
+
+
 def review_to_dict(review: Review) -> dict[str, Any]:
     """The JSON-ready ``counterdraft.review/1`` object of *review*."""
     return {
@@ -77,4 +95,5 @@ def review_to_dict(review: Review) -> dict[str, Any]:
             for p in review.pairs
         ],
         "deviations": [_deviation(v) for v in review.deviations],
+        "checks": [check_to_dict(c) for c in review.checks],
     }
