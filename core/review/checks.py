@@ -63,6 +63,7 @@ __all__ = [
     "CHECK_DOCUMENTS",
     "CHECK_KINDS",
     "CHECK_TITLES",
+    "CHECKS_HEADING",
     "Check",
     "MAX_TERM_WORDS",
     "TITLE_LINE_SHARE",
@@ -74,6 +75,8 @@ __all__ = [
 CHECK_KINDS: tuple[str, ...] = ("undefined-term", "unused-definition", "stale-term",
                                 "dangling-reference", "definition-changed")
 CHECK_DOCUMENTS: tuple[str, ...] = ("draft", "precedent")
+#: How the outputs head the checks (the review table, the window, the issues list).
+CHECKS_HEADING = "Drafting checks"
 #: How the outputs name each kind (the trade's own words).
 CHECK_TITLES: dict[str, str] = {
     "undefined-term": "Undefined term",

@@ -17,7 +17,7 @@ from .. import CAUTION
 from ..console import DEFAULT_WIDTH, terminal_width
 from ..labels import check_label, clause_label
 from ..model import Deviation, Review
-from .checks import CHECK_KINDS, CHECK_TITLES
+from .checks import CHECK_KINDS, CHECK_TITLES, CHECKS_HEADING
 
 __all__ = [
     "CHECKS_HEADING", "DEFAULT_WIDTH", "NUMBER_HEADING", "PAST_USE_HEADING", "SHOW_CHOICES", "check_lines",
@@ -141,10 +141,6 @@ def format_review(review: Review, *, show: str | None = None, width: int | None 
     lines.extend(check_lines(review, width=width))
     lines.extend(textwrap.wrap(CAUTION, width))
     return "\n".join(lines)
-
-
-#: Heading of the drafting checks after the table (and in the window and the issues list).
-CHECKS_HEADING = "Drafting checks"
 
 
 def check_lines(review: Review, *, width: int) -> list[str]:
