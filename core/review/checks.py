@@ -132,6 +132,10 @@ EXCERPT_MIN_MISSING = 5
 EXCERPT_SHARE = 1 / 3
 #: Missing numbers named in the summary of an excerpt.
 EXCERPT_NUMBERS_SHOWN = 8
+#: A capitalised word never written in lower case that the document capitalises in this
+#: many different phrases (or alone) names a company, a product or a place.  Two: one
+#: phrase is a term of its own; a word heading several is a name.
+BRAND_MIN_PHRASES = 2
 #: Longest abbreviation read as one ("COPPA", "DFARS"): a longer word in capitals is a
 #: name, not initials.
 ABBREVIATION_MAX_LETTERS = 6
@@ -180,6 +184,11 @@ _PREVIOUS_WORD_RE = re.compile(r"(?P<word>[A-Za-z]+)(?:[ \t]+|[ \t]*\n[ \t]*)$")
 #: Determiners that go with a common noun, never with a proper name: "any Service Credits",
 #: "each Contributor" (whereas "the" goes with both: "the United States").
 _COMMON_DETERMINERS = frozenset("a an any each every such no another all other these those".split())
+#: Any determiner: the phrase after it is a noun phrase.
+_DETERMINERS = _COMMON_DETERMINERS | frozenset("the this that its their your our his her my".split())
+#: Endings of common nouns ("Deliverables", "Payments", "Contributors"): a single
+#: capitalised word with one, after a determiner, reads as a defined term.
+_COMMON_NOUN_END_RE = re.compile(r"(?:ables?|ibles?|ments?|tions?|sions?|ances?|ences?|ity|ities|ees|ors|ings)$")
 #: Closed classes of capitalised words that are no defined terms.
 _CALENDAR = frozenset(
     "January February March April May June July August September October November December "
@@ -368,6 +377,8 @@ class _Use:
     common: bool = False
     #: Followed by a content word it qualifies ("Places listings", "Microsoft URL").
     attributive: bool = False
+    #: After any determiner ("the", "each", "its", ...): used as a noun phrase.
+    determined: bool = False
 
 
 def _run_in_heading_end(line: str) -> int:
@@ -443,7 +454,7 @@ def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: str, offset
         last = k == len(pieces) - 1
         out.append(_Use(prov, part, a, b, phrase,
                         common=determiner in _COMMON_DETERMINERS and not (last and attributive),
-                        attributive=last and attributive))
+                        attributive=last and attributive, determined=determiner in _DETERMINERS))
         determiner = None
     return out
 
@@ -565,14 +576,35 @@ def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iter
         if key in reported or _overlaps(key, known) or _excluded(use.phrase):
             continue
         found.setdefault(key, []).append(use)
+    brand = _brand_words(texts, lower)
     for key, uses in found.items():
-        if all(u.attributive for u in uses):
-            continue
-        if not (_common_noun(uses[0].phrase, lower) or any(u.common for u in uses)):
+        words = [w for w in uses[0].phrase.split() if w[:1].isupper()]
+        if any(w in brand for w in words):
+            continue  # "the Java Platform": "Java" names a product elsewhere in the document
+        determined = any(u.determined for u in uses)
+        if not ((len(words) > 1 and determined)
+                or (determined and _COMMON_NOUN_END_RE.search(words[0]))
+                or (not all(u.attributive for u in uses)
+                    and (_common_noun(uses[0].phrase, lower) or any(u.common for u in uses)))):
             continue
         out.append(_undefined_check(uses, document=document, term=uses[0].phrase,
                                     why="is capitalised like a defined term but defined nowhere in the document"))
     return tuple(out)
+
+
+def _brand_words(texts: _Texts, lower: set[str]) -> frozenset[str]:
+    """Capitalised words that name something (a company, a product, a place): never
+    written in lower case in the document, and capitalised in at least two different
+    phrases or alone ("Java" of "the Java Platform", "Java technology", "Java SE")."""
+    contexts: dict[str, set[str]] = {}
+    for _p, _k, t in texts.parts:
+        for m in _PHRASE_RE.finditer(t):
+            run = m.group("phrase")
+            for w in run.split():
+                if w[:1].isupper():
+                    contexts.setdefault(w, set()).add(run)
+    return frozenset(w for w, runs in contexts.items()
+                     if len(runs) >= BRAND_MIN_PHRASES and not (_singulars(w.lower()) | {w.lower()}) & lower)
 
 
 def _undefined_check(uses: Sequence[_Use], *, document: str, term: str, why: str) -> Check:
@@ -949,16 +981,13 @@ def stale_terms(review: Review) -> tuple[Check, ...]:
 
 def definitions_changed(review: Review) -> tuple[Check, ...]:
     """Definitions of the draft whose words changed in substance against the precedent."""
-    from .docinfo import build_docinfo
-
     draft, precedent = review.draft, review.precedent
     p_terms = {t.term: t for t in precedent.terms}
     to_precedent = {m.draft: m.precedent for m in review.term_map}
-    parties = build_docinfo(draft).party_labels | build_docinfo(precedent).party_labels
     out: list[Check] = []
     for t in draft.terms:
         pt = p_terms.get(to_precedent.get(t.term, t.term))
-        if pt is None or t.term in parties or pt.term in parties:
+        if pt is None or _in_parties(draft, t) or _in_parties(precedent, pt):
             continue  # a party's label names whoever signs: a new party is no new meaning
         d_pid, d_span = _definition_area(draft, t)
         p_pid, p_span = _definition_area(precedent, pt)
@@ -979,6 +1008,12 @@ def definitions_changed(review: Review) -> tuple[Check, ...]:
             message=(f'the definition of "{t.term}" changed (No. {ranks}): '
                      f'{n} provision{"s" * (n != 1)} use{"s" * (n == 1)} the term')))
     return tuple(out)
+
+
+def _in_parties(doc: Document, t: DefinedTerm) -> bool:
+    """Is *t* a party's label defined in the parties block ("Acme Ltd (the "Supplier")")?"""
+    prov = next((p for p in doc.provisions if p.id == t.provision), None)
+    return prov is not None and prov.kind == "parties"
 
 
 def _inside(span: tuple[int, int] | None, area: tuple[int, int] | None) -> bool:
