@@ -989,8 +989,8 @@ def definitions_changed(review: Review) -> tuple[Check, ...]:
         pt = p_terms.get(to_precedent.get(t.term, t.term))
         if pt is None or _in_parties(draft, t) or _in_parties(precedent, pt):
             continue  # a party's label names whoever signs: a new party is no new meaning
-        d_pid, d_span = _definition_area(draft, t)
-        p_pid, p_span = _definition_area(precedent, pt)
+        d_pid, d_span = _sentence_area(draft, *_definition_area(draft, t))
+        p_pid, p_span = _sentence_area(precedent, *_definition_area(precedent, pt))
         devs = [v for v in review.deviations
                 if v.category == "substantive" and v.part == "text"
                 and v.draft_provision == d_pid and v.precedent_provision == p_pid
@@ -1008,6 +1008,22 @@ def definitions_changed(review: Review) -> tuple[Check, ...]:
             message=(f'the definition of "{t.term}" changed (No. {ranks}): '
                      f'{n} provision{"s" * (n != 1)} use{"s" * (n == 1)} the term')))
     return tuple(out)
+
+
+_SENTENCE_END_RE = re.compile(r"[.;](?=\s|$)")
+
+
+def _sentence_area(doc: Document, pid: str, span: tuple[int, int] | None) -> tuple[str, tuple[int, int] | None]:
+    """*span* widened to the end of its sentence, over line breaks (the term finder's
+    sentence stops at a line break, which a paragraph wrapped in a text file has anywhere)."""
+    if span is None:
+        return pid, None
+    try:
+        text = doc.provision(pid).text
+    except KeyError:
+        return pid, span
+    m = _SENTENCE_END_RE.search(text, max(span[1] - 1, span[0]))
+    return pid, (span[0], m.end() if m else len(text))
 
 
 def _in_parties(doc: Document, t: DefinedTerm) -> bool:

@@ -187,19 +187,30 @@ def plant_dangling_reference(text: str) -> Plant | None:
                  f"reference to {keyword} {number} added to the paragraph at offset {at[0]}")
 
 
+def _definition_end(text: str, t: DefinedTerm) -> int | None:
+    """Where the sentence defining *t* ends in *text* (before its full stop or semicolon),
+    found from the definition the reader took."""
+    words = t.definition.rstrip("\u2026").split()[:12]
+    if len(words) < 4:
+        return None
+    m = re.search(r"\s+".join(re.escape(w) for w in words), text)
+    if m is None:
+        return None
+    end = re.compile(r"[.;](?=\s|$)").search(text, m.end() - 1)
+    return end.start() if end is not None else None
+
+
 def plant_changed_definition(text: str) -> Plant | None:
-    """A definition paragraph whose meaning is narrowed: words added before its full stop."""
+    """A definition used elsewhere whose meaning is narrowed: words added at the end of the
+    sentence that defines it."""
     doc = read_text(text)
     for t in sorted(_definitions(doc), key=lambda t: -t.uses):
         if t.uses < 2:
             continue
-        at = _definition_paragraph(text, t)
-        if at is None:
-            continue
-        para = text[at[0]:at[1]].rstrip()
-        end = at[0] + len(para) - (1 if para.endswith((".", ";")) else 0)
-        return Plant("definition-changed", text[:end] + ", but only while held in escrow" + text[end:],
-                     t.term, f'definition of "{t.term}" narrowed')
+        end = _definition_end(text, t)
+        if end is not None:
+            return Plant("definition-changed", text[:end] + ", but only while held in escrow" + text[end:],
+                         t.term, f'definition of "{t.term}" narrowed')
     return None
 
 
