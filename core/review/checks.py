@@ -255,6 +255,9 @@ _BY_REFERENCE_RE = re.compile(
     r"|\b(?:has|have)\s+the\s+meanings?\s+(?:given|set\s+out|ascribed|assigned)\s+"
     r"(?:to\s+(?:it|them)\s+)?(?:in|under|by)\s+(?!this\b|clause|section|paragraph|schedule)",
     re.IGNORECASE)
+#: "For purposes of the EPL, "Program" will mean ...": a term of another instrument.
+_OTHER_INSTRUMENT_TERM_RE = re.compile(
+    r"\b[Ff]or\s+(?:the\s+)?purposes?\s+of\s+(?:the\s+)?(?!this\b|these\b|This\b)(?P<name>[A-Z][\w-]*)")
 #: Provision kinds whose words are no prose to check: a title, signature blocks.
 _NOT_PROSE = frozenset({"title", "signature"})
 
@@ -510,7 +513,7 @@ def _stem(word: str) -> str:
     "us"), never shorter than three letters.  Enough to tell that two words are forms of
     one, which is all the checks ask."""
     for suffix in _SUFFIXES:
-        if word.endswith(suffix) and len(word) - len(suffix) >= 3:
+        if word.endswith(suffix) and len(word) - len(suffix) >= (2 if suffix == "s" else 3):
             word = word[: -len(suffix)]
             break
     if len(word) > 3 and word[-1] == word[-2] and word[-1] not in "aeiou":
@@ -681,7 +684,7 @@ def unused_definitions(doc: Document, *, document: str = "draft") -> tuple[Check
     out = []
     for t in doc.terms:
         if (t.term in used or not t.term[:1].isupper() or _BY_REFERENCE_RE.search(t.definition or "")
-                or _NOT_A_NAME_RE.search(t.term) or _abbreviation(t, doc)):
+                or _NOT_A_NAME_RE.search(t.term) or _abbreviation(t, doc) or _other_instrument_term(t)):
             continue
         pid, span = areas[t.term]
         try:
@@ -719,6 +722,13 @@ def _written_names(t: DefinedTerm) -> list[str]:
         out.append(n)
         out.extend(p for p in _NAME_PARTS_RE.split(n) if p and p.strip() and p != n)
     return out
+
+
+def _other_instrument_term(t: DefinedTerm) -> bool:
+    """Is *t* defined for another instrument ("For purposes of the EPL, "Program" will
+    mean the Content")?  It is that instrument's term, not one this document must use."""
+    m = _OTHER_INSTRUMENT_TERM_RE.search(t.definition or "")
+    return m is not None and m.group("name") not in _SELF_WORDS
 
 
 def _abbreviation(t: DefinedTerm, doc: Document) -> bool:
