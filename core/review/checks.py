@@ -158,6 +158,7 @@ MAX_RUN_IN_WORDS = 12
 _AFTER_RE = re.compile(r"[ \t]*\n?[ \t]*(?P<next>[A-Za-z0-9(©]+)")
 #: A designation after a phrase makes it a label, not a term: "Product X", "Exhibit 2".
 _DESIGNATION_RE = re.compile(r"^(?:[A-Z]|\d+|[IVX]+)$")
+_ABBREVIATED_RE = re.compile(r"\s*\(\s*(?:the\s+)?[\"“'‘]?[A-Z][A-Z0-9&.-]+[\"”'’]?\s*\)")
 _NOTICE_RE = re.compile(r"[ \t]*(?:\(c\)|©|\d{4})", re.IGNORECASE)
 #: Function words: a capitalised one is no term ("This License", "Your use"): articles,
 #: pronouns, prepositions, conjunctions, auxiliaries (common practice, no source).
@@ -207,7 +208,7 @@ _INSTRUMENT_WORDS = frozenset(
     "Conditions Policy Policies Addendum Amendment Amendments Guidelines Requirements Rules "
     "Act Acts Regulation Regulations Directive Directives Convention Conventions Treaty "
     "Treaties Statute Statutes Ordinance Constitution Protocol Charter Declaration Notice List "
-    "Covenant Covenants Agreement's License's Licence's".split())
+    "Covenant Covenants Standard Standards Principles Framework Agreement's License's Licence's".split())
 #: A document's names for itself: "of the Agreement" is this document.
 _SELF_WORDS = frozenset("Agreement Contract Deed License Licence Terms Conditions".split())
 #: First words of an instrument's title: "Terms of Service", "Rules of Arbitration".
@@ -224,6 +225,19 @@ _BODY_WORDS = frozenset(
     "Inc's".split())
 #: Words that make a run of capitalised words, however parted by "and", a title.
 _TITLE_WORDS = _INSTRUMENT_WORDS | _BODY_WORDS
+#: Words that make a phrase a proper name wherever they stand in it: regions and
+#: nationalities ("the Middle East", "the Australian Consumer Law"), titles of the Crown
+#: ("Her Majesty the Queen") and words of public bodies' names ("the Federal Register",
+#: "the National Archives").  From memory, common practice, no source.
+_NAME_CUES = frozenset(
+    "East West North South Southeast Southwest Northeast Northwest Middle Central Eastern Western "
+    "Northern Southern Asian European American African Australian Canadian British English French "
+    "German Japanese Chinese Korean Indian Irish Scottish Welsh Dutch Swiss Nordic Pacific Atlantic "
+    "Majesty Queen King Crown Royal Prince Princess Federal National International Universal "
+    "Uniform".split())
+#: Words after which a capitalised phrase is a title quoted, not a term used: "the Sections
+#: entitled Restrictions".
+_TITLE_CUE_WORDS = frozenset("entitled titled called named headed captioned".split())
 #: Common nouns that English style capitalises by convention.
 _CONVENTION_WORDS = frozenset("Internet Web Earth God".split())
 
@@ -238,7 +252,8 @@ _PAREN_NAME_RE = re.compile(
 #: drafter points to a definition.
 _AS_DEFINED_NAME_RE = re.compile(
     r"(?P<name>" + _CAP_WORD + r"(?:\s+(?:" + _JOINERS + r"\s+)?" + _CAP_WORD + r"){0,4})"
-    r"['’]?s?\s*,?\s*\(?\s*(?:as\s+)?(?:is\s+|are\s+)?(?:defined|described|set\s+(?:forth|out))\b")
+    r"['’]?s?\s*,?\s*\(?\s*(?:as\s+(?:such\s+|that\s+|the\s+|those\s+)?(?:terms?\s+)?)?(?:is\s+|are\s+)?"
+    r"(?:defined|described|set\s+(?:forth|out))\b")
 #: A glossary line: a title-case name, then a colon or a dash ("Participation Obligation -
 #: a licensing obligation ...").
 _GLOSSARY_NAME_RE = re.compile(
@@ -433,6 +448,8 @@ def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: str, offset
         return []  # "Product X", "Schedule 2", "Copyright (C) 2002"
     if before.group("word") == "to" and nxt.lower() in _FUNCTION_WORDS and " " not in run:
         return []  # a verb: "to Use the Software"
+    if before.group("word") in _TITLE_CUE_WORDS or _ABBREVIATED_RE.match(line, m.end()):
+        return []  # a title quoted ("entitled Restrictions"), a name abbreviated ("Defense ("DFARS")")
     attributive = bool(nxt) and nxt[0].isalpha() and nxt.lower() not in _FUNCTION_WORDS
     out: list[_Use] = []
     cuts = [0, *(x for sep in _SPLIT_RE.finditer(run) for x in (sep.start(), sep.end())), len(run)]
@@ -475,7 +492,7 @@ def _excluded(phrase: str) -> bool:
     """Is *phrase* a closed-class word or a name that is no defined term?"""
     words = phrase.split()
     caps = [w for w in words if w[:1].isupper()]
-    if any(w in _CALENDAR for w in caps) or any(w in _CONVENTION_WORDS for w in caps):
+    if any(w in _CALENDAR or w in _CONVENTION_WORDS or w in _NAME_CUES for w in caps):
         return True
     if words[0] in _SECTION_WORDS and len(words) == 1:
         return True
