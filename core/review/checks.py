@@ -152,13 +152,16 @@ _PHRASE_RE = re.compile(
 _SPLIT_RE = re.compile(r"\s+(?:and|or|&)\s+")
 _HONORIFICS = frozenset("Mr Mrs Ms Dr Prof Sir Dame Lord Lady St".split())
 #: A run-in heading: title-case words at the start of a line, up to a full stop or colon.
-_RUN_IN_RE = re.compile(r"[ \t]*(?P<words>[A-Z][^.:;!?\n]{0,120}?)[.:][ \t]+(?=\S)")
+_RUN_IN_RE = re.compile(r"[ \t]*(?P<words>[A-Z][^.:!?\n\u2013\u2014]{0,120}?)(?:[.:]|[ \t][\u2013\u2014-])[ \t]+(?=\S)")
 #: Longest run-in heading (words): "Warranty of Provenance and Disclaimer of Warranty".
 MAX_RUN_IN_WORDS = 12
 _AFTER_RE = re.compile(r"[ \t]*\n?[ \t]*(?P<next>[A-Za-z0-9(©]+)")
 #: A designation after a phrase makes it a label, not a term: "Product X", "Exhibit 2".
 _DESIGNATION_RE = re.compile(r"^(?:[A-Z]|\d+|[IVX]+)$")
 _ABBREVIATED_RE = re.compile(r"\s*\(\s*(?:the\s+)?[\"“'‘]?[A-Z][A-Z0-9&.-]+[\"”'’]?\s*\)")
+#: Words that follow a noun without being its head: "the Service Credits payable", "the
+#: Fees due", "the Products described" (adjectives and participles).
+_POSTPOSITIVE_RE = re.compile(r"(?:able|ible|ed|ing|due|thereof|hereunder|herein)$")
 _NOTICE_RE = re.compile(r"[ \t]*(?:\(c\)|©|\d{4})", re.IGNORECASE)
 #: Function words: a capitalised one is no term ("This License", "Your use"): articles,
 #: pronouns, prepositions, conjunctions, auxiliaries (common practice, no source).
@@ -169,7 +172,8 @@ _FUNCTION_WORDS = frozenset(
     "without within into onto upon under over between among about against through during before "
     "after above below and or nor but if unless whether than then so as not only also is are "
     "was were be been being has have had do does did shall will may must can could would should "
-    "might here there hereby herein hereof hereunder thereof therein where when while".split())
+    "might here there hereby herein hereof hereunder thereof therein where when while "
+    "notwithstanding except unless provided pursuant save subject".split())
 _FUNCTION_WORDS_CAPITALISED = frozenset(w.capitalize() for w in _FUNCTION_WORDS)
 #: Words frequent in any English text and rare in other languages: their share tells an
 #: English document (about a quarter of the words of an agreement; under 3 % of a German
@@ -208,7 +212,8 @@ _INSTRUMENT_WORDS = frozenset(
     "Conditions Policy Policies Addendum Amendment Amendments Guidelines Requirements Rules "
     "Act Acts Regulation Regulations Directive Directives Convention Conventions Treaty "
     "Treaties Statute Statutes Ordinance Constitution Protocol Charter Declaration Notice List "
-    "Covenant Covenants Standard Standards Principles Framework Agreement's License's Licence's".split())
+    "Covenant Covenants Standard Standards Principles Framework Statement Exception Definition "
+    "Agreement's License's Licence's".split())
 #: A document's names for itself: "of the Agreement" is this document.
 _SELF_WORDS = frozenset("Agreement Contract Deed License Licence Terms Conditions".split())
 #: First words of an instrument's title: "Terms of Service", "Rules of Arbitration".
@@ -221,7 +226,7 @@ _BODY_WORDS = frozenset(
     "Commission Committee Office Department Agency Bureau Ministry Court Courts Tribunal "
     "Government Parliament Congress Senate Republic Kingdom Empire States State Union Nations "
     "Organization Organisation Project Board Bank District County Province Commonwealth City "
-    "Territory Territories Region Area Community Communities Federation Authority Group "
+    "Territory Territories Region Area Community Communities Federation Authority Group Commons "
     "Inc's".split())
 #: Words that make a run of capitalised words, however parted by "and", a title.
 _TITLE_WORDS = _INSTRUMENT_WORDS | _BODY_WORDS
@@ -450,7 +455,8 @@ def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: str, offset
         return []  # a verb: "to Use the Software"
     if before.group("word") in _TITLE_CUE_WORDS or _ABBREVIATED_RE.match(line, m.end()):
         return []  # a title quoted ("entitled Restrictions"), a name abbreviated ("Defense ("DFARS")")
-    attributive = bool(nxt) and nxt[0].isalpha() and nxt.lower() not in _FUNCTION_WORDS
+    attributive = (bool(nxt) and nxt[0].isalpha() and nxt.lower() not in _FUNCTION_WORDS
+                   and not _POSTPOSITIVE_RE.search(nxt))
     out: list[_Use] = []
     cuts = [0, *(x for sep in _SPLIT_RE.finditer(run) for x in (sep.start(), sep.end())), len(run)]
     pieces = [(cuts[i], run[cuts[i]:cuts[i + 1]]) for i in range(0, len(cuts), 2)]
@@ -576,7 +582,7 @@ def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iter
     texts = _Texts.of(doc)
     own = [n for t in doc.terms for n in _written_names(t)] + list(defined)
     marked = _marked_names(t for _p, _k, t in texts.parts)
-    known = {_word_key(n) for n in [*own, *marked] if n.strip()}
+    known = {_word_key(m) for n in [*own, *marked] if n.strip() for m in (n, _DASH_RE.sub("", n))}
     out: list[Check] = []
     own_keys = {_word_key(n) for n in own}
     missing = {n: n for n in foreign if _word_key(n) not in own_keys and n[:1].isupper()
@@ -593,7 +599,8 @@ def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iter
     found: dict[tuple[str, ...], list[_Use]] = {}
     for use in _candidate_uses(texts):
         key = _word_key(use.phrase)
-        if key in reported or _overlaps(key, known) or _excluded(use.phrase):
+        joined = _word_key(_DASH_RE.sub("", use.phrase))
+        if key in reported or _overlaps(key, known) or _overlaps(joined, known) or _excluded(use.phrase):
             continue
         found.setdefault(key, []).append(use)
     brand = _brand_words(texts, lower)
@@ -602,10 +609,10 @@ def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iter
         if any(w in brand for w in words):
             continue  # "the Java Platform": "Java" names a product elsewhere in the document
         determined = any(u.determined for u in uses)
-        if not ((len(words) > 1 and determined)
+        if not ((len(words) > 1 and determined and not all(u.attributive for u in uses))
                 or (determined and _COMMON_NOUN_END_RE.search(words[0]))
                 or (not all(u.attributive for u in uses)
-                    and (_common_noun(uses[0].phrase, lower) or any(u.common for u in uses)))):
+                    and ((determined and _common_noun(uses[0].phrase, lower)) or any(u.common for u in uses)))):
             continue
         out.append(_undefined_check(uses, document=document, term=uses[0].phrase,
                                     why="is capitalised like a defined term but defined nowhere in the document"))
@@ -723,6 +730,7 @@ _OPTIONAL_ENDING_RE = re.compile(r"\((?:s|es|r)\)$")
 _NOT_A_NAME_RE = re.compile(r"[\[\]/{}<>=]")
 
 
+_INNER_HYPHEN_RE = re.compile(r"(?<=[a-z])-(?=[a-z])")
 _NAME_PARTS_RE = re.compile(r"\s+(?:or|and/or)\s+|\s*\(([^()]+)\)\s*$")
 
 
@@ -738,6 +746,8 @@ def _written_names(t: DefinedTerm) -> list[str]:
             continue
         out.append(n)
         out.extend(p for p in _NAME_PARTS_RE.split(n) if p and p.strip() and p != n)
+        if _INNER_HYPHEN_RE.search(n):
+            out.append(_INNER_HYPHEN_RE.sub("", n))  # "Recip-ient", hyphenated across a line
     return out
 
 
@@ -753,7 +763,8 @@ def _abbreviation(t: DefinedTerm, doc: Document) -> bool:
     ("FAA")")?  Introducing an abbreviation is a convention of style, not a defined term
     the agreement relies on, so an unused one is not reported."""
     term = t.term
-    if not (2 <= len(term) <= ABBREVIATION_MAX_LETTERS and term.isupper() and term.isalpha()):
+    letters = term[:-1] if term.endswith("s") else term  # "LLMs" for "Large Language Models"
+    if not (2 <= len(letters) <= ABBREVIATION_MAX_LETTERS and letters.isupper() and letters.isalpha()):
         return False
     try:
         text = doc.provision(t.provision).text
@@ -765,7 +776,7 @@ def _abbreviation(t: DefinedTerm, doc: Document) -> bool:
         return False
     initials = "".join(w[0] for w in _WORD_RE.findall(text[max(0, at - 120):at])[-12:]).upper()
     it = iter(initials)
-    return all(ch in it for ch in term)
+    return all(ch in it for ch in letters)
 
 
 def _verb_forms(name: str) -> list[str]:
