@@ -9,32 +9,49 @@ provision and the words concerned:
 
     * a term the *precedent* defines that the draft uses, capitalised, without defining it
       (the draft lost a definition, or borrowed a term of the house form);
-    * on the draft alone, a phrase with the shape of a defined term (see
-      :func:`undefined_terms`): capitalised in the middle of a sentence, written of a
-      common noun (the document writes each of its capitalised words in lower case
-      elsewhere, or uses it after "any", "each", "such" ...), and none of: a word starting
-      a sentence or a line, a heading or a title line, words in quotation marks, an acronym,
-      a name of a month or a day, a section word ("Section", "Schedule"), the document's
-      name for itself ("this Agreement"), the title of an instrument ("the Data Protection
-      Act"), the name of a body or place ("the Free Software Foundation"), a word that
-      English capitalises by convention ("Internet").  A term counts as defined in any of
-      its forms: singular or plural, any letter case, any of its aliases; and so does a
-      phrase the document puts in quotation marks anywhere, or names in a parenthesis
-      (``(the Licensor)``), since a reader takes either for a definition.
+    * on the draft alone (an English text), a phrase with the shape of a defined term:
+      capitalised in the middle of a sentence, and a noun phrase -- several capitalised
+      words after a determiner ("the Service Credits"), or one word after a determiner that
+      either ends like a common noun ("the Deliverables") or is written in lower case
+      elsewhere in the document ("the Software", "software"), or any phrase after a
+      determiner only common nouns take ("any", "each", "such").  Never: a word starting a
+      sentence, a line or a list item, a heading, a title line or a run-in heading, words
+      in quotation marks, an acronym, a month or a day, a section word ("Section",
+      "Schedule"), the document's name for itself ("this Agreement"), the title of an
+      instrument ("the Data Protection Act", "the Privacy Policy"), the name of a body or a
+      place ("the Free Software Foundation", "the Middle East"), a product named elsewhere
+      in the document ("the Java Platform": "Java" heads other names and is never written
+      in lower case), a title quoted after "entitled", a name being abbreviated ("Defense
+      ("DFARS")"), a word English capitalises by convention ("Internet").  A term counts as
+      defined in any of its forms: singular or plural, any letter case, another ending of
+      the same word ("Distributing" of "Distribute"), hyphenated across a line or not, any
+      of its aliases, inside a longer defined name or holding one ("Source" of "Source
+      Code", "Front-Cover Texts" of "Cover Texts"); and so does a phrase the document puts
+      in quotation marks anywhere, names in a parenthesis (``(the Licensor)``), after
+      "hereinafter" or "referred to as", in a glossary line, or follows with "(as defined
+      ...)", since a reader takes any of these for a definition.
 ``unused-definition``
-    A defined term that the document never uses outside its own definition (any of its
-    names, any letter case, plural and possessive forms included).  A term imported by
-    reference ("a "commercial item," as that term is defined in 48 C.F.R. 2.101") is a
-    statement about the agreement, not a definition to use, and is not checked.
+    A capitalised defined term that the document never uses outside its own definition (any
+    of its names, any letter case, plural, possessive and verb forms included).  Not
+    reported: a lower-case gloss in brackets (``("synching")``), an abbreviation of the words
+    before it (``the Federal Arbitration Act ("FAA")``), a term imported by reference ("a
+    "commercial item," as that term is defined in 48 C.F.R. 2.101", "have the same meaning
+    as under ..."), a term defined for another instrument ("For purposes of the EPL,
+    "Program" will mean ..."), and a word offered as an alternative to a quoted one
+    (``"DECLINE" (or "EXIT")``).
 ``stale-term``
     A use, in the draft, of the precedent's name of a renamed term (the term map counts
     them on :attr:`core.model.TermMapping.stale`; this check says where each one is).
 ``dangling-reference``
     A typed cross-reference (:func:`core.xrefs.find_references`) whose number names no
-    provision of the document (:func:`core.xrefs.resolve` says "missing").  Only absolute
-    numbers are checked ("Section 14.7", not "paragraph (c) above"), and only in a
-    numbering the document has: a reference to "Exhibit C" in a document with no exhibit
-    at all names an attachment sent separately, not a missing clause.
+    provision of the document (:func:`core.xrefs.resolve` says "missing"), and that the
+    document shows nowhere as a label in any style (a numbering read otherwise is no
+    alarm).  Only absolute numbers are checked ("Section 14.7", not "paragraph (c)
+    above"), only in a numbering the document has (a reference to "Exhibit C" in a
+    document with no exhibit at all names an attachment sent separately), and not when the
+    words around name another instrument ("section 1.13 of OPL.html", "Article 3, United
+    Nations Universal Declaration ...").  A document many of whose references are missing
+    is an excerpt: one check says so instead of one per reference.
 ``definition-changed``
     A definition whose words changed in substance between the precedent and the draft (a
     substantive deviation of the review inside the definition), which silently changes
@@ -708,7 +725,8 @@ def unused_definitions(doc: Document, *, document: str = "draft") -> tuple[Check
     out = []
     for t in doc.terms:
         if (t.term in used or not t.term[:1].isupper() or _BY_REFERENCE_RE.search(t.definition or "")
-                or _NOT_A_NAME_RE.search(t.term) or _abbreviation(t, doc) or _other_instrument_term(t)):
+                or _NOT_A_NAME_RE.search(t.term) or _abbreviation(t, doc) or _other_instrument_term(t)
+                or _alternative_word(t)):
             continue
         pid, span = areas[t.term]
         try:
@@ -749,6 +767,12 @@ def _written_names(t: DefinedTerm) -> list[str]:
         if _INNER_HYPHEN_RE.search(n):
             out.append(_INNER_HYPHEN_RE.sub("", n))  # "Recip-ient", hyphenated across a line
     return out
+
+
+def _alternative_word(t: DefinedTerm) -> bool:
+    """Is *t* only a word offered as an alternative to a quoted one ("select the "DECLINE"
+    (or "EXIT") button"), which a reader does not take for a definition?"""
+    return re.search(r"[\"”'’]\s*\((?:or|OR)\s+[\"“'‘]" + re.escape(t.term), t.definition or "") is not None
 
 
 def _other_instrument_term(t: DefinedTerm) -> bool:
