@@ -35,8 +35,13 @@ from pathlib import Path
 from .. import CAUTION, __version__
 from ..decisions import Decision
 from ..fileio import atomic_write_bytes, atomic_write_text
-from ..labels import check_label, clause_label, find_provision, full_number, provision_label
-from ..review.checks import CHECKS_HEADING
+from ..labels import (
+    check_label,
+    clause_label,
+    find_provision,
+    full_number,
+    provision_label,
+)
 from ..model import (
     CATEGORIES,
     Deviation,
@@ -45,6 +50,7 @@ from ..model import (
     Provision,
     Review,
 )
+from ..review.checks import CHECKS_HEADING
 from .common import (
     CAUTION_PROPERTY,
     check_output,
@@ -56,18 +62,18 @@ from .common import (
 
 __all__ = [
     "CHANGE_CONTEXT_WORDS",
+    "CHANGE_MAX_WORDS",
     "CHECK_COLUMNS",
     "CHECK_WIDTHS_CM",
-    "check_rows",
-    "CHANGE_MAX_WORDS",
-    "Excerpt",
     "ISSUES_DEFAULT_INCLUDE",
     "ISSUES_DEFAULT_ORDER",
     "ISSUE_COLUMNS",
     "ISSUE_CSV_COLUMNS",
     "ISSUE_ORDERS",
     "ISSUE_WIDTHS_CM",
+    "Excerpt",
     "IssueRow",
+    "check_rows",
     "clause_order",
     "issue_rows",
     "issues_list_csv",

@@ -77,16 +77,20 @@ from ..terms import term_forms
 from .tokens import find_term_uses, term_matcher
 
 __all__ = [
+    "CHECKS_HEADING",
     "CHECK_DOCUMENTS",
     "CHECK_KINDS",
     "CHECK_TITLES",
-    "CHECKS_HEADING",
-    "Check",
     "MAX_TERM_WORDS",
     "TITLE_LINE_SHARE",
+    "Check",
+    "dangling_references",
+    "definitions_changed",
     "document_checks",
     "review_checks",
+    "stale_terms",
     "undefined_terms",
+    "unused_definitions",
 ]
 
 CHECK_KINDS: tuple[str, ...] = ("undefined-term", "unused-definition", "stale-term",

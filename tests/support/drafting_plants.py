@@ -222,7 +222,7 @@ def plant_all(text: str) -> list[Plant]:
     return [p for p in (m(text) for m in makers) if p is not None]
 
 
-def found(plant: Plant, checks) -> bool:  # noqa: ANN001 - a sequence of core.review.checks.Check
+def found(plant: Plant, checks) -> bool:  # checks: core.review.checks.Check objects
     """Does one of *checks* report *plant*: a check of its kind naming its term or number?"""
     want = plant.expect.casefold()
     for c in checks:

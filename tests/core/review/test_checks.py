@@ -61,7 +61,7 @@ HOUSE = """
 """
 
 
-def _kinds(checks) -> list[tuple[str, str | None]]:  # noqa: ANN001
+def _kinds(checks) -> list[tuple[str, str | None]]:
     return [(c.kind, c.term) for c in checks]
 
 
@@ -145,7 +145,7 @@ PLANTED_KEYS = ("apache-2.0", "mpl-2.0", "epl-2.0", "sun-bcl-11-06", "cddl-1.0")
 @pytest.mark.parametrize("plant", [plant_undefined_term, plant_deleted_definition, plant_unused_definition,
                                    plant_stale_term, plant_dangling_reference, plant_changed_definition],
                          ids=lambda f: f.__name__)
-def test_planted_problem_is_found(key: str, plant) -> None:  # noqa: ANN001
+def test_planted_problem_is_found(key: str, plant) -> None:
     text = licence_text(key)  # licensedcode-data: <key>.LICENSE
     planted = plant(text)
     if planted is None:
