@@ -179,10 +179,13 @@ MAX_RUN_IN_WORDS = 12
 _AFTER_RE = re.compile(r"[ \t]*\n?[ \t]*(?P<next>[A-Za-z0-9(©]+)")
 #: A designation after a phrase makes it a label, not a term: "Product X", "Exhibit 2".
 _DESIGNATION_RE = re.compile(r"^(?:[A-Z]|\d+|[IVX]+)$")
+_TITLE_AFTER_RE = re.compile(
+    r",\s+(?:[A-Z][\w'’-]*\s+(?:(?:and|&|of|the)\s+)*){1,6}(?:Act|Acts|Regulations?|Code|Rules|Directive)\b")
 _ABBREVIATED_RE = re.compile(r"\s*\(\s*(?:the\s+)?[\"“'‘]?[A-Z][A-Z0-9&.-]+[\"”'’]?\s*\)")
 #: Words that follow a noun without being its head: "the Service Credits payable", "the
-#: Fees due", "the Products described" (adjectives and participles).
-_POSTPOSITIVE_RE = re.compile(r"(?:able|ible|ed|ing|due|thereof|hereunder|herein)$")
+#: Fees due" (a participle may go either way: "the Products described", "a Texas limited
+#: liability company", so it is read as a head).
+_POSTPOSITIVE_RE = re.compile(r"(?:able|ible|due|thereof|hereunder|herein)$")
 _NOTICE_RE = re.compile(r"[ \t]*(?:\(c\)|©|\d{4})", re.IGNORECASE)
 #: Function words: a capitalised one is no term ("This License", "Your use"): articles,
 #: pronouns, prepositions, conjunctions, auxiliaries (common practice, no source).
@@ -267,7 +270,7 @@ _TITLE_CUE_WORDS = frozenset("entitled titled called named headed captioned".spl
 #: Common nouns that English style capitalises by convention.
 _CONVENTION_WORDS = frozenset("Internet Web Earth God".split())
 
-_QUOTED_RE = re.compile(r"[\"“”„]([^\"“”„\n]{1,80})[\"“”]|‘([^‘’\n]{1,80})’|«\s?([^«»\n]{1,80}?)\s?»"
+_QUOTED_RE = re.compile(r"[\"“”„]([^\"“”„\n]{1,80}(?:\n[^\"“”„\n]{1,80})?)[\"“”]|‘([^‘’\n]{1,80})’|«\s?([^«»\n]{1,80}?)\s?»"
                         r"|(?<![\w'’])'([^'\n]{1,80})'(?![\w'])|``([^`'\n]{1,80})''")
 #: An unquoted name in a parenthesis after what it names: "(the Licensor)", "(Customer)".
 _PAREN_NAME_RE = re.compile(
@@ -470,6 +473,8 @@ def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: str, offset
         return []  # the start of a sentence, a line, a list item or a list of names
     after = _AFTER_RE.match(line, m.end())
     nxt = after.group("next") if after else ""
+    if _TITLE_AFTER_RE.match(line, m.end()):
+        return []  # one name of a title's list: "the Copyright, Designs and Patents Act 1988"
     if _DESIGNATION_RE.match(nxt) or (run.endswith("Copyright") and _NOTICE_RE.match(line, m.end())):
         return []  # "Product X", "Schedule 2", "Copyright (C) 2002"
     if before.group("word") == "to" and nxt.lower() in _FUNCTION_WORDS and " " not in run:
@@ -631,7 +636,7 @@ def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iter
             continue  # "the Java Platform": "Java" names a product elsewhere in the document
         determined = any(u.determined for u in uses)
         if not ((len(words) > 1 and determined and not all(u.attributive for u in uses))
-                or (determined and _COMMON_NOUN_END_RE.search(words[0]))
+                or (determined and _COMMON_NOUN_END_RE.search(words[0]) and not all(u.attributive for u in uses))
                 or (not all(u.attributive for u in uses)
                     and ((determined and _common_noun(uses[0].phrase, lower)) or any(u.common for u in uses)))):
             continue
