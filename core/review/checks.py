@@ -976,12 +976,14 @@ def dangling_references(doc: Document, *, document: str = "draft") -> tuple[Chec
     labels: _Labels | None = None
     out: list[Check] = []
     named: set[str] = set()
+    missing_numbers: list[str] = []
     for prov, part, text in _Texts.of(doc).parts:
         for ref in find_references(text):
             if ref.external or ref.scope not in (None, ("document", "")) or not numbered_in(ref, doc):
                 continue
             if _names_other_instrument(text, ref.start, ref.end) or _heading_label(text, ref.start, ref.end):
                 continue
+            lost: list[str] = []
             for r in resolve(ref, doc, within=prov):
                 n = r.number
                 if n.relative:
@@ -990,14 +992,18 @@ def dangling_references(doc: Document, *, document: str = "draft") -> tuple[Chec
                 if r.status != "missing":
                     continue
                 labels = labels or _Labels.of(doc)
-                if labels.shows(n.number):
-                    continue
+                if not labels.shows(n.number):
+                    lost.append(n.number)
+            if lost:
                 words = text[ref.start:ref.end]
+                which = f"{ref.keyword} {lost[0]}" if len(lost) == 1 else \
+                    f"{ref.keyword}s {', '.join(lost[:-1])} and {lost[-1]}"
                 out.append(Check(
                     kind="dangling-reference", document=document, provision=prov.id,
-                    text=words, part=part, span=(ref.start, ref.end), term=n.number,
-                    message=f'"{words}" refers to {ref.keyword} {n.number}, which the document does not have'))
-    missing = list(dict.fromkeys(c.term or "" for c in out))
+                    text=words, part=part, span=(ref.start, ref.end), term=lost[0],
+                    message=f'"{words}" refers to {which}, which the document does not have'))
+                missing_numbers.extend(lost)
+    missing = list(dict.fromkeys(missing_numbers))
     if len(missing) >= EXCERPT_MIN_MISSING and len(missing) >= EXCERPT_SHARE * len(named):
         shown = ", ".join(missing[:EXCERPT_NUMBERS_SHOWN]) + (", ..." if len(missing) > EXCERPT_NUMBERS_SHOWN else "")
         return (Check(
