@@ -22,6 +22,7 @@ Review file layout::
      "overrides": [{"draft": "Client", "precedent": "Customer", "action": "confirm"}],
      "term_map":  [...as in counterdraft.review/1...],
      "deviations": [...as in counterdraft.review/1...],
+     "checks":    [...as in counterdraft.review/1 (recomputed on reopening)...],
      "decisions": [{"deviation": "v3", "action": "revert", "text": null, "note": "...",
                     "match": {"change": "replace", "category": "substantive",
                               "draft_provision": "p12", "precedent_provision": "p10",
@@ -360,6 +361,7 @@ def review_file_to_dict(rf: ReviewFile, *, folder: str | os.PathLike[str] = ".")
         "overrides": [_override_to_dict(o) for o in rf.overrides],
         "term_map": rd.get("term_map", []),
         "deviations": rd.get("deviations", []),
+        "checks": rd.get("checks", []),
         "decisions": [
             {"deviation": d.deviation, "action": d.action, "text": d.text, "note": d.note,
              "match": dict(d.match)}

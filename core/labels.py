@@ -20,10 +20,14 @@ parent chain, bounded by :data:`MAX_DEPTH`).
 from __future__ import annotations
 
 import re
+from typing import TYPE_CHECKING
 
 from .model import Deviation, Document, Provision, Review
 
-__all__ = ["MAX_DEPTH", "clause_label", "find_provision", "full_number", "provision_label"]
+if TYPE_CHECKING:
+    from .review.checks import Check
+
+__all__ = ["MAX_DEPTH", "check_label", "clause_label", "find_provision", "full_number", "provision_label"]
 
 #: Deepest parent chain walked for a number or a heading (agreements nest a handful of
 #: levels; the bound only guards against a malformed parent cycle).
@@ -118,3 +122,14 @@ def clause_label(review: Review, deviation: Deviation, *, compact: bool = False)
         if pn and pn != dn:
             label += f" (precedent {pn})"
     return label
+
+
+def check_label(review: Review, check: Check, *, compact: bool = False) -> str:
+    """The clause a drafting check concerns, by its document's numbering (the precedent's
+    marked "(precedent)"); "Whole document" when the check names no provision."""
+    doc = review.draft if check.document == "draft" else review.precedent
+    prov = find_provision(doc, check.provision)
+    if prov is None:
+        return "Whole document"
+    label = provision_label(prov, doc=doc, compact=compact)
+    return label if check.document == "draft" else f"{label} (precedent)"

@@ -57,7 +57,10 @@ never recompute them)
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Literal
+from typing import TYPE_CHECKING, Literal
+
+if TYPE_CHECKING:
+    from .review.checks import Check
 
 __all__ = [
     "Block",
@@ -322,3 +325,6 @@ class Review:
     #: The precedent's defined term for the party the reviewer acts for ("Supplier"), or
     #: None: then every deviation's direction is "unclear".
     acting_for: str | None = None
+    #: The drafting checks of the draft (:mod:`core.review.checks`): undefined terms, unused
+    #: definitions, stale names of renamed terms, dangling references, changed definitions.
+    checks: tuple[Check, ...] = ()

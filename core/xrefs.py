@@ -75,6 +75,7 @@ __all__ = [
     "Resolution",
     "Translation",
     "find_references",
+    "numbered_in",
     "renumber_references",
     "resolve",
     "translate_references",
@@ -614,6 +615,16 @@ def resolve(ref: Reference, doc: Document, *, within: Provision) -> tuple[Resolu
     if pos is None:
         raise ValueError(f"provision {within.id} is not a provision of {doc.source}")
     return _resolve(index, ref, pos)
+
+
+def numbered_in(ref: Reference, doc: Document) -> bool:
+    """Does *doc* number any provision, by a clause number of its own and not only as a
+    list item, in the numbering *ref*'s keyword counts in (clauses or articles for
+    "Section", schedules for "Exhibit", ...)?  A reference in a numbering the document
+    lacks names something outside it (an exhibit sent separately, an unnumbered text)."""
+    index = _index_of(doc)
+    spaces = _LOOKUP_ORDER[_NAMESPACE[ref.keyword]]
+    return any(ns in spaces and _split(key)[0] for ns, key in index.by_key)
 
 
 def _resolve(index: _Index, ref: Reference, pos: int) -> tuple[Resolution, ...]:

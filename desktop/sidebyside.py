@@ -368,11 +368,20 @@ class SideBySideView(QWidget):
     def show_deviation(self, d: Deviation | None) -> int | None:
         """Bring the row of deviation *d* into view, frame it and mark its words.  Returns the
         row, or None when the deviation has no provision to show (e.g. a term mapping)."""
-        old = self._focus_row
-        self._focus = d
         row = None
         if d is not None:
             row = self.model.row_for(draft=d.draft_provision, precedent=d.precedent_provision)
+        return self._frame(row, d)
+
+    def show_provision(self, *, draft: str | None = None, precedent: str | None = None) -> int | None:
+        """Bring the row of a provision (of the draft or of the precedent) into view and frame
+        it, without marking words (a drafting check points at a provision).  Returns the row,
+        or None when no row shows it."""
+        return self._frame(self.model.row_for(draft=draft, precedent=precedent), None)
+
+    def _frame(self, row: int | None, d: Deviation | None) -> int | None:
+        old = self._focus_row
+        self._focus = d
         self._focus_row = row
         changed = [r for r in (old, row) if r is not None]
         self.delegate.forget_rows(changed)

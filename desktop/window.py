@@ -44,6 +44,7 @@ from PySide6.QtWidgets import (
 import core
 
 from . import engine, tasks
+from .checks import ChecksPanel, checks_tab_title
 from .decision import KEYS, DecisionPanel
 from .deviations import DeviationsPanel
 from .dialogs import REVIEW_FILTER, OpenDialog, show_about, show_keys
@@ -116,6 +117,7 @@ class MainWindow(QMainWindow):
         self.deviations = DeviationsPanel(self.ws, lambda d: engine.decision_view(d)[:2], self)
         self.terms = TermsPanel(self.ws, engine.term_status, self)
         self.patterns = PatternsPanel(self.ws, engine.pattern_groups, self)
+        self.checks = ChecksPanel(self.ws, self)
         self.side = SideBySideView(self)
         self.decision = DecisionPanel(self.ws, engine.decision_view, self)
         self.variants = VariantsView(self)
@@ -125,6 +127,7 @@ class MainWindow(QMainWindow):
         self.left_tabs.setObjectName("leftTabs")
         self.left_tabs.addTab(self.deviations, "Deviations")
         self.left_tabs.addTab(self.terms, "Defined terms")
+        self.left_tabs.addTab(self.checks, checks_tab_title(None))
         self.left_tabs.addTab(self.patterns, "Patterns")
         self.inspector = QTabWidget(self)
         self.inspector.setObjectName("inspectorTabs")
@@ -180,8 +183,9 @@ class MainWindow(QMainWindow):
         self._build_actions()
 
         # -- wiring -------------------------------------------------------------------------
-        for view in (self.deviations, self.terms, self.patterns, self.decision):
+        for view in (self.deviations, self.terms, self.patterns, self.decision, self.checks):
             self.hub.changed.connect(view.on_change)
+        self.checks.provisionRequested.connect(self.show_provision)
         self.hub.changed.connect(self._on_change)
         self.deviations.deviationSelected.connect(self.select_deviation)
         self.side.rowActivated.connect(self._row_clicked)
@@ -339,6 +343,8 @@ class MainWindow(QMainWindow):
             self._refresh_variants()
         if change & (Change.REVIEW | Change.FILES | Change.DECISIONS):
             self._refresh_title()
+        if change & Change.REVIEW:
+            self.left_tabs.setTabText(self.left_tabs.indexOf(self.checks), checks_tab_title(ws.review))
         if change & Change.BUSY:
             busy = ws.busy is not None
             self.progress.setVisible(busy)
@@ -352,6 +358,13 @@ class MainWindow(QMainWindow):
                       self.act_export_il, self.act_export_il_rank, self.export_button_action,
                       self.act_acting_for):
                 a.setEnabled(has_review and not busy)
+
+    def show_provision(self, document: str, pid: str) -> None:
+        """Bring a provision of the draft (or the precedent) into view in the aligned rows."""
+        if document == "draft":
+            self.side.show_provision(draft=pid)
+        else:
+            self.side.show_provision(precedent=pid)
 
     def _refresh_title(self) -> None:
         ws = self.ws

@@ -12,6 +12,12 @@ renamed defined terms close the table as a group of their own either way.
 The CSV is a plain table for spreadsheets: the header row, then one row per issue, with the
 exact changed words of each side in two more columns at the end.  The .docx and the HTML
 open with :data:`core.CAUTION` and explain the figures in notes under the table.
+
+The drafting checks of the draft (:attr:`core.model.Review.checks`) follow the deviations:
+in the .docx and the HTML page as a table of their own (:data:`CHECK_COLUMNS`: the check,
+the clause, the words concerned and what the check found); in the CSV as rows of the same
+table after the issues, without a number (the clause, the words in "What changed", the
+check and what it found in "Why it matters").
 """
 
 
@@ -29,7 +35,13 @@ from pathlib import Path
 from .. import CAUTION, __version__
 from ..decisions import Decision
 from ..fileio import atomic_write_bytes, atomic_write_text
-from ..labels import clause_label, find_provision, full_number
+from ..labels import (
+    check_label,
+    clause_label,
+    find_provision,
+    full_number,
+    provision_label,
+)
 from ..model import (
     CATEGORIES,
     Deviation,
@@ -38,6 +50,7 @@ from ..model import (
     Provision,
     Review,
 )
+from ..review.checks import CHECKS_HEADING
 from .common import (
     CAUTION_PROPERTY,
     check_output,
@@ -50,14 +63,17 @@ from .common import (
 __all__ = [
     "CHANGE_CONTEXT_WORDS",
     "CHANGE_MAX_WORDS",
-    "Excerpt",
+    "CHECK_COLUMNS",
+    "CHECK_WIDTHS_CM",
     "ISSUES_DEFAULT_INCLUDE",
     "ISSUES_DEFAULT_ORDER",
     "ISSUE_COLUMNS",
     "ISSUE_CSV_COLUMNS",
     "ISSUE_ORDERS",
     "ISSUE_WIDTHS_CM",
+    "Excerpt",
     "IssueRow",
+    "check_rows",
     "clause_order",
     "issue_rows",
     "issues_list_csv",
@@ -670,6 +686,53 @@ def _table_notes(review: Review, rows: Sequence[IssueRow], order: str) -> list[s
 
 
 # --------------------------------------------------------------------------------------
+# The drafting checks
+# --------------------------------------------------------------------------------------
+
+#: Columns of the drafting checks' table (.docx, HTML).
+CHECK_COLUMNS = ("Check", "Clause", "Words", "What the check found")
+#: Their relative widths, in centimetres of the landscape A4 text width (as ISSUE_WIDTHS_CM).
+CHECK_WIDTHS_CM = {"Check": 3.2, "Clause": 4.2, "Words": 7.0, "What the check found": 10.3}
+#: Provisions named in full where a changed definition's term is used; past it, "and N more".
+CHECK_USES_SHOWN = 12
+NO_CHECKS = "The drafting checks found nothing in the draft."
+
+
+def check_rows(review: Review) -> list[tuple[str, str, str, str]]:
+    """(check, clause, words, what the check found) of each drafting check of *review*;
+    for a changed definition, what it found names the provisions using the term."""
+    from ..review.checks import CHECK_TITLES
+
+    out: list[tuple[str, str, str, str]] = []
+    for c in review.checks:
+        found = c.message
+        if c.kind == "definition-changed" and c.provisions:
+            labels = [provision_label(p, doc=review.draft, compact=True)
+                      for p in (find_provision(review.draft, pid) for pid in c.provisions[:CHECK_USES_SHOWN])
+                      if p is not None]
+            more = len(c.provisions) - len(labels)
+            found += ". Used in: " + "; ".join(labels) + (f"; and {more} more" if more > 0 else "")
+        out.append((CHECK_TITLES[c.kind], check_label(review, c), _words_of(c.text).text if c.text else "", found))
+    return out
+
+
+def _checks_html(review: Review) -> list[str]:
+    e = html.escape
+    out = [f"<h2>{e(CHECKS_HEADING)}</h2>"]
+    rows = check_rows(review)
+    if not rows:
+        return [*out, f"<p>{e(NO_CHECKS)}</p>"]
+    total_cm = sum(CHECK_WIDTHS_CM.values())
+    out.append('<table border="1" class="checks"><colgroup>' + "".join(
+        f'<col style="width: {100 * CHECK_WIDTHS_CM[c] / total_cm:.1f}%">' for c in CHECK_COLUMNS) + "</colgroup>")
+    out.append("<thead><tr>" + "".join(f'<th scope="col">{e(c)}</th>' for c in CHECK_COLUMNS) + "</tr></thead><tbody>")
+    for row in rows:
+        out.append('<tr valign="top">' + "".join(f"<td>{_html_text(v)}</td>" for v in row) + "</tr>")
+    out.append("</tbody></table>")
+    return out
+
+
+# --------------------------------------------------------------------------------------
 # The three formats
 # --------------------------------------------------------------------------------------
 
@@ -688,6 +751,9 @@ def issues_list_csv(review: Review, decisions: Sequence[Decision] = (), *,
     writer.writerow(cols)
     for r in rows:
         writer.writerow(r.cells(cols))
+    for check, clause, words, found in check_rows(review):
+        values = {"Clause": clause, _WHAT_COLUMN: words, _WHY_COLUMN: f"{check}: {found}"}
+        writer.writerow([values.get(c, "") for c in cols])
     return buf.getvalue()
 
 
@@ -803,6 +869,7 @@ def issues_list_html(review: Review, decisions: Sequence[Decision] = (), *,
         out.extend(f'<p class="note">{e(n)}</p>' for n in _table_notes(review, rows, order))
     else:
         out.append("<p>No substantive deviation was found.</p>")
+    out.extend(_checks_html(review))
     out.append("</body></html>")
     return "\n".join(out) + "\n"
 
@@ -837,6 +904,12 @@ def issues_list_docx(review: Review, decisions: Sequence[Decision] = (), *, auth
         body.extend(Para((Run(n),), style="TableNote") for n in _table_notes(review, rows, order))
     else:
         body.append(Para((Run("No substantive deviation was found."),)))
+    body.append(Para((Run(CHECKS_HEADING),), style="Heading1"))
+    checks = check_rows(review)
+    if checks:
+        body.append(Table(CHECK_COLUMNS, tuple(checks), widths=tuple(CHECK_WIDTHS_CM[c] for c in CHECK_COLUMNS)))
+    else:
+        body.append(Para((Run(NO_CHECKS),)))
     return build_docx(body, stamp=stamp, title=title, properties={CAUTION_PROPERTY: CAUTION},
                       landscape=True)
 

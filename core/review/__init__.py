@@ -27,7 +27,10 @@
    differ (digits, amounts, dates, versions; list labels and references followed to their
    provision aside) becomes substantive with the old and new values in its reasons,
    whatever the stages before said; then the ranking: by descending severity, ties in
-   draft order.
+   draft order;
+7. **drafting checks** (:mod:`.checks`) of the draft: undefined terms, unused definitions,
+   stale names of renamed terms, dangling references and changed definitions
+   (``Review.checks``).
 
 A pair's status is ``same`` when its only differences are renamed defined terms and
 renumbering, ``changed`` otherwise; ``moved``, ``split`` and ``merged`` take precedence.
@@ -46,6 +49,7 @@ from dataclasses import dataclass, replace
 
 from ..model import Deviation, Document, Edit, Pair, Provision, Review, TermMapping
 from .align import Alignment, Features, Group, align
+from .checks import review_checks
 from .classify import Change, TermContext, classify_ops
 from .direction import Judge, direction_rank_key, find_parties, resolve_acting_for
 from .docinfo import DocInfo, build_docinfo
@@ -337,6 +341,8 @@ def run_review(draft: Document, precedent: Document, *,
     builder.acting_for = acting_for
     review = builder.build()
     clock.lap("ranking and output")
+    review = replace(review, checks=review_checks(review))
+    clock.lap("drafting checks")
     return review
 
 

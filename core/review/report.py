@@ -15,11 +15,13 @@ from collections import Counter
 
 from .. import CAUTION
 from ..console import DEFAULT_WIDTH, terminal_width
-from ..labels import clause_label
+from ..labels import check_label, clause_label
 from ..model import Deviation, Review
+from .checks import CHECK_KINDS, CHECK_TITLES, CHECKS_HEADING
 
 __all__ = [
-    "DEFAULT_WIDTH", "DIRECTION_HEADING", "NUMBER_HEADING", "PAST_USE_HEADING", "SHOW_CHOICES", "format_review",
+    "CHECKS_HEADING", "DEFAULT_WIDTH", "DIRECTION_HEADING", "NUMBER_HEADING", "PAST_USE_HEADING", "SHOW_CHOICES",
+    "check_lines", "format_review",
     "shown_deviations", "terminal_width",
 ]
 
@@ -155,5 +157,24 @@ def format_review(review: Review, *, show: str | None = None, width: int | None 
         lines.extend(textwrap.wrap(f"{hidden} more deviation{'s' * (hidden != 1)} not shown "
                                    "(formatting, numbering, punctuation or term); use --show all", width))
     lines.append("")
+    lines.extend(check_lines(review, width=width))
     lines.extend(textwrap.wrap(CAUTION, width))
     return "\n".join(lines)
+
+
+def check_lines(review: Review, *, width: int) -> list[str]:
+    """The drafting checks of *review* (:attr:`core.model.Review.checks`), after the table:
+    a heading with the count of each kind, then one entry per check -- its kind, the
+    clause and the message -- wrapped to *width* and never cut; a blank line after."""
+    checks = review.checks
+    if not checks:
+        return [f"{CHECKS_HEADING}: none found in the draft.", ""]
+    counts = Counter(c.kind for c in checks)
+    summary = ", ".join(f"{counts[k]} {CHECK_TITLES[k].lower()}" for k in CHECK_KINDS if counts[k])
+    lines = textwrap.wrap(f"{CHECKS_HEADING} ({len(checks)}): {summary}", width)
+    for c in checks:
+        entry = f"{CHECK_TITLES[c.kind]} -- {check_label(review, c, compact=True)}: {c.message}"
+        lines.extend(textwrap.wrap(entry, width, initial_indent="  ", subsequent_indent="      ",
+                                   break_on_hyphens=False))
+    lines.append("")
+    return lines

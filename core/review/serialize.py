@@ -10,7 +10,9 @@ Exactly this shape (``resources/schemas/review.schema.json`` is its JSON Schema)
      "deviations": [{"id", "rank", "severity", "category", "change", "draft_provision",
                      "precedent_provision", "precedent_text", "draft_text", "reasons",
                      "frequency", "precedent_text_span", "draft_text_span",
-                     "direction"}]}
+                     "direction"}],
+     "checks": [{"kind", "document", "provision", "text", "message", "span", "part", "term",
+                 "provisions"}]}
 
 ``acting_for`` is the precedent's party term the review acts for (``--acting-for``), and
 ``direction`` each deviation's direction for it: "adverse", "favourable", "neutral" or
@@ -25,9 +27,10 @@ from __future__ import annotations
 from typing import Any
 
 from ..model import Deviation, Frequency, Review
+from .checks import Check
 from ..serialize import document_to_dict
 
-__all__ = ["REVIEW_SCHEMA_ID", "frequency_to_dict", "review_to_dict"]
+__all__ = ["REVIEW_SCHEMA_ID", "check_to_dict", "frequency_to_dict", "review_to_dict"]
 
 REVIEW_SCHEMA_ID = "counterdraft.review/1"
 
@@ -65,6 +68,21 @@ def _deviation(v: Deviation) -> dict[str, Any]:
     }
 
 
+def check_to_dict(c: Check) -> dict[str, Any]:
+    """The JSON object of one drafting check."""
+    return {
+        "kind": c.kind,
+        "document": c.document,
+        "provision": c.provision,
+        "text": c.text,
+        "message": c.message,
+        "span": list(c.span) if c.span else None,
+        "part": c.part,
+        "term": c.term,
+        "provisions": list(c.provisions),
+    }
+
+
 def review_to_dict(review: Review) -> dict[str, Any]:
     """The JSON-ready ``counterdraft.review/1`` object of *review*."""
     return {
@@ -84,4 +102,5 @@ def review_to_dict(review: Review) -> dict[str, Any]:
             for p in review.pairs
         ],
         "deviations": [_deviation(v) for v in review.deviations],
+        "checks": [check_to_dict(c) for c in review.checks],
     }

@@ -474,3 +474,26 @@ def test_a_review_file_of_the_earlier_version_loads_and_is_converted(scenario, t
     _validator().validate(data)
     assert data["acting_for"] is None and all(d["direction"] == "unclear" for d in data["deviations"])
     assert "not acceptable" not in path.read_text(encoding="utf-8")
+
+
+def test_drafting_checks_are_saved_and_files_without_them_still_load(scenario, tmp_path):
+    """The review file carries the drafting checks (JSON Schema 2020-12,
+    resources/schemas/review-file.schema.json); a file written before they existed (no
+    "checks") still validates and loads, the checks recomputed by the review."""
+    from core.review.checks import Check
+
+    rf = new_review_file(scenario.draft_path, scenario.precedent_path)
+    prov = rf.review.draft.provisions[-1]
+    check = Check(kind="dangling-reference", document="draft", provision=prov.id, text=prov.text[:5],
+                  message="a planted check", span=(0, 5), term="9")
+    rf = dataclasses.replace(rf, review=dataclasses.replace(rf.review, checks=(check,)))
+    path = tmp_path / "review.json"
+    save_review_file(path, rf)
+    data = json.loads(path.read_text(encoding="utf-8"))
+    _validator().validate(data)
+    assert data["checks"][0]["kind"] == "dangling-reference" and data["checks"][0]["span"] == [0, 5]
+    del data["checks"]
+    _validator().validate(data)
+    path.write_text(json.dumps(data), encoding="utf-8")
+    again = load_review_file(path)
+    assert again.review.checks == new_review_file(scenario.draft_path, scenario.precedent_path).review.checks

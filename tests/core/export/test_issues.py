@@ -47,11 +47,14 @@ NO_FREQ_COLUMNS = tuple(c for c in COLS if c != FREQ)
 
 class _TableReader(HTMLParser):
     """The page's table as the standard library's html.parser reads it: cell text (a <br>
-    as a line break), the bold words of each cell, and the paragraphs."""
+    as a line break), the bold words of each cell, and the paragraphs.  The drafting
+    checks' table, after it, is read into ``check_rows``."""
 
     def __init__(self) -> None:
         super().__init__()
         self.rows: list[list[str]] = []
+        self.check_rows: list[list[str]] = []
+        self._tables = 0
         #: The bold (<strong>) words of each cell, row by row.
         self.strong: list[list[list[str]]] = []
         self.paragraphs: list[str] = []
@@ -68,6 +71,10 @@ class _TableReader(HTMLParser):
 
     def handle_starttag(self, tag, attrs):
         self.tags.append(tag)
+        if tag == "table":
+            self._tables += 1
+            if self._tables == 2:  # the checks' table: its rows apart from the issues'
+                self.rows, self.check_rows = self.check_rows, self.rows
         if tag == "tr":
             self.rows.append([])
             self.strong.append([])
@@ -88,6 +95,8 @@ class _TableReader(HTMLParser):
                 self.external.append(value)
 
     def handle_endtag(self, tag):
+        if tag == "table" and self._tables == 2:
+            self.rows, self.check_rows = self.check_rows, self.rows
         if tag in ("td", "th") and self._cell is not None:
             self.rows[-1].append("".join(self._cell))
             self._cell = None
@@ -117,6 +126,12 @@ def _read_csv(path) -> list[list[str]]:
         return list(csv.reader(fh))  # the standard library's csv module
 
 
+def _issue_records(path) -> list[list[str]]:
+    """The CSV's rows of deviations: after the header, the rows with a number (the
+    drafting checks follow them without one)."""
+    return [r for r in _read_csv(path)[1:] if r[0]]
+
+
 def _read_html(path) -> _TableReader:
     parser = _TableReader()
     parser.feed(path.read_text(encoding="utf-8"))  # the standard library's html.parser
@@ -124,7 +139,7 @@ def _read_html(path) -> _TableReader:
 
 
 def _read_docx_table(path) -> list[list[str]]:
-    (table,) = docx.Document(str(path)).tables  # python-docx reads the Word table back
+    table = docx.Document(str(path)).tables[0]  # python-docx reads the issues table back (the checks follow)
     return [[c.text for c in row.cells] for row in table.rows]
 
 
@@ -257,7 +272,7 @@ def test_clause_order_and_rank_order_on_the_hand_made_scenario(scenario, tmp_pat
     for order, expected in (("clause", [1, 4, 5, 3, 2, 6]), ("rank", [1, 2, 3, 4, 5, 6])):
         for name in ("issues.csv", "issues.html", "issues.docx"):
             write_issues_list(review, tmp_path / name, order=order, author=AUTHOR)
-        assert [int(r[0]) for r in _read_csv(tmp_path / "issues.csv")[1:]] == expected
+        assert [int(r[0]) for r in _issue_records(tmp_path / "issues.csv")] == expected
         assert [int(r[0]) for r in _read_html(tmp_path / "issues.html").rows[1:]] == expected
         assert [int(r[0]) for r in _read_docx_table(tmp_path / "issues.docx")[1:]] == expected
         page = _read_html(tmp_path / "issues.html")
@@ -305,7 +320,7 @@ def test_demo_rows_follow_the_drafts_clauses_and_carry_the_review_tables_numbers
     assert main(["export", str(review_file), "--issues-list", str(by_rank), "--order", "rank"]) == 0
     err = capsys.readouterr().err
     assert CAUTION in err  # the command line shows the caution when it writes the CSV
-    clause_rows, rank_rows = _read_csv(by_clause)[1:], _read_csv(by_rank)[1:]
+    clause_rows, rank_rows = _issue_records(by_clause), _issue_records(by_rank)
 
     # Both orders list the same deviations the review table shows by default (substantive
     # and renamed terms), under the same numbers.
@@ -641,7 +656,7 @@ def test_export_lists_every_difference_with_issues_all(scenario, tmp_path, capsy
     assert main(["export", str(review_file), "--issues-list", str(short)]) == 0
     assert main(["export", str(review_file), "--issues-list", str(full), "--issues-all"]) == 0
     capsys.readouterr()
-    numbers = {p: [int(r[0]) for r in _read_csv(p)[1:]] for p in (short, full)}
+    numbers = {p: [int(r[0]) for r in _issue_records(p)] for p in (short, full)}
     assert sorted(numbers[full]) == sorted(d["rank"] for d in deviations)
     assert sorted(numbers[short]) == sorted(d["rank"] for d in deviations
                                             if d["category"] in ("substantive", "term"))
@@ -668,3 +683,27 @@ def test_direction_column_only_when_acting_for_a_party(scenario, tmp_path):
     assert any(p.startswith("Direction: for the Customer, the party acted for") for p in page.paragraphs)
     table = docx.Document(str(tmp_path / "issues.docx")).tables[0]
     assert "Direction" in [c.text for c in table.rows[0].cells]
+
+
+
+def test_the_drafting_checks_follow_the_issues(tmp_path):
+    """The drafting checks of the review close each issues list: a table of their own in
+    the page (html.parser) and the .docx (python-docx), rows without a number in the CSV
+    (csv module).  The demo draft's check: the changed definition of "Warranty Period"."""
+    from core.reader import read_document
+    from core.review import run_review
+
+    review = run_review(read_document(str(DEMO / "draft.docx")), read_document(str(DEMO / "precedent.docx")))
+    assert [c.term for c in review.checks] == ["Warranty Period"]
+    for name in ("issues.csv", "issues.html", "issues.docx"):
+        write_issues_list(review, tmp_path / name, author=AUTHOR)
+    page = _read_html(tmp_path / "issues.html")
+    assert page.check_rows[0] == ["Check", "Clause", "Words", "What the check found"]
+    (row,) = page.check_rows[1:]
+    assert row[0] == "Definition changed" and row[1].startswith("Section 13.1")
+    assert "twenty-four (24) months" in row[2] and "Used in: Section 13.2" in row[3]
+    tables = docx.Document(str(tmp_path / "issues.docx")).tables
+    assert [c.text for c in tables[1].rows[1].cells] == row
+    extra = [r for r in _read_csv(tmp_path / "issues.csv")[1:] if not r[0]]
+    (csv_row,) = extra
+    assert csv_row[1] == row[1] and csv_row[3].startswith("Definition changed: ")

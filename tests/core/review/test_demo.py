@@ -173,3 +173,18 @@ def test_headings_the_draft_only_adds_are_formatting_and_out_of_the_substantive_
     assert changed and all(v.severity < 20 for v in changed)
     top = sorted((v for v in review.deviations if v.category == "substantive"), key=lambda v: v.rank)
     assert not [v for v in top if v.reasons[0].startswith(("heading added", "heading removed"))]
+
+
+def test_drafting_checks_on_the_demo_draft(review, scenario):
+    """What the drafting checks say of the demo draft.  The generator renames six terms
+    consistently (no stale name), defines every term it uses and types no reference to a
+    missing clause; departure d7 lengthens the warranty period, which the warranty clause
+    itself defines (the "Warranty Period"), so that definition is reported as changed, with
+    the provision that uses the term."""
+    d7 = next(d for d in scenario["departures"] if d["id"] == "d7")
+    kinds = [(c.kind, c.term) for c in review.checks]
+    assert kinds == [("definition-changed", "Warranty Period")]
+    (check,) = review.checks
+    assert check.provision == pid(review.draft, d7["draft_number"])
+    assert d7["draft_words"] in check.text
+    assert check.provisions and "1 provision uses the term" in check.message

@@ -191,3 +191,24 @@ def test_cli_review_uses_columns(monkeypatch, tmp_path, capsys):
         widths[columns] = max(len(line) for line in out.splitlines())
         assert widths[columns] <= columns
     assert widths[80] < widths[160]
+
+
+def test_the_drafting_checks_follow_the_table():
+    house = doc("""
+        1. Definitions
+
+        1.1 "Products" means the goods in the Order.
+
+        2. Supply
+
+        2.1 The Seller shall deliver the Products under clause 9.
+    """)
+    text = format_review(run_review(house, house), width=100)
+    lines = text.splitlines()
+    start = lines.index(next(line for line in lines if line.startswith("Drafting checks")))
+    assert "1 reference to no provision" in lines[start]
+    assert "2.1" in lines[start + 1] and "clause 9" in lines[start + 1]
+    assert start < lines.index(next(line for line in lines if line.startswith("Counterdraft supports")))
+    assert all(len(line) <= 100 for line in lines)
+    assert "Drafting checks: none found" in format_review(run_review(doc("1. The Seller shall deliver."),
+                                                                     doc("1. The Seller shall deliver.")))

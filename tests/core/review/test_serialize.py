@@ -45,7 +45,10 @@ def demo_review():
 def test_demo_review_is_valid_and_exactly_shaped(demo_review):
     obj = json.loads(json.dumps(review_to_dict(demo_review)))
     validator().validate(obj)
-    assert list(obj) == ["schema", "acting_for", "draft", "precedent", "term_map", "pairs", "deviations"]
+    assert list(obj) == ["schema", "acting_for", "draft", "precedent", "term_map", "pairs", "deviations", "checks"]
+    assert [c["kind"] for c in obj["checks"]] == [c.kind for c in demo_review.checks]
+    assert set(obj["checks"][0]) == {"kind", "document", "provision", "text", "message", "span", "part",
+                                     "term", "provisions"}
     assert obj["schema"] == "counterdraft.review/1"
     assert obj["acting_for"] is None and {v["direction"] for v in obj["deviations"]} == {"unclear"}
     # an object written before the party acted for existed (no acting_for, no direction)
