@@ -417,8 +417,7 @@ _EFFORTS_RE = re.compile(
     re.IGNORECASE)
 #: Efforts standards, strongest first, with their level: the English courts read "best
 #: endeavours" as the most onerous, "all reasonable endeavours" between it and "reasonable
-#: endeavours" (Rhodia v Huntsman [2007] EWHC 292 (Comm); Jet2.com v Blackpool Airport
-#: [2012] EWCA Civ 417 -- from memory), and "commercially reasonable" lets the obligor weigh
+#: endeavours" (English case law, from memory), and "commercially reasonable" lets the obligor weigh
 #: its own commercial interests, so lower still (common practice, no source).  A standard
 #: not listed ("diligent efforts") counts as "reasonable".
 EFFORTS_LEVELS: tuple[tuple[str, int], ...] = (
