@@ -336,7 +336,7 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--issues-list", metavar="OUT", help="the issues list as .docx, .html or .csv")
     p.add_argument("--issues-all", action="store_true",
                    help="list formatting, numbering and punctuation differences in the issues list too")
-    from .export.issues import ISSUE_ORDERS, ISSUES_DEFAULT_ORDER
+    from .export.options import ISSUE_ORDERS, ISSUES_DEFAULT_ORDER
 
     p.add_argument("--order", choices=ISSUE_ORDERS, default=ISSUES_DEFAULT_ORDER,
                    help="rows of the issues list in the draft's clause order (default) or by rank")

@@ -90,6 +90,7 @@ from ..fileio import atomic_write_bytes, exclusive, file_sha256, remove_orphaned
 from .bucketcache import BucketArrays, assemble, compact, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
 from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
+from .options import POSITIONS
 from .variants import RegroupTooLarge, VariantConfig, cluster_wordings, regroup
 
 __all__ = [
@@ -157,8 +158,6 @@ CLUSTER_DRIFT = 0.10
 #: starting a process and importing gensim in it (about a second) costs more than it saves.
 PARALLEL_TRAINING_MIN_WORDS = 200_000
 
-#: The reviewer's positions on a variant, strongest first.
-POSITIONS: tuple[str, ...] = ("preferred", "acceptable", "fallback", "not acceptable")
 
 Progress = Callable[[int, int, str], None]
 Cancel = Callable[[], bool]

@@ -61,7 +61,7 @@ from .severity import (
     provision_change_severity,
     text_change_severity,
 )
-from .spans import corresponding_spans
+from .spans import AlignedPoints
 from .termmap import (
     TermMap,
     TermOverride,
@@ -80,7 +80,7 @@ from .tokens import (
     term_matcher,
     word_keys,
 )
-from .worddiff import TokenOp, pair_edits_from_ops, token_ops
+from .worddiff import pair_edits_from_ops, token_ops
 
 __all__ = ["NO_SHARED_NOTE", "TermOverride", "VocabularyModel", "clear_caches", "review_to_dict",
            "run_review"]
@@ -164,18 +164,33 @@ def _label(info: DocInfo, pos: int, *, with_heading: bool = True) -> str:
 
 
 def _with_context(text: str, span: tuple[int, int]) -> tuple[int, int]:
-    """*span*, with a word of context each side when ``text[span]`` has no letter or digit."""
+    """*span*, with a word of context each side when ``text[span]`` has no letter or digit
+    (up to _CONTEXT_WORDS words, each with the white space between it and the span).  Cost:
+    the words and white space stepped over, not the text."""
     a, b = span
     s = text[a:b]
     if not s or any(c.isalnum() for c in s):
         return span
-    left = text[:a]
-    m = re.search(r"(\S+\s*){1,%d}$" % _CONTEXT_WORDS, left)
-    if m:
-        a = m.start()
-    m = re.match(r"(\s*\S+){1,%d}" % _CONTEXT_WORDS, text[b:])
-    if m:
-        b += m.end()
+    for _ in range(_CONTEXT_WORDS):
+        i = a
+        while i > 0 and text[i - 1].isspace():
+            i -= 1
+        j = i
+        while j > 0 and not text[j - 1].isspace():
+            j -= 1
+        if j == i:
+            break
+        a = j
+    for _ in range(_CONTEXT_WORDS):
+        i = b
+        while i < len(text) and text[i].isspace():
+            i += 1
+        j = i
+        while j < len(text) and not text[j].isspace():
+            j += 1
+        if j == i:
+            break
+        b = j
     return a, b
 
 
@@ -349,12 +364,16 @@ def _sides(di: DocInfo, pi: DocInfo, names: Sequence[str]
 def clear_caches() -> None:
     """Forget the engine's caches of token keys, figures and phrase matches (they only
     speed up reviews of the same texts; benchmarks clear them to time cold runs)."""
+    from .figures import clear_skip_cache
     from .noise import clear_label_cache
     from .severity import clear_caches as _clear_severity
     from .tokens import clear_token_cache
+    from .worddiff import clear_diff_cache
 
     clear_token_cache()
+    clear_diff_cache()
     clear_label_cache()
+    clear_skip_cache()
     _clear_severity()
 
 
@@ -442,21 +461,19 @@ class _Builder:
                 a, b = min(a, qs), max(b, qe)
         return _with_context(text, (a, b))
 
-    def _shown_spans(self, ch: Change, ptext: str, dtext: str,
-                     diff: tuple[Sequence[TokenOp], TokenSeq, TokenSeq] | None
+    def _shown_spans(self, ch: Change, ptext: str, dtext: str, points: AlignedPoints | None
                      ) -> tuple[tuple[int, int], tuple[int, int]]:
         """Corresponding spans of the words shown on each side (see :mod:`.spans`); without
         a diff (a heading as a whole) each side's widened span, trimmed."""
         pw = self._widened(ptext, ch.p_span) if ch.change != "insert" else ch.p_span
         dw = self._widened(dtext, ch.d_span) if ch.change != "delete" else ch.d_span
-        if diff is not None:
-            ops, a, b = diff
-            return corresponding_spans(ops, a, b, precedent=pw, draft=dw)
+        if points is not None:
+            return points.spans(precedent=pw, draft=dw)
         return _trimmed(ptext, pw), _trimmed(dtext, dw)
 
     def _add_change(self, ch: Change, *, ptext: str, pstarts: Sequence[int], ppos: Sequence[int],
                     dtext: str, dstarts: Sequence[int], dpos: Sequence[int], heading: bool,
-                    diff: tuple[Sequence[TokenOp], TokenSeq, TokenSeq] | None = None) -> None:
+                    points: AlignedPoints | None = None) -> None:
         if ch.category == "term":
             return  # reported once per term pair
         pk = bisect_right(pstarts, ch.p_span[0]) - 1
@@ -467,7 +484,7 @@ class _Builder:
         dlen = len(self.di.provisions[dp].text) if not heading else len(dtext)
         pspan = (ch.p_span[0] - p0, min(ch.p_span[1] - p0, plen))
         dspan = (ch.d_span[0] - d0, min(ch.d_span[1] - d0, dlen))
-        (pa, pb), (da, db) = self._shown_spans(ch, ptext, dtext, diff)
+        (pa, pb), (da, db) = self._shown_spans(ch, ptext, dtext, points)
         # Shown spans are clipped to the provision that holds the change (a split or merged
         # group joins several provisions' texts with "\n").
         pa, pb = min(max(pa, p0), p0 + plen), min(max(pb, p0), p0 + plen)
@@ -535,13 +552,14 @@ class _Builder:
                     self._quantities(dtext, [b.span(op.j1, op.j2) for op in changed]))
         changes = classify_ops(a, b, ops, self._ctx(dterm, pterm), keep_together=together)
         clock.lap("classification")
+        points = AlignedPoints(ops, a, b)
         for whole in changes:
             for ch in _per_provision(whole, ptext, pstarts, dtext, dstarts):
                 if ch.category not in ("term", "numbering"):
                     counted += 1
                 self._add_change(ch, ptext=ptext, pstarts=pstarts, ppos=g.precedents,
                                  dtext=dtext, dstarts=dstarts, dpos=g.drafts, heading=False,
-                                 diff=(ops, a, b))
+                                 points=points)
         clock.lap("severity")
         return self._heading_changes(g, counted)
 

@@ -26,14 +26,14 @@ import re
 import tomllib
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
+from bisect import bisect_left, bisect_right
 from functools import lru_cache
 from pathlib import Path
 from typing import Protocol
 
 from ..errors import CounterdraftError
 from ..model import Document, Provision
-from .noise import label_spans
-from .tokens import find_cross_references
+from .figures import number_skips
 
 __all__ = [
     "DEFAULT_RULES_PATH",
@@ -386,9 +386,8 @@ def _find_quantities(text: str, lo: int = 0, hi: int | None = None) -> list[Quan
             merged.append(q)
     # the numbers of references to the agreement's own provisions and of list labels ("3."
     # of "3.Scope") are no figures (core.review.figures)
-    skip = [(a, b) for a, b, *_ in find_cross_references(text)] + label_spans(text)
-    return [q for q in merged
-            if not (q.kind == "number" and any(a <= q.start < b for a, b in skip))]
+    skip = number_skips(text)
+    return [q for q in merged if not (q.kind == "number" and skip.covers(q.start))]
 
 
 # ----------------------------------------------------------------------------------------
@@ -401,7 +400,27 @@ def _phrase_re(phrases: Sequence[str]) -> re.Pattern[str]:
     return re.compile(r"(?<![\w'])(?:" + body + r")(?![\w])", re.IGNORECASE)
 
 
-def _matches(rules: SeverityRules, name: str, text: str) -> list[tuple[int, int, str]]:
+class _Found:
+    """The phrase matches of one text, in the order found, indexed by start so that those
+    near a span are found by bisection (a long provision rewritten has hundreds of changes;
+    scanning every match of the text for each was quadratic)."""
+
+    __slots__ = ("items", "longest", "starts")
+
+    def __init__(self, items: list[tuple[int, int, str]]) -> None:
+        self.items = items
+        self.starts = sorted((it[0], k) for k, it in enumerate(items))
+        self.longest = max((it[1] - it[0] for it in items), default=0)
+
+    def near(self, span: tuple[int, int]) -> list[tuple[int, int, str]]:
+        """The matches that start within the longest match's length before *span*, or
+        inside it, in the order found: every match that overlaps or touches the span."""
+        lo = bisect_left(self.starts, (span[0] - self.longest, -1))
+        hi = bisect_right(self.starts, (span[1], len(self.items)))
+        return [self.items[k] for k in sorted(k for _s, k in self.starts[lo:hi])]
+
+
+def _matches(rules: SeverityRules, name: str, text: str) -> _Found:
     key = ("re", name)
     pat = rules._cache.get(key)
     if pat is None:
@@ -412,12 +431,12 @@ def _matches(rules: SeverityRules, name: str, text: str) -> list[tuple[int, int,
     tcache = rules._cache.setdefault(("text", name), {})
     hit = tcache.get(text)
     if hit is None:
-        hit = [(m.start(), m.end(), " ".join(m.group().lower().split())) for m in pat.finditer(text)]
+        items = [(m.start(), m.end(), " ".join(m.group().lower().split())) for m in pat.finditer(text)]
         if name == "negation":
-            hit += [(m.start(), m.end(), "n't") for m in re.finditer(r"n['\u2019]t\b", text)]
+            items += [(m.start(), m.end(), "n't") for m in re.finditer(r"n['\u2019]t\b", text)]
         if len(tcache) > 4096:
             tcache.clear()
-        tcache[text] = hit
+        hit = tcache[text] = _Found(items)
     return hit
 
 
@@ -475,8 +494,8 @@ def _figure_signals(p_text: str, p_span: tuple[int, int], d_text: str, d_span: t
 
 def _obligation_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
     strong = set(rules.strong)
-    po = [m[2] for m in _inside(_matches(rules, "obligation", p_text), p_span)]
-    do = [m[2] for m in _inside(_matches(rules, "obligation", d_text), d_span)]
+    po = [m[2] for m in _inside(_matches(rules, "obligation", p_text).near(p_span), p_span)]
+    do = [m[2] for m in _inside(_matches(rules, "obligation", d_text).near(d_span), d_span)]
     if po == do:
         return []
     ps = [w for w in po if w in strong]
@@ -495,8 +514,8 @@ def _obligation_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, 
 
 
 def _negation_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
-    pn = [m[2] for m in _inside(_matches(rules, "negation", p_text), p_span)]
-    dn = [m[2] for m in _inside(_matches(rules, "negation", d_text), d_span)]
+    pn = [m[2] for m in _inside(_matches(rules, "negation", p_text).near(p_span), p_span)]
+    dn = [m[2] for m in _inside(_matches(rules, "negation", d_text).near(d_span), d_span)]
     if len(dn) > len(pn):
         extra = [w for w in dn if w not in pn] or dn
         return [Signal("negation_added", f"negation added: {_quote(extra[0])}")]
@@ -507,8 +526,8 @@ def _negation_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_
 
 
 def _qualifier_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
-    pm = _matches(rules, "qualifier", p_text)
-    dm = _matches(rules, "qualifier", d_text)
+    pm = _matches(rules, "qualifier", p_text).near(p_span)
+    dm = _matches(rules, "qualifier", d_text).near(d_span)
     pq = [m[2] for m in _inside(pm, p_span)]
     dq = [m[2] for m in _inside(dm, d_span)]
 
