@@ -97,6 +97,10 @@ PLAIN_PRODUCT_MAX = 150_000
 #: Most (draft row, word, precedent row) triples gathered at once by the numpy product (a
 #: block's arrays: about 32 bytes a triple, so 1,000,000 triples hold about 32 MB).
 BLOCK_TRIPLES = 1_000_000
+#: A word goes through the dense matrix product when (draft rows with it) x (precedent rows
+#: with it) is at least this share of all pairs: gathering a triple costs numpy about 30
+#: times a multiply-add of the dense product (BLAS), which touches every pair.
+DENSE_SHARE = 1 / 32
 #: Most draft rows per block of the cosine computation (a block holds BLOCK_ROWS x n_p cosines:
 #: 4 MB for a 1,000-provision precedent).
 BLOCK_ROWS = 512
@@ -321,14 +325,22 @@ class _Cosines:
         import numpy as np
 
         n_d = self.n_d
-        content = _Postings(self.content[n_d:], np)
-        heads = _Postings(self.heads[n_d:], np)
+        content = _Postings(self.content[n_d:], self.content[:n_d], np)
+        heads = _Postings(self.heads[n_d:], self.heads[:n_d], np)
         rp = np.arange(n_p) / max(1, n_p - 1)
         kr = min(CANDIDATES, n_p)
         kc = min(CANDIDATES, n_d)
-        col_val = np.full((0, n_p), -np.inf)
-        col_idx = np.zeros((0, n_p), dtype=np.int64)
+        # each column's best rows so far (values and row numbers), one line per column
+        col_val = np.full((n_p, 0), -np.inf)
+        col_idx = np.zeros((n_p, 0), dtype=np.int64)
         cand: set[tuple[int, int]] = set()
+        known = self.known
+
+        def remember(rows, cols, cos, hcos, start: int) -> None:  # noqa: ANN001 - numpy arrays
+            for r, p, c, h in zip((rows + start).tolist(), cols.tolist(), cos[rows, cols].tolist(),
+                                  hcos[rows, cols].tolist()):
+                known[(r, p)] = (c, h)
+
         for start, end in content.blocks(self.content[:n_d], heads, self.heads[:n_d]):
             cos = content.product(self.content[start:end], n_p)
             hcos = heads.product(self.heads[start:end], n_p)
@@ -336,56 +348,74 @@ class _Cosines:
             rd = np.arange(start, end) / max(1, n_d - 1)
             select = bound + CANDIDATE_POSITION_WEIGHT * (1.0 - np.abs(rd[:, None] - rp[None, :]))
             select[bound < CANDIDATE_MIN_COSINE] = -np.inf
-            rows = (np.argpartition(-select, kr - 1, axis=1)[:, :kr] if kr < n_p
-                    else np.tile(np.arange(n_p), (end - start, 1)))
-            for r in range(end - start):
-                for p in rows[r]:
-                    if np.isfinite(select[r, p]):
-                        cand.add((start + r, int(p)))
-                        self.known[(start + r, int(p))] = (float(cos[r, p]), float(hcos[r, p]))
-            # running best rows of each column
-            col_val = np.vstack([col_val, select])
-            col_idx = np.vstack([col_idx, np.tile(np.arange(start, end)[:, None], (1, n_p))])
-            if col_val.shape[0] > kc:
-                keep = np.argpartition(-col_val, kc - 1, axis=0)[:kc, :]
-                col_val = np.take_along_axis(col_val, keep, axis=0)
-                col_idx = np.take_along_axis(col_idx, keep, axis=0)
+            # each row's best columns
+            best = (np.argpartition(-select, kr - 1, axis=1)[:, :kr] if kr < n_p
+                    else np.broadcast_to(np.arange(n_p), (end - start, n_p)))
+            r, k = np.nonzero(np.isfinite(np.take_along_axis(select, best, axis=1)))
+            p = best[r, k]
+            cand.update(zip((r + start).tolist(), p.tolist()))
+            remember(r, p, cos, hcos, start)
+            # each column's best rows, this block's included
+            col_val = np.hstack([col_val, select.T])
+            col_idx = np.hstack([col_idx, np.broadcast_to(np.arange(start, end), (n_p, end - start))])
+            if col_val.shape[1] > kc:
+                keep = np.argpartition(-col_val, kc - 1, axis=1)[:, :kc]
+                col_val = np.take_along_axis(col_val, keep, axis=1)
+                col_idx = np.take_along_axis(col_idx, keep, axis=1)
             # remember this block's cosines of the column bests
-            block_rows = col_idx - start
-            inside = (block_rows >= 0) & (block_rows < end - start) & np.isfinite(col_val)
-            for k, p in zip(*np.nonzero(inside)):
-                r = int(block_rows[k, p])
-                self.known[(start + r, int(p))] = (float(cos[r, p]), float(hcos[r, p]))
-        for k, p in zip(*np.nonzero(np.isfinite(col_val))):
-            cand.add((int(col_idx[k, p]), int(p)))
+            p, k = np.nonzero((col_idx >= start) & (col_idx < end) & np.isfinite(col_val))
+            remember(col_idx[p, k] - start, p, cos, hcos, start)
+        p, k = np.nonzero(np.isfinite(col_val))
+        cand.update(zip(col_idx[p, k].tolist(), p.tolist()))
         return cand
 
 
 class _Postings:
-    """The precedent's rows by word (each word's rows and weights, in CSC order), to
-    multiply blocks of draft rows by them with numpy alone: each (draft row, word, precedent
-    row) triple is gathered and the products summed with ``bincount``."""
+    """The precedent's rows by word, to multiply blocks of draft rows by them with numpy
+    alone.  Words common on both sides -- (draft rows with the word) x (precedent rows with
+    it) at least DENSE_SHARE of all pairs -- go through one dense matrix product (BLAS);
+    for the others each (draft row, word, precedent row) triple is gathered from the word's
+    postings (CSC order) and the products summed with ``bincount``."""
 
-    def __init__(self, rows: Sequence[Row], np) -> None:  # noqa: ANN001 - the numpy module
+    def __init__(self, p_rows: Sequence[Row], d_rows: Sequence[Row], np) -> None:  # noqa: ANN001 - numpy
         self.np = np
-        words = np.asarray([j for r in rows for j in r], dtype=np.int64)
-        order = np.argsort(words, kind="stable")
-        self.rows = np.repeat(np.arange(len(rows), dtype=np.int64), [len(r) for r in rows])[order]
-        self.vals = np.asarray([x for r in rows for x in r.values()], dtype=np.float64)[order]
-        self.df = np.bincount(words, minlength=int(words.max()) + 1 if len(words) else 0)
+        n_p, n_d = len(p_rows), len(d_rows)
+        words = np.asarray([j for r in p_rows for j in r], dtype=np.int64)
+        width = int(words.max()) + 1 if len(words) else 0
+        df_p = np.bincount(words, minlength=width)
+        df_d = np.bincount(np.asarray([j for r in d_rows for j in r if j < width], dtype=np.int64),
+                           minlength=width)
+        dense = np.nonzero(df_p * df_d >= DENSE_SHARE * n_p * n_d)[0] if width else words[:0]
+        #: dense word id -> its column in the dense matrices
+        self.dense_col = {int(j): k for k, j in enumerate(dense.tolist())}
+        self.dense_p = np.zeros((len(dense), n_p))
+        rows = np.repeat(np.arange(n_p, dtype=np.int64), [len(r) for r in p_rows])
+        vals = np.asarray([x for r in p_rows for x in r.values()], dtype=np.float64)
+        is_dense = np.zeros(width, dtype=bool)
+        is_dense[dense] = True
+        on = is_dense[words] if width else words.astype(bool)
+        col = np.full(width, -1, dtype=np.int64)
+        col[dense] = np.arange(len(dense))
+        self.dense_p[col[words[on]], rows[on]] = vals[on]
+        # the other words' postings
+        sw, sr, sv = words[~on], rows[~on], vals[~on]
+        order = np.argsort(sw, kind="stable")
+        self.rows, self.vals = sr[order], sv[order]
+        self.df = np.bincount(sw, minlength=width)
         self.ptr = np.concatenate([[0], np.cumsum(self.df)]).astype(np.int64)
-        self.width = len(self.df)
+        self.width = width
 
     def triples(self, row: Row) -> int:
-        """The triples of one draft row: the precedent rows holding each of its words."""
+        """The triples one draft row gathers: the precedent rows holding each of its words
+        that is not dense."""
         df, width = self.df, self.width
         return int(sum(int(df[j]) for j in row if j < width))
 
     def blocks(self, d_rows: Sequence[Row], heads: _Postings, d_heads: Sequence[Row]
                ) -> list[tuple[int, int]]:
         """Consecutive ranges of draft rows, each at most BLOCK_ROWS rows and, past its first
-        row, at most BLOCK_TRIPLES triples (content and headings), so that a block's
-        gathered arrays stay small."""
+        row, at most BLOCK_TRIPLES gathered triples (content and headings), so that a block's
+        arrays stay small."""
         out: list[tuple[int, int]] = []
         start, load = 0, 0
         for d in range(len(d_rows)):
@@ -402,29 +432,43 @@ class _Postings:
         """The dense block (len(d_rows) x n_p) of dot products of *d_rows* with the
         precedent rows."""
         np = self.np
+        n = len(d_rows)
         local: list[int] = []
         words: list[int] = []
         weights: list[float] = []
+        dense_r: list[int] = []
+        dense_c: list[int] = []
+        dense_x: list[float] = []
+        dense_col, width = self.dense_col, self.width
         for r, row in enumerate(d_rows):
             for j, x in row.items():
-                if j < self.width:
+                c = dense_col.get(j)
+                if c is not None:
+                    dense_r.append(r)
+                    dense_c.append(c)
+                    dense_x.append(x)
+                elif j < width:
                     local.append(r)
                     words.append(j)
                     weights.append(x)
-        size = len(d_rows) * n_p
-        if not words:
-            return np.zeros((len(d_rows), n_p))
-        w = np.asarray(words, dtype=np.int64)
-        lengths = self.df[w]
-        total = int(lengths.sum())
-        if not total:
-            return np.zeros((len(d_rows), n_p))
-        # every posting of every (row, word): a ragged gather of the words' posting ranges
-        ends = np.cumsum(lengths)
-        pos = np.repeat(self.ptr[w] - (ends - lengths), lengths) + np.arange(total, dtype=np.int64)
-        flat = np.repeat(np.asarray(local, dtype=np.int64), lengths) * n_p + self.rows[pos]
-        vals = self.vals[pos] * np.repeat(np.asarray(weights, dtype=np.float64), lengths)
-        return np.bincount(flat, weights=vals, minlength=size).reshape(len(d_rows), n_p)
+        out = np.zeros(n * n_p)
+        if words:
+            w = np.asarray(words, dtype=np.int64)
+            lengths = self.df[w]
+            total = int(lengths.sum())
+            if total:
+                # every posting of every (row, word): a ragged gather of the posting ranges
+                ends = np.cumsum(lengths)
+                pos = np.repeat(self.ptr[w] - (ends - lengths), lengths) + np.arange(total, dtype=np.int64)
+                flat = np.repeat(np.asarray(local, dtype=np.int64), lengths) * n_p + self.rows[pos]
+                vals = self.vals[pos] * np.repeat(np.asarray(weights, dtype=np.float64), lengths)
+                out = np.bincount(flat, weights=vals, minlength=n * n_p)
+        out = out.reshape(n, n_p)
+        if dense_r:
+            block = np.zeros((n, len(dense_col)))
+            block[dense_r, dense_c] = dense_x
+            out += block @ self.dense_p
+        return out
 
 
 def pair_similarity(d: Features, p: Features, cosine: float, heading_cosine: float = 0.0) -> float:

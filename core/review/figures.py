@@ -43,6 +43,7 @@ __all__ = ["FIGURE_RE", "NumberSkips", "clear_skip_cache", "figure_reasons", "fi
 #: A figure: digits with the separators figures are written with (thousands, decimals,
 #: versions, dates, times, ranges); dashes of any style.
 FIGURE_RE = re.compile(r"\d+(?:[.,:/\-\u2010-\u2015\u2212]\d+)*")
+_DIGIT_RE = re.compile(r"\d")
 _DASH_RE = re.compile(r"[\u2010-\u2015\u2212]")
 #: A thousands separator: a comma followed by exactly three digits ("1,000" is 1000).
 _THOUSANDS_RE = re.compile(r"(?<=\d),(?=\d{3}(?!\d))")
@@ -112,7 +113,7 @@ def figures_in(text: str, span: tuple[int, int] | None = None, *,
     ('3.7.2',)
     """
     a, b = span if span is not None else (0, len(text))
-    if not any(c.isdigit() for c in text[max(0, a - 40):b + 40]):
+    if not _DIGIT_RE.search(text, max(0, a - 40), b + 40):
         return ()
     skip = None if references else number_skips(text)
     # scan from outside the run of figure characters around each end of the span: the

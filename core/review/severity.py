@@ -308,9 +308,25 @@ class Quantity:
 QUANTITY_WINDOW = 120
 
 
+class _Quantities:
+    """Every figure of one text, in order (they do not overlap, so their starts and their
+    ends are both sorted), found once; the figures of a window are a bisection away."""
+
+    __slots__ = ("ends", "items", "starts")
+
+    def __init__(self, items: list[Quantity]) -> None:
+        self.items = items
+        self.starts = [q.start for q in items]
+        self.ends = [q.end for q in items]
+
+    def within(self, lo: int, hi: int) -> list[Quantity]:
+        """The figures that lie inside ``text[lo:hi]``."""
+        return self.items[bisect_left(self.starts, lo):bisect_right(self.ends, hi)]
+
+
 @lru_cache(maxsize=4096)
-def _quantities_cached(text: str, lo: int, hi: int) -> tuple[Quantity, ...]:
-    return tuple(_find_quantities(text, lo, hi))
+def _quantities_cached(text: str) -> _Quantities:
+    return _Quantities(_find_quantities(text))
 
 
 def _window(text: str, span: tuple[int, int]) -> tuple[int, int]:
@@ -325,9 +341,14 @@ def _window(text: str, span: tuple[int, int]) -> tuple[int, int]:
 
 def find_quantities(text: str, *, around: tuple[int, int] | None = None) -> list[Quantity]:
     """Every figure in *text* (see :func:`_find_quantities`), or only those near the span
-    *around* (within :data:`QUANTITY_WINDOW` characters); cached."""
-    lo, hi = (0, len(text)) if around is None else _window(text, around)
-    return list(_quantities_cached(text, lo, hi))
+    *around* (within :data:`QUANTITY_WINDOW` characters).  The text's figures are found once
+    (cached per text) and a window's are picked by bisection: a long provision rewritten
+    asks for the windows of hundreds of changes, and scanning each window again cost more
+    than the rest of the review."""
+    found = _quantities_cached(text)
+    if around is None:
+        return list(found.items)
+    return found.within(*_window(text, around))
 
 
 def _find_quantities(text: str, lo: int = 0, hi: int | None = None) -> list[Quantity]:

@@ -99,22 +99,22 @@ class TokenOp:
 
 
 def _encode(keys: Sequence[str], book: dict[str, str]) -> str:
-    out = []
-    for k in keys:
-        c = book.get(k)
-        if c is None:
-            if k == ".":
-                c = "\n"  # a sentence end: the clean-up prefers edit boundaries at line breaks
-            elif k == " " or (len(k) == 1 and not k.isalnum() and not k.isspace()):
-                c = k
-            else:
-                n = len(book)
-                if n >= _PUA_SIZE:
-                    raise ValueError("too many distinct words in one provision pair")
-                c = _pua(n)
-            book[k] = c
-        out.append(c)
-    return "".join(out)
+    """*keys* as one code point each, new keys added to *book* (the loop in Python runs over
+    the distinct keys only)."""
+    for k in dict.fromkeys(keys):
+        if k in book:
+            continue
+        if k == ".":
+            c = "\n"  # a sentence end: the clean-up prefers edit boundaries at line breaks
+        elif k == " " or (len(k) == 1 and not k.isalnum() and not k.isspace()):
+            c = k
+        else:
+            n = len(book)
+            if n >= _PUA_SIZE:
+                raise ValueError("too many distinct words in one provision pair")
+            c = _pua(n)
+        book[k] = c
+    return "".join(map(book.__getitem__, keys))
 
 
 def _dmp() -> diff_match_patch:

@@ -11,6 +11,8 @@ from __future__ import annotations
 import tomllib
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from core.errors import CounterdraftError
 from core.review import run_review
@@ -216,3 +218,32 @@ def test_the_heading_rule_is_optional_and_checked(tmp_path):
                    encoding="utf-8")
     with pytest.raises(CounterdraftError, match='headings.added_or_removed must be "formatting" or "substantive"'):
         load_rules(bad)
+
+
+# --------------------------------------------------------------------------------------
+# Figures near a change: found once per text, picked by window
+# --------------------------------------------------------------------------------------
+
+_FRAGMENTS = ["the Supplier shall pay", "thirty (30) days", "EUR 12,500", "ten per cent (10%)",
+              "within 5 Business Days", "Clause 4.2", "(b)", "one of the parties", "2.", "and",
+              "GBP 1.5 million", "twenty-one (21) days", "version 3.7.2", "of", "15%"]
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.lists(st.sampled_from(_FRAGMENTS), min_size=1, max_size=40), st.data())
+def test_figures_near_a_span_equal_a_scan_of_its_window(parts, data) -> None:
+    """Reference: the slow way, scanning the window around the span again
+    (``_find_quantities(text, lo, hi)``).  The figures picked from the whole text's equal it
+    wherever no figure of the text straddles the window's ends (a scan from inside a figure
+    would see only part of it)."""
+    from core.review.severity import _find_quantities, _window
+
+    text = " ".join(parts)
+    a = data.draw(st.integers(0, len(text)))
+    b = data.draw(st.integers(a, len(text)))
+    lo, hi = _window(text, (a, b))
+    whole = _find_quantities(text)
+    ours = find_quantities(text, around=(a, b))
+    assert all(q in whole for q in ours)
+    if not any(q.start < x < q.end for q in whole for x in (lo, hi)):
+        assert ours == _find_quantities(text, lo, hi)
