@@ -141,10 +141,10 @@ def load_and_review(
     from core.reader import read_document
 
     report(0, None, f"Reading {Path(inputs.draft).name}")
-    draft = read_document(inputs.draft)
+    draft = read_document(inputs.draft, cache=True)
     check_cancelled(cancelled)
     report(0, None, f"Reading {Path(inputs.precedent).name}")
-    precedent = read_document(inputs.precedent)
+    precedent = read_document(inputs.precedent, cache=True)
     check_cancelled(cancelled)
     library = None
     if inputs.library:

@@ -192,26 +192,44 @@ def _default_rules() -> SeverityRules:
 # Clause types
 # ----------------------------------------------------------------------------------------
 
-def _keyword_index(rules: SeverityRules) -> list[tuple[re.Pattern[str], str, int]]:
+def _keyword_index(rules: SeverityRules) -> list[tuple[str, str]]:
+    """(keyword with single spaces, clause type), longest keyword first (a stable sort: the
+    rule file's order among keywords of one length)."""
     idx = rules._cache.get("keywords")
     if idx is None:
-        idx = []
-        for ctype, words in rules.clause_type_keywords.items():
-            for w in words:
-                pat = re.compile(r"(?<![\w])" + r"\s+".join(map(re.escape, w.split())) + r"(?![\w])")
-                idx.append((pat, ctype, len(w)))
-        idx.sort(key=lambda t: -t[2])
-        rules._cache["keywords"] = idx
+        idx = sorted(((" ".join(w.split()), ctype, len(w))
+                      for ctype, words in rules.clause_type_keywords.items() for w in words),
+                     key=lambda t: -t[2])
+        idx = rules._cache["keywords"] = [(w, ctype) for w, ctype, _n in idx]
     return idx
 
 
+def _is_word_char(c: str) -> bool:
+    """What a regular expression's ``\\w`` matches in a str pattern."""
+    return c.isalnum() or c == "_"
+
+
+def _has_phrase(text: str, phrase: str) -> bool:
+    """Whether *phrase* occurs in *text* as whole words (no word character right before or
+    after it).  *text* has its white space collapsed to single spaces, as *phrase* has."""
+    at = text.find(phrase)
+    while at >= 0:
+        end = at + len(phrase)
+        if not (at and _is_word_char(text[at - 1])) and not (end < len(text) and _is_word_char(text[end])):
+            return True
+        at = text.find(phrase, at + 1)
+    return False
+
+
 def guess_clause_type(heading: str | None, *, rules: SeverityRules) -> str | None:
-    """The clause type whose longest keyword occurs in *heading* (lower-cased), or None."""
+    """The clause type whose longest keyword occurs in *heading* (lower-cased, "&" read as
+    "and"), as whole words with any white space between them, or None.  Plain string
+    searches: compiling a pattern per keyword (about 150) cost more than a short review."""
     if not heading:
         return None
-    h = heading.casefold().replace("&", "and")
-    for pat, ctype, _n in _keyword_index(rules):
-        if pat.search(h):
+    h = " ".join(heading.casefold().replace("&", "and").split())
+    for phrase, ctype in _keyword_index(rules):
+        if _has_phrase(h, phrase):
             return ctype
     return None
 

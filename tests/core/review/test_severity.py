@@ -247,3 +247,27 @@ def test_figures_near_a_span_equal_a_scan_of_its_window(parts, data) -> None:
     assert all(q in whole for q in ours)
     if not any(q.start < x < q.end for q in whole for x in (lo, hi)):
         assert ours == _find_quantities(text, lo, hi)
+
+
+_HEADING_WORDS = ["Term", "and", "Termination", "Governing", "Law", "&", "Jurisdiction",
+                  "Non-Disclosure", "third-party", "Rights", "IP", "Data", "data_x", "Lawful",
+                  "  ", "\t", "Limitation", "of", "Liability", "2.", "Sub-contracting", "Fees"]
+
+
+@settings(max_examples=400, deadline=None)
+@given(st.lists(st.sampled_from(_HEADING_WORDS), max_size=8))
+def test_clause_type_from_heading_equals_the_keyword_patterns(words) -> None:
+    """Reference: one regular expression per keyword, ``(?<![\\w])`` + the keyword's words
+    joined by ``\\s+`` + ``(?![\\w])``, searched longest keyword first (the rule file's
+    definition of a keyword match)."""
+    import re
+
+    rules = default_rules()
+    heading = " ".join(words)
+    keywords = sorted(((w, t) for t, ws in rules.clause_type_keywords.items() for w in ws),
+                      key=lambda wt: -len(wt[0]))
+    h = heading.casefold().replace("&", "and")
+    want = next((t for w, t in keywords
+                 if re.search(r"(?<![\w])" + r"\s+".join(map(re.escape, w.split())) + r"(?![\w])", h)),
+                None)
+    assert guess_clause_type(heading, rules=rules) == want
