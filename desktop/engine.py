@@ -75,7 +75,10 @@ def _open_library(folder: str, report: Report, cancelled: IsCancelled) -> Any:
         # recording of a progress bar; the count is enough.
         report(done, total, f"Indexing the precedent set: {done} of {total} files")
 
-    library = open_library(folder, progress=progress, cancel=cancelled)
+    def stage(what: str) -> None:  # the steps after the files, which have no count
+        report(0, None, f"Indexing the precedent set: {what}")
+
+    library = open_library(folder, progress=progress, cancel=cancelled, stage=stage)
     if cancelled():
         library.close()
         check_cancelled(cancelled)
@@ -116,7 +119,8 @@ def _runner(library: Any, report: Report, cancelled: IsCancelled):
 
         report(0, None, "Comparing provisions")
         vocabulary = getattr(library, "vocabulary", None) if library is not None else None
-        review = run_review(draft, precedent, overrides=tuple(overrides), vocabulary=vocabulary)
+        review = run_review(draft, precedent, overrides=tuple(overrides), vocabulary=vocabulary,
+                            stage=lambda what: report(0, None, f"Comparing provisions: {what}"))
         check_cancelled(cancelled)
         if library is not None:
             from core.library.frequency import apply_frequency

@@ -288,15 +288,19 @@ def run_review(draft: Document, precedent: Document, *,
                vocabulary: VocabularyModel | None = None,
                rules: SeverityRules | None = None,
                clause_type: Callable[[Provision, Document], str | None] | None = None,
-               timings: dict[str, float] | None = None) -> Review:
+               timings: dict[str, float] | None = None,
+               stage: Callable[[str], None] | None = None) -> Review:
     """Compare *draft* (the counterparty's) with *precedent* (the house document).
 
     *overrides* confirm, reject or add term mappings; *vocabulary* is the precedent set's
     vocabulary model (optional); *rules* the severity rules (default
     ``resources/severity.toml``); *clause_type* a better clause-type classifier than the
     rules' heading keywords (optional).  When *timings* is given it receives each stage's
-    wall-clock time in seconds (for ``benchmarks/bench_review.py``)."""
+    wall-clock time in seconds (for ``benchmarks/bench_review.py``); *stage* is told, in a
+    few words, what the review is doing as each step starts (for a progress bar)."""
     clock = _Clock(timings)
+    stage = stage or (lambda _what: None)
+    stage("reading the words and defined terms")
     rules = rules or default_rules()
     di, pi = build_docinfo(draft), build_docinfo(precedent)
     extra = [n for o in overrides for n in (o.draft, o.precedent or "") if n.strip()]
@@ -305,6 +309,7 @@ def run_review(draft: Document, precedent: Document, *,
     clock.lap("tokens: words, terms, cross-references")
 
     # 1-2. term map and alignment, twice: the substitution evidence needs an alignment.
+    stage("matching defined terms and aligning provisions")
     tm0 = map_terms(di, pi, overrides=overrides, vocabulary=vocabulary, uses=uses)
     clock.lap("term map: definitions")
     dside.to_key = tm0.to_precedent
@@ -335,6 +340,7 @@ def run_review(draft: Document, precedent: Document, *,
     d_types = clause_types_for(draft, rules=rules, classifier=clause_type)
     p_types = clause_types_for(precedent, rules=rules, classifier=clause_type)
     builder = _Builder(di, pi, dside, pside, tm, al, rules, d_types, p_types, clock)
+    stage(f"comparing the wording of {len(al.groups)} paired provision{'s' * (len(al.groups) != 1)}")
     review = builder.build()
     clock.lap("ranking and output")
     return review

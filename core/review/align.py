@@ -36,6 +36,7 @@ from __future__ import annotations
 
 import heapq
 import math
+import sys
 from bisect import bisect_left
 from collections import Counter
 from collections.abc import Sequence
@@ -277,12 +278,13 @@ class _Cosines:
     def candidates(self, n_p: int) -> set[tuple[int, int]]:
         """Each draft row's and each precedent column's CANDIDATES best counterparts by the
         bound, ties broken by relative position, at least CANDIDATE_MIN_COSINE.  Below
-        PLAIN_PRODUCT_MAX multiply-adds in plain Python (no numpy import), else with numpy
-        (imported then) in blocks of draft rows."""
+        PLAIN_PRODUCT_MAX multiply-adds in plain Python (no numpy import), else -- or when
+        numpy is loaded already (a review with the precedent set) -- with numpy in blocks of
+        draft rows."""
         n_d = self.n_d
         cost = (_product_cost(self.content[:n_d], self.content[n_d:])
                 + _product_cost(self.heads[:n_d], self.heads[n_d:]))
-        if cost <= PLAIN_PRODUCT_MAX:
+        if cost <= PLAIN_PRODUCT_MAX and "numpy" not in sys.modules:
             return self._candidates_plain(n_p)
         return self._candidates_numpy(n_p)
 
