@@ -17,7 +17,7 @@ HEADLESS_PACKAGES := xvfb xauth
 APT_INSTALL = SUDO=$$( [ "$$(id -u)" = 0 ] || echo sudo ); $$SUDO apt-get update -qq && \
 	DEBIAN_FRONTEND=noninteractive $$SUDO apt-get install -y -qq --no-install-recommends
 
-.PHONY: demo test bench system-deps gui-deps clean
+.PHONY: demo test bench bench-all system-deps gui-deps clean
 
 $(VENV)/.installed: pyproject.toml constraints.txt
 	@# Debian's python3 has no ensurepip (so no venv) until python3-venv is installed.
@@ -57,8 +57,14 @@ system-deps:
 test: $(VENV)/.installed system-deps gui-deps
 	QT_QPA_PLATFORM=offscreen $(PY) -m pytest
 
+# The speed and memory ratios of start-up, hostile inputs, size, the precedent set and the
+# window, with their targets, in one run (about 15 minutes; BENCH_ARGS=--quick for a smoke
+# run, --slow for 10,000 past agreements); bench-all runs every benchmark script.
 bench: $(VENV)/.installed
-	for b in benchmarks/bench_*.py; do $(PY) $$b || exit 1; done
+	QT_QPA_PLATFORM=offscreen $(PY) benchmarks/bench_ratios.py $(BENCH_ARGS)
+
+bench-all: $(VENV)/.installed
+	for b in benchmarks/bench_*.py; do QT_QPA_PLATFORM=offscreen $(PY) $$b || exit 1; done
 
 clean:
 	rm -rf $(VENV) build *.egg-info

@@ -37,7 +37,7 @@ def _cmd_inspect(args: argparse.Namespace) -> int:
 
     if args.json and args.json != "-":
         refuse_overwrite_of_inputs(args.json, args.file)
-    doc = read_document(args.file)
+    doc = read_document(args.file, cache=True)
     for w in doc.warnings:
         print(f"{args.file}: note: {w}", file=sys.stderr)
     if args.json:
@@ -58,8 +58,8 @@ def _cmd_review(args: argparse.Namespace) -> int:
         refuse_overwrite_of_inputs(args.json, args.draft, args.against)
         if args.save and Path(args.save).resolve() == Path(args.json).resolve():
             raise CounterdraftError("--json and --save name the same file", path=args.save)
-    draft = read_document(args.draft)
-    precedent = read_document(args.against)
+    draft = read_document(args.draft, cache=True)
+    precedent = read_document(args.against, cache=True)
     for path, doc in ((args.draft, draft), (args.against, precedent)):
         for w in doc.warnings:
             print(f"{path}: note: {w}", file=sys.stderr)
@@ -253,7 +253,7 @@ def _cmd_demo(args: argparse.Namespace) -> int:
 
     print(textwrap.fill(CAUTION, width=width))
     print()
-    draft, precedent = read_document(draft_path), read_document(precedent_path)
+    draft, precedent = read_document(draft_path, cache=True), read_document(precedent_path, cache=True)
     apply_demo_stances(library_folder)
     review = _run_review(draft, precedent, library_folder=library_folder, acting_for=DEMO_ACTING_FOR)
     print(format_review(review, width=width))
@@ -366,7 +366,7 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--issues-list", metavar="OUT", help="the issues list as .docx, .html or .csv")
     p.add_argument("--issues-all", action="store_true",
                    help="list formatting, numbering and punctuation differences in the issues list too")
-    from .export.issues import ISSUE_ORDERS, ISSUES_DEFAULT_ORDER
+    from .export.options import ISSUE_ORDERS, ISSUES_DEFAULT_ORDER
 
     p.add_argument("--order", choices=ISSUE_ORDERS, default=ISSUES_DEFAULT_ORDER,
                    help="rows of the issues list in the draft's clause order (default) or by rank")

@@ -393,7 +393,7 @@ def _default_runner(draft: Document, precedent: Document, *, overrides: Sequence
 def _read_documents(draft_path: str, precedent_path: str) -> tuple[Document, Document]:
     from .reader import read_document
 
-    return read_document(draft_path), read_document(precedent_path)
+    return read_document(draft_path, cache=True), read_document(precedent_path, cache=True)
 
 
 def new_review_file(draft_path: str | os.PathLike[str], precedent_path: str | os.PathLike[str], *,

@@ -49,6 +49,7 @@ import re
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 
+from .lazyre import lazy_compile
 from .model import Block, Provision, Segment
 
 __all__ = [
@@ -108,7 +109,7 @@ _QUOTE_CLOSE = "\"”’»"
 # Labels
 # --------------------------------------------------------------------------------------
 
-_ROMAN_RE = re.compile(r"^M{0,3}(?:CM|CD|D?C{0,3})(?:XC|XL|L?X{0,3})(?:IX|IV|V?I{0,3})$")
+_ROMAN_RE = lazy_compile(r"^M{0,3}(?:CM|CD|D?C{0,3})(?:XC|XL|L?X{0,3})(?:IX|IV|V?I{0,3})$")
 _ROMAN_VALUES = {"I": 1, "V": 5, "X": 10, "L": 50, "C": 100, "D": 500, "M": 1000}
 
 _KEYWORDS = {
@@ -129,23 +130,23 @@ _KEYWORDS = {
 _DEC_RANK = 2
 _LIST_RANK = 3
 
-_KW_RE = re.compile(
+_KW_RE = lazy_compile(
     r"(?P<kw>(?:part|article|section|clause|schedule|exhibit|annexure|annex|appendix|attachment|addendum))"
     r"(?:\s+(?P<num>\d{1,3}(?:\.\d{1,3})*|[IVXLCDMivxlcdm]{1,7}|[A-Z]{1,2}))?"
     r"(?=\W|$)",
     re.IGNORECASE,
 )
 # What may follow a keyword label: punctuation, a dash, a tab, two spaces or the end.
-_KW_TERMINATOR = re.compile(r"\s*[.:]\s*|\s*[-–—]\s+|\s+[-–—]\s*|\t\s*|\s{2,}|\s*$")
-_DEC_RE = re.compile(r"(?P<dec>\d{1,3}(?:\.\d{1,3})*)(?P<dot>\.)?(?P<sep>[ \t\u00a0]+|$)")
+_KW_TERMINATOR = lazy_compile(r"\s*[.:]\s*|\s*[-–—]\s+|\s+[-–—]\s*|\t\s*|\s{2,}|\s*$")
+_DEC_RE = lazy_compile(r"(?P<dec>\d{1,3}(?:\.\d{1,3})*)(?P<dot>\.)?(?P<sep>[ \t\u00a0]+|$)")
 #: A renumbered label glued to its heading: "2.Scope", "3.1.Definitions" (a trailing dot,
 #: then a capitalised word; "2.5million" or "1.A" are not).  Common practice, no source.
-_GLUED_DEC_RE = re.compile(r"(?P<dec>\d{1,3}(?:\.\d{1,3})*)\.(?=[A-Z][a-z])")
+_GLUED_DEC_RE = lazy_compile(r"(?P<dec>\d{1,3}(?:\.\d{1,3})*)\.(?=[A-Z][a-z])")
 #: An all-capitals word of two letters or more: "11 EXPORT RESTRICTIONS Licensee shall".
-_CAPS_WORD_RE = re.compile(r"[A-Z][A-Z'’&/-]*[A-Z]\b")
-_PAREN_RE = re.compile(r"\((?P<tok>[A-Za-z]{1,4}|\d{1,3})\)(?P<sep>[ \t\u00a0]+|$)")
-_CLOSE_RE = re.compile(r"(?P<tok>[A-Za-z]{1,4}|\d{1,3})\)(?P<sep>[ \t\u00a0]+|$)")
-_DOT_RE = re.compile(r"(?P<tok>[A-Za-z]{1,4})\.(?P<sep>[ \t\u00a0]+|$)")
+_CAPS_WORD_RE = lazy_compile(r"[A-Z][A-Z'’&/-]*[A-Z]\b")
+_PAREN_RE = lazy_compile(r"\((?P<tok>[A-Za-z]{1,4}|\d{1,3})\)(?P<sep>[ \t\u00a0]+|$)")
+_CLOSE_RE = lazy_compile(r"(?P<tok>[A-Za-z]{1,4}|\d{1,3})\)(?P<sep>[ \t\u00a0]+|$)")
+_DOT_RE = lazy_compile(r"(?P<tok>[A-Za-z]{1,4})\.(?P<sep>[ \t\u00a0]+|$)")
 
 
 def _roman_value(tok: str) -> int | None:
@@ -418,18 +419,18 @@ _DEF_VERBS = (
     r"refer\s+to|shall\s+refer\s+to|shall\s+include|includes|include|is\s+defined|are\s+defined)\b"
 )
 _TERM_Q = r"(?:[\"“](?P<t1>[^\"“”\n]{1,80}?)[\"”]|‘(?P<t2>[^‘’\n]{1,80}?)’)"
-_DEF_START_RE = re.compile(
+_DEF_START_RE = lazy_compile(
     r"\s*(?:(?:to|a|an|the)\s+)?" + _TERM_Q +
     r"(?:\s*\([^()\n]{0,80}\))?"
     r"(?P<colon>\s*[:–—]|\s+-\s)?"
     r"(?(colon)|(?:\s+[\w’'-]+){0,7}?\s*,?\s+" + _DEF_VERBS + ")",
     re.IGNORECASE,
 )
-_STRONG_DEF_RE = re.compile(
+_STRONG_DEF_RE = lazy_compile(
     r"\s*" + _TERM_Q + r"(?:\s*\([^()\n]{0,80}\))?\s+"
     r"(?:means|shall\s+mean|has\s+the\s+meaning|shall\s+have\s+the\s+meaning)\b"
 )
-_LEAD_DEF_RE = re.compile(
+_LEAD_DEF_RE = lazy_compile(
     r"\s*(?:\([^()\n]{0,80}\))?\s*(?:[:–—]|-\s|,?\s*" + _DEF_VERBS + ")", re.IGNORECASE
 )
 
@@ -483,40 +484,40 @@ def definition_start(text: str, *, lead: str | None = None, strong: bool = False
     return None
 
 
-_DEFINITIONS_HEADING_RE = re.compile(
+_DEFINITIONS_HEADING_RE = lazy_compile(
     r"^(?:definitions?|defined\s+terms|interpretation|definitions?\s+(?:and|&)\s+\w+|"
     r"\w+\s+(?:and|&)\s+definitions?)$",
     re.IGNORECASE,
 )
-_DEFINITIONS_INTRO_RE = re.compile(
+_DEFINITIONS_INTRO_RE = lazy_compile(
     r"\bfollowing\s+(?:words|terms|expressions|definitions)\b|\bdefinitions\b.{0,40}\bapply\b|"
     r"\bshall\s+have\s+the\s+(?:following\s+)?meanings\b|^in\s+this\s+[\w ]{3,40}:$",
     re.IGNORECASE,
 )
-_SIGNATURE_RE = re.compile(
+_SIGNATURE_RE = lazy_compile(
     r"^(?:in\s+witness\s+(?:whereof|of\s+which)|as\s+witness|signed\s+(?:by|for|on\s+behalf|as)\b|"
     r"executed\s+(?:as\s+a\s+deed|by|on\s+behalf|for)\b|signature\s+page\b|"
     r"this\s+(?:agreement|contract|deed)\s+has\s+been\s+(?:entered\s+into|executed|signed)\b|"
     r"signatures?\s*:?\s*$|for\s+and\s+on\s+behalf\s+of\b)",
     re.IGNORECASE,
 )
-_PARTIES_HEADING_RE = re.compile(r"^(?:the\s+)?(?:parties|between|by\s+and\s+between)\s*:?$", re.IGNORECASE)
-_PARTIES_TEXT_RE = re.compile(
+_PARTIES_HEADING_RE = lazy_compile(r"^(?:the\s+)?(?:parties|between|by\s+and\s+between)\s*:?$", re.IGNORECASE)
+_PARTIES_TEXT_RE = lazy_compile(
     r"^(?:this|the)\b.{0,120}?\b(?:agreement|contract|deed|licen[cs]e)\b.{0,160}?"
     r"\b(?:is\s+made|is\s+dated|is\s+entered\s+into|made\s+on|made\s+as\s+of|dated|between)\b"
     r"|^(?:between|by\s+and\s+between)\b",
     re.IGNORECASE | re.DOTALL,
 )
-_RECITALS_HEADING_RE = re.compile(
+_RECITALS_HEADING_RE = lazy_compile(
     r"^(?:recitals?|background|whereas|preliminary\s+statements?|witnesseth)\s*:?$", re.IGNORECASE
 )
-_RECITAL_TEXT_RE = re.compile(r"^(?:whereas|witnesseth)\b", re.IGNORECASE)
-_OPERATIVE_RE = re.compile(
+_RECITAL_TEXT_RE = lazy_compile(r"^(?:whereas|witnesseth)\b", re.IGNORECASE)
+_OPERATIVE_RE = lazy_compile(
     r"^(?:now,?\s+therefore|now\s+it\s+is|it\s+is\s+(?:hereby\s+)?agreed|the\s+parties\s+(?:hereby\s+)?agree|"
     r"agreed\s+terms|operative\s+provisions|terms\s+and\s+conditions)\b",
     re.IGNORECASE,
 )
-_RUN_IN_RE = re.compile(r"(?P<head>[^.:;!?\n]{1,120}?)(?P<sep>[.:]|\s[-–—])\s+(?P<next>\S)")
+_RUN_IN_RE = lazy_compile(r"(?P<head>[^.:;!?\n]{1,120}?)(?P<sep>[.:]|\s[-–—])\s+(?P<next>\S)")
 
 
 def _heading_like_numbered(block: Block, rest: str, label: Label) -> bool:

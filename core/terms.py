@@ -60,6 +60,7 @@ import re
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
+from .lazyre import lazy_compile
 from .model import Block, DefinedTerm, Provision
 from .structure import clean_term
 
@@ -120,7 +121,7 @@ def _body(m: re.Match[str], tag: str) -> str | None:
 
 
 _QN = _quoted(None)
-_QUOTED_RE = re.compile(_quoted("q"))
+_QUOTED_RE = lazy_compile(_quoted("q"))
 #: Between two names of a list: "A", "B" or "C"; "A" and "B"; "I"/"Me"; "A," "B".
 _LIST_SEP = r"\s*(?:,\s*|/\s*)?(?i:(?:and/or|and|or)\s+)?(?i:the\s+)?"
 #: Most names in one list.  The licence texts have lists of four ("BugSense," "we," "us,"
@@ -136,14 +137,14 @@ _VERBS = (
     r"is\s+defined|are\s+defined)\b"
 )
 #: Verbs after which a list of names are separate terms, each with the meaning given.
-_SEPARATE_VERB_RE = re.compile(r"meanings\b|same\s+meaning|\bdefined\b")
+_SEPARATE_VERB_RE = lazy_compile(r"meanings\b|same\s+meaning|\bdefined\b")
 #: "means" the noun ("Electronic means shall include"), not the verb.  Checked after a
 #: quoted term too, and more strictly without quotes, where "means that", "means which"
 #: and a comma also show the noun ("Electronic means, such as email, ...").
-_NOUN_MEANS_RE = re.compile(r"\s+(?:shall|will|may|must|is|are|was|were|of|by)\b|\s*[.;]")
-_NOUN_MEANS_UNQUOTED_RE = re.compile(
+_NOUN_MEANS_RE = lazy_compile(r"\s+(?:shall|will|may|must|is|are|was|were|of|by)\b|\s*[.;]")
+_NOUN_MEANS_UNQUOTED_RE = lazy_compile(
     r"\s+(?:shall|will|may|must|is|are|was|were|of|by|that|which|whereby)\b|\s*[.,;:]")
-_SUBJECT_RE = re.compile(
+_SUBJECT_RE = lazy_compile(
     r"(?P<list>" + _NAME_LIST + r")"
     + r"(?P<alias>\s*\([^()\n]{0,80}\))?"
     + r"(?P<between>(?:,?\s+(?!(?:means|mean|shall|will|has|have|refers|refer|includes|include)\b)"
@@ -173,13 +174,13 @@ MAX_SUBJECT_INTRO_WORDS = 8
 _INTRO_STARTS = frozenset(
     "for in as under throughout within with where wherever notwithstanding solely save "
     "except references reference a an the any each every all".split())
-_WEAK_VERB_RE = re.compile(r"\binclude")
+_WEAK_VERB_RE = lazy_compile(r"\binclude")
 #: Words between a quoted term and its verb that show a new clause: no definition then.
 _CONNECTORS = frozenset(
     "and or but that which who whom whose if when where while then because so is are was "
     "were be been shall will may must can could would should not".split())
 #: Boundaries of the clause a subject opens.
-_CLAUSE_BOUNDARY_RE = re.compile(r"[;:(\n,]|\.(?!\d)")  # a full stop, not the one of "3.2"
+_CLAUSE_BOUNDARY_RE = lazy_compile(r"[;:(\n,]|\.(?!\d)")  # a full stop, not the one of "3.2"
 
 #: Words that may stand in a parenthesis around a term being defined: (the "X"),
 #: (each a "X"), (together, the "X"), (hereinafter referred to as "X"), (or "Y").
@@ -189,23 +190,23 @@ _PAREN_CUES = frozenset(
 )
 #: Cue words after which a name is a term of its own ("each a X and together the Y").
 _SEPARATE_CUES = frozenset("and each together collectively individually jointly severally both".split())
-_PAREN_RE = re.compile(r"\((?P<inner>[^()\n]{1,200})\)")
-_HEREINAFTER_RE = re.compile(
+_PAREN_RE = lazy_compile(r"\((?P<inner>[^()\n]{1,200})\)")
+_HEREINAFTER_RE = lazy_compile(
     r"\bhereinafter(?:\s+(?:referred\s+to\s+as|called|known\s+as))?\s*,?\s*(?:the\s+)?"
     r"(?P<list>" + _NAME_LIST + ")", re.IGNORECASE)
-_COLLECTIVE_RE = re.compile(
+_COLLECTIVE_RE = lazy_compile(
     r"\b(?:each|together|collectively|individually|jointly|both)\b(?:\s*,)?(?:\s+(?:a|an|the|being))?"
     r"(?:\s*,)?\s+" + _quoted("q"), re.IGNORECASE)
-_CALLED_RE = re.compile(
+_CALLED_RE = lazy_compile(
     r"\b(?:is|are|be|being)\s+(?:called|refer(?:red|eed|ed)\s+to\s+as|known\s+as|designated\s+as|termed)\s+"
     r"(?:the\s+|an?\s+)?(?P<list>" + _NAME_LIST + ")")
-_REFER_AS_RE = re.compile(
+_REFER_AS_RE = lazy_compile(
     r"\brefer\s+to\s+" + _quoted("q") + r"\s+as\s+(?:the\s+)?(?P<list>" + _NAME_LIST + ")")
 #: "a "commercial item," as that term is defined in 48 C.F.R. 2.101": a term defined by
 #: reference to another instrument.
-_AS_DEFINED_RE = re.compile(
+_AS_DEFINED_RE = lazy_compile(
     _quoted("q") + r"\s*,?\s*as\s+(?:that|such|the|this)\s+terms?\s+(?:is|are)\s+(?:defined|used)\b")
-_SENTENCE_SPLIT_RE = re.compile(r"(?<=[.;])\s+(?=[A-Z\"“‘(])|\n\s*")
+_SENTENCE_SPLIT_RE = lazy_compile(r"(?<=[.;])\s+(?=[A-Z\"“‘(])|\n\s*")
 
 # --------------------------------------------------------------------------------------
 # Unquoted names at the start of a provision or line
@@ -221,11 +222,11 @@ _UNQUOTED_VERBS = (
     r"(?:means|shall\s+mean|will\s+mean|shall\s+have\s+the\s+meaning|has\s+the\s+meaning|"
     r"(?:shall|will)\s+refer\s+to|refers\s+to|is\s+defined\s+as)\b"
 )
-_UNQUOTED_RE = re.compile(
+_UNQUOTED_RE = lazy_compile(
     r"(?m)^[ \t]*" + _LINE_LABEL + r"(?P<name>" + _TITLE_PHRASE + r")"
     r"(?P<alias>\s*\([^()\n]{1,60}\))?"
     r"(?P<sep>[ \t]*[:–—][ \t]*|[ \t]*,?[ \t]+)(?P<verb>" + _UNQUOTED_VERBS + r")?")
-_QUOTED_LINE_START_RE = re.compile(
+_QUOTED_LINE_START_RE = lazy_compile(
     r"(?m)^[ \t]*" + _LINE_LABEL + r"(?:(?:the|a|an|to)\s+)?(?P<list>" + _NAME_LIST + r")"
     r"(?P<alias>\s*\([^()\n]{0,80}\))?\s*(?P<sep>[:–—]|\s-\s)")
 #: First words that start a sentence, never an unquoted term (common practice, no source).
@@ -233,10 +234,10 @@ _NOT_TERM_STARTS = frozenset(
     "this that these those such each every any all no none it its if in for where when "
     "whereas while our their his her your my we they he she you'll subject notwithstanding "
     "provided unless upon on at by as to from with without".split())
-_CORRESPONDING_RE = re.compile(
+_CORRESPONDING_RE = lazy_compile(
     r"(?:^|(?<=[.;]\s))(?P<names>(?:" + _QN + r"|" + _CAP_WORD + r")(?:" + _LIST_SEP
     + r"(?:" + _QN + r"|" + _CAP_WORD + r"))?)\s+(?:has|have)\s+(?:a\s+)?corresponding\s+meanings?\b")
-_DEFINITIONS_HEADING_RE = re.compile(
+_DEFINITIONS_HEADING_RE = lazy_compile(
     r"^\W*(?:(?:the\s+)?definitions?|defined\s+terms|interpretation|glossary|"
     r"definitions?\s+(?:and|&)\s+\w+|\w+\s+(?:and|&)\s+definitions?)\W*$", re.IGNORECASE)
 
@@ -479,10 +480,10 @@ def _shown(text: str, span: tuple[int, int]) -> str:
 # Definition tables and emphasised terms (from the blocks)
 # --------------------------------------------------------------------------------------
 
-_TABLE_HEADER_RE = re.compile(
+_TABLE_HEADER_RE = lazy_compile(
     r"^\W*(?:defined\s+)?(?:terms?|expressions?|words?|names?|definitions?|meanings?|"
     r"interpretations?|descriptions?)\W*$", re.IGNORECASE)
-_MEANING_START_RE = re.compile(
+_MEANING_START_RE = lazy_compile(
     r"^\W{0,2}(?:" + _UNQUOTED_VERBS + r"|[a-z])")
 
 
@@ -584,7 +585,7 @@ def _block_definitions(blocks: Sequence[Block], provisions: Sequence[Provision],
     return out
 
 
-_LEAD_VERB_RE = re.compile(r"\s*(?:\([^()\n]{1,60}\))?\s*[:–—]?\s*" + _UNQUOTED_VERBS)
+_LEAD_VERB_RE = lazy_compile(r"\s*(?:\([^()\n]{1,60}\))?\s*[:–—]?\s*" + _UNQUOTED_VERBS)
 
 
 def _lead_definition(b: Block, places: Mapping[int, _Place], texts: Mapping[str, str], *,

@@ -41,6 +41,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from .errors import CounterdraftError
+from .lazyre import lazy_compile
 from .model import Block
 from .structure import parse_label
 
@@ -173,17 +174,17 @@ class _Line:
         return len(self.raw.rstrip().expandtabs(8))
 
 
-_SETEXT_RE = re.compile(r"^\s{0,3}(=+|-+)\s*$")
-_BOX_BORDER_RE = re.compile(r"^\s*(\*{10,})\s*$")
-_BOX_INNER_RE = re.compile(r"^\s*\*(.*)\*\s*$")
-_ATX_RE = re.compile(r"^\s{0,3}(#{1,6})\s+(.*?)(?:\s+#+)?\s*$")
-_HR_RE = re.compile(r"^\s{0,3}([-*_])(?:\s*\1){2,}\s*$")
-_BULLET_RE = re.compile(r"^\s*(?:[-*+•◦▪‣●]|\u2013)\s+(?P<text>\S.*)$")
-_TXT_BULLET_RE = re.compile(r"^\s*[•◦▪‣●]\s+(?P<text>\S.*)$")
-_ORDERED_RE = re.compile(r"^\s*\d{1,3}[.)]\s+\S")
-_TABLE_RE = re.compile(r"^\s*\|.*\|\s*$")
-_TABLE_SEP_RE = re.compile(r"^\s*\|?\s*:?-{2,}:?\s*(?:\|\s*:?-{2,}:?\s*)*\|?\s*$")
-_FENCE_RE = re.compile(r"^\s{0,3}(```|~~~)")
+_SETEXT_RE = lazy_compile(r"^\s{0,3}(=+|-+)\s*$")
+_BOX_BORDER_RE = lazy_compile(r"^\s*(\*{10,})\s*$")
+_BOX_INNER_RE = lazy_compile(r"^\s*\*(.*)\*\s*$")
+_ATX_RE = lazy_compile(r"^\s{0,3}(#{1,6})\s+(.*?)(?:\s+#+)?\s*$")
+_HR_RE = lazy_compile(r"^\s{0,3}([-*_])(?:\s*\1){2,}\s*$")
+_BULLET_RE = lazy_compile(r"^\s*(?:[-*+•◦▪‣●]|\u2013)\s+(?P<text>\S.*)$")
+_TXT_BULLET_RE = lazy_compile(r"^\s*[•◦▪‣●]\s+(?P<text>\S.*)$")
+_ORDERED_RE = lazy_compile(r"^\s*\d{1,3}[.)]\s+\S")
+_TABLE_RE = lazy_compile(r"^\s*\|.*\|\s*$")
+_TABLE_SEP_RE = lazy_compile(r"^\s*\|?\s*:?-{2,}:?\s*(?:\|\s*:?-{2,}:?\s*)*\|?\s*$")
+_FENCE_RE = lazy_compile(r"^\s{0,3}(```|~~~)")
 _FRONT_MATTER_MAX_LINES = 60
 
 
@@ -318,7 +319,7 @@ def _wrap_width(lines: Sequence[_Line]) -> int | None:
 
 _SENTENCE_END = (".", ":", ";", "?", "!", ".\"", ".”", ":\"")
 #: How a list item ends before the next item: "...; and" / "...; or" / "..., and/or".
-_ITEM_END_RE = re.compile(r"[;,]\s*(?:and|or|and/or|but)$")
+_ITEM_END_RE = lazy_compile(r"[;,]\s*(?:and|or|and/or|but)$")
 
 
 def _indent(line: _Line) -> int:
@@ -384,14 +385,14 @@ def _join(lines: Sequence[_Line]) -> str:
 # Markdown inline markup
 # --------------------------------------------------------------------------------------
 
-_MD_ESCAPE_RE = re.compile(r"\\([\\`*_{}\[\]()#+\-.!|>~])")
-_MD_IMAGE_RE = re.compile(r"!\[([^\]]*)\]\([^)]*\)")
-_MD_LINK_RE = re.compile(r"\[([^\]]+)\]\([^)]*\)")
-_MD_CODE_RE = re.compile(r"`([^`]*)`")
-_MD_BOLD_RE = re.compile(r"(\*\*|__)(?=\S)(.+?)(?<=\S)\1")
-_MD_ITALIC_STAR_RE = re.compile(r"(?<![\w*])\*(?=\S)(.+?)(?<=\S)\*(?![\w*])")
-_MD_ITALIC_UNDER_RE = re.compile(r"(?<![\w_])_(?=\S)(.+?)(?<=\S)_(?![\w_])")
-_MD_STRIKE_RE = re.compile(r"~~(.+?)~~")
+_MD_ESCAPE_RE = lazy_compile(r"\\([\\`*_{}\[\]()#+\-.!|>~])")
+_MD_IMAGE_RE = lazy_compile(r"!\[([^\]]*)\]\([^)]*\)")
+_MD_LINK_RE = lazy_compile(r"\[([^\]]+)\]\([^)]*\)")
+_MD_CODE_RE = lazy_compile(r"`([^`]*)`")
+_MD_BOLD_RE = lazy_compile(r"(\*\*|__)(?=\S)(.+?)(?<=\S)\1")
+_MD_ITALIC_STAR_RE = lazy_compile(r"(?<![\w*])\*(?=\S)(.+?)(?<=\S)\*(?![\w*])")
+_MD_ITALIC_UNDER_RE = lazy_compile(r"(?<![\w_])_(?=\S)(.+?)(?<=\S)_(?![\w_])")
+_MD_STRIKE_RE = lazy_compile(r"~~(.+?)~~")
 
 
 def _md_plain(text: str) -> str:

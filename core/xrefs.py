@@ -62,6 +62,7 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 
 from .labels import MAX_DEPTH
+from .lazyre import lazy_compile
 from .model import Document, Provision, Segment
 from .review.docinfo import DocInfo, build_docinfo, item_label
 
@@ -158,7 +159,7 @@ _QUALIFIER_RE = re.compile(r"[^\S\n]*,?\s+(?:of|in|under|to|from)\s+", re.IGNORE
 _THIS_RE = re.compile(r"(?:this|these)\s+(?P<word>[A-Za-z-]+)", re.IGNORECASE)
 #: A capitalised name after "of": "the Companies Act 2006", "the GNU GPL", "the Treaty on
 #: the Functioning of the European Union", "Regulation (EU) 2016/679".
-_NAME_RE = re.compile(
+_NAME_RE = lazy_compile(  # compiling it takes longer than most reviews' use of it
     r"(?:(?i:the|that|such|said)\s+)?(?P<name>(?:[A-Z][\w.&'\u2019/-]*)"
     r"(?:\s+(?:[A-Z][\w.&'\u2019/-]*|\([A-Z][\w.]*\)|of|and|for|on|the|in|\d{1,4}(?:/\d+)?))*)")
 #: Words that make a name another instrument (common practice, no source).

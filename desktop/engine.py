@@ -76,7 +76,10 @@ def _open_library(folder: str, report: Report, cancelled: IsCancelled) -> Any:
         # recording of a progress bar; the count is enough.
         report(done, total, f"Indexing the precedent set: {done} of {total} files")
 
-    library = open_library(folder, progress=progress, cancel=cancelled)
+    def stage(what: str) -> None:  # the steps after the files, which have no count
+        report(0, None, f"Indexing the precedent set: {what}")
+
+    library = open_library(folder, progress=progress, cancel=cancelled, stage=stage)
     if cancelled():
         library.close()
         check_cancelled(cancelled)
@@ -119,7 +122,8 @@ def _runner(library: Any, report: Report, cancelled: IsCancelled):
         report(0, None, "Comparing provisions")
         vocabulary = getattr(library, "vocabulary", None) if library is not None else None
         review = run_review(draft, precedent, overrides=tuple(overrides), vocabulary=vocabulary,
-                            acting_for=acting_for)
+                            acting_for=acting_for,
+                            stage=lambda what: report(0, None, f"Comparing provisions: {what}"))
         check_cancelled(cancelled)
         if library is not None:
             from core.library.frequency import apply_frequency
@@ -144,10 +148,10 @@ def load_and_review(
     from core.reader import read_document
 
     report(0, None, f"Reading {Path(inputs.draft).name}")
-    draft = read_document(inputs.draft)
+    draft = read_document(inputs.draft, cache=True)
     check_cancelled(cancelled)
     report(0, None, f"Reading {Path(inputs.precedent).name}")
-    precedent = read_document(inputs.precedent)
+    precedent = read_document(inputs.precedent, cache=True)
     check_cancelled(cancelled)
     library = None
     if inputs.library:

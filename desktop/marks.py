@@ -10,6 +10,7 @@ from __future__ import annotations
 
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
+from functools import lru_cache
 
 from core.model import Edit
 
@@ -60,9 +61,19 @@ def term_marks(text: str, names: Iterable[str]) -> list[Mark]:
     """TERM marks on every use of the defined terms *names* in *text*, as the engine finds
     them (:func:`core.review.tokens.find_term_uses`: singular, plural and possessive forms,
     longest term first)."""
-    from core.review.tokens import find_term_uses, term_matcher
+    from core.review.tokens import find_term_uses
 
-    return [Mark(u.start, u.end, TERM) for u in find_term_uses(text, term_matcher(names))]
+    return [Mark(u.start, u.end, TERM) for u in find_term_uses(text, _matcher(tuple(names)))]
+
+
+@lru_cache(maxsize=8)
+def _matcher(names: tuple[str, ...]):  # noqa: ANN202 - core.review.tokens.TermMatcher | None
+    """The engine's matcher of *names*, built once per set of names: a review's side-by-side
+    view marks every row's two texts with the same names (building the matcher for each cell
+    took longer than the rest of showing a review)."""
+    from core.review.tokens import term_matcher
+
+    return term_matcher(names)
 
 
 def without(marks: Iterable[Mark], hidden: Sequence[tuple[int, int]]) -> list[Mark]:

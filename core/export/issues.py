@@ -59,6 +59,7 @@ from .common import (
     map_offset,
     stamp_date,
 )
+from .options import ISSUE_ORDERS, ISSUES_DEFAULT_ORDER
 
 __all__ = [
     "CHANGE_CONTEXT_WORDS",
@@ -108,12 +109,8 @@ ISSUE_CSV_COLUMNS = (*ISSUE_COLUMNS, _PRECEDENT_WORDS_COLUMN, _DRAFT_WORDS_COLUM
 #: --issues-all`` shows them).
 ISSUES_DEFAULT_INCLUDE: tuple[str, ...] = ("substantive", "completion", "term")
 
-#: Row orders: ``"clause"`` follows the draft (a provision the draft left out sits where it
-#: would have been), ``"rank"`` the review's ranking by severity.
-ISSUE_ORDERS: tuple[str, ...] = ("clause", "rank")
-#: Issues lists are usually read alongside the agreement, clause by clause (common practice,
-#: no source); the rank stays visible as each row's number.
-ISSUES_DEFAULT_ORDER = "clause"
+# ISSUE_ORDERS and ISSUES_DEFAULT_ORDER live in .options (the command line reads them
+# without importing this module).
 
 #: Words quoted on each side of the changed words in "What changed", within their sentence:
 #: enough to say where the change sits ("within thirty (30) days of the"), few enough that

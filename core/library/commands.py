@@ -229,8 +229,7 @@ def _add_common(p: argparse.ArgumentParser, *, dir_optional: bool) -> None:
 
 def add_library_parser(sub) -> None:  # noqa: ANN001 - argparse's subparsers action
     """Register ``counterdraft library build|stats|label|calibrate|patterns``."""
-    from .index import POSITIONS
-    from .variants import LINKAGES, METRICS
+    from .options import LINKAGES, METRICS, POSITIONS
 
     lib = sub.add_parser("library", help="index the firm's past agreements (the precedent set)")
     lsub = lib.add_subparsers(dest="library_command", required=True)

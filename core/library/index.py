@@ -90,6 +90,7 @@ from ..fileio import atomic_write_bytes, exclusive, file_sha256, remove_orphaned
 from .bucketcache import BucketArrays, assemble, compact, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
 from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
+from .options import FORMER_POSITIONS, POSITIONS
 from .variants import RegroupTooLarge, VariantConfig, cluster_wordings, regroup
 
 __all__ = [
@@ -159,16 +160,6 @@ CLUSTER_DRIFT = 0.10
 #: starting a process and importing gensim in it (about a second) costs more than it saves.
 PARALLEL_TRAINING_MIN_WORDS = 200_000
 
-#: The firm's stance on a wording variant, most favoured first (our own names): the wording
-#: the firm itself drafts with; one it can live with; one it concedes only as a last resort;
-#: one it refuses.
-POSITIONS: tuple[str, ...] = ("house wording", "can live with", "last concession", "refuse")
-#: The names an index or a review file written by an earlier version used, and the stance
-#: each now reads as (an index is converted in place when it is opened: :func:`_migrate_positions`).
-FORMER_POSITIONS: Mapping[str, str] = {
-    "preferred": "house wording", "acceptable": "can live with", "fallback": "last concession",
-    "not acceptable": "refuse",
-}
 
 
 def position_name(given: str) -> tuple[str, str | None]:
@@ -184,6 +175,9 @@ def position_name(given: str) -> tuple[str, str | None]:
     raise CounterdraftError(f"position must be one of: {', '.join(POSITIONS)} (or none)")
 
 Progress = Callable[[int, int, str], None]
+#: Told what a build is doing once the files are read ("grouping wording variants"), for a
+#: progress bar: those steps have no count.
+Stage = Callable[[str], None]
 Cancel = Callable[[], bool]
 
 _SCHEMA = """
@@ -650,10 +644,13 @@ def _read_many(paths: Sequence[str], *, workers: int) -> Iterator[_Extract | _Pr
 def build_library(root: str | os.PathLike[str], *, db_path: str | os.PathLike[str] | None = None,
                   progress: Progress | None = None, cancel: Cancel | Any | None = None,
                   workers: int = 2, config: VariantConfig | None = None,
-                  vocabulary: bool = True, exclude: Sequence[str | os.PathLike[str]] = ()) -> BuildReport:
+                  vocabulary: bool = True, exclude: Sequence[str | os.PathLike[str]] = (),
+                  stage: Stage | None = None) -> BuildReport:
     """Build or refresh the index of the agreements under *root*; see the module docstring.
 
-    *progress* is called as ``progress(done, total, relative_path)`` once per candidate file;
+    *progress* is called as ``progress(done, total, relative_path)`` once per candidate file,
+    *stage* with a few words as each later step starts (those that run: nothing when no file
+    changed);
     *cancel* is a callable returning True (or a ``threading.Event``) to stop between files:
     what was read so far is kept and the next build finishes the job.  *config* sets the
     variant clustering (stored; a change re-clusters).  *vocabulary* False skips training the
@@ -672,12 +669,12 @@ def build_library(root: str | os.PathLike[str], *, db_path: str | os.PathLike[st
     with exclusive(db):
         remove_orphaned_parts(db.parent)
         return _build_locked(root_p, db, progress=progress, cancel=cancel, workers=workers,
-                             config=config, vocabulary=vocabulary, exclude=exclude)
+                             config=config, vocabulary=vocabulary, exclude=exclude, stage=stage)
 
 
 def _build_locked(root_p: Path, db: Path, *, progress: Progress | None, cancel: Cancel | Any | None,
                   workers: int, config: VariantConfig | None, vocabulary: bool,
-                  exclude: Sequence[str | os.PathLike[str]]) -> BuildReport:
+                  exclude: Sequence[str | os.PathLike[str]], stage: Stage | None = None) -> BuildReport:
     started = time.perf_counter()
     rebuilt: str | None = None
     while True:
@@ -686,7 +683,7 @@ def _build_locked(root_p: Path, db: Path, *, progress: Progress | None, cancel: 
             try:
                 report = _build_into(conn, root_p, db, progress=progress, cancel=cancel, workers=workers,
                                      config=config, vocabulary=vocabulary, exclude=exclude,
-                                     fresh=rebuilt is not None)
+                                     fresh=rebuilt is not None, stage=stage)
             finally:
                 conn.close()
         except (_Unusable, sqlite3.DatabaseError) as err:
@@ -705,7 +702,7 @@ def _build_locked(root_p: Path, db: Path, *, progress: Progress | None, cancel: 
 
 def _build_into(conn: sqlite3.Connection, root_p: Path, db: Path, *, progress: Progress | None,
                 cancel: Cancel | Any | None, workers: int, config: VariantConfig | None, vocabulary: bool,
-                exclude: Sequence[str | os.PathLike[str]], fresh: bool) -> BuildReport:
+                exclude: Sequence[str | os.PathLike[str]], fresh: bool, stage: Stage | None = None) -> BuildReport:
     """The body of :func:`build_library` on an open index (*fresh*: it replaces a damaged one,
     so the derived files beside it are rewritten even if the folder holds no agreement)."""
     if fresh:
@@ -727,7 +724,8 @@ def _build_into(conn: sqlite3.Connection, root_p: Path, db: Path, *, progress: P
     if changed and not cancelled:
         _set_meta(conn, "stale", "1")
         conn.commit()
-        cancelled = not _refresh_derived(conn, db.parent, cancel=cancel, vocabulary=vocabulary)
+        cancelled = not _refresh_derived(conn, db.parent, cancel=cancel, vocabulary=vocabulary,
+                                         stage=stage or (lambda _what: None))
         if not cancelled:
             _set_meta(conn, "stale", "0")
             _set_meta(conn, "generation", str(int(_meta(conn, "generation") or 0) + 1))
@@ -861,19 +859,22 @@ def _doc_replacer(terms: Sequence[str], aliases: Mapping[str, str]) -> TermRepla
 
 
 def _refresh_derived(conn: sqlite3.Connection, folder: Path, *, cancel: Cancel | Any | None,
-                     vocabulary: bool) -> bool:
+                     vocabulary: bool, stage: Stage) -> bool:
     """Refresh what is computed from the documents, only where something changed (the module
     docstring).  False when cancelled: what is done is kept, the rest stays marked."""
     _upgrade_derived(conn, folder)
+    stage("normalising the wordings")
     aliases = _refresh_aliases(conn)
     normalised = _normalise_pending(conn, aliases, cancel=cancel)
     if normalised is None or _cancelled(cancel):
         return False
+    stage("typing the clauses")
     _retype_by_neighbours(conn, folder, normalised)
     conn.commit()
     if _cancelled(cancel):
         return False
     training = _start_vocabulary(conn, folder, aliases) if vocabulary else None
+    stage("grouping the wording variants")
     try:
         done = _refresh_variants(conn, folder, cancel=cancel)
     except BaseException:
@@ -882,6 +883,7 @@ def _refresh_derived(conn: sqlite3.Connection, folder: Path, *, cancel: Cancel |
         raise
     if training is not None:
         if done:
+            stage("training the vocabulary model")
             training.finish(conn)
         else:
             training.stop()
@@ -1639,10 +1641,12 @@ class Library:
 
 def open_library(root: str | os.PathLike[str] | None = None, *, db_path: str | os.PathLike[str] | None = None,
                  refresh: bool = True, progress: Progress | None = None, cancel: Cancel | Any | None = None,
-                 workers: int = 2, exclude: Sequence[str | os.PathLike[str]] = ()) -> Library:
+                 workers: int = 2, exclude: Sequence[str | os.PathLike[str]] = (),
+                 stage: Stage | None = None) -> Library:
     """Open the index of the precedent set in *root* (default index path
     ``root/.counterdraft/library.sqlite``, or *db_path*), building or refreshing it first
-    when *refresh* (then ``library.report`` holds the :class:`BuildReport`)."""
+    when *refresh* (then ``library.report`` holds the :class:`BuildReport`; *progress* and
+    *stage* as for :func:`build_library`)."""
     if root is None and db_path is None:
         raise CounterdraftError("give the precedent-set folder or the index path")
     report = None
@@ -1650,7 +1654,7 @@ def open_library(root: str | os.PathLike[str] | None = None, *, db_path: str | o
         if root is None:
             raise CounterdraftError("refreshing the index needs the precedent-set folder")
         report = build_library(root, db_path=db_path, progress=progress, cancel=cancel, workers=workers,
-                               exclude=exclude)
+                               exclude=exclude, stage=stage)
     db = Path(db_path) if db_path is not None else default_db_path(root)  # type: ignore[arg-type]
     lib = Library(db, root=root)
     lib.report = report

@@ -31,6 +31,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .options import LINKAGES, METRICS
+
 __all__ = [
     "DEFAULT_CUTOFF",
     "DEFAULT_LINKAGE",
@@ -52,9 +54,6 @@ __all__ = [
     "set_distance",
 ]
 
-METRICS: tuple[str, ...] = ("jaccard", "dice")
-#: Linkages both scipy and scikit-learn offer on a precomputed distance matrix.
-LINKAGES: tuple[str, ...] = ("average", "complete", "single")
 DEFAULT_METRIC = "jaccard"
 DEFAULT_LINKAGE = "average"
 #: See the module docstring; measured on the demo precedent set, where variants of one clause

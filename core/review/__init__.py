@@ -68,7 +68,7 @@ from .severity import (
     is_weight_reason,
     provision_change_severity,
 )
-from .spans import corresponding_spans
+from .spans import AlignedPoints
 from .termmap import (
     TermMap,
     TermOverride,
@@ -87,7 +87,7 @@ from .tokens import (
     term_matcher,
     word_keys,
 )
-from .worddiff import TokenOp, pair_edits_from_ops, token_ops
+from .worddiff import pair_edits_from_ops, token_ops
 
 __all__ = ["NO_SHARED_NOTE", "TermOverride", "VocabularyModel", "clear_caches", "review_to_dict",
            "run_review"]
@@ -171,18 +171,33 @@ def _label(info: DocInfo, pos: int, *, with_heading: bool = True) -> str:
 
 
 def _with_context(text: str, span: tuple[int, int]) -> tuple[int, int]:
-    """*span*, with a word of context each side when ``text[span]`` has no letter or digit."""
+    """*span*, with a word of context each side when ``text[span]`` has no letter or digit
+    (up to _CONTEXT_WORDS words, each with the white space between it and the span).  Cost:
+    the words and white space stepped over, not the text."""
     a, b = span
     s = text[a:b]
     if not s or any(c.isalnum() for c in s):
         return span
-    left = text[:a]
-    m = re.search(r"(\S+\s*){1,%d}$" % _CONTEXT_WORDS, left)
-    if m:
-        a = m.start()
-    m = re.match(r"(\s*\S+){1,%d}" % _CONTEXT_WORDS, text[b:])
-    if m:
-        b += m.end()
+    for _ in range(_CONTEXT_WORDS):
+        i = a
+        while i > 0 and text[i - 1].isspace():
+            i -= 1
+        j = i
+        while j > 0 and not text[j - 1].isspace():
+            j -= 1
+        if j == i:
+            break
+        a = j
+    for _ in range(_CONTEXT_WORDS):
+        i = b
+        while i < len(text) and text[i].isspace():
+            i += 1
+        j = i
+        while j < len(text) and not text[j].isspace():
+            j += 1
+        if j == i:
+            break
+        b = j
     return a, b
 
 
@@ -285,7 +300,8 @@ def run_review(draft: Document, precedent: Document, *,
                rules: SeverityRules | None = None,
                clause_type: Callable[[Provision, Document], str | None] | None = None,
                acting_for: str | None = None,
-               timings: dict[str, float] | None = None) -> Review:
+               timings: dict[str, float] | None = None,
+               stage: Callable[[str], None] | None = None) -> Review:
     """Compare *draft* (the counterparty's) with *precedent* (the house document).
 
     *overrides* confirm, reject or add term mappings; *vocabulary* is the precedent set's
@@ -296,8 +312,11 @@ def run_review(draft: Document, precedent: Document, *,
     deviation is then judged adverse, favourable, neutral or unclear for it, and ranked so;
     an unknown party raises :class:`CounterdraftError` naming the party terms found.  When
     *timings* is given it receives each stage's wall-clock time in seconds (for
-    ``benchmarks/bench_review.py``)."""
+    ``benchmarks/bench_review.py``); *stage* is told, in a few words, what the review is doing
+    as each step starts (for a progress bar)."""
     clock = _Clock(timings)
+    stage = stage or (lambda _what: None)
+    stage("reading the words and defined terms")
     rules = rules or default_rules()
     if acting_for is not None:
         acting_for = resolve_acting_for(precedent, acting_for)
@@ -308,6 +327,7 @@ def run_review(draft: Document, precedent: Document, *,
     clock.lap("tokens: words, terms, cross-references")
 
     # 1-2. term map and alignment, twice: the substitution evidence needs an alignment.
+    stage("matching defined terms and aligning provisions")
     tm0 = map_terms(di, pi, overrides=overrides, vocabulary=vocabulary, uses=uses)
     clock.lap("term map: definitions")
     dside.to_key = tm0.to_precedent
@@ -339,6 +359,7 @@ def run_review(draft: Document, precedent: Document, *,
     p_types = clause_types_for(precedent, rules=rules, classifier=clause_type)
     builder = _Builder(di, pi, dside, pside, tm, al, rules, d_types, p_types, clock)
     builder.acting_for = acting_for
+    stage(f"comparing the wording of {len(al.groups)} paired provision{'s' * (len(al.groups) != 1)}")
     review = builder.build()
     clock.lap("ranking and output")
     review = replace(review, checks=review_checks(review))
@@ -370,12 +391,16 @@ def _sides(di: DocInfo, pi: DocInfo, names: Sequence[str]
 def clear_caches() -> None:
     """Forget the engine's caches of token keys, figures and phrase matches (they only
     speed up reviews of the same texts; benchmarks clear them to time cold runs)."""
+    from .figures import clear_skip_cache
     from .noise import clear_label_cache
     from .severity import clear_caches as _clear_severity
     from .tokens import clear_token_cache
+    from .worddiff import clear_diff_cache
 
     clear_token_cache()
+    clear_diff_cache()
     clear_label_cache()
+    clear_skip_cache()
     _clear_severity()
 
 
@@ -464,21 +489,19 @@ class _Builder:
                 a, b = min(a, qs), max(b, qe)
         return _with_context(text, (a, b))
 
-    def _shown_spans(self, ch: Change, ptext: str, dtext: str,
-                     diff: tuple[Sequence[TokenOp], TokenSeq, TokenSeq] | None
+    def _shown_spans(self, ch: Change, ptext: str, dtext: str, points: AlignedPoints | None
                      ) -> tuple[tuple[int, int], tuple[int, int]]:
         """Corresponding spans of the words shown on each side (see :mod:`.spans`); without
         a diff (a heading as a whole) each side's widened span, trimmed."""
         pw = self._widened(ptext, ch.p_span) if ch.change != "insert" else ch.p_span
         dw = self._widened(dtext, ch.d_span) if ch.change != "delete" else ch.d_span
-        if diff is not None:
-            ops, a, b = diff
-            return corresponding_spans(ops, a, b, precedent=pw, draft=dw)
+        if points is not None:
+            return points.spans(precedent=pw, draft=dw)
         return _trimmed(ptext, pw), _trimmed(dtext, dw)
 
     def _add_change(self, ch: Change, *, ptext: str, pstarts: Sequence[int], ppos: Sequence[int],
                     dtext: str, dstarts: Sequence[int], dpos: Sequence[int], heading: bool,
-                    diff: tuple[Sequence[TokenOp], TokenSeq, TokenSeq] | None = None) -> None:
+                    points: AlignedPoints | None = None) -> None:
         if ch.category == "term":
             return  # reported once per term pair
         pk = bisect_right(pstarts, ch.p_span[0]) - 1
@@ -489,7 +512,7 @@ class _Builder:
         dlen = len(self.di.provisions[dp].text) if not heading else len(dtext)
         pspan = (ch.p_span[0] - p0, min(ch.p_span[1] - p0, plen))
         dspan = (ch.d_span[0] - d0, min(ch.d_span[1] - d0, dlen))
-        (pa, pb), (da, db) = self._shown_spans(ch, ptext, dtext, diff)
+        (pa, pb), (da, db) = self._shown_spans(ch, ptext, dtext, points)
         # Shown spans are clipped to the provision that holds the change (a split or merged
         # group joins several provisions' texts with "\n").
         pa, pb = min(max(pa, p0), p0 + plen), min(max(pb, p0), p0 + plen)
@@ -559,13 +582,14 @@ class _Builder:
                     self._quantities(dtext, [b.span(op.j1, op.j2) for op in changed]))
         changes = classify_ops(a, b, ops, self._ctx(dterm, pterm), keep_together=together)
         clock.lap("classification")
+        points = AlignedPoints(ops, a, b)
         for whole in changes:
             for ch in _per_provision(whole, ptext, pstarts, dtext, dstarts):
                 if ch.category not in ("term", "numbering"):
                     counted += 1
                 self._add_change(ch, ptext=ptext, pstarts=pstarts, ppos=g.precedents,
                                  dtext=dtext, dstarts=dstarts, dpos=g.drafts, heading=False,
-                                 diff=(ops, a, b))
+                                 points=points)
         clock.lap("severity")
         return self._heading_changes(g, counted)
 

@@ -7,13 +7,14 @@ by the precedent's and cross-reference numbers have been blanked.
 1. **Cheap bound.**  Both documents' provisions become TF-IDF vectors (sub-linear term
    frequency, smoothed inverse document frequency; the weighting of scikit-learn's
    ``TfidfVectorizer(sublinear_tf=True)``) of their words and of their heading words; one
-   sparse product gives every cosine similarity.  Each provision keeps its
-   :data:`CANDIDATES` best counterparts by cosine (in both directions).
+   sparse product gives every cosine similarity (in plain Python for short documents, with
+   numpy above :data:`PLAIN_PRODUCT_MAX` multiply-adds).  Each provision
+   keeps its :data:`CANDIDATES` best counterparts by cosine (in both directions).
 2. **Exact score** for the candidates only: :func:`pair_similarity`, a mix of the Indel
    similarity of the word sequences (rapidfuzz, with a score cut-off), the cosine, and the
    heading similarity.  Pairs below :data:`ALIGN_MIN` are no match.
 3. **Global solution**: a maximum-weight one-to-one assignment
-   (``scipy.optimize.linear_sum_assignment``) on each connected component of the candidate
+   (:func:`.assignment.max_weight_assignment`) on each connected component of the candidate
    graph (the assignment decomposes exactly over components), with a small bonus for the
    same relative position and, in a second round, for children of paired parents.
    Definitions of the same term (after the term map) are always paired, and so are the
@@ -24,24 +25,26 @@ by the precedent's and cross-reference numbers have been blanked.
 5. **Moved**: pairs outside a longest increasing subsequence of precedent positions taken in
    draft order (:func:`longest_increasing_subsequence`, O(n log n)).
 
-Cost: O(V + n·k) to build the sparse vectors, a sparse product computed in blocks of rows
-(O(n_d·n_p) multiplications but memory for one block only), O(n·k) exact scores each O(len²/64)
+Cost: O(V + n·k) to build the sparse vectors, a sparse product (one multiply-add per word
+shared by a draft and a precedent provision; with numpy, in blocks of rows, memory for one
+block only), O(n·k) exact scores each O(len²/64)
 (bit-parallel LCS), and the assignment on components (cubic in the component size; the
 components are small because only near matches are joined).
 """
 
 from __future__ import annotations
 
+import heapq
 import math
+import sys
 from bisect import bisect_left
 from collections import Counter
 from collections.abc import Sequence
 from dataclasses import dataclass
 
-import numpy as np
-import scipy.sparse as sp
 from rapidfuzz.distance import Indel
-from scipy.optimize import linear_sum_assignment
+
+from .assignment import max_weight_assignment
 
 __all__ = [
     "ALIGN_MIN",
@@ -86,7 +89,20 @@ SIBLING_WINDOW = 2 * CANDIDATES
 #: the same alignment; 0.05 keeps a threefold margin under 0.16 and still drops about 70% of
 #: the demo's pairs (24,324 of 34,782) before the top-CANDIDATES selection.
 CANDIDATE_MIN_COSINE = 0.05
-#: Draft rows per block of the cosine computation (a block holds BLOCK_ROWS x n_p cosines:
+#: Up to this many multiply-adds (the sum over words of draft provisions x precedent
+#: provisions that hold the word), the cosine bound is computed in plain Python; above it with
+#: numpy, whose import (about 60 ms) costs as much as about 150,000 plain multiply-adds on
+#: this 2-core machine (about 0.4 us each; numpy's are some hundred times cheaper).  A 3-page
+#: pair needs about 5,000, a 50-page pair about 650,000.
+PLAIN_PRODUCT_MAX = 150_000
+#: Most (draft row, word, precedent row) triples gathered at once by the numpy product (a
+#: block's arrays: about 32 bytes a triple, so 1,000,000 triples hold about 32 MB).
+BLOCK_TRIPLES = 1_000_000
+#: A word goes through the dense matrix product when (draft rows with it) x (precedent rows
+#: with it) is at least this share of all pairs: gathering a triple costs numpy about 30
+#: times a multiply-add of the dense product (BLAS), which touches every pair.
+DENSE_SHARE = 1 / 32
+#: Most draft rows per block of the cosine computation (a block holds BLOCK_ROWS x n_p cosines:
 #: 4 MB for a 1,000-provision precedent).
 BLOCK_ROWS = 512
 #: Weight of the heading in the similarity when both provisions have one: a heading is a few
@@ -200,109 +216,261 @@ def longest_increasing_subsequence(values: Sequence[float]) -> list[int]:
     return out
 
 
-def _tfidf(seqs: Sequence[Sequence[str]]) -> sp.csr_matrix:
-    """Rows: l2-normalised TF-IDF vectors (1 + log tf; idf = ln((1+N)/(1+df)) + 1)."""
+Row = dict[int, float]
+
+
+def _tfidf(seqs: Sequence[Sequence[str]]) -> list[Row]:
+    """Rows: l2-normalised TF-IDF vectors (1 + log tf; idf = ln((1+N)/(1+df)) + 1) as
+    {word id: weight}, word ids in order of first appearance."""
     vocab: dict[str, int] = {}
-    indptr = [0]
-    indices: list[int] = []
-    data: list[float] = []
+    counted: list[Counter[int]] = []
     df: Counter[int] = Counter()
     for seq in seqs:
-        counts = Counter(seq)
-        for w, c in counts.items():
-            j = vocab.setdefault(w, len(vocab))
-            indices.append(j)
-            data.append(1.0 + math.log(c))
-            df[j] += 1
-        indptr.append(len(indices))
+        counts = Counter(vocab.setdefault(w, len(vocab)) for w in seq)
+        df.update(counts.keys())
+        counted.append(counts)
     n = len(seqs)
-    m = sp.csr_matrix((np.asarray(data, dtype=np.float64), np.asarray(indices, dtype=np.int64),
-                       np.asarray(indptr, dtype=np.int64)), shape=(n, max(1, len(vocab))))
-    if vocab:
-        idf = np.ones(len(vocab))
-        for j, d in df.items():
-            idf[j] = math.log((1 + n) / (1 + d)) + 1.0
-        m = m @ sp.diags(idf)
-    norms = np.sqrt(np.asarray(m.multiply(m).sum(axis=1)).ravel())
-    norms[norms == 0] = 1.0
-    return sp.csr_matrix(sp.diags(1.0 / norms) @ m)
+    idf = {j: math.log((1 + n) / (1 + d)) + 1.0 for j, d in df.items()}
+    rows: list[Row] = []
+    for counts in counted:
+        row = {j: (1.0 + math.log(c)) * idf[j] for j, c in counts.items()}
+        norm = math.sqrt(sum(x * x for x in row.values())) or 1.0
+        rows.append({j: x / norm for j, x in row.items()})
+    return rows
+
+
+def _dot(x: Row, y: Row) -> float:
+    if len(x) > len(y):
+        x, y = y, x
+    return sum(v * y[k] for k, v in x.items() if k in y)
+
+
+def _product_cost(d_rows: Sequence[Row], p_rows: Sequence[Row]) -> int:
+    """Multiply-adds of the sparse product of the draft rows by the precedent rows: the sum
+    over words of (draft rows with the word) x (precedent rows with it)."""
+    dd: Counter[int] = Counter(j for r in d_rows for j in r)
+    dp: Counter[int] = Counter(j for r in p_rows for j in r)
+    return sum(c * dp[j] for j, c in dd.items())
+
+
+def _top(scored: Sequence[tuple[float, int]], k: int) -> list[int]:
+    """The indices of the *k* best (score, index) pairs: highest score, then lowest index."""
+    return [i for _s, i in heapq.nsmallest(k, ((-s, i) for s, i in scored))]
 
 
 class _Cosines:
-    """The TF-IDF cosines of draft rows against precedent rows, computed in blocks of
-    :data:`BLOCK_ROWS` draft rows so that memory stays linear in the documents' length;
-    the cosines of the candidate pairs are kept, others computed when asked for."""
+    """The TF-IDF cosines of draft rows against precedent rows (content and heading); the
+    cosines of the candidate pairs are kept, others computed when asked for."""
 
-    def __init__(self, content: sp.csr_matrix, heads: sp.csr_matrix, n_d: int) -> None:
+    def __init__(self, content: Sequence[Row], heads: Sequence[Row], n_d: int) -> None:
         self.content, self.heads = content, heads
-        self.d_content, self.p_content_t = content[:n_d], content[n_d:].T.tocsc()
-        self.d_heads, self.p_heads_t = heads[:n_d], heads[n_d:].T.tocsc()
         self.n_d = n_d
         self.known: dict[tuple[int, int], tuple[float, float]] = {}
-        self._rows: dict[tuple[int, int], dict[int, float]] = {}
-
-    def _row(self, m: sp.csr_matrix, which: int, i: int) -> dict[int, float]:
-        key = (which, i)
-        row = self._rows.get(key)
-        if row is None:
-            a, b = m.indptr[i], m.indptr[i + 1]
-            row = self._rows[key] = dict(zip(m.indices[a:b].tolist(), m.data[a:b].tolist()))
-        return row
-
-    def _dot(self, m: sp.csr_matrix, which: int, i: int, j: int) -> float:
-        x, y = self._row(m, which, i), self._row(m, which, j)
-        if len(x) > len(y):
-            x, y = y, x
-        return sum(v * y[k] for k, v in x.items() if k in y)
 
     def get(self, d: int, p: int) -> tuple[float, float]:
         v = self.known.get((d, p))
         if v is None:
             q = self.n_d + p
-            v = self.known[(d, p)] = (self._dot(self.content, 0, d, q), self._dot(self.heads, 1, d, q))
+            v = self.known[(d, p)] = (_dot(self.content[d], self.content[q]),
+                                      _dot(self.heads[d], self.heads[q]))
         return v
 
     def candidates(self, n_p: int) -> set[tuple[int, int]]:
         """Each draft row's and each precedent column's CANDIDATES best counterparts by the
-        bound (ties broken by relative position), at least CANDIDATE_MIN_COSINE."""
+        bound, ties broken by relative position, at least CANDIDATE_MIN_COSINE.  Below
+        PLAIN_PRODUCT_MAX multiply-adds in plain Python (no numpy import), else -- or when
+        numpy is loaded already (a review with the precedent set) -- with numpy in blocks of
+        draft rows."""
         n_d = self.n_d
+        cost = (_product_cost(self.content[:n_d], self.content[n_d:])
+                + _product_cost(self.heads[:n_d], self.heads[n_d:]))
+        if cost <= PLAIN_PRODUCT_MAX and "numpy" not in sys.modules:
+            return self._candidates_plain(n_p)
+        return self._candidates_numpy(n_p)
+
+    def _candidates_plain(self, n_p: int) -> set[tuple[int, int]]:
+        n_d = self.n_d
+        scores: list[dict[int, list[float]]] = [{} for _ in range(n_d)]
+        for rows, which in ((self.content, 0), (self.heads, 1)):
+            postings: dict[int, list[tuple[int, float]]] = {}
+            for p in range(n_p):
+                for j, y in rows[n_d + p].items():
+                    postings.setdefault(j, []).append((p, y))
+            for d in range(n_d):
+                acc = scores[d]
+                for j, x in rows[d].items():
+                    for p, y in postings.get(j, ()):
+                        got = acc.get(p)
+                        if got is None:
+                            got = acc[p] = [0.0, 0.0]
+                        got[which] += x * y
+        kr, kc = min(CANDIDATES, n_p), min(CANDIDATES, n_d)
+        cand: set[tuple[int, int]] = set()
+        by_col: dict[int, list[tuple[float, int]]] = {}
+        for d, acc in enumerate(scores):
+            rd = d / max(1, n_d - 1)
+            mine: list[tuple[float, int]] = []
+            for p, (cos, hcos) in acc.items():
+                bound = (1.0 - HEADING_WEIGHT) * cos + HEADING_WEIGHT * hcos
+                if bound < CANDIDATE_MIN_COSINE:
+                    continue
+                select = bound + CANDIDATE_POSITION_WEIGHT * (1.0 - abs(rd - p / max(1, n_p - 1)))
+                mine.append((select, p))
+                by_col.setdefault(p, []).append((select, d))
+                self.known[(d, p)] = (cos, hcos)
+            cand.update((d, p) for p in _top(mine, kr))
+        for p, col in by_col.items():
+            cand.update((d, p) for d in _top(col, kc))
+        return cand
+
+    def _candidates_numpy(self, n_p: int) -> set[tuple[int, int]]:
+        import numpy as np
+
+        n_d = self.n_d
+        content = _Postings(self.content[n_d:], self.content[:n_d], np)
+        heads = _Postings(self.heads[n_d:], self.heads[:n_d], np)
         rp = np.arange(n_p) / max(1, n_p - 1)
         kr = min(CANDIDATES, n_p)
         kc = min(CANDIDATES, n_d)
-        col_val = np.full((0, n_p), -np.inf)
-        col_idx = np.zeros((0, n_p), dtype=np.int64)
+        # each column's best rows so far (values and row numbers), one line per column
+        col_val = np.full((n_p, 0), -np.inf)
+        col_idx = np.zeros((n_p, 0), dtype=np.int64)
         cand: set[tuple[int, int]] = set()
-        for start in range(0, n_d, BLOCK_ROWS):
-            end = min(n_d, start + BLOCK_ROWS)
-            cos = (self.d_content[start:end] @ self.p_content_t).toarray()
-            hcos = (self.d_heads[start:end] @ self.p_heads_t).toarray()
+        known = self.known
+
+        def remember(rows, cols, cos, hcos, start: int) -> None:  # noqa: ANN001 - numpy arrays
+            for r, p, c, h in zip((rows + start).tolist(), cols.tolist(), cos[rows, cols].tolist(),
+                                  hcos[rows, cols].tolist()):
+                known[(r, p)] = (c, h)
+
+        for start, end in content.blocks(self.content[:n_d], heads, self.heads[:n_d]):
+            cos = content.product(self.content[start:end], n_p)
+            hcos = heads.product(self.heads[start:end], n_p)
             bound = (1.0 - HEADING_WEIGHT) * cos + HEADING_WEIGHT * hcos
             rd = np.arange(start, end) / max(1, n_d - 1)
             select = bound + CANDIDATE_POSITION_WEIGHT * (1.0 - np.abs(rd[:, None] - rp[None, :]))
             select[bound < CANDIDATE_MIN_COSINE] = -np.inf
-            rows = (np.argpartition(-select, kr - 1, axis=1)[:, :kr] if kr < n_p
-                    else np.tile(np.arange(n_p), (end - start, 1)))
-            for r in range(end - start):
-                for p in rows[r]:
-                    if np.isfinite(select[r, p]):
-                        cand.add((start + r, int(p)))
-                        self.known[(start + r, int(p))] = (float(cos[r, p]), float(hcos[r, p]))
-            # running best rows of each column
-            col_val = np.vstack([col_val, select])
-            col_idx = np.vstack([col_idx, np.tile(np.arange(start, end)[:, None], (1, n_p))])
-            if col_val.shape[0] > kc:
-                keep = np.argpartition(-col_val, kc - 1, axis=0)[:kc, :]
-                col_val = np.take_along_axis(col_val, keep, axis=0)
-                col_idx = np.take_along_axis(col_idx, keep, axis=0)
+            # each row's best columns
+            best = (np.argpartition(-select, kr - 1, axis=1)[:, :kr] if kr < n_p
+                    else np.broadcast_to(np.arange(n_p), (end - start, n_p)))
+            r, k = np.nonzero(np.isfinite(np.take_along_axis(select, best, axis=1)))
+            p = best[r, k]
+            cand.update(zip((r + start).tolist(), p.tolist()))
+            remember(r, p, cos, hcos, start)
+            # each column's best rows, this block's included
+            col_val = np.hstack([col_val, select.T])
+            col_idx = np.hstack([col_idx, np.broadcast_to(np.arange(start, end), (n_p, end - start))])
+            if col_val.shape[1] > kc:
+                keep = np.argpartition(-col_val, kc - 1, axis=1)[:, :kc]
+                col_val = np.take_along_axis(col_val, keep, axis=1)
+                col_idx = np.take_along_axis(col_idx, keep, axis=1)
             # remember this block's cosines of the column bests
-            block_rows = col_idx - start
-            inside = (block_rows >= 0) & (block_rows < end - start) & np.isfinite(col_val)
-            for k, p in zip(*np.nonzero(inside)):
-                r = int(block_rows[k, p])
-                self.known[(start + r, int(p))] = (float(cos[r, p]), float(hcos[r, p]))
-        for k, p in zip(*np.nonzero(np.isfinite(col_val))):
-            cand.add((int(col_idx[k, p]), int(p)))
+            p, k = np.nonzero((col_idx >= start) & (col_idx < end) & np.isfinite(col_val))
+            remember(col_idx[p, k] - start, p, cos, hcos, start)
+        p, k = np.nonzero(np.isfinite(col_val))
+        cand.update(zip(col_idx[p, k].tolist(), p.tolist()))
         return cand
+
+
+class _Postings:
+    """The precedent's rows by word, to multiply blocks of draft rows by them with numpy
+    alone.  Words common on both sides -- (draft rows with the word) x (precedent rows with
+    it) at least DENSE_SHARE of all pairs -- go through one dense matrix product (BLAS);
+    for the others each (draft row, word, precedent row) triple is gathered from the word's
+    postings (CSC order) and the products summed with ``bincount``."""
+
+    def __init__(self, p_rows: Sequence[Row], d_rows: Sequence[Row], np) -> None:  # noqa: ANN001 - numpy
+        self.np = np
+        n_p, n_d = len(p_rows), len(d_rows)
+        words = np.asarray([j for r in p_rows for j in r], dtype=np.int64)
+        width = int(words.max()) + 1 if len(words) else 0
+        df_p = np.bincount(words, minlength=width)
+        df_d = np.bincount(np.asarray([j for r in d_rows for j in r if j < width], dtype=np.int64),
+                           minlength=width)
+        dense = np.nonzero(df_p * df_d >= DENSE_SHARE * n_p * n_d)[0] if width else words[:0]
+        #: dense word id -> its column in the dense matrices
+        self.dense_col = {int(j): k for k, j in enumerate(dense.tolist())}
+        self.dense_p = np.zeros((len(dense), n_p))
+        rows = np.repeat(np.arange(n_p, dtype=np.int64), [len(r) for r in p_rows])
+        vals = np.asarray([x for r in p_rows for x in r.values()], dtype=np.float64)
+        is_dense = np.zeros(width, dtype=bool)
+        is_dense[dense] = True
+        on = is_dense[words] if width else words.astype(bool)
+        col = np.full(width, -1, dtype=np.int64)
+        col[dense] = np.arange(len(dense))
+        self.dense_p[col[words[on]], rows[on]] = vals[on]
+        # the other words' postings
+        sw, sr, sv = words[~on], rows[~on], vals[~on]
+        order = np.argsort(sw, kind="stable")
+        self.rows, self.vals = sr[order], sv[order]
+        self.df = np.bincount(sw, minlength=width)
+        self.ptr = np.concatenate([[0], np.cumsum(self.df)]).astype(np.int64)
+        self.width = width
+
+    def triples(self, row: Row) -> int:
+        """The triples one draft row gathers: the precedent rows holding each of its words
+        that is not dense."""
+        df, width = self.df, self.width
+        return int(sum(int(df[j]) for j in row if j < width))
+
+    def blocks(self, d_rows: Sequence[Row], heads: _Postings, d_heads: Sequence[Row]
+               ) -> list[tuple[int, int]]:
+        """Consecutive ranges of draft rows, each at most BLOCK_ROWS rows and, past its first
+        row, at most BLOCK_TRIPLES gathered triples (content and headings), so that a block's
+        arrays stay small."""
+        out: list[tuple[int, int]] = []
+        start, load = 0, 0
+        for d in range(len(d_rows)):
+            t = self.triples(d_rows[d]) + heads.triples(d_heads[d])
+            if d > start and (d - start >= BLOCK_ROWS or load + t > BLOCK_TRIPLES):
+                out.append((start, d))
+                start, load = d, 0
+            load += t
+        if start < len(d_rows):
+            out.append((start, len(d_rows)))
+        return out
+
+    def product(self, d_rows: Sequence[Row], n_p: int):  # noqa: ANN201 - a numpy array
+        """The dense block (len(d_rows) x n_p) of dot products of *d_rows* with the
+        precedent rows."""
+        np = self.np
+        n = len(d_rows)
+        local: list[int] = []
+        words: list[int] = []
+        weights: list[float] = []
+        dense_r: list[int] = []
+        dense_c: list[int] = []
+        dense_x: list[float] = []
+        dense_col, width = self.dense_col, self.width
+        for r, row in enumerate(d_rows):
+            for j, x in row.items():
+                c = dense_col.get(j)
+                if c is not None:
+                    dense_r.append(r)
+                    dense_c.append(c)
+                    dense_x.append(x)
+                elif j < width:
+                    local.append(r)
+                    words.append(j)
+                    weights.append(x)
+        out = np.zeros(n * n_p)
+        if words:
+            w = np.asarray(words, dtype=np.int64)
+            lengths = self.df[w]
+            total = int(lengths.sum())
+            if total:
+                # every posting of every (row, word): a ragged gather of the posting ranges
+                ends = np.cumsum(lengths)
+                pos = np.repeat(self.ptr[w] - (ends - lengths), lengths) + np.arange(total, dtype=np.int64)
+                flat = np.repeat(np.asarray(local, dtype=np.int64), lengths) * n_p + self.rows[pos]
+                vals = self.vals[pos] * np.repeat(np.asarray(weights, dtype=np.float64), lengths)
+                out = np.bincount(flat, weights=vals, minlength=n * n_p)
+        out = out.reshape(n, n_p)
+        if dense_r:
+            block = np.zeros((n, len(dense_col)))
+            block[dense_r, dense_c] = dense_x
+            out += block @ self.dense_p
+        return out
 
 
 def pair_similarity(d: Features, p: Features, cosine: float, heading_cosine: float = 0.0) -> float:
@@ -361,12 +529,11 @@ def _solve(n_d: int, n_p: int, edges: dict[tuple[int, int], float]) -> dict[int,
         cols = sorted({p for _, p in comp})
         ri = {d: i for i, d in enumerate(rows)}
         ci = {p: j for j, p in enumerate(cols)}
-        w = np.zeros((len(rows), len(cols)))
+        w = [[0.0] * len(cols) for _ in rows]
         for d, p in comp:
-            w[ri[d], ci[p]] = edges[(d, p)]
-        r, c = linear_sum_assignment(w, maximize=True)
-        for i, j in zip(r, c):
-            if w[i, j] > 0:
+            w[ri[d]][ci[p]] = edges[(d, p)]
+        for i, j in max_weight_assignment(w):
+            if w[i][j] > 0:
                 match[rows[i]] = cols[j]
     return match
 

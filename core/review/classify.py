@@ -292,6 +292,8 @@ def _fills_fields(h: _Hunk) -> bool:
     field label between two values into one replacement."""
     a, b = h.a, h.b
     pk = [i for i in range(h.i1, h.i2) if a.kinds[i] != KIND_SPACE]
+    if sum(b.kinds[j] != KIND_SPACE for j in range(h.j1, h.j2)) <= len(pk):
+        return False  # the draft adds no word to the precedent's: no value filled in
     points: list[int] = []  # where the draft adds words, as offsets of the precedent
     k = 0
     added = False

@@ -22,26 +22,77 @@ renumbering changes them without changing what the agreement says:
   provision added to a list of references, is a change of words that the classifier already
   reports as substantive.
 
-Cost: one pass of two regular expressions over the text per call; O(figures) to compare.
+Cost: the labels and references of a text are found once (cached per text); each call then
+scans its span only, O(span + log of the skipped spans); O(figures) to compare.
 """
 
 from __future__ import annotations
 
 import difflib
 import re
+from bisect import bisect_right
 from collections.abc import Sequence
+from functools import lru_cache
 
 from .noise import label_spans
 from .tokens import find_cross_references
 
-__all__ = ["FIGURE_RE", "figure_reasons", "figures_in"]
+__all__ = ["FIGURE_RE", "NumberSkips", "clear_skip_cache", "figure_reasons", "figures_in",
+           "number_skips"]
 
 #: A figure: digits with the separators figures are written with (thousands, decimals,
 #: versions, dates, times, ranges); dashes of any style.
 FIGURE_RE = re.compile(r"\d+(?:[.,:/\-\u2010-\u2015\u2212]\d+)*")
+_DIGIT_RE = re.compile(r"\d")
 _DASH_RE = re.compile(r"[\u2010-\u2015\u2212]")
 #: A thousands separator: a comma followed by exactly three digits ("1,000" is 1000).
 _THOUSANDS_RE = re.compile(r"(?<=\d),(?=\d{3}(?!\d))")
+
+
+#: Characters a figure is written with (FIGURE_RE): a scan may start or stop anywhere outside
+#: a run of them without cutting a figure.
+_FIGURE_CHARS = frozenset("0123456789.,:/-\u2010\u2011\u2012\u2013\u2014\u2015\u2212")
+#: Texts whose skipped spans are kept (a long agreement has a few thousand provision texts).
+_SKIP_CACHE_SIZE = 4096
+
+
+class NumberSkips:
+    """The spans of a text whose digits are no figures -- list labels and the numbers of
+    cross-references to the agreement's own provisions -- merged into disjoint sorted
+    intervals, so that :meth:`covers` is a bisection."""
+
+    __slots__ = ("ends", "starts")
+
+    def __init__(self, spans: Sequence[tuple[int, int]]) -> None:
+        starts: list[int] = []
+        ends: list[int] = []
+        for a, b in sorted(spans):
+            if a >= b:
+                continue
+            if ends and a <= ends[-1]:
+                ends[-1] = max(ends[-1], b)
+            else:
+                starts.append(a)
+                ends.append(b)
+        self.starts, self.ends = starts, ends
+
+    def covers(self, pos: int) -> bool:
+        """Whether *pos* lies in a skipped span (``start <= pos < end``)."""
+        k = bisect_right(self.starts, pos) - 1
+        return k >= 0 and pos < self.ends[k]
+
+
+@lru_cache(maxsize=_SKIP_CACHE_SIZE)
+def number_skips(text: str) -> NumberSkips:
+    """The list labels (:func:`.noise.label_spans`) and cross-reference numbers
+    (:func:`.tokens.find_cross_references`) of *text*, found once per text (cached): each
+    change of a long provision asks about its own few characters."""
+    return NumberSkips([*label_spans(text), *((s, e) for s, e, *_ in find_cross_references(text))])
+
+
+def clear_skip_cache() -> None:
+    """Forget the skipped spans found (benchmarks measure cold runs)."""
+    number_skips.cache_clear()
 
 
 def _normal(figure: str) -> str:
@@ -62,15 +113,21 @@ def figures_in(text: str, span: tuple[int, int] | None = None, *,
     ('3.7.2',)
     """
     a, b = span if span is not None else (0, len(text))
-    if not any(c.isdigit() for c in text[max(0, a - 40):b + 40]):
+    if not _DIGIT_RE.search(text, max(0, a - 40), b + 40):
         return ()
-    skip = [] if references else (label_spans(text)
-                                  + [(s, e) for s, e, *_ in find_cross_references(text)])
+    skip = None if references else number_skips(text)
+    # scan from outside the run of figure characters around each end of the span: the
+    # figures found are those a scan of the whole text finds there
+    lo, hi = a, b
+    while lo > 0 and text[lo - 1] in _FIGURE_CHARS:
+        lo -= 1
+    while hi < len(text) and text[hi] in _FIGURE_CHARS:
+        hi += 1
     out: list[str] = []
-    for m in FIGURE_RE.finditer(text):
+    for m in FIGURE_RE.finditer(text, lo, hi):
         if m.end() <= a or m.start() >= b or (a == b and not m.start() < a < m.end()):
             continue
-        if any(s <= m.start() < e for s, e in skip):
+        if skip is not None and skip.covers(m.start()):
             continue
         out.append(_normal(m.group()))
     return tuple(out)

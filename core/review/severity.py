@@ -26,14 +26,14 @@ import re
 import tomllib
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
+from bisect import bisect_left, bisect_right
 from functools import lru_cache
 from pathlib import Path
 from typing import Protocol
 
 from ..errors import CounterdraftError
 from ..model import Document, Provision
-from .noise import label_spans
-from .tokens import find_cross_references
+from .figures import number_skips
 
 __all__ = [
     "DEFAULT_RULES_PATH",
@@ -198,26 +198,44 @@ def _default_rules() -> SeverityRules:
 # Clause types
 # ----------------------------------------------------------------------------------------
 
-def _keyword_index(rules: SeverityRules) -> list[tuple[re.Pattern[str], str, int]]:
+def _keyword_index(rules: SeverityRules) -> list[tuple[str, str]]:
+    """(keyword with single spaces, clause type), longest keyword first (a stable sort: the
+    rule file's order among keywords of one length)."""
     idx = rules._cache.get("keywords")
     if idx is None:
-        idx = []
-        for ctype, words in rules.clause_type_keywords.items():
-            for w in words:
-                pat = re.compile(r"(?<![\w])" + r"\s+".join(map(re.escape, w.split())) + r"(?![\w])")
-                idx.append((pat, ctype, len(w)))
-        idx.sort(key=lambda t: -t[2])
-        rules._cache["keywords"] = idx
+        idx = sorted(((" ".join(w.split()), ctype, len(w))
+                      for ctype, words in rules.clause_type_keywords.items() for w in words),
+                     key=lambda t: -t[2])
+        idx = rules._cache["keywords"] = [(w, ctype) for w, ctype, _n in idx]
     return idx
 
 
+def _is_word_char(c: str) -> bool:
+    """What a regular expression's ``\\w`` matches in a str pattern."""
+    return c.isalnum() or c == "_"
+
+
+def _has_phrase(text: str, phrase: str) -> bool:
+    """Whether *phrase* occurs in *text* as whole words (no word character right before or
+    after it).  *text* has its white space collapsed to single spaces, as *phrase* has."""
+    at = text.find(phrase)
+    while at >= 0:
+        end = at + len(phrase)
+        if not (at and _is_word_char(text[at - 1])) and not (end < len(text) and _is_word_char(text[end])):
+            return True
+        at = text.find(phrase, at + 1)
+    return False
+
+
 def guess_clause_type(heading: str | None, *, rules: SeverityRules) -> str | None:
-    """The clause type whose longest keyword occurs in *heading* (lower-cased), or None."""
+    """The clause type whose longest keyword occurs in *heading* (lower-cased, "&" read as
+    "and"), as whole words with any white space between them, or None.  Plain string
+    searches: compiling a pattern per keyword (about 150) cost more than a short review."""
     if not heading:
         return None
-    h = heading.casefold().replace("&", "and")
-    for pat, ctype, _n in _keyword_index(rules):
-        if pat.search(h):
+    h = " ".join(heading.casefold().replace("&", "and").split())
+    for phrase, ctype in _keyword_index(rules):
+        if _has_phrase(h, phrase):
             return ctype
     return None
 
@@ -314,9 +332,25 @@ class Quantity:
 QUANTITY_WINDOW = 120
 
 
+class _Quantities:
+    """Every figure of one text, in order (they do not overlap, so their starts and their
+    ends are both sorted), found once; the figures of a window are a bisection away."""
+
+    __slots__ = ("ends", "items", "starts")
+
+    def __init__(self, items: list[Quantity]) -> None:
+        self.items = items
+        self.starts = [q.start for q in items]
+        self.ends = [q.end for q in items]
+
+    def within(self, lo: int, hi: int) -> list[Quantity]:
+        """The figures that lie inside ``text[lo:hi]``."""
+        return self.items[bisect_left(self.starts, lo):bisect_right(self.ends, hi)]
+
+
 @lru_cache(maxsize=4096)
-def _quantities_cached(text: str, lo: int, hi: int) -> tuple[Quantity, ...]:
-    return tuple(_find_quantities(text, lo, hi))
+def _quantities_cached(text: str) -> _Quantities:
+    return _Quantities(_find_quantities(text))
 
 
 def _window(text: str, span: tuple[int, int]) -> tuple[int, int]:
@@ -331,9 +365,14 @@ def _window(text: str, span: tuple[int, int]) -> tuple[int, int]:
 
 def find_quantities(text: str, *, around: tuple[int, int] | None = None) -> list[Quantity]:
     """Every figure in *text* (see :func:`_find_quantities`), or only those near the span
-    *around* (within :data:`QUANTITY_WINDOW` characters); cached."""
-    lo, hi = (0, len(text)) if around is None else _window(text, around)
-    return list(_quantities_cached(text, lo, hi))
+    *around* (within :data:`QUANTITY_WINDOW` characters).  The text's figures are found once
+    (cached per text) and a window's are picked by bisection: a long provision rewritten
+    asks for the windows of hundreds of changes, and scanning each window again cost more
+    than the rest of the review."""
+    found = _quantities_cached(text)
+    if around is None:
+        return list(found.items)
+    return found.within(*_window(text, around))
 
 
 def _find_quantities(text: str, lo: int = 0, hi: int | None = None) -> list[Quantity]:
@@ -392,9 +431,8 @@ def _find_quantities(text: str, lo: int = 0, hi: int | None = None) -> list[Quan
             merged.append(q)
     # the numbers of references to the agreement's own provisions and of list labels ("3."
     # of "3.Scope") are no figures (core.review.figures)
-    skip = [(a, b) for a, b, *_ in find_cross_references(text)] + label_spans(text)
-    return [q for q in merged
-            if not (q.kind == "number" and any(a <= q.start < b for a, b in skip))]
+    skip = number_skips(text)
+    return [q for q in merged if not (q.kind == "number" and skip.covers(q.start))]
 
 
 # ----------------------------------------------------------------------------------------
@@ -443,7 +481,28 @@ def _efforts_matches(text: str) -> list[tuple[int, int, str]]:
     return [(m.start(), m.end(), " ".join(m.group().lower().split())) for m in _EFFORTS_RE.finditer(text)]
 
 
-def _matches(rules: SeverityRules, name: str, text: str) -> list[tuple[int, int, str]]:
+
+class _Found:
+    """The phrase matches of one text, in the order found, indexed by start so that those
+    near a span are found by bisection (a long provision rewritten has hundreds of changes;
+    scanning every match of the text for each was quadratic)."""
+
+    __slots__ = ("items", "longest", "starts")
+
+    def __init__(self, items: list[tuple[int, int, str]]) -> None:
+        self.items = items
+        self.starts = sorted((it[0], k) for k, it in enumerate(items))
+        self.longest = max((it[1] - it[0] for it in items), default=0)
+
+    def near(self, span: tuple[int, int]) -> list[tuple[int, int, str]]:
+        """The matches that start within the longest match's length before *span*, or
+        inside it, in the order found: every match that overlaps or touches the span."""
+        lo = bisect_left(self.starts, (span[0] - self.longest, -1))
+        hi = bisect_right(self.starts, (span[1], len(self.items)))
+        return [self.items[k] for k in sorted(k for _s, k in self.starts[lo:hi])]
+
+
+def _matches(rules: SeverityRules, name: str, text: str) -> _Found:
     key = ("re", name)
     pat = rules._cache.get(key)
     if pat is None:
@@ -454,19 +513,19 @@ def _matches(rules: SeverityRules, name: str, text: str) -> list[tuple[int, int,
     tcache = rules._cache.setdefault(("text", name), {})
     hit = tcache.get(text)
     if hit is None:
-        hit = [(m.start(), m.end(), " ".join(m.group().lower().split())) for m in pat.finditer(text)]
+        items = [(m.start(), m.end(), " ".join(m.group().lower().split())) for m in pat.finditer(text)]
         if name == "negation":
-            hit += [(m.start(), m.end(), "n't") for m in re.finditer(r"n['\u2019]t\b", text)]
+            items += [(m.start(), m.end(), "n't") for m in re.finditer(r"n['\u2019]t\b", text)]
         elif name == "obligation":
             # an efforts obligation is one (weak) obligation phrase, whatever its standard:
             # "shall use commercially reasonable endeavours to" is no bare "shall"
             efforts = _efforts_matches(text)
             if efforts:
-                hit = sorted([h for h in hit if not any(a < h[1] and h[0] < b for a, b, _x in efforts)]
-                             + efforts)
+                items = sorted([h for h in items if not any(a < h[1] and h[0] < b for a, b, _x in efforts)]
+                               + efforts)
         if len(tcache) > 4096:
             tcache.clear()
-        tcache[text] = hit
+        hit = tcache[text] = _Found(items)
     return hit
 
 
@@ -524,8 +583,8 @@ def _figure_signals(p_text: str, p_span: tuple[int, int], d_text: str, d_span: t
 
 def _obligation_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
     strong = set(rules.strong)
-    po = [m[2] for m in _inside(_matches(rules, "obligation", p_text), p_span)]
-    do = [m[2] for m in _inside(_matches(rules, "obligation", d_text), d_span)]
+    po = [m[2] for m in _inside(_matches(rules, "obligation", p_text).near(p_span), p_span)]
+    do = [m[2] for m in _inside(_matches(rules, "obligation", d_text).near(d_span), d_span)]
     if po == do:
         return []
     ps = [w for w in po if w in strong]
@@ -544,8 +603,8 @@ def _obligation_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, 
 
 
 def _negation_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
-    pn = [m[2] for m in _inside(_matches(rules, "negation", p_text), p_span)]
-    dn = [m[2] for m in _inside(_matches(rules, "negation", d_text), d_span)]
+    pn = [m[2] for m in _inside(_matches(rules, "negation", p_text).near(p_span), p_span)]
+    dn = [m[2] for m in _inside(_matches(rules, "negation", d_text).near(d_span), d_span)]
     if len(dn) > len(pn):
         extra = [w for w in dn if w not in pn] or dn
         return [Signal("negation_added", f"negation added: {_quote(extra[0])}")]
@@ -556,8 +615,8 @@ def _negation_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_
 
 
 def _qualifier_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
-    pm = _matches(rules, "qualifier", p_text)
-    dm = _matches(rules, "qualifier", d_text)
+    pm = _matches(rules, "qualifier", p_text).near(p_span)
+    dm = _matches(rules, "qualifier", d_text).near(d_span)
     pq = [m[2] for m in _inside(pm, p_span)]
     dq = [m[2] for m in _inside(dm, d_span)]
 
@@ -628,7 +687,7 @@ def _conjunction_signals(rules: SeverityRules, p_text: str, p_span, d_text: str,
         return []
     old, new = " ".join(pc), " ".join(dc)
     sa, sb = sentence_bounds(d_text, d_span)
-    duty = [m[2] for m in _matches(rules, "obligation", d_text) if sa <= m[0] < sb]
+    duty = [m[2] for m in _matches(rules, "obligation", d_text).near((sa, sb)) if sa <= m[0] < sb]
     if duty:
         return [Signal("conjunction_in_obligation",
                        f"conjunction changed from {_quote(old)} to {_quote(new)} inside an obligation "
@@ -886,7 +945,7 @@ def category_severity(category: str, *, rules: SeverityRules | None = None) -> i
 def phrase_matches(rules: SeverityRules, name: str, text: str) -> list[tuple[int, int, str]]:
     """(start, end, phrase) of every phrase of list *name* ("obligation": the rule file's
     obligation words and every efforts form; "negation"; "qualifier") in *text*; cached."""
-    return _matches(rules, name, text)
+    return _matches(rules, name, text).items
 
 
 def number_in_words(s: str) -> float | None:

@@ -14,60 +14,78 @@ both documents -- and then trims white space at both ends of each, so that:
 * neither span starts or ends with white space (it is what a reader sees quoted).
 
 Aligned points are the boundaries of the diff's hunks, and every character boundary inside an
-``equal`` hunk (its two sides are the same text).  Timing: O(hunks) per call.
+``equal`` hunk (its two sides are the same text).  Timing: O(hunks) to index a diff
+(:class:`AlignedPoints`), then O(log hunks) per pair of spans.
 """
 
 from __future__ import annotations
 
+from bisect import bisect_left, bisect_right
 from collections.abc import Sequence
 
 from .tokens import TokenSeq
 from .worddiff import TokenOp
 
-__all__ = ["corresponding_spans"]
+__all__ = ["AlignedPoints", "corresponding_spans"]
 
 Span = tuple[int, int]
 
 
-def _hunks(ops: Sequence[TokenOp], a: TokenSeq, b: TokenSeq) -> list[tuple[bool, int, int, int, int]]:
-    """(equal?, p1, p2, d1, d2) character ranges of each op."""
-    out = []
-    for op in ops:
-        p1, p2 = a.span(op.i1, op.i2)
-        d1, d2 = b.span(op.j1, op.j2)
-        out.append((op.tag == "equal", p1, p2, d1, d2))
-    return out
+class AlignedPoints:
+    """The aligned points of one diff, computed once (O(hunks)), so that each change's
+    corresponding spans cost O(log hunks) (a long provision rewritten has hundreds of
+    changes: scanning every hunk for each was quadratic)."""
 
+    def __init__(self, ops: Sequence[TokenOp], a: TokenSeq, b: TokenSeq) -> None:
+        self.a, self.b = a, b
+        self.equal: list[bool] = []
+        self.p1: list[int] = []
+        self.p2: list[int] = []
+        self.d1: list[int] = []
+        self.d2: list[int] = []
+        for op in ops:
+            p1, p2 = a.span(op.i1, op.i2)
+            d1, d2 = b.span(op.j1, op.j2)
+            self.equal.append(op.tag == "equal")
+            self.p1.append(p1)
+            self.p2.append(p2)
+            self.d1.append(d1)
+            self.d2.append(d2)
 
-def _left_point(hunks, x: int, y: int) -> tuple[int, int]:
-    """The last aligned point (px, py) with px <= x and py <= y."""
-    best = (0, 0)
-    for equal, p1, p2, d1, d2 in hunks:
-        if p1 > x or d1 > y:
-            break
-        best = (p1, d1)
-        if equal:
-            k = min(x - p1, y - d1, p2 - p1)
-            best = (p1 + k, d1 + k)
-        elif p2 <= x and d2 <= y:
-            best = (p2, d2)
-    return best
+    def left(self, x: int, y: int) -> tuple[int, int]:
+        """The last aligned point (px, py) with px <= x and py <= y: in the last hunk that
+        starts at or before (x, y) (hunks tile both texts in order)."""
+        k = min(bisect_right(self.p1, x), bisect_right(self.d1, y)) - 1
+        if k < 0:
+            return (0, 0)
+        p1, p2, d1, d2 = self.p1[k], self.p2[k], self.d1[k], self.d2[k]
+        if self.equal[k]:
+            step = min(x - p1, y - d1, p2 - p1)
+            return (p1 + step, d1 + step)
+        if p2 <= x and d2 <= y:
+            return (p2, d2)
+        return (p1, d1)
 
-
-def _right_point(hunks, x: int, y: int, end: tuple[int, int]) -> tuple[int, int]:
-    """The first aligned point (px, py) with px >= x and py >= y."""
-    for equal, p1, p2, d1, d2 in hunks:
-        if p2 < x or d2 < y:
-            continue
-        if equal:
-            k = max(x - p1, y - d1, 0)
-            if k <= p2 - p1:
-                return (p1 + k, d1 + k)
-            continue
+    def right(self, x: int, y: int) -> tuple[int, int]:
+        """The first aligned point (px, py) with px >= x and py >= y: in the first hunk that
+        ends at or after (x, y) (an equal hunk's two sides have the same length, so the
+        point inside it always exists)."""
+        k = max(bisect_left(self.p2, x), bisect_left(self.d2, y))
+        if k >= len(self.p1):
+            return (len(self.a.text), len(self.b.text))
+        p1, p2, d1, d2 = self.p1[k], self.p2[k], self.d1[k], self.d2[k]
+        if self.equal[k]:
+            step = max(x - p1, y - d1, 0)
+            return (p1 + step, d1 + step)
         if p1 >= x and d1 >= y:
             return (p1, d1)
         return (p2, d2)
-    return end
+
+    def spans(self, *, precedent: Span, draft: Span) -> tuple[Span, Span]:
+        """See :func:`corresponding_spans`."""
+        x0, y0 = self.left(precedent[0], draft[0])
+        x1, y1 = self.right(precedent[1], draft[1])
+        return _trim(self.a.text, x0, x1), _trim(self.b.text, y0, y1)
 
 
 def _trim(text: str, a: int, b: int) -> Span:
@@ -92,7 +110,4 @@ def corresponding_spans(ops: Sequence[TokenOp], a: TokenSeq, b: TokenSeq, *, pre
     >>> corresponding_spans(token_ops(p, d), p, d, precedent=(7, 23), draft=(7, 16))
     ((7, 23), (7, 22))
     """
-    hunks = _hunks(ops, a, b)
-    x0, y0 = _left_point(hunks, precedent[0], draft[0])
-    x1, y1 = _right_point(hunks, precedent[1], draft[1], (len(a.text), len(b.text)))
-    return _trim(a.text, x0, x1), _trim(b.text, y0, y1)
+    return AlignedPoints(ops, a, b).spans(precedent=precedent, draft=draft)

@@ -23,7 +23,8 @@ precedent name is proposed from three kinds of evidence, each recorded in
 
 The evidences are combined as independent signals (noisy-or, see :func:`_confidence`), and
 the mapping is made one-to-one by a maximum-weight assignment
-(``scipy.optimize.linear_sum_assignment``) over the candidate pairs.  User overrides
+(:func:`.assignment.max_weight_assignment`, the optimum scipy's ``linear_sum_assignment``
+finds) over the candidate pairs.  User overrides
 confirm, reject or add mappings (:class:`TermOverride`).
 
 Traps handled:
@@ -56,13 +57,12 @@ from collections.abc import Callable, Collection, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from typing import Literal, Protocol, runtime_checkable
 
-import numpy as np
 from rapidfuzz.distance import Indel
-from scipy.optimize import linear_sum_assignment
 
 from ..errors import CounterdraftError
 from ..model import TermMapping
 from ..terms import term_forms
+from .assignment import max_weight_assignment
 from .docinfo import DocInfo, party_role
 from .tokens import (
     KIND_PUNCT,
@@ -616,7 +616,7 @@ def _assign(rows: Sequence[str], cols: Sequence[str], ev: _Evidence, draft: DocI
             renames: Mapping[tuple[str, str], Rename]) -> dict[str, tuple[str, float, tuple[str, ...]]]:
     """The one-to-one choice (maximum-weight assignment) among the candidate pairs."""
     col_of = {n: c for c, n in enumerate(cols)}
-    weight = np.zeros((len(rows), len(cols)))
+    weight = [[0.0] * len(cols) for _ in rows]
     evidence: dict[tuple[str, str], dict[str, float]] = {}
     by_row: dict[str, list[str]] = {}
     for dn, pn in renames:
@@ -635,15 +635,14 @@ def _assign(rows: Sequence[str], cols: Sequence[str], ev: _Evidence, draft: DocI
             scores = ev.scores(dn, pn)
             if scores:
                 evidence[(dn, pn)] = scores
-                weight[r, c] = _confidence(scores)
+                weight[r][c] = _confidence(scores)
     chosen: dict[str, tuple[str, float, tuple[str, ...]]] = {}
-    if rows and cols and weight.any():
-        ri, ci = linear_sum_assignment(weight, maximize=True)
-        for r, c in zip(ri, ci):
-            if weight[r, c] >= MAP_MIN:
+    if rows and cols and evidence:
+        for r, c in max_weight_assignment(weight):
+            if weight[r][c] >= MAP_MIN:
                 dn, pn = rows[r], cols[c]
                 kinds = tuple(k for k in _EVIDENCE_ORDER if k in evidence[(dn, pn)])
-                chosen[dn] = (pn, float(weight[r, c]), kinds)
+                chosen[dn] = (pn, weight[r][c], kinds)
     return chosen
 
 

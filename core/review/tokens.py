@@ -17,6 +17,8 @@ from __future__ import annotations
 import re
 from collections.abc import Callable, Collection, Container, Iterable, Mapping, Sequence
 from dataclasses import dataclass
+from itertools import accumulate
+from operator import itemgetter
 
 from ..terms import REGEX_FORMS_MAX, char_trie, term_owners, walk_forms
 
@@ -154,16 +156,18 @@ def tokenize(text: str, specials: Sequence[Special] = ()) -> TokenSeq:
     starts: list[int] = []
     keys: list[str] = []
     kinds: list[str] = []
-    info = _info
 
     def plain(a: int, b: int) -> None:
-        pos = a
-        for tok in _TOKEN_RE.findall(text, a, b):
-            starts.append(pos)
-            pos += len(tok)
-            k, kind = info(tok)
-            keys.append(k)
-            kinds.append(kind)
+        toks = _TOKEN_RE.findall(text, a, b)
+        if not toks:
+            return
+        # the loops run in map(), over the cache of known tokens (most of a text's tokens)
+        got = list(map(_TOKEN_INFO.get, toks))
+        if None in got:
+            got = [g if g is not None else _info(t) for g, t in zip(got, toks)]
+        starts.extend(accumulate(map(len, toks[:-1]), initial=a))
+        keys.extend(map(itemgetter(0), got))
+        kinds.extend(map(itemgetter(1), got))
 
     pos = 0
     for sp in specials:

@@ -2,29 +2,42 @@
 
 Each distinct token key of the pair is mapped to one code point (white space to " ", a
 single punctuation character to itself, every other key to a private-use code point,
-Unicode 15.0 section 23.5), the two code-point strings are diffed with diff-match-patch
-(Myers' O(ND) algorithm, with no time-out so that the result is exact and reproducible), and
-diff-match-patch's semantic clean-up merges the small equalities that make a diff hard to
-read.  The clean-up may also swallow long unchanged stretches between two larger edits (it
-merges an equality shorter than the edits on both sides of it), which would show unchanged
-words as deleted and inserted again; every run of at least :data:`ANCHOR_WORDS` unchanged
-words that the exact diff found inside a merged edit is therefore kept unchanged.  Equal
-runs are then compared token by token on the *original* texts: tokens whose keys agree but
-whose text differs (letter case, quote or dash style, white space, a renamed defined term, a
-renumbered cross-reference) become edits of their own, so an ``equal`` edit always covers
-identical text on both sides.
+Unicode 15.0 section 23.5), and the two code-point strings are diffed exactly: a longest
+common subsequence of tokens is kept unchanged.  diff-match-patch's semantic clean-up then
+merges the small equalities that make a diff hard to read.  The clean-up may also swallow
+long unchanged stretches between two larger edits (it merges an equality shorter than the
+edits on both sides of it), which would show unchanged words as deleted and inserted again;
+every run of at least :data:`ANCHOR_WORDS` unchanged words that the exact diff found inside a
+merged edit is therefore kept unchanged.  Equal runs are then compared token by token on the
+*original* texts: tokens whose keys agree but whose text differs (letter case, quote or dash
+style, white space, a renamed defined term, a renumbered cross-reference) become edits of
+their own, so an ``equal`` edit always covers identical text on both sides.
 
-Cost: O((N + M) + N·D) per pair for N, M tokens and D differing tokens (Myers), with no
-time-out; D is small for an aligned pair because alignment requires similar texts.  Pairs
-longer than :data:`LINE_MODE_TOKENS` are diffed sentence by sentence first.
+The exact diff is computed one of two ways, both giving a shortest edit script:
+
+* diff-match-patch (Myers' O(ND) algorithm, with no time-out so that the result is exact
+  and reproducible) when it is cheap -- for N and M tokens with D of them inserted or
+  deleted, (N + M) x D + MYERS_SQUARE_WEIGHT x D^2 at most :data:`MYERS_BUDGET`, or at
+  most the cost of the other way: the pairs of two versions of a document;
+* otherwise rapidfuzz's ``Indel.opcodes`` (a bit-parallel longest common subsequence, in
+  compiled code, O(N·M/64) whatever D): a rewritten provision or two unrelated ones, where
+  Myers' search in Python grows with D squared (a 10,000-word provision rewritten from
+  scratch took about fifty seconds per diff).
+
+Cost: whether D is small enough is decided by rapidfuzz's ``Indel.distance`` with a cut-off
+(compiled, at most O(N·M/64)); then the cheaper of the two ways; the semantic clean-up and
+the rest are linear in the diff's entries and the tokens.
 """
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 from dataclasses import dataclass
+from functools import lru_cache
 
 from diff_match_patch import diff_match_patch
+from rapidfuzz.distance import Indel
 
 from ..model import Edit
 from .tokens import KIND_TERM, KIND_XREF, TokenSeq, tokenize
@@ -32,7 +45,8 @@ from .tokens import KIND_TERM, KIND_XREF, TokenSeq, tokenize
 #: Token kinds that are words (word, number, defined-term use, cross-reference).
 _WORDLIKE = frozenset("wntx")
 
-__all__ = ["TokenOp", "diff_texts", "edits_from_ops", "pair_edits_from_ops", "token_ops"]
+__all__ = ["MYERS_BUDGET", "MYERS_SQUARE_WEIGHT", "TokenOp", "clear_diff_cache", "diff_texts",
+           "edits_from_ops", "exact_diff", "pair_edits_from_ops", "semantic_cleanup", "token_ops"]
 
 # Private-use areas (Unicode 15.0 section 23.5): the BMP area, then planes 15 and 16.
 _PUA_RANGES = ((0xE000, 0xF8FF), (0xF0000, 0xFFFFD), (0x100000, 0x10FFFD))
@@ -45,11 +59,19 @@ RESTYLE_JOIN_GAP = 2
 #: A judgement value; on the licence version pairs (benchmarks/accuracy_version_pairs.py) it
 #: keeps every unchanged stretch of a provision split over several draft provisions.
 ANCHOR_WORDS = 3
-#: Above this many tokens in a pair (about 4,000 words of each text), diff sentence by
-#: sentence first (diff-match-patch's line mode, full stops encoded as line breaks), then word
-#: by word inside the changed sentences: a heavily rewritten 10,000-word provision then takes
-#: well under a second instead of tens of seconds.  Below it the diff is an exact Myers diff.
-LINE_MODE_TOKENS = 16_000
+#: Myers' search in Python, on N and M tokens with D of them inserted or deleted, takes
+#: about (N + M) x D + MYERS_SQUARE_WEIGHT x D^2 steps of about 20 ns each (fitted on this
+#: 2-core machine over random token strings: 0.5 ms for 200 tokens with D = 18, 30 ms for 200
+#: unrelated tokens with D = 212, 10 ms for 4,000 tokens with D = 64, 6.5 s for 4,000
+#: unrelated tokens); rapidfuzz's opcodes take about N x M / 64 word operations of about the
+#: same time each (108 ms for 21,000 tokens a side), whatever D.
+MYERS_SQUARE_WEIGHT = 20
+#: Pairs whose Myers cost (above) is at most this -- about 2 ms -- are always diffed with
+#: Myers' search: the pairs of two versions of a document (a few words changed in a clause),
+#: on which the review's rules were tuned.  Costlier pairs take whichever of the two costs
+#: less: Myers for a long provision with few changes, rapidfuzz for a rewritten or
+#: unrelated one.
+MYERS_BUDGET = 100_000
 
 
 def _pua(n: int) -> str:
@@ -77,22 +99,22 @@ class TokenOp:
 
 
 def _encode(keys: Sequence[str], book: dict[str, str]) -> str:
-    out = []
-    for k in keys:
-        c = book.get(k)
-        if c is None:
-            if k == ".":
-                c = "\n"  # a sentence end is a "line" for diff-match-patch's line mode
-            elif k == " " or (len(k) == 1 and not k.isalnum() and not k.isspace()):
-                c = k
-            else:
-                n = len(book)
-                if n >= _PUA_SIZE:
-                    raise ValueError("too many distinct words in one provision pair")
-                c = _pua(n)
-            book[k] = c
-        out.append(c)
-    return "".join(out)
+    """*keys* as one code point each, new keys added to *book* (the loop in Python runs over
+    the distinct keys only)."""
+    for k in dict.fromkeys(keys):
+        if k in book:
+            continue
+        if k == ".":
+            c = "\n"  # a sentence end: the clean-up prefers edit boundaries at line breaks
+        elif k == " " or (len(k) == 1 and not k.isalnum() and not k.isspace()):
+            c = k
+        else:
+            n = len(book)
+            if n >= _PUA_SIZE:
+                raise ValueError("too many distinct words in one provision pair")
+            c = _pua(n)
+        book[k] = c
+    return "".join(map(book.__getitem__, keys))
 
 
 def _dmp() -> diff_match_patch:
@@ -111,13 +133,146 @@ def token_ops(a: TokenSeq, b: TokenSeq, *, semantic: bool = True) -> list[TokenO
         book: dict[str, str] = {}
         sa = _encode(a.keys, book)
         sb = _encode(b.keys, book)
-        dmp = _dmp()
-        diffs = dmp.diff_main(sa, sb, len(sa) + len(sb) > LINE_MODE_TOKENS)
+        diffs = exact_diff(sa, sb)
         if semantic:
             exact = list(diffs)
-            dmp.diff_cleanupSemantic(diffs)
+            diffs = semantic_cleanup(diffs)
             return _restyled(a, b, _anchored(a, _ops(diffs), _ops(exact)))
     return _restyled(a, b, _ops(diffs))
+
+
+def _myers_cap(n: int, m: int) -> int:
+    """The largest D for which Myers' search is chosen (see MYERS_BUDGET): the root of
+    (n + m) D + MYERS_SQUARE_WEIGHT D^2 = max(MYERS_BUDGET, n m / 64)."""
+    limit = max(MYERS_BUDGET, n * m / 64)
+    if limit < 0:
+        return -1
+    w = MYERS_SQUARE_WEIGHT
+    return int((-(n + m) + math.sqrt((n + m) ** 2 + 4 * w * limit)) / (2 * w))
+
+
+def exact_diff(sa: str, sb: str) -> list[tuple[int, str]]:
+    """A shortest edit script from *sa* to *sb* as diff-match-patch's (op, text) list
+    (-1 delete, 0 equal, 1 insert): Myers' search when it is cheap (see MYERS_BUDGET), else
+    rapidfuzz's longest common subsequence.  Cached: the term map's scan and the review
+    diff the same pair of texts, with the same keys when no defined term differs."""
+    return list(_exact_diff(sa, sb))
+
+
+def clear_diff_cache() -> None:
+    """Forget the diffs computed (benchmarks measure cold runs)."""
+    _exact_diff.cache_clear()
+
+
+#: Pairs of encoded texts whose exact diff is kept (the aligned pairs of a long agreement).
+_DIFF_CACHE_SIZE = 1024
+
+
+@lru_cache(maxsize=_DIFF_CACHE_SIZE)
+def _exact_diff(sa: str, sb: str) -> tuple[tuple[int, str], ...]:
+    cap = _myers_cap(len(sa), len(sb))
+    # D itself, or cap + 1 as soon as it exceeds cap (rapidfuzz's banded bound is cheaper)
+    if cap >= 0 and Indel.distance(sa, sb, score_cutoff=cap) <= cap:
+        return tuple(_dmp().diff_main(sa, sb, False))
+    diffs: list[tuple[int, str]] = []
+    for tag, i1, i2, j1, j2 in Indel.opcodes(sa, sb):
+        if tag == "equal":
+            diffs.append((0, sa[i1:i2]))
+            continue
+        if i2 > i1:
+            diffs.append((-1, sa[i1:i2]))
+        if j2 > j1:
+            diffs.append((1, sb[j1:j2]))
+    return tuple(diffs)
+
+
+def semantic_cleanup(diffs: list[tuple[int, str]]) -> list[tuple[int, str]]:
+    """diff-match-patch's semantic clean-up of *diffs* (``diff_cleanupSemantic``: the same
+    result, the tests compare), with its two passes that edit the list in place rewritten to
+    build a new list in one sweep: the elimination of small equalities re-scanned the merged
+    edits after each elimination, and a rewritten provision's diff of 18,000 entries took
+    0.3 s.  Its own merge and sideways shifts (``diff_cleanupMerge``,
+    ``diff_cleanupSemanticLossless``) run in between, unchanged."""
+    dmp = _dmp()
+    out, changed = _eliminate_equalities(diffs)
+    if changed:
+        dmp.diff_cleanupMerge(out)
+    dmp.diff_cleanupSemanticLossless(out)
+    return _split_overlaps(dmp, out)
+
+
+def _eliminate_equalities(diffs: list[tuple[int, str]]) -> tuple[list[tuple[int, str]], bool]:
+    """The first pass of the semantic clean-up: an equality no longer than the edits on
+    each side of it (the longer of the deleted and inserted text, between it and the next
+    equality) becomes a deletion and an insertion, and the equality before it is looked at
+    again.  A stack of equalities and edit runs; each entry is pushed once and merged at
+    most once, so O(entries).  Returns *diffs* itself when nothing was eliminated."""
+    # stack entries: (0, text) for an equality; [1, deleted parts, inserted parts,
+    # deleted length, inserted length] for a run of edits
+    stack: list = []
+    changed = False
+    for op, text in diffs:
+        if op == 0:
+            stack.append((0, text))
+            continue
+        if stack and stack[-1][0] == 1:
+            run = stack[-1]
+        else:
+            run = [1, [], [], 0, 0]
+            stack.append(run)
+        if op < 0:
+            run[1].append(text)
+            run[3] += len(text)
+        else:
+            run[2].append(text)
+            run[4] += len(text)
+        while len(stack) >= 2 and stack[-2][0] == 0:
+            after = stack[-1]
+            equal = stack[-2][1]
+            before = stack[-3] if len(stack) >= 3 and stack[-3][0] == 1 else None
+            if not (equal and before is not None and len(equal) <= max(before[3], before[4])
+                    and len(equal) <= max(after[3], after[4])):
+                break
+            del stack[-3:]
+            stack.append([1, [*before[1], equal, *after[1]], [*before[2], equal, *after[2]],
+                          before[3] + len(equal) + after[3], before[4] + len(equal) + after[4]])
+            changed = True
+    if not changed:
+        return list(diffs), False
+    out: list[tuple[int, str]] = []
+    for entry in stack:
+        if entry[0] == 0:
+            out.append(entry)
+            continue
+        if entry[3]:
+            out.append((-1, "".join(entry[1])))
+        if entry[4]:
+            out.append((1, "".join(entry[2])))
+    return out, True
+
+
+def _split_overlaps(dmp: diff_match_patch, diffs: list[tuple[int, str]]) -> list[tuple[int, str]]:
+    """The last pass of the semantic clean-up: a deletion followed by an insertion that
+    overlap by at least half of either ("abcxxx" -> "xxxdef") keep the overlap as an
+    equality.  O(entries) list building instead of insertions."""
+    out: list[tuple[int, str]] = []
+    i, n = 0, len(diffs)
+    while i < n:
+        if i + 1 < n and diffs[i][0] < 0 and diffs[i + 1][0] > 0:
+            deletion, insertion = diffs[i][1], diffs[i + 1][1]
+            o1 = dmp.diff_commonOverlap(deletion, insertion)
+            o2 = dmp.diff_commonOverlap(insertion, deletion)
+            if o1 >= o2 and (o1 >= len(deletion) / 2.0 or o1 >= len(insertion) / 2.0):
+                out += [(-1, deletion[:len(deletion) - o1]), (0, insertion[:o1]), (1, insertion[o1:])]
+            elif o1 < o2 and (o2 >= len(deletion) / 2.0 or o2 >= len(insertion) / 2.0):
+                out += [(1, insertion[:len(insertion) - o2]), (0, deletion[:o2]), (-1, deletion[o2:])]
+            else:
+                out += diffs[i:i + 2]
+            i += 2
+            continue
+        out.append(diffs[i])
+        i += 1
+    return out
 
 
 def _ops(diffs: Sequence[tuple[int, str]]) -> list[TokenOp]:

@@ -64,3 +64,40 @@ def test_a_damaged_index_is_rebuilt_and_the_review_says_so(tmp_path):
         assert len(rebuilt) == 1 and rebuilt[0].startswith("The index was not usable")
     finally:
         engine.close_library(out.library)
+
+
+def test_every_long_step_says_what_it_is_doing(tmp_path):
+    """The progress bar's messages for a first review with a precedent set: each document
+    read, every file indexed with its count, then each later indexing step and each step of
+    the comparison named (common practice for a progress display, no source).  A second
+    review finds the index up to date: no indexing step after the files."""
+    import shutil
+
+    from desktop.state import Inputs
+
+    from .conftest import DEMO
+
+    folder = tmp_path / "set"
+    folder.mkdir()
+    for f in sorted((DEMO / "precedent_set").glob("*.docx"))[:3]:
+        shutil.copy(f, folder / f.name)
+    inputs = Inputs(str(DEMO / "draft.docx"), str(DEMO / "precedent.docx"), str(folder))
+    for run in ("first", "second"):
+        seen: list[tuple[int, int | None, str]] = []
+        out = engine.load_and_review(inputs, lambda d, t, m: seen.append((d, t, m)), lambda: False)
+        engine.close_library(out.library)
+        messages = [m for _d, _t, m in seen]
+        assert messages[:2] == ["Reading draft.docx", "Reading precedent.docx"]
+        counted = [(d, t) for d, t, m in seen if m.endswith(" files")]
+        assert counted == [(k, 3) for k in range(1, 4)]
+        steps = [m.split(": ", 1)[1] for m in messages if m.startswith("Indexing the precedent set: ")
+                 and not m.endswith(" files")]
+        if run == "first":
+            assert steps[:3] == ["normalising the wordings", "typing the clauses",
+                                 "grouping the wording variants"]
+        else:
+            assert steps == []
+        comparing = [m for m in messages if m.startswith("Comparing provisions: ")]
+        assert comparing[0].endswith("reading the words and defined terms")
+        assert any("paired provisions" in m for m in comparing)
+        assert messages[-1] == "Counting wordings in the precedent set"

@@ -10,14 +10,18 @@ from __future__ import annotations
 import itertools
 
 import numpy as np
-from hypothesis import given, settings
+from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 from scipy.optimize import linear_sum_assignment
 from sklearn.feature_extraction.text import TfidfVectorizer
 
 from core.review.align import (
     ALIGN_MIN,
+    CANDIDATE_MIN_COSINE,
+    CANDIDATE_POSITION_WEIGHT,
+    HEADING_WEIGHT,
     Features,
+    _Cosines,
     _solve,
     _tfidf,
     align,
@@ -70,20 +74,73 @@ def test_per_component_assignment_matches_scipy_on_the_whole_matrix(n_d, n_p, da
     assert abs(got - dense[r, c].sum()) < 1e-9
 
 
-def test_tfidf_bound_matches_scikit_learn():
-    docs = [["the", "supplier", "shall", "deliver", "the", "goods"],
-            ["the", "customer", "shall", "pay", "the", "fees"],
-            ["goods", "goods", "fees"], []]
-    ours = _tfidf(docs).toarray()
+def _dense(rows, width):
+    out = np.zeros((len(rows), width))
+    for i, r in enumerate(rows):
+        for j, x in r.items():
+            out[i, j] = x
+    return out
+
+
+def _sklearn_tfidf(docs):
+    """Reference: scikit-learn's TfidfVectorizer(sublinear_tf=True), columns in our
+    vocabulary order (first appearance)."""
     ref = TfidfVectorizer(analyzer=lambda x: x, sublinear_tf=True).fit(docs)
-    theirs = ref.transform(docs).toarray()
-    # same columns (vocabulary order differs)
     vocab = {}
     for seq in docs:
         for w in seq:
             vocab.setdefault(w, len(vocab))
-    order = [vocab[w] for w in ref.get_feature_names_out()]
-    assert np.allclose(ours[:, order], theirs)
+    theirs = ref.transform(docs).toarray()
+    out = np.zeros((len(docs), len(vocab)))
+    for k, w in enumerate(ref.get_feature_names_out()):
+        out[:, vocab[w]] = theirs[:, k]
+    return out, len(vocab)
+
+
+def test_tfidf_bound_matches_scikit_learn():
+    docs = [["the", "supplier", "shall", "deliver", "the", "goods"],
+            ["the", "customer", "shall", "pay", "the", "fees"],
+            ["goods", "goods", "fees"], []]
+    theirs, width = _sklearn_tfidf(docs)
+    assert np.allclose(_dense(_tfidf(docs), width), theirs)
+
+
+WORDS = ["the", "supplier", "customer", "shall", "may", "pay", "deliver", "goods", "fees",
+         "notice", "thirty", "days", "term", "law"]
+docs_strategy = st.lists(st.lists(st.sampled_from(WORDS), max_size=12), min_size=1, max_size=12)
+
+
+@settings(max_examples=100, deadline=None)
+@given(docs_strategy, docs_strategy, docs_strategy, docs_strategy)
+def test_cosines_and_candidates_plain_equal_numpy_and_scikit_learn(dw, pw, dh, ph):
+    """The plain-Python cosines equal scikit-learn's TF-IDF cosines (reference), and the
+    candidates chosen in plain Python equal those chosen with the numpy product (the path
+    of longer documents), ties aside."""
+    assume(any(dw + pw))  # scikit-learn refuses an empty vocabulary
+    n_d, n_p = len(dw), len(pw)
+    dh, ph = (dh * n_d)[:n_d], (ph * n_p)[:n_p]
+    content, heads = _tfidf(dw + pw), _tfidf(dh + ph)
+    ref, _w = _sklearn_tfidf(dw + pw)
+    cos = _Cosines(content, heads, n_d)
+    for d in range(n_d):
+        for p in range(n_p):
+            assert abs(cos.get(d, p)[0] - float(ref[d] @ ref[n_d + p])) < 1e-9
+    plain = _Cosines(content, heads, n_d)._candidates_plain(n_p)
+    dense = _Cosines(content, heads, n_d)._candidates_numpy(n_p)
+    assert plain <= {(d, p) for d in range(n_d) for p in range(n_p)}
+    select = {}
+    for d in range(n_d):
+        for p in range(n_p):
+            c, h = cos.get(d, p)
+            bound = (1 - HEADING_WEIGHT) * c + HEADING_WEIGHT * h
+            if bound >= CANDIDATE_MIN_COSINE:
+                select[(d, p)] = round(bound + CANDIDATE_POSITION_WEIGHT * (
+                    1 - abs(d / max(1, n_d - 1) - p / max(1, n_p - 1))), 9)
+    assert plain <= set(select)
+    rows = [[v for (d, _p), v in select.items() if d == r] for r in range(n_d)]
+    cols = [[v for (_d, p), v in select.items() if p == c] for c in range(n_p)]
+    if all(len(set(x)) == len(x) for x in rows + cols):  # no tie to break differently
+        assert plain == dense
 
 
 PREC = [F("", "Definitions"), F("the supplier shall deliver the goods to the site on time", parent=0),

@@ -182,3 +182,42 @@ def test_a_period_filling_a_blank_outranks_a_date_filling_one():
     assert period.category == date.category == "substantive"
     assert period.reasons[0] == "figure added: 45"
     assert period.severity > date.severity > 0
+
+
+# --------------------------------------------------------------------------------------
+# A span's figures without scanning the whole text (a long provision has many changes)
+# --------------------------------------------------------------------------------------
+
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+_PIECES = ["within", "1,000", "days", "of", "Section 4.2", "(b)", "2016/679", "2.Scope",
+           "version 3.7.2", "2001-2019", "(2)", "clauses 3 and 4", "10:30", "-", ";", "12"]
+
+
+def _slow_figures_in(text: str, span: tuple[int, int], references: bool) -> tuple[str, ...]:
+    """Reference: the definition, scanning the whole text with FIGURE_RE and every skipped
+    span by a linear search (as the guard did before figures were looked up per span)."""
+    from core.review.figures import FIGURE_RE, _normal
+    from core.review.noise import label_spans
+    from core.review.tokens import find_cross_references
+
+    a, b = span
+    skip = [] if references else label_spans(text) + [(s, e) for s, e, *_ in find_cross_references(text)]
+    out = []
+    for m in FIGURE_RE.finditer(text):
+        if m.end() <= a or m.start() >= b or (a == b and not m.start() < a < m.end()):
+            continue
+        if any(s <= m.start() < e for s, e in skip):
+            continue
+        out.append(_normal(m.group()))
+    return tuple(out)
+
+
+@settings(max_examples=400, deadline=None)
+@given(st.lists(st.sampled_from(_PIECES), min_size=1, max_size=30), st.data(), st.booleans())
+def test_figures_of_a_span_equal_a_scan_of_the_whole_text(parts, data, references) -> None:
+    text = " ".join(parts)
+    a = data.draw(st.integers(0, len(text)))
+    b = data.draw(st.integers(a, len(text)))
+    assert figures_in(text, (a, b), references=references) == _slow_figures_in(text, (a, b), references)

@@ -11,6 +11,8 @@ from __future__ import annotations
 import tomllib
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from core.errors import CounterdraftError
 from core.review import run_review
@@ -280,3 +282,56 @@ def test_commercially_before_reasonable_efforts_is_a_weaker_standard_not_words_r
     _s, reasons = score("The Supplier shall use best endeavours to deliver",
                         "The Supplier shall use reasonable endeavours to deliver")
     assert reasons[0].startswith("efforts standard lowered from 'best endeavours' to 'reasonable endeavours'")
+
+
+# --------------------------------------------------------------------------------------
+# Figures near a change: found once per text, picked by window
+# --------------------------------------------------------------------------------------
+
+_FRAGMENTS = ["the Supplier shall pay", "thirty (30) days", "EUR 12,500", "ten per cent (10%)",
+              "within 5 Business Days", "Clause 4.2", "(b)", "one of the parties", "2.", "and",
+              "GBP 1.5 million", "twenty-one (21) days", "version 3.7.2", "of", "15%"]
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.lists(st.sampled_from(_FRAGMENTS), min_size=1, max_size=40), st.data())
+def test_figures_near_a_span_equal_a_scan_of_its_window(parts, data) -> None:
+    """Reference: the slow way, scanning the window around the span again
+    (``_find_quantities(text, lo, hi)``).  The figures picked from the whole text's equal it
+    wherever no figure of the text straddles the window's ends (a scan from inside a figure
+    would see only part of it)."""
+    from core.review.severity import _find_quantities, _window
+
+    text = " ".join(parts)
+    a = data.draw(st.integers(0, len(text)))
+    b = data.draw(st.integers(a, len(text)))
+    lo, hi = _window(text, (a, b))
+    whole = _find_quantities(text)
+    ours = find_quantities(text, around=(a, b))
+    assert all(q in whole for q in ours)
+    if not any(q.start < x < q.end for q in whole for x in (lo, hi)):
+        assert ours == _find_quantities(text, lo, hi)
+
+
+_HEADING_WORDS = ["Term", "and", "Termination", "Governing", "Law", "&", "Jurisdiction",
+                  "Non-Disclosure", "third-party", "Rights", "IP", "Data", "data_x", "Lawful",
+                  "  ", "\t", "Limitation", "of", "Liability", "2.", "Sub-contracting", "Fees"]
+
+
+@settings(max_examples=400, deadline=None)
+@given(st.lists(st.sampled_from(_HEADING_WORDS), max_size=8))
+def test_clause_type_from_heading_equals_the_keyword_patterns(words) -> None:
+    """Reference: one regular expression per keyword, ``(?<![\\w])`` + the keyword's words
+    joined by ``\\s+`` + ``(?![\\w])``, searched longest keyword first (the rule file's
+    definition of a keyword match)."""
+    import re
+
+    rules = default_rules()
+    heading = " ".join(words)
+    keywords = sorted(((w, t) for t, ws in rules.clause_type_keywords.items() for w in ws),
+                      key=lambda wt: -len(wt[0]))
+    h = heading.casefold().replace("&", "and")
+    want = next((t for w, t in keywords
+                 if re.search(r"(?<![\w])" + r"\s+".join(map(re.escape, w.split())) + r"(?![\w])", h)),
+                None)
+    assert guess_clause_type(heading, rules=rules) == want

@@ -1,10 +1,12 @@
 """The word diff (core.review.worddiff), checked against the standard library's difflib.
 
 Reference: Python's ``difflib.SequenceMatcher`` on the same token keys.  Its matching blocks
-form a common subsequence of the two token sequences; diff-match-patch with no time-out runs
-Myers' algorithm (E. W. Myers, "An O(ND) difference algorithm and its variations",
-Algorithmica 1986), which finds a *longest* common subsequence, so before the semantic
-clean-up the diff keeps at least as many tokens unchanged as difflib does.
+form a common subsequence of the two token sequences; the exact diff -- diff-match-patch's
+Myers search with no time-out (E. W. Myers, "An O(ND) difference algorithm and its
+variations", Algorithmica 1986) or, above the budget, rapidfuzz's longest common
+subsequence -- finds a *longest* common subsequence, so before the semantic clean-up the
+diff keeps at least as many tokens unchanged as difflib does, and exactly as many as
+diff-match-patch's unbounded Myers search (the second reference).
 """
 
 from __future__ import annotations
@@ -120,13 +122,15 @@ def test_semantic_cleanup_merges_small_equalities() -> None:
     assert reconstruct(diff_texts(a, b), a, b) == (a, b)
 
 
-def test_long_pairs_use_sentence_first_diff_and_still_reconstruct():
-    """Above LINE_MODE_TOKENS the diff goes sentence by sentence first (diff-match-patch's
-    line mode); the result still rebuilds both texts and equal spans are equal, and the
-    changed sentences are the ones difflib (the reference) finds changed."""
+def test_long_pairs_reconstruct_and_change_only_the_changed_sentences():
+    """A long provision with a few sentences rewritten is diffed with rapidfuzz (Myers'
+    search would cost more); the result still rebuilds both texts, equal spans are equal,
+    and the changed sentences are the ones difflib (the reference) finds changed."""
     import random
 
-    from core.review.worddiff import LINE_MODE_TOKENS
+    from rapidfuzz.distance import Indel
+
+    from core.review.worddiff import _myers_cap
 
     rng = random.Random(3)
     words = [f"w{i}" for i in range(200)]
@@ -136,7 +140,8 @@ def test_long_pairs_use_sentence_first_diff_and_still_reconstruct():
     for i in changed:
         other[i] = " ".join(rng.choice(words) for _ in range(18)) + "."
     a, b = " ".join(sentences), " ".join(other)
-    assert len(tokenize(a)) + len(tokenize(b)) > LINE_MODE_TOKENS
+    ta, tb = tokenize(a), tokenize(b)
+    assert Indel.distance(ta.keys, tb.keys) > _myers_cap(len(ta), len(tb))
     edits = diff_texts(a, b)
     assert reconstruct(edits, a, b) == (a, b)
     check_tiling(edits, a, b)
@@ -148,6 +153,103 @@ def test_long_pairs_use_sentence_first_diff_and_still_reconstruct():
         starts.append(starts[-1] + len(s) + 1)
     touched = {max(k for k in range(600) if starts[k] <= e.p1) for e in edits if e.tag != "equal"}
     assert touched == set(changed)
+
+
+def _myers_kept(ta, tb) -> int:
+    """Reference: the tokens diff-match-patch's Myers search (no time-out, no budget) keeps:
+    the length of a longest common subsequence of the keys."""
+    from diff_match_patch import diff_match_patch
+
+    from core.review.worddiff import _encode
+
+    book: dict[str, str] = {}
+    dmp = diff_match_patch()
+    dmp.Diff_Timeout = 0
+    diffs = dmp.diff_main(_encode(ta.keys, book), _encode(tb.keys, book), False)
+    return sum(len(t) for op, t in diffs if op == 0)
+
+
+@settings(max_examples=300, deadline=None)
+@given(texts, texts)
+def test_bounded_path_keeps_as_many_tokens_as_myers_and_difflib(a: str, b: str) -> None:
+    """Whichever way is chosen, the exact diff is a shortest edit script: with rapidfuzz's
+    opcodes forced for every pair, the tokens kept equal those of
+    diff-match-patch's unbounded Myers search and are at least those of difflib's matching
+    blocks (both references), and the clean-up still rebuilds both texts."""
+    import core.review.worddiff as wd
+
+    ta, tb = tokenize(a), tokenize(b)
+    saved = wd._myers_cap
+    wd._myers_cap = lambda n, m: -1
+    wd.clear_diff_cache()
+    try:
+        ops = token_ops(ta, tb, semantic=False)
+        edits = edits_from_ops(ta, tb, token_ops(ta, tb))
+    finally:
+        wd._myers_cap = saved
+        wd.clear_diff_cache()
+    kept = sum(op.i2 - op.i1 for op in ops if op.tag in ("equal", "restyle"))
+    assert kept == _myers_kept(ta, tb)
+    sm = difflib.SequenceMatcher(None, ta.keys, tb.keys, autojunk=False)
+    assert kept >= sum(block.size for block in sm.get_matching_blocks())
+    assert reconstruct(edits, a, b) == (a, b)
+    check_tiling(edits, a, b)
+
+
+diff_ops = st.lists(st.tuples(st.sampled_from((-1, 0, 1)), st.text(alphabet="ab \n.", min_size=1, max_size=6)),
+                   max_size=40)
+
+
+def _dmp_cleanup(diffs):
+    """Reference: diff-match-patch's own diff_cleanupSemantic, in place on a copy."""
+    from diff_match_patch import diff_match_patch
+
+    out = list(diffs)
+    diff_match_patch().diff_cleanupSemantic(out)
+    return out
+
+
+@settings(max_examples=500, deadline=None)
+@given(diff_ops)
+def test_semantic_clean_up_equals_diff_match_patch_on_any_diff(diffs) -> None:
+    """The one-sweep clean-up gives exactly diff-match-patch's result (the reference), on
+    any list of operations, normalised or not."""
+    from core.review.worddiff import semantic_cleanup
+
+    assert semantic_cleanup(list(diffs)) == _dmp_cleanup(diffs)
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.text(alphabet="abc .", max_size=60), st.text(alphabet="abc .", max_size=60))
+def test_semantic_clean_up_equals_diff_match_patch_on_real_diffs(a: str, b: str) -> None:
+    """The same on the exact diffs the review cleans (reference: diff-match-patch)."""
+    from core.review.worddiff import exact_diff, semantic_cleanup
+
+    diffs = exact_diff(a, b)
+    assert semantic_cleanup(list(diffs)) == _dmp_cleanup(diffs)
+
+
+def test_semantic_clean_up_of_a_long_rewrite_is_linear_and_equal() -> None:
+    """A 3,000-word text against another drawn from the same words (thousands of diff
+    entries): the same result as diff-match-patch's clean-up (reference), and both texts
+    rebuilt."""
+    import random
+
+    import core.review.worddiff as wd
+
+    rng = random.Random(9)
+    words = [f"v{i}" for i in range(60)]
+    a = " ".join(rng.choice(words) for _ in range(3000))
+    b = " ".join(rng.choice(words) for _ in range(3000))
+    ta, tb = tokenize(a), tokenize(b)
+    book: dict[str, str] = {}
+    sa, sb = wd._encode(ta.keys, book), wd._encode(tb.keys, book)
+    diffs = wd.exact_diff(sa, sb)
+    assert len(diffs) > 1000
+    cleaned = wd.semantic_cleanup(list(diffs))
+    assert cleaned == _dmp_cleanup(diffs)
+    assert "".join(t for op, t in cleaned if op <= 0) == sa
+    assert "".join(t for op, t in cleaned if op >= 0) == sb
 
 
 # --------------------------------------------------------------------------------------
