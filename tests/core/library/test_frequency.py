@@ -184,7 +184,7 @@ def test_containing_counts_library_provisions_with_the_words(reviews, scenario, 
     by_id = {d["id"]: d for d in scenario["departures"]}
     v = _find(review, by_id["d9"])  # "not" inserted in an acceptance clause
     # Reference: SQLite's instr over the stored normalised wordings of that clause type.
-    expected = demo_library.conn.execute(
+    expected = demo_library.store.conn.execute(
         "SELECT COUNT(*) FROM provisions WHERE bucket = 'acceptance' AND instr(' ' || norm || ' ', ' not ') > 0"
     ).fetchone()[0]
     assert v.frequency.containing == expected > 0

@@ -31,7 +31,7 @@ import pytest
 import core.library.index as index_module
 from core.library.commands import review_options
 from core.library.frequency import apply_frequency
-from core.library.index import _bucket_file, _read_bucket, build_library, open_library
+from core.library.index import build_library, open_library, read_bucket
 from core.library.patterns import negotiation_patterns
 from core.reader import read_document
 from core.review import run_review
@@ -46,38 +46,39 @@ LABELLED = ("05-vantry-and-loame-manufacturing.docx", "7.1")  # a payment clause
 
 
 def _provisions(lib) -> list[tuple]:
-    return sorted(lib.conn.execute(
-        "SELECT d.path, p.pid, p.clause_type, p.type_source, p.bucket, p.norm_hash FROM provisions p "
-        "JOIN documents d ON d.id = p.document_id"))
+    return sorted(r[2:8] for r in lib.store.provision_rows())
+
+
+def _members(lib) -> dict[int | None, set[str]]:
+    """The wordings of each variant id."""
+    members: dict[int | None, set[str]] = {}
+    for *_r, h, vid in lib.store.provision_rows():
+        members.setdefault(vid, set()).add(h)
+    return members
 
 
 def _variants(lib) -> list[tuple]:
     """Each variant as (bucket, ordinal, its wordings, counts, sample path and provision, position)."""
-    members: dict[int, set[str]] = {}
-    for vid, h in lib.conn.execute("SELECT DISTINCT variant_id, norm_hash FROM provisions"):
-        members.setdefault(vid, set()).add(h)
+    members = _members(lib)
     refs = lib.provision_refs([v.sample for v in lib.variants() if v.sample is not None])
+    places = {r[0]: (r[2], r[3]) for r in lib.store.provision_rows()}
     out = []
     for v in lib.variants():
-        sample = lib.conn.execute("SELECT d.path, p.pid FROM provisions p JOIN documents d ON d.id = p.document_id "
-                                  "WHERE p.id = ?", (v.sample,)).fetchone()
         out.append((v.bucket, v.ordinal, frozenset(members[v.id]), v.wordings, v.provisions, v.documents,
-                    tuple(sample), refs[v.sample], v.position))
+                    places[v.sample], refs[v.sample], v.position))
     assert None not in members  # every provision has a variant
     return sorted(out, key=lambda t: (t[0], t[1]))
 
 
 def _caches(lib) -> dict[str, tuple]:
     """Each bucket's cache with ids turned into what they name (paths, provision ids, wordings)."""
-    paths = dict(lib.conn.execute("SELECT id, path FROM documents"))
-    pids = dict(lib.conn.execute("SELECT p.id, d.path || '#' || p.pid FROM provisions p "
-                                 "JOIN documents d ON d.id = p.document_id"))
-    wordings = {}
-    for vid, h in lib.conn.execute("SELECT DISTINCT variant_id, norm_hash FROM provisions"):
-        wordings.setdefault(vid, set()).add(h)
+    rows = lib.store.provision_rows()
+    paths = {r[1]: r[2] for r in rows}
+    pids = {r[0]: f"{r[2]}#{r[3]}" for r in rows}
+    wordings = _members(lib)
     out = {}
     for name in lib.bucket_names():
-        a = _read_bucket(_bucket_file(lib.folder, name))
+        a = read_bucket(lib.store, name)
         rows = []
         for i, sh, wd in zip(range(a.rows), a.shingle_sets(), _word_sets(a)):
             docs = frozenset(paths[d] for d in a.docs[a.docptr[i]:a.docptr[i + 1]].tolist())
@@ -255,20 +256,20 @@ def test_a_build_killed_between_a_cache_file_and_its_commit_is_repaired_by_the_n
     (folder / ADDED).unlink()
     build_library(folder)
     shutil.copy(SET / ADDED, folder / ADDED)
-    real = index_module._write_private
-    written: list[Path] = []
+    real = index_module._write_blob
+    written: list[str] = []
 
-    def failing(path: Path, data: bytes) -> None:
-        if path.parent.name == index_module.BUCKETS_DIRNAME:
-            written.append(path)
+    def failing(store, name: str, data: bytes) -> None:  # noqa: ANN001
+        if name.startswith(index_module.BUCKETS_DIRNAME + "/"):
+            written.append(name)
             if len(written) == 3:
                 raise OSError("simulated end of the process")
-        real(path, data)
+        real(store, name, data)
 
-    monkeypatch.setattr(index_module, "_write_private", failing)
+    monkeypatch.setattr(index_module, "_write_blob", failing)
     with pytest.raises(OSError, match="simulated"):
         build_library(folder)
-    monkeypatch.setattr(index_module, "_write_private", real)
+    monkeypatch.setattr(index_module, "_write_blob", real)
     build_library(folder)
     # Reference: a fresh full build of the same files.
     copy = tmp_path / "fresh"

@@ -13,7 +13,7 @@ def test_stats_of_the_demo_set(demo_library, scenario):
     stats = library_stats(demo_library)
     assert stats.documents == scenario["precedent_set"]["total"] == 12
     assert stats.failures == ()
-    conn = demo_library.conn
+    conn = demo_library.store.conn
     assert stats.provisions == conn.execute("SELECT COUNT(*) FROM provisions").fetchone()[0]
     by = {t.bucket: t for t in stats.types}
     kept = {d for v in scenario["precedent_set"]["variants"]
