@@ -100,8 +100,9 @@ def _frequencies(lib, pair: tuple[Path, Path] = (DEMO / "draft.docx", DEMO / "pr
             tuple((d.rank, d.severity) for d in review.deviations))
 
 
-def _snapshot(root: Path, *, patterns: bool = False, pair: tuple[Path, Path] | None = None) -> dict:
-    with open_library(root, refresh=False) as lib:
+def _snapshot(root: Path, *, patterns: bool = False, pair: tuple[Path, Path] | None = None,
+              backend=None) -> dict:  # noqa: ANN001
+    with (backend.open(root) if backend is not None else open_library(root, refresh=False)) as lib:
         snap = {"total": lib.total, "provisions": _provisions(lib), "variants": _variants(lib),
                 "caches": _caches(lib), "frequencies": _frequencies(lib, *([pair] if pair else []))}
         if patterns:
@@ -109,22 +110,22 @@ def _snapshot(root: Path, *, patterns: bool = False, pair: tuple[Path, Path] | N
     return snap
 
 
-def _label(root: Path) -> None:
-    with open_library(root, refresh=False) as lib:
+def _label(root: Path, backend) -> None:  # noqa: ANN001
+    with backend.open(root) as lib:
         lib.label_variant(lib.variant_of(*LABELLED), "preferred")
 
 
-def _fresh(state: Path, tmp: Path, name: str) -> dict:
+def _fresh(state: Path, tmp: Path, name: str, backend) -> dict:  # noqa: ANN001
     """Reference: a fresh full build of a copy of *state*'s files, labelled the same way."""
     copy = tmp / name
     shutil.copytree(state, copy, ignore=shutil.ignore_patterns(".counterdraft"))
-    build_library(copy)
-    _label(copy)
-    return _snapshot(copy, patterns=name == "after-remove")
+    backend.build(copy)
+    _label(copy, backend)
+    return _snapshot(copy, patterns=name == "after-remove", backend=backend)
 
 
 @pytest.fixture(scope="module")
-def references(tmp_path_factory):
+def references(tmp_path_factory, backend):
     """The folder's states after each step and their fresh builds' snapshots."""
     tmp = tmp_path_factory.mktemp("fresh")
     state = tmp / "state"
@@ -132,7 +133,7 @@ def references(tmp_path_factory):
     refs = {}
     for step in _STEPS:
         step(state)
-        refs[step.__name__] = _fresh(state, tmp, step.__name__.replace("_", "-"))
+        refs[step.__name__] = _fresh(state, tmp, step.__name__.replace("_", "-"), backend)
     return refs
 
 
@@ -158,7 +159,7 @@ _STEPS = (start, after_add, after_change, after_remove)
 
 @pytest.mark.parametrize("regroup", [False, True], ids=["defaults", "regroup-every-bucket"])
 def test_adding_changing_and_removing_one_agreement_equals_a_fresh_build(tmp_path, monkeypatch, references,
-                                                                         regroup):
+                                                                         regroup, backend):
     regrouped: list[int] = []
     if regroup:  # the demo's buckets are small: make every change go through regroup
         monkeypatch.setattr(index_module, "ALWAYS_FULL_WORDINGS", 0)
@@ -169,13 +170,13 @@ def test_adding_changing_and_removing_one_agreement_equals_a_fresh_build(tmp_pat
     shutil.copytree(SET, folder, ignore=shutil.ignore_patterns(".counterdraft"))
     for step in _STEPS:
         step(folder)
-        report = build_library(folder)
+        report = backend.build(folder)
         if step is start:
-            _label(folder)  # labelled once; the later builds must keep the position right
+            _label(folder, backend)  # labelled once; the later builds must keep the position right
             assert report.read == 11
         else:
             assert report.read + report.removed == 1  # one agreement read or dropped, no more
-        got = _snapshot(folder, patterns=step is after_remove and regroup)
+        got = _snapshot(folder, patterns=step is after_remove and regroup, backend=backend)
         want = references[step.__name__]
         for key in got:
             assert got[key] == want[key], (step.__name__, key)
@@ -246,15 +247,17 @@ def test_a_generated_corpus_built_incrementally_equals_a_fresh_build(tmp_path, m
     assert regrouped  # the incremental path ran
 
 
-def test_a_build_killed_between_a_cache_file_and_its_commit_is_repaired_by_the_next(tmp_path, monkeypatch):
-    """A build that dies after rewriting some bucket files but before committing their
-    variants (simulated by an error on the third file) leaves the next build to finish the
-    job; the result is a fresh build's."""
+def test_a_build_killed_between_a_cache_file_and_its_commit_is_repaired_by_the_next(tmp_path, monkeypatch,
+                                                                                  backend):
+    """A build that dies after rewriting some bucket caches but before committing their
+    variants (simulated by an error on the third cache) leaves the next build to finish the
+    job; the result is a fresh build's.  (On SQLite the caches are files written before the
+    commit; a server store keeps the build in one transaction, so the error undoes it all.)"""
     monkeypatch.setattr(index_module, "ALWAYS_FULL_WORDINGS", 0)  # regroup every bucket
     folder = tmp_path / "library"
     shutil.copytree(SET, folder, ignore=shutil.ignore_patterns(".counterdraft"))
     (folder / ADDED).unlink()
-    build_library(folder)
+    backend.build(folder)
     shutil.copy(SET / ADDED, folder / ADDED)
     real = index_module._write_blob
     written: list[str] = []
@@ -268,14 +271,14 @@ def test_a_build_killed_between_a_cache_file_and_its_commit_is_repaired_by_the_n
 
     monkeypatch.setattr(index_module, "_write_blob", failing)
     with pytest.raises(OSError, match="simulated"):
-        build_library(folder)
+        backend.build(folder)
     monkeypatch.setattr(index_module, "_write_blob", real)
-    build_library(folder)
+    backend.build(folder)
     # Reference: a fresh full build of the same files.
     copy = tmp_path / "fresh"
     shutil.copytree(folder, copy, ignore=shutil.ignore_patterns(".counterdraft"))
-    build_library(copy)
-    want, got = _snapshot(copy), _snapshot(folder)
+    backend.build(copy)
+    want, got = _snapshot(copy, backend=backend), _snapshot(folder, backend=backend)
     for key in want:
         assert got[key] == want[key], key
 
