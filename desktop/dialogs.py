@@ -42,7 +42,8 @@ ABOUT_PACKAGES = ("python-docx", "lxml", "diff-match-patch", "rapidfuzz", "scipy
 
 
 class OpenDialog(QDialog):
-    """Pick the draft, the precedent and (optionally) a precedent-set folder."""
+    """Pick the draft, the precedent and (optionally) the precedent set: a folder, or the
+    address of a store the team shares."""
 
     chosen = Signal(str, str, str)  # draft, precedent, library ("" for none)
 
@@ -53,7 +54,8 @@ class OpenDialog(QDialog):
         self.draft = QLineEdit(draft, self)
         self.precedent = QLineEdit(precedent, self)
         self.library = QLineEdit(library, self)
-        self.library.setPlaceholderText("optional: a folder of past agreements")
+        self.library.setPlaceholderText("optional: a folder of past agreements, or a shared store's address "
+                                        "(postgresql://user@host/database)")
         grid = QGridLayout()
         rows = (
             ("Counterparty's draft", self.draft, self._pick_draft),

@@ -12,28 +12,15 @@ from __future__ import annotations
 import itertools
 import json
 import shutil
-from collections.abc import Iterator
 from pathlib import Path
 
 import pytest
 
-from tests.support.pgserver import PostgresServer, start_server
+from tests.support.pgserver import PostgresServer
 
 ROOT = Path(__file__).resolve().parents[3]
 DEMO = ROOT / "demo_agreements"
 BACKENDS = ("sqlite", "postgresql")
-
-
-@pytest.fixture(scope="session")
-def pg_server() -> Iterator[PostgresServer]:
-    """A PostgreSQL server of this session's own, stopped at its end.  A machine without
-    PostgreSQL fails here, like one without LibreOffice: ``make test`` installs it."""
-    try:
-        server = start_server()
-    except RuntimeError as err:
-        pytest.fail(f"cannot start a PostgreSQL server for the tests: {err}", pytrace=False)
-    yield server
-    server.stop()
 
 
 class Backend:
