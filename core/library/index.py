@@ -769,7 +769,7 @@ class _Wordings:
 
 def _document_ranks(store: PrecedentStore) -> tuple[np.ndarray, np.ndarray]:
     """(document ids sorted, each one's rank by path) for :func:`_bucket_wordings`."""
-    ids = np.array(store.document_ids_by_path(), dtype=np.int64)
+    ids = np.array([i for i, _p, _h in store.documents_by_path()], dtype=np.int64)
     order = np.argsort(ids)
     return ids[order], order.astype(np.int64)
 

@@ -36,6 +36,11 @@ __all__ = ["PostgresServer", "find_binaries", "start_server"]
 SUPERUSER = "cdtest"
 #: Seconds pg_ctl waits for the server to start or stop.
 WAIT_S = 60
+#: The cluster lives in memory (/dev/shm) when that has this much room: every test database is
+#: a copy of a ~8 MB template, and a session makes a few dozen.  Docker's default /dev/shm is
+#: 64 MB, too small: then the system's temporary folder.
+SHM_MIN_FREE = 2 * 1024**3
+
 #: Server settings for a throwaway cluster: durability off (its data dies with the test
 #: run), few connections.  fsync=off and friends: PostgreSQL's documented settings for data
 #: that can be recreated ("Non-Durable Settings", server docs 14.5).
@@ -61,6 +66,15 @@ def _free_port() -> int:
     with socket.socket(socket.AF_INET, socket.SOCK_STREAM) as s:
         s.bind(("127.0.0.1", 0))
         return int(s.getsockname()[1])
+
+
+def _scratch_folder() -> str | None:
+    """/dev/shm when it has room (SHM_MIN_FREE), else None (the system's temporary folder)."""
+    try:
+        st = os.statvfs("/dev/shm")
+    except OSError:
+        return None
+    return "/dev/shm" if st.f_bavail * st.f_frsize >= SHM_MIN_FREE and os.access("/dev/shm", os.W_OK) else None
 
 
 def _unprivileged_account() -> pwd.struct_passwd:
@@ -139,7 +153,7 @@ def start_server() -> PostgresServer:
     account = _unprivileged_account() if os.geteuid() == 0 else None
     # Not under pytest's tmp_path: that folder is root's own (0o700) when the tests run as
     # root, and the server's account must reach its files.
-    base = Path(tempfile.mkdtemp(prefix="counterdraft-pg-"))
+    base = Path(tempfile.mkdtemp(prefix="counterdraft-pg-", dir=_scratch_folder()))
     if account is not None:
         os.chown(base, account.pw_uid, account.pw_gid)
     server = PostgresServer(binaries, base, _free_port(), account)

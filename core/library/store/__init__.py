@@ -1,8 +1,9 @@
 """Where the precedent set is kept: the storage interface and its two backends.
 
 * :class:`~.base.PrecedentStore` -- the protocol: every question asked of the stored
-  precedent set, in the domain's words.  No SQL lives outside this package (a test greps
-  ``core/`` for it).
+  precedent set, in the domain's words, in five small groups (lifecycle and transactions,
+  documents, wordings, derived data, reading).  No SQL lives outside this package (a test
+  greps ``core/`` for it).
 * :mod:`.sqlite` -- the default: one person's SQLite file in ``PAST_AGREEMENTS/.counterdraft``.
 * :mod:`.postgres` -- a team's shared PostgreSQL database, addressed as
   ``postgresql://USER@HOST:PORT/DATABASE``.

@@ -28,9 +28,14 @@ from typing import Literal, Protocol
 
 __all__ = [
     "VARIANT_FIGURES",
+    "Derived",
     "DocumentState",
+    "Documents",
     "FailureState",
+    "Lifecycle",
     "PrecedentStore",
+    "Reading",
+    "Wordings",
     "ProvisionRow",
     "StoreDamaged",
     "TermRow",
@@ -58,14 +63,13 @@ class StoreDamaged(Exception):
         self.problem = problem
 
 
-class PrecedentStore(Protocol):
-    """The stored precedent set (see the module docstring)."""
+class Lifecycle(Protocol):
+    """Opening, transactions, the writer lock, damage."""
 
     #: Where the store is, as shown to people: a file path, or a server address without
     #: any password.  Reopening it gives the same store.
     address: str
 
-    # -- lifecycle and transactions ------------------------------------------------------
     def open(self, *, create: bool) -> None:
         """Make the store ready: create it (*create*) or check it; raises
         :class:`StoreDamaged` or :class:`~core.errors.CounterdraftError`."""
@@ -85,12 +89,17 @@ class PrecedentStore(Protocol):
     def start_over(self, problem: str) -> str:
         """Set a damaged store aside, start an empty one; a one-line note saying so."""
 
-    # -- settings and bookkeeping ---------------------------------------------------------
+    def size_bytes(self) -> int:
+        """Bytes the store takes (its files, or its database)."""
+
+
+class Documents(Protocol):
+    """Settings, and the documents themselves: add, replace, remove, list."""
+
     def meta(self, key: str) -> str | None: ...
     def set_meta(self, key: str, value: str) -> None: ...
     def delete_meta(self, *keys: str) -> None: ...
 
-    # -- documents --------------------------------------------------------------------------
     def file_states(self) -> tuple[dict[str, DocumentState], dict[str, FailureState]]:
         """Every stored document and every recorded failure, by path."""
     def remove_document(self, path: str) -> None:
@@ -113,7 +122,11 @@ class PrecedentStore(Protocol):
     def source_bytes(self, path: str) -> bytes | None:
         """The file of the document at *path* when the store keeps files, else None."""
 
-    # -- normalising and typing -------------------------------------------------------------
+
+
+class Wordings(Protocol):
+    """What a build computes from the documents first: normalised wordings, clause types."""
+
     def all_terms(self) -> list[tuple[int, str, str]]:
         """(document id, term, definition) of every defined term."""
     def renormalise_all(self) -> None:
@@ -135,7 +148,12 @@ class PrecedentStore(Protocol):
         """Apply (clause type, type source, bucket, provision id, old bucket) updates; both
         buckets marked dirty."""
 
-    # -- buckets and variants ---------------------------------------------------------------
+
+
+class Derived(Protocol):
+    """What a build computes and keeps from the wordings: buckets, variants, the vocabulary's
+    corpus, derived blobs (frequency caches, models)."""
+
     def mark_dirty(self, buckets: Iterable[str] | None = None) -> None:
         """Mark *buckets* (every bucket holding a provision when None) to be refreshed."""
     def dirty_buckets(self) -> list[str]: ...
@@ -148,7 +166,6 @@ class PrecedentStore(Protocol):
     def set_clustered(self, bucket: str, wordings: int) -> None: ...
     def drop_bucket(self, bucket: str) -> None:
         """A bucket left without provisions: its variants and state go."""
-    def document_ids_by_path(self) -> list[int]: ...
     def wording_counts(self, bucket: str) -> list[tuple[str, int]]:
         """(wording hash, provisions) of a bucket, by hash."""
     def wording_places(self, bucket: str) -> list[tuple[int, int, int]]:
@@ -174,13 +191,19 @@ class PrecedentStore(Protocol):
         """A variant's position: the label most of its labelled wordings carry (ties: the
         most recent label)."""
 
-    # -- the vocabulary's corpus ------------------------------------------------------------
     def documents_by_path(self, limit: int | None = None) -> list[tuple[int, str, str]]:
         """(id, path, sha256), by path."""
     def document_texts(self, document_id: int) -> list[tuple[str, str | None]]:
         """(text, wording hash) of a document's provisions, in order."""
 
-    # -- reading for reviews, stats and labels --------------------------------------------
+    def read_blob(self, name: str) -> bytes | None: ...
+    def write_blob(self, name: str, data: bytes) -> None: ...
+    def delete_blob(self, name: str) -> None: ...
+
+
+class Reading(Protocol):
+    """What reviews, stats, calibration and labels ask: variants and counts, positions."""
+
     def bucket_names(self) -> tuple[str, ...]: ...
     def document_paths(self, ids: Sequence[int]) -> dict[int, str]: ...
     def provision_refs(self, ids: Sequence[int]) -> dict[int, tuple[str, str | None, str | None, str]]:
@@ -211,9 +234,6 @@ class PrecedentStore(Protocol):
         type source, bucket, wording hash, variant id), by path and order: the whole index,
         to compare two stores."""
 
-    # -- derived data (frequency caches, models) ------------------------------------------
-    def read_blob(self, name: str) -> bytes | None: ...
-    def write_blob(self, name: str, data: bytes) -> None: ...
-    def delete_blob(self, name: str) -> None: ...
-    def size_bytes(self) -> int:
-        """Bytes the store takes (its files, or its database)."""
+
+class PrecedentStore(Lifecycle, Documents, Wordings, Derived, Reading, Protocol):
+    """The stored precedent set (see the module docstring): five small protocols in one."""

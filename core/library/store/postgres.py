@@ -208,7 +208,7 @@ class PostgresStore(SQLStore):
 
     def open(self, *, create: bool) -> None:
         version = self._schema_version()
-        self.conn.commit()
+        self.commit()
         if version > SCHEMA_VERSION:
             raise CounterdraftError(f"the store was made by a newer version of Counterdraft (schema {version}; "
                                     f"this version knows {SCHEMA_VERSION}): upgrade Counterdraft to use it",
@@ -251,7 +251,7 @@ class PostgresStore(SQLStore):
     @contextmanager
     def lock(self) -> Iterator[None]:
         self._cursor("SELECT pg_advisory_lock(?, ?)", (_LOCK_CLASS, _WRITER_LOCK))
-        self.conn.commit()  # the work under the lock starts a transaction of its own
+        self.commit()  # the work under the lock starts a transaction of its own
         try:
             yield
         finally:
@@ -265,12 +265,15 @@ class PostgresStore(SQLStore):
 
     @contextmanager
     def write(self) -> Iterator[None]:
-        self.conn.rollback()  # a reader's snapshot ends here
+        try:
+            self.conn.rollback()  # a reader's snapshot ends here
+        except psycopg.Error as err:
+            raise self._failed(err) from None
         self._set_mode(write=True)
         try:
             with self.lock():
                 yield
-                self.conn.commit()
+                self.commit()
         finally:
             if not self.conn.closed:
                 self.conn.rollback()

@@ -224,9 +224,6 @@ class SQLStore:
         self._cursor("DELETE FROM variants WHERE bucket = ?", (bucket,))
         self._cursor("DELETE FROM bucket_state WHERE bucket = ?", (bucket,))
 
-    def document_ids_by_path(self) -> list[int]:
-        return [i for (i,) in self._cursor("SELECT id FROM documents ORDER BY path")]
-
     def wording_counts(self, bucket: str) -> list[tuple[str, int]]:
         return [(h, int(n)) for h, n in self._cursor(
             "SELECT norm_hash, COUNT(*) FROM provisions WHERE bucket = ? GROUP BY norm_hash ORDER BY norm_hash",

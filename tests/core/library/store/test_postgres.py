@@ -158,7 +158,10 @@ def _review_figures(lib: Library) -> tuple:
 def test_patterns_are_reviewed_from_the_store_without_the_folder(tmp_path, pg_server):
     """A reviewer on another machine has the store, not the builder's folder: the store's
     copies of the agreements give the same patterns."""
-    folder = shutil.copytree(SET, tmp_path / "set", ignore=shutil.ignore_patterns(".counterdraft"))
+    folder = tmp_path / "set"
+    folder.mkdir()
+    for name in sorted(p.name for p in SET.glob("*.docx"))[:5]:
+        shutil.copy(SET / name, folder)
     address = pg_server.url(pg_server.create_database("patterns"))
     build_library(folder, store=address, vocabulary=False)
     prec = read_document(str(PRECEDENT))
