@@ -8,7 +8,9 @@ added, one changed and one removed; then the whole ``counterdraft review`` proce
 ~100-page pair with ``--library`` (the folder, or the store's address) against the same
 command without it (best of 3 each, interleaved), and the store's size (SQLite: the index
 folder, database and derived files; PostgreSQL: ``pg_database_size``, with the part an empty
-database already takes and the part holding the agreements' files shown apart).  At the end
+database already takes and the part holding the agreements' files shown apart, and the size
+after ``VACUUM FULL``: a build inserts each provision, then updates it with its wording and
+its variant, and PostgreSQL keeps the old row versions until a vacuum).  At the end
 both stores must hold the same provisions, variants and figures (else the script fails).
 
 PostgreSQL: a throwaway server started like the tests' (``tests/support/pgserver.py``:
@@ -104,6 +106,8 @@ def _run(args, address: str, admin: Callable[[str], list[tuple]]) -> dict[str, f
             figures["postgresql_size_mb"] = b.store.size_bytes() / 1e6
         figures["postgresql_empty_mb"] = empty / 1e6
         figures["postgresql_files_mb"] = float(admin("SELECT pg_total_relation_size('sources')")[0][0]) / 1e6
+        admin("VACUUM FULL")  # the old row versions of the builds' updates gone: the live data
+        figures["postgresql_live_mb"] = float(admin("SELECT pg_database_size(current_database())")[0][0]) / 1e6
         draft, prec = _review_pair(work, args.review_pages)
         figures.update(_reviews({"sqlite": str(folders["sqlite"]), "postgresql": address}, draft, prec))
     for b in BACKENDS:
@@ -131,7 +135,9 @@ def _print(f: dict[str, float]) -> None:
         print(f"{label:28}" + "".join(f"{fmt.format(f[f'{b}_{key}']):>13} " for b in BACKENDS))
     print(f"{'plain review (process)':28}{'{:9.2f} s'.format(f['review_s']):>13}")
     print(f"PostgreSQL store size: {f['postgresql_empty_mb']:.1f} MB of it an empty database's, "
-          f"{f['postgresql_files_mb']:.1f} MB the agreements' files (kept for patterns from any machine)")
+          f"{f['postgresql_files_mb']:.1f} MB the agreements' files (kept for patterns from any machine); "
+          f"{f['postgresql_live_mb']:.1f} MB after VACUUM FULL (the rest: row versions the builds' updates left, "
+          "which autovacuum makes reusable)")
     print("Both stores hold the same provisions, variants, positions and failures.")
 
 
@@ -156,8 +162,9 @@ def main(argv: list[str] | None = None) -> int:
         address = server.url(server.create_database("bench"))
     try:
         def admin(sql: str) -> list[tuple]:
-            with psycopg.connect(address) as conn:
-                return conn.execute(sql).fetchall()
+            with psycopg.connect(address, autocommit=True) as conn:
+                cur = conn.execute(sql)
+                return cur.fetchall() if cur.description else []
 
         figures = _run(args, address, admin)
     finally:

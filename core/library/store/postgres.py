@@ -12,7 +12,9 @@ password never lands in a review file, a log, a shell history or an error messag
 address shown (:func:`shown_address`) has any password taken out all the same.
 
 Tables (schema version :data:`SCHEMA_VERSION`, in the connection's ``search_path``): those
-of the SQLite index, with text compared by code point (``COLLATE "C"``, SQLite's order), plus
+of the SQLite index, with text compared by code point (``COLLATE "C"``, SQLite's order;
+``provisions`` moves its long text out of line, ``toast_tuple_target = 128``, so that the
+build's updates of a provision's wording and variant copy a short row), plus
 ``blobs`` (the derived data SQLite keeps as files: frequency caches, the clause-type
 classifier, the vocabulary model) and ``sources`` (each agreement's file, by SHA-256, so that
 negotiation patterns can review the agreements from any machine).  The schema is created and
@@ -76,7 +78,8 @@ CREATE TABLE provisions(
     ordinal INTEGER NOT NULL, pid TEXT COLLATE "C" NOT NULL, kind TEXT COLLATE "C" NOT NULL,
     number TEXT COLLATE "C", heading TEXT COLLATE "C", level INTEGER NOT NULL, parent TEXT COLLATE "C",
     text TEXT NOT NULL, clause_type TEXT COLLATE "C", type_source TEXT COLLATE "C" NOT NULL,
-    bucket TEXT COLLATE "C" NOT NULL, norm TEXT COLLATE "C", norm_hash TEXT COLLATE "C", variant_id BIGINT);
+    bucket TEXT COLLATE "C" NOT NULL, norm TEXT COLLATE "C", norm_hash TEXT COLLATE "C", variant_id BIGINT)
+    WITH (toast_tuple_target = 128);
 CREATE INDEX provisions_document ON provisions(document_id);
 CREATE INDEX provisions_wording ON provisions(bucket, norm_hash, document_id, ordinal, variant_id);
 CREATE INDEX provisions_typed ON provisions(type_source, clause_type, norm_hash, document_id);
