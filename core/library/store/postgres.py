@@ -89,7 +89,6 @@ CREATE TABLE terms(
     document_id BIGINT NOT NULL REFERENCES documents(id) ON DELETE CASCADE,
     term TEXT COLLATE "C" NOT NULL, definition TEXT NOT NULL, provision TEXT COLLATE "C", uses INTEGER NOT NULL);
 CREATE INDEX terms_document ON terms(document_id);
-CREATE INDEX terms_term ON terms(term, document_id);
 CREATE TABLE failures(
     path TEXT COLLATE "C" PRIMARY KEY, sha256 TEXT COLLATE "C", size BIGINT NOT NULL, mtime_ns BIGINT NOT NULL,
     problem TEXT NOT NULL);
