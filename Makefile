@@ -6,8 +6,9 @@ VENV := .venv
 PY := $(VENV)/bin/python
 # LibreOffice (with Debian's python3-uno) is the tests' outside reference for .docx; the font
 # keeps offscreen Qt text readable; Xvfb and xwininfo (x11-utils) let a test open the real
-# window on a virtual screen, as the command printed by a headless `make demo` does.
-TEST_PACKAGES := libreoffice-writer python3-uno fonts-dejavu-core xvfb xauth x11-utils
+# window on a virtual screen, as the command printed by a headless `make demo` does;
+# PostgreSQL (initdb, pg_ctl, psql) runs the throwaway server the shared-store tests start.
+TEST_PACKAGES := libreoffice-writer python3-uno fonts-dejavu-core xvfb xauth x11-utils postgresql
 # What Qt's X11 plugin (PySide6's libqxcb.so) needs beyond a minimal Debian: the libraries
 # `ldd libqxcb.so` reported "not found" on one (libxcb-icccm4, libxcb-keysyms1) and those a
 # fresh container may lack, plus a font.
@@ -46,11 +47,13 @@ gui-deps: $(VENV)/.installed
 	fi
 
 # LibreOffice is the outside reference for numbering labels and tracked changes; Xvfb for the
-# window on a virtual screen.
+# window on a virtual screen; PostgreSQL's server binaries (Debian keeps them off PATH, in
+# /usr/lib/postgresql/VERSION/bin) for the shared-store tests.
 system-deps:
 	@if ! command -v soffice >/dev/null 2>&1 || ! /usr/bin/python3 -c 'import uno' >/dev/null 2>&1 \
 	    || ! [ -d /usr/share/fonts/truetype/dejavu ] || ! command -v xvfb-run >/dev/null 2>&1 \
-	    || ! command -v xauth >/dev/null 2>&1 || ! command -v xwininfo >/dev/null 2>&1; then \
+	    || ! command -v xauth >/dev/null 2>&1 || ! command -v xwininfo >/dev/null 2>&1 \
+	    || ! { command -v initdb >/dev/null 2>&1 || ls /usr/lib/postgresql/*/bin/initdb >/dev/null 2>&1; }; then \
 	  $(APT_INSTALL) $(TEST_PACKAGES); \
 	fi
 

@@ -332,7 +332,8 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--show", choices=("substantive", "all"), default=None,
                    help="deviations in the table (default: substantive and term)")
     p.add_argument("--library", metavar="DIR",
-                   help="folder of past agreements: say how common each wording is (indexed in DIR/.counterdraft)")
+                   help="folder of past agreements: say how common each wording is (indexed in DIR/.counterdraft); "
+                        "or a shared store's address, postgresql://USER@HOST:PORT/DB")
     p.add_argument("--save", metavar="REVIEW.json",
                    help="also save a review file to record decisions on (see 'decide', 'export')")
     p.add_argument("--acting-for", metavar="PARTY",

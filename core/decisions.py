@@ -121,7 +121,8 @@ class ReviewFile:
     overrides: tuple[Any, ...] = ()
     #: What happened when the file was reopened: changed documents, dropped decisions.
     notes: tuple[str, ...] = ()
-    #: Folder of the precedent set the review used (absolute), or None.
+    #: Folder of the precedent set the review used (absolute), or the address of its shared
+    #: store (never with a password), or None.
     library: str | None = None
 
 
@@ -335,6 +336,19 @@ def _override_from_dict(d: Mapping[str, Any]) -> Any:
                            for k, v in d.items() if k in fields_})
 
 
+def _library_entry(library: str | None, folder: Path) -> dict[str, str] | None:
+    """The review file's record of the precedent set: its folder (relative where possible),
+    or a shared store's address as it is (:func:`~core.library.store.shown_address`)."""
+    from .library.store import is_server_address, shown_address
+
+    if not library:
+        return None
+    if is_server_address(library):
+        shown = shown_address(library)
+        return {"path": shown, "absolute_path": shown}
+    return {"path": _stored_path(library, folder), "absolute_path": library}
+
+
 def _stored_path(doc_path: str, folder: Path) -> str:
     p = Path(doc_path).resolve()
     try:
@@ -355,8 +369,7 @@ def review_file_to_dict(rf: ReviewFile, *, folder: str | os.PathLike[str] = ".")
                   "sha256": rf.draft.sha256},
         "precedent": {"path": _stored_path(rf.precedent.path, base),
                       "absolute_path": rf.precedent.path, "sha256": rf.precedent.sha256},
-        "library": ({"path": _stored_path(rf.library, base), "absolute_path": rf.library}
-                    if rf.library else None),
+        "library": _library_entry(rf.library, base),
         "acting_for": rf.review.acting_for,
         "overrides": [_override_to_dict(o) for o in rf.overrides],
         "term_map": rd.get("term_map", []),
@@ -403,7 +416,7 @@ def new_review_file(draft_path: str | os.PathLike[str], precedent_path: str | os
                     acting_for: str | None = None) -> ReviewFile:
     """Start a review file for two documents (running the review unless *review* is given,
     acting for *acting_for* when given; a given review carries its own).  *library* records
-    the precedent-set folder the review used."""
+    the precedent-set folder (or shared store) the review used."""
     dpath, ppath = str(Path(draft_path).resolve()), str(Path(precedent_path).resolve())
     for p in (dpath, ppath):
         if not Path(p).is_file():
@@ -415,7 +428,15 @@ def new_review_file(draft_path: str | os.PathLike[str], precedent_path: str | os
     return ReviewFile(draft=DocumentRef(dpath, file_sha256(dpath)),
                       precedent=DocumentRef(ppath, file_sha256(ppath)),
                       review=review, overrides=tuple(overrides),
-                      library=str(Path(library).resolve()) if library else None)
+                      library=_library_reference(library))
+
+
+def _library_reference(library: str | os.PathLike[str] | None) -> str | None:
+    from .library.store import is_server_address, shown_address
+
+    if not library:
+        return None
+    return shown_address(str(library)) if is_server_address(library) else str(Path(library).resolve())
 
 
 def _locate(entry: Mapping[str, Any], folder: Path, *, role: str, review_path: str) -> str:
@@ -568,6 +589,10 @@ def read_library_folder(path: str | os.PathLike[str]) -> str | None:
     entry = data.get("library") if isinstance(data, dict) else None
     if not isinstance(entry, dict):
         return None
+    from .library.store import is_server_address
+
+    if is_server_address(entry.get("absolute_path")):
+        return entry["absolute_path"]
     folder = Path(path).resolve().parent
     for cand in (entry.get("path"), entry.get("absolute_path")):
         if isinstance(cand, str) and cand:

@@ -114,7 +114,8 @@ def build_parser() -> argparse.ArgumentParser:
     )
     p.add_argument("draft", nargs="?", help="the counterparty's draft (.docx, .txt, .md)")
     p.add_argument("precedent", nargs="?", help="the house precedent (.docx, .txt, .md)")
-    p.add_argument("--library", metavar="DIR", help="folder of past agreements (the precedent set)")
+    p.add_argument("--library", metavar="DIR", help="folder of past agreements (the precedent set), or a shared "
+                   "store's address (postgresql://USER@HOST:PORT/DB)")
     p.add_argument("--review", metavar="FILE", help="open a saved review file")
     p.add_argument("--demo", action="store_true", help="open the bundled demo agreements")
     p.add_argument("--version", action="version", version=f"Counterdraft {core.__version__}")

@@ -49,9 +49,10 @@ NO_PARTY = "No one (directions not judged)"
 
 
 class OpenDialog(QDialog):
-    """Pick the draft, the precedent, (optionally) a precedent-set folder, and the party the
-    reviewer acts for: one of the precedent's party terms (*parties(path)* lists them),
-    preset to the one chosen last with that precedent (*remembered(path)*)."""
+    """Pick the draft, the precedent, (optionally) the precedent set -- a folder, or the
+    address of a store the team shares -- and the party the reviewer acts for: one of the
+    precedent's party terms (*parties(path)* lists them), preset to the one chosen last with
+    that precedent (*remembered(path)*)."""
 
     chosen = Signal(str, str, str)  # draft, precedent, library ("" for none)
 
@@ -67,7 +68,8 @@ class OpenDialog(QDialog):
         self.draft = QLineEdit(draft, self)
         self.precedent = QLineEdit(precedent, self)
         self.library = QLineEdit(library, self)
-        self.library.setPlaceholderText("optional: a folder of past agreements")
+        self.library.setPlaceholderText("optional: a folder of past agreements, or a shared store's address "
+                                        "(postgresql://user@host/database)")
         self.acting_for = QComboBox(self)
         self.acting_for.setObjectName("actingFor")
         self.acting_for.setToolTip("The party you act for, by the precedent's name for it: each "

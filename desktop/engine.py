@@ -68,8 +68,13 @@ def unsupported_file(path: str) -> CounterdraftError:
 # reviewing
 # ------------------------------------------------------------------------------------------
 def _open_library(folder: str, report: Report, cancelled: IsCancelled) -> Any:
-    """Build or refresh the precedent set's index (cancellable between files) and open it."""
-    from core.library.index import open_library
+    """Build or refresh the precedent set's index (cancellable between files) and open it.
+    A shared store's address is opened as it is: its builders keep it up to date."""
+    from core.library.index import Library, open_library
+    from core.library.store import is_server_address
+
+    if is_server_address(folder):
+        return Library(folder)
 
     def progress(done: int, total: int, _path: str) -> None:
         # The path is not shown: file names of client agreements stay out of the screen
@@ -361,10 +366,14 @@ def compute_patterns(library: Any, report: Report, cancelled: IsCancelled, *, pr
 
     skip: tuple[str, ...] = ()
     if precedent_path is not None:  # the precedent itself may lie inside the precedent set
+        from core.fileio import file_sha256
+
+        skip = tuple(library.paths(sha256=file_sha256(precedent_path)))  # also a copy of it
         try:
-            skip = (Path(precedent_path).resolve().relative_to(Path(library.root).resolve()).as_posix(),)
+            if library.root is not None:
+                skip += (Path(precedent_path).resolve().relative_to(Path(library.root).resolve()).as_posix(),)
         except ValueError:
-            skip = ()
+            pass
     report(0, None, "Comparing every past agreement with the precedent")
     groups = negotiation_patterns(
         library, precedent, skip=skip, cancel=cancelled,

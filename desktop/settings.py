@@ -1,5 +1,6 @@
-"""Remembered window state: size, splitter positions, recent files, the party acted for
-with each precedent (QSettings).
+"""Remembered window state: size, splitter positions, recent files, the last precedent set
+(a folder or a shared store's address, never with a password), the party acted for with each
+precedent (QSettings).
 
 The window takes its :class:`QSettings` from the caller, so tests use a temporary INI file
 and never touch the user's settings.
@@ -62,6 +63,16 @@ class WindowSettings:
 
     def set_splitter(self, name: str, data: QByteArray) -> None:
         self.q.setValue(f"splitters/{name}", data)
+
+    def last_library(self) -> str:
+        """The precedent set last used: a folder, or a shared store's address ("" if none)."""
+        return str(self.q.value("library/last", "") or "")
+
+    def set_last_library(self, library: str) -> None:
+        """Remember *library*; a store's address is kept without any password."""
+        from core.library.store import shown_address
+
+        self.q.setValue("library/last", shown_address(library) if library else "")
 
     def recent(self) -> list[Recent]:
         raw = self.q.value("recent/entries", "[]")

@@ -410,7 +410,8 @@ class MainWindow(QMainWindow):
             self,
             draft=draft or (ws.inputs.draft if ws.inputs else ""),
             precedent=precedent or (ws.inputs.precedent if ws.inputs else ""),
-            library=library or (ws.inputs.library or "" if ws.inputs else "") or (self._pending_library or ""),
+            library=library or (ws.inputs.library or "" if ws.inputs else "") or (self._pending_library or "")
+            or self.settings.last_library(),
             parties=engine.party_terms, remembered=self.settings.acting_for,
         )
         dlg.setAttribute(Qt.WidgetAttribute.WA_DeleteOnClose)
@@ -466,6 +467,8 @@ class MainWindow(QMainWindow):
         else:
             ws.selected = _same_deviation(old_selected, out.review)
         self.settings.add_recent(Recent(inputs.draft, inputs.precedent, inputs.library or ""))
+        if inputs.library:
+            self.settings.set_last_library(inputs.library)
         self._refresh_recent_menu()
         self.broadcast(Change.REVIEW | Change.LIBRARY | Change.DECISIONS | Change.SELECTION
                        | Change.PATTERNS | Change.FILES)
@@ -773,7 +776,7 @@ class MainWindow(QMainWindow):
             else:
                 label = f"{Path(r.draft).name} against {Path(r.precedent).name}"
                 if r.library:
-                    label += f" (set: {Path(r.library).name})"
+                    label += f" (set: {_library_name(r.library)})"
                 act = self.recent_menu.addAction(label)
                 act.triggered.connect(functools.partial(
                     lambda d, p, lib, _=False: self.open_comparison(d, p, library=lib or None),
@@ -1025,3 +1028,10 @@ def _same_deviation(old, review) -> str | None:
                 old.change, old.draft_provision, old.precedent_provision, old.draft_text, old.precedent_text):
             return d.id
     return None
+
+
+def _library_name(library: str) -> str:
+    """How a recent entry names its precedent set: a folder's name, a store's address."""
+    from core.library.store import is_server_address, shown_address
+
+    return shown_address(library) if is_server_address(library) else Path(library).name

@@ -1,7 +1,8 @@
 """The precedent set: the firm's past agreements, indexed for "how common is this wording".
 
 Modules: :mod:`.normalise` (tokens, term normalisation, shingles), :mod:`.clausetypes`
-(clause typing), :mod:`.index` (the SQLite index and its build), :mod:`.variants` (wording
+(clause typing), :mod:`.index` (the index and its build), :mod:`.store` (where it is kept: the
+storage protocol, SQLite and PostgreSQL behind it; all SQL lives there), :mod:`.variants` (wording
 variants by hierarchical clustering), :mod:`.vocab` (the Word2Vec vocabulary model),
 :mod:`.frequency` (frequency figures and ranking in a review), :mod:`.slots` (the wording
 variants of one provision's slot, for the desktop app), :mod:`.patterns` (negotiation
@@ -9,7 +10,8 @@ patterns), :mod:`.calibrate` (choosing the clustering cut-off), :mod:`.bucketcac
 type's frequency cache, one file per type, updated in place by an incremental build).
 
 Every file the library writes holds confidential client text: it lives in the library's
-``.counterdraft`` folder (mode 0o700) with mode 0o600, and no provision text is logged.
+``.counterdraft`` folder (mode 0o700) with mode 0o600, and no provision text is logged.  A
+shared store keeps the same text on the firm's own PostgreSQL server, and nowhere else.
 
 The names below are the entry points; importing this package loads no heavy module (scipy
 loads when first used; gensim only to train the vocabulary model during a build, never to

@@ -27,7 +27,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 from ..errors import CounterdraftError
-from .index import Library, _bucket_rows, wording_shingles
+from .index import Library, wording_shingles
 from .variants import LINKAGES, METRICS, cluster_condensed, pairwise_distances
 
 __all__ = [
@@ -86,19 +86,16 @@ def read_labels(path: str) -> list[Labelled]:
 
 def stored_labels(library: Library) -> list[tuple[str, str, str]]:
     """(bucket, normalised-wording hash, position) of every wording labelled in the index."""
-    return list(library.conn.execute("SELECT bucket, norm_hash, position FROM labels ORDER BY bucket, norm_hash"))
+    return library.labels()
 
 
 def _resolve(library: Library, items: Sequence[Labelled]) -> list[tuple[str, str, str]]:
     out = []
     for it in items:
-        row = library.conn.execute(
-            "SELECT p.bucket, p.norm_hash FROM provisions p JOIN documents d ON d.id = p.document_id "
-            "WHERE d.path = ? AND (p.number = ? OR p.pid = ? OR lower(p.heading) = lower(?)) "
-            "ORDER BY p.ordinal LIMIT 1", (it.document, it.provision, it.provision, it.provision)).fetchone()
+        row = library.wording_of(it.document, it.provision)
         if row is None:
             raise CounterdraftError(f"provision {it.provision!r} of {it.document!r} is not in the index",
-                                    path=str(library.db_path))
+                                    path=library.address)
         out.append((row[0], row[1], it.label))
     return out
 
@@ -121,7 +118,7 @@ def calibrate(library: Library, labelled: Sequence[Labelled] | None = None, *,
         by_bucket[bucket][h].add(label)
     prepared = []
     for bucket in sorted(by_bucket):
-        rows = _bucket_rows(library.conn, bucket)
+        rows = library.store.bucket_rows(bucket)
         sets = [wording_shingles(r[2], r[3]) for r in rows]
         if len(sets) > config.max_items:
             raise CounterdraftError(f"clause type {bucket} has {len(sets)} distinct wordings; calibration "

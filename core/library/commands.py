@@ -5,6 +5,11 @@ the exit status (0) and lets :class:`~core.errors.CounterdraftError` reach ``cor
 (one line on stderr, exit status 2).  Progress goes to stderr as a tqdm bar (counts and time
 left; hidden when stderr is not a terminal); skipped files are warnings on stderr naming the
 file and the problem, never quoting it.
+
+A precedent set is named by its folder (its index kept inside, ``DIR/.counterdraft``) or by
+the address of a shared store (``postgresql://USER@HOST:PORT/DB``, built with ``library build
+DIR --store ADDRESS``); every command takes either, and an address is shown without any
+password.
 """
 
 from __future__ import annotations
@@ -19,6 +24,7 @@ from typing import Any
 from .. import CAUTION
 from ..errors import CounterdraftError
 from ..fileio import atomic_write_text
+from .store import is_server_address
 
 __all__ = ["add_library_parser", "note_rebuilt", "open_library_for_cli", "progress_bar", "review_options",
            "warn_skipped"]
@@ -59,9 +65,16 @@ def note_rebuilt(report) -> None:  # noqa: ANN001 - BuildReport
 
 def open_library_for_cli(folder: str, *, db: str | None = None, refresh: bool = True, workers: int = 2):  # noqa: ANN201
     """Open (building or refreshing when *refresh*) the index of *folder*, with a progress
-    bar, warning about skipped files."""
-    from .index import open_library
+    bar, warning about skipped files.  *folder* may be a shared store's address: it is read
+    as it is (its builders refresh it)."""
+    from .index import Library, open_library
 
+    if is_server_address(folder):
+        library = Library(folder)
+        if library.stale:
+            print("counterdraft: note: the shared precedent set's last build did not finish; "
+                  "its figures may be out of date", file=sys.stderr)
+        return library
     if not Path(folder).is_dir():
         raise CounterdraftError("the precedent-set folder does not exist", path=folder)
     update, close = progress_bar("indexing")
@@ -108,15 +121,26 @@ def _variant_config(args: argparse.Namespace):  # noqa: ANN202
         raise CounterdraftError(str(err)) from None
 
 
+def _target(args: argparse.Namespace) -> tuple[str | None, str]:
+    """(folder or None, store address) named by a command's DIR and --store."""
+    from .index import default_db_path
+
+    if is_server_address(args.dir):
+        return None, args.dir
+    return args.dir, args.store or str(default_db_path(args.dir))
+
+
 def _cmd_build(args: argparse.Namespace) -> int:
     from .index import build_library
 
+    if is_server_address(args.dir):
+        raise CounterdraftError("give the folder of agreements to index, and the store with --store ADDRESS")
     if not Path(args.dir).is_dir():
         raise CounterdraftError("not a folder", path=args.dir)
     update, close = progress_bar("indexing")
     try:
-        report = build_library(args.dir, db_path=args.db, progress=update, workers=args.workers,
-                               config=_variant_config(args))
+        report = build_library(args.dir, store=args.store, progress=update, workers=args.workers,
+                               config=_variant_config(args), replace_root=args.replace)
     finally:
         close()
     note_rebuilt(report)
@@ -129,11 +153,11 @@ def _cmd_build(args: argparse.Namespace) -> int:
 
 
 def _cmd_stats(args: argparse.Namespace) -> int:
-    from .index import Library, default_db_path
+    from .index import Library
     from .stats import format_stats, format_variants, library_stats, stats_to_dict
 
-    db = args.db or default_db_path(args.dir)
-    with Library(db, root=args.dir) as library:
+    root, address = _target(args)
+    with Library(address, root=root) as library:
         if args.variants:
             print(format_variants(library.variants(bucket=args.variants), total=library.total, width=args.width))
         else:
@@ -148,15 +172,15 @@ def _cmd_stats(args: argparse.Namespace) -> int:
 
 
 def _cmd_label(args: argparse.Namespace) -> int:
-    from .index import Library, default_db_path, position_name
+    from .index import Library, position_name
 
     position = None
     if args.position.strip().casefold() != "none":
         position, notice = position_name(args.position)
         if notice:
             print(f"counterdraft: note: {notice}", file=sys.stderr)
-    db = args.db or default_db_path(args.dir)
-    with Library(db, root=args.dir) as library:
+    root, address = _target(args)
+    with Library(address, root=root) as library:
         if args.variant is not None:
             vid = args.variant
         else:
@@ -165,7 +189,7 @@ def _cmd_label(args: argparse.Namespace) -> int:
             vid = library.variant_of(args.document, args.provision)
             if vid is None:
                 raise CounterdraftError(f"provision {args.provision!r} of {args.document!r} is not in the index",
-                                        path=str(db))
+                                        path=library.address)
         n = library.label_variant(vid, position)
     what = f"labelled {position}" if position else "unlabelled"
     print(f"variant {vid} {what} ({n} wording{'s' * (n != 1)})")
@@ -174,7 +198,7 @@ def _cmd_label(args: argparse.Namespace) -> int:
 
 def _cmd_calibrate(args: argparse.Namespace) -> int:
     from .calibrate import DEFAULT_CUTOFFS, calibrate, format_calibration, read_labels
-    from .index import Library, default_db_path
+    from .index import Library
 
     cutoffs = DEFAULT_CUTOFFS
     if args.cutoffs:
@@ -185,8 +209,8 @@ def _cmd_calibrate(args: argparse.Namespace) -> int:
         if not cutoffs or any(not 0 <= c <= 1 for c in cutoffs):
             raise CounterdraftError("cut-offs must be between 0 and 1")
     labelled = read_labels(args.labels) if args.labels else None
-    db = args.db or default_db_path(args.dir)
-    with Library(db, root=args.dir) as library:
+    root, address = _target(args)
+    with Library(address, root=root) as library:
         rows = calibrate(library, labelled, cutoffs=cutoffs, linkage=args.linkage, metric=args.metric)
     print(format_calibration(rows))
     return 0
@@ -198,10 +222,9 @@ def _cmd_patterns(args: argparse.Namespace) -> int:
     from .patterns import format_patterns, negotiation_patterns, patterns_to_dict
 
     precedent = read_document(args.against)
-    library = open_library_for_cli(args.dir, db=args.db, workers=args.workers)
+    library = open_library_for_cli(args.dir, db=args.store, workers=args.workers)
     try:
-        digest = file_sha256(args.against)
-        skip = [p for p, h in library.conn.execute("SELECT path, sha256 FROM documents") if h == digest]
+        skip = library.paths(sha256=file_sha256(args.against))
         update, close = progress_bar("reviewing")
         try:
             groups = negotiation_patterns(library, precedent, progress=update, workers=args.workers, skip=skip)
@@ -221,10 +244,15 @@ def _cmd_patterns(args: argparse.Namespace) -> int:
 
 def _add_common(p: argparse.ArgumentParser, *, dir_optional: bool) -> None:
     if dir_optional:
-        p.add_argument("dir", metavar="DIR", nargs="?", default=".", help="the precedent-set folder (default: .)")
+        p.add_argument("dir", metavar="DIR", nargs="?", default=".",
+                       help="the precedent-set folder (default: .), or a shared store's address (postgresql://...)")
     else:
         p.add_argument("dir", metavar="DIR", help="the precedent-set folder")
-    p.add_argument("--db", metavar="PATH", help="the index file (default: DIR/.counterdraft/library.sqlite)")
+    p.add_argument("--store", metavar="ADDRESS",
+                   help="where the index is kept: a file (default: DIR/.counterdraft/library.sqlite) or a "
+                        "PostgreSQL address, postgresql://USER@HOST:PORT/DB (password from ~/.pgpass, a service "
+                        "file or PGPASSWORD, never in the address)")
+    p.add_argument("--db", dest="store", metavar="PATH", help=argparse.SUPPRESS)  # earlier name of --store
 
 
 def add_library_parser(sub) -> None:  # noqa: ANN001 - argparse's subparsers action
@@ -240,6 +268,8 @@ def add_library_parser(sub) -> None:  # noqa: ANN001 - argparse's subparsers act
     p.add_argument("--cutoff", type=float, help="variant cut-off, Jaccard distance 0..1 (default: 0.2)")
     p.add_argument("--linkage", choices=LINKAGES, help="variant clustering linkage (default: average)")
     p.add_argument("--metric", choices=METRICS, help="variant distance (default: jaccard)")
+    p.add_argument("--replace", action="store_true",
+                   help="let a shared store built from another folder hold this folder's agreements instead")
     p.set_defaults(func=_cmd_build)
 
     p = lsub.add_parser("stats", help="summarise the index: documents, clause types, variants")

@@ -532,15 +532,11 @@ def _departure_frequency(ctx: _Context, dev: Deviation, bucket_name: str) -> Fre
 def _term_frequency(ctx: _Context, dev: Deviation) -> Frequency:
     """A renamed defined term: documents defining the draft's name among those defining
     either name (same_type)."""
-    conn = ctx.library.conn
     draft_name, prec_name = dev.draft_text, dev.precedent_text
     aliases = ctx.library.aliases()
     names = {draft_name, prec_name} | {n for n, c in aliases.items() if c in (draft_name, prec_name)}
-    q = ",".join("?" * len(names))
-    same = conn.execute(f"SELECT COUNT(DISTINCT document_id) FROM terms WHERE term IN ({q})",
-                        sorted(names)).fetchone()[0]
-    matching = conn.execute("SELECT COUNT(DISTINCT document_id) FROM terms WHERE term = ?",
-                            (draft_name,)).fetchone()[0]
+    same = ctx.library.documents_defining(sorted(names))
+    matching = ctx.library.documents_defining([draft_name])
     return Frequency(int(same), int(matching), ctx.total)
 
 

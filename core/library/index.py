@@ -1,28 +1,32 @@
-"""The precedent set's index: a SQLite database of the firm's past agreements.
+"""The precedent set's index: the firm's past agreements, kept in a store.
 
 ``build_library(root)`` reads every .docx, .txt and .md file under *root* (recursively; hidden
-files and folders, Office lock files ``~$...`` and the index's own folder are skipped) into
-``root/.counterdraft/library.sqlite`` (or a path of your choice):
+files and folders, Office lock files ``~$...`` and the index's own folder are skipped) into a
+store (:mod:`.store`): by default the SQLite file ``root/.counterdraft/library.sqlite`` (or a
+path of your choice), or a PostgreSQL database a team shares
+(``store="postgresql://USER@HOST:PORT/DB"``).  What it keeps:
 
 * ``documents``: path (relative to the root, with "/"), SHA-256, size, modification time,
   title and parties when found;
 * ``provisions``: kind, number, heading, level, text, clause type (and how it was found), its
-  bucket, the normalised wording and its hash, and its variant (the ``shingles`` column is
-  left empty: the bucket caches hold the shingles);
+  bucket, the normalised wording and its hash, and its variant;
 * ``terms``: the defined terms and their definitions;
 * ``failures``: files that could not be read or are not agreements, with the problem;
 * ``variants`` and ``labels``: wording variants per clause type and the reviewer's positions;
 * ``dirty`` and ``bucket_state``: buckets to refresh, and each bucket's wordings at its last
-  full clustering and the wordings added or removed since.
+  full clustering and the wordings added or removed since;
+* derived blobs: each bucket's frequency cache, the clause-type classifier, the vocabulary
+  model (files beside a SQLite index; rows of a server store).
 
-The build is incremental: a file whose size and modification time are unchanged is not
-opened; a file whose stat changed is hashed and re-read only when its SHA-256 changed; files
-that disappeared are dropped.  Unreadable files are listed and skipped; nothing aborts the
-build.  After the files, the derived data is refreshed only where something changed:
+This module computes; the store keeps (no SQL here).  The build is incremental: a file whose
+size and modification time are unchanged is not opened; a file whose stat changed is hashed
+and re-read only when its SHA-256 changed; files that disappeared are dropped.  Unreadable
+files are listed and skipped; nothing aborts the build.  After the files, the derived data is
+refreshed only where something changed:
 
 * every bucket (clause type) holding a provision of a file read or dropped is marked dirty
-  (table ``dirty``, in the same transaction as the change, so a cancelled or killed build
-  leaves the marks for the next one); only marked buckets are refreshed;
+  (in the same transaction as the change, so a cancelled or killed build leaves the marks
+  for the next one); only marked buckets are refreshed;
 * term aliases are learnt again from the stored terms (cheap); when they change, every
   document is normalised again and every bucket marked;
 * only new documents are normalised;
@@ -47,15 +51,16 @@ build.  After the files, the derived data is refreshed only where something chan
   beside the clustering when the corpus is large; until then it is the model of the
   documents it was trained on.
 
-The index is derived data: when its file is not a usable SQLite database of this schema
-(damaged, truncated, not SQLite, another schema version), the build moves it aside to
-``library.sqlite.damaged-<time>`` (mode 0o600, beside it; kept because it may hold the
-reviewer's labels) and rebuilds it from the agreements; ``BuildReport.rebuilt`` says so in one
-line.  Opening an index without a build (:class:`Library`) reports such a file as an error.
+The SQLite index is derived data: when its file is not a usable SQLite database of this
+schema (damaged, truncated, not SQLite, another schema version), the build moves it aside and
+rebuilds it from the agreements (:mod:`.store.sqlite`); ``BuildReport.rebuilt`` says so in
+one line.  Opening an index without a build (:class:`Library`) reports such a file as an
+error.
 
-Confidentiality: the folder ``.counterdraft`` is created with mode 0o700 and every file in it
-with mode 0o600 (SQLite gives its journal the database's mode); the build logs no contract text
-(progress reports give file paths only, failure reasons never quote the file).
+Confidentiality: a SQLite index's folder ``.counterdraft`` is created with mode 0o700 and
+every file in it with mode 0o600; a server store's credentials never leave libpq's own
+sources (:mod:`.store.postgres`).  The build logs no contract text (progress reports give file
+paths only, failure reasons never quote the file).
 
 Cost: reading dominates a first build (the reader's cost per file; spread over ``workers``
 processes).  The derived data of a first build costs O(provisions) for normalisation and
@@ -73,24 +78,26 @@ import json
 import multiprocessing
 import os
 import re
-import sqlite3
 import stat
+import tempfile
 import time
 from collections import defaultdict
 from collections.abc import Callable, Iterator, Mapping, Sequence
 from concurrent.futures import ProcessPoolExecutor
+from contextlib import contextmanager
 from dataclasses import dataclass, field, replace
-from pathlib import Path
+from pathlib import Path, PurePosixPath
 from typing import Any
 
 import numpy as np
 
 from ..errors import CounterdraftError
-from ..fileio import atomic_write_bytes, exclusive, file_sha256, remove_orphaned_parts
+from ..fileio import file_sha256
 from .bucketcache import BucketArrays, assemble, compact, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
 from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
 from .options import FORMER_POSITIONS, POSITIONS
+from .store import VARIANT_FIGURES, PrecedentStore, is_server_address, open_store
 from .variants import RegroupTooLarge, VariantConfig, cluster_wordings, regroup
 
 __all__ = [
@@ -110,10 +117,12 @@ __all__ = [
     "Progress",
     "VariantInfo",
     "bucket_of",
+    "bucket_blob",
     "build_library",
     "default_db_path",
     "normalised_wording",
     "open_library",
+    "read_bucket",
     "scan_files",
     "wording_shingles",
 ]
@@ -125,7 +134,6 @@ CACHE_FILENAME = "variants.npz"  # the frequency cache of earlier versions (one 
 BUCKETS_DIRNAME = "buckets"  # the frequency cache: one file per bucket (core.library.bucketcache)
 NEIGHBOURS_FILENAME = "clausetypes.npz"
 VOCAB_FILENAME = "vocabulary.npz"
-SCHEMA_VERSION = "1"
 
 #: A file is an agreement when at least this many distinct clause types are recognised in
 #: it; a letter, a note or a README has none or one.  (Common practice, no source: even a
@@ -174,49 +182,12 @@ def position_name(given: str) -> tuple[str, str | None]:
         return new, f'"{given}" is a former name of the stance "{new}"; recorded as "{new}"'
     raise CounterdraftError(f"position must be one of: {', '.join(POSITIONS)} (or none)")
 
+
 Progress = Callable[[int, int, str], None]
 #: Told what a build is doing once the files are read ("grouping wording variants"), for a
 #: progress bar: those steps have no count.
 Stage = Callable[[str], None]
 Cancel = Callable[[], bool]
-
-_SCHEMA = """
-CREATE TABLE IF NOT EXISTS meta(key TEXT PRIMARY KEY, value TEXT NOT NULL);
-CREATE TABLE IF NOT EXISTS documents(
-    id INTEGER PRIMARY KEY, path TEXT NOT NULL UNIQUE, sha256 TEXT NOT NULL,
-    size INTEGER NOT NULL, mtime_ns INTEGER NOT NULL, title TEXT,
-    parties TEXT NOT NULL DEFAULT '[]', provisions INTEGER NOT NULL,
-    normalised INTEGER NOT NULL DEFAULT 0);
-CREATE TABLE IF NOT EXISTS provisions(
-    id INTEGER PRIMARY KEY,
-    document_id INTEGER NOT NULL REFERENCES documents(id) ON DELETE CASCADE,
-    ordinal INTEGER NOT NULL, pid TEXT NOT NULL, kind TEXT NOT NULL, number TEXT, heading TEXT,
-    level INTEGER NOT NULL, parent TEXT, text TEXT NOT NULL,
-    clause_type TEXT, type_source TEXT NOT NULL, bucket TEXT NOT NULL,
-    norm TEXT, norm_hash TEXT, shingles BLOB, variant_id INTEGER);
-CREATE INDEX IF NOT EXISTS provisions_document ON provisions(document_id);
-CREATE INDEX IF NOT EXISTS provisions_wording ON provisions(bucket, norm_hash, document_id, ordinal, variant_id);
-CREATE INDEX IF NOT EXISTS provisions_typed ON provisions(type_source, clause_type, norm_hash, document_id);
-CREATE TABLE IF NOT EXISTS terms(
-    document_id INTEGER NOT NULL REFERENCES documents(id) ON DELETE CASCADE,
-    term TEXT NOT NULL, definition TEXT NOT NULL, provision TEXT, uses INTEGER NOT NULL);
-CREATE INDEX IF NOT EXISTS terms_document ON terms(document_id);
-CREATE TABLE IF NOT EXISTS failures(
-    path TEXT PRIMARY KEY, sha256 TEXT, size INTEGER NOT NULL, mtime_ns INTEGER NOT NULL,
-    problem TEXT NOT NULL);
-CREATE TABLE IF NOT EXISTS variants(
-    id INTEGER PRIMARY KEY, bucket TEXT NOT NULL, ordinal INTEGER NOT NULL,
-    wordings INTEGER NOT NULL, provisions INTEGER NOT NULL, documents INTEGER NOT NULL,
-    sample INTEGER, position TEXT);
-CREATE INDEX IF NOT EXISTS variants_bucket ON variants(bucket, ordinal);
-CREATE TABLE IF NOT EXISTS labels(
-    bucket TEXT NOT NULL, norm_hash TEXT NOT NULL, position TEXT NOT NULL, seq INTEGER NOT NULL,
-    PRIMARY KEY(bucket, norm_hash));
-CREATE TABLE IF NOT EXISTS buckets(bucket TEXT PRIMARY KEY, fingerprint TEXT NOT NULL);
-CREATE TABLE IF NOT EXISTS dirty(bucket TEXT PRIMARY KEY);
-CREATE TABLE IF NOT EXISTS bucket_state(
-    bucket TEXT PRIMARY KEY, clustered INTEGER NOT NULL, drift INTEGER NOT NULL);
-"""
 
 
 @dataclass(frozen=True, slots=True)
@@ -269,18 +240,6 @@ def default_db_path(root: str | os.PathLike[str]) -> Path:
 
 #: Row ids per ``WHERE id IN (?, ...)`` query: SQLite allowed at most 999 bound parameters
 #: per statement before version 3.32.0 (SQLITE_MAX_VARIABLE_NUMBER,
-#: https://www.sqlite.org/limits.html), so batches of 500 stay well inside on any build.
-_IN_BATCH = 500
-
-
-def _id_batches(ids: Sequence[int]) -> Iterator[tuple[str, list[int]]]:
-    """*ids* as ints without repeats (first order kept), in batches of at most
-    :data:`_IN_BATCH`, each with its ``?,?,...`` placeholders for ``IN (...)``."""
-    unique = list(dict.fromkeys(int(i) for i in ids))
-    for start in range(0, len(unique), _IN_BATCH):
-        chunk = unique[start:start + _IN_BATCH]
-        yield ",".join("?" * len(chunk)), chunk
-
 
 def _norm_hash(norm: str) -> str:
     return hashlib.blake2b(norm.encode("utf-8"), digest_size=16).hexdigest()
@@ -289,183 +248,6 @@ def _norm_hash(norm: str) -> str:
 def normalised_wording(text: str, heading: str | None, *, terms: TermReplacer | None) -> list[str]:
     """The tokens by which wordings are compared: heading and text, terms normalised."""
     return match_tokens(f"{heading or ''}\n{text}", terms=terms)
-
-
-# ----------------------------------------------------------------------------------------
-# Private files
-# ----------------------------------------------------------------------------------------
-
-
-def _private_dir(path: Path) -> None:
-    try:
-        path.mkdir(mode=0o700, parents=False, exist_ok=True)
-        os.chmod(path, 0o700)
-    except OSError as err:
-        # 'review --library' and the desktop app keep the index inside the folder; only the
-        # 'counterdraft library' commands take another place (--db).
-        raise CounterdraftError(f"cannot create the index folder ({err.strerror}): the precedent set's "
-                                "index is kept inside its folder, so the folder must be writable; copy the "
-                                "agreements to a folder you can write to", path=str(path)) from None
-
-
-def _write_private(path: Path, data: bytes) -> None:
-    """Atomic write with mode 0o600 (mkstemp already creates 0o600; chmod makes it explicit)."""
-    atomic_write_bytes(path, data)
-    os.chmod(path, 0o600)
-
-
-#: SQLite's primary result codes for a file that is not a database or is damaged
-#: (SQLITE_CORRUPT = 11, SQLITE_NOTADB = 26; https://www.sqlite.org/rescode.html).  Other
-#: errors (locked, read-only, disk full) say nothing about the file and never set it aside.
-_DAMAGE_CODES = frozenset({11, 26})
-
-
-class _Unusable(Exception):
-    """The index file is not a usable SQLite database of this schema (``problem`` says why)."""
-
-    def __init__(self, problem: str) -> None:
-        super().__init__(problem)
-        self.problem = problem
-
-
-def _is_damage(err: sqlite3.DatabaseError) -> bool:
-    code = getattr(err, "sqlite_errorcode", None)
-    return code is not None and (code & 0xFF) in _DAMAGE_CODES
-
-
-_REFERENCE_COLUMNS: dict[str, list[tuple[Any, ...]]] = {}
-
-
-def _reference_columns() -> dict[str, list[tuple[Any, ...]]]:
-    """``PRAGMA table_info`` of every table of :data:`_SCHEMA`, from an in-memory database."""
-    if not _REFERENCE_COLUMNS:
-        mem = sqlite3.connect(":memory:")
-        try:
-            mem.executescript(_SCHEMA)
-            names = [n for (n,) in mem.execute("SELECT name FROM sqlite_master WHERE type = 'table'")]
-            _REFERENCE_COLUMNS.update({n: mem.execute(f"PRAGMA table_info({n})").fetchall() for n in names})
-        finally:
-            mem.close()
-    return _REFERENCE_COLUMNS
-
-
-def _check_schema(conn: sqlite3.Connection) -> None:
-    """Raise :class:`_Unusable` unless the database is empty or an index of this schema.
-
-    Reading the schema also makes SQLite check the file header: garbage gives SQLITE_NOTADB,
-    a truncated file SQLITE_CORRUPT.  Cost: one read of the schema table, a few pragmas.
-    """
-    try:
-        tables = {n for (n,) in conn.execute("SELECT name FROM sqlite_master WHERE type = 'table'")}
-        if not tables:
-            return  # a new, empty file
-        if "meta" not in tables:
-            raise _Unusable("not a Counterdraft index")
-        version = _meta(conn, "schema")
-        if version != SCHEMA_VERSION:
-            raise _Unusable(f"made by another version of Counterdraft (schema {version})")
-        for name, columns in _reference_columns().items():
-            if name in tables and conn.execute(f"PRAGMA table_info({name})").fetchall() != columns:
-                raise _Unusable(f"table {name} differs from this version's")
-    except sqlite3.DatabaseError as err:
-        if _is_damage(err):
-            raise _Unusable(str(err)) from None
-        raise
-
-
-def _connect(db_path: Path, *, create: bool) -> sqlite3.Connection:
-    """Open the index; raises :class:`_Unusable` when the file is not a usable index of this
-    schema (damaged, truncated, another schema) and CounterdraftError for other problems."""
-    if not db_path.exists():
-        if not create:
-            raise CounterdraftError("no precedent-set index here; build it with "
-                                    "'counterdraft library build'", path=str(db_path))
-        if not db_path.parent.is_dir():
-            raise CounterdraftError("the folder for the index does not exist", path=str(db_path))
-        try:
-            fd = os.open(db_path, os.O_CREAT | os.O_RDWR, 0o600)
-            os.close(fd)
-        except OSError as err:
-            raise CounterdraftError(f"cannot create the index ({err.strerror})", path=str(db_path)) from None
-    try:
-        os.chmod(db_path, 0o600)
-    except OSError:
-        pass
-    conn = None
-    try:
-        # check_same_thread=False: the desktop app opens the index in a worker thread and reads
-        # it from the GUI thread, one at a time.
-        conn = sqlite3.connect(str(db_path), timeout=30.0, check_same_thread=False)
-        _check_schema(conn)
-        conn.execute("PRAGMA foreign_keys = ON")
-        conn.execute("PRAGMA synchronous = NORMAL")
-        conn.executescript(_SCHEMA)
-        if _meta(conn, "schema") is None:
-            _set_meta(conn, "schema", SCHEMA_VERSION)
-            conn.commit()
-        _migrate_positions(conn)
-    except _Unusable:
-        if conn is not None:
-            conn.close()
-        raise
-    except sqlite3.DatabaseError as err:
-        if conn is not None:
-            conn.close()
-        if _is_damage(err):
-            raise _Unusable(str(err)) from None
-        raise CounterdraftError(f"cannot open the index ({err})", path=str(db_path)) from None
-    return conn
-
-
-#: Meta key recording that the stances of an index carry the names of :data:`POSITIONS`.
-_POSITION_NAMES_KEY = "position_names"
-
-
-def _migrate_positions(conn: sqlite3.Connection) -> None:
-    """Rename the stances an index written by an earlier version stores
-    (:data:`FORMER_POSITIONS`) to their names of :data:`POSITIONS`, once: the labels and the
-    variants' positions.  O(labels + variants) the first time, one meta read after."""
-    if _meta(conn, _POSITION_NAMES_KEY) == "2":
-        return
-    with conn:
-        for old, new in FORMER_POSITIONS.items():
-            conn.execute("UPDATE labels SET position = ? WHERE position = ?", (new, old))
-            conn.execute("UPDATE variants SET position = ? WHERE position = ?", (new, old))
-        _set_meta(conn, _POSITION_NAMES_KEY, "2")
-
-
-def _set_aside(db_path: Path) -> Path:
-    """Rename a damaged index (and any journal SQLite left beside it) to
-    ``<name>.damaged-<local time>``, mode 0o600, and return the new path.  Kept, not deleted:
-    it may hold the reviewer's labels, and a person may want to look at it."""
-    stamp = time.strftime("%Y%m%d-%H%M%S")
-    aside = db_path.with_name(f"{db_path.name}.damaged-{stamp}")
-    n = 1
-    while aside.exists():
-        n += 1
-        aside = db_path.with_name(f"{db_path.name}.damaged-{stamp}-{n}")
-    try:
-        os.replace(db_path, aside)
-        os.chmod(aside, 0o600)
-        for suffix in ("-journal", "-wal", "-shm"):
-            side = db_path.with_name(db_path.name + suffix)
-            if side.exists():
-                os.replace(side, aside.with_name(aside.name + suffix))
-                os.chmod(aside.with_name(aside.name + suffix), 0o600)
-    except OSError as err:
-        raise CounterdraftError(f"the index is damaged and cannot be moved aside ({err.strerror}); "
-                                "delete it and build again", path=str(db_path)) from None
-    return aside
-
-
-def _meta(conn: sqlite3.Connection, key: str) -> str | None:
-    row = conn.execute("SELECT value FROM meta WHERE key = ?", (key,)).fetchone()
-    return None if row is None else row[0]
-
-
-def _set_meta(conn: sqlite3.Connection, key: str, value: str) -> None:
-    conn.execute("INSERT INTO meta(key, value) VALUES(?, ?) "
-                 "ON CONFLICT(key) DO UPDATE SET value = excluded.value", (key, value))
 
 
 # ----------------------------------------------------------------------------------------
@@ -641,124 +423,153 @@ def _read_many(paths: Sequence[str], *, workers: int) -> Iterator[_Extract | _Pr
 # ----------------------------------------------------------------------------------------
 
 
-def build_library(root: str | os.PathLike[str], *, db_path: str | os.PathLike[str] | None = None,
+def _open_target(root_p: Path | None, address: str | os.PathLike[str] | None) -> PrecedentStore:
+    """The store a build or a reader uses: *address* (a file path or a server address), by
+    default the folder's own SQLite index ``root/.counterdraft/library.sqlite``."""
+    if address is None:
+        if root_p is None:
+            raise CounterdraftError("give the precedent-set folder or the index path")
+        return open_store(default_db_path(root_p), private_folder=True)
+    return open_store(address)
+
+
+def build_library(root: str | os.PathLike[str], *, store: str | os.PathLike[str] | None = None,
+                  db_path: str | os.PathLike[str] | None = None,
                   progress: Progress | None = None, cancel: Cancel | Any | None = None,
                   workers: int = 2, config: VariantConfig | None = None,
                   vocabulary: bool = True, exclude: Sequence[str | os.PathLike[str]] = (),
-                  stage: Stage | None = None) -> BuildReport:
+                  replace_root: bool = False, stage: Stage | None = None) -> BuildReport:
     """Build or refresh the index of the agreements under *root*; see the module docstring.
 
-    *progress* is called as ``progress(done, total, relative_path)`` once per candidate file,
-    *stage* with a few words as each later step starts (those that run: nothing when no file
-    changed);
-    *cancel* is a callable returning True (or a ``threading.Event``) to stop between files:
-    what was read so far is kept and the next build finishes the job.  *config* sets the
-    variant clustering (stored; a change re-clusters).  *vocabulary* False skips training the
-    vocabulary model.  Files in *exclude* are not indexed.
+    *store* is where the index is kept: a SQLite file path or a PostgreSQL address
+    (``postgresql://USER@HOST:PORT/DB``); by default ``root/.counterdraft/library.sqlite``
+    (*db_path* is the same as a file path).  *progress* is called as
+    ``progress(done, total, relative_path)`` once per candidate file, *stage* with a few
+    words as each later step starts (those that run: nothing when no file changed); *cancel* is a callable
+    returning True (or a ``threading.Event``) to stop between files: what was read so far is
+    kept and the next build finishes the job.  *config* sets the variant clustering (stored;
+    a change re-clusters).  *vocabulary* False skips training the vocabulary model.  Files
+    in *exclude* are not indexed.  A shared store built from another folder would drop that
+    folder's agreements: the build refuses unless *replace_root*.
     """
     root_p = Path(root)
     if not root_p.is_dir():
         raise CounterdraftError("not a folder", path=str(root))
-    if db_path is None:
-        _private_dir(root_p / DB_DIRNAME)
-        db = root_p / DB_DIRNAME / DB_FILENAME
-    else:
-        db = Path(db_path)
-    # One builder at a time per index: SQLite keeps the rows consistent, the lock keeps the
-    # derived files (clause types, variants, vocabulary) from being computed from two states.
-    with exclusive(db):
-        remove_orphaned_parts(db.parent)
-        return _build_locked(root_p, db, progress=progress, cancel=cancel, workers=workers,
-                             config=config, vocabulary=vocabulary, exclude=exclude, stage=stage)
+    target = _open_target(root_p, store if store is not None else db_path)
+    try:
+        # One builder at a time per index: the store keeps the rows consistent, the lock
+        # keeps the derived data (clause types, variants, vocabulary) from being computed
+        # from two states.
+        with target.lock():
+            return _build_locked(target, root_p, progress=progress, cancel=cancel, workers=workers,
+                                 config=config, vocabulary=vocabulary, exclude=exclude, replace_root=replace_root,
+                                 stage=stage)
+    finally:
+        target.close()
 
 
-def _build_locked(root_p: Path, db: Path, *, progress: Progress | None, cancel: Cancel | Any | None,
+def _build_locked(store: PrecedentStore, root_p: Path, *, progress: Progress | None, cancel: Cancel | Any | None,
                   workers: int, config: VariantConfig | None, vocabulary: bool,
-                  exclude: Sequence[str | os.PathLike[str]], stage: Stage | None = None) -> BuildReport:
+                  exclude: Sequence[str | os.PathLike[str]], replace_root: bool,
+                  stage: Stage | None = None) -> BuildReport:
     started = time.perf_counter()
     rebuilt: str | None = None
     while True:
         try:
-            conn = _connect(db, create=True)
-            try:
-                report = _build_into(conn, root_p, db, progress=progress, cancel=cancel, workers=workers,
-                                     config=config, vocabulary=vocabulary, exclude=exclude,
-                                     fresh=rebuilt is not None, stage=stage)
-            finally:
-                conn.close()
-        except (_Unusable, sqlite3.DatabaseError) as err:
-            if isinstance(err, sqlite3.DatabaseError) and not _is_damage(err):
-                raise CounterdraftError(f"cannot update the index ({err})", path=str(db)) from None
-            problem = err.problem if isinstance(err, _Unusable) else str(err)
-            if rebuilt is not None:  # a fresh file failed too: not the old file's fault
-                raise CounterdraftError(f"cannot rebuild the index ({problem})", path=str(db)) from None
-            aside = _set_aside(db)
-            rebuilt = (f"the index was not usable ({problem}); it was moved aside to {aside.name} "
-                       "and rebuilt from the agreements")
+            store.open(create=True)
+            report = _build_into(store, root_p, progress=progress, cancel=cancel, workers=workers,
+                                 config=config, vocabulary=vocabulary, exclude=exclude,
+                                 fresh=rebuilt is not None, replace_root=replace_root, stage=stage)
+        except CounterdraftError:
+            raise
+        except Exception as err:
+            problem = store.damage(err)
+            if problem is None:
+                message = store.describe_error(err)
+                if message is None:
+                    raise
+                raise CounterdraftError(f"cannot update the index ({message})", path=store.address) from None
+            if rebuilt is not None:  # a fresh store failed too: not the old one's fault
+                raise CounterdraftError(f"cannot rebuild the index ({problem})", path=store.address) from None
+            rebuilt = store.start_over(problem)
             continue
         break
     return replace(report, rebuilt=rebuilt, seconds=round(time.perf_counter() - started, 3))
 
 
-def _build_into(conn: sqlite3.Connection, root_p: Path, db: Path, *, progress: Progress | None,
+def _check_root(store: PrecedentStore, root_p: Path, files: Sequence[_FileStat], *, replace_root: bool) -> None:
+    """A store that holds another folder's agreements is not emptied by a build from this
+    one (a shared store's whole set would go), unless asked."""
+    stored = store.meta("root")
+    here = str(root_p.resolve())
+    if replace_root or stored is None or stored == here or not is_server_address(store.address):
+        return
+    on_disk = {f.rel for f in files}
+    gone = sum(1 for p in store.paths() if p not in on_disk)
+    if gone:
+        raise CounterdraftError(f"the store holds the precedent set of another folder ({stored}); building it from "
+                                f"this one would drop {gone} of its agreements: build from that folder, or pass "
+                                "--replace to make the store hold this folder's agreements instead",
+                                path=store.address)
+
+
+def _build_into(store: PrecedentStore, root_p: Path, *, progress: Progress | None,
                 cancel: Cancel | Any | None, workers: int, config: VariantConfig | None, vocabulary: bool,
-                exclude: Sequence[str | os.PathLike[str]], fresh: bool, stage: Stage | None = None) -> BuildReport:
-    """The body of :func:`build_library` on an open index (*fresh*: it replaces a damaged one,
-    so the derived files beside it are rewritten even if the folder holds no agreement)."""
+                exclude: Sequence[str | os.PathLike[str]], fresh: bool, replace_root: bool,
+                stage: Stage | None = None) -> BuildReport:
+    """The body of :func:`build_library` on an open store (*fresh*: it replaces a damaged
+    one, so the derived data is rewritten even if the folder holds no agreement)."""
     if fresh:
-        _set_meta(conn, "stale", "1")
-        conn.commit()
+        store.set_meta("stale", "1")
+        store.checkpoint()
     if config is not None:
-        old = _meta(conn, "variant_config")
+        old = store.meta("variant_config")
         new = json.dumps([config.metric, config.linkage, config.cutoff, config.max_items])
         if old != new:
-            _set_meta(conn, "variant_config", new)
-            conn.execute("DELETE FROM bucket_state")
-            conn.execute("INSERT OR IGNORE INTO dirty(bucket) SELECT DISTINCT bucket FROM provisions")
-            _set_meta(conn, "stale", "1")
-    files = _scan(root_p, exclude=[*exclude, db])
-    report = _update_files(conn, files, progress=progress, cancel=cancel, workers=workers)
-    changed = (report.read > 0 or report.removed > 0 or _meta(conn, "stale") == "1"
-               or _meta(conn, "derived") != DERIVED_FORMAT)
+            store.set_meta("variant_config", new)
+            store.forget_bucket_states()
+            store.mark_dirty()
+            store.set_meta("stale", "1")
+    own = [] if is_server_address(store.address) else [store.address]  # the index file itself
+    files = _scan(root_p, exclude=[*exclude, *own])
+    _check_root(store, root_p, files, replace_root=replace_root)
+    report = _update_files(store, files, progress=progress, cancel=cancel, workers=workers)
+    changed = (report.read > 0 or report.removed > 0 or store.meta("stale") == "1"
+               or store.meta("derived") != DERIVED_FORMAT)
     cancelled = report.cancelled
     if changed and not cancelled:
-        _set_meta(conn, "stale", "1")
-        conn.commit()
-        cancelled = not _refresh_derived(conn, db.parent, cancel=cancel, vocabulary=vocabulary,
+        store.set_meta("stale", "1")
+        store.checkpoint()
+        cancelled = not _refresh_derived(store, cancel=cancel, vocabulary=vocabulary,
                                          stage=stage or (lambda _what: None))
         if not cancelled:
-            _set_meta(conn, "stale", "0")
-            _set_meta(conn, "generation", str(int(_meta(conn, "generation") or 0) + 1))
-            conn.commit()
+            store.set_meta("stale", "0")
+            store.set_meta("generation", str(int(store.meta("generation") or 0) + 1))
+            store.checkpoint()
     elif changed:
-        _set_meta(conn, "stale", "1")
-        conn.commit()
-    _set_meta(conn, "root", str(root_p.resolve()))
-    conn.commit()
-    documents = conn.execute("SELECT COUNT(*) FROM documents").fetchone()[0]
-    failures = tuple(Failure(p, m) for p, m in
-                     conn.execute("SELECT path, problem FROM failures ORDER BY path"))
-    return BuildReport(str(root_p), str(db), report.files, report.read, report.unchanged,
+        store.set_meta("stale", "1")
+        store.checkpoint()
+    store.set_meta("root", str(root_p.resolve()))
+    documents = store.document_count()
+    failures = tuple(Failure(p, m) for p, m in store.failures())
+    store.commit()
+    return BuildReport(str(root_p), store.address, report.files, report.read, report.unchanged,
                        report.removed, documents, failures, cancelled)
 
 
-def _update_files(conn: sqlite3.Connection, files: Sequence[_FileStat], *, progress: Progress | None,
+def _update_files(store: PrecedentStore, files: Sequence[_FileStat], *, progress: Progress | None,
                   cancel: Cancel | Any | None, workers: int) -> BuildReport:
-    known = {p: (i, h, s, m) for i, p, h, s, m in
-             conn.execute("SELECT id, path, sha256, size, mtime_ns FROM documents")}
-    failed = {p: (h, s, m) for p, h, s, m in
-              conn.execute("SELECT path, sha256, size, mtime_ns FROM failures")}
+    known, failed = store.file_states()
     on_disk = {f.rel for f in files}
     removed = 0
-    for path, (doc_id, *_rest) in known.items():
+    for path in known:
         if path not in on_disk:
-            _mark_dirty(conn, doc_id)
-            conn.execute("DELETE FROM documents WHERE id = ?", (doc_id,))
+            store.remove_document(path)
             removed += 1
     for path in failed:
         if path not in on_disk:
-            conn.execute("DELETE FROM failures WHERE path = ?", (path,))
-    conn.commit()
+            store.remove_failure(path)
+    store.checkpoint()
 
     total = len(files)
     done = 0
@@ -780,9 +591,7 @@ def _update_files(conn: sqlite3.Connection, files: Sequence[_FileStat], *, progr
                 digest = None
             same = digest is not None and digest == (prev[1] if prev is not None else prev_fail[0])
             if same:
-                table = "documents" if prev is not None else "failures"
-                conn.execute(f"UPDATE {table} SET size = ?, mtime_ns = ? WHERE path = ?",
-                             (f.size, f.mtime_ns, f.rel))
+                store.update_stat(f.rel, size=f.size, mtime_ns=f.mtime_ns)
         else:
             same = False
         if same:
@@ -792,18 +601,18 @@ def _update_files(conn: sqlite3.Connection, files: Sequence[_FileStat], *, progr
                 progress(done, total, f.rel)
         else:
             to_read.append(f)
-    conn.commit()
+    store.checkpoint()
 
     read = 0
     cancelled = False
     results = _read_many([f.path for f in to_read], workers=workers)
     try:
         for f, res in zip(to_read, results):
-            _store(conn, f, res)
+            _store(store, f, res)
             read += 1
             done += 1
             if read % 50 == 0:
-                conn.commit()
+                store.checkpoint()
             if progress is not None:
                 progress(done, total, f.rel)
             if _cancelled(cancel):
@@ -813,36 +622,18 @@ def _update_files(conn: sqlite3.Connection, files: Sequence[_FileStat], *, progr
         close = getattr(results, "close", None)
         if close is not None:
             close()
-        conn.commit()
+        store.checkpoint()
     return BuildReport("", "", total, read, unchanged, removed, 0, (), cancelled)
 
 
-def _store(conn: sqlite3.Connection, f: _FileStat, res: _Extract | _Problem) -> None:
-    previous = conn.execute("SELECT id FROM documents WHERE path = ?", (f.rel,)).fetchone()
-    if previous is not None:
-        _mark_dirty(conn, previous[0])
-    conn.execute("DELETE FROM documents WHERE path = ?", (f.rel,))
-    conn.execute("DELETE FROM failures WHERE path = ?", (f.rel,))
+def _store(store: PrecedentStore, f: _FileStat, res: _Extract | _Problem) -> None:
     if isinstance(res, _Problem):
-        conn.execute("INSERT INTO failures(path, sha256, size, mtime_ns, problem) VALUES(?,?,?,?,?)",
-                     (f.rel, res.sha256, f.size, f.mtime_ns, res.problem))
+        store.put_failure(f.rel, sha256=res.sha256, size=f.size, mtime_ns=f.mtime_ns, problem=res.problem)
         return
-    cur = conn.execute(
-        "INSERT INTO documents(path, sha256, size, mtime_ns, title, parties, provisions) "
-        "VALUES(?,?,?,?,?,?,?)",
-        (f.rel, res.sha256, f.size, f.mtime_ns, res.title, json.dumps(list(res.parties)),
-         len(res.provisions)))
-    doc_id = cur.lastrowid
-    conn.executemany(
-        "INSERT INTO provisions(document_id, ordinal, pid, kind, number, heading, level, parent, "
-        "text, clause_type, type_source, bucket) VALUES(?,?,?,?,?,?,?,?,?,?,?,?)",
-        [(doc_id, i, pid, kind, number, heading, level, parent, text, ctype, source,
-          bucket_of(ctype, kind))
-         for i, (pid, kind, number, heading, level, parent, text, ctype, source)
-         in enumerate(res.provisions)])
-    conn.executemany("INSERT INTO terms(document_id, term, definition, provision, uses) VALUES(?,?,?,?,?)",
-                     [(doc_id, *t) for t in res.terms])
-    _mark_dirty(conn, doc_id)
+    rows = [(pid, kind, number, heading, level, parent, text, ctype, source, bucket_of(ctype, kind))
+            for pid, kind, number, heading, level, parent, text, ctype, source in res.provisions]
+    store.put_document(f.rel, sha256=res.sha256, size=f.size, mtime_ns=f.mtime_ns, title=res.title,
+                       parties=res.parties, provisions=rows, terms=res.terms, source=Path(f.path))
 
 
 # ----------------------------------------------------------------------------------------
@@ -858,25 +649,30 @@ def _doc_replacer(terms: Sequence[str], aliases: Mapping[str, str]) -> TermRepla
     return TermReplacer(names)
 
 
-def _refresh_derived(conn: sqlite3.Connection, folder: Path, *, cancel: Cancel | Any | None,
-                     vocabulary: bool, stage: Stage) -> bool:
+def _write_blob(store: PrecedentStore, name: str, data: bytes) -> None:
+    """Every derived blob (frequency caches, classifier, vocabulary) is written here."""
+    store.write_blob(name, data)
+
+
+def _refresh_derived(store: PrecedentStore, *, cancel: Cancel | Any | None, vocabulary: bool,
+                     stage: Stage) -> bool:
     """Refresh what is computed from the documents, only where something changed (the module
     docstring).  False when cancelled: what is done is kept, the rest stays marked."""
-    _upgrade_derived(conn, folder)
+    _upgrade_derived(store)
     stage("normalising the wordings")
-    aliases = _refresh_aliases(conn)
-    normalised = _normalise_pending(conn, aliases, cancel=cancel)
+    aliases = _refresh_aliases(store)
+    normalised = _normalise_pending(store, aliases, cancel=cancel)
     if normalised is None or _cancelled(cancel):
         return False
     stage("typing the clauses")
-    _retype_by_neighbours(conn, folder, normalised)
-    conn.commit()
+    _retype_by_neighbours(store, normalised)
+    store.checkpoint()
     if _cancelled(cancel):
         return False
-    training = _start_vocabulary(conn, folder, aliases) if vocabulary else None
+    training = _start_vocabulary(store, aliases) if vocabulary else None
     stage("grouping the wording variants")
     try:
-        done = _refresh_variants(conn, folder, cancel=cancel)
+        done = _refresh_variants(store, cancel=cancel)
     except BaseException:
         if training is not None:
             training.stop()
@@ -884,70 +680,58 @@ def _refresh_derived(conn: sqlite3.Connection, folder: Path, *, cancel: Cancel |
     if training is not None:
         if done:
             stage("training the vocabulary model")
-            training.finish(conn)
+            training.finish(store)
         else:
             training.stop()
     return done
 
 
-def _upgrade_derived(conn: sqlite3.Connection, folder: Path) -> None:
-    """An index whose derived files have an earlier layout (or none) gets all of them anew."""
-    if _meta(conn, "derived") == DERIVED_FORMAT:
+def _upgrade_derived(store: PrecedentStore) -> None:
+    """An index whose derived data has an earlier layout (or none) gets all of it anew."""
+    if store.meta("derived") == DERIVED_FORMAT:
         return
-    conn.execute("DELETE FROM bucket_state")
-    conn.execute("INSERT OR IGNORE INTO dirty(bucket) SELECT DISTINCT bucket FROM provisions")
-    conn.execute("DELETE FROM meta WHERE key IN ('neighbour_examples', 'vocabulary')")
-    try:
-        os.unlink(folder / CACHE_FILENAME)  # the earlier single frequency cache
-    except FileNotFoundError:
-        pass
-    _set_meta(conn, "derived", DERIVED_FORMAT)
-    conn.commit()
+    store.forget_bucket_states()
+    store.mark_dirty()
+    store.delete_meta("neighbour_examples", "vocabulary")
+    store.delete_blob(CACHE_FILENAME)  # the earlier single frequency cache
+    store.set_meta("derived", DERIVED_FORMAT)
+    store.checkpoint()
 
 
-def _mark_dirty(conn: sqlite3.Connection, document_id: int) -> None:
-    """The buckets of a document's provisions need their variants and cache refreshed."""
-    conn.execute("INSERT OR IGNORE INTO dirty(bucket) SELECT DISTINCT bucket FROM provisions "
-                 "WHERE document_id = ?", (document_id,))
-
-
-def _refresh_aliases(conn: sqlite3.Connection) -> dict[str, str]:
+def _refresh_aliases(store: PrecedentStore) -> dict[str, str]:
     """Aliases between the documents' defined terms; when they change, every document is
     normalised again and every bucket refreshed."""
-    aliases = learn_aliases(conn.execute("SELECT document_id, term, definition FROM terms"))
+    aliases = learn_aliases(store.all_terms())
     encoded = json.dumps(aliases, sort_keys=True)
-    if _meta(conn, "aliases") != encoded:
-        conn.execute("UPDATE documents SET normalised = 0")
-        conn.execute("INSERT OR IGNORE INTO dirty(bucket) SELECT DISTINCT bucket FROM provisions")
-        _set_meta(conn, "aliases", encoded)
+    if store.meta("aliases") != encoded:
+        store.renormalise_all()
+        store.mark_dirty()
+        store.set_meta("aliases", encoded)
     return aliases
 
 
-def _normalise_pending(conn: sqlite3.Connection, aliases: Mapping[str, str], *,
+def _normalise_pending(store: PrecedentStore, aliases: Mapping[str, str], *,
                        cancel: Cancel | Any | None) -> list[int] | None:
     """Normalised wordings of the documents not yet normalised; their ids, or None when
     cancelled."""
-    todo = [r[0] for r in conn.execute("SELECT id FROM documents WHERE normalised = 0 ORDER BY id")]
+    todo = store.unnormalised_documents()
     for n, doc_id in enumerate(todo):
         if n % 25 == 0 and _cancelled(cancel):
-            conn.commit()
+            store.checkpoint()
             return None
-        terms = [r[0] for r in conn.execute("SELECT term FROM terms WHERE document_id = ?", (doc_id,))]
-        replacer = _doc_replacer(terms, aliases)
+        replacer = _doc_replacer(store.document_terms(doc_id), aliases)
         rows = []
-        for pid, heading, text in conn.execute(
-                "SELECT id, heading, text FROM provisions WHERE document_id = ?", (doc_id,)):
+        for pid, heading, text in store.document_wordings(doc_id):
             norm = " ".join(normalised_wording(text, heading, terms=replacer))
             rows.append((norm, _norm_hash(norm), pid))
-        # Shingles are not stored (the column stays NULL): the bucket caches hold them, made
-        # once per distinct wording from its normalised text (wording_shingles).
-        conn.executemany("UPDATE provisions SET norm = ?, norm_hash = ?, shingles = NULL WHERE id = ?", rows)
-        conn.execute("UPDATE documents SET normalised = 1 WHERE id = ?", (doc_id,))
-    conn.commit()
+        # Shingles are not stored: the bucket caches hold them, made once per distinct
+        # wording from its normalised text (wording_shingles).
+        store.set_norms(doc_id, rows)
+    store.checkpoint()
     return todo
 
 
-def _neighbour_examples(conn: sqlite3.Connection) -> tuple[list[tuple[str, str]], str]:
+def _neighbour_examples(store: PrecedentStore) -> tuple[list[tuple[str, str]], str]:
     """The neighbour classifier's examples and their fingerprint: per clause type, the first
     MAX_EXAMPLES_PER_TYPE distinct wordings typed by heading or parent, documents taken in the
     order of their content hashes (SHA-256) and each document's provisions in order.  That
@@ -957,17 +741,11 @@ def _neighbour_examples(conn: sqlite3.Connection) -> tuple[list[tuple[str, str]]
     from .clausetypes import MAX_EXAMPLES_PER_TYPE
 
     chosen: dict[str, dict[str, int]] = defaultdict(dict)
-    # Index-only on provisions (provisions_typed); a document's row ids follow its order.
-    for tid, h, pid in conn.execute(
-            "SELECT p.clause_type, p.norm_hash, p.id FROM provisions p JOIN documents d ON d.id = p.document_id "
-            "WHERE p.type_source IN ('heading', 'parent') AND p.clause_type IS NOT NULL AND p.norm_hash != ? "
-            "ORDER BY d.sha256, d.path, p.id", (_norm_hash(""),)):
+    for tid, h, pid in store.typed_examples(exclude_hash=_norm_hash("")):
         per_type = chosen[tid]
         if len(per_type) < MAX_EXAMPLES_PER_TYPE and h not in per_type:
             per_type[h] = pid
-    norms = {}
-    for q, chunk in _id_batches([pid for per_type in chosen.values() for pid in per_type.values()]):
-        norms.update(conn.execute(f"SELECT id, norm FROM provisions WHERE id IN ({q})", chunk))
+    norms = store.provision_column("norm", [pid for per_type in chosen.values() for pid in per_type.values()])
     digest = hashlib.blake2b(digest_size=16)
     examples: list[tuple[str, str]] = []
     for tid in sorted(chosen):
@@ -977,53 +755,33 @@ def _neighbour_examples(conn: sqlite3.Connection) -> tuple[list[tuple[str, str]]
     return examples, digest.hexdigest()
 
 
-def _retype_by_neighbours(conn: sqlite3.Connection, folder: Path, normalised: Sequence[int]) -> None:
+def _retype_by_neighbours(store: PrecedentStore, normalised: Sequence[int]) -> None:
     """Type unheaded provisions by their library neighbours.  The classifier is refitted only
     when its examples changed; then every neighbour-typed provision is typed again, else only
     those of the documents just normalised (the same classifier gives the same types)."""
-    examples, fingerprint = _neighbour_examples(conn)
-    path = folder / NEIGHBOURS_FILENAME
-    sql = "SELECT id, kind, norm, clause_type, bucket FROM provisions WHERE type_source IN ('neighbour', 'none')"
-    if _meta(conn, "neighbour_examples") == fingerprint and path.exists():
-        clf = NeighbourClassifier.from_npz_bytes(path.read_bytes())
-        rows = [r for q, chunk in _id_batches(normalised)
-                for r in conn.execute(f"{sql} AND document_id IN ({q})", chunk)]
+    examples, fingerprint = _neighbour_examples(store)
+    stored = store.read_blob(NEIGHBOURS_FILENAME) if store.meta("neighbour_examples") == fingerprint else None
+    if stored is not None:
+        clf = NeighbourClassifier.from_npz_bytes(stored)
+        rows = store.untyped_provisions(normalised)
     else:
         clf = NeighbourClassifier.fit(examples, taxonomy=load_taxonomy())
-        _write_private(path, clf.to_npz_bytes())
-        _set_meta(conn, "neighbour_examples", fingerprint)
-        rows = conn.execute(sql).fetchall()
+        _write_blob(store, NEIGHBOURS_FILENAME, clf.to_npz_bytes())
+        store.set_meta("neighbour_examples", fingerprint)
+        rows = store.untyped_provisions()
     if not rows:
         return
     preds = clf.predict([r[2] or "" for r in rows])
-    updates = [(tid, "neighbour" if tid else "none", bucket_of(tid, kind), pid, old_bucket)
-               for (pid, kind, _norm, old, old_bucket), (tid, _s) in zip(rows, preds) if tid != old]
-    conn.executemany("INSERT OR IGNORE INTO dirty(bucket) VALUES(?)",
-                     [(b,) for u in updates for b in (u[2], u[4])])
-    conn.executemany("UPDATE provisions SET clause_type = ?, type_source = ?, bucket = ? WHERE id = ?",
-                     [u[:4] for u in updates])
+    store.retype([(tid, "neighbour" if tid else "none", bucket_of(tid, kind), pid, old_bucket)
+                  for (pid, kind, _norm, old, old_bucket), (tid, _s) in zip(rows, preds) if tid != old])
 
 
-def _variant_config(conn: sqlite3.Connection) -> VariantConfig:
-    raw = _meta(conn, "variant_config")
+def _variant_config(store: PrecedentStore) -> VariantConfig:
+    raw = store.meta("variant_config")
     if raw is None:
         return VariantConfig()
     metric, linkage, cutoff, max_items = json.loads(raw)
     return VariantConfig(metric=metric, linkage=linkage, cutoff=float(cutoff), max_items=int(max_items))
-
-
-def _bucket_rows(conn: sqlite3.Connection, bucket: str) -> list[tuple[str, int, bytes, str, int]]:
-    """(norm_hash, provisions, shingles, norm, sample provision id) per distinct wording,
-    most frequent first, then by hash."""
-    return conn.execute(
-        "SELECT norm_hash, COUNT(*) AS n, shingles, norm, MIN(id) FROM provisions WHERE bucket = ? "
-        "GROUP BY norm_hash ORDER BY n DESC, norm_hash", (bucket,)).fetchall()
-
-
-def _str_batches(values: Sequence[str]) -> Iterator[tuple[str, list[str]]]:
-    for start in range(0, len(values), _IN_BATCH):
-        chunk = list(values[start:start + _IN_BATCH])
-        yield ",".join("?" * len(chunk)), chunk
 
 
 @dataclass(frozen=True, slots=True)
@@ -1037,27 +795,24 @@ class _Wordings:
     docs: np.ndarray
 
 
-def _document_ranks(conn: sqlite3.Connection) -> tuple[np.ndarray, np.ndarray]:
+def _document_ranks(store: PrecedentStore) -> tuple[np.ndarray, np.ndarray]:
     """(document ids sorted, each one's rank by path) for :func:`_bucket_wordings`."""
-    ids = np.array([i for (i,) in conn.execute("SELECT id FROM documents ORDER BY path")], dtype=np.int64)
+    ids = np.array([i for i, _p, _h in store.documents_by_path()], dtype=np.int64)
     order = np.argsort(ids)
     return ids[order], order.astype(np.int64)
 
 
-def _bucket_wordings(conn: sqlite3.Connection, bucket: str,
-                     ranks: tuple[np.ndarray, np.ndarray]) -> _Wordings:
+def _bucket_wordings(store: PrecedentStore, bucket: str, ranks: tuple[np.ndarray, np.ndarray]) -> _Wordings:
     """Two index-only passes over the bucket's provisions in the order of index
     ``provisions_wording`` (the wordings with their counts, then every provision's document,
     position and id), then array work.  The sample of a wording is its provision in the
     document first by path (first by position there): what a full build, which stores the
     documents in path order, finds as the lowest row id."""
-    groups = conn.execute("SELECT norm_hash, COUNT(*) FROM provisions WHERE bucket = ? GROUP BY norm_hash "
-                          "ORDER BY norm_hash", (bucket,)).fetchall()
+    groups = store.wording_counts(bucket)
     if not groups:
         return _Wordings([], np.zeros(0, np.int32), np.zeros(0, np.int64), np.zeros(1, np.int64),
                          np.zeros(0, np.int64))
-    places = np.array(conn.execute("SELECT document_id, ordinal, id FROM provisions WHERE bucket = ? "
-                                   "ORDER BY norm_hash, document_id, ordinal", (bucket,)).fetchall(), dtype=np.int64)
+    places = np.array(store.wording_places(bucket), dtype=np.int64).reshape(-1, 3)
     count = np.array([g[1] for g in groups], dtype=np.int64)
     inv = np.repeat(np.arange(count.size), count)
     doc, ordinal, pid = places[:, 0], places[:, 1], places[:, 2]
@@ -1073,17 +828,14 @@ def _bucket_wordings(conn: sqlite3.Connection, bucket: str,
                      docptr, docs[_ragged(cuts, order)])
 
 
-def _new_wording_sets(conn: sqlite3.Connection, bucket: str,
+def _new_wording_sets(store: PrecedentStore, bucket: str,
                       hashes: Sequence[str]) -> dict[str, tuple[np.ndarray, np.ndarray]]:
     """``{hash: (shingle hashes, word hashes)}`` of wordings the bucket's cache lacks."""
     out: dict[str, tuple[np.ndarray, np.ndarray]] = {}
-    for q, chunk in _str_batches(hashes):
-        for h, blob, norm in conn.execute(
-                f"SELECT norm_hash, shingles, norm FROM provisions WHERE bucket = ? AND norm_hash IN ({q}) "
-                "GROUP BY norm_hash", (bucket, *chunk)):
-            tokens = (norm or "").split()
-            words = np.unique(np.fromiter((_word_hash(w) for w in tokens), dtype=np.uint64, count=len(tokens)))
-            out[h] = (wording_shingles(blob, norm), words)
+    for h, blob, norm in store.wording_texts(bucket, hashes):
+        tokens = (norm or "").split()
+        words = np.unique(np.fromiter((_word_hash(w) for w in tokens), dtype=np.uint64, count=len(tokens)))
+        out[h] = (wording_shingles(blob, norm), words)
     return out
 
 
@@ -1095,76 +847,75 @@ def wording_shingles(blob: bytes | None, norm: str | None) -> np.ndarray:
     return shingle_hashes((norm or "").split())
 
 
-def _bucket_file(folder: Path, bucket: str) -> Path:
+def bucket_blob(bucket: str) -> str:
+    """The name of a bucket's frequency cache among the store's derived data."""
     name = hashlib.blake2b(bucket.encode("utf-8"), digest_size=12).hexdigest()
-    return folder / BUCKETS_DIRNAME / f"{name}.npz"
+    return f"{BUCKETS_DIRNAME}/{name}.npz"
 
 
-def _read_bucket(path: Path) -> BucketArrays | None:
+def read_bucket(store: PrecedentStore, bucket: str) -> BucketArrays | None:
+    """A bucket's frequency cache, None when missing or not one this code wrote."""
+    data = store.read_blob(bucket_blob(bucket))
+    if data is None:
+        return None
     try:
-        return BucketArrays.from_npz_bytes(path.read_bytes())
-    except (OSError, ValueError, KeyError, EOFError):  # missing or not a file this code wrote
+        return BucketArrays.from_npz_bytes(data)
+    except (OSError, ValueError, KeyError, EOFError):
         return None
 
 
-def _refresh_variants(conn: sqlite3.Connection, folder: Path, *, cancel: Cancel | Any | None) -> bool:
+def _refresh_variants(store: PrecedentStore, *, cancel: Cancel | Any | None) -> bool:
     """Variants and frequency cache of every bucket marked dirty.  False when cancelled.
 
-    A bucket's file is written before the transaction that clears its mark commits: after a
+    A bucket's cache is written before the transaction that clears its mark commits: after a
     crash between the two the bucket is still marked and its next refresh starts from the
-    file, whose wordings are the current ones, so nothing is lost or counted twice."""
-    config = _variant_config(conn)
-    _private_dir(folder / BUCKETS_DIRNAME)
-    ranks = _document_ranks(conn)
+    cache, whose wordings are the current ones, so nothing is lost or counted twice."""
+    config = _variant_config(store)
+    ranks = _document_ranks(store)
     # Set while a variants step runs: when found set, the last one stopped between writing a
-    # cache file and committing, so this one reads the stored variants from the table.
-    trusted = _meta(conn, "variants_running") != "1"
-    _set_meta(conn, "variants_running", "1")
-    conn.commit()
+    # cache and committing, so this one reads the stored variants from the table.
+    trusted = store.meta("variants_running") != "1"
+    store.set_meta("variants_running", "1")
+    store.checkpoint()
     try:
-        for (bucket,) in conn.execute("SELECT bucket FROM dirty ORDER BY bucket").fetchall():
+        for bucket in store.dirty_buckets():
             if _cancelled(cancel):
                 return False
-            _refresh_bucket(conn, folder, bucket, config, ranks, trusted=trusted)
-            conn.execute("DELETE FROM dirty WHERE bucket = ?", (bucket,))
-        _set_meta(conn, "variants_running", "0")
+            _refresh_bucket(store, bucket, config, ranks, trusted=trusted)
+            store.clear_dirty(bucket)
+        store.set_meta("variants_running", "0")
     finally:
-        conn.commit()
+        store.checkpoint()
     return True
 
 
-def _refresh_bucket(conn: sqlite3.Connection, folder: Path, bucket: str, config: VariantConfig,
+def _refresh_bucket(store: PrecedentStore, bucket: str, config: VariantConfig,
                     ranks: tuple[np.ndarray, np.ndarray], *, trusted: bool) -> None:
     """One bucket's variants and cache from its previous cache and its changed wordings."""
-    path = _bucket_file(folder, bucket)
-    words = _bucket_wordings(conn, bucket, ranks)
+    words = _bucket_wordings(store, bucket, ranks)
     if not words.hashes:
-        conn.execute("DELETE FROM variants WHERE bucket = ?", (bucket,))
-        conn.execute("DELETE FROM bucket_state WHERE bucket = ?", (bucket,))
-        try:
-            os.unlink(path)
-        except FileNotFoundError:
-            pass
+        store.drop_bucket(bucket)
+        store.delete_blob(bucket_blob(bucket))
         return
-    old = _read_bucket(path)
+    old = read_bucket(store, bucket)
     take = rows_of(old.hashes if old is not None else np.zeros(0, "S32"), np.array(words.hashes, dtype="S32"))
     fresh = [words.hashes[i] for i in np.flatnonzero(take < 0).tolist()]
     arrays = assemble(old, hashes=words.hashes, count=words.count, sample=words.sample, docptr=words.docptr,
-                      docs=words.docs, new_sets=_new_wording_sets(conn, bucket, fresh))
+                      docs=words.docs, new_sets=_new_wording_sets(store, bucket, fresh))
     gone = (old.rows if old is not None else 0) - (len(words.hashes) - len(fresh))
-    state = conn.execute("SELECT clustered, drift FROM bucket_state WHERE bucket = ?", (bucket,)).fetchone()
-    # A cache file is this index's own only when the index has a state for its bucket (a
+    state = store.bucket_state(bucket)
+    # A cache is this index's own only when the index has a state for its bucket (a
     # rebuilt, upgraded or re-configured index has none): otherwise only its content-derived
     # arrays (wordings' shingles and words) are reused, never its variants.
     trusted = trusted and old is not None and state is not None
-    labels, full = _cluster_bucket(conn, bucket, arrays, old if trusted else None, state, gone=gone, config=config)
-    stored = _stored_figures(conn, bucket, old, trusted)
-    variant = _write_variants(conn, bucket, arrays, labels, stored=stored, trusted=trusted)
+    labels, full = _cluster_bucket(store, bucket, arrays, old if trusted else None, state, gone=gone, config=config)
+    stored = _stored_figures(store, bucket, old, trusted)
+    variant = _write_variants(store, bucket, arrays, labels, stored=stored, trusted=trusted)
     arrays = replace(arrays, variant=variant)
-    _write_private(path, (compact(arrays) if full else arrays).to_npz_bytes())
+    _write_blob(store, bucket_blob(bucket), (compact(arrays) if full else arrays).to_npz_bytes())
 
 
-def _cluster_bucket(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays, old: BucketArrays | None,
+def _cluster_bucket(store: PrecedentStore, bucket: str, arrays: BucketArrays, old: BucketArrays | None,
                     state: tuple[int, int] | None, *, gone: int, config: VariantConfig) -> tuple[np.ndarray, bool]:
     """Per-wording labels (a kept variant's id, else a label no variant of the bucket has)
     and whether they come from a full clustering rather than from
@@ -1182,11 +933,10 @@ def _cluster_bucket(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays,
         except RegroupTooLarge:
             labels = None
     if labels is not None:
-        conn.execute("UPDATE bucket_state SET drift = drift + ? WHERE bucket = ?", (changes, bucket))
+        store.add_drift(bucket, changes)
         return labels, False
     labels = _keep_ids(cluster_wordings(arrays.shingle_sets(), config=config), arrays.variant)
-    conn.execute("INSERT INTO bucket_state(bucket, clustered, drift) VALUES(?, ?, 0) ON CONFLICT(bucket) "
-                 "DO UPDATE SET clustered = excluded.clustered, drift = 0", (bucket, arrays.rows))
+    store.set_clustered(bucket, arrays.rows)
     return labels, True
 
 
@@ -1205,13 +955,10 @@ def _keep_ids(clusters: np.ndarray, previous: np.ndarray) -> np.ndarray:
     return out
 
 
-_FIGURES = ("ordinal", "wordings", "provisions", "documents", "sample")  # the columns of table variants
-
-
 def _variant_figures(arrays: BucketArrays, labels: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """(distinct labels sorted, each row's index into them, per label the _FIGURES: ordinal --
-    most provisions first, ties by first wording in the bucket's order -- wordings,
-    provisions, documents and the sample of its first wording)."""
+    """(distinct labels sorted, each row's index into them, per label the VARIANT_FIGURES:
+    ordinal -- most provisions first, ties by first wording in the bucket's order --
+    wordings, provisions, documents and the sample of its first wording)."""
     uniq, inv = np.unique(labels, return_inverse=True)
     n = arrays.rows
     first = np.full(uniq.size, n, dtype=np.int64)
@@ -1228,21 +975,20 @@ def _variant_figures(arrays: BucketArrays, labels: np.ndarray) -> tuple[np.ndarr
     return uniq, inv, figures
 
 
-def _stored_figures(conn: sqlite3.Connection, bucket: str, old: BucketArrays | None,
+def _stored_figures(store: PrecedentStore, bucket: str, old: BucketArrays | None,
                     trusted: bool) -> tuple[np.ndarray, np.ndarray]:
-    """(variant ids sorted, their _FIGURES) as table variants holds them: computed from the
-    bucket's previous cache when it is *trusted* (every variants step that wrote the cache
-    committed the same figures), else read from the table."""
+    """(variant ids sorted, their VARIANT_FIGURES) as the store holds them: computed from
+    the bucket's previous cache when it is *trusted* (every variants step that wrote the
+    cache committed the same figures), else read from the store."""
     if trusted and old is not None and old.rows and (old.variant >= 0).all():
         ids, _, figures = _variant_figures(old, old.variant)
         return ids, figures
-    rows = conn.execute(f"SELECT id, {', '.join(_FIGURES)} FROM variants WHERE bucket = ? ORDER BY id",
-                        (bucket,)).fetchall()
-    table = np.array(rows, dtype=np.int64).reshape(len(rows), 1 + len(_FIGURES))
+    rows = store.variant_figures(bucket)
+    table = np.array(rows, dtype=np.int64).reshape(len(rows), 1 + len(VARIANT_FIGURES))
     return table[:, 0], table[:, 1:]
 
 
-def _write_variants(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays, labels: np.ndarray, *,
+def _write_variants(store: PrecedentStore, bucket: str, arrays: BucketArrays, labels: np.ndarray, *,
                     stored: tuple[np.ndarray, np.ndarray], trusted: bool) -> np.ndarray:
     """Store the bucket's variants -- a label that is a *stored* variant id keeps it, other
     labels become new variants; only changed rows are written -- and its provisions' variant
@@ -1252,40 +998,21 @@ def _write_variants(conn: sqlite3.Connection, bucket: str, arrays: BucketArrays,
     pos = np.minimum(np.searchsorted(st_ids, uniq), max(st_ids.size - 1, 0))
     kept = (st_ids[pos] == uniq) if st_ids.size else np.zeros(uniq.size, bool)
     changed = kept & (st_figures[pos] != figures).any(axis=1) if st_ids.size else kept
-    conn.executemany(f"UPDATE variants SET {' = ?, '.join(_FIGURES)} = ? WHERE id = ?",
-                     [(*figures[k].tolist(), int(uniq[k])) for k in np.flatnonzero(changed).tolist()])
-    conn.executemany("DELETE FROM variants WHERE id = ?",
-                     [(int(v),) for v in st_ids[~np.isin(st_ids, uniq[kept])].tolist()])
+    store.update_variants([(*figures[k].tolist(), int(uniq[k])) for k in np.flatnonzero(changed).tolist()])
+    store.delete_variants(st_ids[~np.isin(st_ids, uniq[kept])].tolist())
     ids = uniq.copy()
     for k in np.flatnonzero(~kept).tolist():
-        ids[k] = conn.execute(f"INSERT INTO variants(bucket, {', '.join(_FIGURES)}) VALUES(?,?,?,?,?,?)",
-                              (bucket, *figures[k].tolist())).lastrowid
+        ids[k] = store.add_variant(bucket, figures[k].tolist())
     variant = ids[inv]
-    unset = np.array([h.encode("ascii") for (h,) in conn.execute(
-        "SELECT DISTINCT norm_hash FROM provisions WHERE bucket = ? AND variant_id IS NULL", (bucket,))], dtype="S32")
+    unset = np.array([h.encode("ascii") for h in store.unassigned_wordings(bucket)], dtype="S32")
     todo = np.ones(arrays.rows, bool) if not trusted else \
         (variant != arrays.variant) | np.isin(arrays.hashes, unset)
-    conn.executemany("UPDATE provisions SET variant_id = ? WHERE bucket = ? AND norm_hash = ? "
-                     "AND (variant_id IS NULL OR variant_id != ?)",
-                     [(int(variant[i]), bucket, arrays.hashes[i].decode("ascii"), int(variant[i]))
-                      for i in np.flatnonzero(todo).tolist()])
-    if conn.execute("SELECT 1 FROM labels WHERE bucket = ? LIMIT 1", (bucket,)).fetchone():
+    store.assign_variants(bucket, [(int(variant[i]), arrays.hashes[i].decode("ascii"))
+                                   for i in np.flatnonzero(todo).tolist()])
+    if store.has_labels(bucket):
         for vid in set(ids.tolist()):
-            _update_position(conn, vid)
+            store.update_position(vid)
     return variant
-
-
-def _update_position(conn: sqlite3.Connection, variant_id: int) -> str | None:
-    """A variant's position: the label most of its labelled wordings carry (ties: the most
-    recent label)."""
-    rows = conn.execute(
-        "SELECT l.position, COUNT(*), MAX(l.seq) FROM labels l JOIN "
-        "(SELECT DISTINCT bucket, norm_hash FROM provisions WHERE variant_id = ?) p "
-        "ON l.bucket = p.bucket AND l.norm_hash = p.norm_hash GROUP BY l.position",
-        (variant_id,)).fetchall()
-    position = min(rows, key=lambda r: (-r[1], -r[2]))[0] if rows else None
-    conn.execute("UPDATE variants SET position = ? WHERE id = ?", (position, variant_id))
-    return position
 
 
 # ----------------------------------------------------------------------------------------
@@ -1293,23 +1020,20 @@ def _update_position(conn: sqlite3.Connection, variant_id: int) -> str | None:
 # ----------------------------------------------------------------------------------------
 
 
-def _training_documents(conn: sqlite3.Connection,
+def _training_documents(store: PrecedentStore,
                         fingerprints: list[str]) -> Iterator[tuple[list[str], list[tuple[str, str]]]]:
     """Documents in path order for :func:`~.vocab.training_sentences`; appends each one's
     fingerprint (path and SHA-256) to *fingerprints* as it is consumed."""
-    for doc_id, path, sha in conn.execute("SELECT id, path, sha256 FROM documents ORDER BY path").fetchall():
+    for doc_id, path, sha in store.documents_by_path():
         fingerprints.append(f"{path}\x00{sha}")
-        terms = [t for (t,) in conn.execute("SELECT term FROM terms WHERE document_id = ?", (doc_id,))]
-        yield terms, conn.execute("SELECT text, norm_hash FROM provisions WHERE document_id = ? "
-                                  "ORDER BY ordinal", (doc_id,)).fetchall()
+        yield store.document_terms(doc_id), store.document_texts(doc_id)
 
 
 class _Training:
     """A vocabulary training decided by :func:`_start_vocabulary`: in a worker process (large
     corpus: it runs beside the clustering, on the other core) or here at :meth:`finish`."""
 
-    def __init__(self, folder: Path, sentences: list[list[str]], state: dict[str, Any]) -> None:
-        self.path = folder / VOCAB_FILENAME
+    def __init__(self, sentences: list[list[str]], state: dict[str, Any]) -> None:
         self.sentences = sentences
         self.state = state
         self._pool: Any = None
@@ -1320,7 +1044,7 @@ class _Training:
             self._pool = multiprocessing.get_context("spawn").Pool(1)
             self._job = self._pool.apply_async(train_model, (sentences,))
 
-    def finish(self, conn: sqlite3.Connection) -> None:
+    def finish(self, store: PrecedentStore) -> None:
         from .vocab import train_model
 
         if self._job is not None:
@@ -1329,14 +1053,11 @@ class _Training:
         else:
             model = train_model(self.sentences)
         if model is None:
-            try:
-                os.unlink(self.path)
-            except FileNotFoundError:
-                pass
+            store.delete_blob(VOCAB_FILENAME)
         else:
-            _write_private(self.path, model.to_npz_bytes())
-        _set_meta(conn, "vocabulary", json.dumps(self.state))
-        conn.commit()
+            _write_blob(store, VOCAB_FILENAME, model.to_npz_bytes())
+        store.set_meta("vocabulary", json.dumps(self.state))
+        store.checkpoint()
 
     def stop(self) -> None:
         if self._pool is not None:
@@ -1345,9 +1066,9 @@ class _Training:
             self._pool = None
 
 
-def _start_vocabulary(conn: sqlite3.Connection, folder: Path, aliases: Mapping[str, str]) -> _Training | None:
+def _start_vocabulary(store: PrecedentStore, aliases: Mapping[str, str]) -> _Training | None:
     """A :class:`_Training` when the model must be (re)trained (:func:`~.vocab.needs_training`:
-    its corpus drifted), else None: the model on disk is the one this library gives."""
+    its corpus drifted), else None: the model stored is the one this library gives."""
     from .vocab import (
         MAX_TRAINING_WORDS,
         needs_training,
@@ -1355,24 +1076,23 @@ def _start_vocabulary(conn: sqlite3.Connection, folder: Path, aliases: Mapping[s
         vocabulary_drift,
     )
 
-    raw = _meta(conn, "vocabulary")
+    raw = store.meta("vocabulary")
     state = json.loads(raw) if raw else None
     alias_key = hashlib.blake2b(json.dumps(aliases, sort_keys=True).encode(), digest_size=16).hexdigest()
-    total = int(conn.execute("SELECT COUNT(*) FROM documents").fetchone()[0])
+    total = store.document_count()
     if state is None or state.get("aliases") != alias_key:
         drift = 1.0
     else:
         trained = state["documents"]
-        current = [f"{p}\x00{h}" for p, h in conn.execute(
-            "SELECT path, sha256 FROM documents ORDER BY path LIMIT ?", (len(trained),))]
+        current = [f"{p}\x00{h}" for _i, p, h in store.documents_by_path(len(trained))]
         drift = vocabulary_drift(trained=trained, current=current, exhausted=state["exhausted"], documents=total)
     if not needs_training(drift=drift, words=state["words"] if state else 0, has_model=state is not None):
         return None
     fingerprints: list[str] = []
-    sentences, used, words = training_sentences(_training_documents(conn, fingerprints))
+    sentences, used, words = training_sentences(_training_documents(store, fingerprints))
     new_state = {"documents": fingerprints[:used], "words": words, "exhausted": words < MAX_TRAINING_WORDS,
                  "aliases": alias_key}
-    return _Training(folder, sentences, new_state)
+    return _Training(sentences, new_state)
 
 
 # ----------------------------------------------------------------------------------------
@@ -1449,21 +1169,29 @@ def _ragged(indptr: np.ndarray, picks: np.ndarray) -> np.ndarray:
 
 
 class Library:
-    """An open precedent-set index (read side, plus the reviewer's labels).
+    """An open precedent set (read side, plus the reviewer's labels).
 
     Open with :func:`open_library`; close with :meth:`close` or a ``with`` block.  Use it
-    from one thread at a time.
+    from one thread at a time.  *address* is where the index is kept: a SQLite file path or
+    a PostgreSQL address (``postgresql://...``); a server store is read in one consistent
+    snapshot while open (:mod:`.store.postgres`).
     """
 
-    def __init__(self, db_path: str | os.PathLike[str], *, root: str | os.PathLike[str] | None = None) -> None:
-        self.db_path = Path(db_path)
+    def __init__(self, address: str | os.PathLike[str], *, root: str | os.PathLike[str] | None = None) -> None:
+        self.store: PrecedentStore = open_store(address)
         try:
-            self.conn = _connect(self.db_path, create=False)
-        except _Unusable as err:
-            raise CounterdraftError(f"not a usable index database ({err.problem}); 'counterdraft library "
-                                    "build' sets it aside and rebuilds it", path=str(self.db_path)) from None
-        stored_root = _meta(self.conn, "root")
-        self.root = Path(root) if root is not None else (Path(stored_root) if stored_root else self.db_path.parent)
+            self.store.open(create=False)
+        except BaseException:
+            self.store.close()
+            raise
+        self.address = self.store.address
+        stored_root = self.store.meta("root")
+        if root is not None:
+            self.root: Path | None = Path(root)
+        elif stored_root:
+            self.root = Path(stored_root)
+        else:
+            self.root = None if is_server_address(address) else Path(address).parent
         self._buckets: dict[str, BucketIndex | None] = {}
         self._neighbours: NeighbourClassifier | None = None
         self._vocab: Any = None
@@ -1479,42 +1207,60 @@ class Library:
         self.close()
 
     def close(self) -> None:
-        self.conn.close()
+        self.store.close()
 
     # -- facts ----------------------------------------------------------------------------
     @property
-    def folder(self) -> Path:
-        return self.db_path.parent
-
-    @property
     def total(self) -> int:
         """Agreements in the index (readable .docx/.txt/.md files under the root)."""
-        return int(self.conn.execute("SELECT COUNT(*) FROM documents").fetchone()[0])
+        return self.store.document_count()
 
     @property
     def stale(self) -> bool:
-        return _meta(self.conn, "stale") == "1"
+        return self.store.meta("stale") == "1"
 
     @property
     def config(self) -> VariantConfig:
-        return _variant_config(self.conn)
+        return _variant_config(self.store)
 
     def failures(self) -> tuple[Failure, ...]:
-        return tuple(Failure(p, m) for p, m in
-                     self.conn.execute("SELECT path, problem FROM failures ORDER BY path"))
+        return tuple(Failure(p, m) for p, m in self.store.failures())
+
+    def paths(self, *, sha256: str | None = None) -> list[str]:
+        """The agreements' paths (relative to the root), sorted; those with content *sha256*
+        only, when given."""
+        return self.store.paths(sha256=sha256)
+
+    @contextmanager
+    def agreement_file(self, path: str) -> Iterator[str]:
+        """A local file holding the agreement stored at *path*: the store's copy (a shared
+        store keeps them, in a private temporary folder removed afterwards), else the file
+        under the root."""
+        data = self.store.source_bytes(path)
+        if data is None:
+            if self.root is None:
+                raise CounterdraftError("the store keeps no copy of this agreement", path=path)
+            yield str(self.root / path)
+            return
+        with tempfile.TemporaryDirectory(prefix="counterdraft-") as folder:  # mode 0o700
+            local = Path(folder) / PurePosixPath(path).name
+            fd = os.open(local, os.O_CREAT | os.O_WRONLY | os.O_EXCL, 0o600)
+            with os.fdopen(fd, "wb") as fh:
+                fh.write(data)
+            yield str(local)
 
     def aliases(self) -> dict[str, str]:
         if self._aliases is None:
-            raw = _meta(self.conn, "aliases")
+            raw = self.store.meta("aliases")
             self._aliases = json.loads(raw) if raw else {}
         return self._aliases
 
     def neighbours(self) -> NeighbourClassifier | None:
         """The neighbour classifier fitted on the library (None before the first build)."""
         if self._neighbours is None:
-            path = self.folder / NEIGHBOURS_FILENAME
-            if path.exists():
-                self._neighbours = NeighbourClassifier.from_npz_bytes(path.read_bytes())
+            data = self.store.read_blob(NEIGHBOURS_FILENAME)
+            if data is not None:
+                self._neighbours = NeighbourClassifier.from_npz_bytes(data)
         return self._neighbours
 
     @property
@@ -1523,21 +1269,21 @@ class Library:
         if self._vocab is None:
             from .vocab import LibraryVocabulary
 
-            path = self.folder / VOCAB_FILENAME
-            self._vocab = LibraryVocabulary.load(path) if path.exists() else False
+            data = self.store.read_blob(VOCAB_FILENAME)
+            self._vocab = LibraryVocabulary.from_npz_bytes(data) if data is not None else False
         return self._vocab or None
 
     def bucket_names(self) -> tuple[str, ...]:
         """The buckets (clause types, ``~kind``) that hold provisions, sorted."""
-        return tuple(b for (b,) in self.conn.execute("SELECT bucket FROM bucket_state ORDER BY bucket"))
+        return self.store.bucket_names()
 
     def bucket(self, name: str) -> BucketIndex | None:
         """The frequency index of one bucket (clause type or ``~kind``), None if empty.  Read
-        from the bucket's own cache file when first asked for (a review reads only the buckets
+        from the bucket's own cache when first asked for (a review reads only the buckets
         its provisions fall in)."""
         if name in self._buckets:
             return self._buckets[name]
-        a = _read_bucket(_bucket_file(self.folder, name))
+        a = read_bucket(self.store, name)
         b = None
         if a is not None and a.rows:
             b = BucketIndex(name, a.cols, a.shingle_matrix(), a.sizes, a.wcols, a.word_matrix(),
@@ -1549,113 +1295,91 @@ class Library:
         b = self.bucket(bucket)
         return 0 if b is None else b.document_count
 
+    def documents_defining(self, names: Sequence[str]) -> int:
+        """Agreements defining at least one of the terms *names*."""
+        return self.store.documents_defining(names)
+
     def document_paths(self, ids: Sequence[int]) -> dict[int, str]:
-        out: dict[int, str] = {}
-        for q, chunk in _id_batches(ids):
-            out.update(self.conn.execute(f"SELECT id, path FROM documents WHERE id IN ({q})", chunk))
-        return out
+        return self.store.document_paths(ids)
 
     def provision_refs(self, ids: Sequence[int]) -> dict[int, tuple[str, str]]:
         """``{provision row id: (document path, provision number/heading/id)}``."""
-        out: dict[int, tuple[str, str]] = {}
-        for q, chunk in _id_batches(ids):
-            for pid, path, number, heading, local in self.conn.execute(
-                    f"SELECT p.id, d.path, p.number, p.heading, p.pid FROM provisions p "
-                    f"JOIN documents d ON d.id = p.document_id WHERE p.id IN ({q})", chunk):
-                out[pid] = (path, number or heading or local)
-        return out
-
-    def _column(self, column: str, ids: Sequence[int]) -> dict[int, str]:
-        out: dict[int, str] = {}
-        for q, chunk in _id_batches(ids):
-            out.update(self.conn.execute(f"SELECT id, {column} FROM provisions WHERE id IN ({q})", chunk))
-        return out
+        return {pid: (path, number or heading or local)
+                for pid, (path, number, heading, local) in self.store.provision_refs(ids).items()}
 
     def norms(self, ids: Sequence[int]) -> dict[int, str]:
         """Normalised wordings of provision rows *ids*."""
-        return self._column("norm", ids)
+        return self.store.provision_column("norm", ids)
 
     def texts(self, ids: Sequence[int]) -> dict[int, str]:
         """Provision texts of provision rows *ids* (for display only; never logged)."""
-        return self._column("text", ids)
+        return self.store.provision_column("text", ids)
 
     def term_replacer(self, provision_id: int) -> TermReplacer:
         """The term normaliser of the document holding provision row *provision_id*: its
         defined terms read through the library's aliases, as the index normalised it."""
-        row = self.conn.execute("SELECT document_id FROM provisions WHERE id = ?", (int(provision_id),)).fetchone()
-        terms = [] if row is None else [t for (t,) in self.conn.execute(
-            "SELECT term FROM terms WHERE document_id = ?", (row[0],))]
-        return _doc_replacer(terms, self.aliases())
+        return _doc_replacer(self.store.terms_beside(int(provision_id)), self.aliases())
 
     def variant_positions(self) -> dict[int, str]:
-        return {v: p for v, p in self.conn.execute("SELECT id, position FROM variants WHERE position IS NOT NULL")}
+        return self.store.variant_positions()
 
     # -- variants and labels --------------------------------------------------------------
     def variants(self, *, bucket: str | None = None) -> list[VariantInfo]:
-        sql = ("SELECT v.id, v.bucket, v.ordinal, v.wordings, v.provisions, v.documents, v.position, "
-               "d.path, p.number, p.heading, p.pid, v.sample FROM variants v LEFT JOIN provisions p ON p.id = v.sample "
-               "LEFT JOIN documents d ON d.id = p.document_id")
-        args: tuple[Any, ...] = ()
-        if bucket is not None:
-            sql += " WHERE v.bucket = ?"
-            args = (bucket,)
-        sql += " ORDER BY v.bucket, v.ordinal"
         return [VariantInfo(vid, b, o, w, n, d, pos, path, number or heading or pid, sample)
                 for vid, b, o, w, n, d, pos, path, number, heading, pid, sample
-                in self.conn.execute(sql, args)]
+                in self.store.variant_rows(bucket)]
 
     def variant_of(self, document: str, provision: str) -> int | None:
         """The variant of *provision* (number, heading or provision id) in *document* (path
         relative to the root)."""
-        row = self.conn.execute(
-            "SELECT p.variant_id FROM provisions p JOIN documents d ON d.id = p.document_id "
-            "WHERE d.path = ? AND (p.number = ? OR p.pid = ? OR lower(p.heading) = lower(?)) "
-            "ORDER BY p.ordinal LIMIT 1", (document, provision, provision, provision)).fetchone()
-        return None if row is None else row[0]
+        found = self.store.find_provision(document, provision)
+        return None if found is None else found[0]
+
+    def wording_of(self, document: str, provision: str) -> tuple[str, str] | None:
+        """(bucket, wording hash) of *provision* in *document*, None if not in the index."""
+        found = self.store.find_provision(document, provision)
+        return None if found is None else (found[1], found[2])  # type: ignore[return-value]
+
+    def labels(self) -> list[tuple[str, str, str]]:
+        """(bucket, wording hash, position) of every wording labelled, sorted."""
+        return self.store.labels()
 
     def label_variant(self, variant_id: int, position: str | None) -> int:
         """Give every wording of variant *variant_id* the reviewer's *position* (one of
         :data:`POSITIONS`; None removes the label).  Returns the number of wordings labelled."""
         if position is not None:
             position = position_name(position)[0]
-        row = self.conn.execute("SELECT bucket FROM variants WHERE id = ?", (variant_id,)).fetchone()
-        if row is None:
-            raise CounterdraftError(f"no variant {variant_id} in the index (see 'counterdraft library stats')",
-                                    path=str(self.db_path))
-        bucket = row[0]
-        hashes = [h for (h,) in self.conn.execute(
-            "SELECT DISTINCT norm_hash FROM provisions WHERE variant_id = ?", (variant_id,))]
-        if position is None:
-            self.conn.executemany("DELETE FROM labels WHERE bucket = ? AND norm_hash = ?",
-                                  [(bucket, h) for h in hashes])
-        else:
-            seq = int(self.conn.execute("SELECT COALESCE(MAX(seq), 0) FROM labels").fetchone()[0]) + 1
-            self.conn.executemany(
-                "INSERT INTO labels(bucket, norm_hash, position, seq) VALUES(?,?,?,?) "
-                "ON CONFLICT(bucket, norm_hash) DO UPDATE SET position = excluded.position, seq = excluded.seq",
-                [(bucket, h, position, seq) for h in hashes])
-        _update_position(self.conn, variant_id)
-        self.conn.commit()
+        with self.store.write():
+            bucket = self.store.variant_bucket(variant_id)
+            if bucket is None:
+                raise CounterdraftError(f"no variant {variant_id} in the index (see 'counterdraft library stats')",
+                                        path=self.address)
+            hashes = self.store.variant_wordings(variant_id)
+            self.store.set_labels(bucket, hashes, position)
+            self.store.update_position(variant_id)
         return len(hashes)
 
 
-def open_library(root: str | os.PathLike[str] | None = None, *, db_path: str | os.PathLike[str] | None = None,
-                 refresh: bool = True, progress: Progress | None = None, cancel: Cancel | Any | None = None,
+def open_library(root: str | os.PathLike[str] | None = None, *, store: str | os.PathLike[str] | None = None,
+                 db_path: str | os.PathLike[str] | None = None, refresh: bool = True,
+                 progress: Progress | None = None, cancel: Cancel | Any | None = None,
                  workers: int = 2, exclude: Sequence[str | os.PathLike[str]] = (),
                  stage: Stage | None = None) -> Library:
-    """Open the index of the precedent set in *root* (default index path
-    ``root/.counterdraft/library.sqlite``, or *db_path*), building or refreshing it first
+    """Open the precedent set of the folder *root*, kept in *store* (a SQLite file path or a
+    PostgreSQL address; *db_path* is the same as a file path; by default
+    ``root/.counterdraft/library.sqlite``), building or refreshing it from the folder first
     when *refresh* (then ``library.report`` holds the :class:`BuildReport`; *progress* and
-    *stage* as for :func:`build_library`)."""
-    if root is None and db_path is None:
+    *stage* as for :func:`build_library`).  A server store opened without its folder is read
+    as it is."""
+    address = store if store is not None else db_path
+    if root is None and address is None:
         raise CounterdraftError("give the precedent-set folder or the index path")
     report = None
     if refresh:
         if root is None:
             raise CounterdraftError("refreshing the index needs the precedent-set folder")
-        report = build_library(root, db_path=db_path, progress=progress, cancel=cancel, workers=workers,
+        report = build_library(root, store=address, progress=progress, cancel=cancel, workers=workers,
                                exclude=exclude, stage=stage)
-    db = Path(db_path) if db_path is not None else default_db_path(root)  # type: ignore[arg-type]
-    lib = Library(db, root=root)
+    lib = Library(address if address is not None else default_db_path(root), root=root)  # type: ignore[arg-type]
     lib.report = report
     return lib

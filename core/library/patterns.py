@@ -131,10 +131,10 @@ class _DocResult:
 _WORKER: dict[str, Any] = {}
 
 
-def _init_worker(db_path: str, root: str, precedent: Document) -> None:
+def _init_worker(address: str, root: str | None, precedent: Document) -> None:
     from .index import Library
 
-    _WORKER["library"] = Library(db_path, root=root)
+    _WORKER["library"] = Library(address, root=root)
     _WORKER["precedent"] = precedent
 
 
@@ -148,7 +148,8 @@ def _review_with(library: Library, precedent: Document, rel: str) -> _DocResult:
     from .frequency import clause_type_function
 
     try:
-        doc = read_document(str(library.root / rel))
+        with library.agreement_file(rel) as path:
+            doc = read_document(path)
     except CounterdraftError:
         return _DocResult(rel, False, (), ())
     typer = clause_type_function(library)
@@ -180,14 +181,14 @@ def negotiation_patterns(library: Library, precedent: Document, *,
     clause type (module docstring).  *skip* lists document paths (relative to the library's
     root) not to review, e.g. the precedent itself when it lies in the library.  Groups come
     most-negotiated first; moves by count, then description."""
-    paths = [p for (p,) in library.conn.execute("SELECT path FROM documents ORDER BY path")
-             if p not in set(skip)]
+    paths = [p for p in library.paths() if p not in set(skip)]
     results: list[_DocResult] = []
     total = len(paths)
     if workers > 1 and total >= POOL_MIN_FILES:
         ctx = multiprocessing.get_context("spawn")
         with ProcessPoolExecutor(max_workers=workers, mp_context=ctx, initializer=_init_worker,
-                                 initargs=(str(library.db_path), str(library.root), precedent)) as pool:
+                                 initargs=(library.address, None if library.root is None else str(library.root),
+                                           precedent)) as pool:
             for i, res in enumerate(pool.map(_review_one, paths, chunksize=2), 1):
                 results.append(res)
                 if progress is not None:

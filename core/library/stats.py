@@ -1,7 +1,7 @@
 """A summary of the precedent set: documents, provisions per clause type, variants.
 
 Used by ``counterdraft library stats``.  Counts only; the variant listing names a sample
-provision by document and number, never quoting it.  Cost: a few grouped SQL queries.
+provision by document and number, never quoting it.  Cost: a few grouped queries of the store.
 """
 
 from __future__ import annotations
@@ -38,11 +38,9 @@ class LibraryStats:
 
 def library_stats(library: Library) -> LibraryStats:
     tax = load_taxonomy()
-    conn = library.conn
-    counts = {b: (n, d) for b, n, d in conn.execute(
-        "SELECT bucket, COUNT(*), COUNT(DISTINCT document_id) FROM provisions GROUP BY bucket")}
-    variants = {b: (n, lab) for b, n, lab in conn.execute(
-        "SELECT bucket, COUNT(*), COUNT(position) FROM variants GROUP BY bucket")}
+    store = library.store
+    counts = store.type_counts()
+    variants = store.variant_counts()
     order = {t: i for i, t in enumerate(tax.ids)}
     buckets = sorted(counts, key=lambda b: (b.startswith("~"), order.get(b, 99), b))
     types = tuple(
@@ -50,9 +48,7 @@ def library_stats(library: Library) -> LibraryStats:
                   variants.get(b, (0, 0))[0], variants.get(b, (0, 0))[1])
         for b in buckets)
     return LibraryStats(
-        str(library.root), str(library.db_path), library.total,
-        int(conn.execute("SELECT COUNT(*) FROM provisions").fetchone()[0]),
-        int(conn.execute("SELECT COUNT(*) FROM terms").fetchone()[0]),
+        str(library.root or ""), library.address, library.total, store.provision_count(), store.term_count(),
         library.failures(), types)
 
 

@@ -236,7 +236,10 @@ def _engine_review(demo, *, overrides=(), acting_for=None):
     from core.reader import read_document
     from core.review import run_review
 
-    lib = open_library(demo["library"])
+    from core.library.store import is_server_address
+
+    address = demo["library"]
+    lib = open_library(store=address, refresh=False) if is_server_address(address) else open_library(address)
     try:
         review = run_review(read_document(demo["draft"]), read_document(demo["precedent"]),
                             overrides=overrides, vocabulary=lib.vocabulary, acting_for=acting_for)
@@ -590,3 +593,30 @@ def test_the_party_acted_for_is_asked_once_remembered_per_precedent_and_judged_a
     assert w.deviations.table.isColumnHidden(model.DIRECTION)
     assert {d.direction for d in w.ws.review.deviations} == {"unclear"}
 
+
+
+def test_a_shared_store_address_in_the_precedent_set_field_is_used_and_remembered(make_window, qtbot, demo_copy,
+                                                                                   pg_server, settings):
+    """The Open dialog's precedent-set field takes a PostgreSQL store's address (built with
+    'counterdraft library build DIR --store ADDRESS'): the review carries the same past-use
+    figures as the engine reading that store on its own, and the next dialog offers the
+    address again."""
+    from core.library.index import build_library
+
+    address = pg_server.url(pg_server.create_database("window"))
+    build_library(demo_copy["library"], store=address)
+    reference = _engine_review({**demo_copy, "library": address})
+    w = make_window()
+    w.show()
+    dlg = w.show_open_dialog(draft=demo_copy["draft"], precedent=demo_copy["precedent"])
+    dlg.library.setText(address)
+    dlg.compare.click()
+    assert wait_for_outcome(qtbot, w) == "shown"
+    assert w.ws.library is not None and w.ws.library.total == 12
+    assert [(d.id, d.rank, d.frequency) for d in w.ws.review.deviations] == [
+        (d.id, d.rank, d.frequency) for d in reference.deviations]
+    assert w.settings.last_library() == address
+    w2 = make_window()
+    dlg2 = w2.show_open_dialog()
+    assert dlg2.library.text() == address
+    dlg2.close()

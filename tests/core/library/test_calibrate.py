@@ -72,14 +72,9 @@ def test_labels_file_and_stored_positions(tmp_path, demo_library, labelled):
         calibrate(demo_library, [Labelled("nowhere.docx", "1", "x")])
 
 
-def test_without_labels_the_stored_positions_are_used(tmp_path, demo_set):
-    import shutil
-
-    from core.library.index import open_library
-
-    folder = tmp_path / "set"
-    shutil.copytree(demo_set, folder)
-    with open_library(folder, refresh=False) as lib:
+def test_without_labels_the_stored_positions_are_used(tmp_path, demo_set, backend):
+    folder = backend.copy(demo_set, tmp_path / "set")
+    with backend.open(folder) as lib:
         with pytest.raises(CounterdraftError, match="no labelled provisions"):
             calibrate(lib)
         lib.label_variant(lib.variant_of("04-pellbrook-analytical.docx", "9.2"), "refuse")

@@ -12,7 +12,6 @@ Outside references:
 from __future__ import annotations
 
 import dataclasses
-import shutil
 
 import numpy as np
 import pytest
@@ -21,7 +20,7 @@ from scipy.spatial.distance import jaccard
 from core.library.clausetypes import classify_provisions, document_term_replacer
 from core.library.commands import review_options
 from core.library.frequency import ACCEPTED_WEIGHT, POSITION_ADJUSTMENT, apply_frequency, review_types
-from core.library.index import bucket_of, normalised_wording, open_library
+from core.library.index import bucket_of, normalised_wording
 from core.library.normalise import shingle_set
 from core.reader import read_document
 from core.review import run_review
@@ -36,9 +35,9 @@ def documents():
 
 
 @pytest.fixture(scope="module")
-def reviews(demo_set, documents):
+def reviews(demo_set, documents, backend):
     draft, prec = documents
-    with open_library(demo_set, refresh=False) as lib:
+    with backend.open(demo_set) as lib:
         plain = run_review(draft, prec, **review_options(lib))
         return plain, apply_frequency(plain, lib)
 
@@ -77,10 +76,10 @@ def test_same_type_counts_follow_the_record(reviews, scenario):
     assert _find(review, by_id["d1"]).frequency.same_type == 12
 
 
-def test_every_pair_carries_a_frequency_and_matching_equals_brute_force_jaccard(reviews, demo_set):
+def test_every_pair_carries_a_frequency_and_matching_equals_brute_force_jaccard(reviews, demo_set, backend):
     _plain, review = reviews
     assert all(p.frequency is not None and p.frequency.total == 12 for p in review.pairs)
-    with open_library(demo_set, refresh=False) as lib:
+    with backend.open(demo_set) as lib:
         types = review_types(review, lib)
         aliases = lib.aliases()
         cutoff = lib.config.cutoff
@@ -150,29 +149,28 @@ def test_ranking_reasons_and_ranks(reviews, scenario):
             assert added and v.reasons == (*before[v.id].reasons, *added)
 
 
-def test_a_departure_accepted_often_ranks_below_one_never_accepted(reviews, scenario, demo_set):
+def test_a_departure_accepted_often_ranks_below_one_never_accepted(reviews, scenario, demo_set, backend):
     plain, _ = reviews
     by_id = {d["id"]: d for d in scenario["departures"]}
     accepted, never = _find(plain, by_id["d3"]), _find(plain, by_id["d8"])  # 3 of 12; 0 of 12
     same = tuple(dataclasses.replace(v, severity=60) if v.id in (accepted.id, never.id) else v
                  for v in plain.deviations)
-    with open_library(demo_set, refresh=False) as lib:
+    with backend.open(demo_set) as lib:
         out = apply_frequency(dataclasses.replace(plain, deviations=same), lib)
     rank = {v.id: v.rank for v in out.deviations}
     assert rank[never.id] < rank[accepted.id]
 
 
-def test_the_firms_position_is_reported_and_weighs(tmp_path, scenario, documents, demo_set):
-    folder = tmp_path / "set"
-    shutil.copytree(demo_set, folder)  # with its index: labelling writes to it
+def test_the_firms_position_is_reported_and_weighs(tmp_path, scenario, documents, demo_set, backend):
+    folder = backend.copy(demo_set, tmp_path / "set")  # with its index: labelling writes to it
     draft, prec = documents
     by_id = {d["id"]: d for d in scenario["departures"]}
-    with open_library(folder, refresh=False) as lib:
+    with backend.open(folder) as lib:
         plain = run_review(draft, prec, **review_options(lib))
         before = _find(apply_frequency(plain, lib), by_id["d1"])
         vid = lib.variant_of("04-pellbrook-analytical.docx", "9.2")  # the 60-day wording
         lib.label_variant(vid, "refuse")
-    with open_library(folder, refresh=False) as lib:
+    with backend.open(folder) as lib:
         after = _find(apply_frequency(plain, lib), by_id["d1"])
     assert after.frequency.position == "refuse"
     assert "the firm's stance on this wording: refuse" in after.reasons
@@ -183,8 +181,7 @@ def test_containing_counts_library_provisions_with_the_words(reviews, scenario, 
     _plain, review = reviews
     by_id = {d["id"]: d for d in scenario["departures"]}
     v = _find(review, by_id["d9"])  # "not" inserted in an acceptance clause
-    # Reference: SQLite's instr over the stored normalised wordings of that clause type.
-    expected = demo_library.conn.execute(
-        "SELECT COUNT(*) FROM provisions WHERE bucket = 'acceptance' AND instr(' ' || norm || ' ', ' not ') > 0"
-    ).fetchone()[0]
+    # Reference: Python's substring test over the stored normalised wordings of that clause type.
+    ids = [r[0] for r in demo_library.store.provision_rows() if r[6] == "acceptance"]
+    expected = sum(" not " in f" {norm} " for norm in demo_library.norms(ids).values())
     assert v.frequency.containing == expected > 0

@@ -31,7 +31,7 @@ import pytest
 import core.library.index as index_module
 from core.library.commands import review_options
 from core.library.frequency import apply_frequency
-from core.library.index import _bucket_file, _read_bucket, build_library, open_library
+from core.library.index import build_library, open_library, read_bucket
 from core.library.patterns import negotiation_patterns
 from core.reader import read_document
 from core.review import run_review
@@ -46,38 +46,39 @@ LABELLED = ("05-vantry-and-loame-manufacturing.docx", "7.1")  # a payment clause
 
 
 def _provisions(lib) -> list[tuple]:
-    return sorted(lib.conn.execute(
-        "SELECT d.path, p.pid, p.clause_type, p.type_source, p.bucket, p.norm_hash FROM provisions p "
-        "JOIN documents d ON d.id = p.document_id"))
+    return sorted(r[2:8] for r in lib.store.provision_rows())
+
+
+def _members(lib) -> dict[int | None, set[str]]:
+    """The wordings of each variant id."""
+    members: dict[int | None, set[str]] = {}
+    for *_r, h, vid in lib.store.provision_rows():
+        members.setdefault(vid, set()).add(h)
+    return members
 
 
 def _variants(lib) -> list[tuple]:
     """Each variant as (bucket, ordinal, its wordings, counts, sample path and provision, position)."""
-    members: dict[int, set[str]] = {}
-    for vid, h in lib.conn.execute("SELECT DISTINCT variant_id, norm_hash FROM provisions"):
-        members.setdefault(vid, set()).add(h)
+    members = _members(lib)
     refs = lib.provision_refs([v.sample for v in lib.variants() if v.sample is not None])
+    places = {r[0]: (r[2], r[3]) for r in lib.store.provision_rows()}
     out = []
     for v in lib.variants():
-        sample = lib.conn.execute("SELECT d.path, p.pid FROM provisions p JOIN documents d ON d.id = p.document_id "
-                                  "WHERE p.id = ?", (v.sample,)).fetchone()
         out.append((v.bucket, v.ordinal, frozenset(members[v.id]), v.wordings, v.provisions, v.documents,
-                    tuple(sample), refs[v.sample], v.position))
+                    places[v.sample], refs[v.sample], v.position))
     assert None not in members  # every provision has a variant
     return sorted(out, key=lambda t: (t[0], t[1]))
 
 
 def _caches(lib) -> dict[str, tuple]:
     """Each bucket's cache with ids turned into what they name (paths, provision ids, wordings)."""
-    paths = dict(lib.conn.execute("SELECT id, path FROM documents"))
-    pids = dict(lib.conn.execute("SELECT p.id, d.path || '#' || p.pid FROM provisions p "
-                                 "JOIN documents d ON d.id = p.document_id"))
-    wordings = {}
-    for vid, h in lib.conn.execute("SELECT DISTINCT variant_id, norm_hash FROM provisions"):
-        wordings.setdefault(vid, set()).add(h)
+    rows = lib.store.provision_rows()
+    paths = {r[1]: r[2] for r in rows}
+    pids = {r[0]: f"{r[2]}#{r[3]}" for r in rows}
+    wordings = _members(lib)
     out = {}
     for name in lib.bucket_names():
-        a = _read_bucket(_bucket_file(lib.folder, name))
+        a = read_bucket(lib.store, name)
         rows = []
         for i, sh, wd in zip(range(a.rows), a.shingle_sets(), _word_sets(a)):
             docs = frozenset(paths[d] for d in a.docs[a.docptr[i]:a.docptr[i + 1]].tolist())
@@ -99,8 +100,9 @@ def _frequencies(lib, pair: tuple[Path, Path] = (DEMO / "draft.docx", DEMO / "pr
             tuple((d.rank, d.severity) for d in review.deviations))
 
 
-def _snapshot(root: Path, *, patterns: bool = False, pair: tuple[Path, Path] | None = None) -> dict:
-    with open_library(root, refresh=False) as lib:
+def _snapshot(root: Path, *, patterns: bool = False, pair: tuple[Path, Path] | None = None,
+              backend=None) -> dict:  # noqa: ANN001
+    with (backend.open(root) if backend is not None else open_library(root, refresh=False)) as lib:
         snap = {"total": lib.total, "provisions": _provisions(lib), "variants": _variants(lib),
                 "caches": _caches(lib), "frequencies": _frequencies(lib, *([pair] if pair else []))}
         if patterns:
@@ -108,22 +110,22 @@ def _snapshot(root: Path, *, patterns: bool = False, pair: tuple[Path, Path] | N
     return snap
 
 
-def _label(root: Path) -> None:
-    with open_library(root, refresh=False) as lib:
+def _label(root: Path, backend) -> None:  # noqa: ANN001
+    with backend.open(root) as lib:
         lib.label_variant(lib.variant_of(*LABELLED), "house wording")
 
 
-def _fresh(state: Path, tmp: Path, name: str) -> dict:
+def _fresh(state: Path, tmp: Path, name: str, backend) -> dict:  # noqa: ANN001
     """Reference: a fresh full build of a copy of *state*'s files, labelled the same way."""
     copy = tmp / name
     shutil.copytree(state, copy, ignore=shutil.ignore_patterns(".counterdraft"))
-    build_library(copy)
-    _label(copy)
-    return _snapshot(copy, patterns=name == "after-remove")
+    backend.build(copy)
+    _label(copy, backend)
+    return _snapshot(copy, patterns=name == "after-remove", backend=backend)
 
 
 @pytest.fixture(scope="module")
-def references(tmp_path_factory):
+def references(tmp_path_factory, backend):
     """The folder's states after each step and their fresh builds' snapshots."""
     tmp = tmp_path_factory.mktemp("fresh")
     state = tmp / "state"
@@ -131,7 +133,7 @@ def references(tmp_path_factory):
     refs = {}
     for step in _STEPS:
         step(state)
-        refs[step.__name__] = _fresh(state, tmp, step.__name__.replace("_", "-"))
+        refs[step.__name__] = _fresh(state, tmp, step.__name__.replace("_", "-"), backend)
     return refs
 
 
@@ -157,7 +159,7 @@ _STEPS = (start, after_add, after_change, after_remove)
 
 @pytest.mark.parametrize("regroup", [False, True], ids=["defaults", "regroup-every-bucket"])
 def test_adding_changing_and_removing_one_agreement_equals_a_fresh_build(tmp_path, monkeypatch, references,
-                                                                         regroup):
+                                                                         regroup, backend):
     regrouped: list[int] = []
     if regroup:  # the demo's buckets are small: make every change go through regroup
         monkeypatch.setattr(index_module, "ALWAYS_FULL_WORDINGS", 0)
@@ -168,13 +170,13 @@ def test_adding_changing_and_removing_one_agreement_equals_a_fresh_build(tmp_pat
     shutil.copytree(SET, folder, ignore=shutil.ignore_patterns(".counterdraft"))
     for step in _STEPS:
         step(folder)
-        report = build_library(folder)
+        report = backend.build(folder)
         if step is start:
-            _label(folder)  # labelled once; the later builds must keep the position right
+            _label(folder, backend)  # labelled once; the later builds must keep the position right
             assert report.read == 11
         else:
             assert report.read + report.removed == 1  # one agreement read or dropped, no more
-        got = _snapshot(folder, patterns=step is after_remove and regroup)
+        got = _snapshot(folder, patterns=step is after_remove and regroup, backend=backend)
         want = references[step.__name__]
         for key in got:
             assert got[key] == want[key], (step.__name__, key)
@@ -245,36 +247,38 @@ def test_a_generated_corpus_built_incrementally_equals_a_fresh_build(tmp_path, m
     assert regrouped  # the incremental path ran
 
 
-def test_a_build_killed_between_a_cache_file_and_its_commit_is_repaired_by_the_next(tmp_path, monkeypatch):
-    """A build that dies after rewriting some bucket files but before committing their
-    variants (simulated by an error on the third file) leaves the next build to finish the
-    job; the result is a fresh build's."""
+def test_a_build_killed_between_a_cache_file_and_its_commit_is_repaired_by_the_next(tmp_path, monkeypatch,
+                                                                                  backend):
+    """A build that dies after rewriting some bucket caches but before committing their
+    variants (simulated by an error on the third cache) leaves the next build to finish the
+    job; the result is a fresh build's.  (On SQLite the caches are files written before the
+    commit; a server store keeps the build in one transaction, so the error undoes it all.)"""
     monkeypatch.setattr(index_module, "ALWAYS_FULL_WORDINGS", 0)  # regroup every bucket
     folder = tmp_path / "library"
     shutil.copytree(SET, folder, ignore=shutil.ignore_patterns(".counterdraft"))
     (folder / ADDED).unlink()
-    build_library(folder)
+    backend.build(folder)
     shutil.copy(SET / ADDED, folder / ADDED)
-    real = index_module._write_private
-    written: list[Path] = []
+    real = index_module._write_blob
+    written: list[str] = []
 
-    def failing(path: Path, data: bytes) -> None:
-        if path.parent.name == index_module.BUCKETS_DIRNAME:
-            written.append(path)
+    def failing(store, name: str, data: bytes) -> None:  # noqa: ANN001
+        if name.startswith(index_module.BUCKETS_DIRNAME + "/"):
+            written.append(name)
             if len(written) == 3:
                 raise OSError("simulated end of the process")
-        real(path, data)
+        real(store, name, data)
 
-    monkeypatch.setattr(index_module, "_write_private", failing)
+    monkeypatch.setattr(index_module, "_write_blob", failing)
     with pytest.raises(OSError, match="simulated"):
-        build_library(folder)
-    monkeypatch.setattr(index_module, "_write_private", real)
-    build_library(folder)
+        backend.build(folder)
+    monkeypatch.setattr(index_module, "_write_blob", real)
+    backend.build(folder)
     # Reference: a fresh full build of the same files.
     copy = tmp_path / "fresh"
     shutil.copytree(folder, copy, ignore=shutil.ignore_patterns(".counterdraft"))
-    build_library(copy)
-    want, got = _snapshot(copy), _snapshot(folder)
+    backend.build(copy)
+    want, got = _snapshot(copy, backend=backend), _snapshot(folder, backend=backend)
     for key in want:
         assert got[key] == want[key], key
 

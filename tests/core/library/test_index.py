@@ -3,6 +3,8 @@
 Outside references:
 * ``hashlib.sha256`` (FIPS 180-4) for the stored content hashes;
 * SQLite's own ``PRAGMA integrity_check`` and POSIX file modes (``os.stat``) for the files;
+  what was stored is read back by each database engine with its own driver (``sqlite3``,
+  ``psycopg``), not through the store's code;
   SQLite's result codes (SQLITE_CORRUPT, https://www.sqlite.org/rescode.html) for damage;
 * the ZIP file format via ``zipfile`` (a .docx is an OPC/ZIP package, ECMA-376 Part 2 section
   8): a truncated copy of a real .docx is a corrupt package.
@@ -70,10 +72,10 @@ def make_folder(root: Path) -> Path:
     return root
 
 
-def test_folder_with_bad_files_builds_reports_them_and_indexes_the_rest(tmp_path):
+def test_folder_with_bad_files_builds_reports_them_and_indexes_the_rest(tmp_path, backend):
     root = make_folder(tmp_path / "lib")
     seen: list[tuple[int, int, str]] = []
-    report = build_library(root, progress=lambda d, t, p: seen.append((d, t, p)))
+    report = backend.build(root, progress=lambda d, t, p: seen.append((d, t, p)))
     assert report.documents == 3 and report.read == 7 and not report.cancelled
     problems = {f.path: f.problem for f in report.failures}
     assert set(problems) == {"truncated.docx", "noise.docx", "shopping.txt", "empty.md"}
@@ -86,59 +88,51 @@ def test_folder_with_bad_files_builds_reports_them_and_indexes_the_rest(tmp_path
     # Never the agreements' text in progress reports or failure reasons.
     assert not any(SENTINEL in p for _d, _t, p in seen)
     assert not any(SENTINEL in f.problem for f in report.failures)
-    db = root / DB_DIRNAME / DB_FILENAME
-    with sqlite3.connect(db) as conn:
-        assert conn.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
-        rows = dict(conn.execute("SELECT path, sha256 FROM documents"))
-        assert set(rows) == {"a.txt", "sub/b.md", "sub/c.docx"}
-        for rel, digest in rows.items():
-            # Reference: hashlib.sha256 of the file's bytes.
-            assert digest == hashlib.sha256((root / rel).read_bytes()).hexdigest()
-        parties = conn.execute("SELECT parties FROM documents WHERE path = 'a.txt'").fetchone()[0]
-        assert "Corrimar Vendlowe Limited (Customer)" in parties
-        n_terms = conn.execute("SELECT COUNT(*) FROM terms").fetchone()[0]
-        assert n_terms >= 6
-    with open_library(root, refresh=False) as lib:
+    if backend.name == "sqlite":
+        assert backend.query(root, "PRAGMA integrity_check")[0][0] == "ok"
+    rows = dict(backend.query(root, "SELECT path, sha256 FROM documents"))
+    assert set(rows) == {"a.txt", "sub/b.md", "sub/c.docx"}
+    for rel, digest in rows.items():
+        # Reference: hashlib.sha256 of the file's bytes.
+        assert digest == hashlib.sha256((root / rel).read_bytes()).hexdigest()
+    parties = backend.query(root, "SELECT parties FROM documents WHERE path = 'a.txt'")[0][0]
+    assert "Corrimar Vendlowe Limited (Customer)" in parties
+    assert backend.query(root, "SELECT COUNT(*) FROM terms")[0][0] >= 6
+    with backend.open(root) as lib:
         assert lib.total == 3
         assert {f.path for f in lib.failures()} == set(problems)
         assert lib.documents_with("payment") == 3
 
 
-def test_incremental_rebuild(tmp_path):
+def test_incremental_rebuild(tmp_path, backend):
     root = make_folder(tmp_path / "lib")
-    build_library(root)
-    again = build_library(root)
+    backend.build(root)
+    again = backend.build(root)
     assert (again.read, again.unchanged, again.removed) == (0, 7, 0)
     # Touched but unchanged: the stat differs, the hash does not -> not re-read.
     os.utime(root / "a.txt", ns=(1_000_000_000, 1_000_000_000))
-    assert build_library(root).read == 0
+    assert backend.build(root).read == 0
     # Changed content -> re-read; the new wording is in the index.
     (root / "a.txt").write_text(agreement(1, days=90), encoding="utf-8")
-    changed = build_library(root)
+    changed = backend.build(root)
     assert (changed.read, changed.removed) == (1, 0)
-    db = root / DB_DIRNAME / DB_FILENAME
-    with sqlite3.connect(db) as conn:
-        texts = [t for (t,) in conn.execute(
-            "SELECT p.text FROM provisions p JOIN documents d ON d.id = p.document_id WHERE d.path = 'a.txt'")]
-        assert any("90 days" in t for t in texts) and not any("30 days" in t for t in texts)
+    texts = [t for (t,) in backend.query(
+        root, "SELECT p.text FROM provisions p JOIN documents d ON d.id = p.document_id WHERE d.path = 'a.txt'")]
+    assert any("90 days" in t for t in texts) and not any("30 days" in t for t in texts)
     # Removed file -> dropped with its provisions and terms; a fixed failure becomes a document.
-    before = _count(db, "provisions")
+    count = "SELECT COUNT(*) FROM provisions"
+    before = backend.query(root, count)[0][0]
     (root / "sub" / "b.md").unlink()
     (root / "empty.md").write_text(agreement(5), encoding="utf-8")
-    after = build_library(root)
+    after = backend.build(root)
     assert after.removed == 1 and after.read == 1 and after.documents == 3
     assert "empty.md" not in {f.path for f in after.failures}
-    with sqlite3.connect(db) as conn:
-        assert conn.execute("SELECT COUNT(*) FROM documents WHERE path = 'sub/b.md'").fetchone()[0] == 0
-        orphans = conn.execute("SELECT COUNT(*) FROM provisions WHERE document_id NOT IN "
-                               "(SELECT id FROM documents)").fetchone()[0]
+    assert backend.query(root, "SELECT COUNT(*) FROM documents WHERE path = 'sub/b.md'")[0][0] == 0
+    for table in ("provisions", "terms"):
+        orphans = backend.query(root, f"SELECT COUNT(*) FROM {table} WHERE document_id NOT IN "
+                                      "(SELECT id FROM documents)")[0][0]
         assert orphans == 0
-    assert _count(db, "provisions") == before  # one agreement of the same shape in, one out
-
-
-def _count(db: Path, table: str) -> int:
-    with sqlite3.connect(db) as conn:
-        return conn.execute(f"SELECT COUNT(*) FROM {table}").fetchone()[0]
+    assert backend.query(root, count)[0][0] == before  # one agreement of the same shape in, one out
 
 
 def test_index_files_are_private(tmp_path):
@@ -167,45 +161,45 @@ def test_index_files_are_private(tmp_path):
     assert stat.S_IMODE((other / "mine.sqlite").stat().st_mode) == 0o600
 
 
-def test_cancel_keeps_what_was_read_and_the_next_build_finishes(tmp_path):
+def test_cancel_keeps_what_was_read_and_the_next_build_finishes(tmp_path, backend):
     root = make_folder(tmp_path / "lib")
     stop = threading.Event()
-    report = build_library(root, progress=lambda d, t, p: stop.set() if d >= 2 else None, cancel=stop)
+    report = backend.build(root, progress=lambda d, t, p: stop.set() if d >= 2 else None, cancel=stop)
     assert report.cancelled
     assert report.read < 7
-    with open_library(root, refresh=False) as lib:
+    with backend.open(root) as lib:
         assert lib.stale
-    done = build_library(root)
+    done = backend.build(root)
     assert not done.cancelled and done.documents == 3
-    with open_library(root, refresh=False) as lib:
+    with backend.open(root) as lib:
         assert not lib.stale
         assert lib.bucket("payment") is not None
 
 
-def test_parallel_reading_gives_the_same_index(tmp_path, monkeypatch):
+def test_parallel_reading_gives_the_same_index(tmp_path, monkeypatch, backend):
     a = make_folder(tmp_path / "one")
     for i in range(4):
         (a / f"extra{i}.txt").write_text(agreement(10 + i, days=15 * (i + 1)), encoding="utf-8")
     b = tmp_path / "two"
     shutil.copytree(a, b)
-    build_library(a, workers=1, vocabulary=False)
+    backend.build(a, workers=1, vocabulary=False)
     monkeypatch.setattr(index_module, "POOL_MIN_FILES", 2)
-    build_library(b, workers=2, vocabulary=False)
+    backend.build(b, workers=2, vocabulary=False)
 
     def content(root: Path):
-        with sqlite3.connect(root / DB_DIRNAME / DB_FILENAME) as conn:
-            return (sorted(conn.execute("SELECT d.path, p.pid, p.kind, p.number, p.heading, p.text, p.clause_type, "
-                                        "p.norm_hash FROM provisions p JOIN documents d ON d.id = p.document_id")),
-                    sorted(conn.execute("SELECT path, problem FROM failures")))
+        return (sorted(backend.query(root, "SELECT d.path, p.pid, p.kind, p.number, p.heading, p.text, "
+                                           "p.clause_type, p.norm_hash FROM provisions p "
+                                           "JOIN documents d ON d.id = p.document_id")),
+                sorted(backend.query(root, "SELECT path, problem FROM failures")))
 
     assert content(a) == content(b)
 
 
-def test_labels_survive_a_rebuild_and_apply_to_every_member(tmp_path):
+def test_labels_survive_a_rebuild_and_apply_to_every_member(tmp_path, backend):
     root = make_folder(tmp_path / "lib")
     (root / "a2.txt").write_text(agreement(3), encoding="utf-8")  # same payment wording as a.txt
-    build_library(root)
-    with open_library(root, refresh=False) as lib:
+    backend.build(root)
+    with backend.open(root) as lib:
         vid = lib.variant_of("a.txt", "2.1")
         assert vid is not None and vid == lib.variant_of("a2.txt", "2.1")
         assert lib.label_variant(vid, "house wording") == 1  # one distinct wording, two documents
@@ -216,8 +210,8 @@ def test_labels_survive_a_rebuild_and_apply_to_every_member(tmp_path):
         with pytest.raises(CounterdraftError):
             lib.label_variant(10**9, "house wording")
     (root / "a3.txt").write_text(agreement(4), encoding="utf-8")
-    build_library(root)  # the payment type is re-clustered with a new member
-    with open_library(root, refresh=False) as lib:
+    backend.build(root)  # the payment type is re-clustered with a new member
+    with backend.open(root) as lib:
         vid = lib.variant_of("a3.txt", "2.1")
         info = [v for v in lib.variants(bucket="payment") if v.id == vid]
         assert [(v.position, v.documents) for v in info] == [("house wording", 3)]
@@ -263,10 +257,10 @@ def test_bad_arguments(tmp_path):
         open_library(tmp_path, db_path=tmp_path / "bad.sqlite", refresh=False)
 
 
-def test_empty_folder_builds_an_empty_index(tmp_path):
-    report = build_library(tmp_path)
+def test_empty_folder_builds_an_empty_index(tmp_path, backend):
+    report = backend.build(tmp_path)
     assert report.documents == 0 and report.files == 0
-    with open_library(tmp_path, refresh=False) as lib:
+    with backend.open(tmp_path) as lib:
         assert lib.total == 0 and lib.bucket("payment") is None and lib.vocabulary is None
 
 

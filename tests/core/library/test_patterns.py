@@ -51,11 +51,9 @@ HOUSE = {"payment-days": "30-days", "liability-cap": "100-per-cent", "confidenti
 
 
 @pytest.fixture(scope="module")
-def groups(demo_set):
-    from core.library.index import open_library
-
+def groups(demo_set, backend):
     prec = read_document(str(DEMO / "precedent.docx"))
-    with open_library(demo_set, refresh=False) as lib:
+    with backend.open(demo_set) as lib:
         calls = []
         out = negotiation_patterns(lib, prec, progress=lambda d, t: calls.append((d, t)))
     assert calls[-1] == (12, 12)

@@ -14,14 +14,12 @@ Outside references:
 from __future__ import annotations
 
 import re
-import shutil
 from difflib import SequenceMatcher
 
 import pytest
 
 from core.library.commands import review_options
 from core.library.frequency import apply_frequency, provision_slot, review_types
-from core.library.index import build_library, open_library
 from core.library.slots import (
     DRAFT_WORDING,
     OTHER_WORDING,
@@ -36,10 +34,10 @@ from .test_index import agreement
 
 
 @pytest.fixture(scope="module")
-def reviewed(demo_set):
+def reviewed(demo_set, backend):
     draft = read_document(str(DEMO / "draft.docx"))
     precedent = read_document(str(DEMO / "precedent.docx"))
-    lib = open_library(demo_set, refresh=False)
+    lib = backend.open(demo_set)
     review = apply_frequency(run_review(draft, precedent, **review_options(lib)), lib)
     yield lib, review, review_types(review, lib)
     lib.close()
@@ -164,16 +162,15 @@ def test_the_chart_agrees_with_every_frequency_of_the_review(reviewed):
         assert slot.present == chart.present and int(slot.own.sum()) == chart.variants[0].count
 
 
-def test_positions_of_the_bars(tmp_path, scenario, demo_set):
-    folder = tmp_path / "set"
-    shutil.copytree(demo_set, folder)  # with its index: labelling writes to it
+def test_positions_of_the_bars(tmp_path, scenario, demo_set, backend):
+    folder = backend.copy(demo_set, tmp_path / "set")  # with its index: labelling writes to it
     draft = read_document(str(DEMO / "draft.docx"))
     precedent = read_document(str(DEMO / "precedent.docx"))
     dep = next(d for d in scenario["departures"] if d["id"] == "d1")
-    with open_library(folder, refresh=False) as lib:
+    with backend.open(folder) as lib:
         lib.label_variant(lib.variant_of("04-pellbrook-analytical.docx", "9.2"), "refuse")  # 60 days
         lib.label_variant(lib.variant_of("01-quenby-astrel-diagnostics.docx", "9.2"), "house wording")  # 30 days
-    with open_library(folder, refresh=False) as lib:
+    with backend.open(folder) as lib:
         review = apply_frequency(run_review(draft, precedent, **review_options(lib)), lib)
         v = find_departure(review, dep)
         chart = slot_variants(lib, review, v)
@@ -183,7 +180,7 @@ def test_positions_of_the_bars(tmp_path, scenario, demo_set):
 
 
 @pytest.fixture(scope="module")
-def periods_library(tmp_path_factory):
+def periods_library(tmp_path_factory, backend):
     """Seven agreements whose payment periods the test chose: 30 (twice), 60, 45, 75, 90, 120."""
     root = tmp_path_factory.mktemp("periods")
     folder = root / "set"
@@ -192,9 +189,9 @@ def periods_library(tmp_path_factory):
         (folder / f"{name}.txt").write_text(agreement(1, days=days), encoding="utf-8")
     (root / "draft.txt").write_text(agreement(1, days=60), encoding="utf-8")
     (root / "precedent.txt").write_text(agreement(1, days=30), encoding="utf-8")
-    report = build_library(folder, vocabulary=False)
+    report = backend.build(folder, vocabulary=False)
     assert report.documents == 7 and not report.failures
-    lib = open_library(folder, refresh=False)
+    lib = backend.open(folder)
     draft, precedent = read_document(str(root / "draft.txt")), read_document(str(root / "precedent.txt"))
     review = apply_frequency(run_review(draft, precedent, **review_options(lib)), lib)
     yield lib, review

@@ -89,10 +89,10 @@ def test_numpy_similarity_equals_gensims(lee_vectors):
     np.testing.assert_array_equal(again.vectors, ours.vectors)
 
 
-def test_reading_the_model_does_not_import_gensim(demo_set):
+def test_reading_the_model_does_not_import_gensim(demo_set, backend):
     code = ("import sys\n"
             "from core.library.index import open_library\n"
-            f"lib = open_library({str(demo_set)!r}, refresh=False)\n"
+            f"lib = open_library({str(demo_set)!r}, store={backend.store(demo_set)!r}, refresh=False)\n"
             "assert lib.vocabulary.similarity('Customer', 'Supplier') is not None\n"
             "assert 'gensim' not in sys.modules and 'sklearn' not in sys.modules, sorted(sys.modules)\n")
     subprocess.run([sys.executable, "-c", code], check=True, cwd=ROOT)
