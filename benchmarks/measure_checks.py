@@ -21,6 +21,15 @@ at least ``--min-terms`` terms (default :data:`MIN_TERMS`).
    not, and the alarms the plant adds besides its own.
 
 Prints one line per kind and the totals.
+
+Figures when the checks were written (licensedcode-data 32.1.0): 753 texts measured, 506
+without any alarm; 241 undefined-term, 156 unused-definition and 24 dangling-reference
+alarms.  On the 40 texts ``--keys`` of every 19th text from the sixth (a careful reading
+of each alarm): 23 alarms in 14 texts, of which 19 true (terms the text defines and never
+uses, capitalised terms it never defines), 3 borderline ("the Public Domain", "the
+Individual", "the Date": capitalised common words without a definition) and 1 false ("a
+Data Processor", a role the text takes from another instrument).  Planted problems in 60
+texts: 288 of 301 found.
 """
 
 from __future__ import annotations

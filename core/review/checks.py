@@ -306,6 +306,22 @@ _OTHER_INSTRUMENT_TERM_RE = re.compile(
 _NOT_PROSE = frozenset({"title", "signature"})
 
 
+_INDEX_CACHE: dict[int, tuple[Document, dict[str, Provision]]] = {}
+#: Documents whose provision index is kept (a review has two).
+_INDEX_CACHE_SIZE = 4
+
+
+def _provision(doc: Document, pid: str | None) -> Provision | None:
+    """The provision *pid* of *doc*, or None; through an index built once per document
+    (``Document.provision`` scans the provisions, and the checks ask once per term)."""
+    hit = _INDEX_CACHE.get(id(doc))
+    if hit is None or hit[0] is not doc:
+        if len(_INDEX_CACHE) >= _INDEX_CACHE_SIZE:
+            _INDEX_CACHE.pop(next(iter(_INDEX_CACHE)))
+        hit = _INDEX_CACHE[id(doc)] = (doc, {p.id: p for p in doc.provisions})
+    return hit[1].get(pid) if pid is not None else None
+
+
 def _singulars(word: str) -> set[str]:
     """*word* (lower case) and the singular it may be the plural of."""
     out = {word}
@@ -397,6 +413,29 @@ def _form_regex(form: str) -> str:
     """A regex of *form*: any run of white space between words, any dash for a hyphen."""
     words = [("[" + _DASHES + "]").join(re.escape(p) for p in w.split("-")) for w in form.split(" ")]
     return r"\s+".join(words)
+
+
+def _fold_text(text: str) -> str:
+    """*text* folded as :func:`_fold` folds a name, character for character (so offsets
+    stay): lower case, any dash a hyphen, any white space a space."""
+    return "".join("-" if ch in _DASHES else " " if ch.isspace() else (low if len(low := ch.lower()) == 1 else ch)
+                   for ch in text)
+
+
+def _folded_finder(forms: Iterable[str]):  # noqa: ANN202 - a text -> [(start, form)] function
+    """A function giving (start, folded form) of the uses of *forms* (folded names, see
+    :func:`_fold`) in a text, whole words, possessive endings allowed: a regular expression
+    for an agreement's names, a character-trie walk (:func:`core.terms.walk_forms`) for the
+    thousands of a hostile document, whose pattern would take long to compile."""
+    from ..terms import REGEX_FORMS_MAX, char_trie, walk_forms
+
+    forms = [f for f in forms if f]
+    if len(forms) > REGEX_FORMS_MAX:
+        trie = char_trie(forms)
+        return lambda text: [(a, f) for a, _b, f, _p in walk_forms(_fold_text(text), trie, word_start=True)]
+    pattern = _names_pattern(forms)
+    assert pattern is not None
+    return lambda text: [(m.start(), _fold(_strip_possessive(m.group(0)))) for m in pattern.finditer(text)]
 
 
 def _names_pattern(names: Iterable[str]) -> re.Pattern[str] | None:
@@ -680,9 +719,8 @@ def _definition_area(doc: Document, t: DefinedTerm) -> tuple[str, tuple[int, int
     """The defining provision's id and the span of its text that defines *t*: None for the
     whole provision (a definition provision of its own: ``"X" means ...``), else the
     sentence or table row the term finder gave."""
-    try:
-        prov = doc.provision(t.provision)
-    except KeyError:
+    prov = _provision(doc, t.provision)
+    if prov is None:
         return t.provision, None
     if (prov.kind == "definition" and prov.term == t.term) or t.span is None or t.span == (0, 0):
         return prov.id, None
@@ -712,22 +750,21 @@ def unused_definitions(doc: Document, *, document: str = "draft") -> tuple[Check
             n = _use_name(n)
             for f in [*term_forms(" ".join(n.split())), *_verb_forms(n)]:
                 lookup.setdefault(_fold(f), set()).add(t.term)
-    pattern = _names_pattern(lookup)
-    assert pattern is not None
+    find = _folded_finder(lookup)
     areas = {t.term: _definition_area(doc, t) for t in doc.terms}
     defining_seen: set[str] = set()
     used: set[str] = set()
     for prov, part, text in _Texts.of(doc).parts:
         first_paragraph = text.find("\n") if "\n" in text else len(text)
-        for m in pattern.finditer(text):
-            for term in lookup.get(_fold(_strip_possessive(m.group(0))), ()):
+        for start, form in find(text):
+            for term in lookup.get(form, ()):
                 if term in used:
                     continue
                 pid, span = areas[term]
                 if pid == prov.id and part == "text":
-                    if span is None and m.start() < first_paragraph:
+                    if span is None and start < first_paragraph:
                         continue  # inside the definition itself
-                    if span is not None and span[0] <= m.start() < span[1] and term not in defining_seen:
+                    if span is not None and span[0] <= start < span[1] and term not in defining_seen:
                         defining_seen.add(term)  # the defining mention
                         continue
                 used.add(term)
@@ -738,9 +775,8 @@ def unused_definitions(doc: Document, *, document: str = "draft") -> tuple[Check
                 or _alternative_word(t)):
             continue
         pid, span = areas[t.term]
-        try:
-            prov = doc.provision(pid)
-        except KeyError:
+        prov = _provision(doc, pid)
+        if prov is None:
             continue
         at = _name_span(prov.text, t.term, span)
         out.append(Check(
@@ -778,10 +814,13 @@ def _written_names(t: DefinedTerm) -> list[str]:
     return out
 
 
+_ALTERNATIVE_RE = re.compile(r"[\"”'’]\s*\((?:or|OR)\s+[\"“'‘](?P<alt>[^\"”'’)]{1,80})")
+
+
 def _alternative_word(t: DefinedTerm) -> bool:
     """Is *t* only a word offered as an alternative to a quoted one ("select the "DECLINE"
     (or "EXIT") button"), which a reader does not take for a definition?"""
-    return re.search(r"[\"”'’]\s*\((?:or|OR)\s+[\"“'‘]" + re.escape(t.term), t.definition or "") is not None
+    return any(m.group("alt").strip() == t.term for m in _ALTERNATIVE_RE.finditer(t.definition or ""))
 
 
 def _other_instrument_term(t: DefinedTerm) -> bool:
@@ -799,10 +838,10 @@ def _abbreviation(t: DefinedTerm, doc: Document) -> bool:
     letters = term[:-1] if term.endswith("s") else term  # "LLMs" for "Large Language Models"
     if not (2 <= len(letters) <= ABBREVIATION_MAX_LETTERS and letters.isupper() and letters.isalpha()):
         return False
-    try:
-        text = doc.provision(t.provision).text
-    except KeyError:
+    prov = _provision(doc, t.provision)
+    if prov is None:
         return False
+    text = prov.text
     a = (t.span or (0, len(text)))[0]
     at = text.find(term, a)
     if at < 0:
@@ -822,10 +861,15 @@ def _verb_forms(name: str) -> list[str]:
 
 
 def _name_span(text: str, name: str, within: tuple[int, int] | None) -> tuple[int, int] | None:
-    """Where *name* is written in *text* (inside *within* when given)."""
+    """Where *name* is written in *text* (inside *within* when given), as a whole word."""
     a, b = within or (0, len(text))
-    m = re.compile(r"(?<!\w)" + re.escape(name).replace(r"\ ", r"\s+") + r"(?!\w)").search(text, a, b)
-    return (m.start(), m.end()) if m else None
+    k = text.find(name, a, b)
+    while k >= 0:
+        end = k + len(name)
+        if (k == 0 or not text[k - 1].isalnum()) and (end >= len(text) or not text[end].isalnum()):
+            return k, end
+        k = text.find(name, k + 1, b)
+    return None
 
 
 # --------------------------------------------------------------------------------------
@@ -1075,7 +1119,8 @@ def definitions_changed(review: Review) -> tuple[Check, ...]:
         if not devs:
             continue
         users = _provisions_using(draft, t, exclude=d_pid)
-        prov = draft.provision(d_pid)
+        prov = _provision(draft, d_pid)
+        assert prov is not None
         a, b = d_span or (0, len(prov.text))
         ranks = ", ".join(str(v.rank) for v in sorted(devs, key=lambda v: v.rank))
         n = len(users)
@@ -1095,17 +1140,17 @@ def _sentence_area(doc: Document, pid: str, span: tuple[int, int] | None) -> tup
     sentence stops at a line break, which a paragraph wrapped in a text file has anywhere)."""
     if span is None:
         return pid, None
-    try:
-        text = doc.provision(pid).text
-    except KeyError:
+    prov = _provision(doc, pid)
+    if prov is None:
         return pid, span
+    text = prov.text
     m = _SENTENCE_END_RE.search(text, max(span[1] - 1, span[0]))
     return pid, (span[0], m.end() if m else len(text))
 
 
 def _in_parties(doc: Document, t: DefinedTerm) -> bool:
     """Is *t* a party's label defined in the parties block ("Acme Ltd (the "Supplier")")?"""
-    prov = next((p for p in doc.provisions if p.id == t.provision), None)
+    prov = _provision(doc, t.provision)
     return prov is not None and prov.kind == "parties"
 
 

@@ -20,7 +20,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from desktop.palette import CAUTION_BAND, DELETED, INK, INSERTED, MUTED_INK, ROW, TALLY, TERM
+from desktop.palette import CAUTION_BAND, CHECKS, DELETED, INK, INSERTED, MUTED_INK, ROW, TALLY, TERM
 
 #: WCAG 2.1 SC 1.4.3: minimum contrast for normal-size text.
 WCAG_AA_TEXT = 4.5
@@ -221,3 +221,8 @@ def test_the_html_issues_list_washes_changed_words_as_the_window_does():
     assert (palette["was"], palette["now"]) == (DELETED.background, INSERTED.background)
     for wash in ("was", "now", "head", "group"):
         assert contrast(palette["ink"], palette[wash]) >= WCAG_AA_TEXT
+
+
+def test_the_checks_headings_meet_wcag_aaa():
+    # WCAG 2.1 SC 1.4.6 (contrast, enhanced): 7:1 for text.
+    assert contrast(CHECKS.heading_ink, CHECKS.heading_ground) >= 7.0

@@ -189,3 +189,17 @@ def test_checks_between_two_versions_report_real_changes_only() -> None:
         if c.kind == "definition-changed":
             d_def = next(t.definition for t in review.draft.terms if t.term == c.term)
             assert " ".join(d_def.split()) != " ".join(p_terms[c.term].split())
+
+
+@pytest.mark.parametrize("key", ("apache-2.0", "mpl-2.0", "eclipse-sua-2005", "sun-sissl-1.0"))
+def test_many_names_are_found_as_a_few_are(key: str, monkeypatch) -> None:
+    """Uses of the defined terms are found by a regular expression for an agreement's few
+    names and by a character trie for thousands (core.terms.REGEX_FORMS_MAX): both give
+    the same unused definitions (licensedcode-data: <key>.LICENSE)."""
+    import core.terms
+    from core.review.checks import unused_definitions
+
+    document = doc(licence_text(key), f"{key}.txt")
+    with_pattern = unused_definitions(document)
+    monkeypatch.setattr(core.terms, "REGEX_FORMS_MAX", 0)
+    assert unused_definitions(document) == with_pattern
