@@ -223,10 +223,10 @@ def _tfidf(seqs: Sequence[Sequence[str]]) -> list[Row]:
     """Rows: l2-normalised TF-IDF vectors (1 + log tf; idf = ln((1+N)/(1+df)) + 1) as
     {word id: weight}, word ids in order of first appearance."""
     vocab: dict[str, int] = {}
-    counted: list[Counter[int]] = []
+    counted: list[dict[int, int]] = []
     df: Counter[int] = Counter()
     for seq in seqs:
-        counts = Counter(vocab.setdefault(w, len(vocab)) for w in seq)
+        counts = {vocab.setdefault(w, len(vocab)): c for w, c in Counter(seq).items()}
         df.update(counts.keys())
         counted.append(counts)
     n = len(seqs)
@@ -492,6 +492,8 @@ def pair_similarity(d: Features, p: Features, cosine: float, heading_cosine: flo
 
 def _joined(feats: Sequence[Features]) -> Features:
     f0 = feats[0]
+    if all(isinstance(f.words, str) for f in feats):  # encoded (see _encoded)
+        return Features("".join(f.words for f in feats), f0.heading, f0.kind, f0.term, f0.parent)  # type: ignore[arg-type]
     return Features(tuple(w for f in feats for w in f.words), f0.heading, f0.kind, f0.term, f0.parent)
 
 
@@ -538,11 +540,33 @@ def _solve(n_d: int, n_p: int, edges: dict[tuple[int, int], float]) -> dict[int,
     return match
 
 
+def _encoded(draft: Sequence[Features], precedent: Sequence[Features]
+             ) -> tuple[list[Features], list[Features]]:
+    """The features with each distinct word (of a text or a heading) one character of a
+    string instead of a tuple of words.  Everything here depends only on which words are
+    equal, so the results are the same; rapidfuzz compares strings several times faster
+    than tuples of strings (it hashes every element of a tuple on every call)."""
+    codes: dict[str, str] = {}
+
+    def enc(words: Sequence[str]) -> str:
+        for w in dict.fromkeys(words):
+            if w not in codes:
+                n = len(codes)
+                codes[w] = chr(n if n < 0xD800 else n + 0x800)  # no surrogate code points
+        return "".join(map(codes.__getitem__, words))
+
+    def each(feats: Sequence[Features]) -> list[Features]:
+        return [Features(enc(f.words), enc(f.heading), f.kind, f.term, f.parent) for f in feats]  # type: ignore[arg-type]
+
+    return each(draft), each(precedent)
+
+
 def align(draft: Sequence[Features], precedent: Sequence[Features]) -> Alignment:
     """Pair the draft's provisions with the precedent's (see the module's notes)."""
     n_d, n_p = len(draft), len(precedent)
     if n_d == 0 or n_p == 0:
         return Alignment((), tuple(range(n_d)), tuple(range(n_p)), {}, {})
+    draft, precedent = _encoded(draft, precedent)
     content = _tfidf([f.words for f in draft] + [f.words for f in precedent])
     heads = _tfidf([f.heading for f in draft] + [f.heading for f in precedent])
     cosines = _Cosines(content, heads, n_d)
