@@ -106,6 +106,9 @@ def main(argv: list[str] | None = None) -> int:
             # The first row as the table shows it (sorted), not the model's first row.
             w.terms.table.setCurrentIndex(w.terms.proxy.index(0, 0))
         shot("screenshot-terms.png")
+        # The drafting checks of the draft (the demo's: a definition whose meaning changed).
+        w.left_tabs.setCurrentWidget(w.checks)
+        shot("screenshot-checks.png")
         w.left_tabs.setCurrentWidget(w.deviations)
         ids = w.deviations.visible_ids()
         showcase = next((d.id for d in sorted(w.ws.review.deviations, key=lambda d: d.rank)
