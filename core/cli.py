@@ -31,7 +31,7 @@ def _write_json(obj: object, out: str) -> None:
 
 def _cmd_inspect(args: argparse.Namespace) -> int:
     from .outline import format_outline
-    from .reader import read_document
+    from .readers import read_document
     from .serialize import document_to_dict
 
 
@@ -50,7 +50,7 @@ def _cmd_inspect(args: argparse.Namespace) -> int:
 
 
 def _cmd_review(args: argparse.Namespace) -> int:
-    from .reader import read_document
+    from .readers import read_document
     from .review import review_to_dict
     from .review.report import format_review
 
@@ -218,7 +218,7 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     """The main job on the bundled demo: review, save, record example decisions, export."""
     from .decisions import decide, new_review_file, save_review_file
     from .export import default_author, write_counter_draft, write_issues_list, write_redline
-    from .reader import read_document
+    from .readers import read_document
     from .console import terminal_width
     from .review.report import format_review
 

@@ -386,7 +386,7 @@ def _default_runner(draft: Document, precedent: Document, *, overrides: Sequence
 
 
 def _read_documents(draft_path: str, precedent_path: str) -> tuple[Document, Document]:
-    from .reader import read_document
+    from .readers import read_document
 
     return read_document(draft_path), read_document(precedent_path)
 

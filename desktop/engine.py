@@ -19,6 +19,7 @@ from pathlib import Path
 from typing import Any
 
 from core.errors import CounterdraftError
+from core.readers import formats_summary
 from core.model import Deviation, Edit, Pair, Review, TermMapping
 
 from .state import Inputs
@@ -60,7 +61,7 @@ class Outcome:
 
 
 def unsupported_file(path: str) -> CounterdraftError:
-    return CounterdraftError("not an agreement Counterdraft can read (use .docx, .txt or .md)", path=path)
+    return CounterdraftError(f"not an agreement Counterdraft can read (use {formats_summary(last='or')})", path=path)
 
 
 # ------------------------------------------------------------------------------------------
@@ -138,7 +139,7 @@ def load_and_review(
 ) -> Outcome:
     """Read both documents, index the precedent set if any, review, add frequencies."""
     from core.decisions import new_review_file
-    from core.reader import read_document
+    from core.readers import read_document
 
     report(0, None, f"Reading {Path(inputs.draft).name}")
     draft = read_document(inputs.draft)

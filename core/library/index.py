@@ -1,6 +1,7 @@
 """The precedent set's index: a SQLite database of the firm's past agreements.
 
-``build_library(root)`` reads every .docx, .txt and .md file under *root* (recursively; hidden
+``build_library(root)`` reads every file of a format the readers registry admits to a precedent
+set (``core.readers.PRECEDENT_SET_SUFFIXES``: .docx, .txt, .md) under *root* (recursively; hidden
 files and folders, Office lock files ``~$...`` and the index's own folder are skipped) into
 ``root/.counterdraft/library.sqlite`` (or a path of your choice):
 
@@ -87,6 +88,7 @@ import numpy as np
 
 from ..errors import CounterdraftError
 from ..fileio import atomic_write_bytes, exclusive, file_sha256, remove_orphaned_parts
+from ..readers import PRECEDENT_SET_SUFFIXES
 from .bucketcache import BucketArrays, assemble, compact, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
 from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
@@ -115,7 +117,8 @@ __all__ = [
     "wording_shingles",
 ]
 
-SUFFIXES: tuple[str, ...] = (".docx", ".txt", ".md")
+#: The formats a precedent set holds (the readers registry decides).
+SUFFIXES: tuple[str, ...] = PRECEDENT_SET_SUFFIXES
 DB_DIRNAME = ".counterdraft"
 DB_FILENAME = "library.sqlite"
 CACHE_FILENAME = "variants.npz"  # the frequency cache of earlier versions (one file), removed
@@ -555,7 +558,7 @@ def _extract(path: str) -> _Extract | _Problem:
         digest = file_sha256(path)
         if os.path.getsize(path) == 0:
             return _Problem(digest, "empty file")
-        from ..reader import read_document
+        from ..readers import read_document
 
         doc = read_document(path)
         typings: tuple[Typing, ...] = classify_provisions(doc)
