@@ -85,6 +85,11 @@ FORMATS: tuple[Format, ...] = (
     Format("docx", "Word document", (".docx",), "core.readers.docx", "file",
            "nothing Counterdraft uses: existing tracked changes are read as accepted and "
            "noted, comments are left in place"),
+    Format("pdf", "PDF (with a text layer)", (".pdf",), "core.readers.pdf", "inferred",
+           "existing tracked changes and comments (a PDF has none), styles, and any text "
+           "that is only an image (no OCR); paragraphs, headings and numbering are "
+           "recovered from the page; the counter-draft is a new .docx",
+           in_precedent_set=False),
     Format("text", "plain text", (".txt",), "core.readers.text", "inferred",
            "all formatting: paragraphs and headings are recovered from line breaks and "
            "capitals; the counter-draft is a new .docx"),
@@ -108,7 +113,6 @@ _REFUSED_SUFFIXES = {
     ".rtf": "an RTF file is not supported; save it as .docx",
     ".ott": "an OpenDocument template (.ott) is not an agreement; save it as .odt",
     ".fodt": "a flat OpenDocument file (.fodt) is not supported; save it as .odt",
-    ".pdf": "a PDF is not supported yet; save it as .docx",
     ".odt": "an OpenDocument .odt file is not supported yet; save it as .docx",
 }
 
