@@ -85,6 +85,9 @@ FORMATS: tuple[Format, ...] = (
     Format("docx", "Word document", (".docx",), "core.readers.docx", "file",
            "nothing Counterdraft uses: existing tracked changes are read as accepted and "
            "noted, comments are left in place"),
+    Format("odt", "OpenDocument text", (".odt",), "core.readers.odt", "file",
+           "its existing tracked changes are read as accepted (with a note) and its comments "
+           "are not shown; the counter-draft is a new .docx"),
     Format("pdf", "PDF (with a text layer)", (".pdf",), "core.readers.pdf", "inferred",
            "existing tracked changes and comments (a PDF has none), styles, and any text "
            "that is only an image (no OCR); paragraphs, headings and numbering are "
@@ -113,7 +116,6 @@ _REFUSED_SUFFIXES = {
     ".rtf": "an RTF file is not supported; save it as .docx",
     ".ott": "an OpenDocument template (.ott) is not an agreement; save it as .odt",
     ".fodt": "a flat OpenDocument file (.fodt) is not supported; save it as .odt",
-    ".odt": "an OpenDocument .odt file is not supported yet; save it as .docx",
 }
 
 #: ISO 32000-1 §7.5.2 puts the header on the first line; readers accept it within the first
