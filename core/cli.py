@@ -177,9 +177,13 @@ def _cmd_export(args: argparse.Namespace) -> int:
     if args.counter_draft:
         notes = write_counter_draft(record.review, record.decisions, args.counter_draft,
                                     draft_path=record.draft.path, author=author, inputs=inputs)
+        from .readers import identify
+
+        fmt = identify(record.draft.path)
+        recovered = "" if fmt.name == "docx" else f"; a new .docx from the text of {fmt.noun}"
         written(f"counter-draft written to {args.counter_draft} "
                 f"({sum(d.action != 'accept' for d in record.decisions)} changes, "
-                f"{sum(bool(d.note) for d in record.decisions)} notes)")
+                f"{sum(bool(d.note) for d in record.decisions)} notes{recovered})")
         for note in notes:
             print(f"counterdraft: note: {note}", file=sys.stderr)
     if args.redline:

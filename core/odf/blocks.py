@@ -203,10 +203,12 @@ class _Walker:
                     if numbered and first:
                         label = counter.advance(level, start=start) or None
                         bullet = counter.style(level).bullet is not None
+                        if bullet:  # as the .docx reader: a bullet item has no label
+                            label = None
+                    listed = label is not None or bullet
                     self.paragraph(child, in_table=in_table, label=label,
-                                   list_level=level - 1 if label is not None else None,
-                                   list_id=counter.list_id if label is not None else None,
-                                   bullet=bullet)
+                                   list_level=level - 1 if listed else None,
+                                   list_id=counter.list_id if listed else None, bullet=bullet)
                     first = False
                 elif child.tag == _LIST:
                     self.list(child, counter, level + 1, in_table=in_table, depth=depth + 1)

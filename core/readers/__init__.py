@@ -69,6 +69,7 @@ class Format:
 
     name: str
     title: str  # shown in file dialogs and messages
+    noun: str  # in a sentence: "a PDF"
     suffixes: tuple[str, ...]  # lower case, with the dot; the first is the usual one
     module: str  # the reader module, imported on first use
     #: "file": paragraphs, numbering and headings come from the file's own markup (the
@@ -82,21 +83,22 @@ class Format:
 
 
 FORMATS: tuple[Format, ...] = (
-    Format("docx", "Word document", (".docx",), "core.readers.docx", "file",
+    Format("docx", "Word document", "a Word document", (".docx",), "core.readers.docx", "file",
            "nothing Counterdraft uses: existing tracked changes are read as accepted and "
            "noted, comments are left in place"),
-    Format("odt", "OpenDocument text", (".odt",), "core.readers.odt", "file",
+    Format("odt", "OpenDocument text", "an OpenDocument text", (".odt",), "core.readers.odt", "file",
            "its existing tracked changes are read as accepted (with a note) and its comments "
            "are not shown; the counter-draft is a new .docx"),
-    Format("pdf", "PDF (with a text layer)", (".pdf",), "core.readers.pdf", "inferred",
+    Format("pdf", "PDF (with a text layer)", "a PDF", (".pdf",), "core.readers.pdf", "inferred",
            "existing tracked changes and comments (a PDF has none), styles, and any text "
            "that is only an image (no OCR); paragraphs, headings and numbering are "
            "recovered from the page; the counter-draft is a new .docx",
            in_precedent_set=False),
-    Format("text", "plain text", (".txt",), "core.readers.text", "inferred",
+    Format("text", "plain text", "a plain-text file", (".txt",), "core.readers.text", "inferred",
            "all formatting: paragraphs and headings are recovered from line breaks and "
            "capitals; the counter-draft is a new .docx"),
-    Format("markdown", "Markdown", (".md", ".markdown"), "core.readers.text", "inferred",
+    Format("markdown", "Markdown", "a Markdown file", (".md", ".markdown"), "core.readers.text",
+           "inferred",
            "formatting beyond Markdown's headings, bold, lists and tables; the "
            "counter-draft is a new .docx"),
 )
@@ -260,7 +262,7 @@ def read_blocks(path: str | os.PathLike[str], *, structure: Any = None
     suffix = Path(path).suffix.lower()
     if suffix not in fmt.suffixes:
         named = f"ends in {Path(path).suffix}" if suffix else "has no suffix"
-        warnings = (f"the file is a {fmt.title} although its name {named}; it was read as one",
+        warnings = (f"the file is {fmt.noun} although its name {named}; it was read as one",
                     *warnings)
     if not any(b.text.strip() for b in blocks):
         raise CounterdraftError("the document has no text", path=str(path))

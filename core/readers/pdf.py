@@ -50,6 +50,9 @@ MAX_PDF_PAGES = 2000
 #: the file has no space character there (a space is 0.25-0.33 em in common text fonts;
 #: letter spacing inside a word stays below 0.1 em; common practice, no source).
 SPACE_GAP = 0.18
+#: ... and in a line that has space characters, a gap only counts as a space when it is
+#: wider than this share (kerning and justification leave narrower gaps inside words).
+SPACE_GAP_EXPLICIT = 0.45
 #: A gap after a line's first word wider than this many spaces is a tab (a number label set
 #: to a tab stop: "1<tab>Definitions"); justified text stretches spaces to about twice.
 TAB_GAP_SPACES = 3.0
@@ -85,6 +88,10 @@ def _line_from_chars(chars: Sequence[dict[str, Any]], *, page: int) -> Line | No
     widths: list[float] = []
     spaces: list[float] = []
     last_x1: float | None = None
+    # A file that writes its word spaces as characters needs no guessing from gaps, except
+    # where a gap is as wide as a word space would be (a space left out in a table cell).
+    explicit = any(_char_text(ch).isspace() for ch in chars)
+    gap_share = SPACE_GAP_EXPLICIT if explicit else SPACE_GAP
     for ch in chars:
         text = _char_text(ch)
         if not text:
@@ -99,7 +106,7 @@ def _line_from_chars(chars: Sequence[dict[str, Any]], *, page: int) -> Line | No
         size = float(ch.get("size") or 0.0)
         if items and items[-1][0] == " ":
             items[-1] = (" ", items[-1][1], items[-1][2], x0)
-        elif last_x1 is not None and x0 - last_x1 > SPACE_GAP * max(size, 1.0):
+        elif last_x1 is not None and x0 - last_x1 > gap_share * max(size, 1.0):
             items.append((" ", bold, last_x1, x0))
         items.extend((c, bold, x0, x1) for c in text)
         if any(c.isalpha() for c in text):
