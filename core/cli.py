@@ -58,7 +58,12 @@ def _cmd_review(args: argparse.Namespace) -> int:
         refuse_overwrite_of_inputs(args.json, args.draft, args.against)
         if args.save and Path(args.save).resolve() == Path(args.json).resolve():
             raise CounterdraftError("--json and --save name the same file", path=args.save)
-    draft = read_document(args.draft)
+    from .layout.store import structure_for
+
+    structure, notes = structure_for(args.draft, args.library)
+    for note in notes:
+        print(f"{args.draft}: note: {note}", file=sys.stderr)
+    draft = read_document(args.draft, structure=structure)
     precedent = read_document(args.against)
     for path, doc in ((args.draft, draft), (args.against, precedent)):
         for w in doc.warnings:

@@ -385,10 +385,15 @@ def _default_runner(draft: Document, precedent: Document, *, overrides: Sequence
     return run_review(draft, precedent, overrides=overrides)
 
 
-def _read_documents(draft_path: str, precedent_path: str) -> tuple[Document, Document]:
+def _read_documents(draft_path: str, precedent_path: str, *, library: str | None = None
+                    ) -> tuple[Document, Document]:
+    """Both documents; a PDF draft read with the precedent set's line model when the review
+    used a set (:func:`core.layout.store.structure_for`)."""
+    from .layout.store import structure_for
     from .readers import read_document
 
-    return read_document(draft_path), read_document(precedent_path)
+    structure, _notes = structure_for(draft_path, library)
+    return read_document(draft_path, structure=structure), read_document(precedent_path)
 
 
 def new_review_file(draft_path: str | os.PathLike[str], precedent_path: str | os.PathLike[str], *,
@@ -402,7 +407,7 @@ def new_review_file(draft_path: str | os.PathLike[str], precedent_path: str | os
         if not Path(p).is_file():
             raise CounterdraftError("file not found", path=p)
     if review is None:
-        draft, precedent = _read_documents(dpath, ppath)
+        draft, precedent = _read_documents(dpath, ppath, library=str(library) if library else None)
         review = (runner or _default_runner)(draft, precedent, overrides=tuple(overrides))
     return ReviewFile(draft=DocumentRef(dpath, file_sha256(dpath)),
                       precedent=DocumentRef(ppath, file_sha256(ppath)),
@@ -588,7 +593,7 @@ def load_review_file(path: str | os.PathLike[str], *, runner: Runner | None = No
         if hashes[role] != refs[role].get("sha256"):
             notes.append(f"the {role} {Path(p).name} changed since the review was saved; "
                          "the review was run again")
-    draft, precedent = _read_documents(dpath, ppath)
+    draft, precedent = _read_documents(dpath, ppath, library=read_library_folder(spath))
     review = (runner or _default_runner)(draft, precedent, overrides=overrides)
     kept, remap_notes = remap_decisions(decisions, review)
     notes.extend(remap_notes)

@@ -141,8 +141,16 @@ def load_and_review(
     from core.decisions import new_review_file
     from core.readers import read_document
 
+    structure = None
+    layout_notes: tuple[str, ...] = ()
+    if inputs.library:
+        from core.layout.store import structure_for
+
+        report(0, None, "Reading the precedent set's formatted agreements")
+        structure, layout_notes = structure_for(inputs.draft, inputs.library)
+        check_cancelled(cancelled)
     report(0, None, f"Reading {Path(inputs.draft).name}")
-    draft = read_document(inputs.draft)
+    draft = read_document(inputs.draft, structure=structure)
     check_cancelled(cancelled)
     report(0, None, f"Reading {Path(inputs.precedent).name}")
     precedent = read_document(inputs.precedent)
@@ -155,7 +163,7 @@ def load_and_review(
     review = _runner(library, report, cancelled)(draft, precedent, overrides=overrides)
     record = new_review_file(inputs.draft, inputs.precedent, overrides=tuple(overrides), review=review)
     return Outcome(record=record, library=library, library_total=_library_total(library),
-                   notes=tuple(review.notes) + _library_notes(library))
+                   notes=tuple(review.notes) + layout_notes + _library_notes(library))
 
 
 def _remap(decisions: Sequence[Any], review: Review) -> tuple[tuple[Any, ...], list[str]]:

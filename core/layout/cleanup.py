@@ -49,7 +49,7 @@ _DIGITS_RE = re.compile(r"\d+")
 #: bracketed part at the start of the next line ("(i)", "(1)(C)"): no space between them.
 _REFERENCE_END_RE = re.compile(r"\w\([A-Za-z0-9]{1,4}\)$")
 _REFERENCE_START_RE = re.compile(r"\([A-Za-z0-9]{1,4}\)(?:\W|$)")
-_URL_END_RE = re.compile(r"(?:https?://|www\.)\S*/$")
+_URL_END_RE = re.compile(r"(?:https?://|www\.)\S*/$", re.IGNORECASE)
 _ROMAN_PAGE_RE = re.compile(r"^[\W_]*[ivxlcdm]{1,6}[\W_]*$", re.IGNORECASE)
 _WORD_RE = re.compile(r"[^\W\d_](?:[^\W\d_]|['’-](?=[^\W\d_]))*")
 

@@ -73,7 +73,8 @@ _PREV = (
     "first", "page_break", "gap_prev", "gap_prev_big", "no_gap", "doc_gapped", "prev_fill", "fits_prev", "fits_prev_end",
     *(f"prev_end_{k}" for k in _END_CLASSES), "prev_end_and_or",
     "indent_more_prev", "indent_less_prev", "indent_same_prev", "delta_prev",
-    "prev_bold", "bold_change_prev", "size_change_prev", "prev_short", "prev_label", "prev_table",
+    "prev_bold", "bold_change_prev", "size_change_prev", "prev_short", "prev_long", "prev_label",
+    "prev_table",
     "prev_all_caps",
 )
 _NEXT = (
@@ -89,7 +90,8 @@ _PAIRS = (
     ("prev_short", "starts_upper"), ("page_break", "starts_lower"), ("prev_end_hyphen", "starts_lower"),
     ("doc_gapped", "no_gap"), ("doc_gapped", "gap_prev_big"), ("doc_gapped", "label_any"),
     ("page_break", "label_any"), ("page_break", "fits_prev"), ("page_break", "starts_upper"),
-    ("page_break", "prev_end_period"),
+    ("page_break", "prev_end_period"), ("label_any", "indent_same_prev"),
+    ("label_any", "prev_long"), ("label_paren", "prev_end_word"), ("label_paren", "fits_prev"),
 )
 
 FEATURE_NAMES: tuple[str, ...] = (
@@ -243,6 +245,7 @@ def line_features(lines: Sequence[Line], g: Geometry | None = None) -> np.ndarra
             f["bold_change_prev"] = float(abs(po["bold"] - f["bold"]) > 0.5)
             f["size_change_prev"] = float(abs(prev.size - ln.size) > 0.08 * g.em) if g.fonts else 0.0
             f["prev_short"] = po["short"]
+            f["prev_long"] = po["long_line"]
             f["prev_label"] = po["label_any"]
             f["prev_table"] = po["table"]
             f["prev_all_caps"] = po["all_caps"]

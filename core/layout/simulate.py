@@ -74,6 +74,8 @@ class Style:
     lines_per_page: int
     plain: bool  # plain text: no fonts, columns for x, blank lines for gaps
     bold_headings: bool  # headings in heading styles printed bold (else only larger)
+    #: Number labels followed by a tab to the text (a list), or typed with one space.
+    label_tab: bool = True
 
 
 def draw_styles(rng: random.Random, count: int) -> list[Style]:
@@ -88,7 +90,7 @@ def draw_styles(rng: random.Random, count: int) -> list[Style]:
             step=rng.choice((1.5, 2.5, 3.3)),
             para_gap=rng.choice((0.0, 0.0, 0.5, 1.0)) if not plain else rng.choice((0.0, 1.0, 1.0)),
             justified=rng.random() < 0.5, lines_per_page=rng.randint(38, 56), plain=plain,
-            bold_headings=rng.random() < 0.8,
+            bold_headings=rng.random() < 0.8, label_tab=rng.random() < 0.6,
         ))
     return out
 
@@ -138,7 +140,10 @@ def _block_lines(block: Block, level: int, style: Style) -> Iterator[tuple[float
     bold_all = block.emphasised and (style.bold_headings or block.outline_level is None)
     label, text = _rendered(block)
     base = style.left + max(level - 1, 0) * style.step * style.em if label else style.left
-    tab = max(style.step * style.em, (_width(label, em) + _width(" ", em) * 2) if label else 0.0)
+    if style.label_tab:
+        tab = max(style.step * style.em, (_width(label, em) + _width(" ", em) * 2) if label else 0.0)
+    else:
+        tab = (_width(label, em) + _width(" ", em)) if label else 0.0
     text_x = base + tab if label else base
     if style.indents == "firstline" and not label:
         first_x, rest_x = base + 1.5 * style.em, base
@@ -158,7 +163,7 @@ def _block_lines(block: Block, level: int, style: Style) -> Iterator[tuple[float
             wrapped = _wrap(words, first_room, right - rest_x, em, bold_all)
             for j, ws in enumerate(wrapped):
                 if j == 0:
-                    line = f"{label}\t{' '.join(ws)}"
+                    line = f"{label}{chr(9) if style.label_tab else ' '}{' '.join(ws)}"
                     bold = len(line) if bold_all else 0
                     yield first_x, line, bold, em
                 else:

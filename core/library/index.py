@@ -1451,6 +1451,11 @@ class Library:
         """Agreements in the index (readable .docx/.txt/.md files under the root)."""
         return int(self.conn.execute("SELECT COUNT(*) FROM documents").fetchone()[0])
 
+    def documents(self) -> tuple[tuple[str, str], ...]:
+        """(path relative to the root, SHA-256) of every agreement in the index."""
+        return tuple((str(p), str(h)) for p, h in
+                     self.conn.execute("SELECT path, sha256 FROM documents ORDER BY path"))
+
     @property
     def stale(self) -> bool:
         return _meta(self.conn, "stale") == "1"

@@ -52,7 +52,7 @@ MAX_PDF_PAGES = 2000
 SPACE_GAP = 0.18
 #: ... and in a line that has space characters, a gap only counts as a space when it is
 #: wider than this share (kerning and justification leave narrower gaps inside words).
-SPACE_GAP_EXPLICIT = 0.45
+SPACE_GAP_EXPLICIT = 0.15
 #: A gap after a line's first word wider than this many spaces is a tab (a number label set
 #: to a tab stop: "1<tab>Definitions"); justified text stretches spaces to about twice.
 TAB_GAP_SPACES = 3.0
@@ -174,18 +174,31 @@ def _group_rows(chars: list[dict[str, Any]]) -> list[list[dict[str, Any]]]:
         else:
             rows.append([ch])
             bottoms.append(mid)
-    return [sorted(r, key=lambda c: float(c["x0"])) for r in rows]
+    return [_dedupe(sorted(r, key=lambda c: float(c["x0"]))) for r in rows]
+
+
+def _dedupe(row: list[dict[str, Any]]) -> list[dict[str, Any]]:
+    """A row's characters with a character printed twice on itself (a fake bold, a shadow)
+    kept once: same text and font within DEDUPE_TOLERANCE points."""
+    out: list[dict[str, Any]] = []
+    for ch in row:
+        if any(o["text"] == ch["text"] and o.get("fontname") == ch.get("fontname")
+               and abs(float(o["x0"]) - float(ch["x0"])) <= DEDUPE_TOLERANCE
+               and abs(float(o["top"]) - float(ch["top"])) <= DEDUPE_TOLERANCE
+               for o in out[-3:]):
+            continue
+        out.append(ch)
+    return out
 
 
 def _page_lines(page: Any, index: int) -> tuple[list[Line], int]:
     """(lines of one page in reading order, count of rotated characters left out)."""
-    deduped = page.dedupe_chars(tolerance=DEDUPE_TOLERANCE)
-    chars = [c for c in deduped.chars if _char_text(c)]
+    chars = [c for c in page.chars if _char_text(c)]
     rotated = sum(1 for c in chars if not c.get("upright", True) and _char_text(c).strip())
     chars = [c for c in chars if c.get("upright", True)]
     tables = []
     if any(True for _ in page.rects) or any(True for _ in page.lines):
-        tables = [t for t in deduped.find_tables() if len(t.rows) >= 1]
+        tables = [t for t in page.find_tables() if len(t.rows) >= 1]
     boxes = [tuple(t.bbox) for t in tables]
     running = [c for c in chars if not any(_inside(c, b) for b in boxes)]
     items: list[tuple[float, Line]] = []

@@ -8,11 +8,13 @@ to .docx with real Word auto-numbering by :func:`tests.support.licence_docx.lice
 * :data:`TEST_KEYS` -- the documents the tests convert to PDF and .odt with LibreOffice and
   score (the four the counter-draft tests already use, and others of other families and
   kinds: EULAs, terms of service, public licences, a data licence);
-* :func:`training_keys` -- the documents the default model is trained on: licence texts with
+* :func:`training_keys` -- the documents the default model is trained on; then, in the same
+  order, :func:`development_keys` (documents the model's design was compared on) and
+  :func:`fresh_keys` (documents kept for a last held-out check).  All three are licence texts with
   at least :data:`MIN_NUMBERED` numbered paragraphs, of a family no test document belongs to
   (versions of one licence are one family: "cc-by-2.0" and "cc-by-3.0" are both "cc-by") and
-  sharing at most :data:`MAX_SHARED_SHINGLES` of its word 5-grams with any test document (the
-  AGPL, say, is nearly the GPL's text), the first :data:`TRAINING_DOCUMENTS` in the order of a
+  sharing at most :data:`MAX_SHARED_SHINGLES` of its word 5-grams with any test document or
+  any document chosen before it (the AGPL, say, is nearly the GPL's text), the first :data:`TRAINING_DOCUMENTS` in the order of a
   hash of their key (a fixed, arbitrary order).
 """
 
@@ -28,8 +30,8 @@ from core.structure import parse_label
 
 from .legal_texts import license_text
 
-__all__ = ["MIN_NUMBERED", "TEST_KEYS", "TRAINING_DOCUMENTS", "family", "numbered_paragraphs",
-           "training_keys"]
+__all__ = ["MIN_NUMBERED", "TEST_KEYS", "TRAINING_DOCUMENTS", "development_keys", "family",
+           "fresh_keys", "numbered_paragraphs", "training_keys"]
 
 #: The documents the tests score (none of their families trains the default model).
 TEST_KEYS: tuple[str, ...] = (
@@ -43,6 +45,10 @@ MIN_NUMBERED = 8
 #: Documents the default model is trained on (about 60,000 training lines in three house
 #: styles each; more moved held-out accuracy by less than a point).
 TRAINING_DOCUMENTS = 90
+#: Documents for comparing designs of the model (neither trained on nor the tests' figures).
+DEVELOPMENT_DOCUMENTS = 10
+#: Documents kept for one last held-out check (:func:`fresh_keys`).
+FRESH_DOCUMENTS = 12
 #: Texts outside this size range are skipped (a few pages to about forty).
 MIN_CHARS, MAX_CHARS = 3_000, 80_000
 
@@ -82,13 +88,11 @@ def _similar(a: frozenset[int], b: frozenset[int]) -> float:
     return len(a & b) / max(len(a | b), 1)
 
 
-@cache
-def training_keys() -> tuple[str, ...]:
-    """The training documents of the default model (see the module docstring)."""
+def _eligible():
+    """Keys of usable texts outside the test families, in the fixed order of a hash."""
     held = {family(k) for k in TEST_KEYS}
-    test_shingles = [_shingles(license_text(k)) for k in TEST_KEYS]
+    seen_shingles = [_shingles(license_text(k)) for k in TEST_KEYS]
     order = sorted(_all_keys(), key=lambda k: hashlib.sha256(k.encode()).hexdigest())
-    chosen: list[str] = []
     families: set[str] = set()
     for key in order:
         fam = family(key)
@@ -103,10 +107,35 @@ def training_keys() -> tuple[str, ...]:
         if numbered_paragraphs(text) < MIN_NUMBERED:
             continue
         mine = _shingles(text)
-        if any(_similar(mine, other) > MAX_SHARED_SHINGLES for other in test_shingles):
+        if any(_similar(mine, other) > MAX_SHARED_SHINGLES for other in seen_shingles):
             continue
-        chosen.append(key)
         families.add(fam)
-        if len(chosen) == TRAINING_DOCUMENTS:
+        seen_shingles.append(mine)
+        yield key
+
+
+@cache
+def _split() -> tuple[tuple[str, ...], tuple[str, ...], tuple[str, ...]]:
+    wanted = TRAINING_DOCUMENTS + DEVELOPMENT_DOCUMENTS + FRESH_DOCUMENTS
+    keys: list[str] = []
+    for key in _eligible():
+        keys.append(key)
+        if len(keys) == wanted:
             break
-    return tuple(chosen)
+    a, b = TRAINING_DOCUMENTS, TRAINING_DOCUMENTS + DEVELOPMENT_DOCUMENTS
+    return tuple(keys[:a]), tuple(keys[a:b]), tuple(keys[b:])
+
+
+def training_keys() -> tuple[str, ...]:
+    """The training documents of the default model (see the module docstring)."""
+    return _split()[0]
+
+
+def development_keys() -> tuple[str, ...]:
+    """Documents the model's design was compared on (neither trained on nor tested)."""
+    return _split()[1]
+
+
+def fresh_keys() -> tuple[str, ...]:
+    """Documents looked at by no one during development: the last, held-out check."""
+    return _split()[2]
