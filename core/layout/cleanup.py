@@ -1,8 +1,8 @@
 """Page clean-up: what a printed page adds to an agreement's words, taken away again.
 
 * **Running headers and footers, page numbers** (:func:`drop_running`): a line among the first
-  or last :data:`EDGE_LINES` lines of its page whose text -- digits read as one sign, so
-  "Page 3 of 12" and "Page 4 of 12" are the same -- comes back at the same height (within
+  or last :data:`EDGE_LINES` lines of its page whose text -- in a short line digits read as
+  one sign, so "Page 3 of 12" and "Page 4 of 12" are the same -- comes back at the same height (within
   :data:`SAME_HEIGHT_EM`) on at least :data:`MIN_PAGE_SHARE` of the pages (and on two pages
   at least).  A page number of a one-page document cannot repeat; it stays.
 * **End-of-line hyphenation** (:func:`join_lines`): a line that ends in a letter and a hyphen,
@@ -37,6 +37,9 @@ EDGE_LINES = 3
 #: ... and come back on at least this share of the pages (a first page without the header,
 #: a last page without the footer, still leave well over half).
 MIN_PAGE_SHARE = 0.5
+#: Running lines whose numbers change from page to page are short; a longer line must come
+#: back word for word (a body line that differs only in its figures is text).
+MAX_NUMBERED_RUNNING_WORDS = 8
 #: ... at the same height: within this many body font sizes.
 SAME_HEIGHT_EM = 0.8
 
@@ -55,8 +58,11 @@ _WORD_RE = re.compile(r"[^\W\d_](?:[^\W\d_]|['’-](?=[^\W\d_]))*")
 
 
 def _signature(text: str) -> str:
-    """The text as a running line's: digits one sign, case and spacing ignored."""
-    t = _DIGITS_RE.sub("#", text.casefold())
+    """The text as a running line's: case and spacing ignored, and in a short line (a page
+    number, "Page 3 of 12", "Draft 2 - Confidential") digits read as one sign."""
+    t = text.casefold()
+    if len(t.split()) <= MAX_NUMBERED_RUNNING_WORDS:
+        t = _DIGITS_RE.sub("#", t)
     if _ROMAN_PAGE_RE.match(t):
         t = "#"
     return " ".join(t.split())

@@ -45,6 +45,7 @@ from __future__ import annotations
 
 import io
 import json
+import zipfile
 from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Any
@@ -143,7 +144,12 @@ class _Forest:
         return np.exp(self.log_proba(X))
 
     def arrays(self, prefix: str) -> dict[str, np.ndarray]:
-        return {f"{prefix}.{name}": getattr(self, name) for name in self.__slots__}
+        """The arrays to store, in compact types (thresholds keep full precision: a feature
+        equal to one must go the same way as in training)."""
+        compact = {"feature": np.int16, "left": np.int32, "right": np.int32, "roots": np.int32,
+                   "tree_class": np.int16, "value": np.float32}
+        return {f"{prefix}.{name}": getattr(self, name).astype(compact.get(name, getattr(self, name).dtype))
+                for name in self.__slots__}
 
     @classmethod
     def from_arrays(cls, data: Any, prefix: str, width: int) -> _Forest:
@@ -188,16 +194,25 @@ class LineLabeller:
     lines: int = 0
 
     def _decode_start(self, X: np.ndarray) -> np.ndarray:
-        """Viterbi over the three start states; the first line always starts a paragraph."""
+        """Viterbi over the three start states; the first line always starts a paragraph.
+        A state the training lines never showed has probability 0."""
         n = len(X)
-        order = [list(self.start_head.classes).index(s) for s in _STATES]
+        classes = list(self.start_head.classes)
+
+        def in_state_order(logp: np.ndarray) -> np.ndarray:
+            out = np.full((len(logp), len(_STATES)), -np.inf)
+            for k, state in enumerate(_STATES):
+                if state in classes:
+                    out[:, k] = logp[:, classes.index(state)]
+            return out
+
         # logp[p][i, c]: log P(state c at line i | state p at line i-1, features of line i)
         logp = []
         for p in range(len(_STATES)):
             prev = np.zeros((n, len(_STATES)))
             prev[:, p] = 1.0
-            logp.append(self.start_head.log_proba(np.hstack([X, prev]))[:, order])
-        first = self.start_head.log_proba(np.hstack([X[:1], np.zeros((1, len(_STATES)))]))[0, order]
+            logp.append(in_state_order(self.start_head.log_proba(np.hstack([X, prev]))))
+        first = in_state_order(self.start_head.log_proba(np.hstack([X[:1], np.zeros((1, len(_STATES)))])))[0]
         score = first.copy()
         score[0] = -np.inf
         back = np.zeros((n, len(_STATES)), dtype=np.int64)
@@ -262,7 +277,7 @@ def labeller_from_bytes(data: bytes) -> LineLabeller:
             d = len(FEATURE_NAMES)
             widths = {"start": d + 3, "label": d + 6, "heading": d + 6, "level": d + 6}
             heads = {name: _Forest.from_arrays(npz, name, widths[name]) for name in _HEADS}
-    except (OSError, KeyError, EOFError) as err:
+    except (OSError, KeyError, EOFError, zipfile.BadZipFile) as err:
         raise ValueError(f"not a model file ({err})") from None
     return LineLabeller(heads["start"], heads["label"], heads["heading"], heads["level"],
                         trained_on=str(meta.get("trained_on", "")),
