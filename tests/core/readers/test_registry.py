@@ -37,7 +37,8 @@ def test_every_suffix_belongs_to_one_format_and_is_lower_case():
     assert len(SUPPORTED_SUFFIXES) == len(set(SUPPORTED_SUFFIXES))
     assert all(s.startswith(".") and s == s.lower() for s in SUPPORTED_SUFFIXES)
     assert set(PRECEDENT_SET_SUFFIXES) <= set(SUPPORTED_SUFFIXES)
-    assert {f.name for f in FORMATS} >= {"docx", "text", "markdown"}
+    assert {f.name for f in FORMATS} == {"docx", "odt", "pdf", "text", "markdown"}
+    assert ".pdf" not in PRECEDENT_SET_SUFFIXES  # a set holds the firm's editable agreements
 
 
 def test_a_docx_named_txt_is_read_as_a_docx_with_a_warning(tmp_path):
@@ -79,3 +80,17 @@ def test_names_the_window_accepts_are_the_registrys():
         assert accepts_name(f"Agreement{suffix.upper()}")
         assert f"*{suffix}" in dialog_filter()
     assert not accepts_name("budget.xlsx")
+
+
+def test_pdf_and_odt_are_told_by_content_whatever_their_name(tmp_path):
+    from tests.support.minimal_pdf import pdf_bytes
+    from tests.support.odt_fixtures import odt_bytes
+
+    pdf = tmp_path / "draft.docx"
+    pdf.write_bytes(pdf_bytes(content="BT /F1 12 Tf 72 700 Td (1. Goods.) Tj ET", font=True))
+    assert identify(pdf).name == "pdf"  # ISO 32000-1 §7.5.2: the header
+    doc = read_document(str(pdf))
+    assert any("PDF" in w and ".docx" in w for w in doc.warnings)
+    odt = tmp_path / "draft.txt"
+    odt.write_bytes(odt_bytes("<text:p>1. Goods.</text:p>"))
+    assert identify(odt).name == "odt"  # ISO/IEC 26300-3 §3.3: the mimetype member
