@@ -3,7 +3,7 @@
 Generates, into a temporary folder, a ~100-page agreement (~45,000 words, ~400
 auto-numbered provisions; see ``benchmarks/_corpus.py``) and prints:
 
-* the time of ``core.reader.read_document`` (the whole reader: package checks, paragraphs,
+* the time of ``core.readers.read_document`` (the whole reader: package checks, paragraphs,
   numbering labels, provisions, defined terms), best of 3;
 * the time of ``core.docx.blocks.read_docx_blocks`` alone (paragraphs and labels), best of 3;
 * peak memory: Python allocations during one read (tracemalloc) and the process's peak
@@ -23,7 +23,7 @@ from _measure import argument_parser, best_of, peak_rss_mb, traced_peak_mb, verd
 
 from _corpus import make_agreement_docx
 from core.docx.blocks import read_docx_blocks
-from core.reader import read_document
+from core.readers import read_document
 
 #: Targets from the foundation issue (2-core machine).
 TARGET_SECONDS = 1.0

@@ -4,7 +4,7 @@ Generates a precedent of about 100 pages (~45,000 words, ~400 auto-numbered prov
 ``benchmarks/_corpus.py``) and a draft from it with 30 planted edits of seven kinds (changed
 figures, "shall" -> "may", "not" inserted, sentences inserted, provisions deleted, provisions
 added, qualifiers inserted), one section moved and a defined term renamed everywhere, both
-written as .docx with real auto-numbering and read back with ``core.reader.read_document``.
+written as .docx with real auto-numbering and read back with ``core.readers.read_document``.
 Prints:
 
 * each stage's time of ``core.review.run_review`` and the whole review, best of 3;
@@ -44,7 +44,7 @@ from _corpus import AGREEMENT_LISTS, make_agreement_paragraphs  # noqa: E402
 
 from core.docx.compose import ComposeParagraph, compose_docx  # noqa: E402
 from core.model import Document, Review  # noqa: E402
-from core.reader import read_document  # noqa: E402
+from core.readers import read_document  # noqa: E402
 from core.review import clear_caches, run_review  # noqa: E402
 
 #: Planted edits per pair and their kinds (cycled).

@@ -15,7 +15,7 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from core.reader import read_text  # noqa: E402
+from core.readers import read_text  # noqa: E402
 from core.review import run_review  # noqa: E402
 from tests.core.test_hostile_sizes import _many_definitions  # noqa: E402
 

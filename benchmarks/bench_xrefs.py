@@ -3,7 +3,7 @@
 Builds, deterministically, a ~100-page plain-text agreement (top-level clauses with
 sub-clauses and lettered items, every sub-clause citing other clauses in the forms drafters
 use: "clause 12.3(b)", "Sections 4 to 6", "clauses 2.1, 2.3 or 2.5", "paragraph (c)
-above", "Schedule 2"), reads it with ``core.reader.read_text`` and prints:
+above", "Schedule 2"), reads it with ``core.readers.read_text`` and prints:
 
 * the number of references and of numbers they carry;
 * the time of ``find_references`` over every provision's text and heading, best of 3;
@@ -24,7 +24,7 @@ import random
 from _measure import argument_parser, best_of, traced_peak_mb, verdict
 
 from core import xrefs
-from core.reader import read_text
+from core.readers import read_text
 from core.xrefs import find_references, renumber_references
 
 #: Target for one renumbering of a ~100-page agreement (see the module doc).

@@ -3,7 +3,7 @@
     python benchmarks/measure_false_deviations.py [--details] [--json OUT.json]
 
 Inputs (outside the project): the licence texts of the PyPI package ``licensedcode-data``
-(``licensedcode/data/licenses/<key>.LICENSE``), read with ``core.reader.read_text``.  Each
+(``licensedcode/data/licenses/<key>.LICENSE``), read with ``core.readers.read_text``.  Each
 pair is an older version (the precedent) and the next version (the draft) of one family;
 only the families of :data:`FAMILIES` are measured here, the others of the package are kept
 for an independent check.
@@ -137,7 +137,7 @@ def is_false(v: Any, prec: PhraseCounts, draft: PhraseCounts) -> tuple[bool, boo
 
 
 def measure_pair(older: str, newer: str) -> dict:
-    from core.reader import read_text
+    from core.readers import read_text
     from core.review import run_review
     from tests.support.legal_texts import license_text
 

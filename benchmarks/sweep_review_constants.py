@@ -33,7 +33,7 @@ import numpy as np
 ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 
-from core.reader import read_document  # noqa: E402
+from core.readers import read_document  # noqa: E402
 from core.review import run_review  # noqa: E402
 from tests.core.review import test_licences as tl  # noqa: E402
 from tests.core.review.helpers import doc, licence_text  # noqa: E402

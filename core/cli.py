@@ -31,7 +31,7 @@ def _write_json(obj: object, out: str) -> None:
 
 def _cmd_inspect(args: argparse.Namespace) -> int:
     from .outline import format_outline
-    from .reader import read_document
+    from .readers import read_document
     from .serialize import document_to_dict
 
 
@@ -50,7 +50,7 @@ def _cmd_inspect(args: argparse.Namespace) -> int:
 
 
 def _cmd_review(args: argparse.Namespace) -> int:
-    from .reader import read_document
+    from .readers import read_document
     from .review import review_to_dict
     from .review.report import format_review
 
@@ -58,7 +58,12 @@ def _cmd_review(args: argparse.Namespace) -> int:
         refuse_overwrite_of_inputs(args.json, args.draft, args.against)
         if args.save and Path(args.save).resolve() == Path(args.json).resolve():
             raise CounterdraftError("--json and --save name the same file", path=args.save)
-    draft = read_document(args.draft, cache=True)
+    from .layout.store import structure_for
+
+    structure, notes = structure_for(args.draft, args.library)
+    for note in notes:
+        print(f"{args.draft}: note: {note}", file=sys.stderr)
+    draft = read_document(args.draft, structure=structure, cache=True)
     precedent = read_document(args.against, cache=True)
     for path, doc in ((args.draft, draft), (args.against, precedent)):
         for w in doc.warnings:
@@ -180,9 +185,13 @@ def _cmd_export(args: argparse.Namespace) -> int:
     if args.counter_draft:
         notes = write_counter_draft(record.review, record.decisions, args.counter_draft,
                                     draft_path=record.draft.path, author=author, inputs=inputs)
+        from .readers import identify
+
+        fmt = identify(record.draft.path)
+        recovered = "" if fmt.name == "docx" else f"; a new .docx from the text of {fmt.noun}"
         written(f"counter-draft written to {args.counter_draft} "
                 f"({sum(d.action != 'accept' for d in record.decisions)} changes, "
-                f"{sum(bool(d.note) for d in record.decisions)} notes)")
+                f"{sum(bool(d.note) for d in record.decisions)} notes{recovered})")
         for note in notes:
             print(f"counterdraft: note: {note}", file=sys.stderr)
     if args.redline:
@@ -240,7 +249,7 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     """The main job on the bundled demo: review, save, record example decisions, export."""
     from .decisions import decide, new_review_file, save_review_file
     from .export import default_author, write_counter_draft, write_issues_list, write_redline
-    from .reader import read_document
+    from .readers import read_document
     from .console import terminal_width
     from .review.report import format_review
 

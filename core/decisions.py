@@ -403,10 +403,16 @@ def _default_runner(draft: Document, precedent: Document, *, overrides: Sequence
     return run_review(draft, precedent, overrides=overrides, acting_for=acting_for)
 
 
-def _read_documents(draft_path: str, precedent_path: str) -> tuple[Document, Document]:
-    from .reader import read_document
+def _read_documents(draft_path: str, precedent_path: str, *, library: str | None = None
+                    ) -> tuple[Document, Document]:
+    """Both documents; a PDF draft read with the precedent set's line model when the review
+    used a set (:func:`core.layout.store.structure_for`)."""
+    from .layout.store import structure_for
+    from .readers import read_document
 
-    return read_document(draft_path, cache=True), read_document(precedent_path, cache=True)
+    structure, _notes = structure_for(draft_path, library)
+    return (read_document(draft_path, structure=structure, cache=True),
+            read_document(precedent_path, cache=True))
 
 
 def new_review_file(draft_path: str | os.PathLike[str], precedent_path: str | os.PathLike[str], *,
@@ -422,7 +428,7 @@ def new_review_file(draft_path: str | os.PathLike[str], precedent_path: str | os
         if not Path(p).is_file():
             raise CounterdraftError("file not found", path=p)
     if review is None:
-        draft, precedent = _read_documents(dpath, ppath)
+        draft, precedent = _read_documents(dpath, ppath, library=str(library) if library else None)
         extra = {"acting_for": acting_for} if acting_for else {}
         review = (runner or _default_runner)(draft, precedent, overrides=tuple(overrides), **extra)
     return ReviewFile(draft=DocumentRef(dpath, file_sha256(dpath)),
@@ -621,7 +627,7 @@ def load_review_file(path: str | os.PathLike[str], *, runner: Runner | None = No
         if hashes[role] != refs[role].get("sha256"):
             notes.append(f"the {role} {Path(p).name} changed since the review was saved; "
                          "the review was run again")
-    draft, precedent = _read_documents(dpath, ppath)
+    draft, precedent = _read_documents(dpath, ppath, library=read_library_folder(spath))
     acting_for = data.get("acting_for")  # absent from files written before it existed
     extra = {"acting_for": acting_for} if acting_for else {}
     review = (runner or _default_runner)(draft, precedent, overrides=overrides, **extra)

@@ -55,7 +55,7 @@ CACHE_MAX_ENTRIES = 200
 #: The modules whose code decides what a read document holds (relative to core/): a change
 #: to any of them changes the cache key.
 _PIPELINE = ("reader.py", "text_reader.py", "structure.py", "terms.py", "model.py", "doccache.py",
-             "docx")
+             "docx", "readers", "odf", "layout")
 _SUFFIX = ".json"
 
 

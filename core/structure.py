@@ -817,11 +817,16 @@ class _Splitter:
             del self.stack[j + 1:]
             parent = self.stack[j]
             return parent, parent.base + 1
+        sibling = self.stack[j] if self.stack[j].list_level == lvl else None
         del self.stack[j:]
         while (self.stack and self.stack[-1].list_id == lid and self.stack[-1].list_level is not None
                and self.stack[-1].list_level >= lvl):
-            self.stack.pop()
+            popped = self.stack.pop()
+            if popped.list_level == lvl:
+                sibling = popped
         parent = self.stack[-1] if self.stack else None
+        if sibling is not None:
+            return parent, sibling.level  # the next item of a list keeps its item's level
         return parent, (parent.base if parent else 0) + 1
 
     def _resume(self, comps: tuple[int, ...], rank: int) -> tuple[_Open, int] | None:

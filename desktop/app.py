@@ -20,6 +20,7 @@ import traceback
 from pathlib import Path
 
 import core
+from core.readers import formats_summary
 
 __all__ = [
     "DEMO_DIR", "XVFB_SCREEN", "build_parser", "cli_command", "demo_inputs", "has_display", "main",
@@ -112,8 +113,8 @@ def build_parser() -> argparse.ArgumentParser:
         description="Counterdraft's window: compare a counterparty's draft with the house precedent. "
         + core.CAUTION,
     )
-    p.add_argument("draft", nargs="?", help="the counterparty's draft (.docx, .txt, .md)")
-    p.add_argument("precedent", nargs="?", help="the house precedent (.docx, .txt, .md)")
+    p.add_argument("draft", nargs="?", help=f"the counterparty's draft ({formats_summary()})")
+    p.add_argument("precedent", nargs="?", help=f"the house precedent ({formats_summary()})")
     p.add_argument("--library", metavar="DIR", help="folder of past agreements (the precedent set), or a shared "
                    "store's address (postgresql://USER@HOST:PORT/DB)")
     p.add_argument("--review", metavar="FILE", help="open a saved review file")

@@ -32,12 +32,14 @@ from PySide6.QtWidgets import (
 )
 
 import core
+from core.readers import dialog_filter
 
 from .decision import KEYS
 
 __all__ = ["AGREEMENT_FILTER", "KEY_LIST", "NO_PARTY", "REVIEW_FILTER", "OpenDialog", "about_text", "show_about", "show_keys"]
 
-AGREEMENT_FILTER = "Agreements (*.docx *.txt *.md);;All files (*)"
+#: The readable formats, from the readers registry (the command line reads the same ones).
+AGREEMENT_FILTER = dialog_filter()
 REVIEW_FILTER = "Counterdraft review files (*.json);;All files (*)"
 
 #: Packages whose versions the about box lists (the engine's main dependencies).

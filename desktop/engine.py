@@ -19,6 +19,7 @@ from pathlib import Path
 from typing import Any
 
 from core.errors import CounterdraftError
+from core.readers import formats_summary
 from core.model import Deviation, Edit, Pair, Review, TermMapping
 
 from .state import Inputs
@@ -61,7 +62,7 @@ class Outcome:
 
 
 def unsupported_file(path: str) -> CounterdraftError:
-    return CounterdraftError("not an agreement Counterdraft can read (use .docx, .txt or .md)", path=path)
+    return CounterdraftError(f"not an agreement Counterdraft can read (use {formats_summary(last='or')})", path=path)
 
 
 # ------------------------------------------------------------------------------------------
@@ -150,10 +151,18 @@ def load_and_review(
 ) -> Outcome:
     """Read both documents, index the precedent set if any, review, add frequencies."""
     from core.decisions import new_review_file
-    from core.reader import read_document
+    from core.readers import read_document
 
+    structure = None
+    layout_notes: tuple[str, ...] = ()
+    if inputs.library:
+        from core.layout.store import structure_for
+
+        report(0, None, "Reading the precedent set's formatted agreements")
+        structure, layout_notes = structure_for(inputs.draft, inputs.library)
+        check_cancelled(cancelled)
     report(0, None, f"Reading {Path(inputs.draft).name}")
-    draft = read_document(inputs.draft, cache=True)
+    draft = read_document(inputs.draft, structure=structure, cache=True)
     check_cancelled(cancelled)
     report(0, None, f"Reading {Path(inputs.precedent).name}")
     precedent = read_document(inputs.precedent, cache=True)
@@ -167,7 +176,7 @@ def load_and_review(
                                                  acting_for=inputs.acting_for)
     record = new_review_file(inputs.draft, inputs.precedent, overrides=tuple(overrides), review=review)
     return Outcome(record=record, library=library, library_total=_library_total(library),
-                   notes=tuple(review.notes) + _library_notes(library))
+                   notes=tuple(review.notes) + layout_notes + _library_notes(library))
 
 
 def _remap(decisions: Sequence[Any], review: Review) -> tuple[tuple[Any, ...], list[str]]:
@@ -211,7 +220,7 @@ def rerun_review(
 def party_terms(path: str) -> tuple[str, ...]:
     """The party terms of the agreement at *path* (its defined terms that name a party), for
     the "acting for" choice; () when it cannot be read (the review will say why)."""
-    from core.reader import read_document
+    from core.readers import read_document
     from core.review.direction import party_terms as terms_of
 
     try:

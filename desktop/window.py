@@ -42,6 +42,7 @@ from PySide6.QtWidgets import (
 )
 
 import core
+from core.readers import accepts_name
 
 from . import engine, tasks
 from .checks import ChecksPanel, checks_tab_title
@@ -74,8 +75,6 @@ LIST_SHARE = 0.46
 #: deviation, or the wordings chart) needs about 300 pixels to show its decision buttons,
 #: note and at least four lines of detail at the default size.
 ALIGNED_SHARE = 0.5
-#: Suffixes the readers accept (``core.reader``); other dropped files are refused.
-DOCUMENT_SUFFIXES = (".docx", ".txt", ".md")
 
 
 class Hub(QObject):
@@ -912,7 +911,7 @@ class MainWindow(QMainWindow):
         comparison starts once both sides are known; two documents at once open the chooser."""
         folders = [p for p in paths if os.path.isdir(p)]
         reviews = [p for p in paths if p.lower().endswith(".json")]
-        docs = [p for p in paths if p.lower().endswith(DOCUMENT_SUFFIXES)]
+        docs = [p for p in paths if accepts_name(p)]
         others = [p for p in paths if p not in folders and p not in reviews and p not in docs]
         if others:
             self._fail(engine.unsupported_file(others[0]))

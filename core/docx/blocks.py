@@ -35,8 +35,9 @@ from __future__ import annotations
 import os
 import re
 from collections import Counter
-from collections.abc import Iterator
+from collections.abc import Iterator, Sequence
 from dataclasses import dataclass
+from typing import Any
 
 from lxml import etree
 
@@ -54,6 +55,7 @@ from .styles import W_NS, RunFormat, StyleSheet, parse_styles, run_format_of
 
 __all__ = [
     "TextPiece",
+    "paragraph_emphasis",
     "blocks_from_document",
     "iter_block_pieces",
     "iter_body_paragraphs",
@@ -524,6 +526,15 @@ def _emphasis(text: str, pieces: list[TextPiece], emph: list[bool], caps: list[b
     if not lead.strip() or not text[lead_end:].strip():
         return _Emphasis(None, not text[lead_end:].strip(), all_caps)
     return _Emphasis(lead, False, all_caps)
+
+
+def paragraph_emphasis(text: str, pieces: Sequence[Any], emph: list[bool], caps: list[bool]
+                       ) -> tuple[str | None, bool, bool]:
+    """(lead, emphasised, all_caps) of a paragraph whose *text* is the concatenation of the
+    ``.text`` of *pieces*, each emphasised (bold, underlined, capitals) or not: the rule the
+    .docx reader applies to its runs, for another reader's runs (the .odt reader)."""
+    found = _emphasis(text, list(pieces), emph, caps)
+    return found.lead, found.emphasised, found.all_caps
 
 
 # --------------------------------------------------------------------------------------

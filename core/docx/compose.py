@@ -35,6 +35,7 @@ import zipfile
 import zlib
 from collections.abc import Mapping, Sequence
 from dataclasses import KW_ONLY, dataclass
+from typing import Any
 
 import docx
 from docx.opc.constants import RELATIONSHIP_TYPE as RT
@@ -45,6 +46,7 @@ __all__ = [
     "DEFAULT_LISTS",
     "NUMBER_FORMATS",
     "compose_docx",
+    "docx_from_blocks",
 ]
 
 W_NS = "http://schemas.openxmlformats.org/wordprocessingml/2006/main"
@@ -97,7 +99,10 @@ class ComposeParagraph:
     it belongs to (a key of ``compose_docx(lists=...)``); ``style`` a paragraph style name of
     the template ("Title", "Heading 1".."Heading 3", ...); ``lead`` a run-in heading written
     in bold before ``text``, separated by one space; ``bold`` makes the whole paragraph bold;
-    ``restart`` starts the list again from its first value at this paragraph.
+    ``restart`` starts the list again from its first value at this paragraph; ``label`` shows
+    this exact text as the paragraph's list label at ``level`` (a numbering instance of its
+    own that overrides the level's text with it, ``w:lvlOverride``/``w:lvl``, §17.9.8), and
+    ``bullet`` makes the paragraph a bullet item of its list.
     In ``text`` (and ``lead``), ``"\\t"`` is written as a tab and ``"\\n"`` as a line break.
     """
 
@@ -109,6 +114,8 @@ class ComposeParagraph:
     lead: str | None = None
     bold: bool = False
     restart: bool = False
+    label: str | None = None
+    bullet: bool = False
 
 
 # --------------------------------------------------------------------------------------
@@ -135,6 +142,8 @@ class _Numbering:
         self._abstract: dict[str, int] = {}  # list name -> abstractNumId
         self._current: dict[str, int] = {}  # list name -> numId in use
         self._nums: list[tuple[int, int, bool]] = []  # (numId, abstractNumId, restarted)
+        #: numId -> (level, label or None for a bullet) of a fixed-label instance
+        self._fixed: dict[int, tuple[int, str | None]] = {}
 
     def num_id(self, name: str, level: int, *, restart: bool) -> int:
         if name not in self._lists:
@@ -150,6 +159,15 @@ class _Numbering:
             self._current[name] = num_id
         return self._current[name]
 
+    def fixed_num_id(self, name: str, level: int, label: str | None) -> int:
+        """A numbering instance of list *name* whose *level* shows *label* (None: a bullet)."""
+        base = self.num_id(name, level, restart=False)
+        abstract_id = next(a for n, a, _r in self._nums if n == base)
+        num_id = len(self._nums) + 1
+        self._nums.append((num_id, abstract_id, False))
+        self._fixed[num_id] = (level, label)
+        return num_id
+
     def fill(self, root: etree._Element) -> None:
         """Replace the children of ``w:numbering`` with the lists used."""
         for child in list(root):
@@ -159,6 +177,17 @@ class _Numbering:
         for num_id, abstract_id, restarted in self._nums:
             num = etree.SubElement(root, _w("num"), {_w("numId"): str(num_id)})
             etree.SubElement(num, _w("abstractNumId"), {_w("val"): str(abstract_id)})
+            if num_id in self._fixed:
+                ilvl, label = self._fixed[num_id]
+                over = etree.SubElement(num, _w("lvlOverride"), {_w("ilvl"): str(ilvl)})
+                lvl = etree.SubElement(over, _w("lvl"), {_w("ilvl"): str(ilvl)})
+                etree.SubElement(lvl, _w("start"), {_w("val"): "1"})
+                etree.SubElement(lvl, _w("numFmt"), {_w("val"): "bullet" if label is None else "decimal"})
+                etree.SubElement(lvl, _w("lvlText"), {_w("val"): "\u2022" if label is None else label})
+                etree.SubElement(lvl, _w("lvlJc"), {_w("val"): "left"})
+                ppr = etree.SubElement(lvl, _w("pPr"))
+                etree.SubElement(ppr, _w("ind"), {_w("left"): str(INDENT_STEP_TWIPS * (ilvl + 1)),
+                                                  _w("hanging"): str(HANGING_TWIPS)})
             if restarted:
                 name = next(n for n, a in self._abstract.items() if a == abstract_id)
                 for ilvl in range(len(self._lists[name])):
@@ -311,7 +340,9 @@ def compose_docx(
     sect_pr = body.find(_w("sectPr"))
     for para in paragraphs:
         num_id = None
-        if para.level is not None:
+        if para.level is not None and (para.label is not None or para.bullet):
+            num_id = numbering.fixed_num_id(para.list, para.level, None if para.bullet else para.label)
+        elif para.level is not None:
             num_id = numbering.num_id(para.list, para.level, restart=para.restart)
         p = _paragraph(para, style_id=style_ids[para.style] if para.style else None, num_id=num_id)
         sect_pr.addprevious(p)
@@ -328,3 +359,40 @@ def compose_docx(
     buf = io.BytesIO()
     document.save(buf)
     return _deterministic_zip(buf.getvalue())
+
+
+#: Paragraphs with these outline levels are written in the template's heading styles (the
+#: .docx reader takes a heading style's outline level back from it).
+_HEADING_STYLES = {1: "Heading 1", 2: "Heading 2", 3: "Heading 3"}
+#: A label with a "%" before a digit would be read as a level reference (§17.9.11): such a
+#: label is written with a fullwidth percent sign instead.
+_PLACEHOLDER_LIKE = re.compile(r"%(?=\d)")
+
+
+def docx_from_blocks(blocks: Sequence[Any]) -> bytes:
+    """A .docx whose paragraphs read back as *blocks* (:class:`core.model.Block`): the same
+    texts in the same order, each list label shown exactly as read (a fixed label, see
+    :class:`ComposeParagraph`), bullets, bold paragraphs and bold run-in headings, and
+    heading styles for outline levels 1-3.  The counter-draft of a draft that was not a
+    .docx (a PDF, an .odt, a text file) is written on this file.  Table cells become plain
+    paragraphs; other formatting is not kept."""
+    names: dict[str, str] = {}
+    paragraphs = []
+    for b in blocks:
+        level = None
+        label = None
+        name = "main"
+        numbered = (b.label is not None or b.bullet) and b.list_level is not None
+        if numbered:
+            name = names.setdefault(b.list_id or "", f"list{len(names) + 1}")
+            level = min(max(b.list_level, 0), MAX_LEVELS - 1)
+            label = _PLACEHOLDER_LIKE.sub("\uff05", b.label) if b.label is not None else None
+        text = b.text
+        lead = None
+        if b.lead and not b.emphasised and text.startswith(b.lead + " ") and len(text) > len(b.lead) + 1:
+            lead, text = b.lead, text[len(b.lead) + 1:]
+        paragraphs.append(ComposeParagraph(
+            text, level=level, list=name, style=_HEADING_STYLES.get(b.outline_level or 0),
+            lead=lead, bold=bool(b.emphasised), label=label, bullet=bool(b.bullet and numbered)))
+    lists = {name: [("decimal", f"%{k + 1}.") for k in range(MAX_LEVELS)] for name in names.values()}
+    return compose_docx(paragraphs, lists=lists)

@@ -56,6 +56,11 @@ __all__ = [
     "has_doctype",
     "open_docx_package",
     "parse_xml_part",
+    "check_zip_directory",
+    "read_zip_entry",
+    "read_zip_head",
+    "zip_part_lookup",
+    "ZIP_ERRORS",
 ]
 
 # --------------------------------------------------------------------------------------
@@ -256,7 +261,8 @@ def _check_directory(zf: zipfile.ZipFile, path: str) -> None:
                     f"(limit {_mb(MAX_TOTAL_UNCOMPRESSED)}); this looks like a zip bomb", path)
 
 
-def _read_entry(zf: zipfile.ZipFile, info: zipfile.ZipInfo, path: str, *, limit: int) -> bytes:
+def _read_entry(zf: zipfile.ZipFile, info: zipfile.ZipInfo, path: str, *, limit: int,
+                what: str = ".docx") -> bytes:
     """Read one entry in full, enforcing size and ratio limits while decompressing."""
     if info.file_size > limit:
         raise _fail(f"refused: part {info.filename} would expand to {_mb(info.file_size)} "
@@ -281,17 +287,17 @@ def _read_entry(zf: zipfile.ZipFile, info: zipfile.ZipInfo, path: str, *, limit:
     except CounterdraftError:
         raise
     except _ZIP_ERRORS as err:
-        raise _fail(f"corrupt or truncated .docx: part {info.filename} cannot be read "
+        raise _fail(f"corrupt or truncated {what}: part {info.filename} cannot be read "
                     f"({_one_line(err)})", path) from None
     return b"".join(chunks)
 
 
-def _read_head(zf: zipfile.ZipFile, info: zipfile.ZipInfo, path: str) -> bytes:
+def _read_head(zf: zipfile.ZipFile, info: zipfile.ZipInfo, path: str, *, what: str = ".docx") -> bytes:
     try:
         with zf.open(info) as fh:
             return fh.read(PROLOG_SCAN_BYTES)
     except _ZIP_ERRORS as err:
-        raise _fail(f"corrupt or truncated .docx: part {info.filename} cannot be read "
+        raise _fail(f"corrupt or truncated {what}: part {info.filename} cannot be read "
                     f"({_one_line(err)})", path) from None
 
 
@@ -331,27 +337,53 @@ def has_doctype(head: bytes) -> bool:
     return "<!DOCTYPE" in prolog
 
 
-def parse_xml_part(data: bytes, *, part: str, path: str) -> etree._Element:
-    """Parse one part with the hardened parser; refuse a DOCTYPE and malformed XML."""
+def parse_xml_part(data: bytes, *, part: str, path: str, what: str = ".docx") -> etree._Element:
+    """Parse one part with the hardened parser; refuse a DOCTYPE and malformed XML.  *what*
+    names the kind of file in messages (".docx", ".odt")."""
     if has_doctype(data[:PROLOG_SCAN_BYTES]):
-        raise _doctype_error(part, path)
+        raise _doctype_error(part, path, what=what)
     try:
         root = etree.fromstring(data, hardened_parser())
     except etree.XMLSyntaxError as err:
-        raise _fail(f"corrupt .docx: part {part} is not well-formed XML ({_one_line(err)})",
+        raise _fail(f"corrupt {what}: part {part} is not well-formed XML ({_one_line(err)})",
                     path) from None
     except ValueError as err:  # e.g. an unknown encoding declaration
-        raise _fail(f"corrupt .docx: part {part} cannot be parsed ({_one_line(err)})",
+        raise _fail(f"corrupt {what}: part {part} cannot be parsed ({_one_line(err)})",
                     path) from None
     docinfo = root.getroottree().docinfo
     if docinfo.doctype or docinfo.internalDTD is not None:
-        raise _doctype_error(part, path)
+        raise _doctype_error(part, path, what=what)
     return root
 
 
-def _doctype_error(part: str, path: str) -> CounterdraftError:
-    return _fail(f"refused: part {part} contains a DOCTYPE declaration, which a .docx never "
+def _doctype_error(part: str, path: str, *, what: str = ".docx") -> CounterdraftError:
+    return _fail(f"refused: part {part} contains a DOCTYPE declaration, which a {what} never "
                  "needs (it can hide entity expansion or external entities)", path)
+
+
+def check_zip_directory(zf: zipfile.ZipFile, path: str) -> None:
+    """The zip-bomb checks of the directory (for other zip formats: the OpenDocument
+    reader); the .docx opener calls :func:`_check_directory` itself."""
+    _check_directory(zf, path)
+
+
+def read_zip_entry(zf: zipfile.ZipFile, info: zipfile.ZipInfo, path: str, *, limit: int,
+                   what: str) -> bytes:
+    """One entry read in full under the size and ratio limits (see :func:`_read_entry`)."""
+    return _read_entry(zf, info, path, limit=limit, what=what)
+
+
+def read_zip_head(zf: zipfile.ZipFile, info: zipfile.ZipInfo, path: str, *, what: str) -> bytes:
+    """The first :data:`PROLOG_SCAN_BYTES` of an entry (to look for a DOCTYPE)."""
+    return _read_head(zf, info, path, what=what)
+
+
+def zip_part_lookup(zf: zipfile.ZipFile) -> dict[str, zipfile.ZipInfo]:
+    """Part name (lower case, no leading "/") -> entry."""
+    return _part_lookup(zf)
+
+
+ZIP_ERRORS = _ZIP_ERRORS
 
 
 def _part_lookup(zf: zipfile.ZipFile) -> dict[str, zipfile.ZipInfo]:

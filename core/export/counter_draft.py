@@ -37,7 +37,7 @@ from .references import Wording, accepted_view, counter_numbering, reference_upd
 from .spans import SpanEdit, amend_edits, revert_edits, seam, to_blocks
 
 __all__ = [
-        "CounterDraftPlan",
+    "CounterDraftPlan",
     "counter_draft_bytes",
     "plan_counter_draft",
     "write_counter_draft",
@@ -446,9 +446,12 @@ def counter_draft_bytes(review: Review, decisions: Sequence[Decision], *, draft_
     the second writes the decisions with restored words numbered accordingly, plus a tracked
     change with a comment for every typed cross-reference that would otherwise point
     elsewhere."""
-    if Path(draft_path).suffix.lower() != ".docx":
-        raise CounterdraftError("the counter-draft is written on the counterparty's own .docx; "
-                                "this draft is not a .docx", path=draft_path)
+    from ..readers import identify
+
+    fmt = identify(draft_path)
+    if fmt.name != "docx":
+        return _counter_draft_on_recovered_text(review, decisions, fmt_noun=fmt.noun,
+                                                author=author, date=date)
     plan = plan_counter_draft(review, decisions)
     data = _tracked_copy(review, plan, draft_path=draft_path, author=author, date=date)
     notes = list(plan.notes)
@@ -475,6 +478,32 @@ def counter_draft_bytes(review: Review, decisions: Sequence[Decision], *, draft_
         notes.append(f"the draft already holds tracked changes of its own ({own[0]}); rejecting "
                      "all changes in a word processor rejects those too")
     return data, tuple(notes)
+
+
+def recovered_text_note(fmt_noun: str) -> str:
+    """What the export says when the draft was not a .docx."""
+    return (f"the draft is {fmt_noun}, not a .docx: the counter-draft is a new .docx written "
+            "from the draft's text as Counterdraft read it (paragraphs, number labels and "
+            "headings as recovered), with the decisions as tracked changes; it does not keep "
+            "the draft's layout, and its numbers are fixed text that does not renumber")
+
+
+def _counter_draft_on_recovered_text(review: Review, decisions: Sequence[Decision], *, fmt_noun: str,
+                                     author: str, date: _dt.datetime | None) -> tuple[bytes, tuple[str, ...]]:
+    """The counter-draft of a draft that is not a .docx: a .docx made from the draft's blocks
+    (:func:`core.docx.compose.docx_from_blocks`, which reads back as the same blocks), with
+    the decisions written on it as on a counterparty's .docx."""
+    import tempfile
+
+    from ..docx.compose import docx_from_blocks
+
+    with tempfile.TemporaryDirectory(prefix="counterdraft-") as work:
+        base = Path(work) / "recovered-draft.docx"
+        base.write_bytes(docx_from_blocks(review.draft.blocks))
+        recovered = dataclasses.replace(review.draft, warnings=())
+        data, notes = counter_draft_bytes(dataclasses.replace(review, draft=recovered), decisions,
+                                          draft_path=str(base), author=author, date=date)
+    return data, (recovered_text_note(fmt_noun), *notes)
 
 
 def _tracked_copy(review: Review, plan: CounterDraftPlan, *, draft_path: str, author: str,

@@ -79,7 +79,7 @@ class Numbering:
 
 def accepted_view(data: bytes) -> Document:
     """The counter-draft *data* read back with every tracked change accepted."""
-    from ..reader import read_document
+    from ..readers import read_document
 
     folder = tempfile.mkdtemp(prefix="counterdraft-")
     path = os.path.join(folder, "accepted.docx")

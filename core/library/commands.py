@@ -218,7 +218,7 @@ def _cmd_calibrate(args: argparse.Namespace) -> int:
 
 def _cmd_patterns(args: argparse.Namespace) -> int:
     from ..fileio import file_sha256
-    from ..reader import read_document
+    from ..readers import read_document
     from .patterns import format_patterns, negotiation_patterns, patterns_to_dict
 
     precedent = read_document(args.against)

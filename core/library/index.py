@@ -1,9 +1,10 @@
 """The precedent set's index: the firm's past agreements, kept in a store.
 
-``build_library(root)`` reads every .docx, .txt and .md file under *root* (recursively; hidden
-files and folders, Office lock files ``~$...`` and the index's own folder are skipped) into a
-store (:mod:`.store`): by default the SQLite file ``root/.counterdraft/library.sqlite`` (or a
-path of your choice), or a PostgreSQL database a team shares
+``build_library(root)`` reads every file of a format the readers registry admits to a precedent
+set (``core.readers.PRECEDENT_SET_SUFFIXES``: .docx, .txt, .md) under *root* (recursively;
+hidden files and folders, Office lock files ``~$...`` and the index's own folder are skipped)
+into a store (:mod:`.store`): by default the SQLite file ``root/.counterdraft/library.sqlite``
+(or a path of your choice), or a PostgreSQL database a team shares
 (``store="postgresql://USER@HOST:PORT/DB"``).  What it keeps:
 
 * ``documents``: path (relative to the root, with "/"), SHA-256, size, modification time,
@@ -93,6 +94,7 @@ import numpy as np
 
 from ..errors import CounterdraftError
 from ..fileio import file_sha256
+from ..readers import PRECEDENT_SET_SUFFIXES
 from .bucketcache import BucketArrays, assemble, compact, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
 from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
@@ -127,7 +129,8 @@ __all__ = [
     "wording_shingles",
 ]
 
-SUFFIXES: tuple[str, ...] = (".docx", ".txt", ".md")
+#: The formats a precedent set holds (the readers registry decides).
+SUFFIXES: tuple[str, ...] = PRECEDENT_SET_SUFFIXES
 DB_DIRNAME = ".counterdraft"
 DB_FILENAME = "library.sqlite"
 CACHE_FILENAME = "variants.npz"  # the frequency cache of earlier versions (one file), removed
@@ -372,7 +375,7 @@ def _extract(path: str) -> _Extract | _Problem:
         digest = file_sha256(path)
         if os.path.getsize(path) == 0:
             return _Problem(digest, "empty file")
-        from ..reader import read_document
+        from ..readers import read_document
 
         doc = read_document(path)
         typings: tuple[Typing, ...] = classify_provisions(doc)
@@ -1214,6 +1217,10 @@ class Library:
     def total(self) -> int:
         """Agreements in the index (readable .docx/.txt/.md files under the root)."""
         return self.store.document_count()
+
+    def documents(self) -> tuple[tuple[str, str], ...]:
+        """(path relative to the root, SHA-256) of every agreement in the index."""
+        return tuple((str(p), str(h)) for _id, p, h in self.store.documents_by_path())
 
     @property
     def stale(self) -> bool:

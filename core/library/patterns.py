@@ -143,7 +143,7 @@ def _review_one(path: str) -> _DocResult:
 
 
 def _review_with(library: Library, precedent: Document, rel: str) -> _DocResult:
-    from ..reader import read_document
+    from ..readers import read_document
     from ..review import run_review
     from .frequency import clause_type_function
 

@@ -94,7 +94,8 @@ def test_reads_docx_with_auto_numbering(tmp_path):
 
 @pytest.mark.parametrize("name, message", [
     ("contract.doc", "legacy binary Word .doc"),
-    ("contract.pdf", "PDF is not supported"),
+    ("contract.rtf", "RTF file is not supported"),
+    ("contract.pdf", "damaged or not a PDF file"),  # read as a PDF by its name: no %PDF header
     ("contract.xlsx", "unsupported file type '.xlsx'"),
     ("contract", "unsupported file type (no suffix)"),
 ])

@@ -184,11 +184,12 @@ def test_drops_are_routed_by_kind_and_side(make_window, qtbot, tmp_path, monkeyp
     assert (dlg.draft.text(), dlg.precedent.text(), dlg.library.text()) == (str(dra), str(pre), str(folder))
     dlg.compare.click()
     assert calls == [(str(dra), str(pre), str(folder))]
-    bad = tmp_path / "scan.pdf"
-    bad.write_bytes(b"%PDF")
+    bad = tmp_path / "figures.xlsx"
+    bad.write_bytes(b"PK")
     with qtbot.waitSignal(w.operationFailed) as sig:
         w.handle_dropped([str(bad)], side="draft")
-    assert sig.args[0] == f"{bad}: not an agreement Counterdraft can read (use .docx, .txt or .md)"
+    # the formats of the readers registry, as the command line reads them
+    assert sig.args[0] == f"{bad}: not an agreement Counterdraft can read (use .docx, .odt, .pdf, .txt or .md)"
     close_message_boxes()
 
 

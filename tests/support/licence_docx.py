@@ -42,7 +42,7 @@ from core.reader import read_text
 from core.structure import parse_label
 from tests.support.legal_texts import license_text
 
-__all__ = ["FEATURES", "licence_paragraphs", "licence_docx", "roughen", "smart_quotes"]
+__all__ = ["FEATURES", "house_style", "licence_paragraphs", "licence_docx", "roughen", "smart_quotes"]
 
 W = "http://schemas.openxmlformats.org/wordprocessingml/2006/main"
 R = "http://schemas.openxmlformats.org/officeDocument/2006/relationships"
@@ -241,3 +241,96 @@ def smart_quotes(text: str) -> str:
     text = text.replace('"', "\u201d")
     text = re.sub(r"(^|[\s(\[])'", "\\1\u2018", text)
     return text.replace("'", "\u2019")
+
+
+# --------------------------------------------------------------------------------------
+# House styles: how another firm sets the same words
+# --------------------------------------------------------------------------------------
+
+HEADER_CT = "application/vnd.openxmlformats-officedocument.wordprocessingml.header+xml"
+FOOTER_CT = "application/vnd.openxmlformats-officedocument.wordprocessingml.footer+xml"
+HEADER_REL = "http://schemas.openxmlformats.org/officeDocument/2006/relationships/header"
+FOOTER_REL = "http://schemas.openxmlformats.org/officeDocument/2006/relationships/footer"
+
+
+def _field_runs(parent: etree._Element, code: str) -> None:
+    """A simple field (``w:fldSimple``, ECMA-376 Part 1 §17.16.19) showing *code*'s result."""
+    fld = etree.SubElement(parent, _w("fldSimple"), {_w("instr"): f" {code} "})
+    t = etree.SubElement(etree.SubElement(fld, _w("r")), _w("t"))
+    t.text = "1"
+
+
+def _hdr_ftr(tag: str, text: str, *, page_numbers: bool) -> bytes:
+    """A header or footer part (§17.10.3, §17.10.4) with one paragraph: *text*, then "Page N
+    of M" from PAGE and NUMPAGES fields (§17.16.5.43, §17.16.5.37) when asked."""
+    root = etree.Element(_w(tag), nsmap={"w": W})
+    p = etree.SubElement(root, _w("p"))
+    t = etree.SubElement(etree.SubElement(p, _w("r")), _w("t"))
+    t.text = text + (" \u2013 Page " if page_numbers else "")
+    t.set(XML_SPACE, "preserve")
+    if page_numbers:
+        _field_runs(p, "PAGE")
+        t2 = etree.SubElement(etree.SubElement(p, _w("r")), _w("t"))
+        t2.text = " of "
+        t2.set(XML_SPACE, "preserve")
+        _field_runs(p, "NUMPAGES")
+    return etree.tostring(root, xml_declaration=True, encoding="UTF-8", standalone=True)
+
+
+def house_style(data: bytes, *, spacing_after: int | None = None, font: str | None = None,
+                size: int | None = None, justify: bool = False, header: str | None = None,
+                footer: str | None = None, page_numbers: bool = False) -> bytes:
+    """*data* (a .docx) set in another house style, the words untouched: space after each
+    paragraph in twentieths of a point (``w:spacing/@w:after``, §17.3.1.33; 0 = none), the
+    body font and size in half-points (``w:rFonts``, ``w:sz``, §17.3.2.26, §17.3.2.38, in the
+    document defaults §17.7.5), justified paragraphs (``w:jc`` both, §17.3.1.13), and a
+    running header and footer on every page (§17.10) whose footer can end with "Page N of M"."""
+    zin = zipfile.ZipFile(io.BytesIO(data))
+    styles = etree.fromstring(zin.read("word/styles.xml"))
+    document = etree.fromstring(zin.read("word/document.xml"))
+    rels = etree.fromstring(zin.read("word/_rels/document.xml.rels"))
+    types = etree.fromstring(zin.read("[Content_Types].xml"))
+    defaults = styles.find(_w("docDefaults"))
+    ppr = defaults.find(f"{_w('pPrDefault')}/{_w('pPr')}")
+    rpr = defaults.find(f"{_w('rPrDefault')}/{_w('rPr')}")
+    if spacing_after is not None:
+        spacing = ppr.find(_w("spacing"))
+        spacing.set(_w("after"), str(spacing_after))
+    if font is not None:
+        fonts = rpr.find(_w("rFonts"))
+        for attr in list(fonts.attrib):
+            del fonts.attrib[attr]
+        for attr in ("ascii", "hAnsi", "cs", "eastAsia"):
+            fonts.set(_w(attr), font)
+    if size is not None:
+        rpr.find(_w("sz")).set(_w("val"), str(size))
+        rpr.find(_w("szCs")).set(_w("val"), str(size))
+    if justify:
+        for p in document.iter(_w("p")):
+            pp = p.find(_w("pPr"))
+            if pp is None:
+                pp = etree.Element(_w("pPr"))
+                p.insert(0, pp)
+            pp.append(etree.Element(_w("jc"), {_w("val"): "both"}))
+    added: dict[str, bytes] = {}
+    sect = document.find(f"{_w('body')}/{_w('sectPr')}")
+    for tag, text, ct, rel, name in (("hdr", header, HEADER_CT, HEADER_REL, "header1.xml"),
+                                     ("ftr", footer, FOOTER_CT, FOOTER_REL, "footer1.xml")):
+        if text is None:
+            continue
+        added[f"word/{name}"] = _hdr_ftr(tag, text, page_numbers=page_numbers and tag == "ftr")
+        rid = f"rIdHouse{tag}"
+        etree.SubElement(rels, f"{{{PKG_REL}}}Relationship", Id=rid, Type=rel, Target=name)
+        etree.SubElement(types, f"{{{CT_NS}}}Override", PartName=f"/word/{name}", ContentType=ct)
+        ref = "headerReference" if tag == "hdr" else "footerReference"
+        sect.insert(0, etree.Element(_w(ref), {_w("type"): "default", f"{{{R}}}id": rid}))
+    replaced = {name: etree.tostring(el, xml_declaration=True, encoding="UTF-8", standalone=True)
+                for name, el in (("word/styles.xml", styles), ("word/document.xml", document),
+                                 ("word/_rels/document.xml.rels", rels), ("[Content_Types].xml", types))}
+    out = io.BytesIO()
+    with zipfile.ZipFile(out, "w", zipfile.ZIP_DEFLATED) as zout:
+        for info in zin.infolist():
+            zout.writestr(info.filename, replaced.get(info.filename, zin.read(info)))
+        for name, payload in added.items():
+            zout.writestr(name, payload)
+    return out.getvalue()
