@@ -58,9 +58,13 @@ def _cmd_review(args: argparse.Namespace) -> int:
         refuse_overwrite_of_inputs(args.json, args.draft, args.against)
         if args.save and Path(args.save).resolve() == Path(args.json).resolve():
             raise CounterdraftError("--json and --save name the same file", path=args.save)
-    from .layout.store import structure_for
+    from .readers import learns_layout
 
-    structure, notes = structure_for(args.draft, args.library)
+    structure, notes = None, ()
+    if learns_layout(args.draft, args.library):
+        from .layout.store import structure_for
+
+        structure, notes = structure_for(args.draft, args.library)
     for note in notes:
         print(f"{args.draft}: note: {note}", file=sys.stderr)
     draft = read_document(args.draft, structure=structure, cache=True)

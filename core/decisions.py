@@ -407,10 +407,13 @@ def _read_documents(draft_path: str, precedent_path: str, *, library: str | None
                     ) -> tuple[Document, Document]:
     """Both documents; a PDF draft read with the precedent set's line model when the review
     used a set (:func:`core.layout.store.structure_for`)."""
-    from .layout.store import structure_for
-    from .readers import read_document
+    from .readers import learns_layout, read_document
 
-    structure, _notes = structure_for(draft_path, library)
+    structure = None
+    if learns_layout(draft_path, library):
+        from .layout.store import structure_for
+
+        structure, _notes = structure_for(draft_path, library)
     return (read_document(draft_path, structure=structure, cache=True),
             read_document(precedent_path, cache=True))
 

@@ -151,11 +151,11 @@ def load_and_review(
 ) -> Outcome:
     """Read both documents, index the precedent set if any, review, add frequencies."""
     from core.decisions import new_review_file
-    from core.readers import read_document
+    from core.readers import learns_layout, read_document
 
     structure = None
     layout_notes: tuple[str, ...] = ()
-    if inputs.library:
+    if learns_layout(inputs.draft, inputs.library):
         from core.layout.store import structure_for
 
         report(0, None, "Reading the precedent set's formatted agreements")

@@ -57,6 +57,7 @@ __all__ = [
     "format_named",
     "formats_summary",
     "identify",
+    "learns_layout",
     "read_blocks",
     "read_document",
     "read_text",
@@ -279,6 +280,13 @@ def document_from_blocks(blocks: Sequence[Block], *, source: str,
     provisions = split_provisions(blocks, source=source)
     return Document(source=source, provisions=provisions, terms=find_terms(provisions, blocks=blocks),
                     blocks=blocks, warnings=tuple(warnings))
+
+
+def learns_layout(path: str | os.PathLike[str], library: str | os.PathLike[str] | None) -> bool:
+    """True when the file at *path* is read with a precedent set's own line model: a page
+    format (PDF) reviewed with a precedent set.  Cheap (the first bytes), so the model's
+    modules are imported only then."""
+    return bool(library) and identify(path).name == "pdf"
 
 
 def read_document(path: str | os.PathLike[str], *, structure: Any = None, cache: bool = False) -> Document:

@@ -32,12 +32,12 @@ def _entries(folder: Path) -> list[Path]:
 
 
 def _forbid_parsing(monkeypatch) -> None:
-    import core.reader
+    import core.readers
 
     def refuse(*_a, **_k):
         raise AssertionError("parsed again although the cache holds the document")
 
-    monkeypatch.setattr(core.reader, "_parse", refuse)
+    monkeypatch.setattr(core.readers, "read_blocks", refuse)
 
 
 @pytest.mark.parametrize("name", ["draft.docx", "precedent.docx"])
