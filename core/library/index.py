@@ -1,7 +1,8 @@
 """The precedent set's index: a SQLite database of the firm's past agreements.
 
 ``build_library(root)`` reads every file of a format the readers registry admits to a precedent
-set (``core.readers.PRECEDENT_SET_SUFFIXES``: .docx, .txt, .md) under *root* (recursively; hidden
+set (``core.readers.PRECEDENT_SET_SUFFIXES``: .docx, .odt, .txt, .md; not .pdf, whose structure
+is only inferred) under *root* (recursively; hidden
 files and folders, Office lock files ``~$...`` and the index's own folder are skipped) into
 ``root/.counterdraft/library.sqlite`` (or a path of your choice):
 
@@ -1448,7 +1449,7 @@ class Library:
 
     @property
     def total(self) -> int:
-        """Agreements in the index (readable .docx/.txt/.md files under the root)."""
+        """Agreements in the index (readable files of the set's formats under the root)."""
         return int(self.conn.execute("SELECT COUNT(*) FROM documents").fetchone()[0])
 
     def documents(self) -> tuple[tuple[str, str], ...]:
