@@ -261,7 +261,7 @@ class LineLabeller:
         for name in _HEADS:
             arrays.update(getattr(self, f"{name}_head").arrays(name))
         buf = io.BytesIO()
-        np.savez_compressed(buf, **arrays)
+        np.savez_compressed(buf, **arrays)  # type: ignore[arg-type]  # numpy stubs: keyword arrays
         return buf.getvalue()
 
 
