@@ -814,16 +814,19 @@ class _Splitter:
         if j is None:
             return None
         if self.stack[j].list_level is not None and self.stack[j].list_level < lvl:  # type: ignore[operator]
-            del self.stack[j + 1:]
-            parent = self.stack[j]
+            # A typed list label opened after the list's item ("(A) You may:") introduces
+            # the deeper items that follow: they go under it, as they would in a typed list.
+            k = next((i for i in range(len(self.stack) - 1, j, -1)
+                      if self.stack[i].family == "list" and self.stack[i].list_id is None), j)
+            del self.stack[k + 1:]
+            parent = self.stack[k]
             return parent, parent.base + 1
-        sibling = self.stack[j] if self.stack[j].list_level == lvl else None
-        del self.stack[j:]
-        while (self.stack and self.stack[-1].list_id == lid and self.stack[-1].list_level is not None
-               and self.stack[-1].list_level >= lvl):
-            popped = self.stack.pop()
-            if popped.list_level == lvl:
-                sibling = popped
+        # The first open item of this list at the new item's level or deeper closes, with
+        # everything opened after it (items it introduced, typed labels, definitions).
+        m = next((i for i, o in enumerate(self.stack)
+                  if o.list_id == lid and o.list_level is not None and o.list_level >= lvl), j)
+        sibling = next((o for o in reversed(self.stack[m:]) if o.list_id == lid and o.list_level == lvl), None)
+        del self.stack[m:]
         parent = self.stack[-1] if self.stack else None
         if sibling is not None:
             return parent, sibling.level  # the next item of a list keeps its item's level

@@ -31,10 +31,18 @@ __all__ = [
 #: height below the previous; a blank line adds a unit.  Font size is reported as 0.
 TEXT_CHAR_WIDTH = 1.0
 TEXT_LINE_PITCH = 1.0
-#: The right edge of the text column is the width reached by this share of the lines (the
-#: longest lines of a justified or ragged column all end near it; a few longer ones are
-#: headers, tables or overhanging words).
-RIGHT_EDGE_QUANTILE = 0.9
+#: Lines of one paragraph are at most this many font sizes apart (single to one-and-a-half
+#: line spacing is 1.15-1.75 em in common text faces; double spacing is 2.3 em and over);
+#: a few such tight steps show that the document has paragraphs of several lines, even
+#: when nearly all its paragraphs are one line (common practice of typesetting, no source).
+TIGHT_PITCH_EM = 1.9
+MIN_TIGHT_STEPS = 3
+#: The right edge of the text column is the width reached by this share of the lines: the
+#: longest lines of a justified or ragged column end near it, a few longer ones are
+#: overhanging words.  Not lower: in a document of short hard-wrapped lines (a disclaimer
+#: typed line by line) most lines end well before the edge, which is what shows that they
+#: are paragraphs of their own.
+RIGHT_EDGE_QUANTILE = 0.98
 
 
 @dataclass(frozen=True, slots=True)
@@ -104,7 +112,13 @@ def geometry(lines: Sequence[Line]) -> Geometry:
     right = ends[int(RIGHT_EDGE_QUANTILE * (len(ends) - 1))] if ends else left + 1.0
     steps = [b.top - a.top for a, b in zip(body, body[1:])
              if a.page == b.page and 0 < b.top - a.top]
-    pitch = _mode(steps, step=0.1 * em) if steps else (em * 1.2 if fonts else TEXT_LINE_PITCH)
+    # The line distance inside a paragraph: the commonest step among the tight ones (in a
+    # document of one-line paragraphs the commonest step of all is the paragraph distance).
+    tight = [s for s in steps if s <= TIGHT_PITCH_EM * em] if fonts else []
+    if len(tight) >= MIN_TIGHT_STEPS:
+        pitch = _mode(tight, step=0.1 * em)
+    else:
+        pitch = _mode(steps, step=0.1 * em) if steps else (em * 1.2 if fonts else TEXT_LINE_PITCH)
     return Geometry(em=em, left=left, right=max(right, left + em), pitch=max(pitch, 1e-6), fonts=fonts)
 
 

@@ -28,7 +28,7 @@ from collections.abc import Iterator, Sequence
 from dataclasses import dataclass
 
 from ..model import Block, Document
-from .answers import CONTINUES, BlockAnswer, block_answers
+from .answers import CONTINUES, block_answers
 from .lines import TEXT_CHAR_WIDTH, TEXT_LINE_PITCH, Line
 
 __all__ = ["LineAnswers", "Style", "STYLES_PER_DOCUMENT", "draw_styles", "lay_out", "training_examples"]

@@ -1,11 +1,11 @@
 """The precedent set's index: the firm's past agreements, kept in a store.
 
 ``build_library(root)`` reads every file of a format the readers registry admits to a precedent
-set (``core.readers.PRECEDENT_SET_SUFFIXES``: .docx, .txt, .md) under *root* (recursively;
-hidden files and folders, Office lock files ``~$...`` and the index's own folder are skipped)
-into a store (:mod:`.store`): by default the SQLite file ``root/.counterdraft/library.sqlite``
-(or a path of your choice), or a PostgreSQL database a team shares
-(``store="postgresql://USER@HOST:PORT/DB"``).  What it keeps:
+set (``core.readers.PRECEDENT_SET_SUFFIXES``: .docx, .odt, .txt, .md; not .pdf, whose structure
+is only inferred) under *root* (recursively; hidden files and folders, Office lock files
+``~$...`` and the index's own folder are skipped) into a store (:mod:`.store`): by default the
+SQLite file ``root/.counterdraft/library.sqlite`` (or a path of your choice), or a PostgreSQL
+database a team shares (``store="postgresql://USER@HOST:PORT/DB"``).  What it keeps:
 
 * ``documents``: path (relative to the root, with "/"), SHA-256, size, modification time,
   title and parties when found;
@@ -1215,7 +1215,7 @@ class Library:
     # -- facts ----------------------------------------------------------------------------
     @property
     def total(self) -> int:
-        """Agreements in the index (readable .docx/.txt/.md files under the root)."""
+        """Agreements in the index (readable files of the set's formats under the root)."""
         return self.store.document_count()
 
     def documents(self) -> tuple[tuple[str, str], ...]:

@@ -138,6 +138,11 @@ class ListCounter:
             self.values[level] = self.values.get(level, st.start - 1) + 1
         for deeper in [k for k in self.values if k > level]:
             del self.values[deeper]
+        for higher in range(1, level):
+            # A level used before its parents: they count as used at their start values, so
+            # the next item up is the second ("1.1" then "2."), as LibreOffice counts.
+            if higher not in self.values:
+                self.values[higher] = self.style(higher).start
         first = max(1, level - st.display_levels + 1)
         parts = []
         for k in range(first, level + 1):

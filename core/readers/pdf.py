@@ -13,8 +13,8 @@ What it reads:
   a warning), duplicates printed on top of each other (fake bold) counted once;
 * word spaces: the space characters the file has, and a space wherever the gap between two
   characters is wider than :data:`SPACE_GAP` of the font size (files without space
-  characters); a wide gap after the first word of a line (a tab after a number label)
-  becomes a tab;
+  characters); a wide gap without a space character after the first word of a line (a tab
+  after a number label) becomes a tab;
 * ligature characters (U+FB00-FB06) written as their letters; a soft hyphen (U+00AD) at the
   end of a line joins the word;
 * ruled tables (pdfplumber's line-based table finder): one line per row, the cells' text
@@ -125,9 +125,14 @@ def _line_from_chars(chars: Sequence[dict[str, Any]], *, page: int) -> Line | No
     space = statistics.median(spaces) if spaces else 0.28 * size
     text = "".join(c for c, *_ in items)
     first_space = next((i for i, it in enumerate(items) if it[0] == " "), None)
+    # A tab leaves a gap with no character in it; spaces typed several times are characters.
+    typed = first_space is not None and any(
+        _char_text(c).isspace() and items[first_space][2] - 0.01 <= float(c["x0"]) <= items[first_space][3]
+        for c in chars)
     x0, x1 = items[0][2], max(it[3] for it in items)
     first_word = (items[first_space - 1][3] if first_space is not None else x1) - x0
-    if first_space is not None and items[first_space][3] - items[first_space][2] > TAB_GAP_SPACES * max(space, 0.5):
+    if (first_space is not None and not typed
+            and items[first_space][3] - items[first_space][2] > TAB_GAP_SPACES * max(space, 0.5)):
         text = text[:first_space] + "\t" + text[first_space + 1:]
     prefix = 0
     for c, b, *_ in items:

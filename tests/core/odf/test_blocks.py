@@ -144,7 +144,9 @@ def test_labels_agree_with_libreoffice(tmp_path):
     is indented, then its label, a space and the words (tests/support/libreoffice.py)."""
     from tests.support.libreoffice import UTF8_BOM, convert
 
-    body = ('<text:list text:style-name="Clauses" xml:id="L1">'
+    body = ('<text:list text:style-name="Clauses"><text:list-item><text:list>' + _item("Deeper first")
+            + "</text:list></text:list-item>" + _item("Then up") + "</text:list>"
+            + '<text:list text:style-name="Clauses" xml:id="L1">'
             + _item("One", '<text:list>' + _item("One one") + _item("One two", '<text:list>' + _item("deep a")
                                                                       + _item("deep b") + "</text:list>") + "</text:list>")
             + '<text:list-item text:start-value="5"><text:p>Five</text:p></text:list-item>'
