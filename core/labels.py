@@ -38,14 +38,30 @@ LABEL_WORDS = 6
 _KEYWORD_RE = re.compile(r"^(?:Article|Section|Clause|Schedule|Part)\s+", re.IGNORECASE)
 
 
+#: Documents whose provisions are indexed by id (the last few labelled: a review's two).
+_INDEX_DOCUMENTS = 4
+_indexes: dict[int, tuple[Document, dict[str, Provision]]] = {}
+
+
+def _by_id(doc: Document) -> dict[str, Provision]:
+    """*doc*'s provisions by id, built once per document object: a table of a thousand
+    deviations labels a thousand provisions, and a search of the document for each (or an
+    index built for each) made labelling quadratic."""
+    got = _indexes.get(id(doc))
+    if got is not None and got[0] is doc:
+        return got[1]
+    if len(_indexes) >= _INDEX_DOCUMENTS:
+        _indexes.pop(next(iter(_indexes)))
+    index = {p.id: p for p in doc.provisions}
+    _indexes[id(doc)] = (doc, index)
+    return index
+
+
 def find_provision(doc: Document, pid: str | None) -> Provision | None:
     """The provision with id *pid* in *doc*, or None (no id, or no such provision)."""
     if pid is None:
         return None
-    try:
-        return doc.provision(pid)
-    except KeyError:
-        return None
+    return _by_id(doc).get(pid)
 
 
 def _bare(number: str | None) -> str:
@@ -57,7 +73,7 @@ def _chain(doc: Document | None, prov: Provision) -> list[Provision]:
     """*prov* and its ancestors, nearest first (at most MAX_DEPTH)."""
     if doc is None or prov.parent is None:
         return [prov]
-    by_id = {p.id: p for p in doc.provisions}
+    by_id = _by_id(doc)
     out = [prov]
     cur = by_id.get(prov.parent)
     while cur is not None and len(out) < MAX_DEPTH:

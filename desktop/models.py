@@ -19,6 +19,7 @@ from PySide6.QtCore import (
     Qt,
 )
 
+from core.labels import find_provision
 from core.model import Deviation, Pair, Review, TermMapping
 
 from .labels import (
@@ -456,9 +457,8 @@ class PairRowsModel(_RowsModel):
             pid = p.precedent if col == self.PRECEDENT else p.draft
             if pid is None:
                 return ""
-            try:
-                prov = doc.provision(pid)
-            except KeyError:
+            prov = find_provision(doc, pid)  # an index, not a search of the document per cell
+            if prov is None:
                 return ""
             return provision_caption(prov) + "\n" + prov.text
         if role == Qt.ItemDataRole.ToolTipRole and col == self.GUTTER:

@@ -48,6 +48,7 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
+from core.labels import find_provision
 from core.model import Deviation, Edit, Pair, Provision, Review
 
 from . import marks as mk
@@ -436,8 +437,9 @@ class SideBySideView(QWidget):
                 if d.draft_span:
                     dm.append(mk.Mark(*d.draft_span, mk.INSERTED))
         shown = self._display.shown_categories()
-        p_text = review.precedent.provision(pair.precedent).text
-        d_text = review.draft.provision(pair.draft).text
+        # provisions by id from an index (core.labels), not a search of the document per cell
+        p_text = find_provision(review.precedent, pair.precedent).text  # type: ignore[union-attr]
+        d_text = find_provision(review.draft, pair.draft).text  # type: ignore[union-attr]
         p_terms = mk.term_marks(p_text, [t.precedent for t in review.term_map])
         d_terms = mk.term_marks(d_text, [t.draft for t in review.term_map])
         # A hunk that is only a renamed defined term is shown as a term, not as an edit (the
@@ -470,11 +472,11 @@ class SideBySideView(QWidget):
         pid = pair.precedent if side == "precedent" else pair.draft
         prov = None
         if pid is not None:
-            prov = (review.precedent if side == "precedent" else review.draft).provision(pid)
+            prov = find_provision(review.precedent if side == "precedent" else review.draft, pid)
         other_pid = pair.draft if side == "precedent" else pair.precedent
         other = None
         if other_pid is not None:
-            other = (review.draft if side == "precedent" else review.precedent).provision(other_pid)
+            other = find_provision(review.draft if side == "precedent" else review.precedent, other_pid)
         pm, dm = self.side_marks(row) if prov is not None else ([], [])
         note = ""
         if side == "draft":

@@ -102,9 +102,13 @@ NO_SHARED_NOTE = ("the documents share no provision: every precedent provision i
 class _Side:
     """One document's provisions tokenised once (lazily); keys follow ``to_key``."""
 
-    def __init__(self, info: DocInfo, matcher: TermMatcher | None) -> None:
+    def __init__(self, info: DocInfo, matcher: TermMatcher | None,
+                 memo: dict[str, BaseTokens] | None = None) -> None:
         self.info = info
         self.matcher = matcher
+        #: text -> its tokens with this side's matcher; shared by two sides with the same
+        #: matcher (most provisions of a draft are the precedent's words, tokenised once)
+        self.memo: dict[str, BaseTokens] = {} if memo is None else memo
         n = len(info.provisions)
         self._text: list[BaseTokens | None] = [None] * n
         self._head: list[BaseTokens | None] = [None] * n
@@ -112,16 +116,22 @@ class _Side:
         #: names compared as their words (terms that only one document has)
         self.plain: frozenset[str] = frozenset()
 
+    def _tokens(self, text: str) -> BaseTokens:
+        bt = self.memo.get(text)
+        if bt is None:
+            bt = self.memo[text] = base_tokens(text, self.matcher)
+        return bt
+
     def text(self, i: int) -> BaseTokens:
         bt = self._text[i]
         if bt is None:
-            bt = self._text[i] = base_tokens(self.info.provisions[i].text, self.matcher)
+            bt = self._text[i] = self._tokens(self.info.provisions[i].text)
         return bt
 
     def head(self, i: int) -> BaseTokens:
         bt = self._head[i]
         if bt is None:
-            bt = self._head[i] = base_tokens(self.info.provisions[i].heading or "", self.matcher)
+            bt = self._head[i] = self._tokens(self.info.provisions[i].heading or "")
         return bt
 
     def seq(self, i: int, xref: Callable[[str, str], str] | None = None) -> TokenSeq:
@@ -380,8 +390,12 @@ def _sides(di: DocInfo, pi: DocInfo, names: Sequence[str]
            ) -> tuple[_Side, _Side, tuple[dict[str, int], dict[str, int]]]:
     """Both documents tokenised with every name of *names* as a term (each document's own
     aliases read as their terms), and the uses of each name in each document."""
-    dside = _Side(di, term_matcher(names, aliases=di.alias_of, capitals=True))
-    pside = _Side(pi, term_matcher(names, aliases=pi.alias_of, capitals=True))
+    dmatch = term_matcher(names, aliases=di.alias_of, capitals=True)
+    dside = _Side(di, dmatch)
+    if dict(di.alias_of) == dict(pi.alias_of):  # the same matcher: share the tokens of equal texts
+        pside = _Side(pi, dmatch, dside.memo)
+    else:
+        pside = _Side(pi, term_matcher(names, aliases=pi.alias_of, capitals=True))
     n_d, n_p = len(di.provisions), len(pi.provisions)
     uses = (count_term_uses([*(dside.text(i) for i in range(n_d)), *(dside.head(i) for i in range(n_d))]),
             count_term_uses([*(pside.text(i) for i in range(n_p)), *(pside.head(i) for i in range(n_p))]))

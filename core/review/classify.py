@@ -297,10 +297,18 @@ def _fills_fields(h: _Hunk) -> bool:
     points: list[int] = []  # where the draft adds words, as offsets of the precedent
     k = 0
     added = False
+    folded: dict[str, str] = {}  # a rewritten clause repeats its words: fold each once
+
+    def fold(tok: str) -> str:
+        got = folded.get(tok)
+        if got is None:
+            got = folded[tok] = fold_text(tok)
+        return got
+
     for j in range(h.j1, h.j2):
         if b.kinds[j] == KIND_SPACE:
             continue
-        if k < len(pk) and fold_text(a.token(pk[k])) == fold_text(b.token(j)):
+        if k < len(pk) and fold(a.token(pk[k])) == fold(b.token(j)):
             if added:
                 points.append(a.starts[pk[k]])
             added = False

@@ -278,13 +278,17 @@ _CUR_PRE = r"(?P<cur1>£|\$|€|\b(?:GBP|USD|EUR|CHF|JPY|AUD|CAD)\s?)"
 _CUR_POST = r"(?P<cur2>pounds(?:\s+sterling)?|sterling|dollars|euros|GBP|USD|EUR|CHF)"
 _UNIT = (r"(?P<unit>(?:business\s+|working\s+|calendar\s+|clear\s+|banking\s+)?"
          r"(?:days?|weeks?|months?|years?|hours?|minutes?|quarters?))")
-_QUANTITY_RE = re.compile(
+_QUANTITY_BODY = (
     rf"{_CUR_PRE}?"
     rf"(?:(?P<w>\b{_WORDS})\s*\(\s*(?P<wf>{_FIG})\s*\)|(?P<f>(?<![\w.]){_FIG})|(?P<wo>\b{_WORDS}\b))"
     r"(?:\s?(?P<mult>million|billion|thousand|bn|m|k)\b)?"
-    rf"(?:\s*(?P<pct>%|per\s?cent\b|percent\b)|\s+{_UNIT}\b|\s?{_CUR_POST}\b)?",
-    re.IGNORECASE,
+    rf"(?:\s*(?P<pct>%|per\s?cent\b|percent\b)|\s+{_UNIT}\b|\s?{_CUR_POST}\b)?"
 )
+#: A figure starts with a currency sign, a digit or at the start of a word (every branch of
+#: the body does): the look-ahead says so first, and the search skips the other positions
+#: about twice as fast, with the same matches (tested against the body alone).
+_QUANTITY_START = r"(?=[£$€\d]|\b\w)"
+_QUANTITY_RE = re.compile(_QUANTITY_START + _QUANTITY_BODY, re.IGNORECASE)
 _MULT = {"million": 10**6, "m": 10**6, "billion": 10**9, "bn": 10**9, "thousand": 1000, "k": 1000}
 _CURRENCY_CODE = {"£": "GBP", "$": "USD", "€": "EUR", "pounds": "GBP", "pounds sterling": "GBP",
                   "sterling": "GBP", "dollars": "USD", "euros": "EUR"}

@@ -335,3 +335,20 @@ def test_clause_type_from_heading_equals_the_keyword_patterns(words) -> None:
                  if re.search(r"(?<![\w])" + r"\s+".join(map(re.escape, w.split())) + r"(?![\w])", h)),
                 None)
     assert guess_clause_type(heading, rules=rules) == want
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.lists(st.sampled_from(_FRAGMENTS + ["£5", "$1,000", "€ 20", "x10", "v.2", ".5", "ſixty (60) days",
+                                              "ten%", "USD5", "-"]), max_size=30),
+       st.sampled_from(["", " ", "a", "."]))
+def test_the_figure_pattern_matches_as_its_body_alone(parts, glue) -> None:
+    """Reference: the figure pattern without its leading look-ahead (which only says where a
+    figure can start): the same matches, with the same groups."""
+    import re
+
+    from core.review.severity import _QUANTITY_BODY, _QUANTITY_RE
+
+    text = glue.join(parts)
+    body = re.compile(_QUANTITY_BODY, re.IGNORECASE)
+    assert ([(m.span(), m.groupdict()) for m in _QUANTITY_RE.finditer(text)]
+            == [(m.span(), m.groupdict()) for m in body.finditer(text)])
