@@ -182,7 +182,13 @@ def _builds(lib: Path, *, documents: int, pages: int, workers: int) -> dict[str,
     with _TreeMemory() as memory:
         out["first_build_s"] = _timed(build)
     out["build_tree_peak_mb"] = memory.peak_mb
-    out["no_change_s"] = _timed(build)
+    return out | one_file_updates(lib, build, documents=documents, pages=pages)
+
+
+def one_file_updates(lib: Path, build: Callable[[], object], *, documents: int, pages: int) -> dict[str, float]:
+    """After a first build of *lib*: a no-change rebuild, then one agreement added, changed
+    and removed, each followed by *build*: seconds each (shared with bench_store.py)."""
+    out = {"no_change_s": _timed(build)}
     (lib / "added.docx").write_bytes(make_agreement_docx(pages=pages, seed=LIBRARY_SEED + documents))
     out["add_one_s"] = _timed(build)
     middle = sorted(lib.glob("agreement-*.docx"))[documents // 2]

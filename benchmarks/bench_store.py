@@ -28,39 +28,23 @@ from __future__ import annotations
 import json
 import sys
 import tempfile
-import time
 from collections.abc import Callable
 from pathlib import Path
 
 # _measure first: importing it puts the repository root on sys.path.
 from _measure import argument_parser
 
-from _corpus import make_agreement_docx
-from bench_library import LIBRARY_SEED, REPEATS, _cli_seconds, _corpus, _link_copy, _review_pair
+from bench_library import REPEATS, _cli_seconds, _corpus, _link_copy, _review_pair, _timed, one_file_updates
 from core.library.index import Library, build_library
 
 BACKENDS = ("sqlite", "postgresql")
 
 
-def _timed(fn: Callable[[], object]) -> float:
-    start = time.perf_counter()
-    fn()
-    return time.perf_counter() - start
-
-
 def _history(lib: Path, store: str | None, *, documents: int, pages: int, workers: int) -> dict[str, float]:
     """First build, no-change rebuild, one agreement added, changed, removed: seconds each."""
     build = lambda: build_library(lib, store=store, workers=workers)  # noqa: E731
-    out = {"first_build_s": _timed(build), "no_change_s": _timed(build)}
-    (lib / "added.docx").write_bytes(make_agreement_docx(pages=pages, seed=LIBRARY_SEED + documents))
-    out["add_one_s"] = _timed(build)
-    middle = sorted(lib.glob("agreement-*.docx"))[documents // 2]
-    middle.unlink()  # a hard link: the cached corpus keeps its copy
-    middle.write_bytes(make_agreement_docx(pages=pages, seed=LIBRARY_SEED + documents + 1))
-    out["change_one_s"] = _timed(build)
-    (lib / "added.docx").unlink()
-    out["remove_one_s"] = _timed(build)
-    return out
+    first = _timed(build)
+    return {"first_build_s": first} | one_file_updates(lib, build, documents=documents, pages=pages)
 
 
 def _reviews(targets: dict[str, str], draft: str, prec: str) -> dict[str, float]:

@@ -224,13 +224,7 @@ def roughen(data: bytes, *, seed: int, features: Iterable[str] = FEATURES) -> by
                                                               encoding="UTF-8", standalone=True)
     replaced["[Content_Types].xml"] = etree.tostring(types, xml_declaration=True, encoding="UTF-8",
                                                      standalone=True)
-    out = io.BytesIO()
-    with zipfile.ZipFile(out, "w", zipfile.ZIP_DEFLATED) as zout:
-        for info in zin.infolist():
-            zout.writestr(info.filename, replaced.get(info.filename, zin.read(info)))
-        for name, payload in added.items():
-            zout.writestr(name, payload)
-    return out.getvalue()
+    return _repacked(zin, replaced, added)
 
 
 def smart_quotes(text: str) -> str:
@@ -327,6 +321,11 @@ def house_style(data: bytes, *, spacing_after: int | None = None, font: str | No
     replaced = {name: etree.tostring(el, xml_declaration=True, encoding="UTF-8", standalone=True)
                 for name, el in (("word/styles.xml", styles), ("word/document.xml", document),
                                  ("word/_rels/document.xml.rels", rels), ("[Content_Types].xml", types))}
+    return _repacked(zin, replaced, added)
+
+
+def _repacked(zin: zipfile.ZipFile, replaced: dict[str, bytes], added: dict[str, bytes]) -> bytes:
+    """The package of *zin* with the parts in *replaced* swapped and *added* appended."""
     out = io.BytesIO()
     with zipfile.ZipFile(out, "w", zipfile.ZIP_DEFLATED) as zout:
         for info in zin.infolist():
