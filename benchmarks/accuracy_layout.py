@@ -23,14 +23,14 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from core.layout.assemble import blocks_from_lines, lines_as_text  # noqa: E402
-from core.layout.cleanup import drop_running  # noqa: E402
-from core.layout.lines import lines_from_text  # noqa: E402
-from core.readers import document_from_blocks, read_document, read_text  # noqa: E402
-from core.readers.pdf import pdf_lines  # noqa: E402
-from tests.support.layout_corpus import TEST_KEYS, fresh_keys, held_out_keys  # noqa: E402
-from tests.support.printed import STYLES, print_licences  # noqa: E402
-from tests.support.structure_match import match_provisions  # noqa: E402
+from core.layout.assemble import blocks_from_lines, lines_as_text
+from core.layout.cleanup import drop_running
+from core.layout.lines import lines_from_text
+from core.readers import document_from_blocks, read_document, read_text
+from core.readers.pdf import pdf_lines
+from tests.support.layout_corpus import TEST_KEYS, fresh_keys, held_out_keys
+from tests.support.printed import STYLES, print_licences
+from tests.support.structure_match import match_provisions
 
 
 def main() -> int:

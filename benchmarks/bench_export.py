@@ -27,21 +27,21 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from bench_review import make_pair  # noqa: E402
+from bench_review import make_pair
 
-from core.decisions import Decision  # noqa: E402
-from core.docx.validate import validate_docx  # noqa: E402
-from core.export import (  # noqa: E402
+from core.decisions import Decision
+from core.docx.validate import validate_docx
+from core.export import (
     counter_draft_bytes,
     issues_list_csv,
     issues_list_docx,
     issues_list_html,
     redline_bytes,
 )
-from core.review import run_review  # noqa: E402
+from core.review import run_review
 
 
-def _best(fn, repeat: int = 3):  # noqa: ANN001, ANN202
+def _best(fn, repeat: int = 3):
     best, result = float("inf"), None
     for _ in range(repeat):
         t = time.perf_counter()
@@ -50,7 +50,7 @@ def _best(fn, repeat: int = 3):  # noqa: ANN001, ANN202
     return best, result
 
 
-def _peak(fn) -> float:  # noqa: ANN001
+def _peak(fn) -> float:
     tracemalloc.start()
     try:
         fn()

@@ -43,10 +43,11 @@ import time
 from collections.abc import Callable
 from pathlib import Path
 
+from _corpus import AGREEMENT_LISTS, make_agreement_docx, make_agreement_paragraphs
+
 # _measure first: importing it puts the repository root on sys.path.
 from _measure import argument_parser, peak_rss_mb, verdict
 
-from _corpus import AGREEMENT_LISTS, make_agreement_docx, make_agreement_paragraphs
 from core.docx.compose import compose_docx
 from core.library.index import build_library
 
@@ -237,7 +238,7 @@ def _vocabulary_loads(lib: Path) -> dict[str, float]:
             "gensim_import_s": _python_seconds("import gensim.models")}
 
 
-def _run(args) -> dict[str, float]:  # noqa: ANN001 - argparse.Namespace
+def _run(args) -> dict[str, float]:
     corpus = Path(tempfile.gettempdir()) / f"counterdraft-bench-library-{args.documents}x{args.pages}"
     made = _corpus(corpus, args.documents, args.pages, workers=args.workers)
     print(f"corpus: {args.documents} agreements of ~{args.pages} pages in {corpus} "

@@ -55,10 +55,11 @@ from collections.abc import Callable, Sequence
 from pathlib import Path
 from types import SimpleNamespace
 
+from _corpus import AGREEMENT_LISTS, _sentence, make_agreement_paragraphs
+
 # _measure first: importing it puts the repository root and benchmarks/ on sys.path.
 from _measure import argument_parser
 
-from _corpus import AGREEMENT_LISTS, _sentence, make_agreement_paragraphs
 from core.docx.compose import ComposeParagraph, compose_docx
 
 REPO = Path(__file__).resolve().parents[1]

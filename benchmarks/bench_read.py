@@ -18,10 +18,11 @@ from __future__ import annotations
 import tempfile
 from pathlib import Path
 
+from _corpus import make_agreement_docx
+
 # _measure first: importing it puts the repository root on sys.path.
 from _measure import argument_parser, best_of, peak_rss_mb, traced_peak_mb, verdict
 
-from _corpus import make_agreement_docx
 from core.docx.blocks import read_docx_blocks
 from core.readers import read_document
 

@@ -40,12 +40,12 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from _corpus import AGREEMENT_LISTS, make_agreement_paragraphs  # noqa: E402
+from _corpus import AGREEMENT_LISTS, make_agreement_paragraphs
 
-from core.docx.compose import ComposeParagraph, compose_docx  # noqa: E402
-from core.model import Document, Review  # noqa: E402
-from core.readers import read_document  # noqa: E402
-from core.review import clear_caches, run_review  # noqa: E402
+from core.docx.compose import ComposeParagraph, compose_docx
+from core.model import Document, Review
+from core.readers import read_document
+from core.review import clear_caches, run_review
 
 #: Planted edits per pair and their kinds (cycled).
 EDITS = 30

@@ -33,8 +33,8 @@ from pathlib import Path
 
 # _measure first: importing it puts the repository root on sys.path.
 from _measure import argument_parser
-
 from bench_library import REPEATS, _cli_seconds, _corpus, _link_copy, _review_pair, _timed, one_file_updates
+
 from core.library.index import Library, build_library
 
 BACKENDS = ("sqlite", "postgresql")
@@ -66,7 +66,7 @@ def _same_answers(a: Library, b: Library) -> bool:
             and a.failures() == b.failures() and a.variant_positions() == b.variant_positions())
 
 
-def _run(args, address: str, admin: Callable[[str], list[tuple]]) -> dict[str, float]:  # noqa: ANN001
+def _run(args, address: str, admin: Callable[[str], list[tuple]]) -> dict[str, float]:
     corpus = Path(tempfile.gettempdir()) / f"counterdraft-bench-library-{args.documents}x{args.pages}"
     made = _corpus(corpus, args.documents, args.pages, workers=args.workers)
     print(f"corpus: {args.documents} agreements of ~{args.pages} pages in {corpus} "

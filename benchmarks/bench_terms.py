@@ -15,9 +15,9 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from core.readers import read_text  # noqa: E402
-from core.review import run_review  # noqa: E402
-from tests.core.test_hostile_sizes import _many_definitions  # noqa: E402
+from core.readers import read_text
+from core.review import run_review
+from tests.core.test_hostile_sizes import _many_definitions
 
 #: Growth exponent above which a step is not near-linear.
 MAX_EXPONENT = 1.3

@@ -87,7 +87,7 @@ def cases() -> dict[str, tuple]:
     return out
 
 
-def signature(review) -> tuple[set, set]:  # noqa: ANN001 - core.model.Review
+def signature(review) -> tuple[set, set]:
     return ({(p.draft or "", p.precedent or "", p.status) for p in review.pairs},
             {(m.draft, m.precedent) for m in review.term_map})
 
@@ -97,7 +97,7 @@ def candidate_figures(inputs: dict[str, tuple]) -> None:
     captured = []
     real = al.align
 
-    def spy(d, p):  # noqa: ANN001, ANN202
+    def spy(d, p):
         res = real(d, p)
         captured.append((d, p, res))
         return res

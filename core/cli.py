@@ -89,7 +89,7 @@ def _cmd_review(args: argparse.Namespace) -> int:
     return 0
 
 
-def _run_review(draft, precedent, *, library_folder: str | None, overrides=(),  # noqa: ANN001, ANN202
+def _run_review(draft, precedent, *, library_folder: str | None, overrides=(),
                 acting_for: str | None = None):
     """The one place the CLI runs the engine: with the precedent set's figures when given,
     acting for a party when given."""
@@ -108,19 +108,19 @@ def _run_review(draft, precedent, *, library_folder: str | None, overrides=(),  
         library.close()
 
 
-def _review_runner(library_folder: str | None):  # noqa: ANN202
+def _review_runner(library_folder: str | None):
     """The runner that reopens a review file: with its precedent set when it recorded one."""
     if not library_folder:
         return None
 
-    def run(draft, precedent, *, overrides=(), acting_for=None):  # noqa: ANN001, ANN202
+    def run(draft, precedent, *, overrides=(), acting_for=None):
         return _run_review(draft, precedent, library_folder=library_folder, overrides=overrides,
                            acting_for=acting_for)
 
     return run
 
 
-def _open_review_file(path: str):  # noqa: ANN202
+def _open_review_file(path: str):
     from .decisions import load_review_file, read_library_folder
 
     record = load_review_file(path, runner=_review_runner(read_library_folder(path)))
@@ -129,7 +129,7 @@ def _open_review_file(path: str):  # noqa: ANN202
     return record
 
 
-def _deviation_by_number(review, given: str, path: str):  # noqa: ANN001, ANN202
+def _deviation_by_number(review, given: str, path: str):
     """The deviation *given* names: its number (the rank every output shows, e.g. "3") or
     its internal id (e.g. "v12", which saved scripts use)."""
     devs = review.deviations
@@ -148,7 +148,7 @@ def _cmd_decide(args: argparse.Namespace) -> int:
 
     found = []
 
-    def record_it(record):  # noqa: ANN001, ANN202
+    def record_it(record):
         for note in record.notes:
             print(f"counterdraft: note: {note}", file=sys.stderr)
         dev = _deviation_by_number(record.review, args.deviation, args.review_file)
@@ -239,7 +239,7 @@ def apply_demo_stances(library_folder: str | os.PathLike[str]) -> None:
                 library.label_variant(vid, stance)
 
 
-def _numbers(devs) -> str:  # noqa: ANN001
+def _numbers(devs) -> str:
     """"deviations 1, 2 and 3": the numbers every output shows, in a sentence."""
     nums = [str(d.rank) for d in devs]
     if not nums:
@@ -251,10 +251,10 @@ def _numbers(devs) -> str:  # noqa: ANN001
 
 def _cmd_demo(args: argparse.Namespace) -> int:
     """The main job on the bundled demo: review, save, record example decisions, export."""
+    from .console import terminal_width
     from .decisions import decide, new_review_file, save_review_file
     from .export import default_author, write_counter_draft, write_issues_list, write_redline
     from .readers import read_document
-    from .console import terminal_width
     from .review.report import format_review
 
     width = terminal_width()

@@ -492,7 +492,7 @@ def _check_schema(data: Any, spath: str) -> None:
 
 
 @functools.cache
-def _review_file_validator():  # noqa: ANN202 - jsonschema's validator class
+def _review_file_validator():
     """The Draft 2020-12 validator of the review-file schema, with the review and document
     schemas it refers to (the project's own resources/schemas)."""
     import jsonschema

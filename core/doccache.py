@@ -163,7 +163,7 @@ def _store(folder: Path, entry: Path, key: str, doc: Document) -> None:
         finally:
             os.umask(old)
         _prune(folder)
-    except Exception:  # noqa: BLE001 - a cache that cannot be written is no cache, never an error
+    except Exception:
         return
 
 

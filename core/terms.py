@@ -778,7 +778,7 @@ def walk_forms(text: str, trie: dict, *, word_start: bool = False) -> Iterable[t
         i = best[1]
 
 
-def _use_finder(owner: Mapping[str, str]):  # noqa: ANN202 - a text -> forms function
+def _use_finder(owner: Mapping[str, str]):
     """A function giving the forms (white space collapsed, possessive ending dropped) of
     the uses of *owner*'s names in a text: a compiled pattern for an agreement's few names,
     the character-trie walk for many (:data:`REGEX_FORMS_MAX`)."""

@@ -22,9 +22,9 @@ from core.model import Deviation, Review
 
 from .engine import can_change
 from .labels import CATEGORY_NAMES, CHANGE_NAMES, PAST_USE, clause_label, frequency_sentence
-from .tally import tally, tally_glyphs
 from .palette import DELETED, INSERTED, MUTED_INK, TALLY
 from .state import Change, Workspace
+from .tally import tally, tally_glyphs
 
 __all__ = ["DecisionPanel", "KEYS"]
 

@@ -19,8 +19,8 @@ from pathlib import Path
 from typing import Any
 
 from core.errors import CounterdraftError
-from core.readers import formats_summary
 from core.model import Deviation, Edit, Pair, Review, TermMapping
+from core.readers import formats_summary
 
 from .state import Inputs
 from .tasks import IsCancelled, Report, check_cancelled
@@ -182,7 +182,7 @@ def load_and_review(
 def _remap(decisions: Sequence[Any], review: Review) -> tuple[tuple[Any, ...], list[str]]:
     import core.decisions as cd
 
-    remap = getattr(cd, "remap_decisions", None) or cd._remap  # noqa: SLF001 - see the report
+    remap = getattr(cd, "remap_decisions", None) or cd._remap
     kept, notes = remap(decisions, review)
     return tuple(kept), list(notes)
 

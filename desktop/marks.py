@@ -67,7 +67,7 @@ def term_marks(text: str, names: Iterable[str]) -> list[Mark]:
 
 
 @lru_cache(maxsize=8)
-def _matcher(names: tuple[str, ...]):  # noqa: ANN202 - core.review.tokens.TermMatcher | None
+def _matcher(names: tuple[str, ...]):
     """The engine's matcher of *names*, built once per set of names: a review's side-by-side
     view marks every row's two texts with the same names (building the matcher for each cell
     took longer than the rest of showing a review)."""

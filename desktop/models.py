@@ -25,12 +25,12 @@ from core.model import Deviation, Pair, Review, TermMapping
 from .labels import (
     CATEGORY_NAMES,
     DIRECTION_ORDER,
+    PAST_USE,
     SHORT_DECISION_NAMES,
     STATUS_NAMES,
     clause_label,
     direction_sentence,
     direction_text,
-    PAST_USE,
     frequency_sentence,
     frequency_text,
     provision_caption,

@@ -24,7 +24,7 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
-from PySide6.QtCore import QObject, QSettings, QThreadPool, QTimer, Qt, Signal
+from PySide6.QtCore import QObject, QSettings, Qt, QThreadPool, QTimer, Signal
 from PySide6.QtGui import QAction, QCloseEvent, QDragEnterEvent, QDropEvent, QKeySequence
 from PySide6.QtWidgets import (
     QFileDialog,
@@ -392,7 +392,7 @@ class MainWindow(QMainWindow):
             return
         try:
             content = engine.variants_content(ws.library, ws.review, d)
-        except Exception as exc:  # noqa: BLE001 - shown, never raised into Qt
+        except Exception as exc:
             self.variants.clear(one_line(exc))
             return
         if isinstance(content, str):
@@ -550,7 +550,7 @@ class MainWindow(QMainWindow):
             return
         try:
             overrides = engine.add_override(ws.overrides, kind, draft, precedent)
-        except Exception as exc:  # noqa: BLE001 - e.g. an empty term: one line in a dialog
+        except Exception as exc:
             self._fail(exc)
             return
         inputs = ws.inputs
@@ -614,7 +614,7 @@ class MainWindow(QMainWindow):
             return
         try:
             self.ws.record = engine.decide(self.ws.record, did, action, text=text, note=note)
-        except Exception as exc:  # noqa: BLE001 - the engine refuses e.g. reverting a move
+        except Exception as exc:
             self._fail(exc)
             return
         self.ws.unsaved = True
@@ -688,7 +688,7 @@ class MainWindow(QMainWindow):
             # saving over the file this review came from keeps what others recorded in it
             ws.record = engine.save_review_file(str(path), ws.record,
                                                 base=ws.saved_decisions if same_file else None)
-        except Exception as exc:  # noqa: BLE001
+        except Exception as exc:
             self._fail(exc)
             return
         ws.saved_decisions = tuple(ws.record.decisions)
@@ -801,7 +801,7 @@ class MainWindow(QMainWindow):
             self.broadcast(Change.BUSY)
             try:
                 on_done(result)
-            except Exception as exc:  # noqa: BLE001 - never let an exception escape into Qt
+            except Exception as exc:
                 self._fail(exc)
                 return
             self.operationFinished.emit(label)

@@ -79,7 +79,7 @@ def _printed_lines(pdf: Path) -> tuple:
     cache = pdf.with_suffix(".lines.pickle")
     if cache.exists() and cache.stat().st_mtime >= pdf.stat().st_mtime:
         with open(cache, "rb") as fh:
-            return pickle.load(fh)  # noqa: S301 - written by this script, in its own folder
+            return pickle.load(fh)
     lines, _ = pdf_lines(str(pdf))
     lines, _ = drop_running(lines)
     with open(cache, "wb") as fh:

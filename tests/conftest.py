@@ -18,7 +18,7 @@ _CACHE = tempfile.mkdtemp(prefix="counterdraft-test-cache-")
 os.environ["COUNTERDRAFT_CACHE_DIR"] = _CACHE
 
 
-def pytest_unconfigure(config) -> None:  # noqa: ANN001 - pytest's Config
+def pytest_unconfigure(config) -> None:
     shutil.rmtree(_CACHE, ignore_errors=True)
 
 

@@ -14,8 +14,8 @@ Cost: parsing is O(number of styles x chain depth); chains are cut at
 from __future__ import annotations
 
 import re
+from collections.abc import Mapping
 from dataclasses import dataclass, field
-from typing import Mapping
 
 from lxml import etree
 
@@ -87,7 +87,7 @@ class RunFormat:
     #: ``w:lang/@w:val`` (§17.3.2.20), the language of Latin text, e.g. "fr-FR".
     lang: str | None = None
 
-    def over(self, base: "RunFormat") -> "RunFormat":
+    def over(self, base: RunFormat) -> RunFormat:
         """These properties where set, else *base*'s."""
         return RunFormat(
             bold=self.bold if self.bold is not None else base.bold,

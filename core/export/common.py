@@ -52,9 +52,9 @@ def default_author() -> str:
 
 
 def stamp_date(when: _dt.datetime | None) -> str:
-    when = when or _dt.datetime.now(_dt.timezone.utc)
+    when = when or _dt.datetime.now(_dt.UTC)
     if when.tzinfo is not None:
-        when = when.astimezone(_dt.timezone.utc)
+        when = when.astimezone(_dt.UTC)
     return when.replace(microsecond=0, tzinfo=None).isoformat() + "Z"
 
 

@@ -111,7 +111,7 @@ def geometry(lines: Sequence[Line]) -> Geometry:
     ends = sorted(ln.x1 for ln in body)
     right = ends[int(RIGHT_EDGE_QUANTILE * (len(ends) - 1))] if ends else left + 1.0
     steps = [b.top - a.top for a, b in zip(body, body[1:])
-             if a.page == b.page and 0 < b.top - a.top]
+             if a.page == b.page and b.top - a.top > 0]
     # The line distance inside a paragraph: the commonest step among the tight ones (in a
     # document of one-line paragraphs the commonest step of all is the paragraph distance).
     tight = [s for s in steps if s <= TIGHT_PITCH_EM * em] if fonts else []

@@ -52,10 +52,10 @@ class BucketArrays:
     def rows(self) -> int:
         return int(self.hashes.size)
 
-    def shingle_matrix(self):  # noqa: ANN201 - scipy.sparse.csr_matrix
+    def shingle_matrix(self):
         return _csr(self.indptr, self.indices, self.rows, self.cols.size)
 
-    def word_matrix(self):  # noqa: ANN201 - scipy.sparse.csr_matrix
+    def word_matrix(self):
         return _csr(self.windptr, self.windices, self.rows, self.wcols.size)
 
     def shingle_sets(self) -> Sequence[np.ndarray]:
@@ -86,7 +86,7 @@ class _RowSets(Sequence[np.ndarray]):
     def _row(self, i: int) -> np.ndarray:
         return self._cols[self._indices[self._indptr[i]:self._indptr[i + 1]]]
 
-    def __getitem__(self, key):  # noqa: ANN001, ANN204 - int or slice, as a Sequence
+    def __getitem__(self, key):
         if isinstance(key, slice):
             return [self._row(i) for i in range(*key.indices(len(self)))]
         if key < 0:
@@ -96,13 +96,13 @@ class _RowSets(Sequence[np.ndarray]):
         return self._row(key)
 
 
-def _csr(indptr: np.ndarray, indices: np.ndarray, rows: int, cols: int):  # noqa: ANN202
+def _csr(indptr: np.ndarray, indices: np.ndarray, rows: int, cols: int):
     from scipy.sparse import csr_matrix
 
     return csr_matrix((np.ones(indices.size, dtype=np.int32), indices, indptr), shape=(rows, cols))
 
 
-def _merge(cols: np.ndarray, matrix, take: np.ndarray,  # noqa: ANN001
+def _merge(cols: np.ndarray, matrix, take: np.ndarray,
            new_sets: Sequence[np.ndarray]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """(columns, indptr, indices) of rows that are old rows ``take[i] >= 0`` or, in order, the
     sets of *new_sets* (``take[i] < 0``)."""

@@ -52,18 +52,18 @@ def progress_bar(description: str) -> tuple[Callable[..., None], Callable[[], No
     return update, close
 
 
-def warn_skipped(failures) -> None:  # noqa: ANN001 - Sequence[Failure]
+def warn_skipped(failures) -> None:
     for f in failures:
         print(f"counterdraft: warning: skipped {f.path}: {f.problem}", file=sys.stderr)
 
 
-def note_rebuilt(report) -> None:  # noqa: ANN001 - BuildReport
+def note_rebuilt(report) -> None:
     """One line on stderr when the build set a damaged index aside and rebuilt it."""
     if report.rebuilt:
         print(f"counterdraft: note: {report.rebuilt}", file=sys.stderr)
 
 
-def open_library_for_cli(folder: str, *, db: str | None = None, refresh: bool = True, workers: int = 2):  # noqa: ANN201
+def open_library_for_cli(folder: str, *, db: str | None = None, refresh: bool = True, workers: int = 2):
     """Open (building or refreshing when *refresh*) the index of *folder*, with a progress
     bar, warning about skipped files.  *folder* may be a shared store's address: it is read
     as it is (its builders refresh it)."""
@@ -88,7 +88,7 @@ def open_library_for_cli(folder: str, *, db: str | None = None, refresh: bool = 
     return library
 
 
-def review_options(library) -> dict[str, Any]:  # noqa: ANN001
+def review_options(library) -> dict[str, Any]:
     """Keyword arguments for ``run_review`` with a library: its vocabulary and clause typing."""
     from .frequency import clause_type_function
 
@@ -108,7 +108,7 @@ def _write_json(obj: object, out: str) -> None:
         atomic_write_text(out, text)
 
 
-def _variant_config(args: argparse.Namespace):  # noqa: ANN202
+def _variant_config(args: argparse.Namespace):
     from .variants import VariantConfig
 
     if args.cutoff is None and args.linkage is None and args.metric is None:
@@ -255,7 +255,7 @@ def _add_common(p: argparse.ArgumentParser, *, dir_optional: bool) -> None:
     p.add_argument("--db", dest="store", metavar="PATH", help=argparse.SUPPRESS)  # earlier name of --store
 
 
-def add_library_parser(sub) -> None:  # noqa: ANN001 - argparse's subparsers action
+def add_library_parser(sub) -> None:
     """Register ``counterdraft library build|stats|label|calibrate|patterns``."""
     from .options import LINKAGES, METRICS, POSITIONS
 

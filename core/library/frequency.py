@@ -131,7 +131,7 @@ def review_types(review: Review, library: Library | None = None) -> ReviewTypes:
     return ReviewTypes({t.provision: t for t in dt}, {t.provision: t for t in pt}, dterms, pterms)
 
 
-def clause_type_function(library: Library | None = None):  # noqa: ANN201
+def clause_type_function(library: Library | None = None):
     """A ``(provision, document) -> clause type id | None`` callable for
     ``run_review(clause_type=...)``: heading, parent, then neighbours (the library's when
     given, else the taxonomy's seed phrases).  Each document is typed once."""

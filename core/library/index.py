@@ -335,7 +335,7 @@ class _Problem:
 _PARTY_CUT_RE = re.compile(r"(?:\)|;|\bbetween\b|\band\b|\(\d+\)|\bBETWEEN\b|\bAND\b)", re.UNICODE)
 
 
-def _party_names(doc) -> tuple[str, ...]:  # noqa: ANN001 - core.model.Document
+def _party_names(doc) -> tuple[str, ...]:
     """"NAME (Term)" for each party label defined in the parties block, when found: the words
     before the label's parenthesis, after the previous party or "between", up to the first
     comma."""
@@ -358,7 +358,7 @@ def _party_names(doc) -> tuple[str, ...]:  # noqa: ANN001 - core.model.Document
     return tuple(dict.fromkeys(names))
 
 
-def _title_of(doc) -> str | None:  # noqa: ANN001
+def _title_of(doc) -> str | None:
     for p in doc.provisions:
         if p.kind == "title":
             return (p.heading or p.text).strip()[:200] or None
@@ -395,7 +395,7 @@ def _extract(path: str) -> _Extract | _Problem:
         return _Problem(digest, err.problem)
     except MemoryError:
         return _Problem(digest, "too large to read")
-    except Exception as err:  # noqa: BLE001 - one bad file never aborts a build
+    except Exception as err:
         return _Problem(digest, f"unreadable ({type(err).__name__})")
 
 
@@ -583,9 +583,7 @@ def _update_files(store: PrecedentStore, files: Sequence[_FileStat], *, progress
             return BuildReport("", "", total, 0, unchanged, removed, 0, (), True)
         prev = known.get(f.rel)
         prev_fail = failed.get(f.rel)
-        if prev is not None and (prev[2], prev[3]) == (f.size, f.mtime_ns):
-            same = True
-        elif prev_fail is not None and (prev_fail[1], prev_fail[2]) == (f.size, f.mtime_ns):
+        if prev is not None and (prev[2], prev[3]) == (f.size, f.mtime_ns) or prev_fail is not None and (prev_fail[1], prev_fail[2]) == (f.size, f.mtime_ns):
             same = True
         elif prev is not None or (prev_fail is not None and prev_fail[0]):
             try:
@@ -1271,7 +1269,7 @@ class Library:
         return self._neighbours
 
     @property
-    def vocabulary(self):  # noqa: ANN201 - core.library.vocab.LibraryVocabulary | None
+    def vocabulary(self):
         """The library's vocabulary model (``VocabularyModel`` of the term mapper), or None."""
         if self._vocab is None:
             from .vocab import LibraryVocabulary

@@ -144,7 +144,7 @@ class TermReplacer:
         else:
             self._regex = None
 
-    def sub(self, text: str, make_token) -> str:  # noqa: ANN001 - small internal callable
+    def sub(self, text: str, make_token) -> str:
         """*text* (already folded) with each term use replaced by ``make_token(canonical)``."""
         if self._regex is None:
             return text
@@ -177,9 +177,9 @@ def token_spans(text: str, *, terms: TermReplacer | None = None) -> tuple[str, l
             out.append((m.group(0).lower(), a + m.start(), a + m.end()))
 
     pos = 0
-    regex = terms._regex if terms is not None else None  # noqa: SLF001 - same module
+    regex = terms._regex if terms is not None else None
     if regex is not None:
-        canon = terms._canon  # type: ignore[union-attr]  # noqa: SLF001
+        canon = terms._canon  # type: ignore[union-attr]
         for m in regex.finditer(t):
             plain(pos, m.start())
             out.append((TERM_MARK + term_slug(canon[m.group(0)]), m.start(), m.end()))

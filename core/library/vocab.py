@@ -113,7 +113,7 @@ def _segments(sentence: Sequence[str]) -> list[list[str]]:
     return [s for s in out if s]
 
 
-def _apply_phrases(sentence: Sequence[str], phraser) -> list[str]:  # noqa: ANN001
+def _apply_phrases(sentence: Sequence[str], phraser) -> list[str]:
     out: list[str] = []
     run: list[str] = []
     for tok in list(sentence) + [None]:  # type: ignore[list-item]
@@ -128,7 +128,7 @@ def _apply_phrases(sentence: Sequence[str], phraser) -> list[str]:  # noqa: ANN0
     return out
 
 
-def train_vectors(sentences: Sequence[Sequence[str]]):  # noqa: ANN201 - gensim KeyedVectors | None
+def train_vectors(sentences: Sequence[Sequence[str]]):
     """Phrases, then Word2Vec, on tokenised *sentences*; the KeyedVectors, or None when the
     corpus is too small to learn anything (no word seen MIN_COUNT times)."""
     sentences = [list(s) for s in sentences if s]
@@ -168,7 +168,7 @@ class LibraryVocabulary:
         self.key_to_index = {w: i for i, w in enumerate(self.words)}
 
     @classmethod
-    def from_keyed_vectors(cls, kv) -> LibraryVocabulary:  # noqa: ANN001 - gensim KeyedVectors
+    def from_keyed_vectors(cls, kv) -> LibraryVocabulary:
         return cls(list(kv.index_to_key), kv.vectors)
 
     def key(self, name: str) -> str | None:

@@ -270,7 +270,7 @@ def pdf_lines(path: str) -> tuple[tuple[Line, ...], tuple[str, ...]]:
         raise
     except MemoryError:
         raise CounterdraftError("the PDF is too large to read", path=path) from None
-    except Exception as err:  # noqa: BLE001 - pdfminer raises many types for damaged files
+    except Exception as err:
         raise _open_error(err, path) from None
     if not any(ln.text.strip() for ln in lines):
         raise CounterdraftError("the PDF has no text layer (scanned pages or images only); "

@@ -338,7 +338,7 @@ class _Cosines:
         cand: set[tuple[int, int]] = set()
         known = self.known
 
-        def remember(rows, cols, cos, hcos, start: int) -> None:  # noqa: ANN001 - numpy arrays
+        def remember(rows, cols, cos, hcos, start: int) -> None:
             for r, p, c, h in zip((rows + start).tolist(), cols.tolist(), cos[rows, cols].tolist(),
                                   hcos[rows, cols].tolist()):
                 known[(r, p)] = (c, h)
@@ -379,7 +379,7 @@ class _Postings:
     for the others each (draft row, word, precedent row) triple is gathered from the word's
     postings (CSC order) and the products summed with ``bincount``."""
 
-    def __init__(self, p_rows: Sequence[Row], d_rows: Sequence[Row], np) -> None:  # noqa: ANN001 - numpy
+    def __init__(self, p_rows: Sequence[Row], d_rows: Sequence[Row], np) -> None:
         self.np = np
         n_p, n_d = len(p_rows), len(d_rows)
         words = np.asarray([j for r in p_rows for j in r], dtype=np.int64)
@@ -430,7 +430,7 @@ class _Postings:
             out.append((start, len(d_rows)))
         return out
 
-    def product(self, d_rows: Sequence[Row], n_p: int):  # noqa: ANN201 - a numpy array
+    def product(self, d_rows: Sequence[Row], n_p: int):
         """The dense block (len(d_rows) x n_p) of dot products of *d_rows* with the
         precedent rows."""
         np = self.np

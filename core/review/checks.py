@@ -422,7 +422,7 @@ def _fold_text(text: str) -> str:
                    for ch in text)
 
 
-def _folded_finder(forms: Iterable[str]):  # noqa: ANN202 - a text -> [(start, form)] function
+def _folded_finder(forms: Iterable[str]):
     """A function giving (start, folded form) of the uses of *forms* (folded names, see
     :func:`_fold`) in a text, whole words, possessive endings allowed: a regular expression
     for an agreement's names, a character-trie walk (:func:`core.terms.walk_forms`) for the

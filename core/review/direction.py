@@ -394,11 +394,7 @@ def party_terms(doc: Document) -> tuple[str, ...]:
         if t.span is not None:  # the definition's own sentence and a little before it
             around = around[max(0, t.span[0] - _PERSON_NEAR):t.span[1]]
         person = _describes_a_person(t.term, t.definition) or _named_company(t.term, around)
-        if _names_a_party(t.names):
-            found.append(t.term)
-        elif kinds.get(t.provision) in ("parties", "title") and person:
-            found.append(t.term)
-        elif person and sum(_subject_uses(text, n) for n in t.names) >= MIN_SUBJECT_USES:
+        if _names_a_party(t.names) or kinds.get(t.provision) in ("parties", "title") and person or person and sum(_subject_uses(text, n) for n in t.names) >= MIN_SUBJECT_USES:
             found.append(t.term)
     known = {n.casefold() for t in doc.terms for n in t.names}
     counts: dict[str, int] = {}
@@ -663,7 +659,7 @@ class Judge:
             return False
         return not _OWED_NOUN_RE.match(text, e)
 
-    def _payer(self, text: str, ms: int, me: int, lo: int, mentions, after) -> str | None:  # noqa: ANN001
+    def _payer(self, text: str, ms: int, me: int, lo: int, mentions, after) -> str | None:
         """Who owes money that "is due", "is payable", "accrues" or "is refundable": the
         party it is payable by ("payable by Licensee"), else the other side of the party that
         issues the invoice ("invoices issued by the Supplier are due"), else the buying side,
@@ -742,11 +738,11 @@ class Judge:
         return None  # a third party of unknown side
 
     def _name(self, holder: str) -> str:
-        return "each party" if holder == MUTUAL else f"the {holder}" if not holder.casefold() in ("you",) else holder
+        return "each party" if holder == MUTUAL else f"the {holder}" if holder.casefold() not in ("you",) else holder
 
 
     # -- effects --------------------------------------------------------------------------
-    def judge(self, v) -> tuple[str, str | None]:  # noqa: ANN001 - a deviation (core.review._Dev)
+    def judge(self, v) -> tuple[str, str | None]:
         """(direction, reason naming the parties or None) of deviation *v*, which has the
         attributes of :class:`core.model.Deviation` and the ``signals`` the rules found."""
         if v.category != "substantive" or v.part == "heading" or v.change == "move":
@@ -772,7 +768,7 @@ class Judge:
         parent = doc_pos.get(p.parent) if p.parent else None
         return parent.text if parent is not None else None
 
-    def _text_effects(self, v, pp: Provision, dp: Provision) -> list[_Effect]:  # noqa: ANN001
+    def _text_effects(self, v, pp: Provision, dp: Provision) -> list[_Effect]:
         P, D = pp.text, dp.text
         ps, ds = tuple(v.precedent_span), tuple(v.draft_span)
         hp = self.holding(P, ps, parent_text=self._parent_text(self._ppos, pp))
@@ -862,7 +858,7 @@ class Judge:
                        f"('{_excerpt(D, hd.start)}', was '{hp.modal}{' not' if hp.negated else ''}')",
                        hp.stance)
 
-    def _qualifier_effect(self, s: Signal, h: Holding, D: str, ds) -> _Effect | None:  # noqa: ANN001
+    def _qualifier_effect(self, s: Signal, h: Holding, D: str, ds) -> _Effect | None:
         quoted = re.findall(r"'([^']*)'", s.reason)
         if not quoted:
             return None
@@ -887,7 +883,7 @@ class Judge:
             narrows = not narrows
         return self._narrowing(h, narrows, D)
 
-    def _in_carve_out(self, text: str, span, h: Holding) -> bool:  # noqa: ANN001
+    def _in_carve_out(self, text: str, span, h: Holding) -> bool:
         """Whether *span* lies in an exception of the clause ("unless", "except"): a change
         there works the other way round."""
         lo, _hi = _clause_bounds(text, span)
@@ -895,7 +891,7 @@ class Judge:
         return re.search(r"\b(?:except|excepting|unless|other\s+than|excluding|save\s+(?:as|that|for|where))\b",
                          before, re.IGNORECASE) is not None
 
-    def _in_condition(self, text: str, span, h: Holding) -> bool:  # noqa: ANN001
+    def _in_condition(self, text: str, span, h: Holding) -> bool:
         lo, _hi = _clause_bounds(text, span)
         conds = list(_CONDITION_RE.finditer(text, lo, span[0]))
         if not conds:
@@ -903,7 +899,7 @@ class Judge:
         last = conds[-1].end()
         return not (last < h.start < span[0])
 
-    def _conjunction_effect(self, s: Signal, h: Holding, D: str, ds) -> _Effect | None:  # noqa: ANN001
+    def _conjunction_effect(self, s: Signal, h: Holding, D: str, ds) -> _Effect | None:
         quoted = re.findall(r"'([^']*)'", s.reason)
         if len(quoted) < 2:
             return None
@@ -924,8 +920,8 @@ class Judge:
             widens = not widens
         return self._narrowing(h, not widens, D)
 
-    def _figure_effects(self, h: Holding, P: str, ps, D: str, ds) -> list[_Effect]:  # noqa: ANN001
-        def inside(text: str, span) -> list:  # noqa: ANN001
+    def _figure_effects(self, h: Holding, P: str, ps, D: str, ds) -> list[_Effect]:
+        def inside(text: str, span) -> list:
             a, b = span
             qs = find_quantities(text, around=span)
             if a == b:
@@ -954,12 +950,12 @@ class Judge:
                     out.append(e)
         return out
 
-    def _context(self, text: str, q) -> tuple[str, str, str]:  # noqa: ANN001
+    def _context(self, text: str, q) -> tuple[str, str, str]:
         lo, hi = _clause_bounds(text, (q.start, q.end))
         return (text[max(lo, q.start - _FIGURE_CONTEXT):q.start], text[q.end:min(hi, q.end + 30)],
                 text[lo:hi])
 
-    def _figure_effect(self, h: Holding, D: str, q, *, higher: bool) -> _Effect | None:  # noqa: ANN001
+    def _figure_effect(self, h: Holding, D: str, q, *, higher: bool) -> _Effect | None:
         before, after, clause = self._context(D, q)
         what = f"('{_excerpt(D, h.start)}')"
         if q.kind == "duration":
@@ -1001,7 +997,7 @@ class Judge:
                 return owner
         return h.holder
 
-    def _limit_effect(self, h: Holding, text: str, q, *, added: bool) -> _Effect | None:  # noqa: ANN001
+    def _limit_effect(self, h: Holding, text: str, q, *, added: bool) -> _Effect | None:
         """A figure that only one side has: a cap or limit introduced (or dropped)."""
         before, after, clause = self._context(text, q)
         if not (_LIMIT_RE.search(before[-30:]) or _LIMIT_RE.search(after[:15])):
@@ -1012,7 +1008,7 @@ class Judge:
         value = 1 if helps else -1
         return _Effect(value if added else -value, h.holder, f"('{_excerpt(text, h.start)}')", h.stance, "cap")
 
-    def _new_clauses(self, v, P: str, D: str, ps, ds) -> list[_Effect]:  # noqa: ANN001
+    def _new_clauses(self, v, P: str, D: str, ps, ds) -> list[_Effect]:
         """Clauses with their own modal inside the words added (or removed)."""
         out: list[_Effect] = []
         for text, span, added in ((D, ds, True), (P, ps, False)):
@@ -1034,7 +1030,7 @@ class Judge:
                                    h.stance, "clause"))
         return out
 
-    def _scope_effects(self, h: Holding, P: str, ps, D: str, ds) -> list[_Effect]:  # noqa: ANN001
+    def _scope_effects(self, h: Holding, P: str, ps, D: str, ds) -> list[_Effect]:
         """Words added or removed that cut an exception out of the clause or widen it."""
         added, removed = D[ds[0]:ds[1]], P[ps[0]:ps[1]]
         score = 0
@@ -1156,7 +1152,7 @@ _UNIT_DAYS = {"minutes": 1 / 1440, "hours": 1 / 24, "days": 1.0, "business days"
               "weeks": 7.0, "months": 30.0, "quarters": 91.0, "years": 365.0}
 
 
-def _magnitude(q) -> float:  # noqa: ANN001
+def _magnitude(q) -> float:
     if q.kind == "duration":
         return q.value * _UNIT_DAYS.get(q.unit, _UNIT_DAYS.get(q.unit.split()[-1], 1.0))
     return q.value

@@ -27,8 +27,8 @@ from __future__ import annotations
 from typing import Any
 
 from ..model import Deviation, Frequency, Review
-from .checks import Check
 from ..serialize import document_to_dict
+from .checks import Check
 
 __all__ = ["REVIEW_SCHEMA_ID", "check_to_dict", "frequency_to_dict", "review_to_dict"]
 

@@ -24,9 +24,9 @@ from __future__ import annotations
 
 import re
 import tomllib
+from bisect import bisect_left, bisect_right
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
-from bisect import bisect_left, bisect_right
 from functools import lru_cache
 from pathlib import Path
 from typing import Protocol

@@ -34,7 +34,6 @@ from core.errors import CounterdraftError
 from core.review.termmap import TermOverride
 from tests.support.handmade import DRAFT, PRECEDENT, build_scenario
 
-
 SCHEMAS = Path(__file__).resolve().parents[2] / "resources" / "schemas"
 
 
@@ -320,7 +319,7 @@ def test_decisions_are_plain_frozen_data():
 # --------------------------------------------------------------------------------------
 
 
-def _decide_in_process(path: str, dev_id: str, note: str, start) -> None:  # noqa: ANN001
+def _decide_in_process(path: str, dev_id: str, note: str, start) -> None:
     """One reviewer recording a decision (a separate process, as two people would be)."""
     from core.decisions import decide, update_review_file
 

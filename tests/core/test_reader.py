@@ -10,7 +10,8 @@ import hashlib
 
 import pytest
 
-from core.docx.compose import ComposeParagraph as P, compose_docx
+from core.docx.compose import ComposeParagraph as P
+from core.docx.compose import compose_docx
 from core.errors import CounterdraftError
 from core.reader import read_document, read_text
 from tests.support.document_checks import check_document

@@ -14,7 +14,8 @@ from pathlib import Path
 import jsonschema
 import pytest
 
-from core.docx.compose import ComposeParagraph as P, compose_docx
+from core.docx.compose import ComposeParagraph as P
+from core.docx.compose import compose_docx
 from core.model import Document, Provision
 from core.reader import read_document, read_text
 from core.serialize import document_to_dict

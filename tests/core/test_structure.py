@@ -29,7 +29,7 @@ def doc_of(*blocks: Block) -> Document:
     return doc
 
 
-def B(text: str, **kw) -> Block:  # noqa: N802 - a short builder for hand-made blocks
+def B(text: str, **kw) -> Block:
     return Block(index=0, text=text, **kw)
 
 

@@ -209,8 +209,8 @@ def test_markdown_joins_soft_breaks_but_not_labels_after_a_sentence():
 # --------------------------------------------------------------------------------------
 
 def test_decode_utf8_with_and_without_bom():
-    assert decode_text("“Customer” means".encode("utf-8"), path="a.txt") == ("“Customer” means", ())
-    assert decode_text(codecs.BOM_UTF8 + "“Customer”".encode("utf-8"), path="a.txt")[0] == "“Customer”"
+    assert decode_text("“Customer” means".encode(), path="a.txt") == ("“Customer” means", ())
+    assert decode_text(codecs.BOM_UTF8 + "“Customer”".encode(), path="a.txt")[0] == "“Customer”"
 
 
 def test_decode_utf16_with_bom():
@@ -248,7 +248,7 @@ def test_bad_bytes_are_refused_with_one_line(data, message):
 
 def test_read_text_file_reads_without_modifying(tmp_path):
     path = tmp_path / "agreement.md"
-    data = "# Title\n\n1. Price. The price is ten.\n".encode("utf-8")
+    data = b"# Title\n\n1. Price. The price is ten.\n"
     path.write_bytes(data)
     before = path.stat().st_mtime_ns
     blocks, warnings = read_text_file(str(path), markdown=True)

@@ -8,9 +8,9 @@ from pathlib import Path
 
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
-import pytest  # noqa: E402
-from PySide6.QtCore import QSettings, QThreadPool  # noqa: E402
-from PySide6.QtWidgets import QApplication, QMessageBox  # noqa: E402
+import pytest
+from PySide6.QtCore import QSettings, QThreadPool
+from PySide6.QtWidgets import QApplication, QMessageBox
 
 
 @pytest.fixture

@@ -234,10 +234,9 @@ def _engine_review(demo, *, overrides=(), acting_for=None):
     """The review the engine gives on its own, without the window (the reference)."""
     from core.library.frequency import apply_frequency
     from core.library.index import open_library
+    from core.library.store import is_server_address
     from core.reader import read_document
     from core.review import run_review
-
-    from core.library.store import is_server_address
 
     address = demo["library"]
     lib = open_library(store=address, refresh=False) if is_server_address(address) else open_library(address)

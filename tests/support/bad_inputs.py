@@ -12,9 +12,9 @@ from __future__ import annotations
 import io
 import struct
 import zipfile
+from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Callable
 
 from tests.support.docx_fixtures import docx_bytes
 

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import io
 import os
-from typing import Mapping
+from collections.abc import Mapping
 
 import docx
 from docx.oxml import parse_xml

@@ -40,7 +40,7 @@ import time
 import traceback
 import uuid
 
-import uno  # noqa: E402  (Debian's python3-uno)
+import uno
 from com.sun.star.beans import PropertyValue  # type: ignore[import-not-found]
 from com.sun.star.connection import NoConnectException  # type: ignore[import-not-found]
 

@@ -19,7 +19,7 @@ from core.docx.blocks import (
 )
 from core.docx.numbering import parse_numbering
 from core.docx.styles import parse_styles
-from tests.support.docx_fixtures import W, W_DECL, body_element, build_docx
+from tests.support.docx_fixtures import W_DECL, W, body_element, build_docx
 
 
 def _read(body: str, *, styles: str | None = None, numbering: str | None = None):

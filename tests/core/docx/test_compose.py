@@ -21,7 +21,8 @@ import docx
 import pytest
 from lxml import etree
 
-from core.docx.compose import DEFAULT_LISTS, ComposeParagraph as P, compose_docx
+from core.docx.compose import DEFAULT_LISTS, compose_docx
+from core.docx.compose import ComposeParagraph as P
 
 W = "http://schemas.openxmlformats.org/wordprocessingml/2006/main"
 NS = {"w": W}

@@ -9,10 +9,9 @@ from __future__ import annotations
 
 import pytest
 
-from core.docx.revisions import W_NS
+from core.docx.revisions import W_NS, RevisionStamp
 from core.docx.validate import check_revisions, validate_docx
 from core.docx.writer import Para, Run, build_docx
-from core.docx.revisions import RevisionStamp
 from tests.support.docx_fixtures import body_element, docx_bytes
 from tests.support.lo_session import libreoffice
 

@@ -40,12 +40,12 @@ class Backend:
         """What 'library build DIR' takes after DIR to index into this backend."""
         return []
 
-    def build(self, folder: Path, **kwargs):  # noqa: ANN003, ANN201 - BuildReport
+    def build(self, folder: Path, **kwargs):
         from core.library.index import build_library
 
         return build_library(folder, store=self.store(folder), **kwargs)
 
-    def open(self, folder: Path, **kwargs):  # noqa: ANN003, ANN201 - Library
+    def open(self, folder: Path, **kwargs):
         from core.library.index import open_library
 
         kwargs.setdefault("refresh", False)

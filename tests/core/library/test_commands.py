@@ -150,7 +150,7 @@ def test_a_read_only_precedent_set_folder_says_what_to_do(tmp_path, monkeypatch,
     shutil.copytree(DEMO / "precedent_set", folder, ignore=shutil.ignore_patterns(".counterdraft"))
     real_mkdir = Path.mkdir
 
-    def refuse(self, *args, **kwargs):  # noqa: ANN001, ANN002, ANN003, ANN202
+    def refuse(self, *args, **kwargs):
         if self.name == ".counterdraft":
             raise PermissionError(errno.EACCES, os.strerror(errno.EACCES), str(self))
         return real_mkdir(self, *args, **kwargs)

@@ -101,7 +101,7 @@ def _frequencies(lib, pair: tuple[Path, Path] = (DEMO / "draft.docx", DEMO / "pr
 
 
 def _snapshot(root: Path, *, patterns: bool = False, pair: tuple[Path, Path] | None = None,
-              backend=None) -> dict:  # noqa: ANN001
+              backend=None) -> dict:
     with (backend.open(root) if backend is not None else open_library(root, refresh=False)) as lib:
         snap = {"total": lib.total, "provisions": _provisions(lib), "variants": _variants(lib),
                 "caches": _caches(lib), "frequencies": _frequencies(lib, *([pair] if pair else []))}
@@ -110,12 +110,12 @@ def _snapshot(root: Path, *, patterns: bool = False, pair: tuple[Path, Path] | N
     return snap
 
 
-def _label(root: Path, backend) -> None:  # noqa: ANN001
+def _label(root: Path, backend) -> None:
     with backend.open(root) as lib:
         lib.label_variant(lib.variant_of(*LABELLED), "house wording")
 
 
-def _fresh(state: Path, tmp: Path, name: str, backend) -> dict:  # noqa: ANN001
+def _fresh(state: Path, tmp: Path, name: str, backend) -> dict:
     """Reference: a fresh full build of a copy of *state*'s files, labelled the same way."""
     copy = tmp / name
     shutil.copytree(state, copy, ignore=shutil.ignore_patterns(".counterdraft"))
@@ -262,7 +262,7 @@ def test_a_build_killed_between_a_cache_file_and_its_commit_is_repaired_by_the_n
     real = index_module._write_blob
     written: list[str] = []
 
-    def failing(store, name: str, data: bytes) -> None:  # noqa: ANN001
+    def failing(store, name: str, data: bytes) -> None:
         if name.startswith(index_module.BUCKETS_DIRNAME + "/"):
             written.append(name)
             if len(written) == 3:

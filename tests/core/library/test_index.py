@@ -350,7 +350,7 @@ def test_damage_found_during_the_build_also_rebuilds(tmp_path, monkeypatch):
     real = index_module._update_files
     calls = []
 
-    def update_files(*args, **kwargs):  # noqa: ANN002, ANN003, ANN202
+    def update_files(*args, **kwargs):
         calls.append(1)
         if len(calls) == 1:
             raise corrupt
@@ -368,7 +368,7 @@ def test_other_database_errors_are_one_line_and_keep_the_file(tmp_path, monkeypa
     db = root / DB_DIRNAME / DB_FILENAME
     before = db.read_bytes()
 
-    def locked(*args, **kwargs):  # noqa: ANN002, ANN003, ANN202
+    def locked(*args, **kwargs):
         raise sqlite3.OperationalError("database is locked")
 
     monkeypatch.setattr(index_module, "_update_files", locked)

@@ -211,7 +211,7 @@ def _norm(s: str) -> str:
 
 
 @cache
-def _documents(key: str):  # noqa: ANN202
+def _documents(key: str):
     parties, plants = CASES[key]
     base = licence_text(key)
     draft = base

@@ -52,8 +52,8 @@ def test_spans_equal_the_brute_force_definition(p: str, d: str, data) -> None:
     y0 = data.draw(st.integers(0, len(d)))
     y1 = data.draw(st.integers(y0, len(d)))
     points = _points(ops, a, b)
-    left = max((pt for pt in points if pt[0] <= x0 and pt[1] <= y0))
-    right = min((pt for pt in points if pt[0] >= x1 and pt[1] >= y1))
+    left = max(pt for pt in points if pt[0] <= x0 and pt[1] <= y0)
+    right = min(pt for pt in points if pt[0] >= x1 and pt[1] >= y1)
     want = (_trim(p, left[0], right[0]), _trim(d, left[1], right[1]))
     got = AlignedPoints(ops, a, b).spans(precedent=(x0, x1), draft=(y0, y1))
     assert got == want

@@ -266,7 +266,7 @@ def test_the_schema_is_made_on_first_use_and_a_newer_one_is_refused(tmp_path, pg
     def open_it() -> None:
         try:
             Library(address).close()
-        except BaseException as err:  # noqa: BLE001 - reported below
+        except BaseException as err:
             errors.append(err)
 
     threads = [threading.Thread(target=open_it) for _ in range(3)]
