@@ -81,7 +81,7 @@ def main(argv: list[str] | None = None) -> int:
         t, problems = _best(lambda: validate_docx(data))
         print(f"  validate counter-draft {t * 1000:8.1f} ms  ({len(problems)} problems)")
         for show in ("substantive", "all"):
-            t, red = _best(lambda: redline_bytes(review, author="Bench", show=show))
+            t, red = _best(lambda show=show: redline_bytes(review, author="Bench", show=show))
             label = f"redline ({show})"
             print(f"  {label:<22} {t * 1000:8.1f} ms  ({len(red) / 1024:.0f} KB)")
         t, _ = _best(lambda: validate_docx(red))

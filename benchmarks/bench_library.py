@@ -242,7 +242,7 @@ def _run(args) -> dict[str, float]:
     corpus = Path(tempfile.gettempdir()) / f"counterdraft-bench-library-{args.documents}x{args.pages}"
     made = _corpus(corpus, args.documents, args.pages, workers=args.workers)
     print(f"corpus: {args.documents} agreements of ~{args.pages} pages in {corpus} "
-          f"({'generated in %.1f s' % made if made > 1 else 'cached'})", flush=True)
+          f"({f'generated in {made:.1f} s' if made > 1 else 'cached'})", flush=True)
     with tempfile.TemporaryDirectory(prefix="cd-bench-library-") as tmp:
         work = Path(tmp)
         lib = work / "library"

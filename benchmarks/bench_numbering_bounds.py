@@ -65,8 +65,8 @@ def main() -> int:
     with tempfile.TemporaryDirectory(prefix="cd-bench-bounds-") as work:
         for name, start, fmt in CASES:
             path = _document(Path(work), start, fmt)
-            seconds = best_of(lambda: _outcome(path), repeats=REPEATS)
-            peak = traced_peak_mb(lambda: _outcome(path))
+            seconds = best_of(lambda path=path: _outcome(path), repeats=REPEATS)
+            peak = traced_peak_mb(lambda path=path: _outcome(path))
             worst = max(worst, seconds)
             print(f"{name:45s} {seconds:6.3f} s {peak:6.1f} MB  "
                   f"[{verdict(seconds, TARGET_S)}/{verdict(peak, TARGET_MB)}]  {_outcome(path)}")

@@ -70,7 +70,7 @@ def _run(args, address: str, admin: Callable[[str], list[tuple]]) -> dict[str, f
     corpus = Path(tempfile.gettempdir()) / f"counterdraft-bench-library-{args.documents}x{args.pages}"
     made = _corpus(corpus, args.documents, args.pages, workers=args.workers)
     print(f"corpus: {args.documents} agreements of ~{args.pages} pages in {corpus} "
-          f"({'generated in %.1f s' % made if made > 1 else 'cached'})", flush=True)
+          f"({f'generated in {made:.1f} s' if made > 1 else 'cached'})", flush=True)
     figures: dict[str, float] = {"documents": float(args.documents)}
     empty = float(admin("SELECT pg_database_size(current_database())")[0][0])
     with tempfile.TemporaryDirectory(prefix="cd-bench-store-") as tmp:

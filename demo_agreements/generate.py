@@ -1163,7 +1163,7 @@ def render(paper: Paper, choices: Mapping[str, str], *, front: Front) -> Rendere
     para(agreed, "other", heading=agreed.rstrip(":"), bold=True)
 
     # --- the clauses
-    for node, counters in layout:
+    for node, _counters in layout:
         clause = by_key[node.clause]
         number = numbers[node.key]
         if node.level == 1:

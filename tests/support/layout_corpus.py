@@ -14,8 +14,8 @@ to .docx with real Word auto-numbering by :func:`tests.support.licence_docx.lice
   at least :data:`MIN_NUMBERED` numbered paragraphs, of a family no test document belongs to
   (versions of one licence are one family: "cc-by-2.0" and "cc-by-3.0" are both "cc-by") and
   sharing at most :data:`MAX_SHARED_SHINGLES` of its word 5-grams with any test document or
-  any document chosen before it (the AGPL, say, is nearly the GPL's text), the first :data:`TRAINING_DOCUMENTS` in the order of a
-  hash of their key (a fixed, arbitrary order).
+  any document chosen before it (the AGPL, say, is nearly the GPL's text), the first
+  :data:`TRAINING_DOCUMENTS` in the order of a hash of their key (a fixed, arbitrary order).
 """
 
 from __future__ import annotations

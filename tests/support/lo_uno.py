@@ -91,9 +91,9 @@ class Office:
                 self.ctx = resolver.resolve(
                     f"uno:pipe,name={self.pipe};urp;StarOffice.ComponentContext")
                 break
-            except NoConnectException:
+            except NoConnectException as error:
                 if self.proc.poll() is not None or time.monotonic() > deadline:
-                    raise RuntimeError("soffice did not accept the UNO connection")
+                    raise RuntimeError("soffice did not accept the UNO connection") from error
                 time.sleep(CONNECT_POLL_S)
         smgr = self.ctx.ServiceManager
         self.desktop = smgr.createInstanceWithContext("com.sun.star.frame.Desktop", self.ctx)

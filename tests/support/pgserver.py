@@ -179,7 +179,7 @@ def _init_and_start(server: PostgresServer) -> None:
         os.chown(server.socket_dir, server.account.pw_uid, server.account.pw_gid)
     options = " ".join([f"-p {server.port}", f"-k {server.socket_dir}", "-c listen_addresses=127.0.0.1",
                         *(f"-c {s}" for s in SETTINGS)])
-    for attempt in range(3):
+    for _attempt in range(3):
         result = server._run("pg_ctl", "start", "-D", str(server.data), "-w", "-t", str(WAIT_S),
                              "-l", str(server.base / "server.log"), "-o", options)
         if result.returncode == 0:
@@ -187,5 +187,6 @@ def _init_and_start(server: PostgresServer) -> None:
         time.sleep(0.5)  # the port was taken meanwhile: another one
         server.port = _free_port()
         options = options.replace(options.split()[1], str(server.port), 1)
-    log = (server.base / "server.log").read_text(errors="replace")[-800:] if (server.base / "server.log").exists() else ""
+    log_file = server.base / "server.log"
+    log = log_file.read_text(errors="replace")[-800:] if log_file.exists() else ""
     raise RuntimeError(f"the PostgreSQL server did not start: {result.stderr.strip()[-300:]} {log}")
