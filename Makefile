@@ -18,7 +18,7 @@ HEADLESS_PACKAGES := xvfb xauth
 APT_INSTALL = SUDO=$$( [ "$$(id -u)" = 0 ] || echo sudo ); $$SUDO apt-get update -qq && \
 	DEBIAN_FRONTEND=noninteractive $$SUDO apt-get install -y -qq --no-install-recommends
 
-.PHONY: demo test bench bench-all system-deps gui-deps clean
+.PHONY: demo test static bench bench-all system-deps gui-deps clean
 
 $(VENV)/.installed: pyproject.toml constraints.txt
 	@# Debian's python3 has no ensurepip (so no venv) until python3-venv is installed.
@@ -59,6 +59,11 @@ system-deps:
 
 test: $(VENV)/.installed system-deps gui-deps
 	QT_QPA_PLATFORM=offscreen $(PY) -m pytest
+
+# The static checks (configured in pyproject.toml): lint the tree, type-check core/ and desktop/.
+static: $(VENV)/.installed
+	$(PY) -m ruff check .
+	$(PY) -m mypy
 
 # The speed and memory ratios of start-up, hostile inputs, size, the precedent set and the
 # window, with their targets, in one run (about 15 minutes; BENCH_ARGS=--quick for a smoke
