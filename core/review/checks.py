@@ -208,7 +208,40 @@ ENGLISH_MIN_SHARE = 0.08
 #: a program identifier: "java.lang", "www.example.org").
 _LOWER_WORD_RE = re.compile(r"(?<![\w.@/\\:-])[a-z]+(?:-[a-z]+)*(?![\w@/\\]|\.\w)")
 _WORD_RE = re.compile(r"[A-Za-z][A-Za-z'’-]*")
+#: The word right before a phrase: ASCII letters, then blanks (spaces, tabs) holding at most
+#: one line break.  :func:`_word_before` reads it backwards from the phrase (the law tests
+#: compare it with a search of this pattern from the start of the text, which made a long
+#: provision quadratic).
 _PREVIOUS_WORD_RE = re.compile(r"(?P<word>[A-Za-z]+)(?:[ \t]+|[ \t]*\n[ \t]*)$")
+_ASCII_LETTERS = frozenset("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz")
+#: How far back the two-names pattern (:data:`_NAME_BEFORE_RE`) looks: far more than two words
+#: of any language, and bounded so that each look is constant time.
+LOOKBEHIND_CHARS = 200
+
+
+def _word_before(text: str, end: int) -> str | None:
+    """The word of :data:`_PREVIOUS_WORD_RE` ending before *end* of *text*, or None (like the
+    pattern's ``$``, also when one line break more comes between them)."""
+    word = _word_right_before(text, end)
+    if word is None and end > 0 and text[end - 1] == "\n":
+        word = _word_right_before(text, end - 1)
+    return word
+
+
+def _word_right_before(text: str, end: int) -> str | None:
+    i = end
+    while i > 0 and text[i - 1] in " \t":
+        i -= 1
+    if i > 0 and text[i - 1] == "\n":
+        i -= 1
+        while i > 0 and text[i - 1] in " \t":
+            i -= 1
+    elif i == end:
+        return None  # no blank between the word and the phrase
+    j = i
+    while j > 0 and text[j - 1] in _ASCII_LETTERS:
+        j -= 1
+    return text[j:i] if j < i else None
 
 #: Determiners that go with a common noun, never with a proper name: "any Service Credits",
 #: "each Contributor" (whereas "the" goes with both: "the United States").
@@ -507,8 +540,8 @@ def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: str, offset
     caps = [w for w in run.split() if w[:1].isupper()]
     if len(caps) > MAX_TERM_WORDS or (len(caps) > 1 and any(w in _TITLE_WORDS for w in caps)):
         return []  # a title: "the Berne Convention for the Protection of Literary and Artistic Works"
-    before = _PREVIOUS_WORD_RE.search(line, 0, m.start())
-    if before is None or not before.group("word").islower():
+    before = _word_before(line, m.start())
+    if before is None or not before.islower():
         return []  # the start of a sentence, a line, a list item or a list of names
     after = _AFTER_RE.match(line, m.end())
     nxt = after.group("next") if after else ""
@@ -516,16 +549,16 @@ def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: str, offset
         return []  # one name of a title's list: "the Copyright, Designs and Patents Act 1988"
     if _DESIGNATION_RE.match(nxt) or (run.endswith("Copyright") and _NOTICE_RE.match(line, m.end())):
         return []  # "Product X", "Schedule 2", "Copyright (C) 2002"
-    if before.group("word") == "to" and nxt.lower() in _FUNCTION_WORDS and " " not in run:
+    if before == "to" and nxt.lower() in _FUNCTION_WORDS and " " not in run:
         return []  # a verb: "to Use the Software"
-    if before.group("word") in _TITLE_CUE_WORDS or _ABBREVIATED_RE.match(line, m.end()):
+    if before in _TITLE_CUE_WORDS or _ABBREVIATED_RE.match(line, m.end()):
         return []  # a title quoted ("entitled Restrictions"), a name abbreviated ("Defense ("DFARS")")
     attributive = (bool(nxt) and nxt[0].isalpha() and nxt.lower() not in _FUNCTION_WORDS
                    and not _POSTPOSITIVE_RE.search(nxt))
     out: list[_Use] = []
     cuts = [0, *(x for sep in _SPLIT_RE.finditer(run) for x in (sep.start(), sep.end())), len(run)]
     pieces = [(cuts[i], run[cuts[i]:cuts[i + 1]]) for i in range(0, len(cuts), 2)]
-    determiner = before.group("word")
+    determiner = before
     for k, (piece_start, piece) in enumerate(pieces):
         words = piece.split()
         lead = 0
@@ -609,16 +642,27 @@ def _stem(word: str) -> str:
     return word
 
 
-def _overlaps(words: tuple[str, ...], names: Iterable[tuple[str, ...]]) -> bool:
-    """Is *words* part of one of *names*, or one of them part of it (word for word)?  A
-    phrase inside a defined name ("Source" of "Source Code", "Entitled" of "Entitled XYZ")
-    is a piece of that term; a phrase holding one ("Front-Cover Texts" holding "Cover Texts",
-    "Runtime Software" holding "Software") is built on it."""
-    for n in names:
-        short, long_ = (words, n) if len(words) <= len(n) else (n, words)
-        if any(long_[i:i + len(short)] == short for i in range(len(long_) - len(short) + 1)):
+class _NameParts:
+    """Defined *names* (word keys) indexed for one question asked of every capitalised phrase
+    of a document: is the phrase part of one of the names, or one of them part of it (word
+    for word)?  A phrase inside a defined name ("Source" of "Source Code", "Entitled" of
+    "Entitled XYZ") is a piece of that term; a phrase holding one ("Front-Cover Texts"
+    holding "Cover Texts", "Runtime Software" holding "Software") is built on it.  Each
+    name's runs of consecutive words are kept in a set (names are a few words long), so one
+    question costs a few lookups, not a pass over every name."""
+
+    __slots__ = ("names", "runs")
+
+    def __init__(self, names: Iterable[tuple[str, ...]]) -> None:
+        self.names = frozenset(names)
+        self.runs = frozenset(n[i:j] for n in self.names for i in range(len(n)) for j in range(i + 1, len(n) + 1))
+
+    def overlaps(self, words: tuple[str, ...]) -> bool:
+        if not self.names:
+            return False
+        if not words or () in self.names or words in self.runs:
             return True
-    return False
+        return any(words[i:j] in self.names for i in range(len(words)) for j in range(i + 1, len(words) + 1))
 
 
 def _uses_of(doc: Document, texts: _Texts, names: Mapping[str, str]) -> dict[str, list[_Use]]:
@@ -630,7 +674,7 @@ def _uses_of(doc: Document, texts: _Texts, names: Mapping[str, str]) -> dict[str
         if prov.kind in _NOT_PROSE:
             continue
         for u in find_term_uses(text, matcher):
-            mid = bool(_PREVIOUS_WORD_RE.search(text, max(0, u.start - 40), u.start))
+            mid = _word_before(text, u.start) is not None
             out.setdefault(u.term, []).append(_Use(prov, part, u.start, u.end, text[u.start:u.end],
                                                    common=mid))
     return out
@@ -647,7 +691,8 @@ def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iter
     texts = _Texts.of(doc)
     own = [n for t in doc.terms for n in _written_names(t)] + list(defined)
     marked = _marked_names(t for _p, _k, t in texts.parts)
-    known = {_word_key(m) for n in [*own, *marked] if n.strip() for m in (n, _DASH_RE.sub("", n))}
+    known_parts = _NameParts(_word_key(m) for n in [*own, *marked] if n.strip()
+                             for m in (n, _DASH_RE.sub("", n)))
     out: list[Check] = []
     own_keys = {_word_key(n) for n in own}
     missing = {n: n for n in foreign if _word_key(n) not in own_keys and n[:1].isupper()
@@ -665,7 +710,7 @@ def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iter
     for use in _candidate_uses(texts):
         key = _word_key(use.phrase)
         joined = _word_key(_DASH_RE.sub("", use.phrase))
-        if key in reported or _overlaps(key, known) or _overlaps(joined, known) or _excluded(use.phrase):
+        if key in reported or known_parts.overlaps(key) or known_parts.overlaps(joined) or _excluded(use.phrase):
             continue
         found.setdefault(key, []).append(use)
     brand = _brand_words(texts, lower)
@@ -1000,7 +1045,8 @@ def _names_other_instrument(text: str, start: int, end: int) -> bool:
         return True
     if end + 1 < len(text) and text[end] in _DASHES and text[end + 1].isdigit():
         return True  # a citation's number: "Clause 252.227-7013"
-    return text[start:start + 1].islower() and _NAME_BEFORE_RE.search(text, 0, start) is not None
+    named_before = _NAME_BEFORE_RE.search(text, max(0, start - LOOKBEHIND_CHARS), start)
+    return text[start:start + 1].islower() and named_before is not None
 
 
 def _heading_label(text: str, start: int, end: int) -> bool:

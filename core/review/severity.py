@@ -481,8 +481,10 @@ def efforts_level(phrase: str) -> tuple[int, str]:
     return 3, f"{std} {noun}".strip()
 
 
-def _efforts_matches(text: str) -> list[tuple[int, int, str]]:
-    return [(m.start(), m.end(), " ".join(m.group().lower().split())) for m in _EFFORTS_RE.finditer(text)]
+@lru_cache(maxsize=256)
+def _efforts_matches(text: str) -> tuple[tuple[int, int, str], ...]:
+    """The efforts phrases of *text* (cached: each change of a long provision asks again)."""
+    return tuple((m.start(), m.end(), " ".join(m.group().lower().split())) for m in _EFFORTS_RE.finditer(text))
 
 
 
@@ -526,7 +528,7 @@ def _matches(rules: SeverityRules, name: str, text: str) -> _Found:
             efforts = _efforts_matches(text)
             if efforts:
                 items = sorted([h for h in items if not any(a < h[1] and h[0] < b for a, b, _x in efforts)]
-                               + efforts)
+                               + list(efforts))
         if len(tcache) > 4096:
             tcache.clear()
         hit = tcache[text] = _Found(items)
@@ -668,12 +670,20 @@ _CONJ_TOKEN_RE = re.compile(r"and/or|\w+", re.IGNORECASE)
 _SENTENCE_BREAK_RE = re.compile(r"(?<=[.!?;])\s+|\n+")
 
 
+@lru_cache(maxsize=256)
+def _sentence_breaks(text: str) -> tuple[list[int], list[int]]:
+    """(starts, ends) of the sentence breaks of *text*, in order (cached: a long provision
+    rewritten asks for the sentences of hundreds of changes)."""
+    found = list(_SENTENCE_BREAK_RE.finditer(text))
+    return [m.start() for m in found], [m.end() for m in found]
+
+
 def sentence_bounds(text: str, span: tuple[int, int]) -> tuple[int, int]:
     """The sentence (or ";"-clause, or line) of *text* that holds *span*, as offsets."""
     a, b = span
-    start = 0
-    for m in _SENTENCE_BREAK_RE.finditer(text, 0, a):
-        start = m.end()
+    starts, ends = _sentence_breaks(text)
+    last = bisect_left(starts, a) - 1  # the last break starting before *a* (cut at *a*)
+    start = min(ends[last], a) if last >= 0 else 0
     m = _SENTENCE_BREAK_RE.search(text, max(b, start))
     end = m.start() if m else len(text)
     return start, max(end, b)
@@ -918,6 +928,8 @@ def provision_change_severity(*, added: bool, label: str, text: str, clause_type
 def clear_caches(rules: SeverityRules | None = None) -> None:
     """Forget the cached figures and phrase matches (benchmarks measure cold runs)."""
     _quantities_cached.cache_clear()
+    _efforts_matches.cache_clear()
+    _sentence_breaks.cache_clear()
     for r in (rules, _default_rules()):
         if r is not None:
             for k in [k for k in r._cache if isinstance(k, tuple) and k[0] == "text"]:
