@@ -398,24 +398,19 @@ Runner = Callable[..., Review]
 
 def _default_runner(draft: Document, precedent: Document, *, overrides: Sequence[Any],
                     acting_for: str | None = None) -> Review:
-    from .review import run_review
+    from .session import review
 
-    return run_review(draft, precedent, overrides=overrides, acting_for=acting_for)
+    return review(draft, precedent, overrides=overrides, acting_for=acting_for)
 
 
 def _read_documents(draft_path: str, precedent_path: str, *, library: str | None = None
                     ) -> tuple[Document, Document]:
-    """Both documents; a PDF draft read with the precedent set's line model when the review
-    used a set (:func:`core.layout.store.structure_for`)."""
-    from .readers import learns_layout, read_document
+    """Both documents, read as :func:`core.session.read_documents` reads them (a PDF draft
+    with the precedent set's line model when the review used a set)."""
+    from .session import read_documents
 
-    structure = None
-    if learns_layout(draft_path, library):
-        from .layout.store import structure_for
-
-        structure, _notes = structure_for(draft_path, library)
-    return (read_document(draft_path, structure=structure, cache=True),
-            read_document(precedent_path, cache=True))
+    docs = read_documents(draft_path, precedent_path, library=library)
+    return docs.draft, docs.precedent
 
 
 def new_review_file(draft_path: str | os.PathLike[str], precedent_path: str | os.PathLike[str], *,

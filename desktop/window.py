@@ -398,7 +398,8 @@ class MainWindow(QMainWindow):
         if isinstance(content, str):
             self.variants.clear(content)
         else:
-            self.variants.set_content(**content)
+            self.variants.set_content(slot=content.slot, provision=content.provision,
+                                      deviation=content.deviation)
 
     # ======================================================================================
     # opening
