@@ -195,7 +195,7 @@ def _cmd_export(args: argparse.Namespace) -> int:
     record = _open_review_file(args.review_file)
     export = functools.partial(session.export, record=record, author=args.author,
                                inputs=(args.review_file,))
-    cautioned = []
+    cautioned: list[bool] = []
 
     def written(message: str) -> None:
         if not cautioned:  # once, with the first output written (an output carries the caution)

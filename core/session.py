@@ -28,6 +28,7 @@ Usage (the command line's ``review --library``)::
 from __future__ import annotations
 
 import dataclasses
+import enum
 import os
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
@@ -51,7 +52,9 @@ __all__ = [
     "Documents",
     "IsCancelled",
     "LibraryOpener",
+    "Party",
     "Report",
+    "SAME_PARTY",
     "check_cancelled",
     "compute_patterns",
     "decide",
@@ -80,7 +83,7 @@ __all__ = [
 class Report(Protocol):
     """Progress of a long step: *done* of *total* (None when unknown), and what it is doing."""
 
-    def __call__(self, done: int, total: int | None, message: str) -> None: ...
+    def __call__(self, done: int, total: int | None, message: str, /) -> None: ...
 
 
 #: Whether the user asked to stop (checked between stages).
@@ -272,12 +275,18 @@ def new_review_file(draft: str | os.PathLike[str], precedent: str | os.PathLike[
     return start(draft, precedent, review=review, overrides=tuple(overrides), library=library)
 
 
+class Party(enum.Enum):
+    """A default party: the one the review already acts for."""
+
+    SAME = "the party the review already acts for"
+
+
 #: :func:`rerun`'s default party: the one the review already acts for.
-_SAME_PARTY: Literal["same"] = "same"
+SAME_PARTY = Party.SAME
 
 
 def rerun(record: ReviewFile, *, overrides: Sequence[TermOverride], library: Library | None = None,
-          acting_for: str | None | Literal["same"] = _SAME_PARTY, report: Report = silent,
+          acting_for: str | None | Party = SAME_PARTY, report: Report = silent,
           cancelled: IsCancelled = never_cancelled) -> ReviewFile:
     """Review *record*'s two documents again, without re-reading them: with new term
     *overrides*, an open precedent set, or for another party (*acting_for*; by default the
@@ -285,7 +294,7 @@ def rerun(record: ReviewFile, *, overrides: Sequence[TermOverride], library: Lib
     from .decisions import remap_decisions
 
     old = record.review
-    party = old.acting_for if acting_for == _SAME_PARTY else acting_for
+    party = old.acting_for if acting_for is SAME_PARTY else acting_for
     result = review(old.draft, old.precedent, library=library, overrides=overrides,
                     acting_for=party, report=report, cancelled=cancelled)
     decisions, notes = remap_decisions(record.decisions, result)

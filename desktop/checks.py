@@ -113,10 +113,11 @@ class ChecksPanel(QWidget):
 
     def entries(self) -> list[QTreeWidgetItem]:
         """Every entry, in the order shown (group headings left out)."""
-        out = []
+        out: list[QTreeWidgetItem] = []
         for i in range(self.tree.topLevelItemCount()):
             group = self.tree.topLevelItem(i)
-            out.extend(group.child(j) for j in range(group.childCount()))
+            if group is not None:
+                out.extend(c for j in range(group.childCount()) if (c := group.child(j)) is not None)
         return out
 
     def _chosen(self, item: QTreeWidgetItem | None) -> None:

@@ -6,6 +6,9 @@ counter-draft is the engine's business (:mod:`core.decisions`, :mod:`core.export
 
 from __future__ import annotations
 
+from collections.abc import Callable
+from typing import TYPE_CHECKING
+
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
     QButtonGroup,
@@ -25,6 +28,9 @@ from .labels import CATEGORY_NAMES, CHANGE_NAMES, PAST_USE, clause_label, freque
 from .palette import DELETED, INSERTED, MUTED_INK, TALLY
 from .state import Change, Workspace
 from .tally import tally, tally_glyphs
+
+if TYPE_CHECKING:
+    from core.decisions import Decision
 
 __all__ = ["DecisionPanel", "KEYS"]
 
@@ -56,7 +62,8 @@ class DecisionPanel(QWidget):
     decided = Signal(str, str, str, str)
     cleared = Signal(str)
 
-    def __init__(self, workspace: Workspace, decision_view, parent: QWidget | None = None) -> None:
+    def __init__(self, workspace: Workspace, decision_view: Callable[[Decision], tuple[str, str, str]],
+                 parent: QWidget | None = None) -> None:
         super().__init__(parent)
         self._ws = workspace
         self._decision_view = decision_view  # engine decision -> (action, note, text)
@@ -181,13 +188,14 @@ class DecisionPanel(QWidget):
         for w in (self.accept_btn, self.revert_btn, self.amend_btn, self.clear_btn, self.note, self.note_save):
             w.setEnabled(enabled)
         only_accept = d is not None and not can_change(d)
-        for w, tip in ((self.revert_btn, _REVERT_TIP), (self.amend_btn, _AMEND_TIP)):
+        for button, tip in ((self.revert_btn, _REVERT_TIP), (self.amend_btn, _AMEND_TIP)):
             # the engine refuses these too (core.decisions): the draft's own stays
-            w.setEnabled(enabled and not only_accept)
-            w.setToolTip(f"A {d.category} difference can only be accepted." if only_accept else tip)
+            button.setEnabled(enabled and not only_accept)
+            button.setToolTip(f"A {d.category} difference can only be accepted."
+                              if d is not None and only_accept else tip)
         if changed_deviation:
-            for w in (self.amend_label, self.amend_text, self.amend_ok):
-                w.hide()
+            for part in (self.amend_label, self.amend_text, self.amend_ok):
+                part.hide()
         if d is None or self._ws.review is None:
             self.details.setHtml(
                 f"<p style='color:{MUTED_INK}'>Select a deviation in the list (or press "

@@ -2,7 +2,10 @@
 
 from __future__ import annotations
 
-from PySide6.QtCore import QItemSelectionModel, Qt, Signal
+from collections.abc import Callable
+from typing import TYPE_CHECKING
+
+from PySide6.QtCore import QItemSelectionModel, QModelIndex, Qt, Signal
 from PySide6.QtWidgets import (
     QAbstractItemView,
     QCheckBox,
@@ -19,6 +22,9 @@ from .models import DeviationFilterProxy, DeviationTableModel
 from .state import Change, DeviationFilter, Workspace
 from .widgets import BarDelegate, TallyDelegate
 
+if TYPE_CHECKING:
+    from core.decisions import Decision
+
 __all__ = ["COLUMN_WIDTHS", "DeviationsPanel"]
 
 #: First widths of the list's columns, in pixels (the reviewer can drag them; "What changed"
@@ -34,7 +40,8 @@ class DeviationsPanel(QWidget):
 
     deviationSelected = Signal(str)
 
-    def __init__(self, workspace: Workspace, decision_view, parent: QWidget | None = None) -> None:
+    def __init__(self, workspace: Workspace, decision_view: Callable[[Decision], tuple[str, str]],
+                 parent: QWidget | None = None) -> None:
         super().__init__(parent)
         self._ws = workspace
         self._decision_view = decision_view  # engine decision -> (action, note)
@@ -155,7 +162,7 @@ class DeviationsPanel(QWidget):
             self.count.setToolTip("Numbering, formatting and punctuation changes are hidden unless "
                                   "switched on under Show; the filter and \u201cUndecided only\u201d hide others.")
 
-    def _current_changed(self, current, _previous) -> None:
+    def _current_changed(self, current: QModelIndex, _previous: QModelIndex | None) -> None:
         if self._quiet or not current.isValid():
             return
         src = self.proxy.mapToSource(current)

@@ -17,7 +17,7 @@ from __future__ import annotations
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
-from typing import TYPE_CHECKING, Literal
+from typing import TYPE_CHECKING, Literal, cast
 
 from core import session
 from core.errors import CounterdraftError
@@ -28,7 +28,7 @@ from core.session import IsCancelled, Report
 from .state import Inputs
 
 if TYPE_CHECKING:
-    from core.decisions import Decision, ReviewFile
+    from core.decisions import Decision, OverrideAction, ReviewFile
     from core.library.index import Library
     from core.library.patterns import PatternGroup
     from core.library.slots import SlotVariants
@@ -137,7 +137,7 @@ def rerun_review(
     overrides: Sequence[TermOverride],
     library: Library | None = None,
     library_folder: str | None = None,
-    acting_for: str | None | Literal["same"] = "same",
+    acting_for: str | None | session.Party = session.SAME_PARTY,
 ) -> Outcome:
     """Review the same two documents again (new term overrides, a precedent set opened
     since -- *library_folder*, opened here --, or another party acted for: *acting_for*, by
@@ -176,13 +176,14 @@ def pair_edits(review: Review, pair: Pair) -> Sequence[Edit]:
 # ------------------------------------------------------------------------------------------
 # term overrides
 # ------------------------------------------------------------------------------------------
-def add_override(overrides: Sequence[TermOverride], kind: Literal["confirm", "reject", "add"],
-                 draft: str, precedent: str) -> tuple[TermOverride, ...]:
-    """*overrides* with the reviewer's call on (draft, precedent) replacing any earlier call on
-    the same draft term."""
+def add_override(overrides: Sequence[TermOverride], kind: str, draft: str,
+                 precedent: str) -> tuple[TermOverride, ...]:
+    """*overrides* with the reviewer's call *kind* (``confirm``, ``reject`` or ``add``) on
+    (draft, precedent) replacing any earlier call on the same draft term."""
     from core.review.termmap import TermOverride
 
-    new = TermOverride(draft=draft, precedent=precedent, action=kind)
+    # cast: TermOverride refuses any other action with a one-line error
+    new = TermOverride(draft=draft, precedent=precedent, action=cast("OverrideAction", kind))
     return tuple(o for o in overrides if o.draft != draft) + (new,)
 
 

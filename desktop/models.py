@@ -78,7 +78,8 @@ def source_data(index: QModelIndex | QPersistentModelIndex, role: int) -> Any:
     from PySide6.QtCore import QAbstractProxyModel
 
     model = index.model()
-    ix = QModelIndex(index) if isinstance(index, QPersistentModelIndex) else index
+    ix = (QModelIndex(index)  # type: ignore[call-overload]  # stub gap: PySide6 takes a persistent index here
+          if isinstance(index, QPersistentModelIndex) else index)
     while isinstance(model, QAbstractProxyModel):
         ix = model.mapToSource(ix)
         model = model.sourceModel()

@@ -8,7 +8,7 @@ lays them out as a tree, in the engine's order.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from typing import TYPE_CHECKING
 
 from PySide6.QtCore import Qt, Signal
@@ -43,7 +43,9 @@ MOVE_ROLE = int(Qt.ItemDataRole.UserRole) + 1
 class PatternsPanel(QWidget):
     computeRequested = Signal()
 
-    def __init__(self, workspace: Workspace, adapt, parent: QWidget | None = None) -> None:
+    def __init__(self, workspace: Workspace,
+                 adapt: Callable[[Sequence[PatternGroup]], Sequence[PatternGroup]],
+                 parent: QWidget | None = None) -> None:
         super().__init__(parent)
         self._ws = workspace
         self._adapt = adapt  # the workspace's patterns -> Sequence[PatternGroup]

@@ -21,7 +21,7 @@ from __future__ import annotations
 from collections.abc import Callable, Sequence
 from typing import Any
 
-from PySide6.QtCore import QModelIndex, QPersistentModelIndex, QRect, QSize, Qt, QTimer, Signal
+from PySide6.QtCore import QModelIndex, QPersistentModelIndex, QRect, QRectF, QSize, Qt, QTimer, Signal
 from PySide6.QtGui import (
     QAbstractTextDocumentLayout,
     QBrush,
@@ -224,7 +224,7 @@ class ProvisionDelegate(QStyledItemDelegate):
                 doc = self.document(index.row(), col, width)
                 painter.translate(rect.left() + (STRIPE_PX if col == PairRowsModel.PRECEDENT else 0), rect.top())
                 ctx = QAbstractTextDocumentLayout.PaintContext()
-                ctx.clip = QRect(0, 0, rect.width(), rect.height())
+                ctx.clip = QRectF(0, 0, rect.width(), rect.height())
                 painter.setClipRect(ctx.clip)
                 doc.documentLayout().draw(painter, ctx)
                 painter.setClipping(False)

@@ -7,6 +7,7 @@ precedent)``; the window turns it into the engine's term override and re-runs th
 from __future__ import annotations
 
 from collections.abc import Callable, Sequence
+from typing import TYPE_CHECKING
 
 from PySide6.QtCore import QSortFilterProxyModel, Qt, Signal
 from PySide6.QtWidgets import (
@@ -28,6 +29,9 @@ from .palette import MUTED_INK
 from .state import Change, Workspace
 from .widgets import BarDelegate
 
+if TYPE_CHECKING:
+    from core.review.termmap import TermOverride
+
 __all__ = ["TermsPanel"]
 
 
@@ -37,7 +41,7 @@ class TermsPanel(QWidget):
     def __init__(
         self,
         workspace: Workspace,
-        status_of: Callable[[Sequence[object]], tuple[Callable[[TermMapping], str], list[tuple[str, str]]]],
+        status_of: Callable[[Sequence[TermOverride]], tuple[Callable[[TermMapping], str], list[tuple[str, str]]]],
         parent: QWidget | None = None,
     ) -> None:
         super().__init__(parent)

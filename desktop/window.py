@@ -18,11 +18,12 @@ decides whether to refresh.
 
 from __future__ import annotations
 
+import enum
 import functools
 import os
 from collections.abc import Callable
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from PySide6.QtCore import QObject, QSettings, Qt, QThreadPool, QTimer, Signal
 from PySide6.QtGui import QAction, QCloseEvent, QDragEnterEvent, QDropEvent, QKeySequence
@@ -56,6 +57,20 @@ from .state import Change, DisplayOptions, Inputs, Workspace
 from .terms import TermsPanel
 from .variants import VariantsView
 from .widgets import CautionBand, one_line, show_message
+
+if TYPE_CHECKING:
+    from core.library.index import Library
+    from core.library.patterns import PatternGroup
+    from core.model import Deviation, Review
+    from core.session import ExportKind
+
+
+class _Party(enum.Enum):
+    REMEMBERED = "the party last chosen with the precedent"
+
+
+#: ``open_comparison``'s default party: the one last chosen with the precedent.
+REMEMBERED_PARTY = _Party.REMEMBERED
 
 __all__ = ["DEFAULT_SIZE", "FIT_SCREEN", "FRAME_PX", "TITLE_BAR_PX", "Hub", "MainWindow", "first_run_size"]
 
@@ -105,7 +120,7 @@ class MainWindow(QMainWindow):
         self.hub = Hub(self)
         self._task: tasks.Task | None = None
         self._tasks: set[tasks.Task] = set()
-        self._retired_libraries: list[Any] = []
+        self._retired_libraries: list[Library] = []
         self._pending_library: str | None = None
         #: Documents dropped on one half of the window, waiting for the other one.
         self._pending_docs = {"draft": "", "precedent": ""}
@@ -199,7 +214,8 @@ class MainWindow(QMainWindow):
     # ======================================================================================
     # actions, menus, keys
     # ======================================================================================
-    def _action(self, text: str, slot: Callable[[], Any], *, key: str | QKeySequence | None = None,
+    def _action(self, text: str, slot: Callable[[], object], *,
+                key: str | QKeySequence | QKeySequence.StandardKey | None = None,
                 tip: str = "", checkable: bool = False) -> QAction:
         a = QAction(text, self)
         if key is not None:
@@ -425,10 +441,10 @@ class MainWindow(QMainWindow):
         return dlg
 
     def open_comparison(self, draft: str, precedent: str, *, library: str | None = None,
-                        acting_for: str | None | object = ...) -> None:
+                        acting_for: str | None | _Party = REMEMBERED_PARTY) -> None:
         """Read both files, review them (with the precedent set when given) off the GUI thread,
         acting for *acting_for* (by default the party last chosen with this precedent)."""
-        party = self.settings.acting_for(str(precedent)) if acting_for is ... else acting_for
+        party = self.settings.acting_for(str(precedent)) if acting_for is REMEMBERED_PARTY else acting_for
         inputs = Inputs(draft=str(draft), precedent=str(precedent), library=str(library) if library else None,
                         acting_for=party or None)
         work = functools.partial(engine.load_and_review, inputs, overrides=())
@@ -437,7 +453,7 @@ class MainWindow(QMainWindow):
     def open_library(self, folder: str) -> None:
         """Use *folder* as the precedent set: re-run the current review with it, or keep it for
         the next comparison."""
-        if self.ws.inputs is None:
+        if self.ws.inputs is None or self.ws.record is None:
             self._pending_library = folder
             self._status(f"Precedent set {folder} will be used for the next comparison.")
             return
@@ -506,7 +522,7 @@ class MainWindow(QMainWindow):
             show_message(self, "Review file", "\n".join(rec.notes), icon=QMessageBox.Icon.Information)
         self.reviewShown.emit()
 
-    def _set_library(self, library: Any) -> None:
+    def _set_library(self, library: Library | None) -> None:
         old = self.ws.library
         self.ws.library = library
         if old is not None and old is not library:
@@ -525,7 +541,8 @@ class MainWindow(QMainWindow):
             engine.close_library(self._retired_libraries.pop())
 
     def _task_ended(self, task: tasks.Task | None) -> None:
-        self._tasks.discard(task)  # type: ignore[arg-type]
+        if task is not None:
+            self._tasks.discard(task)
         if task is not self._task:  # an abandoned task: what waited for it can go on now
             self._close_retired_libraries()
             self._refresh_variants()
@@ -547,7 +564,7 @@ class MainWindow(QMainWindow):
     def change_term_mapping(self, kind: str, draft: str, precedent: str) -> None:
         """Confirm, reject or add a term mapping, then re-run the review with it."""
         ws = self.ws
-        if ws.review is None or ws.inputs is None:
+        if ws.record is None or ws.inputs is None:
             return
         try:
             overrides = engine.add_override(ws.overrides, kind, draft, precedent)
@@ -567,7 +584,7 @@ class MainWindow(QMainWindow):
         """Judge the review again for *party* (a precedent party term; None: no one), and
         remember the choice for this precedent."""
         ws = self.ws
-        if ws.review is None or ws.inputs is None:
+        if ws.record is None or ws.inputs is None:
             return
         self.settings.set_acting_for(ws.inputs.precedent, party)
         inputs = Inputs(ws.inputs.draft, ws.inputs.precedent, ws.inputs.library, party)
@@ -611,7 +628,7 @@ class MainWindow(QMainWindow):
 
     def record_decision(self, did: str, action: str, text: str = "", note: str = "") -> None:
         d = self.ws.deviation(did)
-        if d is None:
+        if d is None or self.ws.record is None:
             return
         try:
             self.ws.record = engine.decide(self.ws.record, did, action, text=text, note=note)
@@ -622,7 +639,7 @@ class MainWindow(QMainWindow):
         self.broadcast(Change.DECISIONS | Change.FILES)
 
     def clear_decision(self, did: str) -> None:
-        if did in self.ws.decisions:
+        if self.ws.record is not None and did in self.ws.decisions:
             self.ws.record = engine.undecide(self.ws.record, did)
             self.ws.unsaved = True
             self.broadcast(Change.DECISIONS | Change.FILES)
@@ -668,12 +685,12 @@ class MainWindow(QMainWindow):
     # ======================================================================================
     def compute_patterns(self) -> None:
         ws = self.ws
-        if ws.library is None or ws.inputs is None:
+        if ws.library is None or ws.inputs is None or ws.review is None:
             return
         work = functools.partial(engine.compute_patterns, ws.library, precedent=ws.review.precedent,
                                  precedent_path=ws.inputs.precedent)
 
-        def done(patterns: Any) -> None:
+        def done(patterns: tuple[PatternGroup, ...]) -> None:
             ws.patterns = patterns
             self.broadcast(Change.PATTERNS)
             self._status("Negotiation patterns ready.")
@@ -682,7 +699,7 @@ class MainWindow(QMainWindow):
 
     def save_review(self, path: str) -> None:
         ws = self.ws
-        if ws.review is None or ws.inputs is None:
+        if ws.record is None or ws.inputs is None:
             return
         same_file = ws.review_path is not None and str(path) == ws.review_path
         try:
@@ -701,11 +718,11 @@ class MainWindow(QMainWindow):
         self._status(f"Saved {path}")
         self.fileWritten.emit(str(path))
 
-    def export(self, kind: str, path: str, *, order: str = "clause") -> None:
+    def export(self, kind: ExportKind, path: str, *, order: str = "clause") -> None:
         """Write the counter-draft, the comparison redline or the issues list to *path* (the
         issues list's rows in *order*: ``"clause"``, the draft's order, or ``"rank"``)."""
         ws = self.ws
-        if ws.review is None or ws.inputs is None:
+        if ws.record is None or ws.inputs is None:
             return
         work = functools.partial(engine.export, kind, str(path), record=ws.record, order=order)
 
@@ -736,7 +753,7 @@ class MainWindow(QMainWindow):
         if path:
             self.save_review(path)
 
-    def _ask_export(self, kind: str, *, order: str = "clause") -> None:
+    def _ask_export(self, kind: ExportKind, *, order: str = "clause") -> None:
         if self.ws.inputs is None:
             return
         stem = Path(self.ws.inputs.draft)
@@ -1018,7 +1035,7 @@ def first_run_size(free: tuple[int, int] | None) -> tuple[int, int]:
     return min(w, free[0] - FRAME_PX), min(h, free[1] - TITLE_BAR_PX)
 
 
-def _same_deviation(old, review) -> str | None:
+def _same_deviation(old: Deviation | None, review: Review | None) -> str | None:
     """The id, in *review*, of the deviation that matches *old* (same change, same provisions,
     same words), so the selection survives a re-run that renumbered the ids."""
     if old is None or review is None:

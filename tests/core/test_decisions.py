@@ -176,11 +176,11 @@ def test_review_file_round_trip(scenario, tmp_path):
 
     seen = {}
 
-    def runner(draft, precedent, *, overrides=()):
+    def runner(draft, precedent, *, overrides=(), acting_for=None):
         from core.review import run_review
 
         seen["overrides"] = tuple(overrides)
-        return run_review(draft, precedent, overrides=overrides)
+        return run_review(draft, precedent, overrides=overrides, acting_for=acting_for)
 
     again = load_review_file(path, runner=runner)
     assert again.notes == ()  # nothing changed
