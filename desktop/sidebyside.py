@@ -258,8 +258,8 @@ class ProvisionDelegate(QStyledItemDelegate):
         painter.setFont(f2)
         painter.setPen(QColor(MUTED_INK))
         below = QRect(rect.left() + 2, rect.top() + 28, rect.width() - 4, 30)
-        painter.drawText(below, int(Qt.AlignmentFlag.AlignHCenter | Qt.AlignmentFlag.AlignTop | Qt.TextFlag.TextWordWrap),
-                         STATUS_NAMES.get(pair.status, pair.status))
+        flags = Qt.AlignmentFlag.AlignHCenter | Qt.AlignmentFlag.AlignTop | Qt.TextFlag.TextWordWrap
+        painter.drawText(below, int(flags), STATUS_NAMES.get(pair.status, pair.status))
 
 
 def _stripe_colour(status: str) -> str | None:

@@ -159,7 +159,8 @@ class VariantChart(QWidget):
         if s is None or self.row_count == 0:
             p.setFont(self.font())
             p.setPen(QColor(MUTED_INK))
-            p.drawText(QRectF(8, TITLE_PX + 6, self.width() - 16, 40), int(Qt.AlignmentFlag.AlignLeft | Qt.TextFlag.TextWordWrap),
+            p.drawText(QRectF(8, TITLE_PX + 6, self.width() - 16, 40),
+                       int(Qt.AlignmentFlag.AlignLeft | Qt.TextFlag.TextWordWrap),
                        "No wording to show for this provision.")
             p.end()
             return

@@ -27,7 +27,8 @@ class BarDelegate(QStyledItemDelegate):
     Works over our own Python models (through proxies) and over item widgets whose every
     item has a ``BAR_ROLE`` number."""
 
-    def paint(self, painter: QPainter, option: QStyleOptionViewItem, index: QModelIndex | QPersistentModelIndex) -> None:
+    def paint(self, painter: QPainter, option: QStyleOptionViewItem,
+              index: QModelIndex | QPersistentModelIndex) -> None:
         frac = source_data(index, BAR_ROLE)
         if not isinstance(frac, float) or frac < 0:
             super().paint(painter, option, index)
@@ -47,7 +48,8 @@ class BarDelegate(QStyledItemDelegate):
                          QColor(BAR.fill))
         selected = bool(option.state & QStyle.StateFlag.State_Selected)
         painter.setPen(option.palette.highlightedText().color() if selected else option.palette.text().color())
-        painter.drawText(r.adjusted(bar_px + 12, 0, -4, 0), int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter), text)
+        painter.drawText(r.adjusted(bar_px + 12, 0, -4, 0),
+                         int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter), text)
         painter.restore()
 
 
@@ -108,7 +110,8 @@ class TallyDelegate(QStyledItemDelegate):
     then the cell's text (the exact figure).  Squares shrink to fit the column, down to
     :data:`TALLY_MIN_PX`; a cell without a figure is drawn as plain text."""
 
-    def paint(self, painter: QPainter, option: QStyleOptionViewItem, index: QModelIndex | QPersistentModelIndex) -> None:
+    def paint(self, painter: QPainter, option: QStyleOptionViewItem,
+              index: QModelIndex | QPersistentModelIndex) -> None:
         value = source_data(index, TALLY_ROLE)
         t = tally(*value) if isinstance(value, (tuple, list)) and len(value) == 2 else None
         if t is None:
@@ -155,10 +158,12 @@ def one_line(exc: BaseException) -> str:
     text = str(exc).strip().splitlines()[0] if str(exc).strip() else ""
     if isinstance(exc, CounterdraftError):
         return text
-    return f"Unexpected problem ({type(exc).__name__}): {text}" if text else f"Unexpected problem ({type(exc).__name__})"
+    kind = f"Unexpected problem ({type(exc).__name__})"
+    return f"{kind}: {text}" if text else kind
 
 
-def show_message(parent: QWidget, title: str, text: str, *, icon: QMessageBox.Icon = QMessageBox.Icon.Warning) -> QMessageBox:
+def show_message(parent: QWidget, title: str, text: str, *,
+                 icon: QMessageBox.Icon = QMessageBox.Icon.Warning) -> QMessageBox:
     """A window-modal message box that does not block the caller (``open()``, not ``exec()``)."""
     box = QMessageBox(icon, title, text, QMessageBox.StandardButton.Ok, parent)
     box.setObjectName("messageBox")

@@ -270,7 +270,8 @@ class MainWindow(QMainWindow):
         self.act_formatting = A("Formatting and punctuation", self._display_changed, checkable=True,
                                 tip="Mark quote, dash, case, white-space and punctuation changes")
         d = DisplayOptions()
-        for act, on in ((self.act_terms, d.terms), (self.act_numbering, d.numbering), (self.act_formatting, d.formatting)):
+        for act, on in ((self.act_terms, d.terms), (self.act_numbering, d.numbering),
+                        (self.act_formatting, d.formatting)):
             act.blockSignals(True)
             act.setChecked(on)
             act.blockSignals(False)
@@ -385,7 +386,8 @@ class MainWindow(QMainWindow):
         ws = self.ws
         title = "Counterdraft"
         if ws.inputs is not None:
-            acting = f", acting for the {ws.review.acting_for}" if ws.review is not None and ws.review.acting_for else ""
+            party = ws.review.acting_for if ws.review is not None else None
+            acting = f", acting for the {party}" if party else ""
             title = (f"{Path(ws.inputs.draft).name} against {Path(ws.inputs.precedent).name}{acting}"
                      " \u2014 Counterdraft")
         if ws.unsaved:
@@ -789,7 +791,8 @@ class MainWindow(QMainWindow):
             if r.review_file:
                 label = f"Review file: {Path(r.review_file).name}"
                 act = self.recent_menu.addAction(label)
-                act.triggered.connect(functools.partial(lambda path, _=False: self.open_review_file(path), r.review_file))
+                act.triggered.connect(functools.partial(lambda path, _=False: self.open_review_file(path),
+                                                        r.review_file))
             else:
                 label = f"{Path(r.draft).name} against {Path(r.precedent).name}"
                 if r.library:

@@ -84,7 +84,7 @@ def test_every_long_step_says_what_it_is_doing(tmp_path):
     inputs = Inputs(str(DEMO / "draft.docx"), str(DEMO / "precedent.docx"), str(folder))
     for run in ("first", "second"):
         seen: list[tuple[int, int | None, str]] = []
-        out = engine.load_and_review(inputs, lambda d, t, m: seen.append((d, t, m)), lambda: False)
+        out = engine.load_and_review(inputs, lambda d, t, m, seen=seen: seen.append((d, t, m)), lambda: False)
         engine.close_library(out.library)
         messages = [m for _d, _t, m in seen]
         assert messages[:2] == ["Reading draft.docx", "Reading precedent.docx"]

@@ -62,7 +62,8 @@ def test_cell_text_is_exact_and_marks_carry_non_colour_cues(qtbot):
     struck = [(t, f) for t, f in _fragments(pdoc) if f.fontStrikeOut()]
     assert [t for t, _ in struck] == ["30"]
     assert struck[0][1].foreground().color().name() == DELETED.ink
-    under = [(t, f) for t, f in _fragments(ddoc) if f.underlineStyle() == QTextCharFormat.UnderlineStyle.SingleUnderline]
+    single = QTextCharFormat.UnderlineStyle.SingleUnderline
+    under = [(t, f) for t, f in _fragments(ddoc) if f.underlineStyle() == single]
     assert [t for t, _ in under] == ["60"]
     assert under[0][1].background().color().name() == INSERTED.background
     dotted = [t for t, f in _fragments(ddoc) if f.underlineStyle() == QTextCharFormat.UnderlineStyle.DotLine]
