@@ -127,7 +127,15 @@ class MainWindow(QMainWindow):
         self.ask_before_closing = True
         self.last_message: str | None = None
 
-        # -- views ----------------------------------------------------------------------
+        self._build_views()
+        self._build_central()
+        self._build_status_bar()
+        self._build_actions()
+        self._wire()
+        self._restore_state()
+        self.broadcast(Change.EVERYTHING)
+
+    def _build_views(self) -> None:
         self.deviations = DeviationsPanel(self.ws, lambda d: engine.decision_view(d)[:2], self)
         self.terms = TermsPanel(self.ws, engine.term_status, self)
         self.patterns = PatternsPanel(self.ws, engine.pattern_groups, self)
@@ -136,32 +144,33 @@ class MainWindow(QMainWindow):
         self.decision = DecisionPanel(self.ws, engine.decision_view, self)
         self.variants = VariantsView(self)
         self.variants.clear("Open a precedent set to see how its agreements word the selected provision.")
-
-        self.left_tabs = QTabWidget(self)
-        self.left_tabs.setObjectName("leftTabs")
-        self.left_tabs.addTab(self.deviations, "Deviations")
-        self.left_tabs.addTab(self.terms, "Defined terms")
-        self.left_tabs.addTab(self.checks, checks_tab_title(None))
-        self.left_tabs.addTab(self.patterns, "Patterns")
-        self.inspector = QTabWidget(self)
-        self.inspector.setObjectName("inspectorTabs")
-        self.inspector.addTab(self.decision, "Selected deviation")
-        self.inspector.addTab(self.variants, "Wording in the precedent set")
-
-        self.right_split = QSplitter(Qt.Orientation.Vertical, self)
-        self.right_split.setObjectName("rightSplit")
-        self.right_split.addWidget(self.side)
-        self.right_split.addWidget(self.inspector)
-        self.right_split.setStretchFactor(0, 3)
-        self.right_split.setStretchFactor(1, 2)
-        self.main_split = QSplitter(Qt.Orientation.Horizontal, self)
-        self.main_split.setObjectName("mainSplit")
-        self.main_split.addWidget(self.left_tabs)
-        self.main_split.addWidget(self.right_split)
-        self.main_split.setStretchFactor(0, 2)
-        self.main_split.setStretchFactor(1, 3)
+        self.left_tabs = self._tabs("leftTabs", ((self.deviations, "Deviations"), (self.terms, "Defined terms"),
+                                                 (self.checks, checks_tab_title(None)), (self.patterns, "Patterns")))
+        self.inspector = self._tabs("inspectorTabs", ((self.decision, "Selected deviation"),
+                                                      (self.variants, "Wording in the precedent set")))
+        self.right_split = self._split(Qt.Orientation.Vertical, "rightSplit", self.side, self.inspector, (3, 2))
+        self.main_split = self._split(Qt.Orientation.Horizontal, "mainSplit", self.left_tabs, self.right_split,
+                                      (2, 3))
         self._splits_restored = False
 
+    def _tabs(self, name: str, pages: tuple[tuple[QWidget, str], ...]) -> QTabWidget:
+        tabs = QTabWidget(self)
+        tabs.setObjectName(name)
+        for page, title in pages:
+            tabs.addTab(page, title)
+        return tabs
+
+    def _split(self, orientation: Qt.Orientation, name: str, first: QWidget, second: QWidget,
+               stretch: tuple[int, int]) -> QSplitter:
+        split = QSplitter(orientation, self)
+        split.setObjectName(name)
+        for i, part in enumerate((first, second)):
+            split.addWidget(part)
+            split.setStretchFactor(i, stretch[i])
+        return split
+
+    def _build_central(self) -> None:
+        """The caution band above either the welcome text (no review yet) or the views."""
         self.caution = CautionBand(self)
         self.welcome = QLabel(self)
         self.welcome.setObjectName("welcome")
@@ -181,7 +190,7 @@ class MainWindow(QMainWindow):
         lay.addWidget(self.main_split, 1)
         self.setCentralWidget(central)
 
-        # -- status bar ----------------------------------------------------------------------
+    def _build_status_bar(self) -> None:
         self.status_text = QLabel(self)
         self.progress = QProgressBar(self)
         self.progress.setObjectName("progress")
@@ -194,9 +203,7 @@ class MainWindow(QMainWindow):
         self.statusBar().addPermanentWidget(self.progress)
         self.statusBar().addPermanentWidget(self.cancel_btn)
 
-        self._build_actions()
-
-        # -- wiring -------------------------------------------------------------------------
+    def _wire(self) -> None:
         for view in (self.deviations, self.terms, self.patterns, self.decision, self.checks):
             self.hub.changed.connect(view.on_change)
         self.checks.provisionRequested.connect(self.show_provision)
@@ -207,9 +214,6 @@ class MainWindow(QMainWindow):
         self.patterns.computeRequested.connect(self.compute_patterns)
         self.decision.decided.connect(self.record_decision)
         self.decision.cleared.connect(self.clear_decision)
-
-        self._restore_state()
-        self.broadcast(Change.EVERYTHING)
 
     # ======================================================================================
     # actions, menus, keys
@@ -233,6 +237,16 @@ class MainWindow(QMainWindow):
         return a
 
     def _build_actions(self) -> None:
+        self._build_file_actions()
+        self._build_review_actions()
+        self._build_display_actions()
+        self.act_keys = self._action("Keys", lambda: show_keys(self), key=KEYS["help"])
+        self.act_about = self._action("About Counterdraft", lambda: show_about(self))
+        self._build_menus()
+        self._build_toolbar()
+        self._refresh_recent_menu()
+
+    def _build_file_actions(self) -> None:
         A = self._action
         self.act_open = A("Compare\u2026", self.show_open_dialog, key=QKeySequence.StandardKey.Open,
                           tip="Choose the counterparty's draft and the house precedent")
@@ -250,6 +264,8 @@ class MainWindow(QMainWindow):
                                     lambda: self._ask_export("issues-list", order="rank"))
         self.act_quit = A("Quit", self.close, key=QKeySequence.StandardKey.Quit)
 
+    def _build_review_actions(self) -> None:
+        A = self._action
         self.act_next = A("Next deviation", lambda: self._step(+1), key=KEYS["next"])
         self.act_prev = A("Previous deviation", lambda: self._step(-1), key=KEYS["previous"])
         self.act_accept = A("Accept the draft's words", lambda: self._decide_key("accept"), key=KEYS["accept"])
@@ -263,6 +279,8 @@ class MainWindow(QMainWindow):
         self.act_filter = A("Filter the list", self._focus_filter, key=QKeySequence.StandardKey.Find)
         self.act_cancel = A("Cancel operation", self.cancel_operation, key=QKeySequence(Qt.Key.Key_Escape))
 
+    def _build_display_actions(self) -> None:
+        A = self._action
         self.act_terms = A("Term changes", self._display_changed, checkable=True,
                            tip="Mark renamed defined terms and list term deviations")
         self.act_numbering = A("Numbering", self._display_changed, checkable=True,
@@ -276,58 +294,40 @@ class MainWindow(QMainWindow):
             act.setChecked(on)
             act.blockSignals(False)
 
-        self.act_keys = A("Keys", lambda: show_keys(self), key=KEYS["help"])
-        self.act_about = A("About Counterdraft", lambda: show_about(self))
-
+    def _build_menus(self) -> None:
         mb = self.menuBar()
         m = mb.addMenu("&File")
-        m.addAction(self.act_open)
-        m.addAction(self.act_library)
-        m.addAction(self.act_open_review)
+        m.addActions([self.act_open, self.act_library, self.act_open_review])
         self.recent_menu = m.addMenu("Recent")
         m.addSeparator()
-        m.addAction(self.act_save)
-        m.addAction(self.act_save_as)
-        ex = m.addMenu("Export")
-        for a in (self.act_export_cd, self.act_export_rl, self.act_export_il, self.act_export_il_rank):
-            ex.addAction(a)
+        m.addActions([self.act_save, self.act_save_as])
+        m.addMenu("Export").addActions(
+            [self.act_export_cd, self.act_export_rl, self.act_export_il, self.act_export_il_rank])
         m.addSeparator()
         m.addAction(self.act_quit)
         m = mb.addMenu("&Review")
-        for a in (self.act_next, self.act_prev):
-            m.addAction(a)
+        m.addActions([self.act_next, self.act_prev])
         m.addSeparator()
-        for a in (self.act_accept, self.act_revert, self.act_amend, self.act_note, self.act_clear):
-            m.addAction(a)
+        m.addActions([self.act_accept, self.act_revert, self.act_amend, self.act_note, self.act_clear])
         m.addSeparator()
-        m.addAction(self.act_acting_for)
-        m.addAction(self.act_filter)
-        m.addAction(self.act_cancel)
-        m = mb.addMenu("&Show")
-        for a in (self.act_terms, self.act_numbering, self.act_formatting):
-            m.addAction(a)
-        m = mb.addMenu("&Help")
-        m.addAction(self.act_keys)
-        m.addAction(self.act_about)
+        m.addActions([self.act_acting_for, self.act_filter, self.act_cancel])
+        mb.addMenu("&Show").addActions([self.act_terms, self.act_numbering, self.act_formatting])
+        mb.addMenu("&Help").addActions([self.act_keys, self.act_about])
 
+    def _build_toolbar(self) -> None:
         tb = QToolBar("Main", self)
         tb.setObjectName("mainToolbar")
         tb.setMovable(False)
         tb.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextOnly)
-        tb.addAction(self.act_open)
-        tb.addAction(self.act_library)
-        tb.addAction(self.act_save)
+        tb.addActions([self.act_open, self.act_library, self.act_save])
         self.export_button_action = tb.addAction("Export counter-draft\u2026")
         self.export_button_action.triggered.connect(lambda: self._ask_export("counter-draft"))
         tb.addSeparator()
-        show = QLabel("  Show:  ", tb)
-        tb.addWidget(show)
-        for a in (self.act_terms, self.act_numbering, self.act_formatting):
-            tb.addAction(a)
+        tb.addWidget(QLabel("  Show:  ", tb))
+        tb.addActions([self.act_terms, self.act_numbering, self.act_formatting])
         tb.addSeparator()
         tb.addAction(self.act_keys)
         self.addToolBar(tb)
-        self._refresh_recent_menu()
 
     # ======================================================================================
     # broadcast
