@@ -15,7 +15,6 @@ from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
     QHBoxLayout,
     QHeaderView,
-    QLabel,
     QPushButton,
     QSplitter,
     QTextBrowser,
@@ -29,7 +28,7 @@ from .models import NO_TALLY, TALLY_ROLE
 from .palette import MUTED_INK
 from .state import Change, Workspace
 from .tally import tally, tally_glyphs, tally_words
-from .widgets import TallyDelegate
+from .widgets import TallyDelegate, muted_label
 
 if TYPE_CHECKING:  # the window opens without loading the engine
     from core.library.patterns import PatternGroup
@@ -49,9 +48,7 @@ class PatternsPanel(QWidget):
         super().__init__(parent)
         self._ws = workspace
         self._adapt = adapt  # the workspace's patterns -> Sequence[PatternGroup]
-        self.intro = QLabel(self)
-        self.intro.setWordWrap(True)
-        self.intro.setStyleSheet(f"color: {MUTED_INK}")
+        self.intro = muted_label("", self)
         self.compute_btn = QPushButton("Work out the patterns", self)
         self.compute_btn.clicked.connect(self.computeRequested.emit)
         top = QHBoxLayout()

@@ -5,15 +5,25 @@ from __future__ import annotations
 
 from PySide6.QtCore import QModelIndex, QPersistentModelIndex, QRect, Qt
 from PySide6.QtGui import QBrush, QColor, QPainter, QPen
-from PySide6.QtWidgets import QLabel, QMessageBox, QStyle, QStyledItemDelegate, QStyleOptionViewItem, QWidget
+from PySide6.QtWidgets import (
+    QAbstractItemView,
+    QLabel,
+    QMessageBox,
+    QStyle,
+    QStyledItemDelegate,
+    QStyleOptionViewItem,
+    QTableView,
+    QWidget,
+)
 
 import core
 
 from .models import BAR_ROLE, TALLY_ROLE, source_data
-from .palette import BAR, CAUTION_BAND, TALLY
+from .palette import BAR, CAUTION_BAND, MUTED_INK, TALLY
 from .tally import Tally, tally
 
-__all__ = ["BarDelegate", "CautionBand", "TallyDelegate", "one_line", "paint_tally", "show_message", "tally_width"]
+__all__ = ["BarDelegate", "CautionBand", "TallyDelegate", "muted_label", "one_line", "paint_tally", "read_only_rows",
+           "show_message", "tally_width"]
 
 #: Width of an inline bar, in pixels; the figure is written right of it.
 BAR_PX = 46
@@ -171,3 +181,22 @@ def show_message(parent: QWidget, title: str, text: str, *,
     box.setWindowModality(Qt.WindowModality.WindowModal)
     box.open()
     return box
+
+
+def muted_label(text: str, parent: QWidget) -> QLabel:
+    """A wrapped label in the muted ink: what a view shows, explained beside it."""
+    label = QLabel(text, parent)
+    label.setWordWrap(True)
+    label.setStyleSheet(f"color: {MUTED_INK}")
+    return label
+
+
+def read_only_rows(table: QTableView, *, name: str) -> QTableView:
+    """*table* as a list of whole rows: one row selected at a time, nothing edited in place,
+    no row numbers (the model's own columns number what needs it)."""
+    table.setObjectName(name)
+    table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
+    table.setSelectionMode(QAbstractItemView.SelectionMode.SingleSelection)
+    table.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
+    table.verticalHeader().hide()
+    return table
