@@ -72,7 +72,23 @@ class DecisionPanel(QWidget):
         self.details = QTextBrowser(self)
         self.details.setObjectName("deviationDetails")
         self.details.setOpenLinks(False)
+        buttons = self._build_buttons()
+        self._build_amend()
+        note_row = self._build_note()
 
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(6, 4, 6, 4)
+        lay.addWidget(self.details, 1)
+        lay.addLayout(buttons)
+        lay.addWidget(self.amend_label)
+        lay.addWidget(self.amend_text)
+        lay.addWidget(self.amend_ok, 0, Qt.AlignmentFlag.AlignLeft)
+        lay.addWidget(self.note_label)
+        lay.addLayout(note_row)
+        self._show(None)
+
+    def _build_buttons(self) -> QHBoxLayout:
+        """Accept, restore, amend (one checked: the decision recorded) and clear."""
         self.accept_btn = QPushButton(f"Accept draft  [{KEYS['accept']}]", self)
         self.revert_btn = QPushButton(f"Restore precedent  [{KEYS['revert']}]", self)
         self.amend_btn = QPushButton(f"Amend\u2026  [{KEYS['amend']}]", self)
@@ -92,7 +108,10 @@ class DecisionPanel(QWidget):
         for b in (self.accept_btn, self.revert_btn, self.amend_btn, self.clear_btn):
             buttons.addWidget(b)
         buttons.addStretch(1)
+        return buttons
 
+    def _build_amend(self) -> None:
+        """The amend box, hidden until the reviewer amends."""
         self.amend_label = QLabel("Your wording (replaces the draft's words shown above):", self)
         self.amend_text = QPlainTextEdit(self)
         self.amend_text.setObjectName("amendText")
@@ -102,6 +121,7 @@ class DecisionPanel(QWidget):
         for w in (self.amend_label, self.amend_text, self.amend_ok):
             w.hide()
 
+    def _build_note(self) -> QHBoxLayout:
         self.note_label = QLabel(f"Note for the issues list and the counter-draft comment  [{KEYS['note']}]:", self)
         self.note = QPlainTextEdit(self)
         self.note.setObjectName("decisionNote")
@@ -112,17 +132,7 @@ class DecisionPanel(QWidget):
         note_row = QHBoxLayout()
         note_row.addWidget(self.note, 1)
         note_row.addWidget(self.note_save, 0, Qt.AlignmentFlag.AlignBottom)
-
-        lay = QVBoxLayout(self)
-        lay.setContentsMargins(6, 4, 6, 4)
-        lay.addWidget(self.details, 1)
-        lay.addLayout(buttons)
-        lay.addWidget(self.amend_label)
-        lay.addWidget(self.amend_text)
-        lay.addWidget(self.amend_ok, 0, Qt.AlignmentFlag.AlignLeft)
-        lay.addWidget(self.note_label)
-        lay.addLayout(note_row)
-        self._show(None)
+        return note_row
 
     # -- broadcast ------------------------------------------------------------------------
     def on_change(self, change: Change) -> None:
