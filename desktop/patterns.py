@@ -16,7 +16,6 @@ from PySide6.QtWidgets import (
     QHBoxLayout,
     QHeaderView,
     QPushButton,
-    QSplitter,
     QTextBrowser,
     QTreeWidget,
     QTreeWidgetItem,
@@ -28,7 +27,7 @@ from .models import NO_TALLY, TALLY_ROLE
 from .palette import MUTED_INK
 from .state import Change, Workspace
 from .tally import tally, tally_glyphs, tally_words
-from .widgets import TallyDelegate, muted_label
+from .widgets import TallyDelegate, muted_label, splitter
 
 if TYPE_CHECKING:  # the window opens without loading the engine
     from core.library.patterns import PatternGroup
@@ -65,12 +64,7 @@ class PatternsPanel(QWidget):
         self.tree.currentItemChanged.connect(self._show_examples)
         self.examples = QTextBrowser(self)
         self.examples.setObjectName("patternExamples")
-        split = QSplitter(Qt.Orientation.Vertical, self)
-        split.setObjectName("patternsSplit")
-        split.addWidget(self.tree)
-        split.addWidget(self.examples)
-        split.setStretchFactor(0, 3)
-        split.setStretchFactor(1, 1)
+        split = splitter(self, Qt.Orientation.Vertical, "patternsSplit", (self.tree, self.examples), (3, 1))
         lay = QVBoxLayout(self)
         lay.setContentsMargins(4, 4, 4, 4)
         lay.addLayout(top)

@@ -9,6 +9,7 @@ from PySide6.QtWidgets import (
     QAbstractItemView,
     QLabel,
     QMessageBox,
+    QSplitter,
     QStyle,
     QStyledItemDelegate,
     QStyleOptionViewItem,
@@ -23,12 +24,25 @@ from .palette import BAR, CAUTION_BAND, MUTED_INK, TALLY
 from .tally import Tally, tally
 
 __all__ = ["BarDelegate", "CautionBand", "TallyDelegate", "muted_label", "one_line", "paint_tally", "read_only_rows",
-           "show_message", "tally_width"]
+           "show_message", "splitter", "tally_width"]
 
 #: Width of an inline bar, in pixels; the figure is written right of it.
 BAR_PX = 46
 #: Height of an inline bar, in pixels.
 BAR_H_PX = 8
+
+
+def _draw_cell_ground(delegate: QStyledItemDelegate, painter: QPainter, option: QStyleOptionViewItem,
+                      index: QModelIndex | QPersistentModelIndex) -> str:
+    """Draw the cell of *index* as the style does (selection, focus, alternate rows) but
+    without its text, which the delegate then draws beside its figure; returns that text."""
+    delegate.initStyleOption(option, index)
+    text: str = option.text
+    option.text = ""
+    style = option.widget.style() if option.widget else None
+    if style is not None:
+        style.drawControl(QStyle.ControlElement.CE_ItemViewItem, option, painter, option.widget)
+    return text
 
 
 class BarDelegate(QStyledItemDelegate):
@@ -43,12 +57,7 @@ class BarDelegate(QStyledItemDelegate):
         if not isinstance(frac, float) or frac < 0:
             super().paint(painter, option, index)
             return
-        self.initStyleOption(option, index)
-        text = option.text
-        option.text = ""
-        style = option.widget.style() if option.widget else None
-        if style is not None:
-            style.drawControl(QStyle.ControlElement.CE_ItemViewItem, option, painter, option.widget)
+        text = _draw_cell_ground(self, painter, option, index)
         r: QRect = option.rect
         painter.save()
         bar_px = max(12, min(BAR_PX, r.width() // 2 - 10))
@@ -127,12 +136,7 @@ class TallyDelegate(QStyledItemDelegate):
         if t is None:
             super().paint(painter, option, index)
             return
-        self.initStyleOption(option, index)
-        text = option.text
-        option.text = ""
-        style = option.widget.style() if option.widget else None
-        if style is not None:
-            style.drawControl(QStyle.ControlElement.CE_ItemViewItem, option, painter, option.widget)
+        text = _draw_cell_ground(self, painter, option, index)
         r: QRect = option.rect
         room = r.width() - 12 - option.fontMetrics.horizontalAdvance(text + " ")
         side = TALLY_MAX_PX
@@ -189,6 +193,17 @@ def muted_label(text: str, parent: QWidget) -> QLabel:
     label.setWordWrap(True)
     label.setStyleSheet(f"color: {MUTED_INK}")
     return label
+
+
+def splitter(parent: QWidget, orientation: Qt.Orientation, name: str, parts: tuple[QWidget, ...],
+             stretch: tuple[int, ...]) -> QSplitter:
+    """A splitter named *name* holding *parts*, each growing by its *stretch* factor."""
+    split = QSplitter(orientation, parent)
+    split.setObjectName(name)
+    for i, (part, factor) in enumerate(zip(parts, stretch, strict=True)):
+        split.addWidget(part)
+        split.setStretchFactor(i, factor)
+    return split
 
 
 def read_only_rows(table: QTableView, *, name: str) -> QTableView:

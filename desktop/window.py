@@ -35,7 +35,6 @@ from PySide6.QtWidgets import (
     QMessageBox,
     QProgressBar,
     QPushButton,
-    QSplitter,
     QTabWidget,
     QToolBar,
     QVBoxLayout,
@@ -56,7 +55,7 @@ from .sidebyside import SideBySideView
 from .state import Change, DisplayOptions, Inputs, Workspace
 from .terms import TermsPanel
 from .variants import VariantsView
-from .widgets import CautionBand, one_line, show_message
+from .widgets import CautionBand, one_line, show_message, splitter
 
 if TYPE_CHECKING:
     from core.library.index import Library
@@ -148,9 +147,9 @@ class MainWindow(QMainWindow):
                                                  (self.checks, checks_tab_title(None)), (self.patterns, "Patterns")))
         self.inspector = self._tabs("inspectorTabs", ((self.decision, "Selected deviation"),
                                                       (self.variants, "Wording in the precedent set")))
-        self.right_split = self._split(Qt.Orientation.Vertical, "rightSplit", self.side, self.inspector, (3, 2))
-        self.main_split = self._split(Qt.Orientation.Horizontal, "mainSplit", self.left_tabs, self.right_split,
-                                      (2, 3))
+        self.right_split = splitter(self, Qt.Orientation.Vertical, "rightSplit", (self.side, self.inspector), (3, 2))
+        self.main_split = splitter(self, Qt.Orientation.Horizontal, "mainSplit", (self.left_tabs, self.right_split),
+                                   (2, 3))
         self._splits_restored = False
 
     def _tabs(self, name: str, pages: tuple[tuple[QWidget, str], ...]) -> QTabWidget:
@@ -159,15 +158,6 @@ class MainWindow(QMainWindow):
         for page, title in pages:
             tabs.addTab(page, title)
         return tabs
-
-    def _split(self, orientation: Qt.Orientation, name: str, first: QWidget, second: QWidget,
-               stretch: tuple[int, int]) -> QSplitter:
-        split = QSplitter(orientation, self)
-        split.setObjectName(name)
-        for i, part in enumerate((first, second)):
-            split.addWidget(part)
-            split.setStretchFactor(i, stretch[i])
-        return split
 
     def _build_central(self) -> None:
         """The caution band above either the welcome text (no review yet) or the views."""
