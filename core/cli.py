@@ -7,7 +7,6 @@ from __future__ import annotations
 
 import argparse
 import functools
-import json
 import os
 import sys
 import textwrap
@@ -16,8 +15,9 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from . import CAUTION, __version__, session
+from .console import write_json
 from .errors import CounterdraftError
-from .fileio import atomic_write_text, refuse_overwrite_of_inputs
+from .fileio import refuse_overwrite_of_inputs
 
 if TYPE_CHECKING:
     from .decisions import ReviewFile
@@ -29,14 +29,6 @@ if TYPE_CHECKING:
 __all__ = ["main"]
 
 DEMO_DIR = Path(__file__).resolve().parent.parent / "demo_agreements"
-
-
-def _write_json(obj: object, out: str) -> None:
-    text = json.dumps(obj, ensure_ascii=False, indent=2) + "\n"
-    if out == "-":
-        sys.stdout.write(text)
-    else:
-        atomic_write_text(out, text)
 
 
 def _note(message: str, *, about: str = "counterdraft") -> None:
@@ -53,7 +45,7 @@ def _cmd_inspect(args: argparse.Namespace) -> int:
     for w in doc.warnings:
         _note(w, about=args.file)
     if args.json:
-        _write_json(document_to_dict(doc), args.json)
+        write_json(document_to_dict(doc), args.json)
     else:
         from .console import terminal_width
 
@@ -84,7 +76,7 @@ def _cmd_review(args: argparse.Namespace) -> int:
     if args.json:
         for note in review.notes:
             _note(note)
-        _write_json(review_to_dict(review), args.json)
+        write_json(review_to_dict(review), args.json)
     else:
         print(format_review(review, show=args.show, width=args.width))
     return 0
