@@ -47,14 +47,14 @@ if TYPE_CHECKING:
     from .review.termmap import TermOverride
 
 __all__ = [
-    "ExportKind",
+    "SAME_PARTY",
     "Cancelled",
     "Documents",
+    "ExportKind",
     "IsCancelled",
     "LibraryOpener",
     "Party",
     "Report",
-    "SAME_PARTY",
     "check_cancelled",
     "compute_patterns",
     "decide",
@@ -231,14 +231,14 @@ def review(draft: Document, precedent: Document, *, library: Library | None = No
     from .review import run_review
 
     report(0, None, "Comparing provisions")
-    options = {}
+    vocabulary, clause_type = None, None
     if library is not None:
         from .library.frequency import clause_type_function
 
-        options = {"vocabulary": library.vocabulary, "clause_type": clause_type_function(library)}
-    result = run_review(draft, precedent, overrides=tuple(overrides), acting_for=acting_for,
-                        stage=lambda what: report(0, None, f"Comparing provisions: {what}"),
-                        **options)
+        vocabulary, clause_type = library.vocabulary, clause_type_function(library)
+    result = run_review(draft, precedent, overrides=tuple(overrides), vocabulary=vocabulary,
+                        clause_type=clause_type, acting_for=acting_for,
+                        stage=lambda what: report(0, None, f"Comparing provisions: {what}"))
     check_cancelled(cancelled)
     if library is not None:
         from .library.frequency import apply_frequency
