@@ -1,4 +1,4 @@
-"""The ``counterdraft`` command line.  The desktop app calls the same engine functions.
+"""The ``counterdraft`` command line: a client of :mod:`core.session`, as the window is.
 
 Every command turns :class:`CounterdraftError` into one line on stderr and exit status 2.
 """
@@ -6,42 +6,46 @@ Every command turns :class:`CounterdraftError` into one line on stderr and exit 
 from __future__ import annotations
 
 import argparse
-import json
+import functools
 import os
 import sys
 import textwrap
+from collections.abc import Sequence
 from pathlib import Path
+from typing import TYPE_CHECKING
 
-from . import CAUTION, __version__
+from . import CAUTION, __version__, session
+from .console import write_json
 from .errors import CounterdraftError
-from .fileio import atomic_write_text, refuse_overwrite_of_inputs
+from .fileio import refuse_overwrite_of_inputs
+
+if TYPE_CHECKING:
+    from .decisions import ReviewFile
+    from .library.index import Library
+    from .model import Deviation, Document, Review
+
+    Subparsers = argparse._SubParsersAction[argparse.ArgumentParser]
 
 __all__ = ["main"]
 
 DEMO_DIR = Path(__file__).resolve().parent.parent / "demo_agreements"
 
 
-def _write_json(obj: object, out: str) -> None:
-    text = json.dumps(obj, ensure_ascii=False, indent=2) + "\n"
-    if out == "-":
-        sys.stdout.write(text)
-    else:
-        atomic_write_text(out, text)
+def _note(message: str, *, about: str = "counterdraft") -> None:
+    print(f"{about}: note: {message}", file=sys.stderr)
 
 
 def _cmd_inspect(args: argparse.Namespace) -> int:
     from .outline import format_outline
-    from .readers import read_document
     from .serialize import document_to_dict
-
 
     if args.json and args.json != "-":
         refuse_overwrite_of_inputs(args.json, args.file)
-    doc = read_document(args.file, cache=True)
+    doc = session.read_document(args.file)
     for w in doc.warnings:
-        print(f"{args.file}: note: {w}", file=sys.stderr)
+        _note(w, about=args.file)
     if args.json:
-        _write_json(document_to_dict(doc), args.json)
+        write_json(document_to_dict(doc), args.json)
     else:
         from .console import terminal_width
 
@@ -50,7 +54,6 @@ def _cmd_inspect(args: argparse.Namespace) -> int:
 
 
 def _cmd_review(args: argparse.Namespace) -> int:
-    from .readers import read_document
     from .review import review_to_dict
     from .review.report import format_review
 
@@ -58,78 +61,68 @@ def _cmd_review(args: argparse.Namespace) -> int:
         refuse_overwrite_of_inputs(args.json, args.draft, args.against)
         if args.save and Path(args.save).resolve() == Path(args.json).resolve():
             raise CounterdraftError("--json and --save name the same file", path=args.save)
-    from .readers import learns_layout
-
-    structure, notes = None, ()
-    if learns_layout(args.draft, args.library):
-        from .layout.store import structure_for
-
-        structure, notes = structure_for(args.draft, args.library)
-    for note in notes:
-        print(f"{args.draft}: note: {note}", file=sys.stderr)
-    draft = read_document(args.draft, structure=structure, cache=True)
-    precedent = read_document(args.against, cache=True)
-    for path, doc in ((args.draft, draft), (args.against, precedent)):
+    docs = session.read_documents(args.draft, args.against, library=args.library)
+    for note in docs.notes:
+        _note(note, about=args.draft)
+    for path, doc in ((args.draft, docs.draft), (args.against, docs.precedent)):
         for w in doc.warnings:
-            print(f"{path}: note: {w}", file=sys.stderr)
-    review = _run_review(draft, precedent, library_folder=args.library, acting_for=args.acting_for)
+            _note(w, about=path)
+    review = _review(docs.draft, docs.precedent, library=args.library, acting_for=args.acting_for)
     if args.save:
-        from .decisions import new_review_file, save_review_file
-
         refuse_overwrite_of_inputs(args.save, args.draft, args.against)
-        save_review_file(args.save, new_review_file(args.draft, args.against, review=review,
-                                                    library=args.library))
+        session.save(args.save, session.new_review_file(args.draft, args.against, review=review,
+                                                        library=args.library))
         print(f"counterdraft: review saved to {args.save}", file=sys.stderr)
     if args.json:
         for note in review.notes:
-            print(f"counterdraft: note: {note}", file=sys.stderr)
-        _write_json(review_to_dict(review), args.json)
+            _note(note)
+        write_json(review_to_dict(review), args.json)
     else:
         print(format_review(review, show=args.show, width=args.width))
     return 0
 
 
-def _run_review(draft, precedent, *, library_folder: str | None, overrides=(),
-                acting_for: str | None = None):
-    """The one place the CLI runs the engine: with the precedent set's figures when given,
-    acting for a party when given."""
-    from .review import run_review
+def _open_library(address: str) -> Library:
+    """The precedent set at *address*, opened through the session with a progress bar on
+    stderr, and what its build skipped or rebuilt said there."""
+    from .library.commands import note_rebuilt, progress_bar, warn_skipped
 
-    if not library_folder:
-        return run_review(draft, precedent, overrides=tuple(overrides), acting_for=acting_for)
-    from .library.commands import open_library_for_cli, review_options
-    from .library.frequency import apply_frequency
+    update, close = progress_bar("indexing")
 
-    library = open_library_for_cli(library_folder)
+    def report(done: int, total: int | None, _message: str) -> None:
+        if total is not None:  # the bar counts files; the stages without a count are not shown
+            update(done, total)
+
     try:
-        return apply_frequency(run_review(draft, precedent, overrides=tuple(overrides),
-                                          acting_for=acting_for, **review_options(library)), library)
+        library = session.open_library(address, report=report)
     finally:
-        library.close()
+        close()
+    if library.report is not None:
+        note_rebuilt(library.report)
+        warn_skipped(library.report.failures)
+    elif library.stale:  # a shared store, opened as it is
+        _note("the shared precedent set's last build did not finish; its figures may be out of date")
+    return library
 
 
-def _review_runner(library_folder: str | None):
-    """The runner that reopens a review file: with its precedent set when it recorded one."""
-    if not library_folder:
-        return None
-
-    def run(draft, precedent, *, overrides=(), acting_for=None):
-        return _run_review(draft, precedent, library_folder=library_folder, overrides=overrides,
-                           acting_for=acting_for)
-
-    return run
+def _review(draft: Document, precedent: Document, *, library: str | None,
+            acting_for: str | None) -> Review:
+    """The review of the two documents: with the figures of the precedent set at *library*
+    when given, acting for a party when given."""
+    if not library:
+        return session.review(draft, precedent, acting_for=acting_for)
+    with _open_library(library) as opened:
+        return session.review(draft, precedent, library=opened, acting_for=acting_for)
 
 
-def _open_review_file(path: str):
-    from .decisions import load_review_file, read_library_folder
-
-    record = load_review_file(path, runner=_review_runner(read_library_folder(path)))
+def _open_review_file(path: str) -> ReviewFile:
+    record = session.open_review_file(path, open_recorded=_open_library)
     for note in record.notes:
-        print(f"counterdraft: note: {note}", file=sys.stderr)
+        _note(note)
     return record
 
 
-def _deviation_by_number(review, given: str, path: str):
+def _deviation_by_number(review: Review, given: str, path: str) -> Deviation:
     """The deviation *given* names: its number (the rank every output shows, e.g. "3") or
     its internal id (e.g. "v12", which saved scripts use)."""
     devs = review.deviations
@@ -144,21 +137,20 @@ def _deviation_by_number(review, given: str, path: str):
 
 
 def _cmd_decide(args: argparse.Namespace) -> int:
-    from .decisions import clause_label, decide, read_library_folder, update_review_file
+    from .labels import clause_label
 
-    found = []
+    found: list[Deviation] = []
 
-    def record_it(record):
+    def record_it(record: ReviewFile) -> ReviewFile:
         for note in record.notes:
-            print(f"counterdraft: note: {note}", file=sys.stderr)
+            _note(note)
         dev = _deviation_by_number(record.review, args.deviation, args.review_file)
         found.append(dev)
-        return decide(record, dev.id, args.action, text=args.text, note=args.note,
-                      paragraphs=args.paragraphs)
+        return session.decide(record, dev.id, args.action, text=args.text, note=args.note,
+                              paragraphs=args.paragraphs)
 
     # read, decide and save under one lock: decisions recorded at the same moment all land
-    record = update_review_file(args.review_file, record_it,
-                                runner=_review_runner(read_library_folder(args.review_file)))
+    record = session.update_review_file(args.review_file, record_it, open_recorded=_open_library)
     dev = found[-1]
     where = clause_label(record.review, dev)
     print(f"Deviation {dev.rank}{f', {where}' if where else ''}: {args.action} recorded "
@@ -166,8 +158,8 @@ def _cmd_decide(args: argparse.Namespace) -> int:
     return 0
 
 
-def _cmd_export(args: argparse.Namespace) -> int:
-    from .export import default_author, write_counter_draft, write_issues_list, write_redline
+def _export_outputs(args: argparse.Namespace) -> list[str]:
+    """The outputs ``export`` was asked for, refused when none, shared or over an input."""
     outputs = [o for o in (args.counter_draft, args.redline, args.issues_list) if o]
     if not outputs:
         raise CounterdraftError("nothing to export: give --counter-draft, --redline or --issues-list")
@@ -175,10 +167,27 @@ def _cmd_export(args: argparse.Namespace) -> int:
         raise CounterdraftError("two outputs share one path")
     for out in outputs:
         refuse_overwrite_of_inputs(out, args.review_file)
+    return outputs
+
+
+def _counter_draft_summary(record: ReviewFile, out: str) -> str:
+    from .readers import identify
+
+    fmt = identify(record.draft.path)
+    recovered = "" if fmt.name == "docx" else f"; a new .docx from the text of {fmt.noun}"
+    return (f"counter-draft written to {out} "
+            f"({sum(d.action != 'accept' for d in record.decisions)} changes, "
+            f"{sum(bool(d.note) for d in record.decisions)} notes{recovered})")
+
+
+def _cmd_export(args: argparse.Namespace) -> int:
+    from .model import CATEGORIES
+
+    _export_outputs(args)
     record = _open_review_file(args.review_file)
-    inputs = (record.draft.path, record.precedent.path, args.review_file)
-    author = args.author or default_author()
-    cautioned = []
+    export = functools.partial(session.export, record=record, author=args.author,
+                               inputs=(args.review_file,))
+    cautioned: list[bool] = []
 
     def written(message: str) -> None:
         if not cautioned:  # once, with the first output written (an output carries the caution)
@@ -187,28 +196,16 @@ def _cmd_export(args: argparse.Namespace) -> int:
         print(message)
 
     if args.counter_draft:
-        notes = write_counter_draft(record.review, record.decisions, args.counter_draft,
-                                    draft_path=record.draft.path, author=author, inputs=inputs)
-        from .readers import identify
-
-        fmt = identify(record.draft.path)
-        recovered = "" if fmt.name == "docx" else f"; a new .docx from the text of {fmt.noun}"
-        written(f"counter-draft written to {args.counter_draft} "
-                f"({sum(d.action != 'accept' for d in record.decisions)} changes, "
-                f"{sum(bool(d.note) for d in record.decisions)} notes{recovered})")
+        notes = export("counter-draft", args.counter_draft)
+        written(_counter_draft_summary(record, args.counter_draft))
         for note in notes:
-            print(f"counterdraft: note: {note}", file=sys.stderr)
+            _note(note)
     if args.redline:
-        write_redline(record.review, args.redline, author=author, inputs=inputs, show=args.show)
+        export("redline", args.redline, show=args.show)
         written(f"comparison redline written to {args.redline}")
     if args.issues_list:
-        from .export import ISSUES_DEFAULT_INCLUDE
-        from .model import CATEGORIES
-
-        write_issues_list(record.review, args.issues_list, decisions=record.decisions,
-                          author=author, inputs=inputs,
-                          include=CATEGORIES if args.issues_all else ISSUES_DEFAULT_INCLUDE,
-                          order=args.order)
+        export("issues-list", args.issues_list, order=args.order,
+               include=CATEGORIES if args.issues_all else None)
         written(f"issues list written to {args.issues_list}")
     return 0
 
@@ -225,21 +222,28 @@ DEMO_ACTING_FOR = "Supplier"
 #: a past counterparty obtained, so that the window and the issues list show stances.
 DEMO_STANCES = (("01-quenby-astrel-diagnostics.docx", "9.2", "house wording"),
                 ("04-pellbrook-analytical.docx", "9.2", "refuse"))
+#: What the demo writes (label, file name in the output folder, export kind or None for the
+#: review file itself).
+DEMO_OUTPUTS: tuple[tuple[str, str, session.ExportKind | None], ...] = (
+    ("review file (decisions)", "review.json", None),
+    ("counter-draft (tracked changes)", "counter-draft.docx", "counter-draft"),
+    ("comparison redline", "redline.docx", "redline"),
+    ("issues list (printable page)", "issues-list.html", "issues-list"),
+    ("issues list (Word table)", "issues-list.docx", "issues-list"),
+)
 
 
 def apply_demo_stances(library_folder: str | os.PathLike[str]) -> None:
     """Record :data:`DEMO_STANCES` in the demo precedent set's index (built or refreshed
     first); the window's demo and the screenshots use the same."""
-    from .library.index import open_library
-
-    with open_library(library_folder) as library:
+    with session.open_library(str(library_folder)) as library:
         for document, provision, stance in DEMO_STANCES:
             vid = library.variant_of(document, provision)
             if vid is not None:
                 library.label_variant(vid, stance)
 
 
-def _numbers(devs) -> str:
+def _numbers(devs: Sequence[Deviation]) -> str:
     """"deviations 1, 2 and 3": the numbers every output shows, in a sentence."""
     nums = [str(d.rank) for d in devs]
     if not nums:
@@ -249,12 +253,59 @@ def _numbers(devs) -> str:
     return f"deviations {', '.join(nums[:-1])} and {nums[-1]}"
 
 
+def _demo_decisions(record: ReviewFile) -> tuple[ReviewFile, list[Deviation], list[Deviation]]:
+    """*record* with the demo's illustrative reverts: the top substantive deviations, plus a
+    clause the draft leaves out restored and one it adds struck (so that the counter-draft
+    shows its cross-references kept true across the renumbering).  Returns the record and
+    the two groups reverted."""
+    devs = record.review.deviations
+    top = [d for d in devs if d.category == "substantive" and d.change != "move"][:DEMO_REVERTS]
+    structural = []
+    for kind in ("remove-provision", "add-provision"):
+        first = next((d for d in devs if d.change == kind and d not in top), None)
+        if first is not None:
+            structural.append(first)
+    structural.sort(key=lambda d: d.rank)
+    for i, dev in enumerate(top + structural):
+        note = ("Illustrative decision recorded by the demo script: restore the house wording."
+                if i == 0 else None)
+        record = session.decide(record, dev.id, "revert", note=note)
+    return record, top, structural
+
+
+def _demo_write(record: ReviewFile, out: Path) -> None:
+    """Save the demo's review file and export every output into *out*."""
+    review_file = out / "review.json"
+    session.save(review_file, record)
+    for _label, name, kind in DEMO_OUTPUTS:
+        if kind is not None:
+            for note in session.export(kind, out / name, record=record, inputs=(str(review_file),)):
+                _note(note)
+
+
+def _demo_summary(top: Sequence[Deviation], structural: Sequence[Deviation], out: Path, *,
+                  width: int) -> None:
+    print(textwrap.fill(
+        f"The demo acts for the {DEMO_ACTING_FOR} (the precedent is its own paper) and records two "
+        "stances of the firm in the precedent set (the 30-day payment period as house wording, "
+        "a past 60-day one as refused). "
+        f"As an illustration, not a recommendation, the demo reverted {_numbers(top)}, the "
+        f"{len(top)} highest-ranked substantive ones, and {_numbers(structural)}, restoring a "
+        "clause the draft leaves out and striking one it adds; the counter-draft updates every "
+        "typed cross-reference the renumbering would otherwise break. Written:", width=width))
+    for label, name, _kind in DEMO_OUTPUTS:
+        print(f"  {label:34} {out / name}")
+    print()
+    print("Next steps on your own files (from this checkout, the command is .venv/bin/counterdraft):")
+    print("  counterdraft review DRAFT.docx --against PRECEDENT.docx [--library FOLDER] [--acting-for PARTY] "
+          "--save REVIEW.json")
+    print("  counterdraft decide REVIEW.json NUMBER accept|revert|amend [--text ...] [--note ...]")
+    print("  counterdraft export REVIEW.json --counter-draft OUT.docx --issues-list OUT.html")
+
+
 def _cmd_demo(args: argparse.Namespace) -> int:
     """The main job on the bundled demo: review, save, record example decisions, export."""
     from .console import terminal_width
-    from .decisions import decide, new_review_file, save_review_file
-    from .export import default_author, write_counter_draft, write_issues_list, write_redline
-    from .readers import read_document
     from .review.report import format_review
 
     width = terminal_width()
@@ -266,78 +317,27 @@ def _cmd_demo(args: argparse.Namespace) -> int:
 
     print(textwrap.fill(CAUTION, width=width))
     print()
-    draft, precedent = read_document(draft_path, cache=True), read_document(precedent_path, cache=True)
+    draft, precedent = session.read_document(draft_path), session.read_document(precedent_path)
     apply_demo_stances(library_folder)
-    review = _run_review(draft, precedent, library_folder=library_folder, acting_for=DEMO_ACTING_FOR)
+    review = _review(draft, precedent, library=library_folder, acting_for=DEMO_ACTING_FOR)
     print(format_review(review, width=width))
     print()
-
-    record = new_review_file(draft_path, precedent_path, review=review, library=library_folder)
-    top = [d for d in review.deviations if d.category == "substantive"
-           and d.change not in ("move",)][:DEMO_REVERTS]
-    # A clause the draft leaves out restored and one it adds struck, so that the counter-draft
-    # shows its cross-references kept true across the renumbering.
-    structural = []
-    for kind in ("remove-provision", "add-provision"):
-        first = next((d for d in review.deviations if d.change == kind and d not in top), None)
-        if first is not None:
-            structural.append(first)
-    structural.sort(key=lambda d: d.rank)
-    for i, dev in enumerate(top + structural):
-        note = ("Illustrative decision recorded by the demo script: restore the house wording."
-                if i == 0 else None)
-        record = decide(record, dev.id, "revert", note=note)
-    review_file = out / "review.json"
-    save_review_file(str(review_file), record)
-    inputs = (draft_path, precedent_path, str(review_file))
-    author = default_author()
-    written = {
-        "review file (decisions)": review_file,
-        "counter-draft (tracked changes)": out / "counter-draft.docx",
-        "comparison redline": out / "redline.docx",
-        "issues list (printable page)": out / "issues-list.html",
-        "issues list (Word table)": out / "issues-list.docx",
-    }
-    for note in write_counter_draft(record.review, record.decisions, written["counter-draft (tracked changes)"],
-                                    draft_path=draft_path, author=author, inputs=inputs):
-        print(f"counterdraft: note: {note}", file=sys.stderr)
-    write_redline(record.review, written["comparison redline"], author=author, inputs=inputs)
-    for key in ("issues list (printable page)", "issues list (Word table)"):
-        write_issues_list(record.review, written[key], decisions=record.decisions,
-                          author=author, inputs=inputs)
-    print(textwrap.fill(
-        f"The demo acts for the {DEMO_ACTING_FOR} (the precedent is its own paper) and records two "
-        "stances of the firm in the precedent set (the 30-day payment period as house wording, "
-        "a past 60-day one as refused). "
-        f"As an illustration, not a recommendation, the demo reverted {_numbers(top)}, the "
-        f"{len(top)} highest-ranked substantive ones, and {_numbers(structural)}, restoring a "
-        "clause the draft leaves out and striking one it adds; the counter-draft updates every "
-        "typed cross-reference the renumbering would otherwise break. Written:", width=width))
-    for label, path in written.items():
-        print(f"  {label:34} {path}")
-    print()
-    print("Next steps on your own files (from this checkout, the command is .venv/bin/counterdraft):")
-    print("  counterdraft review DRAFT.docx --against PRECEDENT.docx [--library FOLDER] [--acting-for PARTY] "
-          "--save REVIEW.json")
-    print("  counterdraft decide REVIEW.json NUMBER accept|revert|amend [--text ...] [--note ...]")
-    print("  counterdraft export REVIEW.json --counter-draft OUT.docx --issues-list OUT.html")
+    record = session.new_review_file(draft_path, precedent_path, review=review, library=library_folder)
+    record, top, structural = _demo_decisions(record)
+    _demo_write(record, out)
+    _demo_summary(top, structural, out, width=width)
     return 0
 
 
-def build_parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
-        prog="counterdraft",
-        description="Compare a counterparty's draft with the house precedent. " + CAUTION,
-    )
-    parser.add_argument("--version", action="version", version=f"counterdraft {__version__}")
-    sub = parser.add_subparsers(dest="command", required=True)
-
+def _add_inspect(sub: Subparsers) -> None:
     p = sub.add_parser("inspect", help="read one agreement and show its provisions and defined terms")
     p.add_argument("file")
     p.add_argument("--json", metavar="OUT", help="write the document object as JSON ('-' for stdout)")
     p.add_argument("--width", type=int, default=None, help=argparse.SUPPRESS)
     p.set_defaults(func=_cmd_inspect)
 
+
+def _add_review(sub: Subparsers) -> None:
     p = sub.add_parser("review", help="compare a draft with the precedent and rank the deviations")
     p.add_argument("draft", metavar="DRAFT")
     p.add_argument("--against", required=True, metavar="PRECEDENT", help="the house precedent")
@@ -356,6 +356,8 @@ def build_parser() -> argparse.ArgumentParser:
                    help="columns of the table (default: COLUMNS, else the terminal's width)")
     p.set_defaults(func=_cmd_review)
 
+
+def _add_decide(sub: Subparsers) -> None:
     p = sub.add_parser("decide", help="record a decision on one deviation in a review file")
     p.add_argument("review_file", metavar="REVIEW.json")
     p.add_argument("deviation", metavar="NUMBER",
@@ -369,6 +371,10 @@ def build_parser() -> argparse.ArgumentParser:
                    help="amend: line breaks in --text start new paragraphs (else refused)")
     p.set_defaults(func=_cmd_decide)
 
+
+def _add_export(sub: Subparsers) -> None:
+    from .export.options import ISSUE_ORDERS, ISSUES_DEFAULT_ORDER
+
     p = sub.add_parser("export", help="write the counter-draft, the comparison redline or the issues list")
     p.add_argument("review_file", metavar="REVIEW.json")
     p.add_argument("--counter-draft", metavar="OUT.docx",
@@ -380,19 +386,26 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--issues-list", metavar="OUT", help="the issues list as .docx, .html or .csv")
     p.add_argument("--issues-all", action="store_true",
                    help="list formatting, numbering and punctuation differences in the issues list too")
-    from .export.options import ISSUE_ORDERS, ISSUES_DEFAULT_ORDER
-
     p.add_argument("--order", choices=ISSUE_ORDERS, default=ISSUES_DEFAULT_ORDER,
                    help="rows of the issues list in the draft's clause order (default) or by rank")
     p.add_argument("--author", help="author of the tracked changes (default: your user name)")
     p.set_defaults(func=_cmd_export)
 
+
+def build_parser() -> argparse.ArgumentParser:
+    from .library.commands import add_library_parser
+
+    parser = argparse.ArgumentParser(
+        prog="counterdraft",
+        description="Compare a counterparty's draft with the house precedent. " + CAUTION,
+    )
+    parser.add_argument("--version", action="version", version=f"counterdraft {__version__}")
+    sub = parser.add_subparsers(dest="command", required=True)
+    for add in (_add_inspect, _add_review, _add_decide, _add_export):
+        add(sub)
     p = sub.add_parser("demo", help="run Counterdraft on the bundled demo agreements")
     p.add_argument("--out", metavar="DIR", help="output folder (default: demo_output/)")
     p.set_defaults(func=_cmd_demo)
-
-    from .library.commands import add_library_parser
-
     add_library_parser(sub)
     return parser
 

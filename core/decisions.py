@@ -46,12 +46,17 @@ import unicodedata
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any, Literal, Protocol, cast
 
 from .errors import CounterdraftError
 from .fileio import atomic_write_text, exclusive, file_sha256
 from .labels import clause_label, find_provision  # clause_label: re-exported for the CLI
 from .model import Deviation, Document, Review
+
+if TYPE_CHECKING:
+    import jsonschema
+
+    from .review.termmap import TermOverride
 
 __all__ = [
     "ACCEPT_ONLY",
@@ -118,7 +123,7 @@ class ReviewFile:
     review: Review
     decisions: tuple[Decision, ...] = ()
     #: Term-map overrides passed to the review engine (its ``TermOverride`` objects).
-    overrides: tuple[Any, ...] = ()
+    overrides: tuple[TermOverride, ...] = ()
     #: What happened when the file was reopened: changed documents, dropped decisions.
     notes: tuple[str, ...] = ()
     #: Folder of the precedent set the review used (absolute), or the address of its shared
@@ -320,20 +325,24 @@ def remap_decisions(decisions: Sequence[Decision], review: Review) -> tuple[tupl
 # --------------------------------------------------------------------------------------
 
 
-def _override_to_dict(o: Any) -> dict[str, Any]:
-    if dataclasses.is_dataclass(o) and not isinstance(o, type):
-        return dataclasses.asdict(o)
-    if isinstance(o, Mapping):
-        return dict(o)
-    raise TypeError(f"cannot store override {o!r}")
+def _override_to_dict(o: TermOverride | Mapping[str, Any]) -> dict[str, Any]:
+    return dict(o) if isinstance(o, Mapping) else dataclasses.asdict(o)
 
 
-def _override_from_dict(d: Mapping[str, Any]) -> Any:
+#: The actions a term override takes (``TermOverride.action``).
+OverrideAction = Literal["confirm", "reject", "add"]
+_OVERRIDE_ACTIONS: tuple[OverrideAction, ...] = ("confirm", "reject", "add")
+
+
+def _override_from_dict(d: Mapping[str, Any]) -> TermOverride:
     from .review.termmap import TermOverride  # the review engine's override type
 
-    fields_ = {f.name for f in dataclasses.fields(TermOverride)}
-    return TermOverride(**{k: (tuple(v) if isinstance(v, list) else v)
-                           for k, v in d.items() if k in fields_})
+    draft, precedent, action = d.get("draft"), d.get("precedent"), d.get("action", "confirm")
+    if not isinstance(draft, str) or not (precedent is None or isinstance(precedent, str)):
+        raise ValueError(f"not a term override: {dict(d)!r}")
+    if action not in _OVERRIDE_ACTIONS:
+        raise ValueError(f"unknown action {action!r}")
+    return TermOverride(draft=draft, precedent=precedent, action=cast(OverrideAction, action))  # checked above
 
 
 def _library_entry(library: str | None, folder: Path) -> dict[str, str] | None:
@@ -393,33 +402,33 @@ def save_review_file(path: str | os.PathLike[str], rf: ReviewFile) -> None:
     atomic_write_text(path, text)
 
 
-Runner = Callable[..., Review]
+class Runner(Protocol):
+    """Runs the review of a review file's two documents (:func:`core.session.review` with
+    the options of the client: progress, cancelling, a precedent set)."""
+
+    def __call__(self, draft: Document, precedent: Document, *, overrides: Sequence[TermOverride] = (),
+                 acting_for: str | None = None) -> Review: ...
 
 
-def _default_runner(draft: Document, precedent: Document, *, overrides: Sequence[Any],
+def _default_runner(draft: Document, precedent: Document, *, overrides: Sequence[TermOverride],
                     acting_for: str | None = None) -> Review:
-    from .review import run_review
+    from .session import review
 
-    return run_review(draft, precedent, overrides=overrides, acting_for=acting_for)
+    return review(draft, precedent, overrides=overrides, acting_for=acting_for)
 
 
 def _read_documents(draft_path: str, precedent_path: str, *, library: str | None = None
                     ) -> tuple[Document, Document]:
-    """Both documents; a PDF draft read with the precedent set's line model when the review
-    used a set (:func:`core.layout.store.structure_for`)."""
-    from .readers import learns_layout, read_document
+    """Both documents, read as :func:`core.session.read_documents` reads them (a PDF draft
+    with the precedent set's line model when the review used a set)."""
+    from .session import read_documents
 
-    structure = None
-    if learns_layout(draft_path, library):
-        from .layout.store import structure_for
-
-        structure, _notes = structure_for(draft_path, library)
-    return (read_document(draft_path, structure=structure, cache=True),
-            read_document(precedent_path, cache=True))
+    docs = read_documents(draft_path, precedent_path, library=library)
+    return docs.draft, docs.precedent
 
 
 def new_review_file(draft_path: str | os.PathLike[str], precedent_path: str | os.PathLike[str], *,
-                    overrides: Sequence[Any] = (), review: Review | None = None,
+                    overrides: Sequence[TermOverride] = (), review: Review | None = None,
                     runner: Runner | None = None,
                     library: str | os.PathLike[str] | None = None,
                     acting_for: str | None = None) -> ReviewFile:
@@ -432,8 +441,8 @@ def new_review_file(draft_path: str | os.PathLike[str], precedent_path: str | os
             raise CounterdraftError("file not found", path=p)
     if review is None:
         draft, precedent = _read_documents(dpath, ppath, library=str(library) if library else None)
-        extra = {"acting_for": acting_for} if acting_for else {}
-        review = (runner or _default_runner)(draft, precedent, overrides=tuple(overrides), **extra)
+        review = (runner or _default_runner)(draft, precedent, overrides=tuple(overrides),
+                                             acting_for=acting_for or None)
     return ReviewFile(draft=DocumentRef(dpath, file_sha256(dpath)),
                       precedent=DocumentRef(ppath, file_sha256(ppath)),
                       review=review, overrides=tuple(overrides),
@@ -492,7 +501,7 @@ def _check_schema(data: Any, spath: str) -> None:
 
 
 @functools.cache
-def _review_file_validator():
+def _review_file_validator() -> jsonschema.Draft202012Validator:
     """The Draft 2020-12 validator of the review-file schema, with the review and document
     schemas it refers to (the project's own resources/schemas)."""
     import jsonschema
@@ -505,7 +514,7 @@ def _review_file_validator():
     return jsonschema.Draft202012Validator(schemas[0], registry=registry)
 
 
-def _parsed_decisions(data: Mapping[str, Any], spath: str) -> tuple[tuple[Decision, ...], tuple[Any, ...]]:
+def _parsed_decisions(data: Mapping[str, Any], spath: str) -> tuple[tuple[Decision, ...], tuple[TermOverride, ...]]:
     """The decisions and term overrides of a review file *data* that passed the schema check;
     wording that is not plain text (control characters, which no .docx can carry) and
     overrides the engine cannot take are refused in one line."""
@@ -600,8 +609,9 @@ def read_library_folder(path: str | os.PathLike[str]) -> str | None:
         return None
     from .library.store import is_server_address
 
-    if is_server_address(entry.get("absolute_path")):
-        return entry["absolute_path"]
+    address = entry.get("absolute_path")
+    if isinstance(address, str) and is_server_address(address):
+        return address
     folder = Path(path).resolve().parent
     for cand in (entry.get("path"), entry.get("absolute_path")):
         if isinstance(cand, str) and cand:
@@ -632,8 +642,8 @@ def load_review_file(path: str | os.PathLike[str], *, runner: Runner | None = No
                          "the review was run again")
     draft, precedent = _read_documents(dpath, ppath, library=read_library_folder(spath))
     acting_for = data.get("acting_for")  # absent from files written before it existed
-    extra = {"acting_for": acting_for} if acting_for else {}
-    review = (runner or _default_runner)(draft, precedent, overrides=overrides, **extra)
+    review = (runner or _default_runner)(draft, precedent, overrides=overrides,
+                                         acting_for=acting_for if isinstance(acting_for, str) and acting_for else None)
     kept, remap_notes = remap_decisions(decisions, review)
     notes.extend(remap_notes)
     return ReviewFile(draft=DocumentRef(dpath, hashes["draft"]),

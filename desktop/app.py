@@ -18,6 +18,7 @@ import shutil
 import sys
 import traceback
 from pathlib import Path
+from types import TracebackType
 
 import core
 from core.readers import formats_summary
@@ -140,13 +141,13 @@ def main(argv: list[str] | None = None) -> int:
     app.setApplicationName("Counterdraft")
     app.setOrganizationName("Counterdraft")
     app.setApplicationVersion(core.__version__)
-    app.setStyle("Fusion")
+    QApplication.setStyle("Fusion")
     window = MainWindow()
     window.show()
 
-    def unexpected(kind: type[BaseException], exc: BaseException, tb: object) -> None:
+    def unexpected(kind: type[BaseException], exc: BaseException, tb: TracebackType | None) -> None:
         # An exception escaping a slot: one line in a dialog, the window stays up.
-        traceback.print_exception(kind, exc, tb)  # type: ignore[arg-type]
+        traceback.print_exception(kind, exc, tb)
         window.report_problem(exc)
 
     sys.excepthook = unexpected

@@ -13,7 +13,7 @@ from __future__ import annotations
 
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtGui import QBrush, QColor, QFont
-from PySide6.QtWidgets import QLabel, QTreeWidget, QTreeWidgetItem, QVBoxLayout, QWidget
+from PySide6.QtWidgets import QTreeWidget, QTreeWidgetItem, QVBoxLayout, QWidget
 
 from core.labels import check_label, find_provision, provision_label
 from core.model import Review
@@ -21,6 +21,7 @@ from core.review.checks import CHECK_KINDS, CHECK_TITLES, Check
 
 from .palette import CHECKS, MUTED_INK
 from .state import Change, Workspace
+from .widgets import muted_label
 
 __all__ = ["ChecksPanel", "checks_tab_title"]
 
@@ -42,14 +43,12 @@ class ChecksPanel(QWidget):
     def __init__(self, workspace: Workspace, parent: QWidget | None = None) -> None:
         super().__init__(parent)
         self._ws = workspace
-        intro = QLabel(
+        intro = muted_label(
             "What a careful read of the draft's drafting finds: capitalised terms it never "
             "defines, definitions it never uses, the precedent's name of a renamed term left "
             "behind, cross-references to provisions it does not have, and definitions whose "
             "words changed (every clause using the term changes with them). Choose an entry "
             "to see its provision.", self)
-        intro.setWordWrap(True)
-        intro.setStyleSheet(f"color: {MUTED_INK}")
         self.tree = QTreeWidget(self)
         self.tree.setObjectName("checksTree")
         self.tree.setHeaderHidden(True)
@@ -58,10 +57,8 @@ class ChecksPanel(QWidget):
         self.tree.setUniformRowHeights(False)
         self.tree.setIndentation(14)
         self.tree.currentItemChanged.connect(lambda cur, _prev: self._chosen(cur))
-        self.empty = QLabel(self)
+        self.empty = muted_label("", self)
         self.empty.setObjectName("checksEmpty")
-        self.empty.setWordWrap(True)
-        self.empty.setStyleSheet(f"color: {MUTED_INK}")
         lay = QVBoxLayout(self)
         lay.setContentsMargins(4, 4, 4, 4)
         lay.addWidget(intro)
@@ -113,10 +110,11 @@ class ChecksPanel(QWidget):
 
     def entries(self) -> list[QTreeWidgetItem]:
         """Every entry, in the order shown (group headings left out)."""
-        out = []
+        out: list[QTreeWidgetItem] = []
         for i in range(self.tree.topLevelItemCount()):
             group = self.tree.topLevelItem(i)
-            out.extend(group.child(j) for j in range(group.childCount()))
+            if group is not None:
+                out.extend(c for j in range(group.childCount()) if (c := group.child(j)) is not None)
         return out
 
     def _chosen(self, item: QTreeWidgetItem | None) -> None:

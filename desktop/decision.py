@@ -6,6 +6,9 @@ counter-draft is the engine's business (:mod:`core.decisions`, :mod:`core.export
 
 from __future__ import annotations
 
+from collections.abc import Callable
+from typing import TYPE_CHECKING
+
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
     QButtonGroup,
@@ -25,6 +28,9 @@ from .labels import CATEGORY_NAMES, CHANGE_NAMES, PAST_USE, clause_label, freque
 from .palette import DELETED, INSERTED, MUTED_INK, TALLY
 from .state import Change, Workspace
 from .tally import tally, tally_glyphs
+
+if TYPE_CHECKING:
+    from core.decisions import Decision
 
 __all__ = ["DecisionPanel", "KEYS"]
 
@@ -56,7 +62,8 @@ class DecisionPanel(QWidget):
     decided = Signal(str, str, str, str)
     cleared = Signal(str)
 
-    def __init__(self, workspace: Workspace, decision_view, parent: QWidget | None = None) -> None:
+    def __init__(self, workspace: Workspace, decision_view: Callable[[Decision], tuple[str, str, str]],
+                 parent: QWidget | None = None) -> None:
         super().__init__(parent)
         self._ws = workspace
         self._decision_view = decision_view  # engine decision -> (action, note, text)
@@ -65,7 +72,23 @@ class DecisionPanel(QWidget):
         self.details = QTextBrowser(self)
         self.details.setObjectName("deviationDetails")
         self.details.setOpenLinks(False)
+        buttons = self._build_buttons()
+        self._build_amend()
+        note_row = self._build_note()
 
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(6, 4, 6, 4)
+        lay.addWidget(self.details, 1)
+        lay.addLayout(buttons)
+        lay.addWidget(self.amend_label)
+        lay.addWidget(self.amend_text)
+        lay.addWidget(self.amend_ok, 0, Qt.AlignmentFlag.AlignLeft)
+        lay.addWidget(self.note_label)
+        lay.addLayout(note_row)
+        self._show(None)
+
+    def _build_buttons(self) -> QHBoxLayout:
+        """Accept, restore, amend (one checked: the decision recorded) and clear."""
         self.accept_btn = QPushButton(f"Accept draft  [{KEYS['accept']}]", self)
         self.revert_btn = QPushButton(f"Restore precedent  [{KEYS['revert']}]", self)
         self.amend_btn = QPushButton(f"Amend\u2026  [{KEYS['amend']}]", self)
@@ -85,7 +108,10 @@ class DecisionPanel(QWidget):
         for b in (self.accept_btn, self.revert_btn, self.amend_btn, self.clear_btn):
             buttons.addWidget(b)
         buttons.addStretch(1)
+        return buttons
 
+    def _build_amend(self) -> None:
+        """The amend box, hidden until the reviewer amends."""
         self.amend_label = QLabel("Your wording (replaces the draft's words shown above):", self)
         self.amend_text = QPlainTextEdit(self)
         self.amend_text.setObjectName("amendText")
@@ -95,6 +121,7 @@ class DecisionPanel(QWidget):
         for w in (self.amend_label, self.amend_text, self.amend_ok):
             w.hide()
 
+    def _build_note(self) -> QHBoxLayout:
         self.note_label = QLabel(f"Note for the issues list and the counter-draft comment  [{KEYS['note']}]:", self)
         self.note = QPlainTextEdit(self)
         self.note.setObjectName("decisionNote")
@@ -105,17 +132,7 @@ class DecisionPanel(QWidget):
         note_row = QHBoxLayout()
         note_row.addWidget(self.note, 1)
         note_row.addWidget(self.note_save, 0, Qt.AlignmentFlag.AlignBottom)
-
-        lay = QVBoxLayout(self)
-        lay.setContentsMargins(6, 4, 6, 4)
-        lay.addWidget(self.details, 1)
-        lay.addLayout(buttons)
-        lay.addWidget(self.amend_label)
-        lay.addWidget(self.amend_text)
-        lay.addWidget(self.amend_ok, 0, Qt.AlignmentFlag.AlignLeft)
-        lay.addWidget(self.note_label)
-        lay.addLayout(note_row)
-        self._show(None)
+        return note_row
 
     # -- broadcast ------------------------------------------------------------------------
     def on_change(self, change: Change) -> None:
@@ -181,13 +198,14 @@ class DecisionPanel(QWidget):
         for w in (self.accept_btn, self.revert_btn, self.amend_btn, self.clear_btn, self.note, self.note_save):
             w.setEnabled(enabled)
         only_accept = d is not None and not can_change(d)
-        for w, tip in ((self.revert_btn, _REVERT_TIP), (self.amend_btn, _AMEND_TIP)):
+        for button, tip in ((self.revert_btn, _REVERT_TIP), (self.amend_btn, _AMEND_TIP)):
             # the engine refuses these too (core.decisions): the draft's own stays
-            w.setEnabled(enabled and not only_accept)
-            w.setToolTip(f"A {d.category} difference can only be accepted." if only_accept else tip)
+            button.setEnabled(enabled and not only_accept)
+            button.setToolTip(f"A {d.category} difference can only be accepted."
+                              if d is not None and only_accept else tip)
         if changed_deviation:
-            for w in (self.amend_label, self.amend_text, self.amend_ok):
-                w.hide()
+            for part in (self.amend_label, self.amend_text, self.amend_ok):
+                part.hide()
         if d is None or self._ws.review is None:
             self.details.setHtml(
                 f"<p style='color:{MUTED_INK}'>Select a deviation in the list (or press "

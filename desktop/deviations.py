@@ -2,9 +2,11 @@
 
 from __future__ import annotations
 
-from PySide6.QtCore import QItemSelectionModel, Qt, Signal
+from collections.abc import Callable
+from typing import TYPE_CHECKING
+
+from PySide6.QtCore import QItemSelectionModel, QModelIndex, Qt, Signal
 from PySide6.QtWidgets import (
-    QAbstractItemView,
     QCheckBox,
     QHBoxLayout,
     QHeaderView,
@@ -17,7 +19,10 @@ from PySide6.QtWidgets import (
 
 from .models import DeviationFilterProxy, DeviationTableModel
 from .state import Change, DeviationFilter, Workspace
-from .widgets import BarDelegate, TallyDelegate
+from .widgets import BarDelegate, TallyDelegate, read_only_rows
+
+if TYPE_CHECKING:
+    from core.decisions import Decision
 
 __all__ = ["COLUMN_WIDTHS", "DeviationsPanel"]
 
@@ -34,7 +39,8 @@ class DeviationsPanel(QWidget):
 
     deviationSelected = Signal(str)
 
-    def __init__(self, workspace: Workspace, decision_view, parent: QWidget | None = None) -> None:
+    def __init__(self, workspace: Workspace, decision_view: Callable[[Decision], tuple[str, str]],
+                 parent: QWidget | None = None) -> None:
         super().__init__(parent)
         self._ws = workspace
         self._decision_view = decision_view  # engine decision -> (action, note)
@@ -44,7 +50,15 @@ class DeviationsPanel(QWidget):
         self.model = DeviationTableModel(self)
         self.proxy = DeviationFilterProxy(self)
         self.proxy.setSourceModel(self.model)
+        top = self._build_filter_row()
+        self._build_table()
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(4, 4, 4, 4)
+        lay.addLayout(top)
+        lay.addWidget(self.table, 1)
+        self._update_count()
 
+    def _build_filter_row(self) -> QHBoxLayout:
         self.search = QLineEdit(self)
         self.search.setObjectName("deviationSearch")
         self.search.setPlaceholderText("Filter: clause, words, reason\u2026")
@@ -59,18 +73,15 @@ class DeviationsPanel(QWidget):
         top.addWidget(self.search, 1)
         top.addWidget(self.undecided)
         top.addWidget(self.count)
+        return top
 
-        self.table = QTableView(self)
-        self.table.setObjectName("deviationTable")
+    def _build_table(self) -> None:
+        self.table = read_only_rows(QTableView(self), name="deviationTable")
         self.table.setModel(self.proxy)
         self.table.setSortingEnabled(True)
         self.table.sortByColumn(DeviationTableModel.RANK, Qt.SortOrder.AscendingOrder)
-        self.table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
-        self.table.setSelectionMode(QAbstractItemView.SelectionMode.SingleSelection)
-        self.table.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
         self.table.setAlternatingRowColors(True)
         self.table.setWordWrap(False)
-        self.table.verticalHeader().hide()
         self.table.verticalHeader().setDefaultSectionSize(26)
         bar = BarDelegate(self.table)
         self.table.setItemDelegateForColumn(DeviationTableModel.SEVERITY, bar)
@@ -89,12 +100,6 @@ class DeviationsPanel(QWidget):
         self.table.setTextElideMode(Qt.TextElideMode.ElideRight)
         self.table.selectionModel().currentRowChanged.connect(self._current_changed)
         self.table.clicked.connect(lambda ix: self._current_changed(ix, None))
-
-        lay = QVBoxLayout(self)
-        lay.setContentsMargins(4, 4, 4, 4)
-        lay.addLayout(top)
-        lay.addWidget(self.table, 1)
-        self._update_count()
 
     # -- broadcast ------------------------------------------------------------------------
     def on_change(self, change: Change) -> None:
@@ -155,7 +160,7 @@ class DeviationsPanel(QWidget):
             self.count.setToolTip("Numbering, formatting and punctuation changes are hidden unless "
                                   "switched on under Show; the filter and \u201cUndecided only\u201d hide others.")
 
-    def _current_changed(self, current, _previous) -> None:
+    def _current_changed(self, current: QModelIndex, _previous: QModelIndex | None) -> None:
         if self._quiet or not current.isValid():
             return
         src = self.proxy.mapToSource(current)

@@ -36,7 +36,8 @@ from core.readers import dialog_filter
 
 from .decision import KEYS
 
-__all__ = ["AGREEMENT_FILTER", "KEY_LIST", "NO_PARTY", "REVIEW_FILTER", "OpenDialog", "about_text", "show_about", "show_keys"]
+__all__ = ["AGREEMENT_FILTER", "KEY_LIST", "NO_PARTY", "REVIEW_FILTER", "OpenDialog", "about_text", "show_about",
+           "show_keys"]
 
 #: The readable formats, from the readers registry (the command line reads the same ones).
 AGREEMENT_FILTER = dialog_filter()

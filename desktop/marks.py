@@ -11,8 +11,12 @@ from __future__ import annotations
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 from functools import lru_cache
+from typing import TYPE_CHECKING
 
 from core.model import Edit
+
+if TYPE_CHECKING:
+    from core.review.tokens import TermMatcher
 
 __all__ = [
     "DELETED",
@@ -67,7 +71,7 @@ def term_marks(text: str, names: Iterable[str]) -> list[Mark]:
 
 
 @lru_cache(maxsize=8)
-def _matcher(names: tuple[str, ...]):
+def _matcher(names: tuple[str, ...]) -> TermMatcher | None:
     """The engine's matcher of *names*, built once per set of names: a review's side-by-side
     view marks every row's two texts with the same names (building the matcher for each cell
     took longer than the rest of showing a review)."""

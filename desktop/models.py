@@ -78,7 +78,8 @@ def source_data(index: QModelIndex | QPersistentModelIndex, role: int) -> Any:
     from PySide6.QtCore import QAbstractProxyModel
 
     model = index.model()
-    ix = QModelIndex(index) if isinstance(index, QPersistentModelIndex) else index
+    ix = (QModelIndex(index)  # type: ignore[call-overload]  # stub gap: PySide6 takes a persistent index here
+          if isinstance(index, QPersistentModelIndex) else index)
     while isinstance(model, QAbstractProxyModel):
         ix = model.mapToSource(ix)
         model = model.sourceModel()
@@ -166,51 +167,15 @@ class DeviationTableModel(_RowsModel):
         if not index.isValid():
             return None
         d = self._rows[index.row()]
-        col = index.column()
+        row, col = index.row(), index.column()
         if role == ITEM_ROLE:
             return d
-        decision = self._decisions.get(d.id)
         if role == Qt.ItemDataRole.DisplayRole:
-            if col == self.RANK:
-                return str(d.rank)
-            if col == self.SEVERITY:
-                return str(d.severity)
-            if col == self.CLAUSE:
-                return self._clauses[index.row()]
-            if col == self.KIND:
-                return CATEGORY_NAMES.get(d.category, d.category)
-            if col == self.SUMMARY:
-                return summary(d)
-            if col == self.COMMON:
-                if not self._library:
-                    return ""
-                return frequency_text(d.frequency) or "\u2014"
-            if col == self.DECISION:
-                if decision is None:
-                    return ""
-                name = SHORT_DECISION_NAMES.get(decision[0], decision[0])
-                return name + (" \u270e" if decision[1] else "")
-            if col == self.DIRECTION:
-                return direction_text(d) if self._acting_for else ""
+            return self._display(d, row, col)
         if role == SORT_ROLE:
-            if col == self.DIRECTION:
-                return DIRECTION_ORDER.get(d.direction, len(DIRECTION_ORDER))
-            if col == self.RANK:
-                return d.rank
-            if col == self.SEVERITY:
-                return d.severity
-            if col == self.CLAUSE:
-                return self._clauses[index.row()].casefold()
-            if col == self.COMMON:
-                f = d.frequency
-                return -1.0 if f is None or not f.total else f.matching / f.total
-            if col == self.DECISION:
-                return "" if decision is None else decision[0]
-            return str(self.data(index, Qt.ItemDataRole.DisplayRole)).casefold()
+            return self._sort_key(d, row, col)
         if role == BAR_ROLE:
-            if col == self.SEVERITY:
-                return d.severity / 100.0
-            return NO_BAR
+            return d.severity / 100.0 if col == self.SEVERITY else NO_BAR
         if role == TALLY_ROLE:
             f = d.frequency
             if col == self.COMMON and self._library and f is not None and f.total:
@@ -219,21 +184,64 @@ class DeviationTableModel(_RowsModel):
         if role == Qt.ItemDataRole.TextAlignmentRole:
             return _RIGHT if col in (self.RANK, self.SEVERITY) else _LEFT
         if role == Qt.ItemDataRole.ToolTipRole:
-            if col == self.CLAUSE:
-                return self._clauses_full[index.row()]
-            if col == self.SUMMARY:
-                return "\n".join(d.reasons) or summary(d)
-            if col == self.COMMON:
-                f = d.frequency
-                if not self._library:
-                    return "Open a precedent set to see how common this wording is."
-                if f is None:
-                    return "No figure for this deviation."
-                return frequency_sentence(d)
-            if col == self.DECISION and decision is not None and decision[1]:
-                return decision[1]
-            if col == self.DIRECTION and self._acting_for:
-                return direction_sentence(d, self._acting_for)
+            return self._tooltip(d, row, col)
+        return None
+
+    def _display(self, d: Deviation, row: int, col: int) -> str | None:
+        """The text of cell (*row*, *col*), deviation *d*."""
+        if col == self.RANK:
+            return str(d.rank)
+        if col == self.SEVERITY:
+            return str(d.severity)
+        if col == self.CLAUSE:
+            return self._clauses[row]
+        if col == self.KIND:
+            return CATEGORY_NAMES.get(d.category, d.category)
+        if col == self.SUMMARY:
+            return summary(d)
+        if col == self.COMMON:
+            return (frequency_text(d.frequency) or "\u2014") if self._library else ""
+        if col == self.DECISION:
+            decision = self._decisions.get(d.id)
+            if decision is None:
+                return ""
+            return SHORT_DECISION_NAMES.get(decision[0], decision[0]) + (" \u270e" if decision[1] else "")
+        if col == self.DIRECTION:
+            return direction_text(d) if self._acting_for else ""
+        return None
+
+    def _sort_key(self, d: Deviation, row: int, col: int) -> str | int | float:
+        """What column *col* sorts by: the figure behind the text where there is one."""
+        if col == self.DIRECTION:
+            return DIRECTION_ORDER.get(d.direction, len(DIRECTION_ORDER))
+        if col == self.RANK:
+            return d.rank
+        if col == self.SEVERITY:
+            return d.severity
+        if col == self.CLAUSE:
+            return self._clauses[row].casefold()
+        if col == self.COMMON:
+            f = d.frequency
+            return -1.0 if f is None or not f.total else f.matching / f.total
+        if col == self.DECISION:
+            decision = self._decisions.get(d.id)
+            return "" if decision is None else decision[0]
+        return str(self._display(d, row, col)).casefold()
+
+    def _tooltip(self, d: Deviation, row: int, col: int) -> str | None:
+        decision = self._decisions.get(d.id)
+        if col == self.CLAUSE:
+            return self._clauses_full[row]
+        if col == self.SUMMARY:
+            return "\n".join(d.reasons) or summary(d)
+        if col == self.COMMON:
+            if not self._library:
+                return "Open a precedent set to see how common this wording is."
+            return "No figure for this deviation." if d.frequency is None else frequency_sentence(d)
+        if col == self.DECISION and decision is not None and decision[1]:
+            return decision[1]
+        if col == self.DIRECTION and self._acting_for:
+            return direction_sentence(d, self._acting_for)
         return None
 
 

@@ -8,16 +8,14 @@ lays them out as a tree, in the engine's order.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from typing import TYPE_CHECKING
 
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtWidgets import (
     QHBoxLayout,
     QHeaderView,
-    QLabel,
     QPushButton,
-    QSplitter,
     QTextBrowser,
     QTreeWidget,
     QTreeWidgetItem,
@@ -29,7 +27,7 @@ from .models import NO_TALLY, TALLY_ROLE
 from .palette import MUTED_INK
 from .state import Change, Workspace
 from .tally import tally, tally_glyphs, tally_words
-from .widgets import TallyDelegate
+from .widgets import TallyDelegate, muted_label, splitter
 
 if TYPE_CHECKING:  # the window opens without loading the engine
     from core.library.patterns import PatternGroup
@@ -43,13 +41,13 @@ MOVE_ROLE = int(Qt.ItemDataRole.UserRole) + 1
 class PatternsPanel(QWidget):
     computeRequested = Signal()
 
-    def __init__(self, workspace: Workspace, adapt, parent: QWidget | None = None) -> None:
+    def __init__(self, workspace: Workspace,
+                 adapt: Callable[[Sequence[PatternGroup]], Sequence[PatternGroup]],
+                 parent: QWidget | None = None) -> None:
         super().__init__(parent)
         self._ws = workspace
         self._adapt = adapt  # the workspace's patterns -> Sequence[PatternGroup]
-        self.intro = QLabel(self)
-        self.intro.setWordWrap(True)
-        self.intro.setStyleSheet(f"color: {MUTED_INK}")
+        self.intro = muted_label("", self)
         self.compute_btn = QPushButton("Work out the patterns", self)
         self.compute_btn.clicked.connect(self.computeRequested.emit)
         top = QHBoxLayout()
@@ -66,12 +64,7 @@ class PatternsPanel(QWidget):
         self.tree.currentItemChanged.connect(self._show_examples)
         self.examples = QTextBrowser(self)
         self.examples.setObjectName("patternExamples")
-        split = QSplitter(Qt.Orientation.Vertical, self)
-        split.setObjectName("patternsSplit")
-        split.addWidget(self.tree)
-        split.addWidget(self.examples)
-        split.setStretchFactor(0, 3)
-        split.setStretchFactor(1, 1)
+        split = splitter(self, Qt.Orientation.Vertical, "patternsSplit", (self.tree, self.examples), (3, 1))
         lay = QVBoxLayout(self)
         lay.setContentsMargins(4, 4, 4, 4)
         lay.addLayout(top)

@@ -21,7 +21,7 @@ from __future__ import annotations
 from collections.abc import Callable, Sequence
 from typing import Any
 
-from PySide6.QtCore import QModelIndex, QPersistentModelIndex, QRect, QSize, Qt, QTimer, Signal
+from PySide6.QtCore import QModelIndex, QPersistentModelIndex, QRect, QRectF, QSize, Qt, QTimer, Signal
 from PySide6.QtGui import (
     QAbstractTextDocumentLayout,
     QBrush,
@@ -224,7 +224,7 @@ class ProvisionDelegate(QStyledItemDelegate):
                 doc = self.document(index.row(), col, width)
                 painter.translate(rect.left() + (STRIPE_PX if col == PairRowsModel.PRECEDENT else 0), rect.top())
                 ctx = QAbstractTextDocumentLayout.PaintContext()
-                ctx.clip = QRect(0, 0, rect.width(), rect.height())
+                ctx.clip = QRectF(0, 0, rect.width(), rect.height())
                 painter.setClipRect(ctx.clip)
                 doc.documentLayout().draw(painter, ctx)
                 painter.setClipping(False)
@@ -258,8 +258,8 @@ class ProvisionDelegate(QStyledItemDelegate):
         painter.setFont(f2)
         painter.setPen(QColor(MUTED_INK))
         below = QRect(rect.left() + 2, rect.top() + 28, rect.width() - 4, 30)
-        painter.drawText(below, int(Qt.AlignmentFlag.AlignHCenter | Qt.AlignmentFlag.AlignTop | Qt.TextFlag.TextWordWrap),
-                         STATUS_NAMES.get(pair.status, pair.status))
+        flags = Qt.AlignmentFlag.AlignHCenter | Qt.AlignmentFlag.AlignTop | Qt.TextFlag.TextWordWrap
+        painter.drawText(below, int(flags), STATUS_NAMES.get(pair.status, pair.status))
 
 
 def _stripe_colour(status: str) -> str | None:
@@ -289,7 +289,23 @@ class SideBySideView(QWidget):
         self.text_font.setStyleHint(QFont.StyleHint.Serif)
         self.text_font.setFamilies(["DejaVu Serif", "Noto Serif", "Liberation Serif", "Serif"])
         self.text_font.setPointSizeF(max(9.5, self.font().pointSizeF() + 0.5))
+        self._build_table()
+        titles = self._build_titles()
+        self.legend = QLabel(self)
+        self.legend.setObjectName("legend")
+        self.legend.setTextFormat(Qt.TextFormat.RichText)
+        self.legend.setText(_legend_html())
+        self.legend.setWordWrap(True)
 
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(0, 0, 0, 0)
+        lay.setSpacing(2)
+        lay.addLayout(titles)
+        lay.addWidget(self.table, 1)
+        lay.addWidget(self.legend)
+
+    def _build_table(self) -> None:
+        """The aligned rows: precedent, gutter, draft; each row as tall as its text."""
         self.model = PairRowsModel(self)
         self.table = QTableView(self)
         self.table.setObjectName("sideBySide")
@@ -314,6 +330,8 @@ class SideBySideView(QWidget):
         hh.sectionResized.connect(self._column_resized)
         self.table.clicked.connect(lambda ix: self.rowActivated.emit(ix.row()))
 
+    def _build_titles(self) -> QHBoxLayout:
+        """The two column titles, over the precedent and the draft (the gutter between)."""
         self.precedent_title = QLabel("Precedent", self)
         self.draft_title = QLabel("Draft", self)
         for lab in (self.precedent_title, self.draft_title):
@@ -326,19 +344,7 @@ class SideBySideView(QWidget):
         gap.setFixedWidth(GUTTER_PX)
         titles.addWidget(gap)
         titles.addWidget(self.draft_title, 1)
-
-        self.legend = QLabel(self)
-        self.legend.setObjectName("legend")
-        self.legend.setTextFormat(Qt.TextFormat.RichText)
-        self.legend.setText(_legend_html())
-        self.legend.setWordWrap(True)
-
-        lay = QVBoxLayout(self)
-        lay.setContentsMargins(0, 0, 0, 0)
-        lay.setSpacing(2)
-        lay.addLayout(titles)
-        lay.addWidget(self.table, 1)
-        lay.addWidget(self.legend)
+        return titles
 
     # -- data in ------------------------------------------------------------------------
     def set_review(self, review: Review | None, *, edits: EditsProvider | None, draft_name: str = "",

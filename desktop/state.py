@@ -11,9 +11,15 @@ from __future__ import annotations
 
 import enum
 from dataclasses import dataclass, replace
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from core.model import CATEGORIES, Deviation, Review
+
+if TYPE_CHECKING:
+    from core.decisions import Decision, ReviewFile
+    from core.library.index import Library
+    from core.library.patterns import PatternGroup
+    from core.review.termmap import TermOverride
 
 __all__ = [
     "Change",
@@ -100,15 +106,15 @@ class Workspace:
     """
 
     inputs: Inputs | None = None
-    record: Any = None
+    record: ReviewFile | None = None
     #: The opened precedent set (the engine's library handle), or None.
-    library: Any = None
+    library: Library | None = None
     #: Negotiation patterns of the precedent set against this precedent, once computed.
-    patterns: Any = None
+    patterns: tuple[PatternGroup, ...] | None = None
     review_path: str | None = None  # where the review file was last saved or opened
     #: The decisions as that file held them when last opened or saved here: saving merges
     #: with what others recorded in it since (core.decisions.save_review_file_merged).
-    saved_decisions: tuple[Any, ...] = ()
+    saved_decisions: tuple[Decision, ...] = ()
     unsaved: bool = False
     selected: str | None = None  # id of the selected deviation
     display: DisplayOptions = DisplayOptions()
@@ -119,11 +125,11 @@ class Workspace:
         return None if self.record is None else self.record.review
 
     @property
-    def overrides(self) -> tuple[Any, ...]:
+    def overrides(self) -> tuple[TermOverride, ...]:
         return () if self.record is None else tuple(self.record.overrides)
 
     @property
-    def decisions(self) -> dict[str, Any]:
+    def decisions(self) -> dict[str, Decision]:
         """Deviation id -> the engine's decision on it."""
         return {} if self.record is None else {d.deviation: d for d in self.record.decisions}
 

@@ -1,7 +1,8 @@
 """The one way the window runs long work off the GUI thread.
 
 A *work function* is plain Python: it gets plain inputs (bound beforehand, e.g. with
-:func:`functools.partial`) and two callbacks, never a widget::
+:func:`functools.partial`) and the two callbacks of :mod:`core.session` (the engine's own
+progress and cancel types), never a widget::
 
     def work(report: Report, cancelled: IsCancelled) -> Result: ...
 
@@ -22,9 +23,11 @@ from __future__ import annotations
 import threading
 from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Any, Protocol
+from typing import Any
 
 from PySide6.QtCore import QObject, QRunnable, QThreadPool, Signal
+
+from core.session import Cancelled, IsCancelled, Report, check_cancelled
 
 __all__ = [
     "Cancelled",
@@ -38,31 +41,13 @@ __all__ = [
 ]
 
 
-class Cancelled(Exception):
-    """The user cancelled the operation."""
-
-    def __init__(self) -> None:
-        super().__init__("cancelled")
-
-
 @dataclass(frozen=True, slots=True)
 class Progress:
+    """One progress report, as the ``progress`` signal carries it to the GUI thread."""
+
     done: int
     total: int | None
     message: str
-
-
-class Report(Protocol):
-    def __call__(self, done: int, total: int | None, message: str) -> None: ...
-
-
-IsCancelled = Callable[[], bool]
-
-
-def check_cancelled(cancelled: IsCancelled) -> None:
-    """Raise :class:`Cancelled` when the user has asked to stop."""
-    if cancelled():
-        raise Cancelled()
 
 
 class TaskSignals(QObject):

@@ -7,10 +7,10 @@ precedent)``; the window turns it into the engine's term override and re-runs th
 from __future__ import annotations
 
 from collections.abc import Callable, Sequence
+from typing import TYPE_CHECKING
 
 from PySide6.QtCore import QSortFilterProxyModel, Qt, Signal
 from PySide6.QtWidgets import (
-    QAbstractItemView,
     QHBoxLayout,
     QHeaderView,
     QLabel,
@@ -24,9 +24,11 @@ from PySide6.QtWidgets import (
 from core.model import TermMapping
 
 from .models import SORT_ROLE, TermTableModel
-from .palette import MUTED_INK
 from .state import Change, Workspace
-from .widgets import BarDelegate
+from .widgets import BarDelegate, muted_label, read_only_rows
+
+if TYPE_CHECKING:
+    from core.review.termmap import TermOverride
 
 __all__ = ["TermsPanel"]
 
@@ -37,7 +39,7 @@ class TermsPanel(QWidget):
     def __init__(
         self,
         workspace: Workspace,
-        status_of: Callable[[Sequence[object]], tuple[Callable[[TermMapping], str], list[tuple[str, str]]]],
+        status_of: Callable[[Sequence[TermOverride]], tuple[Callable[[TermMapping], str], list[tuple[str, str]]]],
         parent: QWidget | None = None,
     ) -> None:
         super().__init__(parent)
@@ -48,23 +50,25 @@ class TermsPanel(QWidget):
         self.proxy.setSourceModel(self.model)
         self.proxy.setSortRole(SORT_ROLE)
 
-        intro = QLabel(
+        intro = muted_label(
             "Defined terms the draft names differently from the precedent. The review reads each "
             "draft term as its precedent counterpart, so a renamed term is one informational "
             "change instead of hundreds of edits. Confirm, reject or change a mapping and the "
             "review runs again.", self)
-        intro.setWordWrap(True)
-        intro.setStyleSheet(f"color: {MUTED_INK}")
+        self._build_table()
+        lay = QVBoxLayout(self)
+        lay.setContentsMargins(4, 4, 4, 4)
+        lay.addWidget(intro)
+        lay.addWidget(self.table, 1)
+        lay.addLayout(self._build_call_buttons())
+        lay.addLayout(self._build_typed_mapping())
+        self._selection_changed()
 
-        self.table = QTableView(self)
-        self.table.setObjectName("termTable")
+    def _build_table(self) -> None:
+        self.table = read_only_rows(QTableView(self), name="termTable")
         self.table.setModel(self.proxy)
         self.table.setSortingEnabled(True)
         self.table.sortByColumn(TermTableModel.CONFIDENCE, Qt.SortOrder.DescendingOrder)
-        self.table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
-        self.table.setSelectionMode(QAbstractItemView.SelectionMode.SingleSelection)
-        self.table.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
-        self.table.verticalHeader().hide()
         self.table.setItemDelegateForColumn(TermTableModel.CONFIDENCE, BarDelegate(self.table))
         hh = self.table.horizontalHeader()
         for col, w in ((0, 150), (1, 150), (2, 92), (3, 46), (4, 200)):
@@ -74,6 +78,8 @@ class TermsPanel(QWidget):
         self.table.verticalHeader().setSectionResizeMode(QHeaderView.ResizeMode.ResizeToContents)
         self.table.selectionModel().currentRowChanged.connect(lambda *_: self._selection_changed())
 
+    def _build_call_buttons(self) -> QHBoxLayout:
+        """Confirm, reject or restore the selected mapping."""
         self.confirm_btn = QPushButton("Confirm mapping", self)
         self.reject_btn = QPushButton("Not the same term", self)
         self.restore_btn = QPushButton("Undo rejection", self)
@@ -84,7 +90,10 @@ class TermsPanel(QWidget):
         for b in (self.confirm_btn, self.reject_btn, self.restore_btn):
             row1.addWidget(b)
         row1.addStretch(1)
+        return row1
 
+    def _build_typed_mapping(self) -> QHBoxLayout:
+        """Map a draft term to a precedent term the review did not pair."""
         self.draft_edit = QLineEdit(self)
         self.draft_edit.setObjectName("termDraft")
         self.draft_edit.setPlaceholderText("Draft term, e.g. Client")
@@ -99,14 +108,7 @@ class TermsPanel(QWidget):
         row2.addWidget(QLabel("\u2192", self))
         row2.addWidget(self.precedent_edit, 1)
         row2.addWidget(self.map_btn)
-
-        lay = QVBoxLayout(self)
-        lay.setContentsMargins(4, 4, 4, 4)
-        lay.addWidget(intro)
-        lay.addWidget(self.table, 1)
-        lay.addLayout(row1)
-        lay.addLayout(row2)
-        self._selection_changed()
+        return row2
 
     def on_change(self, change: Change) -> None:
         if change & Change.REVIEW:

@@ -21,7 +21,6 @@ from PySide6.QtWidgets import (
     QLabel,
     QScrollArea,
     QSizePolicy,
-    QSplitter,
     QTextBrowser,
     QVBoxLayout,
     QWidget,
@@ -29,7 +28,7 @@ from PySide6.QtWidgets import (
 
 from .palette import INK, MUTED_INK, ROW, TALLY
 from .tally import tally, tally_glyphs, tally_words
-from .widgets import paint_tally
+from .widgets import paint_tally, splitter
 
 if TYPE_CHECKING:  # the window opens without loading the engine
     from core.library.slots import SlotVariant, SlotVariants
@@ -159,7 +158,8 @@ class VariantChart(QWidget):
         if s is None or self.row_count == 0:
             p.setFont(self.font())
             p.setPen(QColor(MUTED_INK))
-            p.drawText(QRectF(8, TITLE_PX + 6, self.width() - 16, 40), int(Qt.AlignmentFlag.AlignLeft | Qt.TextFlag.TextWordWrap),
+            p.drawText(QRectF(8, TITLE_PX + 6, self.width() - 16, 40),
+                       int(Qt.AlignmentFlag.AlignLeft | Qt.TextFlag.TextWordWrap),
                        "No wording to show for this provision.")
             p.end()
             return
@@ -239,12 +239,7 @@ class VariantsView(QWidget):
         self.wording = QTextBrowser(self)
         self.wording.setObjectName("variantWording")
         self.wording.setOpenLinks(False)
-        split = QSplitter(Qt.Orientation.Horizontal, self)
-        split.setObjectName("variantsSplit")
-        split.addWidget(self.chart_scroll)
-        split.addWidget(self.wording)
-        split.setStretchFactor(0, 3)
-        split.setStretchFactor(1, 2)
+        split = splitter(self, Qt.Orientation.Horizontal, "variantsSplit", (self.chart_scroll, self.wording), (3, 2))
         split.setSizes([600, 400])  # until the window restores the reviewer's own sizes
         lay = QVBoxLayout(self)
         lay.setContentsMargins(4, 4, 4, 4)

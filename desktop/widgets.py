@@ -5,20 +5,44 @@ from __future__ import annotations
 
 from PySide6.QtCore import QModelIndex, QPersistentModelIndex, QRect, Qt
 from PySide6.QtGui import QBrush, QColor, QPainter, QPen
-from PySide6.QtWidgets import QLabel, QMessageBox, QStyle, QStyledItemDelegate, QStyleOptionViewItem, QWidget
+from PySide6.QtWidgets import (
+    QAbstractItemView,
+    QLabel,
+    QMessageBox,
+    QSplitter,
+    QStyle,
+    QStyledItemDelegate,
+    QStyleOptionViewItem,
+    QTableView,
+    QWidget,
+)
 
 import core
 
 from .models import BAR_ROLE, TALLY_ROLE, source_data
-from .palette import BAR, CAUTION_BAND, TALLY
+from .palette import BAR, CAUTION_BAND, MUTED_INK, TALLY
 from .tally import Tally, tally
 
-__all__ = ["BarDelegate", "CautionBand", "TallyDelegate", "one_line", "paint_tally", "show_message", "tally_width"]
+__all__ = ["BarDelegate", "CautionBand", "TallyDelegate", "muted_label", "one_line", "paint_tally", "read_only_rows",
+           "show_message", "splitter", "tally_width"]
 
 #: Width of an inline bar, in pixels; the figure is written right of it.
 BAR_PX = 46
 #: Height of an inline bar, in pixels.
 BAR_H_PX = 8
+
+
+def _draw_cell_ground(delegate: QStyledItemDelegate, painter: QPainter, option: QStyleOptionViewItem,
+                      index: QModelIndex | QPersistentModelIndex) -> str:
+    """Draw the cell of *index* as the style does (selection, focus, alternate rows) but
+    without its text, which the delegate then draws beside its figure; returns that text."""
+    delegate.initStyleOption(option, index)
+    text: str = option.text
+    option.text = ""
+    style = option.widget.style() if option.widget else None
+    if style is not None:
+        style.drawControl(QStyle.ControlElement.CE_ItemViewItem, option, painter, option.widget)
+    return text
 
 
 class BarDelegate(QStyledItemDelegate):
@@ -27,17 +51,13 @@ class BarDelegate(QStyledItemDelegate):
     Works over our own Python models (through proxies) and over item widgets whose every
     item has a ``BAR_ROLE`` number."""
 
-    def paint(self, painter: QPainter, option: QStyleOptionViewItem, index: QModelIndex | QPersistentModelIndex) -> None:
+    def paint(self, painter: QPainter, option: QStyleOptionViewItem,
+              index: QModelIndex | QPersistentModelIndex) -> None:
         frac = source_data(index, BAR_ROLE)
         if not isinstance(frac, float) or frac < 0:
             super().paint(painter, option, index)
             return
-        self.initStyleOption(option, index)
-        text = option.text
-        option.text = ""
-        style = option.widget.style() if option.widget else None
-        if style is not None:
-            style.drawControl(QStyle.ControlElement.CE_ItemViewItem, option, painter, option.widget)
+        text = _draw_cell_ground(self, painter, option, index)
         r: QRect = option.rect
         painter.save()
         bar_px = max(12, min(BAR_PX, r.width() // 2 - 10))
@@ -47,7 +67,8 @@ class BarDelegate(QStyledItemDelegate):
                          QColor(BAR.fill))
         selected = bool(option.state & QStyle.StateFlag.State_Selected)
         painter.setPen(option.palette.highlightedText().color() if selected else option.palette.text().color())
-        painter.drawText(r.adjusted(bar_px + 12, 0, -4, 0), int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter), text)
+        painter.drawText(r.adjusted(bar_px + 12, 0, -4, 0),
+                         int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter), text)
         painter.restore()
 
 
@@ -108,18 +129,14 @@ class TallyDelegate(QStyledItemDelegate):
     then the cell's text (the exact figure).  Squares shrink to fit the column, down to
     :data:`TALLY_MIN_PX`; a cell without a figure is drawn as plain text."""
 
-    def paint(self, painter: QPainter, option: QStyleOptionViewItem, index: QModelIndex | QPersistentModelIndex) -> None:
+    def paint(self, painter: QPainter, option: QStyleOptionViewItem,
+              index: QModelIndex | QPersistentModelIndex) -> None:
         value = source_data(index, TALLY_ROLE)
         t = tally(*value) if isinstance(value, (tuple, list)) and len(value) == 2 else None
         if t is None:
             super().paint(painter, option, index)
             return
-        self.initStyleOption(option, index)
-        text = option.text
-        option.text = ""
-        style = option.widget.style() if option.widget else None
-        if style is not None:
-            style.drawControl(QStyle.ControlElement.CE_ItemViewItem, option, painter, option.widget)
+        text = _draw_cell_ground(self, painter, option, index)
         r: QRect = option.rect
         room = r.width() - 12 - option.fontMetrics.horizontalAdvance(text + " ")
         side = TALLY_MAX_PX
@@ -155,10 +172,12 @@ def one_line(exc: BaseException) -> str:
     text = str(exc).strip().splitlines()[0] if str(exc).strip() else ""
     if isinstance(exc, CounterdraftError):
         return text
-    return f"Unexpected problem ({type(exc).__name__}): {text}" if text else f"Unexpected problem ({type(exc).__name__})"
+    kind = f"Unexpected problem ({type(exc).__name__})"
+    return f"{kind}: {text}" if text else kind
 
 
-def show_message(parent: QWidget, title: str, text: str, *, icon: QMessageBox.Icon = QMessageBox.Icon.Warning) -> QMessageBox:
+def show_message(parent: QWidget, title: str, text: str, *,
+                 icon: QMessageBox.Icon = QMessageBox.Icon.Warning) -> QMessageBox:
     """A window-modal message box that does not block the caller (``open()``, not ``exec()``)."""
     box = QMessageBox(icon, title, text, QMessageBox.StandardButton.Ok, parent)
     box.setObjectName("messageBox")
@@ -166,3 +185,33 @@ def show_message(parent: QWidget, title: str, text: str, *, icon: QMessageBox.Ic
     box.setWindowModality(Qt.WindowModality.WindowModal)
     box.open()
     return box
+
+
+def muted_label(text: str, parent: QWidget) -> QLabel:
+    """A wrapped label in the muted ink: what a view shows, explained beside it."""
+    label = QLabel(text, parent)
+    label.setWordWrap(True)
+    label.setStyleSheet(f"color: {MUTED_INK}")
+    return label
+
+
+def splitter(parent: QWidget, orientation: Qt.Orientation, name: str, parts: tuple[QWidget, ...],
+             stretch: tuple[int, ...]) -> QSplitter:
+    """A splitter named *name* holding *parts*, each growing by its *stretch* factor."""
+    split = QSplitter(orientation, parent)
+    split.setObjectName(name)
+    for i, (part, factor) in enumerate(zip(parts, stretch, strict=True)):
+        split.addWidget(part)
+        split.setStretchFactor(i, factor)
+    return split
+
+
+def read_only_rows(table: QTableView, *, name: str) -> QTableView:
+    """*table* as a list of whole rows: one row selected at a time, nothing edited in place,
+    no row numbers (the model's own columns number what needs it)."""
+    table.setObjectName(name)
+    table.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
+    table.setSelectionMode(QAbstractItemView.SelectionMode.SingleSelection)
+    table.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
+    table.verticalHeader().hide()
+    return table

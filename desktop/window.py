@@ -18,11 +18,12 @@ decides whether to refresh.
 
 from __future__ import annotations
 
+import enum
 import functools
 import os
 from collections.abc import Callable
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from PySide6.QtCore import QObject, QSettings, Qt, QThreadPool, QTimer, Signal
 from PySide6.QtGui import QAction, QCloseEvent, QDragEnterEvent, QDropEvent, QKeySequence
@@ -34,7 +35,6 @@ from PySide6.QtWidgets import (
     QMessageBox,
     QProgressBar,
     QPushButton,
-    QSplitter,
     QTabWidget,
     QToolBar,
     QVBoxLayout,
@@ -55,7 +55,21 @@ from .sidebyside import SideBySideView
 from .state import Change, DisplayOptions, Inputs, Workspace
 from .terms import TermsPanel
 from .variants import VariantsView
-from .widgets import CautionBand, one_line, show_message
+from .widgets import CautionBand, one_line, show_message, splitter
+
+if TYPE_CHECKING:
+    from core.library.index import Library
+    from core.library.patterns import PatternGroup
+    from core.model import Deviation, Review
+    from core.session import ExportKind
+
+
+class _Party(enum.Enum):
+    REMEMBERED = "the party last chosen with the precedent"
+
+
+#: ``open_comparison``'s default party: the one last chosen with the precedent.
+REMEMBERED_PARTY = _Party.REMEMBERED
 
 __all__ = ["DEFAULT_SIZE", "FIT_SCREEN", "FRAME_PX", "TITLE_BAR_PX", "Hub", "MainWindow", "first_run_size"]
 
@@ -105,14 +119,22 @@ class MainWindow(QMainWindow):
         self.hub = Hub(self)
         self._task: tasks.Task | None = None
         self._tasks: set[tasks.Task] = set()
-        self._retired_libraries: list[Any] = []
+        self._retired_libraries: list[Library] = []
         self._pending_library: str | None = None
         #: Documents dropped on one half of the window, waiting for the other one.
         self._pending_docs = {"draft": "", "precedent": ""}
         self.ask_before_closing = True
         self.last_message: str | None = None
 
-        # -- views ----------------------------------------------------------------------
+        self._build_views()
+        self._build_central()
+        self._build_status_bar()
+        self._build_actions()
+        self._wire()
+        self._restore_state()
+        self.broadcast(Change.EVERYTHING)
+
+    def _build_views(self) -> None:
         self.deviations = DeviationsPanel(self.ws, lambda d: engine.decision_view(d)[:2], self)
         self.terms = TermsPanel(self.ws, engine.term_status, self)
         self.patterns = PatternsPanel(self.ws, engine.pattern_groups, self)
@@ -121,32 +143,24 @@ class MainWindow(QMainWindow):
         self.decision = DecisionPanel(self.ws, engine.decision_view, self)
         self.variants = VariantsView(self)
         self.variants.clear("Open a precedent set to see how its agreements word the selected provision.")
-
-        self.left_tabs = QTabWidget(self)
-        self.left_tabs.setObjectName("leftTabs")
-        self.left_tabs.addTab(self.deviations, "Deviations")
-        self.left_tabs.addTab(self.terms, "Defined terms")
-        self.left_tabs.addTab(self.checks, checks_tab_title(None))
-        self.left_tabs.addTab(self.patterns, "Patterns")
-        self.inspector = QTabWidget(self)
-        self.inspector.setObjectName("inspectorTabs")
-        self.inspector.addTab(self.decision, "Selected deviation")
-        self.inspector.addTab(self.variants, "Wording in the precedent set")
-
-        self.right_split = QSplitter(Qt.Orientation.Vertical, self)
-        self.right_split.setObjectName("rightSplit")
-        self.right_split.addWidget(self.side)
-        self.right_split.addWidget(self.inspector)
-        self.right_split.setStretchFactor(0, 3)
-        self.right_split.setStretchFactor(1, 2)
-        self.main_split = QSplitter(Qt.Orientation.Horizontal, self)
-        self.main_split.setObjectName("mainSplit")
-        self.main_split.addWidget(self.left_tabs)
-        self.main_split.addWidget(self.right_split)
-        self.main_split.setStretchFactor(0, 2)
-        self.main_split.setStretchFactor(1, 3)
+        self.left_tabs = self._tabs("leftTabs", ((self.deviations, "Deviations"), (self.terms, "Defined terms"),
+                                                 (self.checks, checks_tab_title(None)), (self.patterns, "Patterns")))
+        self.inspector = self._tabs("inspectorTabs", ((self.decision, "Selected deviation"),
+                                                      (self.variants, "Wording in the precedent set")))
+        self.right_split = splitter(self, Qt.Orientation.Vertical, "rightSplit", (self.side, self.inspector), (3, 2))
+        self.main_split = splitter(self, Qt.Orientation.Horizontal, "mainSplit", (self.left_tabs, self.right_split),
+                                   (2, 3))
         self._splits_restored = False
 
+    def _tabs(self, name: str, pages: tuple[tuple[QWidget, str], ...]) -> QTabWidget:
+        tabs = QTabWidget(self)
+        tabs.setObjectName(name)
+        for page, title in pages:
+            tabs.addTab(page, title)
+        return tabs
+
+    def _build_central(self) -> None:
+        """The caution band above either the welcome text (no review yet) or the views."""
         self.caution = CautionBand(self)
         self.welcome = QLabel(self)
         self.welcome.setObjectName("welcome")
@@ -166,7 +180,7 @@ class MainWindow(QMainWindow):
         lay.addWidget(self.main_split, 1)
         self.setCentralWidget(central)
 
-        # -- status bar ----------------------------------------------------------------------
+    def _build_status_bar(self) -> None:
         self.status_text = QLabel(self)
         self.progress = QProgressBar(self)
         self.progress.setObjectName("progress")
@@ -179,9 +193,7 @@ class MainWindow(QMainWindow):
         self.statusBar().addPermanentWidget(self.progress)
         self.statusBar().addPermanentWidget(self.cancel_btn)
 
-        self._build_actions()
-
-        # -- wiring -------------------------------------------------------------------------
+    def _wire(self) -> None:
         for view in (self.deviations, self.terms, self.patterns, self.decision, self.checks):
             self.hub.changed.connect(view.on_change)
         self.checks.provisionRequested.connect(self.show_provision)
@@ -193,13 +205,11 @@ class MainWindow(QMainWindow):
         self.decision.decided.connect(self.record_decision)
         self.decision.cleared.connect(self.clear_decision)
 
-        self._restore_state()
-        self.broadcast(Change.EVERYTHING)
-
     # ======================================================================================
     # actions, menus, keys
     # ======================================================================================
-    def _action(self, text: str, slot: Callable[[], Any], *, key: str | QKeySequence | None = None,
+    def _action(self, text: str, slot: Callable[[], object], *,
+                key: str | QKeySequence | QKeySequence.StandardKey | None = None,
                 tip: str = "", checkable: bool = False) -> QAction:
         a = QAction(text, self)
         if key is not None:
@@ -217,6 +227,16 @@ class MainWindow(QMainWindow):
         return a
 
     def _build_actions(self) -> None:
+        self._build_file_actions()
+        self._build_review_actions()
+        self._build_display_actions()
+        self.act_keys = self._action("Keys", lambda: show_keys(self), key=KEYS["help"])
+        self.act_about = self._action("About Counterdraft", lambda: show_about(self))
+        self._build_menus()
+        self._build_toolbar()
+        self._refresh_recent_menu()
+
+    def _build_file_actions(self) -> None:
         A = self._action
         self.act_open = A("Compare\u2026", self.show_open_dialog, key=QKeySequence.StandardKey.Open,
                           tip="Choose the counterparty's draft and the house precedent")
@@ -234,6 +254,8 @@ class MainWindow(QMainWindow):
                                     lambda: self._ask_export("issues-list", order="rank"))
         self.act_quit = A("Quit", self.close, key=QKeySequence.StandardKey.Quit)
 
+    def _build_review_actions(self) -> None:
+        A = self._action
         self.act_next = A("Next deviation", lambda: self._step(+1), key=KEYS["next"])
         self.act_prev = A("Previous deviation", lambda: self._step(-1), key=KEYS["previous"])
         self.act_accept = A("Accept the draft's words", lambda: self._decide_key("accept"), key=KEYS["accept"])
@@ -247,6 +269,8 @@ class MainWindow(QMainWindow):
         self.act_filter = A("Filter the list", self._focus_filter, key=QKeySequence.StandardKey.Find)
         self.act_cancel = A("Cancel operation", self.cancel_operation, key=QKeySequence(Qt.Key.Key_Escape))
 
+    def _build_display_actions(self) -> None:
+        A = self._action
         self.act_terms = A("Term changes", self._display_changed, checkable=True,
                            tip="Mark renamed defined terms and list term deviations")
         self.act_numbering = A("Numbering", self._display_changed, checkable=True,
@@ -254,63 +278,46 @@ class MainWindow(QMainWindow):
         self.act_formatting = A("Formatting and punctuation", self._display_changed, checkable=True,
                                 tip="Mark quote, dash, case, white-space and punctuation changes")
         d = DisplayOptions()
-        for act, on in ((self.act_terms, d.terms), (self.act_numbering, d.numbering), (self.act_formatting, d.formatting)):
+        for act, on in ((self.act_terms, d.terms), (self.act_numbering, d.numbering),
+                        (self.act_formatting, d.formatting)):
             act.blockSignals(True)
             act.setChecked(on)
             act.blockSignals(False)
 
-        self.act_keys = A("Keys", lambda: show_keys(self), key=KEYS["help"])
-        self.act_about = A("About Counterdraft", lambda: show_about(self))
-
+    def _build_menus(self) -> None:
         mb = self.menuBar()
         m = mb.addMenu("&File")
-        m.addAction(self.act_open)
-        m.addAction(self.act_library)
-        m.addAction(self.act_open_review)
+        m.addActions([self.act_open, self.act_library, self.act_open_review])
         self.recent_menu = m.addMenu("Recent")
         m.addSeparator()
-        m.addAction(self.act_save)
-        m.addAction(self.act_save_as)
-        ex = m.addMenu("Export")
-        for a in (self.act_export_cd, self.act_export_rl, self.act_export_il, self.act_export_il_rank):
-            ex.addAction(a)
+        m.addActions([self.act_save, self.act_save_as])
+        m.addMenu("Export").addActions(
+            [self.act_export_cd, self.act_export_rl, self.act_export_il, self.act_export_il_rank])
         m.addSeparator()
         m.addAction(self.act_quit)
         m = mb.addMenu("&Review")
-        for a in (self.act_next, self.act_prev):
-            m.addAction(a)
+        m.addActions([self.act_next, self.act_prev])
         m.addSeparator()
-        for a in (self.act_accept, self.act_revert, self.act_amend, self.act_note, self.act_clear):
-            m.addAction(a)
+        m.addActions([self.act_accept, self.act_revert, self.act_amend, self.act_note, self.act_clear])
         m.addSeparator()
-        m.addAction(self.act_acting_for)
-        m.addAction(self.act_filter)
-        m.addAction(self.act_cancel)
-        m = mb.addMenu("&Show")
-        for a in (self.act_terms, self.act_numbering, self.act_formatting):
-            m.addAction(a)
-        m = mb.addMenu("&Help")
-        m.addAction(self.act_keys)
-        m.addAction(self.act_about)
+        m.addActions([self.act_acting_for, self.act_filter, self.act_cancel])
+        mb.addMenu("&Show").addActions([self.act_terms, self.act_numbering, self.act_formatting])
+        mb.addMenu("&Help").addActions([self.act_keys, self.act_about])
 
+    def _build_toolbar(self) -> None:
         tb = QToolBar("Main", self)
         tb.setObjectName("mainToolbar")
         tb.setMovable(False)
         tb.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextOnly)
-        tb.addAction(self.act_open)
-        tb.addAction(self.act_library)
-        tb.addAction(self.act_save)
+        tb.addActions([self.act_open, self.act_library, self.act_save])
         self.export_button_action = tb.addAction("Export counter-draft\u2026")
         self.export_button_action.triggered.connect(lambda: self._ask_export("counter-draft"))
         tb.addSeparator()
-        show = QLabel("  Show:  ", tb)
-        tb.addWidget(show)
-        for a in (self.act_terms, self.act_numbering, self.act_formatting):
-            tb.addAction(a)
+        tb.addWidget(QLabel("  Show:  ", tb))
+        tb.addActions([self.act_terms, self.act_numbering, self.act_formatting])
         tb.addSeparator()
         tb.addAction(self.act_keys)
         self.addToolBar(tb)
-        self._refresh_recent_menu()
 
     # ======================================================================================
     # broadcast
@@ -369,7 +376,8 @@ class MainWindow(QMainWindow):
         ws = self.ws
         title = "Counterdraft"
         if ws.inputs is not None:
-            acting = f", acting for the {ws.review.acting_for}" if ws.review is not None and ws.review.acting_for else ""
+            party = ws.review.acting_for if ws.review is not None else None
+            acting = f", acting for the {party}" if party else ""
             title = (f"{Path(ws.inputs.draft).name} against {Path(ws.inputs.precedent).name}{acting}"
                      " \u2014 Counterdraft")
         if ws.unsaved:
@@ -398,7 +406,8 @@ class MainWindow(QMainWindow):
         if isinstance(content, str):
             self.variants.clear(content)
         else:
-            self.variants.set_content(**content)
+            self.variants.set_content(slot=content.slot, provision=content.provision,
+                                      deviation=content.deviation)
 
     # ======================================================================================
     # opening
@@ -424,10 +433,10 @@ class MainWindow(QMainWindow):
         return dlg
 
     def open_comparison(self, draft: str, precedent: str, *, library: str | None = None,
-                        acting_for: str | None | object = ...) -> None:
+                        acting_for: str | None | _Party = REMEMBERED_PARTY) -> None:
         """Read both files, review them (with the precedent set when given) off the GUI thread,
         acting for *acting_for* (by default the party last chosen with this precedent)."""
-        party = self.settings.acting_for(str(precedent)) if acting_for is ... else acting_for
+        party = self.settings.acting_for(str(precedent)) if acting_for is REMEMBERED_PARTY else acting_for
         inputs = Inputs(draft=str(draft), precedent=str(precedent), library=str(library) if library else None,
                         acting_for=party or None)
         work = functools.partial(engine.load_and_review, inputs, overrides=())
@@ -436,7 +445,7 @@ class MainWindow(QMainWindow):
     def open_library(self, folder: str) -> None:
         """Use *folder* as the precedent set: re-run the current review with it, or keep it for
         the next comparison."""
-        if self.ws.inputs is None:
+        if self.ws.inputs is None or self.ws.record is None:
             self._pending_library = folder
             self._status(f"Precedent set {folder} will be used for the next comparison.")
             return
@@ -505,7 +514,7 @@ class MainWindow(QMainWindow):
             show_message(self, "Review file", "\n".join(rec.notes), icon=QMessageBox.Icon.Information)
         self.reviewShown.emit()
 
-    def _set_library(self, library: Any) -> None:
+    def _set_library(self, library: Library | None) -> None:
         old = self.ws.library
         self.ws.library = library
         if old is not None and old is not library:
@@ -524,7 +533,8 @@ class MainWindow(QMainWindow):
             engine.close_library(self._retired_libraries.pop())
 
     def _task_ended(self, task: tasks.Task | None) -> None:
-        self._tasks.discard(task)  # type: ignore[arg-type]
+        if task is not None:
+            self._tasks.discard(task)
         if task is not self._task:  # an abandoned task: what waited for it can go on now
             self._close_retired_libraries()
             self._refresh_variants()
@@ -546,7 +556,7 @@ class MainWindow(QMainWindow):
     def change_term_mapping(self, kind: str, draft: str, precedent: str) -> None:
         """Confirm, reject or add a term mapping, then re-run the review with it."""
         ws = self.ws
-        if ws.review is None or ws.inputs is None:
+        if ws.record is None or ws.inputs is None:
             return
         try:
             overrides = engine.add_override(ws.overrides, kind, draft, precedent)
@@ -566,7 +576,7 @@ class MainWindow(QMainWindow):
         """Judge the review again for *party* (a precedent party term; None: no one), and
         remember the choice for this precedent."""
         ws = self.ws
-        if ws.review is None or ws.inputs is None:
+        if ws.record is None or ws.inputs is None:
             return
         self.settings.set_acting_for(ws.inputs.precedent, party)
         inputs = Inputs(ws.inputs.draft, ws.inputs.precedent, ws.inputs.library, party)
@@ -610,7 +620,7 @@ class MainWindow(QMainWindow):
 
     def record_decision(self, did: str, action: str, text: str = "", note: str = "") -> None:
         d = self.ws.deviation(did)
-        if d is None:
+        if d is None or self.ws.record is None:
             return
         try:
             self.ws.record = engine.decide(self.ws.record, did, action, text=text, note=note)
@@ -621,7 +631,7 @@ class MainWindow(QMainWindow):
         self.broadcast(Change.DECISIONS | Change.FILES)
 
     def clear_decision(self, did: str) -> None:
-        if did in self.ws.decisions:
+        if self.ws.record is not None and did in self.ws.decisions:
             self.ws.record = engine.undecide(self.ws.record, did)
             self.ws.unsaved = True
             self.broadcast(Change.DECISIONS | Change.FILES)
@@ -667,12 +677,12 @@ class MainWindow(QMainWindow):
     # ======================================================================================
     def compute_patterns(self) -> None:
         ws = self.ws
-        if ws.library is None or ws.inputs is None:
+        if ws.library is None or ws.inputs is None or ws.review is None:
             return
         work = functools.partial(engine.compute_patterns, ws.library, precedent=ws.review.precedent,
                                  precedent_path=ws.inputs.precedent)
 
-        def done(patterns: Any) -> None:
+        def done(patterns: tuple[PatternGroup, ...]) -> None:
             ws.patterns = patterns
             self.broadcast(Change.PATTERNS)
             self._status("Negotiation patterns ready.")
@@ -681,7 +691,7 @@ class MainWindow(QMainWindow):
 
     def save_review(self, path: str) -> None:
         ws = self.ws
-        if ws.review is None or ws.inputs is None:
+        if ws.record is None or ws.inputs is None:
             return
         same_file = ws.review_path is not None and str(path) == ws.review_path
         try:
@@ -700,11 +710,11 @@ class MainWindow(QMainWindow):
         self._status(f"Saved {path}")
         self.fileWritten.emit(str(path))
 
-    def export(self, kind: str, path: str, *, order: str = "clause") -> None:
+    def export(self, kind: ExportKind, path: str, *, order: str = "clause") -> None:
         """Write the counter-draft, the comparison redline or the issues list to *path* (the
         issues list's rows in *order*: ``"clause"``, the draft's order, or ``"rank"``)."""
         ws = self.ws
-        if ws.review is None or ws.inputs is None:
+        if ws.record is None or ws.inputs is None:
             return
         work = functools.partial(engine.export, kind, str(path), record=ws.record, order=order)
 
@@ -735,7 +745,7 @@ class MainWindow(QMainWindow):
         if path:
             self.save_review(path)
 
-    def _ask_export(self, kind: str, *, order: str = "clause") -> None:
+    def _ask_export(self, kind: ExportKind, *, order: str = "clause") -> None:
         if self.ws.inputs is None:
             return
         stem = Path(self.ws.inputs.draft)
@@ -771,7 +781,8 @@ class MainWindow(QMainWindow):
             if r.review_file:
                 label = f"Review file: {Path(r.review_file).name}"
                 act = self.recent_menu.addAction(label)
-                act.triggered.connect(functools.partial(lambda path, _=False: self.open_review_file(path), r.review_file))
+                act.triggered.connect(functools.partial(lambda path, _=False: self.open_review_file(path),
+                                                        r.review_file))
             else:
                 label = f"{Path(r.draft).name} against {Path(r.precedent).name}"
                 if r.library:
@@ -1017,7 +1028,7 @@ def first_run_size(free: tuple[int, int] | None) -> tuple[int, int]:
     return min(w, free[0] - FRAME_PX), min(h, free[1] - TITLE_BAR_PX)
 
 
-def _same_deviation(old, review) -> str | None:
+def _same_deviation(old: Deviation | None, review: Review | None) -> str | None:
     """The id, in *review*, of the deviation that matches *old* (same change, same provisions,
     same words), so the selection survives a re-run that renumbered the ids."""
     if old is None or review is None:

@@ -19,6 +19,13 @@ from tests.support.bad_inputs import BAD_INPUTS, BadInput, healthy_docx
 from tests.support.libreoffice import convert
 
 
+def _folders(tmp_path):
+    """A folder of inputs and one for outputs (so that an output never lands beside an input)."""
+    inputs, out = tmp_path / "in", tmp_path / "out"
+    inputs.mkdir()
+    out.mkdir()
+    return inputs, out
+
 def _digest(path) -> str | None:
     return hashlib.sha256(path.read_bytes()).hexdigest() if path.is_file() else None
 
@@ -49,10 +56,7 @@ def _refused(capsys, path, folder, *, json_out: str | None, bad: BadInput | None
 
 @pytest.mark.parametrize("bad", BAD_INPUTS, ids=lambda b: b.name)
 def test_inspect_refuses_bad_input(tmp_path, capsys, bad):
-    inputs = tmp_path / "in"
-    inputs.mkdir()
-    out = tmp_path / "out"
-    out.mkdir()
+    inputs, out = _folders(tmp_path)
     path = bad.make(inputs)
     _refused(capsys, path, out, json_out=str(out / "doc.json"), bad=bad)
 
@@ -61,10 +65,7 @@ def test_inspect_refuses_bad_input(tmp_path, capsys, bad):
 @pytest.mark.parametrize("name", ["zip-bomb", "password-protected", "doctype-entities"])
 def test_inspect_refuses_without_output_file(tmp_path, capsys, name, json_out):
     bad = next(b for b in BAD_INPUTS if b.name == name)
-    inputs = tmp_path / "in"
-    inputs.mkdir()
-    out = tmp_path / "out"
-    out.mkdir()
+    inputs, out = _folders(tmp_path)
     _refused(capsys, bad.make(inputs), out, json_out=json_out, bad=bad)
 
 
@@ -80,10 +81,7 @@ def real_doc(tmp_path_factory):
 def test_real_legacy_doc_renamed_docx(tmp_path, capsys, real_doc):
     """A real .doc saved under a .docx name is recognised from its content ([MS-CFB] header
     and the "WordDocument" stream)."""
-    inputs = tmp_path / "in"
-    inputs.mkdir()
-    out = tmp_path / "out"
-    out.mkdir()
+    inputs, out = _folders(tmp_path)
     path = inputs / "agreement.docx"
     shutil.copyfile(real_doc, path)
     _refused(capsys, path, out, json_out=str(out / "doc.json"),
@@ -91,10 +89,7 @@ def test_real_legacy_doc_renamed_docx(tmp_path, capsys, real_doc):
 
 
 def test_real_legacy_doc(tmp_path, capsys, real_doc):
-    inputs = tmp_path / "in"
-    inputs.mkdir()
-    out = tmp_path / "out"
-    out.mkdir()
+    inputs, out = _folders(tmp_path)
     path = inputs / "agreement.doc"
     shutil.copyfile(real_doc, path)
     _refused(capsys, path, out, json_out=str(out / "doc.json"), words=(".doc",))
@@ -123,11 +118,8 @@ def test_inspect_refuses_a_list_start_beyond_the_limit(tmp_path, capsys, start, 
             "<w:r><w:t>The Supplier shall deliver the Goods.</w:t></w:r></w:p>")
     from tests.support.docx_fixtures import build_docx
 
-    inputs = tmp_path / "in"
-    inputs.mkdir()
+    inputs, out = _folders(tmp_path)
     path = build_docx(inputs / "absurd-list.docx", body, numbering=numbering)
-    out = tmp_path / "out"
-    out.mkdir()
     _refused(capsys, inputs / "absurd-list.docx", out, json_out=str(out / "doc.json"),
              words=("limit is 0 to 32767",))
     assert path.endswith("absurd-list.docx")

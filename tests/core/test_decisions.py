@@ -176,11 +176,11 @@ def test_review_file_round_trip(scenario, tmp_path):
 
     seen = {}
 
-    def runner(draft, precedent, *, overrides=()):
+    def runner(draft, precedent, *, overrides=(), acting_for=None):
         from core.review import run_review
 
         seen["overrides"] = tuple(overrides)
-        return run_review(draft, precedent, overrides=overrides)
+        return run_review(draft, precedent, overrides=overrides, acting_for=acting_for)
 
     again = load_review_file(path, runner=runner)
     assert again.notes == ()  # nothing changed
@@ -243,7 +243,8 @@ def test_broken_review_files_are_refused_with_one_line(scenario, tmp_path):
         (json.dumps({"schema": "something/1"}), "not a counterdraft.review-file/1"),
         (json.dumps({"schema": REVIEW_FILE_SCHEMA}), "damaged review file"),
         (json.dumps({"schema": REVIEW_FILE_SCHEMA, "draft": {"path": "nowhere.docx"},
-                     "precedent": {"path": "precedent.docx"}}), r"damaged review file \(top level: .* is a required property"),
+                     "precedent": {"path": "precedent.docx"}}),
+         r"damaged review file \(top level: .* is a required property"),
         (json.dumps({"schema": "counterdraft.review-file/7"}), "another version of Counterdraft"),
     ]:
         bad.write_text(content, encoding="utf-8")
@@ -439,7 +440,11 @@ def test_the_party_acted_for_is_kept_in_the_review_file(scenario, tmp_path, caps
     assert main(["decide", str(review_file), pay["id"], "accept"]) == 0
     again = json.loads(review_file.read_text(encoding="utf-8"))
     assert again["acting_for"] == "Customer"
-    assert [(d["id"], d["direction"]) for d in again["deviations"]] == [(d["id"], d["direction"]) for d in data["deviations"]]
+
+    def directions(review: dict) -> list[tuple[str, str]]:
+        return [(d["id"], d["direction"]) for d in review["deviations"]]
+
+    assert directions(again) == directions(data)
 
     # an unknown party: one line naming the party terms found, exit 2, nothing written
     capsys.readouterr()

@@ -22,23 +22,27 @@ from core.model import (
 PRECEDENT = [
     # id, kind, number, heading, level, text, term
     ("p1", "definition", None, None, 0, "\u201cCustomer\u201d means the party buying the Goods.", "Customer"),
-    ("p2", "clause", "1", "Supply", 1, "The Supplier shall supply the Goods to the Customer in accordance with each Order.", None),
+    ("p2", "clause", "1", "Supply", 1,
+     "The Supplier shall supply the Goods to the Customer in accordance with each Order.", None),
     ("p3", "clause", "2", "Payment", 1, "The Customer shall pay each invoice within 30 days of receipt.", None),
     ("p4", "clause", "3", "Limitation of liability", 1,
      "The Supplier's total liability shall not exceed the fees paid in the 12 months before the claim.", None),
     ("p5", "clause", "4", "Publicity", 1, "Neither party shall announce this agreement without consent.", None),
-    ("p6", "clause", "5", "Confidentiality", 1, "Each party shall keep the other party's Confidential Information secret.", None),
+    ("p6", "clause", "5", "Confidentiality", 1,
+     "Each party shall keep the other party's Confidential Information secret.", None),
     ("p7", "clause", "6", "Governing law", 1, "This agreement is governed by the law of Veloria.", None),
 ]
 
 DRAFT = [
     ("d1", "definition", None, None, 0, "\u201cClient\u201d means the party buying the Goods.", "Client"),
-    ("d2", "clause", "1", "Supply", 1, "The Supplier shall supply the Goods to the Client in accordance with each Order.", None),
+    ("d2", "clause", "1", "Supply", 1,
+     "The Supplier shall supply the Goods to the Client in accordance with each Order.", None),
     ("d3", "clause", "2", "Payment", 1, "The Client shall pay each invoice within 60 days of receipt.", None),
     ("d4", "clause", "3", "Limitation of liability", 1,
      "The Supplier's total liability shall not exceed the fees paid in the 24 months before the claim.", None),
     ("d5", "clause", "4", "Governing law", 1, "This agreement is governed by the law of Veloria.", None),
-    ("d6", "clause", "5", "Confidentiality", 1, "Each party may keep the other party's Confidential Information secret.", None),
+    ("d6", "clause", "5", "Confidentiality", 1,
+     "Each party may keep the other party's Confidential Information secret.", None),
     ("d7", "clause", "6", "Audit", 1, "The Client may audit the Supplier's records once a year.", None),
 ]
 

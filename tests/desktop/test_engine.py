@@ -84,7 +84,7 @@ def test_every_long_step_says_what_it_is_doing(tmp_path):
     inputs = Inputs(str(DEMO / "draft.docx"), str(DEMO / "precedent.docx"), str(folder))
     for run in ("first", "second"):
         seen: list[tuple[int, int | None, str]] = []
-        out = engine.load_and_review(inputs, lambda d, t, m: seen.append((d, t, m)), lambda: False)
+        out = engine.load_and_review(inputs, lambda d, t, m, seen=seen: seen.append((d, t, m)), lambda: False)
         engine.close_library(out.library)
         messages = [m for _d, _t, m in seen]
         assert messages[:2] == ["Reading draft.docx", "Reading precedent.docx"]
@@ -101,3 +101,32 @@ def test_every_long_step_says_what_it_is_doing(tmp_path):
         assert comparing[0].endswith("reading the words and defined terms")
         assert any("paired provisions" in m for m in comparing)
         assert messages[-1] == "Counting wordings in the precedent set"
+
+
+def test_the_window_reviews_as_the_command_line_does_with_a_precedent_set(tmp_path):
+    """The window and ``counterdraft review --library --json`` give the same review of the
+    demo pair (both go through core.session: the set's vocabulary, clause typing and
+    frequencies).  The reference is the command line's documented JSON output."""
+    import json
+    import shutil
+
+    from core.cli import main
+    from core.review import review_to_dict
+    from desktop.state import Inputs
+
+    from .conftest import DEMO
+
+    folder = tmp_path / "set"
+    folder.mkdir()
+    for f in sorted((DEMO / "precedent_set").glob("*.docx"))[:3]:
+        shutil.copy(f, folder / f.name)
+    draft, precedent = str(DEMO / "draft.docx"), str(DEMO / "precedent.docx")
+    out = tmp_path / "cli.json"
+    assert main(["review", draft, "--against", precedent, "--library", str(folder),
+                 "--acting-for", "Supplier", "--json", str(out)]) == 0
+    got = engine.load_and_review(Inputs(draft, precedent, str(folder), "Supplier"), lambda *_: None, lambda: False)
+    try:
+        window = json.loads(json.dumps(review_to_dict(got.review), ensure_ascii=False))
+        assert window == json.loads(out.read_text(encoding="utf-8"))
+    finally:
+        engine.close_library(got.library)

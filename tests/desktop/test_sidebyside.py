@@ -44,6 +44,20 @@ def _word_changes(a: str, b: str) -> tuple[set[str], set[str]]:
     return only_a, only_b
 
 
+def _aligned_rows(view, review):
+    """(row, pair, precedent text, draft text) of every row the view shows with both sides."""
+    for row in range(view.model.rowCount()):
+        pair = view.model.pair(row)
+        if pair.draft is not None and pair.precedent is not None:
+            yield (row, pair, review.precedent.provision(pair.precedent).text,
+                   review.draft.provision(pair.draft).text)
+
+
+def _marked_words(marks, text: str, kind) -> set[str]:
+    """The words of *text* under the marks of *kind*."""
+    return {w for m in marks if m.kind == kind for w in re.findall(r"\w+", text[m.start:m.end])}
+
+
 def test_cell_text_is_exact_and_marks_carry_non_colour_cues(qtbot):
     review = make_review()
     p = review.precedent.provision("p3")
@@ -62,7 +76,8 @@ def test_cell_text_is_exact_and_marks_carry_non_colour_cues(qtbot):
     struck = [(t, f) for t, f in _fragments(pdoc) if f.fontStrikeOut()]
     assert [t for t, _ in struck] == ["30"]
     assert struck[0][1].foreground().color().name() == DELETED.ink
-    under = [(t, f) for t, f in _fragments(ddoc) if f.underlineStyle() == QTextCharFormat.UnderlineStyle.SingleUnderline]
+    single = QTextCharFormat.UnderlineStyle.SingleUnderline
+    under = [(t, f) for t, f in _fragments(ddoc) if f.underlineStyle() == single]
     assert [t for t, _ in under] == ["60"]
     assert under[0][1].background().color().name() == INSERTED.background
     dotted = [t for t, f in _fragments(ddoc) if f.underlineStyle() == QTextCharFormat.UnderlineStyle.DotLine]
@@ -77,17 +92,11 @@ def test_the_view_marks_exactly_the_words_difflib_finds_changed(qtbot):
 
     view.set_review(review, edits=pair_edits)
     view.set_display(DisplayOptions(terms=False))  # renamed terms shown as plain text
-    for row in range(view.model.rowCount()):
-        pair = view.model.pair(row)
-        if pair.draft is None or pair.precedent is None:
-            continue
-        pt = review.precedent.provision(pair.precedent).text
-        dt = review.draft.provision(pair.draft).text
+    for row, _pair, pt, dt in _aligned_rows(view, review):
         # difflib on the texts with the renamed term read as the precedent's (as the engine does)
         only_p, only_d = _word_changes(pt, dt.replace("Client", "Customer"))
         pm, dm = view.side_marks(row)
-        marked_p = {w for m in pm if m.kind == mk.DELETED for w in re.findall(r"\w+", pt[m.start:m.end])}
-        marked_d = {w for m in dm if m.kind == mk.INSERTED for w in re.findall(r"\w+", dt[m.start:m.end])}
+        marked_p, marked_d = _marked_words(pm, pt, mk.DELETED), _marked_words(dm, dt, mk.INSERTED)
         assert marked_p == only_p, (row, marked_p, only_p)
         assert marked_d == only_d, (row, marked_d, only_d)
 
@@ -143,16 +152,10 @@ def test_the_view_shows_the_engines_own_word_diff_and_renamed_terms_as_terms(qtb
     view.set_review(review, edits=pair_edits)
     view.set_display(DisplayOptions())
     seen_terms = 0
-    for row in range(view.model.rowCount()):
-        pair = view.model.pair(row)
-        if pair.draft is None or pair.precedent is None:
-            continue
-        pt = review.precedent.provision(pair.precedent).text
-        dt = review.draft.provision(pair.draft).text
+    for row, pair, pt, dt in _aligned_rows(view, review):
         pm, dm = view.side_marks(row)
         only_p, only_d = _word_changes(pt, dt.replace("Client", "Customer"))
-        marked_p = {w for m in pm if m.kind == mk.DELETED for w in re.findall(r"\w+", pt[m.start:m.end])}
-        marked_d = {w for m in dm if m.kind == mk.INSERTED for w in re.findall(r"\w+", dt[m.start:m.end])}
+        marked_p, marked_d = _marked_words(pm, pt, mk.DELETED), _marked_words(dm, dt, mk.INSERTED)
         assert marked_p == only_p and marked_d == only_d, (row, marked_p, marked_d)
         terms = [dt[m.start:m.end] for m in dm if m.kind == mk.TERM]
         assert terms == re.findall(r"Client(?:'s)?", dt)

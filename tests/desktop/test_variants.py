@@ -79,12 +79,18 @@ def test_each_row_fills_one_square_per_agreement_with_that_wording(qtbot):
     assert chart.row_count == 3  # every agreement has the provision: no "no such provision" row
 
 
-def test_clicking_a_row_shows_its_wording_documents_position_and_closest_texts(qtbot):
+def _shown(qtbot, slot, provision: str) -> VariantsView:
+    """A variants view on screen, showing *slot* for *provision*."""
     view = VariantsView()
     qtbot.addWidget(view)
     view.resize(1000, 320)
     view.show()
-    view.set_content(slot=SLOT, provision="Section 3.1 Termination for Convenience")
+    view.set_content(slot=slot, provision=provision)
+    return view
+
+
+def test_clicking_a_row_shows_its_wording_documents_position_and_closest_texts(qtbot):
+    view = _shown(qtbot, SLOT, "Section 3.1 Termination for Convenience")
     text = view.wording.toPlainText()
     assert text.startswith("The draft's wording \u25c0 draft")
     assert "\u25a0\u25a1\u25a1\u25a1\u25a1 \u25a1\u25a1\u25a1\u25a1\u25a1 \u25a1\u25a1" in text
@@ -104,11 +110,7 @@ def test_clicking_a_row_shows_its_wording_documents_position_and_closest_texts(q
 
 
 def test_a_removed_provision_shows_the_agreements_without_it_as_the_drafts_choice(qtbot):
-    view = VariantsView()
-    qtbot.addWidget(view)
-    view.resize(1000, 320)
-    view.show()
-    view.set_content(slot=REMOVED, provision="25 Non-Solicitation")
+    view = _shown(qtbot, REMOVED, "25 Non-Solicitation")
     chart = view.chart
     assert chart.row_count == 2 and chart.current == 1  # the "no such provision" row is the draft's
     assert view.wording.toPlainText().startswith(f"{ABSENT_ROW} \u25c0 draft")
