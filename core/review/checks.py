@@ -70,9 +70,9 @@ from __future__ import annotations
 
 import re
 from collections.abc import Iterable, Mapping, Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 
-from ..model import DefinedTerm, Document, Provision, Review
+from ..model import CHECK_DOCUMENTS, CHECK_KINDS, Check, CheckKind, DefinedTerm, Document, Provision, Review
 from ..terms import term_forms
 from .tokens import find_term_uses, term_matcher
 
@@ -93,41 +93,16 @@ __all__ = [
     "unused_definitions",
 ]
 
-CHECK_KINDS: tuple[str, ...] = ("undefined-term", "unused-definition", "stale-term",
-                                "dangling-reference", "definition-changed")
-CHECK_DOCUMENTS: tuple[str, ...] = ("draft", "precedent")
 #: How the outputs head the checks (the review table, the window, the issues list).
 CHECKS_HEADING = "Drafting checks"
 #: How the outputs name each kind (the trade's own words).
-CHECK_TITLES: dict[str, str] = {
+CHECK_TITLES: dict[CheckKind, str] = {
     "undefined-term": "Undefined term",
     "unused-definition": "Unused definition",
     "stale-term": "Old name of a renamed term",
     "dangling-reference": "Reference to no provision",
     "definition-changed": "Definition changed",
 }
-
-
-@dataclass(frozen=True, slots=True)
-class Check:
-    """One drafting problem.
-
-    ``text`` is the words concerned, verbatim: ``provision.text[a:b]`` (or
-    ``provision.heading[a:b]`` when ``part == "heading"``) with ``span == (a, b)``; None
-    span when the check concerns no particular words.  ``term`` names the defined term a
-    term check concerns; ``provisions`` lists the other provisions concerned, in document
-    order: where an undefined term is also used, the provisions using a changed
-    definition's term."""
-
-    kind: str  # one of CHECK_KINDS
-    document: str  # one of CHECK_DOCUMENTS
-    provision: str | None
-    text: str
-    message: str
-    span: tuple[int, int] | None = None
-    part: str = "text"  # "text" or "heading"
-    term: str | None = None
-    provisions: tuple[str, ...] = field(default=())
 
 
 # --------------------------------------------------------------------------------------

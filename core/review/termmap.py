@@ -55,12 +55,11 @@ import math
 from collections import Counter
 from collections.abc import Callable, Collection, Iterable, Mapping, Sequence
 from dataclasses import dataclass
-from typing import Literal, Protocol, runtime_checkable
+from typing import Protocol, runtime_checkable
 
 from rapidfuzz.distance import Indel
 
-from ..errors import CounterdraftError
-from ..model import TermMapping
+from ..model import TermMapping, TermOverride  # TermOverride: re-exported (it lived here)
 from ..terms import term_forms
 from .assignment import max_weight_assignment
 from .docinfo import DocInfo, party_role
@@ -156,24 +155,6 @@ class VocabularyModel(Protocol):
     engineer).  ``similarity`` is about 0..1, or None when a word is unknown."""
 
     def similarity(self, a: str, b: str) -> float | None: ...
-
-
-@dataclass(frozen=True, slots=True)
-class TermOverride:
-    """A reviewer's decision: ``confirm`` or ``add`` the mapping draft -> precedent, or
-    ``reject`` it (``precedent=None`` rejects every mapping of the draft term)."""
-
-    draft: str
-    precedent: str | None = None
-    action: Literal["confirm", "reject", "add"] = "confirm"
-
-    def __post_init__(self) -> None:
-        if self.action not in ("confirm", "reject", "add"):
-            raise CounterdraftError(f"term override: unknown action {self.action!r}")
-        if not self.draft.strip():
-            raise CounterdraftError("term override: empty draft term")
-        if self.action != "reject" and not (self.precedent or "").strip():
-            raise CounterdraftError(f"term override: {self.action} needs a precedent term")
 
 
 @dataclass(frozen=True, slots=True)
