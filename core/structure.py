@@ -905,7 +905,7 @@ class _Splitter:
             pos += 1
         rest = text[pos:].rstrip()
 
-        kind = "clause"
+        kind: ProvisionKind = "clause"
         if label.family == "sched":
             kind = "schedule"
             self.phase = "schedule"
@@ -973,7 +973,7 @@ class _Splitter:
             self._add_segment(self.drafts[-1], block, 0)
             return
         family = "heading"
-        kind = "other"
+        kind: ProvisionKind = "other"
         if self.phase == "front" and _PARTIES_HEADING_RE.match(heading):
             kind = family = "parties"
         elif self.phase == "front" and _RECITALS_HEADING_RE.match(heading):

@@ -69,10 +69,21 @@ documents' length in practice.
 from __future__ import annotations
 
 import re
-from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
-from ..model import CHECK_DOCUMENTS, CHECK_KINDS, Check, CheckKind, DefinedTerm, Document, Provision, Review
+from ..model import (
+    CHECK_DOCUMENTS,
+    CHECK_KINDS,
+    Check,
+    CheckDocument,
+    CheckKind,
+    CheckPart,
+    DefinedTerm,
+    Document,
+    Provision,
+    Review,
+)
 from ..terms import term_forms
 from .tokens import find_term_uses, term_matcher
 
@@ -245,7 +256,8 @@ _TITLE_CUE_WORDS = frozenset("entitled titled called named headed captioned".spl
 #: Common nouns that English style capitalises by convention.
 _CONVENTION_WORDS = frozenset("Internet Web Earth God".split())
 
-_QUOTED_RE = re.compile(r"[\"“”„]([^\"“”„\n]{1,80}(?:\n[^\"“”„\n]{1,80})?)[\"“”]|‘([^‘’\n]{1,80})’|«\s?([^«»\n]{1,80}?)\s?»"
+_QUOTED_RE = re.compile(r"[\"“”„]([^\"“”„\n]{1,80}(?:\n[^\"“”„\n]{1,80})?)[\"“”]"
+                        r"|‘([^‘’\n]{1,80})’|«\s?([^«»\n]{1,80}?)\s?»"
                         r"|(?<![\w'’])'([^'\n]{1,80})'(?![\w'])|``([^`'\n]{1,80})''")
 #: An unquoted name in a parenthesis after what it names: "(the Licensor)", "(Customer)".
 _PAREN_NAME_RE = re.compile(
@@ -326,11 +338,11 @@ class _Texts:
     """The prose of a document: (provision, part, text) in document order."""
 
     doc: Document
-    parts: tuple[tuple[Provision, str, str], ...]
+    parts: tuple[tuple[Provision, CheckPart, str], ...]
 
     @staticmethod
     def of(doc: Document) -> _Texts:
-        parts: list[tuple[Provision, str, str]] = []
+        parts: list[tuple[Provision, CheckPart, str]] = []
         for p in doc.provisions:
             if p.heading:
                 parts.append((p, "heading", p.heading))
@@ -397,7 +409,7 @@ def _fold_text(text: str) -> str:
                    for ch in text)
 
 
-def _folded_finder(forms: Iterable[str]):
+def _folded_finder(forms: Iterable[str]) -> Callable[[str], list[tuple[int, str]]]:
     """A function giving (start, folded form) of the uses of *forms* (folded names, see
     :func:`_fold`) in a text, whole words, possessive endings allowed: a regular expression
     for an agreement's names, a character-trie walk (:func:`core.terms.walk_forms`) for the
@@ -429,7 +441,7 @@ class _Use:
     """A capitalised phrase in the middle of a sentence."""
 
     provision: Provision
-    part: str
+    part: CheckPart
     start: int
     end: int
     phrase: str
@@ -475,7 +487,7 @@ def _candidate_uses(texts: _Texts) -> list[_Use]:
     return out
 
 
-def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: str, offset: int) -> list[_Use]:
+def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: CheckPart, offset: int) -> list[_Use]:
     """The phrases of one run of capitalised words (parted at "and" / "or"), unless the run
     is a title, starts a sentence or is a verb ("to Preserve its Title")."""
     run = m.group("phrase")
@@ -612,7 +624,7 @@ def _uses_of(doc: Document, texts: _Texts, names: Mapping[str, str]) -> dict[str
 
 
 def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iterable[str] = (),
-                    document: str = "draft") -> tuple[Check, ...]:
+                    document: CheckDocument = "draft") -> tuple[Check, ...]:
     """The undefined-term checks of *doc* (see the module's notes).
 
     *defined* adds names that count as defined (the names of renamed terms, whose stale
@@ -644,7 +656,7 @@ def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iter
             continue
         found.setdefault(key, []).append(use)
     brand = _brand_words(texts, lower)
-    for key, uses in found.items():
+    for uses in found.values():
         words = [w for w in uses[0].phrase.split() if w[:1].isupper()]
         if any(w in brand for w in words):
             continue  # "the Java Platform": "Java" names a product elsewhere in the document
@@ -674,7 +686,7 @@ def _brand_words(texts: _Texts, lower: set[str]) -> frozenset[str]:
                      if len(runs) >= BRAND_MIN_PHRASES and not (_singulars(w.lower()) | {w.lower()}) & lower)
 
 
-def _undefined_check(uses: Sequence[_Use], *, document: str, term: str, why: str) -> Check:
+def _undefined_check(uses: Sequence[_Use], *, document: CheckDocument, term: str, why: str) -> Check:
     first = uses[0]
     n_prov = len({u.provision.id for u in uses})
     where = f"; used in {n_prov} provisions" if n_prov > 1 else ""
@@ -709,7 +721,7 @@ def _use_name(name: str) -> str:
     return " ".join(words[1:]) if len(words) > 1 and words[0].casefold() == "to" else name
 
 
-def unused_definitions(doc: Document, *, document: str = "draft") -> tuple[Check, ...]:
+def unused_definitions(doc: Document, *, document: CheckDocument = "draft") -> tuple[Check, ...]:
     """Defined terms that *doc* never uses outside their definitions.
 
     A definition provision of its own (``"X" means ...``) is the definition in its first
@@ -750,13 +762,13 @@ def unused_definitions(doc: Document, *, document: str = "draft") -> tuple[Check
                 or _alternative_word(t)):
             continue
         pid, span = areas[t.term]
-        prov = _provision(doc, pid)
-        if prov is None:
+        defining = _provision(doc, pid)
+        if defining is None:
             continue
-        at = _name_span(prov.text, t.term, span)
+        at = _name_span(defining.text, t.term, span)
         out.append(Check(
             kind="unused-definition", document=document, provision=pid,
-            text=prov.text[at[0]:at[1]] if at else t.term,
+            text=defining.text[at[0]:at[1]] if at else t.term,
             message=f'"{t.term}" is defined but never used outside its definition',
             span=at, term=t.term))
     return tuple(out)
@@ -873,7 +885,8 @@ _OTHER_INSTRUMENT_RE = re.compile(
     r"(?:[ \t]*\(\w{1,4}\))*[ \t]*,?[ \t]*(?:of|in|under)[ \t]+(?:the[ \t]+)?(?:\d{4}[ \t]+)?"
     r"(?P<name>[A-Z][\w.&-]*)")
 _INSTRUMENT_AFTER_RE = re.compile(
-    r"[ \t]*,?[ \t]*(?:(?:of|in|under)[ \t]+)?(?:the[ \t]+)?[*_\"“]?(?P<name>(?:[A-Z][\w'’-]*[ \t]+(?:(?:of|on|the|and|for)[ \t]+)*){1,10}"
+    r"[ \t]*,?[ \t]*(?:(?:of|in|under)[ \t]+)?(?:the[ \t]+)?[*_\"“]?"
+    r"(?P<name>(?:[A-Z][\w'’-]*[ \t]+(?:(?:of|on|the|and|for)[ \t]+)*){1,10}"
     r"(?:[A-Z][\w'’-]*))")
 #: Words of the name of another instrument or body cited after a reference.
 _CITED_WORDS = _INSTRUMENT_WORDS | _BODY_WORDS | frozenset("Code Codes Supplement".split())
@@ -985,7 +998,7 @@ def _heading_label(text: str, start: int, end: int) -> bool:
     return not text[line_start:start].strip() and (end >= len(text) or text[end] in ":.\n\u2013\u2014-")
 
 
-def dangling_references(doc: Document, *, document: str = "draft") -> tuple[Check, ...]:
+def dangling_references(doc: Document, *, document: CheckDocument = "draft") -> tuple[Check, ...]:
     """Typed cross-references whose number names no provision of *doc*: what
     :func:`core.xrefs.resolve` cannot find, in a numbering the document has, and that the
     document shows nowhere as a label in any style (so that a numbering read otherwise --
@@ -1039,7 +1052,7 @@ def dangling_references(doc: Document, *, document: str = "draft") -> tuple[Chec
 # --------------------------------------------------------------------------------------
 
 
-def document_checks(doc: Document, *, document: str = "draft", defined: Iterable[str] = (),
+def document_checks(doc: Document, *, document: CheckDocument = "draft", defined: Iterable[str] = (),
                     foreign: Iterable[str] = ()) -> tuple[Check, ...]:
     """The checks one document allows on its own: undefined terms, unused definitions and
     dangling references (*defined* and *foreign* as for :func:`undefined_terms`)."""
