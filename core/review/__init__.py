@@ -47,10 +47,23 @@ from bisect import bisect_right
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, replace
 
-from ..model import Deviation, Document, Edit, Pair, Provision, Review, TermMapping
+from ..model import (
+    Category,
+    ChangeKind,
+    Deviation,
+    DeviationPart,
+    Direction,
+    Document,
+    Edit,
+    Pair,
+    PairStatus,
+    Provision,
+    Review,
+    TermMapping,
+)
 from .align import Alignment, Features, Group, align
 from .checks import review_checks
-from .classify import Change, TermContext, classify_ops
+from .classify import Change, TermContext, WordChange, classify_ops
 from .direction import Judge, direction_rank_key, find_parties, resolve_acting_for
 from .docinfo import DocInfo, build_docinfo
 from .figures import figure_reasons, figures_in
@@ -226,8 +239,8 @@ class _Dev:
 
     order: tuple[float, int, int]
     severity: int
-    category: str
-    change: str
+    category: Category
+    change: ChangeKind
     draft_provision: str | None
     precedent_provision: str | None
     precedent_text: str
@@ -235,13 +248,13 @@ class _Dev:
     reasons: tuple[str, ...]
     precedent_span: tuple[int, int] | None = None
     draft_span: tuple[int, int] | None = None
-    part: str = "text"  # see core.model.Deviation.part
+    part: DeviationPart = "text"
     precedent_text_span: tuple[int, int] | None = None
     draft_text_span: tuple[int, int] | None = None
     #: The signals the severity rules found in a substantive change of words (what its
     #: direction is judged from); () for the other deviations.
     signals: tuple[Signal, ...] = ()
-    direction: str = "unclear"  # see core.model.Deviation.direction
+    direction: Direction = "unclear"
 
 
 def _pieces(text: str, starts: Sequence[int], span: tuple[int, int]) -> list[tuple[int, int]]:
@@ -276,7 +289,7 @@ def _per_provision(ch: Change, ptext: str, pstarts: Sequence[int], dtext: str,
     for k in range(n):
         ps = pp[k] if k < len(pp) else pend
         ds = dp[k] if k < len(dp) else dend
-        kind = "insert" if ps[0] == ps[1] else ("delete" if ds[0] == ds[1] else "replace")
+        kind: WordChange = "insert" if ps[0] == ps[1] else ("delete" if ds[0] == ds[1] else "replace")
         out.append(replace(ch, change=kind, p_span=ps, d_span=ds,
                            signals=ch.signals if k == 0 else ()))
     return out
@@ -439,7 +452,8 @@ class _Builder:
     provision, per renumbered label and per renamed term)."""
 
     def __init__(self, di: DocInfo, pi: DocInfo, dside: _Side, pside: _Side, tm: TermMap,
-                 al: Alignment, rules: SeverityRules, d_types, p_types, clock: _Clock) -> None:
+                 al: Alignment, rules: SeverityRules, d_types: Sequence[str | None],
+                 p_types: Sequence[str | None], clock: _Clock) -> None:
         self.clock = clock
         self.di, self.pi, self.dside, self.pside = di, pi, dside, pside
         self.tm, self.al, self.rules = tm, al, rules
@@ -540,14 +554,13 @@ class _Builder:
                 clause_type=ctype, kind=kind, rules=self.rules, extra=ch.signals, heading=heading)
             sev, reasons, signals = got.severity, got.reasons, got.signals
         else:
-            key = ch.category
+            key: str = ch.category
             if ch.category == "numbering" and "unchanged" in ch.note:
                 key = "numbering_cross_reference"
             sev = category_severity(key, rules=self.rules)
             reasons = (ch.note,) if ch.note else ()
-        if heading:
-            if ch.category != "substantive" and not ch.note.startswith("heading"):
-                reasons = tuple(f"heading: {r}" for r in reasons)
+        if heading and ch.category != "substantive" and not ch.note.startswith("heading"):
+            reasons = tuple(f"heading: {r}" for r in reasons)
         # An insert's precedent span and a delete's draft span are empty at the insertion
         # point; a heading has no span in the text.
         self.devs.append(_Dev(
@@ -622,7 +635,7 @@ class _Builder:
             changes.sort(key=lambda c: rank[c.category])
             if changes:
                 top = changes[0]
-                kind = "insert" if not ph.strip() else ("delete" if not dh.strip() else "replace")
+                kind: WordChange = "insert" if not ph.strip() else ("delete" if not dh.strip() else "replace")
                 if (top.category == "substantive" and kind != "replace"
                         and self.rules.heading_added_or_removed == "formatting"):
                     # a heading only added or removed: formatting (rule file, [headings])
@@ -775,6 +788,7 @@ class _Builder:
                 group_of_draft[d] = g
         for g in al.groups:
             n_changes = self._diff_group(g)
+            status: PairStatus
             if g.kind == "split":
                 status = "split"
             elif g.kind == "merged":
