@@ -39,7 +39,7 @@ import math
 import sys
 from bisect import bisect_left
 from collections import Counter
-from collections.abc import Sequence
+from collections.abc import Iterator, Sequence
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Literal
 
@@ -583,34 +583,62 @@ def align(draft: Sequence[Features], precedent: Sequence[Features]) -> Alignment
     content = _tfidf([f.words for f in draft] + [f.words for f in precedent])
     heads = _tfidf([f.heading for f in draft] + [f.heading for f in precedent])
     cosines = _Cosines(content, heads, n_d)
+    linked = _linked_definitions(draft, precedent)
     cand = cosines.candidates(n_p)
-    # Definitions of the same term always correspond.
-    p_def: dict[tuple[str, str], list[int]] = {}
-    for j, f in enumerate(precedent):
-        if f.term:
-            p_def.setdefault((f.kind, f.term), []).append(j)
-    linked: set[tuple[int, int]] = set()
-    for i, f in enumerate(draft):
-        if f.term:
-            for j in p_def.get((f.kind, f.term), ()):
-                linked.add((i, j))
     cand |= linked
-
     sims: dict[tuple[int, int], float] = {}
     for d, p in cand:
         s = pair_similarity(draft[d], precedent[p], *cosines.get(d, p))
         if s >= ALIGN_MIN or (d, p) in linked:
             sims[(d, p)] = s
-
-    def prior(d: int, p: int) -> float:
-        rd = d / (n_d - 1) if n_d > 1 else 0.0
-        rp = p / (n_p - 1) if n_p > 1 else 0.0
-        return POSITION_WEIGHT * (1.0 - abs(rd - rp))
-
+    prior = _PositionPrior(n_d, n_p)
     base = {e: s + prior(*e) + (2.0 if e in linked else 0.0) for e, s in sims.items()}
     match = _solve(n_d, n_p, base)
     # Second round: the children of paired parents become candidates of each other, and
     # prefer each other.
+    for d, p in _sibling_candidates(draft, precedent, match):
+        if (d, p) not in sims:
+            s = pair_similarity(draft[d], precedent[p], *cosines.get(d, p))
+            if s >= ALIGN_MIN:
+                sims[(d, p)] = s
+                base[(d, p)] = s + prior(d, p)
+    bonus = dict(base)
+    for (d, p) in base:
+        pd, pp = draft[d].parent, precedent[p].parent
+        if pd is not None and pp is not None and match.get(pd) == pp:
+            bonus[(d, p)] += PARENT_BONUS
+    match = _solve(n_d, n_p, bonus)
+    _pair_by_children(draft, precedent, match, sims, cosines)
+    groups = _marked_moves(_splits_and_merges(draft, precedent, match, sims, cosines))
+    return _alignment(groups, n_d, n_p)
+
+
+def _linked_definitions(draft: Sequence[Features], precedent: Sequence[Features]) -> set[tuple[int, int]]:
+    """The (draft, precedent) pairs of definitions of the same term: they always correspond."""
+    p_def: dict[tuple[str, str], list[int]] = {}
+    for j, f in enumerate(precedent):
+        if f.term:
+            p_def.setdefault((f.kind, f.term), []).append(j)
+    return {(i, j) for i, f in enumerate(draft) if f.term for j in p_def.get((f.kind, f.term), ())}
+
+
+@dataclass(frozen=True, slots=True)
+class _PositionPrior:
+    """The bonus of a pair for standing at the same relative place in both documents."""
+
+    n_d: int
+    n_p: int
+
+    def __call__(self, d: int, p: int) -> float:
+        rd = d / (self.n_d - 1) if self.n_d > 1 else 0.0
+        rp = p / (self.n_p - 1) if self.n_p > 1 else 0.0
+        return POSITION_WEIGHT * (1.0 - abs(rd - rp))
+
+
+def _sibling_candidates(draft: Sequence[Features], precedent: Sequence[Features],
+                        match: dict[int, int]) -> Iterator[tuple[int, int]]:
+    """(draft, precedent) pairs of children of paired parents at most SIBLING_WINDOW places
+    apart among their siblings."""
     p_children: dict[int, list[int]] = {}
     for j, f in enumerate(precedent):
         if f.parent is not None:
@@ -625,29 +653,22 @@ def align(draft: Sequence[Features], precedent: Sequence[Features]) -> Alignment
         q = match.get(f.parent) if f.parent is not None else None
         if q is None:
             continue
-        kids = p_children.get(q, [])
         k = d_place[d]
-        for p in kids[max(0, k - SIBLING_WINDOW):k + SIBLING_WINDOW + 1]:
-            if (d, p) not in sims:
-                s = pair_similarity(draft[d], precedent[p], *cosines.get(d, p))
-                if s >= ALIGN_MIN:
-                    sims[(d, p)] = s
-                    base[(d, p)] = s + prior(d, p)
-    bonus = dict(base)
-    for (d, p) in base:
-        pd, pp = draft[d].parent, precedent[p].parent
-        if pd is not None and pp is not None and match.get(pd) == pp:
-            bonus[(d, p)] += PARENT_BONUS
-    match = _solve(n_d, n_p, bonus)
-    _pair_by_children(draft, precedent, match, sims, cosines)
+        for p in p_children.get(q, [])[max(0, k - SIBLING_WINDOW):k + SIBLING_WINDOW + 1]:
+            yield d, p
 
-    groups = _splits_and_merges(draft, precedent, match, sims, cosines)
-    # Moved: groups outside a longest increasing subsequence of precedent positions.
-    groups.sort(key=lambda g: g.drafts[0])
+
+def _marked_moves(groups: list[Group]) -> list[Group]:
+    """*groups* in draft order, those outside a longest increasing subsequence of precedent
+    positions marked moved."""
+    groups = sorted(groups, key=lambda g: g.drafts[0])
     keep = set(longest_increasing_subsequence([g.precedents[0] for g in groups]))
-    groups = [g if i in keep else Group(g.drafts, g.precedents, g.kind, g.similarity,
-                                        g.pair_similarities, True)
-              for i, g in enumerate(groups)]
+    return [g if i in keep else Group(g.drafts, g.precedents, g.kind, g.similarity,
+                                      g.pair_similarities, True)
+            for i, g in enumerate(groups)]
+
+
+def _alignment(groups: list[Group], n_d: int, n_p: int) -> Alignment:
     d2p: dict[int, int] = {}
     p2d: dict[int, int] = {}
     for g in groups:
