@@ -50,7 +50,7 @@ from __future__ import annotations
 import functools
 import json
 import re
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from pathlib import Path
 from typing import Any, Literal
 
@@ -296,30 +296,27 @@ def pair_from_dict(d: Mapping[str, Any]) -> Pair:
                 similarity=d["similarity"], frequency=frequency_from_dict(d.get("frequency")))
 
 
+#: The fields of a deviation and of a check written as they are, in the objects' order.
+_DEVIATION_FIELDS = ("id", "rank", "severity", "category", "change", "draft_provision",
+                     "precedent_provision", "precedent_text", "draft_text")
+_CHECK_FIELDS = ("kind", "document", "provision", "text", "message")
+
+
+def _fields(obj: object, names: Sequence[str]) -> JsonObject:
+    return {name: getattr(obj, name) for name in names}
+
+
 def deviation_to_dict(v: Deviation) -> JsonObject:
-    return {
-        "id": v.id,
-        "rank": v.rank,
-        "severity": v.severity,
-        "category": v.category,
-        "change": v.change,
-        "draft_provision": v.draft_provision,
-        "precedent_provision": v.precedent_provision,
-        "precedent_text": v.precedent_text,
-        "draft_text": v.draft_text,
-        "reasons": list(v.reasons),
-        "frequency": frequency_to_dict(v.frequency),
-        "precedent_text_span": _span_to_list(v.precedent_text_span),
-        "draft_text_span": _span_to_list(v.draft_text_span),
-        "direction": v.direction,
-    }
+    return {**_fields(v, _DEVIATION_FIELDS),
+            "reasons": list(v.reasons),
+            "frequency": frequency_to_dict(v.frequency),
+            "precedent_text_span": _span_to_list(v.precedent_text_span),
+            "draft_text_span": _span_to_list(v.draft_text_span),
+            "direction": v.direction}
 
 
 def deviation_from_dict(d: Mapping[str, Any]) -> Deviation:
-    return Deviation(id=d["id"], rank=d["rank"], severity=d["severity"], category=d["category"],
-                     change=d["change"], draft_provision=d["draft_provision"],
-                     precedent_provision=d["precedent_provision"],
-                     precedent_text=d["precedent_text"], draft_text=d["draft_text"],
+    return Deviation(**{name: d[name] for name in _DEVIATION_FIELDS},
                      reasons=tuple(d["reasons"]), frequency=frequency_from_dict(d["frequency"]),
                      precedent_text_span=_span_from(d.get("precedent_text_span")),
                      draft_text_span=_span_from(d.get("draft_text_span")),
@@ -328,23 +325,14 @@ def deviation_from_dict(d: Mapping[str, Any]) -> Deviation:
 
 def check_to_dict(c: Check) -> JsonObject:
     """The JSON object of one drafting check."""
-    return {
-        "kind": c.kind,
-        "document": c.document,
-        "provision": c.provision,
-        "text": c.text,
-        "message": c.message,
-        "span": _span_to_list(c.span),
-        "part": c.part,
-        "term": c.term,
-        "provisions": list(c.provisions),
-    }
+    return {**_fields(c, _CHECK_FIELDS), "span": _span_to_list(c.span), "part": c.part,
+            "term": c.term, "provisions": list(c.provisions)}
 
 
 def check_from_dict(d: Mapping[str, Any]) -> Check:
-    return Check(kind=d["kind"], document=d["document"], provision=d["provision"], text=d["text"],
-                 message=d["message"], span=_span_from(d.get("span")), part=d.get("part", "text"),
-                 term=d.get("term"), provisions=tuple(d.get("provisions", ())))
+    return Check(**{name: d[name] for name in _CHECK_FIELDS}, span=_span_from(d.get("span")),
+                 part=d.get("part", "text"), term=d.get("term"),
+                 provisions=tuple(d.get("provisions", ())))
 
 
 def review_to_dict(review: Review) -> JsonObject:

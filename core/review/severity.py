@@ -29,7 +29,7 @@ from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
-from typing import Protocol, TypeVar
+from typing import Any, Protocol, TypeVar
 
 from ..errors import CounterdraftError
 from ..model import Document, Provision
@@ -140,6 +140,21 @@ def _number(path: str, where: str, value: object, lo: float, hi: float) -> float
     return float(value)
 
 
+def _scores(path: str, data: Mapping[str, Any], table: str, required: Sequence[str],
+            optional: Mapping[str, float]) -> dict[str, float]:
+    """The points 0..100 of table *table*: every key of *required*, and those of *optional*
+    with their defaults when the file leaves them out."""
+    values = data[table]
+    scores: dict[str, float] = {}
+    for k in required:
+        if k not in values:
+            raise _fail(path, f"missing {table}.{k}")
+        scores[k] = _number(path, f"{table}.{k}", values[k], 0, 100)
+    for k, default in optional.items():
+        scores[k] = _number(path, f"{table}.{k}", values.get(k, default), 0, 100)
+    return scores
+
+
 def load_rules(path: str | Path | None = None) -> SeverityRules:
     """Read and check a severity rule file (default: ``resources/severity.toml``)."""
     p = Path(path) if path is not None else DEFAULT_RULES_PATH
@@ -158,20 +173,8 @@ def load_rules(path: str | Path | None = None) -> SeverityRules:
                     "clause_type_keywords", "obligation", "negation", "qualifiers"):
         if not isinstance(data.get(section), dict):
             raise _fail(sp, f"missing table [{section}]")
-    signals = {}
-    for k in _SIGNALS:
-        if k not in data["signals"]:
-            raise _fail(sp, f"missing signals.{k}")
-        signals[k] = _number(sp, f"signals.{k}", data["signals"][k], 0, 100)
-    for k, default in _OPTIONAL_SIGNALS.items():
-        signals[k] = _number(sp, f"signals.{k}", data["signals"].get(k, default), 0, 100)
-    categories = {}
-    for k in _CATEGORY_KEYS:
-        if k not in data["categories"]:
-            raise _fail(sp, f"missing categories.{k}")
-        categories[k] = _number(sp, f"categories.{k}", data["categories"][k], 0, 100)
-    for k, default in _OPTIONAL_CATEGORY_KEYS.items():
-        categories[k] = _number(sp, f"categories.{k}", data["categories"].get(k, default), 0, 100)
+    signals = _scores(sp, data, "signals", _SIGNALS, _OPTIONAL_SIGNALS)
+    categories = _scores(sp, data, "categories", _CATEGORY_KEYS, _OPTIONAL_CATEGORY_KEYS)
     weights = {k: _number(sp, f"weights.{k}", v, 0, 10) for k, v in data["weights"].items()}
     kind_weights = {k: _number(sp, f"kind_weights.{k}", v, 0, 10)
                     for k, v in data["kind_weights"].items()}

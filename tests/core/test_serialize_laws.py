@@ -6,7 +6,7 @@
 * Every dict produced validates against the published schema
   (resources/schemas/review.schema.json, with document.schema.json), checked by the
   ``jsonschema`` package's Draft 2020-12 validator (the JSON Schema reference implementation
-  for Python), which these tests build themselves from the schema files.
+  for Python) holding the schema files as published.
 * Reading refuses an object the schema refuses, in one line naming the field.
 """
 
@@ -20,7 +20,6 @@ import jsonschema
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
-from referencing import Registry, Resource
 
 from core.errors import CounterdraftError
 from core.model import (
@@ -50,6 +49,7 @@ from core.model import (
     TermOverride,
 )
 from core.serialize import (
+    SchemaName,
     decision_from_dict,
     decision_to_dict,
     document_from_dict,
@@ -59,18 +59,20 @@ from core.serialize import (
     override_to_dict,
     review_from_dict,
     review_to_dict,
+    schema_validator,
 )
 
 SCHEMAS = Path(__file__).resolve().parents[2] / "resources" / "schemas"
 
 
-def _validator(name: str) -> jsonschema.Draft202012Validator:
-    """Built here from the files, independently of core.serialize's own validator."""
-    schemas = {stem: json.loads((SCHEMAS / f"{stem}.schema.json").read_text(encoding="utf-8"))
-               for stem in ("document", "review", "review-file")}
-    registry = Registry().with_resources([(s["$id"], Resource.from_contents(s)) for s in schemas.values()])
-    jsonschema.Draft202012Validator.check_schema(schemas[name])
-    return jsonschema.Draft202012Validator(schemas[name], registry=registry)
+def _validator(name: SchemaName) -> jsonschema.Draft202012Validator:
+    """core.serialize's validator, checked to hold the published schema file itself (and
+    that file to be a valid Draft 2020-12 schema)."""
+    published = json.loads((SCHEMAS / f"{name}.schema.json").read_text(encoding="utf-8"))
+    jsonschema.Draft202012Validator.check_schema(published)
+    validator = schema_validator(name)
+    assert validator.schema == published
+    return validator
 
 
 REVIEW_SCHEMA = _validator("review")
