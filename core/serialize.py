@@ -50,9 +50,9 @@ from __future__ import annotations
 import functools
 import json
 import re
-from collections.abc import Mapping, Sequence
+from collections.abc import Iterator, Mapping, Sequence
 from pathlib import Path
-from typing import Any, Literal
+from typing import Any, Literal, Protocol, cast
 
 from .errors import CounterdraftError
 from .model import (
@@ -77,6 +77,7 @@ __all__ = [
     "REVIEW_SCHEMA_ID",
     "JsonObject",
     "SchemaName",
+    "SchemaValidator",
     "check_from_dict",
     "check_to_dict",
     "decision_from_dict",
@@ -124,8 +125,18 @@ _PROBLEM_QUOTE_CHARS = 120
 # --------------------------------------------------------------------------------------
 
 
+class SchemaValidator(Protocol):
+    """What this module uses of a ``jsonschema`` validator (the package ships no types)."""
+
+    schema: Mapping[str, Any]
+
+    def iter_errors(self, instance: object) -> Iterator[Any]: ...
+    def is_valid(self, instance: object) -> bool: ...
+    def validate(self, instance: object) -> None: ...
+
+
 @functools.cache
-def schema_validator(name: SchemaName) -> Any:  # a jsonschema validator (the package has no stubs)
+def schema_validator(name: SchemaName) -> SchemaValidator:
     """The Draft 2020-12 validator of the published schema *name*, with the schemas it
     refers to (all of ``resources/schemas`` that describe the model)."""
     import jsonschema
@@ -135,7 +146,8 @@ def schema_validator(name: SchemaName) -> Any:  # a jsonschema validator (the pa
                for stem in _SCHEMA_FILES}
     registry = Registry().with_resources(
         [(s["$id"], Resource.from_contents(s)) for s in schemas.values()])
-    return jsonschema.Draft202012Validator(schemas[name], registry=registry)
+    # cast: jsonschema's validators have no type information; this one has the protocol's methods
+    return cast(SchemaValidator, jsonschema.Draft202012Validator(schemas[name], registry=registry))
 
 
 def schema_problem(data: object, name: SchemaName) -> str | None:

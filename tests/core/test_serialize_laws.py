@@ -50,6 +50,7 @@ from core.model import (
 )
 from core.serialize import (
     SchemaName,
+    SchemaValidator,
     decision_from_dict,
     decision_to_dict,
     document_from_dict,
@@ -65,7 +66,7 @@ from core.serialize import (
 SCHEMAS = Path(__file__).resolve().parents[2] / "resources" / "schemas"
 
 
-def _validator(name: SchemaName) -> jsonschema.Draft202012Validator:
+def _validator(name: SchemaName) -> SchemaValidator:
     """core.serialize's validator, checked to hold the published schema file itself (and
     that file to be a valid Draft 2020-12 schema)."""
     published = json.loads((SCHEMAS / f"{name}.schema.json").read_text(encoding="utf-8"))
