@@ -56,40 +56,110 @@ never recompute them)
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING, Literal
+from typing import Any, Literal, get_args
 
-if TYPE_CHECKING:
-    from .review.checks import Check
+from .errors import CounterdraftError
 
 __all__ = [
-    "Block",
-    "Deviation",
-    "Edit",
-    "Frequency",
-    "Pair",
     "CATEGORIES",
     "CHANGES",
+    "CHECK_DOCUMENTS",
+    "CHECK_KINDS",
+    "CHECK_PARTS",
+    "DECISION_ACTIONS",
     "DEVIATION_PARTS",
     "DIRECTIONS",
-    "ClosestProvision",
+    "EDIT_TAGS",
+    "EVIDENCE_KINDS",
+    "OVERRIDE_ACTIONS",
     "PAIR_STATUSES",
-    "Review",
-    "Segment",
-    "TermMapping",
+    "PROVISION_KINDS",
+    "STANCES",
+    "Block",
+    "Category",
+    "ChangeKind",
+    "Check",
+    "CheckDocument",
+    "CheckKind",
+    "CheckPart",
+    "ClosestProvision",
+    "Decision",
+    "DecisionAction",
     "DefinedTerm",
+    "Deviation",
+    "DeviationPart",
+    "Direction",
     "Document",
+    "Edit",
+    "EditTag",
+    "Evidence",
+    "Frequency",
+    "OverrideAction",
+    "Pair",
+    "PairStatus",
     "Provision",
     "ProvisionKind",
-    "PROVISION_KINDS",
+    "Review",
+    "Segment",
+    "Stance",
+    "Term",
+    "TermMapping",
+    "TermOverride",
 ]
+
+# --------------------------------------------------------------------------------------
+# The closed sets: each a Literal type, and its values in order as a tuple derived from it
+# (typing.get_args), so that the two cannot drift apart.
+# --------------------------------------------------------------------------------------
 
 ProvisionKind = Literal[
     "title", "parties", "recital", "definition", "clause", "signature", "schedule", "other"
 ]
-PROVISION_KINDS: tuple[str, ...] = (
-    "title", "parties", "recital", "definition", "clause", "signature", "schedule", "other",
-)
+PROVISION_KINDS: tuple[ProvisionKind, ...] = get_args(ProvisionKind)
+#: How a provision pairs with the other document's (core.review.align).
+PairStatus = Literal["same", "changed", "moved", "added", "removed", "split", "merged"]
+PAIR_STATUSES: tuple[PairStatus, ...] = get_args(PairStatus)
+#: What kind of change a deviation is (core.review.classify).
+Category = Literal["substantive", "term", "formatting", "numbering", "punctuation", "completion"]
+CATEGORIES: tuple[Category, ...] = get_args(Category)
+ChangeKind = Literal["insert", "delete", "replace", "move", "add-provision", "remove-provision"]
+CHANGES: tuple[ChangeKind, ...] = get_args(ChangeKind)
+#: Which part of the provision a deviation concerns (see the module's invariants).
+DeviationPart = Literal["text", "heading", "provision"]
+DEVIATION_PARTS: tuple[DeviationPart, ...] = get_args(DeviationPart)
+#: Whose side a deviation is on, for the party the review acts for (core.review.direction):
+#: against it, for it, for neither (no change of meaning, or a clause binding each party
+#: alike), or not to be told from the wording.
+Direction = Literal["adverse", "favourable", "neutral", "unclear"]
+DIRECTIONS: tuple[Direction, ...] = get_args(Direction)
+#: The hunk tags of a word diff, as difflib's opcodes name them.
+EditTag = Literal["equal", "insert", "delete", "replace"]
+EDIT_TAGS: tuple[EditTag, ...] = get_args(EditTag)
+#: What a term mapping rests on (core.review.termmap).
+Evidence = Literal["definition", "substitution", "embedding", "user"]
+EVIDENCE_KINDS: tuple[Evidence, ...] = get_args(Evidence)
+#: The five drafting checks (core.review.checks), the document the words are in and the
+#: part of the provision they are in.
+CheckKind = Literal["undefined-term", "unused-definition", "stale-term", "dangling-reference",
+                    "definition-changed"]
+CHECK_KINDS: tuple[CheckKind, ...] = get_args(CheckKind)
+CheckDocument = Literal["draft", "precedent"]
+CHECK_DOCUMENTS: tuple[CheckDocument, ...] = get_args(CheckDocument)
+CheckPart = Literal["text", "heading"]
+CHECK_PARTS: tuple[CheckPart, ...] = get_args(CheckPart)
+#: The reviewer's decision on a deviation (core.decisions): keep the draft's words, restore
+#: the precedent's, or write their own.
+DecisionAction = Literal["accept", "revert", "amend"]
+DECISION_ACTIONS: tuple[DecisionAction, ...] = get_args(DecisionAction)
+#: The reviewer's word on a term mapping (:class:`TermOverride`).
+OverrideAction = Literal["confirm", "reject", "add"]
+OVERRIDE_ACTIONS: tuple[OverrideAction, ...] = get_args(OverrideAction)
+#: The firm's stance on a wording of its precedent set (core.library): house wording, can
+#: live with, last concession, refuse.
+Stance = Literal["house wording", "can live with", "last concession", "refuse"]
+STANCES: tuple[Stance, ...] = get_args(Stance)
 
 
 @dataclass(frozen=True, slots=True)
@@ -139,7 +209,7 @@ class Provision:
     """One unit of the agreement: a clause at any level, a definition, a recital, ..."""
 
     id: str
-    kind: str  # one of PROVISION_KINDS
+    kind: ProvisionKind
     number: str | None  # rendered label without trailing "." or ":"; e.g. "7.2", "(a)"
     heading: str | None
     level: int  # depth in the numbering hierarchy; 1 = top level, 0 = unnumbered
@@ -175,6 +245,10 @@ class DefinedTerm:
         return (self.term, *self.aliases)
 
 
+#: The shorter name of a defined term in the model's vocabulary.
+Term = DefinedTerm
+
+
 @dataclass(frozen=True, slots=True)
 class Document:
     source: str  # file name as given to the reader (the JSON shows its base name)
@@ -196,16 +270,6 @@ class Document:
 # The review: what the engine (core.review) produces from a draft and a precedent.
 # --------------------------------------------------------------------------------------
 
-PAIR_STATUSES: tuple[str, ...] = ("same", "changed", "moved", "added", "removed", "split", "merged")
-CATEGORIES: tuple[str, ...] = ("substantive", "term", "formatting", "numbering", "punctuation",
-                               "completion")
-CHANGES: tuple[str, ...] = ("insert", "delete", "replace", "move", "add-provision", "remove-provision")
-DEVIATION_PARTS: tuple[str, ...] = ("text", "heading", "provision")
-#: Whose side a deviation is on, for the party the review acts for (core.review.direction):
-#: against it, for it, for neither (no change of meaning, or a clause binding each party
-#: alike), or not to be told from the wording.
-DIRECTIONS: tuple[str, ...] = ("adverse", "favourable", "neutral", "unclear")
-
 
 @dataclass(frozen=True, slots=True)
 class TermMapping:
@@ -214,7 +278,7 @@ class TermMapping:
     draft: str
     precedent: str
     confidence: float  # 0..1
-    evidence: tuple[str, ...]  # subset of ("definition", "substitution", "embedding", "user")
+    evidence: tuple[Evidence, ...]
     occurrences: int  # uses of the draft term in the draft, plural and possessive included
     #: Stale uses: places where the draft still writes the precedent's name although it
     #: otherwise uses its own (kept visible for a drafting check; the diff reads them as the
@@ -246,14 +310,14 @@ class Frequency:
     containing: int | None = None
     #: The firm's stance on the matching variant (core.library.index.POSITIONS): house
     #: wording, can live with, last concession, refuse; None when unlabelled.
-    position: str | None = None
+    position: Stance | None = None
 
 
 @dataclass(frozen=True, slots=True)
 class Pair:
     draft: str | None  # provision id in the draft, or None (removed)
     precedent: str | None  # provision id in the precedent, or None (added)
-    status: str  # one of PAIR_STATUSES
+    status: PairStatus
     similarity: float
     frequency: Frequency | None = None
     #: The engine's word diff of the two provision texts (see the module's invariants).
@@ -265,7 +329,7 @@ class Edit:
     """One hunk of a pair's word diff, as character offsets into the two provision texts,
     in the spirit of difflib's opcodes: ``precedent.text[p1:p2]`` became ``draft.text[d1:d2]``."""
 
-    tag: str  # "equal" | "insert" | "delete" | "replace"
+    tag: EditTag
     p1: int
     p2: int
     d1: int
@@ -283,8 +347,8 @@ class Deviation:
     id: str  # "v1", "v2", ... stable for the same inputs
     rank: int  # 1..N, by descending severity, ties by draft order
     severity: int  # 0..100
-    category: str  # one of CATEGORIES
-    change: str  # one of CHANGES
+    category: Category
+    change: ChangeKind
     draft_provision: str | None
     precedent_provision: str | None
     precedent_text: str  # the changed words with a little context, verbatim from the precedent
@@ -297,8 +361,8 @@ class Deviation:
     #: None for a heading or a whole provision.
     precedent_span: tuple[int, int] | None = None
     draft_span: tuple[int, int] | None = None
-    #: Which part of the provision the deviation concerns: one of DEVIATION_PARTS.
-    part: str = "text"
+    #: Which part of the provision the deviation concerns.
+    part: DeviationPart = "text"
     #: Character offsets of ``precedent_text`` and ``draft_text`` themselves (the words shown,
     #: context included) in the provision's text (``part == "text"``) or heading (``part ==
     #: "heading"``); None for a whole provision or a review built without them.  The two
@@ -308,9 +372,31 @@ class Deviation:
     precedent_text_span: tuple[int, int] | None = None
     draft_text_span: tuple[int, int] | None = None
     #: Whose side the change is on, for the party the review acts for
-    #: (``Review.acting_for``): one of DIRECTIONS; "unclear" for a review without one
+    #: (``Review.acting_for``); "unclear" for a review without one
     #: (see :mod:`core.review.direction`).
-    direction: str = "unclear"
+    direction: Direction = "unclear"
+
+
+@dataclass(frozen=True, slots=True)
+class Check:
+    """One drafting problem (:mod:`core.review.checks`).
+
+    ``text`` is the words concerned, verbatim: ``provision.text[a:b]`` (or
+    ``provision.heading[a:b]`` when ``part == "heading"``) with ``span == (a, b)``; None
+    span when the check concerns no particular words.  ``term`` names the defined term a
+    term check concerns; ``provisions`` lists the other provisions concerned, in document
+    order: where an undefined term is also used, the provisions using a changed
+    definition's term."""
+
+    kind: CheckKind
+    document: CheckDocument
+    provision: str | None
+    text: str
+    message: str
+    span: tuple[int, int] | None = None
+    part: CheckPart = "text"
+    term: str | None = None
+    provisions: tuple[str, ...] = field(default=())
 
 
 @dataclass(frozen=True, slots=True)
@@ -328,3 +414,41 @@ class Review:
     #: The drafting checks of the draft (:mod:`core.review.checks`): undefined terms, unused
     #: definitions, stale names of renamed terms, dangling references, changed definitions.
     checks: tuple[Check, ...] = ()
+
+
+# --------------------------------------------------------------------------------------
+# The reviewer's input: term overrides and decisions.
+# --------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True, slots=True)
+class TermOverride:
+    """A reviewer's decision: ``confirm`` or ``add`` the mapping draft -> precedent, or
+    ``reject`` it (``precedent=None`` rejects every mapping of the draft term)."""
+
+    draft: str
+    precedent: str | None = None
+    action: OverrideAction = "confirm"
+
+    def __post_init__(self) -> None:
+        if self.action not in OVERRIDE_ACTIONS:
+            raise CounterdraftError(f"term override: unknown action {self.action!r}")
+        if not self.draft.strip():
+            raise CounterdraftError("term override: empty draft term")
+        if self.action != "reject" and not (self.precedent or "").strip():
+            raise CounterdraftError(f"term override: {self.action} needs a precedent term")
+
+
+@dataclass(frozen=True, slots=True)
+class Decision:
+    """What the reviewer decided about one deviation (:mod:`core.decisions`).
+
+    ``text`` is the reviewer's own wording (amend only); ``match`` identifies the deviation
+    independently of its id (``core.decisions.match_key``), so the decision survives a re-run.
+    """
+
+    deviation: str
+    action: DecisionAction
+    text: str | None = None
+    note: str | None = None
+    match: Mapping[str, Any] = field(default_factory=dict)

@@ -50,7 +50,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 from .lazyre import lazy_compile
-from .model import Block, Provision, Segment
+from .model import Block, Provision, ProvisionKind, Segment
 
 __all__ = [
     "Label",
@@ -681,7 +681,7 @@ def _body_like(block: Block) -> bool:
 
 @dataclass(slots=True)
 class _Draft:
-    kind: str
+    kind: ProvisionKind
     number: str | None
     heading: str | None
     level: int
@@ -738,7 +738,7 @@ class _Splitter:
         if start < end:
             draft.segments.append(Segment(block.index, start, end))
 
-    def _new(self, kind: str, number: str | None, heading: str | None, level: int,
+    def _new(self, kind: ProvisionKind, number: str | None, heading: str | None, level: int,
              parent: int | None, term: str | None = None) -> int:
         self.after_table = None
         self.drafts.append(_Draft(kind, number, heading, level, parent, term))
@@ -813,7 +813,8 @@ class _Splitter:
         j = next((i for i in range(len(self.stack) - 1, -1, -1) if self.stack[i].list_id == lid), None)
         if j is None:
             return None
-        if self.stack[j].list_level is not None and self.stack[j].list_level < lvl:  # type: ignore[operator]
+        open_level = self.stack[j].list_level
+        if open_level is not None and open_level < lvl:
             # A typed list label opened after the list's item ("(A) You may:") introduces
             # the deeper items that follow: they go under it, as they would in a typed list.
             k = next((i for i in range(len(self.stack) - 1, j, -1)
@@ -827,10 +828,10 @@ class _Splitter:
                   if o.list_id == lid and o.list_level is not None and o.list_level >= lvl), j)
         sibling = next((o for o in reversed(self.stack[m:]) if o.list_id == lid and o.list_level == lvl), None)
         del self.stack[m:]
-        parent = self.stack[-1] if self.stack else None
+        enclosing = self.stack[-1] if self.stack else None
         if sibling is not None:
-            return parent, sibling.level  # the next item of a list keeps its item's level
-        return parent, (parent.base if parent else 0) + 1
+            return enclosing, sibling.level  # the next item of a list keeps its item's level
+        return enclosing, (enclosing.base if enclosing else 0) + 1
 
     def _resume(self, comps: tuple[int, ...], rank: int) -> tuple[_Open, int] | None:
         """Reopen the clause a plain heading closed when this number continues it."""
@@ -904,7 +905,7 @@ class _Splitter:
             pos += 1
         rest = text[pos:].rstrip()
 
-        kind = "clause"
+        kind: ProvisionKind = "clause"
         if label.family == "sched":
             kind = "schedule"
             self.phase = "schedule"
@@ -972,7 +973,7 @@ class _Splitter:
             self._add_segment(self.drafts[-1], block, 0)
             return
         family = "heading"
-        kind = "other"
+        kind: ProvisionKind = "other"
         if self.phase == "front" and _PARTIES_HEADING_RE.match(heading):
             kind = family = "parties"
         elif self.phase == "front" and _RECITALS_HEADING_RE.match(heading):

@@ -57,14 +57,14 @@ from __future__ import annotations
 import bisect
 import functools
 import re
-from collections.abc import Iterable, Mapping, Sequence
-from dataclasses import dataclass
+from collections.abc import Callable, Iterable, Mapping, Sequence
+from dataclasses import dataclass, field
 
 from .lazyre import lazy_compile
 from .model import Block, DefinedTerm, Provision
 from .structure import clean_term
 
-__all__ = ["MAX_INLINE_DEFINITION_CHARS", "REGEX_FORMS_MAX", "char_trie", "find_terms", "term_forms",
+__all__ = ["MAX_INLINE_DEFINITION_CHARS", "REGEX_FORMS_MAX", "CharTrie", "char_trie", "find_terms", "term_forms",
            "term_owners", "term_pattern", "terms_pattern", "walk_forms"]
 
 #: Longest definition text kept for an inline definition (characters): one sentence of a
@@ -128,7 +128,7 @@ _LIST_SEP = r"\s*(?:,\s*|/\s*)?(?i:(?:and/or|and|or)\s+)?(?i:the\s+)?"
 #: and "our" refers to ...; amazon-redshift-jdbc's four "are defined" terms); ten leave a
 #: margin and keep a run of quoted titles from reading as one list.
 MAX_LIST_NAMES = 10
-_NAME_LIST = _QN + r"(?:" + _LIST_SEP + _QN + r"){0,%d}" % (MAX_LIST_NAMES - 1)
+_NAME_LIST = _QN + r"(?:" + _LIST_SEP + _QN + r"){0," + str(MAX_LIST_NAMES - 1) + "}"
 
 _VERBS = (
     r"(?:shall\s+be\s+deemed\s+to\s+mean|shall\s+mean|will\s+mean|shall\s+have\s+the\s+meanings?|"
@@ -148,7 +148,7 @@ _SUBJECT_RE = lazy_compile(
     r"(?P<list>" + _NAME_LIST + r")"
     + r"(?P<alias>\s*\([^()\n]{0,80}\))?"
     + r"(?P<between>(?:,?\s+(?!(?:means|mean|shall|will|has|have|refers|refer|includes|include)\b)"
-    + r"[\w’'-]+){0,%d}?)" % MAX_WORDS_BEFORE_VERB
+    + r"[\w’'-]+){0," + str(MAX_WORDS_BEFORE_VERB) + "}?)"
     + r"\s*[,:]?\s+(?P<verb>(?i:" + _VERBS + r"))"  # verbs in capitals too (a notice in capitals)
 )
 #: Words that may precede a quoted subject of "includes" in its clause: "the term", "To",
@@ -214,8 +214,8 @@ _SENTENCE_SPLIT_RE = lazy_compile(r"(?<=[.;])\s+(?=[A-Z\"“‘(])|\n\s*")
 
 _CAP_WORD = r"[A-Z][\w’'&-]*"
 _SMALL = r"(?:of|and|or|for|in|the|to|on|by|with|a|an|under)"
-_TITLE_PHRASE = _CAP_WORD + r"(?:[ \t]+(?:" + _SMALL + r"[ \t]+){0,2}" + _CAP_WORD + r"){0,%d}" % (
-    MAX_UNQUOTED_TERM_WORDS - 1)
+_TITLE_PHRASE = (_CAP_WORD + r"(?:[ \t]+(?:" + _SMALL + r"[ \t]+){0,2}" + _CAP_WORD + r"){0,"
+                 + str(MAX_UNQUOTED_TERM_WORDS - 1) + "}")
 #: A label typed at the start of a line the structure reader left in the text: "1.5.", "(a)".
 _LINE_LABEL = r"(?:(?:\d{1,3}(?:\.\d{1,3})*\.?|\(?[a-zA-Z]{1,4}[.)]|\([a-z0-9]{1,4}\))\s+)?"
 _UNQUOTED_VERBS = (
@@ -508,7 +508,7 @@ def _places(provisions: Sequence[Provision]) -> dict[int, _Place]:
 def _table_cell_term(cell: str) -> str | None:
     cell = cell.strip()
     m = _QUOTED_RE.fullmatch(cell.rstrip(":"))
-    raw = _body(m, "q") if m else cell.rstrip(":–—").strip()
+    raw = (_body(m, "q") or "") if m else cell.rstrip(":–—").strip()
     words = raw.split()
     if not words or len(words) > MAX_UNQUOTED_TERM_WORDS or raw.endswith((".", ";")):
         return None
@@ -710,17 +710,28 @@ def terms_pattern(terms: Sequence[str], *, aliases: Mapping[str, str] | None = N
 #: trie (:func:`walk_forms`) costs about as much per character of text as the pattern
 #: costs per 10, and nothing per form.  An agreement's few hundred forms stay with the pattern.
 REGEX_FORMS_MAX = 2000
-_TERMINAL = "\x00"
 
 
-def char_trie(forms: Iterable[str]) -> dict:
-    """A character trie of *forms*; a terminal node holds its form under :data:`_TERMINAL`."""
-    root: dict = {}
+@dataclass(slots=True)
+class CharTrie:
+    """A node of a character trie: the nodes after each next character, and the form that
+    ends here (None where none does)."""
+
+    children: dict[str, CharTrie] = field(default_factory=dict)
+    form: str | None = None
+
+
+def char_trie(forms: Iterable[str]) -> CharTrie:
+    """A character trie of *forms*."""
+    root = CharTrie()
     for f in forms:
         node = root
         for ch in f:
-            node = node.setdefault(ch, {})
-        node[_TERMINAL] = f
+            nxt = node.children.get(ch)
+            if nxt is None:
+                nxt = node.children[ch] = CharTrie()
+            node = nxt
+        node.form = f
     return root
 
 
@@ -742,7 +753,7 @@ def _ending(text: str, j: int) -> tuple[int, str | None] | None:
     return j, None
 
 
-def walk_forms(text: str, trie: dict, *, word_start: bool = False) -> Iterable[tuple[int, int, str, str | None]]:
+def walk_forms(text: str, trie: CharTrie, *, word_start: bool = False) -> Iterable[tuple[int, int, str, str | None]]:
     """(start, end, form, possessive) of the uses in *text*, as ``pattern.finditer`` finds
     them for a pattern of the forms followed by a possessive ending: leftmost, longest form
     first, a space of a form matching any run of white space, non-overlapping; with
@@ -753,24 +764,25 @@ def walk_forms(text: str, trie: dict, *, word_start: bool = False) -> Iterable[t
         if word_start and i and (_word_char(text[i - 1]) or text[i - 1] == "-"):
             i += 1
             continue
-        node = trie.get(text[i])
+        node = trie.children.get(text[i])
         best = None
         j = i
         while node is not None:
             j += 1
-            if _TERMINAL in node:
+            if node.form is not None:
                 got = _ending(text, j)
                 if got is not None:
-                    best = (i, got[0], node[_TERMINAL], got[1])
+                    best = (i, got[0], node.form, got[1])
             if j >= n:
                 break
             ch = text[j]
-            if ch.isspace() and " " in node:
-                node = node[" "]
+            space = node.children.get(" ") if ch.isspace() else None
+            if space is not None:
+                node = space
                 while j + 1 < n and text[j + 1].isspace():
                     j += 1
             else:
-                node = node.get(ch)
+                node = node.children.get(ch)
         if best is None:
             i += 1
             continue
@@ -778,7 +790,7 @@ def walk_forms(text: str, trie: dict, *, word_start: bool = False) -> Iterable[t
         i = best[1]
 
 
-def _use_finder(owner: Mapping[str, str]):
+def _use_finder(owner: Mapping[str, str]) -> Callable[[str], list[str]]:
     """A function giving the forms (white space collapsed, possessive ending dropped) of
     the uses of *owner*'s names in a text: a compiled pattern for an agreement's few names,
     the character-trie walk for many (:data:`REGEX_FORMS_MAX`)."""
@@ -847,14 +859,14 @@ def _provision_definitions(p: Provision, c: _Collector, *, in_definitions: bool)
     inline = _inline_definitions(text, in_definitions=in_definitions)
     if p.kind == "definition" and p.term:
         head = text.find(p.term) + len(p.term) + ALIAS_WINDOW
-        names = [p.term]
+        own = [p.term]
         for f in inline:
             if f.offset <= head and p.term in f.names:
-                names.extend(f.names)
+                own.extend(f.names)
         for f in inline:  # an alternative form in the same breath: "You" (or "Your")
             if f.offset <= head and p.term not in f.names:
-                names.extend(f.names)
-        c.add(names, text, p.id, (0, len(text)))
+                own.extend(f.names)
+        c.add(own, text, p.id, (0, len(text)))
     for f in inline:
         span = _sentence_span(text, f.offset)
         c.add(f.names, _shown(text, span), p.id, span)

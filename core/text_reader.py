@@ -236,58 +236,61 @@ def _classify(raws: list[str], *, markdown: bool) -> list[_Line]:
             lines.append(_Line("", blank=True))
             continue
         if in_code:
-            line = _Line(raw, blank=not raw.strip(), md="code")
-            lines.append(line)
-            continue
-        if not raw.strip():
-            lines.append(_Line(raw, blank=True))
+            lines.append(_Line(raw, blank=not raw.strip(), md="code"))
             continue
         if markdown:
             raw = re.sub(r"^\s{0,3}(?:>\s?)+", "", raw)  # block quote markers
-            if not raw.strip():
-                lines.append(_Line(raw, blank=True))
-                continue
+        if not raw.strip():
+            lines.append(_Line(raw, blank=True))
+            continue
         m = _SETEXT_RE.match(raw)
         if m and len(m.group(1)) >= 3 and lines and not lines[-1].blank and lines[-1].md is None:
-            # The paragraph above (a few short lines) is a heading; under a longer paragraph
-            # the line is a separator rule.
-            k = len(lines) - 1
-            while k >= 0 and not lines[k].blank and lines[k].md is None and lines[k].heading is None:
-                k -= 1
-            above = lines[k + 1:]
-            chars = sum(len(ln.stripped) for ln in above)
-            if above and len(above) <= MAX_SETEXT_LINES and chars <= MAX_SETEXT_CHARS:
-                for ln in above:
-                    ln.heading = 1 if m.group(1)[0] == "=" else 2
+            _underlined(lines, 1 if m.group(1)[0] == "=" else 2)
             lines.append(_Line("", blank=True))
             continue
-        if markdown:
-            if _HR_RE.match(raw):
-                lines.append(_Line("", blank=True))
-                continue
-            atx = _ATX_RE.match(raw)
-            if atx:
-                lines.append(_Line(raw, md="atx", heading=len(atx.group(1))))
-                continue
-            if _TABLE_RE.match(raw):
-                if _TABLE_SEP_RE.match(raw):
-                    continue
-                lines.append(_Line(raw, md="table"))
-                continue
-            mb = _BULLET_RE.match(raw)
-            if mb:
-                lines.append(_Line(raw, md="bullet", bullet_text=mb.group("text")))
-                continue
-            if _ORDERED_RE.match(raw):
-                lines.append(_Line(raw, md="ordered"))
-                continue
-        else:
-            mb = _TXT_BULLET_RE.match(raw)
-            if mb:
-                lines.append(_Line(raw, md="bullet", bullet_text=mb.group("text")))
-                continue
-        lines.append(_Line(raw))
+        line = _markdown_line(raw) if markdown else _text_line(raw)
+        if line is not None:
+            lines.append(line)
     return lines
+
+
+def _underlined(lines: list[_Line], level: int) -> None:
+    """A setext underline below *lines*: the paragraph above it (a few short lines) is a
+    heading of *level*; under a longer paragraph the underline is a separator rule."""
+    k = len(lines) - 1
+    while k >= 0 and not lines[k].blank and lines[k].md is None and lines[k].heading is None:
+        k -= 1
+    above = lines[k + 1:]
+    chars = sum(len(ln.stripped) for ln in above)
+    if above and len(above) <= MAX_SETEXT_LINES and chars <= MAX_SETEXT_CHARS:
+        for ln in above:
+            ln.heading = level
+
+
+def _markdown_line(raw: str) -> _Line | None:
+    """The line *raw* of a Markdown text (not blank, no setext underline); None for a line
+    that is dropped (a table's separator row)."""
+    if _HR_RE.match(raw):
+        return _Line("", blank=True)
+    atx = _ATX_RE.match(raw)
+    if atx:
+        return _Line(raw, md="atx", heading=len(atx.group(1)))
+    if _TABLE_RE.match(raw):
+        return None if _TABLE_SEP_RE.match(raw) else _Line(raw, md="table")
+    mb = _BULLET_RE.match(raw)
+    if mb:
+        return _Line(raw, md="bullet", bullet_text=mb.group("text"))
+    if _ORDERED_RE.match(raw):
+        return _Line(raw, md="ordered")
+    return _Line(raw)
+
+
+def _text_line(raw: str) -> _Line:
+    """The line *raw* of a plain text (not blank, no setext underline)."""
+    mb = _TXT_BULLET_RE.match(raw)
+    if mb:
+        return _Line(raw, md="bullet", bullet_text=mb.group("text"))
+    return _Line(raw)
 
 
 def _wrap_width(lines: Sequence[_Line]) -> int | None:

@@ -879,9 +879,9 @@ def _rewrite(text: str, n: RefNumber, old_full: str, new_full: str,
     old_p, new_p = _parts(old_full), _parts(new_full)
     m = len(comps)
     continuation = bool(not n.relative and n.link and comps and comps[0][2] == "item")
-    if continuation and previous_new is not None and len(new_p) >= m:
-        if _parts(previous_new)[:len(new_p) - m] != new_p[:len(new_p) - m]:
-            return n.start, n.end, new_full  # "(b)" can no longer ride on the number before
+    if (continuation and previous_new is not None and len(new_p) >= m
+            and _parts(previous_new)[:len(new_p) - m] != new_p[:len(new_p) - m]):
+        return n.start, n.end, new_full  # "(b)" can no longer ride on the number before
     if len(old_p) != len(new_p) or m > len(old_p):
         # The depth changed (an item became a clause): write the whole number anew.
         return None if old_full == new_full else (n.start, n.end, _shown(new_full, typed))

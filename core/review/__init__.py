@@ -47,10 +47,23 @@ from bisect import bisect_right
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, replace
 
-from ..model import Deviation, Document, Edit, Pair, Provision, Review, TermMapping
+from ..model import (
+    Category,
+    ChangeKind,
+    Deviation,
+    DeviationPart,
+    Direction,
+    Document,
+    Edit,
+    Pair,
+    PairStatus,
+    Provision,
+    Review,
+    TermMapping,
+)
 from .align import Alignment, Features, Group, align
 from .checks import review_checks
-from .classify import Change, TermContext, classify_ops
+from .classify import Change, TermContext, WordChange, classify_ops
 from .direction import Judge, direction_rank_key, find_parties, resolve_acting_for
 from .docinfo import DocInfo, build_docinfo
 from .figures import figure_reasons, figures_in
@@ -226,8 +239,8 @@ class _Dev:
 
     order: tuple[float, int, int]
     severity: int
-    category: str
-    change: str
+    category: Category
+    change: ChangeKind
     draft_provision: str | None
     precedent_provision: str | None
     precedent_text: str
@@ -235,13 +248,13 @@ class _Dev:
     reasons: tuple[str, ...]
     precedent_span: tuple[int, int] | None = None
     draft_span: tuple[int, int] | None = None
-    part: str = "text"  # see core.model.Deviation.part
+    part: DeviationPart = "text"
     precedent_text_span: tuple[int, int] | None = None
     draft_text_span: tuple[int, int] | None = None
     #: The signals the severity rules found in a substantive change of words (what its
     #: direction is judged from); () for the other deviations.
     signals: tuple[Signal, ...] = ()
-    direction: str = "unclear"  # see core.model.Deviation.direction
+    direction: Direction = "unclear"
 
 
 def _pieces(text: str, starts: Sequence[int], span: tuple[int, int]) -> list[tuple[int, int]]:
@@ -276,7 +289,7 @@ def _per_provision(ch: Change, ptext: str, pstarts: Sequence[int], dtext: str,
     for k in range(n):
         ps = pp[k] if k < len(pp) else pend
         ds = dp[k] if k < len(dp) else dend
-        kind = "insert" if ps[0] == ps[1] else ("delete" if ds[0] == ds[1] else "replace")
+        kind: WordChange = "insert" if ps[0] == ps[1] else ("delete" if ds[0] == ds[1] else "replace")
         out.append(replace(ch, change=kind, p_span=ps, d_span=ds,
                            signals=ch.signals if k == 0 else ()))
     return out
@@ -336,8 +349,30 @@ def run_review(draft: Document, precedent: Document, *,
     dside, pside, uses = _sides(di, pi, names)
     clock.lap("tokens: words, terms, cross-references")
 
-    # 1-2. term map and alignment, twice: the substitution evidence needs an alignment.
     stage("matching defined terms and aligning provisions")
+    tm, al, dside, pside = _map_and_align(di, pi, (dside, pside), names, uses, clock=clock,
+                                          overrides=overrides, vocabulary=vocabulary)
+
+    d_types = clause_types_for(draft, rules=rules, classifier=clause_type)
+    p_types = clause_types_for(precedent, rules=rules, classifier=clause_type)
+    builder = _Builder(di, pi, dside, pside, tm, al, rules, d_types, p_types, clock)
+    builder.acting_for = acting_for
+    stage(f"comparing the wording of {len(al.groups)} paired provision{'s' * (len(al.groups) != 1)}")
+    review = builder.build()
+    clock.lap("ranking and output")
+    review = replace(review, checks=review_checks(review))
+    clock.lap("drafting checks")
+    return review
+
+
+def _map_and_align(di: DocInfo, pi: DocInfo, sides: tuple[_Side, _Side], names: list[str],
+                   uses: tuple[dict[str, int], dict[str, int]], *, clock: _Clock,
+                   overrides: Sequence[TermOverride], vocabulary: VocabularyModel | None
+                   ) -> tuple[TermMap, Alignment, _Side, _Side]:
+    """The term map and the alignment, each found twice: the substitution evidence of the
+    term map needs an alignment, and the alignment is better with the term map.  Returns
+    them with the two sides (tokenised again when names were found from the text)."""
+    dside, pside = sides
     tm0 = map_terms(di, pi, overrides=overrides, vocabulary=vocabulary, uses=uses)
     clock.lap("term map: definitions")
     dside.to_key = tm0.to_precedent
@@ -364,17 +399,18 @@ def run_review(draft: Document, precedent: Document, *,
     dside.plain = pside.plain = _as_words(di, pi, tm)
     al = al0 if dict(tm.to_precedent) == dict(tm0.to_precedent) else align(_features(dside), _features(pside))
     clock.lap("alignment: with the term map")
+    return tm, al, dside, pside
 
-    d_types = clause_types_for(draft, rules=rules, classifier=clause_type)
-    p_types = clause_types_for(precedent, rules=rules, classifier=clause_type)
-    builder = _Builder(di, pi, dside, pside, tm, al, rules, d_types, p_types, clock)
-    builder.acting_for = acting_for
-    stage(f"comparing the wording of {len(al.groups)} paired provision{'s' * (len(al.groups) != 1)}")
-    review = builder.build()
-    clock.lap("ranking and output")
-    review = replace(review, checks=review_checks(review))
-    clock.lap("drafting checks")
-    return review
+
+def _group_status(g: Group, n_changes: int) -> PairStatus:
+    """The status of the pairs of group *g*, whose words differ in *n_changes* places."""
+    if g.kind == "split":
+        return "split"
+    if g.kind == "merged":
+        return "merged"
+    if g.moved:
+        return "moved"
+    return "same" if n_changes == 0 else "changed"
 
 
 def _as_words(di: DocInfo, pi: DocInfo, tm: TermMap) -> frozenset[str]:
@@ -439,7 +475,8 @@ class _Builder:
     provision, per renumbered label and per renamed term)."""
 
     def __init__(self, di: DocInfo, pi: DocInfo, dside: _Side, pside: _Side, tm: TermMap,
-                 al: Alignment, rules: SeverityRules, d_types, p_types, clock: _Clock) -> None:
+                 al: Alignment, rules: SeverityRules, d_types: Sequence[str | None],
+                 p_types: Sequence[str | None], clock: _Clock) -> None:
         self.clock = clock
         self.di, self.pi, self.dside, self.pside = di, pi, dside, pside
         self.tm, self.al, self.rules = tm, al, rules
@@ -540,14 +577,13 @@ class _Builder:
                 clause_type=ctype, kind=kind, rules=self.rules, extra=ch.signals, heading=heading)
             sev, reasons, signals = got.severity, got.reasons, got.signals
         else:
-            key = ch.category
+            key: str = ch.category
             if ch.category == "numbering" and "unchanged" in ch.note:
                 key = "numbering_cross_reference"
             sev = category_severity(key, rules=self.rules)
             reasons = (ch.note,) if ch.note else ()
-        if heading:
-            if ch.category != "substantive" and not ch.note.startswith("heading"):
-                reasons = tuple(f"heading: {r}" for r in reasons)
+        if heading and ch.category != "substantive" and not ch.note.startswith("heading"):
+            reasons = tuple(f"heading: {r}" for r in reasons)
         # An insert's precedent span and a delete's draft span are empty at the insertion
         # point; a heading has no span in the text.
         self.devs.append(_Dev(
@@ -622,7 +658,7 @@ class _Builder:
             changes.sort(key=lambda c: rank[c.category])
             if changes:
                 top = changes[0]
-                kind = "insert" if not ph.strip() else ("delete" if not dh.strip() else "replace")
+                kind: WordChange = "insert" if not ph.strip() else ("delete" if not dh.strip() else "replace")
                 if (top.category == "substantive" and kind != "replace"
                         and self.rules.heading_added_or_removed == "formatting"):
                     # a heading only added or removed: formatting (rule file, [headings])
@@ -767,41 +803,11 @@ class _Builder:
                     None, root_id, text, "", reasons, part="provision")
 
     def build(self) -> Review:
-        di, pi, al, rules = self.di, self.pi, self.al, self.rules
+        di, pi, al = self.di, self.pi, self.al
         pairs: list[tuple[tuple[float, int, int], Pair]] = []
-        group_of_draft: dict[int, Group] = {}
+        group_of_draft = {d: g for g in al.groups for d in g.drafts}
         for g in al.groups:
-            for d in g.drafts:
-                group_of_draft[d] = g
-        for g in al.groups:
-            n_changes = self._diff_group(g)
-            if g.kind == "split":
-                status = "split"
-            elif g.kind == "merged":
-                status = "merged"
-            elif g.moved:
-                status = "moved"
-            else:
-                status = "same" if n_changes == 0 else "changed"
-            for (d, p), s in zip(g.pairings, g.pair_similarities):
-                pairs.append(((float(d), 0, p), Pair(di.provisions[d].id, pi.provisions[p].id,
-                                                     status, round(s, 3),
-                                                     edits=self._pair_edits(d, p))))
-            d0, p0 = g.drafts[0], g.precedents[0]
-            if g.moved:
-                dpar, ppar = di.parent_pos[d0], pi.parent_pos[p0]
-                pg = group_of_draft.get(dpar) if dpar is not None else None
-                if not (pg is not None and pg.moved and ppar in pg.precedents):
-                    self.devs.append(_Dev(
-                        (float(d0), 0, -1), category_severity("move", rules=rules), "numbering",
-                        "move", di.provisions[d0].id, pi.provisions[p0].id, "", "",
-                        (f"moved: {_label(pi, p0)} of the precedent is "
-                         f"{_label(di, d0, with_heading=False)} of the draft, in a different "
-                         "place in the order",), part="provision"))
-            elif g.kind == "match":
-                label = self._label_dev(d0, p0)
-                if label is not None:
-                    self.devs.append(label)
+            pairs += self._group_pairs(g, group_of_draft)
         # Added and removed provisions: one deviation per subtree.
         for members in self._fold(di, al.added):
             self.devs.append(self._subtree_dev(members, added=True))
@@ -811,38 +817,69 @@ class _Builder:
             self.devs.append(self._subtree_dev(members, added=False))
         for p in al.removed:
             pairs.append(((self.p_anchor[p], 0, p), Pair(None, pi.provisions[p].id, "removed", 0.0)))
-        # One deviation per renamed term.
-        for m in self.tm.mappings:
-            dprov = di.defining_provision.get(m.draft)
-            pprov = pi.defining_provision.get(m.precedent)
-            dpos = di.position.get(dprov, -1) if dprov else -1
-            self.devs.append(_Dev(
-                (float(dpos), -1, 0), category_severity("term", rules=rules), "term", "replace",
-                dprov, pprov, m.precedent, m.draft, (_rename_reason(m, defined=bool(dprov or pprov)),),
-                part="provision"))
-
+        self.devs += self._rename_devs()  # one deviation per renamed term
         self._guard_figures()  # numbers are always substance: the last rule
         self._judge_directions()
         pairs.sort(key=lambda t: t[0])
-        # ids in draft order, ranks by severity (and, acting for a party, direction) then
-        # draft order
+        notes: list[str] = []
+        if not al.groups and (di.provisions or pi.provisions):
+            notes.append(NO_SHARED_NOTE)
+        return Review(di.doc, pi.doc, self.tm.mappings, tuple(p for _k, p in pairs),
+                      self._ranked_deviations(), tuple(notes), self.acting_for)
+
+    def _group_pairs(self, g: Group, group_of_draft: Mapping[int, Group]
+                     ) -> list[tuple[tuple[float, int, int], Pair]]:
+        """The pairs of group *g* (one per pairing, with its sort key), after recording the
+        deviations of its words, of its move and of its number label."""
+        di, pi = self.di, self.pi
+        status = _group_status(g, self._diff_group(g))
+        pairs = [((float(d), 0, p), Pair(di.provisions[d].id, pi.provisions[p].id, status, round(s, 3),
+                                         edits=self._pair_edits(d, p)))
+                 for (d, p), s in zip(g.pairings, g.pair_similarities)]
+        d0, p0 = g.drafts[0], g.precedents[0]
+        if g.moved:
+            dpar, ppar = di.parent_pos[d0], pi.parent_pos[p0]
+            pg = group_of_draft.get(dpar) if dpar is not None else None
+            if not (pg is not None and pg.moved and ppar in pg.precedents):
+                self.devs.append(_Dev(
+                    (float(d0), 0, -1), category_severity("move", rules=self.rules), "numbering",
+                    "move", di.provisions[d0].id, pi.provisions[p0].id, "", "",
+                    (f"moved: {_label(pi, p0)} of the precedent is "
+                     f"{_label(di, d0, with_heading=False)} of the draft, in a different "
+                     "place in the order",), part="provision"))
+        elif g.kind == "match":
+            label = self._label_dev(d0, p0)
+            if label is not None:
+                self.devs.append(label)
+        return pairs
+
+    def _rename_devs(self) -> list[_Dev]:
+        out: list[_Dev] = []
+        for m in self.tm.mappings:
+            dprov = self.di.defining_provision.get(m.draft)
+            pprov = self.pi.defining_provision.get(m.precedent)
+            dpos = self.di.position.get(dprov, -1) if dprov else -1
+            out.append(_Dev(
+                (float(dpos), -1, 0), category_severity("term", rules=self.rules), "term", "replace",
+                dprov, pprov, m.precedent, m.draft, (_rename_reason(m, defined=bool(dprov or pprov)),),
+                part="provision"))
+        return out
+
+    def _ranked_deviations(self) -> tuple[Deviation, ...]:
+        """The deviations with ids in draft order, ranked by severity (and, acting for a
+        party, direction) then draft order."""
         in_order = sorted(self.devs, key=lambda v: v.order)
         ids = {id(v): f"v{i}" for i, v in enumerate(in_order, 1)}
         if self.acting_for is None:
             ranked = sorted(in_order, key=lambda v: (-v.severity, v.order))
         else:
             ranked = sorted(in_order, key=lambda v: (direction_rank_key(v.severity, v.direction), v.order))
-        deviations = tuple(
+        return tuple(
             Deviation(ids[id(v)], r, v.severity, v.category, v.change, v.draft_provision,
                       v.precedent_provision, v.precedent_text, v.draft_text, v.reasons,
                       None, v.precedent_span, v.draft_span, v.part, v.precedent_text_span,
                       v.draft_text_span, v.direction)
             for r, v in enumerate(ranked, 1))
-        notes: list[str] = []
-        if not al.groups and (di.provisions or pi.provisions):
-            notes.append(NO_SHARED_NOTE)
-        return Review(di.doc, pi.doc, self.tm.mappings, tuple(p for _k, p in pairs), deviations,
-                      tuple(notes), self.acting_for)
 
     def _judge_directions(self) -> None:
         """Each deviation's direction for the party acted for (:mod:`.direction`), with a

@@ -39,12 +39,18 @@ import math
 import sys
 from bisect import bisect_left
 from collections import Counter
-from collections.abc import Sequence
+from collections.abc import Iterator, Sequence
 from dataclasses import dataclass
+from typing import TYPE_CHECKING, Literal
 
 from rapidfuzz.distance import Indel
 
+from ..model import ProvisionKind
 from .assignment import max_weight_assignment
+
+if TYPE_CHECKING:
+    import numpy as np
+    from numpy.typing import NDArray
 
 __all__ = [
     "ALIGN_MIN",
@@ -158,12 +164,18 @@ CHILD_VOTE_SHARE = 0.5
 class Features:
     """What the aligner knows of one provision."""
 
-    words: tuple[str, ...]  # normalised word keys of the text
-    heading: tuple[str, ...]  # normalised word keys of the heading
-    kind: str
+    #: normalised word keys of the text and of the heading: tuples of words, or strings of
+    #: one character per distinct word once encoded (:func:`_encoded`)
+    words: Sequence[str]
+    heading: Sequence[str]
+    kind: ProvisionKind
     term: str | None  # the term a definition (or a party's description) defines, by its
     #                   precedent-side name: provisions defining the same term correspond
     parent: int | None  # position of the parent provision
+
+
+#: How the provisions of a group correspond (see :class:`Group`).
+GroupKind = Literal["match", "split", "merged"]
 
 
 @dataclass(frozen=True, slots=True)
@@ -173,7 +185,7 @@ class Group:
 
     drafts: tuple[int, ...]
     precedents: tuple[int, ...]
-    kind: str  # "match" | "split" | "merged"
+    kind: GroupKind
     similarity: float  # of the joined texts
     pair_similarities: tuple[float, ...]  # one per draft/precedent pairing, in pairing order
     moved: bool = False
@@ -327,8 +339,8 @@ class _Cosines:
         import numpy as np
 
         n_d = self.n_d
-        content = _Postings(self.content[n_d:], self.content[:n_d], np)
-        heads = _Postings(self.heads[n_d:], self.heads[:n_d], np)
+        content = _Postings(self.content[n_d:], self.content[:n_d])
+        heads = _Postings(self.heads[n_d:], self.heads[:n_d])
         rp = np.arange(n_p) / max(1, n_p - 1)
         kr = min(CANDIDATES, n_p)
         kc = min(CANDIDATES, n_d)
@@ -338,7 +350,8 @@ class _Cosines:
         cand: set[tuple[int, int]] = set()
         known = self.known
 
-        def remember(rows, cols, cos, hcos, start: int) -> None:
+        def remember(rows: NDArray[np.intp], cols: NDArray[np.intp], cos: NDArray[np.float64],
+                     hcos: NDArray[np.float64], start: int) -> None:
             for r, p, c, h in zip((rows + start).tolist(), cols.tolist(), cos[rows, cols].tolist(),
                                   hcos[rows, cols].tolist()):
                 known[(r, p)] = (c, h)
@@ -379,8 +392,8 @@ class _Postings:
     for the others each (draft row, word, precedent row) triple is gathered from the word's
     postings (CSC order) and the products summed with ``bincount``."""
 
-    def __init__(self, p_rows: Sequence[Row], d_rows: Sequence[Row], np) -> None:
-        self.np = np
+    def __init__(self, p_rows: Sequence[Row], d_rows: Sequence[Row]) -> None:
+        import numpy as np  # imported on first use: a short review never needs it
         n_p, n_d = len(p_rows), len(d_rows)
         words = np.asarray([j for r in p_rows for j in r], dtype=np.int64)
         width = int(words.max()) + 1 if len(words) else 0
@@ -430,10 +443,10 @@ class _Postings:
             out.append((start, len(d_rows)))
         return out
 
-    def product(self, d_rows: Sequence[Row], n_p: int):
+    def product(self, d_rows: Sequence[Row], n_p: int) -> NDArray[np.float64]:
         """The dense block (len(d_rows) x n_p) of dot products of *d_rows* with the
         precedent rows."""
-        np = self.np
+        import numpy as np
         n = len(d_rows)
         local: list[int] = []
         words: list[int] = []
@@ -453,7 +466,7 @@ class _Postings:
                     local.append(r)
                     words.append(j)
                     weights.append(x)
-        out = np.zeros(n * n_p)
+        flat_out: NDArray[np.float64] = np.zeros(n * n_p)
         if words:
             w = np.asarray(words, dtype=np.int64)
             lengths = self.df[w]
@@ -464,8 +477,8 @@ class _Postings:
                 pos = np.repeat(self.ptr[w] - (ends - lengths), lengths) + np.arange(total, dtype=np.int64)
                 flat = np.repeat(np.asarray(local, dtype=np.int64), lengths) * n_p + self.rows[pos]
                 vals = self.vals[pos] * np.repeat(np.asarray(weights, dtype=np.float64), lengths)
-                out = np.bincount(flat, weights=vals, minlength=n * n_p)
-        out = out.reshape(n, n_p)
+                flat_out = np.bincount(flat, weights=vals, minlength=n * n_p).astype(np.float64, copy=False)
+        out = flat_out.reshape(n, n_p)
         if dense_r:
             block = np.zeros((n, len(dense_col)))
             block[dense_r, dense_c] = dense_x
@@ -493,7 +506,7 @@ def pair_similarity(d: Features, p: Features, cosine: float, heading_cosine: flo
 def _joined(feats: Sequence[Features]) -> Features:
     f0 = feats[0]
     if all(isinstance(f.words, str) for f in feats):  # encoded (see _encoded)
-        return Features("".join(f.words for f in feats), f0.heading, f0.kind, f0.term, f0.parent)  # type: ignore[arg-type]
+        return Features("".join("".join(f.words) for f in feats), f0.heading, f0.kind, f0.term, f0.parent)
     return Features(tuple(w for f in feats for w in f.words), f0.heading, f0.kind, f0.term, f0.parent)
 
 
@@ -556,7 +569,7 @@ def _encoded(draft: Sequence[Features], precedent: Sequence[Features]
         return "".join(map(codes.__getitem__, words))
 
     def each(feats: Sequence[Features]) -> list[Features]:
-        return [Features(enc(f.words), enc(f.heading), f.kind, f.term, f.parent) for f in feats]  # type: ignore[arg-type]
+        return [Features(enc(f.words), enc(f.heading), f.kind, f.term, f.parent) for f in feats]
 
     return each(draft), each(precedent)
 
@@ -570,34 +583,62 @@ def align(draft: Sequence[Features], precedent: Sequence[Features]) -> Alignment
     content = _tfidf([f.words for f in draft] + [f.words for f in precedent])
     heads = _tfidf([f.heading for f in draft] + [f.heading for f in precedent])
     cosines = _Cosines(content, heads, n_d)
+    linked = _linked_definitions(draft, precedent)
     cand = cosines.candidates(n_p)
-    # Definitions of the same term always correspond.
-    p_def: dict[tuple[str, str], list[int]] = {}
-    for j, f in enumerate(precedent):
-        if f.term:
-            p_def.setdefault((f.kind, f.term), []).append(j)
-    linked: set[tuple[int, int]] = set()
-    for i, f in enumerate(draft):
-        if f.term:
-            for j in p_def.get((f.kind, f.term), ()):
-                linked.add((i, j))
     cand |= linked
-
     sims: dict[tuple[int, int], float] = {}
     for d, p in cand:
         s = pair_similarity(draft[d], precedent[p], *cosines.get(d, p))
         if s >= ALIGN_MIN or (d, p) in linked:
             sims[(d, p)] = s
-
-    def prior(d: int, p: int) -> float:
-        rd = d / (n_d - 1) if n_d > 1 else 0.0
-        rp = p / (n_p - 1) if n_p > 1 else 0.0
-        return POSITION_WEIGHT * (1.0 - abs(rd - rp))
-
+    prior = _PositionPrior(n_d, n_p)
     base = {e: s + prior(*e) + (2.0 if e in linked else 0.0) for e, s in sims.items()}
     match = _solve(n_d, n_p, base)
     # Second round: the children of paired parents become candidates of each other, and
     # prefer each other.
+    for d, p in _sibling_candidates(draft, precedent, match):
+        if (d, p) not in sims:
+            s = pair_similarity(draft[d], precedent[p], *cosines.get(d, p))
+            if s >= ALIGN_MIN:
+                sims[(d, p)] = s
+                base[(d, p)] = s + prior(d, p)
+    bonus = dict(base)
+    for (d, p) in base:
+        pd, pp = draft[d].parent, precedent[p].parent
+        if pd is not None and pp is not None and match.get(pd) == pp:
+            bonus[(d, p)] += PARENT_BONUS
+    match = _solve(n_d, n_p, bonus)
+    _pair_by_children(draft, precedent, match, sims, cosines)
+    groups = _marked_moves(_splits_and_merges(draft, precedent, match, sims, cosines))
+    return _alignment(groups, n_d, n_p)
+
+
+def _linked_definitions(draft: Sequence[Features], precedent: Sequence[Features]) -> set[tuple[int, int]]:
+    """The (draft, precedent) pairs of definitions of the same term: they always correspond."""
+    p_def: dict[tuple[str, str], list[int]] = {}
+    for j, f in enumerate(precedent):
+        if f.term:
+            p_def.setdefault((f.kind, f.term), []).append(j)
+    return {(i, j) for i, f in enumerate(draft) if f.term for j in p_def.get((f.kind, f.term), ())}
+
+
+@dataclass(frozen=True, slots=True)
+class _PositionPrior:
+    """The bonus of a pair for standing at the same relative place in both documents."""
+
+    n_d: int
+    n_p: int
+
+    def __call__(self, d: int, p: int) -> float:
+        rd = d / (self.n_d - 1) if self.n_d > 1 else 0.0
+        rp = p / (self.n_p - 1) if self.n_p > 1 else 0.0
+        return POSITION_WEIGHT * (1.0 - abs(rd - rp))
+
+
+def _sibling_candidates(draft: Sequence[Features], precedent: Sequence[Features],
+                        match: dict[int, int]) -> Iterator[tuple[int, int]]:
+    """(draft, precedent) pairs of children of paired parents at most SIBLING_WINDOW places
+    apart among their siblings."""
     p_children: dict[int, list[int]] = {}
     for j, f in enumerate(precedent):
         if f.parent is not None:
@@ -612,29 +653,22 @@ def align(draft: Sequence[Features], precedent: Sequence[Features]) -> Alignment
         q = match.get(f.parent) if f.parent is not None else None
         if q is None:
             continue
-        kids = p_children.get(q, [])
         k = d_place[d]
-        for p in kids[max(0, k - SIBLING_WINDOW):k + SIBLING_WINDOW + 1]:
-            if (d, p) not in sims:
-                s = pair_similarity(draft[d], precedent[p], *cosines.get(d, p))
-                if s >= ALIGN_MIN:
-                    sims[(d, p)] = s
-                    base[(d, p)] = s + prior(d, p)
-    bonus = dict(base)
-    for (d, p) in base:
-        pd, pp = draft[d].parent, precedent[p].parent
-        if pd is not None and pp is not None and match.get(pd) == pp:
-            bonus[(d, p)] += PARENT_BONUS
-    match = _solve(n_d, n_p, bonus)
-    _pair_by_children(draft, precedent, match, sims, cosines)
+        for p in p_children.get(q, [])[max(0, k - SIBLING_WINDOW):k + SIBLING_WINDOW + 1]:
+            yield d, p
 
-    groups = _splits_and_merges(draft, precedent, match, sims, cosines)
-    # Moved: groups outside a longest increasing subsequence of precedent positions.
-    groups.sort(key=lambda g: g.drafts[0])
+
+def _marked_moves(groups: list[Group]) -> list[Group]:
+    """*groups* in draft order, those outside a longest increasing subsequence of precedent
+    positions marked moved."""
+    groups = sorted(groups, key=lambda g: g.drafts[0])
     keep = set(longest_increasing_subsequence([g.precedents[0] for g in groups]))
-    groups = [g if i in keep else Group(g.drafts, g.precedents, g.kind, g.similarity,
-                                        g.pair_similarities, True)
-              for i, g in enumerate(groups)]
+    return [g if i in keep else Group(g.drafts, g.precedents, g.kind, g.similarity,
+                                      g.pair_similarities, True)
+            for i, g in enumerate(groups)]
+
+
+def _alignment(groups: list[Group], n_d: int, n_p: int) -> Alignment:
     d2p: dict[int, int] = {}
     p2d: dict[int, int] = {}
     for g in groups:
@@ -664,8 +698,9 @@ def _pair_by_children(draft: Sequence[Features], precedent: Sequence[Features],
         votes: Counter[int] = Counter()
         for c in children[d]:
             p = match.get(c)
-            if p is not None and precedent[p].parent is not None:
-                votes[precedent[p].parent] += 1
+            up = precedent[p].parent if p is not None else None
+            if up is not None:
+                votes[up] += 1
         if not votes:
             continue
         q, n = votes.most_common(1)[0]

@@ -69,10 +69,21 @@ documents' length in practice.
 from __future__ import annotations
 
 import re
-from collections.abc import Iterable, Mapping, Sequence
-from dataclasses import dataclass, field
+from collections.abc import Callable, Iterable, Mapping, Sequence
+from dataclasses import dataclass
 
-from ..model import DefinedTerm, Document, Provision, Review
+from ..model import (
+    CHECK_DOCUMENTS,
+    CHECK_KINDS,
+    Check,
+    CheckDocument,
+    CheckKind,
+    CheckPart,
+    DefinedTerm,
+    Document,
+    Provision,
+    Review,
+)
 from ..terms import term_forms
 from .tokens import find_term_uses, term_matcher
 
@@ -93,41 +104,16 @@ __all__ = [
     "unused_definitions",
 ]
 
-CHECK_KINDS: tuple[str, ...] = ("undefined-term", "unused-definition", "stale-term",
-                                "dangling-reference", "definition-changed")
-CHECK_DOCUMENTS: tuple[str, ...] = ("draft", "precedent")
 #: How the outputs head the checks (the review table, the window, the issues list).
 CHECKS_HEADING = "Drafting checks"
 #: How the outputs name each kind (the trade's own words).
-CHECK_TITLES: dict[str, str] = {
+CHECK_TITLES: dict[CheckKind, str] = {
     "undefined-term": "Undefined term",
     "unused-definition": "Unused definition",
     "stale-term": "Old name of a renamed term",
     "dangling-reference": "Reference to no provision",
     "definition-changed": "Definition changed",
 }
-
-
-@dataclass(frozen=True, slots=True)
-class Check:
-    """One drafting problem.
-
-    ``text`` is the words concerned, verbatim: ``provision.text[a:b]`` (or
-    ``provision.heading[a:b]`` when ``part == "heading"``) with ``span == (a, b)``; None
-    span when the check concerns no particular words.  ``term`` names the defined term a
-    term check concerns; ``provisions`` lists the other provisions concerned, in document
-    order: where an undefined term is also used, the provisions using a changed
-    definition's term."""
-
-    kind: str  # one of CHECK_KINDS
-    document: str  # one of CHECK_DOCUMENTS
-    provision: str | None
-    text: str
-    message: str
-    span: tuple[int, int] | None = None
-    part: str = "text"  # "text" or "heading"
-    term: str | None = None
-    provisions: tuple[str, ...] = field(default=())
 
 
 # --------------------------------------------------------------------------------------
@@ -303,7 +289,8 @@ _TITLE_CUE_WORDS = frozenset("entitled titled called named headed captioned".spl
 #: Common nouns that English style capitalises by convention.
 _CONVENTION_WORDS = frozenset("Internet Web Earth God".split())
 
-_QUOTED_RE = re.compile(r"[\"“”„]([^\"“”„\n]{1,80}(?:\n[^\"“”„\n]{1,80})?)[\"“”]|‘([^‘’\n]{1,80})’|«\s?([^«»\n]{1,80}?)\s?»"
+_QUOTED_RE = re.compile(r"[\"“”„]([^\"“”„\n]{1,80}(?:\n[^\"“”„\n]{1,80})?)[\"“”]"
+                        r"|‘([^‘’\n]{1,80})’|«\s?([^«»\n]{1,80}?)\s?»"
                         r"|(?<![\w'’])'([^'\n]{1,80})'(?![\w'])|``([^`'\n]{1,80})''")
 #: An unquoted name in a parenthesis after what it names: "(the Licensor)", "(Customer)".
 _PAREN_NAME_RE = re.compile(
@@ -384,11 +371,11 @@ class _Texts:
     """The prose of a document: (provision, part, text) in document order."""
 
     doc: Document
-    parts: tuple[tuple[Provision, str, str], ...]
+    parts: tuple[tuple[Provision, CheckPart, str], ...]
 
     @staticmethod
     def of(doc: Document) -> _Texts:
-        parts: list[tuple[Provision, str, str]] = []
+        parts: list[tuple[Provision, CheckPart, str]] = []
         for p in doc.provisions:
             if p.heading:
                 parts.append((p, "heading", p.heading))
@@ -455,7 +442,7 @@ def _fold_text(text: str) -> str:
                    for ch in text)
 
 
-def _folded_finder(forms: Iterable[str]):
+def _folded_finder(forms: Iterable[str]) -> Callable[[str], list[tuple[int, str]]]:
     """A function giving (start, folded form) of the uses of *forms* (folded names, see
     :func:`_fold`) in a text, whole words, possessive endings allowed: a regular expression
     for an agreement's names, a character-trie walk (:func:`core.terms.walk_forms`) for the
@@ -487,7 +474,7 @@ class _Use:
     """A capitalised phrase in the middle of a sentence."""
 
     provision: Provision
-    part: str
+    part: CheckPart
     start: int
     end: int
     phrase: str
@@ -533,7 +520,7 @@ def _candidate_uses(texts: _Texts) -> list[_Use]:
     return out
 
 
-def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: str, offset: int) -> list[_Use]:
+def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: CheckPart, offset: int) -> list[_Use]:
     """The phrases of one run of capitalised words (parted at "and" / "or"), unless the run
     is a title, starts a sentence or is a verb ("to Preserve its Title")."""
     run = m.group("phrase")
@@ -558,7 +545,7 @@ def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: str, offset
     out: list[_Use] = []
     cuts = [0, *(x for sep in _SPLIT_RE.finditer(run) for x in (sep.start(), sep.end())), len(run)]
     pieces = [(cuts[i], run[cuts[i]:cuts[i + 1]]) for i in range(0, len(cuts), 2)]
-    determiner = before
+    determiner: str | None = before
     for k, (piece_start, piece) in enumerate(pieces):
         words = piece.split()
         lead = 0
@@ -681,7 +668,7 @@ def _uses_of(doc: Document, texts: _Texts, names: Mapping[str, str]) -> dict[str
 
 
 def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iterable[str] = (),
-                    document: str = "draft") -> tuple[Check, ...]:
+                    document: CheckDocument = "draft") -> tuple[Check, ...]:
     """The undefined-term checks of *doc* (see the module's notes).
 
     *defined* adds names that count as defined (the names of renamed terms, whose stale
@@ -714,7 +701,7 @@ def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iter
             continue
         found.setdefault(key, []).append(use)
     brand = _brand_words(texts, lower)
-    for key, uses in found.items():
+    for uses in found.values():
         words = [w for w in uses[0].phrase.split() if w[:1].isupper()]
         if any(w in brand for w in words):
             continue  # "the Java Platform": "Java" names a product elsewhere in the document
@@ -744,7 +731,7 @@ def _brand_words(texts: _Texts, lower: set[str]) -> frozenset[str]:
                      if len(runs) >= BRAND_MIN_PHRASES and not (_singulars(w.lower()) | {w.lower()}) & lower)
 
 
-def _undefined_check(uses: Sequence[_Use], *, document: str, term: str, why: str) -> Check:
+def _undefined_check(uses: Sequence[_Use], *, document: CheckDocument, term: str, why: str) -> Check:
     first = uses[0]
     n_prov = len({u.provision.id for u in uses})
     where = f"; used in {n_prov} provisions" if n_prov > 1 else ""
@@ -779,7 +766,7 @@ def _use_name(name: str) -> str:
     return " ".join(words[1:]) if len(words) > 1 and words[0].casefold() == "to" else name
 
 
-def unused_definitions(doc: Document, *, document: str = "draft") -> tuple[Check, ...]:
+def unused_definitions(doc: Document, *, document: CheckDocument = "draft") -> tuple[Check, ...]:
     """Defined terms that *doc* never uses outside their definitions.
 
     A definition provision of its own (``"X" means ...``) is the definition in its first
@@ -820,13 +807,13 @@ def unused_definitions(doc: Document, *, document: str = "draft") -> tuple[Check
                 or _alternative_word(t)):
             continue
         pid, span = areas[t.term]
-        prov = _provision(doc, pid)
-        if prov is None:
+        defining = _provision(doc, pid)
+        if defining is None:
             continue
-        at = _name_span(prov.text, t.term, span)
+        at = _name_span(defining.text, t.term, span)
         out.append(Check(
             kind="unused-definition", document=document, provision=pid,
-            text=prov.text[at[0]:at[1]] if at else t.term,
+            text=defining.text[at[0]:at[1]] if at else t.term,
             message=f'"{t.term}" is defined but never used outside its definition',
             span=at, term=t.term))
     return tuple(out)
@@ -943,7 +930,8 @@ _OTHER_INSTRUMENT_RE = re.compile(
     r"(?:[ \t]*\(\w{1,4}\))*[ \t]*,?[ \t]*(?:of|in|under)[ \t]+(?:the[ \t]+)?(?:\d{4}[ \t]+)?"
     r"(?P<name>[A-Z][\w.&-]*)")
 _INSTRUMENT_AFTER_RE = re.compile(
-    r"[ \t]*,?[ \t]*(?:(?:of|in|under)[ \t]+)?(?:the[ \t]+)?[*_\"“]?(?P<name>(?:[A-Z][\w'’-]*[ \t]+(?:(?:of|on|the|and|for)[ \t]+)*){1,10}"
+    r"[ \t]*,?[ \t]*(?:(?:of|in|under)[ \t]+)?(?:the[ \t]+)?[*_\"“]?"
+    r"(?P<name>(?:[A-Z][\w'’-]*[ \t]+(?:(?:of|on|the|and|for)[ \t]+)*){1,10}"
     r"(?:[A-Z][\w'’-]*))")
 #: Words of the name of another instrument or body cited after a reference.
 _CITED_WORDS = _INSTRUMENT_WORDS | _BODY_WORDS | frozenset("Code Codes Supplement".split())
@@ -1056,7 +1044,7 @@ def _heading_label(text: str, start: int, end: int) -> bool:
     return not text[line_start:start].strip() and (end >= len(text) or text[end] in ":.\n\u2013\u2014-")
 
 
-def dangling_references(doc: Document, *, document: str = "draft") -> tuple[Check, ...]:
+def dangling_references(doc: Document, *, document: CheckDocument = "draft") -> tuple[Check, ...]:
     """Typed cross-references whose number names no provision of *doc*: what
     :func:`core.xrefs.resolve` cannot find, in a numbering the document has, and that the
     document shows nowhere as a label in any style (so that a numbering read otherwise --
@@ -1110,7 +1098,7 @@ def dangling_references(doc: Document, *, document: str = "draft") -> tuple[Chec
 # --------------------------------------------------------------------------------------
 
 
-def document_checks(doc: Document, *, document: str = "draft", defined: Iterable[str] = (),
+def document_checks(doc: Document, *, document: CheckDocument = "draft", defined: Iterable[str] = (),
                     foreign: Iterable[str] = ()) -> tuple[Check, ...]:
     """The checks one document allows on its own: undefined terms, unused definitions and
     dangling references (*defined* and *foreign* as for :func:`undefined_terms`)."""

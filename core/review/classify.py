@@ -35,9 +35,11 @@ Adjacent hunks separated only by spaces and punctuation are one change (so "thir
 from __future__ import annotations
 
 from bisect import bisect_right
-from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
+from collections.abc import Container, Mapping, Sequence
+from dataclasses import dataclass, field
+from typing import Literal
 
+from ..model import Category
 from .noise import is_blank_fill, label_spans
 from .severity import Signal
 from .tokens import (
@@ -76,13 +78,17 @@ class TermContext:
     #: the precedent's party labels (the draft's are mapped to these names)
     party_labels: frozenset[str] = frozenset()
     #: draft term -> precedent term, for the mapped (renamed) terms
-    mapped: Mapping[str, str] = None  # type: ignore[assignment]
+    mapped: Mapping[str, str] = field(default_factory=dict)
+
+
+#: The changes a word hunk can be (the provision-level ones are core.model.ChangeKind's others).
+WordChange = Literal["insert", "delete", "replace"]
 
 
 @dataclass(frozen=True, slots=True)
 class Change:
-    category: str
-    change: str  # insert | delete | replace
+    category: Category
+    change: WordChange
     p_span: tuple[int, int]  # character offsets in the precedent text (empty for an insert)
     d_span: tuple[int, int]
     detail: str  # e.g. "whitespace", "quote style", "case", "cross-reference", "words"
@@ -137,6 +143,7 @@ def _restyle_changes(a: TokenSeq, b: TokenSeq, op: TokenOp, ctx: TermContext) ->
         kind = a.kinds[i] if a.kinds[i] == b.kinds[j] else ""  # "": a term against a word
         terms: tuple[tuple[str, str], ...] = ()
         note = ""
+        cat: Category
         if kind == KIND_TERM:
             dn = ctx.draft_term_at.get(b.starts[j], tb)
             pn = ctx.precedent_term_at.get(a.starts[i], ta)
@@ -177,7 +184,7 @@ class _Hunk:
     i2: int
     j1: int
     j2: int
-    change: str  # insert | delete | replace
+    change: WordChange
     p_span: tuple[int, int]
     d_span: tuple[int, int]
     wa: list[int]  # word-like tokens of each side
@@ -185,8 +192,10 @@ class _Hunk:
     la: frozenset[int]  # tokens of list labels on each side (the whole text's)
     lb: frozenset[int]
 
-    def mk(self, cat: str, detail: str, **kw) -> Change:
-        return Change(cat, self.change, self.p_span, self.d_span, detail, **kw)
+    def mk(self, cat: Category, detail: str, *, terms: tuple[tuple[str, str], ...] = (),
+           signals: tuple[Signal, ...] = (), note: str = "") -> Change:
+        return Change(cat, self.change, self.p_span, self.d_span, detail, terms=terms,
+                      signals=signals, note=note)
 
     def words(self) -> tuple[str, str]:
         return self.a.text[slice(*self.p_span)], self.b.text[slice(*self.d_span)]
@@ -194,7 +203,7 @@ class _Hunk:
 
 def _hunk(a: TokenSeq, b: TokenSeq, i1: int, i2: int, j1: int, j2: int,
           labels: tuple[frozenset[int], frozenset[int]]) -> _Hunk:
-    change = "insert" if i1 == i2 else ("delete" if j1 == j2 else "replace")
+    change: WordChange = "insert" if i1 == i2 else ("delete" if j1 == j2 else "replace")
     p_span = _trim(a, i1, i2) if i1 < i2 else (a.starts[i1], a.starts[i1])
     d_span = _trim(b, j1, j2) if j1 < j2 else (b.starts[j1], b.starts[j1])
     wa = [i for i in range(i1, i2) if a.kinds[i] in _WORDLIKE]
@@ -255,7 +264,7 @@ def _noise_rule(h: _Hunk, ctx: TermContext) -> Change | None:
         return h.mk("formatting", detail, note=f"{detail} differs")
     a, b = h.a, h.b
 
-    def kept(seq: TokenSeq, lo: int, hi: int, marks: frozenset[int], kinds: str) -> list[str]:
+    def kept(seq: TokenSeq, lo: int, hi: int, marks: frozenset[int], kinds: Container[str]) -> list[str]:
         return [seq.keys[k] for k in range(lo, hi) if seq.kinds[k] in kinds and k not in marks]
 
     ka, kb = kept(a, h.i1, h.i2, h.la, _WORDLIKE), kept(b, h.j1, h.j2, h.lb, _WORDLIKE)

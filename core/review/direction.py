@@ -62,14 +62,16 @@ deviation.
 from __future__ import annotations
 
 import re
-from collections.abc import Iterable, Iterator, Mapping, Sequence
+from collections.abc import Callable, Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass
 from functools import lru_cache
+from typing import Final, Protocol
 
 from ..errors import CounterdraftError
-from ..model import DIRECTIONS, Document, Provision, TermMapping
+from ..model import DIRECTIONS, Direction, Document, Provision, TermMapping
 from .classify import BLANK_FILLED
 from .severity import (
+    Quantity,
     SeverityRules,
     Signal,
     find_quantities,
@@ -87,6 +89,7 @@ __all__ = [
     "RANK_ORDER",
     "UNCLEAR",
     "Judge",
+    "JudgedChange",
     "Parties",
     "direction_rank_key",
     "find_parties",
@@ -94,9 +97,12 @@ __all__ = [
     "resolve_acting_for",
 ]
 
-ADVERSE, FAVOURABLE, NEUTRAL, UNCLEAR = "adverse", "favourable", "neutral", "unclear"
+ADVERSE: Final = "adverse"
+FAVOURABLE: Final = "favourable"
+NEUTRAL: Final = "neutral"
+UNCLEAR: Final = "unclear"
 #: The directions in the order they rank at equal severity.
-RANK_ORDER: tuple[str, ...] = (ADVERSE, UNCLEAR, NEUTRAL, FAVOURABLE)
+RANK_ORDER: tuple[Direction, ...] = (ADVERSE, UNCLEAR, NEUTRAL, FAVOURABLE)
 #: A favourable deviation ranks as if its severity were this share of it: a change in the
 #: acting party's favour needs reading, seldom negotiating, so it should not sit above the
 #: changes against it (the authors' judgement, common practice, no source).
@@ -253,7 +259,8 @@ _WIDEN_RE = re.compile(r"\b(?:including|includes|any\s+and\s+all|and/or|without\
 #: covers more.
 _LIST_ITEM_RE = re.compile(r"^\s*(?:,|and\b|or\b|as\s+well\s+as\b)|(?:,|\band|\bor)\s*$", re.IGNORECASE)
 #: Before a period: a deadline (more time helps whoever must act) ...
-_DEADLINE_RE = re.compile(r"\b(?:within|no\s+later\s+than|not\s+later\s+than|by|before|prior\s+to(?:\s+the\s+end\s+of)?|net|"
+_DEADLINE_RE = re.compile(r"\b(?:within|no\s+later\s+than|not\s+later\s+than|by|before|"
+                          r"prior\s+to(?:\s+the\s+end\s+of)?|net|"
                           r"up\s+to|at\s+the\s+latest|no\s+more\s+than|not\s+more\s+than)\s*$", re.IGNORECASE)
 #: ... how long a duty or right lasts ("for no less than three (3) years", "for a period of")
 _DURATION_RE = re.compile(r"\b(?:for|during|period\s+of|term\s+of|lasting)\s+(?:a\s+(?:further\s+)?period\s+of\s+)?"
@@ -394,7 +401,9 @@ def party_terms(doc: Document) -> tuple[str, ...]:
         if t.span is not None:  # the definition's own sentence and a little before it
             around = around[max(0, t.span[0] - _PERSON_NEAR):t.span[1]]
         person = _describes_a_person(t.term, t.definition) or _named_company(t.term, around)
-        if _names_a_party(t.names) or kinds.get(t.provision) in ("parties", "title") and person or person and sum(_subject_uses(text, n) for n in t.names) >= MIN_SUBJECT_USES:
+        in_front = kinds.get(t.provision) in ("parties", "title")
+        if _names_a_party(t.names) or (in_front and person) or (
+                person and sum(_subject_uses(text, n) for n in t.names) >= MIN_SUBJECT_USES):
             found.append(t.term)
     known = {n.casefold() for t in doc.terms for n in t.names}
     counts: dict[str, int] = {}
@@ -407,7 +416,8 @@ def party_terms(doc: Document) -> tuple[str, ...]:
             continue
         before = text[max(0, m.start() - 40):m.start()]
         prev = re.search(r"(\S+)\s+$", before)
-        if prev is None or re.search(r"[.!?:;]$", prev.group(1)) or re.fullmatch(r"\(?(?:[0-9]+(?:\.[0-9]+)*|[a-z]|[ivx]+)[.)]?\)?", prev.group(1)):
+        if prev is None or re.search(r"[.!?:;]$", prev.group(1)) or re.fullmatch(
+                r"\(?(?:[0-9]+(?:\.[0-9]+)*|[a-z]|[ivx]+)[.)]?\)?", prev.group(1)):
             continue  # the first word of a sentence, a line or a list item
         if prev.group(1)[:1].isupper() and prev.group(1).casefold() not in _DETERMINERS:
             continue  # "The Qt Company", "SNMP Agent"
@@ -503,6 +513,38 @@ class Holding:
 
 
 MUTUAL = "\x00each party"
+#: Where a change sits in a provision's text: ``text[a:b]``.
+Span = tuple[int, int]
+#: A party named in a text: (start, end, the precedent's name of the party).
+_Mention = tuple[int, int, str]
+
+
+class JudgedChange(Protocol):
+    """What :meth:`Judge.judge` reads of a deviation: the fields of
+    :class:`core.model.Deviation` it needs and the ``signals`` the severity rules found."""
+
+    @property
+    def category(self) -> str: ...
+    @property
+    def change(self) -> str: ...
+    @property
+    def part(self) -> str: ...
+    @property
+    def reasons(self) -> tuple[str, ...]: ...
+    @property
+    def draft_text(self) -> str: ...
+    @property
+    def precedent_text(self) -> str: ...
+    @property
+    def draft_provision(self) -> str | None: ...
+    @property
+    def precedent_provision(self) -> str | None: ...
+    @property
+    def draft_span(self) -> Span | None: ...
+    @property
+    def precedent_span(self) -> Span | None: ...
+    @property
+    def signals(self) -> tuple[Signal, ...]: ...
 
 
 #: A clause that only qualifies the one before it ("; provided that ...", "; and ..."):
@@ -526,8 +568,8 @@ def _whole_sentence(text: str, span: tuple[int, int]) -> tuple[int, int]:
     start = 0
     for m in re.finditer(r"(?<=[.!?])\s+(?=[A-Z(\"\u201c0-9])|\n\s*\n", text[:a]):
         start = m.end()
-    m = re.compile(r"(?<=[.!?])\s+(?=[A-Z(\"\u201c0-9])|\n\s*\n").search(text, max(b, start))
-    return start, (m.start() if m else len(text))
+    end = re.compile(r"(?<=[.!?])\s+(?=[A-Z(\"\u201c0-9])|\n\s*\n").search(text, max(b, start))
+    return start, (end.start() if end else len(text))
 
 
 class Judge:
@@ -659,7 +701,8 @@ class Judge:
             return False
         return not _OWED_NOUN_RE.match(text, e)
 
-    def _payer(self, text: str, ms: int, me: int, lo: int, mentions, after) -> str | None:
+    def _payer(self, text: str, ms: int, me: int, lo: int, mentions: Sequence[_Mention],
+               after: Callable[[str, _Mention], bool]) -> str | None:
         """Who owes money that "is due", "is payable", "accrues" or "is refundable": the
         party it is payable by ("payable by Licensee"), else the other side of the party that
         issues the invoice ("invoices issued by the Supplier are due"), else the buying side,
@@ -742,7 +785,7 @@ class Judge:
 
 
     # -- effects --------------------------------------------------------------------------
-    def judge(self, v) -> tuple[str, str | None]:
+    def judge(self, v: JudgedChange) -> tuple[Direction, str | None]:
         """(direction, reason naming the parties or None) of deviation *v*, which has the
         attributes of :class:`core.model.Deviation` and the ``signals`` the rules found."""
         if v.category != "substantive" or v.part == "heading" or v.change == "move":
@@ -756,10 +799,11 @@ class Judge:
             if v.change == "remove-provision":
                 return self._verdict(self._clauses(v.precedent_text, added=False))
             return NEUTRAL, None
-        dp, pp = self._dpos.get(v.draft_provision), self._ppos.get(v.precedent_provision)
+        dp = self._dpos.get(v.draft_provision) if v.draft_provision else None
+        pp = self._ppos.get(v.precedent_provision) if v.precedent_provision else None
         if dp is None or pp is None or v.draft_span is None or v.precedent_span is None:
             return UNCLEAR, None
-        effects = self._text_effects(v, pp, dp)
+        effects = self._text_effects(v, (pp, v.precedent_span), (dp, v.draft_span))
         if not effects and pp.kind in _FORMAL_KINDS:  # the names and dates of the parties
             return NEUTRAL, None
         return self._verdict(effects)
@@ -768,9 +812,10 @@ class Judge:
         parent = doc_pos.get(p.parent) if p.parent else None
         return parent.text if parent is not None else None
 
-    def _text_effects(self, v, pp: Provision, dp: Provision) -> list[_Effect]:
+    def _text_effects(self, v: JudgedChange, precedent: tuple[Provision, Span],
+                      draft: tuple[Provision, Span]) -> list[_Effect]:
+        (pp, ps), (dp, ds) = precedent, draft
         P, D = pp.text, dp.text
-        ps, ds = tuple(v.precedent_span), tuple(v.draft_span)
         hp = self.holding(P, ps, parent_text=self._parent_text(self._ppos, pp))
         hd = self.holding(D, ds, parent_text=self._parent_text(self._dpos, dp))
         h = hd or hp
@@ -792,7 +837,7 @@ class Judge:
             if got is not None:
                 out.append(got)
         if h is None:
-            return out + self._new_clauses(v, P, D, ps, ds)
+            return out + self._new_clauses(P, D, ps, ds)
         for s in v.signals:
             if s.name == "efforts_weakened":
                 out.append(self._effect(h, +1, D, "lowers the efforts standard of"))
@@ -810,9 +855,9 @@ class Judge:
                 any(r.startswith("figure ") for r in v.reasons):
             out += self._figure_effects(h, P, ps, D, ds)
         elif "wording_changed" in names:  # "one copy" -> "two copies": a count in words
-            counts = [_count_in_words(text[a:b]) for text, (a, b) in ((P, ps), (D, ds))]
-            if None not in counts and counts[0] != counts[1]:
-                out.append(_Effect(h.stance if counts[1] > counts[0] else -h.stance, h.holder,
+            old, new = _count_in_words(P[ps[0]:ps[1]]), _count_in_words(D[ds[0]:ds[1]])
+            if old is not None and new is not None and old != new:
+                out.append(_Effect(h.stance if new > old else -h.stance, h.holder,
                                    f"('{_excerpt(D, h.start)}')", h.stance, release=h.release))
             else:  # "twice the fees" for "the fees": a multiple added or removed
                 factor = _multiplier(D[ds[0]:ds[1]]) / _multiplier(P[ps[0]:ps[1]])
@@ -823,7 +868,7 @@ class Judge:
                         out.append(e)
         if not out and names & {"sentence_inserted", "sentence_deleted", "wording_changed",
                                 "obligation_added", "obligation_removed"}:
-            out += self._new_clauses(v, P, D, ps, ds)
+            out += self._new_clauses(P, D, ps, ds)
             if not out:
                 out += self._scope_effects(h, P, ps, D, ds)
         return out
@@ -858,7 +903,7 @@ class Judge:
                        f"('{_excerpt(D, hd.start)}', was '{hp.modal}{' not' if hp.negated else ''}')",
                        hp.stance)
 
-    def _qualifier_effect(self, s: Signal, h: Holding, D: str, ds) -> _Effect | None:
+    def _qualifier_effect(self, s: Signal, h: Holding, D: str, ds: Span) -> _Effect | None:
         quoted = re.findall(r"'([^']*)'", s.reason)
         if not quoted:
             return None
@@ -883,7 +928,7 @@ class Judge:
             narrows = not narrows
         return self._narrowing(h, narrows, D)
 
-    def _in_carve_out(self, text: str, span, h: Holding) -> bool:
+    def _in_carve_out(self, text: str, span: Span, h: Holding) -> bool:
         """Whether *span* lies in an exception of the clause ("unless", "except"): a change
         there works the other way round."""
         lo, _hi = _clause_bounds(text, span)
@@ -891,7 +936,7 @@ class Judge:
         return re.search(r"\b(?:except|excepting|unless|other\s+than|excluding|save\s+(?:as|that|for|where))\b",
                          before, re.IGNORECASE) is not None
 
-    def _in_condition(self, text: str, span, h: Holding) -> bool:
+    def _in_condition(self, text: str, span: Span, h: Holding) -> bool:
         lo, _hi = _clause_bounds(text, span)
         conds = list(_CONDITION_RE.finditer(text, lo, span[0]))
         if not conds:
@@ -899,7 +944,7 @@ class Judge:
         last = conds[-1].end()
         return not (last < h.start < span[0])
 
-    def _conjunction_effect(self, s: Signal, h: Holding, D: str, ds) -> _Effect | None:
+    def _conjunction_effect(self, s: Signal, h: Holding, D: str, ds: Span) -> _Effect | None:
         quoted = re.findall(r"'([^']*)'", s.reason)
         if len(quoted) < 2:
             return None
@@ -920,8 +965,8 @@ class Judge:
             widens = not widens
         return self._narrowing(h, not widens, D)
 
-    def _figure_effects(self, h: Holding, P: str, ps, D: str, ds) -> list[_Effect]:
-        def inside(text: str, span) -> list:
+    def _figure_effects(self, h: Holding, P: str, ps: Span, D: str, ds: Span) -> list[_Effect]:
+        def inside(text: str, span: Span) -> list[Quantity]:
             a, b = span
             qs = find_quantities(text, around=span)
             if a == b:
@@ -950,12 +995,12 @@ class Judge:
                     out.append(e)
         return out
 
-    def _context(self, text: str, q) -> tuple[str, str, str]:
+    def _context(self, text: str, q: Quantity | _Figure) -> tuple[str, str, str]:
         lo, hi = _clause_bounds(text, (q.start, q.end))
         return (text[max(lo, q.start - _FIGURE_CONTEXT):q.start], text[q.end:min(hi, q.end + 30)],
                 text[lo:hi])
 
-    def _figure_effect(self, h: Holding, D: str, q, *, higher: bool) -> _Effect | None:
+    def _figure_effect(self, h: Holding, D: str, q: Quantity | _Figure, *, higher: bool) -> _Effect | None:
         before, after, clause = self._context(D, q)
         what = f"('{_excerpt(D, h.start)}')"
         if q.kind == "duration":
@@ -997,7 +1042,7 @@ class Judge:
                 return owner
         return h.holder
 
-    def _limit_effect(self, h: Holding, text: str, q, *, added: bool) -> _Effect | None:
+    def _limit_effect(self, h: Holding, text: str, q: Quantity | _Figure, *, added: bool) -> _Effect | None:
         """A figure that only one side has: a cap or limit introduced (or dropped)."""
         before, after, clause = self._context(text, q)
         if not (_LIMIT_RE.search(before[-30:]) or _LIMIT_RE.search(after[:15])):
@@ -1008,7 +1053,7 @@ class Judge:
         value = 1 if helps else -1
         return _Effect(value if added else -value, h.holder, f"('{_excerpt(text, h.start)}')", h.stance, "cap")
 
-    def _new_clauses(self, v, P: str, D: str, ps, ds) -> list[_Effect]:
+    def _new_clauses(self, P: str, D: str, ps: Span, ds: Span) -> list[_Effect]:
         """Clauses with their own modal inside the words added (or removed)."""
         out: list[_Effect] = []
         for text, span, added in ((D, ds, True), (P, ps, False)):
@@ -1030,7 +1075,7 @@ class Judge:
                                    h.stance, "clause"))
         return out
 
-    def _scope_effects(self, h: Holding, P: str, ps, D: str, ds) -> list[_Effect]:
+    def _scope_effects(self, h: Holding, P: str, ps: Span, D: str, ds: Span) -> list[_Effect]:
         """Words added or removed that cut an exception out of the clause or widen it."""
         added, removed = D[ds[0]:ds[1]], P[ps[0]:ps[1]]
         score = 0
@@ -1062,11 +1107,11 @@ class Judge:
         return [self._narrowing(h, narrows, D)]
 
     def _clauses(self, text: str, *, added: bool) -> list[_Effect]:
-        return self._new_clauses(None, "" if added else text, text if added else "",
+        return self._new_clauses("" if added else text, text if added else "",
                                  (0, 0 if added else len(text)), (0, len(text) if added else 0))
 
     # -- the verdict ------------------------------------------------------------------------
-    def _verdict(self, effects: Sequence[_Effect]) -> tuple[str, str | None]:
+    def _verdict(self, effects: Sequence[_Effect]) -> tuple[Direction, str | None]:
         known = [(e, self.relative(e.holder)) for e in effects]
         judged = [(e, r) for e, r in known if r is not None]
         if not judged:
@@ -1077,7 +1122,7 @@ class Judge:
         total = sum(e.value * r for e, r in judged)
         if total == 0:
             return UNCLEAR, None
-        direction = FAVOURABLE if total > 0 else ADVERSE
+        direction: Direction = FAVOURABLE if total > 0 else ADVERSE
         lead = next(e for e, r in judged if r != 0 and e.text)
         return direction, f"{self._describe(lead)}: {direction} to the {self.acting_for}" \
             if self.acting_for.casefold() != "you" else f"{self._describe(lead)}: {direction} to You"
@@ -1096,7 +1141,8 @@ class Judge:
         if e.kind == "time":
             return f"{'gives' if e.value > 0 else 'leaves'} {holder} {'more' if e.value > 0 else 'less'} time {e.text}"
         if e.kind == "notice":
-            return f"{'shortens' if e.value > 0 else 'lengthens'} a notice period {holder} must give or wait for {e.text}"
+            change = "shortens" if e.value > 0 else "lengthens"
+            return f"{change} a notice period {holder} must give or wait for {e.text}"
         if e.kind == "cap":
             return f"{'lowers' if e.value > 0 else 'raises'} the limit of {possessive} liability or payment {e.text}"
         if e.stance == BURDEN:
@@ -1152,7 +1198,7 @@ _UNIT_DAYS = {"minutes": 1 / 1440, "hours": 1 / 24, "days": 1.0, "business days"
               "weeks": 7.0, "months": 30.0, "quarters": 91.0, "years": 365.0}
 
 
-def _magnitude(q) -> float:
+def _magnitude(q: Quantity) -> float:
     if q.kind == "duration":
         return q.value * _UNIT_DAYS.get(q.unit, _UNIT_DAYS.get(q.unit.split()[-1], 1.0))
     return q.value

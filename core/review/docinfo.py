@@ -119,7 +119,8 @@ def build_docinfo(doc: Document) -> DocInfo:
             full.append(None)
             continue
         num = "".join(num.split())
-        parent = full[parent_pos[i]] if parent_pos[i] is not None else None
+        pos = parent_pos[i]
+        parent = full[pos] if pos is not None else None
         item = item_label(num)
         if item is not None and parent:
             num = f"{parent}{item}"  # "b)" or "b." under section 6 is item 6(b), as "(b)" is

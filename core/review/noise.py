@@ -86,9 +86,9 @@ def _label_spans(text: str) -> tuple[tuple[int, int], ...]:
         if _LIST_START_BEFORE_RE.search(text, max(0, m.start() - _CONTEXT_CHARS), m.start()):
             spans.add(m.span())
     for k in (0, *(m.end() for m in _SENTENCE_START_RE.finditer(text))):
-        m = _DOTTED_LABEL_RE.match(text, k)
-        if m:
-            spans.add(m.span("label"))
+        label = _DOTTED_LABEL_RE.match(text, k)
+        if label:
+            spans.add(label.span("label"))
     return tuple(sorted(spans))
 
 

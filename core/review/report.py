@@ -16,7 +16,7 @@ from collections import Counter
 from .. import CAUTION
 from ..console import DEFAULT_WIDTH, terminal_width
 from ..labels import check_label, clause_label
-from ..model import Deviation, Review
+from ..model import Category, Deviation, Review
 from .checks import CHECK_KINDS, CHECK_TITLES, CHECKS_HEADING
 
 __all__ = [
@@ -79,7 +79,7 @@ def _heading_lines(review: Review, width: int) -> list[str]:
     dname = review.draft.source.replace("\\", "/").rsplit("/", 1)[-1]
     pname = review.precedent.source.replace("\\", "/").rsplit("/", 1)[-1]
     counts = Counter(v.category for v in review.deviations)
-    order = ("substantive", "completion", "term", "numbering", "punctuation", "formatting")
+    order: tuple[Category, ...] = ("substantive", "completion", "term", "numbering", "punctuation", "formatting")
     status = Counter(p.status for p in review.pairs)
     lines: list[str] = []
     for text in (f"Review of {dname} against the precedent {pname}",

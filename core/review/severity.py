@@ -29,7 +29,7 @@ from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
-from typing import Protocol
+from typing import Any, Protocol, TypeVar
 
 from ..errors import CounterdraftError
 from ..model import Document, Provision
@@ -87,6 +87,16 @@ class ClauseClassifier(Protocol):
     def __call__(self, provision: Provision, document: Document) -> str | None: ...
 
 
+@dataclass(slots=True)
+class _RuleCache:
+    """What a rule set computes once: its keyword index, its phrase patterns by name, and
+    the phrase matches of each text by pattern name."""
+
+    keywords: list[tuple[str, str]] | None = None
+    patterns: dict[str, re.Pattern[str]] = field(default_factory=dict)
+    texts: dict[str, dict[str, _Found]] = field(default_factory=dict)
+
+
 @dataclass(frozen=True, slots=True)
 class SeverityRules:
     signals: Mapping[str, float]
@@ -104,7 +114,7 @@ class SeverityRules:
     #: file): "formatting" or "substantive".
     heading_added_or_removed: str = "formatting"
     source: str = "built-in"
-    _cache: dict = field(default_factory=dict, compare=False, repr=False)
+    _cache: _RuleCache = field(default_factory=lambda: _RuleCache(), compare=False, repr=False)
 
     def weight(self, clause_type: str | None, kind: str) -> float:
         if kind in self.kind_weights:
@@ -130,6 +140,21 @@ def _number(path: str, where: str, value: object, lo: float, hi: float) -> float
     return float(value)
 
 
+def _scores(path: str, data: Mapping[str, Any], table: str, required: Sequence[str],
+            optional: Mapping[str, float]) -> dict[str, float]:
+    """The points 0..100 of table *table*: every key of *required*, and those of *optional*
+    with their defaults when the file leaves them out."""
+    values = data[table]
+    scores: dict[str, float] = {}
+    for k in required:
+        if k not in values:
+            raise _fail(path, f"missing {table}.{k}")
+        scores[k] = _number(path, f"{table}.{k}", values[k], 0, 100)
+    for k, default in optional.items():
+        scores[k] = _number(path, f"{table}.{k}", values.get(k, default), 0, 100)
+    return scores
+
+
 def load_rules(path: str | Path | None = None) -> SeverityRules:
     """Read and check a severity rule file (default: ``resources/severity.toml``)."""
     p = Path(path) if path is not None else DEFAULT_RULES_PATH
@@ -148,20 +173,8 @@ def load_rules(path: str | Path | None = None) -> SeverityRules:
                     "clause_type_keywords", "obligation", "negation", "qualifiers"):
         if not isinstance(data.get(section), dict):
             raise _fail(sp, f"missing table [{section}]")
-    signals = {}
-    for k in _SIGNALS:
-        if k not in data["signals"]:
-            raise _fail(sp, f"missing signals.{k}")
-        signals[k] = _number(sp, f"signals.{k}", data["signals"][k], 0, 100)
-    for k, default in _OPTIONAL_SIGNALS.items():
-        signals[k] = _number(sp, f"signals.{k}", data["signals"].get(k, default), 0, 100)
-    categories = {}
-    for k in _CATEGORY_KEYS:
-        if k not in data["categories"]:
-            raise _fail(sp, f"missing categories.{k}")
-        categories[k] = _number(sp, f"categories.{k}", data["categories"][k], 0, 100)
-    for k, default in _OPTIONAL_CATEGORY_KEYS.items():
-        categories[k] = _number(sp, f"categories.{k}", data["categories"].get(k, default), 0, 100)
+    signals = _scores(sp, data, "signals", _SIGNALS, _OPTIONAL_SIGNALS)
+    categories = _scores(sp, data, "categories", _CATEGORY_KEYS, _OPTIONAL_CATEGORY_KEYS)
     weights = {k: _number(sp, f"weights.{k}", v, 0, 10) for k, v in data["weights"].items()}
     kind_weights = {k: _number(sp, f"kind_weights.{k}", v, 0, 10)
                     for k, v in data["kind_weights"].items()}
@@ -201,12 +214,12 @@ def _default_rules() -> SeverityRules:
 def _keyword_index(rules: SeverityRules) -> list[tuple[str, str]]:
     """(keyword with single spaces, clause type), longest keyword first (a stable sort: the
     rule file's order among keywords of one length)."""
-    idx = rules._cache.get("keywords")
+    idx = rules._cache.keywords
     if idx is None:
-        idx = sorted(((" ".join(w.split()), ctype, len(w))
-                      for ctype, words in rules.clause_type_keywords.items() for w in words),
-                     key=lambda t: -t[2])
-        idx = rules._cache["keywords"] = [(w, ctype) for w, ctype, _n in idx]
+        by_length = sorted(((" ".join(w.split()), ctype, len(w))
+                            for ctype, words in rules.clause_type_keywords.items() for w in words),
+                           key=lambda t: -t[2])
+        idx = rules._cache.keywords = [(w, ctype) for w, ctype, _n in by_length]
     return idx
 
 
@@ -488,6 +501,13 @@ def _efforts_matches(text: str) -> tuple[tuple[int, int, str], ...]:
 
 
 
+_T = TypeVar("_T")
+#: A phrase found in a text: (start, end, the phrase in lower case, single-spaced).
+_PhraseMatch = tuple[int, int, str]
+#: Where a change sits in a text: ``text[a:b]``.
+Span = tuple[int, int]
+
+
 class _Found:
     """The phrase matches of one text, in the order found, indexed by start so that those
     near a span are found by bisection (a long provision rewritten has hundreds of changes;
@@ -509,14 +529,13 @@ class _Found:
 
 
 def _matches(rules: SeverityRules, name: str, text: str) -> _Found:
-    key = ("re", name)
-    pat = rules._cache.get(key)
+    pat = rules._cache.patterns.get(name)
     if pat is None:
         phrases = {"obligation": rules.strong + rules.weak, "negation": rules.negations,
                    "qualifier": rules.qualifiers}[name]
         pat = _phrase_re(phrases)
-        rules._cache[key] = pat
-    tcache = rules._cache.setdefault(("text", name), {})
+        rules._cache.patterns[name] = pat
+    tcache = rules._cache.texts.setdefault(name, {})
     hit = tcache.get(text)
     if hit is None:
         items = [(m.start(), m.end(), " ".join(m.group().lower().split())) for m in pat.finditer(text)]
@@ -535,7 +554,7 @@ def _matches(rules: SeverityRules, name: str, text: str) -> _Found:
     return hit
 
 
-def _inside(items, span: tuple[int, int]):
+def _inside(items: Sequence[tuple[int, int, _T]], span: Span) -> list[tuple[int, int, _T]]:
     a, b = span
     if a == b:  # an insertion point: only what strictly surrounds it
         return [it for it in items if it[0] < a < it[1]]
@@ -550,6 +569,11 @@ class Signal:
 
 def _quote(s: str) -> str:
     return f"'{s}'"
+
+
+def _bare(q: Quantity) -> str:
+    """A duration's figure without its unit ("30" of "30 days")."""
+    return q.display().rsplit(" ", len(q.unit.split()))[0]
 
 
 def _figure_signals(p_text: str, p_span: tuple[int, int], d_text: str, d_span: tuple[int, int]
@@ -575,8 +599,7 @@ def _figure_signals(p_text: str, p_span: tuple[int, int], d_text: str, d_span: t
             if kind == "duration" and a.unit != b.unit and a.value == b.value:
                 reason = f"{label} changed from {a.display()} to {b.display()}"
             elif kind == "duration" and a.unit == b.unit:
-                v = lambda q: q.display().rsplit(" ", len(q.unit.split()))[0]  # noqa: E731
-                reason = f"{label} changed from {v(a)} to {v(b)} {a.unit}{trend}"
+                reason = f"{label} changed from {_bare(a)} to {_bare(b)} {a.unit}{trend}"
             else:
                 reason = f"{label} changed from {a.display()} to {b.display()}{trend}"
             out.append(Signal("number_changed", reason))
@@ -587,7 +610,7 @@ def _figure_signals(p_text: str, p_span: tuple[int, int], d_text: str, d_span: t
     return out
 
 
-def _obligation_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
+def _obligation_signals(rules: SeverityRules, p_text: str, p_span: Span, d_text: str, d_span: Span) -> list[Signal]:
     strong = set(rules.strong)
     po = [m[2] for m in _inside(_matches(rules, "obligation", p_text).near(p_span), p_span)]
     do = [m[2] for m in _inside(_matches(rules, "obligation", d_text).near(d_span), d_span)]
@@ -608,7 +631,7 @@ def _obligation_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, 
     return []
 
 
-def _negation_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
+def _negation_signals(rules: SeverityRules, p_text: str, p_span: Span, d_text: str, d_span: Span) -> list[Signal]:
     pn = [m[2] for m in _inside(_matches(rules, "negation", p_text).near(p_span), p_span)]
     dn = [m[2] for m in _inside(_matches(rules, "negation", d_text).near(d_span), d_span)]
     if len(dn) > len(pn):
@@ -620,13 +643,13 @@ def _negation_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_
     return []
 
 
-def _qualifier_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
+def _qualifier_signals(rules: SeverityRules, p_text: str, p_span: Span, d_text: str, d_span: Span) -> list[Signal]:
     pm = _matches(rules, "qualifier", p_text).near(p_span)
     dm = _matches(rules, "qualifier", d_text).near(d_span)
     pq = [m[2] for m in _inside(pm, p_span)]
     dq = [m[2] for m in _inside(dm, d_span)]
 
-    def touching(items, span, others):
+    def touching(items: Sequence[_PhraseMatch], span: Span, others: Sequence[str]) -> list[str]:
         a, b = span
         if a != b:
             return []
@@ -644,7 +667,7 @@ def _qualifier_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d
     return out
 
 
-def _efforts_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
+def _efforts_signals(rules: SeverityRules, p_text: str, p_span: Span, d_text: str, d_span: Span) -> list[Signal]:
     """An efforts standard raised or lowered ("reasonable endeavours" -> "commercially
     reasonable endeavours"): a qualifier of the obligation, reported as what it does to the
     standard, not as obligation words removed."""
@@ -684,12 +707,12 @@ def sentence_bounds(text: str, span: tuple[int, int]) -> tuple[int, int]:
     starts, ends = _sentence_breaks(text)
     last = bisect_left(starts, a) - 1  # the last break starting before *a* (cut at *a*)
     start = min(ends[last], a) if last >= 0 else 0
-    m = _SENTENCE_BREAK_RE.search(text, max(b, start))
-    end = m.start() if m else len(text)
+    after = _SENTENCE_BREAK_RE.search(text, max(b, start))
+    end = after.start() if after else len(text)
     return start, max(end, b)
 
 
-def _conjunction_signals(rules: SeverityRules, p_text: str, p_span, d_text: str, d_span) -> list[Signal]:
+def _conjunction_signals(rules: SeverityRules, p_text: str, p_span: Span, d_text: str, d_span: Span) -> list[Signal]:
     """"and" <-> "or" (and "any"/"all", "each"/"either", ...) when it is the whole change;
     ranked high inside an obligation, where it can change who must do what."""
     pw = [w.lower() for w in _CONJ_TOKEN_RE.findall(p_text[p_span[0]:p_span[1]])]
@@ -722,7 +745,7 @@ LAW_FORUM_TYPES = frozenset({"governing_law", "dispute_resolution"})
 LAW_FORUM_WINDOW = 80
 
 
-def _law_forum_signal(p_text: str, p_span, d_text: str, d_span, clause_type: str | None,
+def _law_forum_signal(p_text: str, p_span: Span, d_text: str, d_span: Span, clause_type: str | None,
                       signals: Sequence[Signal]) -> Signal | None:
     """A change of the governing law or of the forum for disputes: a name or words changed
     in a sentence that chooses a law or a court, in a governing-law or dispute clause or
@@ -756,7 +779,7 @@ _LATE_RE = re.compile(r"\b(?:late|overdue|unpaid|outstanding|due\s+date|arrears|
                       re.IGNORECASE)
 
 
-def _interest_signals(d_text: str, d_span, signals: list[Signal]) -> list[Signal]:
+def _interest_signals(d_text: str, d_span: Span, signals: list[Signal]) -> list[Signal]:
     """A changed percentage in a sentence about interest is a change of the interest rate:
     it matters less than the sum or the date it runs on (statutes supply interest on late
     commercial payments where a contract gives none -- e.g. the UK's Late Payment of
@@ -932,8 +955,7 @@ def clear_caches(rules: SeverityRules | None = None) -> None:
     _sentence_breaks.cache_clear()
     for r in (rules, _default_rules()):
         if r is not None:
-            for k in [k for k in r._cache if isinstance(k, tuple) and k[0] == "text"]:
-                del r._cache[k]
+            r._cache.texts.clear()
 
 
 def figure_severity(reasons: Sequence[str], *, clause_type: str | None, kind: str,

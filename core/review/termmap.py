@@ -55,12 +55,11 @@ import math
 from collections import Counter
 from collections.abc import Callable, Collection, Iterable, Mapping, Sequence
 from dataclasses import dataclass
-from typing import Literal, Protocol, runtime_checkable
+from typing import Protocol, runtime_checkable
 
 from rapidfuzz.distance import Indel
 
-from ..errors import CounterdraftError
-from ..model import TermMapping
+from ..model import Evidence, TermMapping, TermOverride  # TermOverride: re-exported (it lived here)
 from ..terms import term_forms
 from .assignment import max_weight_assignment
 from .docinfo import DocInfo, party_role
@@ -156,24 +155,6 @@ class VocabularyModel(Protocol):
     engineer).  ``similarity`` is about 0..1, or None when a word is unknown."""
 
     def similarity(self, a: str, b: str) -> float | None: ...
-
-
-@dataclass(frozen=True, slots=True)
-class TermOverride:
-    """A reviewer's decision: ``confirm`` or ``add`` the mapping draft -> precedent, or
-    ``reject`` it (``precedent=None`` rejects every mapping of the draft term)."""
-
-    draft: str
-    precedent: str | None = None
-    action: Literal["confirm", "reject", "add"] = "confirm"
-
-    def __post_init__(self) -> None:
-        if self.action not in ("confirm", "reject", "add"):
-            raise CounterdraftError(f"term override: unknown action {self.action!r}")
-        if not self.draft.strip():
-            raise CounterdraftError("term override: empty draft term")
-        if self.action != "reject" and not (self.precedent or "").strip():
-            raise CounterdraftError(f"term override: {self.action} needs a precedent term")
 
 
 @dataclass(frozen=True, slots=True)
@@ -316,8 +297,8 @@ def _side_name(seq: TokenSeq, idx: Sequence[int], *, lone_word: bool) -> tuple[s
     """The name the tokens *idx* of *seq* write (a defined name or words), and whether it
     is capitalised; None when they are no name."""
     if len(idx) == 1 and seq.kinds[idx[0]] == KIND_TERM:
-        name = _term_name_of_key(seq.keys[idx[0]])
-        return name, name[:1].isupper()
+        term = _term_name_of_key(seq.keys[idx[0]])
+        return term, term[:1].isupper()
     if any(seq.kinds[i] not in ("w", KIND_TERM) for i in idx):
         return None
     # a defined name inside a longer one ("Apache License") counts as the words it writes
@@ -613,7 +594,7 @@ def _candidates(draft: DocInfo, precedent: DocInfo, uses: tuple[Mapping[str, int
 
 def _assign(rows: Sequence[str], cols: Sequence[str], ev: _Evidence, draft: DocInfo,
             precedent: DocInfo, rejected: set[tuple[str, str | None]],
-            renames: Mapping[tuple[str, str], Rename]) -> dict[str, tuple[str, float, tuple[str, ...]]]:
+            renames: Mapping[tuple[str, str], Rename]) -> dict[str, tuple[str, float, tuple[Evidence, ...]]]:
     """The one-to-one choice (maximum-weight assignment) among the candidate pairs."""
     col_of = {n: c for c, n in enumerate(cols)}
     weight = [[0.0] * len(cols) for _ in rows]
@@ -636,7 +617,7 @@ def _assign(rows: Sequence[str], cols: Sequence[str], ev: _Evidence, draft: DocI
             if scores:
                 evidence[(dn, pn)] = scores
                 weight[r][c] = _confidence(scores)
-    chosen: dict[str, tuple[str, float, tuple[str, ...]]] = {}
+    chosen: dict[str, tuple[str, float, tuple[Evidence, ...]]] = {}
     if rows and cols and evidence:
         for r, c in max_weight_assignment(weight):
             if weight[r][c] >= MAP_MIN:
@@ -646,7 +627,7 @@ def _assign(rows: Sequence[str], cols: Sequence[str], ev: _Evidence, draft: DocI
     return chosen
 
 
-_EVIDENCE_ORDER = ("definition", "substitution", "embedding")
+_EVIDENCE_ORDER: tuple[Evidence, ...] = ("definition", "substitution", "embedding")
 
 
 def map_terms(draft: DocInfo, precedent: DocInfo, *, overrides: Sequence[TermOverride] = (),

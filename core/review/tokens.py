@@ -19,8 +19,9 @@ from collections.abc import Callable, Collection, Container, Iterable, Mapping, 
 from dataclasses import dataclass
 from itertools import accumulate
 from operator import itemgetter
+from typing import cast
 
-from ..terms import REGEX_FORMS_MAX, char_trie, term_owners, walk_forms
+from ..terms import REGEX_FORMS_MAX, CharTrie, char_trie, term_owners, walk_forms
 
 __all__ = [
     "DASHES",
@@ -162,9 +163,10 @@ def tokenize(text: str, specials: Sequence[Special] = ()) -> TokenSeq:
         if not toks:
             return
         # the loops run in map(), over the cache of known tokens (most of a text's tokens)
-        got = list(map(_TOKEN_INFO.get, toks))
-        if None in got:
-            got = [g if g is not None else _info(t) for g, t in zip(got, toks)]
+        cached = list(map(_TOKEN_INFO.get, toks))
+        got: list[tuple[str, str]] = (
+            [g if g is not None else _info(t) for g, t in zip(cached, toks, strict=True)]
+            if None in cached else cast("list[tuple[str, str]]", cached))  # no None: all found
         starts.extend(accumulate(map(len, toks[:-1]), initial=a))
         keys.extend(map(itemgetter(0), got))
         kinds.extend(map(itemgetter(1), got))
@@ -319,7 +321,7 @@ class TermMatcher:
     #: For many names (over :data:`core.terms.REGEX_FORMS_MAX` forms) a character trie
     #: walked in Python (:func:`core.terms.walk_forms`) instead of the pattern, whose
     #: compilation grows too slow.
-    trie: dict | None = None
+    trie: CharTrie | None = None
 
 
 
@@ -330,34 +332,27 @@ _POSSESSIVE = r"(?P<pos>['\u2019][sS](?!\w)|(?<=[sS])['\u2019](?!\w))?(?!\w)"
 def _trie_regex(forms: Iterable[str]) -> str:
     """A regex matching any of *forms*, the longest first at each position.  Built with an
     explicit stack (depth bounded by the longest form, at most a few dozen characters)."""
-    root: dict[str, dict] = {}
-    for f in forms:
-        node = root
-        for ch in f:
-            node = node.setdefault(ch, {})
-        node[""] = {}
+    root = char_trie(forms)
 
-    def render(node: dict[str, dict], parts: dict[int, str]) -> str:
-        alts = [(r"\s+" if ch == " " else re.escape(ch)) + parts[id(node[ch])]
-                for ch in sorted(k for k in node if k)]
+    def render(node: CharTrie, parts: dict[int, str]) -> str:
+        alts = [(r"\s+" if ch == " " else re.escape(ch)) + parts[id(child)]
+                for ch, child in sorted(node.children.items())]
         if not alts:
             return ""
-        if len(alts) == 1 and "" not in node:
+        if len(alts) == 1 and node.form is None:
             return alts[0]
-        return "(?:" + "|".join(alts) + ")" + ("?" if "" in node else "")
+        return "(?:" + "|".join(alts) + ")" + ("?" if node.form is not None else "")
 
     # post-order over the trie without recursion
     parts: dict[int, str] = {}
-    stack: list[tuple[dict[str, dict], bool]] = [(root, False)]
+    stack: list[tuple[CharTrie, bool]] = [(root, False)]
     while stack:
         node, done = stack.pop()
         if done:
             parts[id(node)] = render(node, parts)
             continue
         stack.append((node, True))
-        for k, child in node.items():
-            if k:
-                stack.append((child, False))
+        stack.extend((child, False) for child in node.children.values())
     return parts[id(root)]
 
 

@@ -33,19 +33,20 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from functools import lru_cache
+from typing import Literal
 
 from diff_match_patch import diff_match_patch
 from rapidfuzz.distance import Indel
 
-from ..model import Edit
+from ..model import Edit, EditTag
 from .tokens import KIND_TERM, KIND_XREF, TokenSeq, tokenize
 
 #: Token kinds that are words (word, number, defined-term use, cross-reference).
 _WORDLIKE = frozenset("wntx")
 
-__all__ = ["MYERS_BUDGET", "MYERS_SQUARE_WEIGHT", "TokenOp", "clear_diff_cache", "diff_texts",
+__all__ = ["MYERS_BUDGET", "MYERS_SQUARE_WEIGHT", "TokenOp", "TokenTag", "clear_diff_cache", "diff_texts",
            "edits_from_ops", "exact_diff", "pair_edits_from_ops", "semantic_cleanup", "token_ops"]
 
 # Private-use areas (Unicode 15.0 section 23.5): the BMP area, then planes 15 and 16.
@@ -82,6 +83,10 @@ def _pua(n: int) -> str:
     raise ValueError("more distinct words in one provision pair than private-use code points")
 
 
+#: The tags of a token op: difflib's four, and ``restyle``.
+TokenTag = Literal["equal", "insert", "delete", "replace", "restyle"]
+
+
 @dataclass(frozen=True, slots=True)
 class TokenOp:
     """``a`` tokens i1..i2 became ``b`` tokens j1..j2.
@@ -91,7 +96,7 @@ class TokenOp:
     cross-reference; always the same number of tokens on both sides, some of which may be
     identical)."""
 
-    tag: str
+    tag: TokenTag
     i1: int
     i2: int
     j1: int
@@ -175,8 +180,9 @@ def _exact_diff(sa: str, sb: str) -> tuple[tuple[int, str], ...]:
     if cap >= 0 and Indel.distance(sa, sb, score_cutoff=cap) <= cap:
         return tuple(_dmp().diff_main(sa, sb, False))
     diffs: list[tuple[int, str]] = []
-    for tag, i1, i2, j1, j2 in Indel.opcodes(sa, sb):
-        if tag == "equal":
+    for opcode in Indel.opcodes(sa, sb):
+        i1, i2, j1, j2 = opcode.src_start, opcode.src_end, opcode.dest_start, opcode.dest_end
+        if opcode.tag == "equal":
             diffs.append((0, sa[i1:i2]))
             continue
         if i2 > i1:
@@ -201,53 +207,71 @@ def semantic_cleanup(diffs: list[tuple[int, str]]) -> list[tuple[int, str]]:
     return _split_overlaps(dmp, out)
 
 
+@dataclass(slots=True)
+class _EditRun:
+    """A run of edits between two equalities: the deleted and the inserted parts, and
+    their lengths."""
+
+    deleted: list[str] = field(default_factory=list)
+    inserted: list[str] = field(default_factory=list)
+    deleted_len: int = 0
+    inserted_len: int = 0
+
+    def add(self, op: int, text: str) -> None:
+        if op < 0:
+            self.deleted.append(text)
+            self.deleted_len += len(text)
+        else:
+            self.inserted.append(text)
+            self.inserted_len += len(text)
+
+    def longest(self) -> int:
+        return max(self.deleted_len, self.inserted_len)
+
+
 def _eliminate_equalities(diffs: list[tuple[int, str]]) -> tuple[list[tuple[int, str]], bool]:
     """The first pass of the semantic clean-up: an equality no longer than the edits on
     each side of it (the longer of the deleted and inserted text, between it and the next
     equality) becomes a deletion and an insertion, and the equality before it is looked at
     again.  A stack of equalities and edit runs; each entry is pushed once and merged at
     most once, so O(entries).  Returns *diffs* itself when nothing was eliminated."""
-    # stack entries: (0, text) for an equality; [1, deleted parts, inserted parts,
-    # deleted length, inserted length] for a run of edits
-    stack: list = []
+    # stack entries: an equality's text, or a run of edits
+    stack: list[str | _EditRun] = []
     changed = False
     for op, text in diffs:
         if op == 0:
-            stack.append((0, text))
+            stack.append(text)
             continue
-        if stack and stack[-1][0] == 1:
-            run = stack[-1]
+        top = stack[-1] if stack else None
+        if isinstance(top, _EditRun):
+            run = top
         else:
-            run = [1, [], [], 0, 0]
+            run = _EditRun()
             stack.append(run)
-        if op < 0:
-            run[1].append(text)
-            run[3] += len(text)
-        else:
-            run[2].append(text)
-            run[4] += len(text)
-        while len(stack) >= 2 and stack[-2][0] == 0:
-            after = stack[-1]
-            equal = stack[-2][1]
-            before = stack[-3] if len(stack) >= 3 and stack[-3][0] == 1 else None
-            if not (equal and before is not None and len(equal) <= max(before[3], before[4])
-                    and len(equal) <= max(after[3], after[4])):
+        run.add(op, text)
+        while len(stack) >= 2 and isinstance(stack[-2], str):
+            after, equal = stack[-1], stack[-2]
+            before = stack[-3] if len(stack) >= 3 else None
+            if not (equal and isinstance(before, _EditRun) and isinstance(after, _EditRun)
+                    and len(equal) <= before.longest() and len(equal) <= after.longest()):
                 break
             del stack[-3:]
-            stack.append([1, [*before[1], equal, *after[1]], [*before[2], equal, *after[2]],
-                          before[3] + len(equal) + after[3], before[4] + len(equal) + after[4]])
+            stack.append(_EditRun([*before.deleted, equal, *after.deleted],
+                                  [*before.inserted, equal, *after.inserted],
+                                  before.deleted_len + len(equal) + after.deleted_len,
+                                  before.inserted_len + len(equal) + after.inserted_len))
             changed = True
     if not changed:
         return list(diffs), False
     out: list[tuple[int, str]] = []
     for entry in stack:
-        if entry[0] == 0:
-            out.append(entry)
+        if isinstance(entry, str):
+            out.append((0, entry))
             continue
-        if entry[3]:
-            out.append((-1, "".join(entry[1])))
-        if entry[4]:
-            out.append((1, "".join(entry[2])))
+        if entry.deleted_len:
+            out.append((-1, "".join(entry.deleted)))
+        if entry.inserted_len:
+            out.append((1, "".join(entry.inserted)))
     return out, True
 
 
@@ -284,7 +308,7 @@ def _ops(diffs: Sequence[tuple[int, str]]) -> list[TokenOp]:
     def flush() -> None:
         nonlocal i, j, pend_del, pend_ins
         if pend_del or pend_ins:
-            tag = "replace" if pend_del and pend_ins else ("delete" if pend_del else "insert")
+            tag: TokenTag = "replace" if pend_del and pend_ins else ("delete" if pend_del else "insert")
             raw.append(TokenOp(tag, i, i + pend_del, j, j + pend_ins))
             i += pend_del
             j += pend_ins
@@ -340,7 +364,7 @@ def _edit_op(i1: int, i2: int, j1: int, j2: int) -> list[TokenOp]:
     """The op for tokens i1..i2 becoming j1..j2 (none when both are empty)."""
     if i1 == i2 and j1 == j2:
         return []
-    tag = "replace" if i1 < i2 and j1 < j2 else ("delete" if i1 < i2 else "insert")
+    tag: TokenTag = "replace" if i1 < i2 and j1 < j2 else ("delete" if i1 < i2 else "insert")
     return [TokenOp(tag, i1, i2, j1, j2)]
 
 
@@ -383,7 +407,7 @@ def edits_from_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp]) -> list[Edi
     for op in ops:
         p1, p2 = a.span(op.i1, op.i2)
         d1, d2 = b.span(op.j1, op.j2)
-        tag = "replace" if op.tag == "restyle" else op.tag
+        tag: EditTag = "replace" if op.tag == "restyle" else op.tag
         if edits and edits[-1].tag == tag == "equal":
             prev = edits.pop()
             edits.append(Edit("equal", prev.p1, p2, prev.d1, d2))
@@ -403,7 +427,7 @@ def pair_edits_from_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp]) -> tup
     out: list[Edit] = []
     whole: list[bool] = []  # per hunk of out: a term use or cross-reference on its own
 
-    def push(tag: str, p1: int, p2: int, d1: int, d2: int, alone: bool = False,
+    def push(tag: EditTag, p1: int, p2: int, d1: int, d2: int, alone: bool = False,
              restyle: bool = False) -> None:
         if p1 == p2 and d1 == d2:
             return

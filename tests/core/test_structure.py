@@ -434,7 +434,8 @@ def test_kinds_of_a_whole_agreement():
     ]
     delivery = doc.provisions[9]
     # the unnumbered paragraph after a definition belongs to it
-    assert delivery.text == "“Delivery Date” shall mean the date in the order.\nThe Delivery Date may be moved by agreement."
+    assert delivery.text == ("“Delivery Date” shall mean the date in the order.\n"
+                             "The Delivery Date may be moved by agreement.")
     assert delivery.parent == doc.provisions[7].id
     assert doc.provisions[7].text == "In this Agreement:"
     assert doc.provisions[12].text.endswith("Signed by Mara Tollin for Quillmere Fabrication Limited")

@@ -64,7 +64,8 @@ def test_a_wrapped_line_that_starts_with_a_label_continues_when_it_could_not_fit
             "(1) assert copyright on the software, and (2) offer you this licence\n"
             "giving you legal permission to copy it.\n\n"
             "Second paragraph of ordinary wrapped text that is long enough to wrap\nagain here.\n")
-    assert texts(text)[0].startswith("Developers that use the licence protect your rights with two steps and (1) assert")
+    assert texts(text)[0].startswith(
+        "Developers that use the licence protect your rights with two steps and (1) assert")
 
 
 def test_lower_case_line_continues_a_short_line():

@@ -6,8 +6,9 @@ from __future__ import annotations
 import importlib.resources
 import re
 import textwrap
+from collections.abc import Sequence
 
-from core.model import Deviation, Document, Review
+from core.model import Deviation, Document, Edit, Review
 from core.reader import read_text
 
 LICENCES = ("apache-2.0", "gpl-3.0", "mpl-2.0")
@@ -52,3 +53,21 @@ def replace_once(text: str, old: str, new: str) -> str:
     m = re.search(pattern, text)
     assert m is not None, old
     return text[:m.start()] + new + text[m.end():]
+
+
+def check_tiling(edits: Sequence[Edit], a: str, b: str) -> None:
+    """core.model's invariant of Pair.edits: the hunks tile both original texts in order."""
+    p = d = 0
+    for e in edits:
+        assert (e.p1, e.d1) == (p, d)
+        if e.tag == "equal":
+            assert a[e.p1:e.p2] == b[e.d1:e.d2]
+        elif e.tag == "insert":
+            assert e.p1 == e.p2 and e.d2 > e.d1
+        elif e.tag == "delete":
+            assert e.d1 == e.d2 and e.p2 > e.p1
+        else:
+            assert e.tag == "replace" and e.p2 > e.p1 and e.d2 > e.d1
+        p, d = e.p2, e.d2
+    assert (p, d) == (len(a), len(b))
+    assert "".join(a[e.p1:e.p2] for e in edits) == a and "".join(b[e.d1:e.d2] for e in edits) == b

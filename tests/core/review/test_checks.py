@@ -81,7 +81,8 @@ def test_a_well_drafted_agreement_raises_nothing() -> None:
 def test_each_kind_on_an_invented_agreement() -> None:
     draft = (HOUSE
              .replace("2.1 The Supplier shall deliver", "2.1 The Supplier shall deliver the Spare Parts and")
-             .replace("1.3 \"Order Form\" means", "1.4 \"Warranty Period\" means twelve months.\n\n    1.3 \"Order Form\" means")
+             .replace("1.3 \"Order Form\" means",
+                      "1.4 \"Warranty Period\" means twelve months.\n\n    1.3 \"Order Form\" means")
              .replace("Subject to clause 3.1", "Subject to clause 7.4")
              .replace("the goods described in Schedule 1.", "the goods described in Schedule 1 and their parts."))
     checks = run_review(doc(draft), doc(HOUSE)).checks

@@ -14,6 +14,8 @@ import pytest
 from core.reader import read_document
 from core.review import run_review
 
+from .helpers import check_tiling
+
 DEMO = Path(__file__).resolve().parents[3] / "demo_agreements"
 
 
@@ -105,24 +107,6 @@ def test_renumbering_is_never_substantive(review):
                         and _REFERENCE.match(v.draft_text.strip())), v
 
 
-def _check_tiling(edits, a: str, b: str) -> None:
-    """core.model's invariant of Pair.edits: the hunks tile both original texts in order."""
-    p = d = 0
-    for e in edits:
-        assert (e.p1, e.d1) == (p, d)
-        if e.tag == "equal":
-            assert a[e.p1:e.p2] == b[e.d1:e.d2]
-        elif e.tag == "insert":
-            assert e.p1 == e.p2 and e.d2 > e.d1
-        elif e.tag == "delete":
-            assert e.d1 == e.d2 and e.p2 > e.p1
-        else:
-            assert e.tag == "replace" and e.p2 > e.p1 and e.d2 > e.d1
-        p, d = e.p2, e.d2
-    assert (p, d) == (len(a), len(b))
-    assert "".join(a[e.p1:e.p2] for e in edits) == a and "".join(b[e.d1:e.d2] for e in edits) == b
-
-
 _XREF_HUNK = re.compile(r"^(?:(?:clause|section|article|schedule|paragraph)s?\s+)?\d", re.IGNORECASE)
 
 
@@ -139,7 +123,7 @@ def test_every_aligned_pair_carries_its_word_diff_on_the_original_texts(scenario
     for pair in two_sided:
         a = review.precedent.provision(pair.precedent).text
         b = review.draft.provision(pair.draft).text
-        _check_tiling(pair.edits, a, b)
+        check_tiling(pair.edits, a, b)
         if pair.status != "same":
             continue
         for e in pair.edits:

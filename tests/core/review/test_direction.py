@@ -5,11 +5,12 @@ Source of every text here: the licence texts shipped in the PyPI package
 ``licensedcode-data`` (``licensedcode/data/licenses/<key>.LICENSE``), each named beside its
 plants: two end-user licence agreements between a "Licensor" and a "Licensee" --
 ``agentxpp.LICENSE`` (LICENSOR / LICENSEE, in capitals) and ``appfire-eula.LICENSE``
-(Licensor / Licensee, who is also "you") -- a commercial software licence, ``solace-software-eula-2020.LICENSE`` (its licensor is
-defined by name, "SOLACE", and the other side as "Licensee"), and a free-software licence
-written as a contract between a Licensor and a Licensee, ``cecill-2.1.LICENSE``, and the
-Mozilla Public License 2.0, ``mpl-2.0.LICENSE``, whose licensee is "You" (or "Your") and
-whose licensors are the Contributors.
+(Licensor / Licensee, who is also "you") -- a commercial software licence,
+``solace-software-eula-2020.LICENSE`` (its licensor is defined by name, "SOLACE", and the
+other side as "Licensee"), and a free-software licence written as a contract between a
+Licensor and a Licensee, ``cecill-2.1.LICENSE``, and the Mozilla Public License 2.0,
+``mpl-2.0.LICENSE``, whose licensee is "You" (or "Your") and whose licensors are the
+Contributors.
 
 Each test plants edits whose direction a reader of the clause can tell (which party's
 obligation, right, cap, period or payment changed, and which way: the expectation is the
@@ -59,7 +60,8 @@ AGENTXPP_PLANTS = (
     Plant("for  a  period ending 90   days following", "for a period ending 30 days following",
           "LICENSOR", "90", "30"),
     # the notice the Licensor must give before terminating lengthened
-    Plant("if LICENSOR provides 30 days notice of its intention", "if LICENSOR provides 90 days notice of its intention",
+    Plant("if LICENSOR provides 30 days notice of its intention",
+          "if LICENSOR provides 90 days notice of its intention",
           "LICENSEE", "30", "90"),
     # "immediately" taken out of the Licensee's duty to notify
     Plant("LICENSEE agrees  to notify  LICENSOR immediately  and in  writing",
@@ -71,10 +73,12 @@ AGENTXPP_PLANTS = (
     Plant("In no event will LICENSOR be liable for any third-party products",
           "LICENSOR will be liable for any third-party products", "LICENSEE", "In no event will", "will"),
     # the Licensor's indemnity made optional
-    Plant("LICENSOR  agrees to  indemnify and  hold LICENSEE  harmless", "LICENSOR may indemnify and hold LICENSEE harmless",
+    Plant("LICENSOR  agrees to  indemnify and  hold LICENSEE  harmless",
+          "LICENSOR may indemnify and hold LICENSEE harmless",
           "LICENSOR", "agrees to", "may"),
     # more time for the Licensee to destroy its copies after termination
-    Plant("within  ten  (10) days after termination, will  destroy", "within thirty (30) days after termination, will destroy",
+    Plant("within  ten  (10) days after termination, will  destroy",
+          "within thirty (30) days after termination, will destroy",
           "LICENSEE", "ten (10)", "thirty (30)"),
     # a new payment obligation on the Licensee
     Plant("LICENSOR reserves  the right at  any time to  make changes to  the Software Product.",
@@ -93,7 +97,8 @@ AGENTXPP_PLANTS = (
 APPFIRE = "appfire-eula"  # licensedcode-data: appfire-eula.LICENSE (Licensor / Licensee, "you")
 APPFIRE_PLANTS = (
     # the Licensee's duty to pay the licence fee made optional
-    Plant("then you must pay the license fee within", "then you may pay the license fee within", "Licensee", "must", "may"),
+    Plant("then you must pay the license fee within", "then you may pay the license fee within", "Licensee", "must",
+          "may"),
     # less notice of an audit from the Licensor
     Plant("Licensor will provide you with at least 10 days advance notice prior to the audit",
           "Licensor will provide you with at least 3 days advance notice prior to the audit", "Licensor", "10", "3"),
@@ -101,7 +106,8 @@ APPFIRE_PLANTS = (
     Plant("Licensor will bear all its own out-of-pocket costs for the audit",
           "Licensor will bear half of its own out-of-pocket costs for the audit", "Licensor", "all", "half of"),
     # the Licensee's assistance no longer limited to "reasonable" assistance
-    Plant("You will provide reasonable assistance, cooperation, and access", "You will provide assistance, cooperation, and access",
+    Plant("You will provide reasonable assistance, cooperation, and access",
+          "You will provide assistance, cooperation, and access",
           "Licensor", "reasonable", ""),
     # "promptly" taken out of the Licensee's duty to pay an audit invoice
     Plant("you will pay the invoice promptly after receipt", "you will pay the invoice after receipt", "Licensee",
@@ -114,20 +120,23 @@ APPFIRE_PLANTS = (
     Plant("Licensor shall notify Licensee promptly in writing", "Licensor shall notify Licensee in writing", "Licensor",
           "promptly", "", "shall notify"),
     # control of the defence moved from the Licensee to the Licensor
-    Plant("(iii) Licensee shall have sole control of any such action", "(iii) Licensor shall have sole control of any such action",
+    Plant("(iii) Licensee shall have sole control of any such action",
+          "(iii) Licensor shall have sole control of any such action",
           "Licensor", "Licensee", "Licensor"),
     # the cap on the Licensor's liability halved
-    Plant("In no event will Licensor\u2019s aggregate liability under any claims arising out of this EULA exceed the fees "
-          "paid by you for the current Support Period",
-          "In no event will Licensor\u2019s aggregate liability under any claims arising out of this EULA exceed fifty "
-          "per cent (50%) of the fees paid by you for the current Support Period", "Licensor", "", "fifty per cent (50%)"),
+    Plant("In no event will Licensor\u2019s aggregate liability under any claims arising out of this EULA "
+          "exceed the fees paid by you for the current Support Period",
+          "In no event will Licensor\u2019s aggregate liability under any claims arising out of this EULA "
+          "exceed fifty per cent (50%) of the fees paid by you for the current Support Period", "Licensor", "",
+          "fifty per cent (50%)"),
     # less time for the Licensee to tell the Licensor of an assignment (a condition of its right)
     Plant("(a) Licensor is notified in writing within ninety (90) days of such assignment",
           "(a) Licensor is notified in writing within thirty (30) days of such assignment", "Licensor", "ninety (90)",
           "thirty (30)"),
     # the Licensor's free right to assign made subject to the Licensee's consent
     Plant("Licensor may assign its rights and obligation under this EULA without consent of Licensee.",
-          "Licensor may assign its rights and obligation under this EULA only with the prior written consent of Licensee.",
+          "Licensor may assign its rights and obligation under this EULA only with the prior written "
+          "consent of Licensee.",
           "Licensee", "without", "only with the prior written"),
     # the governing law
     Plant("the laws of the Commonwealth of Massachusetts", "the laws of the State of New York", None, "Massachusetts",
@@ -136,7 +145,8 @@ APPFIRE_PLANTS = (
     Plant("Licensee agrees to indemnify and hold Licensor", "Licensee agrees to indemnify, defend and hold Licensor",
           "Licensor", "", "defend"),
     # the Licensor's support made an obligation
-    Plant("Licensor may provide you with online support services", "Licensor shall provide you with online support services",
+    Plant("Licensor may provide you with online support services",
+          "Licensor shall provide you with online support services",
           "Licensee", "may", "shall"),
     # a mutual exclusion of liability widened: it binds each party alike
     Plant("neither party will be liable for lost profits", "neither party will be liable for lost profits or lost data",
@@ -151,9 +161,11 @@ SOLACE_PLANTS = (
           "one copy", "two copies"),
     # more time to pay the licensor's invoices (the payer is the Licensee)
     Plant("All invoices issued by SOLACE are due and payable within 30 days of the invoice date",
-          "All invoices issued by SOLACE are due and payable within 45 days of the invoice date", "Licensee", "30", "45"),
+          "All invoices issued by SOLACE are due and payable within 45 days of the invoice date", "Licensee", "30",
+          "45"),
     # the support fees taken out of what the Licensee shall pay
-    Plant("Licensee shall pay the applicable Subscription Fees and support fees", "Licensee shall pay the applicable Subscription Fees",
+    Plant("Licensee shall pay the applicable Subscription Fees and support fees",
+          "Licensee shall pay the applicable Subscription Fees",
           "Licensee", "and support fees", ""),
     # the Licensee's duty to reproduce notices softened
     Plant("Licensee must reproduce all copyright and other proprietary notices",
@@ -170,10 +182,12 @@ CECILL_PLANTS = (
     Plant("the Licensor shall provide it with technical and legal\nexpertise",
           "the Licensor may provide it with technical and legal expertise", "Licensor", "shall", "may"),
     # the Licensee's right to claim compensation taken away
-    Plant("the Licensee shall be\nentitled to claim compensation", "the Licensee shall not be entitled to claim compensation",
+    Plant("the Licensee shall be\nentitled to claim compensation",
+          "the Licensee shall not be entitled to claim compensation",
           "Licensor", "", "not", "claim"),
     # the Licensee's undertaking not to infringe narrowed to direct infringement
-    Plant("The Licensee undertakes not to directly or indirectly infringe", "The Licensee undertakes not to directly infringe",
+    Plant("The Licensee undertakes not to directly or indirectly infringe",
+          "The Licensee undertakes not to directly infringe",
           "Licensee", "or indirectly", ""),
     # the Licensor's right to offer services taken away
     Plant("However, the Licensor is entitled to offer this type of services.",
@@ -183,7 +197,8 @@ CECILL_PLANTS = (
 MPL = "mpl-2.0"  # licensedcode-data: mpl-2.0.LICENSE (You / Contributor)
 MPL_PLANTS = (
     # Your duty to tell recipients where the source is made optional
-    Plant("You must inform recipients that the Source", "You may inform recipients that the Source", "You", "must", "may"),
+    Plant("You must inform recipients that the Source", "You may inform recipients that the Source", "You", "must",
+          "may"),
     # a restriction on You lifted
     Plant("You may not remove or alter the substance of any license notices",
           "You may remove or alter the substance of any license notices", "You", "not", ""),

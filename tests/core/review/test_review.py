@@ -126,7 +126,8 @@ def test_draft_text_keeps_the_drafts_own_terms():
 def test_removed_provision_carries_the_whole_text():
     precedent = doc(PRECEDENT)
     draft = doc(PRECEDENT.replace(
-        "    4. Liability\n\n    4.1 The Supplier's total liability is limited to the fees paid in the previous year.\n\n", ""))
+        "    4. Liability\n\n    4.1 The Supplier's total liability is limited to the fees paid in the "
+        "previous year.\n\n", ""))
     r = run_review(draft, precedent)
     (v,) = substantive(r)
     assert v.change == "remove-provision" and v.draft_text == "" and v.draft_provision is None
@@ -201,7 +202,7 @@ def test_split_and_merged_have_one_pair_entry_per_pairing():
         2. Notices
 
         2.1 Notices shall be in writing.
-    """)
+    """)  # noqa: E501 (a provision is one line of the text)
     draft = doc("""
         1. Payment
 
@@ -355,7 +356,7 @@ def test_split_and_merged_pairings_carry_their_own_word_diff():
         1. Payment
 
         1.1 The Customer shall pay each invoice within thirty (30) days of receipt and interest accrues on late payments at four per cent (4%) a year above the base rate.
-    """)
+    """)  # noqa: E501 (a provision is one line of the text)
     draft = doc("""
         1. Payment
 

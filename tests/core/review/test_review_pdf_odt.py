@@ -64,10 +64,7 @@ def _found(devs, old: str, new: str) -> bool:
     the precedent's among its precedent words."""
     added = set(_words(new)) - set(_words(old))
     removed = set(_words(old)) - set(_words(new))
-    for d in devs:
-        if added <= set(_words(d.draft_text)) and removed <= set(_words(d.precedent_text)):
-            return True
-    return False
+    return any(added <= set(_words(d.draft_text)) and removed <= set(_words(d.precedent_text)) for d in devs)
 
 
 def _shown(d) -> tuple[str, str]:

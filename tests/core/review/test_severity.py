@@ -251,7 +251,8 @@ def test_recalibrated_ranking_on_a_real_licence_agreement():
         found[key] = v
     assert found["law"].reasons[0] == "governing law changed from 'California' to 'Nevada'"
     assert found["forum"].reasons[0] == "forum for disputes changed from 'Santa Clara' to 'Alameda'"
-    assert found["and/or"].reasons[0].startswith("conjunction changed from 'and' to 'or' inside an obligation ('shall')")
+    assert found["and/or"].reasons[0].startswith(
+        "conjunction changed from 'and' to 'or' inside an obligation ('shall')")
     assert found["interest"].reasons[0] == "late-payment interest rate changed from 1.5% to 2% (higher)"
     sev = {k: v.severity for k, v in found.items()}
     assert sev["law"] >= 80 and sev["forum"] >= 80

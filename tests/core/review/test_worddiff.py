@@ -20,7 +20,7 @@ from hypothesis import strategies as st
 from core.review.tokens import tokenize
 from core.review.worddiff import diff_texts, edits_from_ops, token_ops
 
-from .helpers import excerpt
+from .helpers import check_tiling, excerpt
 
 WORDS = ["the", "The", "Customer", "shall", "may", "not", "pay", "thirty", "(30)", "days",
          "“quoted”", '"quoted"', "–", "-", ",", ".", ";", "Supplier's", "Supplier’s", "7.2",
@@ -35,32 +35,19 @@ def reconstruct(edits, a: str, b: str) -> tuple[str, str]:
     return "".join(a[e.p1:e.p2] for e in edits), "".join(b[e.d1:e.d2] for e in edits)
 
 
-def check_tiling(edits, a: str, b: str) -> None:
-    p = d = 0
-    for e in edits:
-        assert (e.p1, e.d1) == (p, d)
-        assert e.tag in ("equal", "insert", "delete", "replace")
-        if e.tag == "equal":
-            assert a[e.p1:e.p2] == b[e.d1:e.d2]
-        if e.tag == "insert":
-            assert e.p1 == e.p2 and e.d2 > e.d1
-        if e.tag == "delete":
-            assert e.d1 == e.d2 and e.p2 > e.p1
-        p, d = e.p2, e.d2
-    assert (p, d) == (len(a), len(b))
-
-
 @settings(max_examples=300, deadline=None)
 @given(texts, texts)
 def test_diff_reconstructs_both_texts_and_equal_spans_are_equal(a: str, b: str) -> None:
-    edits = diff_texts(a, b)
-    assert reconstruct(edits, a, b) == (a, b)
-    check_tiling(edits, a, b)
+    check_reconstruction(a, b)
 
 
 @settings(max_examples=200, deadline=None)
 @given(any_text, any_text)
 def test_diff_reconstructs_arbitrary_unicode(a: str, b: str) -> None:
+    check_reconstruction(a, b)
+
+
+def check_reconstruction(a: str, b: str) -> None:
     edits = diff_texts(a, b)
     assert reconstruct(edits, a, b) == (a, b)
     check_tiling(edits, a, b)
