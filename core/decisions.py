@@ -39,24 +39,22 @@ O(decisions x deviations).
 from __future__ import annotations
 
 import dataclasses
-import functools
 import json
 import os
 import unicodedata
 from collections.abc import Callable, Mapping, Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from pathlib import Path
-from typing import TYPE_CHECKING, Any, Literal, Protocol, cast
+from typing import TYPE_CHECKING, Any, Protocol
 
 from .errors import CounterdraftError
 from .fileio import atomic_write_text, exclusive, file_sha256
 from .labels import clause_label, find_provision  # clause_label: re-exported for the CLI
-from .model import Deviation, Document, Review
+from .model import DECISION_ACTIONS, Decision, DecisionAction, Deviation, Document, Review
+from .serialize import decision_from_dict, decision_to_dict, override_from_dict, override_to_dict, schema_problem
 
 if TYPE_CHECKING:
-    import jsonschema
-
-    from .review.termmap import TermOverride
+    from .model import TermOverride
 
 __all__ = [
     "ACCEPT_ONLY",
@@ -83,7 +81,7 @@ __all__ = [
 ]
 
 REVIEW_FILE_SCHEMA = "counterdraft.review-file/1"
-ACTIONS: tuple[str, ...] = ("accept", "revert", "amend")
+ACTIONS: tuple[DecisionAction, ...] = DECISION_ACTIONS
 #: Deviation categories that can only be accepted: the counter-draft keeps the draft's own
 #: punctuation, layout and numbering (restoring them is not a negotiating point, and the
 #: numbering follows from the provisions kept -- common practice, no source).
@@ -91,21 +89,6 @@ ACCEPT_ONLY: tuple[str, ...] = ("formatting", "punctuation", "numbering")
 #: Longest amend wording taken, in characters: a rewritten clause of several pages fits; a
 #: longer text is almost certainly a paste gone wrong.
 AMEND_MAX_CHARS = 100_000
-
-
-@dataclass(frozen=True, slots=True)
-class Decision:
-    """What the reviewer decided about one deviation.
-
-    ``text`` is the reviewer's own wording (amend only); ``match`` identifies the deviation
-    independently of its id (see :func:`match_key`), so the decision survives a re-run.
-    """
-
-    deviation: str
-    action: str  # one of ACTIONS
-    text: str | None = None
-    note: str | None = None
-    match: Mapping[str, Any] = field(default_factory=dict)
 
 
 @dataclass(frozen=True, slots=True)
@@ -325,26 +308,6 @@ def remap_decisions(decisions: Sequence[Decision], review: Review) -> tuple[tupl
 # --------------------------------------------------------------------------------------
 
 
-def _override_to_dict(o: TermOverride | Mapping[str, Any]) -> dict[str, Any]:
-    return dict(o) if isinstance(o, Mapping) else dataclasses.asdict(o)
-
-
-#: The actions a term override takes (``TermOverride.action``).
-OverrideAction = Literal["confirm", "reject", "add"]
-_OVERRIDE_ACTIONS: tuple[OverrideAction, ...] = ("confirm", "reject", "add")
-
-
-def _override_from_dict(d: Mapping[str, Any]) -> TermOverride:
-    from .review.termmap import TermOverride  # the review engine's override type
-
-    draft, precedent, action = d.get("draft"), d.get("precedent"), d.get("action", "confirm")
-    if not isinstance(draft, str) or not (precedent is None or isinstance(precedent, str)):
-        raise ValueError(f"not a term override: {dict(d)!r}")
-    if action not in _OVERRIDE_ACTIONS:
-        raise ValueError(f"unknown action {action!r}")
-    return TermOverride(draft=draft, precedent=precedent, action=cast(OverrideAction, action))  # checked above
-
-
 def _library_entry(library: str | None, folder: Path) -> dict[str, str] | None:
     """The review file's record of the precedent set: its folder (relative where possible),
     or a shared store's address as it is (:func:`~core.library.store.shown_address`)."""
@@ -380,15 +343,11 @@ def review_file_to_dict(rf: ReviewFile, *, folder: str | os.PathLike[str] = ".")
                       "absolute_path": rf.precedent.path, "sha256": rf.precedent.sha256},
         "library": _library_entry(rf.library, base),
         "acting_for": rf.review.acting_for,
-        "overrides": [_override_to_dict(o) for o in rf.overrides],
+        "overrides": [override_to_dict(o) for o in rf.overrides],
         "term_map": rd.get("term_map", []),
         "deviations": rd.get("deviations", []),
         "checks": rd.get("checks", []),
-        "decisions": [
-            {"deviation": d.deviation, "action": d.action, "text": d.text, "note": d.note,
-             "match": dict(d.match)}
-            for d in rf.decisions
-        ],
+        "decisions": [decision_to_dict(d) for d in rf.decisions],
     }
 
 
@@ -473,10 +432,6 @@ def _locate(entry: Mapping[str, Any], folder: Path, *, role: str, review_path: s
                             path=review_path)
 
 
-#: Longest part of a schema problem quoted in a message (a hand-edited value can be long).
-_PROBLEM_QUOTE_CHARS = 120
-
-
 def _check_schema(data: Any, spath: str) -> None:
     """Refuse, in one line naming the field and the problem, anything that is not a valid
     ``counterdraft.review-file/1`` object (resources/schemas/review-file.schema.json); a
@@ -488,47 +443,24 @@ def _check_schema(data: Any, spath: str) -> None:
     if found != REVIEW_FILE_SCHEMA:
         raise CounterdraftError(f"not a {REVIEW_FILE_SCHEMA} file"
                                 + (f" (schema {str(found)[:40]!r})" if found else ""), path=spath)
-    from jsonschema.exceptions import best_match
-
-    error = best_match(_review_file_validator().iter_errors(data))
-    if error is None:
-        return
-    field_ = "".join(f"[{p}]" if isinstance(p, int) else f".{p}" for p in error.absolute_path).lstrip(".")
-    problem = " ".join(error.message.split())
-    if len(problem) > _PROBLEM_QUOTE_CHARS:
-        problem = problem[:_PROBLEM_QUOTE_CHARS - 1] + "\u2026"
-    raise CounterdraftError(f"damaged review file ({field_ or 'top level'}: {problem})", path=spath)
-
-
-@functools.cache
-def _review_file_validator() -> jsonschema.Draft202012Validator:
-    """The Draft 2020-12 validator of the review-file schema, with the review and document
-    schemas it refers to (the project's own resources/schemas)."""
-    import jsonschema
-    from referencing import Registry, Resource
-
-    folder = Path(__file__).resolve().parent.parent / "resources" / "schemas"
-    schemas = [json.loads((folder / name).read_text(encoding="utf-8"))
-               for name in ("review-file.schema.json", "review.schema.json", "document.schema.json")]
-    registry = Registry().with_resources([(s["$id"], Resource.from_contents(s)) for s in schemas])
-    return jsonschema.Draft202012Validator(schemas[0], registry=registry)
+    problem = schema_problem(data, "review-file")
+    if problem is not None:
+        raise CounterdraftError(f"damaged review file ({problem})", path=spath)
 
 
 def _parsed_decisions(data: Mapping[str, Any], spath: str) -> tuple[tuple[Decision, ...], tuple[TermOverride, ...]]:
     """The decisions and term overrides of a review file *data* that passed the schema check;
     wording that is not plain text (control characters, which no .docx can carry) and
     overrides the engine cannot take are refused in one line."""
-    decisions = tuple(Decision(deviation=d["deviation"], action=d["action"], text=d.get("text"),
-                               note=d.get("note"), match=dict(d.get("match") or {}))
-                      for d in data["decisions"])
+    decisions = tuple(decision_from_dict(d) for d in data["decisions"])
     for d in decisions:
         for field_name, value in (("text", d.text), ("note", d.note)):
             if value is not None and _bad_character(value):
                 raise CounterdraftError(f"damaged review file (the {field_name} of the decision on "
                                         f"{d.deviation} is not plain text)", path=spath)
     try:
-        overrides = tuple(_override_from_dict(o) for o in data["overrides"])
-    except (TypeError, AttributeError, ValueError, CounterdraftError) as err:
+        overrides = tuple(override_from_dict(o) for o in data["overrides"])
+    except (KeyError, TypeError, AttributeError, ValueError, CounterdraftError) as err:
         raise CounterdraftError(f"damaged review file (term overrides: {err})", path=spath) from None
     return decisions, overrides
 
