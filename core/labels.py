@@ -20,12 +20,8 @@ parent chain, bounded by :data:`MAX_DEPTH`).
 from __future__ import annotations
 
 import re
-from typing import TYPE_CHECKING
 
-from .model import Deviation, Document, Provision, Review
-
-if TYPE_CHECKING:
-    from .review.checks import Check
+from .model import Check, Deviation, Document, Provision, Review
 
 __all__ = ["MAX_DEPTH", "check_label", "clause_label", "find_provision", "full_number", "provision_label"]
 
