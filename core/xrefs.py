@@ -37,7 +37,7 @@ parted from its number by a space (``clause 5 (a)`` is read as clause 5).
 
 How a number is resolved
 ------------------------
-Full numbers are :func:`core.review.docinfo.build_docinfo`'s (``"9.1(b)"``, keyword
+Full numbers are :func:`core.docinfo.build_docinfo`'s (``"9.1(b)"``, keyword
 removed), looked up in namespaces (clauses, articles, parts, schedules; a clause number
 falls back to the articles and back, as documents mix "Article 7" and "Section 7.2").  When
 several provisions carry the number (a schedule's own paragraph 1 and clause 1), the
@@ -61,10 +61,10 @@ from collections import OrderedDict
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 
+from .docinfo import DocInfo, build_docinfo, item_label
 from .labels import MAX_DEPTH
 from .lazyre import lazy_compile
 from .model import Document, Provision, Segment
-from .review.docinfo import DocInfo, build_docinfo, item_label
 
 __all__ = [
     "ISSUE_KINDS",
@@ -1091,7 +1091,7 @@ def renumber_references(doc: Document, new_numbers: Mapping[str, str | None]
     renumbering, and the references no edit can keep true.
 
     *new_numbers* maps a provision id to its full number after the change, written as
-    :func:`core.review.docinfo.build_docinfo` writes full numbers (``"13"``, ``"13.2(b)"``,
+    :func:`core.docinfo.build_docinfo` writes full numbers (``"13"``, ``"13.2(b)"``,
     ``"IV"``, ``"A"``; a leading keyword such as ``"Section 13"`` is accepted), or to None
     when the change removes the provision.  A provision it leaves out keeps its number,
     except that it follows its parent: removed with it, or renumbered with it when its

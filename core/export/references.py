@@ -31,9 +31,9 @@ import tempfile
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
+from ..docinfo import build_docinfo
 from ..docx.tracked import BlockEdit
 from ..model import Document, Provision, Review
-from ..review.docinfo import build_docinfo
 from ..xrefs import (
     ReferenceEdit,
     ReferenceIssue,
@@ -60,7 +60,7 @@ _CAUSED_KINDS = ("gone", "range", "no-counterpart", "ambiguous")
 
 @dataclass(frozen=True, slots=True)
 class Numbering:
-    """Full numbers (``core.review.docinfo`` style: "13", "13.2(b)") in the counter-draft
+    """Full numbers (``core.docinfo`` style: "13", "13.2(b)") in the counter-draft
     once every change is accepted."""
 
     #: draft provision id -> its number in the counter-draft (None: struck).

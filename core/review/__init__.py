@@ -47,6 +47,7 @@ from bisect import bisect_right
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, replace
 
+from ..docinfo import DocInfo, build_docinfo
 from ..model import (
     Category,
     ChangeKind,
@@ -65,7 +66,6 @@ from .align import Alignment, Features, Group, align
 from .checks import review_checks
 from .classify import Change, TermContext, WordChange, classify_ops
 from .direction import Judge, direction_rank_key, find_parties, resolve_acting_for
-from .docinfo import DocInfo, build_docinfo
 from .figures import figure_reasons, figures_in
 from .serialize import review_to_dict
 from .severity import (

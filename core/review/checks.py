@@ -956,7 +956,7 @@ class _Labels:
 
     @staticmethod
     def of(doc: Document) -> _Labels:
-        from .docinfo import build_docinfo
+        from ..docinfo import build_docinfo
 
         info = build_docinfo(doc)
         heads: set[str] = set()

@@ -46,7 +46,7 @@ the authors'):
    their clauses: a burden added on a party is -1 for it, a benefit added +1, and the
    reverse when removed.
 4. **For whom.**  The holder's +1 is favourable to the acting party when the holder is that
-   party or on its side of the deal (:data:`core.review.docinfo.PARTY_ROLE_WORDS`), adverse
+   party or on its side of the deal (:data:`core.docinfo.PARTY_ROLE_WORDS`), adverse
    when the holder is on the other side, and neutral when the clause binds each party.
 
 Each judged deviation gains one reason naming the parties ("lightens the Licensee's

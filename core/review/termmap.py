@@ -30,7 +30,7 @@ confirm, reject or add mappings (:class:`TermOverride`).
 Traps handled:
 
 * the parties' own labels: a party label maps only onto a party label of the same side of
-  the deal (:func:`core.review.docinfo.party_role`) and never on a definition alone, since
+  the deal (:func:`core.docinfo.party_role`) and never on a definition alone, since
   the parties' definitions all read alike ("a company incorporated in ...");
 * plural and possessive uses ("Clients'", "Client's") are uses of the singular term, and a
   use of an alias ("Your" of "You") is a use of its term: a term is all its names;
@@ -59,10 +59,10 @@ from typing import Protocol, runtime_checkable
 
 from rapidfuzz.distance import Indel
 
+from ..docinfo import DocInfo, party_role
 from ..model import Evidence, TermMapping, TermOverride  # TermOverride: re-exported (it lived here)
 from ..terms import term_forms
 from .assignment import max_weight_assignment
-from .docinfo import DocInfo, party_role
 from .tokens import (
     KIND_PUNCT,
     KIND_SPACE,

@@ -446,8 +446,8 @@ def find_cross_references(text: str) -> list[tuple[int, int, str, str]]:
     instruments' ("Section 16 of the Companies Act"), relative items ("paragraph (c)") and
     numbers that do not start with a figure ("Annex B", "Article IV") stay words.
     """
-    # core.xrefs builds on core.review.docinfo, so it is imported here, not at the top
-    # (importing it first would import this module before it has finished).
+    # imported when first needed: core.xrefs compiles many patterns, which a review of a
+    # document without references need not pay for at start-up
     from ..xrefs import find_references
 
     out: list[tuple[int, int, str, str]] = []

@@ -22,7 +22,7 @@ from hypothesis import strategies as st
 
 from core.model import Document, Provision
 from core.reader import read_document, read_text
-from core.review.docinfo import build_docinfo
+from core.docinfo import build_docinfo
 from core.xrefs import (
     ISSUE_KINDS,
     Reference,
@@ -70,7 +70,7 @@ def one(text: str, words: str) -> Reference:
 
 
 def provision(doc: Document, number: str) -> Provision:
-    """The provision whose full number (core.review.docinfo) is *number*."""
+    """The provision whose full number (core.docinfo) is *number*."""
     info = build_docinfo(doc)
     hits = [p for p, n in zip(info.provisions, info.full_number) if n == number]
     assert len(hits) == 1, (number, hits)

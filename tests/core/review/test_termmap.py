@@ -10,7 +10,7 @@ from hypothesis import strategies as st
 
 from core.errors import CounterdraftError
 from core.review import TermOverride, VocabularyModel, run_review
-from core.review.docinfo import build_docinfo, party_role
+from core.docinfo import build_docinfo, party_role
 from core.review.termmap import MAP_MIN, map_terms
 
 from .helpers import doc, substantive
@@ -318,7 +318,7 @@ RENAMED_TERMS = ("Equipment", "Site")
 NAME_SYLLABLES = ("ka", "lo", "mir", "ren", "tav", "vo", "quel", "dor", "zan", "bri", "wen")
 #: The party labels, each renamed to another label of its own side (a party label never
 #: maps onto an ordinary name: core.review.termmap._party_compatible); the labels are
-#: core.review.docinfo.PARTY_ROLE_WORDS' own (common practice, no source).
+#: core.docinfo.PARTY_ROLE_WORDS' own (common practice, no source).
 PARTY_RENAMES = {"Supplier": ("Vendor", "Seller", "Provider", "Contractor", "Manufacturer"),
                  "Purchaser": ("Buyer", "Customer", "Client")}
 invented_names = st.lists(st.sampled_from(NAME_SYLLABLES), min_size=2, max_size=4).map(

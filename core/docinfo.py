@@ -7,7 +7,7 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass, field
 
-from ..model import Document, Provision
+from .model import Document, Provision
 
 __all__ = ["DocInfo", "PARTY_ROLE_WORDS", "build_docinfo", "item_label", "party_role"]
 

@@ -1,12 +1,11 @@
-"""Per-document facts (core.review.docinfo): full clause numbers and the parties' labels."""
+"""Per-document facts (core.docinfo): full clause numbers and the parties' labels."""
 
 from __future__ import annotations
 
+from core.docinfo import build_docinfo, item_label, party_role
 from core.reader import read_text
-from core.review.docinfo import build_docinfo, item_label, party_role
+from tests.core.review.helpers import doc
 from tests.support.legal_texts import license_text
-
-from .helpers import doc
 
 
 def test_full_numbers_and_lookup():
