@@ -462,7 +462,7 @@ def _has_content_before(run: etree._Element, child: etree._Element) -> bool:
 
 def _split_at(p: etree._Element, offset: int) -> None:
     """Make *offset* fall on a run boundary (no run holds text on both sides of it)."""
-    for start, end, el, text in _pieces(p):
+    for start, end, el, _text in _pieces(p):
         if start < offset < end:
             if el.tag != _T:
                 return  # a one-character piece cannot be cut; offsets come from whole words

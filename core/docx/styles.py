@@ -32,7 +32,7 @@ __all__ = [
 ]
 
 W_NS = "http://schemas.openxmlformats.org/wordprocessingml/2006/main"
-_W = "{%s}" % W_NS
+_W = f"{{{W_NS}}}"
 _VAL = _W + "val"
 
 #: Longest ``w:basedOn`` chain followed.  Word's own style galleries rarely go beyond 5-6

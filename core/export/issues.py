@@ -193,7 +193,8 @@ class IssueRow:
             _NUMBER_COLUMN: str(self.number), "Clause": self.clause,
             _WHAT_COLUMN: self.what_changed, _WHY_COLUMN: self.why,
             _FREQUENCY_COLUMN: self.frequency or "", "Decision": self.decision, "Note": self.note,
-            _DIRECTION_COLUMN: self.direction or "", _PRECEDENT_WORDS_COLUMN: self.precedent_words, _DRAFT_WORDS_COLUMN: self.draft_words,
+            _DIRECTION_COLUMN: self.direction or "",
+            _PRECEDENT_WORDS_COLUMN: self.precedent_words, _DRAFT_WORDS_COLUMN: self.draft_words,
         }
         return [values[c] for c in columns]
 
@@ -796,7 +797,8 @@ thead {{ display: table-header-group; }}
 tr {{ break-inside: avoid; page-break-inside: avoid; }}
 p.note {{ font-size: 0.85em; color: {muted}; margin: 0.4em 0; }}
 @page {{ size: A4 landscape; margin: 12mm; }}
-@media print {{ body {{ margin: 0; }} th, td, strong {{ -webkit-print-color-adjust: exact; print-color-adjust: exact; }} }}
+@media print {{ body {{ margin: 0; }}
+  th, td, strong {{ -webkit-print-color-adjust: exact; print-color-adjust: exact; }} }}
 """.format(**_PALETTE)
 
 

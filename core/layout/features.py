@@ -70,7 +70,8 @@ _OWN = (
     "definition", "centred", "table",
 )
 _PREV = (
-    "first", "page_break", "gap_prev", "gap_prev_big", "no_gap", "doc_gapped", "prev_fill", "fits_prev", "fits_prev_end",
+    "first", "page_break", "gap_prev", "gap_prev_big", "no_gap", "doc_gapped",
+    "prev_fill", "fits_prev", "fits_prev_end",
     *(f"prev_end_{k}" for k in _END_CLASSES), "prev_end_and_or",
     "indent_more_prev", "indent_less_prev", "indent_same_prev", "delta_prev",
     "prev_bold", "bold_change_prev", "size_change_prev", "prev_short", "prev_long", "prev_label",

@@ -196,8 +196,7 @@ class _Context:
     def bucket_name(self, draft: str | None, precedent: str | None) -> str:
         """The bucket of a pair: the precedent provision's type when it has one (the house
         document's headings are the better evidence), else the draft's."""
-        for side, pid, table in (("p", precedent, self.types.precedent_types),
-                                 ("d", draft, self.types.draft_types)):
+        for pid, table in ((precedent, self.types.precedent_types), (draft, self.types.draft_types)):
             if pid is not None:
                 t = table.get(pid)
                 if t is not None and t.clause_type:

@@ -583,7 +583,9 @@ def _update_files(store: PrecedentStore, files: Sequence[_FileStat], *, progress
             return BuildReport("", "", total, 0, unchanged, removed, 0, (), True)
         prev = known.get(f.rel)
         prev_fail = failed.get(f.rel)
-        if prev is not None and (prev[2], prev[3]) == (f.size, f.mtime_ns) or prev_fail is not None and (prev_fail[1], prev_fail[2]) == (f.size, f.mtime_ns):
+        stamp = (f.size, f.mtime_ns)
+        if (prev is not None and (prev[2], prev[3]) == stamp
+                or prev_fail is not None and (prev_fail[1], prev_fail[2]) == stamp):
             same = True
         elif prev is not None or (prev_fail is not None and prev_fail[0]):
             try:

@@ -135,7 +135,7 @@ def _line_from_chars(chars: Sequence[dict[str, Any]], *, page: int) -> Line | No
             and items[first_space][3] - items[first_space][2] > TAB_GAP_SPACES * max(space, 0.5)):
         text = text[:first_space] + "\t" + text[first_space + 1:]
     prefix = 0
-    for c, b, *_ in items:
+    for _c, b, *_ in items:
         if not b:
             break
         prefix += 1
