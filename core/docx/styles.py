@@ -265,7 +265,7 @@ def parse_styles(root: etree._Element | None) -> StyleSheet:
         for c in chain:
             o = _outline_from(c)
             if o is not False:
-                outline = o  # type: ignore[assignment]
+                outline = o
                 break
         run = _EMPTY_FORMAT
         for c in reversed(chain):
