@@ -16,16 +16,17 @@ from __future__ import annotations
 import contextlib
 import hashlib
 import os
+import sys
 import tempfile
 from collections.abc import Iterator
 from pathlib import Path
 
 from .errors import CounterdraftError
 
-try:  # POSIX; elsewhere writes stay atomic but are not locked
+#: POSIX file locks (fcntl); on Windows writes stay atomic but are not locked.
+_LOCKS = sys.platform != "win32"
+if sys.platform != "win32":
     import fcntl
-except ImportError:  # pragma: no cover - not on the supported platforms
-    fcntl = None  # type: ignore[assignment]
 
 __all__ = ["atomic_write_bytes", "atomic_write_text", "exclusive", "file_sha256",
            "refuse_overwrite_of_inputs", "remove_orphaned_parts"]
@@ -49,7 +50,7 @@ def _older_than(path: str, seconds: float) -> bool:
 
 def _try_lock(fd: int) -> bool:
     """Take an exclusive lock on *fd* without waiting; False when another process holds it."""
-    if fcntl is None:
+    if sys.platform == "win32":
         return True
     try:
         fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
@@ -76,7 +77,7 @@ def remove_orphaned_parts(folder: str | os.PathLike[str]) -> int:
         except OSError:
             continue
         try:
-            if _try_lock(fd) and fcntl is not None:
+            if _try_lock(fd) and _LOCKS:
                 os.unlink(path)
                 removed += 1
         except OSError:
@@ -91,7 +92,7 @@ def exclusive(path: str | os.PathLike[str]) -> Iterator[None]:
     """Hold an exclusive lock on *path*'s folder for a read-modify-write of *path*: a second
     process doing the same waits until the first has replaced the file."""
     folder = os.path.dirname(os.path.abspath(path)) or "."
-    if fcntl is None:
+    if sys.platform == "win32":
         yield
         return
     try:

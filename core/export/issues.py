@@ -881,18 +881,18 @@ def issues_list_docx(review: Review, decisions: Sequence[Decision] = (), *, auth
     full text width, fixed column widths, the header row repeated on each page, no row split
     across pages; the changed words in bold; notes under the table."""
     from ..docx.revisions import RevisionStamp
-    from ..docx.writer import Para, Run, Table, build_docx
+    from ..docx.writer import Cell, Element, Para, Run, Table, build_docx
 
     rows = issue_rows(review, decisions, include=include, order=order)
     cols = _columns(rows)
     stamp = RevisionStamp(author=author, date=stamp_date(date))
     title = _title(review)
 
-    def cells(r: IssueRow) -> tuple:
+    def cells(r: IssueRow) -> tuple[Cell, ...]:
         return tuple(tuple(Run(t, bold=m) for t, m in r.change_excerpt.pieces()) if c == _WHAT_COLUMN
                      else v for c, v in zip(cols, r.cells(cols)))
 
-    body: list = [
+    body: list[Element] = [
         Para((Run(title),), style="Title"),
         Para((Run(f"Written by Counterdraft {__version__} on {stamp.date[:10]}."),)),
         Para((Run(CAUTION),), style="Caution"),

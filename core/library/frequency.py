@@ -60,7 +60,7 @@ from __future__ import annotations
 import dataclasses
 import re
 from collections import defaultdict
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -131,7 +131,7 @@ def review_types(review: Review, library: Library | None = None) -> ReviewTypes:
     return ReviewTypes({t.provision: t for t in dt}, {t.provision: t for t in pt}, dterms, pterms)
 
 
-def clause_type_function(library: Library | None = None):
+def clause_type_function(library: Library | None = None) -> Callable[[Provision, Document], str | None]:
     """A ``(provision, document) -> clause type id | None`` callable for
     ``run_review(clause_type=...)``: heading, parent, then neighbours (the library's when
     given, else the taxonomy's seed phrases).  Each document is typed once."""
@@ -469,7 +469,7 @@ def _slot(ctx: _Context, selection: Deviation | Pair, *, change: _Change | None 
     if bucket is None or bucket.rows == 0:
         return Slot(bucket_name, bucket, side, empty, empty, nothing, nothing, np.zeros(0), None, words)
     dist = ctx.distances(bucket, side, pid)  # type: ignore[arg-type]
-    other_dist = ctx.distances(bucket, *other) if other is not None else None  # type: ignore[arg-type]
+    other_dist = ctx.distances(bucket, *other) if other is not None else None
     if words:
         assert change is not None and other is not None
         rows, docs = _counterparts(ctx, bucket, ((side, pid), other))  # type: ignore[arg-type]

@@ -88,12 +88,13 @@ from concurrent.futures import ProcessPoolExecutor
 from contextlib import contextmanager
 from dataclasses import dataclass, field, replace
 from pathlib import Path, PurePosixPath
-from typing import Any
+from typing import TYPE_CHECKING, Any, Literal
 
 import numpy as np
 
 from ..errors import CounterdraftError
 from ..fileio import file_sha256
+from ..model import Document
 from ..readers import PRECEDENT_SET_SUFFIXES
 from .bucketcache import BucketArrays, assemble, compact, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
@@ -101,6 +102,9 @@ from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_ali
 from .options import FORMER_POSITIONS, POSITIONS
 from .store import VARIANT_FIGURES, PrecedentStore, is_server_address, open_store
 from .variants import RegroupTooLarge, VariantConfig, cluster_wordings, regroup
+
+if TYPE_CHECKING:  # imported when first used: loading it is not free
+    from .vocab import LibraryVocabulary
 
 __all__ = [
     "position_name",
@@ -335,7 +339,7 @@ class _Problem:
 _PARTY_CUT_RE = re.compile(r"(?:\)|;|\bbetween\b|\band\b|\(\d+\)|\bBETWEEN\b|\bAND\b)", re.UNICODE)
 
 
-def _party_names(doc) -> tuple[str, ...]:
+def _party_names(doc: Document) -> tuple[str, ...]:
     """"NAME (Term)" for each party label defined in the parties block, when found: the words
     before the label's parenthesis, after the previous party or "between", up to the first
     comma."""
@@ -358,7 +362,7 @@ def _party_names(doc) -> tuple[str, ...]:
     return tuple(dict.fromkeys(names))
 
 
-def _title_of(doc) -> str | None:
+def _title_of(doc: Document) -> str | None:
     for p in doc.provisions:
         if p.kind == "title":
             return (p.heading or p.text).strip()[:200] or None
@@ -592,7 +596,8 @@ def _update_files(store: PrecedentStore, files: Sequence[_FileStat], *, progress
                 digest = file_sha256(f.path)
             except OSError:
                 digest = None
-            same = digest is not None and digest == (prev[1] if prev is not None else prev_fail[0])
+            known_digest = prev[1] if prev is not None else prev_fail[0] if prev_fail is not None else None
+            same = digest is not None and digest == known_digest
             if same:
                 store.update_stat(f.rel, size=f.size, mtime_ns=f.mtime_ns)
         else:
@@ -1006,7 +1011,7 @@ def _write_variants(store: PrecedentStore, bucket: str, arrays: BucketArrays, la
     ids = uniq.copy()
     for k in np.flatnonzero(~kept).tolist():
         ids[k] = store.add_variant(bucket, figures[k].tolist())
-    variant = ids[inv]
+    variant: np.ndarray = ids[inv]
     unset = np.array([h.encode("ascii") for h in store.unassigned_wordings(bucket)], dtype="S32")
     todo = np.ones(arrays.rows, bool) if not trusted else \
         (variant != arrays.variant) | np.isin(arrays.hashes, unset)
@@ -1024,7 +1029,7 @@ def _write_variants(store: PrecedentStore, bucket: str, arrays: BucketArrays, la
 
 
 def _training_documents(store: PrecedentStore,
-                        fingerprints: list[str]) -> Iterator[tuple[list[str], list[tuple[str, str]]]]:
+                        fingerprints: list[str]) -> Iterator[tuple[list[str], list[tuple[str, str | None]]]]:
     """Documents in path order for :func:`~.vocab.training_sentences`; appends each one's
     fingerprint (path and SHA-256) to *fingerprints* as it is consumed."""
     for doc_id, path, sha in store.documents_by_path():
@@ -1197,7 +1202,7 @@ class Library:
             self.root = None if is_server_address(address) else Path(address).parent
         self._buckets: dict[str, BucketIndex | None] = {}
         self._neighbours: NeighbourClassifier | None = None
-        self._vocab: Any = None
+        self._vocab: LibraryVocabulary | Literal[False] | None = None
         self._aliases: dict[str, str] | None = None
         #: The build report when :func:`open_library` refreshed the index, else None.
         self.report: BuildReport | None = None
@@ -1271,7 +1276,7 @@ class Library:
         return self._neighbours
 
     @property
-    def vocabulary(self):
+    def vocabulary(self) -> LibraryVocabulary | None:
         """The library's vocabulary model (``VocabularyModel`` of the term mapper), or None."""
         if self._vocab is None:
             from .vocab import LibraryVocabulary
