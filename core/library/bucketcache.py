@@ -18,8 +18,8 @@ from __future__ import annotations
 
 import io
 from collections.abc import Mapping, Sequence
-from typing import overload
 from dataclasses import dataclass, replace
+from typing import overload
 
 import numpy as np
 

@@ -7,9 +7,9 @@ A provision is typed by, in order (see the taxonomy file's header for the reason
 2. its heading (or run-in lead), matched against the taxonomy's heading keywords;
 3. its parent's type, when the parent's type itself came from a heading (an unheaded
    sub-clause deals with its clause's subject);
-4. its nearest typed neighbours: TF-IDF cosine (scikit-learn's weighting, computed with numpy) between the provision's words
-   and typed provisions of the precedent set plus the taxonomy's seed phrases; the k nearest
-   vote, weighted by similarity.
+4. its nearest typed neighbours: TF-IDF cosine (scikit-learn's weighting, computed with
+   numpy) between the provision's words and typed provisions of the precedent set plus the
+   taxonomy's seed phrases; the k nearest vote, weighted by similarity.
 
 Cost: heading matching is one regular-expression search per heading.  The neighbour classifier
 is fitted on at most ``40 * (MAX_EXAMPLES_PER_TYPE + 1)`` examples (O(total words)); a query

@@ -17,14 +17,18 @@ from __future__ import annotations
 import argparse
 import json
 import sys
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from .. import CAUTION
 from ..errors import CounterdraftError
 from ..fileio import atomic_write_text
 from .store import is_server_address
+
+if TYPE_CHECKING:  # the index and the clustering are imported when a command runs
+    from .index import BuildReport, Failure, Library
+    from .variants import VariantConfig
 
 __all__ = ["add_library_parser", "note_rebuilt", "open_library_for_cli", "progress_bar", "review_options",
            "warn_skipped"]
@@ -52,18 +56,19 @@ def progress_bar(description: str) -> tuple[Callable[..., None], Callable[[], No
     return update, close
 
 
-def warn_skipped(failures) -> None:
+def warn_skipped(failures: Sequence[Failure]) -> None:
     for f in failures:
         print(f"counterdraft: warning: skipped {f.path}: {f.problem}", file=sys.stderr)
 
 
-def note_rebuilt(report) -> None:
+def note_rebuilt(report: BuildReport) -> None:
     """One line on stderr when the build set a damaged index aside and rebuilt it."""
     if report.rebuilt:
         print(f"counterdraft: note: {report.rebuilt}", file=sys.stderr)
 
 
-def open_library_for_cli(folder: str, *, db: str | None = None, refresh: bool = True, workers: int = 2):
+def open_library_for_cli(folder: str, *, db: str | None = None, refresh: bool = True,
+                         workers: int = 2) -> Library:
     """Open (building or refreshing when *refresh*) the index of *folder*, with a progress
     bar, warning about skipped files.  *folder* may be a shared store's address: it is read
     as it is (its builders refresh it)."""
@@ -88,7 +93,7 @@ def open_library_for_cli(folder: str, *, db: str | None = None, refresh: bool = 
     return library
 
 
-def review_options(library) -> dict[str, Any]:
+def review_options(library: Library) -> dict[str, Any]:
     """Keyword arguments for ``run_review`` with a library: its vocabulary and clause typing."""
     from .frequency import clause_type_function
 
@@ -108,7 +113,7 @@ def _write_json(obj: object, out: str) -> None:
         atomic_write_text(out, text)
 
 
-def _variant_config(args: argparse.Namespace):
+def _variant_config(args: argparse.Namespace) -> VariantConfig | None:
     from .variants import VariantConfig
 
     if args.cutoff is None and args.linkage is None and args.metric is None:
@@ -255,7 +260,7 @@ def _add_common(p: argparse.ArgumentParser, *, dir_optional: bool) -> None:
     p.add_argument("--db", dest="store", metavar="PATH", help=argparse.SUPPRESS)  # earlier name of --store
 
 
-def add_library_parser(sub) -> None:
+def add_library_parser(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> None:
     """Register ``counterdraft library build|stats|label|calibrate|patterns``."""
     from .options import LINKAGES, METRICS, POSITIONS
 

@@ -316,7 +316,8 @@ def _span_of(text: str, span: tuple[int, int] | None, quoted: str) -> tuple[int,
     return None
 
 
-def _split_tokens(p: Provision, span: tuple[int, int] | None, terms: TermReplacer) -> tuple[list[str], list[str], list[str]]:
+def _split_tokens(p: Provision, span: tuple[int, int] | None,
+                  terms: TermReplacer) -> tuple[list[str], list[str], list[str]]:
     """(tokens before, changed tokens, tokens after) of a provision's wording around *span*;
     the heading's tokens come first."""
     if span is None:
@@ -418,7 +419,8 @@ class Slot:
         return int(self.docs.size)
 
 
-def _counterparts(ctx: _Context, bucket: BucketIndex, sides: Sequence[tuple[str, str]]) -> tuple[np.ndarray, np.ndarray]:
+def _counterparts(ctx: _Context, bucket: BucketIndex,
+                  sides: Sequence[tuple[str, str]]) -> tuple[np.ndarray, np.ndarray]:
     """(counterpart row per document, documents ascending) of the provisions *sides* (one
     provision, or the draft's and the precedent's of a word-level deviation).  A row can be
     a counterpart when it is within the cut-off of a side's provision, or shares a shingle

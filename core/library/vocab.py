@@ -28,8 +28,8 @@ from __future__ import annotations
 import io
 import os
 from collections.abc import Iterable, Sequence
-from typing import Protocol
 from pathlib import Path
+from typing import Protocol
 
 import numpy as np
 
