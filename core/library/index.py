@@ -101,6 +101,7 @@ from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_
 from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
 from .options import FORMER_POSITIONS, POSITIONS
 from .store import VARIANT_FIGURES, PrecedentStore, is_server_address, open_store
+from .store.base import DocumentState, FailureState
 from .variants import RegroupTooLarge, VariantConfig, cluster_wordings, regroup
 
 if TYPE_CHECKING:  # imported when first used: loading it is not free
@@ -564,10 +565,9 @@ def _build_into(store: PrecedentStore, root_p: Path, *, progress: Progress | Non
                        report.removed, documents, failures, cancelled)
 
 
-def _update_files(store: PrecedentStore, files: Sequence[_FileStat], *, progress: Progress | None,
-                  cancel: Cancel | Any | None, workers: int) -> BuildReport:
-    known, failed = store.file_states()
-    on_disk = {f.rel for f in files}
+def _drop_gone(store: PrecedentStore, on_disk: set[str], known: Mapping[str, DocumentState],
+               failed: Mapping[str, FailureState]) -> int:
+    """Forget the documents and failures no longer on disk; the number of documents removed."""
     removed = 0
     for path in known:
         if path not in on_disk:
@@ -577,6 +577,33 @@ def _update_files(store: PrecedentStore, files: Sequence[_FileStat], *, progress
         if path not in on_disk:
             store.remove_failure(path)
     store.checkpoint()
+    return removed
+
+
+def _unchanged(store: PrecedentStore, f: _FileStat, prev: DocumentState | None, prev_fail: FailureState | None) -> bool:
+    """Whether *f* is the file stored (or recorded as unreadable) before: the same size and
+    modification time, or else the same SHA-256 (then its new stat is stored)."""
+    stamp = (f.size, f.mtime_ns)
+    if (prev is not None and (prev[2], prev[3]) == stamp
+            or prev_fail is not None and (prev_fail[1], prev_fail[2]) == stamp):
+        return True
+    known_digest = prev[1] if prev is not None else prev_fail[0] if prev_fail is not None else None
+    if not known_digest:
+        return False
+    try:
+        digest = file_sha256(f.path)
+    except OSError:
+        return False
+    if digest != known_digest:
+        return False
+    store.update_stat(f.rel, size=f.size, mtime_ns=f.mtime_ns)
+    return True
+
+
+def _update_files(store: PrecedentStore, files: Sequence[_FileStat], *, progress: Progress | None,
+                  cancel: Cancel | Any | None, workers: int) -> BuildReport:
+    known, failed = store.file_states()
+    removed = _drop_gone(store, {f.rel for f in files}, known, failed)
 
     total = len(files)
     done = 0
@@ -585,24 +612,7 @@ def _update_files(store: PrecedentStore, files: Sequence[_FileStat], *, progress
     for f in files:
         if _cancelled(cancel):
             return BuildReport("", "", total, 0, unchanged, removed, 0, (), True)
-        prev = known.get(f.rel)
-        prev_fail = failed.get(f.rel)
-        stamp = (f.size, f.mtime_ns)
-        if (prev is not None and (prev[2], prev[3]) == stamp
-                or prev_fail is not None and (prev_fail[1], prev_fail[2]) == stamp):
-            same = True
-        elif prev is not None or (prev_fail is not None and prev_fail[0]):
-            try:
-                digest = file_sha256(f.path)
-            except OSError:
-                digest = None
-            known_digest = prev[1] if prev is not None else prev_fail[0] if prev_fail is not None else None
-            same = digest is not None and digest == known_digest
-            if same:
-                store.update_stat(f.rel, size=f.size, mtime_ns=f.mtime_ns)
-        else:
-            same = False
-        if same:
+        if _unchanged(store, f, known.get(f.rel), failed.get(f.rel)):
             unchanged += 1
             done += 1
             if progress is not None:
