@@ -153,13 +153,11 @@ _MAX_REGULAR_SECTOR = 0xFFFFFFFA
 
 
 def _u16(data: bytes, offset: int) -> int:
-    value: int = struct.unpack_from("<H", data, offset)[0]
-    return value
+    return int.from_bytes(data[offset:offset + 2], "little")
 
 
 def _u32(data: bytes, offset: int) -> int:
-    value: int = struct.unpack_from("<I", data, offset)[0]
-    return value
+    return int.from_bytes(data[offset:offset + 4], "little")
 
 
 @dataclass(frozen=True, slots=True)
