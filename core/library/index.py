@@ -88,7 +88,7 @@ from concurrent.futures import ProcessPoolExecutor
 from contextlib import contextmanager
 from dataclasses import dataclass, field, replace
 from pathlib import Path, PurePosixPath
-from typing import TYPE_CHECKING, Any, Literal
+from typing import TYPE_CHECKING, Any, Literal, Protocol, runtime_checkable
 
 import numpy as np
 
@@ -119,6 +119,7 @@ __all__ = [
     "BucketIndex",
     "BuildReport",
     "Cancel",
+    "CancelFlag",
     "Failure",
     "Library",
     "Progress",
@@ -196,6 +197,14 @@ Progress = Callable[[int, int, str], None]
 #: progress bar: those steps have no count.
 Stage = Callable[[str], None]
 Cancel = Callable[[], bool]
+
+
+@runtime_checkable
+class CancelFlag(Protocol):
+    """A flag set to cancel a build (``threading.Event``), taken where a :data:`Cancel` is."""
+
+    def is_set(self) -> bool: ...
+
 
 
 @dataclass(frozen=True, slots=True)
@@ -404,10 +413,10 @@ def _extract(path: str) -> _Extract | _Problem:
         return _Problem(digest, f"unreadable ({type(err).__name__})")
 
 
-def _cancelled(cancel: Cancel | Any | None) -> bool:
+def _cancelled(cancel: Cancel | CancelFlag | None) -> bool:
     if cancel is None:
         return False
-    if hasattr(cancel, "is_set"):
+    if isinstance(cancel, CancelFlag):
         return bool(cancel.is_set())
     return bool(cancel())
 
@@ -443,7 +452,7 @@ def _open_target(root_p: Path | None, address: str | os.PathLike[str] | None) ->
 
 def build_library(root: str | os.PathLike[str], *, store: str | os.PathLike[str] | None = None,
                   db_path: str | os.PathLike[str] | None = None,
-                  progress: Progress | None = None, cancel: Cancel | Any | None = None,
+                  progress: Progress | None = None, cancel: Cancel | CancelFlag | None = None,
                   workers: int = 2, config: VariantConfig | None = None,
                   vocabulary: bool = True, exclude: Sequence[str | os.PathLike[str]] = (),
                   replace_root: bool = False, stage: Stage | None = None) -> BuildReport:
@@ -476,7 +485,7 @@ def build_library(root: str | os.PathLike[str], *, store: str | os.PathLike[str]
         target.close()
 
 
-def _build_locked(store: PrecedentStore, root_p: Path, *, progress: Progress | None, cancel: Cancel | Any | None,
+def _build_locked(store: PrecedentStore, root_p: Path, *, progress: Progress | None, cancel: Cancel | CancelFlag | None,
                   workers: int, config: VariantConfig | None, vocabulary: bool,
                   exclude: Sequence[str | os.PathLike[str]], replace_root: bool,
                   stage: Stage | None = None) -> BuildReport:
@@ -522,7 +531,7 @@ def _check_root(store: PrecedentStore, root_p: Path, files: Sequence[_FileStat],
 
 
 def _build_into(store: PrecedentStore, root_p: Path, *, progress: Progress | None,
-                cancel: Cancel | Any | None, workers: int, config: VariantConfig | None, vocabulary: bool,
+                cancel: Cancel | CancelFlag | None, workers: int, config: VariantConfig | None, vocabulary: bool,
                 exclude: Sequence[str | os.PathLike[str]], fresh: bool, replace_root: bool,
                 stage: Stage | None = None) -> BuildReport:
     """The body of :func:`build_library` on an open store (*fresh*: it replaces a damaged
@@ -601,7 +610,7 @@ def _unchanged(store: PrecedentStore, f: _FileStat, prev: DocumentState | None, 
 
 
 def _update_files(store: PrecedentStore, files: Sequence[_FileStat], *, progress: Progress | None,
-                  cancel: Cancel | Any | None, workers: int) -> BuildReport:
+                  cancel: Cancel | CancelFlag | None, workers: int) -> BuildReport:
     known, failed = store.file_states()
     removed = _drop_gone(store, {f.rel for f in files}, known, failed)
 
@@ -672,7 +681,7 @@ def _write_blob(store: PrecedentStore, name: str, data: bytes) -> None:
     store.write_blob(name, data)
 
 
-def _refresh_derived(store: PrecedentStore, *, cancel: Cancel | Any | None, vocabulary: bool,
+def _refresh_derived(store: PrecedentStore, *, cancel: Cancel | CancelFlag | None, vocabulary: bool,
                      stage: Stage) -> bool:
     """Refresh what is computed from the documents, only where something changed (the module
     docstring).  False when cancelled: what is done is kept, the rest stays marked."""
@@ -729,7 +738,7 @@ def _refresh_aliases(store: PrecedentStore) -> dict[str, str]:
 
 
 def _normalise_pending(store: PrecedentStore, aliases: Mapping[str, str], *,
-                       cancel: Cancel | Any | None) -> list[int] | None:
+                       cancel: Cancel | CancelFlag | None) -> list[int] | None:
     """Normalised wordings of the documents not yet normalised; their ids, or None when
     cancelled."""
     todo = store.unnormalised_documents()
@@ -882,7 +891,7 @@ def read_bucket(store: PrecedentStore, bucket: str) -> BucketArrays | None:
         return None
 
 
-def _refresh_variants(store: PrecedentStore, *, cancel: Cancel | Any | None) -> bool:
+def _refresh_variants(store: PrecedentStore, *, cancel: Cancel | CancelFlag | None) -> bool:
     """Variants and frequency cache of every bucket marked dirty.  False when cancelled.
 
     A bucket's cache is written before the transaction that clears its mark commits: after a
@@ -1384,7 +1393,7 @@ class Library:
 
 def open_library(root: str | os.PathLike[str] | None = None, *, store: str | os.PathLike[str] | None = None,
                  db_path: str | os.PathLike[str] | None = None, refresh: bool = True,
-                 progress: Progress | None = None, cancel: Cancel | Any | None = None,
+                 progress: Progress | None = None, cancel: Cancel | CancelFlag | None = None,
                  workers: int = 2, exclude: Sequence[str | os.PathLike[str]] = (),
                  stage: Stage | None = None) -> Library:
     """Open the precedent set of the folder *root*, kept in *store* (a SQLite file path or a
