@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import contextlib
 import hashlib
+import json
 import os
 import sys
 import tempfile
@@ -29,7 +30,7 @@ if sys.platform != "win32":
     import fcntl
 
 __all__ = ["atomic_write_bytes", "atomic_write_text", "exclusive", "file_sha256",
-           "refuse_overwrite_of_inputs", "remove_orphaned_parts"]
+           "refuse_overwrite_of_inputs", "remove_orphaned_parts", "write_json"]
 
 #: Suffix of the temporary files atomic writes use (a hidden name in the target's folder).
 PART_SUFFIX = ".part"
@@ -148,6 +149,16 @@ def atomic_write_bytes(path: str | os.PathLike[str], data: bytes) -> None:
 
 def atomic_write_text(path: str | os.PathLike[str], text: str) -> None:
     atomic_write_bytes(path, text.encode("utf-8"))
+
+
+def write_json(obj: object, out: str) -> None:
+    """*obj* as indented JSON (non-ASCII kept) to the file *out*, written atomically, or to
+    standard output when *out* is ``"-"``."""
+    text = json.dumps(obj, ensure_ascii=False, indent=2) + "\n"
+    if out == "-":
+        sys.stdout.write(text)
+    else:
+        atomic_write_text(out, text)
 
 
 def file_sha256(path: str | os.PathLike[str]) -> str:

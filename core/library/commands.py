@@ -15,7 +15,6 @@ password.
 from __future__ import annotations
 
 import argparse
-import json
 import sys
 from collections.abc import Callable, Sequence
 from pathlib import Path
@@ -23,7 +22,7 @@ from typing import TYPE_CHECKING, Any
 
 from .. import CAUTION
 from ..errors import CounterdraftError
-from ..fileio import atomic_write_text
+from ..fileio import write_json
 from .store import is_server_address
 
 if TYPE_CHECKING:  # the index and the clustering are imported when a command runs
@@ -105,14 +104,6 @@ def review_options(library: Library) -> dict[str, Any]:
 # ----------------------------------------------------------------------------------------
 
 
-def _write_json(obj: object, out: str) -> None:
-    text = json.dumps(obj, ensure_ascii=False, indent=2) + "\n"
-    if out == "-":
-        sys.stdout.write(text)
-    else:
-        atomic_write_text(out, text)
-
-
 def _variant_config(args: argparse.Namespace) -> VariantConfig | None:
     from .variants import VariantConfig
 
@@ -168,7 +159,7 @@ def _cmd_stats(args: argparse.Namespace) -> int:
         else:
             stats = library_stats(library)
             if args.json:
-                _write_json(stats_to_dict(stats), args.json)
+                write_json(stats_to_dict(stats), args.json)
                 return 0
             print(format_stats(stats, width=args.width))
     print()
@@ -239,7 +230,7 @@ def _cmd_patterns(args: argparse.Namespace) -> int:
     finally:
         library.close()
     if args.json:
-        _write_json(patterns_to_dict(groups, total=total), args.json)
+        write_json(patterns_to_dict(groups, total=total), args.json)
     else:
         print(format_patterns(groups, total=total, width=args.width))
         print()
