@@ -15,20 +15,22 @@ from __future__ import annotations
 
 import contextlib
 import hashlib
+import json
 import os
+import sys
 import tempfile
 from collections.abc import Iterator
 from pathlib import Path
 
 from .errors import CounterdraftError
 
-try:  # POSIX; elsewhere writes stay atomic but are not locked
+#: POSIX file locks (fcntl); on Windows writes stay atomic but are not locked.
+_LOCKS = sys.platform != "win32"
+if sys.platform != "win32":
     import fcntl
-except ImportError:  # pragma: no cover - not on the supported platforms
-    fcntl = None  # type: ignore[assignment]
 
 __all__ = ["atomic_write_bytes", "atomic_write_text", "exclusive", "file_sha256",
-           "refuse_overwrite_of_inputs", "remove_orphaned_parts"]
+           "refuse_overwrite_of_inputs", "remove_orphaned_parts", "write_json"]
 
 #: Suffix of the temporary files atomic writes use (a hidden name in the target's folder).
 PART_SUFFIX = ".part"
@@ -49,7 +51,7 @@ def _older_than(path: str, seconds: float) -> bool:
 
 def _try_lock(fd: int) -> bool:
     """Take an exclusive lock on *fd* without waiting; False when another process holds it."""
-    if fcntl is None:
+    if sys.platform == "win32":
         return True
     try:
         fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
@@ -76,7 +78,7 @@ def remove_orphaned_parts(folder: str | os.PathLike[str]) -> int:
         except OSError:
             continue
         try:
-            if _try_lock(fd) and fcntl is not None:
+            if _try_lock(fd) and _LOCKS:
                 os.unlink(path)
                 removed += 1
         except OSError:
@@ -91,7 +93,7 @@ def exclusive(path: str | os.PathLike[str]) -> Iterator[None]:
     """Hold an exclusive lock on *path*'s folder for a read-modify-write of *path*: a second
     process doing the same waits until the first has replaced the file."""
     folder = os.path.dirname(os.path.abspath(path)) or "."
-    if fcntl is None:
+    if sys.platform == "win32":
         yield
         return
     try:
@@ -147,6 +149,16 @@ def atomic_write_bytes(path: str | os.PathLike[str], data: bytes) -> None:
 
 def atomic_write_text(path: str | os.PathLike[str], text: str) -> None:
     atomic_write_bytes(path, text.encode("utf-8"))
+
+
+def write_json(obj: object, out: str) -> None:
+    """*obj* as indented JSON (non-ASCII kept) to the file *out*, written atomically, or to
+    standard output when *out* is ``"-"``."""
+    text = json.dumps(obj, ensure_ascii=False, indent=2) + "\n"
+    if out == "-":
+        sys.stdout.write(text)
+    else:
+        atomic_write_text(out, text)
 
 
 def file_sha256(path: str | os.PathLike[str]) -> str:

@@ -63,8 +63,8 @@ __all__ = [
     "read_docx_blocks",
 ]
 
-_W = "{%s}" % W_NS
-_MC = "{%s}" % MC_NS
+_W = f"{{{W_NS}}}"
+_MC = f"{{{MC_NS}}}"
 _VAL = _W + "val"
 
 _BODY = _W + "body"
@@ -205,7 +205,7 @@ def _iter_paragraphs(document_element: etree._Element, tally: _Tally | None = No
             if tally is not None:
                 _count_row_revisions(child, tally)
             stack.append((iter(child), depth))
-        elif tag == _TC or tag == _CUSTOM_XML:
+        elif tag in (_TC, _CUSTOM_XML):
             stack.append((iter(child), depth))
         elif tag == _SDT:
             content = child.find(_SDT_CONTENT)
@@ -296,10 +296,10 @@ class _ParagraphWalker:
         tag = child.tag
         if tag == _R:
             self._enter_run(child)
-        elif tag == _INS or tag == _MOVE_TO:
+        elif tag in (_INS, _MOVE_TO):
             self._count(tag)
             self._open(child)
-        elif tag == _DEL or tag == _MOVE_FROM:
+        elif tag in (_DEL, _MOVE_FROM):
             self._count(tag)
         elif tag in _TRANSPARENT:
             self._open(child)
@@ -328,10 +328,10 @@ class _ParagraphWalker:
         if rpr is not None:
             for mark in rpr:
                 mtag = mark.tag
-                if mtag == _DEL or mtag == _MOVE_FROM:
+                if mtag in (_DEL, _MOVE_FROM):
                     self.walk.mark_deleted = True
                     self._count(mtag)
-                elif mtag == _INS or mtag == _MOVE_TO:
+                elif mtag in (_INS, _MOVE_TO):
                     self._count(mtag)
         if ppr.find(_PPR_CHANGE) is not None:
             self._count(_PPR_CHANGE)
@@ -370,9 +370,8 @@ class _ParagraphWalker:
         elif kind == "separate":
             if fields:
                 fields[-1] = True
-        elif kind == "end":
-            if fields:
-                fields.pop()
+        elif kind == "end" and fields:
+            fields.pop()
 
 
 def _walk_paragraph(p: etree._Element, fields: list[bool], tally: _Tally | None) -> _Walk:

@@ -72,7 +72,7 @@ __all__ = [
     "parse_numbering",
 ]
 
-_W = "{%s}" % W_NS
+_W = f"{{{W_NS}}}"
 _VAL = _W + "val"
 _ALTERNATE = f"{{{MC_NS}}}AlternateContent"
 

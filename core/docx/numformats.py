@@ -29,6 +29,7 @@ LibreOffice shows them.
 from __future__ import annotations
 
 import re
+from collections.abc import Callable
 
 __all__ = [
     "BULLET_FORMATS",
@@ -505,12 +506,20 @@ def _capitalise(words: str) -> str:
     return words[:1].upper() + words[1:]
 
 
-_ORDINAL_SUFFIX = {"fr": lambda n: f"{n}ᵉʳ" if n == 1 else f"{n}ᵉ", "de": lambda n: f"{n}.",
-                   "ru": lambda n: f"{n}-й", "es": lambda n: f"{n}.º"}
-_CARDINAL = {"fr": _fr_cardinal, "de": _de_cardinal, "ru": _ru_cardinal,
-             "en-gb": lambda n: _en_cardinal(n, british=True)}
-_ORDINAL_WORDS = {"fr": _fr_ordinal_words, "de": _de_ordinal_words, "ru": _ru_ordinal_words,
-                  "en-gb": lambda n: _en_ordinal_words(n, british=True)}
+#: A number shown in one format, or None where the format has no form for it.
+_Render = Callable[[int], str | None]
+#: A number in words or with a suffix, in one language.
+_Words = Callable[[int], str]
+
+_ORDINAL_SUFFIX: dict[str, _Words] = {
+    "fr": lambda n: f"{n}ᵉʳ" if n == 1 else f"{n}ᵉ", "de": lambda n: f"{n}.",
+    "ru": lambda n: f"{n}-й", "es": lambda n: f"{n}.º"}
+_CARDINAL: dict[str, _Words] = {
+    "fr": _fr_cardinal, "de": _de_cardinal, "ru": _ru_cardinal,
+    "en-gb": lambda n: _en_cardinal(n, british=True)}
+_ORDINAL_WORDS: dict[str, _Render] = {
+    "fr": _fr_ordinal_words, "de": _de_ordinal_words, "ru": _ru_ordinal_words,
+    "en-gb": lambda n: _en_ordinal_words(n, british=True)}
 
 
 def _language(lang: str | None) -> str:
@@ -560,7 +569,7 @@ def _custom(value: int, pattern: str | None) -> str:
 # The table of formats
 # --------------------------------------------------------------------------------------
 
-_SIMPLE = {
+_SIMPLE: dict[str, _Render] = {
     "lowerLetter": lambda n: _repeated(n, _LATIN),
     "upperLetter": lambda n: _repeated(n, _LATIN).upper(),
     "chicago": lambda n: _repeated(n, _CHICAGO),

@@ -152,6 +152,47 @@ _ENDOFCHAIN = 0xFFFFFFFE
 _MAX_REGULAR_SECTOR = 0xFFFFFFFA
 
 
+def _u16(data: bytes, offset: int) -> int:
+    return int.from_bytes(data[offset:offset + 2], "little")
+
+
+def _u32(data: bytes, offset: int) -> int:
+    return int.from_bytes(data[offset:offset + 4], "little")
+
+
+@dataclass(frozen=True, slots=True)
+class _Sectors:
+    """The sectors of a compound file: reading one is bounded by the file's size."""
+
+    fh: BinaryIO
+    size: int
+    #: Sectors the file can hold (at least one): the bound of every loop over sectors.
+    count: int
+
+    def read(self, n: int) -> bytes:
+        if n > _MAX_REGULAR_SECTOR or n >= self.count:
+            raise ValueError("sector out of range")
+        self.fh.seek((n + 1) * self.size)
+        data = self.fh.read(self.size)
+        if len(data) < self.size:
+            raise ValueError("truncated sector")
+        return data
+
+
+def _fat_sectors(sectors: _Sectors, header: bytes) -> list[int]:
+    """The sectors holding the FAT: the header's 109 DIFAT entries, then the DIFAT chain's."""
+    fat = [s for s in struct.unpack_from("<109I", header, 76) if s <= _MAX_REGULAR_SECTOR]
+    difat = _u32(header, 68)
+    per_sector = sectors.size // 4
+    for _ in range(min(_u32(header, 72), sectors.count)):
+        if difat > _MAX_REGULAR_SECTOR:
+            break
+        entries = struct.unpack_from(f"<{per_sector}I", sectors.read(difat))
+        fat.extend(s for s in entries[:-1] if s <= _MAX_REGULAR_SECTOR)
+        difat = entries[-1]
+    return fat[: max(_u32(header, 44), 0) or len(fat)]
+
+
 def _ole_stream_names(fh: BinaryIO, size: int) -> set[str]:
     """Names of the directory entries of a compound file ([MS-CFB] §2.2, §2.6).
 
@@ -162,54 +203,30 @@ def _ole_stream_names(fh: BinaryIO, size: int) -> set[str]:
     header = fh.read(512)
     if len(header) < 512 or header[:8] != OLE_SIGNATURE:
         raise ValueError("short header")
-    sector_shift = struct.unpack_from("<H", header, 30)[0]
+    sector_shift = _u16(header, 30)
     if sector_shift not in (9, 12):
         raise ValueError("sector size")
     sector_size = 1 << sector_shift
-    n_fat = struct.unpack_from("<I", header, 44)[0]
-    first_dir = struct.unpack_from("<I", header, 48)[0]
-    first_difat = struct.unpack_from("<I", header, 68)[0]
-    n_difat = struct.unpack_from("<I", header, 72)[0]
-    max_sectors = max(1, size // sector_size)
-
-    def read_sector(n: int) -> bytes:
-        if n > _MAX_REGULAR_SECTOR or n >= max_sectors:
-            raise ValueError("sector out of range")
-        fh.seek((n + 1) * sector_size)
-        data = fh.read(sector_size)
-        if len(data) < sector_size:
-            raise ValueError("truncated sector")
-        return data
-
-    fat_sectors = [s for s in struct.unpack_from("<109I", header, 76) if s <= _MAX_REGULAR_SECTOR]
-    difat = first_difat
+    sectors = _Sectors(fh, sector_size, max(1, size // sector_size))
+    fat = _fat_sectors(sectors, header)
     per_sector = sector_size // 4
-    for _ in range(min(n_difat, max_sectors)):
-        if difat > _MAX_REGULAR_SECTOR:
-            break
-        data = read_sector(difat)
-        entries = struct.unpack_from(f"<{per_sector}I", data)
-        fat_sectors.extend(s for s in entries[:-1] if s <= _MAX_REGULAR_SECTOR)
-        difat = entries[-1]
-    fat_sectors = fat_sectors[: max(n_fat, 0) or len(fat_sectors)]
 
     def next_sector(n: int) -> int:
         index, offset = divmod(n, per_sector)
-        if index >= len(fat_sectors):
+        if index >= len(fat):
             raise ValueError("FAT too short")
-        data = read_sector(fat_sectors[index])
-        return struct.unpack_from("<I", data, offset * 4)[0]
+        return _u32(sectors.read(fat[index]), offset * 4)
 
     names: set[str] = set()
-    sector = first_dir
+    sector = _u32(header, 48)
     seen: set[int] = set()
-    while sector != _ENDOFCHAIN and len(seen) < max_sectors:
+    while sector != _ENDOFCHAIN and len(seen) < sectors.count:
         if sector in seen:
             raise ValueError("directory chain loops")
         seen.add(sector)
-        data = read_sector(sector)
+        data = sectors.read(sector)
         for off in range(0, sector_size, 128):
-            name_len = struct.unpack_from("<H", data, off + 64)[0]
+            name_len = _u16(data, off + 64)
             if 2 <= name_len <= 64 and data[off + 66] != 0:
                 names.add(data[off : off + name_len - 2].decode("utf-16-le", errors="replace"))
         sector = next_sector(sector)
@@ -454,7 +471,7 @@ def open_docx_package(path: str | os.PathLike[str]) -> DocxPackage:
     path = os.fspath(path)
     size = _check_file(path)
     try:
-        fh = open(path, "rb")
+        fh = open(path, "rb")  # noqa: SIM115 - closed by the with below; its own error gets its own message
     except OSError as err:
         raise _fail(f"cannot read the file ({err.strerror or _one_line(err)})", path) from None
     with fh:

@@ -57,6 +57,7 @@ __all__ = [
     "max_annotation_id",
     "paragraph_mark_deletable",
     "paragraph_runs",
+    "part_bytes",
     "split_paragraph_after",
     "w",
     "wrap",
@@ -72,6 +73,12 @@ REVISION_KINDS: tuple[str, ...] = ("ins", "del", "moveFrom", "moveTo")
 def w(tag: str) -> str:
     """Clark name of a WordprocessingML element or attribute."""
     return f"{{{W_NS}}}{tag}"
+
+
+def part_bytes(root: etree._Element) -> bytes:
+    """A package part's XML: UTF-8 with the ``standalone="yes"`` declaration Word writes."""
+    data: bytes = etree.tostring(root, xml_declaration=True, encoding="UTF-8", standalone=True)
+    return data
 
 
 _W_ID = w("id")
@@ -396,7 +403,7 @@ def build_comments_part(comments: Sequence[Comment], *, existing: bytes | None =
             p = etree.SubElement(el, _P)
             if line:
                 p.extend(make_runs(line))
-    return etree.tostring(root, xml_declaration=True, encoding="UTF-8", standalone=True)
+    return part_bytes(root)
 
 
 _PARSER = etree.XMLParser(resolve_entities=False, no_network=True, huge_tree=False,
@@ -462,7 +469,7 @@ def _has_content_before(run: etree._Element, child: etree._Element) -> bool:
 
 def _split_at(p: etree._Element, offset: int) -> None:
     """Make *offset* fall on a run boundary (no run holds text on both sides of it)."""
-    for start, end, el, text in _pieces(p):
+    for start, end, el, _text in _pieces(p):
         if start < offset < end:
             if el.tag != _T:
                 return  # a one-character piece cannot be cut; offsets come from whole words

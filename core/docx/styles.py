@@ -32,7 +32,7 @@ __all__ = [
 ]
 
 W_NS = "http://schemas.openxmlformats.org/wordprocessingml/2006/main"
-_W = "{%s}" % W_NS
+_W = f"{{{W_NS}}}"
 _VAL = _W + "val"
 
 #: Longest ``w:basedOn`` chain followed.  Word's own style galleries rarely go beyond 5-6
@@ -265,7 +265,7 @@ def parse_styles(root: etree._Element | None) -> StyleSheet:
         for c in chain:
             o = _outline_from(c)
             if o is not False:
-                outline = o  # type: ignore[assignment]
+                outline = o
                 break
         run = _EMPTY_FORMAT
         for c in reversed(chain):

@@ -47,6 +47,7 @@ from .revisions import (
     mark_paragraph,
     max_annotation_id,
     paragraph_runs,
+    part_bytes,
     w,
 )
 from .validate import COMMENTS_CT, COMMENTS_REL
@@ -123,8 +124,9 @@ def _prolog(data: bytes) -> bytes | None:
 def _serialise(root: etree._Element, original: bytes) -> bytes:
     prolog = _prolog(original)
     if prolog is None:
-        return etree.tostring(root, xml_declaration=True, encoding="UTF-8", standalone=True)
-    return prolog + etree.tostring(root, encoding="unicode").encode("utf-8")
+        return part_bytes(root)
+    text: str = etree.tostring(root, encoding="unicode")
+    return prolog + text.encode("utf-8")
 
 
 def _first_run_rpr(p: etree._Element) -> etree._Element | None:
@@ -333,8 +335,7 @@ class _TrackedCopy:
         if properties:
             ct_changed |= self._custom_properties(properties, replaced, added, content_types)
         if ct_changed:
-            replaced["[Content_Types].xml"] = etree.tostring(content_types, xml_declaration=True,
-                                                             encoding="UTF-8", standalone=True)
+            replaced["[Content_Types].xml"] = part_bytes(content_types)
         buf = io.BytesIO()
         with zipfile.ZipFile(buf, "w") as zout:
             for info in self.infos:
@@ -360,7 +361,7 @@ class _TrackedCopy:
             if rels is None:
                 rels = etree.Element(f"{{{_REL_NS}}}Relationships", nsmap={None: _REL_NS})
             _add_relationship(rels, COMMENTS_REL, posixpath.relpath(name, self.folder))
-            rels_bytes = etree.tostring(rels, xml_declaration=True, encoding="UTF-8", standalone=True)
+            rels_bytes = part_bytes(rels)
             if self.rels_name in self.names:
                 replaced[self.rels_name] = rels_bytes
             else:
@@ -384,8 +385,7 @@ class _TrackedCopy:
             if custom_name in self.names:
                 custom_name = "docProps/counterdraft-custom.xml"
             _add_relationship(pkg_rels, CUSTOM_PROPERTIES_REL, custom_name)
-            replaced["_rels/.rels"] = etree.tostring(pkg_rels, xml_declaration=True, encoding="UTF-8",
-                                                     standalone=True)
+            replaced["_rels/.rels"] = part_bytes(pkg_rels)
             added.append((custom_name, custom_properties_xml(properties)))
         return _ensure_override(content_types, custom_name, CUSTOM_PROPERTIES_CT)
 

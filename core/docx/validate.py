@@ -32,7 +32,7 @@ import os
 import posixpath
 import re
 import zipfile
-from collections.abc import Iterable
+from collections.abc import Iterable, Mapping
 
 from lxml import etree
 
@@ -83,24 +83,27 @@ def _numeric_id(el: etree._Element, problems: list[str]) -> int | None:
     return int(value)
 
 
-def check_revisions(document: etree._Element, *, comments: etree._Element | None = None,
-                    comments_expected: bool | None = None) -> list[str]:
-    """Problems found in the revision and comment markup of a main document part (and its
-    comments part, if any).  An empty list means the markup passed every rule."""
-    problems: list[str] = []
-    seen_ids: dict[int, etree._Element] = {}
+class _Ids:
+    """The w:id values claimed so far by revisions and move ranges (unique across both)."""
 
-    def claim(el: etree._Element) -> None:
-        value = _numeric_id(el, problems)
+    def __init__(self, problems: list[str]) -> None:
+        self.problems = problems
+        self.seen: dict[int, etree._Element] = {}
+
+    def claim(self, el: etree._Element) -> None:
+        value = _numeric_id(el, self.problems)
         if value is None:
             return
-        if value in seen_ids:
-            problems.append(f"{_where(el)} repeats w:id {value} of {_where(seen_ids[value])}")
+        if value in self.seen:
+            self.problems.append(f"{_where(el)} repeats w:id {value} of {_where(self.seen[value])}")
         else:
-            seen_ids[value] = el
+            self.seen[value] = el
 
+
+def _check_tracked(document: etree._Element, ids: _Ids, problems: list[str]) -> None:
+    """Revision elements: ids, author and date, no deletion inside a deletion."""
     for el in document.iter(*_TRACKED):
-        claim(el)
+        ids.claim(el)
         _check_stamp(el, problems)
         if el.tag in _DELETING:
             anc = el.getparent()
@@ -110,7 +113,9 @@ def check_revisions(document: etree._Element, *, comments: etree._Element | None
                     break
                 anc = anc.getparent()
 
-    # Text elements and the tracking that governs them.
+
+def _check_text_elements(document: etree._Element, problems: list[str]) -> None:
+    """Text elements and the tracking that governs them."""
     for el in document.iter(w("t"), w("instrText"), w("delText"), w("delInstrText")):
         deleting = _deleting_ancestor(el)
         if el.tag in (w("t"), w("instrText")) and deleting is not None:
@@ -118,7 +123,9 @@ def check_revisions(document: etree._Element, *, comments: etree._Element | None
         if el.tag in (w("delText"), w("delInstrText")) and deleting is None:
             problems.append(f"{_where(el)} outside any w:del or w:moveFrom")
 
-    # Move ranges.
+
+def _range_ends(document: etree._Element, problems: list[str]) -> dict[tuple[str, str], etree._Element]:
+    """The move range ends by (kind, w:id)."""
     ends: dict[tuple[str, str], etree._Element] = {}
     for kind in ("moveFrom", "moveTo"):
         for el in document.iter(w(f"{kind}RangeEnd")):
@@ -127,12 +134,19 @@ def check_revisions(document: etree._Element, *, comments: etree._Element | None
                 problems.append(f"{_where(el)} has no w:id")
             else:
                 ends[(kind, value)] = el
-    order = {el: i for i, el in enumerate(document.iter())}
+    return ends
+
+
+def _check_moves(document: etree._Element, order: Mapping[etree._Element, int], ids: _Ids,
+                 problems: list[str]) -> None:
+    """Move ranges: each start paired with its end after it, both sides of a move named
+    alike, and every moved run inside a range of its kind."""
+    ends = _range_ends(document, problems)
     names: dict[str, set[str]] = {"moveFrom": set(), "moveTo": set()}
     open_ranges: dict[str, list[tuple[int, int]]] = {"moveFrom": [], "moveTo": []}
     for el in document.iter(*_RANGE_STARTS):
         kind = "moveFrom" if el.tag == w("moveFromRangeStart") else "moveTo"
-        claim(el)
+        ids.claim(el)
         _check_stamp(el, problems)
         name = el.get(w("name"))
         if not name:
@@ -158,7 +172,39 @@ def check_revisions(document: etree._Element, *, comments: etree._Element | None
             if not any(a < pos < b for a, b in open_ranges[kind]):
                 problems.append(f"{_where(el)} lies outside every w:{kind}RangeStart/End range")
 
-    # Comments.
+
+def _comment_ids(comments: etree._Element, problems: list[str]) -> set[str]:
+    """The ids of the comments part's comments (each once, with author and date)."""
+    known: set[str] = set()
+    for c in comments.iter(w("comment")):
+        value = _numeric_id(c, problems)
+        _check_stamp(c, problems)
+        if value is None:
+            continue
+        if str(value) in known:
+            problems.append(f"{_where(c)} repeats comment id {value}")
+        known.add(str(value))
+    return known
+
+
+def _check_comment_marks(value: str, by_tag: Mapping[str, list[etree._Element]],
+                         order: Mapping[etree._Element, int], problems: list[str]) -> None:
+    """One comment's range start, end and reference in the document."""
+    starts = by_tag.get("commentRangeStart", [])
+    ends_ = by_tag.get("commentRangeEnd", [])
+    if len(starts) > 1 or len(ends_) > 1:
+        problems.append(f"comment id {value} has more than one range start or end")
+    if starts and ends_ and order[ends_[0]] < order[starts[0]]:
+        problems.append(f"comment id {value}: range end before range start")
+    if bool(starts) != bool(ends_):
+        problems.append(f"comment id {value}: range start and end must both be present")
+    if "commentReference" not in by_tag:
+        problems.append(f"comment id {value} has no w:commentReference")
+
+
+def _check_comments(document: etree._Element, comments: etree._Element | None, comments_expected: bool | None,
+                    order: Mapping[etree._Element, int], problems: list[str]) -> None:
+    """Comment ranges and references against the comments part."""
     refs: dict[str, dict[str, list[etree._Element]]] = {}
     for tag in ("commentRangeStart", "commentRangeEnd", "commentReference"):
         for el in document.iter(w(tag)):
@@ -169,32 +215,29 @@ def check_revisions(document: etree._Element, *, comments: etree._Element | None
             refs.setdefault(value, {}).setdefault(tag, []).append(el)
     known: set[str] = set()
     if comments is not None:
-        for c in comments.iter(w("comment")):
-            value = _numeric_id(c, problems)
-            _check_stamp(c, problems)
-            if value is None:
-                continue
-            if str(value) in known:
-                problems.append(f"{_where(c)} repeats comment id {value}")
-            known.add(str(value))
+        known = _comment_ids(comments, problems)
     elif refs and comments_expected is not False:
         problems.append("the document refers to comments but has no comments part")
     for value, by_tag in refs.items():
         if comments is not None and value not in known:
             problems.append(f"comment id {value} is used in the document but not in the comments part")
-        starts = by_tag.get("commentRangeStart", [])
-        ends_ = by_tag.get("commentRangeEnd", [])
-        if len(starts) > 1 or len(ends_) > 1:
-            problems.append(f"comment id {value} has more than one range start or end")
-        if starts and ends_ and order[ends_[0]] < order[starts[0]]:
-            problems.append(f"comment id {value}: range end before range start")
-        if bool(starts) != bool(ends_):
-            problems.append(f"comment id {value}: range start and end must both be present")
-        if "commentReference" not in by_tag:
-            problems.append(f"comment id {value} has no w:commentReference")
+        _check_comment_marks(value, by_tag, order, problems)
     if comments is not None:
         for value in known - set(refs):
             problems.append(f"comment id {value} is never referenced from the document")
+
+
+def check_revisions(document: etree._Element, *, comments: etree._Element | None = None,
+                    comments_expected: bool | None = None) -> list[str]:
+    """Problems found in the revision and comment markup of a main document part (and its
+    comments part, if any).  An empty list means the markup passed every rule."""
+    problems: list[str] = []
+    ids = _Ids(problems)
+    _check_tracked(document, ids, problems)
+    _check_text_elements(document, problems)
+    order = {el: i for i, el in enumerate(document.iter())}
+    _check_moves(document, order, ids, problems)
+    _check_comments(document, comments, comments_expected, order, problems)
     return problems
 
 
@@ -218,7 +261,8 @@ def _rels(zf: zipfile.ZipFile, name: str) -> Iterable[etree._Element]:
         data = zf.read(name)
     except KeyError:
         return []
-    return etree.fromstring(data, _parser()).iter(f"{{{_REL_NS}}}Relationship")
+    rels: Iterable[etree._Element] = etree.fromstring(data, _parser()).iter(f"{{{_REL_NS}}}Relationship")
+    return rels
 
 
 def validate_docx(source: str | os.PathLike[str] | bytes) -> list[str]:

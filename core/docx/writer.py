@@ -31,7 +31,7 @@ from xml.sax.saxutils import escape
 
 from lxml import etree
 
-from .revisions import W_NS, IdAllocator, RevisionStamp, make_runs, mark_paragraph, w, wrap
+from .revisions import W_NS, IdAllocator, RevisionKind, RevisionStamp, make_runs, mark_paragraph, part_bytes, w, wrap
 
 __all__ = [
     "GROUP_FILL",
@@ -125,32 +125,97 @@ class Table:
 Element = Para | Table
 
 
-_STYLES = f"""<?xml version="1.0" encoding="UTF-8" standalone="yes"?>
-<w:styles xmlns:w="{W_NS}">
-<w:docDefaults><w:rPrDefault><w:rPr><w:rFonts w:ascii="Liberation Serif" w:hAnsi="Liberation Serif" w:cs="Liberation Serif" w:eastAsia="Liberation Serif"/><w:sz w:val="22"/><w:szCs w:val="22"/><w:lang w:val="en-GB"/></w:rPr></w:rPrDefault>
-<w:pPrDefault><w:pPr><w:spacing w:after="120" w:line="264" w:lineRule="auto"/></w:pPr></w:pPrDefault></w:docDefaults>
-<w:style w:type="paragraph" w:default="1" w:styleId="Normal"><w:name w:val="Normal"/><w:qFormat/></w:style>
-<w:style w:type="paragraph" w:styleId="Title"><w:name w:val="Title"/><w:basedOn w:val="Normal"/><w:next w:val="Normal"/><w:qFormat/><w:pPr><w:spacing w:after="240"/><w:outlineLvl w:val="0"/></w:pPr><w:rPr><w:b/><w:sz w:val="32"/><w:szCs w:val="32"/></w:rPr></w:style>
-<w:style w:type="paragraph" w:styleId="Heading1"><w:name w:val="heading 1"/><w:basedOn w:val="Normal"/><w:next w:val="Normal"/><w:qFormat/><w:pPr><w:keepNext/><w:spacing w:before="240" w:after="120"/><w:outlineLvl w:val="0"/></w:pPr><w:rPr><w:b/><w:sz w:val="26"/><w:szCs w:val="26"/></w:rPr></w:style>
-<w:style w:type="paragraph" w:styleId="Caution"><w:name w:val="Caution"/><w:basedOn w:val="Normal"/><w:qFormat/><w:pPr><w:pBdr><w:top w:val="single" w:sz="4" w:space="4" w:color="auto"/><w:bottom w:val="single" w:sz="4" w:space="4" w:color="auto"/></w:pBdr><w:spacing w:after="240"/></w:pPr><w:rPr><w:i/><w:sz w:val="20"/><w:szCs w:val="20"/></w:rPr></w:style>
-<w:style w:type="paragraph" w:styleId="TableText"><w:name w:val="Table Text"/><w:basedOn w:val="Normal"/><w:qFormat/><w:pPr><w:spacing w:before="20" w:after="20" w:line="240" w:lineRule="auto"/></w:pPr><w:rPr><w:sz w:val="18"/><w:szCs w:val="18"/></w:rPr></w:style>
-<w:style w:type="paragraph" w:styleId="TableNote"><w:name w:val="Table Note"/><w:basedOn w:val="Normal"/><w:qFormat/><w:pPr><w:spacing w:before="60" w:after="60" w:line="240" w:lineRule="auto"/></w:pPr><w:rPr><w:sz w:val="18"/><w:szCs w:val="18"/></w:rPr></w:style>
-<w:style w:type="character" w:default="1" w:styleId="DefaultParagraphFont"><w:name w:val="Default Paragraph Font"/><w:uiPriority w:val="1"/><w:semiHidden/></w:style>
-<w:style w:type="table" w:default="1" w:styleId="TableNormal"><w:name w:val="Normal Table"/><w:semiHidden/><w:tblPr><w:tblInd w:w="0" w:type="dxa"/><w:tblCellMar><w:top w:w="0" w:type="dxa"/><w:left w:w="108" w:type="dxa"/><w:bottom w:w="0" w:type="dxa"/><w:right w:w="108" w:type="dxa"/></w:tblCellMar></w:tblPr></w:style>
-<w:style w:type="table" w:styleId="TableGrid"><w:name w:val="Table Grid"/><w:basedOn w:val="TableNormal"/><w:tblPr><w:tblBorders><w:top w:val="single" w:sz="4" w:space="0" w:color="auto"/><w:left w:val="single" w:sz="4" w:space="0" w:color="auto"/><w:bottom w:val="single" w:sz="4" w:space="0" w:color="auto"/><w:right w:val="single" w:sz="4" w:space="0" w:color="auto"/><w:insideH w:val="single" w:sz="4" w:space="0" w:color="auto"/><w:insideV w:val="single" w:sz="4" w:space="0" w:color="auto"/></w:tblBorders></w:tblPr></w:style>
-</w:styles>"""
+_STYLES = (
+    '<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n'
+    f'<w:styles xmlns:w="{W_NS}">\n'
+    '<w:docDefaults><w:rPrDefault><w:rPr>'
+    '<w:rFonts w:ascii="Liberation Serif" w:hAnsi="Liberation Serif" w:cs="Liberation Serif"'
+    ' w:eastAsia="Liberation Serif"/><w:sz w:val="22"/><w:szCs w:val="22"/><w:lang w:val="en-GB"/>'
+    '</w:rPr></w:rPrDefault>\n'
+    '<w:pPrDefault><w:pPr><w:spacing w:after="120" w:line="264" w:lineRule="auto"/></w:pPr>'
+    '</w:pPrDefault></w:docDefaults>\n'
+    '<w:style w:type="paragraph" w:default="1" w:styleId="Normal"><w:name w:val="Normal"/><w:qFormat/>'
+    '</w:style>\n'
+    '<w:style w:type="paragraph" w:styleId="Title"><w:name w:val="Title"/><w:basedOn w:val="Normal"/>'
+    '<w:next w:val="Normal"/><w:qFormat/><w:pPr><w:spacing w:after="240"/><w:outlineLvl w:val="0"/>'
+    '</w:pPr><w:rPr><w:b/><w:sz w:val="32"/><w:szCs w:val="32"/></w:rPr></w:style>\n'
+    '<w:style w:type="paragraph" w:styleId="Heading1"><w:name w:val="heading 1"/>'
+    '<w:basedOn w:val="Normal"/><w:next w:val="Normal"/><w:qFormat/><w:pPr><w:keepNext/>'
+    '<w:spacing w:before="240" w:after="120"/><w:outlineLvl w:val="0"/></w:pPr><w:rPr><w:b/>'
+    '<w:sz w:val="26"/><w:szCs w:val="26"/></w:rPr></w:style>\n'
+    '<w:style w:type="paragraph" w:styleId="Caution"><w:name w:val="Caution"/><w:basedOn w:val="Normal"/>'
+    '<w:qFormat/><w:pPr><w:pBdr><w:top w:val="single" w:sz="4" w:space="4" w:color="auto"/>'
+    '<w:bottom w:val="single" w:sz="4" w:space="4" w:color="auto"/></w:pBdr><w:spacing w:after="240"/>'
+    '</w:pPr><w:rPr><w:i/><w:sz w:val="20"/><w:szCs w:val="20"/></w:rPr></w:style>\n'
+    '<w:style w:type="paragraph" w:styleId="TableText"><w:name w:val="Table Text"/>'
+    '<w:basedOn w:val="Normal"/><w:qFormat/><w:pPr>'
+    '<w:spacing w:before="20" w:after="20" w:line="240" w:lineRule="auto"/></w:pPr><w:rPr>'
+    '<w:sz w:val="18"/><w:szCs w:val="18"/></w:rPr></w:style>\n'
+    '<w:style w:type="paragraph" w:styleId="TableNote"><w:name w:val="Table Note"/>'
+    '<w:basedOn w:val="Normal"/><w:qFormat/><w:pPr>'
+    '<w:spacing w:before="60" w:after="60" w:line="240" w:lineRule="auto"/></w:pPr><w:rPr>'
+    '<w:sz w:val="18"/><w:szCs w:val="18"/></w:rPr></w:style>\n'
+    '<w:style w:type="character" w:default="1" w:styleId="DefaultParagraphFont">'
+    '<w:name w:val="Default Paragraph Font"/><w:uiPriority w:val="1"/><w:semiHidden/></w:style>\n'
+    '<w:style w:type="table" w:default="1" w:styleId="TableNormal"><w:name w:val="Normal Table"/>'
+    '<w:semiHidden/><w:tblPr><w:tblInd w:w="0" w:type="dxa"/><w:tblCellMar><w:top w:w="0" w:type="dxa"/>'
+    '<w:left w:w="108" w:type="dxa"/><w:bottom w:w="0" w:type="dxa"/><w:right w:w="108" w:type="dxa"/>'
+    '</w:tblCellMar></w:tblPr></w:style>\n'
+    '<w:style w:type="table" w:styleId="TableGrid"><w:name w:val="Table Grid"/>'
+    '<w:basedOn w:val="TableNormal"/><w:tblPr><w:tblBorders>'
+    '<w:top w:val="single" w:sz="4" w:space="0" w:color="auto"/>'
+    '<w:left w:val="single" w:sz="4" w:space="0" w:color="auto"/>'
+    '<w:bottom w:val="single" w:sz="4" w:space="0" w:color="auto"/>'
+    '<w:right w:val="single" w:sz="4" w:space="0" w:color="auto"/>'
+    '<w:insideH w:val="single" w:sz="4" w:space="0" w:color="auto"/>'
+    '<w:insideV w:val="single" w:sz="4" w:space="0" w:color="auto"/></w:tblBorders></w:tblPr></w:style>\n'
+    '</w:styles>'
+)
 
-_SETTINGS = f"""<?xml version="1.0" encoding="UTF-8" standalone="yes"?>
-<w:settings xmlns:w="{W_NS}"><w:defaultTabStop w:val="720"/><w:characterSpacingControl w:val="doNotCompress"/><w:compat><w:compatSetting w:name="compatibilityMode" w:uri="http://schemas.microsoft.com/office/word" w:val="15"/></w:compat></w:settings>"""
+_SETTINGS = (
+    '<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n'
+    f'<w:settings xmlns:w="{W_NS}"><w:defaultTabStop w:val="720"/>'
+    '<w:characterSpacingControl w:val="doNotCompress"/><w:compat>'
+    '<w:compatSetting w:name="compatibilityMode" w:uri="http://schemas.microsoft.com/office/word"'
+    ' w:val="15"/></w:compat></w:settings>'
+)
 
-_CONTENT_TYPES = f"""<?xml version="1.0" encoding="UTF-8" standalone="yes"?>
-<Types xmlns="http://schemas.openxmlformats.org/package/2006/content-types"><Default Extension="rels" ContentType="application/vnd.openxmlformats-package.relationships+xml"/><Default Extension="xml" ContentType="application/xml"/><Override PartName="/word/document.xml" ContentType="application/vnd.openxmlformats-officedocument.wordprocessingml.document.main+xml"/><Override PartName="/word/styles.xml" ContentType="application/vnd.openxmlformats-officedocument.wordprocessingml.styles+xml"/><Override PartName="/word/settings.xml" ContentType="application/vnd.openxmlformats-officedocument.wordprocessingml.settings+xml"/><Override PartName="/docProps/core.xml" ContentType="application/vnd.openxmlformats-package.core-properties+xml"/><Override PartName="/docProps/custom.xml" ContentType="{CUSTOM_PROPERTIES_CT}"/></Types>"""
+_CONTENT_TYPES = (
+    '<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n'
+    '<Types xmlns="http://schemas.openxmlformats.org/package/2006/content-types">'
+    '<Default Extension="rels" ContentType="application/vnd.openxmlformats-package.relationships+xml"/>'
+    '<Default Extension="xml" ContentType="application/xml"/><Override PartName="/word/document.xml"'
+    ' ContentType="application/vnd.openxmlformats-officedocument.wordprocessingml.document.main+xml"/>'
+    '<Override PartName="/word/styles.xml"'
+    ' ContentType="application/vnd.openxmlformats-officedocument.wordprocessingml.styles+xml"/>'
+    '<Override PartName="/word/settings.xml"'
+    ' ContentType="application/vnd.openxmlformats-officedocument.wordprocessingml.settings+xml"/>'
+    '<Override PartName="/docProps/core.xml"'
+    ' ContentType="application/vnd.openxmlformats-package.core-properties+xml"/>'
+    f'<Override PartName="/docProps/custom.xml" ContentType="{CUSTOM_PROPERTIES_CT}"/></Types>'
+)
 
-_PACKAGE_RELS = f"""<?xml version="1.0" encoding="UTF-8" standalone="yes"?>
-<Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Id="rId1" Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/officeDocument" Target="word/document.xml"/><Relationship Id="rId2" Type="http://schemas.openxmlformats.org/package/2006/relationships/metadata/core-properties" Target="docProps/core.xml"/><Relationship Id="rId3" Type="{CUSTOM_PROPERTIES_REL}" Target="docProps/custom.xml"/></Relationships>"""
+_PACKAGE_RELS = (
+    '<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n'
+    '<Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships">'
+    '<Relationship Id="rId1"'
+    ' Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/officeDocument"'
+    ' Target="word/document.xml"/><Relationship Id="rId2"'
+    ' Type="http://schemas.openxmlformats.org/package/2006/relationships/metadata/core-properties"'
+    ' Target="docProps/core.xml"/>'
+    f'<Relationship Id="rId3" Type="{CUSTOM_PROPERTIES_REL}" Target="docProps/custom.xml"/>'
+    '</Relationships>'
+)
 
-_DOCUMENT_RELS = """<?xml version="1.0" encoding="UTF-8" standalone="yes"?>
-<Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Id="rId1" Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/styles" Target="styles.xml"/><Relationship Id="rId2" Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/settings" Target="settings.xml"/></Relationships>"""
+_DOCUMENT_RELS = (
+    '<?xml version="1.0" encoding="UTF-8" standalone="yes"?>\n'
+    '<Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships">'
+    '<Relationship Id="rId1"'
+    ' Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/styles"'
+    ' Target="styles.xml"/><Relationship Id="rId2"'
+    ' Type="http://schemas.openxmlformats.org/officeDocument/2006/relationships/settings"'
+    ' Target="settings.xml"/></Relationships>'
+)
 
 
 def custom_properties_xml(properties: Mapping[str, str], *, existing: bytes | None = None) -> bytes:
@@ -170,7 +235,7 @@ def custom_properties_xml(properties: Mapping[str, str], *, existing: bytes | No
         prop.set("name", name)
         next_pid += 1
         etree.SubElement(prop, f"{{{_VT_NS}}}lpwstr").text = value
-    return etree.tostring(root, xml_declaration=True, encoding="UTF-8", standalone=True)
+    return part_bytes(root)
 
 
 def _core_properties(title: str, created: str) -> bytes:
@@ -225,7 +290,7 @@ def _paragraph(para: Para, *, stamp: RevisionStamp, ids: IdAllocator,
         group.append(run)
     flush()
     if para.mark:
-        mark_paragraph(p, _paragraph_mark_kind(para), stamp=stamp, ids=ids)
+        mark_paragraph(p, _paragraph_mark_kind(para, para.mark), stamp=stamp, ids=ids)
     if para.mark in ("moveFrom", "moveTo") and para.move:
         moves.setdefault(f"{para.mark}:{para.move}", []).append(p)
     return p
@@ -251,7 +316,7 @@ def _separate_insertions(body: Sequence[Element]) -> list[Element]:
         cur, nxt = out[i], out[i + 1]
         if not (isinstance(cur, Para) and isinstance(nxt, Para)):
             continue
-        if _paragraph_mark_kind(cur) or not cur.runs or cur.runs[-1].mark != "ins":
+        if cur.mark or not cur.runs or cur.runs[-1].mark != "ins":
             continue
         if not _starts_with_insertion(nxt):
             continue
@@ -268,13 +333,14 @@ def _separate_insertions(body: Sequence[Element]) -> list[Element]:
             m = re.search(r"\S+\s*$", plain) or re.search(r".$", plain, re.DOTALL)
             if m is not None:
                 head, tail = plain[: m.start()], plain[m.start():]
-                new_runs = tuple(runs[:k - 1]) + ((Run(head, "", runs[k - 1].bold, runs[k - 1].italic),) if head else ())
+                last = runs[k - 1]
+                new_runs = tuple(runs[:k - 1]) + ((Run(head, "", last.bold, last.italic),) if head else ())
                 out[i] = replace(cur, runs=new_runs + (Run(tail + inserted, "ins"), Run(tail, "del")))
     return out
 
 
-def _paragraph_mark_kind(para: Para) -> RunMark:
-    """The revision to put on the paragraph mark.
+def _paragraph_mark_kind(para: Para, mark: RevisionKind) -> RevisionKind:
+    """The revision to put on the paragraph mark of *para*, marked *mark*.
 
     A moved paragraph ending in words inserted (or deleted) on top of the move gets the
     insertion (deletion) on its mark: LibreOffice 7.4 (checked on this machine type) leaves an
@@ -282,11 +348,11 @@ def _paragraph_mark_kind(para: Para) -> RunMark:
     while the ``w:ins`` mark is rejected cleanly.  Either is valid ECMA-376 markup.
     """
     last = para.runs[-1].mark if para.runs else ""
-    if para.mark == "moveTo" and last == "ins":
+    if mark == "moveTo" and last == "ins":
         return "ins"
-    if para.mark == "moveFrom" and last == "del":
+    if mark == "moveFrom" and last == "del":
         return "del"
-    return para.mark
+    return mark
 
 
 def _add_move_ranges(moves: dict[str, list[etree._Element]], *, stamp: RevisionStamp,
@@ -436,7 +502,7 @@ def build_docx(body: Sequence[Element], *, stamp: RevisionStamp, title: str,
     for side, value in (("top", margin), ("right", margin), ("bottom", margin), ("left", margin),
                         ("header", "709"), ("footer", "709"), ("gutter", "0")):
         mar.set(w(side), value)
-    document_xml = etree.tostring(doc, xml_declaration=True, encoding="UTF-8", standalone=True)
+    document_xml = part_bytes(doc)
     parts: list[tuple[str, bytes]] = [
         ("[Content_Types].xml", _CONTENT_TYPES.encode("utf-8")),
         ("_rels/.rels", _PACKAGE_RELS.encode("utf-8")),

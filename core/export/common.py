@@ -6,7 +6,7 @@ import datetime as _dt
 import getpass
 import os
 import re
-from collections.abc import Iterable, Sequence
+from collections.abc import Callable, Iterable, Sequence
 from pathlib import Path
 
 from ..errors import CounterdraftError
@@ -177,7 +177,7 @@ def map_offset(edits: Sequence[Edit], offset: int) -> int | None:
     return edits[-1].d2
 
 
-def term_translator(term_map: Sequence[TermMapping]):
+def term_translator(term_map: Sequence[TermMapping]) -> Callable[[str], str]:
     """Replace the precedent's names of mapped defined terms by the draft's, keeping plural
     and possessive endings, so restored house wording uses the draft's own defined terms."""
     pairs = sorted(((m.precedent, m.draft) for m in term_map if m.precedent and m.draft),

@@ -11,7 +11,7 @@ from __future__ import annotations
 import dataclasses
 import datetime as _dt
 import os
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -105,7 +105,7 @@ def _like_block(blocks: Sequence[Block], anchor: int, model: Block) -> tuple[int
 
 
 def _heading_change(review: Review, dec: Decision, dprov: Provision, pprov: Provision | None,
-                    to_draft_terms):
+                    to_draft_terms: Callable[[str], str]) -> BlockEdit | BlockDeletion | None:
     """The change that puts the precedent's heading (revert) or the reviewer's (amend) in
     place of the draft's whole heading, or anchors a note on it (accept).  Returns a
     BlockEdit, a BlockDeletion (a heading line to remove) or None when not found."""
@@ -154,7 +154,7 @@ def _heading_edit(block: int, text: str, start: int, end: int, replacement: str 
     return BlockEdit(block, edit.start, edit.end, edit.new)
 
 
-def _subtree(doc: Document, root: Provision, *, keep) -> list[Provision]:
+def _subtree(doc: Document, root: Provision, *, keep: Callable[[Provision], bool]) -> list[Provision]:
     """*root* and its descendants for which ``keep(provision)`` holds, in document order.
     One pass over the provisions (parents come before their children)."""
     inside = {root.id}
@@ -396,10 +396,11 @@ def _span_edits(review: Review, dev: Deviation, dec: Decision, dprov: Provision,
         return words
 
     pair = edits_of_pair(review, dprov.id, pprov.id) if pprov is not None else ()
-    if pair and dev.precedent_text_span is not None and dev.draft_text_span is not None:
-        return revert_edits(pair, pprov.text, dprov.text, precedent=dev.precedent_text_span,
+    if pprov is not None and pair and dev.precedent_text_span is not None and dev.draft_text_span is not None:
+        ptext = pprov.text
+        return revert_edits(pair, ptext, dprov.text, precedent=dev.precedent_text_span,
                             draft=dev.draft_text_span,
-                            translate=lambda a, b: precedent_words(pprov.text[a:b]),
+                            translate=lambda a, b: precedent_words(ptext[a:b]),
                             keep=lambda a, b: wording.draft(dprov, a, b))
     # A review without corresponding spans (built by hand): the precedent's changed words.
     if pprov is not None and dev.precedent_span is not None:

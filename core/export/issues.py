@@ -193,7 +193,8 @@ class IssueRow:
             _NUMBER_COLUMN: str(self.number), "Clause": self.clause,
             _WHAT_COLUMN: self.what_changed, _WHY_COLUMN: self.why,
             _FREQUENCY_COLUMN: self.frequency or "", "Decision": self.decision, "Note": self.note,
-            _DIRECTION_COLUMN: self.direction or "", _PRECEDENT_WORDS_COLUMN: self.precedent_words, _DRAFT_WORDS_COLUMN: self.draft_words,
+            _DIRECTION_COLUMN: self.direction or "",
+            _PRECEDENT_WORDS_COLUMN: self.precedent_words, _DRAFT_WORDS_COLUMN: self.draft_words,
         }
         return [values[c] for c in columns]
 
@@ -796,7 +797,8 @@ thead {{ display: table-header-group; }}
 tr {{ break-inside: avoid; page-break-inside: avoid; }}
 p.note {{ font-size: 0.85em; color: {muted}; margin: 0.4em 0; }}
 @page {{ size: A4 landscape; margin: 12mm; }}
-@media print {{ body {{ margin: 0; }} th, td, strong {{ -webkit-print-color-adjust: exact; print-color-adjust: exact; }} }}
+@media print {{ body {{ margin: 0; }}
+  th, td, strong {{ -webkit-print-color-adjust: exact; print-color-adjust: exact; }} }}
 """.format(**_PALETTE)
 
 
@@ -879,18 +881,18 @@ def issues_list_docx(review: Review, decisions: Sequence[Decision] = (), *, auth
     full text width, fixed column widths, the header row repeated on each page, no row split
     across pages; the changed words in bold; notes under the table."""
     from ..docx.revisions import RevisionStamp
-    from ..docx.writer import Para, Run, Table, build_docx
+    from ..docx.writer import Cell, Element, Para, Run, Table, build_docx
 
     rows = issue_rows(review, decisions, include=include, order=order)
     cols = _columns(rows)
     stamp = RevisionStamp(author=author, date=stamp_date(date))
     title = _title(review)
 
-    def cells(r: IssueRow) -> tuple:
+    def cells(r: IssueRow) -> tuple[Cell, ...]:
         return tuple(tuple(Run(t, bold=m) for t, m in r.change_excerpt.pieces()) if c == _WHAT_COLUMN
                      else v for c, v in zip(cols, r.cells(cols)))
 
-    body: list = [
+    body: list[Element] = [
         Para((Run(title),), style="Title"),
         Para((Run(f"Written by Counterdraft {__version__} on {stamp.date[:10]}."),)),
         Para((Run(CAUTION),), style="Caution"),

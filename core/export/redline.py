@@ -33,7 +33,7 @@ from typing import Literal
 from rapidfuzz.distance import Indel
 
 from .. import CAUTION, __version__
-from ..docx.revisions import RevisionStamp
+from ..docx.revisions import RevisionKind, RevisionStamp
 from ..docx.writer import Element, Para, Run, Table, build_docx
 from ..fileio import atomic_write_bytes
 from ..labels import clause_label
@@ -193,22 +193,26 @@ def _layout(review: Review) -> _Layout:
     )
 
 
-def _keys(lay: _Layout) -> tuple[list[tuple], list[tuple]]:
+#: A paragraph's key for :func:`_steps`: ("text", casefolded text) or (kind, (provision id, part)).
+_Key = tuple[str, str | tuple[str, int]]
+
+
+def _keys(lay: _Layout) -> tuple[list[_Key], list[_Key]]:
     """The paragraph keys :func:`_steps` matches: a precedent paragraph by its provision and
     its place in it; a draft paragraph by the precedent provision it is aligned with, so
     aligned provisions match whatever their numbers; paragraphs outside any provision by
     their text.  Paragraphs of moved provisions get keys that never match in place."""
     moved_p = set(lay.moved.values())
 
-    def by_text(line: str) -> tuple:
+    def by_text(line: str) -> _Key:
         return ("text", line.split("\t", 1)[-1].strip().casefold())
 
-    pkeys: list[tuple] = []
+    pkeys: list[_Key] = []
     for i, line in enumerate(lay.plines):
         own = lay.powners.get(i)
         pkeys.append(by_text(line) if own is None else
                      ("moved-from", own) if own[0] in moved_p else ("prov", own))
-    dkeys: list[tuple] = []
+    dkeys: list[_Key] = []
     for j, line in enumerate(lay.dlines):
         own = lay.downers.get(j)
         if own is None:
@@ -237,7 +241,8 @@ def _moved_sources(lay: _Layout) -> dict[int, int]:
 #: One step of the layout: ("same", i, j) precedent paragraph i shown as draft paragraph j;
 #: ("del", i, None) and ("ins", None, j) a paragraph of one side only; ("moveFrom", i, None)
 #: a paragraph moved away from here and ("moveTo", j, i) moved here from precedent i.
-_Step = tuple[str, int | None, int | None]
+_Step = (tuple[Literal["same"], int, int] | tuple[Literal["del", "moveFrom"], int, None]
+         | tuple[Literal["ins"], None, int] | tuple[Literal["moveTo"], int, int])
 
 
 def _pair_gap(pa: Sequence[int], da: Sequence[int], plines: Sequence[str], dlines: Sequence[str]
@@ -276,7 +281,7 @@ def _pair_gap(pa: Sequence[int], da: Sequence[int], plines: Sequence[str], dline
     return out
 
 
-def _gap_steps(lay: _Layout, pkeys: Sequence[tuple], dkeys: Sequence[tuple],
+def _gap_steps(lay: _Layout, pkeys: Sequence[_Key], dkeys: Sequence[_Key],
                i_range: range, j_range: range, sources: Mapping[int, int]) -> list[_Step]:
     """The steps of one gap between matched paragraphs.  The pairing is monotone in both
     documents; moved paragraphs are slotted in at their own document's position, so
@@ -469,9 +474,9 @@ def _word_pieces(lay: _Layout, i: int, j: int) -> list[_Piece]:
             + _affix_pieces(pl[pb + p_end:], dl[db + d_end:]))
 
 
-def _whole(text: str, mark: str, *, move: str | None = None) -> Para:
+def _whole(text: str, mark: RevisionKind, *, move: str | None = None) -> Para:
     """A paragraph of one side only: all its text and its paragraph mark carry *mark*."""
-    return Para((Run(text, mark),) if text else (), mark=mark, move=move)  # type: ignore[arg-type]
+    return Para((Run(text, mark),) if text else (), mark=mark, move=move)
 
 
 def _all_paragraphs(lay: _Layout, steps: Sequence[_Step]) -> list[Para]:
@@ -479,8 +484,9 @@ def _all_paragraphs(lay: _Layout, steps: Sequence[_Step]) -> list[Para]:
     and moves (``moveFrom`` at the precedent's position, ``moveTo`` at the draft's, named
     per aligned pair, with the word changes inside the move)."""
     out: list[Para] = []
-    for kind, a, b in steps:
-        if kind == "same":
+    for step in steps:
+        if step[0] == "same":
+            _, a, b = step
             pl, dl = lay.plines[a], lay.dlines[b]
             if pl == dl:
                 out.append(Para((Run(dl),) if dl else ()))
@@ -491,16 +497,17 @@ def _all_paragraphs(lay: _Layout, steps: Sequence[_Step]) -> list[Para]:
                 out.extend((_whole(pl, "del"), _whole(dl, "ins")))
             else:
                 out.append(Para(_piece_runs(_word_pieces(lay, a, b))))
-        elif kind == "del":
-            out.append(_whole(lay.plines[a], "del"))
-        elif kind == "ins":
-            out.append(_whole(lay.dlines[b], "ins"))
-        elif kind == "moveFrom":
-            name = lay.move_names[lay.powners[a][0]]
-            out.append(_whole(lay.plines[a], "moveFrom", move=name))
-        else:  # moveTo
-            name = lay.move_names[lay.moved[lay.downers[a][0]]]
-            out.append(Para(_piece_runs(_word_pieces(lay, b, a), moved=True), mark="moveTo", move=name))
+        elif step[0] == "ins":
+            out.append(_whole(lay.dlines[step[2]], "ins"))
+        elif step[0] == "moveTo":
+            _, j, i = step
+            name = lay.move_names[lay.moved[lay.downers[j][0]]]
+            out.append(Para(_piece_runs(_word_pieces(lay, i, j), moved=True), mark="moveTo", move=name))
+        elif step[0] == "del":
+            out.append(_whole(lay.plines[step[1]], "del"))
+        else:  # moveFrom
+            i = step[1]
+            out.append(_whole(lay.plines[i], "moveFrom", move=lay.move_names[lay.powners[i][0]]))
     return out
 
 
@@ -687,13 +694,13 @@ def _substantive_paragraphs(lay: _Layout, steps: Sequence[_Step], sub: _Substanc
     (a moved one once, at the draft's position), the precedent's paragraphs only where a
     substantive deviation removed them, as deleted paragraphs."""
     out: list[Para] = []
-    for kind, a, b in steps:
-        if kind in ("same", "del", "moveFrom") and a in sub.deleted:
-            out.append(_whole(lay.plines[a], "del"))
-        if kind in ("same", "ins"):
-            out.append(_marked_paragraph(lay, sub, b))  # type: ignore[arg-type]
-        elif kind == "moveTo":
-            out.append(_marked_paragraph(lay, sub, a))  # type: ignore[arg-type]
+    for step in steps:
+        if step[0] in ("same", "del", "moveFrom") and step[1] in sub.deleted:
+            out.append(_whole(lay.plines[step[1]], "del"))
+        if step[0] in ("same", "ins"):
+            out.append(_marked_paragraph(lay, sub, step[2]))
+        elif step[0] == "moveTo":
+            out.append(_marked_paragraph(lay, sub, step[1]))
     return out
 
 

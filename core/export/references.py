@@ -28,8 +28,9 @@ from __future__ import annotations
 import difflib
 import os
 import tempfile
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
+from typing import TYPE_CHECKING, Literal
 
 from ..docinfo import build_docinfo
 from ..docx.tracked import BlockEdit
@@ -41,6 +42,9 @@ from ..xrefs import (
     translate_references,
 )
 from .common import block_owners, provision_blocks, term_translator
+
+if TYPE_CHECKING:  # the plan's module imports this one
+    from .counter_draft import CounterDraftPlan
 
 __all__ = [
     "Numbering",
@@ -93,7 +97,11 @@ def accepted_view(data: bytes) -> Document:
         os.rmdir(folder)
 
 
-def _expected_paragraphs(review: Review, plan) -> list[tuple[tuple, str | None]]:
+#: Where a counter-draft paragraph comes from: ("draft", draft block) or ("restored", insertion).
+_Origin = tuple[Literal["draft", "restored"], int]
+
+
+def _expected_paragraphs(review: Review, plan: CounterDraftPlan) -> list[tuple[_Origin, str | None]]:
     """The counter-draft's paragraphs as the plan makes them, in order, each with its
     origin -- ("draft", block), ("restored", insertion) -- and its text when known."""
     deleted = {d.block for d in plan.deletions}
@@ -101,7 +109,7 @@ def _expected_paragraphs(review: Review, plan) -> list[tuple[tuple, str | None]]
     after: dict[int, list[int]] = {}
     for k, ins in enumerate(plan.insertions):
         after.setdefault(ins.after, []).append(k)
-    out: list[tuple[tuple, str | None]] = [(("restored", k), plan.insertions[k].text) for k in after.get(-1, [])]
+    out: list[tuple[_Origin, str | None]] = [(("restored", k), plan.insertions[k].text) for k in after.get(-1, [])]
     for i, block in enumerate(review.draft.blocks):
         if i not in deleted:
             out.append((("draft", i), None if i in edited else block.text))
@@ -109,12 +117,12 @@ def _expected_paragraphs(review: Review, plan) -> list[tuple[tuple, str | None]]
     return out
 
 
-def _line_up(expected: Sequence[tuple[tuple, str | None]], accepted: Document) -> dict[tuple, int]:
+def _line_up(expected: Sequence[tuple[_Origin, str | None]], accepted: Document) -> dict[_Origin, int]:
     """origin -> accepted block index: equal texts matched in order, the paragraphs between
     two matches paired in order (an edited paragraph stays where it was)."""
     keys = [t if t is not None else f"\x00{n}" for n, (_, t) in enumerate(expected)]
     texts = [b.text for b in accepted.blocks]
-    out: dict[tuple, int] = {}
+    out: dict[_Origin, int] = {}
     for tag, i1, i2, j1, j2 in difflib.SequenceMatcher(None, keys, texts, autojunk=False).get_opcodes():
         if tag in ("equal", "replace"):
             for i, j in zip(range(i1, i2), range(j1, j2)):
@@ -122,7 +130,7 @@ def _line_up(expected: Sequence[tuple[tuple, str | None]], accepted: Document) -
     return out
 
 
-def counter_numbering(review: Review, plan, accepted: Document) -> Numbering:
+def counter_numbering(review: Review, plan: CounterDraftPlan, accepted: Document) -> Numbering:
     """Every draft and precedent provision's number in the counter-draft *accepted* (the
     first pass read back), by lining up its paragraphs with what *plan* wrote."""
     where = _line_up(_expected_paragraphs(review, plan), accepted)
@@ -147,7 +155,8 @@ def counter_numbering(review: Review, plan, accepted: Document) -> Numbering:
     return Numbering(numbers, prec, {p.id: before.full_number[i] for i, p in enumerate(draft.provisions)})
 
 
-def _restored_numbers(review: Review, plan, where: Mapping[tuple, int], number_at) -> dict[str, str | None]:
+def _restored_numbers(review: Review, plan: CounterDraftPlan, where: Mapping[_Origin, int],
+                      number_at: Callable[[int | None], str | None]) -> dict[str, str | None]:
     """precedent provision id -> number of its restored copy, through the precedent block
     each insertion copies (``plan.sources``)."""
     owner = block_owners(review.precedent)

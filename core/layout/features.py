@@ -28,7 +28,7 @@ Cost: O(lines) with a few regular-expression matches per line.
 from __future__ import annotations
 
 import re
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 
 import numpy as np
 
@@ -70,7 +70,8 @@ _OWN = (
     "definition", "centred", "table",
 )
 _PREV = (
-    "first", "page_break", "gap_prev", "gap_prev_big", "no_gap", "doc_gapped", "prev_fill", "fits_prev", "fits_prev_end",
+    "first", "page_break", "gap_prev", "gap_prev_big", "no_gap", "doc_gapped",
+    "prev_fill", "fits_prev", "fits_prev_end",
     *(f"prev_end_{k}" for k in _END_CLASSES), "prev_end_and_or",
     "indent_more_prev", "indent_less_prev", "indent_same_prev", "delta_prev",
     "prev_bold", "bold_change_prev", "size_change_prev", "prev_short", "prev_long", "prev_label",
@@ -207,6 +208,57 @@ def _clip(v: float, lim: float) -> float:
     return min(max(v, -lim), lim) / lim
 
 
+def _prev_features(f: dict[str, float], ln: Line, prev: Line, po: Mapping[str, float], g: Geometry, *,
+                   gapped: float) -> None:
+    """Set in *f* the features of line *ln* that compare it with the line before, *prev*
+    (whose own features are *po*)."""
+    same_page = prev.page == ln.page
+    f["page_break"] = float(not same_page)
+    gap = (ln.top - prev.top) / g.pitch - 1.0 if same_page else 0.0
+    f["gap_prev"] = _clip(gap, MAX_GAP_PITCHES)
+    f["gap_prev_big"] = float(gap > GAP_PITCHES)
+    f["no_gap"] = float(same_page and gap <= GAP_PITCHES)
+    f["doc_gapped"] = gapped
+    f["prev_fill"] = po["fill"]
+    fit_end = prev.x1 + prev.space + ln.first_word
+    f["fits_prev"] = float(fit_end <= g.right + FIT_TOLERANCE_EM * g.em)
+    f["fits_prev_end"] = _clip((g.right - fit_end) / g.em, MAX_DELTA_EM)
+    for k in _END_CLASSES:
+        f[f"prev_end_{k}"] = po[f"end_{k}"]
+    f["prev_end_and_or"] = po["end_and_or"]
+    delta = (ln.x0 - prev.x0) / g.em
+    f["indent_more_prev"] = float(delta > SAME_INDENT_EM)
+    f["indent_less_prev"] = float(delta < -SAME_INDENT_EM)
+    f["indent_same_prev"] = float(abs(delta) <= SAME_INDENT_EM)
+    f["delta_prev"] = _clip(delta, MAX_DELTA_EM)
+    f["prev_bold"] = po["all_bold"]
+    f["bold_change_prev"] = float(abs(po["bold"] - f["bold"]) > 0.5)
+    f["size_change_prev"] = float(abs(prev.size - ln.size) > 0.08 * g.em) if g.fonts else 0.0
+    f["prev_short"] = po["short"]
+    f["prev_long"] = po["long_line"]
+    f["prev_label"] = po["label_any"]
+    f["prev_table"] = po["table"]
+    f["prev_all_caps"] = po["all_caps"]
+
+
+def _next_features(f: dict[str, float], ln: Line, nxt: Line, no: Mapping[str, float], g: Geometry) -> None:
+    """Set in *f* the features of line *ln* that compare it with the line after, *nxt*
+    (whose own features are *no*)."""
+    same_page = nxt.page == ln.page
+    gap = (nxt.top - ln.top) / g.pitch - 1.0 if same_page else 0.0
+    f["gap_next"] = _clip(gap, MAX_GAP_PITCHES)
+    f["gap_next_big"] = float(gap > GAP_PITCHES)
+    delta = (nxt.x0 - ln.x0) / g.em
+    f["delta_next"] = _clip(delta, MAX_DELTA_EM)
+    f["next_more"] = float(delta > SAME_INDENT_EM)
+    f["next_less"] = float(delta < -SAME_INDENT_EM)
+    f["next_same"] = float(abs(delta) <= SAME_INDENT_EM)
+    f["next_label"] = no["label_any"]
+    f["next_lower"] = no["starts_lower"]
+    f["next_table"] = no["table"]
+    f["next_bold_change"] = float(abs(no["bold"] - f["bold"]) > 0.5)
+
+
 def line_features(lines: Sequence[Line], g: Geometry | None = None) -> np.ndarray:
     """The feature matrix of *lines* (one row per line, columns :data:`FEATURE_NAMES`)."""
     g = g if g is not None else geometry(lines)
@@ -221,50 +273,10 @@ def line_features(lines: Sequence[Line], g: Geometry | None = None) -> np.ndarra
         nxt = lines[i + 1] if i + 1 < n else None
         f["first"] = float(prev is None)
         if prev is not None:
-            po = own[i - 1]
-            same_page = prev.page == ln.page
-            f["page_break"] = float(not same_page)
-            gap = (ln.top - prev.top) / g.pitch - 1.0 if same_page else 0.0
-            f["gap_prev"] = _clip(gap, MAX_GAP_PITCHES)
-            f["gap_prev_big"] = float(gap > GAP_PITCHES)
-            f["no_gap"] = float(same_page and gap <= GAP_PITCHES)
-            f["doc_gapped"] = gapped
-            f["prev_fill"] = po["fill"]
-            fit_end = prev.x1 + prev.space + ln.first_word
-            f["fits_prev"] = float(fit_end <= g.right + FIT_TOLERANCE_EM * g.em)
-            f["fits_prev_end"] = _clip((g.right - fit_end) / g.em, MAX_DELTA_EM)
-            for k in _END_CLASSES:
-                f[f"prev_end_{k}"] = po[f"end_{k}"]
-            f["prev_end_and_or"] = po["end_and_or"]
-            delta = (ln.x0 - prev.x0) / g.em
-            f["indent_more_prev"] = float(delta > SAME_INDENT_EM)
-            f["indent_less_prev"] = float(delta < -SAME_INDENT_EM)
-            f["indent_same_prev"] = float(abs(delta) <= SAME_INDENT_EM)
-            f["delta_prev"] = _clip(delta, MAX_DELTA_EM)
-            f["prev_bold"] = po["all_bold"]
-            f["bold_change_prev"] = float(abs(po["bold"] - f["bold"]) > 0.5)
-            f["size_change_prev"] = float(abs(prev.size - ln.size) > 0.08 * g.em) if g.fonts else 0.0
-            f["prev_short"] = po["short"]
-            f["prev_long"] = po["long_line"]
-            f["prev_label"] = po["label_any"]
-            f["prev_table"] = po["table"]
-            f["prev_all_caps"] = po["all_caps"]
+            _prev_features(f, ln, prev, own[i - 1], g, gapped=gapped)
         f["last"] = float(nxt is None)
         if nxt is not None:
-            no = own[i + 1]
-            same_page = nxt.page == ln.page
-            gap = (nxt.top - ln.top) / g.pitch - 1.0 if same_page else 0.0
-            f["gap_next"] = _clip(gap, MAX_GAP_PITCHES)
-            f["gap_next_big"] = float(gap > GAP_PITCHES)
-            delta = (nxt.x0 - ln.x0) / g.em
-            f["delta_next"] = _clip(delta, MAX_DELTA_EM)
-            f["next_more"] = float(delta > SAME_INDENT_EM)
-            f["next_less"] = float(delta < -SAME_INDENT_EM)
-            f["next_same"] = float(abs(delta) <= SAME_INDENT_EM)
-            f["next_label"] = no["label_any"]
-            f["next_lower"] = no["starts_lower"]
-            f["next_table"] = no["table"]
-            f["next_bold_change"] = float(abs(no["bold"] - f["bold"]) > 0.5)
+            _next_features(f, ln, nxt, own[i + 1], g)
         for a, b in _PAIRS:
             f[f"{a}*{b}"] = f.get(a, 0.0) * f.get(b, 0.0)
         row = X[i]

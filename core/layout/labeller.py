@@ -139,10 +139,12 @@ class _Forest:
     def log_proba(self, X: np.ndarray) -> np.ndarray:
         z = self.raw(X)
         z = z - z.max(axis=1, keepdims=True)
-        return z - np.log(np.exp(z).sum(axis=1, keepdims=True))
+        out: np.ndarray = z - np.log(np.exp(z).sum(axis=1, keepdims=True))
+        return out
 
     def proba(self, X: np.ndarray) -> np.ndarray:
-        return np.exp(self.log_proba(X))
+        out: np.ndarray = np.exp(self.log_proba(X))
+        return out
 
     def arrays(self, prefix: str) -> dict[str, np.ndarray]:
         """The arrays to store, in compact types (thresholds keep full precision: a feature

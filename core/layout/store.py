@@ -30,7 +30,7 @@ from typing import Any
 import numpy as np
 
 from ..errors import CounterdraftError
-from .labeller import LineLabeller, labeller_from_bytes
+from .labeller import LineLabeller, TrainingLines, labeller_from_bytes
 
 __all__ = ["DEFAULT_MODEL_PATH", "MIN_SET_DOCUMENTS", "default_labeller", "load_labeller",
            "refresh_set_labeller", "save_labeller", "structure_for"]
@@ -86,11 +86,44 @@ def _set_formats() -> tuple[str, ...]:
 def _document_lines(path: Path, sha: str) -> Any:
     """The training lines of one agreement of the set (laid out in simulated house styles)."""
     from ..readers import read_document
-    from .labeller import TrainingLines
     from .simulate import training_examples
 
     doc = read_document(str(path))
     return TrainingLines.of(training_examples(doc, seed=int(sha[:8], 16)))
+
+
+def _set_lines(root: Path, folder: Path, formatted: Sequence[tuple[str, str]]) -> list[TrainingLines]:
+    """The training lines of each distinct agreement of *formatted* ((relative path, SHA-256)),
+    from its cache in *folder* or laid out again (and cached); caches of agreements no longer
+    in the set are removed.  An agreement that cannot be read is left out."""
+    from ..fileio import atomic_write_bytes
+
+    parts = []
+    seen: set[str] = set()
+    for rel, sha in formatted:
+        if sha in seen:
+            continue
+        seen.add(sha)
+        cached = folder / f"{sha}.npz"
+        lines = None
+        try:
+            with np.load(cached, allow_pickle=False) as data:
+                lines = TrainingLines.from_arrays(data)
+        except (OSError, ValueError, KeyError):
+            lines = None
+        if lines is None:
+            try:
+                lines = _document_lines(root / rel, sha)
+            except CounterdraftError:
+                continue
+            buf = io.BytesIO()
+            np.savez_compressed(buf, **lines.arrays())
+            atomic_write_bytes(str(cached), buf.getvalue())
+        parts.append(lines)
+    for old in folder.glob("*.npz"):
+        if old.name != SET_MODEL and old.stem not in seen:
+            old.unlink(missing_ok=True)
+    return parts
 
 
 def refresh_set_labeller(root: str | os.PathLike[str], documents: Sequence[tuple[str, str]]
@@ -102,8 +135,7 @@ def refresh_set_labeller(root: str | os.PathLike[str], documents: Sequence[tuple
     once and kept by its SHA-256; lines of agreements no longer in the set are removed).
     None, with a note, when the set has fewer than :data:`MIN_SET_DOCUMENTS` such agreements.
     """
-    from ..fileio import atomic_write_bytes, atomic_write_text
-    from .labeller import TrainingLines
+    from ..fileio import atomic_write_text
 
     folder = Path(root) / ".counterdraft" / SET_DIRNAME
     formatted = sorted((rel, sha) for rel, sha in documents if rel.lower().endswith(_set_formats()))
@@ -124,31 +156,7 @@ def refresh_set_labeller(root: str | os.PathLike[str], documents: Sequence[tuple
         if model is not None:
             return model, ()
     folder.mkdir(mode=0o700, parents=True, exist_ok=True)
-    parts = []
-    seen: set[str] = set()
-    for rel, sha in formatted:
-        if sha in seen:
-            continue
-        seen.add(sha)
-        cached = folder / f"{sha}.npz"
-        lines = None
-        try:
-            with np.load(cached, allow_pickle=False) as data:
-                lines = TrainingLines.from_arrays(data)
-        except (OSError, ValueError, KeyError):
-            lines = None
-        if lines is None:
-            try:
-                lines = _document_lines(Path(root) / rel, sha)
-            except CounterdraftError:
-                continue
-            buf = io.BytesIO()
-            np.savez_compressed(buf, **lines.arrays())
-            atomic_write_bytes(str(cached), buf.getvalue())
-        parts.append(lines)
-    for old in folder.glob("*.npz"):
-        if old.name != SET_MODEL and old.stem not in seen:
-            old.unlink(missing_ok=True)
+    parts = _set_lines(Path(root), folder, formatted)
     from .labeller import train_labeller
 
     model = train_labeller(TrainingLines.concat(parts), documents=len(parts),

@@ -19,9 +19,11 @@ from __future__ import annotations
 import io
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, replace
+from typing import overload
 
 import numpy as np
 
+from .sparse import SparseMatrix
 from .variants import incidence_matrix
 
 __all__ = ["BucketArrays", "assemble", "compact", "rows_of"]
@@ -52,10 +54,10 @@ class BucketArrays:
     def rows(self) -> int:
         return int(self.hashes.size)
 
-    def shingle_matrix(self):
+    def shingle_matrix(self) -> SparseMatrix:
         return _csr(self.indptr, self.indices, self.rows, self.cols.size)
 
-    def word_matrix(self):
+    def word_matrix(self) -> SparseMatrix:
         return _csr(self.windptr, self.windices, self.rows, self.wcols.size)
 
     def shingle_sets(self) -> Sequence[np.ndarray]:
@@ -84,9 +86,15 @@ class _RowSets(Sequence[np.ndarray]):
         return int(self._indptr.size - 1)
 
     def _row(self, i: int) -> np.ndarray:
-        return self._cols[self._indices[self._indptr[i]:self._indptr[i + 1]]]
+        row: np.ndarray = self._cols[self._indices[self._indptr[i]:self._indptr[i + 1]]]
+        return row
 
-    def __getitem__(self, key):
+    @overload
+    def __getitem__(self, key: int) -> np.ndarray: ...
+    @overload
+    def __getitem__(self, key: slice) -> list[np.ndarray]: ...
+
+    def __getitem__(self, key: int | slice) -> np.ndarray | list[np.ndarray]:
         if isinstance(key, slice):
             return [self._row(i) for i in range(*key.indices(len(self)))]
         if key < 0:
@@ -96,13 +104,13 @@ class _RowSets(Sequence[np.ndarray]):
         return self._row(key)
 
 
-def _csr(indptr: np.ndarray, indices: np.ndarray, rows: int, cols: int):
+def _csr(indptr: np.ndarray, indices: np.ndarray, rows: int, cols: int) -> SparseMatrix:
     from scipy.sparse import csr_matrix
 
     return csr_matrix((np.ones(indices.size, dtype=np.int32), indices, indptr), shape=(rows, cols))
 
 
-def _merge(cols: np.ndarray, matrix, take: np.ndarray,
+def _merge(cols: np.ndarray, matrix: SparseMatrix | None, take: np.ndarray,
            new_sets: Sequence[np.ndarray]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """(columns, indptr, indices) of rows that are old rows ``take[i] >= 0`` or, in order, the
     sets of *new_sets* (``take[i] < 0``)."""

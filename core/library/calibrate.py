@@ -73,7 +73,7 @@ def read_labels(path: str) -> list[Labelled]:
     out = []
     for i, row in enumerate(rows, 2):
         try:
-            doc, prov, label = (row["document"] or "").strip(), (row["provision"] or "").strip(), (row["label"] or "").strip()
+            doc, prov, label = ((row[k] or "").strip() for k in ("document", "provision", "label"))
         except KeyError:
             raise CounterdraftError("the header must be: document,provision,label", path=path) from None
         if not (doc and prov and label):

@@ -7,9 +7,9 @@ A provision is typed by, in order (see the taxonomy file's header for the reason
 2. its heading (or run-in lead), matched against the taxonomy's heading keywords;
 3. its parent's type, when the parent's type itself came from a heading (an unheaded
    sub-clause deals with its clause's subject);
-4. its nearest typed neighbours: TF-IDF cosine (scikit-learn's weighting, computed with numpy) between the provision's words
-   and typed provisions of the precedent set plus the taxonomy's seed phrases; the k nearest
-   vote, weighted by similarity.
+4. its nearest typed neighbours: TF-IDF cosine (scikit-learn's weighting, computed with
+   numpy) between the provision's words and typed provisions of the precedent set plus the
+   taxonomy's seed phrases; the k nearest vote, weighted by similarity.
 
 Cost: heading matching is one regular-expression search per heading.  The neighbour classifier
 is fitted on at most ``40 * (MAX_EXAMPLES_PER_TYPE + 1)`` examples (O(total words)); a query
@@ -33,6 +33,7 @@ import numpy as np
 from ..errors import CounterdraftError
 from ..model import Document, Provision
 from .normalise import TermReplacer, canonical_role, fold, match_tokens
+from .sparse import SparseMatrix
 
 __all__ = [
     "CLAUSE_TYPES_PATH",
@@ -235,7 +236,8 @@ class NeighbourClassifier:
     (:meth:`to_npz_bytes`), with no pickle.
     """
 
-    def __init__(self, vocabulary: Sequence[str], idf: np.ndarray, matrix, labels: Sequence[str]) -> None:
+    def __init__(self, vocabulary: Sequence[str], idf: np.ndarray, matrix: SparseMatrix,
+                 labels: Sequence[str]) -> None:
         self._terms = list(vocabulary)
         self._index = {t: i for i, t in enumerate(self._terms)}
         self._idf = np.asarray(idf, dtype=np.float64)
@@ -276,7 +278,7 @@ class NeighbourClassifier:
         unfitted = cls(vocab, idf, _empty_matrix(len(vocab)), labels)
         return cls(vocab, idf, unfitted.transform(texts), labels)
 
-    def transform(self, texts: Sequence[str]):
+    def transform(self, texts: Sequence[str]) -> SparseMatrix:
         """TF-IDF rows of *texts* over the fitted vocabulary: (1 + log tf) * idf, l2-normed
         (array work over all texts at once; only the n-gram lookup is per word)."""
         from scipy.sparse import csr_matrix
@@ -339,7 +341,7 @@ class NeighbourClassifier:
             return cls(a["vocabulary"].tolist(), a["idf"], matrix, a["labels"].tolist())
 
 
-def _empty_matrix(columns: int):
+def _empty_matrix(columns: int) -> SparseMatrix:
     from scipy.sparse import csr_matrix
 
     return csr_matrix((0, columns), dtype=np.float64)

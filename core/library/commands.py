@@ -15,16 +15,19 @@ password.
 from __future__ import annotations
 
 import argparse
-import json
 import sys
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from .. import CAUTION
 from ..errors import CounterdraftError
-from ..fileio import atomic_write_text
+from ..fileio import write_json
 from .store import is_server_address
+
+if TYPE_CHECKING:  # the index and the clustering are imported when a command runs
+    from .index import BuildReport, Failure, Library
+    from .variants import VariantConfig
 
 __all__ = ["add_library_parser", "note_rebuilt", "open_library_for_cli", "progress_bar", "review_options",
            "warn_skipped"]
@@ -52,18 +55,19 @@ def progress_bar(description: str) -> tuple[Callable[..., None], Callable[[], No
     return update, close
 
 
-def warn_skipped(failures) -> None:
+def warn_skipped(failures: Sequence[Failure]) -> None:
     for f in failures:
         print(f"counterdraft: warning: skipped {f.path}: {f.problem}", file=sys.stderr)
 
 
-def note_rebuilt(report) -> None:
+def note_rebuilt(report: BuildReport) -> None:
     """One line on stderr when the build set a damaged index aside and rebuilt it."""
     if report.rebuilt:
         print(f"counterdraft: note: {report.rebuilt}", file=sys.stderr)
 
 
-def open_library_for_cli(folder: str, *, db: str | None = None, refresh: bool = True, workers: int = 2):
+def open_library_for_cli(folder: str, *, db: str | None = None, refresh: bool = True,
+                         workers: int = 2) -> Library:
     """Open (building or refreshing when *refresh*) the index of *folder*, with a progress
     bar, warning about skipped files.  *folder* may be a shared store's address: it is read
     as it is (its builders refresh it)."""
@@ -88,7 +92,7 @@ def open_library_for_cli(folder: str, *, db: str | None = None, refresh: bool = 
     return library
 
 
-def review_options(library) -> dict[str, Any]:
+def review_options(library: Library) -> dict[str, Any]:
     """Keyword arguments for ``run_review`` with a library: its vocabulary and clause typing."""
     from .frequency import clause_type_function
 
@@ -100,15 +104,7 @@ def review_options(library) -> dict[str, Any]:
 # ----------------------------------------------------------------------------------------
 
 
-def _write_json(obj: object, out: str) -> None:
-    text = json.dumps(obj, ensure_ascii=False, indent=2) + "\n"
-    if out == "-":
-        sys.stdout.write(text)
-    else:
-        atomic_write_text(out, text)
-
-
-def _variant_config(args: argparse.Namespace):
+def _variant_config(args: argparse.Namespace) -> VariantConfig | None:
     from .variants import VariantConfig
 
     if args.cutoff is None and args.linkage is None and args.metric is None:
@@ -163,7 +159,7 @@ def _cmd_stats(args: argparse.Namespace) -> int:
         else:
             stats = library_stats(library)
             if args.json:
-                _write_json(stats_to_dict(stats), args.json)
+                write_json(stats_to_dict(stats), args.json)
                 return 0
             print(format_stats(stats, width=args.width))
     print()
@@ -234,7 +230,7 @@ def _cmd_patterns(args: argparse.Namespace) -> int:
     finally:
         library.close()
     if args.json:
-        _write_json(patterns_to_dict(groups, total=total), args.json)
+        write_json(patterns_to_dict(groups, total=total), args.json)
     else:
         print(format_patterns(groups, total=total, width=args.width))
         print()
@@ -255,7 +251,7 @@ def _add_common(p: argparse.ArgumentParser, *, dir_optional: bool) -> None:
     p.add_argument("--db", dest="store", metavar="PATH", help=argparse.SUPPRESS)  # earlier name of --store
 
 
-def add_library_parser(sub) -> None:
+def add_library_parser(sub: argparse._SubParsersAction[argparse.ArgumentParser]) -> None:
     """Register ``counterdraft library build|stats|label|calibrate|patterns``."""
     from .options import LINKAGES, METRICS, POSITIONS
 

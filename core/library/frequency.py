@@ -60,7 +60,7 @@ from __future__ import annotations
 import dataclasses
 import re
 from collections import defaultdict
-from collections.abc import Mapping, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -131,7 +131,7 @@ def review_types(review: Review, library: Library | None = None) -> ReviewTypes:
     return ReviewTypes({t.provision: t for t in dt}, {t.provision: t for t in pt}, dterms, pterms)
 
 
-def clause_type_function(library: Library | None = None):
+def clause_type_function(library: Library | None = None) -> Callable[[Provision, Document], str | None]:
     """A ``(provision, document) -> clause type id | None`` callable for
     ``run_review(clause_type=...)``: heading, parent, then neighbours (the library's when
     given, else the taxonomy's seed phrases).  Each document is typed once."""
@@ -196,8 +196,7 @@ class _Context:
     def bucket_name(self, draft: str | None, precedent: str | None) -> str:
         """The bucket of a pair: the precedent provision's type when it has one (the house
         document's headings are the better evidence), else the draft's."""
-        for side, pid, table in (("p", precedent, self.types.precedent_types),
-                                 ("d", draft, self.types.draft_types)):
+        for pid, table in ((precedent, self.types.precedent_types), (draft, self.types.draft_types)):
             if pid is not None:
                 t = table.get(pid)
                 if t is not None and t.clause_type:
@@ -317,7 +316,8 @@ def _span_of(text: str, span: tuple[int, int] | None, quoted: str) -> tuple[int,
     return None
 
 
-def _split_tokens(p: Provision, span: tuple[int, int] | None, terms: TermReplacer) -> tuple[list[str], list[str], list[str]]:
+def _split_tokens(p: Provision, span: tuple[int, int] | None,
+                  terms: TermReplacer) -> tuple[list[str], list[str], list[str]]:
     """(tokens before, changed tokens, tokens after) of a provision's wording around *span*;
     the heading's tokens come first."""
     if span is None:
@@ -419,7 +419,8 @@ class Slot:
         return int(self.docs.size)
 
 
-def _counterparts(ctx: _Context, bucket: BucketIndex, sides: Sequence[tuple[str, str]]) -> tuple[np.ndarray, np.ndarray]:
+def _counterparts(ctx: _Context, bucket: BucketIndex,
+                  sides: Sequence[tuple[str, str]]) -> tuple[np.ndarray, np.ndarray]:
     """(counterpart row per document, documents ascending) of the provisions *sides* (one
     provision, or the draft's and the precedent's of a word-level deviation).  A row can be
     a counterpart when it is within the cut-off of a side's provision, or shares a shingle
@@ -470,7 +471,7 @@ def _slot(ctx: _Context, selection: Deviation | Pair, *, change: _Change | None 
     if bucket is None or bucket.rows == 0:
         return Slot(bucket_name, bucket, side, empty, empty, nothing, nothing, np.zeros(0), None, words)
     dist = ctx.distances(bucket, side, pid)  # type: ignore[arg-type]
-    other_dist = ctx.distances(bucket, *other) if other is not None else None  # type: ignore[arg-type]
+    other_dist = ctx.distances(bucket, *other) if other is not None else None
     if words:
         assert change is not None and other is not None
         rows, docs = _counterparts(ctx, bucket, ((side, pid), other))  # type: ignore[arg-type]

@@ -88,19 +88,24 @@ from concurrent.futures import ProcessPoolExecutor
 from contextlib import contextmanager
 from dataclasses import dataclass, field, replace
 from pathlib import Path, PurePosixPath
-from typing import Any
+from typing import TYPE_CHECKING, Any, Literal, Protocol, runtime_checkable
 
 import numpy as np
 
 from ..errors import CounterdraftError
 from ..fileio import file_sha256
+from ..model import Document
 from ..readers import PRECEDENT_SET_SUFFIXES
 from .bucketcache import BucketArrays, assemble, compact, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
 from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
 from .options import FORMER_POSITIONS, POSITIONS
 from .store import VARIANT_FIGURES, PrecedentStore, is_server_address, open_store
+from .store.base import DocumentState, FailureState
 from .variants import RegroupTooLarge, VariantConfig, cluster_wordings, regroup
+
+if TYPE_CHECKING:  # imported when first used: loading it is not free
+    from .vocab import LibraryVocabulary
 
 __all__ = [
     "position_name",
@@ -114,6 +119,7 @@ __all__ = [
     "BucketIndex",
     "BuildReport",
     "Cancel",
+    "CancelFlag",
     "Failure",
     "Library",
     "Progress",
@@ -191,6 +197,14 @@ Progress = Callable[[int, int, str], None]
 #: progress bar: those steps have no count.
 Stage = Callable[[str], None]
 Cancel = Callable[[], bool]
+
+
+@runtime_checkable
+class CancelFlag(Protocol):
+    """A flag set to cancel a build (``threading.Event``), taken where a :data:`Cancel` is."""
+
+    def is_set(self) -> bool: ...
+
 
 
 @dataclass(frozen=True, slots=True)
@@ -335,7 +349,7 @@ class _Problem:
 _PARTY_CUT_RE = re.compile(r"(?:\)|;|\bbetween\b|\band\b|\(\d+\)|\bBETWEEN\b|\bAND\b)", re.UNICODE)
 
 
-def _party_names(doc) -> tuple[str, ...]:
+def _party_names(doc: Document) -> tuple[str, ...]:
     """"NAME (Term)" for each party label defined in the parties block, when found: the words
     before the label's parenthesis, after the previous party or "between", up to the first
     comma."""
@@ -358,7 +372,7 @@ def _party_names(doc) -> tuple[str, ...]:
     return tuple(dict.fromkeys(names))
 
 
-def _title_of(doc) -> str | None:
+def _title_of(doc: Document) -> str | None:
     for p in doc.provisions:
         if p.kind == "title":
             return (p.heading or p.text).strip()[:200] or None
@@ -399,10 +413,10 @@ def _extract(path: str) -> _Extract | _Problem:
         return _Problem(digest, f"unreadable ({type(err).__name__})")
 
 
-def _cancelled(cancel: Cancel | Any | None) -> bool:
+def _cancelled(cancel: Cancel | CancelFlag | None) -> bool:
     if cancel is None:
         return False
-    if hasattr(cancel, "is_set"):
+    if isinstance(cancel, CancelFlag):
         return bool(cancel.is_set())
     return bool(cancel())
 
@@ -438,7 +452,7 @@ def _open_target(root_p: Path | None, address: str | os.PathLike[str] | None) ->
 
 def build_library(root: str | os.PathLike[str], *, store: str | os.PathLike[str] | None = None,
                   db_path: str | os.PathLike[str] | None = None,
-                  progress: Progress | None = None, cancel: Cancel | Any | None = None,
+                  progress: Progress | None = None, cancel: Cancel | CancelFlag | None = None,
                   workers: int = 2, config: VariantConfig | None = None,
                   vocabulary: bool = True, exclude: Sequence[str | os.PathLike[str]] = (),
                   replace_root: bool = False, stage: Stage | None = None) -> BuildReport:
@@ -471,7 +485,7 @@ def build_library(root: str | os.PathLike[str], *, store: str | os.PathLike[str]
         target.close()
 
 
-def _build_locked(store: PrecedentStore, root_p: Path, *, progress: Progress | None, cancel: Cancel | Any | None,
+def _build_locked(store: PrecedentStore, root_p: Path, *, progress: Progress | None, cancel: Cancel | CancelFlag | None,
                   workers: int, config: VariantConfig | None, vocabulary: bool,
                   exclude: Sequence[str | os.PathLike[str]], replace_root: bool,
                   stage: Stage | None = None) -> BuildReport:
@@ -517,7 +531,7 @@ def _check_root(store: PrecedentStore, root_p: Path, files: Sequence[_FileStat],
 
 
 def _build_into(store: PrecedentStore, root_p: Path, *, progress: Progress | None,
-                cancel: Cancel | Any | None, workers: int, config: VariantConfig | None, vocabulary: bool,
+                cancel: Cancel | CancelFlag | None, workers: int, config: VariantConfig | None, vocabulary: bool,
                 exclude: Sequence[str | os.PathLike[str]], fresh: bool, replace_root: bool,
                 stage: Stage | None = None) -> BuildReport:
     """The body of :func:`build_library` on an open store (*fresh*: it replaces a damaged
@@ -560,10 +574,9 @@ def _build_into(store: PrecedentStore, root_p: Path, *, progress: Progress | Non
                        report.removed, documents, failures, cancelled)
 
 
-def _update_files(store: PrecedentStore, files: Sequence[_FileStat], *, progress: Progress | None,
-                  cancel: Cancel | Any | None, workers: int) -> BuildReport:
-    known, failed = store.file_states()
-    on_disk = {f.rel for f in files}
+def _drop_gone(store: PrecedentStore, on_disk: set[str], known: Mapping[str, DocumentState],
+               failed: Mapping[str, FailureState]) -> int:
+    """Forget the documents and failures no longer on disk; the number of documents removed."""
     removed = 0
     for path in known:
         if path not in on_disk:
@@ -573,6 +586,33 @@ def _update_files(store: PrecedentStore, files: Sequence[_FileStat], *, progress
         if path not in on_disk:
             store.remove_failure(path)
     store.checkpoint()
+    return removed
+
+
+def _unchanged(store: PrecedentStore, f: _FileStat, prev: DocumentState | None, prev_fail: FailureState | None) -> bool:
+    """Whether *f* is the file stored (or recorded as unreadable) before: the same size and
+    modification time, or else the same SHA-256 (then its new stat is stored)."""
+    stamp = (f.size, f.mtime_ns)
+    if (prev is not None and (prev[2], prev[3]) == stamp
+            or prev_fail is not None and (prev_fail[1], prev_fail[2]) == stamp):
+        return True
+    known_digest = prev[1] if prev is not None else prev_fail[0] if prev_fail is not None else None
+    if not known_digest:
+        return False
+    try:
+        digest = file_sha256(f.path)
+    except OSError:
+        return False
+    if digest != known_digest:
+        return False
+    store.update_stat(f.rel, size=f.size, mtime_ns=f.mtime_ns)
+    return True
+
+
+def _update_files(store: PrecedentStore, files: Sequence[_FileStat], *, progress: Progress | None,
+                  cancel: Cancel | CancelFlag | None, workers: int) -> BuildReport:
+    known, failed = store.file_states()
+    removed = _drop_gone(store, {f.rel for f in files}, known, failed)
 
     total = len(files)
     done = 0
@@ -581,21 +621,7 @@ def _update_files(store: PrecedentStore, files: Sequence[_FileStat], *, progress
     for f in files:
         if _cancelled(cancel):
             return BuildReport("", "", total, 0, unchanged, removed, 0, (), True)
-        prev = known.get(f.rel)
-        prev_fail = failed.get(f.rel)
-        if prev is not None and (prev[2], prev[3]) == (f.size, f.mtime_ns) or prev_fail is not None and (prev_fail[1], prev_fail[2]) == (f.size, f.mtime_ns):
-            same = True
-        elif prev is not None or (prev_fail is not None and prev_fail[0]):
-            try:
-                digest = file_sha256(f.path)
-            except OSError:
-                digest = None
-            same = digest is not None and digest == (prev[1] if prev is not None else prev_fail[0])
-            if same:
-                store.update_stat(f.rel, size=f.size, mtime_ns=f.mtime_ns)
-        else:
-            same = False
-        if same:
+        if _unchanged(store, f, known.get(f.rel), failed.get(f.rel)):
             unchanged += 1
             done += 1
             if progress is not None:
@@ -655,7 +681,7 @@ def _write_blob(store: PrecedentStore, name: str, data: bytes) -> None:
     store.write_blob(name, data)
 
 
-def _refresh_derived(store: PrecedentStore, *, cancel: Cancel | Any | None, vocabulary: bool,
+def _refresh_derived(store: PrecedentStore, *, cancel: Cancel | CancelFlag | None, vocabulary: bool,
                      stage: Stage) -> bool:
     """Refresh what is computed from the documents, only where something changed (the module
     docstring).  False when cancelled: what is done is kept, the rest stays marked."""
@@ -712,7 +738,7 @@ def _refresh_aliases(store: PrecedentStore) -> dict[str, str]:
 
 
 def _normalise_pending(store: PrecedentStore, aliases: Mapping[str, str], *,
-                       cancel: Cancel | Any | None) -> list[int] | None:
+                       cancel: Cancel | CancelFlag | None) -> list[int] | None:
     """Normalised wordings of the documents not yet normalised; their ids, or None when
     cancelled."""
     todo = store.unnormalised_documents()
@@ -865,7 +891,7 @@ def read_bucket(store: PrecedentStore, bucket: str) -> BucketArrays | None:
         return None
 
 
-def _refresh_variants(store: PrecedentStore, *, cancel: Cancel | Any | None) -> bool:
+def _refresh_variants(store: PrecedentStore, *, cancel: Cancel | CancelFlag | None) -> bool:
     """Variants and frequency cache of every bucket marked dirty.  False when cancelled.
 
     A bucket's cache is written before the transaction that clears its mark commits: after a
@@ -1004,7 +1030,7 @@ def _write_variants(store: PrecedentStore, bucket: str, arrays: BucketArrays, la
     ids = uniq.copy()
     for k in np.flatnonzero(~kept).tolist():
         ids[k] = store.add_variant(bucket, figures[k].tolist())
-    variant = ids[inv]
+    variant: np.ndarray = ids[inv]
     unset = np.array([h.encode("ascii") for h in store.unassigned_wordings(bucket)], dtype="S32")
     todo = np.ones(arrays.rows, bool) if not trusted else \
         (variant != arrays.variant) | np.isin(arrays.hashes, unset)
@@ -1022,7 +1048,7 @@ def _write_variants(store: PrecedentStore, bucket: str, arrays: BucketArrays, la
 
 
 def _training_documents(store: PrecedentStore,
-                        fingerprints: list[str]) -> Iterator[tuple[list[str], list[tuple[str, str]]]]:
+                        fingerprints: list[str]) -> Iterator[tuple[list[str], list[tuple[str, str | None]]]]:
     """Documents in path order for :func:`~.vocab.training_sentences`; appends each one's
     fingerprint (path and SHA-256) to *fingerprints* as it is consumed."""
     for doc_id, path, sha in store.documents_by_path():
@@ -1195,7 +1221,7 @@ class Library:
             self.root = None if is_server_address(address) else Path(address).parent
         self._buckets: dict[str, BucketIndex | None] = {}
         self._neighbours: NeighbourClassifier | None = None
-        self._vocab: Any = None
+        self._vocab: LibraryVocabulary | Literal[False] | None = None
         self._aliases: dict[str, str] | None = None
         #: The build report when :func:`open_library` refreshed the index, else None.
         self.report: BuildReport | None = None
@@ -1269,7 +1295,7 @@ class Library:
         return self._neighbours
 
     @property
-    def vocabulary(self):
+    def vocabulary(self) -> LibraryVocabulary | None:
         """The library's vocabulary model (``VocabularyModel`` of the term mapper), or None."""
         if self._vocab is None:
             from .vocab import LibraryVocabulary
@@ -1367,7 +1393,7 @@ class Library:
 
 def open_library(root: str | os.PathLike[str] | None = None, *, store: str | os.PathLike[str] | None = None,
                  db_path: str | os.PathLike[str] | None = None, refresh: bool = True,
-                 progress: Progress | None = None, cancel: Cancel | Any | None = None,
+                 progress: Progress | None = None, cancel: Cancel | CancelFlag | None = None,
                  workers: int = 2, exclude: Sequence[str | os.PathLike[str]] = (),
                  stage: Stage | None = None) -> Library:
     """Open the precedent set of the folder *root*, kept in *store* (a SQLite file path or a

@@ -25,7 +25,7 @@ import hashlib
 import re
 import unicodedata
 from collections import Counter, defaultdict
-from collections.abc import Iterable, Mapping
+from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -112,7 +112,7 @@ def _forms(term: str) -> list[str]:
     forms = {term, term + "s", term + "es"}
     if term.endswith("y") and len(term) > 1 and term[-2].lower() not in "aeiou":
         forms.add(term[:-1] + "ies")
-    out = set()
+    out: set[str] = set()
     for f in forms:
         out.update((f, f + "'s", f + "'"))
     return sorted(out, key=len, reverse=True)
@@ -144,7 +144,7 @@ class TermReplacer:
         else:
             self._regex = None
 
-    def sub(self, text: str, make_token) -> str:
+    def sub(self, text: str, make_token: Callable[[str], str]) -> str:
         """*text* (already folded) with each term use replaced by ``make_token(canonical)``."""
         if self._regex is None:
             return text

@@ -78,7 +78,8 @@ def format_stats(stats: LibraryStats, *, width: int = 100) -> str:
     name_w = min(name_w, width - 44)
     lines.append(f"{'Clause type':<{name_w}}  {'provisions':>10}  {'documents':>9}  {'variants':>8}  {'labelled':>8}")
     for t in stats.types:
-        lines.append(f"{t.title[:name_w]:<{name_w}}  {t.provisions:>10}  {t.documents:>9}  {t.variants:>8}  {t.labelled:>8}")
+        lines.append(f"{t.title[:name_w]:<{name_w}}  {t.provisions:>10}  {t.documents:>9}  "
+                     f"{t.variants:>8}  {t.labelled:>8}")
     return "\n".join(lines)
 
 

@@ -32,6 +32,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from .options import LINKAGES, METRICS
+from .sparse import SparseMatrix
 
 __all__ = [
     "DEFAULT_CUTOFF",
@@ -124,7 +125,8 @@ def set_distance(a: np.ndarray, b: np.ndarray, *, metric: str = DEFAULT_METRIC) 
 INCIDENCE_CHUNK = 1 << 20
 
 
-def incidence_matrix(sets: Sequence[np.ndarray], *, columns: np.ndarray | None = None):
+def incidence_matrix(sets: Sequence[np.ndarray], *,
+                     columns: np.ndarray | None = None) -> tuple[SparseMatrix, np.ndarray]:
     """(CSR matrix rows x columns of 0/1 int32, sorted column hashes) for hash arrays *sets*.
 
     With *columns* given, hashes not among them are dropped (the caller keeps the row sizes).
@@ -166,7 +168,7 @@ def pairwise_distances(sets: Sequence[np.ndarray], *, metric: str = DEFAULT_METR
     return matrix_distances(m, sizes, metric=metric)
 
 
-def matrix_distances(matrix, sizes: np.ndarray, *, metric: str = DEFAULT_METRIC) -> np.ndarray:
+def matrix_distances(matrix: SparseMatrix, sizes: np.ndarray, *, metric: str = DEFAULT_METRIC) -> np.ndarray:
     """:func:`pairwise_distances` of the rows of a 0/1 incidence matrix (CSR) whose rows hold
     *sizes* hashes each (columns may have been dropped, sizes are the true set sizes)."""
     n = matrix.shape[0]
@@ -250,7 +252,7 @@ class RegroupTooLarge(Exception):
     """A group to re-cluster holds more than ``config.max_items`` wordings: cluster in full."""
 
 
-def regroup(matrix, sizes: np.ndarray, labels: np.ndarray, *, fresh: np.ndarray,
+def regroup(matrix: SparseMatrix, sizes: np.ndarray, labels: np.ndarray, *, fresh: np.ndarray,
             broken: Sequence[int] = (), config: VariantConfig = VariantConfig()) -> np.ndarray:
     """Variant labels after wordings were added (*fresh*) or removed, re-clustering only the
     variants the change can touch, with the clustering's own linkage and cut-off.
@@ -303,7 +305,7 @@ def regroup(matrix, sizes: np.ndarray, labels: np.ndarray, *, fresh: np.ndarray,
     return labels
 
 
-def _touched_groups(matrix, sizes: np.ndarray, labels: np.ndarray, new_rows: np.ndarray,
+def _touched_groups(matrix: SparseMatrix, sizes: np.ndarray, labels: np.ndarray, new_rows: np.ndarray,
                     fresh: np.ndarray, broken: set[int],
                     config: VariantConfig) -> list[tuple[set[int], set[int]]]:
     """Groups ``(old labels, fresh rows)`` linked by fresh wordings within the cut-off (union

@@ -29,6 +29,7 @@ import io
 import os
 from collections.abc import Iterable, Sequence
 from pathlib import Path
+from typing import Protocol
 
 import numpy as np
 
@@ -113,10 +114,24 @@ def _segments(sentence: Sequence[str]) -> list[list[str]]:
     return [s for s in out if s]
 
 
-def _apply_phrases(sentence: Sequence[str], phraser) -> list[str]:
+class Phraser(Protocol):
+    """The part of gensim's frozen ``Phrases`` we use: a run of words with its phrases joined."""
+
+    def __getitem__(self, sentence: list[str]) -> list[str]: ...
+
+
+class KeyedVectors(Protocol):
+    """The part of gensim's ``KeyedVectors`` we keep: the words and their vectors, in order."""
+
+    index_to_key: list[str]
+    vectors: np.ndarray
+
+
+def _apply_phrases(sentence: Sequence[str], phraser: Phraser) -> list[str]:
     out: list[str] = []
     run: list[str] = []
-    for tok in list(sentence) + [None]:  # type: ignore[list-item]
+    toks: list[str | None] = [*sentence, None]
+    for tok in toks:
         if tok is None or _is_term(tok):
             if run:
                 out.extend(phraser[run])
@@ -128,7 +143,7 @@ def _apply_phrases(sentence: Sequence[str], phraser) -> list[str]:
     return out
 
 
-def train_vectors(sentences: Sequence[Sequence[str]]):
+def train_vectors(sentences: Sequence[Sequence[str]]) -> KeyedVectors | None:
     """Phrases, then Word2Vec, on tokenised *sentences*; the KeyedVectors, or None when the
     corpus is too small to learn anything (no word seen MIN_COUNT times)."""
     sentences = [list(s) for s in sentences if s]
@@ -149,7 +164,8 @@ def train_vectors(sentences: Sequence[Sequence[str]]):
     if len(model.wv) == 0:
         return None
     model.train(corpus, total_examples=len(corpus), epochs=epochs)
-    return model.wv
+    vectors: KeyedVectors = model.wv
+    return vectors
 
 
 class LibraryVocabulary:
@@ -168,7 +184,7 @@ class LibraryVocabulary:
         self.key_to_index = {w: i for i, w in enumerate(self.words)}
 
     @classmethod
-    def from_keyed_vectors(cls, kv) -> LibraryVocabulary:
+    def from_keyed_vectors(cls, kv: KeyedVectors) -> LibraryVocabulary:
         return cls(list(kv.index_to_key), kv.vectors)
 
     def key(self, name: str) -> str | None:
@@ -217,14 +233,14 @@ class LibraryVocabulary:
         return cls.from_npz_bytes(Path(path).read_bytes())
 
 
-def training_sentences(documents: Iterable[tuple[Sequence[str], Iterable[tuple[str, str]]]], *,
+def training_sentences(documents: Iterable[tuple[Sequence[str], Iterable[tuple[str, str | None]]]], *,
                        max_words: int = MAX_TRAINING_WORDS) -> tuple[list[list[str]], int, int]:
     """Training sentences from *documents* -- ``(defined terms, [(provision text, normalised
     wording hash), ...])`` in the index's path order: one sentence per distinct wording, each
     document's own defined terms joined into tokens, at most *max_words* words.  Returns the
     sentences, the number of documents they came from (the last one perhaps in part) and the
     number of words."""
-    seen: set[str] = set()
+    seen: set[str | None] = set()
     out: list[list[str]] = []
     words = 0
     used = 0

@@ -75,7 +75,8 @@ def open_odt_package(path: str | os.PathLike[str]) -> OdtPackage:
             if kind != _TEXT_MIME:
                 raise _fail(f"not an OpenDocument text document (its type is {kind[:80]!r})", path)
         for name, info in names.items():
-            if name.endswith((".xml", ".rdf")) and has_doctype(read_zip_head(zf, info, path, what=_WHAT)[:PROLOG_SCAN_BYTES]):
+            if (name.endswith((".xml", ".rdf"))
+                    and has_doctype(read_zip_head(zf, info, path, what=_WHAT)[:PROLOG_SCAN_BYTES])):
                 raise _fail(f"refused: part {name} contains a DOCTYPE declaration, which an .odt "
                             "never needs (it can hide entity expansion or external entities)", path)
         manifest = names.get("META-INF/manifest.xml")

@@ -125,7 +125,7 @@ class StyleSheet:
 
     def _first(self, name: str | None, attr: str) -> str | None:
         for el in self._chain("paragraph", name):
-            value = el.get(attr)
+            value: str | None = el.get(attr)
             if value is not None:
                 return value
         return None
@@ -135,7 +135,8 @@ class StyleSheet:
         for el in self._chain("paragraph", name):
             if el.getparent() is not None and el.getparent().tag == q(OFFICE, "styles") \
                     and el.tag == q(STYLE, "style"):
-                return el.get(q(STYLE, "display-name")) or el.get(q(STYLE, "name"))
+                shown: str | None = el.get(q(STYLE, "display-name")) or el.get(q(STYLE, "name"))
+                return shown
         return None
 
     def list_style_of(self, name: str | None) -> str | None:

@@ -203,9 +203,9 @@ def _zip_format(path: str, *, path_for_errors: str) -> Format | None:
             if "word/document.xml" in lowered:
                 return format_named("docx")
             types = lowered.get("[content_types].xml")
-            if types is not None and zf.getinfo(types).file_size <= MAX_CONTENT_TYPES_BYTES:
-                if _WORDML_MAIN in zf.read(types):
-                    return format_named("docx")
+            if (types is not None and zf.getinfo(types).file_size <= MAX_CONTENT_TYPES_BYTES
+                    and _WORDML_MAIN in zf.read(types)):
+                return format_named("docx")
     except CounterdraftError:
         raise
     except (zipfile.BadZipFile, OSError, ValueError, EOFError, NotImplementedError, RuntimeError):

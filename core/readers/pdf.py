@@ -34,6 +34,7 @@ import os
 import re
 import statistics
 from collections.abc import Iterable, Sequence
+from dataclasses import dataclass, field
 from typing import Any
 
 from ..errors import CounterdraftError
@@ -78,15 +79,28 @@ def _char_text(ch: dict[str, Any]) -> str:
     return "".join(_LIGATURES.get(c, c) for c in text)
 
 
-def _line_from_chars(chars: Sequence[dict[str, Any]], *, page: int) -> Line | None:
-    """One line from its characters (sorted left to right)."""
-    # (text, bold, x0, x1): one entry per printed character, " " for a word space (its x0,
-    # x1 the gap it spans).
-    items: list[tuple[str, bool, float, float]] = []
-    letters = bold_letters = italic_letters = 0
-    sizes: list[float] = []
-    widths: list[float] = []
-    spaces: list[float] = []
+#: One printed character of a line: (text, bold, x0, x1); " " for a word space (its x0, x1
+#: the gap it spans).
+_Item = tuple[str, bool, float, float]
+
+
+@dataclass
+class _Glyphs:
+    """The characters of one line as :func:`_line_from_chars` reads them (:func:`_glyphs`)."""
+
+    items: list[_Item] = field(default_factory=list)
+    letters: int = 0
+    bold_letters: int = 0
+    italic_letters: int = 0
+    sizes: list[float] = field(default_factory=list)
+    widths: list[float] = field(default_factory=list)
+    spaces: list[float] = field(default_factory=list)
+
+
+def _glyphs(chars: Sequence[dict[str, Any]]) -> _Glyphs:
+    """The printed characters of a line with word spaces between them, no trailing space."""
+    g = _Glyphs()
+    items = g.items
     last_x1: float | None = None
     # A file that writes its word spaces as characters needs no guessing from gaps, except
     # where a gap is as wide as a word space would be (a space left out in a table cell).
@@ -99,7 +113,7 @@ def _line_from_chars(chars: Sequence[dict[str, Any]], *, page: int) -> Line | No
         x0, x1 = float(ch["x0"]), float(ch["x1"])
         bold, italic = _font_flags(str(ch.get("fontname") or ""))
         if text.isspace():
-            spaces.append(x1 - x0)
+            g.spaces.append(x1 - x0)
             if items and items[-1][0] != " ":
                 items.append((" ", bold, last_x1 if last_x1 is not None else x0, x1))
             continue
@@ -110,42 +124,56 @@ def _line_from_chars(chars: Sequence[dict[str, Any]], *, page: int) -> Line | No
             items.append((" ", bold, last_x1, x0))
         items.extend((c, bold, x0, x1) for c in text)
         if any(c.isalpha() for c in text):
-            letters += 1
-            bold_letters += bold
-            italic_letters += italic
+            g.letters += 1
+            g.bold_letters += bold
+            g.italic_letters += italic
         if size > 0:
-            sizes.append(size)
-        widths.append(x1 - x0)
+            g.sizes.append(size)
+        g.widths.append(x1 - x0)
         last_x1 = x1
     while items and items[-1][0] == " ":
         items.pop()
+    return g
+
+
+def _tab_gap(items: Sequence[_Item], chars: Sequence[dict[str, Any]], first_space: int | None,
+             space: float) -> bool:
+    """Whether the line's first gap is a tab: wider than :data:`TAB_GAP_SPACES` word spaces
+    and holding no space character (spaces typed several times are characters)."""
+    if first_space is None:
+        return False
+    gap = items[first_space]
+    typed = any(_char_text(c).isspace() and gap[2] - 0.01 <= float(c["x0"]) <= gap[3] for c in chars)
+    return not typed and gap[3] - gap[2] > TAB_GAP_SPACES * max(space, 0.5)
+
+
+def _line_from_chars(chars: Sequence[dict[str, Any]], *, page: int) -> Line | None:
+    """One line from its characters (sorted left to right)."""
+    g = _glyphs(chars)
+    items = g.items
     if not items:
         return None
-    size = statistics.median(sizes) if sizes else 0.0
-    space = statistics.median(spaces) if spaces else 0.28 * size
+    size = statistics.median(g.sizes) if g.sizes else 0.0
+    space = statistics.median(g.spaces) if g.spaces else 0.28 * size
     text = "".join(c for c, *_ in items)
     first_space = next((i for i, it in enumerate(items) if it[0] == " "), None)
-    # A tab leaves a gap with no character in it; spaces typed several times are characters.
-    typed = first_space is not None and any(
-        _char_text(c).isspace() and items[first_space][2] - 0.01 <= float(c["x0"]) <= items[first_space][3]
-        for c in chars)
     x0, x1 = items[0][2], max(it[3] for it in items)
     first_word = (items[first_space - 1][3] if first_space is not None else x1) - x0
-    if (first_space is not None and not typed
-            and items[first_space][3] - items[first_space][2] > TAB_GAP_SPACES * max(space, 0.5)):
+    if first_space is not None and _tab_gap(items, chars, first_space, space):
         text = text[:first_space] + "\t" + text[first_space + 1:]
     prefix = 0
-    for c, b, *_ in items:
+    for _c, b, *_ in items:
         if not b:
             break
         prefix += 1
     visible = [c for c in chars if _char_text(c).strip()]
+    letters = g.letters
     return Line(
         text=text, page=page, x0=x0, x1=x1,
         top=min(float(c["top"]) for c in visible), bottom=max(float(c["bottom"]) for c in visible),
-        size=size, bold=bold_letters / letters if letters else 0.0,
-        italic=italic_letters / letters if letters else 0.0,
-        bold_prefix=prefix, space=space, char_width=statistics.fmean(widths) if widths else space,
+        size=size, bold=g.bold_letters / letters if letters else 0.0,
+        italic=g.italic_letters / letters if letters else 0.0,
+        bold_prefix=prefix, space=space, char_width=statistics.fmean(g.widths) if g.widths else space,
         first_word=first_word,
     )
 

@@ -38,7 +38,10 @@ __all__ = [
     "Wordings",
     "ProvisionRow",
     "StoreDamaged",
+    "IndexRow",
     "TermRow",
+    "UntypedRow",
+    "VariantRow",
 ]
 
 #: The figures a variant row keeps, in this order (see :func:`core.library.index._variant_figures`).
@@ -52,6 +55,15 @@ FailureState = tuple[str | None, int, int]
 ProvisionRow = tuple[str, str, str | None, str | None, int, str | None, str, str | None, str, str]
 #: (term, definition, provision id, uses)
 TermRow = tuple[str, str, str | None, int]
+#: (row id, kind, norm, clause type, bucket) of a provision typed by its neighbours or not at all.
+UntypedRow = tuple[int, str, str | None, str | None, str]
+#: (id, bucket, ordinal, wordings, provisions, documents, position, sample path, number,
+#: heading, pid, sample id) of a variant; the sample's columns are None when it is gone.
+VariantRow = tuple[int, str, int, int, int, int, str | None, str | None, str | None, str | None, str | None,
+                   int | None]
+#: (row id, document id, document path, provision id, clause type, type source, bucket,
+#: wording hash, variant id) of a provision.
+IndexRow = tuple[int, int, str, str, str | None, str, str, str | None, int | None]
 
 
 class StoreDamaged(Exception):
@@ -141,7 +153,7 @@ class Wordings(Protocol):
         """(clause type, wording hash, provision id) of provisions typed by heading or
         parent, documents in the order of their SHA-256 (then path), provisions in order."""
     def provision_column(self, column: Literal["norm", "text"], ids: Sequence[int]) -> dict[int, str]: ...
-    def untyped_provisions(self, document_ids: Sequence[int] | None = None) -> list[tuple[int, str, str | None, str | None, str]]:
+    def untyped_provisions(self, document_ids: Sequence[int] | None = None) -> list[UntypedRow]:
         """(id, kind, norm, clause type, bucket) of provisions typed by neighbours or not at
         all (of *document_ids* only, when given)."""
     def retype(self, updates: Sequence[tuple[str | None, str, str, int, str]]) -> None:
@@ -211,9 +223,8 @@ class Reading(Protocol):
     def terms_beside(self, provision_id: int) -> list[str]:
         """The defined terms of the document holding a provision."""
     def variant_positions(self) -> dict[int, str]: ...
-    def variant_rows(self, bucket: str | None = None) -> list[tuple]:
-        """(id, bucket, ordinal, wordings, provisions, documents, position, sample path,
-        number, heading, pid, sample id) by bucket and ordinal."""
+    def variant_rows(self, bucket: str | None = None) -> list[VariantRow]:
+        """The variants (:data:`VariantRow`) by bucket and ordinal."""
     def find_provision(self, document: str, provision: str) -> tuple[int | None, str, str | None] | None:
         """(variant id, bucket, wording hash) of a provision named by number, id or heading."""
     def variant_bucket(self, variant_id: int) -> str | None: ...
@@ -229,10 +240,9 @@ class Reading(Protocol):
     def term_count(self) -> int: ...
     def documents_defining(self, names: Sequence[str]) -> int:
         """Documents defining at least one of *names*."""
-    def provision_rows(self) -> list[tuple]:
-        """Every provision as (row id, document id, document path, provision id, clause type,
-        type source, bucket, wording hash, variant id), by path and order: the whole index,
-        to compare two stores."""
+    def provision_rows(self) -> list[IndexRow]:
+        """Every provision (:data:`IndexRow`), by path and order: the whole index, to compare
+        two stores."""
 
 
 class PrecedentStore(Lifecycle, Documents, Wordings, Derived, Reading, Protocol):

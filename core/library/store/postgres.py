@@ -39,7 +39,7 @@ from __future__ import annotations
 
 import hashlib
 import os
-from collections.abc import Iterator, Sequence
+from collections.abc import Iterable, Iterator, Sequence
 from contextlib import contextmanager
 from pathlib import Path
 from typing import Any
@@ -49,7 +49,7 @@ import psycopg
 from psycopg import IsolationLevel
 
 from ...errors import CounterdraftError
-from .sql import SQLStore
+from .sql import Cursor, Row, SQLStore
 
 __all__ = ["MIGRATIONS", "SCHEMA_VERSION", "PostgresStore", "shown_address"]
 
@@ -145,9 +145,8 @@ class PostgresStore(SQLStore):
 
     def __init__(self, url: str) -> None:
         self.address = shown_address(url)
-        self.conn: psycopg.Connection[Any] | None = None  # type: ignore[assignment]
         self._writer = False
-        self.conn = self._connect(url)
+        self.conn: psycopg.Connection[Any] = self._connect(url)
 
     # -- connecting -----------------------------------------------------------------------------
     def _connect(self, url: str) -> psycopg.Connection[Any]:
@@ -175,28 +174,28 @@ class PostgresStore(SQLStore):
         if isinstance(err, psycopg.errors.InsufficientPrivilege):
             return CounterdraftError(f"the store refused ({line}): this role may not change the precedent set; "
                                      "use a role that may (see the README)", path=self.address)
-        if isinstance(err, psycopg.OperationalError) and self.conn is not None and self.conn.closed:
+        if isinstance(err, psycopg.OperationalError) and self.conn.closed:
             return CounterdraftError(f"lost the connection to the store ({line})", path=self.address)
         return CounterdraftError(f"store error ({line})", path=self.address)
 
     # -- dialect --------------------------------------------------------------------------------
-    def _cursor(self, sql: str, params: Sequence[Any] = ()) -> Any:
+    def _cursor(self, sql: str, params: Sequence[Any] = ()) -> Cursor:
         try:
             return self.conn.execute(sql.replace("?", "%s"), tuple(params) if params else None)
         except psycopg.Error as err:
             raise self._failed(err) from None
 
-    def _many(self, sql: str, rows: Any) -> None:
-        rows = list(rows)
-        if not rows:
+    def _many(self, sql: str, rows: Iterable[Sequence[Any]]) -> None:
+        batch = list(rows)
+        if not batch:
             return
         try:
             with self.conn.cursor() as cur:
-                cur.executemany(sql.replace("?", "%s"), rows)
+                cur.executemany(sql.replace("?", "%s"), batch)
         except psycopg.Error as err:
             raise self._failed(err) from None
 
-    def _in(self, sql: str, values: Sequence[Any], *before: Any) -> Iterator[tuple[Any, ...]]:
+    def _in(self, sql: str, values: Sequence[Any], *before: Any) -> Iterator[Row]:
         if not values:
             return iter(())
         return iter(self._cursor(sql.replace("{in}", "= ANY(?)"), (*before, list(dict.fromkeys(values)))).fetchall())
@@ -291,8 +290,7 @@ class PostgresStore(SQLStore):
             raise self._failed(err) from None
 
     def close(self) -> None:
-        if self.conn is not None:
-            self.conn.close()  # an open transaction is rolled back by the server
+        self.conn.close()  # an open transaction is rolled back by the server
 
     def damage(self, err: BaseException) -> str | None:
         return None  # a server database is never set aside by a client

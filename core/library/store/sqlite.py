@@ -24,7 +24,7 @@ from __future__ import annotations
 import os
 import sqlite3
 import time
-from collections.abc import Iterator, Sequence
+from collections.abc import Iterable, Iterator, Sequence
 from contextlib import contextmanager
 from pathlib import Path
 from typing import Any
@@ -33,7 +33,7 @@ from ...errors import CounterdraftError
 from ...fileio import atomic_write_bytes, exclusive, remove_orphaned_parts
 from ..options import FORMER_POSITIONS
 from .base import StoreDamaged
-from .sql import SQLStore
+from .sql import Cursor, Row, SQLStore
 
 __all__ = ["SCHEMA_VERSION", "SQLiteStore", "private_dir"]
 
@@ -136,20 +136,27 @@ class SQLiteStore(SQLStore):
         self.address = str(self.path)
         self.folder = self.path.parent
         self._private_folder = private_folder
-        self.conn: sqlite3.Connection | None = None  # type: ignore[assignment]
+        self.conn: sqlite3.Connection | None = None
+
+    @property
+    def _db(self) -> sqlite3.Connection:
+        """The connection of the open store."""
+        if self.conn is None:
+            raise RuntimeError(f"the index {self.address} is not open")
+        return self.conn
 
     # -- dialect --------------------------------------------------------------------------------
-    def _cursor(self, sql: str, params: Sequence[Any] = ()) -> Any:
-        return self.conn.execute(sql, params)
+    def _cursor(self, sql: str, params: Sequence[Any] = ()) -> Cursor:
+        return self._db.execute(sql, params)
 
-    def _many(self, sql: str, rows: Any) -> None:
-        self.conn.executemany(sql, rows)
+    def _many(self, sql: str, rows: Iterable[Sequence[Any]]) -> None:
+        self._db.executemany(sql, rows)
 
-    def _in(self, sql: str, values: Sequence[Any], *before: Any) -> Iterator[tuple[Any, ...]]:
+    def _in(self, sql: str, values: Sequence[Any], *before: Any) -> Iterator[Row]:
         unique = list(dict.fromkeys(values))
         for start in range(0, len(unique), IN_BATCH):
             chunk = unique[start:start + IN_BATCH]
-            yield from self.conn.execute(sql.replace("{in}", f"IN ({','.join('?' * len(chunk))})"),
+            yield from self._db.execute(sql.replace("{in}", f"IN ({','.join('?' * len(chunk))})"),
                                          (*before, *chunk))
 
     # -- lifecycle ------------------------------------------------------------------------------
@@ -211,10 +218,10 @@ class SQLiteStore(SQLStore):
         (A PostgreSQL store never held the former names.)"""
         if self.meta(_POSITION_NAMES_KEY) == "2":
             return
-        with self.conn:
+        with self._db as conn:
             for old, new in FORMER_POSITIONS.items():
-                self.conn.execute("UPDATE labels SET position = ? WHERE position = ?", (new, old))
-                self.conn.execute("UPDATE variants SET position = ? WHERE position = ?", (new, old))
+                conn.execute("UPDATE labels SET position = ? WHERE position = ?", (new, old))
+                conn.execute("UPDATE variants SET position = ? WHERE position = ?", (new, old))
             self.set_meta(_POSITION_NAMES_KEY, "2")
 
     def _check_schema(self) -> None:
@@ -223,7 +230,7 @@ class SQLiteStore(SQLStore):
         Reading the schema also makes SQLite check the file header: garbage gives
         SQLITE_NOTADB, a truncated file SQLITE_CORRUPT.  Cost: one read of the schema table,
         a few pragmas."""
-        conn = self.conn
+        conn = self._db
         try:
             tables = {n for (n,) in conn.execute("SELECT name FROM sqlite_master WHERE type = 'table'")}
             if not tables:
@@ -254,16 +261,16 @@ class SQLiteStore(SQLStore):
         with self.lock():
             try:
                 yield
-                self.conn.commit()
+                self._db.commit()
             except BaseException:
-                self.conn.rollback()
+                self._db.rollback()
                 raise
 
     def checkpoint(self) -> None:
-        self.conn.commit()
+        self._db.commit()
 
     def commit(self) -> None:
-        self.conn.commit()
+        self._db.commit()
 
     def close(self) -> None:
         if self.conn is not None:

@@ -32,7 +32,7 @@ def _read(body: str, *, styles: str | None = None, numbering: str | None = None)
     # The contract for the tracked-changes writer: pieces join to each block's text.
     aligned = list(iter_block_pieces(doc))
     assert len(aligned) == len(blocks)
-    for (p, pieces), block in zip(aligned, blocks):
+    for (_p, pieces), block in zip(aligned, blocks):
         assert "".join(piece.text for piece in pieces) == block.text
         assert all(piece.element.tag == f"{{{W}}}r" for piece in pieces)
     assert list(iter_body_paragraphs(doc)) == [p for p, _ in aligned]
@@ -489,7 +489,9 @@ def test_field_results_and_alternate_content_equal_libreoffice(tmp_path):
             fld("end"))
         + p(fld("begin"), instr(' QUOTE "two lines" '), fld("separate"), r("first line"))
         + p(r("second line"), fld("end"), r(" after"))
-        + f"<w:tbl><w:tr><w:tc>{p(r('Cell '), fld('begin'), instr(' QUOTE ' + chr(34) + 'c' + chr(34)), fld('separate'), r('cell result'), fld('end'))}</w:tc></w:tr></w:tbl>"
+        + "<w:tbl><w:tr><w:tc>"
+        + p(r("Cell "), fld("begin"), instr(' QUOTE "c"'), fld("separate"), r("cell result"), fld("end"))
+        + "</w:tc></w:tr></w:tbl>"
         + p(r("Choice: "), _alternate("w14", r("the w14 branch"), r("the fallback")))
         + _alternate("w14", p(r("A paragraph in a w14 choice")), p(r("Its fallback")))
         + p(r("Unknown: "), _alternate("zz", r("not understood"), r("fallback read"),

@@ -30,7 +30,8 @@ _BODY = (
     '<w:p><w:pPr><w:pStyle w:val="Title"/></w:pPr><w:r><w:t>Supply Terms</w:t></w:r></w:p>'
     '<w:p><w:r><w:t xml:space="preserve">The Client shall pay within sixty (60) days.</w:t></w:r></w:p>'
     '<w:p><w:r><w:t>Goods are accepted on delivery.</w:t></w:r></w:p>'
-    '<w:tbl><w:tblGrid><w:gridCol w:w="4000"/></w:tblGrid><w:tr><w:tc><w:p><w:r><w:t>Cell text stays.</w:t></w:r></w:p></w:tc></w:tr></w:tbl>'
+    '<w:tbl><w:tblGrid><w:gridCol w:w="4000"/></w:tblGrid>'
+    '<w:tr><w:tc><w:p><w:r><w:t>Cell text stays.</w:t></w:r></w:p></w:tc></w:tr></w:tbl>'
     '<w:p><w:r><w:t>The Vendor may assign freely.</w:t></w:r></w:p>'
     '<w:p><w:r><w:t>Closing words.</w:t></w:r></w:p>'
 )

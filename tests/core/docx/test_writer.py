@@ -10,6 +10,7 @@ from __future__ import annotations
 import io
 import random
 import zipfile
+from pathlib import Path
 
 import docx
 import pytest
@@ -167,7 +168,7 @@ def _attr(el, name: str) -> str | None:
 def table_geometry(source) -> dict:
     """The page's text width and each table's layout, read from ``word/document.xml``:
     text width = w:pgSz/@w:w less w:pgMar/@w:left and @w:right (§17.6.13, §17.6.11)."""
-    data = source if isinstance(source, bytes) else open(source, "rb").read()
+    data = source if isinstance(source, bytes) else Path(source).read_bytes()
     root = etree.fromstring(zipfile.ZipFile(io.BytesIO(data)).read("word/document.xml"))
     sect = root.find(f"{w('body')}/{w('sectPr')}")
     pg, mar = sect.find(w("pgSz")), sect.find(w("pgMar"))

@@ -196,7 +196,8 @@ def test_issues_list_in_three_formats_reads_back_as_one_table(scenario, tmp_path
     assert rows["3"]["What changed"] == ("Provision left out: \u201cThe Supplier shall keep complete "
                                          "records for six years.\u201d")
     assert rows["3"]["Clause"] == "3.1 Audit (precedent only)"
-    assert rows["6"]["What changed"] == "Defined term \u201cCustomer\u201d\n\u2192 \u201cClient\u201d (3 uses in the draft)"
+    assert rows["6"]["What changed"] == ("Defined term \u201cCustomer\u201d\n"
+                                         "\u2192 \u201cClient\u201d (3 uses in the draft)")
     assert rows["6"]["Why it matters"] == "Read as the same defined term (evidence: definition; confidence 0.95)"
     assert rows["2"]["Decision"] == "undecided" and rows["2"]["Past use"] == ""
     table_rows = [r[:len(COLS)] for r in records[1:]]
@@ -355,8 +356,9 @@ def test_demo_rows_follow_the_drafts_clauses_and_carry_the_review_tables_numbers
         seen.append(_paragraph_index(paragraphs, prov.text or prov.heading or ""))
     assert len(seen) > 20 and seen == sorted(seen)
     left_out = [r for r in clause_rows if r[1].endswith("(precedent only)")]
-    assert [r[1] for r in left_out] == ["25 Non-Solicitation (precedent only)",
-                                        "signature \u201cThis Agreement has been entered into \u2026\u201d (precedent only)"]
+    assert [r[1] for r in left_out] == [
+        "25 Non-Solicitation (precedent only)",
+        "signature \u201cThis Agreement has been entered into \u2026\u201d (precedent only)"]
     labels = [r[1] for r in clause_rows]
     i = labels.index("25 Non-Solicitation (precedent only)")
     assert labels[i - 1].startswith("Section 24.1 Assignment") and labels[i + 1].startswith("Article 26 Publicity")
@@ -410,7 +412,8 @@ def test_what_changed_quotes_the_changed_words_with_a_few_words_around_them():
            "payable by the Client in that Contract Year.")
     tail = "This cap does not apply to fraud, e.g. deceit by a director of the Vendor."
     draft = f"Words of art apply here. {cap.format('two hundred per cent (200%)')} {tail}"
-    prec = f"Words of art apply here. {cap.format('one hundred per cent (100%)')} {tail.replace('fraud', 'fraud or death')}"
+    prec_tail = tail.replace("fraud", "fraud or death")
+    prec = f"Words of art apply here. {cap.format('one hundred per cent (100%)')} {prec_tail}"
     # The engine's spans can stop inside a token ("(200" of "(200%)"); the mark covers it whole.
     d1, p1 = draft.index("two hundred"), prec.index("one hundred")
     dev = _made_deviation("v1", "replace", "p1", "p1", "one hundred per cent (100%)",
@@ -611,7 +614,8 @@ def test_demo_issues_list_and_redline_tables_span_the_page(tmp_path):
         assert len(_words(r.what_changed)) <= 2 * (CHANGE_MAX_WORDS + 2 * CHANGE_CONTEXT_WORDS) + 4, r.ref
         for marked in _marked(r):
             if r.category != "term" and not r.what_changed.startswith("Heading"):
-                assert any(" ".join(w.split()).startswith(marked) for w in (r.precedent_words, r.draft_words)), (r.ref, marked)
+                sides = (r.precedent_words, r.draft_words)
+                assert any(" ".join(w.split()).startswith(marked) for w in sides), (r.ref, marked)
                 checked += 1
     assert checked > 20
     office = libreoffice()
@@ -619,8 +623,8 @@ def test_demo_issues_list_and_redline_tables_span_the_page(tmp_path):
             ("issues.docx", issues_list_docx(review, author=AUTHOR), COLS, ISSUES_MIN_CM, True),
             # the full view opens with the ranked table (the substantive view puts the renamed
             # terms first: tests/core/export/test_redline.py checks both of its tables)
-            ("redline.docx", redline_bytes(review, author=AUTHOR, show="all"), ("Rank", "Severity", "Clause", "Deviation"),
-             REDLINE_MIN_CM, False)):
+            ("redline.docx", redline_bytes(review, author=AUTHOR, show="all"),
+             ("Rank", "Severity", "Clause", "Deviation"), REDLINE_MIN_CM, False)):
         path = tmp_path / name
         path.write_bytes(data)
         assert validate_docx(path) == []

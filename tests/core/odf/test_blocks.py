@@ -37,9 +37,11 @@ def _item(text, inner=""):
 
 
 def test_list_labels_levels_and_display_levels(tmp_path):
+    level3 = '<text:list>' + _item("first") + _item("second") + "</text:list>"
+    level2 = '<text:list>' + _item("in euros;") + _item("net.", level3) + "</text:list>"
+    level1 = '<text:list>' + _item("Goods means lamps.") + _item("Price means the price.", level2) + "</text:list>"
     body = ('<text:list text:style-name="Clauses">'
-            + _item("Definitions", '<text:list>' + _item("Goods means lamps.") + _item("Price means the price.",
-                    '<text:list>' + _item("in euros;") + _item("net.", '<text:list>' + _item("first") + _item("second") + "</text:list>") + "</text:list>") + "</text:list>")
+            + _item("Definitions", level1)
             + _item("Delivery")
             + "</text:list>")
     blocks, _ = _read(tmp_path, body, styles=LIST_STYLE)
@@ -70,7 +72,8 @@ def test_start_values_list_headers_and_continued_numbering(tmp_path):
 def test_headings_numbered_by_the_outline_style(tmp_path):
     outline = ('<text:outline-style style:name="Outline">'
                '<text:outline-level-style text:level="1" style:num-format="I" style:num-prefix="Article " />'
-               '<text:outline-level-style text:level="2" style:num-format="1" text:display-levels="2" style:num-suffix="."/>'
+               '<text:outline-level-style text:level="2" style:num-format="1" text:display-levels="2"'
+               ' style:num-suffix="."/>'
                "</text:outline-style>")
     body = ('<text:h text:outline-level="1">Definitions</text:h>'
             '<text:h text:outline-level="2">Terms</text:h><text:p>Body.</text:p>'
@@ -94,7 +97,8 @@ def test_text_white_space_tabs_breaks_and_what_is_left_out(tmp_path):
 
 
 def test_emphasis_from_paragraph_and_span_styles(tmp_path):
-    automatic = ('<style:style style:name="B" style:family="text"><style:text-properties fo:font-weight="bold"/></style:style>'
+    automatic = ('<style:style style:name="B" style:family="text">'
+                 '<style:text-properties fo:font-weight="bold"/></style:style>'
                  '<style:style style:name="H" style:family="paragraph" style:parent-style-name="Strong"/>')
     styles = ('<style:style style:name="Strong" style:family="paragraph">'
               '<style:text-properties fo:font-weight="700"/></style:style>')
@@ -147,8 +151,9 @@ def test_labels_agree_with_libreoffice(tmp_path):
     body = ('<text:list text:style-name="Clauses"><text:list-item><text:list>' + _item("Deeper first")
             + "</text:list></text:list-item>" + _item("Then up") + "</text:list>"
             + '<text:list text:style-name="Clauses" xml:id="L1">'
-            + _item("One", '<text:list>' + _item("One one") + _item("One two", '<text:list>' + _item("deep a")
-                                                                      + _item("deep b") + "</text:list>") + "</text:list>")
+            + _item("One", '<text:list>' + _item("One one")
+                    + _item("One two", '<text:list>' + _item("deep a") + _item("deep b") + "</text:list>")
+                    + "</text:list>")
             + '<text:list-item text:start-value="5"><text:p>Five</text:p></text:list-item>'
             + "</text:list><text:p>Between.</text:p>"
             + '<text:list text:style-name="Clauses" text:continue-numbering="true">' + _item("Six") + "</text:list>"

@@ -64,7 +64,8 @@ def _answers(lib: Library, *, patterns: bool = True) -> dict:
 
 def _steps(folder: Path) -> list:
     """A first build without two agreements, then one added, one changed, one removed."""
-    return [lambda: [(folder / n).unlink() for n in ("07-caddow-fenn-biosciences.docx", "12-merrow-vance-pharmaceuticals.docx")],
+    gone = ("07-caddow-fenn-biosciences.docx", "12-merrow-vance-pharmaceuticals.docx")
+    return [lambda: [(folder / n).unlink() for n in gone],
             lambda: shutil.copy(SET / "07-caddow-fenn-biosciences.docx", folder),
             lambda: (folder / "03-saltreach-water-services.docx").write_bytes(DRAFT.read_bytes()),
             lambda: (folder / "11-hollin-vree-energy.docx").unlink()]
