@@ -77,6 +77,8 @@ __all__ = [
     "PAIR_STATUSES",
     "PROVISION_KINDS",
     "STANCES",
+    "FORMER_STANCES",
+    "stance_named",
     "Block",
     "Category",
     "ChangeKind",
@@ -160,6 +162,19 @@ OVERRIDE_ACTIONS: tuple[OverrideAction, ...] = get_args(OverrideAction)
 #: live with, last concession, refuse.
 Stance = Literal["house wording", "can live with", "last concession", "refuse"]
 STANCES: tuple[Stance, ...] = get_args(Stance)
+#: The names an index or a review file written by an earlier version used, and the stance
+#: each now reads as.
+FORMER_STANCES: dict[str, Stance] = {
+    "preferred": "house wording", "acceptable": "can live with", "fallback": "last concession",
+    "not acceptable": "refuse",
+}
+
+
+def stance_named(value: str | None) -> Stance | None:
+    """The stance *value* names (a former name reads as its new one); None for None or a
+    name that is no stance."""
+    name = FORMER_STANCES.get(value, value) if value is not None else None
+    return next((s for s in STANCES if s == name), None)
 
 
 @dataclass(frozen=True, slots=True)

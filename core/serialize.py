@@ -56,7 +56,6 @@ from typing import Any, Literal, Protocol, cast
 
 from .errors import CounterdraftError
 from .model import (
-    STANCES,
     Check,
     ClosestProvision,
     Decision,
@@ -67,9 +66,9 @@ from .model import (
     Pair,
     Provision,
     Review,
-    Stance,
     TermMapping,
     TermOverride,
+    stance_named,
 )
 
 __all__ = [
@@ -267,15 +266,6 @@ def frequency_to_dict(f: Frequency | None) -> JsonObject | None:
     }
 
 
-def _stance(value: str | None) -> Stance | None:
-    """The stance *value* names; a former name (read from a file written before the stances
-    were renamed, ``core.library.options.FORMER_POSITIONS``) reads as its new name."""
-    from .library.options import FORMER_POSITIONS
-
-    name = FORMER_POSITIONS.get(value, value) if value is not None else None
-    return next((s for s in STANCES if s == name), None)
-
-
 def frequency_from_dict(d: Mapping[str, Any] | None) -> Frequency | None:
     if d is None:
         return None
@@ -283,7 +273,7 @@ def frequency_from_dict(d: Mapping[str, Any] | None) -> Frequency | None:
                      closest=tuple(ClosestProvision(document=c["document"], provision=c["provision"],
                                                     similarity=c["similarity"])
                                    for c in d.get("closest", ())),
-                     containing=d.get("containing"), position=_stance(d.get("position")))
+                     containing=d.get("containing"), position=stance_named(d.get("position")))
 
 
 def term_mapping_to_dict(m: TermMapping) -> JsonObject:

@@ -50,10 +50,12 @@ from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 from .lazyre import lazy_compile
-from .model import Block, Provision, ProvisionKind, Segment
+from .model import Block, Document, Provision, ProvisionKind, Segment
 
 __all__ = [
     "Label",
+    "block_owners",
+    "provision_blocks",
     "clean_term",
     "definition_start",
     "is_title_case",
@@ -1136,3 +1138,74 @@ def split_provisions(blocks: Sequence[Block], *, source: str) -> tuple[Provision
     """
     del source  # the split depends on the blocks alone
     return _Splitter(blocks).run()
+
+
+# --------------------------------------------------------------------------------------
+# The blocks each provision occupies (the writers edit them; the line model learns from them)
+# --------------------------------------------------------------------------------------
+
+
+def _norm_heading(text: str) -> str:
+    return " ".join(text.split()).strip().rstrip(".:").casefold()
+
+
+#: Longest literal label typed before a heading on its own line ("12.", "Article IV",
+#: "Schedule 2 -"); longer prefixes mean the line says more than the heading.
+_HEADING_PREFIX_MAX = 14
+
+
+def _is_heading_line(text: str, want: str) -> bool:
+    got = _norm_heading(text)
+    if got == want:
+        return True
+    return got.endswith(" " + want) and len(got) - len(want) <= _HEADING_PREFIX_MAX
+
+
+def block_owners(doc: Document) -> dict[int, tuple[str, int]]:
+    """block -> (provision id, part): part -1 is a standalone heading line of the provision,
+    0, 1, ... its text blocks in order.
+
+    Text blocks come from the segments.  A block holding only a provision's heading is owned
+    by it: the block right before its first text block, or, for a provision with no text of
+    its own ("7. PAYMENT" above 7.1), the first unowned block after the previous
+    provision's blocks whose text is the heading.  O(blocks + provisions).
+    """
+    owners: dict[int, tuple[str, int]] = {}
+    own_blocks: dict[str, list[int]] = {}
+    for prov in doc.provisions:
+        seen: list[int] = []
+        for s in prov.segments:
+            if s.block not in seen:
+                seen.append(s.block)
+        for k, b in enumerate(seen):
+            if b not in owners:
+                owners[b] = (prov.id, k)
+                own_blocks.setdefault(prov.id, []).append(b)
+    cursor = 0
+    for prov in doc.provisions:
+        blocks = sorted(own_blocks.get(prov.id, []))
+        if prov.heading:
+            want = _norm_heading(prov.heading)
+            if blocks:
+                b = blocks[0] - 1
+                if b >= 0 and b not in owners and _is_heading_line(doc.blocks[b].text, want):
+                    owners[b] = (prov.id, -1)
+            else:
+                b = cursor
+                while b < len(doc.blocks) and b not in owners:
+                    if _is_heading_line(doc.blocks[b].text, want):
+                        owners[b] = (prov.id, -1)
+                        blocks = [b]
+                        break
+                    b += 1
+        if blocks:
+            cursor = max(blocks) + 1
+    return owners
+
+
+def provision_blocks(doc: Document, prov: Provision, *,
+                     owners: dict[int, tuple[str, int]] | None = None) -> list[int]:
+    """The blocks a provision occupies, in order: a standalone heading line (if any), then
+    the blocks of its segments."""
+    table = owners if owners is not None else block_owners(doc)
+    return sorted(b for b, (pid, _) in table.items() if pid == prov.id)

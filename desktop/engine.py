@@ -28,10 +28,11 @@ from core.session import IsCancelled, Report
 from .state import Inputs
 
 if TYPE_CHECKING:
-    from core.decisions import Decision, OverrideAction, ReviewFile
+    from core.decisions import Decision, ReviewFile
     from core.library.index import Library
     from core.library.patterns import PatternGroup
     from core.library.slots import SlotVariants
+    from core.model import OverrideAction
     from core.review.termmap import TermOverride
 
 __all__ = [

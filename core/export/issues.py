@@ -46,6 +46,7 @@ from ..model import (
     CATEGORIES,
     Deviation,
     Edit,
+    EditTag,
     Frequency,
     Provision,
     Review,
@@ -348,7 +349,7 @@ def _opening(text: str, *, max_words: int = CHANGE_MAX_WORDS) -> Excerpt:
 
 def _swap(edits: Sequence[Edit]) -> tuple[Edit, ...]:
     """A pair's word diff read the other way round (draft to precedent)."""
-    flip = {"insert": "delete", "delete": "insert"}
+    flip: dict[EditTag, EditTag] = {"insert": "delete", "delete": "insert"}
     return tuple(Edit(flip.get(e.tag, e.tag), e.d1, e.d2, e.p1, e.p2) for e in edits)
 
 

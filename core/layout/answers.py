@@ -36,7 +36,7 @@ class BlockAnswer:
 
 def block_answers(doc: Document) -> tuple[BlockAnswer, ...]:
     """One answer per block of *doc* (see the module docstring)."""
-    from ..export.common import block_owners
+    from ..structure import block_owners
 
     owners = block_owners(doc)
     by_id = {p.id: p for p in doc.provisions}

@@ -65,7 +65,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..model import ClosestProvision, Deviation, Document, Frequency, Pair, Provision, Review
+from ..model import ClosestProvision, Deviation, Document, Frequency, Pair, Provision, Review, Stance, stance_named
 from .clausetypes import Typing, classify_provisions, document_term_replacer
 from .index import BucketIndex, Library, bucket_of, normalised_wording
 from .normalise import SHINGLE_SIZE, TermReplacer, _word_hash, match_tokens, shingle_hashes
@@ -246,13 +246,13 @@ class _Context:
                 out.append(ClosestProvision(ref[0], ref[1], round(float(1.0 - dist[i]), 3)))
         return tuple(out)
 
-    def position_of_rows(self, bucket: BucketIndex, rows: np.ndarray, dist: np.ndarray) -> str | None:
-        """The position of the variant of the nearest of *rows* (a boolean mask)."""
+    def position_of_rows(self, bucket: BucketIndex, rows: np.ndarray, dist: np.ndarray) -> Stance | None:
+        """The stance recorded on the variant of the nearest of *rows* (a boolean mask)."""
         idx = np.flatnonzero(rows)
         if idx.size == 0 or not self.positions:
             return None
         best = idx[np.lexsort((idx, dist[idx]))][0]
-        return self.positions.get(int(bucket.variant[best]))
+        return stance_named(self.positions.get(int(bucket.variant[best])))
 
     def containing_phrase(self, bucket: BucketIndex, tokens: Sequence[str]) -> int:
         """Same-type library provisions whose normalised text holds *tokens* as a phrase."""

@@ -20,9 +20,9 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from core.docinfo import build_docinfo
 from core.model import Document, Provision
 from core.reader import read_document, read_text
-from core.docinfo import build_docinfo
 from core.xrefs import (
     ISSUE_KINDS,
     Reference,

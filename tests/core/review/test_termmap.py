@@ -8,9 +8,9 @@ import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
+from core.docinfo import build_docinfo, party_role
 from core.errors import CounterdraftError
 from core.review import TermOverride, VocabularyModel, run_review
-from core.docinfo import build_docinfo, party_role
 from core.review.termmap import MAP_MIN, map_terms
 
 from .helpers import doc, substantive
