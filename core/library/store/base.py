@@ -24,7 +24,7 @@ from __future__ import annotations
 from collections.abc import Iterable, Iterator, Sequence
 from contextlib import AbstractContextManager
 from pathlib import Path
-from typing import Any, Literal, Protocol
+from typing import Literal, Protocol
 
 __all__ = [
     "VARIANT_FIGURES",
@@ -39,7 +39,6 @@ __all__ = [
     "ProvisionRow",
     "StoreDamaged",
     "TermRow",
-    "UntypedRow",
 ]
 
 #: The figures a variant row keeps, in this order (see :func:`core.library.index._variant_figures`).
@@ -53,10 +52,6 @@ FailureState = tuple[str | None, int, int]
 ProvisionRow = tuple[str, str, str | None, str | None, int, str | None, str, str | None, str, str]
 #: (term, definition, provision id, uses)
 TermRow = tuple[str, str, str | None, int]
-
-
-#: A provision still to be typed: (id, kind, norm, clause type, bucket).
-UntypedRow = tuple[int, str, str | None, str | None, str]
 
 
 class StoreDamaged(Exception):
@@ -146,7 +141,7 @@ class Wordings(Protocol):
         """(clause type, wording hash, provision id) of provisions typed by heading or
         parent, documents in the order of their SHA-256 (then path), provisions in order."""
     def provision_column(self, column: Literal["norm", "text"], ids: Sequence[int]) -> dict[int, str]: ...
-    def untyped_provisions(self, document_ids: Sequence[int] | None = None) -> list[UntypedRow]:
+    def untyped_provisions(self, document_ids: Sequence[int] | None = None) -> list[tuple[int, str, str | None, str | None, str]]:
         """(id, kind, norm, clause type, bucket) of provisions typed by neighbours or not at
         all (of *document_ids* only, when given)."""
     def retype(self, updates: Sequence[tuple[str | None, str, str, int, str]]) -> None:
@@ -216,7 +211,7 @@ class Reading(Protocol):
     def terms_beside(self, provision_id: int) -> list[str]:
         """The defined terms of the document holding a provision."""
     def variant_positions(self) -> dict[int, str]: ...
-    def variant_rows(self, bucket: str | None = None) -> list[tuple[Any, ...]]:
+    def variant_rows(self, bucket: str | None = None) -> list[tuple]:
         """(id, bucket, ordinal, wordings, provisions, documents, position, sample path,
         number, heading, pid, sample id) by bucket and ordinal."""
     def find_provision(self, document: str, provision: str) -> tuple[int | None, str, str | None] | None:
@@ -234,7 +229,7 @@ class Reading(Protocol):
     def term_count(self) -> int: ...
     def documents_defining(self, names: Sequence[str]) -> int:
         """Documents defining at least one of *names*."""
-    def provision_rows(self) -> list[tuple[Any, ...]]:
+    def provision_rows(self) -> list[tuple]:
         """Every provision as (row id, document id, document path, provision id, clause type,
         type source, bucket, wording hash, variant id), by path and order: the whole index,
         to compare two stores."""

@@ -145,16 +145,9 @@ class PostgresStore(SQLStore):
 
     def __init__(self, url: str) -> None:
         self.address = shown_address(url)
-        self.conn: psycopg.Connection[Any] | None = None
+        self.conn: psycopg.Connection[Any] | None = None  # type: ignore[assignment]
         self._writer = False
         self.conn = self._connect(url)
-
-    @property
-    def _db(self) -> psycopg.Connection[Any]:
-        """The open connection (a store is opened before it is used)."""
-        if self.conn is None:
-            raise RuntimeError("the precedent set's store is not open")
-        return self.conn
 
     # -- connecting -----------------------------------------------------------------------------
     def _connect(self, url: str) -> psycopg.Connection[Any]:
@@ -182,14 +175,14 @@ class PostgresStore(SQLStore):
         if isinstance(err, psycopg.errors.InsufficientPrivilege):
             return CounterdraftError(f"the store refused ({line}): this role may not change the precedent set; "
                                      "use a role that may (see the README)", path=self.address)
-        if isinstance(err, psycopg.OperationalError) and self.conn is not None and self._db.closed:
+        if isinstance(err, psycopg.OperationalError) and self.conn is not None and self.conn.closed:
             return CounterdraftError(f"lost the connection to the store ({line})", path=self.address)
         return CounterdraftError(f"store error ({line})", path=self.address)
 
     # -- dialect --------------------------------------------------------------------------------
     def _cursor(self, sql: str, params: Sequence[Any] = ()) -> Any:
         try:
-            return self._db.execute(sql.replace("?", "%s"), tuple(params) if params else None)
+            return self.conn.execute(sql.replace("?", "%s"), tuple(params) if params else None)
         except psycopg.Error as err:
             raise self._failed(err) from None
 
@@ -198,7 +191,7 @@ class PostgresStore(SQLStore):
         if not rows:
             return
         try:
-            with self._db.cursor() as cur:
+            with self.conn.cursor() as cur:
                 cur.executemany(sql.replace("?", "%s"), rows)
         except psycopg.Error as err:
             raise self._failed(err) from None
@@ -238,23 +231,23 @@ class PostgresStore(SQLStore):
             version = self._schema_version()
             for step, sql in MIGRATIONS:
                 if step > version:
-                    self._db.execute(sql)
+                    self.conn.execute(sql)
             self.set_meta("schema", str(SCHEMA_VERSION))
-            self._db.commit()
+            self.conn.commit()
         except psycopg.Error as err:
-            self._db.rollback()
+            self.conn.rollback()
             if isinstance(err, psycopg.errors.InsufficientPrivilege):
                 raise CounterdraftError(f"the store's tables need creating or upgrading to schema {SCHEMA_VERSION} "
                                         "and this role may not: run 'counterdraft library build' once with a role "
                                         "that may (see the README)", path=self.address) from None
             raise self._failed(err) from None
         except BaseException:
-            self._db.rollback()
+            self.conn.rollback()
             raise
 
     def _set_mode(self, *, write: bool) -> None:
-        self._db.isolation_level = IsolationLevel.READ_COMMITTED if write else IsolationLevel.REPEATABLE_READ
-        self._db.read_only = not write
+        self.conn.isolation_level = IsolationLevel.READ_COMMITTED if write else IsolationLevel.REPEATABLE_READ
+        self.conn.read_only = not write
 
     # -- transactions and locks -----------------------------------------------------------------
     @contextmanager
@@ -264,18 +257,18 @@ class PostgresStore(SQLStore):
         try:
             yield
         finally:
-            if not self._db.closed:
+            if not self.conn.closed:
                 try:
-                    self._db.rollback()  # nothing committed is lost; a failed write is undone
-                    self._db.execute("SELECT pg_advisory_unlock(%s, %s)", (_LOCK_CLASS, _WRITER_LOCK))
-                    self._db.commit()
+                    self.conn.rollback()  # nothing committed is lost; a failed write is undone
+                    self.conn.execute("SELECT pg_advisory_unlock(%s, %s)", (_LOCK_CLASS, _WRITER_LOCK))
+                    self.conn.commit()
                 except psycopg.Error:
                     pass  # the connection is gone: the server released the lock with the session
 
     @contextmanager
     def write(self) -> Iterator[None]:
         try:
-            self._db.rollback()  # a reader's snapshot ends here
+            self.conn.rollback()  # a reader's snapshot ends here
         except psycopg.Error as err:
             raise self._failed(err) from None
         self._set_mode(write=True)
@@ -284,8 +277,8 @@ class PostgresStore(SQLStore):
                 yield
                 self.commit()
         finally:
-            if not self._db.closed:
-                self._db.rollback()
+            if not self.conn.closed:
+                self.conn.rollback()
                 self._set_mode(write=self._writer)
 
     def checkpoint(self) -> None:
@@ -293,13 +286,13 @@ class PostgresStore(SQLStore):
 
     def commit(self) -> None:
         try:
-            self._db.commit()
+            self.conn.commit()
         except psycopg.Error as err:
             raise self._failed(err) from None
 
     def close(self) -> None:
         if self.conn is not None:
-            self._db.close()  # an open transaction is rolled back by the server
+            self.conn.close()  # an open transaction is rolled back by the server
 
     def damage(self, err: BaseException) -> str | None:
         return None  # a server database is never set aside by a client

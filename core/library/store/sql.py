@@ -18,27 +18,11 @@ from __future__ import annotations
 import json
 from collections.abc import Iterable, Iterator, Sequence
 from pathlib import Path
-from typing import Any, Literal, Protocol
+from typing import Any, Literal
 
-from .base import VARIANT_FIGURES, DocumentState, FailureState, ProvisionRow, TermRow, UntypedRow
+from .base import VARIANT_FIGURES, DocumentState, FailureState, ProvisionRow, TermRow
 
-__all__ = ["Cursor", "Row", "SQLStore"]
-
-#: One row of a query: its columns as the driver gives them (the methods below name them).
-Row = tuple[Any, ...]
-
-
-class Cursor(Protocol):
-    """What both drivers' cursors give: rows one by one, the first, or all."""
-
-    def fetchone(self) -> Row | None:
-        """The next row, or None."""
-
-    def fetchall(self) -> list[Row]:
-        """The remaining rows."""
-
-    def __iter__(self) -> Iterator[Row]:
-        """The remaining rows, one by one."""
+__all__ = ["SQLStore"]
 
 _PROVISION_COLUMNS = ("id, document_id, ordinal, pid, kind, number, heading, level, parent, text, clause_type, "
                       "type_source, bucket")
@@ -57,7 +41,7 @@ class SQLStore:
     _LOWER_PARAM = "lower(?)"
 
     # -- dialect ------------------------------------------------------------------------------
-    def _cursor(self, sql: str, params: Sequence[Any] = ()) -> Cursor:
+    def _cursor(self, sql: str, params: Sequence[Any] = ()) -> Any:
         """Run one statement; the cursor (iterable, ``fetchone``, ``fetchall``)."""
         raise NotImplementedError
 
@@ -79,8 +63,7 @@ class SQLStore:
 
     # -- meta -----------------------------------------------------------------------------------
     def meta(self, key: str) -> str | None:
-        value = self._one("SELECT value FROM meta WHERE key = ?", (key,))
-        return None if value is None else str(value)
+        return self._one("SELECT value FROM meta WHERE key = ?", (key,))
 
     def set_meta(self, key: str, value: str) -> None:
         self._cursor("INSERT INTO meta(key, value) VALUES(?, ?) "
@@ -163,7 +146,7 @@ class SQLStore:
     # -- normalising and typing -----------------------------------------------------------------
     def all_terms(self) -> list[tuple[int, str, str]]:
         return [tuple(r) for r in self._cursor(
-            f"SELECT document_id, term, definition FROM terms ORDER BY {self._TERM_ORDER}")]
+            f"SELECT document_id, term, definition FROM terms ORDER BY {self._TERM_ORDER}")]  # type: ignore[misc]
 
     def renormalise_all(self) -> None:
         self._cursor("UPDATE documents SET normalised = 0")
@@ -176,7 +159,7 @@ class SQLStore:
             f"SELECT term FROM terms WHERE document_id = ? ORDER BY {self._TERM_ORDER}", (document_id,))]
 
     def document_wordings(self, document_id: int) -> list[tuple[int, str | None, str]]:
-        return [tuple(r) for r in self._cursor(
+        return [tuple(r) for r in self._cursor(  # type: ignore[misc]
             "SELECT id, heading, text FROM provisions WHERE document_id = ?", (document_id,))]
 
     def set_norms(self, document_id: int, rows: Sequence[tuple[str, str, int]]) -> None:
@@ -196,11 +179,11 @@ class SQLStore:
             raise ValueError(column)
         return dict(self._in(f"SELECT id, {column} FROM provisions WHERE id {{in}}", [int(i) for i in ids]))
 
-    def untyped_provisions(self, document_ids: Sequence[int] | None = None) -> list[UntypedRow]:
+    def untyped_provisions(self, document_ids: Sequence[int] | None = None) -> list[tuple[int, str, str | None, str | None, str]]:
         sql = "SELECT id, kind, norm, clause_type, bucket FROM provisions WHERE type_source IN ('neighbour', 'none')"
         if document_ids is None:
-            return [tuple(r) for r in self._cursor(sql)]
-        return [tuple(r) for r in self._in(sql + " AND document_id {in}", [int(i) for i in document_ids])]
+            return [tuple(r) for r in self._cursor(sql)]  # type: ignore[misc]
+        return [tuple(r) for r in self._in(sql + " AND document_id {in}", [int(i) for i in document_ids])]  # type: ignore[misc]
 
     def retype(self, updates: Sequence[tuple[str | None, str, str, int, str]]) -> None:
         self.mark_dirty(b for u in updates for b in (u[2], u[4]))
@@ -329,7 +312,7 @@ class SQLStore:
     def variant_positions(self) -> dict[int, str]:
         return dict(self._cursor("SELECT id, position FROM variants WHERE position IS NOT NULL").fetchall())
 
-    def variant_rows(self, bucket: str | None = None) -> list[Row]:
+    def variant_rows(self, bucket: str | None = None) -> list[tuple]:
         sql = ("SELECT v.id, v.bucket, v.ordinal, v.wordings, v.provisions, v.documents, v.position, "
                "d.path, p.number, p.heading, p.pid, v.sample FROM variants v LEFT JOIN provisions p ON p.id = v.sample "
                "LEFT JOIN documents d ON d.id = p.document_id")
@@ -347,8 +330,7 @@ class SQLStore:
         return None if row is None else (row[0], row[1], row[2])
 
     def variant_bucket(self, variant_id: int) -> str | None:
-        bucket = self._one("SELECT bucket FROM variants WHERE id = ?", (int(variant_id),))
-        return None if bucket is None else str(bucket)
+        return self._one("SELECT bucket FROM variants WHERE id = ?", (int(variant_id),))
 
     def variant_wordings(self, variant_id: int) -> list[str]:
         return [h for (h,) in self._cursor(
@@ -380,7 +362,7 @@ class SQLStore:
     def term_count(self) -> int:
         return int(self._one("SELECT COUNT(*) FROM terms"))
 
-    def provision_rows(self) -> list[Row]:
+    def provision_rows(self) -> list[tuple]:
         return [tuple(r) for r in self._cursor(
             "SELECT p.id, p.document_id, d.path, p.pid, p.clause_type, p.type_source, p.bucket, p.norm_hash, "
             "p.variant_id FROM provisions p JOIN documents d ON d.id = p.document_id ORDER BY d.path, p.ordinal")]

@@ -136,27 +136,20 @@ class SQLiteStore(SQLStore):
         self.address = str(self.path)
         self.folder = self.path.parent
         self._private_folder = private_folder
-        self.conn: sqlite3.Connection | None = None
-
-    @property
-    def _db(self) -> sqlite3.Connection:
-        """The open connection (a store is opened before it is used)."""
-        if self.conn is None:
-            raise RuntimeError("the precedent set's store is not open")
-        return self.conn
+        self.conn: sqlite3.Connection | None = None  # type: ignore[assignment]
 
     # -- dialect --------------------------------------------------------------------------------
     def _cursor(self, sql: str, params: Sequence[Any] = ()) -> Any:
-        return self._db.execute(sql, params)
+        return self.conn.execute(sql, params)
 
     def _many(self, sql: str, rows: Any) -> None:
-        self._db.executemany(sql, rows)
+        self.conn.executemany(sql, rows)
 
     def _in(self, sql: str, values: Sequence[Any], *before: Any) -> Iterator[tuple[Any, ...]]:
         unique = list(dict.fromkeys(values))
         for start in range(0, len(unique), IN_BATCH):
             chunk = unique[start:start + IN_BATCH]
-            yield from self._db.execute(sql.replace("{in}", f"IN ({','.join('?' * len(chunk))})"),
+            yield from self.conn.execute(sql.replace("{in}", f"IN ({','.join('?' * len(chunk))})"),
                                          (*before, *chunk))
 
     # -- lifecycle ------------------------------------------------------------------------------
@@ -218,10 +211,10 @@ class SQLiteStore(SQLStore):
         (A PostgreSQL store never held the former names.)"""
         if self.meta(_POSITION_NAMES_KEY) == "2":
             return
-        with self._db:
+        with self.conn:
             for old, new in FORMER_POSITIONS.items():
-                self._db.execute("UPDATE labels SET position = ? WHERE position = ?", (new, old))
-                self._db.execute("UPDATE variants SET position = ? WHERE position = ?", (new, old))
+                self.conn.execute("UPDATE labels SET position = ? WHERE position = ?", (new, old))
+                self.conn.execute("UPDATE variants SET position = ? WHERE position = ?", (new, old))
             self.set_meta(_POSITION_NAMES_KEY, "2")
 
     def _check_schema(self) -> None:
@@ -230,7 +223,7 @@ class SQLiteStore(SQLStore):
         Reading the schema also makes SQLite check the file header: garbage gives
         SQLITE_NOTADB, a truncated file SQLITE_CORRUPT.  Cost: one read of the schema table,
         a few pragmas."""
-        conn = self._db
+        conn = self.conn
         try:
             tables = {n for (n,) in conn.execute("SELECT name FROM sqlite_master WHERE type = 'table'")}
             if not tables:
@@ -261,20 +254,20 @@ class SQLiteStore(SQLStore):
         with self.lock():
             try:
                 yield
-                self._db.commit()
+                self.conn.commit()
             except BaseException:
-                self._db.rollback()
+                self.conn.rollback()
                 raise
 
     def checkpoint(self) -> None:
-        self._db.commit()
+        self.conn.commit()
 
     def commit(self) -> None:
-        self._db.commit()
+        self.conn.commit()
 
     def close(self) -> None:
         if self.conn is not None:
-            self._db.close()
+            self.conn.close()
             self.conn = None
 
     def damage(self, err: BaseException) -> str | None:
