@@ -1,6 +1,7 @@
 # Two entry points for a fresh Debian machine with Python 3.11:
 #   make demo   -- install into .venv and run Counterdraft on the bundled demo agreements
-#   make test   -- install into .venv with the test extra (and LibreOffice), run the whole suite
+#   make test   -- install into .venv with the test extra (and LibreOffice), run the static checks
+#                  (ruff, mypy --strict) and the whole suite
 PYTHON ?= python3
 VENV := .venv
 PY := $(VENV)/bin/python
@@ -57,7 +58,7 @@ system-deps:
 	  $(APT_INSTALL) $(TEST_PACKAGES); \
 	fi
 
-test: $(VENV)/.installed system-deps gui-deps
+test: $(VENV)/.installed system-deps gui-deps static
 	QT_QPA_PLATFORM=offscreen $(PY) -m pytest
 
 # The static checks (configured in pyproject.toml): lint the tree, type-check core/ and desktop/.
