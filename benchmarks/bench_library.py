@@ -32,6 +32,7 @@ build, ``review --library`` <= 1.3 x ``review``, index <= 100 MB and peak memory
 
 from __future__ import annotations
 
+import argparse
 import dataclasses
 import json
 import os
@@ -303,12 +304,18 @@ def _print(now: dict[str, float], before: dict[str, float] | None) -> None:
         print(line)
 
 
-def main(argv: list[str] | None = None) -> int:
-    parser = argument_parser(__doc__)
+def corpus_arguments(doc: str | None) -> argparse.ArgumentParser:
+    """The options of a benchmark over a generated precedent set (shared with bench_store)."""
+    parser = argument_parser(doc)
     parser.add_argument("--documents", type=int, default=1000)
     parser.add_argument("--pages", type=int, default=10)
     parser.add_argument("--review-pages", type=int, default=100)
     parser.add_argument("--workers", type=int, default=2)
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = corpus_arguments(__doc__)
     parser.add_argument("--large", action="store_true", help=f"{LARGE_DOCUMENTS:,} agreements")
     parser.add_argument("--json", metavar="OUT", help="write the figures as JSON")
     parser.add_argument("--before", metavar="JSON", help="an earlier run's figures, printed beside")

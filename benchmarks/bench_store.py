@@ -31,9 +31,17 @@ import tempfile
 from collections.abc import Callable
 from pathlib import Path
 
-# _measure first: importing it puts the repository root on sys.path.
-from _measure import argument_parser
-from bench_library import REPEATS, _cli_seconds, _corpus, _link_copy, _review_pair, _timed, one_file_updates
+# bench_library first: it imports _measure, which puts the repository root on sys.path.
+from bench_library import (
+    REPEATS,
+    _cli_seconds,
+    _corpus,
+    _link_copy,
+    _review_pair,
+    _timed,
+    corpus_arguments,
+    one_file_updates,
+)
 
 from core.library.index import Library, build_library
 
@@ -126,11 +134,7 @@ def _print(f: dict[str, float]) -> None:
 
 
 def main(argv: list[str] | None = None) -> int:
-    parser = argument_parser(__doc__)
-    parser.add_argument("--documents", type=int, default=1000)
-    parser.add_argument("--pages", type=int, default=10)
-    parser.add_argument("--review-pages", type=int, default=100)
-    parser.add_argument("--workers", type=int, default=2)
+    parser = corpus_arguments(__doc__)
     parser.add_argument("--store", metavar="ADDRESS", help="an empty PostgreSQL database (default: a throwaway server)")
     parser.add_argument("--json", metavar="OUT", help="write the figures as JSON")
     args = parser.parse_args(argv)
