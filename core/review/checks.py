@@ -667,6 +667,46 @@ def _uses_of(doc: Document, texts: _Texts, names: Mapping[str, str]) -> dict[str
     return out
 
 
+def _foreign_undefined(doc: Document, texts: _Texts, *, own: Sequence[str], foreign: Iterable[str],
+                       document: CheckDocument) -> list[Check]:
+    """The checks of the precedent's terms that *doc* uses capitalised without defining them
+    (in the middle of a sentence at least once, or a name of several words)."""
+    own_keys = {_word_key(n) for n in own}
+    missing = {n: n for n in foreign if _word_key(n) not in own_keys and n[:1].isupper()
+               and n not in _FUNCTION_WORDS_CAPITALISED}
+    return [_undefined_check(uses, document=document, term=term,
+                             why="is defined in the precedent but not in this document")
+            for term, uses in _uses_of(doc, texts, missing).items()
+            if any(u.common for u in uses) or " " in term]
+
+
+def _looks_defined(uses: Sequence[_Use], words: Sequence[str], lower: set[str]) -> bool:
+    """Whether the capitalised *uses* (their capitalised *words*) read like a defined term:
+    not only attributive, and determined ("the ...") with several words, a common-noun
+    ending or a common noun, or capitalised in the middle of a sentence."""
+    if all(u.attributive for u in uses):
+        return False
+    determined = any(u.determined for u in uses)
+    return ((len(words) > 1 and determined)
+            or (determined and bool(_COMMON_NOUN_END_RE.search(words[0])))
+            or (determined and _common_noun(uses[0].phrase, lower))
+            or any(u.common for u in uses))
+
+
+def _unknown_uses(texts: _Texts, known_parts: _NameParts,
+                  reported: set[tuple[str, ...]]) -> dict[tuple[str, ...], list[_Use]]:
+    """The capitalised candidate uses of *texts* by word key, leaving out the phrases already
+    *reported* and those that overlap a known name or are excluded."""
+    found: dict[tuple[str, ...], list[_Use]] = {}
+    for use in _candidate_uses(texts):
+        key = _word_key(use.phrase)
+        joined = _word_key(_DASH_RE.sub("", use.phrase))
+        if key in reported or known_parts.overlaps(key) or known_parts.overlaps(joined) or _excluded(use.phrase):
+            continue
+        found.setdefault(key, []).append(use)
+    return found
+
+
 def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iterable[str] = (),
                     document: CheckDocument = "draft") -> tuple[Check, ...]:
     """The undefined-term checks of *doc* (see the module's notes).
@@ -680,36 +720,18 @@ def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iter
     marked = _marked_names(t for _p, _k, t in texts.parts)
     known_parts = _NameParts(_word_key(m) for n in [*own, *marked] if n.strip()
                              for m in (n, _DASH_RE.sub("", n)))
-    out: list[Check] = []
-    own_keys = {_word_key(n) for n in own}
-    missing = {n: n for n in foreign if _word_key(n) not in own_keys and n[:1].isupper()
-               and n not in _FUNCTION_WORDS_CAPITALISED}
-    reported: set[tuple[str, ...]] = set()
-    for term, uses in _uses_of(doc, texts, missing).items():
-        if any(u.common for u in uses) or " " in term:
-            out.append(_undefined_check(uses, document=document, term=term,
-                                        why="is defined in the precedent but not in this document"))
-            reported.add(_word_key(term))
+    out = _foreign_undefined(doc, texts, own=own, foreign=foreign, document=document)
+    reported = {_word_key(c.term or "") for c in out}
     if not _english(texts):
         return tuple(out)
     lower = _lower_words(t for _p, _k, t in texts.parts)
-    found: dict[tuple[str, ...], list[_Use]] = {}
-    for use in _candidate_uses(texts):
-        key = _word_key(use.phrase)
-        joined = _word_key(_DASH_RE.sub("", use.phrase))
-        if key in reported or known_parts.overlaps(key) or known_parts.overlaps(joined) or _excluded(use.phrase):
-            continue
-        found.setdefault(key, []).append(use)
+    found = _unknown_uses(texts, known_parts, reported)
     brand = _brand_words(texts, lower)
     for uses in found.values():
         words = [w for w in uses[0].phrase.split() if w[:1].isupper()]
         if any(w in brand for w in words):
             continue  # "the Java Platform": "Java" names a product elsewhere in the document
-        determined = any(u.determined for u in uses)
-        if not ((len(words) > 1 and determined and not all(u.attributive for u in uses))
-                or (determined and _COMMON_NOUN_END_RE.search(words[0]) and not all(u.attributive for u in uses))
-                or (not all(u.attributive for u in uses)
-                    and ((determined and _common_noun(uses[0].phrase, lower)) or any(u.common for u in uses)))):
+        if not _looks_defined(uses, words, lower):
             continue
         out.append(_undefined_check(uses, document=document, term=uses[0].phrase,
                                     why="is capitalised like a defined term but defined nowhere in the document"))
