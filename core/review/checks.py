@@ -788,6 +788,25 @@ def _use_name(name: str) -> str:
     return " ".join(words[1:]) if len(words) > 1 and words[0].casefold() == "to" else name
 
 
+def _use_lookup(doc: Document) -> dict[str, set[str]]:
+    """The defined terms of *doc* by each folded form of their names that counts as a use."""
+    lookup: dict[str, set[str]] = {}
+    for t in doc.terms:
+        for n in _written_names(t):
+            n = _use_name(n)
+            for f in [*term_forms(" ".join(n.split())), *_verb_forms(n)]:
+                lookup.setdefault(_fold(f), set()).add(t.term)
+    return lookup
+
+
+def _never_reported_unused(t: DefinedTerm, doc: Document) -> bool:
+    """Whether *t* is a definition the unused check leaves alone: not capitalised, defined by
+    reference, no name, an abbreviation, another instrument's term or an alternative word."""
+    return bool(not t.term[:1].isupper() or _BY_REFERENCE_RE.search(t.definition or "")
+                or _NOT_A_NAME_RE.search(t.term) or _abbreviation(t, doc) or _other_instrument_term(t)
+                or _alternative_word(t))
+
+
 def unused_definitions(doc: Document, *, document: CheckDocument = "draft") -> tuple[Check, ...]:
     """Defined terms that *doc* never uses outside their definitions.
 
@@ -798,12 +817,7 @@ def unused_definitions(doc: Document, *, document: CheckDocument = "draft") -> t
     case ("AGREEMENT" in a notice in capitals, "Agreement") share their uses."""
     if not doc.terms:
         return ()
-    lookup: dict[str, set[str]] = {}
-    for t in doc.terms:
-        for n in _written_names(t):
-            n = _use_name(n)
-            for f in [*term_forms(" ".join(n.split())), *_verb_forms(n)]:
-                lookup.setdefault(_fold(f), set()).add(t.term)
+    lookup = _use_lookup(doc)
     find = _folded_finder(lookup)
     areas = {t.term: _definition_area(doc, t) for t in doc.terms}
     defining_seen: set[str] = set()
@@ -824,9 +838,7 @@ def unused_definitions(doc: Document, *, document: CheckDocument = "draft") -> t
                 used.add(term)
     out = []
     for t in doc.terms:
-        if (t.term in used or not t.term[:1].isupper() or _BY_REFERENCE_RE.search(t.definition or "")
-                or _NOT_A_NAME_RE.search(t.term) or _abbreviation(t, doc) or _other_instrument_term(t)
-                or _alternative_word(t)):
+        if t.term in used or _never_reported_unused(t, doc):
             continue
         pid, span = areas[t.term]
         defining = _provision(doc, pid)
