@@ -520,6 +520,19 @@ def _candidate_uses(texts: _Texts) -> list[_Use]:
     return out
 
 
+def _no_phrase_here(line: str, m: re.Match[str], *, run: str, before: str, nxt: str) -> bool:
+    """Whether the capitalised *run* (after the word *before*, before the word *nxt*) is
+    part of a title or a designation, a verb or a quoted or abbreviated name."""
+    if _TITLE_AFTER_RE.match(line, m.end()):
+        return True  # one name of a title's list: "the Copyright, Designs and Patents Act 1988"
+    if _DESIGNATION_RE.match(nxt) or (run.endswith("Copyright") and _NOTICE_RE.match(line, m.end())):
+        return True  # "Product X", "Schedule 2", "Copyright (C) 2002"
+    if before == "to" and nxt.lower() in _FUNCTION_WORDS and " " not in run:
+        return True  # a verb: "to Use the Software"
+    # a title quoted ("entitled Restrictions"), a name abbreviated ("Defense ("DFARS")")
+    return before in _TITLE_CUE_WORDS or bool(_ABBREVIATED_RE.match(line, m.end()))
+
+
 def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: CheckPart, offset: int) -> list[_Use]:
     """The phrases of one run of capitalised words (parted at "and" / "or"), unless the run
     is a title, starts a sentence or is a verb ("to Preserve its Title")."""
@@ -532,14 +545,8 @@ def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: CheckPart, 
         return []  # the start of a sentence, a line, a list item or a list of names
     after = _AFTER_RE.match(line, m.end())
     nxt = after.group("next") if after else ""
-    if _TITLE_AFTER_RE.match(line, m.end()):
-        return []  # one name of a title's list: "the Copyright, Designs and Patents Act 1988"
-    if _DESIGNATION_RE.match(nxt) or (run.endswith("Copyright") and _NOTICE_RE.match(line, m.end())):
-        return []  # "Product X", "Schedule 2", "Copyright (C) 2002"
-    if before == "to" and nxt.lower() in _FUNCTION_WORDS and " " not in run:
-        return []  # a verb: "to Use the Software"
-    if before in _TITLE_CUE_WORDS or _ABBREVIATED_RE.match(line, m.end()):
-        return []  # a title quoted ("entitled Restrictions"), a name abbreviated ("Defense ("DFARS")")
+    if _no_phrase_here(line, m, run=run, before=before, nxt=nxt):
+        return []
     attributive = (bool(nxt) and nxt[0].isalpha() and nxt.lower() not in _FUNCTION_WORDS
                    and not _POSTPOSITIVE_RE.search(nxt))
     out: list[_Use] = []
