@@ -533,6 +533,20 @@ def _no_phrase_here(line: str, m: re.Match[str], *, run: str, before: str, nxt: 
     return before in _TITLE_CUE_WORDS or bool(_ABBREVIATED_RE.match(line, m.end()))
 
 
+def _piece_words(words: list[str], determiner: str | None) -> tuple[str | None, list[str]]:
+    """The determiner and the capitalised words of one piece of a run: leading function
+    words become the determiner ("by Your Modifications": the phrase is "Modifications"),
+    trailing words in lower case are dropped."""
+    lead = 0
+    while lead < len(words) and words[lead].lower() in _FUNCTION_WORDS:
+        determiner = words[lead].lower()
+        lead += 1
+    rest = words[lead:]
+    while rest and not rest[-1][:1].isupper():
+        rest.pop()
+    return determiner, rest
+
+
 def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: CheckPart, offset: int) -> list[_Use]:
     """The phrases of one run of capitalised words (parted at "and" / "or"), unless the run
     is a title, starts a sentence or is a verb ("to Preserve its Title")."""
@@ -554,14 +568,7 @@ def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: CheckPart, 
     pieces = [(cuts[i], run[cuts[i]:cuts[i + 1]]) for i in range(0, len(cuts), 2)]
     determiner: str | None = before
     for k, (piece_start, piece) in enumerate(pieces):
-        words = piece.split()
-        lead = 0
-        while lead < len(words) and words[lead].lower() in _FUNCTION_WORDS:
-            determiner = words[lead].lower()  # "by Your Modifications": the phrase is "Modifications"
-            lead += 1
-        rest = words[lead:]
-        while rest and not rest[-1][:1].isupper():
-            rest.pop()
+        determiner, rest = _piece_words(piece.split(), determiner)
         if not rest or rest[0] in _HONORIFICS:
             determiner = None
             continue
