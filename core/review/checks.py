@@ -547,6 +547,13 @@ def _piece_words(words: list[str], determiner: str | None) -> tuple[str | None, 
     return determiner, rest
 
 
+def _attributive(nxt: str) -> bool:
+    """Whether a run followed by the word *nxt* qualifies it ("Software License"): a word,
+    not a function word nor one written after its noun."""
+    return (bool(nxt) and nxt[0].isalpha() and nxt.lower() not in _FUNCTION_WORDS
+            and not _POSTPOSITIVE_RE.search(nxt))
+
+
 def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: CheckPart, offset: int) -> list[_Use]:
     """The phrases of one run of capitalised words (parted at "and" / "or"), unless the run
     is a title, starts a sentence or is a verb ("to Preserve its Title")."""
@@ -561,8 +568,7 @@ def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: CheckPart, 
     nxt = after.group("next") if after else ""
     if _no_phrase_here(line, m, run=run, before=before, nxt=nxt):
         return []
-    attributive = (bool(nxt) and nxt[0].isalpha() and nxt.lower() not in _FUNCTION_WORDS
-                   and not _POSTPOSITIVE_RE.search(nxt))
+    attributive = _attributive(nxt)
     out: list[_Use] = []
     cuts = [0, *(x for sep in _SPLIT_RE.finditer(run) for x in (sep.start(), sep.end())), len(run)]
     pieces = [(cuts[i], run[cuts[i]:cuts[i + 1]]) for i in range(0, len(cuts), 2)]
