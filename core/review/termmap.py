@@ -260,6 +260,14 @@ _NAME_JOINERS = frozenset("of and for the in on to".split())
 _POSSESSIVE_END = ("'s", "\u2019s", "'", "\u2019")
 
 
+def _without_possessive(word: str) -> str:
+    """*word* without its possessive ending ("Licensor's" -> "Licensor")."""
+    for end in _POSSESSIVE_END:
+        if word.endswith(end) and len(word) > len(end):
+            return word[: -len(end)]
+    return word
+
+
 def _name_words(words: Sequence[str], *, lone_word: bool = False) -> str | None:
     """*words* (a replaced run of one side) as a name, or None when they cannot be one: a
     capitalised name of up to :data:`MAX_NAME_WORDS` words ("Licensor", "Statement of
@@ -269,12 +277,7 @@ def _name_words(words: Sequence[str], *, lone_word: bool = False) -> str | None:
     word is dropped."""
     if not words or len(words) > MAX_NAME_WORDS:
         return None
-    last = words[-1]
-    for end in _POSSESSIVE_END:
-        if last.endswith(end) and len(last) > len(end):
-            last = last[: -len(end)]
-            break
-    ws = [*words[:-1], last]
+    ws = [*words[:-1], _without_possessive(words[-1])]
     if any(not w.replace("-", "").isalpha() or len(w) < 2 for w in ws):
         return None  # figures, apostrophes inside, punctuation, a variant letter ("-P", "-W")
     caps = [w[:1].isupper() for w in ws]
