@@ -595,6 +595,14 @@ def _candidates(draft: DocInfo, precedent: DocInfo, uses: tuple[Mapping[str, int
     return rows, cols
 
 
+def _proposed_names(pairs: Iterable[tuple[str, str]]) -> dict[str, list[str]]:
+    """The precedent names proposed for each draft name by (draft, precedent) *pairs*, in order."""
+    by_row: dict[str, list[str]] = {}
+    for dn, pn in pairs:
+        by_row.setdefault(dn, []).append(pn)
+    return by_row
+
+
 def _assign(rows: Sequence[str], cols: Sequence[str], ev: _Evidence, draft: DocInfo,
             precedent: DocInfo, rejected: set[tuple[str, str | None]],
             renames: Mapping[tuple[str, str], Rename]) -> dict[str, tuple[str, float, tuple[Evidence, ...]]]:
@@ -602,11 +610,7 @@ def _assign(rows: Sequence[str], cols: Sequence[str], ev: _Evidence, draft: DocI
     col_of = {n: c for c, n in enumerate(cols)}
     weight = [[0.0] * len(cols) for _ in rows]
     evidence: dict[tuple[str, str], dict[str, float]] = {}
-    by_row: dict[str, list[str]] = {}
-    for dn, pn in renames:
-        by_row.setdefault(dn, []).append(pn)
-    for dn, pn in ev.subs:
-        by_row.setdefault(dn, []).append(pn)
+    by_row = _proposed_names([*renames, *ev.subs])
     pdefined = [n for n in cols if n in precedent.definitions]
     for r, dn in enumerate(rows):
         pool = pdefined if dn in draft.definitions else []
