@@ -637,6 +637,17 @@ def _assign(rows: Sequence[str], cols: Sequence[str], ev: _Evidence, draft: DocI
 _EVIDENCE_ORDER: tuple[Evidence, ...] = ("definition", "substitution", "embedding")
 
 
+def _user_choices(forced: Mapping[str, tuple[str, str]],
+                  ev: _Evidence) -> dict[str, tuple[str, float, tuple[Evidence, ...]]]:
+    """The pairs the user forced, at full confidence, with the evidence found for them."""
+    out: dict[str, tuple[str, float, tuple[Evidence, ...]]] = {}
+    for dn, (pn, _action) in forced.items():
+        prior = ev.scores(dn, pn) if dn in ev.dwords and pn in ev.pwords else {}
+        kinds = tuple(k for k in _EVIDENCE_ORDER if k in prior)
+        out[dn] = (pn, 1.0, kinds + ("user",))
+    return out
+
+
 def map_terms(draft: DocInfo, precedent: DocInfo, *, overrides: Sequence[TermOverride] = (),
               vocabulary: VocabularyModel | None = None,
               substitutions: Mapping[tuple[str, str], int] | None = None,
@@ -661,10 +672,7 @@ def map_terms(draft: DocInfo, precedent: DocInfo, *, overrides: Sequence[TermOve
     ev = _Evidence(draft, precedent, vocabulary=vocabulary, substitutions=substitutions or {},
                    renames=usable, rows=rows, cols=cols)
     chosen = _assign(rows, cols, ev, draft, precedent, rejected, usable)
-    for dn, (pn, _action) in forced.items():
-        prior = ev.scores(dn, pn) if dn in ev.dwords and pn in ev.pwords else {}
-        kinds = tuple(k for k in _EVIDENCE_ORDER if k in prior)
-        chosen[dn] = (pn, 1.0, kinds + ("user",))
+    chosen.update(_user_choices(forced, ev))
 
     all_names = tuple(dict.fromkeys([*draft.all_names, *precedent.all_names, *forced.keys(),
                                      *(p for p, _a in forced.values()), *(n for dn in chosen for n in
