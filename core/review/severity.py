@@ -576,6 +576,22 @@ def _bare(q: Quantity) -> str:
     return q.display().rsplit(" ", len(q.unit.split()))[0]
 
 
+def _change_reason(kind: str, a: Quantity, b: Quantity) -> str:
+    """The words for a figure of *kind* changed from *a* to *b*."""
+    label = {"amount": "amount", "percentage": "percentage", "duration": "period",
+             "number": "figure"}[kind]
+    trend = ""
+    if a.unit == b.unit and a.value != b.value:
+        trend = " (higher)" if b.value > a.value else " (lower)"
+        if kind == "duration":
+            trend = " (longer)" if b.value > a.value else " (shorter)"
+    if kind == "duration" and a.unit != b.unit and a.value == b.value:
+        return f"{label} changed from {a.display()} to {b.display()}"
+    if kind == "duration" and a.unit == b.unit:
+        return f"{label} changed from {_bare(a)} to {_bare(b)} {a.unit}{trend}"
+    return f"{label} changed from {a.display()} to {b.display()}{trend}"
+
+
 def _figure_signals(p_text: str, p_span: tuple[int, int], d_text: str, d_span: tuple[int, int]
                     ) -> list[Signal]:
     pq = _inside([(q.start, q.end, q) for q in find_quantities(p_text, around=p_span)], p_span)
@@ -589,20 +605,7 @@ def _figure_signals(p_text: str, p_span: tuple[int, int], d_text: str, d_span: t
         for a, b in zip(o, n):
             if a.value == b.value and a.unit == b.unit:
                 continue
-            label = {"amount": "amount", "percentage": "percentage", "duration": "period",
-                     "number": "figure"}[kind]
-            trend = ""
-            if a.unit == b.unit and a.value != b.value:
-                trend = " (higher)" if b.value > a.value else " (lower)"
-                if kind == "duration":
-                    trend = " (longer)" if b.value > a.value else " (shorter)"
-            if kind == "duration" and a.unit != b.unit and a.value == b.value:
-                reason = f"{label} changed from {a.display()} to {b.display()}"
-            elif kind == "duration" and a.unit == b.unit:
-                reason = f"{label} changed from {_bare(a)} to {_bare(b)} {a.unit}{trend}"
-            else:
-                reason = f"{label} changed from {a.display()} to {b.display()}{trend}"
-            out.append(Signal("number_changed", reason))
+            out.append(Signal("number_changed", _change_reason(kind, a, b)))
         for a in o[len(n):]:
             out.append(Signal("number_removed", f"figure removed: {a.display()}"))
         for b in n[len(o):]:
