@@ -520,6 +520,40 @@ def _candidate_uses(texts: _Texts) -> list[_Use]:
     return out
 
 
+def _no_phrase_here(line: str, m: re.Match[str], *, run: str, before: str, nxt: str) -> bool:
+    """Whether the capitalised *run* (after the word *before*, before the word *nxt*) is
+    part of a title or a designation, a verb or a quoted or abbreviated name."""
+    if _TITLE_AFTER_RE.match(line, m.end()):
+        return True  # one name of a title's list: "the Copyright, Designs and Patents Act 1988"
+    if _DESIGNATION_RE.match(nxt) or (run.endswith("Copyright") and _NOTICE_RE.match(line, m.end())):
+        return True  # "Product X", "Schedule 2", "Copyright (C) 2002"
+    if before == "to" and nxt.lower() in _FUNCTION_WORDS and " " not in run:
+        return True  # a verb: "to Use the Software"
+    # a title quoted ("entitled Restrictions"), a name abbreviated ("Defense ("DFARS")")
+    return before in _TITLE_CUE_WORDS or bool(_ABBREVIATED_RE.match(line, m.end()))
+
+
+def _piece_words(words: list[str], determiner: str | None) -> tuple[str | None, list[str]]:
+    """The determiner and the capitalised words of one piece of a run: leading function
+    words become the determiner ("by Your Modifications": the phrase is "Modifications"),
+    trailing words in lower case are dropped."""
+    lead = 0
+    while lead < len(words) and words[lead].lower() in _FUNCTION_WORDS:
+        determiner = words[lead].lower()
+        lead += 1
+    rest = words[lead:]
+    while rest and not rest[-1][:1].isupper():
+        rest.pop()
+    return determiner, rest
+
+
+def _attributive(nxt: str) -> bool:
+    """Whether a run followed by the word *nxt* qualifies it ("Software License"): a word,
+    not a function word nor one written after its noun."""
+    return (bool(nxt) and nxt[0].isalpha() and nxt.lower() not in _FUNCTION_WORDS
+            and not _POSTPOSITIVE_RE.search(nxt))
+
+
 def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: CheckPart, offset: int) -> list[_Use]:
     """The phrases of one run of capitalised words (parted at "and" / "or"), unless the run
     is a title, starts a sentence or is a verb ("to Preserve its Title")."""
@@ -532,29 +566,15 @@ def _uses_in_run(line: str, m: re.Match[str], prov: Provision, part: CheckPart, 
         return []  # the start of a sentence, a line, a list item or a list of names
     after = _AFTER_RE.match(line, m.end())
     nxt = after.group("next") if after else ""
-    if _TITLE_AFTER_RE.match(line, m.end()):
-        return []  # one name of a title's list: "the Copyright, Designs and Patents Act 1988"
-    if _DESIGNATION_RE.match(nxt) or (run.endswith("Copyright") and _NOTICE_RE.match(line, m.end())):
-        return []  # "Product X", "Schedule 2", "Copyright (C) 2002"
-    if before == "to" and nxt.lower() in _FUNCTION_WORDS and " " not in run:
-        return []  # a verb: "to Use the Software"
-    if before in _TITLE_CUE_WORDS or _ABBREVIATED_RE.match(line, m.end()):
-        return []  # a title quoted ("entitled Restrictions"), a name abbreviated ("Defense ("DFARS")")
-    attributive = (bool(nxt) and nxt[0].isalpha() and nxt.lower() not in _FUNCTION_WORDS
-                   and not _POSTPOSITIVE_RE.search(nxt))
+    if _no_phrase_here(line, m, run=run, before=before, nxt=nxt):
+        return []
+    attributive = _attributive(nxt)
     out: list[_Use] = []
     cuts = [0, *(x for sep in _SPLIT_RE.finditer(run) for x in (sep.start(), sep.end())), len(run)]
     pieces = [(cuts[i], run[cuts[i]:cuts[i + 1]]) for i in range(0, len(cuts), 2)]
     determiner: str | None = before
     for k, (piece_start, piece) in enumerate(pieces):
-        words = piece.split()
-        lead = 0
-        while lead < len(words) and words[lead].lower() in _FUNCTION_WORDS:
-            determiner = words[lead].lower()  # "by Your Modifications": the phrase is "Modifications"
-            lead += 1
-        rest = words[lead:]
-        while rest and not rest[-1][:1].isupper():
-            rest.pop()
+        determiner, rest = _piece_words(piece.split(), determiner)
         if not rest or rest[0] in _HONORIFICS:
             determiner = None
             continue
@@ -667,6 +687,46 @@ def _uses_of(doc: Document, texts: _Texts, names: Mapping[str, str]) -> dict[str
     return out
 
 
+def _foreign_undefined(doc: Document, texts: _Texts, *, own: Sequence[str], foreign: Iterable[str],
+                       document: CheckDocument) -> list[Check]:
+    """The checks of the precedent's terms that *doc* uses capitalised without defining them
+    (in the middle of a sentence at least once, or a name of several words)."""
+    own_keys = {_word_key(n) for n in own}
+    missing = {n: n for n in foreign if _word_key(n) not in own_keys and n[:1].isupper()
+               and n not in _FUNCTION_WORDS_CAPITALISED}
+    return [_undefined_check(uses, document=document, term=term,
+                             why="is defined in the precedent but not in this document")
+            for term, uses in _uses_of(doc, texts, missing).items()
+            if any(u.common for u in uses) or " " in term]
+
+
+def _looks_defined(uses: Sequence[_Use], words: Sequence[str], lower: set[str]) -> bool:
+    """Whether the capitalised *uses* (their capitalised *words*) read like a defined term:
+    not only attributive, and determined ("the ...") with several words, a common-noun
+    ending or a common noun, or capitalised in the middle of a sentence."""
+    if all(u.attributive for u in uses):
+        return False
+    determined = any(u.determined for u in uses)
+    return ((len(words) > 1 and determined)
+            or (determined and bool(_COMMON_NOUN_END_RE.search(words[0])))
+            or (determined and _common_noun(uses[0].phrase, lower))
+            or any(u.common for u in uses))
+
+
+def _unknown_uses(texts: _Texts, known_parts: _NameParts,
+                  reported: set[tuple[str, ...]]) -> dict[tuple[str, ...], list[_Use]]:
+    """The capitalised candidate uses of *texts* by word key, leaving out the phrases already
+    *reported* and those that overlap a known name or are excluded."""
+    found: dict[tuple[str, ...], list[_Use]] = {}
+    for use in _candidate_uses(texts):
+        key = _word_key(use.phrase)
+        joined = _word_key(_DASH_RE.sub("", use.phrase))
+        if key in reported or known_parts.overlaps(key) or known_parts.overlaps(joined) or _excluded(use.phrase):
+            continue
+        found.setdefault(key, []).append(use)
+    return found
+
+
 def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iterable[str] = (),
                     document: CheckDocument = "draft") -> tuple[Check, ...]:
     """The undefined-term checks of *doc* (see the module's notes).
@@ -680,36 +740,18 @@ def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iter
     marked = _marked_names(t for _p, _k, t in texts.parts)
     known_parts = _NameParts(_word_key(m) for n in [*own, *marked] if n.strip()
                              for m in (n, _DASH_RE.sub("", n)))
-    out: list[Check] = []
-    own_keys = {_word_key(n) for n in own}
-    missing = {n: n for n in foreign if _word_key(n) not in own_keys and n[:1].isupper()
-               and n not in _FUNCTION_WORDS_CAPITALISED}
-    reported: set[tuple[str, ...]] = set()
-    for term, uses in _uses_of(doc, texts, missing).items():
-        if any(u.common for u in uses) or " " in term:
-            out.append(_undefined_check(uses, document=document, term=term,
-                                        why="is defined in the precedent but not in this document"))
-            reported.add(_word_key(term))
+    out = _foreign_undefined(doc, texts, own=own, foreign=foreign, document=document)
+    reported = {_word_key(c.term or "") for c in out}
     if not _english(texts):
         return tuple(out)
     lower = _lower_words(t for _p, _k, t in texts.parts)
-    found: dict[tuple[str, ...], list[_Use]] = {}
-    for use in _candidate_uses(texts):
-        key = _word_key(use.phrase)
-        joined = _word_key(_DASH_RE.sub("", use.phrase))
-        if key in reported or known_parts.overlaps(key) or known_parts.overlaps(joined) or _excluded(use.phrase):
-            continue
-        found.setdefault(key, []).append(use)
+    found = _unknown_uses(texts, known_parts, reported)
     brand = _brand_words(texts, lower)
     for uses in found.values():
         words = [w for w in uses[0].phrase.split() if w[:1].isupper()]
         if any(w in brand for w in words):
             continue  # "the Java Platform": "Java" names a product elsewhere in the document
-        determined = any(u.determined for u in uses)
-        if not ((len(words) > 1 and determined and not all(u.attributive for u in uses))
-                or (determined and _COMMON_NOUN_END_RE.search(words[0]) and not all(u.attributive for u in uses))
-                or (not all(u.attributive for u in uses)
-                    and ((determined and _common_noun(uses[0].phrase, lower)) or any(u.common for u in uses)))):
+        if not _looks_defined(uses, words, lower):
             continue
         out.append(_undefined_check(uses, document=document, term=uses[0].phrase,
                                     why="is capitalised like a defined term but defined nowhere in the document"))
@@ -766,6 +808,25 @@ def _use_name(name: str) -> str:
     return " ".join(words[1:]) if len(words) > 1 and words[0].casefold() == "to" else name
 
 
+def _use_lookup(doc: Document) -> dict[str, set[str]]:
+    """The defined terms of *doc* by each folded form of their names that counts as a use."""
+    lookup: dict[str, set[str]] = {}
+    for t in doc.terms:
+        for n in _written_names(t):
+            n = _use_name(n)
+            for f in [*term_forms(" ".join(n.split())), *_verb_forms(n)]:
+                lookup.setdefault(_fold(f), set()).add(t.term)
+    return lookup
+
+
+def _never_reported_unused(t: DefinedTerm, doc: Document) -> bool:
+    """Whether *t* is a definition the unused check leaves alone: not capitalised, defined by
+    reference, no name, an abbreviation, another instrument's term or an alternative word."""
+    return bool(not t.term[:1].isupper() or _BY_REFERENCE_RE.search(t.definition or "")
+                or _NOT_A_NAME_RE.search(t.term) or _abbreviation(t, doc) or _other_instrument_term(t)
+                or _alternative_word(t))
+
+
 def unused_definitions(doc: Document, *, document: CheckDocument = "draft") -> tuple[Check, ...]:
     """Defined terms that *doc* never uses outside their definitions.
 
@@ -776,12 +837,7 @@ def unused_definitions(doc: Document, *, document: CheckDocument = "draft") -> t
     case ("AGREEMENT" in a notice in capitals, "Agreement") share their uses."""
     if not doc.terms:
         return ()
-    lookup: dict[str, set[str]] = {}
-    for t in doc.terms:
-        for n in _written_names(t):
-            n = _use_name(n)
-            for f in [*term_forms(" ".join(n.split())), *_verb_forms(n)]:
-                lookup.setdefault(_fold(f), set()).add(t.term)
+    lookup = _use_lookup(doc)
     find = _folded_finder(lookup)
     areas = {t.term: _definition_area(doc, t) for t in doc.terms}
     defining_seen: set[str] = set()
@@ -802,9 +858,7 @@ def unused_definitions(doc: Document, *, document: CheckDocument = "draft") -> t
                 used.add(term)
     out = []
     for t in doc.terms:
-        if (t.term in used or not t.term[:1].isupper() or _BY_REFERENCE_RE.search(t.definition or "")
-                or _NOT_A_NAME_RE.search(t.term) or _abbreviation(t, doc) or _other_instrument_term(t)
-                or _alternative_word(t)):
+        if t.term in used or _never_reported_unused(t, doc):
             continue
         pid, span = areas[t.term]
         defining = _provision(doc, pid)

@@ -480,15 +480,21 @@ def find_parties(draft: Document, precedent: Document, term_map: Sequence[TermMa
     # among the parties the precedent defines, then among all
     defined = {t.term for t in precedent.terms}
     for group in ([n for n in names if n in defined], list(names)):
-        known = {side[n] for n in group if side[n]}
-        unknown = [n for n in group if side[n] is None]
-        if unknown and len(known) == 1:
-            other = "buy" if "supply" in known else "supply"
-            for n in unknown:
-                side[n] = other
-        elif len(unknown) == 2 and not known:
-            side[unknown[0]], side[unknown[1]] = "supply", "buy"
+        _fill_sides(group, side)
     return Parties(names, side, forms)
+
+
+def _fill_sides(group: Sequence[str], side: dict[str, str | None]) -> None:
+    """Give the parties of *group* whose name says no side the side no other party of the
+    group is on (in place in *side*)."""
+    known = {side[n] for n in group if side[n]}
+    unknown = [n for n in group if side[n] is None]
+    if unknown and len(known) == 1:
+        other = "buy" if "supply" in known else "supply"
+        for n in unknown:
+            side[n] = other
+    elif len(unknown) == 2 and not known:
+        side[unknown[0]], side[unknown[1]] = "supply", "buy"
 
 
 # ----------------------------------------------------------------------------------------

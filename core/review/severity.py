@@ -576,6 +576,22 @@ def _bare(q: Quantity) -> str:
     return q.display().rsplit(" ", len(q.unit.split()))[0]
 
 
+def _change_reason(kind: str, a: Quantity, b: Quantity) -> str:
+    """The words for a figure of *kind* changed from *a* to *b*."""
+    label = {"amount": "amount", "percentage": "percentage", "duration": "period",
+             "number": "figure"}[kind]
+    trend = ""
+    if a.unit == b.unit and a.value != b.value:
+        trend = " (higher)" if b.value > a.value else " (lower)"
+        if kind == "duration":
+            trend = " (longer)" if b.value > a.value else " (shorter)"
+    if kind == "duration" and a.unit != b.unit and a.value == b.value:
+        return f"{label} changed from {a.display()} to {b.display()}"
+    if kind == "duration" and a.unit == b.unit:
+        return f"{label} changed from {_bare(a)} to {_bare(b)} {a.unit}{trend}"
+    return f"{label} changed from {a.display()} to {b.display()}{trend}"
+
+
 def _figure_signals(p_text: str, p_span: tuple[int, int], d_text: str, d_span: tuple[int, int]
                     ) -> list[Signal]:
     pq = _inside([(q.start, q.end, q) for q in find_quantities(p_text, around=p_span)], p_span)
@@ -589,20 +605,7 @@ def _figure_signals(p_text: str, p_span: tuple[int, int], d_text: str, d_span: t
         for a, b in zip(o, n):
             if a.value == b.value and a.unit == b.unit:
                 continue
-            label = {"amount": "amount", "percentage": "percentage", "duration": "period",
-                     "number": "figure"}[kind]
-            trend = ""
-            if a.unit == b.unit and a.value != b.value:
-                trend = " (higher)" if b.value > a.value else " (lower)"
-                if kind == "duration":
-                    trend = " (longer)" if b.value > a.value else " (shorter)"
-            if kind == "duration" and a.unit != b.unit and a.value == b.value:
-                reason = f"{label} changed from {a.display()} to {b.display()}"
-            elif kind == "duration" and a.unit == b.unit:
-                reason = f"{label} changed from {_bare(a)} to {_bare(b)} {a.unit}{trend}"
-            else:
-                reason = f"{label} changed from {a.display()} to {b.display()}{trend}"
-            out.append(Signal("number_changed", reason))
+            out.append(Signal("number_changed", _change_reason(kind, a, b)))
         for a in o[len(n):]:
             out.append(Signal("number_removed", f"figure removed: {a.display()}"))
         for b in n[len(o):]:
@@ -610,16 +613,24 @@ def _figure_signals(p_text: str, p_span: tuple[int, int], d_text: str, d_span: t
     return out
 
 
+def _obligation_words(rules: SeverityRules, text: str, span: Span) -> list[str]:
+    """The obligation words of *text* inside *span*, in order."""
+    return [m[2] for m in _inside(_matches(rules, "obligation", text).near(span), span)]
+
+
+def _by_strength(words: Sequence[str], strong: set[str]) -> tuple[list[str], list[str]]:
+    """*words* parted into the strong ones and the others, each in order."""
+    return [w for w in words if w in strong], [w for w in words if w not in strong]
+
+
 def _obligation_signals(rules: SeverityRules, p_text: str, p_span: Span, d_text: str, d_span: Span) -> list[Signal]:
     strong = set(rules.strong)
-    po = [m[2] for m in _inside(_matches(rules, "obligation", p_text).near(p_span), p_span)]
-    do = [m[2] for m in _inside(_matches(rules, "obligation", d_text).near(d_span), d_span)]
+    po = _obligation_words(rules, p_text, p_span)
+    do = _obligation_words(rules, d_text, d_span)
     if po == do:
         return []
-    ps = [w for w in po if w in strong]
-    pw = [w for w in po if w not in strong]
-    ds = [w for w in do if w in strong]
-    dw = [w for w in do if w not in strong]
+    ps, pw = _by_strength(po, strong)
+    ds, dw = _by_strength(do, strong)
     if ps and dw and not ds:
         return [Signal("obligation_weakened", f"obligation weakened from {_quote(ps[0])} to {_quote(dw[0])}")]
     if pw and ds and not dw:

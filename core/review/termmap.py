@@ -260,6 +260,14 @@ _NAME_JOINERS = frozenset("of and for the in on to".split())
 _POSSESSIVE_END = ("'s", "\u2019s", "'", "\u2019")
 
 
+def _without_possessive(word: str) -> str:
+    """*word* without its possessive ending ("Licensor's" -> "Licensor")."""
+    for end in _POSSESSIVE_END:
+        if word.endswith(end) and len(word) > len(end):
+            return word[: -len(end)]
+    return word
+
+
 def _name_words(words: Sequence[str], *, lone_word: bool = False) -> str | None:
     """*words* (a replaced run of one side) as a name, or None when they cannot be one: a
     capitalised name of up to :data:`MAX_NAME_WORDS` words ("Licensor", "Statement of
@@ -269,12 +277,7 @@ def _name_words(words: Sequence[str], *, lone_word: bool = False) -> str | None:
     word is dropped."""
     if not words or len(words) > MAX_NAME_WORDS:
         return None
-    last = words[-1]
-    for end in _POSSESSIVE_END:
-        if last.endswith(end) and len(last) > len(end):
-            last = last[: -len(end)]
-            break
-    ws = [*words[:-1], last]
+    ws = [*words[:-1], _without_possessive(words[-1])]
     if any(not w.replace("-", "").isalpha() or len(w) < 2 for w in ws):
         return None  # figures, apostrophes inside, punctuation, a variant letter ("-P", "-W")
     caps = [w[:1].isupper() for w in ws]
@@ -592,6 +595,14 @@ def _candidates(draft: DocInfo, precedent: DocInfo, uses: tuple[Mapping[str, int
     return rows, cols
 
 
+def _proposed_names(pairs: Iterable[tuple[str, str]]) -> dict[str, list[str]]:
+    """The precedent names proposed for each draft name by (draft, precedent) *pairs*, in order."""
+    by_row: dict[str, list[str]] = {}
+    for dn, pn in pairs:
+        by_row.setdefault(dn, []).append(pn)
+    return by_row
+
+
 def _assign(rows: Sequence[str], cols: Sequence[str], ev: _Evidence, draft: DocInfo,
             precedent: DocInfo, rejected: set[tuple[str, str | None]],
             renames: Mapping[tuple[str, str], Rename]) -> dict[str, tuple[str, float, tuple[Evidence, ...]]]:
@@ -599,11 +610,7 @@ def _assign(rows: Sequence[str], cols: Sequence[str], ev: _Evidence, draft: DocI
     col_of = {n: c for c, n in enumerate(cols)}
     weight = [[0.0] * len(cols) for _ in rows]
     evidence: dict[tuple[str, str], dict[str, float]] = {}
-    by_row: dict[str, list[str]] = {}
-    for dn, pn in renames:
-        by_row.setdefault(dn, []).append(pn)
-    for dn, pn in ev.subs:
-        by_row.setdefault(dn, []).append(pn)
+    by_row = _proposed_names([*renames, *ev.subs])
     pdefined = [n for n in cols if n in precedent.definitions]
     for r, dn in enumerate(rows):
         pool = pdefined if dn in draft.definitions else []
@@ -630,6 +637,17 @@ def _assign(rows: Sequence[str], cols: Sequence[str], ev: _Evidence, draft: DocI
 _EVIDENCE_ORDER: tuple[Evidence, ...] = ("definition", "substitution", "embedding")
 
 
+def _user_choices(forced: Mapping[str, tuple[str, str]],
+                  ev: _Evidence) -> dict[str, tuple[str, float, tuple[Evidence, ...]]]:
+    """The pairs the user forced, at full confidence, with the evidence found for them."""
+    out: dict[str, tuple[str, float, tuple[Evidence, ...]]] = {}
+    for dn, (pn, _action) in forced.items():
+        prior = ev.scores(dn, pn) if dn in ev.dwords and pn in ev.pwords else {}
+        kinds = tuple(k for k in _EVIDENCE_ORDER if k in prior)
+        out[dn] = (pn, 1.0, kinds + ("user",))
+    return out
+
+
 def map_terms(draft: DocInfo, precedent: DocInfo, *, overrides: Sequence[TermOverride] = (),
               vocabulary: VocabularyModel | None = None,
               substitutions: Mapping[tuple[str, str], int] | None = None,
@@ -654,10 +672,7 @@ def map_terms(draft: DocInfo, precedent: DocInfo, *, overrides: Sequence[TermOve
     ev = _Evidence(draft, precedent, vocabulary=vocabulary, substitutions=substitutions or {},
                    renames=usable, rows=rows, cols=cols)
     chosen = _assign(rows, cols, ev, draft, precedent, rejected, usable)
-    for dn, (pn, _action) in forced.items():
-        prior = ev.scores(dn, pn) if dn in ev.dwords and pn in ev.pwords else {}
-        kinds = tuple(k for k in _EVIDENCE_ORDER if k in prior)
-        chosen[dn] = (pn, 1.0, kinds + ("user",))
+    chosen.update(_user_choices(forced, ev))
 
     all_names = tuple(dict.fromkeys([*draft.all_names, *precedent.all_names, *forced.keys(),
                                      *(p for p, _a in forced.values()), *(n for dn in chosen for n in
