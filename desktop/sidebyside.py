@@ -475,48 +475,40 @@ class SideBySideView(QWidget):
         assert review is not None
         pair = self.model.pair(row)
         side = "precedent" if column == PairRowsModel.PRECEDENT else "draft"
-        pid = pair.precedent if side == "precedent" else pair.draft
-        prov = None
-        if pid is not None:
-            prov = find_provision(review.precedent if side == "precedent" else review.draft, pid)
-        other_pid = pair.draft if side == "precedent" else pair.precedent
-        other = None
-        if other_pid is not None:
-            other = find_provision(review.draft if side == "precedent" else review.precedent, other_pid)
+        prov, other = _side_provisions(review, pair, side=side)
         pm, dm = self.side_marks(row) if prov is not None else ([], [])
-        note = ""
-        if side == "draft":
-            if pair.status == "moved" and other is not None:
-                note = f"moved from precedent {other.number or provision_caption(other)}"
-            elif pair.status == "added":
-                note = "Added in the draft"
-            elif pair.status in ("split", "merged"):
-                note = STATUS_NAMES[pair.status]
-        elif pair.status == "removed":
-            note = "Taken out of the draft"
         number_changed = bool(
             self._display.numbering and prov is not None and other is not None
             and (prov.number or "") != (other.number or "")
         )
-        if prov is not None and self._focus_row == row and self._focus is not None and not (
-            self._focus.precedent_span or self._focus.draft_span
-        ):
-            whole = {"add-provision": mk.INSERTED, "remove-provision": mk.DELETED}.get(self._focus.change)
-            if whole is not None:
-                (pm if side == "precedent" else dm).append(mk.Mark(0, len(prov.text), mk.FOCUS))
-        if prov is not None and pair.status == "added" and side == "draft":
-            dm = dm + [mk.Mark(0, len(prov.text), mk.INSERTED)]
-        if prov is not None and pair.status == "removed" and side == "precedent":
-            pm = pm + [mk.Mark(0, len(prov.text), mk.DELETED)]
+        text_marks = pm if side == "precedent" else dm
+        if prov is not None:
+            text_marks = text_marks + self._whole_provision_marks(
+                row, side=side, status=pair.status, length=len(prov.text))
         return cell_document(
             prov,
-            text_marks=pm if side == "precedent" else dm,
-            caption_note=note,
+            text_marks=text_marks,
+            caption_note=_caption_note(side=side, status=pair.status, other=other),
             number_changed=number_changed,
             side=side,
             font=self.text_font,
             width=width,
         )
+
+    def _whole_provision_marks(self, row: int, *, side: str, status: str, length: int) -> list[mk.Mark]:
+        """Marks over a whole provision of *length* characters on *side*: the focus when the
+        focused deviation adds or removes the provision, then the insertion of an added
+        provision or the deletion of a removed one."""
+        out: list[mk.Mark] = []
+        f = self._focus
+        if (self._focus_row == row and f is not None and not (f.precedent_span or f.draft_span)
+                and f.change in ("add-provision", "remove-provision")):
+            out.append(mk.Mark(0, length, mk.FOCUS))
+        if status == "added" and side == "draft":
+            out.append(mk.Mark(0, length, mk.INSERTED))
+        if status == "removed" and side == "precedent":
+            out.append(mk.Mark(0, length, mk.DELETED))
+        return out
 
     # -- internals ------------------------------------------------------------------------
     def _column_resized(self, *_: Any) -> None:
@@ -525,6 +517,30 @@ class SideBySideView(QWidget):
     def _relayout(self) -> None:
         self.table.resizeRowsToContents()
         self.table.viewport().update()
+
+
+def _side_provisions(review: Review, pair: Pair, *,
+                     side: str) -> tuple[Provision | None, Provision | None]:
+    """(the provision of *pair* on *side*, its counterpart on the other side), each None when absent."""
+    mine, theirs = (review.precedent, review.draft) if side == "precedent" else (review.draft, review.precedent)
+    pid, other_pid = (pair.precedent, pair.draft) if side == "precedent" else (pair.draft, pair.precedent)
+    prov = find_provision(mine, pid) if pid is not None else None
+    other = find_provision(theirs, other_pid) if other_pid is not None else None
+    return prov, other
+
+
+def _caption_note(*, side: str, status: str, other: Provision | None) -> str:
+    """The note beside a cell's caption: where a draft provision came from, or that it was
+    added or taken out; empty otherwise."""
+    if side == "draft":
+        if status == "moved" and other is not None:
+            return f"moved from precedent {other.number or provision_caption(other)}"
+        if status == "added":
+            return "Added in the draft"
+        if status in ("split", "merged"):
+            return STATUS_NAMES[status]
+        return ""
+    return "Taken out of the draft" if status == "removed" else ""
 
 
 def _title_html(role: str, who: str, name: str) -> str:
