@@ -18,7 +18,7 @@ The marks come from the engine (word-diff hunks, deviation spans, the term map) 
 
 from __future__ import annotations
 
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterable, Sequence
 from typing import Any
 
 from PySide6.QtCore import QModelIndex, QPersistentModelIndex, QRect, QRectF, QSize, Qt, QTimer, Signal
@@ -431,17 +431,13 @@ class SideBySideView(QWidget):
         pair = self.model.pair(row)
         if pair.draft is None or pair.precedent is None:
             return [], []
-        edits = self._edit_cache.get(row)
-        if edits is None:
-            edits = tuple(self._edits(review, pair)) if self._edits is not None else pair.edits
-            self._edit_cache[row] = edits
+        edits = self._row_edits(review, row, pair)
+        devs = self._by_row.get(row, ())
         pm, dm = mk.edit_marks(edits)
         if not edits:  # no word diff available: fall back on the deviations' own spans
-            for d in self._by_row.get(row, ()):
-                if d.precedent_span:
-                    pm.append(mk.Mark(*d.precedent_span, mk.DELETED))
-                if d.draft_span:
-                    dm.append(mk.Mark(*d.draft_span, mk.INSERTED))
+            ps, ds = _spans_of(devs)
+            pm += [mk.Mark(*sp, mk.DELETED) for sp in ps]
+            dm += [mk.Mark(*sp, mk.INSERTED) for sp in ds]
         shown = self._display.shown_categories()
         # provisions by id from an index (core.labels), not a search of the document per cell
         p_text = find_provision(review.precedent, pair.precedent).text  # type: ignore[union-attr]
@@ -450,25 +446,26 @@ class SideBySideView(QWidget):
         d_terms = mk.term_marks(d_text, [t.draft for t in review.term_map])
         # A hunk that is only a renamed defined term is shown as a term, not as an edit (the
         # engine's diff gives each such use a hunk of its own: core.model's invariants).
-        p_hidden: list[tuple[int, int]] = [(m.start, m.end) for m in p_terms]
-        d_hidden: list[tuple[int, int]] = [(m.start, m.end) for m in d_terms]
-        for d in self._by_row.get(row, ()):
-            if d.category not in shown:
-                if d.precedent_span:
-                    p_hidden.append(d.precedent_span)
-                if d.draft_span:
-                    d_hidden.append(d.draft_span)
+        p_off, d_off = _spans_of(d for d in devs if d.category not in shown)
+        p_hidden = [(m.start, m.end) for m in p_terms] + p_off
+        d_hidden = [(m.start, m.end) for m in d_terms] + d_off
         if "term" not in shown:
             p_terms, d_terms = [], []
         pm = mk.without(pm, p_hidden) + p_terms
         dm = mk.without(dm, d_hidden) + d_terms
-        f = self._focus
-        if f is not None and self._focus_row == row:
-            if f.precedent_span:
-                pm.append(mk.Mark(*f.precedent_span, mk.FOCUS))
-            if f.draft_span:
-                dm.append(mk.Mark(*f.draft_span, mk.FOCUS))
+        if self._focus is not None and self._focus_row == row:
+            ps, ds = _spans_of([self._focus])
+            pm += [mk.Mark(*sp, mk.FOCUS) for sp in ps]
+            dm += [mk.Mark(*sp, mk.FOCUS) for sp in ds]
         return pm, dm
+
+    def _row_edits(self, review: Review, row: int, pair: Pair) -> Sequence[Edit]:
+        """The word edits of *row*'s pair, computed once per row and kept."""
+        edits = self._edit_cache.get(row)
+        if edits is None:
+            edits = tuple(self._edits(review, pair)) if self._edits is not None else pair.edits
+            self._edit_cache[row] = edits
+        return edits
 
     def build_cell(self, row: int, column: int, width: int) -> QTextDocument:
         review = self._review
@@ -517,6 +514,18 @@ class SideBySideView(QWidget):
     def _relayout(self) -> None:
         self.table.resizeRowsToContents()
         self.table.viewport().update()
+
+
+def _spans_of(devs: Iterable[Deviation]) -> tuple[list[tuple[int, int]], list[tuple[int, int]]]:
+    """(precedent spans, draft spans) of *devs* in their order, leaving out the absent ones."""
+    ps: list[tuple[int, int]] = []
+    ds: list[tuple[int, int]] = []
+    for d in devs:
+        if d.precedent_span:
+            ps.append(d.precedent_span)
+        if d.draft_span:
+            ds.append(d.draft_span)
+    return ps, ds
 
 
 def _side_provisions(review: Review, pair: Pair, *,
