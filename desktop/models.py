@@ -341,6 +341,21 @@ class TermTableModel(_RowsModel):
             bits.append({"confirmed": "confirmed by you", "added": "added by you"}[st])
         return ", ".join(bits)
 
+    def _display(self, row: int, col: int) -> str | None:
+        """The shown text of cell (*row*, *col*); None for a column the table does not have."""
+        m, st = self._rows[row], self._status[row]
+        if col == self.DRAFT:
+            return ("\u2713 " if st in ("confirmed", "added") else "") + m.draft
+        if col == self.PRECEDENT:
+            return m.precedent
+        if col == self.CONFIDENCE:
+            return "" if st == "rejected" else f"{round(m.confidence * 100)}%"
+        if col == self.EVIDENCE:
+            return self.evidence_text(row)
+        if col == self.USES:
+            return "" if st == "rejected" else str(m.occurrences)
+        return None
+
     def data(self, index: Index, role: int = Qt.ItemDataRole.DisplayRole) -> Any:
         if not index.isValid():
             return None
@@ -350,22 +365,13 @@ class TermTableModel(_RowsModel):
         if role == ITEM_ROLE:
             return m
         if role == Qt.ItemDataRole.DisplayRole:
-            if col == self.DRAFT:
-                return ("\u2713 " if st in ("confirmed", "added") else "") + m.draft
-            if col == self.PRECEDENT:
-                return m.precedent
-            if col == self.CONFIDENCE:
-                return "" if st == "rejected" else f"{round(m.confidence * 100)}%"
-            if col == self.EVIDENCE:
-                return self.evidence_text(index.row())
-            if col == self.USES:
-                return "" if st == "rejected" else str(m.occurrences)
+            return self._display(index.row(), col)
         if role == SORT_ROLE:
             if col == self.CONFIDENCE:
                 return m.confidence
             if col == self.USES:
                 return m.occurrences
-            return str(self.data(index, Qt.ItemDataRole.DisplayRole)).casefold()
+            return str(self._display(index.row(), col)).casefold()
         if role == BAR_ROLE:
             return m.confidence if col == self.CONFIDENCE and st != "rejected" else NO_BAR
         if role == Qt.ItemDataRole.ForegroundRole and st == "rejected":

@@ -18,7 +18,7 @@ The marks come from the engine (word-diff hunks, deviation spans, the term map) 
 
 from __future__ import annotations
 
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterable, Sequence
 from typing import Any
 
 from PySide6.QtCore import QModelIndex, QPersistentModelIndex, QRect, QRectF, QSize, Qt, QTimer, Signal
@@ -431,17 +431,13 @@ class SideBySideView(QWidget):
         pair = self.model.pair(row)
         if pair.draft is None or pair.precedent is None:
             return [], []
-        edits = self._edit_cache.get(row)
-        if edits is None:
-            edits = tuple(self._edits(review, pair)) if self._edits is not None else pair.edits
-            self._edit_cache[row] = edits
+        edits = self._row_edits(review, row, pair)
+        devs = self._by_row.get(row, ())
         pm, dm = mk.edit_marks(edits)
         if not edits:  # no word diff available: fall back on the deviations' own spans
-            for d in self._by_row.get(row, ()):
-                if d.precedent_span:
-                    pm.append(mk.Mark(*d.precedent_span, mk.DELETED))
-                if d.draft_span:
-                    dm.append(mk.Mark(*d.draft_span, mk.INSERTED))
+            ps, ds = _spans_of(devs)
+            pm += [mk.Mark(*sp, mk.DELETED) for sp in ps]
+            dm += [mk.Mark(*sp, mk.INSERTED) for sp in ds]
         shown = self._display.shown_categories()
         # provisions by id from an index (core.labels), not a search of the document per cell
         p_text = find_provision(review.precedent, pair.precedent).text  # type: ignore[union-attr]
@@ -450,73 +446,66 @@ class SideBySideView(QWidget):
         d_terms = mk.term_marks(d_text, [t.draft for t in review.term_map])
         # A hunk that is only a renamed defined term is shown as a term, not as an edit (the
         # engine's diff gives each such use a hunk of its own: core.model's invariants).
-        p_hidden: list[tuple[int, int]] = [(m.start, m.end) for m in p_terms]
-        d_hidden: list[tuple[int, int]] = [(m.start, m.end) for m in d_terms]
-        for d in self._by_row.get(row, ()):
-            if d.category not in shown:
-                if d.precedent_span:
-                    p_hidden.append(d.precedent_span)
-                if d.draft_span:
-                    d_hidden.append(d.draft_span)
+        p_off, d_off = _spans_of(d for d in devs if d.category not in shown)
+        p_hidden = [(m.start, m.end) for m in p_terms] + p_off
+        d_hidden = [(m.start, m.end) for m in d_terms] + d_off
         if "term" not in shown:
             p_terms, d_terms = [], []
         pm = mk.without(pm, p_hidden) + p_terms
         dm = mk.without(dm, d_hidden) + d_terms
-        f = self._focus
-        if f is not None and self._focus_row == row:
-            if f.precedent_span:
-                pm.append(mk.Mark(*f.precedent_span, mk.FOCUS))
-            if f.draft_span:
-                dm.append(mk.Mark(*f.draft_span, mk.FOCUS))
+        if self._focus is not None and self._focus_row == row:
+            ps, ds = _spans_of([self._focus])
+            pm += [mk.Mark(*sp, mk.FOCUS) for sp in ps]
+            dm += [mk.Mark(*sp, mk.FOCUS) for sp in ds]
         return pm, dm
+
+    def _row_edits(self, review: Review, row: int, pair: Pair) -> Sequence[Edit]:
+        """The word edits of *row*'s pair, computed once per row and kept."""
+        edits = self._edit_cache.get(row)
+        if edits is None:
+            edits = tuple(self._edits(review, pair)) if self._edits is not None else pair.edits
+            self._edit_cache[row] = edits
+        return edits
 
     def build_cell(self, row: int, column: int, width: int) -> QTextDocument:
         review = self._review
         assert review is not None
         pair = self.model.pair(row)
         side = "precedent" if column == PairRowsModel.PRECEDENT else "draft"
-        pid = pair.precedent if side == "precedent" else pair.draft
-        prov = None
-        if pid is not None:
-            prov = find_provision(review.precedent if side == "precedent" else review.draft, pid)
-        other_pid = pair.draft if side == "precedent" else pair.precedent
-        other = None
-        if other_pid is not None:
-            other = find_provision(review.draft if side == "precedent" else review.precedent, other_pid)
+        prov, other = _side_provisions(review, pair, side=side)
         pm, dm = self.side_marks(row) if prov is not None else ([], [])
-        note = ""
-        if side == "draft":
-            if pair.status == "moved" and other is not None:
-                note = f"moved from precedent {other.number or provision_caption(other)}"
-            elif pair.status == "added":
-                note = "Added in the draft"
-            elif pair.status in ("split", "merged"):
-                note = STATUS_NAMES[pair.status]
-        elif pair.status == "removed":
-            note = "Taken out of the draft"
         number_changed = bool(
             self._display.numbering and prov is not None and other is not None
             and (prov.number or "") != (other.number or "")
         )
-        if prov is not None and self._focus_row == row and self._focus is not None and not (
-            self._focus.precedent_span or self._focus.draft_span
-        ):
-            whole = {"add-provision": mk.INSERTED, "remove-provision": mk.DELETED}.get(self._focus.change)
-            if whole is not None:
-                (pm if side == "precedent" else dm).append(mk.Mark(0, len(prov.text), mk.FOCUS))
-        if prov is not None and pair.status == "added" and side == "draft":
-            dm = dm + [mk.Mark(0, len(prov.text), mk.INSERTED)]
-        if prov is not None and pair.status == "removed" and side == "precedent":
-            pm = pm + [mk.Mark(0, len(prov.text), mk.DELETED)]
+        text_marks = pm if side == "precedent" else dm
+        if prov is not None:
+            text_marks = text_marks + self._whole_provision_marks(
+                row, side=side, status=pair.status, length=len(prov.text))
         return cell_document(
             prov,
-            text_marks=pm if side == "precedent" else dm,
-            caption_note=note,
+            text_marks=text_marks,
+            caption_note=_caption_note(side=side, status=pair.status, other=other),
             number_changed=number_changed,
             side=side,
             font=self.text_font,
             width=width,
         )
+
+    def _whole_provision_marks(self, row: int, *, side: str, status: str, length: int) -> list[mk.Mark]:
+        """Marks over a whole provision of *length* characters on *side*: the focus when the
+        focused deviation adds or removes the provision, then the insertion of an added
+        provision or the deletion of a removed one."""
+        out: list[mk.Mark] = []
+        f = self._focus
+        if (self._focus_row == row and f is not None and not (f.precedent_span or f.draft_span)
+                and f.change in ("add-provision", "remove-provision")):
+            out.append(mk.Mark(0, length, mk.FOCUS))
+        if status == "added" and side == "draft":
+            out.append(mk.Mark(0, length, mk.INSERTED))
+        if status == "removed" and side == "precedent":
+            out.append(mk.Mark(0, length, mk.DELETED))
+        return out
 
     # -- internals ------------------------------------------------------------------------
     def _column_resized(self, *_: Any) -> None:
@@ -525,6 +514,42 @@ class SideBySideView(QWidget):
     def _relayout(self) -> None:
         self.table.resizeRowsToContents()
         self.table.viewport().update()
+
+
+def _spans_of(devs: Iterable[Deviation]) -> tuple[list[tuple[int, int]], list[tuple[int, int]]]:
+    """(precedent spans, draft spans) of *devs* in their order, leaving out the absent ones."""
+    ps: list[tuple[int, int]] = []
+    ds: list[tuple[int, int]] = []
+    for d in devs:
+        if d.precedent_span:
+            ps.append(d.precedent_span)
+        if d.draft_span:
+            ds.append(d.draft_span)
+    return ps, ds
+
+
+def _side_provisions(review: Review, pair: Pair, *,
+                     side: str) -> tuple[Provision | None, Provision | None]:
+    """(the provision of *pair* on *side*, its counterpart on the other side), each None when absent."""
+    mine, theirs = (review.precedent, review.draft) if side == "precedent" else (review.draft, review.precedent)
+    pid, other_pid = (pair.precedent, pair.draft) if side == "precedent" else (pair.draft, pair.precedent)
+    prov = find_provision(mine, pid) if pid is not None else None
+    other = find_provision(theirs, other_pid) if other_pid is not None else None
+    return prov, other
+
+
+def _caption_note(*, side: str, status: str, other: Provision | None) -> str:
+    """The note beside a cell's caption: where a draft provision came from, or that it was
+    added or taken out; empty otherwise."""
+    if side == "draft":
+        if status == "moved" and other is not None:
+            return f"moved from precedent {other.number or provision_caption(other)}"
+        if status == "added":
+            return "Added in the draft"
+        if status in ("split", "merged"):
+            return STATUS_NAMES[status]
+        return ""
+    return "Taken out of the draft" if status == "removed" else ""
 
 
 def _title_html(role: str, who: str, name: str) -> str:

@@ -97,6 +97,15 @@ class Hub(QObject):
     changed = Signal(object)  # Change
 
 
+def _sort_dropped(paths: list[str]) -> tuple[list[str], list[str], list[str], list[str]]:
+    """Dropped paths by kind: (folders, review files, documents, anything else), each in drop order."""
+    folders = [p for p in paths if os.path.isdir(p)]
+    reviews = [p for p in paths if p.lower().endswith(".json")]
+    docs = [p for p in paths if accepts_name(p)]
+    others = [p for p in paths if p not in folders and p not in reviews and p not in docs]
+    return folders, reviews, docs, others
+
+
 class MainWindow(QMainWindow):
     #: A review (new, re-run or reopened) is on screen.
     reviewShown = Signal()
@@ -920,10 +929,7 @@ class MainWindow(QMainWindow):
         """Route dropped paths: a folder is a precedent set, a .json a review file, a document
         goes to the side it was dropped on (left half: precedent, right half: draft) and the
         comparison starts once both sides are known; two documents at once open the chooser."""
-        folders = [p for p in paths if os.path.isdir(p)]
-        reviews = [p for p in paths if p.lower().endswith(".json")]
-        docs = [p for p in paths if accepts_name(p)]
-        others = [p for p in paths if p not in folders and p not in reviews and p not in docs]
+        folders, reviews, docs, others = _sort_dropped(paths)
         if others:
             self._fail(engine.unsupported_file(others[0]))
             return
@@ -939,20 +945,25 @@ class MainWindow(QMainWindow):
         if len(docs) >= 2:
             self.show_open_dialog(draft=docs[0], precedent=docs[1], library=lib or "")
             return
-        if not docs:
-            return
+        if docs:
+            self._take_dropped_document(docs[0], side=side, library=lib)
+
+    def _take_dropped_document(self, doc: str, *, side: str | None, library: str | None) -> None:
+        """One dropped document: remember it for its side, and start the comparison once the
+        other side is known too (pending or already open); else say what to drop next."""
+        cur = self.ws.inputs
         which = side or ("precedent" if self._pending_docs["draft"] and not self._pending_docs["precedent"]
                          else "draft")
-        self._pending_docs[which] = docs[0]
+        self._pending_docs[which] = doc
         draft = self._pending_docs["draft"] or (cur.draft if cur else "")
         precedent = self._pending_docs["precedent"] or (cur.precedent if cur else "")
         if draft and precedent:
             self._pending_docs = {"draft": "", "precedent": ""}
-            self.open_comparison(draft, precedent, library=lib)
+            self.open_comparison(draft, precedent, library=library)
             return
         other = "draft" if which == "precedent" else "precedent"
         half = "right" if other == "draft" else "left"
-        self._status(f"{which.capitalize()}: {Path(docs[0]).name}. Now drop the {other} on the {half} half "
+        self._status(f"{which.capitalize()}: {Path(doc).name}. Now drop the {other} on the {half} half "
                      "of the window, or use Compare\u2026")
 
     # ======================================================================================

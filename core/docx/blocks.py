@@ -470,45 +470,56 @@ class _Emphasis:
     all_caps: bool
 
 
-def _emphasis(text: str, pieces: list[TextPiece], emph: list[bool], caps: list[bool]) -> _Emphasis:
-    """Lead / emphasised / all-caps of a paragraph from its pieces.  O(pieces)."""
-    n = len(pieces)
-    # Skip a plain literal label before the first emphasised piece.
-    start = 0
-    offset = 0
-    first_emph = next((i for i in range(n) if emph[i] and pieces[i].text.strip()), None)
-    if first_emph is not None and first_emph > 0:
-        prefix_len = sum(len(pieces[i].text) for i in range(first_emph))
-        prefix = text[:prefix_len]
-        if not prefix.strip() or (_LITERAL_LABEL.match(prefix) and "\n" not in prefix):
-            start = first_emph
-            offset = prefix_len
-    # all_caps: every piece with letters is shown in capitals.
+def _label_skip(text: str, pieces: list[TextPiece], emph: list[bool]) -> tuple[int, int]:
+    """(first piece, its offset in *text*) after a plain literal label, or only blanks,
+    before the first emphasised piece; (0, 0) when there is none to skip."""
+    first_emph = next((i for i in range(len(pieces)) if emph[i] and pieces[i].text.strip()), None)
+    if first_emph is None or first_emph == 0:
+        return 0, 0
+    prefix_len = sum(len(pieces[i].text) for i in range(first_emph))
+    prefix = text[:prefix_len]
+    if not prefix.strip() or (_LITERAL_LABEL.match(prefix) and "\n" not in prefix):
+        return first_emph, prefix_len
+    return 0, 0
+
+
+def _all_caps(pieces: list[TextPiece], caps: list[bool], start: int) -> bool:
+    """True when some piece from *start* on has letters and every such piece shows in capitals."""
     letters = False
-    all_caps = True
-    for i in range(start, n):
+    for i in range(start, len(pieces)):
         t = pieces[i].text
         if any(ch.isalpha() for ch in t):
             letters = True
             if not (caps[i] or t == t.upper()):
-                all_caps = False
-                break
-    all_caps = all_caps and letters
+                return False
+    return letters
 
+
+def _emphasis_run(pieces: list[TextPiece], emph: list[bool], start: int,
+                  offset: int) -> tuple[int | None, int | None]:
+    """(end of the emphasised run from piece *start*, where the plain text after it starts),
+    as offsets in the paragraph's text; None for a part that is not there."""
     lead_end = None
-    cont = None
     pos = offset
-    for i in range(start, n):
+    for i in range(start, len(pieces)):
         t = pieces[i].text
         if not t.strip():
             pos += len(t)
             continue
-        if emph[i]:
-            pos += len(t)
-            lead_end = pos
-        else:
-            cont = pos
-            break
+        if not emph[i]:
+            return lead_end, pos
+        pos += len(t)
+        lead_end = pos
+    return lead_end, None
+
+
+def _emphasis(text: str, pieces: list[TextPiece], emph: list[bool], caps: list[bool]) -> _Emphasis:
+    """Lead / emphasised / all-caps of a paragraph from its pieces.  O(pieces)."""
+    # Skip a plain literal label before the first emphasised piece.
+    start, offset = _label_skip(text, pieces, emph)
+    # all_caps: every piece with letters is shown in capitals.
+    all_caps = _all_caps(pieces, caps, start)
+    lead_end, cont = _emphasis_run(pieces, emph, start, offset)
     if lead_end is None:
         return _Emphasis(None, False, all_caps)
     if cont is None:

@@ -555,6 +555,19 @@ def apply_paragraph_edits(p: etree._Element, edits: Sequence[TextEdit], *, stamp
         _apply_one(p, edit, stamp=stamp, ids=ids)
 
 
+def _insertion_point(p: etree._Element, at: int) -> tuple[etree._Element | None, etree._Element | None,
+                                                     etree._Element | None]:
+    """(run properties to copy, element to insert after, element to insert before) for new
+    text at offset *at* of *p* where nothing is deleted: beside the neighbouring run, if any."""
+    run, side = _neighbour_run(p, at)
+    if run is None:
+        return None, None, None
+    target = _outermost_in_paragraph(run, p)
+    if side == "after":
+        return run.find(_RPR), target, None
+    return run.find(_RPR), None, target
+
+
 def _apply_one(p: etree._Element, edit: TextEdit, *, stamp: RevisionStamp, ids: IdAllocator) -> None:
     _split_at(p, edit.end)
     _split_at(p, edit.start)
@@ -564,24 +577,15 @@ def _apply_one(p: etree._Element, edit: TextEdit, *, stamp: RevisionStamp, ids: 
         return
     doomed = _runs_in(p, edit.start, edit.end) if edit.end > edit.start else []
     written: list[etree._Element] = []
-    rpr_source: etree._Element | None = None
-    insert_after: etree._Element | None = None
     insert_before: etree._Element | None = None
     if doomed:
         rpr_source = doomed[0].find(_RPR)
         rpr_source = copy.deepcopy(rpr_source) if rpr_source is not None else None
         wrappers = _wrap_runs(doomed, "del", stamp=stamp, ids=ids)
         written.extend(wrappers)
-        insert_after = wrappers[-1]
+        insert_after: etree._Element | None = wrappers[-1]
     else:
-        run, side = _neighbour_run(p, edit.start)
-        if run is not None:
-            rpr_source = run.find(_RPR)
-            target = _outermost_in_paragraph(run, p)
-            if side == "after":
-                insert_after = target
-            else:
-                insert_before = target
+        rpr_source, insert_after, insert_before = _insertion_point(p, edit.start)
     lines = edit.replacement.split("\n") if edit.paragraphs else [edit.replacement]
     if lines[0]:
         ins = wrap("ins", make_runs(lines[0], rpr_source), stamp=stamp, ids=ids)

@@ -230,10 +230,9 @@ def _outline_from(raw: _RawStyle) -> int | None | bool:
     return False
 
 
-def parse_styles(root: etree._Element | None) -> StyleSheet:
-    """Build a :class:`StyleSheet` from the ``w:styles`` element (None -> empty sheet)."""
-    if root is None:
-        return StyleSheet()
+def _raw_styles(root: etree._Element) -> tuple[dict[str, _RawStyle], str | None, RunFormat]:
+    """(styles by id as written, first one wins; the default paragraph style; the document's
+    default run format) from the ``w:styles`` element."""
     raws: dict[str, _RawStyle] = {}
     default_para: str | None = None
     default_run = _EMPTY_FORMAT
@@ -249,35 +248,46 @@ def parse_styles(root: etree._Element | None) -> StyleSheet:
         elif el.tag == _W + "docDefaults":
             rpr = el.find(f"{_W}rPrDefault/{_W}rPr")
             default_run = run_format_of(rpr)
+    return raws, default_para, default_run
 
-    resolved: dict[str, StyleDef] = {}
-    for sid, raw in raws.items():
-        chain: list[_RawStyle] = []
-        seen: set[str] = set()
-        cur: _RawStyle | None = raw
-        while cur is not None and cur.style_id not in seen and len(chain) < MAX_STYLE_CHAIN:
-            chain.append(cur)
-            seen.add(cur.style_id)
-            cur = raws.get(cur.based_on) if cur.based_on else None
-        num_id = next((c.num_id for c in chain if c.num_id is not None), None)
-        ilvl = next((c.ilvl for c in chain if c.ilvl is not None), None)
-        outline: int | None = None
-        for c in chain:
-            o = _outline_from(c)
-            if o is not False:
-                outline = o
-                break
-        run = _EMPTY_FORMAT
-        for c in reversed(chain):
-            run = c.run.over(run)
-        resolved[sid] = StyleDef(
-            style_id=sid,
-            kind=raw.kind,
-            name=ui_style_name(raw.name) if raw.name else None,
-            based_on=raw.based_on,
-            num_id=num_id,
-            ilvl=ilvl,
-            outline_level=outline,
-            run=run,
-        )
+
+def _resolve_style(raw: _RawStyle, raws: dict[str, _RawStyle]) -> StyleDef:
+    """*raw* with what it inherits through its ``w:basedOn`` chain (nearest first, at most
+    :data:`MAX_STYLE_CHAIN` long, a loop cut where it closes)."""
+    chain: list[_RawStyle] = []
+    seen: set[str] = set()
+    cur: _RawStyle | None = raw
+    while cur is not None and cur.style_id not in seen and len(chain) < MAX_STYLE_CHAIN:
+        chain.append(cur)
+        seen.add(cur.style_id)
+        cur = raws.get(cur.based_on) if cur.based_on else None
+    num_id = next((c.num_id for c in chain if c.num_id is not None), None)
+    ilvl = next((c.ilvl for c in chain if c.ilvl is not None), None)
+    outline: int | None = None
+    for c in chain:
+        o = _outline_from(c)
+        if o is not False:
+            outline = o
+            break
+    run = _EMPTY_FORMAT
+    for c in reversed(chain):
+        run = c.run.over(run)
+    return StyleDef(
+        style_id=raw.style_id,
+        kind=raw.kind,
+        name=ui_style_name(raw.name) if raw.name else None,
+        based_on=raw.based_on,
+        num_id=num_id,
+        ilvl=ilvl,
+        outline_level=outline,
+        run=run,
+    )
+
+
+def parse_styles(root: etree._Element | None) -> StyleSheet:
+    """Build a :class:`StyleSheet` from the ``w:styles`` element (None -> empty sheet)."""
+    if root is None:
+        return StyleSheet()
+    raws, default_para, default_run = _raw_styles(root)
+    resolved = {sid: _resolve_style(raw, raws) for sid, raw in raws.items()}
     return StyleSheet(styles=resolved, default_paragraph_style=default_para, default_run=default_run)

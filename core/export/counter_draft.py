@@ -128,6 +128,14 @@ def _heading_change(review: Review, dec: Decision, dprov: Provision, pprov: Prov
         i = text.find(dh) if dh else -1
         start, end = (i, i + len(dh)) if i >= 0 else (0, len(text))
         return _heading_edit(head_line, text, start, end, replacement)
+    return _run_in_heading_change(draft, dprov, dh, replacement, revert=dec.action == "revert")
+
+
+def _run_in_heading_change(draft: Document, dprov: Provision, dh: str, replacement: str | None, *,
+                           revert: bool) -> BlockEdit | None:
+    """:func:`_heading_change` for a heading run in before the text of *dprov*'s first
+    segment (no heading line of its own): *dh* is the draft's heading, *replacement* the new
+    one (None: anchor a note only)."""
     if not dprov.segments:
         return None
     seg = dprov.segments[0]
@@ -137,7 +145,7 @@ def _heading_change(review: Review, dec: Decision, dprov: Provision, pprov: Prov
         if not dh and replacement:  # the draft has no heading: add the precedent's, run in
             return BlockEdit(seg.block, seg.start, seg.start, f"{replacement}. ")
         return None
-    if replacement == "" and dec.action == "revert":
+    if replacement == "" and revert:
         # No heading in the precedent: remove the run-in heading and what separates it from
         # the text (". ", " - ").
         return BlockEdit(seg.block, i, seg.start, "")

@@ -407,36 +407,37 @@ def _text_change(review: Review, dev: Deviation, dp: Provision | None,
     return _old_new(old, new), pwords, dwords
 
 
-def _what_changed(review: Review, dev: Deviation) -> tuple[Excerpt, str, str]:
-    """(what changed, the precedent's changed words, the draft's changed words)."""
-    dp = find_provision(review.draft, dev.draft_provision)
-    pp = find_provision(review.precedent, dev.precedent_provision)
-    if dev.category == "term":
-        uses = next((m.occurrences for m in review.term_map
-                     if m.draft == dev.draft_text and m.precedent == dev.precedent_text), None)
-        ex = _concat("Defined term ", _old_new(Excerpt(dev.precedent_text, ((0, len(dev.precedent_text)),)),
-                                               Excerpt(dev.draft_text, ((0, len(dev.draft_text)),))))
-        if uses:
-            ex = _concat(ex, f" ({uses} use{'s' * (uses != 1)} in the draft)")
-        return ex, dev.precedent_text, dev.draft_text
-    if dev.change == "add-provision":
-        return _concat("Provision added: ", _provision_quote(dp)), "", dp.text if dp else dev.draft_text
-    if dev.change == "remove-provision":
-        return (_concat("Provision left out: ", _provision_quote(pp)),
-                pp.text if pp else dev.precedent_text, "")
-    if dev.change == "move":
-        dn = full_number(dp, doc=review.draft) if dp else ""
-        pn = full_number(pp, doc=review.precedent) if pp else ""
-        where = f" (precedent {pn}, draft {dn})" if dn and pn else ""
-        return Excerpt(f"Provision moved to another place in the order{where}"), "", ""
-    if dev.part == "heading":
-        dh = (dp.heading if dp is not None else None) or dev.draft_text
-        ph = (pp.heading if pp is not None else None) or dev.precedent_text
-        old = Excerpt(ph, ((0, len(ph)),)) if ph else None
-        new = Excerpt(dh, ((0, len(dh)),)) if dh else None
-        return _concat("Heading ", _old_new(old, new)), ph or "", dh or ""
-    if dev.part == "text" and (dp is not None or pp is not None):
-        return _text_change(review, dev, dp, pp)
+def _term_change(review: Review, dev: Deviation) -> tuple[Excerpt, str, str]:
+    """A defined term renamed, with its count of uses in the draft."""
+    uses = next((m.occurrences for m in review.term_map
+                 if m.draft == dev.draft_text and m.precedent == dev.precedent_text), None)
+    ex = _concat("Defined term ", _old_new(Excerpt(dev.precedent_text, ((0, len(dev.precedent_text)),)),
+                                           Excerpt(dev.draft_text, ((0, len(dev.draft_text)),))))
+    if uses:
+        ex = _concat(ex, f" ({uses} use{'s' * (uses != 1)} in the draft)")
+    return ex, dev.precedent_text, dev.draft_text
+
+
+def _move_change(review: Review, dp: Provision | None, pp: Provision | None) -> tuple[Excerpt, str, str]:
+    """A provision moved, with its numbers on both sides when both are known."""
+    dn = full_number(dp, doc=review.draft) if dp else ""
+    pn = full_number(pp, doc=review.precedent) if pp else ""
+    where = f" (precedent {pn}, draft {dn})" if dn and pn else ""
+    return Excerpt(f"Provision moved to another place in the order{where}"), "", ""
+
+
+def _heading_words(dev: Deviation, dp: Provision | None,
+                   pp: Provision | None) -> tuple[Excerpt, str, str]:
+    """A heading changed: the whole old and new headings."""
+    dh = (dp.heading if dp is not None else None) or dev.draft_text
+    ph = (pp.heading if pp is not None else None) or dev.precedent_text
+    old = Excerpt(ph, ((0, len(ph)),)) if ph else None
+    new = Excerpt(dh, ((0, len(dh)),)) if dh else None
+    return _concat("Heading ", _old_new(old, new)), ph or "", dh or ""
+
+
+def _whole_change(dev: Deviation) -> tuple[Excerpt, str, str]:
+    """A renumbering, or a change with no provision to quote from: the deviation's own words."""
     if dev.part == "provision" and dev.category == "numbering":
         old = Excerpt(dev.precedent_text) if dev.precedent_text else None
         new = Excerpt(dev.draft_text) if dev.draft_text else None
@@ -445,6 +446,26 @@ def _what_changed(review: Review, dev: Deviation) -> tuple[Excerpt, str, str]:
     old = _words_of(dev.precedent_text) if dev.precedent_text.strip() else None
     new = _words_of(dev.draft_text) if dev.draft_text.strip() else None
     return _old_new(old, new), dev.precedent_text, dev.draft_text
+
+
+def _what_changed(review: Review, dev: Deviation) -> tuple[Excerpt, str, str]:
+    """(what changed, the precedent's changed words, the draft's changed words)."""
+    dp = find_provision(review.draft, dev.draft_provision)
+    pp = find_provision(review.precedent, dev.precedent_provision)
+    if dev.category == "term":
+        return _term_change(review, dev)
+    if dev.change == "add-provision":
+        return _concat("Provision added: ", _provision_quote(dp)), "", dp.text if dp else dev.draft_text
+    if dev.change == "remove-provision":
+        return (_concat("Provision left out: ", _provision_quote(pp)),
+                pp.text if pp else dev.precedent_text, "")
+    if dev.change == "move":
+        return _move_change(review, dp, pp)
+    if dev.part == "heading":
+        return _heading_words(dev, dp, pp)
+    if dev.part == "text" and (dp is not None or pp is not None):
+        return _text_change(review, dev, dp, pp)
+    return _whole_change(dev)
 
 
 # --------------------------------------------------------------------------------------
