@@ -7,6 +7,7 @@ from __future__ import annotations
 import re
 from dataclasses import dataclass, field
 
+from .lazyre import compile_pattern
 from .model import Document, Provision
 
 __all__ = ["DocInfo", "PARTY_ROLE_WORDS", "build_docinfo", "item_label", "party_role"]
@@ -26,7 +27,7 @@ PARTY_ROLE_WORDS: dict[str, frozenset[str]] = {
 _ALL_ROLE_WORDS = PARTY_ROLE_WORDS["supply"] | PARTY_ROLE_WORDS["buy"]
 
 #: Words of a definition that describe a legal person (common practice, no source).
-_ENTITY_RE = re.compile(
+_ENTITY_RE = compile_pattern(
     r"\b(?:incorporated|registered (?:office|number|in)|company (?:number|no)|limited|ltd|llp|"
     r"llc|inc|plc|gmbh|s\.?a\.?|b\.?v\.?|corporation|whose (?:registered|principal) "
     r"(?:office|place))\b", re.IGNORECASE)
@@ -80,13 +81,13 @@ class DocInfo:
 
 #: Number keywords a label may start with (those core.structure reads as labels); a full
 #: number is written without them ("Section 14.3" -> "14.3", "Exhibit A" -> "A").
-_KEYWORD_PREFIX_RE = re.compile(
+_KEYWORD_PREFIX_RE = compile_pattern(
     r"^(?:schedule|clause|section|article|part|annexure|annex|appendix|exhibit|attachment|"
     r"addendum)", re.IGNORECASE)
 #: A list item's own label in any of the styles core.structure reads: "(b)", "b)", "b"
 #: (from "b."), "(iv)", "1)".  A bare number ("1") is a clause number, not an item.
-_LIST_ITEM_RE = re.compile(r"^(?:\((?P<tok>[A-Za-z]{1,4}|\d{1,3})\)|(?P<close>[A-Za-z]{1,4}|\d{1,3})\)"
-                           r"|(?P<dot>[A-Za-z]{1,4}))$")
+_LIST_ITEM_RE = compile_pattern(r"^(?:\((?P<tok>[A-Za-z]{1,4}|\d{1,3})\)|(?P<close>[A-Za-z]{1,4}|\d{1,3})\)"
+                                r"|(?P<dot>[A-Za-z]{1,4}))$")
 
 
 def item_label(number: str) -> str | None:

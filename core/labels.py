@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import re
 
+from .lazyre import compile_pattern
 from .model import Check, Deviation, Document, Provision, Review
 
 __all__ = ["MAX_DEPTH", "check_label", "clause_label", "find_provision", "full_number", "provision_label"]
@@ -31,7 +32,7 @@ MAX_DEPTH = 64
 #: Words of a provision's text quoted in a label when it has no number, heading or term.
 LABEL_WORDS = 6
 
-_KEYWORD_RE = re.compile(r"^(?:Article|Section|Clause|Schedule|Part)\s+", re.IGNORECASE)
+_KEYWORD_RE = compile_pattern(r"^(?:Article|Section|Clause|Schedule|Part)\s+", re.IGNORECASE)
 
 
 #: Documents whose provisions are indexed by id (the last few labelled: a review's two).

@@ -63,7 +63,7 @@ from dataclasses import dataclass
 
 from .docinfo import DocInfo, build_docinfo, item_label
 from .labels import MAX_DEPTH
-from .lazyre import lazy_compile
+from .lazyre import compile_pattern, lazy_compile
 from .model import Document, Provision, Segment
 
 __all__ = [
@@ -127,9 +127,9 @@ _ROMAN_NAMESPACES = frozenset({"article", "part"})
 #: Namespaces whose numbers may be a capital letter (Annex B, Part A).
 _LETTER_NAMESPACES = frozenset({"schedule", "part"})
 #: Keywords of a label at the start of a provision number ("Article IV", "Exhibit A").
-_LABEL_KEYWORD_RE = re.compile(r"^\s*([A-Za-z]+)\s*(?=[0-9A-Z])")
+_LABEL_KEYWORD_RE = compile_pattern(r"^\s*([A-Za-z]+)\s*(?=[0-9A-Z])")
 
-_KEYWORD_RE = re.compile(
+_KEYWORD_RE = compile_pattern(
     r"(?<![\w-])(?P<kw>sub-?clauses?|clauses?|sub-?sections?|sections?|sub-?paragraphs?|"
     r"paragraphs?|articles?|parts?|schedules?|annexures?|annexes|annexe|annex|appendix|"
     r"appendices|appendixes|exhibits?|attachments?)"
@@ -138,25 +138,25 @@ _KEYWORD_RE = re.compile(
 #: A clause number (at most three digits a component: "Section 2006" is a year, "Section
 #: 1201" a statute's) with an optional run-on item letter ("6b"), or a roman figure or a
 #: capital letter (kept only where the namespace allows it).
-_HEAD_RE = re.compile(
+_HEAD_RE = compile_pattern(
     r"(?P<dec>\d{1,3}(?:\.\d{1,3})*)(?P<bare>[a-z](?!\w))?|(?P<alpha>[IVXLCDM]{1,7}|[A-Z])(?!\w)")
 #: An item in brackets, after at most one space or line break: "(b)", "(iv)", "(A)", "(2)".
-_ITEM_RE = re.compile(r"(?P<gap>\s?)\((?P<tok>\d{1,3}|[a-z]{1,7}|[A-Z]{1,7})\)")
+_ITEM_RE = compile_pattern(r"(?P<gap>\s?)\((?P<tok>\d{1,3}|[a-z]{1,7}|[A-Z]{1,7})\)")
 #: What joins the numbers of a list or a range.
-_JOIN_RE = re.compile(
+_JOIN_RE = compile_pattern(
     r"[^\S\n]*(?:(?P<range>to|through|thru|until|[-\u2010-\u2015\u2212])|"
     r"(?P<list>,[^\S\n]*(?:and/or|and|or)?|and/or|and|or|&))[^\S\n]*", re.IGNORECASE)
 #: After a number, words that make it a quantity or a date rather than a reference.
-_QUANTITY_AFTER_RE = re.compile(
+_QUANTITY_AFTER_RE = compile_pattern(
     r"\s*(?:%|per\s*cent\b|percent\b|(?:calendar\s+|business\s+|working\s+|clear\s+)?"
     r"(?:days?|weeks?|months?|years?|hours?|minutes?|times)\b)|,\d{3}(?!\d)", re.IGNORECASE)
-_DATE_AFTER_RE = re.compile(
+_DATE_AFTER_RE = compile_pattern(
     r"\s+(?:January|February|March|April|May|June|July|August|September|October|November|"
     r"December)(?:\s+|,\s*)\d{2,4}\b")
-_DIRECTION_RE = re.compile(r"[^\S\n]*,?[^\S\n]*(?P<dir>above|below)\b", re.IGNORECASE)
-_HERE_RE = re.compile(r"[^\S\n]+(?:hereof|hereto|herein|hereunder)\b", re.IGNORECASE)
-_QUALIFIER_RE = re.compile(r"[^\S\n]*,?\s+(?:of|in|under|to|from)\s+", re.IGNORECASE)
-_THIS_RE = re.compile(r"(?:this|these)\s+(?P<word>[A-Za-z-]+)", re.IGNORECASE)
+_DIRECTION_RE = compile_pattern(r"[^\S\n]*,?[^\S\n]*(?P<dir>above|below)\b", re.IGNORECASE)
+_HERE_RE = compile_pattern(r"[^\S\n]+(?:hereof|hereto|herein|hereunder)\b", re.IGNORECASE)
+_QUALIFIER_RE = compile_pattern(r"[^\S\n]*,?\s+(?:of|in|under|to|from)\s+", re.IGNORECASE)
+_THIS_RE = compile_pattern(r"(?:this|these)\s+(?P<word>[A-Za-z-]+)", re.IGNORECASE)
 #: A capitalised name after "of": "the Companies Act 2006", "the GNU GPL", "the Treaty on
 #: the Functioning of the European Union", "Regulation (EU) 2016/679".
 _NAME_RE = lazy_compile(  # compiling it takes longer than most reviews' use of it
@@ -169,12 +169,12 @@ _INSTRUMENT_WORDS = frozenset(
 #: Names a document gives itself ("of the Agreement"): the document's own clauses.
 _SELF_WORDS = frozenset(
     "Agreement Contract Deed License Licence Terms Conditions Document Schedule".split())
-_ACRONYM_RE = re.compile(r"[A-Z][A-Z0-9.&-]*[A-Z0-9]\.?")
+_ACRONYM_RE = compile_pattern(r"[A-Z][A-Z0-9.&-]*[A-Z0-9]\.?")
 #: Another instrument named right before the keyword: a code citation ("C.F.R. Sections
 #: 730 through 774") or a capitalised name and a comma ("the Companies Act 2006, section
 #: 16", "the GNU Affero General Public License, section 13", "... License version 2,
 #: section 3"), unless "this" names it.
-_CITATION_BEFORE_RE = re.compile(
+_CITATION_BEFORE_RE = compile_pattern(
     r"(?:\bU\.?\s?S\.?\s?C\.?|\bC\.?\s?F\.?\s?R\.?)\s*$|(?:(?P<pre>\w+)\s+)?"
     r"(?:(?:[A-Z][\w-]*\s+){0,8}(?:Act|Acts|Code|Regulations?|Directive|Treaty|Convention|Rules|"
     r"Order)|(?:[A-Z][\w-]*\s+){1,8}(?:License|Licence|Agreement|Contract))"
@@ -183,11 +183,11 @@ _CITATION_BEFORE_RE = re.compile(
 _CITATION_WINDOW = 80
 #: An acronym right before the keyword names another instrument: "FAR Part 27", "GDPR
 #: Article 28" (not in a passage set in capitals, where every word is in capitals).
-_ACRONYM_BEFORE_RE = re.compile(r"(?<![\w.])[A-Z][A-Z0-9&-]*[A-Z0-9]\s+$")
+_ACRONYM_BEFORE_RE = compile_pattern(r"(?<![\w.])[A-Z][A-Z0-9&-]*[A-Z0-9]\s+$")
 #: A number followed by a colon and figures is a statute's ("article 7:900 Civil Code").
-_STATUTE_NUMBER_AFTER_RE = re.compile(r":\d")
+_STATUTE_NUMBER_AFTER_RE = compile_pattern(r":\d")
 
-_ROMAN_RE = re.compile(r"^M{0,3}(?:CM|CD|D?C{0,3})(?:XC|XL|L?X{0,3})(?:IX|IV|V?I{0,3})$")
+_ROMAN_RE = compile_pattern(r"^M{0,3}(?:CM|CD|D?C{0,3})(?:XC|XL|L?X{0,3})(?:IX|IV|V?I{0,3})$")
 _ROMAN_VALUES = (("M", 1000), ("CM", 900), ("D", 500), ("CD", 400), ("C", 100), ("XC", 90),
                  ("L", 50), ("XL", 40), ("X", 10), ("IX", 9), ("V", 5), ("IV", 4), ("I", 1))
 

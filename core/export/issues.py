@@ -42,6 +42,7 @@ from ..labels import (
     full_number,
     provision_label,
 )
+from ..lazyre import compile_pattern
 from ..model import (
     CATEGORIES,
     Deviation,
@@ -137,8 +138,8 @@ _ABBREVIATIONS = frozenset({"e.g", "i.e", "etc", "no", "nos", "art", "arts", "cl
 #: A sentence ends at ".", "!" or "?" (after any closing quotes or brackets) followed by
 #: white space and a capital, a digit or an opening quote or bracket; a line break (the
 #: "\n" joining a provision's paragraphs) ends one too.
-_SENTENCE_END = re.compile(r"[.!?][\"'\u201d\u2019)\]]*\s+(?=[\"'\u201c\u2018(\[]?[A-Z0-9])|\n")
-_WORD = re.compile(r"\S+")
+_SENTENCE_END = compile_pattern(r"[.!?][\"'\u201d\u2019)\]]*\s+(?=[\"'\u201c\u2018(\[]?[A-Z0-9])|\n")
+_WORD = compile_pattern(r"\S+")
 
 
 @dataclass(frozen=True, slots=True)

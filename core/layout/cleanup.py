@@ -27,6 +27,7 @@ import re
 from collections import Counter
 from collections.abc import Iterable, Sequence
 
+from ..lazyre import compile_pattern
 from .lines import Line, geometry
 
 __all__ = ["EDGE_LINES", "MIN_PAGE_SHARE", "SAME_HEIGHT_EM", "drop_running", "join_lines", "vocabulary"]
@@ -47,14 +48,14 @@ SAME_HEIGHT_EM = 0.8
 #: for the hyphen to go ("email" twice and "e-mail" once: a tie, the hyphen stays).
 HYPHEN_EVIDENCE = 2
 
-_DIGITS_RE = re.compile(r"\d+")
+_DIGITS_RE = compile_pattern(r"\d+")
 #: A cross-reference's bracketed part at a line end ("4(c)", "(c)(1)") and the next
 #: bracketed part at the start of the next line ("(i)", "(1)(C)"): no space between them.
-_REFERENCE_END_RE = re.compile(r"\w\([A-Za-z0-9]{1,4}\)$")
-_REFERENCE_START_RE = re.compile(r"\([A-Za-z0-9]{1,4}\)(?:\W|$)")
-_URL_END_RE = re.compile(r"(?:https?://|www\.)\S*/$", re.IGNORECASE)
-_ROMAN_PAGE_RE = re.compile(r"^[\W_]*[ivxlcdm]{1,6}[\W_]*$", re.IGNORECASE)
-_WORD_RE = re.compile(r"[^\W\d_](?:[^\W\d_]|['’-](?=[^\W\d_]))*")
+_REFERENCE_END_RE = compile_pattern(r"\w\([A-Za-z0-9]{1,4}\)$")
+_REFERENCE_START_RE = compile_pattern(r"\([A-Za-z0-9]{1,4}\)(?:\W|$)")
+_URL_END_RE = compile_pattern(r"(?:https?://|www\.)\S*/$", re.IGNORECASE)
+_ROMAN_PAGE_RE = compile_pattern(r"^[\W_]*[ivxlcdm]{1,6}[\W_]*$", re.IGNORECASE)
+_WORD_RE = compile_pattern(r"[^\W\d_](?:[^\W\d_]|['’-](?=[^\W\d_]))*")
 
 
 def _signature(text: str) -> str:

@@ -27,11 +27,11 @@ Cost: O(lines) with a few regular-expression matches per line.
 
 from __future__ import annotations
 
-import re
 from collections.abc import Mapping, Sequence
 
 import numpy as np
 
+from ..lazyre import compile_pattern
 from ..structure import definition_start, is_title_case, parse_label
 from .lines import Geometry, Line, geometry
 
@@ -102,7 +102,7 @@ _INDEX = {name: i for i, name in enumerate(FEATURE_NAMES)}
 
 _BULLETS = "•◦▪‣●–-*·"
 _QUOTES = "\"“‘'«"
-_AND_OR_RE = re.compile(r"[;,]\s*(?:and|or|and/or)$")
+_AND_OR_RE = compile_pattern(r"[;,]\s*(?:and|or|and/or)$")
 
 
 def _end_class(text: str) -> str:

@@ -30,13 +30,13 @@ Cost: one pass over the body, O(size of content.xml).
 from __future__ import annotations
 
 import os
-import re
 from dataclasses import dataclass, field
 
 from lxml import etree
 
 from ..docx.blocks import MAX_PARAGRAPHS, paragraph_emphasis
 from ..errors import CounterdraftError
+from ..lazyre import compile_pattern
 from ..model import Block
 from .namespaces import DRAW, OFFICE, TABLE, TEXT, XML, q
 from .numbering import MAX_START, ListCounter
@@ -57,7 +57,7 @@ _SKIPPED_TEXT = {q(TEXT, n) for n in (
 _SKIPPED = _SKIPPED_TEXT | {q(OFFICE, "annotation"), q(OFFICE, "annotation-end"), q(OFFICE, "forms")}
 _INDEXES = {q(TEXT, n) for n in ("table-of-content", "alphabetical-index", "illustration-index",
                                  "table-index", "object-index", "user-index", "bibliography")}
-_WS_RE = re.compile(r"[ \t\r\n]+")
+_WS_RE = compile_pattern(r"[ \t\r\n]+")
 #: Nesting deeper than this (tables in tables in lists ...) is not walked further.
 MAX_DEPTH = 64
 

@@ -65,7 +65,6 @@ from ..model import (
 from .align import Alignment, Features, Group, align
 from .checks import review_checks
 from .classify import Change, TermContext, WordChange, classify_ops
-from .direction import Judge, direction_rank_key, find_parties, resolve_acting_for
 from .figures import figure_reasons, figures_in
 from .serialize import review_to_dict
 from .severity import (
@@ -341,7 +340,9 @@ def run_review(draft: Document, precedent: Document, *,
     stage = stage or (lambda _what: None)
     stage("reading the words and defined terms")
     rules = rules or default_rules()
-    if acting_for is not None:
+    if acting_for is not None:  # the direction judge is imported only for a side taken
+        from .direction import resolve_acting_for
+
         acting_for = resolve_acting_for(precedent, acting_for)
     di, pi = build_docinfo(draft), build_docinfo(precedent)
     extra = [n for o in overrides for n in (o.draft, o.precedent or "") if n.strip()]
@@ -873,6 +874,8 @@ class _Builder:
         if self.acting_for is None:
             ranked = sorted(in_order, key=lambda v: (-v.severity, v.order))
         else:
+            from .direction import direction_rank_key
+
             ranked = sorted(in_order, key=lambda v: (direction_rank_key(v.severity, v.direction), v.order))
         return tuple(
             Deviation(ids[id(v)], r, v.severity, v.category, v.change, v.draft_provision,
@@ -886,6 +889,8 @@ class _Builder:
         reason naming the parties before the clause type's weight."""
         if self.acting_for is None:
             return
+        from .direction import Judge, find_parties
+
         parties = find_parties(self.di.doc, self.pi.doc, self.tm.mappings)
         judge = Judge(parties=parties, acting_for=self.acting_for, rules=self.rules,
                       draft=self.di.doc, precedent=self.pi.doc)

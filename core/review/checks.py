@@ -72,6 +72,7 @@ import re
 from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
+from ..lazyre import compile_pattern
 from ..model import (
     CHECK_DOCUMENTS,
     CHECK_KINDS,
@@ -151,28 +152,29 @@ _CAP_WORD = r"[A-Z][a-z]+(?:-[A-Za-z][a-z]*)*"
 #: Small words inside a capitalised name ("Statement of Work", "Terms of the Offer").
 _JOINERS = r"(?:of|for|the|in|on|to|de|la|du|von|van)"
 _POSSESSIVE = r"(?:['’]s|(?<=s)['’])?"
-_PHRASE_RE = re.compile(
+_PHRASE_RE = compile_pattern(
     r"(?<![\w'’\"“”‘.@/\\&+-])(?P<phrase>" + _CAP_WORD
     + r"(?:(?:[ \t]+|[ \t]*\n[ \t]*)(?:(?:" + _JOINERS + r"|and|or|&)\s+){0,2}" + _CAP_WORD + r")*)"
     + _POSSESSIVE + r"(?![\w@/\\&+-]|\.\w)")
 #: A run parts into phrases at "and", "or" and "&" ("Licensor and Licensee").
-_SPLIT_RE = re.compile(r"\s+(?:and|or|&)\s+")
+_SPLIT_RE = compile_pattern(r"\s+(?:and|or|&)\s+")
 _HONORIFICS = frozenset("Mr Mrs Ms Dr Prof Sir Dame Lord Lady St".split())
 #: A run-in heading: title-case words at the start of a line, up to a full stop or colon.
-_RUN_IN_RE = re.compile(r"[ \t]*(?P<words>[A-Z][^.:!?\n\u2013\u2014]{0,120}?)(?:[.:]|[ \t][\u2013\u2014-])[ \t]+(?=\S)")
+_RUN_IN_RE = compile_pattern(
+    r"[ \t]*(?P<words>[A-Z][^.:!?\n\u2013\u2014]{0,120}?)(?:[.:]|[ \t][\u2013\u2014-])[ \t]+(?=\S)")
 #: Longest run-in heading (words): "Warranty of Provenance and Disclaimer of Warranty".
 MAX_RUN_IN_WORDS = 12
-_AFTER_RE = re.compile(r"[ \t]*\n?[ \t]*(?P<next>[A-Za-z0-9(©]+)")
+_AFTER_RE = compile_pattern(r"[ \t]*\n?[ \t]*(?P<next>[A-Za-z0-9(©]+)")
 #: A designation after a phrase makes it a label, not a term: "Product X", "Exhibit 2".
-_DESIGNATION_RE = re.compile(r"^(?:[A-Z]|\d+|[IVX]+)$")
-_TITLE_AFTER_RE = re.compile(
+_DESIGNATION_RE = compile_pattern(r"^(?:[A-Z]|\d+|[IVX]+)$")
+_TITLE_AFTER_RE = compile_pattern(
     r",\s+(?:[A-Z][\w'’-]*\s+(?:(?:and|&|of|the)\s+)*){1,6}(?:Act|Acts|Regulations?|Code|Rules|Directive)\b")
-_ABBREVIATED_RE = re.compile(r"\s*\(\s*(?:the\s+)?[\"“'‘]?[A-Z][A-Z0-9&.-]+[\"”'’]?\s*\)")
+_ABBREVIATED_RE = compile_pattern(r"\s*\(\s*(?:the\s+)?[\"“'‘]?[A-Z][A-Z0-9&.-]+[\"”'’]?\s*\)")
 #: Words that follow a noun without being its head: "the Service Credits payable", "the
 #: Fees due" (a participle may go either way: "the Products described", "a Texas limited
 #: liability company", so it is read as a head).
-_POSTPOSITIVE_RE = re.compile(r"(?:able|ible|due|thereof|hereunder|herein)$")
-_NOTICE_RE = re.compile(r"[ \t]*(?:\(c\)|©|\d{4})", re.IGNORECASE)
+_POSTPOSITIVE_RE = compile_pattern(r"(?:able|ible|due|thereof|hereunder|herein)$")
+_NOTICE_RE = compile_pattern(r"[ \t]*(?:\(c\)|©|\d{4})", re.IGNORECASE)
 #: Function words: a capitalised one is no term ("This License", "Your use"): articles,
 #: pronouns, prepositions, conjunctions, auxiliaries (common practice, no source).
 _FUNCTION_WORDS = frozenset(
@@ -192,13 +194,13 @@ _ENGLISH_MARKERS = frozenset("the of and to or any shall be is by with this that
 ENGLISH_MIN_SHARE = 0.08
 #: A word written in lower case as a word of prose (not part of a file name, an address or
 #: a program identifier: "java.lang", "www.example.org").
-_LOWER_WORD_RE = re.compile(r"(?<![\w.@/\\:-])[a-z]+(?:-[a-z]+)*(?![\w@/\\]|\.\w)")
-_WORD_RE = re.compile(r"[A-Za-z][A-Za-z'’-]*")
+_LOWER_WORD_RE = compile_pattern(r"(?<![\w.@/\\:-])[a-z]+(?:-[a-z]+)*(?![\w@/\\]|\.\w)")
+_WORD_RE = compile_pattern(r"[A-Za-z][A-Za-z'’-]*")
 #: The word right before a phrase: ASCII letters, then blanks (spaces, tabs) holding at most
 #: one line break.  :func:`_word_before` reads it backwards from the phrase (the law tests
 #: compare it with a search of this pattern from the start of the text, which made a long
 #: provision quadratic).
-_PREVIOUS_WORD_RE = re.compile(r"(?P<word>[A-Za-z]+)(?:[ \t]+|[ \t]*\n[ \t]*)$")
+_PREVIOUS_WORD_RE = compile_pattern(r"(?P<word>[A-Za-z]+)(?:[ \t]+|[ \t]*\n[ \t]*)$")
 _ASCII_LETTERS = frozenset("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz")
 #: How far back the two-names pattern (:data:`_NAME_BEFORE_RE`) looks: far more than two words
 #: of any language, and bounded so that each look is constant time.
@@ -236,7 +238,7 @@ _COMMON_DETERMINERS = frozenset("a an any each every such no another all other t
 _DETERMINERS = _COMMON_DETERMINERS | frozenset("the this that its their your our his her my".split())
 #: Endings of common nouns ("Deliverables", "Payments", "Contributors"): a single
 #: capitalised word with one, after a determiner, reads as a defined term.
-_COMMON_NOUN_END_RE = re.compile(r"(?:ables?|ibles?|ments?|tions?|sions?|ances?|ences?|ity|ities|ees|ors|ings)$")
+_COMMON_NOUN_END_RE = compile_pattern(r"(?:ables?|ibles?|ments?|tions?|sions?|ances?|ences?|ity|ities|ees|ors|ings)$")
 #: Closed classes of capitalised words that are no defined terms.
 _CALENDAR = frozenset(
     "January February March April May June July August September October November December "
@@ -289,38 +291,38 @@ _TITLE_CUE_WORDS = frozenset("entitled titled called named headed captioned".spl
 #: Common nouns that English style capitalises by convention.
 _CONVENTION_WORDS = frozenset("Internet Web Earth God".split())
 
-_QUOTED_RE = re.compile(r"[\"“”„]([^\"“”„\n]{1,80}(?:\n[^\"“”„\n]{1,80})?)[\"“”]"
-                        r"|‘([^‘’\n]{1,80})’|«\s?([^«»\n]{1,80}?)\s?»"
-                        r"|(?<![\w'’])'([^'\n]{1,80})'(?![\w'])|``([^`'\n]{1,80})''")
+_QUOTED_RE = compile_pattern(r"[\"“”„]([^\"“”„\n]{1,80}(?:\n[^\"“”„\n]{1,80})?)[\"“”]"
+                             r"|‘([^‘’\n]{1,80})’|«\s?([^«»\n]{1,80}?)\s?»"
+                             r"|(?<![\w'’])'([^'\n]{1,80})'(?![\w'])|``([^`'\n]{1,80})''")
 #: An unquoted name in a parenthesis after what it names: "(the Licensor)", "(Customer)".
-_PAREN_NAME_RE = re.compile(
+_PAREN_NAME_RE = compile_pattern(
     r"\((?:(?:hereinafter|hereafter)\s+(?:referred\s+to\s+as\s+|called\s+)?)?"
     r"(?:(?:collectively|together|jointly|each|individually),?\s+)?(?:the\s+|an?\s+)?"
     r"(?P<name>" + _CAP_WORD + r"(?:\s+(?:" + _JOINERS + r"\s+)?" + _CAP_WORD + r"){0,4})\)")
 #: "Affiliates (as defined below)", "Content Viewer (as defined in the terms of use)": the
 #: drafter points to a definition.
-_AS_DEFINED_NAME_RE = re.compile(
+_AS_DEFINED_NAME_RE = compile_pattern(
     r"(?P<name>" + _CAP_WORD + r"(?:\s+(?:" + _JOINERS + r"\s+)?" + _CAP_WORD + r"){0,4})"
     r"['’]?s?\s*,?\s*\(?\s*(?:as\s+(?:such\s+|that\s+|the\s+|those\s+)?(?:terms?\s+)?)?(?:is\s+|are\s+)?"
     r"(?:defined|described|set\s+(?:forth|out))\b")
 #: A glossary line: a title-case name, then a colon or a dash ("Participation Obligation -
 #: a licensing obligation ...").
-_GLOSSARY_NAME_RE = re.compile(
+_GLOSSARY_NAME_RE = compile_pattern(
     r"(?m)^[ \t]*(?:[\w.()]{1,6}[ \t]+)?(?P<name>" + _CAP_WORD + r"(?:[ \t]+(?:" + _JOINERS + r"[ \t]+)?"
     + _CAP_WORD + r"){0,4})[ \t]*(?::|[ \t][-\u2013\u2014][ \t])")
-_HEREINAFTER_NAME_RE = re.compile(
+_HEREINAFTER_NAME_RE = compile_pattern(
     r"\b(?:hereinafter|hereafter|(?:is|are)\s+(?:referred\s+to|called|known)(?:\s+herein)?(?:\s+as)?)\s+"
     r"(?:referred\s+to\s+as\s+|called\s+)?(?:the\s+)?"
     r"(?P<name>" + _CAP_WORD + r"(?:\s+(?:" + _JOINERS + r"\s+)?" + _CAP_WORD + r"){0,4})")
 #: "a "commercial item," as that term is defined in ...": a term imported by reference.
-_BY_REFERENCE_RE = re.compile(
+_BY_REFERENCE_RE = compile_pattern(
     r"\bas\s+(?:that|such|the|this|these|those)\s+terms?\s+(?:is|are)\s+(?:defined|used)\b"
     r"|\b(?:has|have)\s+the\s+same\s+meanings?\b"
     r"|\b(?:has|have)\s+the\s+meanings?\s+(?:given|set\s+out|ascribed|assigned)\s+"
     r"(?:to\s+(?:it|them)\s+)?(?:in|under|by)\s+(?!this\b|clause|section|paragraph|schedule)",
     re.IGNORECASE)
 #: "For purposes of the EPL, "Program" will mean ...": a term of another instrument.
-_OTHER_INSTRUMENT_TERM_RE = re.compile(
+_OTHER_INSTRUMENT_TERM_RE = compile_pattern(
     r"\b[Ff]or\s+(?:the\s+)?purposes?\s+of\s+(?:the\s+)?(?!this\b|these\b|This\b)(?P<name>[A-Z][\w-]*)")
 #: Provision kinds whose words are no prose to check: a title, signature blocks.
 _NOT_PROSE = frozenset({"title", "signature"})
@@ -421,7 +423,7 @@ def _masked(text: str, pattern: re.Pattern[str] | None) -> str:
 
 
 _DASHES = "-\u2010\u2011\u2012\u2013\u2014\u2212"
-_DASH_RE = re.compile("[" + _DASHES + "]")
+_DASH_RE = compile_pattern("[" + _DASHES + "]")
 
 
 def _fold(name: str) -> str:
@@ -874,13 +876,13 @@ def unused_definitions(doc: Document, *, document: CheckDocument = "draft") -> t
 
 
 #: An optional ending written in brackets: "Program(s)", "You(r)".
-_OPTIONAL_ENDING_RE = re.compile(r"\((?:s|es|r)\)$")
+_OPTIONAL_ENDING_RE = compile_pattern(r"\((?:s|es|r)\)$")
 #: Characters of a name that a reader takes for no name: "based on [the Program/...]".
-_NOT_A_NAME_RE = re.compile(r"[\[\]/{}<>=]")
+_NOT_A_NAME_RE = compile_pattern(r"[\[\]/{}<>=]")
 
 
-_INNER_HYPHEN_RE = re.compile(r"(?<=[a-z])-(?=[a-z])")
-_NAME_PARTS_RE = re.compile(r"\s+(?:or|and/or)\s+|\s*\(([^()]+)\)\s*$")
+_INNER_HYPHEN_RE = compile_pattern(r"(?<=[a-z])-(?=[a-z])")
+_NAME_PARTS_RE = compile_pattern(r"\s+(?:or|and/or)\s+|\s*\(([^()]+)\)\s*$")
 
 
 def _written_names(t: DefinedTerm) -> list[str]:
@@ -900,7 +902,7 @@ def _written_names(t: DefinedTerm) -> list[str]:
     return out
 
 
-_ALTERNATIVE_RE = re.compile(r"[\"”'’]\s*\((?:or|OR)\s+[\"“'‘](?P<alt>[^\"”'’)]{1,80})")
+_ALTERNATIVE_RE = compile_pattern(r"[\"”'’]\s*\((?:or|OR)\s+[\"“'‘](?P<alt>[^\"”'’)]{1,80})")
 
 
 def _alternative_word(t: DefinedTerm) -> bool:
@@ -965,25 +967,25 @@ def _name_span(text: str, name: str, within: tuple[int, int] | None) -> tuple[in
 
 #: A number typed as a label: at the start of a line ("12.", "(b)", "Section 4", "IV.") or
 #: an item in brackets anywhere ("(iii)").
-_LINE_LABEL_RE = re.compile(
+_LINE_LABEL_RE = compile_pattern(
     r"(?m)^[ \t]*(?:[*\u2022\u00b7-][ \t]*)?(?:(?:section|article|clause|part|schedule|annex|appendix|"
     r"exhibit|attachment|paragraph)[ \t]+)?\(?(?P<label>\d{1,3}(?:\.\d{1,3})*|[A-Za-z]{1,4})(?:[.):]|[ \t]+-)",
     re.IGNORECASE)
-_ITEM_RE = re.compile(r"\((?P<label>\d{1,3}|[A-Za-z]{1,4})\)")
+_ITEM_RE = compile_pattern(r"\((?P<label>\d{1,3}|[A-Za-z]{1,4})\)")
 #: A dotted number run into the paragraph before it after a full stop ("... a Larger
 #: Work. 2.2. PATENT LICENSE"): a label the reader did not part from the words before.
-_RUN_IN_LABEL_RE = re.compile(r"(?<=[.;:\"”)])[ \t]+(?P<label>\d{1,3}(?:\.\d{1,3})+)\.?[ \t]+(?=[A-Z(\"“])")
-_LABEL_KEYWORD_RE = re.compile(
+_RUN_IN_LABEL_RE = compile_pattern(r"(?<=[.;:\"”)])[ \t]+(?P<label>\d{1,3}(?:\.\d{1,3})+)\.?[ \t]+(?=[A-Z(\"“])")
+_LABEL_KEYWORD_RE = compile_pattern(
     r"^\s*(?:section|article|clause|part|schedule|annex|annexure|appendix|exhibit|attachment|"
     r"paragraph|addendum)\s+", re.IGNORECASE)
 #: After a reference: "of" and the name of another instrument ("section 1.13 of OPL.html",
 #: "paragraph 598 (2) of the Austrian Code", "Section 39 of the 1980 Act"), unless it is
 #: this document's own name; or a comma and such a name ("Article 3, *United Nations
 #: Universal Declaration of Human Rights*").
-_OTHER_INSTRUMENT_RE = re.compile(
+_OTHER_INSTRUMENT_RE = compile_pattern(
     r"(?:[ \t]*\(\w{1,4}\))*[ \t]*,?[ \t]*(?:of|in|under)[ \t]+(?:the[ \t]+)?(?:\d{4}[ \t]+)?"
     r"(?P<name>[A-Z][\w.&-]*)")
-_INSTRUMENT_AFTER_RE = re.compile(
+_INSTRUMENT_AFTER_RE = compile_pattern(
     r"[ \t]*,?[ \t]*(?:(?:of|in|under)[ \t]+)?(?:the[ \t]+)?[*_\"“]?"
     r"(?P<name>(?:[A-Z][\w'’-]*[ \t]+(?:(?:of|on|the|and|for)[ \t]+)*){1,10}"
     r"(?:[A-Z][\w'’-]*))")
@@ -991,7 +993,7 @@ _INSTRUMENT_AFTER_RE = re.compile(
 _CITED_WORDS = _INSTRUMENT_WORDS | _BODY_WORDS | frozenset("Code Codes Supplement".split())
 #: Two capitalised words right before a lower-case keyword: the keyword is a part of the
 #: thing they name ("the Time Zone Database section 7").
-_NAME_BEFORE_RE = re.compile(r"[A-Z][\w'’-]*[ \t]+[A-Z][\w'’-]*[ \t]+$")
+_NAME_BEFORE_RE = compile_pattern(r"[A-Z][\w'’-]*[ \t]+[A-Z][\w'’-]*[ \t]+$")
 
 
 def _label(number: str) -> str:
@@ -1220,7 +1222,7 @@ def definitions_changed(review: Review) -> tuple[Check, ...]:
     return tuple(out)
 
 
-_SENTENCE_END_RE = re.compile(r"[.;](?=\s|$)")
+_SENTENCE_END_RE = compile_pattern(r"[.;](?=\s|$)")
 
 
 def _sentence_area(doc: Document, pid: str, span: tuple[int, int] | None) -> tuple[str, tuple[int, int] | None]:

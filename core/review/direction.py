@@ -68,6 +68,7 @@ from functools import lru_cache
 from typing import Final, Protocol
 
 from ..errors import CounterdraftError
+from ..lazyre import compile_pattern
 from ..model import DIRECTIONS, Direction, Document, Provision, TermMapping
 from .classify import BLANK_FILLED
 from .severity import (
@@ -126,7 +127,7 @@ _ROLE_OF_WORD = {w: side for side, words in ROLE_WORDS.items() for w in words}
 _PARTY_WORDS = frozenset(_ROLE_OF_WORD) | _EITHER_SIDE_WORDS
 #: Words that name both parties, or a role either may take: a clause they hold binds each
 #: side alike.
-_MUTUAL_RE = re.compile(
+_MUTUAL_RE = compile_pattern(
     r"\b(?:(?:each|either|both|neither|any|a|the\s+other|each\s+of\s+the|one)\s+part(?:y|ies)(?:'s|\u2019s|s')?"
     r"|(?:the\s+)?parties(?:'|\u2019)?"
     r"|(?:receiving|disclosing|indemnifying|indemnified|affected|defaulting|non-defaulting|"
@@ -134,7 +135,7 @@ _MUTUAL_RE = re.compile(
     re.IGNORECASE)
 #: Words of a definition that describe someone who can be a party (common practice, no
 #: source).
-_PERSON_RE = re.compile(
+_PERSON_RE = compile_pattern(
     r"\b(?:individual|person|legal\s+entity|entity|company|corporation|organi[sz]ation|firm|"
     r"partnership|incorporated|registered|limited|ltd|llc|inc|gmbh|plc|s\.a\.|b\.v\.|"
     r"university|institute|foundation|association)\b", re.IGNORECASE)
@@ -184,11 +185,11 @@ def _is_permission(phrase: str) -> bool:
     return phrase in _PERMISSIONS or _EXTRA_RIGHT_RE.fullmatch(phrase) is not None
 #: Verbs that make their subject promise or give something (a burden), beyond the rule
 #: file's obligation words.
-_EXTRA_DUTY_RE = re.compile(
+_EXTRA_DUTY_RE = compile_pattern(
     r"(?<![\w'])(?:hereby\s+)?(?:grants?|warrants?|represents?|undertakes?|covenants?|agrees?|"
     r"acknowledges?|assumes?|bears?|accrues?|indemnif(?:y|ies)|(?:is|are)\s+(?:liable|responsible|obliged|"
     r"required|bound|due|payable))(?![\w])", re.IGNORECASE)
-_EXTRA_RIGHT_RE = re.compile(
+_EXTRA_RIGHT_RE = compile_pattern(
     r"(?<![\w'])(?:(?:shall|will)\s+(?:not\s+)?(?:be\s+entitled|have\s+the\s+right)\s+to|"
     r"(?:(?:shall|will)\s+(?:not\s+)?have|has|have|retains?)\s+(?:the\s+|no\s+|sole\s+|exclusive\s+|full\s+|absolute\s+)*"
     r"(?:right|control|option|discretion|authority|benefit)s?\b(?:\s+to)?|"
@@ -196,38 +197,40 @@ _EXTRA_RIGHT_RE = re.compile(
     re.IGNORECASE)
 #: A negation right after a modal ("shall not", "may never") or before it ("in no event
 #: shall", "no ... shall").
-_NEG_AFTER_RE = re.compile(r"\s*(?:not\b|never\b|n['\u2019]t\b|in\s+no\s+event\b|under\s+no\s+circumstances\b)",
-                           re.IGNORECASE)
-_NEG_BEFORE_RE = re.compile(r"(?:\b(?:in\s+no\s+event|under\s+no\s+circumstances|neither|nor|no)\s+(?:\S+\s+){0,3})$",
-                            re.IGNORECASE)
+_NEG_AFTER_RE = compile_pattern(r"\s*(?:not\b|never\b|n['\u2019]t\b|in\s+no\s+event\b|under\s+no\s+circumstances\b)",
+                                re.IGNORECASE)
+_NEG_BEFORE_RE = compile_pattern(
+    r"(?:\b(?:in\s+no\s+event|under\s+no\s+circumstances|neither|nor|no)\s+(?:\S+\s+){0,3})$",
+    re.IGNORECASE)
 #: A clause that opens with a negation governing its first modal ("In no event and under no
 #: legal theory ... shall any Contributor be liable").
-_NEG_OPENING_RE = re.compile(r"\s*(?:\(?\w{1,4}[.)]\s*)?(?:in\s+no\s+event|under\s+no\s+circumstances|neither\b|"
-                             r"nothing\b|no\s+(?!later|less|more|fewer)\w+)", re.IGNORECASE)
+_NEG_OPENING_RE = compile_pattern(r"\s*(?:\(?\w{1,4}[.)]\s*)?(?:in\s+no\s+event|under\s+no\s+circumstances|neither\b|"
+                                  r"nothing\b|no\s+(?!later|less|more|fewer)\w+)", re.IGNORECASE)
 #: Words after a negated modal that release from a burden rather than forbid an act
 #: ("shall not be liable", "shall have no obligation").
-_RELEASE_RE = re.compile(
+_RELEASE_RE = compile_pattern(
     r"^(?:\s*(?:not|never|in\s+any\s+event|in\s+no\s+event|under\s+any\s+circumstances))?\s*(?:\w+\s+){0,2}?"
     r"(?:be\s+(?:held\s+)?(?:liable|responsible|obliged|obligated|required|bound)|"
     r"have\s+(?:any|no)\s+(?:liability|obligation|responsibility|duty)|"
     r"(?:liable|responsible|obliged|required|bound)\b|(?:any|no)\s+(?:liability|obligation|responsibility))",
     re.IGNORECASE)
 #: Nouns that, negated ("has no right to"), take a benefit away.
-_RIGHT_NOUN_RE = re.compile(r"^\s*(?:\w+\s+){0,2}?(?:right|rights|licen[cs]e|entitlement|claim|remedy|permission)\b",
-                            re.IGNORECASE)
+_RIGHT_NOUN_RE = compile_pattern(
+    r"^\s*(?:\w+\s+){0,2}?(?:right|rights|licen[cs]e|entitlement|claim|remedy|permission)\b",
+    re.IGNORECASE)
 #: Provisions that carry no terms of the deal: what changes there (a party's address, a
 #: date, the title) favours no one.
 _FORMAL_KINDS = frozenset({"title", "parties", "signature"})
 #: After a party's possessive: what it owes, may do or bears ("Licensee's aggregate
 #: liability", "the Supplier's obligations").
-_OWED_NOUN_RE = re.compile(r"\s+(?:\w+\s+){0,2}?(?:liabilit\w*|obligations?|responsibilit\w*|dut(?:y|ies)|"
-                           r"rights?|remed(?:y|ies)|consent|approval|discretion|option|election|decision)\b",
-                           re.IGNORECASE)
+_OWED_NOUN_RE = compile_pattern(r"\s+(?:\w+\s+){0,2}?(?:liabilit\w*|obligations?|responsibilit\w*|dut(?:y|ies)|"
+                                r"rights?|remed(?:y|ies)|consent|approval|discretion|option|election|decision)\b",
+                                re.IGNORECASE)
 #: Modal phrases of money owed, whose holder is its payer (:meth:`Judge._payer`).
-_MONEY_PHRASE_RE = re.compile(r"(?:is|are)\s+(?:due|payable|refundable)|accrues?", re.IGNORECASE)
+_MONEY_PHRASE_RE = compile_pattern(r"(?:is|are)\s+(?:due|payable|refundable)|accrues?", re.IGNORECASE)
 #: Words that open a condition: a change inside one moves when the clause applies.
-_CONDITION_RE = re.compile(r"\b(?:if|where|when|whenever|in\s+the\s+event|provided\s+that|upon|"
-                           r"in\s+case|on\s+the\s+occurrence)\b", re.IGNORECASE)
+_CONDITION_RE = compile_pattern(r"\b(?:if|where|when|whenever|in\s+the\s+event|provided\s+that|upon|"
+                                r"in\s+case|on\s+the\s+occurrence)\b", re.IGNORECASE)
 
 # -- qualifiers, carve-outs, figures ----------------------------------------------------
 #: Qualifiers that soften what they qualify (a duty is lighter, a right's trigger harder to
@@ -243,41 +246,42 @@ _TIGHTENERS = ("promptly", "without undue delay", "immediately", "best efforts",
                "strictly", "at all times", "in full")
 _DISCRETION = ("sole discretion", "absolute discretion", "sole and absolute discretion",
                "at its option", "discretion")
-_QUALIFIER_WORD_RE = re.compile(r"\b(?:" + "|".join(
+_QUALIFIER_WORD_RE = compile_pattern(r"\b(?:" + "|".join(
     r"\s+".join(map(re.escape, q.split())) for q in sorted({*_SOFTENERS, *_TIGHTENERS}, key=len, reverse=True))
     + r")\b", re.IGNORECASE)
 #: Words that cut an exception out of what a clause says (common practice, no source).
-_CARVE_OUT_RE = re.compile(r"\b(?:except|excepting|unless|provided\s+that|provided\s+however|save\s+"
-                           r"(?:as|that|for|where)|other\s+than|subject\s+to|to\s+the\s+extent|excluding|"
-                           r"solely|only|but\s+not|limited\s+to|up\s+to|not\s+exceed\w*|in\s+excess\s+of|"
-                           r"no\s+more\s+than|not\s+more\s+than|maximum|cap(?:ped)?)\b", re.IGNORECASE)
+_CARVE_OUT_RE = compile_pattern(r"\b(?:except|excepting|unless|provided\s+that|provided\s+however|save\s+"
+                                r"(?:as|that|for|where)|other\s+than|subject\s+to|to\s+the\s+extent|excluding|"
+                                r"solely|only|but\s+not|limited\s+to|up\s+to|not\s+exceed\w*|in\s+excess\s+of|"
+                                r"no\s+more\s+than|not\s+more\s+than|maximum|cap(?:ped)?)\b", re.IGNORECASE)
 #: Words that widen what a clause covers.
-_WIDEN_RE = re.compile(r"\b(?:including|includes|any\s+and\s+all|and/or|without\s+limitation|"
-                       r"whatsoever|howsoever|all|any|every|each|indirect|consequential)\b",
-                       re.IGNORECASE)
+_WIDEN_RE = compile_pattern(r"\b(?:including|includes|any\s+and\s+all|and/or|without\s+limitation|"
+                            r"whatsoever|howsoever|all|any|every|each|indirect|consequential)\b",
+                            re.IGNORECASE)
 #: Words that add an item to a list (", defend", "or lost data", "A and"): the clause
 #: covers more.
-_LIST_ITEM_RE = re.compile(r"^\s*(?:,|and\b|or\b|as\s+well\s+as\b)|(?:,|\band|\bor)\s*$", re.IGNORECASE)
+_LIST_ITEM_RE = compile_pattern(r"^\s*(?:,|and\b|or\b|as\s+well\s+as\b)|(?:,|\band|\bor)\s*$", re.IGNORECASE)
 #: Before a period: a deadline (more time helps whoever must act) ...
-_DEADLINE_RE = re.compile(r"\b(?:within|no\s+later\s+than|not\s+later\s+than|by|before|"
-                          r"prior\s+to(?:\s+the\s+end\s+of)?|net|"
-                          r"up\s+to|at\s+the\s+latest|no\s+more\s+than|not\s+more\s+than)\s*$", re.IGNORECASE)
+_DEADLINE_RE = compile_pattern(r"\b(?:within|no\s+later\s+than|not\s+later\s+than|by|before|"
+                               r"prior\s+to(?:\s+the\s+end\s+of)?|net|"
+                               r"up\s+to|at\s+the\s+latest|no\s+more\s+than|not\s+more\s+than)\s*$", re.IGNORECASE)
 #: ... how long a duty or right lasts ("for no less than three (3) years", "for a period of")
-_DURATION_RE = re.compile(r"\b(?:for|during|period\s+of|term\s+of|lasting)\s+(?:a\s+(?:further\s+)?period\s+of\s+)?"
+_DURATION_RE = compile_pattern(
+    r"\b(?:for|during|period\s+of|term\s+of|lasting)\s+(?:a\s+(?:further\s+)?period\s+of\s+)?"
                           r"(?:at\s+least|no\s+less\s+than|not\s+less\s+than|up\s+to|a\s+minimum\s+of)?\s*$",
-                          re.IGNORECASE)
+    re.IGNORECASE)
 #: ... a notice or waiting period (a longer one burdens whoever must give or wait for it) ...
-_NOTICE_RE = re.compile(r"(?:\b(?:notice|prior|advance|in\s+advance|at\s+least|not\s+less\s+than|"
-                        r"no\s+less\s+than|minimum\s+of|after|following)\b)", re.IGNORECASE)
+_NOTICE_RE = compile_pattern(r"(?:\b(?:notice|prior|advance|in\s+advance|at\s+least|not\s+less\s+than|"
+                             r"no\s+less\s+than|minimum\s+of|after|following)\b)", re.IGNORECASE)
 #: ... words that say what a figure limits ("shall not exceed", "up to", "a maximum of").
-_LIMIT_RE = re.compile(r"\b(?:exceed\w*|up\s+to|maximum|max|cap(?:ped)?|limit(?:ed)?|in\s+excess\s+of|"
-                       r"more\s+than|greater\s+than|at\s+most)\b", re.IGNORECASE)
+_LIMIT_RE = compile_pattern(r"\b(?:exceed\w*|up\s+to|maximum|max|cap(?:ped)?|limit(?:ed)?|in\s+excess\s+of|"
+                            r"more\s+than|greater\s+than|at\s+most)\b", re.IGNORECASE)
 #: ... and words of money or liability: a figure that measures a burden of whoever pays.
-_PAYMENT_RE = re.compile(r"\b(?:pay\w*|paid|fees?|price|charges?|costs?|interest|royalt\w+|"
-                         r"compensat\w+|damages|penalt\w+|liab\w+|sum|amounts?|refund\w*|"
-                         r"reimburs\w+|invoice\w*|deposit)\b", re.IGNORECASE)
-_RECEIVE_RE = re.compile(r"\b(?:charge|invoice|receive|recover|claim|collect|be\s+paid|be\s+entitled)\b",
-                         re.IGNORECASE)
+_PAYMENT_RE = compile_pattern(r"\b(?:pay\w*|paid|fees?|price|charges?|costs?|interest|royalt\w+|"
+                              r"compensat\w+|damages|penalt\w+|liab\w+|sum|amounts?|refund\w*|"
+                              r"reimburs\w+|invoice\w*|deposit)\b", re.IGNORECASE)
+_RECEIVE_RE = compile_pattern(r"\b(?:charge|invoice|receive|recover|claim|collect|be\s+paid|be\s+entitled)\b",
+                              re.IGNORECASE)
 #: Characters before a figure read for the words that say what it is.
 _FIGURE_CONTEXT = 60
 
@@ -349,7 +353,7 @@ def _named_company(term: str, text: str) -> bool:
 
 
 #: A name in quotation marks (straight or curly, double or single).
-_QUOTED_RE = re.compile(r"[\"\u201c\u2018']([^\"\u201c\u201d\u2018\u2019'\n]{1,80})[\"\u201d\u2019']")
+_QUOTED_RE = compile_pattern(r"[\"\u201c\u2018']([^\"\u201c\u201d\u2018\u2019'\n]{1,80})[\"\u201d\u2019']")
 
 
 def _quoted(term: str, text: str) -> Iterator[re.Match[str]]:
@@ -555,8 +559,8 @@ class JudgedChange(Protocol):
 
 #: A clause that only qualifies the one before it ("; provided that ...", "; and ..."):
 #: read with it.
-_PROVISO_RE = re.compile(r"\s*(?:\([a-z0-9]{1,4}\)\s*)?(?:provided|but|and|or|unless|except|save|subject|"
-                         r"in\s+which\s+case|failing\s+which)\b", re.IGNORECASE)
+_PROVISO_RE = compile_pattern(r"\s*(?:\([a-z0-9]{1,4}\)\s*)?(?:provided|but|and|or|unless|except|save|subject|"
+                              r"in\s+which\s+case|failing\s+which)\b", re.IGNORECASE)
 
 
 def _clause_bounds(text: str, span: tuple[int, int]) -> tuple[int, int]:

@@ -29,11 +29,11 @@ scans its span only, O(span + log of the skipped spans); O(figures) to compare.
 from __future__ import annotations
 
 import difflib
-import re
 from bisect import bisect_right
 from collections.abc import Sequence
 from functools import lru_cache
 
+from ..lazyre import compile_pattern
 from .noise import label_spans
 from .tokens import find_cross_references
 
@@ -42,11 +42,11 @@ __all__ = ["FIGURE_RE", "NumberSkips", "clear_skip_cache", "figure_reasons", "fi
 
 #: A figure: digits with the separators figures are written with (thousands, decimals,
 #: versions, dates, times, ranges); dashes of any style.
-FIGURE_RE = re.compile(r"\d+(?:[.,:/\-\u2010-\u2015\u2212]\d+)*")
-_DIGIT_RE = re.compile(r"\d")
-_DASH_RE = re.compile(r"[\u2010-\u2015\u2212]")
+FIGURE_RE = compile_pattern(r"\d+(?:[.,:/\-\u2010-\u2015\u2212]\d+)*")
+_DIGIT_RE = compile_pattern(r"\d")
+_DASH_RE = compile_pattern(r"[\u2010-\u2015\u2212]")
 #: A thousands separator: a comma followed by exactly three digits ("1,000" is 1000).
-_THOUSANDS_RE = re.compile(r"(?<=\d),(?=\d{3}(?!\d))")
+_THOUSANDS_RE = compile_pattern(r"(?<=\d),(?=\d{3}(?!\d))")
 
 
 #: Characters a figure is written with (FIGURE_RE): a scan may start or stop anywhere outside

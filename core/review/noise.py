@@ -13,6 +13,8 @@ from __future__ import annotations
 import re
 from functools import lru_cache
 
+from ..lazyre import compile_pattern
+
 __all__ = [
     "BLANK_RE",
     "blank_at",
@@ -35,22 +37,22 @@ _REFERRING = ("clause", "clauses", "section", "sections", "paragraph", "paragrap
 #: the label itself, so that the regular-expression engine skips to the candidates (a
 #: pattern that starts with a look-behind is tried at every position: ten times slower);
 #: the context before it is checked apart.
-_LETTER_LABEL_RE = re.compile(rf"\(\s?{_LETTER_ITEM}\s?\)(?=[\s,;:.]|$)", re.IGNORECASE)
-_REFERRING_BEFORE_RE = re.compile(r"\b(?:" + "|".join(map(re.escape, _REFERRING)) + r")\s*$",
-                                  re.IGNORECASE)
+_LETTER_LABEL_RE = compile_pattern(rf"\(\s?{_LETTER_ITEM}\s?\)(?=[\s,;:.]|$)", re.IGNORECASE)
+_REFERRING_BEFORE_RE = compile_pattern(r"\b(?:" + "|".join(map(re.escape, _REFERRING)) + r")\s*$",
+                                       re.IGNORECASE)
 #: A numbered label in brackets, "(2)", only where a list item starts: at the start of the
 #: text or a line, or after ":", ";", "," or "and" / "or" ("thirty (30) days" repeats a
 #: figure; "Section 4(2)" refers to an item).
-_NUMBER_LABEL_RE = re.compile(r"\(\s?\d{1,3}\s?\)(?=[\s,;:]|$)")
-_LIST_START_BEFORE_RE = re.compile(r"(?:^|[\n:;,]|\band|\bor|\bnor)[ \t\u00a0]*$")
+_NUMBER_LABEL_RE = compile_pattern(r"\(\s?\d{1,3}\s?\)(?=[\s,;:]|$)")
+_LIST_START_BEFORE_RE = compile_pattern(r"(?:^|[\n:;,]|\band|\bor|\bnor)[ \t\u00a0]*$")
 #: A label ending in "." or ")" ("b.", "iv)", "2.", "2.1", "2.1.3"), at the start of the
 #: text or a line, or after the end of a sentence (:data:`_SENTENCE_START_RE`); also when
 #: glued to the next word ("2.Scope").  A bare letter needs the full stop or bracket ("a"
 #: alone is a word).
-_DOTTED_LABEL_RE = re.compile(
+_DOTTED_LABEL_RE = compile_pattern(
     rf"[ \t\u00a0]*(?P<label>{_ITEM}[.)](?:\d{{1,3}}[.)]?)*|\d{{1,3}}(?:\.\d{{1,3}})+)"
     r"(?=\s|[A-Z]|$)", re.IGNORECASE)
-_SENTENCE_START_RE = re.compile(r"\n|[.:;]\s")
+_SENTENCE_START_RE = compile_pattern(r"\n|[.:;]\s")
 #: Characters looked at before a label in brackets for its context.
 _CONTEXT_CHARS = 20
 
@@ -97,13 +99,13 @@ def _label_spans(text: str) -> tuple[tuple[int, int], ...]:
 #: "<name of author>"), a line of at least three underscores or of at least four dots (or
 #: two ellipsis characters), as templates leave them to be filled in.
 _BLANK = r"\[[^\[\]\n]{0,80}\]|<[^<>\n]{1,80}>|_{3,}|\.{4,}|\u2026{2,}"
-BLANK_RE = re.compile(_BLANK)
+BLANK_RE = compile_pattern(_BLANK)
 #: The changed words are blanks only (several blanks with separators between them count).
-_BLANKS_ONLY_RE = re.compile(rf"(?:(?:{_BLANK})[\s,;:.]*(?:(?:and|or)\s+)?)+")
+_BLANKS_ONLY_RE = compile_pattern(rf"(?:(?:{_BLANK})[\s,;:.]*(?:(?:and|or)\s+)?)+")
 #: An empty field of a form: "Name:" (a label of at most four words and a colon) with
 #: nothing after it on its line.
-_FIELD_RE = re.compile(r"[ \t]*[A-Za-z][\w.'\u2019 ]{0,40}:")
-_FIELD_AFTER_RE = re.compile(r"[ \t]*(?:\n|$)")
+_FIELD_RE = compile_pattern(r"[ \t]*[A-Za-z][\w.'\u2019 ]{0,40}:")
+_FIELD_AFTER_RE = compile_pattern(r"[ \t]*(?:\n|$)")
 
 
 def blank_at(text: str, span: tuple[int, int]) -> tuple[int, int] | None:

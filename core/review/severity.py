@@ -32,6 +32,7 @@ from pathlib import Path
 from typing import Any, Protocol, TypeVar
 
 from ..errors import CounterdraftError
+from ..lazyre import compile_pattern
 from ..model import Document, Provision
 from .figures import number_skips
 
@@ -301,7 +302,7 @@ _QUANTITY_BODY = (
 #: the body does): the look-ahead says so first, and the search skips the other positions
 #: about twice as fast, with the same matches (tested against the body alone).
 _QUANTITY_START = r"(?=[£$€\d]|\b\w)"
-_QUANTITY_RE = re.compile(_QUANTITY_START + _QUANTITY_BODY, re.IGNORECASE)
+_QUANTITY_RE = compile_pattern(_QUANTITY_START + _QUANTITY_BODY, re.IGNORECASE)
 _MULT = {"million": 10**6, "m": 10**6, "billion": 10**9, "bn": 10**9, "thousand": 1000, "k": 1000}
 _CURRENCY_CODE = {"£": "GBP", "$": "USD", "€": "EUR", "pounds": "GBP", "pounds sterling": "GBP",
                   "sterling": "GBP", "dollars": "USD", "euros": "EUR"}
@@ -457,15 +458,17 @@ def _find_quantities(text: str, lo: int = 0, hi: int | None = None) -> list[Quan
 # ----------------------------------------------------------------------------------------
 
 def _phrase_re(phrases: Sequence[str]) -> re.Pattern[str]:
+    """A pattern of the rule file's *phrases* (fixed for an installation, so its compiled
+    program is kept: :func:`core.lazyre.compile_pattern`)."""
     alts = sorted(set(phrases), key=len, reverse=True)
     body = "|".join(r"\s+".join(map(re.escape, p.split())) for p in alts)
-    return re.compile(r"(?<![\w'])(?:" + body + r")(?![\w])", re.IGNORECASE)
+    return compile_pattern(r"(?<![\w'])(?:" + body + r")(?![\w])", re.IGNORECASE)
 
 
 #: An efforts obligation in any of its drafting forms: "shall use reasonable endeavours to",
 #: "will use its commercially reasonable efforts to", "agrees to use best efforts to".  The
 #: words between "use" and "efforts" set the standard (:data:`EFFORTS_LEVELS`).
-_EFFORTS_RE = re.compile(
+_EFFORTS_RE = compile_pattern(
     r"(?<![\w'])(?:(?:shall|will|must|should|agrees?\s+to|undertakes?\s+to)\s+)?use\s+"
     r"(?P<std>(?:(?:its|their|his|her|all|every|commercially|reasonable|best|good|faith|diligent|"
     r"utmost|prudent|practicable|own|and|its\s+own)\s+){0,5}?)(?:efforts|endeavou?rs)(?:\s+to\b)?",
@@ -699,9 +702,9 @@ def _efforts_signals(rules: SeverityRules, p_text: str, p_span: Span, d_text: st
 #: ("and" -> "or") can change who must do what, or how much (common practice, no source).
 CONJUNCTIONS = frozenset({"and", "or", "and/or", "nor", "any", "all", "each", "either", "every",
                           "both", "some"})
-_CONJ_TOKEN_RE = re.compile(r"and/or|\w+", re.IGNORECASE)
+_CONJ_TOKEN_RE = compile_pattern(r"and/or|\w+", re.IGNORECASE)
 #: Sentence breaks: after ".", "!", "?" or ";" followed by white space, or a line break.
-_SENTENCE_BREAK_RE = re.compile(r"(?<=[.!?;])\s+|\n+")
+_SENTENCE_BREAK_RE = compile_pattern(r"(?<=[.!?;])\s+|\n+")
 
 
 @lru_cache(maxsize=256)
@@ -744,10 +747,10 @@ def _conjunction_signals(rules: SeverityRules, p_text: str, p_span: Span, d_text
 
 
 #: Words of a choice of law or of a forum for disputes (common practice, no source).
-_LAW_FORUM_RE = re.compile(
+_LAW_FORUM_RE = compile_pattern(
     r"\b(?:governed\s+by|governing\s+law|laws?\s+of|construed\s+in\s+accordance|jurisdictions?|"
     r"courts?\s+of|tribunals?|venue|forum|arbitrat\w*|seat\s+of)\b", re.IGNORECASE)
-_LAW_RE = re.compile(r"\b(?:governed|governing\s+law|laws?\s+of|construed)\b", re.IGNORECASE)
+_LAW_RE = compile_pattern(r"\b(?:governed|governing\s+law|laws?\s+of|construed)\b", re.IGNORECASE)
 #: Clause types whose every change of words is a change of law or forum.
 LAW_FORUM_TYPES = frozenset({"governing_law", "dispute_resolution"})
 #: Characters between a changed word and a word of law or forum for the change to count as
@@ -785,9 +788,10 @@ def _law_forum_signal(p_text: str, p_span: Span, d_text: str, d_span: Span, clau
     return Signal("law_or_forum_changed", f"{what} changed: {_excerpt(pw)} removed")
 
 
-_INTEREST_RE = re.compile(r"\b(?:interest|late(?:-|\s+)(?:payment\s+)?(?:charges?|fees?))\b", re.IGNORECASE)
-_LATE_RE = re.compile(r"\b(?:late|overdue|unpaid|outstanding|due\s+date|arrears|not\s+paid|when\s+due|past\s+due)\b",
-                      re.IGNORECASE)
+_INTEREST_RE = compile_pattern(r"\b(?:interest|late(?:-|\s+)(?:payment\s+)?(?:charges?|fees?))\b", re.IGNORECASE)
+_LATE_RE = compile_pattern(
+    r"\b(?:late|overdue|unpaid|outstanding|due\s+date|arrears|not\s+paid|when\s+due|past\s+due)\b",
+    re.IGNORECASE)
 
 
 def _interest_signals(d_text: str, d_span: Span, signals: list[Signal]) -> list[Signal]:
@@ -809,7 +813,7 @@ def _interest_signals(d_text: str, d_span: Span, signals: list[Signal]) -> list[
     return out
 
 
-_WORD_RE = re.compile(r"\w+")
+_WORD_RE = compile_pattern(r"\w+")
 #: Longest quotation of the changed words in a reason (characters): long enough for a
 #: phrase, short enough that a reason stays a glance in the report and the deviation list (a
 #: layout choice, no source).
@@ -854,7 +858,7 @@ def _type_reason(clause_type: str | None, kind: str, weight: float) -> str | Non
     return None
 
 
-_WEIGHT_REASON = re.compile(r" \(weight [^()]*\)$")
+_WEIGHT_REASON = compile_pattern(r" \(weight [^()]*\)$")
 
 
 def is_weight_reason(reason: str) -> bool:

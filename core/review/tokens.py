@@ -21,6 +21,7 @@ from itertools import accumulate
 from operator import itemgetter
 from typing import cast
 
+from ..lazyre import compile_pattern
 from ..terms import REGEX_FORMS_MAX, CharTrie, char_trie, term_owners, walk_forms
 
 __all__ = [
@@ -64,7 +65,7 @@ _FOLD = str.maketrans({**QUOTES, **DASHES})
 # parts of "party's"), then runs of white space, then the typewriter and TeX spelling of
 # double quotation marks (two backticks open, two apostrophes close: ``x''), then any other
 # single character.
-_TOKEN_RE = re.compile(r"\d+(?:[.,]\d+)*|\w+(?:['\u2019]\w+)*|\s+|``|''|[^\w\s]")
+_TOKEN_RE = compile_pattern(r"\d+(?:[.,]\d+)*|\w+(?:['\u2019]\w+)*|\s+|``|''|[^\w\s]")
 #: Two-character spellings of a double quotation mark (TeX and typewriter usage: ``x''),
 #: folded onto '"' like the curly quotes.
 TEX_QUOTES = {"``": '"', "''": '"'}
@@ -427,7 +428,7 @@ def count_term_uses(bts: Iterable[BaseTokens]) -> dict[str, int]:
 #: Words that introduce a reference to a numbered part of the agreement (common practice
 #: in English-language contracts, no source).  The references themselves are found by
 #: :func:`core.xrefs.find_references`, which knows more keywords and forms.
-XREF_KEYWORD_RE = re.compile(
+XREF_KEYWORD_RE = compile_pattern(
     r"\b(?:[Cc]lauses?|CLAUSES?|[Ss]ections?|SECTIONS?|[Pp]aragraphs?|[Ss]ub-?clauses?|"
     r"[Ss]ub-?paragraphs?|[Aa]rticles?|[Ss]chedules?|[Aa]nnex(?:es)?|[Aa]ppendi(?:x|ces)|"
     r"[Pp]arts?)\s+(?=\d)"
