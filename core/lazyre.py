@@ -31,7 +31,7 @@ import sys
 from re import _compiler, _parser  # type: ignore[attr-defined]
 from typing import Any
 
-__all__ = ["LazyPattern", "compile_pattern", "lazy_compile"]
+__all__ = ["LazyPattern", "compile_pattern", "lazy_compile", "save_programs"]
 
 #: One pattern's compiled program: (flags, code, groups - 1, group index, index group) as
 #: ``_sre.compile`` takes them.
@@ -51,27 +51,29 @@ class _Store:
         self.programs: dict[tuple[str, int], _Program] | None = None
         self.added = 0
 
+    def _read(self) -> dict[tuple[str, int], _Program]:
+        try:
+            with open(self.path, "rb") as f:
+                data = marshal.load(f)
+        except (OSError, EOFError, ValueError, TypeError):
+            return {}
+        return data if isinstance(data, dict) else {}
+
     def load(self) -> dict[tuple[str, int], _Program]:
         if self.programs is None:
-            self.programs = {}
-            try:
-                with open(self.path, "rb") as f:
-                    data = marshal.load(f)
-                if isinstance(data, dict):
-                    self.programs = data
-            except (OSError, EOFError, ValueError, TypeError):
-                pass
+            self.programs = self._read()
         return self.programs
 
     def save(self) -> None:
-        """Write the programs when this process added any (and bytecode may be written)."""
+        """Write the programs when this process added any (and bytecode may be written),
+        with those another process wrote meanwhile."""
         if not self.added or self.programs is None or sys.dont_write_bytecode:
             return
         part = f"{self.path}.{os.getpid()}.part"
         try:
             os.makedirs(os.path.dirname(self.path), exist_ok=True)
             with open(part, "wb") as f:
-                marshal.dump(self.programs, f)
+                marshal.dump({**self._read(), **self.programs}, f)
             os.replace(part, self.path)
             self.added = 0
         except OSError:
@@ -83,6 +85,12 @@ class _Store:
 
 _STORE = _Store(STORE_PATH)
 atexit.register(_STORE.save)
+
+
+def save_programs() -> None:
+    """Write the programs this process computed (at exit; a forked child, which leaves
+    without running exit handlers, calls it itself)."""
+    _STORE.save()
 
 
 def _program(pattern: str, flags: int) -> _Program:

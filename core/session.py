@@ -36,6 +36,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Literal, Protocol
 
 from .errors import CounterdraftError
+from .parallel import side_by_side
 
 if TYPE_CHECKING:
     from .decisions import Decision, ReviewFile
@@ -148,11 +149,9 @@ def read_documents(draft: str | os.PathLike[str], precedent: str | os.PathLike[s
         report(0, None, "Reading the precedent set's formatted agreements")
         structure, notes = structure_for(draft, library)
         check_cancelled(cancelled)
-    report(0, None, f"Reading {Path(draft).name}")
-    draft_doc = read(draft, structure=structure, cache=True)
-    check_cancelled(cancelled)
-    report(0, None, f"Reading {Path(precedent).name}")
-    precedent_doc = read(precedent, cache=True)
+    report(0, None, f"Reading {Path(draft).name} and {Path(precedent).name}")
+    precedent_doc, draft_doc = side_by_side(lambda: read(precedent, cache=True),
+                                            lambda: read(draft, structure=structure, cache=True))
     check_cancelled(cancelled)
     return Documents(draft_doc, precedent_doc, tuple(notes))
 

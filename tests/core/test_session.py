@@ -72,7 +72,7 @@ def _full_run(folder: Path, report: session.Report, cancelled: session.IsCancell
 
 
 #: The stages of a review with a precedent set, in order, as their first message starts.
-STAGES = ("Reading draft.docx", "Reading precedent.docx", "Indexing the precedent set",
+STAGES = ("Reading draft.docx and precedent.docx", "Indexing the precedent set",
           "Comparing provisions", "Counting wordings in the precedent set")
 
 

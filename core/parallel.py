@@ -1,0 +1,105 @@
+"""Two independent steps on two processor cores: one in a forked child process, the other
+here, at the same time.
+
+A review's long steps come in pairs that share nothing: reading the draft and reading the
+precedent; the draft's own drafting checks and the comparison.  Where the operating system
+can fork (Linux) and this process runs no other thread (forking a process whose other
+threads hold locks can leave the child stuck: the window's worker thread reviews in line), the
+child runs one step and sends its result back pickled through a pipe, while this process runs
+the other.  Anything that goes wrong in the child (it dies, its result cannot be pickled) makes
+this process run the step itself, so a result never depends on the child: the same calls give
+the same values either way, only sooner.  An exception the step raises in the child is raised
+here.
+"""
+
+from __future__ import annotations
+
+import os
+import pickle
+import sys
+import threading
+from collections.abc import Callable
+from typing import TypeVar
+
+from .lazyre import save_programs
+
+__all__ = ["can_fork", "side_by_side"]
+
+_A = TypeVar("_A")
+_B = TypeVar("_B")
+
+#: Set to "0" to run every step in this process (debugging, profiling).
+PARALLEL_ENV = "COUNTERDRAFT_PARALLEL"
+
+
+def can_fork() -> bool:
+    """Whether a step may run in a forked child: Linux, a single thread, not switched off."""
+    return (sys.platform.startswith("linux") and hasattr(os, "fork")
+            and threading.active_count() == 1 and os.environ.get(PARALLEL_ENV, "1") != "0")
+
+
+def side_by_side(beside: Callable[[], _A], here: Callable[[], _B]) -> tuple[_A, _B]:
+    """``(beside(), here())``, with *beside* run in a forked child process while *here* runs
+    in this one when :func:`can_fork`; both in this process, *here* first, otherwise (so an
+    exception of *here* is the one raised either way)."""
+    if not can_fork():
+        return _in_turn(beside, here)
+    read_fd, write_fd = os.pipe()
+    try:
+        pid = os.fork()
+    except OSError:
+        os.close(read_fd)
+        os.close(write_fd)
+        return _in_turn(beside, here)
+    if pid == 0:  # the child: run, send, leave without running this process's exit handlers
+        os.close(read_fd)
+        _child(beside, write_fd)
+    os.close(write_fd)
+    try:
+        mine = here()
+    finally:
+        data = _read_all(read_fd)
+        os.waitpid(pid, 0)
+    return _result(data, beside), mine
+
+
+def _in_turn(beside: Callable[[], _A], here: Callable[[], _B]) -> tuple[_A, _B]:
+    mine = here()
+    return beside(), mine
+
+
+def _child(step: Callable[[], object], fd: int) -> None:
+    status = 0
+    try:
+        try:
+            payload = pickle.dumps((True, step()), protocol=pickle.HIGHEST_PROTOCOL)
+        except BaseException as exc:  # sent back and raised there
+            payload = pickle.dumps((False, exc), protocol=pickle.HIGHEST_PROTOCOL)
+        with os.fdopen(fd, "wb") as out:
+            out.write(payload)
+        save_programs()
+    except BaseException:
+        status = 1
+    finally:
+        os._exit(status)
+
+
+def _read_all(fd: int) -> bytes:
+    chunks = []
+    with os.fdopen(fd, "rb") as pipe:
+        while chunk := pipe.read(1 << 20):
+            chunks.append(chunk)
+    return b"".join(chunks)
+
+
+def _result(data: bytes, step: Callable[[], _A]) -> _A:
+    """The child's result, or its exception raised; the step run here when the child sent
+    nothing usable."""
+    try:
+        ok, value = pickle.loads(data)
+    except Exception:
+        return step()
+    if not ok:
+        raise value
+    result: _A = value
+    return result
