@@ -69,17 +69,17 @@ def _in_turn(beside: Callable[[], _A], here: Callable[[], _B]) -> tuple[_A, _B]:
 
 
 def _child(step: Callable[[], object], fd: int) -> None:
-    status = 0
+    status = 1
     try:
         try:
-            payload = pickle.dumps((True, step()), protocol=pickle.HIGHEST_PROTOCOL)
+            outcome: tuple[bool, object] = (True, step())
         except BaseException as exc:  # sent back and raised there
-            payload = pickle.dumps((False, exc), protocol=pickle.HIGHEST_PROTOCOL)
+            outcome = (False, exc)
+        payload = pickle.dumps(outcome, protocol=pickle.HIGHEST_PROTOCOL)  # unpicklable: nothing sent
         with os.fdopen(fd, "wb") as out:
             out.write(payload)
         save_programs()
-    except BaseException:
-        status = 1
+        status = 0
     finally:
         os._exit(status)
 

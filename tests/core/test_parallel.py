@@ -1,0 +1,83 @@
+"""Two steps side by side (:mod:`core.parallel`): the same values as running them in turn,
+whatever happens to the child process.  Reference: the two calls made directly, here."""
+
+from __future__ import annotations
+
+import os
+import threading
+
+import pytest
+
+from core import parallel
+from core.errors import CounterdraftError
+from core.parallel import can_fork, side_by_side
+
+pytestmark = pytest.mark.skipif(not can_fork(), reason="forks only on Linux, from a single thread")
+
+
+def _words(n: int) -> list[str]:
+    return [f"clause-{i}" for i in range(n)]
+
+
+def test_values_are_those_of_the_calls_made_here() -> None:
+    got = side_by_side(lambda: _words(50_000), lambda: sorted(_words(10), reverse=True))
+    assert got == (_words(50_000), sorted(_words(10), reverse=True))
+
+
+def test_the_step_beside_runs_in_another_process() -> None:
+    child, here = side_by_side(os.getpid, os.getpid)
+    assert here == os.getpid() and child != here
+
+
+def test_an_error_of_the_step_beside_is_raised_here() -> None:
+    def bad() -> None:
+        raise CounterdraftError("precedent.docx: not a .docx file")
+
+    with pytest.raises(CounterdraftError, match="precedent.docx: not a .docx file"):
+        side_by_side(bad, lambda: 1)
+
+
+def test_an_error_here_wins_and_the_child_is_collected() -> None:
+    def bad() -> int:
+        raise CounterdraftError("draft.docx: damaged")
+
+    with pytest.raises(CounterdraftError, match="draft.docx"):
+        side_by_side(lambda: 2, bad)
+    with pytest.raises(ChildProcessError):
+        os.waitpid(-1, os.WNOHANG)  # no child left behind
+
+
+def test_a_child_that_dies_leaves_the_step_to_this_process() -> None:
+    calls = []
+
+    def step() -> str:
+        calls.append(os.getpid())
+        if os.getpid() != parent:
+            os._exit(3)  # the child dies without a word
+        return "read here"
+
+    parent = os.getpid()
+    assert side_by_side(step, lambda: "mine") == ("read here", "mine")
+    assert calls == [parent]  # the child's own call is not in this process's list
+
+
+def test_a_result_that_cannot_be_pickled_is_computed_here() -> None:
+    got, _ = side_by_side(lambda: (lambda: "a function is no picklable value"), lambda: None)
+    assert got() == "a function is no picklable value"
+
+
+def test_with_another_thread_running_both_steps_run_here(monkeypatch) -> None:
+    stop = threading.Event()
+    worker = threading.Thread(target=stop.wait)
+    worker.start()
+    try:
+        assert not can_fork()
+        assert side_by_side(os.getpid, os.getpid) == (os.getpid(), os.getpid())
+    finally:
+        stop.set()
+        worker.join()
+
+
+def test_switched_off_by_the_environment(monkeypatch) -> None:
+    monkeypatch.setenv(parallel.PARALLEL_ENV, "0")
+    assert side_by_side(os.getpid, os.getpid) == (os.getpid(), os.getpid())
