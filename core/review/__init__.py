@@ -62,8 +62,9 @@ from ..model import (
     Review,
     TermMapping,
 )
+from ..parallel import side_by_side
 from .align import Alignment, Features, Group, align
-from .checks import review_checks
+from .checks import document_words, review_checks
 from .classify import Change, TermContext, WordChange, classify_ops
 from .figures import figure_reasons, figures_in
 from .serialize import review_to_dict
@@ -336,7 +337,6 @@ def run_review(draft: Document, precedent: Document, *,
     *timings* is given it receives each stage's wall-clock time in seconds (for
     ``benchmarks/bench_review.py``); *stage* is told, in a few words, what the review is doing
     as each step starts (for a progress bar)."""
-    clock = _Clock(timings)
     stage = stage or (lambda _what: None)
     stage("reading the words and defined terms")
     rules = rules or default_rules()
@@ -344,6 +344,33 @@ def run_review(draft: Document, precedent: Document, *,
         from .direction import resolve_acting_for
 
         acting_for = resolve_acting_for(precedent, acting_for)
+
+    def compare() -> Review:
+        return _compare(draft, precedent, overrides=overrides, vocabulary=vocabulary, rules=rules,
+                        clause_type=clause_type, acting_for=acting_for, clock=clock, stage=stage)
+
+    clock = _Clock(timings)
+    if sum(len(p.text) for p in draft.provisions) >= PARALLEL_CHECKS_MIN_CHARS:
+        words, review = side_by_side(lambda: document_words(draft), compare)
+    else:
+        words, review = None, compare()
+    review = replace(review, checks=review_checks(review, words=words))
+    clock.lap("drafting checks")
+    return review
+
+
+#: A draft this long (characters) has its own drafting checks read beside the comparison, on
+#: the other processor core (:func:`core.parallel.side_by_side`): for a shorter one they take
+#: less time than forking a process and sending them back (a few milliseconds, measured).
+PARALLEL_CHECKS_MIN_CHARS = 40_000
+
+
+def _compare(draft: Document, precedent: Document, *, overrides: Sequence[TermOverride],
+             vocabulary: VocabularyModel | None, rules: SeverityRules,
+             clause_type: Callable[[Provision, Document], str | None] | None, acting_for: str | None,
+             clock: _Clock, stage: Callable[[str], None]) -> Review:
+    """The review of *draft* against *precedent* without its drafting checks (see
+    :func:`run_review`)."""
     di, pi = build_docinfo(draft), build_docinfo(precedent)
     extra = [n for o in overrides for n in (o.draft, o.precedent or "") if n.strip()]
     names = list(dict.fromkeys([*di.all_names, *pi.all_names, *extra]))
@@ -361,8 +388,6 @@ def run_review(draft: Document, precedent: Document, *,
     stage(f"comparing the wording of {len(al.groups)} paired provision{'s' * (len(al.groups) != 1)}")
     review = builder.build()
     clock.lap("ranking and output")
-    review = replace(review, checks=review_checks(review))
-    clock.lap("drafting checks")
     return review
 
 

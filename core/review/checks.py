@@ -99,6 +99,8 @@ __all__ = [
     "dangling_references",
     "definitions_changed",
     "document_checks",
+    "document_words",
+    "DocumentWords",
     "review_checks",
     "stale_terms",
     "undefined_terms",
@@ -715,45 +717,73 @@ def _looks_defined(uses: Sequence[_Use], words: Sequence[str], lower: set[str]) 
             or any(u.common for u in uses))
 
 
-def _unknown_uses(texts: _Texts, known_parts: _NameParts,
+@dataclass(frozen=True, slots=True)
+class DocumentWords:
+    """What the drafting checks read from one document alone, before any comparison: its
+    capitalised candidate phrases (with their word keys), the names it marks as defined,
+    its words in lower case, its brand words, whether it is English, and the checks that
+    need nothing else (unused definitions, dangling references).  The costly part of the
+    checks: a review computes it beside the comparison (:mod:`core.parallel`)."""
+
+    #: (word key, key with dashes joined, use) of each candidate phrase not excluded.
+    candidates: tuple[tuple[tuple[str, ...], tuple[str, ...], _Use], ...]
+    marked: frozenset[str]
+    lower: frozenset[str]
+    brand: frozenset[str]
+    english: bool
+    unused: tuple[Check, ...]
+    dangling: tuple[Check, ...]
+
+
+def document_words(doc: Document, *, document: CheckDocument = "draft") -> DocumentWords:
+    """The document-only findings of *doc* (see :class:`DocumentWords`)."""
+    texts = _Texts.of(doc)
+    english = _english(texts)
+    lower = _lower_words(t for _p, _k, t in texts.parts) if english else set()
+    candidates = tuple((_word_key(u.phrase), _word_key(_DASH_RE.sub("", u.phrase)), u)
+                       for u in (_candidate_uses(texts) if english else ()) if not _excluded(u.phrase))
+    return DocumentWords(
+        candidates, frozenset(_marked_names(t for _p, _k, t in texts.parts)), frozenset(lower),
+        _brand_words(texts, lower) if english else frozenset(), english,
+        unused_definitions(doc, document=document), dangling_references(doc, document=document))
+
+
+def _unknown_uses(words: DocumentWords, known_parts: _NameParts,
                   reported: set[tuple[str, ...]]) -> dict[tuple[str, ...], list[_Use]]:
-    """The capitalised candidate uses of *texts* by word key, leaving out the phrases already
-    *reported* and those that overlap a known name or are excluded."""
+    """The capitalised candidate uses by word key, leaving out the phrases already *reported*
+    and those that overlap a known name."""
     found: dict[tuple[str, ...], list[_Use]] = {}
-    for use in _candidate_uses(texts):
-        key = _word_key(use.phrase)
-        joined = _word_key(_DASH_RE.sub("", use.phrase))
-        if key in reported or known_parts.overlaps(key) or known_parts.overlaps(joined) or _excluded(use.phrase):
+    for key, joined, use in words.candidates:
+        if key in reported or known_parts.overlaps(key) or known_parts.overlaps(joined):
             continue
         found.setdefault(key, []).append(use)
     return found
 
 
 def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iterable[str] = (),
-                    document: CheckDocument = "draft") -> tuple[Check, ...]:
+                    document: CheckDocument = "draft", words: DocumentWords | None = None) -> tuple[Check, ...]:
     """The undefined-term checks of *doc* (see the module's notes).
 
     *defined* adds names that count as defined (the names of renamed terms, whose stale
     uses another check reports); *foreign* names the terms another document (the precedent)
     defines: a capitalised use of one that *doc* does not define is reported whatever its
-    shape (in the middle of a sentence at least once, or a name of several words)."""
+    shape (in the middle of a sentence at least once, or a name of several words).  *words*
+    are :func:`document_words` of *doc* when already computed."""
+    words = words or document_words(doc, document=document)
     texts = _Texts.of(doc)
     own = [n for t in doc.terms for n in _written_names(t)] + list(defined)
-    marked = _marked_names(t for _p, _k, t in texts.parts)
-    known_parts = _NameParts(_word_key(m) for n in [*own, *marked] if n.strip()
+    known_parts = _NameParts(_word_key(m) for n in [*own, *words.marked] if n.strip()
                              for m in (n, _DASH_RE.sub("", n)))
     out = _foreign_undefined(doc, texts, own=own, foreign=foreign, document=document)
     reported = {_word_key(c.term or "") for c in out}
-    if not _english(texts):
+    if not words.english:
         return tuple(out)
-    lower = _lower_words(t for _p, _k, t in texts.parts)
-    found = _unknown_uses(texts, known_parts, reported)
-    brand = _brand_words(texts, lower)
-    for uses in found.values():
-        words = [w for w in uses[0].phrase.split() if w[:1].isupper()]
-        if any(w in brand for w in words):
+    lower = set(words.lower)
+    for uses in _unknown_uses(words, known_parts, reported).values():
+        caps = [w for w in uses[0].phrase.split() if w[:1].isupper()]
+        if any(w in words.brand for w in caps):
             continue  # "the Java Platform": "Java" names a product elsewhere in the document
-        if not _looks_defined(uses, words, lower):
+        if not _looks_defined(uses, caps, lower):
             continue
         out.append(_undefined_check(uses, document=document, term=uses[0].phrase,
                                     why="is capitalised like a defined term but defined nowhere in the document"))
@@ -1155,12 +1185,12 @@ def dangling_references(doc: Document, *, document: CheckDocument = "draft") -> 
 
 
 def document_checks(doc: Document, *, document: CheckDocument = "draft", defined: Iterable[str] = (),
-                    foreign: Iterable[str] = ()) -> tuple[Check, ...]:
+                    foreign: Iterable[str] = (), words: DocumentWords | None = None) -> tuple[Check, ...]:
     """The checks one document allows on its own: undefined terms, unused definitions and
-    dangling references (*defined* and *foreign* as for :func:`undefined_terms`)."""
-    return (*undefined_terms(doc, defined=defined, foreign=foreign, document=document),
-            *unused_definitions(doc, document=document),
-            *dangling_references(doc, document=document))
+    dangling references (*defined*, *foreign* and *words* as for :func:`undefined_terms`)."""
+    words = words or document_words(doc, document=document)
+    return (*undefined_terms(doc, defined=defined, foreign=foreign, document=document, words=words),
+            *words.unused, *words.dangling)
 
 
 def stale_terms(review: Review) -> tuple[Check, ...]:
@@ -1267,12 +1297,12 @@ def _provisions_using(doc: Document, t: DefinedTerm, *, exclude: str) -> tuple[s
     return tuple(out)
 
 
-def review_checks(review: Review) -> tuple[Check, ...]:
+def review_checks(review: Review, *, words: DocumentWords | None = None) -> tuple[Check, ...]:
     """Every drafting check of *review*'s draft, in :data:`CHECK_KINDS` order, each kind in
-    document order."""
+    document order (*words*: :func:`document_words` of the draft, when already computed)."""
     renamed = [n for m in review.term_map for n in (m.draft, m.precedent)]
     foreign = [t.term for t in review.precedent.terms]
-    checks = [*document_checks(review.draft, defined=renamed, foreign=foreign),
+    checks = [*document_checks(review.draft, defined=renamed, foreign=foreign, words=words),
               *stale_terms(review), *definitions_changed(review)]
     position = {p.id: i for i, p in enumerate(review.draft.provisions)}
     kind_order = {k: i for i, k in enumerate(CHECK_KINDS)}

@@ -81,3 +81,19 @@ def test_with_another_thread_running_both_steps_run_here(monkeypatch) -> None:
 def test_switched_off_by_the_environment(monkeypatch) -> None:
     monkeypatch.setenv(parallel.PARALLEL_ENV, "0")
     assert side_by_side(os.getpid, os.getpid) == (os.getpid(), os.getpid())
+
+
+def test_a_review_with_its_checks_beside_equals_one_in_turn(monkeypatch) -> None:
+    # reference: the same review computed in this process alone
+    from pathlib import Path
+
+    import core.review as review_module
+    from core.reader import read_document
+
+    demo = Path(__file__).resolve().parents[2] / "demo_agreements"
+    draft, precedent = read_document(str(demo / "draft.docx")), read_document(str(demo / "precedent.docx"))
+    monkeypatch.setattr(review_module, "PARALLEL_CHECKS_MIN_CHARS", 0)
+    beside = review_module.run_review(draft, precedent)
+    monkeypatch.setenv(parallel.PARALLEL_ENV, "0")
+    in_turn = review_module.run_review(draft, precedent)
+    assert beside.checks and beside == in_turn
