@@ -28,18 +28,25 @@ import marshal
 import os
 import re
 import sys
+from array import array
 from re import _compiler, _parser  # type: ignore[attr-defined]
 from typing import Any
 
 __all__ = ["LazyPattern", "compile_pattern", "lazy_compile", "save_programs"]
 
-#: One pattern's compiled program: (flags, code, groups - 1, group index, index group) as
-#: ``_sre.compile`` takes them.
-_Program = tuple[int, list[int], int, dict[str, int], tuple[str | None, ...]]
+#: One pattern's compiled program as kept: (flags, code as 32-bit words, groups - 1, group
+#: index, index group), ``_sre.compile``'s arguments (the code as bytes: a file of lists of
+#: numbers took 70 ms to read back, one of bytes under one).
+_Program = tuple[int, bytes, int, dict[str, int], tuple[str | None, ...]]
+_CODE_TYPE = "I"
 
 #: Where the programs are kept: beside this package's compiled modules.
 STORE_PATH = os.path.join(os.path.dirname(os.path.abspath(__file__)), "__pycache__",
                           f"patterns.{sys.implementation.cache_tag}.{_sre.MAGIC}.bin")
+#: Programs kept at most: the program's own patterns are a few hundred; patterns of other
+#: rule files (the severity rules' phrase lists) add a few each.  Beyond it, those this
+#: process did not use are dropped.
+MAX_PROGRAMS = 1000
 
 
 class _Store:
@@ -49,6 +56,7 @@ class _Store:
     def __init__(self, path: str) -> None:
         self.path = path
         self.programs: dict[tuple[str, int], _Program] | None = None
+        self.used: set[tuple[str, int]] = set()
         self.added = 0
 
     def _read(self) -> dict[tuple[str, int], _Program]:
@@ -69,11 +77,14 @@ class _Store:
         with those another process wrote meanwhile."""
         if not self.added or self.programs is None or sys.dont_write_bytecode:
             return
+        merged = {**self._read(), **self.programs}
+        if len(merged) > MAX_PROGRAMS:
+            merged = {k: v for k, v in merged.items() if k in self.used}
         part = f"{self.path}.{os.getpid()}.part"
         try:
             os.makedirs(os.path.dirname(self.path), exist_ok=True)
             with open(part, "wb") as f:
-                marshal.dump({**self._read(), **self.programs}, f)
+                marshal.dump(merged, f)
             os.replace(part, self.path)
             self.added = 0
         except OSError:
@@ -97,34 +108,39 @@ def _program(pattern: str, flags: int) -> _Program:
     """What ``re.compile`` computes for *pattern* before it hands it to the engine (the
     steps of ``re._compiler.compile``)."""
     parsed = _parser.parse(pattern, flags)
-    code = _compiler._code(parsed, flags)
+    code = array(_CODE_TYPE, _compiler._code(parsed, flags)).tobytes()
     groupindex = {str(name): int(i) for name, i in parsed.state.groupdict.items()}
     indexgroup: list[str | None] = [None] * parsed.state.groups
     for name, i in groupindex.items():
         indexgroup[i] = name
-    # plain ints: the opcodes are int subclasses, which marshal does not write
-    return (int(flags | parsed.state.flags), [int(c) for c in code], int(parsed.state.groups) - 1, groupindex,
-            tuple(indexgroup))
+    return int(flags | parsed.state.flags), code, int(parsed.state.groups) - 1, groupindex, tuple(indexgroup)
+
+
+def _built(pattern: str, prog: _Program) -> re.Pattern[str]:
+    flags, code, groups, groupindex, indexgroup = prog
+    compiled: re.Pattern[str] = _sre.compile(pattern, flags, array(_CODE_TYPE, code).tolist(), groups,
+                                             groupindex, indexgroup)
+    return compiled
 
 
 def compile_pattern(pattern: str, flags: int = 0) -> re.Pattern[str]:
     """``re.compile(pattern, flags)`` for a fixed pattern of the program, built from the
     program kept for it (see the module's notes) when there is one."""
     flags = int(flags)
-    if flags & re.DEBUG:
+    if flags & re.DEBUG or array(_CODE_TYPE).itemsize != 4:
         return re.compile(pattern, flags)
     programs = _STORE.load()
     key = (pattern, flags)
+    _STORE.used.add(key)
     prog = programs.get(key)
     if prog is not None:
         try:
-            compiled: re.Pattern[str] = _sre.compile(pattern, *prog)
-            return compiled
+            return _built(pattern, prog)
         except (TypeError, ValueError, RuntimeError):
             pass
     try:
         prog = _program(pattern, flags)
-        compiled = _sre.compile(pattern, *prog)
+        compiled = _built(pattern, prog)
     except re.error:
         raise
     except Exception:  # an interpreter whose internals differ: the public way

@@ -247,7 +247,7 @@ _TIGHTENERS = ("promptly", "without undue delay", "immediately", "best efforts",
 _DISCRETION = ("sole discretion", "absolute discretion", "sole and absolute discretion",
                "at its option", "discretion")
 _QUALIFIER_WORD_RE = compile_pattern(r"\b(?:" + "|".join(
-    r"\s+".join(map(re.escape, q.split())) for q in sorted({*_SOFTENERS, *_TIGHTENERS}, key=len, reverse=True))
+    r"\s+".join(map(re.escape, q.split())) for q in sorted({*_SOFTENERS, *_TIGHTENERS}, key=lambda q: (-len(q), q)))
     + r")\b", re.IGNORECASE)
 #: Words that cut an exception out of what a clause says (common practice, no source).
 _CARVE_OUT_RE = compile_pattern(r"\b(?:except|excepting|unless|provided\s+that|provided\s+however|save\s+"

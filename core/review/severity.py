@@ -460,7 +460,7 @@ def _find_quantities(text: str, lo: int = 0, hi: int | None = None) -> list[Quan
 def _phrase_re(phrases: Sequence[str]) -> re.Pattern[str]:
     """A pattern of the rule file's *phrases* (fixed for an installation, so its compiled
     program is kept: :func:`core.lazyre.compile_pattern`)."""
-    alts = sorted(set(phrases), key=len, reverse=True)
+    alts = sorted(set(phrases), key=lambda p: (-len(p), p))  # one text per list: its program is kept
     body = "|".join(r"\s+".join(map(re.escape, p.split())) for p in alts)
     return compile_pattern(r"(?<![\w'])(?:" + body + r")(?![\w])", re.IGNORECASE)
 

@@ -107,3 +107,33 @@ def test_a_bad_pattern_raises_as_re_compile_does() -> None:
         re.compile("(unclosed")
     with pytest.raises(re.error):
         compile_pattern("(unclosed")
+
+
+_USED = """
+import contextlib, io, json, sys
+from core import lazyre
+from core.cli import main
+with contextlib.redirect_stdout(io.StringIO()):
+    main(["review", sys.argv[1], "--against", sys.argv[2], "--acting-for", "Customer"])
+print(json.dumps(sorted(p for p, _f in lazyre._STORE.used)))
+"""
+
+
+def test_every_process_asks_for_the_same_pattern_texts(tmp_path) -> None:
+    """A kept program is found again only if the pattern's text is the same in the next
+    process: no pattern may be built in the order of a set (which changes with the string
+    hash seed of each interpreter)."""
+    import json
+    import os
+    import subprocess
+
+    root = Path(__file__).resolve().parents[2]
+    used = []
+    for seed in ("1", "2"):
+        env = dict(os.environ, PYTHONHASHSEED=seed, PYTHONPATH=str(root), COUNTERDRAFT_PARALLEL="0",
+                   COUNTERDRAFT_CACHE_DIR=str(tmp_path / seed))
+        out = subprocess.run([sys.executable, "-c", _USED, str(DEMO / "draft.docx"), str(DEMO / "precedent.docx")],
+                             env=env, cwd=root, capture_output=True, text=True, check=True)
+        used.append(json.loads(out.stdout.strip().splitlines()[-1]))
+    assert len(used[0]) > 100
+    assert used[0] == used[1]
