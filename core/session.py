@@ -32,6 +32,7 @@ import enum
 import os
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
+from functools import partial
 from pathlib import Path
 from typing import TYPE_CHECKING, Literal, Protocol
 
@@ -133,12 +134,18 @@ def read_document(path: str | os.PathLike[str]) -> Document:
     return read(path, cache=True)
 
 
+#: Two agreements with at least this much to parse each (bytes: a .docx's parts uncompressed,
+#: about 25 pages) are read side by side on two processor cores (:mod:`core.parallel`); two
+#: shorter ones take about as long to read as a process takes to fork and send one back.
+PARALLEL_READ_MIN_BYTES = 100_000
+
+
 def read_documents(draft: str | os.PathLike[str], precedent: str | os.PathLike[str], *,
                    library: str | None = None, report: Report = silent,
                    cancelled: IsCancelled = never_cancelled) -> Documents:
     """Both agreements; a page-format draft (PDF) read with the line layout learned from the
     precedent set at *library* (a folder or a shared store's address) when one is given."""
-    from .readers import learns_layout
+    from .readers import content_size, learns_layout
     from .readers import read_document as read
 
     structure = None
@@ -150,8 +157,12 @@ def read_documents(draft: str | os.PathLike[str], precedent: str | os.PathLike[s
         structure, notes = structure_for(draft, library)
         check_cancelled(cancelled)
     report(0, None, f"Reading {Path(draft).name} and {Path(precedent).name}")
-    precedent_doc, draft_doc = side_by_side(lambda: read(precedent, cache=True),
-                                            lambda: read(draft, structure=structure, cache=True))
+    read_precedent = partial(read, precedent, cache=True)
+    read_draft = partial(read, draft, structure=structure, cache=True)
+    if min(content_size(draft), content_size(precedent)) >= PARALLEL_READ_MIN_BYTES:
+        precedent_doc, draft_doc = side_by_side(read_precedent, read_draft)
+    else:
+        draft_doc, precedent_doc = read_draft(), read_precedent()
     check_cancelled(cancelled)
     return Documents(draft_doc, precedent_doc, tuple(notes))
 

@@ -322,3 +322,16 @@ def read_text(text: str, *, source: str = "text.txt", markdown: bool = False) ->
     if not blocks:
         raise CounterdraftError("the text is empty", path=source)
     return document_from_blocks(blocks, source=source)
+
+
+def content_size(path: str | os.PathLike[str]) -> int:
+    """About how much there is to parse in the file at *path*, in bytes: a zip package's
+    parts uncompressed (from its directory, nothing inflated), any other file as it is; 0
+    when it cannot be read (the reader will say why)."""
+    try:
+        if zipfile.is_zipfile(path):
+            with zipfile.ZipFile(path) as zf:
+                return sum(info.file_size for info in zf.infolist())
+        return os.path.getsize(path)
+    except (zipfile.BadZipFile, OSError, ValueError, EOFError, NotImplementedError, RuntimeError):
+        return 0
