@@ -37,6 +37,7 @@ from __future__ import annotations
 from bisect import bisect_right
 from collections.abc import Container, Mapping, Sequence
 from dataclasses import dataclass, field
+from itertools import accumulate
 from typing import Literal
 
 from ..model import Category
@@ -422,9 +423,21 @@ def _name(key: str) -> str:
     return key[2:].split("\x00", 1)[0]
 
 
-def _covered(spans: Sequence[tuple[int, int]], a: int, b: int) -> bool:
-    """Whether one of *spans* covers both offsets *a* and *b* (a <= b)."""
-    return any(s <= a and b < e for s, e in spans)
+class _Cover:
+    """Character spans, indexed for one question: does one of them cover both offsets *a*
+    and *b* (a <= b)?  Among the spans starting at or before *a*, the one reaching furthest
+    decides; a rewritten provision asks for each of its hundreds of changes."""
+
+    __slots__ = ("reach", "starts")
+
+    def __init__(self, spans: Sequence[tuple[int, int]]) -> None:
+        ordered = sorted(spans)
+        self.starts = [s for s, _e in ordered]
+        self.reach = list(accumulate((e for _s, e in ordered), max))
+
+    def covers(self, a: int, b: int) -> bool:
+        k = bisect_right(self.starts, a)
+        return k > 0 and b < self.reach[k - 1]
 
 
 def classify_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp], ctx: TermContext, *,
@@ -438,7 +451,7 @@ def classify_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp], ctx: TermCont
     out: list[Change] = []
     n = len(ops)
     k = 0
-    pq, dq = keep_together
+    pq, dq = _Cover(keep_together[0]), _Cover(keep_together[1])
     labels = (_label_tokens(a), _label_tokens(b))
     while k < n:
         op = ops[k]
@@ -461,8 +474,8 @@ def classify_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp], ctx: TermCont
             words_between = any(a.kinds[i] in _WORDLIKE for g in range(m, nxt)
                                 for i in range(ops[g].i1, ops[g].i2))
             if words_between and not (
-                    _covered(pq, max(a.starts[i2] - 1, 0), a.starts[ops[nxt].i1])
-                    or _covered(dq, max(b.starts[j2] - 1, 0), b.starts[ops[nxt].j1])):
+                    pq.covers(max(a.starts[i2] - 1, 0), a.starts[ops[nxt].i1])
+                    or dq.covers(max(b.starts[j2] - 1, 0), b.starts[ops[nxt].j1])):
                 break
             i2, j2 = ops[nxt].i2, ops[nxt].j2
             m = nxt + 1

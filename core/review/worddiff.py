@@ -300,33 +300,34 @@ def _split_overlaps(dmp: diff_match_patch, diffs: list[tuple[int, str]]) -> list
 
 
 def _ops(diffs: Sequence[tuple[int, str]]) -> list[TokenOp]:
-    """diff-match-patch's (op, text) list as token opcodes."""
+    """diff-match-patch's (op, text) list as token opcodes: each equality one op, the edits
+    between two equalities one op."""
     raw: list[TokenOp] = []
     i = j = 0
     pend_del = pend_ins = 0
-
-    def flush() -> None:
-        nonlocal i, j, pend_del, pend_ins
-        if pend_del or pend_ins:
-            tag: TokenTag = "replace" if pend_del and pend_ins else ("delete" if pend_del else "insert")
-            raw.append(TokenOp(tag, i, i + pend_del, j, j + pend_ins))
-            i += pend_del
-            j += pend_ins
-            pend_del = pend_ins = 0
-
     for op, text in diffs:
         n = len(text)
-        if op == 0:
-            flush()
+        if op < 0:
+            pend_del += n
+        elif op > 0:
+            pend_ins += n
+        else:
+            if pend_del or pend_ins:
+                raw.append(TokenOp(_EDIT_TAG[bool(pend_del), bool(pend_ins)], i, i + pend_del, j, j + pend_ins))
+                i += pend_del
+                j += pend_ins
+                pend_del = pend_ins = 0
             raw.append(TokenOp("equal", i, i + n, j, j + n))
             i += n
             j += n
-        elif op < 0:
-            pend_del += n
-        else:
-            pend_ins += n
-    flush()
+    if pend_del or pend_ins:
+        raw.append(TokenOp(_EDIT_TAG[bool(pend_del), bool(pend_ins)], i, i + pend_del, j, j + pend_ins))
     return raw
+
+
+#: The tag of a run of edits by (anything deleted, anything inserted).
+_EDIT_TAG: dict[tuple[bool, bool], TokenTag] = {(True, True): "replace", (True, False): "delete",
+                                                 (False, True): "insert"}
 
 
 def _anchored(a: TokenSeq, ops: Sequence[TokenOp], exact: Sequence[TokenOp]) -> list[TokenOp]:
