@@ -717,6 +717,11 @@ def _looks_defined(uses: Sequence[_Use], words: Sequence[str], lower: set[str]) 
             or any(u.common for u in uses))
 
 
+#: A :class:`_Use` as plain values: the position of its provision in the document, then its
+#: other fields in order.
+_UseAt = tuple[int, CheckPart, int, int, str, bool, bool, bool]
+
+
 @dataclass(frozen=True, slots=True)
 class DocumentWords:
     """What the drafting checks read from one document alone, before any comparison: its
@@ -725,8 +730,9 @@ class DocumentWords:
     need nothing else (unused definitions, dangling references).  The costly part of the
     checks: a review computes it beside the comparison (:mod:`core.parallel`)."""
 
-    #: (word key, key with dashes joined, use) of each candidate phrase not excluded.
-    candidates: tuple[tuple[tuple[str, ...], tuple[str, ...], _Use], ...]
+    #: Each candidate phrase not excluded, as plain values (sent between processes cheaply):
+    #: its word key, its key with dashes joined, and its use with the provision's position.
+    candidates: tuple[tuple[tuple[str, ...], tuple[str, ...], _UseAt], ...]
     marked: frozenset[str]
     lower: frozenset[str]
     brand: frozenset[str]
@@ -740,7 +746,10 @@ def document_words(doc: Document, *, document: CheckDocument = "draft") -> Docum
     texts = _Texts.of(doc)
     english = _english(texts)
     lower = _lower_words(t for _p, _k, t in texts.parts) if english else set()
-    candidates = tuple((_word_key(u.phrase), _word_key(_DASH_RE.sub("", u.phrase)), u)
+    position = {id(p): i for i, p in enumerate(doc.provisions)}
+    candidates = tuple((_word_key(u.phrase), _word_key(_DASH_RE.sub("", u.phrase)),
+                        (position[id(u.provision)], u.part, u.start, u.end, u.phrase, u.common, u.attributive,
+                         u.determined))
                        for u in (_candidate_uses(texts) if english else ()) if not _excluded(u.phrase))
     return DocumentWords(
         candidates, frozenset(_marked_names(t for _p, _k, t in texts.parts)), frozenset(lower),
@@ -748,15 +757,16 @@ def document_words(doc: Document, *, document: CheckDocument = "draft") -> Docum
         unused_definitions(doc, document=document), dangling_references(doc, document=document))
 
 
-def _unknown_uses(words: DocumentWords, known_parts: _NameParts,
+def _unknown_uses(doc: Document, words: DocumentWords, known_parts: _NameParts,
                   reported: set[tuple[str, ...]]) -> dict[tuple[str, ...], list[_Use]]:
-    """The capitalised candidate uses by word key, leaving out the phrases already *reported*
-    and those that overlap a known name."""
+    """The capitalised candidate uses of *doc* by word key, leaving out the phrases already
+    *reported* and those that overlap a known name."""
     found: dict[tuple[str, ...], list[_Use]] = {}
-    for key, joined, use in words.candidates:
+    for key, joined, (pos, part, start, end, phrase, common, attributive, determined) in words.candidates:
         if key in reported or known_parts.overlaps(key) or known_parts.overlaps(joined):
             continue
-        found.setdefault(key, []).append(use)
+        found.setdefault(key, []).append(_Use(doc.provisions[pos], part, start, end, phrase, common=common,
+                                              attributive=attributive, determined=determined))
     return found
 
 
@@ -779,7 +789,7 @@ def undefined_terms(doc: Document, *, defined: Iterable[str] = (), foreign: Iter
     if not words.english:
         return tuple(out)
     lower = set(words.lower)
-    for uses in _unknown_uses(words, known_parts, reported).values():
+    for uses in _unknown_uses(doc, words, known_parts, reported).values():
         caps = [w for w in uses[0].phrase.split() if w[:1].isupper()]
         if any(w in words.brand for w in caps):
             continue  # "the Java Platform": "Java" names a product elsewhere in the document
