@@ -6,6 +6,7 @@ Every command turns :class:`CounterdraftError` into one line on stderr and exit 
 from __future__ import annotations
 
 import argparse
+import contextlib
 import functools
 import os
 import sys
@@ -54,30 +55,42 @@ def _cmd_inspect(args: argparse.Namespace) -> int:
 
 
 def _cmd_review(args: argparse.Namespace) -> int:
-    from .review import review_to_dict
-    from .review.report import format_review
-
     if args.json and args.json != "-":
         refuse_overwrite_of_inputs(args.json, args.draft, args.against)
         if args.save and Path(args.save).resolve() == Path(args.json).resolve():
             raise CounterdraftError("--json and --save name the same file", path=args.save)
-    docs = session.read_documents(args.draft, args.against, library=args.library)
-    for note in docs.notes:
-        _note(note, about=args.draft)
-    for path, doc in ((args.draft, docs.draft), (args.against, docs.precedent)):
-        for w in doc.warnings:
-            _note(w, about=path)
-    review = _review(docs.draft, docs.precedent, library=args.library, acting_for=args.acting_for)
+    with contextlib.ExitStack() as stack:
+        opened: list[Library] = []
+
+        def prepare(long: bool) -> None:
+            """While long agreements are read on the other cores: load the engine, open the
+            precedent set."""
+            session.prepare_review(long=long)
+            if args.library:
+                opened.append(stack.enter_context(_open_library(args.library)))
+
+        docs = session.read_documents(args.draft, args.against, library=args.library, meanwhile=prepare)
+        for note in docs.notes:
+            _note(note, about=args.draft)
+        for path, doc in ((args.draft, docs.draft), (args.against, docs.precedent)):
+            for w in doc.warnings:
+                _note(w, about=path)
+        review = session.review(docs.draft, docs.precedent, library=opened[0] if opened else None,
+                                acting_for=args.acting_for)
     if args.save:
         refuse_overwrite_of_inputs(args.save, args.draft, args.against)
         session.save(args.save, session.new_review_file(args.draft, args.against, review=review,
                                                         library=args.library))
         print(f"counterdraft: review saved to {args.save}", file=sys.stderr)
     if args.json:
+        from .serialize import review_to_dict
+
         for note in review.notes:
             _note(note)
         write_json(review_to_dict(review), args.json)
     else:
+        from .review.report import format_review
+
         print(format_review(review, show=args.show, width=args.width))
     return 0
 

@@ -18,12 +18,12 @@ import os
 import pickle
 import sys
 import threading
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from typing import TypeVar
 
 from .lazyre import save_programs
 
-__all__ = ["can_fork", "side_by_side"]
+__all__ = ["can_fork", "each_beside", "side_by_side"]
 
 _A = TypeVar("_A")
 _B = TypeVar("_B")
@@ -42,30 +42,41 @@ def side_by_side(beside: Callable[[], _A], here: Callable[[], _B]) -> tuple[_A, 
     """``(beside(), here())``, with *beside* run in a forked child process while *here* runs
     in this one when :func:`can_fork`; both in this process, *here* first, otherwise (so an
     exception of *here* is the one raised either way)."""
+    got, mine = each_beside([beside], here)
+    return got[0], mine
+
+
+def each_beside(steps: Sequence[Callable[[], _A]], here: Callable[[], _B]) -> tuple[list[_A], _B]:
+    """``([step() for step in steps], here())``, each step in a forked child process of its
+    own while *here* runs in this one when :func:`can_fork`; all in this process, *here*
+    first, otherwise.  An exception of *here* wins over the steps', and a step's over a
+    later one's."""
     if not can_fork():
-        return _in_turn(beside, here)
+        mine = here()
+        return [step() for step in steps], mine
+    children = [_fork(step) for step in steps]
+    try:
+        mine = here()
+    finally:
+        sent = [_collect(child) for child in children]
+    return [_result(data, step) for data, step in zip(sent, steps, strict=True)], mine
+
+
+def _fork(step: Callable[[], object]) -> tuple[int, int] | None:
+    """A child process running *step* (its pid and the end of the pipe it answers on), or
+    None when the system refuses a process (the step then runs here)."""
     read_fd, write_fd = os.pipe()
     try:
         pid = os.fork()
     except OSError:
         os.close(read_fd)
         os.close(write_fd)
-        return _in_turn(beside, here)
+        return None
     if pid == 0:  # the child: run, send, leave without running this process's exit handlers
         os.close(read_fd)
-        _child(beside, write_fd)
+        _child(step, write_fd)
     os.close(write_fd)
-    try:
-        mine = here()
-    finally:
-        data = _read_all(read_fd)
-        os.waitpid(pid, 0)
-    return _result(data, beside), mine
-
-
-def _in_turn(beside: Callable[[], _A], here: Callable[[], _B]) -> tuple[_A, _B]:
-    mine = here()
-    return beside(), mine
+    return pid, read_fd
 
 
 def _child(step: Callable[[], object], fd: int) -> None:
@@ -82,6 +93,16 @@ def _child(step: Callable[[], object], fd: int) -> None:
         status = 0
     finally:
         os._exit(status)
+
+
+def _collect(child: tuple[int, int] | None) -> bytes:
+    """What a child sent, once it has ended (nothing from a child never started)."""
+    if child is None:
+        return b""
+    pid, fd = child
+    data = _read_all(fd)
+    os.waitpid(pid, 0)
+    return data
 
 
 def _read_all(fd: int) -> bytes:

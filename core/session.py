@@ -37,7 +37,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Literal, Protocol
 
 from .errors import CounterdraftError
-from .parallel import side_by_side
+from .parallel import each_beside, side_by_side
 
 if TYPE_CHECKING:
     from .decisions import Decision, ReviewFile
@@ -141,10 +141,14 @@ PARALLEL_READ_MIN_BYTES = 100_000
 
 
 def read_documents(draft: str | os.PathLike[str], precedent: str | os.PathLike[str], *,
-                   library: str | None = None, report: Report = silent,
-                   cancelled: IsCancelled = never_cancelled) -> Documents:
+                   library: str | None = None, meanwhile: Callable[[bool], object] | None = None,
+                   report: Report = silent, cancelled: IsCancelled = never_cancelled) -> Documents:
     """Both agreements; a page-format draft (PDF) read with the line layout learned from the
-    precedent set at *library* (a folder or a shared store's address) when one is given."""
+    precedent set at *library* (a folder or a shared store's address) when one is given.
+
+    *meanwhile* is called once, in this process: with True while long agreements are read on
+    the other processor cores (the caller opens the precedent set, loads what the review
+    needs), with False after reading short ones."""
     from .readers import content_size, learns_layout
     from .readers import read_document as read
 
@@ -157,14 +161,26 @@ def read_documents(draft: str | os.PathLike[str], precedent: str | os.PathLike[s
         structure, notes = structure_for(draft, library)
         check_cancelled(cancelled)
     report(0, None, f"Reading {Path(draft).name} and {Path(precedent).name}")
-    read_precedent = partial(read, precedent, cache=True)
     read_draft = partial(read, draft, structure=structure, cache=True)
-    if min(content_size(draft), content_size(precedent)) >= PARALLEL_READ_MIN_BYTES:
+    read_precedent = partial(read, precedent, cache=True)
+    if min(content_size(draft), content_size(precedent)) < PARALLEL_READ_MIN_BYTES:
+        draft_doc, precedent_doc = read_draft(), read_precedent()
+        if meanwhile is not None:
+            meanwhile(False)
+    elif meanwhile is None:
         precedent_doc, draft_doc = side_by_side(read_precedent, read_draft)
     else:
-        draft_doc, precedent_doc = read_draft(), read_precedent()
+        (draft_doc, precedent_doc), _done = each_beside([read_draft, read_precedent], partial(meanwhile, True))
     check_cancelled(cancelled)
     return Documents(draft_doc, precedent_doc, tuple(notes))
+
+
+def prepare_review(*, long: bool) -> None:
+    """Load the review engine now (while documents are read: :func:`read_documents`'s
+    *meanwhile*); *long* documents need what the engine needs for many provisions."""
+    from .review import preload
+
+    preload(long=long)
 
 
 def party_terms(path: str) -> tuple[str, ...]:

@@ -37,6 +37,9 @@ def progress_bar(description: str) -> tuple[Callable[..., None], Callable[[], No
     """A ``(done, total, *_)`` callback drawing a tqdm bar on stderr, and its closer."""
     from tqdm import tqdm
 
+    # no monitor thread: a process with a second thread reads and reviews on one core only
+    # (core.parallel), and the bar's own refresh is enough
+    tqdm.monitor_interval = 0
     state: dict[str, Any] = {}
 
     def update(done: int, total: int, *_: object) -> None:

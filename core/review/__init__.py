@@ -464,6 +464,15 @@ def _sides(di: DocInfo, pi: DocInfo, names: Sequence[str]
     return dside, pside, uses
 
 
+def preload(*, long: bool) -> None:
+    """Import now what a review imports when it first needs it: for *long* documents numpy,
+    which the alignment's candidate search uses above :data:`.align.PLAIN_PRODUCT_MAX`
+    multiply-adds (a 25-page pair is about there).  Called while the documents are read on
+    other processor cores, so that the review does not wait for it."""
+    if long:
+        import numpy  # noqa: F401
+
+
 def clear_caches() -> None:
     """Forget the engine's caches of token keys, figures and phrase matches (they only
     speed up reviews of the same texts; benchmarks clear them to time cold runs)."""
