@@ -1,6 +1,8 @@
 """Counterdraft's engine: reads agreements, compares a draft with the house precedent,
 ranks the deviations and writes tracked changes.  It never imports Qt."""
 
+from .kept import keep_dataclass_methods
+
 __version__ = "0.1.0"
 
 CAUTION = (
@@ -9,3 +11,5 @@ CAUTION = (
 )
 
 __all__ = ["CAUTION", "__version__"]
+
+keep_dataclass_methods()  # compiled once per installation, not at every start (core.kept)

@@ -7,12 +7,10 @@ short agreements went to compiling the program's own patterns.
 
 * :func:`compile_pattern` stands for ``re.compile`` for the program's fixed patterns.  The
   regular-expression engine's program for each pattern (what ``re`` computes, in Python,
-  from the pattern's text) is kept in a file beside the compiled modules
-  (``core/__pycache__``), written as Python writes its bytecode there: not when
-  ``sys.dont_write_bytecode`` is set (``PYTHONDONTWRITEBYTECODE``), nowhere when the folder
-  cannot be written.  A later process builds each pattern from its program directly.  The
-  file is named after the interpreter and the engine's version (``_sre.MAGIC``); anything
-  unexpected in it, and any pattern it does not hold, falls back to ``re.compile``.
+  from the pattern's text) is kept (:mod:`core.kept`) in a file named after the interpreter
+  and the engine's version (``_sre.MAGIC``).  A later process builds each pattern from its
+  program directly; anything unexpected in the file, and any pattern it does not hold,
+  falls back to ``re.compile``.
 * :func:`lazy_compile` declares a pattern needed only on some paths (the reader's, which the
   parsed-document cache skips, and rare ones): compiled by its first search.
 
@@ -23,16 +21,14 @@ Patterns built from a document's own words (its defined terms) are compiled with
 from __future__ import annotations
 
 import _sre  # type: ignore[import-not-found]
-import atexit
-import marshal
-import os
 import re
-import sys
 from array import array
 from re import _compiler, _parser  # type: ignore[attr-defined]
 from typing import Any
 
-__all__ = ["LazyPattern", "compile_pattern", "lazy_compile", "save_programs"]
+from .kept import KeptStore, kept_store
+
+__all__ = ["LazyPattern", "compile_pattern", "lazy_compile"]
 
 #: One pattern's compiled program as kept: (flags, code as 32-bit words, groups - 1, group
 #: index, index group), ``_sre.compile``'s arguments (the code as bytes: a file of lists of
@@ -40,68 +36,14 @@ __all__ = ["LazyPattern", "compile_pattern", "lazy_compile", "save_programs"]
 _Program = tuple[int, bytes, int, dict[str, int], tuple[str | None, ...]]
 _CODE_TYPE = "I"
 
-#: Where the programs are kept: beside this package's compiled modules.
-STORE_PATH = os.path.join(os.path.dirname(os.path.abspath(__file__)), "__pycache__",
-                          f"patterns.{sys.implementation.cache_tag}.{_sre.MAGIC}.bin")
 #: Programs kept at most: the program's own patterns are a few hundred; patterns of other
-#: rule files (the severity rules' phrase lists) add a few each.  Beyond it, those this
-#: process did not use are dropped.
+#: rule files (the severity rules' phrase lists) add a few each.
 MAX_PROGRAMS = 1000
 
 
-class _Store:
-    """The programs read from :data:`STORE_PATH` (read on the first compile) and those
-    computed in this process (written at exit)."""
-
-    def __init__(self, path: str) -> None:
-        self.path = path
-        self.programs: dict[tuple[str, int], _Program] | None = None
-        self.used: set[tuple[str, int]] = set()
-        self.added = 0
-
-    def _read(self) -> dict[tuple[str, int], _Program]:
-        try:
-            with open(self.path, "rb") as f:
-                data = marshal.load(f)
-        except (OSError, EOFError, ValueError, TypeError):
-            return {}
-        return data if isinstance(data, dict) else {}
-
-    def load(self) -> dict[tuple[str, int], _Program]:
-        if self.programs is None:
-            self.programs = self._read()
-        return self.programs
-
-    def save(self) -> None:
-        """Write the programs when this process added any (and bytecode may be written),
-        with those another process wrote meanwhile."""
-        if not self.added or self.programs is None or sys.dont_write_bytecode:
-            return
-        merged = {**self._read(), **self.programs}
-        if len(merged) > MAX_PROGRAMS:
-            merged = {k: v for k, v in merged.items() if k in self.used}
-        part = f"{self.path}.{os.getpid()}.part"
-        try:
-            os.makedirs(os.path.dirname(self.path), exist_ok=True)
-            with open(part, "wb") as f:
-                marshal.dump(merged, f)
-            os.replace(part, self.path)
-            self.added = 0
-        except OSError:
-            try:
-                os.unlink(part)
-            except OSError:
-                pass
-
-
-_STORE = _Store(STORE_PATH)
-atexit.register(_STORE.save)
-
-
-def save_programs() -> None:
-    """Write the programs this process computed (at exit; a forked child, which leaves
-    without running exit handlers, calls it itself)."""
-    _STORE.save()
+def _store() -> KeptStore:
+    """The kept programs of this interpreter's pattern engine (its version in the name)."""
+    return kept_store(f"patterns.{_sre.MAGIC}", limit=MAX_PROGRAMS)
 
 
 def _program(pattern: str, flags: int) -> _Program:
@@ -129,10 +71,9 @@ def compile_pattern(pattern: str, flags: int = 0) -> re.Pattern[str]:
     flags = int(flags)
     if flags & re.DEBUG or array(_CODE_TYPE).itemsize != 4:
         return re.compile(pattern, flags)
-    programs = _STORE.load()
+    store = _store()
     key = (pattern, flags)
-    _STORE.used.add(key)
-    prog = programs.get(key)
+    prog = store.get(key)
     if prog is not None:
         try:
             return _built(pattern, prog)
@@ -145,8 +86,7 @@ def compile_pattern(pattern: str, flags: int = 0) -> re.Pattern[str]:
         raise
     except Exception:  # an interpreter whose internals differ: the public way
         return re.compile(pattern, flags)
-    programs[key] = prog
-    _STORE.added += 1
+    store.put(key, prog)
     return compiled
 
 

@@ -21,7 +21,7 @@ import threading
 from collections.abc import Callable, Sequence
 from typing import TypeVar
 
-from .lazyre import save_programs
+from .kept import save_kept
 
 __all__ = ["can_fork", "each_beside", "side_by_side"]
 
@@ -89,7 +89,7 @@ def _child(step: Callable[[], object], fd: int) -> None:
         payload = pickle.dumps(outcome, protocol=pickle.HIGHEST_PROTOCOL)  # unpicklable: nothing sent
         with os.fdopen(fd, "wb") as out:
             out.write(payload)
-        save_programs()
+        save_kept()
         status = 0
     finally:
         os._exit(status)

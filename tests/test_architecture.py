@@ -15,7 +15,7 @@ DOC = ROOT / "docs" / "ARCHITECTURE.md"
 #: Modules grouped into the table's units where a unit is not one package.
 _UNIT_OF_MODULE = {
     "core": "base", "core.errors": "base", "core.fileio": "base", "core.lazyre": "base", "core.console": "base",
-    "core.parallel": "base",
+    "core.parallel": "base", "core.kept": "base",
     "core.structure": "core.text", "core.terms": "core.text", "core.labels": "core.text", "core.xrefs": "core.text",
     "core.outline": "core.text", "core.text_reader": "core.text", "core.docinfo": "core.text",
     "core.doccache": "core.readers", "core.reader": "core.readers",

@@ -15,7 +15,8 @@ import pytest
 
 import core
 from core import lazyre
-from core.lazyre import LazyPattern, _Store, compile_pattern
+from core.kept import KeptStore
+from core.lazyre import LazyPattern, compile_pattern
 
 DEMO = Path(__file__).resolve().parents[2] / "demo_agreements"
 #: Texts the patterns are run on: the demo agreements' words, and a few odd characters.
@@ -70,14 +71,14 @@ def test_kept_programs_read_back_build_the_same_patterns(tmp_path, monkeypatch) 
     path = str(tmp_path / "patterns.bin")
     sources = [(r"(?P<num>\d+(?:\.\d+)*)\s+(?P<head>[A-Z][a-z]+)", 0), (r"\bshall\s+not\b", re.IGNORECASE),
                (r"(?m)^[ \t]*\(([a-z]{1,3})\)", 0), (r"[\u2018\u2019']s\b|(?<=s)'", 0)]
-    first = _Store(path)
-    monkeypatch.setattr(lazyre, "_STORE", first)
+    first = KeptStore(path, limit=100)
+    monkeypatch.setattr(lazyre, "_store", lambda: first)
     for src, flags in sources:
         compile_pattern(src, flags)
     first.save()
     assert Path(path).exists() and first.added == 0
-    second = _Store(path)
-    monkeypatch.setattr(lazyre, "_STORE", second)
+    second = KeptStore(path, limit=100)
+    monkeypatch.setattr(lazyre, "_store", lambda: second)
     for src, flags in sources:
         text = "2.1 Fees shall NOT (ab) the Parties' rights " + _ODD
         _same(compile_pattern(src, flags), re.compile(src, flags), text)
@@ -86,8 +87,8 @@ def test_kept_programs_read_back_build_the_same_patterns(tmp_path, monkeypatch) 
 
 def test_nothing_is_written_when_bytecode_is_not(tmp_path, monkeypatch) -> None:
     monkeypatch.setattr(sys, "dont_write_bytecode", True)
-    store = _Store(str(tmp_path / "patterns.bin"))
-    monkeypatch.setattr(lazyre, "_STORE", store)
+    store = KeptStore(str(tmp_path / "patterns.bin"), limit=100)
+    monkeypatch.setattr(lazyre, "_store", lambda: store)
     compile_pattern(r"\bindemnif(?:y|ies)\b")
     store.save()
     assert not (tmp_path / "patterns.bin").exists()
@@ -97,7 +98,8 @@ def test_nothing_is_written_when_bytecode_is_not(tmp_path, monkeypatch) -> None:
 def test_a_damaged_file_falls_back_to_re_compile(tmp_path, monkeypatch, junk) -> None:
     path = tmp_path / "patterns.bin"
     path.write_bytes(junk)
-    monkeypatch.setattr(lazyre, "_STORE", _Store(str(path)))
+    store = KeptStore(str(path), limit=100)
+    monkeypatch.setattr(lazyre, "_store", lambda: store)
     _same(compile_pattern(r"(?i)\bterminat(?:e|ion)\b"), re.compile(r"(?i)\bterminat(?:e|ion)\b"),
           "Termination: either party may terminate.")
 
@@ -115,7 +117,7 @@ from core import lazyre
 from core.cli import main
 with contextlib.redirect_stdout(io.StringIO()):
     main(["review", sys.argv[1], "--against", sys.argv[2], "--acting-for", "Customer"])
-print(json.dumps(sorted(p for p, _f in lazyre._STORE.used)))
+print(json.dumps(sorted(p for p, _f in lazyre._store().used)))
 """
 
 
