@@ -1,15 +1,15 @@
-"""Two independent steps on two processor cores: one in a forked child process, the other
-here, at the same time.
+"""Independent steps on several processor cores: each in a forked child process, while this
+process runs one of its own.
 
-A review's long steps come in pairs that share nothing: reading the draft and reading the
-precedent; the draft's own drafting checks and the comparison.  Where the operating system
-can fork (Linux) and this process runs no other thread (forking a process whose other
-threads hold locks can leave the child stuck: the window's worker thread reviews in line), the
-child runs one step and sends its result back pickled through a pipe, while this process runs
-the other.  Anything that goes wrong in the child (it dies, its result cannot be pickled) makes
-this process run the step itself, so a result never depends on the child: the same calls give
-the same values either way, only sooner.  An exception the step raises in the child is raised
-here.
+A review's long steps come in independent groups: reading the draft and reading the
+precedent (while this process loads the engine and opens the precedent set); the draft's own
+drafting checks and the comparison.  Where the operating system can fork (Linux) and this
+process runs no other thread (forking a process whose other threads hold locks can leave the
+child stuck: the window's worker thread reviews in line), each child runs one step and sends
+its result back pickled through a pipe.  Anything that goes wrong in a child (it dies, its
+result cannot be pickled) makes this process run the step itself, so a result never depends
+on the child: the same calls give the same values either way, only sooner.  An exception a
+step raises in a child is raised here.
 """
 
 from __future__ import annotations

@@ -97,3 +97,20 @@ def test_a_review_with_its_checks_beside_equals_one_in_turn(monkeypatch) -> None
     monkeypatch.setenv(parallel.PARALLEL_ENV, "0")
     in_turn = review_module.run_review(draft, precedent)
     assert beside.checks and beside == in_turn
+
+
+def test_each_step_in_its_own_child_in_order() -> None:
+    got, mine = parallel.each_beside([lambda: ("draft", os.getpid()), lambda: ("precedent", os.getpid())],
+                                     lambda: os.getpid())
+    assert [name for name, _pid in got] == ["draft", "precedent"]
+    assert len({pid for _name, pid in got} | {mine}) == 3 and mine == os.getpid()
+
+
+def test_the_first_failing_step_is_the_error_raised() -> None:
+    def fails(name: str):
+        def step() -> None:
+            raise CounterdraftError(f"{name}: damaged")
+        return step
+
+    with pytest.raises(CounterdraftError, match="draft.docx"):
+        parallel.each_beside([fails("draft.docx"), fails("precedent.docx")], lambda: None)
