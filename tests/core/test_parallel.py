@@ -37,14 +37,24 @@ def test_an_error_of_the_step_beside_is_raised_here() -> None:
         side_by_side(bad, lambda: 1)
 
 
-def test_an_error_here_wins_and_the_child_is_collected() -> None:
+def test_an_error_here_wins_and_the_child_is_collected(monkeypatch) -> None:
     def bad() -> int:
         raise CounterdraftError("draft.docx: damaged")
 
+    started = []
+    fork = parallel._fork
+
+    def recorded(step):
+        child = fork(step)
+        started.append(child)
+        return child
+
+    monkeypatch.setattr(parallel, "_fork", recorded)
     with pytest.raises(CounterdraftError, match="draft.docx"):
         side_by_side(lambda: 2, bad)
+    (pid, _fd), = started
     with pytest.raises(ChildProcessError):
-        os.waitpid(-1, os.WNOHANG)  # no child left behind
+        os.waitpid(pid, os.WNOHANG)  # already collected: no zombie left behind
 
 
 def test_a_child_that_dies_leaves_the_step_to_this_process() -> None:
