@@ -380,7 +380,7 @@ def _restyled(a: TokenSeq, b: TokenSeq, raw: Sequence[TokenOp]) -> list[TokenOp]
         if a.text[a.starts[op.i1]:a.starts[op.i2]] == b.text[b.starts[op.j1]:b.starts[op.j2]]:
             out.append(op)  # same text, token for token
             continue
-        diff_at = [k for k in range(op.i2 - op.i1) if a.token(op.i1 + k) != b.token(op.j1 + k)]
+        diff_at = _differing(a, b, op)
         if not diff_at:
             out.append(op)
             continue
@@ -399,6 +399,15 @@ def _restyled(a: TokenSeq, b: TokenSeq, raw: Sequence[TokenOp]) -> list[TokenOp]
         if op.i1 + pos < op.i2:
             out.append(TokenOp("equal", op.i1 + pos, op.i2, op.j1 + pos, op.j2))
     return out
+
+
+def _differing(a: TokenSeq, b: TokenSeq, op: TokenOp) -> list[int]:
+    """The places k of the tokens of equal-key *op* whose texts differ (``a.token(op.i1 + k)
+    != b.token(op.j1 + k)``), the slices taken in one pass."""
+    at, bt, sa, sb = a.text, b.text, a.starts, b.starts
+    return [k for k, (p, q, r, s) in enumerate(zip(sa[op.i1:op.i2], sa[op.i1 + 1:op.i2 + 1],
+                                                   sb[op.j1:op.j2], sb[op.j1 + 1:op.j2 + 1], strict=True))
+            if at[p:q] != bt[r:s]]
 
 
 def edits_from_ops(a: TokenSeq, b: TokenSeq, ops: Sequence[TokenOp]) -> list[Edit]:

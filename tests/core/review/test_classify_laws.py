@@ -43,3 +43,20 @@ def _ops_direct(diffs):
 @given(st.lists(st.tuples(st.sampled_from((-1, 0, 1)), st.text("abc", min_size=1, max_size=5)), max_size=15))
 def test_ops_tile_the_diff_as_its_entries_read(diffs) -> None:
     assert _ops(diffs) == _ops_direct(diffs)
+
+
+@settings(max_examples=200, deadline=None)
+@given(st.lists(st.sampled_from(["Fees", "fees", " ", "  ", "\u201cSupplier\u201d", '"Supplier"', "shall", "SHALL",
+                                 ",", "-", "\u2013"]), max_size=30), st.randoms())
+def test_differing_tokens_are_those_a_token_by_token_scan_finds(words, rnd) -> None:
+    # reference: the direct comparison of each pair of token texts
+    from core.review.tokens import tokenize
+    from core.review.worddiff import _differing
+
+    a = tokenize("".join(words))
+    other = [w.swapcase() if rnd.random() < 0.3 else w for w in words]
+    b = tokenize("".join(other))
+    if a.keys != b.keys:
+        return  # the law is about equal-key runs
+    op = TokenOp("equal", 0, len(a), 0, len(b))
+    assert _differing(a, b, op) == [k for k in range(len(a)) if a.token(k) != b.token(k)]
