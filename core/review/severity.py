@@ -390,6 +390,8 @@ def find_quantities(text: str, *, around: tuple[int, int] | None = None) -> list
     found = _quantities_cached(text)
     if around is None:
         return list(found.items)
+    if not found.items:
+        return []
     return found.within(*_window(text, around))
 
 

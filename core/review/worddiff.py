@@ -33,9 +33,9 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from functools import lru_cache
-from typing import Literal
+from typing import Any, Literal
 
 from diff_match_patch import diff_match_patch
 from rapidfuzz.distance import Indel
@@ -207,71 +207,48 @@ def semantic_cleanup(diffs: list[tuple[int, str]]) -> list[tuple[int, str]]:
     return _split_overlaps(dmp, out)
 
 
-@dataclass(slots=True)
-class _EditRun:
-    """A run of edits between two equalities: the deleted and the inserted parts, and
-    their lengths."""
-
-    deleted: list[str] = field(default_factory=list)
-    inserted: list[str] = field(default_factory=list)
-    deleted_len: int = 0
-    inserted_len: int = 0
-
-    def add(self, op: int, text: str) -> None:
-        if op < 0:
-            self.deleted.append(text)
-            self.deleted_len += len(text)
-        else:
-            self.inserted.append(text)
-            self.inserted_len += len(text)
-
-    def longest(self) -> int:
-        return max(self.deleted_len, self.inserted_len)
-
-
 def _eliminate_equalities(diffs: list[tuple[int, str]]) -> tuple[list[tuple[int, str]], bool]:
     """The first pass of the semantic clean-up: an equality no longer than the edits on
     each side of it (the longer of the deleted and inserted text, between it and the next
     equality) becomes a deletion and an insertion, and the equality before it is looked at
-    again.  A stack of equalities and edit runs; each entry is pushed once and merged at
-    most once, so O(entries).  Returns *diffs* itself when nothing was eliminated."""
-    # stack entries: an equality's text, or a run of edits
-    stack: list[str | _EditRun] = []
+    again.  A stack of equalities (str) and edit runs ([deleted parts, inserted parts,
+    deleted length, inserted length]); each entry is pushed once and merged at most once,
+    so O(entries).  Returns *diffs* itself when nothing was eliminated."""
+    stack: list[Any] = []
     changed = False
     for op, text in diffs:
         if op == 0:
             stack.append(text)
             continue
-        top = stack[-1] if stack else None
-        if isinstance(top, _EditRun):
-            run = top
-        else:
-            run = _EditRun()
+        run = stack[-1] if stack and type(stack[-1]) is list else None
+        if run is None:
+            run = [[], [], 0, 0]
             stack.append(run)
-        run.add(op, text)
-        while len(stack) >= 2 and isinstance(stack[-2], str):
-            after, equal = stack[-1], stack[-2]
-            before = stack[-3] if len(stack) >= 3 else None
-            if not (equal and isinstance(before, _EditRun) and isinstance(after, _EditRun)
-                    and len(equal) <= before.longest() and len(equal) <= after.longest()):
+        if op < 0:
+            run[0].append(text)
+            run[2] += len(text)
+        else:
+            run[1].append(text)
+            run[3] += len(text)
+        while len(stack) >= 3 and type(stack[-2]) is str:
+            after, equal, before = stack[-1], stack[-2], stack[-3]
+            n = len(equal)
+            if not (n and type(before) is list and n <= max(before[2], before[3]) and n <= max(after[2], after[3])):
                 break
-            del stack[-3:]
-            stack.append(_EditRun([*before.deleted, equal, *after.deleted],
-                                  [*before.inserted, equal, *after.inserted],
-                                  before.deleted_len + len(equal) + after.deleted_len,
-                                  before.inserted_len + len(equal) + after.inserted_len))
+            stack[-3:] = [[[*before[0], equal, *after[0]], [*before[1], equal, *after[1]],
+                           before[2] + n + after[2], before[3] + n + after[3]]]
             changed = True
     if not changed:
         return list(diffs), False
     out: list[tuple[int, str]] = []
     for entry in stack:
-        if isinstance(entry, str):
+        if type(entry) is str:
             out.append((0, entry))
             continue
-        if entry.deleted_len:
-            out.append((-1, "".join(entry.deleted)))
-        if entry.inserted_len:
-            out.append((1, "".join(entry.inserted)))
+        if entry[2]:
+            out.append((-1, "".join(entry[0])))
+        if entry[3]:
+            out.append((1, "".join(entry[1])))
     return out, True
 
 
