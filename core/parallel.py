@@ -32,10 +32,16 @@ _B = TypeVar("_B")
 PARALLEL_ENV = "COUNTERDRAFT_PARALLEL"
 
 
+#: Modules whose presence means threads Python does not count (a GUI toolkit's own): no fork.
+_NATIVE_THREADS = ("PySide6.QtCore",)
+
+
 def can_fork() -> bool:
-    """Whether a step may run in a forked child: Linux, a single thread, not switched off."""
+    """Whether a step may run in a forked child: Linux, a single thread (and no GUI toolkit,
+    whose own threads Python does not count), not switched off."""
     return (sys.platform.startswith("linux") and hasattr(os, "fork")
-            and threading.active_count() == 1 and os.environ.get(PARALLEL_ENV, "1") != "0")
+            and threading.active_count() == 1 and not any(m in sys.modules for m in _NATIVE_THREADS)
+            and os.environ.get(PARALLEL_ENV, "1") != "0")
 
 
 def side_by_side(beside: Callable[[], _A], here: Callable[[], _B]) -> tuple[_A, _B]:

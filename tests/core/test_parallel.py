@@ -4,6 +4,7 @@ whatever happens to the child process.  Reference: the two calls made directly, 
 from __future__ import annotations
 
 import os
+import sys
 import threading
 
 import pytest
@@ -12,7 +13,14 @@ from core import parallel
 from core.errors import CounterdraftError
 from core.parallel import can_fork, side_by_side
 
-pytestmark = pytest.mark.skipif(not can_fork(), reason="forks only on Linux, from a single thread")
+pytestmark = pytest.mark.skipif(not sys.platform.startswith("linux"), reason="forks only on Linux")
+
+
+@pytest.fixture(autouse=True)
+def _no_toolkit(monkeypatch) -> None:
+    """The window's tests import Qt into this test process; these tests are about the
+    engine's own processes."""
+    monkeypatch.setattr(parallel, "_NATIVE_THREADS", ())
 
 
 def _words(n: int) -> list[str]:
@@ -124,3 +132,10 @@ def test_the_first_failing_step_is_the_error_raised() -> None:
 
     with pytest.raises(CounterdraftError, match="draft.docx"):
         parallel.each_beside([fails("draft.docx"), fails("precedent.docx")], lambda: None)
+
+
+def test_with_a_gui_toolkit_loaded_both_steps_run_here(monkeypatch) -> None:
+    monkeypatch.setattr(parallel, "_NATIVE_THREADS", ("PySide6.QtCore",))
+    monkeypatch.setitem(sys.modules, "PySide6.QtCore", sys.modules.get("PySide6.QtCore", object()))
+    assert not can_fork()
+    assert side_by_side(os.getpid, os.getpid) == (os.getpid(), os.getpid())
