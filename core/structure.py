@@ -58,6 +58,7 @@ __all__ = [
     "provision_blocks",
     "clean_term",
     "definition_start",
+    "fold_case",
     "is_title_case",
     "parse_label",
     "split_provisions",
@@ -146,6 +147,8 @@ _DEC_RE = lazy_compile(r"(?P<dec>\d{1,3}(?:\.\d{1,3})*)(?P<dot>\.)?(?P<sep>[ \t\
 _GLUED_DEC_RE = lazy_compile(r"(?P<dec>\d{1,3}(?:\.\d{1,3})*)\.(?=[A-Z][a-z])")
 #: An all-capitals word of two letters or more: "11 EXPORT RESTRICTIONS Licensee shall".
 _CAPS_WORD_RE = lazy_compile(r"[A-Z][A-Z'’&/-]*[A-Z]\b")
+#: A word: a run of anything but white space.
+_WORD_RE = lazy_compile(r"\S+")
 _PAREN_RE = lazy_compile(r"\((?P<tok>[A-Za-z]{1,4}|\d{1,3})\)(?P<sep>[ \t\u00a0]+|$)")
 _CLOSE_RE = lazy_compile(r"(?P<tok>[A-Za-z]{1,4}|\d{1,3})\)(?P<sep>[ \t\u00a0]+|$)")
 _DOT_RE = lazy_compile(r"(?P<tok>[A-Za-z]{1,4})\.(?P<sep>[ \t\u00a0]+|$)")
@@ -400,6 +403,22 @@ def is_title_case(words: Sequence[str]) -> bool:
     return seen_letter
 
 
+#: The characters ``re.IGNORECASE`` takes for an ASCII letter although ``str.lower`` does
+#: not turn them into it (found by trying every code point against every ASCII letter with
+#: Python 3.11's ``re``): folded to that letter before lower-casing.
+_IGNORECASE_ODD = {"İ": "i", "ı": "i", "ſ": "s"}
+_IGNORECASE_FOLD = str.maketrans(_IGNORECASE_ODD)
+
+
+def fold_case(text: str) -> str:
+    """*text* lower-cased so that a word written in lower case is in it wherever a pattern
+    with ``re.IGNORECASE`` can match that word (the few letters ``str.lower`` keeps apart
+    folded first)."""
+    if not text.isascii() and any(ch in text for ch in _IGNORECASE_ODD):
+        text = text.translate(_IGNORECASE_FOLD)
+    return text.lower()
+
+
 def _has_letters(text: str) -> bool:
     return any(ch.isalpha() for ch in text)
 
@@ -496,6 +515,18 @@ _DEFINITIONS_INTRO_RE = lazy_compile(
     r"\bshall\s+have\s+the\s+(?:following\s+)?meanings\b|^in\s+this\s+[\w ]{3,40}:$",
     re.IGNORECASE,
 )
+
+
+def _definitions_intro(text: str) -> bool:
+    """Does :data:`_DEFINITIONS_INTRO_RE` match somewhere in *text*?  Searched only where
+    the words its branches need are ("following", "meanings", "definitions" and "apply",
+    in any case); else only its last branch, anchored at the start, can match."""
+    folded = fold_case(text)
+    if "following" in folded or "meanings" in folded or ("definitions" in folded and "apply" in folded):
+        return _DEFINITIONS_INTRO_RE.search(text) is not None
+    return _DEFINITIONS_INTRO_RE.match(text) is not None
+
+
 _SIGNATURE_RE = lazy_compile(
     r"^(?:in\s+witness\s+(?:whereof|of\s+which)|as\s+witness|signed\s+(?:by|for|on\s+behalf|as)\b|"
     r"executed\s+(?:as\s+a\s+deed|by|on\s+behalf|for)\b|signature\s+page\b|"
@@ -590,25 +621,30 @@ MIN_CAPS_HEADING_LETTERS = 5
 def _caps_run_in(rest: str) -> tuple[str, int] | None:
     """A run-in heading typed in capitals with no separator: "EXPORT RESTRICTIONS Licensee
     shall ..." -> ("EXPORT RESTRICTIONS", offset of "Licensee").  The words after it must
-    start a sentence (a capital, then lower case)."""
-    words = list(re.finditer(r"\S+", rest))
+    start a sentence (a capital, then lower case).  Reads the words only up to the first
+    that is not in capitals."""
     count = 0
-    for w in words:
+    last = nxt = None
+    for w in _WORD_RE.finditer(rest):
         token = w.group()
         if _CAPS_WORD_RE.fullmatch(token.rstrip(",")) is None and token not in _CAPS_CONNECTORS:
+            nxt = w
             break
         count += 1
-    if count == 0 or count >= len(words) or count > MAX_RUN_IN_WORDS:
+        if count > MAX_RUN_IN_WORDS:
+            return None
+        last = w
+    if last is None or nxt is None:
         return None
-    head = rest[:words[count - 1].end()]
-    nxt = words[count].group()
-    if not (nxt[:1].isupper() and any(ch.islower() for ch in nxt)):
+    head = rest[:last.end()]
+    word = nxt.group()
+    if not (word[:1].isupper() and any(ch.islower() for ch in word)):
         return None
     if count == 1 and sum(ch.isalpha() for ch in head) < MIN_CAPS_HEADING_LETTERS:
         return None
     if head.split()[0].lower() in _SENTENCE_STARTERS or _RECITAL_TEXT_RE.match(head):
         return None
-    return _clean_heading(head), words[count].start()
+    return _clean_heading(head), nxt.start()
 
 
 def _lead_heading(lead: str, label: Label | None, rest: str, *, strict: bool = False
@@ -939,7 +975,7 @@ class _Splitter:
             family = "auto" if label.scheme.startswith("auto:") else family
         is_defs = (kind != "definition" and (
             (heading is not None and _DEFINITIONS_HEADING_RE.match(heading) is not None)
-            or _DEFINITIONS_INTRO_RE.search(text[pos:].strip()) is not None))
+            or _definitions_intro(text[pos:].strip())))
         self.stack.append(_Open(
             draft=idx, family=family, scheme=scheme, rank=label.rank, level=level, base=level,
             comps=label.comps, value=label.value, list_id=block.list_id if block.label else None,

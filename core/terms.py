@@ -62,7 +62,7 @@ from dataclasses import dataclass, field
 
 from .lazyre import lazy_compile
 from .model import Block, DefinedTerm, Provision
-from .structure import clean_term
+from .structure import clean_term, fold_case
 
 __all__ = ["MAX_INLINE_DEFINITION_CHARS", "REGEX_FORMS_MAX", "CharTrie", "char_trie", "find_terms", "term_forms",
            "term_owners", "term_pattern", "terms_pattern", "walk_forms"]
@@ -258,13 +258,6 @@ _DEFINITIONS_HEADING_RE = lazy_compile(
 #: :data:`_LONE_QUOTE_RE` (the opening of that style) finds it.
 _OPENING_CHARS = "\"“”„‘«"
 _LONE_QUOTE_RE = lazy_compile(r"(?<![\w'’])'(?=[^\s'])")
-#: The characters ``re.IGNORECASE`` takes for an ASCII letter although ``str.lower`` does
-#: not turn them into it (found by trying every code point against every ASCII letter with
-#: Python 3.11's ``re``): folded to that letter before lower-casing.
-_IGNORECASE_ODD = {"İ": "i", "ı": "i", "ſ": "s"}
-_IGNORECASE_FOLD = str.maketrans(_IGNORECASE_ODD)
-
-
 def _may_quote(text: str) -> bool:
     """False only when no quoted name (any style of :data:`_QUOTE_STYLES`) starts anywhere
     in *text*: no opening quote.  A few substring tests, instead of a scan of the pattern."""
@@ -274,15 +267,6 @@ def _may_quote(text: str) -> bool:
     if "``" in text or "''" in text:
         return True
     return "'" in text and _LONE_QUOTE_RE.search(text) is not None
-
-
-def fold_case(text: str) -> str:
-    """*text* lower-cased so that a word written in lower case is in it wherever a pattern
-    with ``re.IGNORECASE`` can match that word (the few letters ``str.lower`` keeps apart
-    folded first)."""
-    if not text.isascii() and any(ch in text for ch in _IGNORECASE_ODD):
-        text = text.translate(_IGNORECASE_FOLD)
-    return text.lower()
 
 
 @dataclass(frozen=True, slots=True)
