@@ -257,7 +257,8 @@ _DEFINITIONS_HEADING_RE = lazy_compile(
 #: "''"; the straight single quote is also an apostrophe, so alone it counts only where
 #: :data:`_LONE_QUOTE_RE` (the opening of that style) finds it.
 _OPENING_CHARS = "\"“”„‘«"
-_LONE_QUOTE_RE = lazy_compile(r"(?<![\w'’])'(?=[^\s'])")
+#: ``(?<![\w'’])'(?=[^\s'])``, the quote first so that the engine looks for it directly.
+_LONE_QUOTE_RE = lazy_compile(r"'(?<![\w'’]')(?=[^\s'])")
 def _may_quote(text: str) -> bool:
     """False only when no quoted name (any style of :data:`_QUOTE_STYLES`) starts anywhere
     in *text*: no opening quote.  A few substring tests, instead of a scan of the pattern."""
@@ -721,6 +722,24 @@ def _forms_regex(forms: Iterable[str]) -> str:
     return r"(?<![\w-])(?:" + body + r")" + _POSSESSIVE + r"(?!\w)"
 
 
+def _uses_regex(forms: Iterable[str]) -> str:
+    """:func:`_forms_regex`, its alternatives grouped by their first character, each group
+    behind that character and the look-behind moved after it: a pattern opening with a
+    look-behind is tried at every position of the text, one opening with a choice of
+    characters only where one of them stands (the regex engine skips the others with a
+    set test).  The same matches: at a position only the forms starting with its
+    character can match, tried in the same order (longest first)."""
+    groups: dict[str, list[str]] = {}
+    for f in sorted(set(forms), key=len, reverse=True):
+        groups.setdefault(f[0], []).append(f[1:])
+    parts = []
+    for first, rests in groups.items():
+        lead = re.escape(first)
+        body = "|".join(re.escape(r).replace(r"\ ", r"\s+") for r in rests)
+        parts.append(lead + r"(?<![\w-]" + lead + r")(?:" + body + ")")
+    return r"(?:" + "|".join(parts) + r")" + _POSSESSIVE + r"(?!\w)"
+
+
 def term_pattern(term: str) -> re.Pattern[str]:
     """A pattern matching whole-word uses of *term*: singular, plural and possessive forms
     (``Customer``, ``Customers``, ``Customer's``, ``Customer’s``, ``Customers'``), case as
@@ -857,7 +876,7 @@ def _use_finder(owner: Mapping[str, str]) -> Callable[[str], list[str]]:
     if len(owner) > REGEX_FORMS_MAX:
         trie = char_trie(owner)
         return lambda text: [f for _s, _e, f, _p in walk_forms(text, trie, word_start=True)]
-    findall = re.compile(_forms_regex(owner)).findall  # the pattern has no group: whole matches
+    findall = re.compile(_uses_regex(owner)).findall  # the pattern has no group: whole matches
     seen: dict[str, str] = {}  # match text -> form (an agreement repeats its few names)
 
     def forms(text: str) -> list[str]:
