@@ -22,6 +22,7 @@ from lxml import etree
 __all__ = [
     "MAX_STYLE_CHAIN",
     "W_NS",
+    "EMPTY_RUN_FORMAT",
     "RunFormat",
     "StyleDef",
     "StyleSheet",
@@ -88,7 +89,12 @@ class RunFormat:
     lang: str | None = None
 
     def over(self, base: RunFormat) -> RunFormat:
-        """These properties where set, else *base*'s."""
+        """These properties where set, else *base*'s (one of the two itself when the other
+        sets nothing: most runs and styles set nothing)."""
+        if base is EMPTY_RUN_FORMAT:
+            return self
+        if self is EMPTY_RUN_FORMAT:
+            return base
         return RunFormat(
             bold=self.bold if self.bold is not None else base.bold,
             underline=self.underline if self.underline is not None else base.underline,
@@ -98,7 +104,8 @@ class RunFormat:
         )
 
 
-_EMPTY_FORMAT = RunFormat()
+#: The run format that sets nothing (what an absent ``w:rPr`` reads as).
+EMPTY_RUN_FORMAT = _EMPTY_FORMAT = RunFormat()
 
 
 def run_format_of(rpr: etree._Element | None) -> RunFormat:
