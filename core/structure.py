@@ -555,8 +555,10 @@ _RUN_IN_RE = lazy_compile(r"(?P<head>[^.:;!?\n]{1,120}?)(?P<sep>[.:]|\s[-–—]
 
 def _heading_like_numbered(block: Block, rest: str, label: Label) -> bool:
     """Is the whole remainder of a numbered paragraph its heading ("7. LIABILITY")?"""
+    if len(rest) > MAX_HEADING_CHARS:  # first: a body paragraph is not split into words
+        return False
     words = rest.split()
-    if not words or len(words) > MAX_HEADING_WORDS or len(rest) > MAX_HEADING_CHARS:
+    if not words or len(words) > MAX_HEADING_WORDS:
         return False
     if rest.endswith((",", ";")) or rest[:1] in _QUOTE_OPEN:
         return False
@@ -687,10 +689,10 @@ def _standalone_heading(block: Block, nxt: Block | None) -> bool:
     if block.in_table or block.bullet:
         return False
     text = block.text.strip()
-    if not text or not _has_letters(text) or text[:1] in _QUOTE_OPEN:
+    if not text or len(text) > MAX_HEADING_CHARS or not _has_letters(text) or text[:1] in _QUOTE_OPEN:
         return False
     words = text.split()
-    if len(words) > MAX_HEADING_WORDS or len(text) > MAX_HEADING_CHARS:
+    if len(words) > MAX_HEADING_WORDS:
         return False
     if text.endswith((",", ";")):
         return False
