@@ -45,6 +45,7 @@ document's numbering (not by its length).  O(total text length) overall.
 
 from __future__ import annotations
 
+import functools
 import re
 from collections.abc import Sequence
 from dataclasses import dataclass, field
@@ -307,6 +308,31 @@ def _decimal_label(text: str, start: int) -> Label | None:
     return None
 
 
+#: Auto-number labels remembered (:func:`_auto_label`): a document shows a few hundred
+#: distinct ones ("1.1.", "(a)"), most of them many times.
+AUTO_LABELS_KEPT = 4096
+
+
+@functools.lru_cache(maxsize=AUTO_LABELS_KEPT)
+def _auto_label(body: str) -> Label | None:
+    """An auto-number label on its own (stripped), as :func:`parse_label` reads it (a label
+    is immutable: the same text gives the same one)."""
+    kw = _keyword_label(body, 0, auto=True)
+    if kw is not None:
+        return kw
+    probe = body + " "
+    for rx, style in ((_DEC_RE, None), (_PAREN_RE, "paren"), (_CLOSE_RE, "close"), (_DOT_RE, "dot")):
+        m = rx.match(probe)
+        if m and m.end() == len(probe):
+            if style is None:
+                comps = tuple(int(c) for c in m.group("dec").split("."))
+                return Label(body, _strip_number(body), 0, "dec", "dec", _DEC_RANK, comps=comps)
+            lab = _list_label(m.group("tok"), style, body, 0)
+            if lab is not None:
+                return lab
+    return None
+
+
 def parse_label(text: str, *, auto: bool = False) -> Label | None:
     """The number label at the start of *text*, or None.
 
@@ -323,22 +349,7 @@ def parse_label(text: str, *, auto: bool = False) -> Label | None:
     if start >= len(text):
         return None
     if auto:
-        body = text.strip()
-        kw = _keyword_label(body, 0, auto=True)
-        if kw is not None:
-            return kw
-        probe = body + " "
-        for rx, style in ((_DEC_RE, None), (_PAREN_RE, "paren"), (_CLOSE_RE, "close"), (_DOT_RE, "dot")):
-            m = rx.match(probe)
-            if m and m.end() == len(probe):
-                if style is None:
-                    comps = tuple(int(c) for c in m.group("dec").split("."))
-                    return Label(body, _strip_number(body), 0, "dec", "dec", _DEC_RANK, comps=comps)
-                lab = _list_label(m.group("tok"), style, body, 0)
-                if lab is not None:
-                    return lab
-        return None
-
+        return _auto_label(text.strip())
     ch = text[start]
     if ch.isalpha():
         kw = _keyword_label(text, start, auto=False)

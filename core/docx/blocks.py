@@ -42,6 +42,7 @@ from typing import Any
 from lxml import etree
 
 from ..errors import CounterdraftError
+from ..lazyre import lazy_compile
 from ..model import Block
 from .compat import MC_NS, alternate_branch
 from .numbering import (
@@ -465,7 +466,7 @@ def _merged_walks(document_element: etree._Element, tally: _Tally | None
 #: A literal label typed (in plain text) before an emphasised heading, as in
 #: "7.2<tab>**Limitation of Liability.** The Supplier ...": the lead then starts with it.
 #: Common practice in manually numbered drafts, no source.
-_LITERAL_LABEL = re.compile(
+_LITERAL_LABEL = lazy_compile(
     r"^\s*(?:"
     r"(?:article|section|clause|schedule|part|annex|appendix|exhibit)\s+[0-9a-z]{1,6}[.:]?"
     r"|\(?\d{1,3}(?:\.\d{1,3}){0,4}[.)]?"  # 7   7.   7.2   7.2.   (7)   7)
@@ -476,7 +477,7 @@ _LITERAL_LABEL = re.compile(
 )
 #: Punctuation right after the emphasised words that still belongs to the heading
 #: ("**Payment**. The Customer ..." -> lead "Payment.").
-_TRAILING_PUNCT = re.compile(r"^[.:;\u2013\u2014-]+")
+_TRAILING_PUNCT = lazy_compile(r"^[.:;\u2013\u2014-]+")
 
 
 @dataclass(frozen=True, slots=True)

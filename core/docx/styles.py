@@ -19,6 +19,8 @@ from dataclasses import dataclass, field
 
 from lxml import etree
 
+from ..lazyre import lazy_compile
+
 __all__ = [
     "MAX_STYLE_CHAIN",
     "W_NS",
@@ -43,7 +45,7 @@ MAX_STYLE_CHAIN = 32
 #: Built-in style names Word stores in lower case in styles.xml (w:name="heading 1") while
 #: its user interface shows them capitalised ("Heading 1"); ECMA-376 Part 1 §17.7.4.9 lists
 #: the latent/built-in names.  We report the name as the user sees it.
-_LOWERCASE_BUILTINS = re.compile(
+_LOWERCASE_BUILTINS = lazy_compile(
     r"^(heading [1-9]|toc [1-9]|index [1-9]|title|subtitle|caption|normal|header|footer|"
     r"footnote text|endnote text|annotation text|body text( [23])?|body text indent( [23])?|"
     r"list( [2-5])?|list bullet( [2-5])?|list number( [2-5])?|list continue( [2-5])?|"
@@ -170,7 +172,7 @@ class StyleSheet:
         return found
 
 
-_HEADING_NAME = re.compile(r"^heading ([1-9])$", re.IGNORECASE)
+_HEADING_NAME = lazy_compile(r"^heading ([1-9])$", re.IGNORECASE)
 
 
 @dataclass(slots=True)
