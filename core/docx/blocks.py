@@ -333,10 +333,16 @@ class _ParagraphWalker:
         rpr = _first_child(run, _RPR)
         rstyle = None
         if rpr is not None:
-            rs = _first_child(rpr, _RSTYLE)
+            rs = changed = None
+            for child in rpr:  # the first w:rStyle, and whether a w:rPrChange is there
+                tag = child.tag
+                if tag == _RSTYLE and rs is None:
+                    rs = child
+                elif tag == _RPR_CHANGE:
+                    changed = child
             if rs is not None:
                 rstyle = rs.get(_VAL)
-            if self.revisions is not None and _first_child(rpr, _RPR_CHANGE) is not None:
+            if changed is not None:
                 self._count(_RPR_CHANGE)
         self.stack.append((iter(run), run, run_format_of(rpr), rstyle))
 

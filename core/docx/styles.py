@@ -37,6 +37,8 @@ __all__ = [
 W_NS = "http://schemas.openxmlformats.org/wordprocessingml/2006/main"
 _W = f"{{{W_NS}}}"
 _VAL = _W + "val"
+#: The run properties read (names built once: a document has a run format per run).
+_B, _U, _CAPS, _SMALL_CAPS, _VANISH, _LANG = (_W + n for n in ("b", "u", "caps", "smallCaps", "vanish", "lang"))
 
 #: Longest ``w:basedOn`` chain followed.  Word's own style galleries rarely go beyond 5-6
 #: levels; 32 leaves ample room while bounding the walk on hostile input.
@@ -118,16 +120,16 @@ def run_format_of(rpr: etree._Element | None) -> RunFormat:
     lang: str | None = None
     for child in rpr:
         tag = child.tag
-        if tag == _W + "b":
+        if tag == _B:
             bold = on_off(child)
-        elif tag == _W + "u":
+        elif tag == _U:
             underline = _underline(child)
-        elif tag == _W + "caps" or tag == _W + "smallCaps":
+        elif tag in (_CAPS, _SMALL_CAPS):
             v = on_off(child)
             caps = v if caps is None else (caps or bool(v))
-        elif tag == _W + "vanish":
+        elif tag == _VANISH:
             hidden = on_off(child)
-        elif tag == _W + "lang":
+        elif tag == _LANG:
             lang = child.get(_VAL) or None
     if bold is None and underline is None and caps is None and hidden is None and lang is None:
         return _EMPTY_FORMAT
