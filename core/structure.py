@@ -61,6 +61,7 @@ __all__ = [
     "definition_start",
     "fold_case",
     "is_title_case",
+    "is_upper_text",
     "parse_label",
     "split_provisions",
 ]
@@ -434,9 +435,16 @@ def _has_letters(text: str) -> bool:
     return any(ch.isalpha() for ch in text)
 
 
-def _is_upper(text: str) -> bool:
-    letters = [ch for ch in text if ch.isalpha()]
-    return len(letters) >= 2 and all(ch.isupper() for ch in letters)
+def is_upper_text(text: str) -> bool:
+    """Has *text* two letters or more, all in capitals?  Stops at the first letter that is
+    not (a body paragraph: its second character)."""
+    letters = 0
+    for ch in text:
+        if ch.isalpha():
+            if not ch.isupper():
+                return False
+            letters += 1
+    return letters >= 2
 
 
 def _clean_heading(text: str) -> str:
@@ -576,7 +584,7 @@ def _heading_like_numbered(block: Block, rest: str, label: Label) -> bool:
     title = is_title_case(words) and words[0].lower() not in _SENTENCE_STARTERS
     if block.outline_level is not None:
         return title or not rest.endswith((".", ":"))
-    if block.emphasised or block.all_caps or _is_upper(rest):
+    if block.emphasised or block.all_caps or is_upper_text(rest):
         return len(words) <= MAX_CAPS_HEADING_WORDS and not rest.endswith(":")
     if label.family == "list":
         return False  # "(b) Customer Data" in a list is an item, not a heading
@@ -614,7 +622,7 @@ def _run_in_heading(rest: str) -> tuple[str, int] | None:
         return None
     if words[-1].lower().rstrip(".") in _ABBREVIATIONS or (len(words[-1]) == 1 and words[-1].isalpha()):
         return None
-    if not (is_title_case(words) or _is_upper(head)):
+    if not (is_title_case(words) or is_upper_text(head)):
         return None
     nxt = m.group("next")
     if not (nxt.isupper() or nxt.isdigit() or nxt in _QUOTE_OPEN + "(["):
@@ -687,7 +695,7 @@ def _lead_heading(lead: str, label: Label | None, rest: str, *, strict: bool = F
     if strict:
         if len(words) > MAX_RUN_IN_WORDS or words[0].lower() in _SENTENCE_STARTERS:
             return None
-        if not (is_title_case(words) or _is_upper(cand)):
+        if not (is_title_case(words) or is_upper_text(cand)):
             return None
     heading = _clean_heading(cand)
     if not heading or not _has_letters(heading):
@@ -709,7 +717,7 @@ def _standalone_heading(block: Block, nxt: Block | None) -> bool:
         return False
     if block.outline_level is not None:
         return True
-    if block.emphasised or block.all_caps or _is_upper(text):
+    if block.emphasised or block.all_caps or is_upper_text(text):
         return len(words) <= MAX_CAPS_HEADING_WORDS and not (text.endswith(".") and len(words) > 8)
     if len(words) > MAX_PLAIN_HEADING_WORDS or text.endswith((".", ":", "!", "?")) or "," in text:
         return False
@@ -1152,7 +1160,7 @@ def _title_like(block: Block) -> bool:
     words = text.split()
     if block.in_table or not _has_letters(text) or len(words) > MAX_PLAIN_HEADING_WORDS:
         return False
-    if block.outline_level is not None or block.emphasised or _is_upper(text):
+    if block.outline_level is not None or block.emphasised or is_upper_text(text):
         return True
     return not text.endswith((".", ",", ";", ":")) and is_title_case(words)
 

@@ -5,6 +5,8 @@
   text.
 * :func:`core.structure._caps_run_in` reads words only up to the first not in capitals; the
   reference lists every word of the text first (the earlier form, kept here).
+* :func:`core.structure.is_upper_text` stops at the first letter not in capitals; the
+  reference lists every letter first (Python's ``str.isalpha`` / ``str.isupper``).
 """
 
 from __future__ import annotations
@@ -25,6 +27,7 @@ from core.structure import (
     _caps_run_in,
     _clean_heading,
     _definitions_intro,
+    is_upper_text,
 )
 
 _INTRO_PIECES = (" ", "  ", "\n", ":", ".", "the", "following", "FOLLOWING", "ſhall", "İn", "ın",
@@ -81,3 +84,11 @@ def test_caps_run_in_equals_the_direct_form(rest: str) -> None:
 def test_caps_run_in_finds_a_heading() -> None:
     # Common practice, no source: a heading in capitals run into the sentence.
     assert _caps_run_in("EXPORT RESTRICTIONS Licensee shall comply") == ("EXPORT RESTRICTIONS", 20)
+
+
+@settings(max_examples=1500, deadline=None)
+@given(st.text(alphabet="aAbZ 1.ßÉéǅʰªΣσ", max_size=12))
+def test_upper_text_equals_the_list_of_its_letters(text: str) -> None:
+    # Includes letters without case (modifier letters), title case (ǅ) and ß.
+    letters = [ch for ch in text if ch.isalpha()]
+    assert is_upper_text(text) == (len(letters) >= 2 and all(ch.isupper() for ch in letters))
