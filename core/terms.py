@@ -57,10 +57,10 @@ from __future__ import annotations
 import bisect
 import functools
 import re
-from collections.abc import Callable, Iterable, Mapping, Sequence
+from collections.abc import Callable, Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass, field
 
-from .lazyre import lazy_compile
+from .lazyre import LazyPattern, lazy_compile
 from .model import Block, DefinedTerm, Provision
 from .structure import clean_term, fold_case
 
@@ -429,11 +429,29 @@ def _subject_found(text: str, m: re.Match[str]) -> list[_Found] | None:
     return [_Found(m.start(), names + aliases)]
 
 
+def _line_start_matches(pattern: LazyPattern | re.Pattern[str], text: str) -> Iterator[re.Match[str]]:
+    """``pattern.finditer(text)`` for a *pattern* that opens with ``(?m)^`` and never matches
+    the empty string: tried only where a line starts (the search tries every character of
+    the text, to find out that a line does not start there), and never inside the previous
+    match.  O(lines) attempts."""
+    start = done = 0  # a line's start; where the last match ended
+    while True:
+        if start >= done:
+            m = pattern.match(text, start)
+            if m is not None:
+                yield m
+                done = m.end()
+        nl = text.find("\n", start)
+        if nl < 0:
+            return
+        start = nl + 1
+
+
 def _line_start_definitions(text: str, cues: _Cues, *, in_definitions: bool) -> list[_Found]:
     """Definitions at the start of the text or of one of its lines: unquoted terms with a
     defining verb, quoted terms with a colon or dash."""
     found: list[_Found] = []
-    for m in _UNQUOTED_RE.finditer(text):
+    for m in _line_start_matches(_UNQUOTED_RE, text):
         name = m.group("name")
         first = name.split()[0].lower()
         if first in _NOT_TERM_STARTS or (first in ("a", "an") and len(name.split()) == 1):
@@ -451,7 +469,8 @@ def _line_start_definitions(text: str, cues: _Cues, *, in_definitions: bool) -> 
             continue
         aliases = _unquoted_alias_names(m.group("alias")) if m.group("alias") else ()
         found.append(_Found(m.start("name"), term + aliases))
-    for m in _QUOTED_LINE_START_RE.finditer(text) if cues.quoted and cues.has(*_LINE_START_SEPARATORS) else ():
+    quoted_lines = cues.quoted and cues.has(*_LINE_START_SEPARATORS)
+    for m in _line_start_matches(_QUOTED_LINE_START_RE, text) if quoted_lines else ():
         names = _list_names(m.group("list"))
         if names:
             aliases = _unquoted_alias_names(m.group("alias")) if m.group("alias") else ()

@@ -10,6 +10,8 @@
   (dotted and dotless i, long s).
 * The cue of a quoted name (:func:`core.terms._may_quote`) is never False where the quoted
   name pattern finds one.
+* The patterns of definitions at the start of a line are tried only where a line starts
+  (:func:`core.terms._line_start_matches`): the same matches as ``finditer``.
 * The pattern counting uses (:func:`core.terms._uses_regex`) finds what the pattern of
   :func:`core.terms._forms_regex` finds, match for match.
 """
@@ -27,10 +29,13 @@ from core.structure import fold_case
 from core.terms import (
     _COLLECTIVE_CUES,
     _LONE_QUOTE_RE,
+    _QUOTED_LINE_START_RE,
     _QUOTED_RE,
+    _UNQUOTED_RE,
     _VERB_CUES,
     _forms_regex,
     _inline_definitions,
+    _line_start_matches,
     _may_quote,
     _uses_regex,
 )
@@ -121,3 +126,19 @@ def test_uses_pattern_finds_what_the_forms_pattern_finds(forms: list[str], text:
     slow = [(m.start(), m.group()) for m in re.finditer(_forms_regex(forms), text)]
     fast = [(m.start(), m.group()) for m in re.finditer(_uses_regex(forms), text)]
     assert fast == slow
+
+
+_LINE_PIECES = ("\n", "\n", " ", "\t", "1.5", "(a)", "a)", "Licensee", "Initial Developer", "You", "of", "the",
+                "means", "shall mean", ":", "–", " - ", "(or Your)", '"Customer"', "“Data”", ",", ".", "x")
+
+
+#: Texts of a few lines, each a few pieces (several line-start definitions in one text).
+_LINES = st.lists(st.lists(st.sampled_from(_LINE_PIECES), max_size=6).map("".join), max_size=6).map("\n".join)
+
+
+@settings(max_examples=1500, deadline=None)
+@given(_LINES)
+def test_line_start_matches_equal_finditer(text: str) -> None:
+    for rx in (_UNQUOTED_RE, _QUOTED_LINE_START_RE):
+        direct = [(m.span(), m.groupdict()) for m in rx.finditer(text)]
+        assert [(m.span(), m.groupdict()) for m in _line_start_matches(rx, text)] == direct
