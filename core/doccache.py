@@ -18,7 +18,8 @@ the platform's cache folder -- ``$XDG_CACHE_HOME/counterdraft/documents`` (defau
 alone (mode 0o700) and every entry mode 0o600: an entry holds the agreement's text.
 
 Format: JSON (no pickle: loading an entry runs no code), written atomically
-(:func:`core.fileio.atomic_write_bytes`).  An entry that cannot be read, is not valid JSON,
+(:func:`core.fileio.atomic_write_bytes`).  A provision's text is left out where its
+segments give it (the blocks hold the words once).  An entry that cannot be read, is not valid JSON,
 has another format or key, or does not rebuild a document is ignored -- the file is parsed
 again and the entry rewritten.  Nothing here ever raises for a cache problem: the cache is an
 optimisation, and a folder that cannot be written just means no cache.
@@ -35,7 +36,7 @@ import hashlib
 import json
 import os
 import sys
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from dataclasses import fields
 from pathlib import Path
 from typing import Any
@@ -48,7 +49,7 @@ __all__ = ["CACHE_ENV", "CACHE_FORMAT", "CACHE_MAX_ENTRIES", "cache_folder", "ca
 #: Environment variable naming the cache folder (overrides the platform's).
 CACHE_ENV = "COUNTERDRAFT_CACHE_DIR"
 #: The entries' format; a new format never reads an old entry.
-CACHE_FORMAT = 1
+CACHE_FORMAT = 2  # 2: a provision's text left out where its segments give it
 #: Entries kept: a reviewer's drafts and precedents of the last weeks (a 100-page agreement
 #: is about 1 MB of JSON, so the folder stays within about 200 MB even for long documents).
 CACHE_MAX_ENTRIES = 200
@@ -105,9 +106,21 @@ def _code_fingerprint() -> str:
 _BLOCK_FIELDS = tuple(f.name for f in fields(Block))
 
 
+def _segments_text(segments: Sequence[Segment], blocks: Sequence[Block]) -> str | None:
+    """The text *segments* locate in *blocks* (a provision's text, as the structure reader
+    builds it: the segments joined by line breaks), or None when one is out of range."""
+    if not all(0 <= s.block < len(blocks) and blocks[s.block].index == s.block for s in segments):
+        return None
+    return "\n".join(blocks[s.block].text[s.start:s.end] for s in segments)
+
+
 def _encode(doc: Document) -> dict[str, Any]:
+    """Every field; a provision's text as null when its segments give it (nearly always: it
+    is half the entry, and a third of the time to write one)."""
+    blocks = doc.blocks
     return {
-        "provisions": [[p.id, p.kind, p.number, p.heading, p.level, p.parent, p.text, p.term,
+        "provisions": [[p.id, p.kind, p.number, p.heading, p.level, p.parent,
+                        None if _segments_text(p.segments, blocks) == p.text else p.text, p.term,
                         [[s.block, s.start, s.end] for s in p.segments]] for p in doc.provisions],
         "terms": [[t.term, t.definition, t.provision, t.uses, list(t.aliases),
                    list(t.span) if t.span is not None else None] for t in doc.terms],
@@ -117,12 +130,18 @@ def _encode(doc: Document) -> dict[str, Any]:
 
 
 def _decode(data: dict[str, Any], source: str) -> Document:
-    provisions = tuple(Provision(i, k, n, h, lv, par, text, term, tuple(Segment(*s) for s in segs))
-                       for i, k, n, h, lv, par, text, term, segs in data["provisions"])
+    blocks = tuple(Block(*b) for b in data["blocks"])
+    provisions = []
+    for i, k, n, h, lv, par, text, term, segs in data["provisions"]:
+        segments = tuple(Segment(*s) for s in segs)
+        if text is None:
+            text = _segments_text(segments, blocks)
+            if text is None:
+                raise ValueError("a segment outside the blocks")
+        provisions.append(Provision(i, k, n, h, lv, par, text, term, segments))
     terms = tuple(DefinedTerm(t, d, p, u, tuple(a), tuple(sp) if sp is not None else None)
                   for t, d, p, u, a, sp in data["terms"])
-    blocks = tuple(Block(*b) for b in data["blocks"])
-    return Document(source, provisions, terms, blocks, tuple(data["warnings"]))
+    return Document(source, tuple(provisions), terms, blocks, tuple(data["warnings"]))
 
 
 # ------------------------------------------------------------------------------------------

@@ -45,6 +45,7 @@ document's numbering (not by its length).  O(total text length) overall.
 
 from __future__ import annotations
 
+import functools
 import re
 from collections.abc import Sequence
 from dataclasses import dataclass, field
@@ -58,7 +59,9 @@ __all__ = [
     "provision_blocks",
     "clean_term",
     "definition_start",
+    "fold_case",
     "is_title_case",
+    "is_upper_text",
     "parse_label",
     "split_provisions",
 ]
@@ -146,6 +149,8 @@ _DEC_RE = lazy_compile(r"(?P<dec>\d{1,3}(?:\.\d{1,3})*)(?P<dot>\.)?(?P<sep>[ \t\
 _GLUED_DEC_RE = lazy_compile(r"(?P<dec>\d{1,3}(?:\.\d{1,3})*)\.(?=[A-Z][a-z])")
 #: An all-capitals word of two letters or more: "11 EXPORT RESTRICTIONS Licensee shall".
 _CAPS_WORD_RE = lazy_compile(r"[A-Z][A-Z'’&/-]*[A-Z]\b")
+#: A word: a run of anything but white space.
+_WORD_RE = lazy_compile(r"\S+")
 _PAREN_RE = lazy_compile(r"\((?P<tok>[A-Za-z]{1,4}|\d{1,3})\)(?P<sep>[ \t\u00a0]+|$)")
 _CLOSE_RE = lazy_compile(r"(?P<tok>[A-Za-z]{1,4}|\d{1,3})\)(?P<sep>[ \t\u00a0]+|$)")
 _DOT_RE = lazy_compile(r"(?P<tok>[A-Za-z]{1,4})\.(?P<sep>[ \t\u00a0]+|$)")
@@ -304,6 +309,31 @@ def _decimal_label(text: str, start: int) -> Label | None:
     return None
 
 
+#: Auto-number labels remembered (:func:`_auto_label`): a document shows a few hundred
+#: distinct ones ("1.1.", "(a)"), most of them many times.
+AUTO_LABELS_KEPT = 4096
+
+
+@functools.lru_cache(maxsize=AUTO_LABELS_KEPT)
+def _auto_label(body: str) -> Label | None:
+    """An auto-number label on its own (stripped), as :func:`parse_label` reads it (a label
+    is immutable: the same text gives the same one)."""
+    kw = _keyword_label(body, 0, auto=True)
+    if kw is not None:
+        return kw
+    probe = body + " "
+    for rx, style in ((_DEC_RE, None), (_PAREN_RE, "paren"), (_CLOSE_RE, "close"), (_DOT_RE, "dot")):
+        m = rx.match(probe)
+        if m and m.end() == len(probe):
+            if style is None:
+                comps = tuple(int(c) for c in m.group("dec").split("."))
+                return Label(body, _strip_number(body), 0, "dec", "dec", _DEC_RANK, comps=comps)
+            lab = _list_label(m.group("tok"), style, body, 0)
+            if lab is not None:
+                return lab
+    return None
+
+
 def parse_label(text: str, *, auto: bool = False) -> Label | None:
     """The number label at the start of *text*, or None.
 
@@ -320,22 +350,7 @@ def parse_label(text: str, *, auto: bool = False) -> Label | None:
     if start >= len(text):
         return None
     if auto:
-        body = text.strip()
-        kw = _keyword_label(body, 0, auto=True)
-        if kw is not None:
-            return kw
-        probe = body + " "
-        for rx, style in ((_DEC_RE, None), (_PAREN_RE, "paren"), (_CLOSE_RE, "close"), (_DOT_RE, "dot")):
-            m = rx.match(probe)
-            if m and m.end() == len(probe):
-                if style is None:
-                    comps = tuple(int(c) for c in m.group("dec").split("."))
-                    return Label(body, _strip_number(body), 0, "dec", "dec", _DEC_RANK, comps=comps)
-                lab = _list_label(m.group("tok"), style, body, 0)
-                if lab is not None:
-                    return lab
-        return None
-
+        return _auto_label(text.strip())
     ch = text[start]
     if ch.isalpha():
         kw = _keyword_label(text, start, auto=False)
@@ -400,13 +415,36 @@ def is_title_case(words: Sequence[str]) -> bool:
     return seen_letter
 
 
+#: The characters ``re.IGNORECASE`` takes for an ASCII letter although ``str.lower`` does
+#: not turn them into it (found by trying every code point against every ASCII letter with
+#: Python 3.11's ``re``): folded to that letter before lower-casing.
+_IGNORECASE_ODD = {"İ": "i", "ı": "i", "ſ": "s"}
+_IGNORECASE_FOLD = str.maketrans(_IGNORECASE_ODD)
+
+
+def fold_case(text: str) -> str:
+    """*text* lower-cased so that a word written in lower case is in it wherever a pattern
+    with ``re.IGNORECASE`` can match that word (the few letters ``str.lower`` keeps apart
+    folded first)."""
+    if not text.isascii() and any(ch in text for ch in _IGNORECASE_ODD):
+        text = text.translate(_IGNORECASE_FOLD)
+    return text.lower()
+
+
 def _has_letters(text: str) -> bool:
     return any(ch.isalpha() for ch in text)
 
 
-def _is_upper(text: str) -> bool:
-    letters = [ch for ch in text if ch.isalpha()]
-    return len(letters) >= 2 and all(ch.isupper() for ch in letters)
+def is_upper_text(text: str) -> bool:
+    """Has *text* two letters or more, all in capitals?  Stops at the first letter that is
+    not (a body paragraph: its second character)."""
+    letters = 0
+    for ch in text:
+        if ch.isalpha():
+            if not ch.isupper():
+                return False
+            letters += 1
+    return letters >= 2
 
 
 def _clean_heading(text: str) -> str:
@@ -496,6 +534,18 @@ _DEFINITIONS_INTRO_RE = lazy_compile(
     r"\bshall\s+have\s+the\s+(?:following\s+)?meanings\b|^in\s+this\s+[\w ]{3,40}:$",
     re.IGNORECASE,
 )
+
+
+def _definitions_intro(text: str) -> bool:
+    """Does :data:`_DEFINITIONS_INTRO_RE` match somewhere in *text*?  Searched only where
+    the words its branches need are ("following", "meanings", "definitions" and "apply",
+    in any case); else only its last branch, anchored at the start, can match."""
+    folded = fold_case(text)
+    if "following" in folded or "meanings" in folded or ("definitions" in folded and "apply" in folded):
+        return _DEFINITIONS_INTRO_RE.search(text) is not None
+    return _DEFINITIONS_INTRO_RE.match(text) is not None
+
+
 _SIGNATURE_RE = lazy_compile(
     r"^(?:in\s+witness\s+(?:whereof|of\s+which)|as\s+witness|signed\s+(?:by|for|on\s+behalf|as)\b|"
     r"executed\s+(?:as\s+a\s+deed|by|on\s+behalf|for)\b|signature\s+page\b|"
@@ -524,15 +574,17 @@ _RUN_IN_RE = lazy_compile(r"(?P<head>[^.:;!?\n]{1,120}?)(?P<sep>[.:]|\s[-–—]
 
 def _heading_like_numbered(block: Block, rest: str, label: Label) -> bool:
     """Is the whole remainder of a numbered paragraph its heading ("7. LIABILITY")?"""
+    if len(rest) > MAX_HEADING_CHARS:  # first: a body paragraph is not split into words
+        return False
     words = rest.split()
-    if not words or len(words) > MAX_HEADING_WORDS or len(rest) > MAX_HEADING_CHARS:
+    if not words or len(words) > MAX_HEADING_WORDS:
         return False
     if rest.endswith((",", ";")) or rest[:1] in _QUOTE_OPEN:
         return False
     title = is_title_case(words) and words[0].lower() not in _SENTENCE_STARTERS
     if block.outline_level is not None:
         return title or not rest.endswith((".", ":"))
-    if block.emphasised or block.all_caps or _is_upper(rest):
+    if block.emphasised or block.all_caps or is_upper_text(rest):
         return len(words) <= MAX_CAPS_HEADING_WORDS and not rest.endswith(":")
     if label.family == "list":
         return False  # "(b) Customer Data" in a list is an item, not a heading
@@ -570,7 +622,7 @@ def _run_in_heading(rest: str) -> tuple[str, int] | None:
         return None
     if words[-1].lower().rstrip(".") in _ABBREVIATIONS or (len(words[-1]) == 1 and words[-1].isalpha()):
         return None
-    if not (is_title_case(words) or _is_upper(head)):
+    if not (is_title_case(words) or is_upper_text(head)):
         return None
     nxt = m.group("next")
     if not (nxt.isupper() or nxt.isdigit() or nxt in _QUOTE_OPEN + "(["):
@@ -590,25 +642,30 @@ MIN_CAPS_HEADING_LETTERS = 5
 def _caps_run_in(rest: str) -> tuple[str, int] | None:
     """A run-in heading typed in capitals with no separator: "EXPORT RESTRICTIONS Licensee
     shall ..." -> ("EXPORT RESTRICTIONS", offset of "Licensee").  The words after it must
-    start a sentence (a capital, then lower case)."""
-    words = list(re.finditer(r"\S+", rest))
+    start a sentence (a capital, then lower case).  Reads the words only up to the first
+    that is not in capitals."""
     count = 0
-    for w in words:
+    last = nxt = None
+    for w in _WORD_RE.finditer(rest):
         token = w.group()
         if _CAPS_WORD_RE.fullmatch(token.rstrip(",")) is None and token not in _CAPS_CONNECTORS:
+            nxt = w
             break
         count += 1
-    if count == 0 or count >= len(words) or count > MAX_RUN_IN_WORDS:
+        if count > MAX_RUN_IN_WORDS:
+            return None
+        last = w
+    if last is None or nxt is None:
         return None
-    head = rest[:words[count - 1].end()]
-    nxt = words[count].group()
-    if not (nxt[:1].isupper() and any(ch.islower() for ch in nxt)):
+    head = rest[:last.end()]
+    word = nxt.group()
+    if not (word[:1].isupper() and any(ch.islower() for ch in word)):
         return None
     if count == 1 and sum(ch.isalpha() for ch in head) < MIN_CAPS_HEADING_LETTERS:
         return None
     if head.split()[0].lower() in _SENTENCE_STARTERS or _RECITAL_TEXT_RE.match(head):
         return None
-    return _clean_heading(head), words[count].start()
+    return _clean_heading(head), nxt.start()
 
 
 def _lead_heading(lead: str, label: Label | None, rest: str, *, strict: bool = False
@@ -638,7 +695,7 @@ def _lead_heading(lead: str, label: Label | None, rest: str, *, strict: bool = F
     if strict:
         if len(words) > MAX_RUN_IN_WORDS or words[0].lower() in _SENTENCE_STARTERS:
             return None
-        if not (is_title_case(words) or _is_upper(cand)):
+        if not (is_title_case(words) or is_upper_text(cand)):
             return None
     heading = _clean_heading(cand)
     if not heading or not _has_letters(heading):
@@ -651,16 +708,16 @@ def _standalone_heading(block: Block, nxt: Block | None) -> bool:
     if block.in_table or block.bullet:
         return False
     text = block.text.strip()
-    if not text or not _has_letters(text) or text[:1] in _QUOTE_OPEN:
+    if not text or len(text) > MAX_HEADING_CHARS or not _has_letters(text) or text[:1] in _QUOTE_OPEN:
         return False
     words = text.split()
-    if len(words) > MAX_HEADING_WORDS or len(text) > MAX_HEADING_CHARS:
+    if len(words) > MAX_HEADING_WORDS:
         return False
     if text.endswith((",", ";")):
         return False
     if block.outline_level is not None:
         return True
-    if block.emphasised or block.all_caps or _is_upper(text):
+    if block.emphasised or block.all_caps or is_upper_text(text):
         return len(words) <= MAX_CAPS_HEADING_WORDS and not (text.endswith(".") and len(words) > 8)
     if len(words) > MAX_PLAIN_HEADING_WORDS or text.endswith((".", ":", "!", "?")) or "," in text:
         return False
@@ -939,7 +996,7 @@ class _Splitter:
             family = "auto" if label.scheme.startswith("auto:") else family
         is_defs = (kind != "definition" and (
             (heading is not None and _DEFINITIONS_HEADING_RE.match(heading) is not None)
-            or _DEFINITIONS_INTRO_RE.search(text[pos:].strip()) is not None))
+            or _definitions_intro(text[pos:].strip())))
         self.stack.append(_Open(
             draft=idx, family=family, scheme=scheme, rank=label.rank, level=level, base=level,
             comps=label.comps, value=label.value, list_id=block.list_id if block.label else None,
@@ -1103,7 +1160,7 @@ def _title_like(block: Block) -> bool:
     words = text.split()
     if block.in_table or not _has_letters(text) or len(words) > MAX_PLAIN_HEADING_WORDS:
         return False
-    if block.outline_level is not None or block.emphasised or _is_upper(text):
+    if block.outline_level is not None or block.emphasised or is_upper_text(text):
         return True
     return not text.endswith((".", ",", ";", ":")) and is_title_case(words)
 

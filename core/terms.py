@@ -49,7 +49,9 @@ term and not also of ``Services``.
 Cost: one pass of a few regular expressions over the provision texts and one over the
 blocks to find the definitions, then one pass of a single alternation of all name forms to
 count uses: O(total text length x number of terms) in the worst case of the regex engine,
-in practice close to linear.
+in practice close to linear.  Each definition pattern scans only the texts that hold what it
+cannot match without (an opening quote, its verb or cue word: :class:`_Cues`), a few
+substring tests per text; most provisions of an agreement define nothing and hold no quote.
 """
 
 from __future__ import annotations
@@ -57,12 +59,12 @@ from __future__ import annotations
 import bisect
 import functools
 import re
-from collections.abc import Callable, Iterable, Mapping, Sequence
+from collections.abc import Callable, Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass, field
 
-from .lazyre import lazy_compile
+from .lazyre import LazyPattern, lazy_compile
 from .model import Block, DefinedTerm, Provision
-from .structure import clean_term
+from .structure import clean_term, fold_case
 
 __all__ = ["MAX_INLINE_DEFINITION_CHARS", "REGEX_FORMS_MAX", "CharTrie", "char_trie", "find_terms", "term_forms",
            "term_owners", "term_pattern", "terms_pattern", "walk_forms"]
@@ -136,6 +138,8 @@ _VERBS = (
     r"(?:shall|will)\s+refer\s+to|refers\s+to|refer\s+to|(?:shall|will)\s+include|includes|include|"
     r"is\s+defined|are\s+defined)\b"
 )
+#: Every verb of :data:`_VERBS` holds one of these (lower case): the cue of :data:`_SUBJECT_RE`.
+_VERB_CUES = ("mean", "refer", "includ", "defined")
 #: Verbs after which a list of names are separate terms, each with the meaning given.
 _SEPARATE_VERB_RE = lazy_compile(r"meanings\b|same\s+meaning|\bdefined\b")
 #: "means" the noun ("Electronic means shall include"), not the verb.  Checked after a
@@ -200,6 +204,9 @@ _COLLECTIVE_RE = lazy_compile(
 _CALLED_RE = lazy_compile(
     r"\b(?:is|are|be|being)\s+(?:called|refer(?:red|eed|ed)\s+to\s+as|known\s+as|designated\s+as|termed)\s+"
     r"(?:the\s+|an?\s+)?(?P<list>" + _NAME_LIST + ")")
+#: Cue words of :data:`_CALLED_RE` (as written) and of :data:`_COLLECTIVE_RE` (any case).
+_CALLED_CUES = ("called", "refer", "known", "designated", "termed")
+_COLLECTIVE_CUES = ("each", "together", "collectively", "individually", "jointly", "both")
 _REFER_AS_RE = lazy_compile(
     r"\brefer\s+to\s+" + _quoted("q") + r"\s+as\s+(?:the\s+)?(?P<list>" + _NAME_LIST + ")")
 #: "a "commercial item," as that term is defined in 48 C.F.R. 2.101": a term defined by
@@ -226,6 +233,8 @@ _UNQUOTED_RE = lazy_compile(
     r"(?m)^[ \t]*" + _LINE_LABEL + r"(?P<name>" + _TITLE_PHRASE + r")"
     r"(?P<alias>\s*\([^()\n]{1,60}\))?"
     r"(?P<sep>[ \t]*[:–—][ \t]*|[ \t]*,?[ \t]+)(?P<verb>" + _UNQUOTED_VERBS + r")?")
+#: What :data:`_QUOTED_LINE_START_RE` needs after its names: a colon or a dash.
+_LINE_START_SEPARATORS = (":", "–", "—", "-")
 _QUOTED_LINE_START_RE = lazy_compile(
     r"(?m)^[ \t]*" + _LINE_LABEL + r"(?:(?:the|a|an|to)\s+)?(?P<list>" + _NAME_LIST + r")"
     r"(?P<alias>\s*\([^()\n]{0,80}\))?\s*(?P<sep>[:–—]|\s-\s)")
@@ -240,6 +249,53 @@ _CORRESPONDING_RE = lazy_compile(
 _DEFINITIONS_HEADING_RE = lazy_compile(
     r"^\W*(?:(?:the\s+)?definitions?|defined\s+terms|interpretation|glossary|"
     r"definitions?\s+(?:and|&)\s+\w+|\w+\s+(?:and|&)\s+definitions?)\W*$", re.IGNORECASE)
+
+
+# --------------------------------------------------------------------------------------
+# Cues: what a text must hold for a pattern to match anywhere in it
+# --------------------------------------------------------------------------------------
+
+#: Characters that open a quoted name in one of :data:`_QUOTE_STYLES`, besides "``" and
+#: "''"; the straight single quote is also an apostrophe, so alone it counts only where
+#: :data:`_LONE_QUOTE_RE` (the opening of that style) finds it.
+_OPENING_CHARS = "\"“”„‘«"
+#: ``(?<![\w'’])'(?=[^\s'])``, the quote first so that the engine looks for it directly.
+_LONE_QUOTE_RE = lazy_compile(r"'(?<![\w'’]')(?=[^\s'])")
+def _may_quote(text: str) -> bool:
+    """False only when no quoted name (any style of :data:`_QUOTE_STYLES`) starts anywhere
+    in *text*: no opening quote.  A few substring tests, instead of a scan of the pattern."""
+    for ch in _OPENING_CHARS:
+        if ch in text:
+            return True
+    if "``" in text or "''" in text:
+        return True
+    return "'" in text and _LONE_QUOTE_RE.search(text) is not None
+
+
+@dataclass(frozen=True, slots=True)
+class _Cues:
+    """What a provision's text holds that the definition patterns need, found once per
+    text.  Each pattern runs only where the words it cannot match without are present (a
+    quoted name, its verb, its cue word), so a text without them costs a few substring
+    tests instead of a scan.  *direct* opens every gate: the scans run as written (the law
+    tests compare both)."""
+
+    text: str
+    folded: str
+    quoted: bool
+    direct: bool = False
+
+    def has(self, *words: str) -> bool:
+        """Does the text hold one of *words* (as written)?"""
+        return self.direct or any(w in self.text for w in words)
+
+    def has_folded(self, *words: str) -> bool:
+        """Does the text hold one of the lower-case *words* in any case?"""
+        return self.direct or any(w in self.folded for w in words)
+
+
+def _cues(text: str, *, direct: bool = False) -> _Cues:
+    return _Cues(text, fold_case(text), direct or _may_quote(text), direct)
 
 
 @dataclass(frozen=True, slots=True)
@@ -334,11 +390,13 @@ def _subject_position(text: str, start: int, *, strict: bool) -> bool:
     return not any(w in _CLAUSE_BLOCKERS for w in words)
 
 
-def _subject_definitions(text: str) -> list[_Found]:
+def _subject_definitions(text: str, cues: _Cues) -> list[_Found]:
     """Subject-and-verb definitions.  After a match that is no definition the search goes
     on one character after its start, so a long match does not hide a shorter one inside
     it (``as "X."  "X" means``: the second "X")."""
     found: list[_Found] = []
+    if not (cues.quoted and cues.has_folded(*_VERB_CUES)):
+        return found
     pos = 0
     while (m := _SUBJECT_RE.search(text, pos)) is not None:
         got = _subject_found(text, m)
@@ -373,11 +431,29 @@ def _subject_found(text: str, m: re.Match[str]) -> list[_Found] | None:
     return [_Found(m.start(), names + aliases)]
 
 
-def _line_start_definitions(text: str, *, in_definitions: bool) -> list[_Found]:
+def _line_start_matches(pattern: LazyPattern | re.Pattern[str], text: str) -> Iterator[re.Match[str]]:
+    """``pattern.finditer(text)`` for a *pattern* that opens with ``(?m)^`` and never matches
+    the empty string: tried only where a line starts (the search tries every character of
+    the text, to find out that a line does not start there), and never inside the previous
+    match.  O(lines) attempts."""
+    start = done = 0  # a line's start; where the last match ended
+    while True:
+        if start >= done:
+            m = pattern.match(text, start)
+            if m is not None:
+                yield m
+                done = m.end()
+        nl = text.find("\n", start)
+        if nl < 0:
+            return
+        start = nl + 1
+
+
+def _line_start_definitions(text: str, cues: _Cues, *, in_definitions: bool) -> list[_Found]:
     """Definitions at the start of the text or of one of its lines: unquoted terms with a
     defining verb, quoted terms with a colon or dash."""
     found: list[_Found] = []
-    for m in _UNQUOTED_RE.finditer(text):
+    for m in _line_start_matches(_UNQUOTED_RE, text):
         name = m.group("name")
         first = name.split()[0].lower()
         if first in _NOT_TERM_STARTS or (first in ("a", "an") and len(name.split()) == 1):
@@ -395,7 +471,8 @@ def _line_start_definitions(text: str, *, in_definitions: bool) -> list[_Found]:
             continue
         aliases = _unquoted_alias_names(m.group("alias")) if m.group("alias") else ()
         found.append(_Found(m.start("name"), term + aliases))
-    for m in _QUOTED_LINE_START_RE.finditer(text):
+    quoted_lines = cues.quoted and cues.has(*_LINE_START_SEPARATORS)
+    for m in _line_start_matches(_QUOTED_LINE_START_RE, text) if quoted_lines else ():
         names = _list_names(m.group("list"))
         if names:
             aliases = _unquoted_alias_names(m.group("alias")) if m.group("alias") else ()
@@ -403,34 +480,39 @@ def _line_start_definitions(text: str, *, in_definitions: bool) -> list[_Found]:
     return found
 
 
-def _other_definitions(text: str) -> list[_Found]:
-    """Parentheses, "hereinafter", "each a ... together the", "is called", "refer to X as"."""
+def _other_definitions(text: str, cues: _Cues) -> list[_Found]:
+    """Parentheses, "hereinafter", "each a ... together the", "is called", "refer to X as"
+    (each pattern needs a quoted name, and most a cue word: :class:`_Cues`)."""
     found: list[_Found] = []
-    for m in _PAREN_RE.finditer(text):
+    if not cues.quoted:
+        return found
+    for m in _PAREN_RE.finditer(text) if "(" in text else ():
         found.extend(_Found(m.start(), g) for g in _paren_groups(m.group("inner")))
-    for rx in (_HEREINAFTER_RE, _CALLED_RE):
-        for m in rx.finditer(text):
+    for rx, cued in ((_HEREINAFTER_RE, cues.has_folded("hereinafter")), (_CALLED_RE, cues.has(*_CALLED_CUES))):
+        for m in rx.finditer(text) if cued else ():
             names = _list_names(m.group("list"))
             if names and rx is _HEREINAFTER_RE and _list_is_separate(m.group("list")):
                 found.extend(_Found(m.start(), (n,)) for n in names)
             elif names:
                 found.append(_Found(m.start(), names))
-    for rx in (_COLLECTIVE_RE, _AS_DEFINED_RE):
-        for m in rx.finditer(text):
+    for rx, cued in ((_COLLECTIVE_RE, cues.has_folded(*_COLLECTIVE_CUES)), (_AS_DEFINED_RE, cues.has("term"))):
+        for m in rx.finditer(text) if cued else ():
             names = _clean_all([_body(m, "q")])
             if names:
                 found.append(_Found(m.start(), names))
-    for m in _REFER_AS_RE.finditer(text):
+    for m in _REFER_AS_RE.finditer(text) if cues.has("refer") else ():
         names = _clean_all([_body(m, "q")]) + _list_names(m.group("list"))
         if names:
             found.append(_Found(m.start(), names))
     return found
 
 
-def _inline_definitions(text: str, *, in_definitions: bool = False) -> list[_Found]:
-    """Every definition in *text*, in order of offset."""
-    found = [*_subject_definitions(text), *_line_start_definitions(text, in_definitions=in_definitions),
-             *_other_definitions(text)]
+def _inline_definitions(text: str, *, in_definitions: bool = False, direct: bool = False) -> list[_Found]:
+    """Every definition in *text*, in order of offset (*direct*: every pattern scanned, as
+    :class:`_Cues` says)."""
+    cues = _cues(text, direct=direct)
+    found = [*_subject_definitions(text, cues), *_line_start_definitions(text, cues, in_definitions=in_definitions),
+             *_other_definitions(text, cues)]
     found.sort(key=lambda f: f.offset)
     return found
 
@@ -661,6 +743,24 @@ def _forms_regex(forms: Iterable[str]) -> str:
     return r"(?<![\w-])(?:" + body + r")" + _POSSESSIVE + r"(?!\w)"
 
 
+def _uses_regex(forms: Iterable[str]) -> str:
+    """:func:`_forms_regex`, its alternatives grouped by their first character, each group
+    behind that character and the look-behind moved after it: a pattern opening with a
+    look-behind is tried at every position of the text, one opening with a choice of
+    characters only where one of them stands (the regex engine skips the others with a
+    set test).  The same matches: at a position only the forms starting with its
+    character can match, tried in the same order (longest first)."""
+    groups: dict[str, list[str]] = {}
+    for f in sorted(set(forms), key=len, reverse=True):
+        groups.setdefault(f[0], []).append(f[1:])
+    parts = []
+    for first, rests in groups.items():
+        lead = re.escape(first)
+        body = "|".join(re.escape(r).replace(r"\ ", r"\s+") for r in rests)
+        parts.append(lead + r"(?<![\w-]" + lead + r")(?:" + body + ")")
+    return r"(?:" + "|".join(parts) + r")" + _POSSESSIVE + r"(?!\w)"
+
+
 def term_pattern(term: str) -> re.Pattern[str]:
     """A pattern matching whole-word uses of *term*: singular, plural and possessive forms
     (``Customer``, ``Customers``, ``Customer's``, ``Customer’s``, ``Customers'``), case as
@@ -797,8 +897,19 @@ def _use_finder(owner: Mapping[str, str]) -> Callable[[str], list[str]]:
     if len(owner) > REGEX_FORMS_MAX:
         trie = char_trie(owner)
         return lambda text: [f for _s, _e, f, _p in walk_forms(text, trie, word_start=True)]
-    pattern = re.compile(_forms_regex(owner))
-    return lambda text: [_form_of(m.group(0)) for m in pattern.finditer(text)]
+    findall = re.compile(_uses_regex(owner)).findall  # the pattern has no group: whole matches
+    seen: dict[str, str] = {}  # match text -> form (an agreement repeats its few names)
+
+    def forms(text: str) -> list[str]:
+        out = []
+        for got in findall(text):
+            form = seen.get(got)
+            if form is None:
+                form = seen[got] = _form_of(got)
+            out.append(form)
+        return out
+
+    return forms
 
 
 def _form_of(match_text: str) -> str:

@@ -43,7 +43,7 @@ from pathlib import Path
 from .errors import CounterdraftError
 from .lazyre import lazy_compile
 from .model import Block
-from .structure import parse_label
+from .structure import is_upper_text, parse_label
 
 __all__ = [
     "MAX_TEXT_BYTES",
@@ -449,11 +449,6 @@ def _md_emphasis(text: str) -> tuple[str | None, bool]:
 # --------------------------------------------------------------------------------------
 
 
-def _is_caps(text: str) -> bool:
-    letters = [ch for ch in text if ch.isalpha()]
-    return len(letters) >= 2 and all(ch.isupper() for ch in letters)
-
-
 def _make_block(index: int, lines: Sequence[_Line], *, markdown: bool) -> Block | None:
     first = lines[0]
     heading = first.heading
@@ -489,7 +484,7 @@ def _make_block(index: int, lines: Sequence[_Line], *, markdown: bool) -> Block 
         outline_level=heading if markdown else None,
         lead=lead,
         emphasised=emphasised,
-        all_caps=_is_caps(text),
+        all_caps=is_upper_text(text),
         in_table=in_table,
     )
 

@@ -49,6 +49,7 @@ from dataclasses import dataclass, field
 from lxml import etree
 
 from ..errors import CounterdraftError
+from ..lazyre import lazy_compile
 from .compat import MC_NS, alternate_branch
 from .numformats import BULLET_FORMATS, format_number
 from .styles import W_NS, StyleDef, StyleSheet, on_off
@@ -103,8 +104,8 @@ MAX_NUMBERING_ENTRIES = 100_000
 #: numbered paragraph's label.
 MAX_LEVEL_TEXT_CHARS = 1_000
 
-_PLACEHOLDER = re.compile(r"%([1-9])")
-_DECIMAL_NUMBER = re.compile(r"([+-]?)0*([0-9]+)")
+_PLACEHOLDER = lazy_compile(r"%([1-9])")
+_DECIMAL_NUMBER = lazy_compile(r"([+-]?)0*([0-9]+)")
 _HUGE = 10 ** MAX_NUMBER_DIGITS
 
 

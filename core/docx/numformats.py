@@ -28,8 +28,9 @@ LibreOffice shows them.
 
 from __future__ import annotations
 
-import re
 from collections.abc import Callable
+
+from ..lazyre import lazy_compile
 
 __all__ = [
     "BULLET_FORMATS",
@@ -547,7 +548,7 @@ def _text_format(value: int, num_fmt: str, lang: str) -> str | None:
 # custom: XSLT 1.0 format tokens
 # --------------------------------------------------------------------------------------
 
-_FORMAT_TOKEN = re.compile(r"[^\W_]+")
+_FORMAT_TOKEN = lazy_compile(r"[^\W_]+")
 
 
 def _custom(value: int, pattern: str | None) -> str:

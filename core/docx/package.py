@@ -41,6 +41,7 @@ from typing import BinaryIO
 from lxml import etree
 
 from ..errors import CounterdraftError
+from ..lazyre import lazy_compile
 from .styles import W_NS
 
 __all__ = [
@@ -324,7 +325,7 @@ def _one_line(err: BaseException) -> str:
     return text[:200] or type(err).__name__
 
 
-_PROLOG_ITEM = re.compile(r"\s+|<\?.*?\?>|<!--.*?-->", re.DOTALL)
+_PROLOG_ITEM = lazy_compile(r"\s+|<\?.*?\?>|<!--.*?-->", re.DOTALL)
 
 
 def _decode_head(head: bytes) -> str:

@@ -19,9 +19,12 @@ from dataclasses import dataclass, field
 
 from lxml import etree
 
+from ..lazyre import lazy_compile
+
 __all__ = [
     "MAX_STYLE_CHAIN",
     "W_NS",
+    "EMPTY_RUN_FORMAT",
     "RunFormat",
     "StyleDef",
     "StyleSheet",
@@ -34,6 +37,8 @@ __all__ = [
 W_NS = "http://schemas.openxmlformats.org/wordprocessingml/2006/main"
 _W = f"{{{W_NS}}}"
 _VAL = _W + "val"
+#: The run properties read (names built once: a document has a run format per run).
+_B, _U, _CAPS, _SMALL_CAPS, _VANISH, _LANG = (_W + n for n in ("b", "u", "caps", "smallCaps", "vanish", "lang"))
 
 #: Longest ``w:basedOn`` chain followed.  Word's own style galleries rarely go beyond 5-6
 #: levels; 32 leaves ample room while bounding the walk on hostile input.
@@ -42,7 +47,7 @@ MAX_STYLE_CHAIN = 32
 #: Built-in style names Word stores in lower case in styles.xml (w:name="heading 1") while
 #: its user interface shows them capitalised ("Heading 1"); ECMA-376 Part 1 §17.7.4.9 lists
 #: the latent/built-in names.  We report the name as the user sees it.
-_LOWERCASE_BUILTINS = re.compile(
+_LOWERCASE_BUILTINS = lazy_compile(
     r"^(heading [1-9]|toc [1-9]|index [1-9]|title|subtitle|caption|normal|header|footer|"
     r"footnote text|endnote text|annotation text|body text( [23])?|body text indent( [23])?|"
     r"list( [2-5])?|list bullet( [2-5])?|list number( [2-5])?|list continue( [2-5])?|"
@@ -88,7 +93,12 @@ class RunFormat:
     lang: str | None = None
 
     def over(self, base: RunFormat) -> RunFormat:
-        """These properties where set, else *base*'s."""
+        """These properties where set, else *base*'s (one of the two itself when the other
+        sets nothing: most runs and styles set nothing)."""
+        if base is EMPTY_RUN_FORMAT:
+            return self
+        if self is EMPTY_RUN_FORMAT:
+            return base
         return RunFormat(
             bold=self.bold if self.bold is not None else base.bold,
             underline=self.underline if self.underline is not None else base.underline,
@@ -98,7 +108,8 @@ class RunFormat:
         )
 
 
-_EMPTY_FORMAT = RunFormat()
+#: The run format that sets nothing (what an absent ``w:rPr`` reads as).
+EMPTY_RUN_FORMAT = _EMPTY_FORMAT = RunFormat()
 
 
 def run_format_of(rpr: etree._Element | None) -> RunFormat:
@@ -109,16 +120,16 @@ def run_format_of(rpr: etree._Element | None) -> RunFormat:
     lang: str | None = None
     for child in rpr:
         tag = child.tag
-        if tag == _W + "b":
+        if tag == _B:
             bold = on_off(child)
-        elif tag == _W + "u":
+        elif tag == _U:
             underline = _underline(child)
-        elif tag == _W + "caps" or tag == _W + "smallCaps":
+        elif tag in (_CAPS, _SMALL_CAPS):
             v = on_off(child)
             caps = v if caps is None else (caps or bool(v))
-        elif tag == _W + "vanish":
+        elif tag == _VANISH:
             hidden = on_off(child)
-        elif tag == _W + "lang":
+        elif tag == _LANG:
             lang = child.get(_VAL) or None
     if bold is None and underline is None and caps is None and hidden is None and lang is None:
         return _EMPTY_FORMAT
@@ -163,7 +174,7 @@ class StyleSheet:
         return found
 
 
-_HEADING_NAME = re.compile(r"^heading ([1-9])$", re.IGNORECASE)
+_HEADING_NAME = lazy_compile(r"^heading ([1-9])$", re.IGNORECASE)
 
 
 @dataclass(slots=True)

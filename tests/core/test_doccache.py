@@ -147,3 +147,31 @@ def test_platform_folders(monkeypatch, tmp_path) -> None:
         assert doccache.cache_folder() == tmp_path / "xdg" / "counterdraft" / "documents"
     monkeypatch.setenv(doccache.CACHE_ENV, str(tmp_path / "mine"))
     assert doccache.cache_folder() == tmp_path / "mine"
+
+
+def test_provision_texts_are_left_out_only_where_their_segments_give_them(cache) -> None:
+    # The reference: the provisions as read; a provision whose text is not what its segments
+    # locate (a hand-made document) keeps its text in the entry and comes back unchanged.
+    import dataclasses
+
+    doc = read_document(str(DEMO / "draft.docx"))
+    data = doccache._encode(doc)
+    assert all(p[6] is None for p in data["provisions"])  # the structure reader's texts
+    assert doccache._decode(json.loads(json.dumps(data)), doc.source) == doc
+    odd = dataclasses.replace(doc, provisions=(
+        dataclasses.replace(doc.provisions[0], text=doc.provisions[0].text + " (edited)"),
+        *doc.provisions[1:]))
+    data = doccache._encode(odd)
+    assert data["provisions"][0][6] == odd.provisions[0].text
+    assert doccache._decode(json.loads(json.dumps(data)), odd.source) == odd
+
+
+def test_an_entry_whose_segments_leave_the_blocks_is_parsed_again(cache, tmp_path) -> None:
+    src = tmp_path / "draft.docx"
+    src.write_bytes((DEMO / "draft.docx").read_bytes())
+    fresh = read_document(str(src), cache=True)
+    [entry] = _entries(cache)
+    data = json.loads(entry.read_bytes())
+    data["document"]["provisions"][0][8] = [[10 ** 6, 0, 1]]  # a block the entry lacks
+    entry.write_bytes(json.dumps(data).encode("utf-8"))
+    assert read_document(str(src), cache=True) == fresh
