@@ -2,16 +2,19 @@
 
 One file per bucket (``.counterdraft/buckets/<name>.npz``) holds, for every distinct
 normalised wording of the bucket (rows ordered most frequent first, then by wording hash):
-its hash, its shingle and word hash sets as 0/1 CSR incidence matrices over sorted hash
-columns, its provision count, a sample provision, its variant and the documents using it.
-No text.  :func:`assemble` makes the next version of a bucket's arrays from the previous one
-and the wordings that are new, moving whole rows (no re-hashing of known wordings), so a
-build that adds one agreement rewrites only the buckets that agreement touches, in time
-linear in their size.
+its hash, its shingle and word hash sets as 0/1 incidence matrices over sorted hash columns,
+its provision count, a sample provision, its variant and the documents using it.  No text.
+The build works on the matrices by rows (CSR, :class:`BucketArrays`); the file keeps them by
+columns (CSC), the form a review asks its questions in ("which wordings hold these
+shingles?", :class:`BucketColumns`), so that a review reads them as they are, without
+``scipy.sparse`` (one form only: the index stays as large as before).  :func:`assemble`
+makes the next version of a bucket's arrays from the previous one and the wordings that are
+new, moving whole rows (no re-hashing of known wordings), so a build that adds one agreement
+rewrites only the buckets that agreement touches, in time linear in their size.
 
 Cost: :func:`assemble` is O(nnz) array work (row selection, column remapping) plus
 O(new wordings' words) hashing; :func:`compact` (dropping hash columns no row uses) sorts the
-used columns once.
+used columns once; writing and reading a file for the build turns the matrices round (O(nnz)).
 """
 
 from __future__ import annotations
@@ -23,13 +26,17 @@ from typing import overload
 
 import numpy as np
 
-from .sparse import SparseMatrix
+from .sparse import Csr, SparseMatrix
 from .variants import incidence_matrix
 
-__all__ = ["BucketArrays", "assemble", "compact", "rows_of"]
+__all__ = ["BucketArrays", "BucketColumns", "assemble", "compact", "rows_of"]
 
-_FIELDS = ("hashes", "cols", "indptr", "indices", "sizes", "wcols", "windptr", "windices", "count", "sample",
-           "variant", "docptr", "docs")
+#: The arrays kept as they are held (everything but the incidence matrices).
+_PLAIN = ("hashes", "cols", "sizes", "wcols", "count", "sample", "variant", "docptr", "docs")
+#: The incidence matrices by columns: shingles (``c``) and words (``wc``).
+_COLUMNS = ("cindptr", "cindices", "wcindptr", "wcindices")
+#: The same by rows, as caches written before the columns were kept hold them.
+_ROWS = ("indptr", "indices", "windptr", "windices")
 
 
 @dataclass(frozen=True, slots=True)
@@ -66,14 +73,75 @@ class BucketArrays:
         return _RowSets(self.cols, self.indptr, self.indices)
 
     def to_npz_bytes(self) -> bytes:
+        """The cache file: the incidence matrices by columns (module docstring)."""
+        shingles, words = self.shingle_matrix().tocsc(), self.word_matrix().tocsc()
         buf = io.BytesIO()
-        np.savez(buf, **{f: getattr(self, f) for f in _FIELDS})
+        np.savez(buf, **{f: getattr(self, f) for f in _PLAIN},
+                 cindptr=shingles.indptr.astype(np.int64), cindices=shingles.indices.astype(np.int32),
+                 wcindptr=words.indptr.astype(np.int64), wcindices=words.indices.astype(np.int32))
         return buf.getvalue()
 
     @classmethod
     def from_npz_bytes(cls, data: bytes) -> BucketArrays:
         with np.load(io.BytesIO(data), allow_pickle=False) as a:
-            return cls(**{f: a[f] for f in _FIELDS})
+            plain = {f: a[f] for f in _PLAIN}
+            if "cindptr" not in a.files:  # written before the columns were kept
+                return cls(**plain, **{f: a[f] for f in _ROWS})
+            rows = int(plain["hashes"].size)
+            indptr, indices = _by_rows(a["cindptr"], a["cindices"], rows, int(plain["cols"].size))
+            windptr, windices = _by_rows(a["wcindptr"], a["wcindices"], rows, int(plain["wcols"].size))
+        return cls(**plain, indptr=indptr, indices=indices, windptr=windptr, windices=windices)
+
+
+def _by_rows(cindptr: np.ndarray, cindices: np.ndarray, rows: int, cols: int) -> tuple[np.ndarray, np.ndarray]:
+    """(indptr, indices) by rows of a 0/1 matrix given by columns (scipy's conversion, for
+    the build; each row's columns come out ascending, as the build makes them)."""
+    from scipy.sparse import csc_matrix
+
+    m = csc_matrix((np.ones(cindices.size, dtype=np.int32), cindices, cindptr), shape=(rows, cols)).tocsr()
+    return m.indptr.astype(np.int64), m.indices.astype(np.int32)
+
+
+@dataclass(frozen=True, slots=True)
+class BucketColumns:
+    """What a review reads of a bucket's cache: the incidence matrices by columns (column
+    ``c`` of the shingles holds the rows ``cindices[cindptr[c]:cindptr[c + 1]]``) and the
+    rows' figures (see :class:`BucketArrays`).  Read without ``scipy.sparse``."""
+
+    cols: np.ndarray
+    cindptr: np.ndarray
+    cindices: np.ndarray
+    sizes: np.ndarray
+    wcols: np.ndarray
+    wcindptr: np.ndarray
+    wcindices: np.ndarray
+    count: np.ndarray
+    sample: np.ndarray
+    variant: np.ndarray
+    docptr: np.ndarray
+    docs: np.ndarray
+
+    @property
+    def rows(self) -> int:
+        return int(self.sizes.size)
+
+    @classmethod
+    def from_npz_bytes(cls, data: bytes) -> BucketColumns:
+        fields = ("cols", "sizes", "wcols", "count", "sample", "variant", "docptr", "docs")
+        with np.load(io.BytesIO(data), allow_pickle=False) as a:
+            plain = {f: a[f] for f in fields}
+            if "cindptr" in a.files:
+                return cls(**plain, **{f: a[f] for f in _COLUMNS})
+            # A cache written before the columns were kept (its next build rewrites it).
+            cindptr, cindices = _by_columns(a["indptr"], a["indices"], int(plain["cols"].size))
+            wcindptr, wcindices = _by_columns(a["windptr"], a["windices"], int(plain["wcols"].size))
+        return cls(**plain, cindptr=cindptr, cindices=cindices, wcindptr=wcindptr, wcindices=wcindices)
+
+
+def _by_columns(indptr: np.ndarray, indices: np.ndarray, cols: int) -> tuple[np.ndarray, np.ndarray]:
+    """(column pointers, row indices) of a 0/1 matrix given by rows, with numpy alone."""
+    t = Csr(indptr, indices, np.ones(indices.size, dtype=np.int32), (int(indptr.size - 1), cols)).transpose()
+    return t.indptr.astype(np.int64), t.indices.astype(np.int32)
 
 
 class _RowSets(Sequence[np.ndarray]):

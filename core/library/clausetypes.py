@@ -33,7 +33,7 @@ import numpy as np
 from ..errors import CounterdraftError
 from ..model import Document, Provision
 from .normalise import TermReplacer, canonical_role, fold, match_tokens
-from .sparse import SparseMatrix
+from .sparse import Csr
 
 __all__ = [
     "CLAUSE_TYPES_PATH",
@@ -236,12 +236,13 @@ class NeighbourClassifier:
     (:meth:`to_npz_bytes`), with no pickle.
     """
 
-    def __init__(self, vocabulary: Sequence[str], idf: np.ndarray, matrix: SparseMatrix,
+    def __init__(self, vocabulary: Sequence[str], idf: np.ndarray, matrix: Csr,
                  labels: Sequence[str]) -> None:
         self._terms = list(vocabulary)
         self._index = {t: i for i, t in enumerate(self._terms)}
         self._idf = np.asarray(idf, dtype=np.float64)
-        self._matrix = matrix.tocsr()
+        self._matrix = matrix
+        self._by_term: Csr | None = None  # the examples' transpose, made when first needed
         self._labels = [str(x) for x in labels]
         self._type_order = {t: i for i, t in enumerate(dict.fromkeys(self._labels))}
 
@@ -275,14 +276,12 @@ class NeighbourClassifier:
         for gs in grams:
             df[[index[g] for g in gs]] += 1.0
         idf = np.log((1.0 + len(texts)) / (1.0 + df)) + 1.0
-        unfitted = cls(vocab, idf, _empty_matrix(len(vocab)), labels)
+        unfitted = cls(vocab, idf, Csr.empty(len(vocab)), labels)
         return cls(vocab, idf, unfitted.transform(texts), labels)
 
-    def transform(self, texts: Sequence[str]) -> SparseMatrix:
+    def transform(self, texts: Sequence[str]) -> Csr:
         """TF-IDF rows of *texts* over the fitted vocabulary: (1 + log tf) * idf, l2-normed
         (array work over all texts at once; only the n-gram lookup is per word)."""
-        from scipy.sparse import csr_matrix
-
         width = max(len(self._terms), 1)
         keys: list[int] = []
         for r, text in enumerate(texts):
@@ -293,7 +292,7 @@ class NeighbourClassifier:
         w = (1.0 + np.log(counts.astype(np.float64))) * self._idf[cols]
         norms = np.sqrt(np.bincount(rows, weights=w * w, minlength=len(texts)))
         w = w / np.where(norms[rows] > 0, norms[rows], 1.0)
-        return csr_matrix((w, (rows, cols)), shape=(len(texts), len(self._terms)), dtype=np.float64)
+        return Csr.from_entries(rows, cols, w, (len(texts), len(self._terms)))
 
     def predict(self, texts: Sequence[str]) -> list[tuple[str | None, float]]:
         """For each normalised token string: (clause type or None, best cosine similarity)."""
@@ -301,10 +300,12 @@ class NeighbourClassifier:
             return []
         out: list[tuple[str | None, float]] = []
         k = min(NEIGHBOUR_K, self._matrix.shape[0])
-        mt = self._matrix.T.tocsc()
+        if self._by_term is None:
+            self._by_term = self._matrix.transpose()
+        by_term = self._by_term
         for start in range(0, len(texts), 512):  # bounded memory: 512 x examples per step
             chunk = texts[start:start + 512]
-            sims = (self.transform(chunk) @ mt).toarray()
+            sims = self.transform(chunk).dot(by_term)  # cosine: rows are l2-normed
             stop = _stop_words()
             for text, row in zip(chunk, sims):
                 best = float(row.max()) if row.size else 0.0
@@ -334,17 +335,10 @@ class NeighbourClassifier:
 
     @classmethod
     def from_npz_bytes(cls, data: bytes) -> NeighbourClassifier:
-        from scipy.sparse import csr_matrix
-
         with np.load(io.BytesIO(data), allow_pickle=False) as a:
-            matrix = csr_matrix((a["data"], a["indices"], a["indptr"]), shape=tuple(a["shape"].tolist()))
+            rows, cols = a["shape"].tolist()
+            matrix = Csr(a["indptr"], a["indices"], a["data"], (int(rows), int(cols)))
             return cls(a["vocabulary"].tolist(), a["idf"], matrix, a["labels"].tolist())
-
-
-def _empty_matrix(columns: int) -> SparseMatrix:
-    from scipy.sparse import csr_matrix
-
-    return csr_matrix((0, columns), dtype=np.float64)
 
 
 @lru_cache(maxsize=1)

@@ -86,9 +86,9 @@ from collections import defaultdict
 from collections.abc import Callable, Iterator, Mapping, Sequence
 from concurrent.futures import ProcessPoolExecutor
 from contextlib import contextmanager
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, replace
 from pathlib import Path, PurePosixPath
-from typing import TYPE_CHECKING, Any, Literal, Protocol, runtime_checkable
+from typing import TYPE_CHECKING, Any, Literal, Protocol, TypeVar, runtime_checkable
 
 import numpy as np
 
@@ -96,10 +96,11 @@ from ..errors import CounterdraftError
 from ..fileio import file_sha256
 from ..model import Document
 from ..readers import PRECEDENT_SET_SUFFIXES
-from .bucketcache import BucketArrays, assemble, compact, rows_of
+from .bucketcache import BucketArrays, BucketColumns, assemble, compact, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
 from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
 from .options import FORMER_POSITIONS, POSITIONS
+from .sparse import column_hits, ragged
 from .store import VARIANT_FIGURES, PrecedentStore, is_server_address, open_store
 from .store.base import DocumentState, FailureState
 from .variants import RegroupTooLarge, VariantConfig, cluster_wordings, regroup
@@ -154,8 +155,9 @@ MIN_AGREEMENT_TYPES = 3
 POOL_MIN_FILES = 16
 
 #: Layout of the derived files (meta ``derived``): an index whose derived data has another
-#: layout gets it all anew on its next build.
-DERIVED_FORMAT = "2"
+#: layout gets it all anew on its next build.  3: the bucket caches keep their incidence
+#: matrices by columns (:mod:`.bucketcache`).
+DERIVED_FORMAT = "3"
 
 #: A bucket of at most this many distinct wordings is clustered in full whenever it changes:
 #: its 80,000 distances and their linkage take milliseconds, and a full clustering is the
@@ -852,7 +854,7 @@ def _bucket_wordings(store: PrecedentStore, bucket: str, ranks: tuple[np.ndarray
     order = np.lexsort((np.arange(count.size), -count))  # most provisions first, then by hash
     docptr = np.r_[0, np.cumsum(np.diff(cuts)[order])].astype(np.int64)
     return _Wordings([groups[i][0] for i in order.tolist()], count[order].astype(np.int32), sample[order],
-                     docptr, docs[_ragged(cuts, order)])
+                     docptr, docs[ragged(cuts, order)])
 
 
 def _new_wording_sets(store: PrecedentStore, bucket: str,
@@ -882,11 +884,24 @@ def bucket_blob(bucket: str) -> str:
 
 def read_bucket(store: PrecedentStore, bucket: str) -> BucketArrays | None:
     """A bucket's frequency cache, None when missing or not one this code wrote."""
+    return _read_cache(store, bucket, BucketArrays.from_npz_bytes)
+
+
+def _read_bucket_columns(store: PrecedentStore, bucket: str) -> BucketColumns | None:
+    """What a review reads of a bucket's cache (:class:`~.bucketcache.BucketColumns`), None
+    when missing or not one this code wrote."""
+    return _read_cache(store, bucket, BucketColumns.from_npz_bytes)
+
+
+_Cache = TypeVar("_Cache")
+
+
+def _read_cache(store: PrecedentStore, bucket: str, load: Callable[[bytes], _Cache]) -> _Cache | None:
     data = store.read_blob(bucket_blob(bucket))
     if data is None:
         return None
     try:
-        return BucketArrays.from_npz_bytes(data)
+        return load(data)
     except (OSError, ValueError, KeyError, EOFError):
         return None
 
@@ -1129,22 +1144,24 @@ def _start_vocabulary(store: PrecedentStore, aliases: Mapping[str, str]) -> _Tra
 
 @dataclass(frozen=True, slots=True)
 class BucketIndex:
-    """One bucket's distinct wordings as sparse shingle and word incidence matrices."""
+    """One bucket's distinct wordings: which rows hold each shingle and each word (the
+    incidence matrices by columns, :class:`~.bucketcache.BucketColumns`), and the rows'
+    figures."""
 
     name: str
     cols: np.ndarray  # sorted shingle hashes
-    shingles: Any  # scipy.sparse.csr_matrix, rows = distinct wordings
+    cindptr: np.ndarray  # rows holding shingle cols[c]: cindices[cindptr[c]:cindptr[c + 1]]
+    cindices: np.ndarray
     sizes: np.ndarray  # shingles per row
-    wcols: np.ndarray
-    words: Any  # csr_matrix of distinct words per row
+    wcols: np.ndarray  # sorted word hashes, with their rows as for the shingles
+    wcindptr: np.ndarray
+    wcindices: np.ndarray
     count: np.ndarray  # provisions per row
     sample: np.ndarray  # one provision id per row
     variant: np.ndarray  # variant id per row (-1 if none)
     docptr: np.ndarray
     docs: np.ndarray
     document_count: int = 0  # distinct documents with a provision in the bucket
-    #: Column-major copies made when first needed (a review asks word questions of few buckets).
-    _columns: dict[str, Any] = field(default_factory=dict, compare=False, repr=False)
 
     @property
     def rows(self) -> int:
@@ -1152,47 +1169,28 @@ class BucketIndex:
 
     def documents_of(self, row_mask: np.ndarray) -> set[int]:
         rows = np.flatnonzero(row_mask)
-        return set(self.docs[_ragged(self.docptr, rows)].tolist())
+        return set(self.docs[ragged(self.docptr, rows)].tolist())
 
     def all_documents(self) -> set[int]:
         return set(self.docs.tolist())
 
-    def _by_column(self, key: str) -> Any:
-        m = self._columns.get(key)
-        if m is None:
-            m = self._columns[key] = (self.shingles if key == "s" else self.words).tocsc()
-        return m
-
     def intersections(self, hashes: np.ndarray) -> np.ndarray:
         """|row shingles & hashes| for every row (hashes: sorted unique uint64)."""
-        return self._hits(self.cols, self._by_column("s"), hashes)
+        return column_hits(self.cindptr, self.cindices, _columns_of(self.cols, hashes), self.rows)
 
     def word_hits(self, hashes: np.ndarray) -> np.ndarray:
-        return self._hits(self.wcols, self._by_column("w"), hashes)
-
-    @staticmethod
-    def _hits(cols: np.ndarray, matrix: Any, hashes: np.ndarray) -> np.ndarray:
-        if hashes.size == 0 or cols.size == 0:
-            return np.zeros(matrix.shape[0], dtype=np.int64)
-        pos = np.searchsorted(cols, hashes)
-        ok = pos < cols.size
-        pos = pos[ok]
-        pos = pos[cols[pos] == hashes[ok]]
-        if pos.size == 0:
-            return np.zeros(matrix.shape[0], dtype=np.int64)
-        # The rows of the chosen columns of the CSC matrix, counted (no sparse slicing).
-        return np.bincount(matrix.indices[_ragged(matrix.indptr, pos)], minlength=matrix.shape[0]).astype(np.int64)
+        return column_hits(self.wcindptr, self.wcindices, _columns_of(self.wcols, hashes), self.rows)
 
 
-def _ragged(indptr: np.ndarray, picks: np.ndarray) -> np.ndarray:
-    """Positions ``indptr[p]:indptr[p + 1]`` for every p of *picks*, concatenated."""
-    starts = indptr[picks].astype(np.int64)
-    lengths = indptr[picks + 1].astype(np.int64) - starts
-    total = int(lengths.sum())
-    if total == 0:
+def _columns_of(cols: np.ndarray, hashes: np.ndarray) -> np.ndarray:
+    """The positions in *cols* (sorted) of those *hashes* it holds."""
+    if hashes.size == 0 or cols.size == 0:
         return np.zeros(0, dtype=np.int64)
-    offsets = np.repeat(starts - np.cumsum(lengths) + lengths, lengths)
-    return offsets + np.arange(total, dtype=np.int64)
+    pos = np.searchsorted(cols, hashes)
+    ok = pos < cols.size
+    pos = pos[ok]
+    found: np.ndarray = pos[cols[pos] == hashes[ok]]
+    return found
 
 
 class Library:
@@ -1314,10 +1312,10 @@ class Library:
         its provisions fall in)."""
         if name in self._buckets:
             return self._buckets[name]
-        a = read_bucket(self.store, name)
+        a = _read_bucket_columns(self.store, name)
         b = None
         if a is not None and a.rows:
-            b = BucketIndex(name, a.cols, a.shingle_matrix(), a.sizes, a.wcols, a.word_matrix(),
+            b = BucketIndex(name, a.cols, a.cindptr, a.cindices, a.sizes, a.wcols, a.wcindptr, a.wcindices,
                             a.count, a.sample, a.variant, a.docptr, a.docs, int(np.unique(a.docs).size))
         self._buckets[name] = b
         return b

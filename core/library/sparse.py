@@ -1,15 +1,119 @@
-"""The name of the sparse matrices the precedent set works with.
+"""Sparse matrices of the precedent set.
 
-:data:`SparseMatrix` is a ``scipy.sparse`` CSR (or CSC) matrix.  scipy ships no type
-information on the package index the project uses (pyproject's mypy overrides), so the name
-only documents which values are sparse matrices; their methods are scipy's, unchecked.
+:data:`SparseMatrix` names a ``scipy.sparse`` CSR (or CSC) matrix: the build works with them.
+scipy ships no type information on the package index the project uses (pyproject's mypy
+overrides), so the name only documents which values are sparse matrices; their methods are
+scipy's, unchecked.
+
+A review reads the index without importing ``scipy.sparse`` (loading it costs about a tenth
+of a second, as much as the rest of the library's work on a review): :class:`Csr` holds a
+matrix as plain numpy arrays in compressed sparse row form, with the few operations a review
+needs, each done with numpy alone and giving scipy's results exactly (same sums in the same
+order; tests/core/library/test_sparse.py compares them with scipy's).
 """
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import Any, TypeAlias
 
-__all__ = ["SparseMatrix"]
+import numpy as np
+
+__all__ = ["Csr", "SparseMatrix", "column_hits", "ragged"]
 
 #: A ``scipy.sparse`` matrix (``csr_matrix`` unless a function says otherwise).
 SparseMatrix: TypeAlias = Any
+
+
+def _pointers(rows: np.ndarray, count: int) -> np.ndarray:
+    """Row pointers of entries whose rows are *rows* (ascending), for *count* rows."""
+    indptr = np.zeros(count + 1, dtype=np.int64)
+    np.cumsum(np.bincount(rows, minlength=count), out=indptr[1:])
+    return indptr
+
+
+@dataclass(frozen=True, slots=True)
+class Csr:
+    """A sparse matrix in compressed sparse row form: row ``i`` holds the entries
+    ``data[indptr[i]:indptr[i + 1]]`` in the columns ``indices[indptr[i]:indptr[i + 1]]``."""
+
+    indptr: np.ndarray
+    indices: np.ndarray
+    data: np.ndarray
+    shape: tuple[int, int]
+
+    @classmethod
+    def from_entries(cls, rows: np.ndarray, cols: np.ndarray, data: np.ndarray, shape: tuple[int, int]) -> Csr:
+        """The matrix of distinct entries ``(rows[k], cols[k]) = data[k]`` given in row-major
+        order (rows ascending, then columns), as scipy's ``csr_matrix((data, (rows, cols)))``
+        stores them."""
+        indices = np.asarray(cols).astype(_index_dtype(shape[1], rows.size))
+        indptr = _pointers(np.asarray(rows, dtype=np.int64), shape[0]).astype(indices.dtype)
+        return cls(indptr, indices, np.asarray(data), (int(shape[0]), int(shape[1])))
+
+    @classmethod
+    def empty(cls, columns: int) -> Csr:
+        """A matrix of no rows and *columns* columns."""
+        return cls(np.zeros(1, dtype=np.int32), np.zeros(0, dtype=np.int32), np.zeros(0), (0, int(columns)))
+
+    @property
+    def nnz(self) -> int:
+        return int(self.indices.size)
+
+    def toarray(self) -> np.ndarray:
+        """The dense matrix."""
+        out = np.zeros(self.shape, dtype=self.data.dtype)
+        out[np.repeat(np.arange(self.shape[0]), np.diff(self.indptr)), self.indices] = self.data
+        return out
+
+    def transpose(self) -> Csr:
+        """The transpose, rows of each column kept in ascending order (scipy's ``tocsc``
+        arrays read as the transpose's CSR).  A stable sort of the column indices: meant for
+        matrices of up to about a million entries."""
+        order = np.argsort(self.indices, kind="stable")
+        rows = np.repeat(np.arange(self.shape[0], dtype=np.int64), np.diff(self.indptr))
+        cols = self.indices[order].astype(np.int64)
+        return Csr.from_entries(cols, rows[order], self.data[order], (self.shape[1], self.shape[0]))
+
+    def dot(self, other: Csr) -> np.ndarray:
+        """The dense product ``self @ other``.  Each cell sums its products in the order of
+        this row's entries, starting from zero, as scipy's sparse product does, so the
+        figures are bit for bit scipy's."""
+        n_rows, n_out = self.shape[0], other.shape[1]
+        if n_rows == 0 or n_out == 0 or self.nnz == 0:
+            return np.zeros((n_rows, n_out))
+        picks = ragged(other.indptr, self.indices)
+        lengths = (other.indptr[self.indices + 1] - other.indptr[self.indices]).astype(np.int64)
+        entry = np.repeat(np.arange(self.nnz, dtype=np.int64), lengths)
+        row_of_entry = np.repeat(np.arange(n_rows, dtype=np.int64), np.diff(self.indptr))
+        cells = row_of_entry[entry] * n_out + other.indices[picks]
+        weights = self.data[entry] * other.data[picks]
+        return np.bincount(cells, weights=weights, minlength=n_rows * n_out).reshape(n_rows, n_out)
+
+
+def _index_dtype(columns: int, entries: int) -> type[np.integer[Any]]:
+    """int32 where it holds every index, as scipy chooses."""
+    return np.int32 if max(columns, entries) <= np.iinfo(np.int32).max else np.int64
+
+
+def ragged(indptr: np.ndarray, picks: np.ndarray) -> np.ndarray:
+    """Positions ``indptr[p]:indptr[p + 1]`` for every p of *picks*, concatenated."""
+    starts = indptr[picks].astype(np.int64)
+    lengths = indptr[picks + 1].astype(np.int64) - starts
+    total = int(lengths.sum())
+    if total == 0:
+        return np.zeros(0, dtype=np.int64)
+    offsets = np.repeat(starts - np.cumsum(lengths) + lengths, lengths)
+    return offsets + np.arange(total, dtype=np.int64)
+
+
+def column_hits(indptr: np.ndarray, indices: np.ndarray, picks: np.ndarray, rows: int) -> np.ndarray:
+    """For a 0/1 matrix of *rows* rows given by columns (CSC: column ``c`` holds the rows
+    ``indices[indptr[c]:indptr[c + 1]]``): how many of the columns *picks* (distinct) each row
+    has, i.e. the product of the matrix with the 0/1 vector of *picks*."""
+    if picks.size == 0:
+        return np.zeros(rows, dtype=np.int64)
+    # One slice per picked column, joined: cheaper than building every position first.
+    starts, ends = indptr[picks].tolist(), indptr[picks + 1].tolist()
+    taken = np.concatenate([indices[s:e] for s, e in zip(starts, ends)])
+    return np.bincount(taken, minlength=rows).astype(np.int64)
