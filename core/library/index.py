@@ -76,7 +76,6 @@ from __future__ import annotations
 
 import hashlib
 import json
-import multiprocessing
 import os
 import re
 import stat
@@ -84,7 +83,6 @@ import tempfile
 import time
 from collections import defaultdict
 from collections.abc import Callable, Iterator, Mapping, Sequence
-from concurrent.futures import ProcessPoolExecutor
 from contextlib import contextmanager
 from dataclasses import dataclass, replace
 from pathlib import Path, PurePosixPath
@@ -429,6 +427,9 @@ def _read_many(paths: Sequence[str], *, workers: int) -> Iterator[_Extract | _Pr
         for p in paths:
             yield _extract(p)
         return
+    import multiprocessing  # here: a review, which reads no file, does not load them
+    from concurrent.futures import ProcessPoolExecutor
+
     ctx = multiprocessing.get_context("spawn")
     with ProcessPoolExecutor(max_workers=workers, mp_context=ctx) as pool:
         try:
@@ -1081,6 +1082,8 @@ class _Training:
         self._pool: Any = None
         self._job: Any = None
         if state["words"] >= PARALLEL_TRAINING_MIN_WORDS:
+            import multiprocessing
+
             from .vocab import train_model
 
             self._pool = multiprocessing.get_context("spawn").Pool(1)
