@@ -81,6 +81,10 @@ NEIGHBOUR_MIN_SHARE = 0.4
 #: neighbours: a two-word line ("AGREED TERMS") matches some seed by accident.
 NEIGHBOUR_MIN_WORDS = 4
 
+#: Texts whose predicted type a classifier remembers (:meth:`NeighbourClassifier.predict`):
+#: a few long agreements' worth (a 100-page agreement has some 500 provisions), a few MB.
+PREDICTION_MEMO = 20_000
+
 #: Typed provisions of one type kept as neighbour examples (chosen deterministically), which
 #: bounds the classifier's size and fitting time for a large precedent set.
 MAX_EXAMPLES_PER_TYPE = 200
@@ -243,6 +247,7 @@ class NeighbourClassifier:
         self._idf = np.asarray(idf, dtype=np.float64)
         self._matrix = matrix
         self._by_term: Csr | None = None  # the examples' transpose, made when first needed
+        self._memo: dict[str, tuple[str | None, float]] = {}
         self._labels = [str(x) for x in labels]
         self._type_order = {t: i for i, t in enumerate(dict.fromkeys(self._labels))}
 
@@ -295,35 +300,41 @@ class NeighbourClassifier:
         return Csr.from_entries(rows, cols, w, (len(texts), len(self._terms)))
 
     def predict(self, texts: Sequence[str]) -> list[tuple[str | None, float]]:
-        """For each normalised token string: (clause type or None, best cosine similarity)."""
-        if not texts:
-            return []
-        out: list[tuple[str | None, float]] = []
+        """For each normalised token string: (clause type or None, best cosine similarity).
+
+        A text's answer depends on that text alone, so answers are remembered (up to
+        ``PREDICTION_MEMO`` texts): a review types each document once for the comparison and
+        again with the review's term renames, where most texts read the same."""
+        memo = self._memo
+        new = [t for t in dict.fromkeys(texts) if t not in memo]
+        if len(memo) + len(new) > PREDICTION_MEMO:
+            memo.clear()
+        if new:
+            if self._by_term is None:
+                self._by_term = self._matrix.transpose()
+            for start in range(0, len(new), 512):  # bounded memory: 512 x examples per step
+                chunk = new[start:start + 512]
+                sims = self.transform(chunk).dot(self._by_term)  # cosine: rows are l2-normed
+                memo.update((text, self._vote(text, row)) for text, row in zip(chunk, sims))
+        return [memo[t] for t in texts]
+
+    def _vote(self, text: str, row: np.ndarray) -> tuple[str | None, float]:
+        """The type the nearest examples agree on (similarities *row*), and the best one."""
+        best = float(row.max()) if row.size else 0.0
+        stop = _stop_words()
+        if sum(1 for w in text.split() if w not in stop) < NEIGHBOUR_MIN_WORDS:
+            return None, best
         k = min(NEIGHBOUR_K, self._matrix.shape[0])
-        if self._by_term is None:
-            self._by_term = self._matrix.transpose()
-        by_term = self._by_term
-        for start in range(0, len(texts), 512):  # bounded memory: 512 x examples per step
-            chunk = texts[start:start + 512]
-            sims = self.transform(chunk).dot(by_term)  # cosine: rows are l2-normed
-            stop = _stop_words()
-            for text, row in zip(chunk, sims):
-                best = float(row.max()) if row.size else 0.0
-                if sum(1 for w in text.split() if w not in stop) < NEIGHBOUR_MIN_WORDS:
-                    out.append((None, best))
-                    continue
-                top = np.argpartition(-row, k - 1)[:k]
-                top = top[row[top] >= NEIGHBOUR_MIN_SIMILARITY]
-                if top.size == 0:
-                    out.append((None, best))
-                    continue
-                votes: dict[str, float] = defaultdict(float)
-                for i in top.tolist():
-                    votes[self._labels[i]] += float(row[i])
-                total = sum(votes.values())
-                winner = min(votes, key=lambda t: (-votes[t], self._type_order.get(t, 0)))
-                out.append((winner, best) if votes[winner] / total >= NEIGHBOUR_MIN_SHARE else (None, best))
-        return out
+        top = np.argpartition(-row, k - 1)[:k]
+        top = top[row[top] >= NEIGHBOUR_MIN_SIMILARITY]
+        if top.size == 0:
+            return None, best
+        votes: dict[str, float] = defaultdict(float)
+        for i in top.tolist():
+            votes[self._labels[i]] += float(row[i])
+        total = sum(votes.values())
+        winner = min(votes, key=lambda t: (-votes[t], self._type_order.get(t, 0)))
+        return (winner, best) if votes[winner] / total >= NEIGHBOUR_MIN_SHARE else (None, best)
 
     def to_npz_bytes(self) -> bytes:
         buf = io.BytesIO()

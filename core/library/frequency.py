@@ -175,7 +175,9 @@ class _Context:
         self._prec = {p.id: p for p in review.precedent.provisions}
         self._wordings: dict[tuple[str, str], _Wording] = {}
         self._dist: dict[tuple[str, str, str], np.ndarray] = {}
+        self._dist_by_wording: dict[tuple[str, bytes], np.ndarray] = {}
         self._siblings: dict[tuple[str, str], list[str]] | None = None
+        self._phrases: dict[tuple[str, tuple[str, ...]], int] = {}
 
     def provision(self, side: str, pid: str) -> Provision:
         return (self._draft if side == "d" else self._prec)[pid]
@@ -224,9 +226,14 @@ class _Context:
         d = self._dist.get(key)
         if d is None:
             w = self.wording(side, pid)
-            inter = bucket.intersections(w.hashes)
-            d = distances_from_counts(inter, bucket.sizes, np.full(bucket.rows, w.hashes.size),
-                                      metric=self.config.metric)
+            # Provisions that read the same (most of a draft and its precedent) share one.
+            same = (bucket.name, w.hashes.tobytes())
+            d = self._dist_by_wording.get(same)
+            if d is None:
+                inter = bucket.intersections(w.hashes)
+                d = distances_from_counts(inter, bucket.sizes, np.full(bucket.rows, w.hashes.size),
+                                          metric=self.config.metric)
+                self._dist_by_wording[same] = d
             self._dist[key] = d
         return d
 
@@ -255,28 +262,41 @@ class _Context:
         return stance_named(self.positions.get(int(bucket.variant[best])))
 
     def containing_phrase(self, bucket: BucketIndex, tokens: Sequence[str]) -> int:
-        """Same-type library provisions whose normalised text holds *tokens* as a phrase."""
-        toks = [t for t in tokens if t]
-        if not toks:
-            return 0
-        words = np.unique(np.fromiter((_word_hash(t) for t in toks), dtype=np.uint64, count=len(toks)))
-        hits = bucket.word_hits(words)
-        cand = np.flatnonzero(hits == words.size)
-        if cand.size and len(toks) >= SHINGLE_SIZE:
-            # A text holding the phrase holds each of its shingles: a cheaper, exact filter
-            # before reading the candidates' texts.
-            grams = shingle_hashes(toks)
-            cand = cand[bucket.intersections(grams)[cand] == grams.size]
-        if cand.size == 0:
-            return 0
-        phrase = " " + " ".join(toks) + " "
-        norms = self.library.norms([int(bucket.sample[i]) for i in cand])
-        n = 0
-        for i in cand.tolist():
-            norm = norms.get(int(bucket.sample[i]))
-            if norm is not None and phrase in f" {norm} ":
-                n += int(bucket.count[i])
+        """Same-type library provisions whose normalised text holds *tokens* as a phrase
+        (asked once per bucket and phrase: deviations often change the same words)."""
+        toks = tuple(t for t in tokens if t)
+        key = (bucket.name, toks)
+        n = self._phrases.get(key)
+        if n is None:
+            n = self._phrases[key] = _containing_phrase(self.library, bucket, toks)
         return n
+
+
+def _containing_phrase(library: Library, bucket: BucketIndex, toks: Sequence[str]) -> int:
+    if not toks:
+        return 0
+    words = np.unique(np.fromiter((_word_hash(t) for t in toks), dtype=np.uint64, count=len(toks)))
+    hits = bucket.word_hits(words)
+    cand = np.flatnonzero(hits == words.size)
+    if len(toks) == 1:
+        # One word: a text holds it as a phrase exactly when it is among the text's words
+        # (its tokens, which hold no space), as the bucket's word columns record them.
+        return int(bucket.count[cand].sum())
+    if cand.size and len(toks) >= SHINGLE_SIZE:
+        # A text holding the phrase holds each of its shingles: a cheaper, exact filter
+        # before reading the candidates' texts.
+        grams = shingle_hashes(toks)
+        cand = cand[bucket.intersections(grams)[cand] == grams.size]
+    if cand.size == 0:
+        return 0
+    phrase = " " + " ".join(toks) + " "
+    norms = library.norms([int(bucket.sample[i]) for i in cand])
+    n = 0
+    for i in cand.tolist():
+        norm = norms.get(int(bucket.sample[i]))
+        if norm is not None and phrase in f" {norm} ":
+            n += int(bucket.count[i])
+    return n
 
 
 def _empty(total: int) -> Frequency:
