@@ -69,6 +69,7 @@ from ..model import ClosestProvision, Deviation, Document, Frequency, Pair, Prov
 from .clausetypes import Typing, classify_provisions, document_term_replacer
 from .index import BucketIndex, Library, bucket_of, normalised_wording
 from .normalise import SHINGLE_SIZE, TermReplacer, _word_hash, match_tokens, shingle_hashes
+from .sparse import unique_sorted
 from .variants import distances_from_counts, set_distance
 
 __all__ = [
@@ -275,7 +276,7 @@ class _Context:
 def _containing_phrase(library: Library, bucket: BucketIndex, toks: Sequence[str]) -> int:
     if not toks:
         return 0
-    words = np.unique(np.fromiter((_word_hash(t) for t in toks), dtype=np.uint64, count=len(toks)))
+    words = unique_sorted(np.fromiter((_word_hash(t) for t in toks), dtype=np.uint64, count=len(toks)))
     hits = bucket.word_hits(words)
     cand = np.flatnonzero(hits == words.size)
     if len(toks) == 1:

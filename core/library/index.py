@@ -98,7 +98,7 @@ from .bucketcache import BucketArrays, BucketColumns, assemble, compact, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
 from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
 from .options import FORMER_POSITIONS, POSITIONS
-from .sparse import column_hits, ragged
+from .sparse import column_hits, ragged, unique_sorted
 from .store import VARIANT_FIGURES, PrecedentStore, is_server_address, open_store
 from .store.base import DocumentState, FailureState
 from .variants import RegroupTooLarge, VariantConfig, cluster_wordings, regroup
@@ -1319,7 +1319,7 @@ class Library:
         b = None
         if a is not None and a.rows:
             b = BucketIndex(name, a.cols, a.cindptr, a.cindices, a.sizes, a.wcols, a.wcindptr, a.wcindices,
-                            a.count, a.sample, a.variant, a.docptr, a.docs, int(np.unique(a.docs).size))
+                            a.count, a.sample, a.variant, a.docptr, a.docs, int(unique_sorted(a.docs).size))
         self._buckets[name] = b
         return b
 

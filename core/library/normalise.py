@@ -31,6 +31,8 @@ from functools import lru_cache
 
 import numpy as np
 
+from .sparse import unique_sorted
+
 __all__ = [
     "ALIAS_MIN_DEFINITION_SIMILARITY",
     "MAX_ALIAS_CANONICALS",
@@ -254,7 +256,7 @@ def shingle_hashes(tokens: Iterable[str], *, size: int = SHINGLE_SIZE) -> np.nda
     for i in range(size):
         acc = acc + h[i:i + n] * _MULTIPLIERS[i]
     acc = acc ^ np.uint64(size)
-    return np.unique(acc)
+    return unique_sorted(acc)
 
 
 # ----------------------------------------------------------------------------------------
