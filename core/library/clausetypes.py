@@ -32,7 +32,7 @@ import numpy as np
 
 from ..errors import CounterdraftError
 from ..model import Document, Provision
-from .normalise import TermReplacer, canonical_role, fold, match_tokens
+from .normalise import TermReplacer, canonical_role, fold, match_tokens, shared_replacer
 from .sparse import Csr
 
 __all__ = [
@@ -384,7 +384,7 @@ def document_term_replacer(doc: Document, *, aliases: Mapping[str, str] | None =
         if draft_name not in names:
             name = aliases.get(prec_name, prec_name)
             names[draft_name] = canonical_role(name) or name
-    return TermReplacer(names)
+    return shared_replacer(names)
 
 
 #: A provision without a heading whose first line is at most this many words and does not end
