@@ -300,20 +300,22 @@ def _file_ids(paths: Sequence[str | os.PathLike[str]]) -> set[tuple[int, int]]:
 def _scan(root: Path, *, exclude: Sequence[str | os.PathLike[str]] = ()) -> list[_FileStat]:
     excluded = _file_ids(exclude)  # compared by inode: no path resolution per file found
     out: list[_FileStat] = []
-    stack = [root]
+    # (folder, its path relative to the root with a final "/"): a file's relative path is
+    # its folder's and its name, without parsing a path per file.
+    stack: list[tuple[str | Path, str]] = [(root, "")]
     while stack:  # iterative walk: no recursion on the folder depth
-        folder = stack.pop()
+        folder, prefix = stack.pop()
         try:
             entries = sorted(os.scandir(folder), key=lambda e: e.name)
         except OSError:
             continue
-        subdirs = []
+        subdirs: list[tuple[str | Path, str]] = []
         for e in entries:
             if e.name.startswith(".") or e.name.startswith("~$"):
                 continue
             try:
                 if e.is_dir(follow_symlinks=False):
-                    subdirs.append(Path(e.path))
+                    subdirs.append((e.path, f"{prefix}{e.name}/"))
                     continue
                 if not e.is_file() or not e.name.lower().endswith(SUFFIXES):
                     continue
@@ -322,8 +324,7 @@ def _scan(root: Path, *, exclude: Sequence[str | os.PathLike[str]] = ()) -> list
                 continue
             if not stat.S_ISREG(st.st_mode) or (st.st_dev, st.st_ino) in excluded:
                 continue
-            rel = Path(e.path).relative_to(root).as_posix()
-            out.append(_FileStat(rel, e.path, st.st_size, st.st_mtime_ns))
+            out.append(_FileStat(prefix + e.name, e.path, st.st_size, st.st_mtime_ns))
         stack.extend(reversed(subdirs))
     out.sort(key=lambda f: f.rel)
     return out
@@ -416,9 +417,12 @@ def _extract(path: str) -> _Extract | _Problem:
 def _cancelled(cancel: Cancel | CancelFlag | None) -> bool:
     if cancel is None:
         return False
-    if isinstance(cancel, CancelFlag):
-        return bool(cancel.is_set())
-    return bool(cancel())
+    # What isinstance(cancel, CancelFlag) checks, without the protocol check's cost (it is
+    # asked once per file, and a no-change build of 1,000 files takes a few hundredths).
+    is_set = getattr(cancel, "is_set", None)
+    if is_set is not None:
+        return bool(is_set())
+    return bool(cancel())  # type: ignore[operator]
 
 
 def _read_many(paths: Sequence[str], *, workers: int) -> Iterator[_Extract | _Problem]:
