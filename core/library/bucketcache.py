@@ -26,6 +26,7 @@ from typing import overload
 
 import numpy as np
 
+from .npzview import stored_arrays
 from .sparse import Csr, SparseMatrix
 from .variants import incidence_matrix
 
@@ -127,7 +128,12 @@ class BucketColumns:
 
     @classmethod
     def from_npz_bytes(cls, data: bytes) -> BucketColumns:
+        """The arrays read in place from *data* (read-only views: no copy), as the build
+        wrote them."""
         fields = ("cols", "sizes", "wcols", "count", "sample", "variant", "docptr", "docs")
+        found = stored_arrays(data, (*fields, *_COLUMNS))
+        if found is not None:
+            return cls(**found)
         with np.load(io.BytesIO(data), allow_pickle=False) as a:
             plain = {f: a[f] for f in fields}
             if "cindptr" in a.files:

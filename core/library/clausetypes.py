@@ -31,8 +31,10 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import CounterdraftError
+from ..lazyre import compile_pattern
 from ..model import Document, Provision
 from .normalise import TermReplacer, canonical_role, fold, match_tokens, shared_replacer
+from .npzview import stored_arrays
 from .sparse import Csr
 
 __all__ = [
@@ -149,7 +151,8 @@ def _parse_taxonomy(data: Mapping[str, object], source: str) -> Taxonomy:
                 order.append(h)
     # Longer keywords first so that at one position the longer one matches.
     alts = "|".join(re.escape(k) for k in sorted(order, key=lambda k: (-len(k), order.index(k))))
-    heading_re = re.compile(rf"(?<![\w'\-])(?:{alts})(?![\w'\-])")
+    # The taxonomy's own pattern: its compiled program is kept between runs (core.lazyre).
+    heading_re = compile_pattern(rf"(?<![\w'\-])(?:{alts})(?![\w'\-])")
     return Taxonomy(tuple(types), heading_re, keyword_type)
 
 
@@ -346,10 +349,14 @@ class NeighbourClassifier:
 
     @classmethod
     def from_npz_bytes(cls, data: bytes) -> NeighbourClassifier:
-        with np.load(io.BytesIO(data), allow_pickle=False) as a:
-            rows, cols = a["shape"].tolist()
-            matrix = Csr(a["indptr"], a["indices"], a["data"], (int(rows), int(cols)))
-            return cls(a["vocabulary"].tolist(), a["idf"], matrix, a["labels"].tolist())
+        fields = ("vocabulary", "idf", "data", "indices", "indptr", "shape", "labels")
+        a = stored_arrays(data, fields)  # in place: no copy
+        if a is None:
+            with np.load(io.BytesIO(data), allow_pickle=False) as stored:
+                a = {f: stored[f] for f in fields}
+        rows, cols = a["shape"].tolist()
+        matrix = Csr(a["indptr"], a["indices"], a["data"], (int(rows), int(cols)))
+        return cls(a["vocabulary"].tolist(), a["idf"], matrix, a["labels"].tolist())
 
 
 @lru_cache(maxsize=1)

@@ -179,6 +179,9 @@ class _Context:
         self._dist_by_wording: dict[tuple[str, bytes], np.ndarray] = {}
         self._siblings: dict[tuple[str, str], list[str]] | None = None
         self._phrases: dict[tuple[str, tuple[str, ...]], int] = {}
+        self._refs: dict[int, tuple[str, str] | None] = {}
+        #: :func:`_whole_frequency`'s figures of present wordings, by (bucket, distances, containing).
+        self.whole: dict[tuple[str, int, bool], tuple[np.ndarray, Frequency]] = {}
 
     def provision(self, side: str, pid: str) -> Provision:
         return (self._draft if side == "d" else self._prec)[pid]
@@ -246,13 +249,23 @@ class _Context:
         k = min(CLOSEST_COUNT, bucket.rows)
         near = np.flatnonzero(dist <= np.partition(dist, k - 1)[k - 1])
         order = near[np.lexsort((near, -bucket.count[near], dist[near]))][:CLOSEST_COUNT]
-        refs = self.library.provision_refs([int(bucket.sample[i]) for i in order])
+        refs = self.refs([int(bucket.sample[i]) for i in order])
         out = []
         for i in order.tolist():
             ref = refs.get(int(bucket.sample[i]))
             if ref is not None:
                 out.append(ClosestProvision(ref[0], ref[1], round(float(1.0 - dist[i]), 3)))
         return tuple(out)
+
+    def refs(self, ids: Sequence[int]) -> dict[int, tuple[str, str]]:
+        """:meth:`Library.provision_refs`, each provision asked for once per review (the
+        same common wordings are nearest to many provisions)."""
+        known = self._refs
+        missing = [i for i in ids if i not in known]
+        if missing:
+            found = self.library.provision_refs(missing)
+            known.update((i, found.get(i)) for i in missing)
+        return {i: ref for i in ids if (ref := known[i]) is not None}
 
     def position_of_rows(self, bucket: BucketIndex, rows: np.ndarray, dist: np.ndarray) -> Stance | None:
         """The stance recorded on the variant of the nearest of *rows* (a boolean mask)."""
@@ -311,6 +324,12 @@ def _whole_frequency(ctx: _Context, bucket_name: str, side: str, pid: str, *,
     if bucket is None or bucket.rows == 0:
         return Frequency(0, ctx.total if absent else 0, ctx.total, (), 0 if containing else None)
     dist = ctx.distances(bucket, side, pid)
+    # Present, the figures depend on the wording alone (its distances): provisions that read
+    # the same share them.  Absent, on the provision's siblings too.
+    key = (bucket_name, id(dist), containing)
+    found = None if absent else ctx.whole.get(key)
+    if found is not None:
+        return found[1]
     within = dist <= ctx.config.cutoff
     same_type = bucket.document_count
     if absent:  # documents without a counterpart of the provision
@@ -319,7 +338,10 @@ def _whole_frequency(ctx: _Context, bucket_name: str, side: str, pid: str, *,
         matching = len(bucket.documents_of(within))
     cont = int(bucket.count[within].sum()) if containing else None
     position = None if absent else ctx.position_of_rows(bucket, within, dist)
-    return Frequency(same_type, matching, ctx.total, ctx.closest(bucket, dist), cont, position)
+    freq = Frequency(same_type, matching, ctx.total, ctx.closest(bucket, dist), cont, position)
+    if not absent:
+        ctx.whole[key] = (dist, freq)  # dist kept alive: its id stays its own
+    return freq
 
 
 # ----------------------------------------------------------------------------------------
