@@ -97,6 +97,7 @@ def fold(text: str) -> str:
     return unicodedata.normalize("NFKC", text).translate(_FOLD)
 
 
+@lru_cache(maxsize=4096)  # a document names each of its terms many times
 def term_slug(name: str) -> str:
     """``"Additional Services"`` -> ``"additional_services"``."""
     return _SLUG_RE.sub("_", fold(name).lower()).strip("_")
@@ -146,7 +147,11 @@ class TermReplacer:
         self._canon = canon
         if canon:
             alts = "|".join(re.escape(f) for f in sorted(canon, key=len, reverse=True))
-            self._regex: re.Pattern[str] | None = re.compile(rf"(?<![\w])(?:{alts})(?![\w])")
+            # Every form starts with one of these characters: the look-ahead lets the engine
+            # skip other positions at once instead of trying each form there (same matches,
+            # about twice as fast on an agreement's provisions).
+            first = "".join(re.escape(c) for c in sorted({f[0] for f in canon}))
+            self._regex: re.Pattern[str] | None = re.compile(rf"(?<![\w])(?=[{first}])(?:{alts})(?![\w])")
         else:
             self._regex = None
 
