@@ -313,11 +313,10 @@ class NeighbourClassifier:
         if len(memo) + len(new) > PREDICTION_MEMO:
             memo.clear()
         if new:
-            if self._by_term is None:
-                self._by_term = self._matrix.transpose()
+            by_term = self._terms_by_example()
             for start in range(0, len(new), 512):  # bounded memory: 512 x examples per step
                 chunk = new[start:start + 512]
-                sims = self.transform(chunk).dot(self._by_term)  # cosine: rows are l2-normed
+                sims = self.transform(chunk).dot(by_term)  # cosine: rows are l2-normed
                 memo.update((text, self._vote(text, row)) for text, row in zip(chunk, sims))
         return [memo[t] for t in texts]
 
@@ -339,24 +338,36 @@ class NeighbourClassifier:
         winner = min(votes, key=lambda t: (-votes[t], self._type_order.get(t, 0)))
         return (winner, best) if votes[winner] / total >= NEIGHBOUR_MIN_SHARE else (None, best)
 
+    def _terms_by_example(self) -> Csr:
+        """The examples' matrix by terms (its transpose), made once."""
+        if self._by_term is None:
+            self._by_term = self._matrix.transpose()
+        return self._by_term
+
     def to_npz_bytes(self) -> bytes:
+        """The model's arrays, with the examples' matrix by terms too (what a review
+        multiplies by: kept rather than turned round on every review)."""
         buf = io.BytesIO()
-        m = self._matrix
+        m, t = self._matrix, self._terms_by_example()
         np.savez(buf, vocabulary=np.array(self._terms, dtype=str), idf=self._idf, data=m.data,
                  indices=m.indices, indptr=m.indptr, shape=np.array(m.shape),
-                 labels=np.array(self._labels, dtype=str))
+                 labels=np.array(self._labels, dtype=str), tdata=t.data, tindices=t.indices, tindptr=t.indptr)
         return buf.getvalue()
 
     @classmethod
     def from_npz_bytes(cls, data: bytes) -> NeighbourClassifier:
         fields = ("vocabulary", "idf", "data", "indices", "indptr", "shape", "labels")
-        a = stored_arrays(data, fields)  # in place: no copy
+        by_term = ("tdata", "tindices", "tindptr")
+        a = stored_arrays(data, (*fields, *by_term))  # in place: no copy
         if a is None:
             with np.load(io.BytesIO(data), allow_pickle=False) as stored:
-                a = {f: stored[f] for f in fields}
+                a = {f: stored[f] for f in (*fields, *by_term) if f"{f}.npy" in stored.zip.namelist()}
         rows, cols = a["shape"].tolist()
         matrix = Csr(a["indptr"], a["indices"], a["data"], (int(rows), int(cols)))
-        return cls(a["vocabulary"].tolist(), a["idf"], matrix, a["labels"].tolist())
+        model = cls(a["vocabulary"].tolist(), a["idf"], matrix, a["labels"].tolist())
+        if all(f in a for f in by_term):  # files written before it was kept have none
+            model._by_term = Csr(a["tindptr"], a["tindices"], a["tdata"], (int(cols), int(rows)))
+        return model
 
 
 @lru_cache(maxsize=1)
