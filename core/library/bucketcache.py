@@ -20,6 +20,7 @@ used columns once; writing and reading a file for the build turns the matrices r
 from __future__ import annotations
 
 import io
+import mmap
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, replace
 from typing import overload
@@ -83,7 +84,7 @@ class BucketArrays:
         return buf.getvalue()
 
     @classmethod
-    def from_npz_bytes(cls, data: bytes) -> BucketArrays:
+    def from_npz_bytes(cls, data: bytes | mmap.mmap) -> BucketArrays:
         with np.load(io.BytesIO(data), allow_pickle=False) as a:
             plain = {f: a[f] for f in _PLAIN}
             if "cindptr" not in a.files:  # written before the columns were kept
@@ -127,7 +128,7 @@ class BucketColumns:
         return int(self.sizes.size)
 
     @classmethod
-    def from_npz_bytes(cls, data: bytes) -> BucketColumns:
+    def from_npz_bytes(cls, data: bytes | mmap.mmap) -> BucketColumns:
         """The arrays read in place from *data* (read-only views: no copy), as the build
         wrote them."""
         fields = ("cols", "sizes", "wcols", "count", "sample", "variant", "docptr", "docs")

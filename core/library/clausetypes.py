@@ -20,6 +20,7 @@ from __future__ import annotations
 
 import importlib.util
 import io
+import mmap
 import re
 import tomllib
 from collections import defaultdict
@@ -355,7 +356,7 @@ class NeighbourClassifier:
         return buf.getvalue()
 
     @classmethod
-    def from_npz_bytes(cls, data: bytes) -> NeighbourClassifier:
+    def from_npz_bytes(cls, data: bytes | mmap.mmap) -> NeighbourClassifier:
         fields = ("vocabulary", "idf", "data", "indices", "indptr", "shape", "labels")
         by_term = ("tdata", "tindices", "tindptr")
         a = stored_arrays(data, (*fields, *by_term))  # in place: no copy

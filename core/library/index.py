@@ -76,6 +76,7 @@ from __future__ import annotations
 
 import hashlib
 import json
+import mmap
 import os
 import re
 import stat
@@ -889,20 +890,19 @@ def bucket_blob(bucket: str) -> str:
 
 def read_bucket(store: PrecedentStore, bucket: str) -> BucketArrays | None:
     """A bucket's frequency cache, None when missing or not one this code wrote."""
-    return _read_cache(store, bucket, BucketArrays.from_npz_bytes)
+    return _read_cache(store.read_blob(bucket_blob(bucket)), BucketArrays.from_npz_bytes)
 
 
 def _read_bucket_columns(store: PrecedentStore, bucket: str) -> BucketColumns | None:
-    """What a review reads of a bucket's cache (:class:`~.bucketcache.BucketColumns`), None
-    when missing or not one this code wrote."""
-    return _read_cache(store, bucket, BucketColumns.from_npz_bytes)
+    """What a review reads of a bucket's cache (:class:`~.bucketcache.BucketColumns`, read
+    in place from the mapped file), None when missing or not one this code wrote."""
+    return _read_cache(store.view_blob(bucket_blob(bucket)), BucketColumns.from_npz_bytes)
 
 
 _Cache = TypeVar("_Cache")
 
 
-def _read_cache(store: PrecedentStore, bucket: str, load: Callable[[bytes], _Cache]) -> _Cache | None:
-    data = store.read_blob(bucket_blob(bucket))
+def _read_cache(data: bytes | mmap.mmap | None, load: Callable[[bytes | mmap.mmap], _Cache]) -> _Cache | None:
     if data is None:
         return None
     try:
@@ -1294,7 +1294,7 @@ class Library:
     def neighbours(self) -> NeighbourClassifier | None:
         """The neighbour classifier fitted on the library (None before the first build)."""
         if self._neighbours is None:
-            data = self.store.read_blob(NEIGHBOURS_FILENAME)
+            data = self.store.view_blob(NEIGHBOURS_FILENAME)
             if data is not None:
                 self._neighbours = NeighbourClassifier.from_npz_bytes(data)
         return self._neighbours

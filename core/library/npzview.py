@@ -10,24 +10,29 @@ from __future__ import annotations
 
 import io
 import math
+import mmap
 import struct
 import zipfile
 from collections.abc import Sequence
+from typing import IO, cast
 
 import numpy as np
 
 __all__ = ["stored_arrays"]
 
 
-def stored_arrays(data: bytes, names: Sequence[str]) -> dict[str, np.ndarray] | None:
-    """The arrays *names* of the .npz file *data*, as read-only views of *data*: each member
-    is a .npy file (NumPy's format: magic, header, then the array's bytes) stored
-    uncompressed, as ``np.savez`` writes it, so there is nothing to copy or to check (a
-    review reads some 20 MB of a large set's caches: a few milliseconds instead of some
-    twenty).  None when a member is missing or not stored that way (np.load reads those)."""
+def stored_arrays(data: bytes | mmap.mmap, names: Sequence[str]) -> dict[str, np.ndarray] | None:
+    """The arrays *names* of the .npz file *data* (its bytes, or the file mapped into
+    memory), as read-only views of *data*: each member is a .npy file (NumPy's format:
+    magic, header, then the array's bytes) stored uncompressed, as ``np.savez`` writes it,
+    so there is nothing to copy or to check (a review reads some 20 MB of a large set's
+    caches: a few milliseconds instead of some twenty).  None when a member is missing or
+    not stored that way (np.load reads those)."""
     out: dict[str, np.ndarray] = {}
     try:
-        with zipfile.ZipFile(io.BytesIO(data)) as archive:
+        # A mapped file is read where it is (BytesIO would copy it; it shares bytes).
+        source = cast(IO[bytes], data) if isinstance(data, mmap.mmap) else io.BytesIO(data)  # mmap: file-like
+        with zipfile.ZipFile(source) as archive:
             for name in names:
                 info = archive.getinfo(f"{name}.npy")
                 if info.compress_type != zipfile.ZIP_STORED:
