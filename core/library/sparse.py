@@ -82,12 +82,21 @@ class Csr:
         n_rows, n_out = self.shape[0], other.shape[1]
         if n_rows == 0 or n_out == 0 or self.nnz == 0:
             return np.zeros((n_rows, n_out))
-        picks = ragged(other.indptr, self.indices)
-        lengths = (other.indptr[self.indices + 1] - other.indptr[self.indices]).astype(np.int64)
-        entry = np.repeat(np.arange(self.nnz, dtype=np.int64), lengths)
-        row_of_entry = np.repeat(np.arange(n_rows, dtype=np.int64), np.diff(self.indptr))
-        cells = row_of_entry[entry] * n_out + other.indices[picks]
-        weights = self.data[entry] * other.data[picks]
+        # Every entry (i, k) of this matrix meets every entry (k, j) of *other*: those
+        # products, in this matrix's entry order, summed per cell (i, j) by bincount, which
+        # adds in the order given.  In place where possible: these arrays are the cost.
+        starts = other.indptr[self.indices].astype(np.int64)
+        lengths = other.indptr[self.indices + 1].astype(np.int64) - starts
+        ends = np.cumsum(lengths)
+        if ends[-1] == 0:
+            return np.zeros((n_rows, n_out))
+        picks = np.arange(int(ends[-1]), dtype=np.int64)
+        picks += np.repeat(starts - (ends - lengths), lengths)
+        rows = np.repeat(np.arange(0, n_rows * n_out, n_out, dtype=np.int64), np.diff(self.indptr))
+        cells = np.repeat(rows, lengths)
+        cells += other.indices[picks]
+        weights = np.repeat(self.data.astype(np.float64, copy=False), lengths)
+        weights *= other.data[picks]
         return np.bincount(cells, weights=weights, minlength=n_rows * n_out).reshape(n_rows, n_out)
 
 
