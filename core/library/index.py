@@ -896,7 +896,14 @@ def read_bucket(store: PrecedentStore, bucket: str) -> BucketArrays | None:
 def _read_bucket_columns(store: PrecedentStore, bucket: str) -> BucketColumns | None:
     """What a review reads of a bucket's cache (:class:`~.bucketcache.BucketColumns`, read
     in place from the mapped file), None when missing or not one this code wrote."""
-    return _read_cache(store.view_blob(bucket_blob(bucket)), BucketColumns.from_npz_bytes)
+    return _read_cache(view_blob(store, bucket_blob(bucket)), BucketColumns.from_npz_bytes)
+
+
+def view_blob(store: PrecedentStore, name: str) -> bytes | mmap.mmap | None:
+    """A derived blob to read only: the SQLite store's file mapped into memory
+    (``SQLiteStore.view_blob``: nothing copied, pages read as used), another store's bytes."""
+    view = getattr(store, "view_blob", None)
+    return view(name) if view is not None else store.read_blob(name)
 
 
 _Cache = TypeVar("_Cache")
@@ -1294,7 +1301,7 @@ class Library:
     def neighbours(self) -> NeighbourClassifier | None:
         """The neighbour classifier fitted on the library (None before the first build)."""
         if self._neighbours is None:
-            data = self.store.view_blob(NEIGHBOURS_FILENAME)
+            data = view_blob(self.store, NEIGHBOURS_FILENAME)
             if data is not None:
                 self._neighbours = NeighbourClassifier.from_npz_bytes(data)
         return self._neighbours

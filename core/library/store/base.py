@@ -21,7 +21,6 @@ precedent set as it was before the build or after it, never half-way) and
 
 from __future__ import annotations
 
-import mmap
 from collections.abc import Iterable, Iterator, Sequence
 from contextlib import AbstractContextManager
 from pathlib import Path
@@ -210,10 +209,6 @@ class Derived(Protocol):
         """(text, wording hash) of a document's provisions, in order."""
 
     def read_blob(self, name: str) -> bytes | None: ...
-    def view_blob(self, name: str) -> bytes | mmap.mmap | None:
-        """A derived blob to read (only): its file mapped into memory where the store keeps
-        files and the system lets a mapped file be replaced (a build writes a new file, the
-        mapping keeps the old one), else its bytes."""
     def write_blob(self, name: str, data: bytes) -> None: ...
     def delete_blob(self, name: str) -> None: ...
 

@@ -323,9 +323,6 @@ class PostgresStore(SQLStore):
         data = self._one("SELECT data FROM blobs WHERE name = ?", (name,))
         return None if data is None else bytes(data)
 
-    def view_blob(self, name: str) -> bytes | None:
-        return self.read_blob(name)
-
     def write_blob(self, name: str, data: bytes) -> None:
         self._cursor("INSERT INTO blobs(name, data) VALUES(?, ?) ON CONFLICT(name) DO UPDATE SET data = excluded.data",
                      (name, data))

@@ -322,8 +322,10 @@ class SQLiteStore(SQLStore):
             return None
 
     def view_blob(self, name: str) -> bytes | mmap.mmap | None:
-        """The blob's file mapped read-only (POSIX: a build replaces the file, the mapping
-        keeps the one read; elsewhere a mapped file could not be replaced, so it is read)."""
+        """The blob's file mapped read-only, for reading only (POSIX: a build replaces the
+        file, the mapping keeps the one read; elsewhere a mapped file could not be replaced,
+        so it is read).  Not part of the store protocol: a store without it is read with
+        :meth:`read_blob` (core.library.index.view_blob)."""
         if os.name != "posix":
             return self.read_blob(name)
         try:
