@@ -180,6 +180,7 @@ class _Context:
         self._siblings: dict[tuple[str, str], list[str]] | None = None
         self._phrases: dict[tuple[str, tuple[str, ...]], int] = {}
         self._refs: dict[int, tuple[str, str] | None] = {}
+        self._nearest: dict[int, tuple[np.ndarray, np.ndarray]] = {}  # id(dist): (dist kept alive, rows)
         #: :func:`_whole_frequency`'s figures of present wordings, by (bucket, distances, containing).
         self.whole: dict[tuple[str, int, bool], tuple[np.ndarray, Frequency]] = {}
 
@@ -241,14 +242,22 @@ class _Context:
             self._dist[key] = d
         return d
 
+    def nearest(self, bucket: BucketIndex, dist: np.ndarray) -> np.ndarray:
+        """The CLOSEST_COUNT rows nearest by *dist* (ties: the more common wording, then the
+        lower row), once per distances array."""
+        found = self._nearest.get(id(dist))
+        if found is None:
+            # Only rows within the CLOSEST_COUNT-th smallest distance can be among the nearest:
+            # sorting them alone gives the order a sort of every row gives.
+            k = min(CLOSEST_COUNT, bucket.rows)
+            near = np.flatnonzero(dist <= np.partition(dist, k - 1)[k - 1])
+            found = self._nearest[id(dist)] = (dist, near[np.lexsort((near, -bucket.count[near], dist[near]))][:k])
+        return found[1]
+
     def closest(self, bucket: BucketIndex, dist: np.ndarray) -> tuple[ClosestProvision, ...]:
         if bucket.rows == 0:
             return ()
-        # Only rows within the CLOSEST_COUNT-th smallest distance can be among the nearest:
-        # sorting them alone gives the order a sort of every row gives.
-        k = min(CLOSEST_COUNT, bucket.rows)
-        near = np.flatnonzero(dist <= np.partition(dist, k - 1)[k - 1])
-        order = near[np.lexsort((near, -bucket.count[near], dist[near]))][:CLOSEST_COUNT]
+        order = self.nearest(bucket, dist)
         refs = self.refs([int(bucket.sample[i]) for i in order])
         out = []
         for i in order.tolist():
@@ -638,18 +647,41 @@ def _id_order(dev: Deviation) -> int:
     return int(m.group(1)) if m else 1 << 30
 
 
+def _pair_side(pair: Pair) -> tuple[str, str]:
+    """The provision whose wording a pair's figures are of: the draft's, else the precedent's."""
+    if pair.draft is not None:
+        return "d", pair.draft
+    assert pair.precedent is not None
+    return "p", pair.precedent
+
+
+def _ask_nearest_at_once(ctx: _Context) -> None:
+    """The references of every pair's nearest library provisions, read in one query rather
+    than one per pair (the pairs' figures then find them known)."""
+    ids: list[int] = []
+    for pair in ctx.review.pairs:
+        if pair.draft is None and pair.precedent is None:
+            continue
+        bucket = ctx.library.bucket(ctx.bucket_name(pair.draft, pair.precedent))
+        if bucket is not None and bucket.rows:
+            order = ctx.nearest(bucket, ctx.distances(bucket, *_pair_side(pair)))
+            ids.extend(int(bucket.sample[i]) for i in order)
+    ctx.refs(ids)
+
+
 def apply_frequency(review: Review, library: Library, *, types: ReviewTypes | None = None) -> Review:
     """A new :class:`Review` whose pairs and deviations carry their :class:`Frequency` in
     *library*, with substantive severities, reasons and ranks adjusted (module docstring)."""
     ctx = _Context(review, library, types or review_types(review, library))
+    _ask_nearest_at_once(ctx)
     pairs: list[Pair] = []
     for pair in review.pairs:
         if pair.draft is None and pair.precedent is None:
             pairs.append(dataclasses.replace(pair, frequency=_empty(ctx.total)))
             continue
         bucket_name = ctx.bucket_name(pair.draft, pair.precedent)
-        side, pid = ("d", pair.draft) if pair.draft is not None else ("p", pair.precedent)
-        pairs.append(dataclasses.replace(pair, frequency=_whole_frequency(ctx, bucket_name, side, pid)))  # type: ignore[arg-type]
+        side, pid = _pair_side(pair)
+        pairs.append(dataclasses.replace(pair, frequency=_whole_frequency(ctx, bucket_name, side, pid)))
     adjusted = [_adjust(dev, _deviation_frequency(ctx, dev)) for dev in review.deviations]
     ranked = sorted(adjusted, key=lambda v: (-v.severity, _id_order(v)))
     deviations = tuple(dataclasses.replace(v, rank=r) for r, v in enumerate(ranked, 1))

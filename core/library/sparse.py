@@ -125,7 +125,7 @@ def column_hits(indptr: np.ndarray, indices: np.ndarray, picks: np.ndarray, rows
     # One slice per picked column, joined: cheaper than building every position first.
     starts, ends = indptr[picks].tolist(), indptr[picks + 1].tolist()
     taken = np.concatenate([indices[s:e] for s, e in zip(starts, ends)])
-    return np.bincount(taken, minlength=rows).astype(np.int64)
+    return np.bincount(taken, minlength=rows).astype(np.int64, copy=False)
 
 
 def unique_sorted(values: np.ndarray) -> np.ndarray:
