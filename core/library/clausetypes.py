@@ -244,13 +244,16 @@ class NeighbourClassifier:
     (:meth:`to_npz_bytes`), with no pickle.
     """
 
-    def __init__(self, vocabulary: Sequence[str], idf: np.ndarray, matrix: Csr,
-                 labels: Sequence[str]) -> None:
+    def __init__(self, vocabulary: Sequence[str], idf: np.ndarray, matrix: Csr | None,
+                 labels: Sequence[str], *, by_term: Csr | None = None) -> None:
+        """*matrix*: the examples' TF-IDF rows; or None with *by_term*, its transpose."""
         self._terms = list(vocabulary)
         self._index = {t: i for i, t in enumerate(self._terms)}
         self._idf = np.asarray(idf, dtype=np.float64)
-        self._matrix = matrix
-        self._by_term: Csr | None = None  # the examples' transpose, made when first needed
+        if matrix is None and by_term is None:
+            raise ValueError("the examples' matrix or its transpose is needed")
+        self._examples = matrix
+        self._by_term = by_term  # the examples' transpose, made when first needed
         self._memo: dict[str, tuple[str | None, float]] = {}
         self._labels = [str(x) for x in labels]
         self._type_order = {t: i for i, t in enumerate(dict.fromkeys(self._labels))}
@@ -327,7 +330,7 @@ class NeighbourClassifier:
         stop = _stop_words()
         if sum(1 for w in text.split() if w not in stop) < NEIGHBOUR_MIN_WORDS:
             return None, best
-        k = min(NEIGHBOUR_K, self._matrix.shape[0])
+        k = min(NEIGHBOUR_K, row.size)  # one similarity per example
         top = np.argpartition(-row, k - 1)[:k]
         top = top[row[top] >= NEIGHBOUR_MIN_SIMILARITY]
         if top.size == 0:
@@ -339,36 +342,48 @@ class NeighbourClassifier:
         winner = min(votes, key=lambda t: (-votes[t], self._type_order.get(t, 0)))
         return (winner, best) if votes[winner] / total >= NEIGHBOUR_MIN_SHARE else (None, best)
 
+    @property
+    def _matrix(self) -> Csr:
+        """The examples' TF-IDF rows (examples x terms)."""
+        if self._examples is None:
+            assert self._by_term is not None
+            self._examples = self._by_term.transpose()
+        return self._examples
+
     def _terms_by_example(self) -> Csr:
-        """The examples' matrix by terms (its transpose), made once."""
+        """The examples' matrix by terms (its transpose: what a query is multiplied by)."""
         if self._by_term is None:
             self._by_term = self._matrix.transpose()
         return self._by_term
 
     def to_npz_bytes(self) -> bytes:
-        """The model's arrays, with the examples' matrix by terms too (what a review
-        multiplies by: kept rather than turned round on every review)."""
+        """The model's arrays; the examples' matrix kept by terms (``t*``), the form a
+        review multiplies by, so that it is not turned round on every review."""
         buf = io.BytesIO()
-        m, t = self._matrix, self._terms_by_example()
-        np.savez(buf, vocabulary=np.array(self._terms, dtype=str), idf=self._idf, data=m.data,
-                 indices=m.indices, indptr=m.indptr, shape=np.array(m.shape),
-                 labels=np.array(self._labels, dtype=str), tdata=t.data, tindices=t.indices, tindptr=t.indptr)
+        t = self._terms_by_example()
+        np.savez(buf, vocabulary=np.array(self._terms, dtype=str), idf=self._idf, tdata=t.data,
+                 tindices=t.indices, tindptr=t.indptr, shape=np.array(t.shape[::-1]),
+                 labels=np.array(self._labels, dtype=str))
         return buf.getvalue()
 
     @classmethod
     def from_npz_bytes(cls, data: bytes | mmap.mmap) -> NeighbourClassifier:
-        fields = ("vocabulary", "idf", "data", "indices", "indptr", "shape", "labels")
-        by_term = ("tdata", "tindices", "tindptr")
-        a = stored_arrays(data, (*fields, *by_term))  # in place: no copy
-        if a is None:
+        """A model :meth:`to_npz_bytes` wrote (or one written by rows, before it kept the
+        matrix by terms)."""
+        common = ("vocabulary", "idf", "shape", "labels")
+        for form in (("tdata", "tindices", "tindptr"), ("data", "indices", "indptr")):
+            a = stored_arrays(data, (*common, *form))  # in place: no copy
+            if a is not None:
+                break
+        else:
             with np.load(io.BytesIO(data), allow_pickle=False) as stored:
-                a = {f: stored[f] for f in (*fields, *by_term) if f"{f}.npy" in stored.zip.namelist()}
-        rows, cols = a["shape"].tolist()
-        matrix = Csr(a["indptr"], a["indices"], a["data"], (int(rows), int(cols)))
-        model = cls(a["vocabulary"].tolist(), a["idf"], matrix, a["labels"].tolist())
-        if all(f in a for f in by_term):  # files written before it was kept have none
-            model._by_term = Csr(a["tindptr"], a["tindices"], a["tdata"], (int(cols), int(rows)))
-        return model
+                a = {f: stored[f] for f in stored.files}
+        rows, cols = (int(n) for n in a["shape"].tolist())
+        if "tdata" in a:
+            by_term = Csr(a["tindptr"], a["tindices"], a["tdata"], (cols, rows))
+            return cls(a["vocabulary"].tolist(), a["idf"], None, a["labels"].tolist(), by_term=by_term)
+        matrix = Csr(a["indptr"], a["indices"], a["data"], (rows, cols))
+        return cls(a["vocabulary"].tolist(), a["idf"], matrix, a["labels"].tolist())
 
 
 @lru_cache(maxsize=1)

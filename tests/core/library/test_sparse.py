@@ -204,3 +204,22 @@ def test_scanned_paths_are_relative_to_the_root(tmp_path):
 
     assert [f.rel for f in found] == [Path(f.path).relative_to(root).as_posix() for f in found]
     assert [f.rel for f in found] == ["a.docx", "other/d.odt", "sub/b.md", "sub/deeper/c.txt"]
+
+
+def test_a_clause_type_model_saved_by_rows_reads_as_the_one_saved_by_terms():
+    from core.library.clausetypes import NeighbourClassifier, load_taxonomy
+
+    texts = [" ".join(match_tokens(s)) for t in load_taxonomy().types for s in t.seeds]
+    clf = NeighbourClassifier.fit([(x, "payment") for x in texts[:25]])
+    m = clf._matrix
+    buf = io.BytesIO()  # the layout written before the matrix was kept by terms
+    np.savez(buf, vocabulary=np.array(clf._terms, dtype=str), idf=clf._idf, data=m.data, indices=m.indices,
+             indptr=m.indptr, shape=np.array(m.shape), labels=np.array(clf._labels, dtype=str))
+    by_rows = NeighbourClassifier.from_npz_bytes(buf.getvalue())
+    by_terms = NeighbourClassifier.from_npz_bytes(clf.to_npz_bytes())
+    queries = texts[25:60]
+    assert by_rows.predict(queries) == by_terms.predict(queries) == clf.predict(queries)
+    # Reference: scipy's transpose of the rows is what is kept by terms.
+    ref = csr_matrix((m.data, m.indices, m.indptr), shape=m.shape).tocsc()
+    np.testing.assert_array_equal(by_terms._terms_by_example().indptr, ref.indptr)
+    np.testing.assert_array_equal(by_terms._matrix.toarray(), ref.toarray())
