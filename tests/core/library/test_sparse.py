@@ -20,6 +20,7 @@ import numpy as np
 import pytest
 from scipy.sparse import csr_matrix
 
+from core.library import sparse
 from core.library.bucketcache import BucketArrays, BucketColumns, assemble
 from core.library.index import _scan
 from core.library.normalise import TermReplacer, _forms, fold, match_tokens, shared_replacer, shingle_hashes
@@ -40,8 +41,10 @@ def _ours(m: csr_matrix) -> Csr:
     return Csr(m.indptr, m.indices, m.data, m.shape)
 
 
+@pytest.mark.parametrize("block", [1 << 20, 7, 1])
 @pytest.mark.parametrize("seed", SEEDS)
-def test_product_is_scipys_bit_for_bit(seed):
+def test_product_is_scipys_bit_for_bit(seed, block, monkeypatch):
+    monkeypatch.setattr(sparse, "DOT_BLOCK", block)  # small blocks: rows taken a few at a time
     rng = np.random.default_rng(seed)
     n, k, m = rng.integers(1, 40, 3)
     a = _random_csr(rng, n, k, rng.uniform(0.05, 0.6))
