@@ -76,11 +76,11 @@ class BucketArrays:
 
     def to_npz_bytes(self) -> bytes:
         """The cache file: the incidence matrices by columns (module docstring)."""
-        shingles, words = self.shingle_matrix().tocsc(), self.word_matrix().tocsc()
+        cindptr, cindices = _turned(self.indptr, self.indices, (self.rows, self.cols.size), by_rows=True)
+        wcindptr, wcindices = _turned(self.windptr, self.windices, (self.rows, self.wcols.size), by_rows=True)
         buf = io.BytesIO()
-        np.savez(buf, **{f: getattr(self, f) for f in _PLAIN},
-                 cindptr=shingles.indptr.astype(np.int64), cindices=shingles.indices.astype(np.int32),
-                 wcindptr=words.indptr.astype(np.int64), wcindices=words.indices.astype(np.int32))
+        np.savez(buf, **{f: getattr(self, f) for f in _PLAIN}, cindptr=cindptr, cindices=cindices,
+                 wcindptr=wcindptr, wcindices=wcindices)
         return buf.getvalue()
 
     @classmethod
@@ -90,18 +90,23 @@ class BucketArrays:
             if "cindptr" not in a.files:  # written before the columns were kept
                 return cls(**plain, **{f: a[f] for f in _ROWS})
             rows = int(plain["hashes"].size)
-            indptr, indices = _by_rows(a["cindptr"], a["cindices"], rows, int(plain["cols"].size))
-            windptr, windices = _by_rows(a["wcindptr"], a["wcindices"], rows, int(plain["wcols"].size))
+            indptr, indices = _turned(a["cindptr"], a["cindices"], (rows, int(plain["cols"].size)), by_rows=False)
+            windptr, windices = _turned(a["wcindptr"], a["wcindices"], (rows, int(plain["wcols"].size)),
+                                        by_rows=False)
         return cls(**plain, indptr=indptr, indices=indices, windptr=windptr, windices=windices)
 
 
-def _by_rows(cindptr: np.ndarray, cindices: np.ndarray, rows: int, cols: int) -> tuple[np.ndarray, np.ndarray]:
-    """(indptr, indices) by rows of a 0/1 matrix given by columns (scipy's conversion, for
-    the build; each row's columns come out ascending, as the build makes them)."""
-    from scipy.sparse import csc_matrix
+def _turned(indptr: np.ndarray, indices: np.ndarray, shape: tuple[int, int], *,
+            by_rows: bool) -> tuple[np.ndarray, np.ndarray]:
+    """A 0/1 matrix of *shape* given by rows (*by_rows*) or by columns, the other way round:
+    (pointers as int64, indices as int32), each line's indices ascending (scipy's conversion,
+    for the build; one-byte values, as only the pattern matters)."""
+    from scipy.sparse import csc_matrix, csr_matrix
 
-    m = csc_matrix((np.ones(cindices.size, dtype=np.int32), cindices, cindptr), shape=(rows, cols)).tocsr()
-    return m.indptr.astype(np.int64), m.indices.astype(np.int32)
+    ones = np.ones(indices.size, dtype=np.int8)
+    m = (csr_matrix((ones, indices, indptr), shape=shape).tocsc() if by_rows
+         else csc_matrix((ones, indices, indptr), shape=shape).tocsr())
+    return m.indptr.astype(np.int64, copy=False), m.indices.astype(np.int32, copy=False)
 
 
 @dataclass(frozen=True, slots=True)
