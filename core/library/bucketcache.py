@@ -2,34 +2,43 @@
 
 One file per bucket (``.counterdraft/buckets/<name>.npz``) holds, for every distinct
 normalised wording of the bucket (rows ordered most frequent first, then by wording hash):
-its hash, its shingle and word hash sets as 0/1 CSR incidence matrices over sorted hash
-columns, its provision count, a sample provision, its variant and the documents using it.
-No text.  :func:`assemble` makes the next version of a bucket's arrays from the previous one
-and the wordings that are new, moving whole rows (no re-hashing of known wordings), so a
-build that adds one agreement rewrites only the buckets that agreement touches, in time
-linear in their size.
+its hash, its shingle and word hash sets as 0/1 incidence matrices over sorted hash columns,
+its provision count, a sample provision, its variant and the documents using it.  No text.
+The build works on the matrices by rows (CSR, :class:`BucketArrays`); the file keeps them by
+columns (CSC), the form a review asks its questions in ("which wordings hold these
+shingles?", :class:`BucketColumns`), so that a review reads them as they are, without
+``scipy.sparse`` (one form only: the index stays as large as before).  :func:`assemble`
+makes the next version of a bucket's arrays from the previous one and the wordings that are
+new, moving whole rows (no re-hashing of known wordings), so a build that adds one agreement
+rewrites only the buckets that agreement touches, in time linear in their size.
 
 Cost: :func:`assemble` is O(nnz) array work (row selection, column remapping) plus
 O(new wordings' words) hashing; :func:`compact` (dropping hash columns no row uses) sorts the
-used columns once.
+used columns once; writing and reading a file for the build turns the matrices round (O(nnz)).
 """
 
 from __future__ import annotations
 
 import io
+import mmap
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, replace
 from typing import overload
 
 import numpy as np
 
-from .sparse import SparseMatrix
+from .npzview import stored_arrays
+from .sparse import Csr, SparseMatrix
 from .variants import incidence_matrix
 
-__all__ = ["BucketArrays", "assemble", "compact", "rows_of"]
+__all__ = ["BucketArrays", "BucketColumns", "assemble", "compact", "rows_of"]
 
-_FIELDS = ("hashes", "cols", "indptr", "indices", "sizes", "wcols", "windptr", "windices", "count", "sample",
-           "variant", "docptr", "docs")
+#: The arrays kept as they are held (everything but the incidence matrices).
+_PLAIN = ("hashes", "cols", "sizes", "wcols", "count", "sample", "variant", "docptr", "docs")
+#: The incidence matrices by columns: shingles (``c``) and words (``wc``).
+_COLUMNS = ("cindptr", "cindices", "wcindptr", "wcindices")
+#: The same by rows, as caches written before the columns were kept hold them.
+_ROWS = ("indptr", "indices", "windptr", "windices")
 
 
 @dataclass(frozen=True, slots=True)
@@ -66,14 +75,85 @@ class BucketArrays:
         return _RowSets(self.cols, self.indptr, self.indices)
 
     def to_npz_bytes(self) -> bytes:
+        """The cache file: the incidence matrices by columns (module docstring)."""
+        cindptr, cindices = _turned(self.indptr, self.indices, (self.rows, self.cols.size), by_rows=True)
+        wcindptr, wcindices = _turned(self.windptr, self.windices, (self.rows, self.wcols.size), by_rows=True)
         buf = io.BytesIO()
-        np.savez(buf, **{f: getattr(self, f) for f in _FIELDS})
+        np.savez(buf, **{f: getattr(self, f) for f in _PLAIN}, cindptr=cindptr, cindices=cindices,
+                 wcindptr=wcindptr, wcindices=wcindices)
         return buf.getvalue()
 
     @classmethod
-    def from_npz_bytes(cls, data: bytes) -> BucketArrays:
+    def from_npz_bytes(cls, data: bytes | mmap.mmap) -> BucketArrays:
         with np.load(io.BytesIO(data), allow_pickle=False) as a:
-            return cls(**{f: a[f] for f in _FIELDS})
+            plain = {f: a[f] for f in _PLAIN}
+            if "cindptr" not in a.files:  # written before the columns were kept
+                return cls(**plain, **{f: a[f] for f in _ROWS})
+            rows = int(plain["hashes"].size)
+            indptr, indices = _turned(a["cindptr"], a["cindices"], (rows, int(plain["cols"].size)), by_rows=False)
+            windptr, windices = _turned(a["wcindptr"], a["wcindices"], (rows, int(plain["wcols"].size)),
+                                        by_rows=False)
+        return cls(**plain, indptr=indptr, indices=indices, windptr=windptr, windices=windices)
+
+
+def _turned(indptr: np.ndarray, indices: np.ndarray, shape: tuple[int, int], *,
+            by_rows: bool) -> tuple[np.ndarray, np.ndarray]:
+    """A 0/1 matrix of *shape* given by rows (*by_rows*) or by columns, the other way round:
+    (pointers as int64, indices as int32), each line's indices ascending (scipy's conversion,
+    for the build; one-byte values, as only the pattern matters)."""
+    from scipy.sparse import csc_matrix, csr_matrix
+
+    ones = np.ones(indices.size, dtype=np.int8)
+    m = (csr_matrix((ones, indices, indptr), shape=shape).tocsc() if by_rows
+         else csc_matrix((ones, indices, indptr), shape=shape).tocsr())
+    return m.indptr.astype(np.int64, copy=False), m.indices.astype(np.int32, copy=False)
+
+
+@dataclass(frozen=True, slots=True)
+class BucketColumns:
+    """What a review reads of a bucket's cache: the incidence matrices by columns (column
+    ``c`` of the shingles holds the rows ``cindices[cindptr[c]:cindptr[c + 1]]``) and the
+    rows' figures (see :class:`BucketArrays`).  Read without ``scipy.sparse``."""
+
+    cols: np.ndarray
+    cindptr: np.ndarray
+    cindices: np.ndarray
+    sizes: np.ndarray
+    wcols: np.ndarray
+    wcindptr: np.ndarray
+    wcindices: np.ndarray
+    count: np.ndarray
+    sample: np.ndarray
+    variant: np.ndarray
+    docptr: np.ndarray
+    docs: np.ndarray
+
+    @property
+    def rows(self) -> int:
+        return int(self.sizes.size)
+
+    @classmethod
+    def from_npz_bytes(cls, data: bytes | mmap.mmap) -> BucketColumns:
+        """The arrays read in place from *data* (read-only views: no copy), as the build
+        wrote them."""
+        fields = ("cols", "sizes", "wcols", "count", "sample", "variant", "docptr", "docs")
+        found = stored_arrays(data, (*fields, *_COLUMNS))
+        if found is not None:
+            return cls(**found)
+        with np.load(io.BytesIO(data), allow_pickle=False) as a:
+            plain = {f: a[f] for f in fields}
+            if "cindptr" in a.files:
+                return cls(**plain, **{f: a[f] for f in _COLUMNS})
+            # A cache written before the columns were kept (its next build rewrites it).
+            cindptr, cindices = _by_columns(a["indptr"], a["indices"], int(plain["cols"].size))
+            wcindptr, wcindices = _by_columns(a["windptr"], a["windices"], int(plain["wcols"].size))
+        return cls(**plain, cindptr=cindptr, cindices=cindices, wcindptr=wcindptr, wcindices=wcindices)
+
+
+def _by_columns(indptr: np.ndarray, indices: np.ndarray, cols: int) -> tuple[np.ndarray, np.ndarray]:
+    """(column pointers, row indices) of a 0/1 matrix given by rows, with numpy alone."""
+    t = Csr(indptr, indices, np.ones(indices.size, dtype=np.int32), (int(indptr.size - 1), cols)).transpose()
+    return t.indptr.astype(np.int64), t.indices.astype(np.int32)
 
 
 class _RowSets(Sequence[np.ndarray]):

@@ -20,6 +20,7 @@ from __future__ import annotations
 
 import importlib.util
 import io
+import mmap
 import re
 import tomllib
 from collections import defaultdict
@@ -31,9 +32,11 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import CounterdraftError
+from ..lazyre import compile_pattern
 from ..model import Document, Provision
-from .normalise import TermReplacer, canonical_role, fold, match_tokens
-from .sparse import SparseMatrix
+from .normalise import TermReplacer, canonical_role, fold, match_tokens, shared_replacer
+from .npzview import stored_arrays
+from .sparse import Csr
 
 __all__ = [
     "CLAUSE_TYPES_PATH",
@@ -80,6 +83,10 @@ NEIGHBOUR_MIN_SHARE = 0.4
 #: A provision with fewer content words (stop words excluded) than this is not typed by its
 #: neighbours: a two-word line ("AGREED TERMS") matches some seed by accident.
 NEIGHBOUR_MIN_WORDS = 4
+
+#: Texts whose predicted type a classifier remembers (:meth:`NeighbourClassifier.predict`):
+#: a few long agreements' worth (a 100-page agreement has some 500 provisions), a few MB.
+PREDICTION_MEMO = 20_000
 
 #: Typed provisions of one type kept as neighbour examples (chosen deterministically), which
 #: bounds the classifier's size and fitting time for a large precedent set.
@@ -145,7 +152,8 @@ def _parse_taxonomy(data: Mapping[str, object], source: str) -> Taxonomy:
                 order.append(h)
     # Longer keywords first so that at one position the longer one matches.
     alts = "|".join(re.escape(k) for k in sorted(order, key=lambda k: (-len(k), order.index(k))))
-    heading_re = re.compile(rf"(?<![\w'\-])(?:{alts})(?![\w'\-])")
+    # The taxonomy's own pattern: its compiled program is kept between runs (core.lazyre).
+    heading_re = compile_pattern(rf"(?<![\w'\-])(?:{alts})(?![\w'\-])")
     return Taxonomy(tuple(types), heading_re, keyword_type)
 
 
@@ -236,12 +244,17 @@ class NeighbourClassifier:
     (:meth:`to_npz_bytes`), with no pickle.
     """
 
-    def __init__(self, vocabulary: Sequence[str], idf: np.ndarray, matrix: SparseMatrix,
-                 labels: Sequence[str]) -> None:
+    def __init__(self, vocabulary: Sequence[str], idf: np.ndarray, matrix: Csr | None,
+                 labels: Sequence[str], *, by_term: Csr | None = None) -> None:
+        """*matrix*: the examples' TF-IDF rows; or None with *by_term*, its transpose."""
         self._terms = list(vocabulary)
         self._index = {t: i for i, t in enumerate(self._terms)}
         self._idf = np.asarray(idf, dtype=np.float64)
-        self._matrix = matrix.tocsr()
+        if matrix is None and by_term is None:
+            raise ValueError("the examples' matrix or its transpose is needed")
+        self._examples = matrix
+        self._by_term = by_term  # the examples' transpose, made when first needed
+        self._memo: dict[str, tuple[str | None, float]] = {}
         self._labels = [str(x) for x in labels]
         self._type_order = {t: i for i, t in enumerate(dict.fromkeys(self._labels))}
 
@@ -275,14 +288,12 @@ class NeighbourClassifier:
         for gs in grams:
             df[[index[g] for g in gs]] += 1.0
         idf = np.log((1.0 + len(texts)) / (1.0 + df)) + 1.0
-        unfitted = cls(vocab, idf, _empty_matrix(len(vocab)), labels)
+        unfitted = cls(vocab, idf, Csr.empty(len(vocab)), labels)
         return cls(vocab, idf, unfitted.transform(texts), labels)
 
-    def transform(self, texts: Sequence[str]) -> SparseMatrix:
+    def transform(self, texts: Sequence[str]) -> Csr:
         """TF-IDF rows of *texts* over the fitted vocabulary: (1 + log tf) * idf, l2-normed
         (array work over all texts at once; only the n-gram lookup is per word)."""
-        from scipy.sparse import csr_matrix
-
         width = max(len(self._terms), 1)
         keys: list[int] = []
         for r, text in enumerate(texts):
@@ -293,58 +304,86 @@ class NeighbourClassifier:
         w = (1.0 + np.log(counts.astype(np.float64))) * self._idf[cols]
         norms = np.sqrt(np.bincount(rows, weights=w * w, minlength=len(texts)))
         w = w / np.where(norms[rows] > 0, norms[rows], 1.0)
-        return csr_matrix((w, (rows, cols)), shape=(len(texts), len(self._terms)), dtype=np.float64)
+        return Csr.from_entries(rows, cols, w, (len(texts), len(self._terms)))
 
     def predict(self, texts: Sequence[str]) -> list[tuple[str | None, float]]:
-        """For each normalised token string: (clause type or None, best cosine similarity)."""
-        if not texts:
-            return []
-        out: list[tuple[str | None, float]] = []
-        k = min(NEIGHBOUR_K, self._matrix.shape[0])
-        mt = self._matrix.T.tocsc()
-        for start in range(0, len(texts), 512):  # bounded memory: 512 x examples per step
-            chunk = texts[start:start + 512]
-            sims = (self.transform(chunk) @ mt).toarray()
-            stop = _stop_words()
-            for text, row in zip(chunk, sims):
-                best = float(row.max()) if row.size else 0.0
-                if sum(1 for w in text.split() if w not in stop) < NEIGHBOUR_MIN_WORDS:
-                    out.append((None, best))
-                    continue
-                top = np.argpartition(-row, k - 1)[:k]
-                top = top[row[top] >= NEIGHBOUR_MIN_SIMILARITY]
-                if top.size == 0:
-                    out.append((None, best))
-                    continue
-                votes: dict[str, float] = defaultdict(float)
-                for i in top.tolist():
-                    votes[self._labels[i]] += float(row[i])
-                total = sum(votes.values())
-                winner = min(votes, key=lambda t: (-votes[t], self._type_order.get(t, 0)))
-                out.append((winner, best) if votes[winner] / total >= NEIGHBOUR_MIN_SHARE else (None, best))
-        return out
+        """For each normalised token string: (clause type or None, best cosine similarity).
+
+        A text's answer depends on that text alone, so answers are remembered (up to
+        ``PREDICTION_MEMO`` texts): a review types each document once for the comparison and
+        again with the review's term renames, where most texts read the same."""
+        memo = self._memo
+        new = [t for t in dict.fromkeys(texts) if t not in memo]
+        if len(memo) + len(new) > PREDICTION_MEMO:
+            memo.clear()
+        if new:
+            by_term = self._terms_by_example()
+            for start in range(0, len(new), 512):  # bounded memory: 512 x examples per step
+                chunk = new[start:start + 512]
+                sims = self.transform(chunk).dot(by_term)  # cosine: rows are l2-normed
+                memo.update((text, self._vote(text, row)) for text, row in zip(chunk, sims))
+        return [memo[t] for t in texts]
+
+    def _vote(self, text: str, row: np.ndarray) -> tuple[str | None, float]:
+        """The type the nearest examples agree on (similarities *row*), and the best one."""
+        best = float(row.max()) if row.size else 0.0
+        stop = _stop_words()
+        if sum(1 for w in text.split() if w not in stop) < NEIGHBOUR_MIN_WORDS:
+            return None, best
+        k = min(NEIGHBOUR_K, row.size)  # one similarity per example
+        top = np.argpartition(-row, k - 1)[:k]
+        top = top[row[top] >= NEIGHBOUR_MIN_SIMILARITY]
+        if top.size == 0:
+            return None, best
+        votes: dict[str, float] = defaultdict(float)
+        for i in top.tolist():
+            votes[self._labels[i]] += float(row[i])
+        total = sum(votes.values())
+        winner = min(votes, key=lambda t: (-votes[t], self._type_order.get(t, 0)))
+        return (winner, best) if votes[winner] / total >= NEIGHBOUR_MIN_SHARE else (None, best)
+
+    @property
+    def _matrix(self) -> Csr:
+        """The examples' TF-IDF rows (examples x terms)."""
+        if self._examples is None:
+            assert self._by_term is not None
+            self._examples = self._by_term.transpose()
+        return self._examples
+
+    def _terms_by_example(self) -> Csr:
+        """The examples' matrix by terms (its transpose: what a query is multiplied by)."""
+        if self._by_term is None:
+            self._by_term = self._matrix.transpose()
+        return self._by_term
 
     def to_npz_bytes(self) -> bytes:
+        """The model's arrays; the examples' matrix kept by terms (``t*``), the form a
+        review multiplies by, so that it is not turned round on every review."""
         buf = io.BytesIO()
-        m = self._matrix
-        np.savez(buf, vocabulary=np.array(self._terms, dtype=str), idf=self._idf, data=m.data,
-                 indices=m.indices, indptr=m.indptr, shape=np.array(m.shape),
+        t = self._terms_by_example()
+        np.savez(buf, vocabulary=np.array(self._terms, dtype=str), idf=self._idf, tdata=t.data,
+                 tindices=t.indices, tindptr=t.indptr, shape=np.array(t.shape[::-1]),
                  labels=np.array(self._labels, dtype=str))
         return buf.getvalue()
 
     @classmethod
-    def from_npz_bytes(cls, data: bytes) -> NeighbourClassifier:
-        from scipy.sparse import csr_matrix
-
-        with np.load(io.BytesIO(data), allow_pickle=False) as a:
-            matrix = csr_matrix((a["data"], a["indices"], a["indptr"]), shape=tuple(a["shape"].tolist()))
-            return cls(a["vocabulary"].tolist(), a["idf"], matrix, a["labels"].tolist())
-
-
-def _empty_matrix(columns: int) -> SparseMatrix:
-    from scipy.sparse import csr_matrix
-
-    return csr_matrix((0, columns), dtype=np.float64)
+    def from_npz_bytes(cls, data: bytes | mmap.mmap) -> NeighbourClassifier:
+        """A model :meth:`to_npz_bytes` wrote (or one written by rows, before it kept the
+        matrix by terms)."""
+        common = ("vocabulary", "idf", "shape", "labels")
+        for form in (("tdata", "tindices", "tindptr"), ("data", "indices", "indptr")):
+            a = stored_arrays(data, (*common, *form))  # in place: no copy
+            if a is not None:
+                break
+        else:
+            with np.load(io.BytesIO(data), allow_pickle=False) as stored:
+                a = {f: stored[f] for f in stored.files}
+        rows, cols = (int(n) for n in a["shape"].tolist())
+        if "tdata" in a:
+            by_term = Csr(a["tindptr"], a["tindices"], a["tdata"], (cols, rows))
+            return cls(a["vocabulary"].tolist(), a["idf"], None, a["labels"].tolist(), by_term=by_term)
+        matrix = Csr(a["indptr"], a["indices"], a["data"], (rows, cols))
+        return cls(a["vocabulary"].tolist(), a["idf"], matrix, a["labels"].tolist())
 
 
 @lru_cache(maxsize=1)
@@ -379,7 +418,7 @@ def document_term_replacer(doc: Document, *, aliases: Mapping[str, str] | None =
         if draft_name not in names:
             name = aliases.get(prec_name, prec_name)
             names[draft_name] = canonical_role(name) or name
-    return TermReplacer(names)
+    return shared_replacer(names)
 
 
 #: A provision without a heading whose first line is at most this many words and does not end

@@ -69,6 +69,7 @@ from ..model import ClosestProvision, Deviation, Document, Frequency, Pair, Prov
 from .clausetypes import Typing, classify_provisions, document_term_replacer
 from .index import BucketIndex, Library, bucket_of, normalised_wording
 from .normalise import SHINGLE_SIZE, TermReplacer, _word_hash, match_tokens, shingle_hashes
+from .sparse import unique_sorted
 from .variants import distances_from_counts, set_distance
 
 __all__ = [
@@ -175,7 +176,13 @@ class _Context:
         self._prec = {p.id: p for p in review.precedent.provisions}
         self._wordings: dict[tuple[str, str], _Wording] = {}
         self._dist: dict[tuple[str, str, str], np.ndarray] = {}
+        self._dist_by_wording: dict[tuple[str, bytes], np.ndarray] = {}
         self._siblings: dict[tuple[str, str], list[str]] | None = None
+        self._phrases: dict[tuple[str, tuple[str, ...]], int] = {}
+        self._refs: dict[int, tuple[str, str] | None] = {}
+        self._nearest: dict[int, tuple[np.ndarray, np.ndarray]] = {}  # id(dist): (dist kept alive, rows)
+        #: :func:`_whole_frequency`'s figures of present wordings, by (bucket, distances, containing).
+        self.whole: dict[tuple[str, int, bool], tuple[np.ndarray, Frequency]] = {}
 
     def provision(self, side: str, pid: str) -> Provision:
         return (self._draft if side == "d" else self._prec)[pid]
@@ -224,27 +231,50 @@ class _Context:
         d = self._dist.get(key)
         if d is None:
             w = self.wording(side, pid)
-            inter = bucket.intersections(w.hashes)
-            d = distances_from_counts(inter, bucket.sizes, np.full(bucket.rows, w.hashes.size),
-                                      metric=self.config.metric)
+            # Provisions that read the same (most of a draft and its precedent) share one.
+            same = (bucket.name, w.hashes.tobytes())
+            d = self._dist_by_wording.get(same)
+            if d is None:
+                inter = bucket.intersections(w.hashes)
+                d = distances_from_counts(inter, bucket.sizes, np.full(bucket.rows, w.hashes.size),
+                                          metric=self.config.metric)
+                self._dist_by_wording[same] = d
             self._dist[key] = d
         return d
+
+    def nearest(self, bucket: BucketIndex, dist: np.ndarray) -> np.ndarray:
+        """The CLOSEST_COUNT rows nearest by *dist* (ties: the more common wording, then the
+        lower row), once per distances array."""
+        found = self._nearest.get(id(dist))
+        if found is None:
+            # Only rows within the CLOSEST_COUNT-th smallest distance can be among the nearest:
+            # sorting them alone gives the order a sort of every row gives.
+            k = min(CLOSEST_COUNT, bucket.rows)
+            near = np.flatnonzero(dist <= np.partition(dist, k - 1)[k - 1])
+            found = self._nearest[id(dist)] = (dist, near[np.lexsort((near, -bucket.count[near], dist[near]))][:k])
+        return found[1]
 
     def closest(self, bucket: BucketIndex, dist: np.ndarray) -> tuple[ClosestProvision, ...]:
         if bucket.rows == 0:
             return ()
-        # Only rows within the CLOSEST_COUNT-th smallest distance can be among the nearest:
-        # sorting them alone gives the order a sort of every row gives.
-        k = min(CLOSEST_COUNT, bucket.rows)
-        near = np.flatnonzero(dist <= np.partition(dist, k - 1)[k - 1])
-        order = near[np.lexsort((near, -bucket.count[near], dist[near]))][:CLOSEST_COUNT]
-        refs = self.library.provision_refs([int(bucket.sample[i]) for i in order])
+        order = self.nearest(bucket, dist)
+        refs = self.refs([int(bucket.sample[i]) for i in order])
         out = []
         for i in order.tolist():
             ref = refs.get(int(bucket.sample[i]))
             if ref is not None:
                 out.append(ClosestProvision(ref[0], ref[1], round(float(1.0 - dist[i]), 3)))
         return tuple(out)
+
+    def refs(self, ids: Sequence[int]) -> dict[int, tuple[str, str]]:
+        """:meth:`Library.provision_refs`, each provision asked for once per review (the
+        same common wordings are nearest to many provisions)."""
+        known = self._refs
+        missing = [i for i in ids if i not in known]
+        if missing:
+            found = self.library.provision_refs(missing)
+            known.update((i, found.get(i)) for i in missing)
+        return {i: ref for i in ids if (ref := known[i]) is not None}
 
     def position_of_rows(self, bucket: BucketIndex, rows: np.ndarray, dist: np.ndarray) -> Stance | None:
         """The stance recorded on the variant of the nearest of *rows* (a boolean mask)."""
@@ -255,28 +285,41 @@ class _Context:
         return stance_named(self.positions.get(int(bucket.variant[best])))
 
     def containing_phrase(self, bucket: BucketIndex, tokens: Sequence[str]) -> int:
-        """Same-type library provisions whose normalised text holds *tokens* as a phrase."""
-        toks = [t for t in tokens if t]
-        if not toks:
-            return 0
-        words = np.unique(np.fromiter((_word_hash(t) for t in toks), dtype=np.uint64, count=len(toks)))
-        hits = bucket.word_hits(words)
-        cand = np.flatnonzero(hits == words.size)
-        if cand.size and len(toks) >= SHINGLE_SIZE:
-            # A text holding the phrase holds each of its shingles: a cheaper, exact filter
-            # before reading the candidates' texts.
-            grams = shingle_hashes(toks)
-            cand = cand[bucket.intersections(grams)[cand] == grams.size]
-        if cand.size == 0:
-            return 0
-        phrase = " " + " ".join(toks) + " "
-        norms = self.library.norms([int(bucket.sample[i]) for i in cand])
-        n = 0
-        for i in cand.tolist():
-            norm = norms.get(int(bucket.sample[i]))
-            if norm is not None and phrase in f" {norm} ":
-                n += int(bucket.count[i])
+        """Same-type library provisions whose normalised text holds *tokens* as a phrase
+        (asked once per bucket and phrase: deviations often change the same words)."""
+        toks = tuple(t for t in tokens if t)
+        key = (bucket.name, toks)
+        n = self._phrases.get(key)
+        if n is None:
+            n = self._phrases[key] = _containing_phrase(self.library, bucket, toks)
         return n
+
+
+def _containing_phrase(library: Library, bucket: BucketIndex, toks: Sequence[str]) -> int:
+    if not toks:
+        return 0
+    words = unique_sorted(np.fromiter((_word_hash(t) for t in toks), dtype=np.uint64, count=len(toks)))
+    hits = bucket.word_hits(words)
+    cand = np.flatnonzero(hits == words.size)
+    if len(toks) == 1:
+        # One word: a text holds it as a phrase exactly when it is among the text's words
+        # (its tokens, which hold no space), as the bucket's word columns record them.
+        return int(bucket.count[cand].sum())
+    if cand.size and len(toks) >= SHINGLE_SIZE:
+        # A text holding the phrase holds each of its shingles: a cheaper, exact filter
+        # before reading the candidates' texts.
+        grams = shingle_hashes(toks)
+        cand = cand[bucket.intersections(grams)[cand] == grams.size]
+    if cand.size == 0:
+        return 0
+    phrase = " " + " ".join(toks) + " "
+    norms = library.norms([int(bucket.sample[i]) for i in cand])
+    n = 0
+    for i in cand.tolist():
+        norm = norms.get(int(bucket.sample[i]))
+        if norm is not None and phrase in f" {norm} ":
+            n += int(bucket.count[i])
+    return n
 
 
 def _empty(total: int) -> Frequency:
@@ -290,6 +333,12 @@ def _whole_frequency(ctx: _Context, bucket_name: str, side: str, pid: str, *,
     if bucket is None or bucket.rows == 0:
         return Frequency(0, ctx.total if absent else 0, ctx.total, (), 0 if containing else None)
     dist = ctx.distances(bucket, side, pid)
+    # Present, the figures depend on the wording alone (its distances): provisions that read
+    # the same share them.  Absent, on the provision's siblings too.
+    key = (bucket_name, id(dist), containing)
+    found = None if absent else ctx.whole.get(key)
+    if found is not None:
+        return found[1]
     within = dist <= ctx.config.cutoff
     same_type = bucket.document_count
     if absent:  # documents without a counterpart of the provision
@@ -298,7 +347,10 @@ def _whole_frequency(ctx: _Context, bucket_name: str, side: str, pid: str, *,
         matching = len(bucket.documents_of(within))
     cont = int(bucket.count[within].sum()) if containing else None
     position = None if absent else ctx.position_of_rows(bucket, within, dist)
-    return Frequency(same_type, matching, ctx.total, ctx.closest(bucket, dist), cont, position)
+    freq = Frequency(same_type, matching, ctx.total, ctx.closest(bucket, dist), cont, position)
+    if not absent:
+        ctx.whole[key] = (dist, freq)  # dist kept alive: its id stays its own
+    return freq
 
 
 # ----------------------------------------------------------------------------------------
@@ -595,18 +647,41 @@ def _id_order(dev: Deviation) -> int:
     return int(m.group(1)) if m else 1 << 30
 
 
+def _pair_side(pair: Pair) -> tuple[str, str]:
+    """The provision whose wording a pair's figures are of: the draft's, else the precedent's."""
+    if pair.draft is not None:
+        return "d", pair.draft
+    assert pair.precedent is not None
+    return "p", pair.precedent
+
+
+def _ask_nearest_at_once(ctx: _Context) -> None:
+    """The references of every pair's nearest library provisions, read in one query rather
+    than one per pair (the pairs' figures then find them known)."""
+    ids: list[int] = []
+    for pair in ctx.review.pairs:
+        if pair.draft is None and pair.precedent is None:
+            continue
+        bucket = ctx.library.bucket(ctx.bucket_name(pair.draft, pair.precedent))
+        if bucket is not None and bucket.rows:
+            order = ctx.nearest(bucket, ctx.distances(bucket, *_pair_side(pair)))
+            ids.extend(int(bucket.sample[i]) for i in order)
+    ctx.refs(ids)
+
+
 def apply_frequency(review: Review, library: Library, *, types: ReviewTypes | None = None) -> Review:
     """A new :class:`Review` whose pairs and deviations carry their :class:`Frequency` in
     *library*, with substantive severities, reasons and ranks adjusted (module docstring)."""
     ctx = _Context(review, library, types or review_types(review, library))
+    _ask_nearest_at_once(ctx)
     pairs: list[Pair] = []
     for pair in review.pairs:
         if pair.draft is None and pair.precedent is None:
             pairs.append(dataclasses.replace(pair, frequency=_empty(ctx.total)))
             continue
         bucket_name = ctx.bucket_name(pair.draft, pair.precedent)
-        side, pid = ("d", pair.draft) if pair.draft is not None else ("p", pair.precedent)
-        pairs.append(dataclasses.replace(pair, frequency=_whole_frequency(ctx, bucket_name, side, pid)))  # type: ignore[arg-type]
+        side, pid = _pair_side(pair)
+        pairs.append(dataclasses.replace(pair, frequency=_whole_frequency(ctx, bucket_name, side, pid)))
     adjusted = [_adjust(dev, _deviation_frequency(ctx, dev)) for dev in review.deviations]
     ranked = sorted(adjusted, key=lambda v: (-v.severity, _id_order(v)))
     deviations = tuple(dataclasses.replace(v, rank=r) for r, v in enumerate(ranked, 1))

@@ -76,7 +76,7 @@ from __future__ import annotations
 
 import hashlib
 import json
-import multiprocessing
+import mmap
 import os
 import re
 import stat
@@ -84,11 +84,10 @@ import tempfile
 import time
 from collections import defaultdict
 from collections.abc import Callable, Iterator, Mapping, Sequence
-from concurrent.futures import ProcessPoolExecutor
 from contextlib import contextmanager
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, replace
 from pathlib import Path, PurePosixPath
-from typing import TYPE_CHECKING, Any, Literal, Protocol, runtime_checkable
+from typing import TYPE_CHECKING, Any, Literal, Protocol, TypeVar, runtime_checkable
 
 import numpy as np
 
@@ -96,10 +95,11 @@ from ..errors import CounterdraftError
 from ..fileio import file_sha256
 from ..model import Document
 from ..readers import PRECEDENT_SET_SUFFIXES
-from .bucketcache import BucketArrays, assemble, compact, rows_of
+from .bucketcache import BucketArrays, BucketColumns, assemble, compact, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
 from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
 from .options import FORMER_POSITIONS, POSITIONS
+from .sparse import column_hits, ragged, unique_sorted
 from .store import VARIANT_FIGURES, PrecedentStore, is_server_address, open_store
 from .store.base import DocumentState, FailureState
 from .variants import RegroupTooLarge, VariantConfig, cluster_wordings, regroup
@@ -154,8 +154,9 @@ MIN_AGREEMENT_TYPES = 3
 POOL_MIN_FILES = 16
 
 #: Layout of the derived files (meta ``derived``): an index whose derived data has another
-#: layout gets it all anew on its next build.
-DERIVED_FORMAT = "2"
+#: layout gets it all anew on its next build.  3: the bucket caches keep their incidence
+#: matrices by columns (:mod:`.bucketcache`).
+DERIVED_FORMAT = "3"
 
 #: A bucket of at most this many distinct wordings is clustered in full whenever it changes:
 #: its 80,000 distances and their linkage take milliseconds, and a full clustering is the
@@ -300,20 +301,22 @@ def _file_ids(paths: Sequence[str | os.PathLike[str]]) -> set[tuple[int, int]]:
 def _scan(root: Path, *, exclude: Sequence[str | os.PathLike[str]] = ()) -> list[_FileStat]:
     excluded = _file_ids(exclude)  # compared by inode: no path resolution per file found
     out: list[_FileStat] = []
-    stack = [root]
+    # (folder, its path relative to the root with a final "/"): a file's relative path is
+    # its folder's and its name, without parsing a path per file.
+    stack: list[tuple[str | Path, str]] = [(root, "")]
     while stack:  # iterative walk: no recursion on the folder depth
-        folder = stack.pop()
+        folder, prefix = stack.pop()
         try:
             entries = sorted(os.scandir(folder), key=lambda e: e.name)
         except OSError:
             continue
-        subdirs = []
+        subdirs: list[tuple[str | Path, str]] = []
         for e in entries:
             if e.name.startswith(".") or e.name.startswith("~$"):
                 continue
             try:
                 if e.is_dir(follow_symlinks=False):
-                    subdirs.append(Path(e.path))
+                    subdirs.append((e.path, f"{prefix}{e.name}/"))
                     continue
                 if not e.is_file() or not e.name.lower().endswith(SUFFIXES):
                     continue
@@ -322,8 +325,7 @@ def _scan(root: Path, *, exclude: Sequence[str | os.PathLike[str]] = ()) -> list
                 continue
             if not stat.S_ISREG(st.st_mode) or (st.st_dev, st.st_ino) in excluded:
                 continue
-            rel = Path(e.path).relative_to(root).as_posix()
-            out.append(_FileStat(rel, e.path, st.st_size, st.st_mtime_ns))
+            out.append(_FileStat(prefix + e.name, e.path, st.st_size, st.st_mtime_ns))
         stack.extend(reversed(subdirs))
     out.sort(key=lambda f: f.rel)
     return out
@@ -416,9 +418,12 @@ def _extract(path: str) -> _Extract | _Problem:
 def _cancelled(cancel: Cancel | CancelFlag | None) -> bool:
     if cancel is None:
         return False
-    if isinstance(cancel, CancelFlag):
-        return bool(cancel.is_set())
-    return bool(cancel())
+    # What isinstance(cancel, CancelFlag) checks, without the protocol check's cost (it is
+    # asked once per file, and a no-change build of 1,000 files takes a few hundredths).
+    is_set = getattr(cancel, "is_set", None)
+    if is_set is not None:
+        return bool(is_set())
+    return bool(cancel())  # type: ignore[operator]
 
 
 def _read_many(paths: Sequence[str], *, workers: int) -> Iterator[_Extract | _Problem]:
@@ -427,6 +432,9 @@ def _read_many(paths: Sequence[str], *, workers: int) -> Iterator[_Extract | _Pr
         for p in paths:
             yield _extract(p)
         return
+    import multiprocessing  # here: a review, which reads no file, does not load them
+    from concurrent.futures import ProcessPoolExecutor
+
     ctx = multiprocessing.get_context("spawn")
     with ProcessPoolExecutor(max_workers=workers, mp_context=ctx) as pool:
         try:
@@ -852,7 +860,7 @@ def _bucket_wordings(store: PrecedentStore, bucket: str, ranks: tuple[np.ndarray
     order = np.lexsort((np.arange(count.size), -count))  # most provisions first, then by hash
     docptr = np.r_[0, np.cumsum(np.diff(cuts)[order])].astype(np.int64)
     return _Wordings([groups[i][0] for i in order.tolist()], count[order].astype(np.int32), sample[order],
-                     docptr, docs[_ragged(cuts, order)])
+                     docptr, docs[ragged(cuts, order)])
 
 
 def _new_wording_sets(store: PrecedentStore, bucket: str,
@@ -882,11 +890,30 @@ def bucket_blob(bucket: str) -> str:
 
 def read_bucket(store: PrecedentStore, bucket: str) -> BucketArrays | None:
     """A bucket's frequency cache, None when missing or not one this code wrote."""
-    data = store.read_blob(bucket_blob(bucket))
+    return _read_cache(store.read_blob(bucket_blob(bucket)), BucketArrays.from_npz_bytes)
+
+
+def _read_bucket_columns(store: PrecedentStore, bucket: str) -> BucketColumns | None:
+    """What a review reads of a bucket's cache (:class:`~.bucketcache.BucketColumns`, read
+    in place from the mapped file), None when missing or not one this code wrote."""
+    return _read_cache(view_blob(store, bucket_blob(bucket)), BucketColumns.from_npz_bytes)
+
+
+def view_blob(store: PrecedentStore, name: str) -> bytes | mmap.mmap | None:
+    """A derived blob to read only: the SQLite store's file mapped into memory
+    (``SQLiteStore.view_blob``: nothing copied, pages read as used), another store's bytes."""
+    view = getattr(store, "view_blob", None)
+    return view(name) if view is not None else store.read_blob(name)
+
+
+_Cache = TypeVar("_Cache")
+
+
+def _read_cache(data: bytes | mmap.mmap | None, load: Callable[[bytes | mmap.mmap], _Cache]) -> _Cache | None:
     if data is None:
         return None
     try:
-        return BucketArrays.from_npz_bytes(data)
+        return load(data)
     except (OSError, ValueError, KeyError, EOFError):
         return None
 
@@ -1066,6 +1093,8 @@ class _Training:
         self._pool: Any = None
         self._job: Any = None
         if state["words"] >= PARALLEL_TRAINING_MIN_WORDS:
+            import multiprocessing
+
             from .vocab import train_model
 
             self._pool = multiprocessing.get_context("spawn").Pool(1)
@@ -1129,22 +1158,24 @@ def _start_vocabulary(store: PrecedentStore, aliases: Mapping[str, str]) -> _Tra
 
 @dataclass(frozen=True, slots=True)
 class BucketIndex:
-    """One bucket's distinct wordings as sparse shingle and word incidence matrices."""
+    """One bucket's distinct wordings: which rows hold each shingle and each word (the
+    incidence matrices by columns, :class:`~.bucketcache.BucketColumns`), and the rows'
+    figures."""
 
     name: str
     cols: np.ndarray  # sorted shingle hashes
-    shingles: Any  # scipy.sparse.csr_matrix, rows = distinct wordings
+    cindptr: np.ndarray  # rows holding shingle cols[c]: cindices[cindptr[c]:cindptr[c + 1]]
+    cindices: np.ndarray
     sizes: np.ndarray  # shingles per row
-    wcols: np.ndarray
-    words: Any  # csr_matrix of distinct words per row
+    wcols: np.ndarray  # sorted word hashes, with their rows as for the shingles
+    wcindptr: np.ndarray
+    wcindices: np.ndarray
     count: np.ndarray  # provisions per row
     sample: np.ndarray  # one provision id per row
     variant: np.ndarray  # variant id per row (-1 if none)
     docptr: np.ndarray
     docs: np.ndarray
     document_count: int = 0  # distinct documents with a provision in the bucket
-    #: Column-major copies made when first needed (a review asks word questions of few buckets).
-    _columns: dict[str, Any] = field(default_factory=dict, compare=False, repr=False)
 
     @property
     def rows(self) -> int:
@@ -1152,47 +1183,28 @@ class BucketIndex:
 
     def documents_of(self, row_mask: np.ndarray) -> set[int]:
         rows = np.flatnonzero(row_mask)
-        return set(self.docs[_ragged(self.docptr, rows)].tolist())
+        return set(self.docs[ragged(self.docptr, rows)].tolist())
 
     def all_documents(self) -> set[int]:
         return set(self.docs.tolist())
 
-    def _by_column(self, key: str) -> Any:
-        m = self._columns.get(key)
-        if m is None:
-            m = self._columns[key] = (self.shingles if key == "s" else self.words).tocsc()
-        return m
-
     def intersections(self, hashes: np.ndarray) -> np.ndarray:
         """|row shingles & hashes| for every row (hashes: sorted unique uint64)."""
-        return self._hits(self.cols, self._by_column("s"), hashes)
+        return column_hits(self.cindptr, self.cindices, _columns_of(self.cols, hashes), self.rows)
 
     def word_hits(self, hashes: np.ndarray) -> np.ndarray:
-        return self._hits(self.wcols, self._by_column("w"), hashes)
-
-    @staticmethod
-    def _hits(cols: np.ndarray, matrix: Any, hashes: np.ndarray) -> np.ndarray:
-        if hashes.size == 0 or cols.size == 0:
-            return np.zeros(matrix.shape[0], dtype=np.int64)
-        pos = np.searchsorted(cols, hashes)
-        ok = pos < cols.size
-        pos = pos[ok]
-        pos = pos[cols[pos] == hashes[ok]]
-        if pos.size == 0:
-            return np.zeros(matrix.shape[0], dtype=np.int64)
-        # The rows of the chosen columns of the CSC matrix, counted (no sparse slicing).
-        return np.bincount(matrix.indices[_ragged(matrix.indptr, pos)], minlength=matrix.shape[0]).astype(np.int64)
+        return column_hits(self.wcindptr, self.wcindices, _columns_of(self.wcols, hashes), self.rows)
 
 
-def _ragged(indptr: np.ndarray, picks: np.ndarray) -> np.ndarray:
-    """Positions ``indptr[p]:indptr[p + 1]`` for every p of *picks*, concatenated."""
-    starts = indptr[picks].astype(np.int64)
-    lengths = indptr[picks + 1].astype(np.int64) - starts
-    total = int(lengths.sum())
-    if total == 0:
+def _columns_of(cols: np.ndarray, hashes: np.ndarray) -> np.ndarray:
+    """The positions in *cols* (sorted) of those *hashes* it holds."""
+    if hashes.size == 0 or cols.size == 0:
         return np.zeros(0, dtype=np.int64)
-    offsets = np.repeat(starts - np.cumsum(lengths) + lengths, lengths)
-    return offsets + np.arange(total, dtype=np.int64)
+    pos = np.searchsorted(cols, hashes)
+    ok = pos < cols.size
+    pos = pos[ok]
+    found: np.ndarray = pos[cols[pos] == hashes[ok]]
+    return found
 
 
 class Library:
@@ -1289,7 +1301,7 @@ class Library:
     def neighbours(self) -> NeighbourClassifier | None:
         """The neighbour classifier fitted on the library (None before the first build)."""
         if self._neighbours is None:
-            data = self.store.read_blob(NEIGHBOURS_FILENAME)
+            data = view_blob(self.store, NEIGHBOURS_FILENAME)
             if data is not None:
                 self._neighbours = NeighbourClassifier.from_npz_bytes(data)
         return self._neighbours
@@ -1314,11 +1326,11 @@ class Library:
         its provisions fall in)."""
         if name in self._buckets:
             return self._buckets[name]
-        a = read_bucket(self.store, name)
+        a = _read_bucket_columns(self.store, name)
         b = None
         if a is not None and a.rows:
-            b = BucketIndex(name, a.cols, a.shingle_matrix(), a.sizes, a.wcols, a.word_matrix(),
-                            a.count, a.sample, a.variant, a.docptr, a.docs, int(np.unique(a.docs).size))
+            b = BucketIndex(name, a.cols, a.cindptr, a.cindices, a.sizes, a.wcols, a.wcindptr, a.wcindices,
+                            a.count, a.sample, a.variant, a.docptr, a.docs, int(unique_sorted(a.docs).size))
         self._buckets[name] = b
         return b
 

@@ -21,6 +21,7 @@ it read.
 
 from __future__ import annotations
 
+import mmap
 import os
 import sqlite3
 import time
@@ -319,6 +320,21 @@ class SQLiteStore(SQLStore):
             return self._blob_path(name).read_bytes()
         except OSError:
             return None
+
+    def view_blob(self, name: str) -> bytes | mmap.mmap | None:
+        """The blob's file mapped read-only, for reading only (POSIX: a build replaces the
+        file, the mapping keeps the one read; elsewhere a mapped file could not be replaced,
+        so it is read).  Not part of the store protocol: a store without it is read with
+        :meth:`read_blob` (core.library.index.view_blob)."""
+        if os.name != "posix":
+            return self.read_blob(name)
+        try:
+            with open(self._blob_path(name), "rb") as fh:
+                if os.fstat(fh.fileno()).st_size == 0:
+                    return b""
+                return mmap.mmap(fh.fileno(), 0, access=mmap.ACCESS_READ)
+        except (OSError, ValueError):
+            return self.read_blob(name)
 
     def write_blob(self, name: str, data: bytes) -> None:
         """Atomic write with mode 0o600 (mkstemp already creates 0o600; chmod makes it
