@@ -101,7 +101,7 @@ def test_switched_off_by_the_environment(monkeypatch) -> None:
     assert side_by_side(os.getpid, os.getpid) == (os.getpid(), os.getpid())
 
 
-def test_a_review_with_its_checks_beside_equals_one_in_turn(monkeypatch) -> None:
+def test_a_review_with_its_checks_and_half_its_groups_beside_equals_one_in_turn(monkeypatch) -> None:
     # reference: the same review computed in this process alone
     from pathlib import Path
 
@@ -111,6 +111,7 @@ def test_a_review_with_its_checks_beside_equals_one_in_turn(monkeypatch) -> None
     demo = Path(__file__).resolve().parents[2] / "demo_agreements"
     draft, precedent = read_document(str(demo / "draft.docx")), read_document(str(demo / "precedent.docx"))
     monkeypatch.setattr(review_module, "PARALLEL_CHECKS_MIN_CHARS", 0)
+    monkeypatch.setattr(review_module, "PARALLEL_BUILD_MIN_CHARS", 0)  # half the groups beside, too
     beside = review_module.run_review(draft, precedent)
     monkeypatch.setenv(parallel.PARALLEL_ENV, "0")
     in_turn = review_module.run_review(draft, precedent)
