@@ -3,13 +3,14 @@ process runs one of its own.
 
 A review's long steps come in independent groups: reading the draft and reading the
 precedent (while this process loads the engine and opens the precedent set); the draft's own
-drafting checks and the comparison; the word diffs of two halves of the aligned provisions.  Where the operating system can fork (Linux) and this
-process runs no other thread (forking a process whose other threads hold locks can leave the
-child stuck: the window's worker thread reviews in line), each child runs one step and sends
-its result back pickled through a pipe.  Anything that goes wrong in a child (it dies, its
-result cannot be pickled) makes this process run the step itself, so a result never depends
-on the child: the same calls give the same values either way, only sooner.  An exception a
-step raises in a child is raised here.
+drafting checks and the comparison; the word diffs of two halves of the aligned provisions.
+Where the operating system can fork (Linux) and this process runs no other thread (forking a
+process whose other threads hold locks can leave the child stuck) nor a GUI toolkit (the
+window reviews in line), each child runs one step and sends its result back pickled through
+a pipe.  Anything that goes wrong in a child (it dies, its result cannot be pickled) makes
+this process run the step itself, so a result never depends on the child: the same calls
+give the same values either way, only sooner.  An exception a step raises in a child is
+raised here.
 """
 
 from __future__ import annotations
