@@ -62,7 +62,7 @@ from ..model import (
     Review,
     TermMapping,
 )
-from ..parallel import side_by_side
+from ..parallel import can_fork, side_by_side
 from .align import Alignment, Features, Group, align
 from .checks import document_words, review_checks
 from .classify import Change, TermContext, WordChange, classify_ops
@@ -879,12 +879,13 @@ class _Builder:
         groups whose words differ hold PARALLEL_BUILD_MIN_CHARS characters or more (two
         agreements far apart), the second half of that work is done in a forked child
         (:func:`core.parallel.side_by_side`) and its results joined in the same order; not
-        when stage times are asked for (the child's would be lost)."""
+        when stage times are asked for (the child's would be lost), nor where no child can be
+        forked (the split would buy nothing)."""
         groups = self.al.groups
         group_of_draft = {d: g for g in groups for d in g.drafts}
-        work = [_changed_chars(g, self.di, self.pi) for g in groups]
+        work = [_changed_chars(g, self.di, self.pi) for g in groups] if can_fork() else []
         total = sum(work)
-        if total < PARALLEL_BUILD_MIN_CHARS or self.clock.sink is not None:
+        if not work or total < PARALLEL_BUILD_MIN_CHARS or self.clock.sink is not None:
             return [x for g in groups for x in self._group_pairs(g, group_of_draft)]
         cut, seen = 0, 0
         while cut < len(groups) and seen + work[cut] <= total / 2:
