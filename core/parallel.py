@@ -20,11 +20,11 @@ import pickle
 import sys
 import threading
 from collections.abc import Callable, Sequence
-from typing import TypeVar
+from typing import Generic, TypeVar
 
 from .kept import save_kept
 
-__all__ = ["can_fork", "each_beside", "one_blas_thread", "side_by_side"]
+__all__ = ["Later", "can_fork", "each_beside", "one_blas_thread", "side_by_side"]
 
 _A = TypeVar("_A")
 _B = TypeVar("_B")
@@ -76,15 +76,37 @@ def each_beside(steps: Sequence[Callable[[], _A]], here: Callable[[], _B]) -> tu
     own while *here* runs in this one when :func:`can_fork`; all in this process, *here*
     first, otherwise.  An exception of *here* wins over the steps', and a step's over a
     later one's."""
-    if not can_fork():
-        mine = here()
-        return [step() for step in steps], mine
-    children = [_fork(step) for step in steps]
+    laters = [Later(step) for step in steps]
     try:
         mine = here()
     finally:
-        sent = [_collect(child) for child in children]
-    return [_result(data, step) for data, step in zip(sent, steps, strict=True)], mine
+        sent = [later.take() for later in laters]
+    return [_result(data, later.step) for data, later in zip(sent, laters, strict=True)], mine
+
+
+class Later(Generic[_A]):
+    """A step started now in a forked child process when :func:`can_fork` (else left to run
+    in this process when its value is asked for), whose value :meth:`result` gives: for work
+    that this process needs only after some of its own.  Every ``Later`` ends with
+    :meth:`result` or :meth:`drop`, so that no child is left behind."""
+
+    def __init__(self, step: Callable[[], _A]) -> None:
+        self.step = step
+        self._child = _fork(step) if can_fork() else None
+
+    def result(self) -> _A:
+        """The step's value (its exception raised here); the step run here when no child
+        ran it or the child sent nothing usable."""
+        return _result(self.take(), self.step)
+
+    def drop(self) -> None:
+        """Wait for the child to end and forget its value (this process is giving up)."""
+        self.take()
+
+    def take(self) -> bytes:
+        """What the child sent, once it has ended (nothing when no child ran the step)."""
+        data, self._child = _collect(self._child), None
+        return data
 
 
 def _fork(step: Callable[[], object]) -> tuple[int, int] | None:

@@ -62,9 +62,9 @@ from ..model import (
     Review,
     TermMapping,
 )
-from ..parallel import can_fork, side_by_side
+from ..parallel import Later, can_fork, side_by_side
 from .align import Alignment, Features, Group, align
-from .checks import document_words, review_checks
+from .checks import DocumentWords, document_words, review_checks
 from .classify import Change, TermContext, WordChange, classify_ops
 from .figures import figure_reasons, figures_in
 from .serialize import review_to_dict
@@ -345,16 +345,22 @@ def run_review(draft: Document, precedent: Document, *,
 
         acting_for = resolve_acting_for(precedent, acting_for)
 
-    def compare() -> Review:
-        return _compare(draft, precedent, overrides=overrides, vocabulary=vocabulary, rules=rules,
-                        clause_type=clause_type, acting_for=acting_for, clock=clock, stage=stage)
+    words: list[Later[DocumentWords]] = []
+
+    def tokenised() -> None:  # the draft's own checks start on the other core now
+        if sum(len(p.text) for p in draft.provisions) >= PARALLEL_CHECKS_MIN_CHARS:
+            words.append(Later(lambda: document_words(draft)))
 
     clock = _Clock(timings)
-    if sum(len(p.text) for p in draft.provisions) >= PARALLEL_CHECKS_MIN_CHARS:
-        words, review = side_by_side(lambda: document_words(draft), compare)
-    else:
-        words, review = None, compare()
-    review = replace(review, checks=review_checks(review, words=words))
+    try:
+        review = _compare(draft, precedent, overrides=overrides, vocabulary=vocabulary, rules=rules,
+                          clause_type=clause_type, acting_for=acting_for, clock=clock, stage=stage,
+                          tokenised=tokenised)
+    except BaseException:
+        for later in words:
+            later.drop()
+        raise
+    review = replace(review, checks=review_checks(review, words=words[0].result() if words else None))
     clock.lap("drafting checks")
     return review
 
@@ -375,21 +381,29 @@ def _changed_chars(g: Group, di: DocInfo, pi: DocInfo) -> int:
 
 
 #: A draft this long (characters) has its own drafting checks read beside the comparison, on
-#: the other processor core (:func:`core.parallel.side_by_side`): for a shorter one they take
-#: less time than forking a process and sending them back (a few milliseconds, measured).
+#: the other processor core (:class:`core.parallel.Later`), from the moment both documents
+#: are tokenised: for a shorter one they take less time than forking a process and sending
+#: them back (a few milliseconds, measured).
 PARALLEL_CHECKS_MIN_CHARS = 40_000
+
+#: Characters of distinct provision texts and headings to tokenise from which the second half
+#: is tokenised in a forked child (:func:`_tokenise`): two 100-page agreements hold about
+#: 600,000, tokenised in 0.13 s, whose second half comes back in about 0.01 s; below about
+#: 50,000 (a 10-page pair) forking and sending cost more than half the work saves.
+PARALLEL_TOKENS_MIN_CHARS = 50_000
 
 
 def _compare(draft: Document, precedent: Document, *, overrides: Sequence[TermOverride],
              vocabulary: VocabularyModel | None, rules: SeverityRules,
              clause_type: Callable[[Provision, Document], str | None] | None, acting_for: str | None,
-             clock: _Clock, stage: Callable[[str], None]) -> Review:
+             clock: _Clock, stage: Callable[[str], None], tokenised: Callable[[], None]) -> Review:
     """The review of *draft* against *precedent* without its drafting checks (see
-    :func:`run_review`)."""
+    :func:`run_review`); *tokenised* is called once both documents are tokenised."""
     di, pi = build_docinfo(draft), build_docinfo(precedent)
     extra = [n for o in overrides for n in (o.draft, o.precedent or "") if n.strip()]
     names = list(dict.fromkeys([*di.all_names, *pi.all_names, *extra]))
     dside, pside, uses = _sides(di, pi, names)
+    tokenised()
     clock.lap("tokens: words, terms, cross-references")
 
     stage("matching defined terms and aligning provisions")
@@ -466,17 +480,53 @@ def _as_words(di: DocInfo, pi: DocInfo, tm: TermMap) -> frozenset[str]:
 def _sides(di: DocInfo, pi: DocInfo, names: Sequence[str]
            ) -> tuple[_Side, _Side, tuple[dict[str, int], dict[str, int]]]:
     """Both documents tokenised with every name of *names* as a term (each document's own
-    aliases read as their terms), and the uses of each name in each document."""
+    aliases read as their terms; long documents half in a forked child, :func:`_tokenise`),
+    and the uses of each name in each document."""
     dmatch = term_matcher(names, aliases=di.alias_of, capitals=True)
     dside = _Side(di, dmatch)
     if dict(di.alias_of) == dict(pi.alias_of):  # the same matcher: share the tokens of equal texts
         pside = _Side(pi, dmatch, dside.memo)
     else:
         pside = _Side(pi, term_matcher(names, aliases=pi.alias_of, capitals=True))
+    _tokenise((dside, pside))
     n_d, n_p = len(di.provisions), len(pi.provisions)
     uses = (count_term_uses([*(dside.text(i) for i in range(n_d)), *(dside.head(i) for i in range(n_d))]),
             count_term_uses([*(pside.text(i) for i in range(n_p)), *(pside.head(i) for i in range(n_p))]))
     return dside, pside, uses
+
+
+def _tokenise(sides: Sequence[_Side]) -> None:
+    """Tokenise every distinct text and heading of *sides* into their memos: when they hold
+    at least PARALLEL_TOKENS_MIN_CHARS characters, the second half (by characters) in a
+    forked child (:class:`core.parallel.Later`) while this process does the first."""
+    jobs: dict[tuple[int, str], _Side] = {}
+    for side in sides:
+        for p in side.info.provisions:
+            for text in (p.text, p.heading or ""):
+                if text not in side.memo:
+                    jobs.setdefault((id(side.memo), text), side)
+    total = sum(len(text) for _m, text in jobs)
+    if total < PARALLEL_TOKENS_MIN_CHARS:
+        return
+    work = list(jobs.items())
+    done, cut = 0, len(work)
+    for k, ((_m, text), _side) in enumerate(work):
+        done += len(text)
+        if done * 2 >= total:
+            cut = k + 1
+            break
+
+    def tokens(part: Sequence[tuple[tuple[int, str], _Side]]) -> list[BaseTokens]:
+        return [base_tokens(text, side.matcher) for (_m, text), side in part]
+
+    later = Later(lambda: tokens(work[cut:]))
+    try:
+        mine = tokens(work[:cut])
+    except BaseException:
+        later.drop()
+        raise
+    for ((_m, text), side), bt in zip(work, [*mine, *later.result()], strict=True):
+        side.memo[text] = bt
 
 
 def preload(*, long: bool) -> None:
@@ -491,6 +541,7 @@ def preload(*, long: bool) -> None:
 def clear_caches() -> None:
     """Forget the engine's caches of token keys, figures and phrase matches (they only
     speed up reviews of the same texts; benchmarks clear them to time cold runs)."""
+    from .checks import clear_name_cache
     from .figures import clear_skip_cache
     from .noise import clear_label_cache
     from .severity import clear_caches as _clear_severity
@@ -498,6 +549,7 @@ def clear_caches() -> None:
     from .worddiff import clear_diff_cache
 
     clear_token_cache()
+    clear_name_cache()
     clear_diff_cache()
     clear_label_cache()
     clear_skip_cache()

@@ -71,6 +71,7 @@ from __future__ import annotations
 import re
 from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass
+from functools import lru_cache
 
 from ..lazyre import compile_pattern
 from ..model import (
@@ -395,6 +396,17 @@ def _lower_words(texts: Iterable[str]) -> set[str]:
     return out
 
 
+#: The patterns of names marked as defined, each with words one of which a match holds (None:
+#: no such words): a text without them is not searched (a pattern that may start at any
+#: capitalised word is slow to search where it cannot match).
+_NAME_MARKS: tuple[tuple[re.Pattern[str], tuple[str, ...] | None], ...] = (
+    (_PAREN_NAME_RE, None),
+    (_HEREINAFTER_NAME_RE, ("hereinafter", "hereafter", "referred", "called", "known")),
+    (_AS_DEFINED_NAME_RE, ("defined", "described", "forth", "out")),
+    (_GLOSSARY_NAME_RE, None),
+)
+
+
 def _marked_names(texts: Iterable[str]) -> set[str]:
     """Phrases a reader takes for defined names although the term finder may not: any
     phrase in quotation marks, a name in a parenthesis, a name after "hereinafter"."""
@@ -403,7 +415,9 @@ def _marked_names(texts: Iterable[str]) -> set[str]:
         for m in _QUOTED_RE.finditer(t):
             body = next(g for g in m.groups() if g is not None)
             out.add(" ".join(body.strip(" ,.;:").split()).casefold())
-        for rx in (_PAREN_NAME_RE, _HEREINAFTER_NAME_RE, _AS_DEFINED_NAME_RE, _GLOSSARY_NAME_RE):
+        for rx, cues in _NAME_MARKS:
+            if cues is not None and not any(c in t for c in cues):
+                continue
             for m in rx.finditer(t):
                 out.add(" ".join(m.group("name").split()).casefold())
     return {n for n in out if n}
@@ -457,20 +471,40 @@ def _folded_finder(forms: Iterable[str]) -> Callable[[str], list[tuple[int, str]
     if len(forms) > REGEX_FORMS_MAX:
         trie = char_trie(forms)
         return lambda text: [(a, f) for a, _b, f, _p in walk_forms(_fold_text(text), trie, word_start=True)]
-    pattern = _names_pattern(forms)
-    assert pattern is not None
-    return lambda text: [(m.start(), _fold(_strip_possessive(m.group(0)))) for m in pattern.finditer(text)]
+    source = _names_source(forms)
+    assert source is not None
+    any_case = re.compile(source, re.IGNORECASE)
+    # Lower-case forms in a lower-cased text are found several times faster than in any
+    # letter case.  The two find the same where lower-casing keeps every character in place
+    # and the forms are ASCII: then only a dotless i and a long s match a form's letter in
+    # any case that lower-casing does not turn into it (Python's re, IGNORECASE).
+    lower = re.compile(source) if all(f.isascii() for f in forms) else None
+
+    def find(text: str) -> list[tuple[int, str]]:
+        low = text.lower()
+        cased = lower is not None and len(low) == len(text) and not any(c in text for c in _CASE_FIXES)
+        matches = lower.finditer(low) if cased and lower is not None else any_case.finditer(text)
+        return [(m.start(), _fold(_strip_possessive(m.group(0)))) for m in matches]
+
+    return find
 
 
-def _names_pattern(names: Iterable[str]) -> re.Pattern[str] | None:
-    """Uses of *names* in any letter case and with any dash, plural and possessive forms
-    included."""
+#: Characters that Python's re, ignoring case, matches with an ASCII letter although
+#: lower-casing them gives no ASCII letter: dotless i, long s (capital I with a dot above
+#: lower-cases into two characters, which :func:`_folded_finder` also checks).
+_CASE_FIXES = "\u0131\u017f"
+
+
+def _names_source(names: Iterable[str]) -> str | None:
+    """A pattern's source for the uses of *names* (in lower case) with any dash, plural and
+    possessive forms included; None when there is none."""
     forms = sorted({_fold(f) for n in names for f in term_forms(" ".join(n.split())) if f},
                    key=len, reverse=True)
     if not forms:
         return None
     body = "|".join(_form_regex(f) for f in forms)
-    return re.compile(r"(?<![\w-])(?:" + body + r")" + _POSSESSIVE + r"(?!\w)", re.IGNORECASE)
+    return r"(?<![\w-])(?:" + body + r")" + _POSSESSIVE + r"(?!\w)"
+
 
 
 @dataclass(frozen=True, slots=True)
@@ -628,12 +662,24 @@ def _common_noun(phrase: str, lower: set[str]) -> bool:
     return True
 
 
+_NAME_SPLIT_RE = compile_pattern(r"[" + _DASHES + r"\s]+")
+#: Distinct names whose word keys are kept (a long agreement has a few thousand capitalised
+#: phrases, most of them met many times).
+WORD_KEY_CACHE = 20_000
+
+
+def clear_name_cache() -> None:
+    """Forget the word keys of names (benchmarks time cold runs)."""
+    _word_key.cache_clear()
+
+
+@lru_cache(maxsize=WORD_KEY_CACHE)
 def _word_key(name: str) -> tuple[str, ...]:
     """A name's words as compared: case-folded, parted at spaces and hyphens, each reduced
-    to its stem (:func:`_stem`: "Front-Cover Texts" -> ("front", "cover", "text"),
+    to its stem (:func:`_stem`: "Front-Cover Texts" -> ("front", "cov", "text"),
     "Distributing" -> ("distribut",)), so that a plural or another form of a defined word
     is the same name."""
-    return tuple(_stem(w) for w in re.split(r"[" + _DASHES + r"\s]+", _strip_possessive(name).casefold()) if w)
+    return tuple(_stem(w) for w in _NAME_SPLIT_RE.split(_strip_possessive(name).casefold()) if w)
 
 
 _SUFFIXES = ("ations", "ation", "ions", "ion", "ings", "ing", "ies", "ied", "ers", "er", "ed", "es", "s", "e", "y")

@@ -101,7 +101,7 @@ def test_switched_off_by_the_environment(monkeypatch) -> None:
     assert side_by_side(os.getpid, os.getpid) == (os.getpid(), os.getpid())
 
 
-def test_a_review_with_its_checks_and_half_its_groups_beside_equals_one_in_turn(monkeypatch) -> None:
+def test_a_review_with_its_checks_half_its_tokens_and_groups_beside_equals_one_in_turn(monkeypatch) -> None:
     # reference: the same review computed in this process alone
     from pathlib import Path
 
@@ -112,6 +112,7 @@ def test_a_review_with_its_checks_and_half_its_groups_beside_equals_one_in_turn(
     draft, precedent = read_document(str(demo / "draft.docx")), read_document(str(demo / "precedent.docx"))
     monkeypatch.setattr(review_module, "PARALLEL_CHECKS_MIN_CHARS", 0)
     monkeypatch.setattr(review_module, "PARALLEL_BUILD_MIN_CHARS", 0)  # half the groups beside, too
+    monkeypatch.setattr(review_module, "PARALLEL_TOKENS_MIN_CHARS", 0)  # and half the tokens
     beside = review_module.run_review(draft, precedent)
     monkeypatch.setenv(parallel.PARALLEL_ENV, "0")
     in_turn = review_module.run_review(draft, precedent)
@@ -140,3 +141,55 @@ def test_with_a_gui_toolkit_loaded_both_steps_run_here(monkeypatch) -> None:
     monkeypatch.setitem(sys.modules, "PySide6.QtCore", sys.modules.get("PySide6.QtCore", object()))
     assert not can_fork()
     assert side_by_side(os.getpid, os.getpid) == (os.getpid(), os.getpid())
+
+
+def test_a_later_step_runs_beside_and_gives_its_value() -> None:
+    later = parallel.Later(lambda: (os.getpid(), _words(1000)))
+    pid, words = later.result()
+    assert pid != os.getpid() and words == _words(1000)
+
+
+def test_a_dropped_later_leaves_no_child_behind(monkeypatch) -> None:
+    started = []
+    fork = parallel._fork
+
+    def recorded(step):
+        child = fork(step)
+        started.append(child)
+        return child
+
+    monkeypatch.setattr(parallel, "_fork", recorded)
+    parallel.Later(lambda: _words(10)).drop()
+    (pid, _fd), = started
+    with pytest.raises(ChildProcessError):
+        os.waitpid(pid, os.WNOHANG)
+
+
+def test_a_later_step_that_cannot_fork_runs_here_when_its_value_is_asked(monkeypatch) -> None:
+    monkeypatch.setenv(parallel.PARALLEL_ENV, "0")
+    calls: list[int] = []
+    later = parallel.Later(lambda: calls.append(os.getpid()) or len(calls))
+    assert calls == []  # not run yet: its value is not needed yet
+    assert later.result() == 1 and calls == [os.getpid()]
+
+
+def _blas_threads(env: dict[str, str]) -> set[int]:
+    """The thread counts of the linear-algebra libraries numpy loaded after ``import core``,
+    as threadpoolctl (a library from the registries, which scikit-learn uses) reads them."""
+    import json
+    import subprocess
+    from pathlib import Path
+
+    code = ("import core, numpy, json, threadpoolctl; "
+            "print(json.dumps([i['num_threads'] for i in threadpoolctl.threadpool_info() if i['user_api'] == 'blas']))")
+    root = Path(__file__).resolve().parents[2]
+    out = subprocess.run([sys.executable, "-c", code], env={**env, "PYTHONPATH": str(root)}, cwd=root,
+                         capture_output=True, text=True, check=True).stdout
+    return set(json.loads(out))
+
+
+def test_numpy_runs_one_blas_thread_unless_the_user_sets_it() -> None:
+    env = {k: v for k, v in os.environ.items() if k not in parallel.BLAS_THREADS_ENV}
+    assert _blas_threads(env) == {1}
+    # OpenBLAS starts no more threads than there are processor cores
+    assert _blas_threads({**env, "OPENBLAS_NUM_THREADS": "2"}) == {min(2, os.cpu_count() or 1)}
