@@ -156,7 +156,18 @@ class _Side:
         return rekey(bt, term_key=self.to_key if mapped else {}, xref=xref, as_words=self.plain)
 
 
-def _features(side: _Side) -> list[Features]:
+def _aligned_features(dside: _Side, pside: _Side) -> Alignment:
+    """The alignment of the two sides' provisions by their features (words keyed by the
+    sides' term maps, headings, kinds, terms defined, parents)."""
+    words: dict[tuple[int, int], tuple[str, ...]] = {}  # shared by the sides: see _features
+    return align(_features(dside, words), _features(pside, words))
+
+
+def _features(side: _Side, words: dict[tuple[int, int], tuple[str, ...]]) -> list[Features]:
+    """The features of *side*'s provisions.  *words* keeps the word keys of each tokenised
+    text whose terms the side's term map leaves as they are, by the identity of its tokens
+    and of the names compared as words: the other side, which shares the tokens of equal
+    texts, finds them there."""
     info = side.info
     out: list[Features] = []
     # a parties provision is linked through the party label it defines, as a definition is
@@ -164,13 +175,20 @@ def _features(side: _Side) -> list[Features]:
     for t in info.doc.terms:
         if t.term in info.party_labels:
             party_term.setdefault(t.provision, t.term)
+
+    def keys(bt: BaseTokens) -> tuple[str, ...]:
+        if any(name in side.to_key for _i, name, _f in bt.terms):
+            return tuple(word_keys(side.rekey(bt, mapped=True)))
+        k = (id(bt), id(side.plain))
+        got = words.get(k)
+        if got is None:
+            got = words[k] = tuple(word_keys(side.rekey(bt, mapped=True)))
+        return got
+
     for i, p in enumerate(info.provisions):
-        seq = side.seq(i)
-        hseq = side.rekey(side.head(i), mapped=True)
         name = p.term if p.kind == "definition" else party_term.get(p.id)
         term = side.to_key.get(name, name) if name else None
-        out.append(Features(tuple(word_keys(seq)), tuple(word_keys(hseq)), p.kind, term,
-                            info.parent_pos[i]))
+        out.append(Features(keys(side.text(i)), keys(side.head(i)), p.kind, term, info.parent_pos[i]))
     return out
 
 
@@ -432,7 +450,7 @@ def _map_and_align(di: DocInfo, pi: DocInfo, sides: tuple[_Side, _Side], names: 
     clock.lap("term map: definitions")
     dside.to_key = tm0.to_precedent
     dside.plain = pside.plain = _as_words(di, pi, tm0)
-    al0 = align(_features(dside), _features(pside))
+    al0 = _aligned_features(dside, pside)
     clock.lap("alignment: first pass")
     d_names, p_names = set(di.term_names), set(pi.term_names)
     d_only = [n for n in di.term_names if n not in p_names]
@@ -452,7 +470,7 @@ def _map_and_align(di: DocInfo, pi: DocInfo, sides: tuple[_Side, _Side], names: 
         clock.lap("tokens: words, terms, cross-references")
     dside.to_key = tm.to_precedent
     dside.plain = pside.plain = _as_words(di, pi, tm)
-    al = al0 if dict(tm.to_precedent) == dict(tm0.to_precedent) else align(_features(dside), _features(pside))
+    al = al0 if dict(tm.to_precedent) == dict(tm0.to_precedent) else _aligned_features(dside, pside)
     clock.lap("alignment: with the term map")
     return tm, al, dside, pside
 

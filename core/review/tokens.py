@@ -149,8 +149,9 @@ def _info(tok: str) -> tuple[str, str]:
 
 
 def clear_token_cache() -> None:
-    """Forget the token -> key cache (benchmarks measure cold runs)."""
+    """Forget the token -> key caches (benchmarks measure cold runs)."""
     _TOKEN_INFO.clear()
+    _TERM_WORDS.clear()
 
 
 def tokenize(text: str, specials: Sequence[Special] = ()) -> TokenSeq:
@@ -195,6 +196,8 @@ class BaseTokens:
     terms: tuple[tuple[int, str, str], ...]  # (token index, term name, form)
     xrefs: tuple[tuple[int, str, str], ...]  # (token index, number, keyword)
     term_at: Mapping[int, str]  # character offset of a term use -> term name
+    #: each term use's key as the words it is written with (in the order of ``terms``)
+    term_words: tuple[str, ...] = ()
 
 
 def base_tokens(text: str, matcher: TermMatcher | None, *, xrefs: bool = True) -> BaseTokens:
@@ -231,7 +234,22 @@ def base_tokens(text: str, matcher: TermMatcher | None, *, xrefs: bool = True) -
             else:
                 number, keyword = xref_meta[sp.start]
                 refs.append((i, number, keyword))
-    return BaseTokens(seq, tuple(terms), tuple(refs), term_at)
+    words = tuple(_as_word(seq.token(i)) for i, _name, _form in terms)
+    return BaseTokens(seq, tuple(terms), tuple(refs), term_at, words)
+
+
+_TERM_WORDS: dict[str, str] = {}
+
+
+def _as_word(tok: str) -> str:
+    """The key of a term use compared as the words it is written with (white space
+    collapsed); kept with the token cache (a document writes its terms the same few ways)."""
+    r = _TERM_WORDS.get(tok)
+    if r is None:
+        if len(_TERM_WORDS) >= _TOKEN_INFO_MAX:
+            _TERM_WORDS.clear()
+        r = _TERM_WORDS[tok] = normalise_key(" ".join(tok.split()))
+    return r
 
 
 def rekey(bt: BaseTokens, *, term_key: Mapping[str, str],
@@ -247,9 +265,9 @@ def rekey(bt: BaseTokens, *, term_key: Mapping[str, str],
         return bt.seq
     keys = list(bt.seq.keys)
     words: list[int] = []
-    for i, name, form in bt.terms:
+    for (i, name, form), word in zip(bt.terms, bt.term_words, strict=True):
         if name in as_words:
-            keys[i] = normalise_key(" ".join(bt.seq.token(i).split()))
+            keys[i] = word
             words.append(i)
             continue
         keys[i] = "\x00T" + term_key.get(name, name) + "\x00" + form

@@ -175,3 +175,17 @@ def test_the_trie_walk_finds_what_the_pattern_finds(names, pieces):
     assert regex is not None and regex.pattern is not None
     walked = dataclasses.replace(regex, pattern=None, trie=char_trie(regex.owner))
     assert find_term_uses(text, walked) == find_term_uses(text, regex)
+
+
+@pytest.mark.parametrize("key", LICENCES)
+def test_a_term_used_as_words_is_keyed_as_its_collapsed_words(key):
+    # reference: the key of a plain word (normalise_key) of the use's words, white space
+    # collapsed -- what rekey gave each use before the keys were kept with the tokens
+    text = licence_text(key)
+    names = ["Licensor", "Licensee", "Work", "Source Code", "Contributor", "Program", "You"]
+    bt = base_tokens(text, term_matcher(names, capitals=True))
+    assert bt.terms
+    seq = rekey(bt, term_key={}, as_words=frozenset(names))
+    for i, _name, _form in bt.terms:
+        assert seq.keys[i] == normalise_key(" ".join(bt.seq.token(i).split()))
+        assert seq.kinds[i] == "w"
