@@ -15,16 +15,18 @@ raised here.
 
 from __future__ import annotations
 
+import gc
 import os
 import pickle
 import sys
 import threading
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterator, Sequence
+from contextlib import contextmanager
 from typing import Generic, TypeVar
 
 from .kept import save_kept
 
-__all__ = ["Later", "can_fork", "each_beside", "one_blas_thread", "side_by_side"]
+__all__ = ["Later", "can_fork", "cycles_uncollected", "each_beside", "one_blas_thread", "side_by_side"]
 
 _A = TypeVar("_A")
 _B = TypeVar("_B")
@@ -49,6 +51,22 @@ def one_blas_thread() -> None:
         return
     for name in BLAS_THREADS_ENV:
         os.environ.setdefault(name, "1")
+
+
+@contextmanager
+def cycles_uncollected() -> Iterator[None]:
+    """Pause Python's collector of reference cycles for a step that makes none: its passes
+    over the many short-lived objects such a step allocates cost time and free nothing
+    (measured on a 100-page review: no unreachable object left at its end, 34 ms of
+    collector passes in 0.5 s).  Objects are still freed as their last reference goes."""
+    if not gc.isenabled():
+        yield
+        return
+    gc.disable()
+    try:
+        yield
+    finally:
+        gc.enable()
 
 
 #: Modules whose presence means threads Python does not count (a GUI toolkit's own): no fork.
@@ -128,6 +146,7 @@ def _fork(step: Callable[[], object]) -> tuple[int, int] | None:
 
 def _child(step: Callable[[], object], fd: int) -> None:
     status = 1
+    gc.disable()  # a child runs one step and ends (see cycles_uncollected)
     try:
         try:
             outcome: tuple[bool, object] = (True, step())
@@ -164,7 +183,8 @@ def _result(data: bytes, step: Callable[[], _A]) -> _A:
     """The child's result, or its exception raised; the step run here when the child sent
     nothing usable."""
     try:
-        ok, value = pickle.loads(data)
+        with cycles_uncollected():  # a value sent back holds no cycle the step did not make
+            ok, value = pickle.loads(data)
     except Exception:
         return step()
     if not ok:

@@ -37,7 +37,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Literal, Protocol
 
 from .errors import CounterdraftError
-from .parallel import each_beside, side_by_side
+from .parallel import cycles_uncollected, each_beside, side_by_side
 
 if TYPE_CHECKING:
     from .decisions import Decision, ReviewFile
@@ -164,7 +164,8 @@ def read_documents(draft: str | os.PathLike[str], precedent: str | os.PathLike[s
     read_draft = partial(read, draft, structure=structure, cache=True)
     read_precedent = partial(read, precedent, cache=True)
     if min(content_size(draft), content_size(precedent)) < PARALLEL_READ_MIN_BYTES:
-        draft_doc, precedent_doc = read_draft(), read_precedent()
+        with cycles_uncollected():  # reading leaves a few hundred objects in cycles, whatever the size
+            draft_doc, precedent_doc = read_draft(), read_precedent()
         if meanwhile is not None:
             meanwhile(False)
     elif meanwhile is None:
@@ -178,9 +179,10 @@ def read_documents(draft: str | os.PathLike[str], precedent: str | os.PathLike[s
 def prepare_review(*, long: bool) -> None:
     """Load the review engine now (while documents are read: :func:`read_documents`'s
     *meanwhile*); *long* documents need what the engine needs for many provisions."""
-    from .review import preload
+    with cycles_uncollected():  # loading modules leaves little to collect
+        from .review import preload
 
-    preload(long=long)
+        preload(long=long)
 
 
 def party_terms(path: str) -> tuple[str, ...]:

@@ -62,7 +62,7 @@ from ..model import (
     Review,
     TermMapping,
 )
-from ..parallel import Later, can_fork, side_by_side
+from ..parallel import Later, can_fork, cycles_uncollected, side_by_side
 from .align import Alignment, Features, Group, align
 from .checks import DocumentWords, document_words, review_checks
 from .classify import Change, TermContext, WordChange, classify_ops
@@ -370,15 +370,16 @@ def run_review(draft: Document, precedent: Document, *,
             words.append(Later(lambda: document_words(draft)))
 
     clock = _Clock(timings)
-    try:
-        review = _compare(draft, precedent, overrides=overrides, vocabulary=vocabulary, rules=rules,
-                          clause_type=clause_type, acting_for=acting_for, clock=clock, stage=stage,
-                          tokenised=tokenised)
-    except BaseException:
-        for later in words:
-            later.drop()
-        raise
-    review = replace(review, checks=review_checks(review, words=words[0].result() if words else None))
+    with cycles_uncollected():  # a review makes no reference cycle
+        try:
+            review = _compare(draft, precedent, overrides=overrides, vocabulary=vocabulary, rules=rules,
+                              clause_type=clause_type, acting_for=acting_for, clock=clock, stage=stage,
+                              tokenised=tokenised)
+        except BaseException:
+            for later in words:
+                later.drop()
+            raise
+        review = replace(review, checks=review_checks(review, words=words[0].result() if words else None))
     clock.lap("drafting checks")
     return review
 

@@ -193,3 +193,41 @@ def test_numpy_runs_one_blas_thread_unless_the_user_sets_it() -> None:
     assert _blas_threads(env) == {1}
     # OpenBLAS starts no more threads than there are processor cores
     assert _blas_threads({**env, "OPENBLAS_NUM_THREADS": "2"}) == {min(2, os.cpu_count() or 1)}
+
+
+def test_cycles_uncollected_restores_the_collector_as_it_found_it() -> None:
+    import gc
+
+    assert gc.isenabled()
+    with pytest.raises(CounterdraftError), parallel.cycles_uncollected():
+        assert not gc.isenabled()
+        raise CounterdraftError("draft.docx: damaged")
+    assert gc.isenabled()
+    gc.disable()
+    try:
+        with parallel.cycles_uncollected():
+            pass
+        assert not gc.isenabled()  # the caller's choice stands
+    finally:
+        gc.enable()
+
+
+def test_a_review_leaves_no_reference_cycle_to_collect(monkeypatch) -> None:
+    # reference: the standard library's collector, which counts what it finds unreachable
+    import gc
+    from pathlib import Path
+
+    from core.reader import read_document
+    from core.review import run_review
+
+    monkeypatch.setenv(parallel.PARALLEL_ENV, "0")
+    demo = Path(__file__).resolve().parents[2] / "demo_agreements"
+    draft, precedent = read_document(str(demo / "draft.docx")), read_document(str(demo / "precedent.docx"))
+    run_review(draft, precedent, acting_for="Customer")  # modules loaded on first use
+    gc.collect()
+    gc.disable()
+    try:
+        run_review(draft, precedent, acting_for="Customer")
+        assert gc.collect() == 0
+    finally:
+        gc.enable()
