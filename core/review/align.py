@@ -237,17 +237,27 @@ def _tfidf(seqs: Sequence[Sequence[str]]) -> list[Row]:
     vocab: dict[str, int] = {}
     counted: list[dict[int, int]] = []
     df: Counter[int] = Counter()
+    # equal sequences (a text both documents hold) are counted once and share one row, which
+    # nothing changes afterwards
+    seen: dict[Sequence[str], dict[int, int]] = {}
     for seq in seqs:
-        counts = {vocab.setdefault(w, len(vocab)): c for w, c in Counter(seq).items()}
+        key = seq if isinstance(seq, str | tuple) else tuple(seq)
+        counts = seen.get(key)
+        if counts is None:
+            counts = seen[key] = {vocab.setdefault(w, len(vocab)): c for w, c in Counter(seq).items()}
         df.update(counts.keys())
         counted.append(counts)
     n = len(seqs)
     idf = {j: math.log((1 + n) / (1 + d)) + 1.0 for j, d in df.items()}
+    made: dict[int, Row] = {}
     rows: list[Row] = []
     for counts in counted:
-        row = {j: (1.0 + math.log(c)) * idf[j] for j, c in counts.items()}
-        norm = math.sqrt(sum(x * x for x in row.values())) or 1.0
-        rows.append({j: x / norm for j, x in row.items()})
+        row = made.get(id(counts))
+        if row is None:
+            raw = {j: (1.0 + math.log(c)) * idf[j] for j, c in counts.items()}
+            norm = math.sqrt(sum(x * x for x in raw.values())) or 1.0
+            row = made[id(counts)] = {j: x / norm for j, x in raw.items()}
+        rows.append(row)
     return rows
 
 

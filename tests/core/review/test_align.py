@@ -105,6 +105,16 @@ def test_tfidf_bound_matches_scikit_learn():
     assert np.allclose(_dense(_tfidf(docs), width), theirs)
 
 
+@settings(max_examples=100, deadline=None)
+@given(st.lists(st.lists(st.sampled_from(["the", "goods", "fees", "shall", "pay"]), min_size=1, max_size=6),
+                min_size=1, max_size=6), st.data())
+def test_tfidf_of_repeated_texts_matches_scikit_learn(docs, data):
+    # texts both documents hold come twice or more: counted once, one row shared
+    docs = docs + [data.draw(st.sampled_from(docs)) for _ in range(data.draw(st.integers(1, 4)))]
+    theirs, width = _sklearn_tfidf(docs)
+    assert np.allclose(_dense(_tfidf(docs), width), theirs)
+
+
 WORDS = ["the", "supplier", "customer", "shall", "may", "pay", "deliver", "goods", "fees",
          "notice", "thirty", "days", "term", "law"]
 docs_strategy = st.lists(st.lists(st.sampled_from(WORDS), max_size=12), min_size=1, max_size=12)
