@@ -723,6 +723,11 @@ class _Builder:
     def _diff_group(self, g: Group) -> int:
         """Add the deviations of one group; the number of changes other than term or
         numbering."""
+        if self._same_words(g):
+            d, p = g.drafts[0], g.precedents[0]
+            n = len(self.pi.provisions[p].text)
+            self.edits[(d, p)] = (Edit("equal", 0, n, 0, n),) if n else ()
+            return self._heading_changes(g, 0)
         ptext, pstarts = self._joined(self.pi, g.precedents)
         dtext, dstarts = self._joined(self.di, g.drafts)
         clock = self.clock
@@ -763,6 +768,16 @@ class _Builder:
                                  points=points)
         clock.lap("severity")
         return self._heading_changes(g, counted)
+
+    def _same_words(self, g: Group) -> bool:
+        """Whether one-to-one group *g* pairs two equal texts that the word diff keys alike
+        (the same tokens, no cross-reference, no term the term map renames): their diff is
+        one equal hunk, without tokens to key or diff."""
+        if len(g.precedents) != 1 or len(g.drafts) != 1:
+            return False
+        bt = self.pside.text(g.precedents[0])
+        return (bt is self.dside.text(g.drafts[0]) and not bt.xrefs
+                and not any(name in self.dside.to_key for _i, name, _f in bt.terms))
 
     def _heading_changes(self, g: Group, counted: int) -> int:
         # the heading (of the first provision on each side): one deviation at most

@@ -1,15 +1,20 @@
 """Laws of the review's own shortcuts (core.review), each against the direct computation:
 the features of a text that both documents hold are computed once for the two sides, and
 must equal those each side computes on its own -- also where the term map renames a term
-used in the text, whose keys then differ between the sides.  Real texts: licence texts of
-the PyPI package ``licensedcode-data`` (keys named below)."""
+used in the text, whose keys then differ between the sides; a pair of equal texts gets its
+one equal hunk without a word diff, and the review is the one that diffs every pair.  Real
+texts: licence texts of the PyPI package ``licensedcode-data`` (keys named below), and the
+demo pair."""
 
 from __future__ import annotations
+
+from pathlib import Path
 
 import pytest
 
 import core.review as review_module
 from core.docinfo import build_docinfo
+from core.reader import read_document
 
 from .helpers import doc, licence_text
 
@@ -38,3 +43,19 @@ def test_features_shared_between_the_sides_equal_each_sides_own(key: str, old: s
     apart = (review_module._features(dside, {}), review_module._features(pside, {}))
     assert shared  # the sides did share texts
     assert together == apart
+
+
+def _pairs() -> list[tuple[object, object, str | None]]:
+    demo = Path(__file__).resolve().parents[3] / "demo_agreements"
+    apache = licence_text("apache-2.0")
+    edited = apache.replace("Licensor", "Grantor").replace("perpetual, worldwide", "worldwide", 1)
+    return [(read_document(str(demo / "draft.docx")), read_document(str(demo / "precedent.docx")), "Customer"),
+            (doc(edited), doc(apache), None)]
+
+
+@pytest.mark.parametrize("k", [0, 1])
+def test_equal_texts_skip_the_word_diff_and_the_review_is_the_same(monkeypatch, k: int) -> None:
+    draft, precedent, side = _pairs()[k]
+    fast = review_module.run_review(draft, precedent, acting_for=side)
+    monkeypatch.setattr(review_module._Builder, "_same_words", lambda self, g: False)
+    assert review_module.run_review(draft, precedent, acting_for=side) == fast
