@@ -97,9 +97,10 @@ def each_beside(steps: Sequence[Callable[[], _A]], here: Callable[[], _B]) -> tu
     laters = [Later(step) for step in steps]
     try:
         mine = here()
+        return [later.result() for later in laters], mine  # each read as soon as it is sent
     finally:
-        sent = [later.take() for later in laters]
-    return [_result(data, later.step) for data, later in zip(sent, laters, strict=True)], mine
+        for later in laters:
+            later.drop()
 
 
 class Later(Generic[_A]):
@@ -109,13 +110,13 @@ class Later(Generic[_A]):
     :meth:`result` or :meth:`drop`, so that no child is left behind."""
 
     def __init__(self, step: Callable[[], _A]) -> None:
-        self.step = step
+        self._step = step
         self._child = _fork(step) if can_fork() else None
 
     def result(self) -> _A:
         """The step's value (its exception raised here); the step run here when no child
         ran it or the child sent nothing usable."""
-        return _result(self.take(), self.step)
+        return _result(self.take(), self._step)
 
     def drop(self) -> None:
         """Wait for the child to end and forget its value (this process is giving up)."""

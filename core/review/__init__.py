@@ -459,7 +459,18 @@ def _map_and_align(di: DocInfo, pi: DocInfo, sides: tuple[_Side, _Side], names: 
     one_to_one = [(g.drafts[0], g.precedents[0]) for g in al0.groups if g.kind == "match"]
     dside.to_key = {}
     dside.plain = pside.plain = frozenset()  # the slots compare every name as a name
-    scan = scan_slots(one_to_one, draft_seq=dside.seq, precedent_seq=pside.seq,
+    keyed: dict[int, TokenSeq] = {}  # both sides now key a text alike: once per tokens
+
+    def seq_of(side: _Side) -> Callable[[int], TokenSeq]:
+        def seq(i: int) -> TokenSeq:
+            bt = side.text(i)
+            got = keyed.get(id(bt))
+            if got is None:
+                got = keyed[id(bt)] = side.seq(i)
+            return got
+        return seq
+
+    scan = scan_slots(one_to_one, draft_seq=seq_of(dside), precedent_seq=seq_of(pside),
                       draft_names=d_only, precedent_names=p_only, known=names)
     tm = map_terms(di, pi, overrides=overrides, vocabulary=vocabulary, substitutions=scan.terms,
                    uses=uses, renames=scan.renames)
