@@ -26,10 +26,12 @@ from typing import Generic, TypeVar
 
 from .kept import save_kept
 
-__all__ = ["Later", "can_fork", "cycles_uncollected", "each_beside", "one_blas_thread", "side_by_side"]
+__all__ = ["Later", "can_fork", "cycles_uncollected", "each_beside", "in_halves", "one_blas_thread",
+           "side_by_side"]
 
 _A = TypeVar("_A")
 _B = TypeVar("_B")
+_T = TypeVar("_T")
 
 #: Set to "0" to run every step in this process (debugging, profiling).
 PARALLEL_ENV = "COUNTERDRAFT_PARALLEL"
@@ -101,6 +103,28 @@ def each_beside(steps: Sequence[Callable[[], _A]], here: Callable[[], _B]) -> tu
     finally:
         for later in laters:
             later.drop()
+
+
+def in_halves(items: Sequence[_T], work: Sequence[int], run: Callable[[Sequence[_T]], _A], *,
+              min_work: float) -> list[_A]:
+    """``[run(first), run(second)]``: *items* cut where the first holds as much of their
+    *work* (one figure per item) as it can up to half the total, the second half run in a
+    forked child (:class:`Later`) while this process runs the first; ``[run(items)]`` when
+    the total is below *min_work* or no child can be forked (the split would buy nothing)."""
+    total = sum(work)
+    if total < min_work or not can_fork():
+        return [run(items)]
+    cut, seen = 0, 0
+    while cut < len(items) and seen + work[cut] <= total / 2:
+        seen += work[cut]
+        cut += 1
+    later = Later(lambda: run(items[cut:]))
+    try:
+        first = run(items[:cut])
+    except BaseException:
+        later.drop()
+        raise
+    return [first, later.result()]
 
 
 class Later(Generic[_A]):

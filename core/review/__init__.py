@@ -62,7 +62,7 @@ from ..model import (
     Review,
     TermMapping,
 )
-from ..parallel import Later, can_fork, cycles_uncollected, side_by_side
+from ..parallel import Later, can_fork, cycles_uncollected, in_halves
 from .align import Alignment, Features, Group, align
 from .checks import DocumentWords, document_words, review_checks
 from .classify import Change, TermContext, WordChange, classify_ops
@@ -528,34 +528,21 @@ def _sides(di: DocInfo, pi: DocInfo, names: Sequence[str]
 def _tokenise(sides: Sequence[_Side]) -> None:
     """Tokenise every distinct text and heading of *sides* into their memos: when they hold
     at least PARALLEL_TOKENS_MIN_CHARS characters, the second half (by characters) in a
-    forked child (:class:`core.parallel.Later`) while this process does the first."""
+    forked child (:func:`core.parallel.in_halves`) while this process does the first."""
     jobs: dict[tuple[int, str], _Side] = {}
     for side in sides:
         for p in side.info.provisions:
             for text in (p.text, p.heading or ""):
                 if text not in side.memo:
                     jobs.setdefault((id(side.memo), text), side)
-    total = sum(len(text) for _m, text in jobs)
-    if total < PARALLEL_TOKENS_MIN_CHARS:
-        return
     work = list(jobs.items())
-    done, cut = 0, len(work)
-    for k, ((_m, text), _side) in enumerate(work):
-        done += len(text)
-        if done * 2 >= total:
-            cut = k + 1
-            break
 
     def tokens(part: Sequence[tuple[tuple[int, str], _Side]]) -> list[BaseTokens]:
         return [base_tokens(text, side.matcher) for (_m, text), side in part]
 
-    later = Later(lambda: tokens(work[cut:]))
-    try:
-        mine = tokens(work[:cut])
-    except BaseException:
-        later.drop()
-        raise
-    for ((_m, text), side), bt in zip(work, [*mine, *later.result()], strict=True):
+    halves = in_halves(work, [len(text) for (_m, text), _side in work], tokens,
+                       min_work=PARALLEL_TOKENS_MIN_CHARS)
+    for ((_m, text), side), bt in zip(work, [bt for half in halves for bt in half], strict=True):
         side.memo[text] = bt
 
 
@@ -975,32 +962,27 @@ class _Builder:
         """The pairs of every aligned group, their deviations added in group order.  When the
         groups whose words differ hold PARALLEL_BUILD_MIN_CHARS characters or more (two
         agreements far apart), the second half of that work is done in a forked child
-        (:func:`core.parallel.side_by_side`) and its results joined in the same order; not
-        when stage times are asked for (the child's would be lost), nor where no child can be
-        forked (the split would buy nothing)."""
+        (:func:`core.parallel.in_halves`) and its results joined in the same order; not when
+        stage times are asked for (the child's would be lost), nor where no child can be forked
+        (the split would buy nothing, and its estimate of the work costs time)."""
         groups = self.al.groups
         group_of_draft = {d: g for g in groups for d in g.drafts}
-        work = [_changed_chars(g, self.di, self.pi) for g in groups] if can_fork() else []
-        total = sum(work)
-        if not work or total < PARALLEL_BUILD_MIN_CHARS or self.clock.sink is not None:
+        if self.clock.sink is not None or not can_fork():
             return [x for g in groups for x in self._group_pairs(g, group_of_draft)]
-        cut, seen = 0, 0
-        while cut < len(groups) and seen + work[cut] <= total / 2:
-            seen += work[cut]
-            cut += 1
 
-        def run(ks: range) -> list[tuple[list[tuple[tuple[float, int, int], Pair]], list[_Dev]]]:
+        def run(part: Sequence[Group]) -> list[tuple[list[tuple[tuple[float, int, int], Pair]], list[_Dev]]]:
             out = []
-            for k in ks:
+            for g in part:
                 start = len(self.devs)
-                got = self._group_pairs(groups[k], group_of_draft)
+                got = self._group_pairs(g, group_of_draft)
                 out.append((got, self.devs[start:]))
                 del self.devs[start:]
             return out
 
-        later, first = side_by_side(lambda: run(range(cut, len(groups))), lambda: run(range(cut)))
+        halves = in_halves(groups, [_changed_chars(g, self.di, self.pi) for g in groups], run,
+                           min_work=PARALLEL_BUILD_MIN_CHARS)
         pairs: list[tuple[tuple[float, int, int], Pair]] = []
-        for got, devs in (*first, *later):
+        for got, devs in (x for half in halves for x in half):
             pairs += got
             self.devs += devs
         return pairs

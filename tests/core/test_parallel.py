@@ -101,18 +101,20 @@ def test_switched_off_by_the_environment(monkeypatch) -> None:
     assert side_by_side(os.getpid, os.getpid) == (os.getpid(), os.getpid())
 
 
-def test_a_review_with_its_checks_half_its_tokens_and_groups_beside_equals_one_in_turn(monkeypatch) -> None:
+def test_a_review_with_its_checks_and_halves_of_its_work_beside_equals_one_in_turn(monkeypatch) -> None:
     # reference: the same review computed in this process alone
     from pathlib import Path
 
     import core.review as review_module
     from core.reader import read_document
+    from core.review import termmap
 
     demo = Path(__file__).resolve().parents[2] / "demo_agreements"
     draft, precedent = read_document(str(demo / "draft.docx")), read_document(str(demo / "precedent.docx"))
     monkeypatch.setattr(review_module, "PARALLEL_CHECKS_MIN_CHARS", 0)
     monkeypatch.setattr(review_module, "PARALLEL_BUILD_MIN_CHARS", 0)  # half the groups beside, too
     monkeypatch.setattr(review_module, "PARALLEL_TOKENS_MIN_CHARS", 0)  # and half the tokens
+    monkeypatch.setattr(termmap, "PARALLEL_SCAN_MIN_CHARS", 0)  # and half the term map's scan
     beside = review_module.run_review(draft, precedent)
     monkeypatch.setenv(parallel.PARALLEL_ENV, "0")
     in_turn = review_module.run_review(draft, precedent)
@@ -231,3 +233,20 @@ def test_a_review_leaves_no_reference_cycle_to_collect(monkeypatch) -> None:
         assert gc.collect() == 0
     finally:
         gc.enable()
+
+
+def test_in_halves_cuts_at_half_the_work_and_runs_the_second_beside() -> None:
+    items = _words(10)
+    work = [5, 1, 1, 1, 1, 1, 10, 1, 1, 1]  # total 23: the first half holds at most 11.5
+
+    def run(part):
+        return (list(part), os.getpid())
+
+    (first, mine), (second, theirs) = parallel.in_halves(items, work, run, min_work=0)
+    assert first == items[:6] and second == items[6:]  # 5 + 5 * 1 = 10; with the 10 it would be 20
+    assert mine == os.getpid() and theirs != mine
+
+
+def test_in_halves_below_its_threshold_runs_once_here() -> None:
+    assert parallel.in_halves(_words(4), [1, 1, 1, 1], lambda part: (list(part), os.getpid()),
+                              min_work=5) == [(_words(4), os.getpid())]
