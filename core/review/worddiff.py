@@ -33,9 +33,8 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
 from functools import lru_cache
-from typing import Any, Literal
+from typing import Any, Literal, NamedTuple
 
 from diff_match_patch import diff_match_patch
 from rapidfuzz.distance import Indel
@@ -87,14 +86,14 @@ def _pua(n: int) -> str:
 TokenTag = Literal["equal", "insert", "delete", "replace", "restyle"]
 
 
-@dataclass(frozen=True, slots=True)
-class TokenOp:
+class TokenOp(NamedTuple):
     """``a`` tokens i1..i2 became ``b`` tokens j1..j2.
 
     tag is ``equal`` (same text), ``insert``, ``delete``, ``replace`` (different keys) or
     ``restyle`` (same keys, different text: formatting, a renamed term or a renumbered
     cross-reference; always the same number of tokens on both sides, some of which may be
-    identical)."""
+    identical).  A named tuple: a rewritten provision's diff makes tens of thousands, and a
+    tuple is made several times faster than a frozen dataclass."""
 
     tag: TokenTag
     i1: int
