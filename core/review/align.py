@@ -496,6 +496,12 @@ class _Postings:
         return out
 
 
+#: Above any cosine of two l2-normed rows of non-negative weights (at most 1, give or take
+#: rounding): :func:`pair_similarity` grows with the cosine, so with this one it bounds a
+#: pair's similarity from above without the cosine's dot products.
+_COSINE_CEILING = 1.0 + 1e-9
+
+
 def pair_similarity(d: Features, p: Features, cosine: float, heading_cosine: float = 0.0) -> float:
     """Similarity 0..1 of two provisions (see the module's notes)."""
     hd, hp = bool(d.heading), bool(p.heading)
@@ -608,6 +614,8 @@ def align(draft: Sequence[Features], precedent: Sequence[Features]) -> Alignment
     # prefer each other.
     for d, p in _sibling_candidates(draft, precedent, match):
         if (d, p) not in sims:
+            if pair_similarity(draft[d], precedent[p], _COSINE_CEILING) < ALIGN_MIN:
+                continue  # below the threshold whatever their cosines: none computed
             s = pair_similarity(draft[d], precedent[p], *cosines.get(d, p))
             if s >= ALIGN_MIN:
                 sims[(d, p)] = s

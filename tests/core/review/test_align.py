@@ -20,12 +20,14 @@ from core.review.align import (
     CANDIDATE_MIN_COSINE,
     CANDIDATE_POSITION_WEIGHT,
     HEADING_WEIGHT,
+    _COSINE_CEILING,
     Features,
     _Cosines,
     _solve,
     _tfidf,
     align,
     longest_increasing_subsequence,
+    pair_similarity,
 )
 
 
@@ -238,3 +240,16 @@ def test_definitions_pair_through_the_term_map():
     draft = [F('"client" means the entity identified as purchaser', kind="definition", term="Customer")]
     al = align(draft, prec)
     assert [(g.drafts, g.precedents) for g in al.groups] == [((0,), (0,))]
+
+
+_PHRASES = st.lists(st.sampled_from(["the", "supplier", "shall", "pay", "fees", "notice", "term"]), max_size=8)
+
+
+@settings(max_examples=300, deadline=None)
+@given(_PHRASES, _PHRASES, _PHRASES, _PHRASES, st.booleans(), st.floats(0.0, 1.0))
+def test_the_cosine_ceiling_bounds_every_pair_similarity(dw, pw, dh, ph, same_kind, cosine):
+    # the alignment skips a pair whose bound is below ALIGN_MIN without its cosines: the
+    # bound must hold for every cosine a pair can have (at most 1)
+    d = Features(tuple(dw), tuple(dh), "clause", None, None)
+    p = Features(tuple(pw), tuple(ph), "clause" if same_kind else "definition", None, None)
+    assert pair_similarity(d, p, cosine) <= pair_similarity(d, p, _COSINE_CEILING)
