@@ -16,11 +16,11 @@ from scipy.optimize import linear_sum_assignment
 from sklearn.feature_extraction.text import TfidfVectorizer
 
 from core.review.align import (
+    _COSINE_CEILING,
     ALIGN_MIN,
     CANDIDATE_MIN_COSINE,
     CANDIDATE_POSITION_WEIGHT,
     HEADING_WEIGHT,
-    _COSINE_CEILING,
     Features,
     _Cosines,
     _solve,
