@@ -3,8 +3,9 @@ process runs one of its own.
 
 A review's long steps come in independent groups: reading the draft and reading the
 precedent (while this process loads the engine and opens the precedent set); the draft's own
-drafting checks and the comparison; the word diffs of two halves of the aligned provisions.
-Where the operating system can fork (Linux) and this process runs no other thread (forking a
+drafting checks and the comparison; two halves of the texts to tokenise, of the aligned pairs
+the term map scans and of the aligned provisions' word diffs (:func:`in_halves`).  Where the
+operating system can fork (Linux) and this process runs no other thread (forking a
 process whose other threads hold locks can leave the child stuck) nor a GUI toolkit (the
 window reviews in line), each child runs one step and sends its result back pickled through
 a pipe.  Anything that goes wrong in a child (it dies, its result cannot be pickled) makes
@@ -140,13 +141,13 @@ class Later(Generic[_A]):
     def result(self) -> _A:
         """The step's value (its exception raised here); the step run here when no child
         ran it or the child sent nothing usable."""
-        return _result(self.take(), self._step)
+        return _result(self._take(), self._step)
 
     def drop(self) -> None:
         """Wait for the child to end and forget its value (this process is giving up)."""
-        self.take()
+        self._take()
 
-    def take(self) -> bytes:
+    def _take(self) -> bytes:
         """What the child sent, once it has ended (nothing when no child ran the step)."""
         data, self._child = _collect(self._child), None
         return data

@@ -150,6 +150,10 @@ class _Side:
     def seq(self, i: int, xref: Callable[[str, str], str] | None = None) -> TokenSeq:
         return rekey(self.text(i), term_key=self.to_key, xref=xref, as_words=self.plain)
 
+    def renames(self, bt: BaseTokens) -> bool:
+        """Whether this side's term map renames a term that *bt* uses."""
+        return any(name in self.to_key for _i, name, _f in bt.terms)
+
     def rekey(self, bt: BaseTokens, *, mapped: bool,
               xref: Callable[[str, str], str] | None = None) -> TokenSeq:
         """*bt* (a text of this side) keyed for the diff; with *mapped*, the term map."""
@@ -177,7 +181,7 @@ def _features(side: _Side, words: dict[tuple[int, int], tuple[str, ...]]) -> lis
             party_term.setdefault(t.provision, t.term)
 
     def keys(bt: BaseTokens) -> tuple[str, ...]:
-        if any(name in side.to_key for _i, name, _f in bt.terms):
+        if side.renames(bt):
             return tuple(word_keys(side.rekey(bt, mapped=True)))
         k = (id(bt), id(side.plain))
         got = words.get(k)
@@ -774,8 +778,7 @@ class _Builder:
         if len(g.precedents) != 1 or len(g.drafts) != 1:
             return False
         bt = self.pside.text(g.precedents[0])
-        return (bt is self.dside.text(g.drafts[0]) and not bt.xrefs
-                and not any(name in self.dside.to_key for _i, name, _f in bt.terms))
+        return bt is self.dside.text(g.drafts[0]) and not bt.xrefs and not self.dside.renames(bt)
 
     def _heading_changes(self, g: Group, counted: int) -> int:
         # the heading (of the first provision on each side): one deviation at most
