@@ -506,7 +506,6 @@ def _names_source(names: Iterable[str]) -> str | None:
     return r"(?<![\w-])(?:" + body + r")" + _POSSESSIVE + r"(?!\w)"
 
 
-
 @dataclass(frozen=True, slots=True)
 class _Use:
     """A capitalised phrase in the middle of a sentence."""

@@ -425,6 +425,7 @@ def scan_slots(pairs: Iterable[tuple[int, int]], *, draft_seq: Callable[[int], T
     Cost: one exact word diff per aligned pair that differs, then one pass of the
     precedent names over the aligned precedent texts."""
     dset, pset = set(draft_names), set(precedent_names)
+    pairs = list(pairs)
     seen_p = [pi for _di, pi in pairs]
     differing = [(b, a) for b, a in ((draft_seq(di), precedent_seq(pi)) for di, pi in pairs) if a.keys != b.keys]
     halves = in_halves(differing, [len(a.text) + len(b.text) for b, a in differing],
