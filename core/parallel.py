@@ -111,9 +111,10 @@ def in_halves(items: Sequence[_T], work: Sequence[int], run: Callable[[Sequence[
     """``[run(first), run(second)]``: *items* cut where the first holds as much of their
     *work* (one figure per item) as it can up to half the total, the second half run in a
     forked child (:class:`Later`) while this process runs the first; ``[run(items)]`` when
-    the total is below *min_work* or no child can be forked (the split would buy nothing)."""
+    the total is below *min_work*, there are fewer than two items or no child can be forked
+    (the split would buy nothing)."""
     total = sum(work)
-    if total < min_work or not can_fork():
+    if total < min_work or len(items) < 2 or not can_fork():
         return [run(items)]
     cut, seen = 0, 0
     while cut < len(items) and seen + work[cut] <= total / 2:

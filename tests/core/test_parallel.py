@@ -250,3 +250,8 @@ def test_in_halves_cuts_at_half_the_work_and_runs_the_second_beside() -> None:
 def test_in_halves_below_its_threshold_runs_once_here() -> None:
     assert parallel.in_halves(_words(4), [1, 1, 1, 1], lambda part: (list(part), os.getpid()),
                               min_work=5) == [(_words(4), os.getpid())]
+
+
+def test_in_halves_of_one_item_runs_it_here() -> None:
+    assert parallel.in_halves(["only"], [100], lambda part: (list(part), os.getpid()),
+                              min_work=0) == [(["only"], os.getpid())]
