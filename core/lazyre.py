@@ -16,6 +16,9 @@ short agreements went to compiling the program's own patterns.
 
 Patterns built from a document's own words (its defined terms) are compiled with
 ``re.compile``: they change with every document.
+
+* :class:`CaselessPattern` matches a pattern of lower-case words in any letter case several
+  times faster than ``re.IGNORECASE`` where it can: in the lower-cased text.
 """
 
 from __future__ import annotations
@@ -23,12 +26,13 @@ from __future__ import annotations
 import _sre  # type: ignore[import-not-found]
 import re
 from array import array
+from collections.abc import Callable, Iterator
 from re import _compiler, _parser  # type: ignore[attr-defined]
 from typing import Any
 
 from .kept import KeptStore, kept_store
 
-__all__ = ["LazyPattern", "compile_pattern", "lazy_compile"]
+__all__ = ["CaselessPattern", "LazyPattern", "compile_pattern", "lazy_compile"]
 
 #: One pattern's compiled program as kept: (flags, code as 32-bit words, groups - 1, group
 #: index, index group), ``_sre.compile``'s arguments (the code as bytes: a file of lists of
@@ -123,3 +127,40 @@ class LazyPattern:
 def lazy_compile(pattern: str, flags: int = 0) -> LazyPattern:
     """A pattern compiled by its first use (see :class:`LazyPattern`)."""
     return LazyPattern(pattern, flags)
+
+
+#: Characters that Python's re, ignoring case, matches with an ASCII letter although
+#: lower-casing them gives no ASCII letter: the dotless i and the long s.  (The capital I with
+#: a dot above lower-cases into two characters, which :class:`CaselessPattern` checks too.)
+_CASE_FIXES = "\u0131\u017f"
+
+
+class CaselessPattern:
+    """Stands for ``re.compile(source, re.IGNORECASE)`` for a *source* whose letters are all
+    lower-case ASCII (words of the program's rules, a document's names folded): searched in
+    the lower-cased text, several times faster, wherever the two find the same -- where
+    lower-casing keeps every character in place and the text holds none of the letters that
+    re, ignoring case, matches with an ASCII one lower-casing does not give (see
+    _CASE_FIXES) -- and ignoring case in the text itself elsewhere.  A match's offsets are
+    the text's; its text is lower-cased on the fast path.  A *source* with other letters is
+    always searched ignoring case.  *compile* is :func:`compile_pattern` for a fixed pattern,
+    ``re.compile`` for one built from a document's words."""
+
+    __slots__ = ("_any_case", "_compile", "_lower", "source")
+
+    def __init__(self, source: str, *, compile: Callable[[str, int], re.Pattern[str]] = compile_pattern) -> None:
+        self.source = source
+        self._compile = compile
+        lower_ascii = all(c.islower() and c.isascii() for c in source if c.isalpha())
+        self._lower = compile(source, 0) if lower_ascii else None
+        self._any_case: re.Pattern[str] | None = None
+
+    def finditer(self, text: str) -> Iterator[re.Match[str]]:
+        lower = self._lower
+        if lower is not None:
+            low = text.lower()
+            if len(low) == len(text) and not any(c in text for c in _CASE_FIXES):
+                return lower.finditer(low)
+        if self._any_case is None:
+            self._any_case = self._compile(self.source, re.IGNORECASE)
+        return self._any_case.finditer(text)

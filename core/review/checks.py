@@ -73,7 +73,7 @@ from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from functools import lru_cache
 
-from ..lazyre import compile_pattern
+from ..lazyre import CaselessPattern, compile_pattern
 from ..model import (
     CHECK_DOCUMENTS,
     CHECK_KINDS,
@@ -473,26 +473,8 @@ def _folded_finder(forms: Iterable[str]) -> Callable[[str], list[tuple[int, str]
         return lambda text: [(a, f) for a, _b, f, _p in walk_forms(_fold_text(text), trie, word_start=True)]
     source = _names_source(forms)
     assert source is not None
-    any_case = re.compile(source, re.IGNORECASE)
-    # Lower-case forms in a lower-cased text are found several times faster than in any
-    # letter case.  The two find the same where lower-casing keeps every character in place
-    # and the forms are ASCII: then only a dotless i and a long s match a form's letter in
-    # any case that lower-casing does not turn into it (Python's re, IGNORECASE).
-    lower = re.compile(source) if all(f.isascii() for f in forms) else None
-
-    def find(text: str) -> list[tuple[int, str]]:
-        low = text.lower()
-        cased = lower is not None and len(low) == len(text) and not any(c in text for c in _CASE_FIXES)
-        matches = lower.finditer(low) if cased and lower is not None else any_case.finditer(text)
-        return [(m.start(), _fold(_strip_possessive(m.group(0)))) for m in matches]
-
-    return find
-
-
-#: Characters that Python's re, ignoring case, matches with an ASCII letter although
-#: lower-casing them gives no ASCII letter: dotless i, long s (capital I with a dot above
-#: lower-cases into two characters, which :func:`_folded_finder` also checks).
-_CASE_FIXES = "\u0131\u017f"
+    pattern = CaselessPattern(source, compile=re.compile)
+    return lambda text: [(m.start(), _fold(_strip_possessive(m.group(0)))) for m in pattern.finditer(text)]
 
 
 def _names_source(names: Iterable[str]) -> str | None:

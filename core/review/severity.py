@@ -32,7 +32,7 @@ from pathlib import Path
 from typing import Any, Protocol, TypeVar
 
 from ..errors import CounterdraftError
-from ..lazyre import compile_pattern
+from ..lazyre import CaselessPattern, compile_pattern
 from ..model import Document, Provision
 from .figures import number_skips
 
@@ -94,7 +94,7 @@ class _RuleCache:
     the phrase matches of each text by pattern name."""
 
     keywords: list[tuple[str, str]] | None = None
-    patterns: dict[str, re.Pattern[str]] = field(default_factory=dict)
+    patterns: dict[str, CaselessPattern] = field(default_factory=dict)
     texts: dict[str, dict[str, _Found]] = field(default_factory=dict)
 
 
@@ -459,12 +459,12 @@ def _find_quantities(text: str, lo: int = 0, hi: int | None = None) -> list[Quan
 # Phrase lists
 # ----------------------------------------------------------------------------------------
 
-def _phrase_re(phrases: Sequence[str]) -> re.Pattern[str]:
-    """A pattern of the rule file's *phrases* (fixed for an installation, so its compiled
-    program is kept: :func:`core.lazyre.compile_pattern`)."""
-    alts = sorted(set(phrases), key=lambda p: (-len(p), p))  # one text per list: its program is kept
+def _phrase_re(phrases: Sequence[str]) -> CaselessPattern:
+    """A pattern of the rule file's *phrases*, in any letter case (fixed for an installation,
+    so its compiled program is kept: :func:`core.lazyre.compile_pattern`)."""
+    alts = sorted({p.lower() for p in phrases}, key=lambda p: (-len(p), p))  # one text per list: its program is kept
     body = "|".join(r"\s+".join(map(re.escape, p.split())) for p in alts)
-    return compile_pattern(r"(?<![\w'])(?:" + body + r")(?![\w])", re.IGNORECASE)
+    return CaselessPattern(r"(?<![\w'])(?:" + body + r")(?![\w])")
 
 
 #: An efforts obligation in any of its drafting forms: "shall use reasonable endeavours to",

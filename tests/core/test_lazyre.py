@@ -1,6 +1,8 @@
 """Patterns built from their kept programs (:mod:`core.lazyre`) against the standard library's
 ``re.compile`` of the same text and flags (the reference): the same pattern, flags and groups,
-and the same matches, for every fixed pattern of the program and for the kept file read back.
+and the same matches, for every fixed pattern of the program and for the kept file read back;
+and caseless patterns, searched in the lower-cased text, against ``re.IGNORECASE`` on the text
+itself.
 """
 
 from __future__ import annotations
@@ -12,11 +14,13 @@ import sys
 from pathlib import Path
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 import core
 from core import lazyre
 from core.kept import KeptStore
-from core.lazyre import LazyPattern, compile_pattern
+from core.lazyre import CaselessPattern, LazyPattern, compile_pattern
 
 DEMO = Path(__file__).resolve().parents[2] / "demo_agreements"
 #: Texts the patterns are run on: the demo agreements' words, and a few odd characters.
@@ -139,3 +143,27 @@ def test_every_process_asks_for_the_same_pattern_texts(tmp_path) -> None:
         used.append(json.loads(out.stdout.strip().splitlines()[-1]))
     assert len(used[0]) > 100
     assert used[0] == used[1]
+
+
+def _spans(matches) -> list[tuple[int, int]]:
+    return [m.span() for m in matches]
+
+
+_SOURCES = [r"(?<![\w'])(?:shall\s+not|shall|must|may)(?![\w])", r"\bsk(?:y|ies)\b", r"works?\b"]
+
+
+@settings(max_examples=500, deadline=None)
+@given(st.sampled_from(_SOURCES),
+       st.text(alphabet="ShalNoTMustmaySKkyWorK\u0131\u017f\u0130\u212a\u00c9' \n", max_size=40))
+def test_caseless_matches_are_those_of_re_ignoring_case(source: str, text: str) -> None:
+    # dotless i, long s, capital I with a dot and the kelvin sign: the letters whose case
+    # Python's re and str.lower() treat differently
+    assert _spans(CaselessPattern(source).finditer(text)) == _spans(re.finditer(source, text, re.IGNORECASE))
+
+
+def test_caseless_on_real_text_and_with_other_letters() -> None:
+    text = _sample_text()
+    for source in _SOURCES:
+        assert _spans(CaselessPattern(source).finditer(text)) == _spans(re.finditer(source, text, re.IGNORECASE))
+    upper = CaselessPattern(r"GBP|Supplier", compile=re.compile)  # capitals: searched ignoring case
+    assert _spans(upper.finditer(text)) == _spans(re.finditer(r"GBP|Supplier", text, re.IGNORECASE))
