@@ -115,6 +115,7 @@ def test_a_review_with_its_checks_and_halves_of_its_work_beside_equals_one_in_tu
     monkeypatch.setattr(review_module, "PARALLEL_BUILD_MIN_CHARS", 0)  # half the groups beside, too
     monkeypatch.setattr(review_module, "PARALLEL_TOKENS_MIN_CHARS", 0)  # and half the tokens
     monkeypatch.setattr(termmap, "PARALLEL_SCAN_MIN_CHARS", 0)  # and half the term map's scan
+    monkeypatch.setattr(review_module, "PARALLEL_CHANGES_MIN", 0)  # and half each group's changes
     beside = review_module.run_review(draft, precedent)
     monkeypatch.setenv(parallel.PARALLEL_ENV, "0")
     in_turn = review_module.run_review(draft, precedent)
