@@ -74,6 +74,7 @@ with those buckets, and O(g^2) for each regrouped set of g wordings.
 
 from __future__ import annotations
 
+import bisect
 import hashlib
 import json
 import mmap
@@ -83,7 +84,7 @@ import stat
 import tempfile
 import time
 from collections import defaultdict
-from collections.abc import Callable, Iterator, Mapping, Sequence
+from collections.abc import Callable, Iterable, Iterator, Mapping, Sequence
 from contextlib import contextmanager
 from dataclasses import dataclass, replace
 from pathlib import Path, PurePosixPath
@@ -727,7 +728,7 @@ def _upgrade_derived(store: PrecedentStore) -> None:
         return
     store.forget_bucket_states()
     store.mark_dirty()
-    store.delete_meta("neighbour_examples", "vocabulary")
+    store.delete_meta("neighbour_examples", EXAMPLE_CUTOFFS_KEY, "vocabulary")
     store.delete_blob(CACHE_FILENAME)  # the earlier single frequency cache
     store.set_meta("derived", DERIVED_FORMAT)
     store.checkpoint()
@@ -766,20 +767,36 @@ def _normalise_pending(store: PrecedentStore, aliases: Mapping[str, str], *,
     return todo
 
 
+#: Meta key of the neighbour examples' cut-offs: per clause type whose examples are complete,
+#: the (SHA-256, path) of the document that completed them (:func:`_neighbour_examples`).
+EXAMPLE_CUTOFFS_KEY = "neighbour_cutoffs"
+
+_Chosen = dict[str, dict[str, int]]
+
+
 def _neighbour_examples(store: PrecedentStore) -> tuple[list[tuple[str, str]], str]:
     """The neighbour classifier's examples and their fingerprint: per clause type, the first
     MAX_EXAMPLES_PER_TYPE distinct wordings typed by heading or parent, documents taken in the
     order of their content hashes (SHA-256) and each document's provisions in order.  That
     order is a fixed pseudo-random sample of the library, unrelated to file names, and once a
     type has its examples, an agreement added, changed or removed further down the order
-    leaves them as they are -- the classifier need not be refitted, nor its types redone."""
-    from .clausetypes import MAX_EXAMPLES_PER_TYPE
+    leaves them as they are -- the classifier need not be refitted, nor its types redone.
 
-    chosen: dict[str, dict[str, int]] = defaultdict(dict)
-    for tid, h, pid in store.typed_examples(exclude_hash=_norm_hash("")):
-        per_type = chosen[tid]
-        if len(per_type) < MAX_EXAMPLES_PER_TYPE and h not in per_type:
-            per_type[h] = pid
+    So a type whose examples were complete is read only up to the document that completed
+    them (its cut-off, kept in the meta ``EXAMPLE_CUTOFFS_KEY``), the other types in full:
+    when every such type is still complete within its cut-off, those are the examples a scan
+    of every typed provision finds (the first ones in the same order); else that scan is
+    made.  Cost: the typed provisions of the documents before the cut-offs and of the
+    incomplete types, instead of all of them."""
+    documents = store.documents_by_hash()
+    rank = {doc_id: n for n, (doc_id, _sha, _path) in enumerate(documents)}
+    picked = _examples_before_cutoffs(store, documents, rank)
+    if picked is None:
+        picked = _pick_examples(store.typed_examples(exclude_hash=_norm_hash("")), rank)
+    chosen, completed = picked
+    cutoffs = json.dumps({tid: list(documents[n][1:]) for tid, n in sorted(completed.items())})
+    if store.meta(EXAMPLE_CUTOFFS_KEY) != cutoffs:
+        store.set_meta(EXAMPLE_CUTOFFS_KEY, cutoffs)
     norms = store.provision_column("norm", [pid for per_type in chosen.values() for pid in per_type.values()])
     digest = hashlib.blake2b(digest_size=16)
     examples: list[tuple[str, str]] = []
@@ -788,6 +805,42 @@ def _neighbour_examples(store: PrecedentStore) -> tuple[list[tuple[str, str]], s
             examples.append((norms[chosen[tid][h]], tid))
             digest.update(f"{tid}:{h}\n".encode())
     return examples, digest.hexdigest()
+
+
+def _pick_examples(rows: Iterable[tuple[str, str, int, int]],
+                   rank: Mapping[int, int]) -> tuple[_Chosen, dict[str, int]]:
+    """From typed provisions ``(clause type, wording hash, provision id, document id)`` in
+    the examples' order: per type, its first MAX_EXAMPLES_PER_TYPE distinct wordings (each
+    with its first provision), and for each type that has that many, the rank of the
+    document that completed them."""
+    from .clausetypes import MAX_EXAMPLES_PER_TYPE
+
+    chosen: _Chosen = defaultdict(dict)
+    completed: dict[str, int] = {}
+    for tid, h, pid, doc_id in rows:
+        per_type = chosen[tid]
+        if len(per_type) < MAX_EXAMPLES_PER_TYPE and h not in per_type:
+            per_type[h] = pid
+            if len(per_type) == MAX_EXAMPLES_PER_TYPE:
+                completed[tid] = rank[doc_id]
+    return chosen, completed
+
+
+def _examples_before_cutoffs(store: PrecedentStore, documents: Sequence[tuple[int, str, str]],
+                             rank: Mapping[int, int]) -> tuple[_Chosen, dict[str, int]] | None:
+    """:func:`_pick_examples` of the typed provisions up to each complete type's stored
+    cut-off (every provision of the other types), or None when there are no cut-offs or a
+    type is no longer complete within its own (a document before it was changed or removed)."""
+    raw = store.meta(EXAMPLE_CUTOFFS_KEY)
+    if not raw:
+        return None
+    keys = [(sha, path) for _id, sha, path in documents]
+    limits = {tid: [doc_id for doc_id, _sha, _path in documents[:bisect.bisect_right(keys, (sha, path))]]
+              for tid, (sha, path) in json.loads(raw).items()}
+    rows = store.typed_examples_within(exclude_hash=_norm_hash(""), limits=limits)
+    rows.sort(key=lambda r: (rank[r[3]], r[2]))
+    chosen, completed = _pick_examples(rows, rank)
+    return (chosen, completed) if completed.keys() >= limits.keys() else None
 
 
 def _retype_by_neighbours(store: PrecedentStore, normalised: Sequence[int]) -> None:

@@ -21,7 +21,7 @@ precedent set as it was before the build or after it, never half-way) and
 
 from __future__ import annotations
 
-from collections.abc import Iterable, Iterator, Sequence
+from collections.abc import Iterable, Iterator, Mapping, Sequence
 from contextlib import AbstractContextManager
 from pathlib import Path
 from typing import Literal, Protocol
@@ -149,9 +149,16 @@ class Wordings(Protocol):
         """(provision id, heading, text) of a document's provisions."""
     def set_norms(self, document_id: int, rows: Sequence[tuple[str, str, int]]) -> None:
         """Store (normalised wording, its hash, provision id) rows; the document is normalised."""
-    def typed_examples(self, *, exclude_hash: str) -> Iterator[tuple[str, str, int]]:
-        """(clause type, wording hash, provision id) of provisions typed by heading or
-        parent, documents in the order of their SHA-256 (then path), provisions in order."""
+    def typed_examples(self, *, exclude_hash: str) -> Iterator[tuple[str, str, int, int]]:
+        """(clause type, wording hash, provision id, document id) of provisions typed by
+        heading or parent, documents in the order of their SHA-256 (then path), provisions
+        in order."""
+    def typed_examples_within(self, *, exclude_hash: str,
+                              limits: Mapping[str, Sequence[int]]) -> list[tuple[str, str, int, int]]:
+        """The rows of :meth:`typed_examples` (in no order) of each clause type of *limits*
+        in its documents only, and every row of the other types."""
+    def documents_by_hash(self) -> list[tuple[int, str, str]]:
+        """(id, sha256, path), by SHA-256 then path."""
     def provision_column(self, column: Literal["norm", "text"], ids: Sequence[int]) -> dict[int, str]: ...
     def untyped_provisions(self, document_ids: Sequence[int] | None = None) -> list[UntypedRow]:
         """(id, kind, norm, clause type, bucket) of provisions typed by neighbours or not at

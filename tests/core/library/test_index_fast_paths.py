@@ -1,0 +1,107 @@
+"""The index's shortcuts for one changed agreement give what the direct computation gives.
+
+* The neighbour classifier's examples read up to each complete clause type's cut-off
+  (``core.library.index._neighbour_examples``) against the reference: the scan of every
+  typed provision in the examples' order, as the index chose them before it kept cut-offs
+  (``_reference_examples`` below), after each step of random sequences of agreements added,
+  changed (to another agreement's content: two files with one SHA-256, FIPS 180-4 via
+  ``hashlib``) and removed, on both stores.
+
+Outside references: the demo generator's record (demo_agreements/scenario.json) for the
+agreements the sequences move about; ``hashlib.blake2b`` (RFC 7693) for the fingerprint.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import random
+import shutil
+from collections import defaultdict
+from pathlib import Path
+
+import pytest
+
+import core.library.clausetypes as clausetypes_module
+import core.library.index as index_module
+
+from .conftest import DEMO
+
+SET = DEMO / "precedent_set"
+#: Steps per random sequence, and the sequences' seeds.
+STEPS = 7
+SEEDS = (3, 11)
+
+
+def _reference_examples(store) -> tuple[list[tuple[str, str]], str]:
+    """The examples and fingerprint as a scan of every typed provision finds them (the code
+    the index ran before it kept cut-offs)."""
+    limit = clausetypes_module.MAX_EXAMPLES_PER_TYPE
+    chosen: dict[str, dict[str, int]] = defaultdict(dict)
+    for tid, h, pid, _doc in store.typed_examples(exclude_hash=hashlib.blake2b(b"", digest_size=16).hexdigest()):
+        if len(chosen[tid]) < limit and h not in chosen[tid]:
+            chosen[tid][h] = pid
+    norms = store.provision_column("norm", [pid for per in chosen.values() for pid in per.values()])
+    digest = hashlib.blake2b(digest_size=16)
+    examples = []
+    for tid in sorted(chosen):
+        for h in sorted(chosen[tid]):
+            examples.append((norms[chosen[tid][h]], tid))
+            digest.update(f"{tid}:{h}\n".encode())
+    return examples, digest.hexdigest()
+
+
+def _random_step(rng: random.Random, folder: Path) -> str:
+    """Add a missing demo agreement, remove one, or give one another's content."""
+    present = sorted(p.name for p in folder.glob("*.docx"))
+    missing = sorted(p.name for p in SET.glob("*.docx") if p.name not in present)
+    move = rng.choice(["add", "change", "remove"] if missing and len(present) > 3 else
+                      ["change", "remove"] if len(present) > 3 else ["add"])
+    if move == "add":
+        name = rng.choice(missing)
+        shutil.copy(SET / name, folder / name)
+    elif move == "remove":
+        name = rng.choice(present)
+        (folder / name).unlink()
+    else:
+        name = rng.choice(present)
+        source = rng.choice([*sorted(SET.glob("*.docx")), DEMO / "draft.docx"])
+        (folder / name).write_bytes(source.read_bytes())
+    return f"{move} {name}"
+
+
+@pytest.mark.parametrize("per_type", [2, 5])
+@pytest.mark.parametrize("seed", SEEDS)
+def test_examples_read_up_to_the_cutoffs_equal_a_scan_of_every_typed_provision(tmp_path, monkeypatch, backend,
+                                                                               seed, per_type):
+    monkeypatch.setattr(clausetypes_module, "MAX_EXAMPLES_PER_TYPE", per_type)  # types complete early
+    real = index_module._neighbour_examples
+    real_within = index_module._examples_before_cutoffs
+    seen: list[tuple[tuple, tuple]] = []
+    shortcuts: list[bool] = []
+
+    def checked(store):
+        got = real(store)
+        seen.append((got, _reference_examples(store)))
+        return got
+
+    def within(store, documents, rank):
+        found = real_within(store, documents, rank)
+        shortcuts.append(found is not None)
+        return found
+
+    monkeypatch.setattr(index_module, "_neighbour_examples", checked)
+    monkeypatch.setattr(index_module, "_examples_before_cutoffs", within)
+    folder = tmp_path / "library"
+    shutil.copytree(SET, folder, ignore=shutil.ignore_patterns(".counterdraft"))
+    rng = random.Random(seed)
+    backend.build(folder)
+    steps = ["first build"]
+    for _ in range(STEPS):
+        steps.append(_random_step(rng, folder))
+        backend.build(folder)
+    assert len(seen) == len(steps)
+    for step, (got, want) in zip(steps, seen, strict=True):
+        assert got == want, step
+        assert want[0], step  # there are examples to choose
+    assert True in shortcuts  # the cut-offs were used ...
+    assert False in shortcuts[1:]  # ... and found out of date at least once (a scan followed)
