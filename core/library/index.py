@@ -46,7 +46,8 @@ refreshed only where something changed:
   linkage it can differ from a full clustering only where sub-groups of two variants lie
   within the cut-off of each other (see :func:`.variants.regroup`); a full build of the same
   files gives the same variants on the demo set and the test corpora
-  (tests/core/library/test_incremental.py);
+  (tests/core/library/test_incremental.py).  One bucket's arrays are computed in a helper
+  thread while the next bucket is read and the previous one written (:func:`_bucket_plans`);
 * the vocabulary model (``vocabulary.npz``) is retrained only when its training corpus has
   drifted (:func:`.vocab.vocabulary_drift`, ``vocab.RETRAIN_DRIFT``), in a worker process
   beside the clustering when the corpus is large; until then it is the model of the
@@ -84,9 +85,10 @@ import stat
 import tempfile
 import time
 from collections import defaultdict
-from collections.abc import Callable, Iterable, Iterator, Mapping, Sequence
+from collections.abc import Callable, Generator, Iterable, Iterator, Mapping, Sequence
 from contextlib import contextmanager
 from dataclasses import dataclass, replace
+from functools import partial
 from pathlib import Path, PurePosixPath
 from typing import TYPE_CHECKING, Any, Literal, Protocol, TypeVar, runtime_checkable
 
@@ -95,8 +97,9 @@ import numpy as np
 from ..errors import CounterdraftError
 from ..fileio import file_sha256
 from ..model import Document
+from ..parallel import parallel_on
 from ..readers import PRECEDENT_SET_SUFFIXES
-from .bucketcache import BucketArrays, BucketColumns, assemble, compact, rows_of
+from .bucketcache import BucketArrays, BucketColumns, assemble, compact, npz_bytes, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
 from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
 from .options import FORMER_POSITIONS, POSITIONS
@@ -976,7 +979,10 @@ def _refresh_variants(store: PrecedentStore, *, cancel: Cancel | CancelFlag | No
 
     A bucket's cache is written before the transaction that clears its mark commits: after a
     crash between the two the bucket is still marked and its next refresh starts from the
-    cache, whose wordings are the current ones, so nothing is lost or counted twice."""
+    cache, whose wordings are the current ones, so nothing is lost or counted twice.  The
+    buckets are written one after the other in the order of their names, each after what it
+    reads was read and computed (:func:`_bucket_plans`), so a bucket's writes never come
+    before an earlier bucket's."""
     config = _variant_config(store)
     ranks = _document_ranks(store)
     # Set while a variants step runs: when found set, the last one stopped between writing a
@@ -985,66 +991,162 @@ def _refresh_variants(store: PrecedentStore, *, cancel: Cancel | CancelFlag | No
     store.set_meta("variants_running", "1")
     store.checkpoint()
     try:
-        for bucket in store.dirty_buckets():
-            if _cancelled(cancel):
-                return False
-            _refresh_bucket(store, bucket, config, ranks, trusted=trusted)
-            store.clear_dirty(bucket)
-        store.set_meta("variants_running", "0")
+        plans = _bucket_plans(store.dirty_buckets(), partial(_read_bucket_input, store, ranks=ranks, trusted=trusted),
+                              config)
+        try:
+            while not _cancelled(cancel):
+                plan = next(plans, None)
+                if plan is None:
+                    store.set_meta("variants_running", "0")
+                    return True
+                _write_bucket(store, plan)
+                store.clear_dirty(plan.bucket)
+            return False
+        finally:
+            plans.close()
     finally:
         store.checkpoint()
-    return True
 
 
-def _refresh_bucket(store: PrecedentStore, bucket: str, config: VariantConfig,
-                    ranks: tuple[np.ndarray, np.ndarray], *, trusted: bool) -> None:
-    """One bucket's variants and cache from its previous cache and its changed wordings."""
+def _bucket_plans(buckets: Sequence[str], read: Callable[[str], _BucketInput],
+                  config: VariantConfig) -> Generator[_BucketPlan, None, None]:
+    """The :class:`_BucketPlan` of each of *buckets*, in their order.  Each is computed
+    (:func:`_compute_bucket`, array work that mostly runs outside Python's global lock: numpy,
+    scipy's sparse routines) in a helper thread while this one reads the next bucket and the
+    caller writes the previous one (SQLite and the file system, also outside the lock), so
+    the two processor cores share the work with nothing copied between them.  Only this
+    thread uses the store's connection.  All in this thread when steps beside each other are
+    switched off (:data:`core.parallel.PARALLEL_ENV`).
+
+    Cost: up to three buckets held at once (one read, one computed, one written)."""
+    if not parallel_on():
+        for bucket in buckets:
+            yield _compute_bucket(read(bucket), config)
+        return
+    from concurrent.futures import Future, ThreadPoolExecutor
+
+    with ThreadPoolExecutor(max_workers=1, thread_name_prefix="counterdraft-variants") as pool:
+        pending: Future[_BucketPlan] | None = None
+        try:
+            for bucket in buckets:
+                computing = pool.submit(_compute_bucket, read(bucket), config)
+                if pending is not None:
+                    yield pending.result()
+                pending = computing
+            if pending is not None:
+                yield pending.result()
+        finally:
+            pool.shutdown(wait=True, cancel_futures=True)
+
+
+@dataclass(frozen=True, slots=True)
+class _BucketInput:
+    """What one bucket's refresh reads from the store; :func:`_compute_bucket` needs nothing
+    else."""
+
+    bucket: str
+    words: _Wordings
+    old: BucketArrays | None  # the previous cache
+    new_sets: dict[str, tuple[np.ndarray, np.ndarray]]  # the wordings it lacks (_new_wording_sets)
+    gone: int  # wordings of the previous cache no longer in the bucket
+    state: tuple[int, int] | None
+    #: Whether *old* is this index's own (its variants are the stored ones).
+    trusted: bool
+    stored_rows: list[tuple[int, ...]] | None  # the variants' stored figures, when *old* cannot give them
+    unassigned: list[str]  # wordings with a provision that has no variant (when *trusted*)
+
+    @property
+    def wordings(self) -> int:
+        return len(self.words.hashes)
+
+
+def _read_bucket_input(store: PrecedentStore, bucket: str, *, ranks: tuple[np.ndarray, np.ndarray],
+                       trusted: bool) -> _BucketInput:
+    """Read what the refresh of *bucket* needs (the previous cache, its wordings now, the
+    texts of the new ones, its state, the stored figures when the cache cannot give them)."""
     words = _bucket_wordings(store, bucket, ranks)
     if not words.hashes:
-        store.drop_bucket(bucket)
-        store.delete_blob(bucket_blob(bucket))
-        return
+        return _BucketInput(bucket, words, None, {}, 0, None, False, None, [])
     old = read_bucket(store, bucket)
     take = rows_of(old.hashes if old is not None else np.zeros(0, "S32"), np.array(words.hashes, dtype="S32"))
     fresh = [words.hashes[i] for i in np.flatnonzero(take < 0).tolist()]
-    arrays = assemble(old, hashes=words.hashes, count=words.count, sample=words.sample, docptr=words.docptr,
-                      docs=words.docs, new_sets=_new_wording_sets(store, bucket, fresh))
     gone = (old.rows if old is not None else 0) - (len(words.hashes) - len(fresh))
     state = store.bucket_state(bucket)
     # A cache is this index's own only when the index has a state for its bucket (a
     # rebuilt, upgraded or re-configured index has none): otherwise only its content-derived
     # arrays (wordings' shingles and words) are reused, never its variants.
     trusted = trusted and old is not None and state is not None
-    labels, full = _cluster_bucket(store, bucket, arrays, old if trusted else None, state, gone=gone, config=config)
-    stored = _stored_figures(store, bucket, old, trusted)
-    variant = _write_variants(store, bucket, arrays, labels, stored=stored, trusted=trusted)
-    arrays = replace(arrays, variant=variant)
-    _write_blob(store, bucket_blob(bucket), (compact(arrays) if full else arrays).to_npz_bytes())
+    stored_rows = None if _figures_in_cache(old, trusted) else store.variant_figures(bucket)
+    unassigned = store.unassigned_wordings(bucket) if trusted else []
+    return _BucketInput(bucket, words, old, _new_wording_sets(store, bucket, fresh), gone, state, trusted,
+                        stored_rows, unassigned)
 
 
-def _cluster_bucket(store: PrecedentStore, bucket: str, arrays: BucketArrays, old: BucketArrays | None,
-                    state: tuple[int, int] | None, *, gone: int, config: VariantConfig) -> tuple[np.ndarray, bool]:
-    """Per-wording labels (a kept variant's id, else a label no variant of the bucket has)
-    and whether they come from a full clustering rather than from
-    :func:`~.variants.regroup`.  Full when the bucket is new, small
+@dataclass(frozen=True, slots=True)
+class _BucketPlan:
+    """What one bucket's refresh writes (:func:`_write_bucket`), computed from its
+    :class:`_BucketInput` alone."""
+
+    bucket: str
+    #: The cache file's arrays (:meth:`~.bucketcache.BucketArrays.file_arrays`) with each
+    #: wording's previous variant (-1: none); None when the bucket has no wording left.
+    file: dict[str, np.ndarray] | None
+    full: bool  # clustered in full (else regrouped)
+    changes: int  # wordings added and removed since the previous cache
+    labels: tuple[np.ndarray, np.ndarray, np.ndarray]  # _variant_figures of the new labels
+    stored: tuple[np.ndarray, np.ndarray]  # _stored_figures
+    trusted: bool
+    unassigned: list[str]
+
+
+def _compute_bucket(given: _BucketInput, config: VariantConfig) -> _BucketPlan:
+    """One bucket's variants and cache from its previous cache and its changed wordings
+    (pure: it runs in a helper thread, :func:`_bucket_plans`)."""
+    words, old = given.words, given.old
+    empty = np.zeros(0, np.int64)
+    if not words.hashes:
+        return _BucketPlan(given.bucket, None, True, 0, (empty, empty, empty), (empty, empty), False, [])
+    arrays = assemble(old, hashes=words.hashes, count=words.count, sample=words.sample, docptr=words.docptr,
+                      docs=words.docs, new_sets=given.new_sets)
+    labels, full, changes = _cluster_bucket(arrays, old if given.trusted else None, given.state, gone=given.gone,
+                                            config=config)
+    stored = _stored_figures(old, given.trusted, given.stored_rows)
+    return _BucketPlan(given.bucket, (compact(arrays) if full else arrays).file_arrays(), full, changes,
+                       _variant_figures(arrays, labels), stored, given.trusted, given.unassigned)
+
+
+def _write_bucket(store: PrecedentStore, plan: _BucketPlan) -> None:
+    """Store what :func:`_compute_bucket` computed for one bucket: its clustering state, its
+    variants (:func:`_write_variants`), then its cache."""
+    if plan.file is None:
+        store.drop_bucket(plan.bucket)
+        store.delete_blob(bucket_blob(plan.bucket))
+        return
+    if plan.full:
+        store.set_clustered(plan.bucket, int(plan.file["hashes"].size))
+    else:
+        store.add_drift(plan.bucket, plan.changes)
+    variant = _write_variants(store, plan)
+    _write_blob(store, bucket_blob(plan.bucket), npz_bytes({**plan.file, "variant": variant}))
+
+
+def _cluster_bucket(arrays: BucketArrays, old: BucketArrays | None, state: tuple[int, int] | None, *,
+                    gone: int, config: VariantConfig) -> tuple[np.ndarray, bool, int]:
+    """Per-wording labels (a kept variant's id, else a label no variant of the bucket has),
+    whether they come from a full clustering rather than from :func:`~.variants.regroup`,
+    and the wordings added and removed.  Full when the bucket is new, small
     (ALWAYS_FULL_WORDINGS) or has drifted (CLUSTER_DRIFT)."""
     fresh = arrays.variant < 0
     changes = int(fresh.sum()) + gone
-    labels: np.ndarray | None = None
     if old is not None and state is not None and arrays.rows > ALWAYS_FULL_WORDINGS \
             and state[1] + changes <= CLUSTER_DRIFT * state[0]:
         broken = np.unique(old.variant[rows_of(arrays.hashes, old.hashes) < 0]).tolist()
         try:
-            labels = regroup(arrays.shingle_matrix(), arrays.sizes.astype(np.int64), arrays.variant,
-                             fresh=fresh, broken=broken, config=config)
+            return regroup(arrays.shingle_matrix(), arrays.sizes.astype(np.int64), arrays.variant,
+                           fresh=fresh, broken=broken, config=config), False, changes
         except RegroupTooLarge:
-            labels = None
-    if labels is not None:
-        store.add_drift(bucket, changes)
-        return labels, False
-    labels = _keep_ids(cluster_wordings(arrays.shingle_sets(), config=config), arrays.variant)
-    store.set_clustered(bucket, arrays.rows)
-    return labels, True
+            pass
+    return _keep_ids(cluster_wordings(arrays.shingle_sets(), config=config), arrays.variant), True, changes
 
 
 def _keep_ids(clusters: np.ndarray, previous: np.ndarray) -> np.ndarray:
@@ -1082,26 +1184,34 @@ def _variant_figures(arrays: BucketArrays, labels: np.ndarray) -> tuple[np.ndarr
     return uniq, inv, figures
 
 
-def _stored_figures(store: PrecedentStore, bucket: str, old: BucketArrays | None,
-                    trusted: bool) -> tuple[np.ndarray, np.ndarray]:
+def _figures_in_cache(old: BucketArrays | None, trusted: bool) -> bool:
+    """Whether the stored variants' figures can be computed from the bucket's previous cache:
+    when it is *trusted* (every variants step that wrote the cache committed the same
+    figures) and every wording in it has a variant."""
+    return trusted and old is not None and bool(old.rows) and bool((old.variant >= 0).all())
+
+
+def _stored_figures(old: BucketArrays | None, trusted: bool,
+                    rows: Sequence[tuple[int, ...]] | None) -> tuple[np.ndarray, np.ndarray]:
     """(variant ids sorted, their VARIANT_FIGURES) as the store holds them: computed from
-    the bucket's previous cache when it is *trusted* (every variants step that wrote the
-    cache committed the same figures), else read from the store."""
-    if trusted and old is not None and old.rows and (old.variant >= 0).all():
+    the bucket's previous cache when it can give them (:func:`_figures_in_cache`), else the
+    store's *rows*."""
+    if old is not None and _figures_in_cache(old, trusted):
         ids, _, figures = _variant_figures(old, old.variant)
         return ids, figures
-    rows = store.variant_figures(bucket)
+    rows = rows or []
     table = np.array(rows, dtype=np.int64).reshape(len(rows), 1 + len(VARIANT_FIGURES))
     return table[:, 0], table[:, 1:]
 
 
-def _write_variants(store: PrecedentStore, bucket: str, arrays: BucketArrays, labels: np.ndarray, *,
-                    stored: tuple[np.ndarray, np.ndarray], trusted: bool) -> np.ndarray:
-    """Store the bucket's variants -- a label that is a *stored* variant id keeps it, other
+def _write_variants(store: PrecedentStore, plan: _BucketPlan) -> np.ndarray:
+    """Store the bucket's variants -- a label that is a stored variant id keeps it, other
     labels become new variants; only changed rows are written -- and its provisions' variant
     ids; returns the variant id of every wording."""
-    uniq, inv, figures = _variant_figures(arrays, labels)
-    st_ids, st_figures = stored
+    assert plan.file is not None
+    bucket, hashes, previous = plan.bucket, plan.file["hashes"], plan.file["variant"]
+    uniq, inv, figures = plan.labels
+    st_ids, st_figures = plan.stored
     pos = np.minimum(np.searchsorted(st_ids, uniq), max(st_ids.size - 1, 0))
     kept = (st_ids[pos] == uniq) if st_ids.size else np.zeros(uniq.size, bool)
     changed = kept & (st_figures[pos] != figures).any(axis=1) if st_ids.size else kept
@@ -1111,10 +1221,9 @@ def _write_variants(store: PrecedentStore, bucket: str, arrays: BucketArrays, la
     for k in np.flatnonzero(~kept).tolist():
         ids[k] = store.add_variant(bucket, figures[k].tolist())
     variant: np.ndarray = ids[inv]
-    unset = np.array([h.encode("ascii") for h in store.unassigned_wordings(bucket)], dtype="S32")
-    todo = np.ones(arrays.rows, bool) if not trusted else \
-        (variant != arrays.variant) | np.isin(arrays.hashes, unset)
-    store.assign_variants(bucket, [(int(variant[i]), arrays.hashes[i].decode("ascii"))
+    unset = np.array([h.encode("ascii") for h in plan.unassigned], dtype="S32")
+    todo = np.ones(hashes.size, bool) if not plan.trusted else (variant != previous) | np.isin(hashes, unset)
+    store.assign_variants(bucket, [(int(variant[i]), hashes[i].decode("ascii"))
                                    for i in np.flatnonzero(todo).tolist()])
     if store.has_labels(bucket):
         for vid in set(ids.tolist()):

@@ -7,6 +7,12 @@
   changed (to another agreement's content: two files with one SHA-256, FIPS 180-4 via
   ``hashlib``) and removed, on both stores.
 
+* The buckets' variants computed in a helper thread while the next bucket is read and the
+  previous one written (``core.library.index._bucket_plans``) against the same builds with
+  steps beside each other switched off (``COUNTERDRAFT_PARALLEL=0``, every bucket read,
+  computed and written in turn): the same rows in every table, row ids included, and the
+  same bytes in every bucket cache, after each step of the same sequences.
+
 Outside references: the demo generator's record (demo_agreements/scenario.json) for the
 agreements the sequences move about; ``hashlib.blake2b`` (RFC 7693) for the fingerprint.
 """
@@ -16,6 +22,7 @@ from __future__ import annotations
 import hashlib
 import random
 import shutil
+import threading
 from collections import defaultdict
 from pathlib import Path
 
@@ -23,6 +30,7 @@ import pytest
 
 import core.library.clausetypes as clausetypes_module
 import core.library.index as index_module
+from core import parallel
 
 from .conftest import DEMO
 
@@ -105,3 +113,36 @@ def test_examples_read_up_to_the_cutoffs_equal_a_scan_of_every_typed_provision(t
         assert want[0], step  # there are examples to choose
     assert True in shortcuts  # the cut-offs were used ...
     assert False in shortcuts[1:]  # ... and found out of date at least once (a scan followed)
+
+
+def _stored(backend, folder: Path) -> dict:
+    """Everything the build stored: every table row through the database engine's own driver
+    (ids included) and every bucket cache's bytes."""
+    tables = {t: backend.query(folder, f"SELECT * FROM {t} ORDER BY 1") for t in ("variants", "bucket_state", "dirty")}
+    tables["provisions"] = backend.query(folder, "SELECT * FROM provisions ORDER BY id")
+    tables["documents"] = backend.query(folder, "SELECT id, path, sha256, provisions FROM documents ORDER BY id")
+    with backend.open(folder) as lib:
+        caches = {name: lib.store.read_blob(index_module.bucket_blob(name)) for name in lib.bucket_names()}
+    return {"tables": tables, "caches": caches}
+
+
+@pytest.mark.parametrize("seed", SEEDS)
+def test_buckets_computed_beside_reading_and_writing_equal_them_in_turn(tmp_path, monkeypatch, backend, seed):
+    monkeypatch.setattr(index_module, "ALWAYS_FULL_WORDINGS", 0)  # regroup too, not only full clusterings
+    threads: list[str] = []
+    real = index_module._compute_bucket
+    monkeypatch.setattr(index_module, "_compute_bucket",
+                        lambda given, config: threads.append(threading.current_thread().name) or real(given, config))
+    folders = {mode: tmp_path / f"parallel-{mode}" / "library" for mode in ("1", "0")}
+    for folder in folders.values():
+        shutil.copytree(SET, folder, ignore=shutil.ignore_patterns(".counterdraft"))
+    for n in range(STEPS):
+        if n:
+            for folder in folders.values():  # the same step in both folders
+                _random_step(random.Random(seed * 100 + n), folder)
+        for mode, folder in folders.items():
+            monkeypatch.setenv(parallel.PARALLEL_ENV, mode)
+            backend.build(folder)
+        assert _stored(backend, folders["1"]) == _stored(backend, folders["0"]), n
+    assert any(name.startswith("counterdraft-variants") for name in threads)  # the helper thread ran
+    assert threading.main_thread().name in threads  # and the in-turn path
