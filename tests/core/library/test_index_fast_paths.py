@@ -26,13 +26,14 @@ import threading
 from collections import defaultdict
 from pathlib import Path
 
+import numpy as np
 import pytest
 
 import core.library.clausetypes as clausetypes_module
 import core.library.index as index_module
 from core import parallel
 
-from .conftest import DEMO
+from .conftest import DEMO, Backend
 
 SET = DEMO / "precedent_set"
 #: Steps per random sequence, and the sequences' seeds.
@@ -146,3 +147,37 @@ def test_buckets_computed_beside_reading_and_writing_equal_them_in_turn(tmp_path
         assert _stored(backend, folders["1"]) == _stored(backend, folders["0"]), n
     assert any(name.startswith("counterdraft-variants") for name in threads)  # the helper thread ran
     assert threading.main_thread().name in threads  # and the in-turn path
+
+
+@pytest.mark.parametrize("mode", ["1", "0"], ids=["beside", "in-turn"])
+def test_a_cache_whose_matrices_are_damaged_counts_as_missing(tmp_path, monkeypatch, mode):
+    """A bucket cache that reads as a file but whose matrices scipy refuses (a column pointer
+    array one short: ``scipy.sparse.csc_matrix`` raises ValueError) is rebuilt as if it were
+    missing.  Reference: the same build after deleting the caches instead."""
+    monkeypatch.setenv(parallel.PARALLEL_ENV, mode)
+    added = sorted(SET.glob("*.docx"))[6]
+    damaged, missing = tmp_path / "damaged" / "library", tmp_path / "missing" / "library"
+    shutil.copytree(SET, damaged, ignore=shutil.ignore_patterns(".counterdraft", added.name))
+    index_module.build_library(damaged)
+    shutil.copytree(damaged, missing)
+    for cache in sorted((damaged / ".counterdraft" / index_module.BUCKETS_DIRNAME).glob("*.npz")):
+        with np.load(cache) as stored:
+            arrays = {name: stored[name] for name in stored.files}
+        arrays["cindptr"] = arrays["cindptr"][:-1]
+        with open(cache, "wb") as out:
+            np.savez(out, **arrays)
+    shutil.rmtree(missing / ".counterdraft" / index_module.BUCKETS_DIRNAME)
+    again: list[str] = []
+    real = index_module._read_bucket_input
+    monkeypatch.setattr(index_module, "_read_bucket_input",
+                        lambda store, bucket, **kw: (again.append(bucket) if kw.get("cache") is False else None)
+                        or real(store, bucket, **kw))
+    for folder in (damaged, missing):
+        shutil.copy(added, folder / added.name)
+        index_module.build_library(folder)
+    want = _stored(Backend(), missing)
+    got = _stored(Backend(), damaged)
+    assert got["tables"] == want["tables"]
+    rebuilt = {name: data for name, data in want["caches"].items() if data is not None}
+    assert rebuilt and {name: got["caches"][name] for name in rebuilt} == rebuilt
+    assert again  # the damaged caches were found so, and their buckets read again without them
