@@ -199,6 +199,9 @@ class Derived(Protocol):
         """(id, *VARIANT_FIGURES) of a bucket's variants, by id."""
     def update_variants(self, rows: Sequence[tuple[int, ...]]) -> None:
         """(*VARIANT_FIGURES, id) rows."""
+    def shift_ordinals(self, bucket: str, runs: Sequence[tuple[int, int, int]]) -> None:
+        """For each ``(first, last, step)`` in turn: the bucket's variants whose ordinal lies
+        between *first* and *last* (both included) move by *step*."""
     def delete_variants(self, ids: Sequence[int]) -> None: ...
     def add_variant(self, bucket: str, figures: Sequence[int]) -> int: ...
     def unassigned_wordings(self, bucket: str) -> list[str]:
@@ -210,8 +213,6 @@ class Derived(Protocol):
         """A variant's position: the label most of its labelled wordings carry (ties: the
         most recent label)."""
 
-    def documents_by_path(self, limit: int | None = None) -> list[tuple[int, str, str]]:
-        """(id, path, sha256), by path."""
     def document_texts(self, document_id: int) -> list[tuple[str, str | None]]:
         """(text, wording hash) of a document's provisions, in order."""
 
@@ -223,6 +224,9 @@ class Derived(Protocol):
 class Reading(Protocol):
     """What reviews, stats, calibration and labels ask: variants and counts, positions."""
 
+    def documents_by_path(self, limit: int | None = None) -> list[tuple[int, str, str]]:
+        """(id, path, sha256), by path (the first *limit*): the agreements, and the
+        vocabulary's corpus."""
     def bucket_names(self) -> tuple[str, ...]: ...
     def document_paths(self, ids: Sequence[int]) -> dict[int, str]: ...
     def provision_refs(self, ids: Sequence[int]) -> dict[int, tuple[str, str | None, str | None, str]]:

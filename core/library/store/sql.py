@@ -291,6 +291,12 @@ class SQLStore:
     def update_variants(self, rows: Sequence[tuple[int, ...]]) -> None:
         self._many(f"UPDATE variants SET {' = ?, '.join(VARIANT_FIGURES)} = ? WHERE id = ?", rows)
 
+    def shift_ordinals(self, bucket: str, runs: Sequence[tuple[int, int, int]]) -> None:
+        # One statement per run, in the order given (variants_bucket finds the range).
+        for first, last, step in runs:
+            self._cursor("UPDATE variants SET ordinal = ordinal + ? WHERE bucket = ? AND ordinal BETWEEN ? AND ?",
+                         (int(step), bucket, int(first), int(last)))
+
     def delete_variants(self, ids: Sequence[int]) -> None:
         self._many("DELETE FROM variants WHERE id = ?", [(int(v),) for v in ids])
 

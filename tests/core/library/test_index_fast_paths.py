@@ -7,6 +7,9 @@
   changed (to another agreement's content: two files with one SHA-256, FIPS 180-4 via
   ``hashlib``) and removed, on both stores.
 
+* Variants' ordinals moved by ranges (``_ordinal_runs``, ``shift_ordinals``) against a
+  statement per variant: a simulation of the statements' meaning on random rankings, and
+  the stores after random sequences, on both stores.
 * The buckets' variants computed in a helper thread while the next bucket is read and the
   previous one written (``core.library.index._bucket_plans``) against the same builds with
   steps beside each other switched off (``COUNTERDRAFT_PARALLEL=0``, every bucket read,
@@ -24,6 +27,7 @@ import random
 import shutil
 import threading
 from collections import defaultdict
+from functools import partial
 from pathlib import Path
 
 import numpy as np
@@ -127,6 +131,23 @@ def _stored(backend, folder: Path) -> dict:
     return {"tables": tables, "caches": caches}
 
 
+def _same_stores(tmp_path: Path, backend, seed: int, ways: dict) -> None:
+    """Build copies of the demo set through the same random steps, each copy set up by its
+    own function of *ways* before each build; after each step their stores hold the same."""
+    folders = {name: tmp_path / name / "library" for name in ways}
+    for folder in folders.values():
+        shutil.copytree(SET, folder, ignore=shutil.ignore_patterns(".counterdraft"))
+    for n in range(STEPS):
+        if n:
+            for folder in folders.values():  # the same step in every copy
+                _random_step(random.Random(seed * 100 + n), folder)
+        for name, folder in folders.items():
+            ways[name]()
+            backend.build(folder)
+        first, *others = (_stored(backend, folder) for folder in folders.values())
+        assert all(other == first for other in others), n
+
+
 @pytest.mark.parametrize("seed", SEEDS)
 def test_buckets_computed_beside_reading_and_writing_equal_them_in_turn(tmp_path, monkeypatch, backend, seed):
     monkeypatch.setattr(index_module, "ALWAYS_FULL_WORDINGS", 0)  # regroup too, not only full clusterings
@@ -134,19 +155,21 @@ def test_buckets_computed_beside_reading_and_writing_equal_them_in_turn(tmp_path
     real = index_module._compute_bucket
     monkeypatch.setattr(index_module, "_compute_bucket",
                         lambda given, config: threads.append(threading.current_thread().name) or real(given, config))
-    folders = {mode: tmp_path / f"parallel-{mode}" / "library" for mode in ("1", "0")}
-    for folder in folders.values():
-        shutil.copytree(SET, folder, ignore=shutil.ignore_patterns(".counterdraft"))
-    for n in range(STEPS):
-        if n:
-            for folder in folders.values():  # the same step in both folders
-                _random_step(random.Random(seed * 100 + n), folder)
-        for mode, folder in folders.items():
-            monkeypatch.setenv(parallel.PARALLEL_ENV, mode)
-            backend.build(folder)
-        assert _stored(backend, folders["1"]) == _stored(backend, folders["0"]), n
+    _same_stores(tmp_path, backend, seed, {f"parallel-{mode}": partial(monkeypatch.setenv, parallel.PARALLEL_ENV, mode)
+                                           for mode in ("1", "0")})
     assert any(name.startswith("counterdraft-variants") for name in threads)  # the helper thread ran
     assert threading.main_thread().name in threads  # and the in-turn path
+
+
+@pytest.mark.parametrize("seed", SEEDS)
+def test_ordinals_moved_by_ranges_equal_them_moved_one_by_one(tmp_path, monkeypatch, backend, seed):
+    ranges: list[tuple] = []
+    real = index_module._ordinal_runs
+    monkeypatch.setattr(index_module, "_ordinal_runs", lambda *a: (found := real(*a), ranges.extend(found[0]))[0])
+    _same_stores(tmp_path, backend, seed, {
+        "ranges": partial(monkeypatch.setattr, index_module, "MIN_SHIFT_RUN", 1),
+        "one-by-one": partial(monkeypatch.setattr, index_module, "MIN_SHIFT_RUN", 10**9)})
+    assert ranges  # the ranges were used
 
 
 @pytest.mark.parametrize("mode", ["1", "0"], ids=["beside", "in-turn"])
@@ -181,3 +204,45 @@ def test_a_cache_whose_matrices_are_damaged_counts_as_missing(tmp_path, monkeypa
     rebuilt = {name: data for name, data in want["caches"].items() if data is not None}
     assert rebuilt and {name: got["caches"][name] for name in rebuilt} == rebuilt
     assert again  # the damaged caches were found so, and their buckets read again without them
+
+
+def _apply(table: dict[int, list[int]], runs, rows, deleted) -> dict[int, list[int]]:
+    """What the SQL of shift_ordinals, update_variants and delete_variants does to a bucket's
+    variants ``{id: figures}`` (the statements' meaning, applied in Python, in their order)."""
+    out = {vid: list(f) for vid, f in table.items()}
+    for first, last, step in runs:
+        for f in out.values():
+            if first <= f[0] <= last:
+                f[0] += step
+    for *figures, vid in rows:
+        out[vid] = list(figures)
+    for vid in deleted:
+        del out[vid]
+    return out
+
+
+@pytest.mark.parametrize("seed", range(40))
+def test_ordinal_ranges_update_what_a_statement_per_variant_updates(monkeypatch, seed):
+    """Random rankings before and after (variants dropped, new ones put in, a few moved or
+    given other counts): ranges plus the remaining rows give every kept variant its new
+    figures, as a statement per changed variant does."""
+    monkeypatch.setattr(index_module, "MIN_SHIFT_RUN", int(np.random.default_rng(seed).integers(1, 6)))
+    rng = np.random.default_rng(seed)
+    n = int(rng.integers(1, 60))
+    ranking = list(range(100, 100 + n))  # variant ids by ordinal before
+    before = {vid: [k + 1, 1, 1, 1, vid] for k, vid in enumerate(ranking)}
+    after_rank = [vid for vid in ranking if rng.random() > 0.1]  # some dropped
+    for new in range(1000, 1000 + int(rng.integers(0, 4))):  # new variants put in anywhere
+        after_rank.insert(int(rng.integers(0, len(after_rank) + 1)), new)
+    if len(after_rank) > 2 and rng.random() < 0.5:  # one moved
+        after_rank.insert(int(rng.integers(0, len(after_rank))), after_rank.pop(int(rng.integers(0, len(after_rank)))))
+    after = {vid: [k + 1, 1, 1 + int(rng.random() < 0.05), 1, vid] for k, vid in enumerate(after_rank)}
+    kept = [vid for vid in ranking if vid in after]
+    b = np.array([before[v] for v in kept], dtype=np.int64).reshape(-1, 5)
+    a = np.array([after[v] for v in kept], dtype=np.int64).reshape(-1, 5)
+    changed = (a != b).any(axis=1)
+    runs, shifted = index_module._ordinal_runs(b, a, changed)
+    rows = [(*a[k].tolist(), kept[k]) for k in np.flatnonzero(changed & ~shifted).tolist()]
+    deleted = [v for v in ranking if v not in after]
+    want = _apply(before, [], [(*a[k].tolist(), kept[k]) for k in np.flatnonzero(changed).tolist()], deleted)
+    assert _apply(before, runs, rows, deleted) == want == {v: after[v] for v in kept}
