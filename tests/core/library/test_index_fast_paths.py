@@ -45,9 +45,9 @@ STEPS = 7
 SEEDS = (3, 11)
 
 
-def _reference_examples(store) -> tuple[list[tuple[str, str]], str]:
-    """The examples and fingerprint as a scan of every typed provision finds them (the code
-    the index ran before it kept cut-offs)."""
+def _reference_examples(store) -> tuple[list[tuple[str, int]], list[tuple[str, str]], str]:
+    """The examples (type and provision, type and text) and fingerprint as a scan of every
+    typed provision finds them (the code the index ran before it kept cut-offs)."""
     limit = clausetypes_module.MAX_EXAMPLES_PER_TYPE
     chosen: dict[str, dict[str, int]] = defaultdict(dict)
     for tid, h, pid, _doc in store.typed_examples(exclude_hash=hashlib.blake2b(b"", digest_size=16).hexdigest()):
@@ -55,12 +55,13 @@ def _reference_examples(store) -> tuple[list[tuple[str, str]], str]:
             chosen[tid][h] = pid
     norms = store.provision_column("norm", [pid for per in chosen.values() for pid in per.values()])
     digest = hashlib.blake2b(digest_size=16)
-    examples = []
+    examples, texts = [], []
     for tid in sorted(chosen):
         for h in sorted(chosen[tid]):
-            examples.append((norms[chosen[tid][h]], tid))
+            examples.append((tid, chosen[tid][h]))
+            texts.append((norms[chosen[tid][h]], tid))
             digest.update(f"{tid}:{h}\n".encode())
-    return examples, digest.hexdigest()
+    return examples, texts, digest.hexdigest()
 
 
 def _random_step(rng: random.Random, folder: Path) -> str:
@@ -94,7 +95,7 @@ def test_examples_read_up_to_the_cutoffs_equal_a_scan_of_every_typed_provision(t
 
     def checked(store):
         got = real(store)
-        seen.append((got, _reference_examples(store)))
+        seen.append(((got[0], index_module._example_texts(store, got[0]), got[1]), _reference_examples(store)))
         return got
 
     def within(store, documents, rank):
