@@ -31,7 +31,7 @@ from .npzview import stored_arrays
 from .sparse import Csr, SparseMatrix
 from .variants import incidence_matrix
 
-__all__ = ["BucketArrays", "BucketColumns", "assemble", "compact", "npz_bytes", "rows_of", "stored_file"]
+__all__ = ["BucketArrays", "BucketColumns", "assemble", "cache_head", "compact", "npz_bytes", "rows_of"]
 
 #: The arrays kept as they are held (everything but the incidence matrices).
 _PLAIN = ("hashes", "cols", "sizes", "wcols", "count", "sample", "variant", "docptr", "docs")
@@ -88,28 +88,22 @@ class BucketArrays:
 
     @classmethod
     def from_npz_bytes(cls, data: bytes | mmap.mmap) -> BucketArrays:
-        return cls.from_stored(stored_file(data))
-
-    @classmethod
-    def from_stored(cls, stored: Mapping[str, np.ndarray]) -> BucketArrays:
-        """The arrays of a cache file as :func:`stored_file` read it, the matrices turned by
-        rows (scipy raises ValueError for matrices a damaged file holds)."""
-        plain = {f: stored[f] for f in _PLAIN}
-        if "cindptr" not in stored:  # written before the columns were kept
-            return cls(**plain, **{f: stored[f] for f in _ROWS})
-        rows = int(plain["hashes"].size)
-        indptr, indices = _turned(stored["cindptr"], stored["cindices"], (rows, int(plain["cols"].size)),
-                                  by_rows=False)
-        windptr, windices = _turned(stored["wcindptr"], stored["wcindices"], (rows, int(plain["wcols"].size)),
-                                    by_rows=False)
+        with np.load(io.BytesIO(data), allow_pickle=False) as a:
+            plain = {f: a[f] for f in _PLAIN}
+            if "cindptr" not in a.files:  # written before the columns were kept
+                return cls(**plain, **{f: a[f] for f in _ROWS})
+            rows = int(plain["hashes"].size)
+            indptr, indices = _turned(a["cindptr"], a["cindices"], (rows, int(plain["cols"].size)), by_rows=False)
+            windptr, windices = _turned(a["wcindptr"], a["wcindices"], (rows, int(plain["wcols"].size)),
+                                        by_rows=False)
         return cls(**plain, indptr=indptr, indices=indices, windptr=windptr, windices=windices)
 
 
-def stored_file(data: bytes | mmap.mmap) -> dict[str, np.ndarray]:
-    """The arrays of a bucket's cache file by name, as the file keeps them; KeyError when one
-    is missing, OSError, ValueError or EOFError when the file is damaged."""
+def cache_head(data: bytes | mmap.mmap) -> tuple[np.ndarray, np.ndarray]:
+    """The wordings' hashes and variants of a bucket's cache file, those two arrays only
+    read; what :meth:`BucketArrays.from_npz_bytes` raises for a damaged file."""
     with np.load(io.BytesIO(data), allow_pickle=False) as a:
-        return {f: a[f] for f in (*_PLAIN, *(_COLUMNS if "cindptr" in a.files else _ROWS))}
+        return a["hashes"], a["variant"]
 
 
 def npz_bytes(arrays: Mapping[str, np.ndarray]) -> bytes:

@@ -100,7 +100,7 @@ from ..fileio import file_sha256
 from ..model import Document
 from ..parallel import parallel_on
 from ..readers import PRECEDENT_SET_SUFFIXES
-from .bucketcache import BucketArrays, BucketColumns, assemble, compact, npz_bytes, rows_of, stored_file
+from .bucketcache import BucketArrays, BucketColumns, assemble, cache_head, compact, npz_bytes, rows_of
 from .clausetypes import NeighbourClassifier, Typing, classify_provisions, load_taxonomy
 from .normalise import TermReplacer, _word_hash, canonical_role, fold, learn_aliases, match_tokens, shingle_hashes
 from .options import FORMER_POSITIONS, POSITIONS
@@ -973,12 +973,16 @@ def view_blob(store: PrecedentStore, name: str) -> bytes | mmap.mmap | None:
 _Cache = TypeVar("_Cache")
 
 
+#: What reading a damaged cache file raises (numpy's and zipfile's errors).
+_DAMAGED = (OSError, ValueError, KeyError, EOFError)
+
+
 def _read_cache(data: bytes | mmap.mmap | None, load: Callable[[bytes | mmap.mmap], _Cache]) -> _Cache | None:
     if data is None:
         return None
     try:
         return load(data)
-    except (OSError, ValueError, KeyError, EOFError):
+    except _DAMAGED:
         return None
 
 
@@ -1085,7 +1089,7 @@ class _BucketInput:
 
     bucket: str
     words: _Wordings
-    old: dict[str, np.ndarray] | None  # the previous cache file's arrays (stored_file)
+    old: bytes | None  # the previous cache file (read by _compute_bucket)
     new_sets: dict[str, tuple[np.ndarray, np.ndarray]]  # the wordings it lacks (_new_wording_sets)
     gone: int  # wordings of the previous cache no longer in the bucket
     state: tuple[int, int] | None
@@ -1103,13 +1107,15 @@ def _read_bucket_input(store: PrecedentStore, bucket: str, *, ranks: tuple[np.nd
                        trusted: bool, cache: bool = True) -> _BucketInput:
     """Read what the refresh of *bucket* needs (the previous cache unless not *cache*, its
     wordings now, the texts of the new ones, its state, the stored figures when the cache
-    cannot give them).  The cache's matrices are turned by rows later, by
-    :func:`_compute_bucket`."""
+    cannot give them).  Of the cache only the wordings' hashes and variants are read here;
+    :func:`_compute_bucket` reads the rest (in the helper thread)."""
     words = _bucket_wordings(store, bucket, ranks)
     if not words.hashes:
         return _BucketInput(bucket, words, None, {}, 0, None, False, None, [])
-    old = _read_cache(store.read_blob(bucket_blob(bucket)), stored_file) if cache else None
-    known = old["hashes"] if old is not None else np.zeros(0, "S32")
+    old = store.read_blob(bucket_blob(bucket)) if cache else None
+    head = _read_cache(old, cache_head)
+    old = old if head is not None else None
+    known = head[0] if head is not None else np.zeros(0, "S32")
     take = rows_of(known, np.array(words.hashes, dtype="S32"))
     fresh = [words.hashes[i] for i in np.flatnonzero(take < 0).tolist()]
     gone = known.size - (len(words.hashes) - len(fresh))
@@ -1118,7 +1124,7 @@ def _read_bucket_input(store: PrecedentStore, bucket: str, *, ranks: tuple[np.nd
     # rebuilt, upgraded or re-configured index has none): otherwise only its content-derived
     # arrays (wordings' shingles and words) are reused, never its variants.
     trusted = trusted and old is not None and state is not None
-    stored_rows = None if old is not None and _figures_in_cache(old["variant"], trusted) \
+    stored_rows = None if head is not None and _figures_in_cache(head[1], trusted) \
         else store.variant_figures(bucket)
     unassigned = store.unassigned_wordings(bucket) if trusted else []
     return _BucketInput(bucket, words, old, _new_wording_sets(store, bucket, fresh), gone, state, trusted,
@@ -1145,14 +1151,15 @@ class _BucketPlan:
 def _compute_bucket(given: _BucketInput, config: VariantConfig) -> _BucketPlan | None:
     """One bucket's variants and cache from its previous cache and its changed wordings
     (pure: it runs in a helper thread, :func:`_bucket_plans`); None when the previous cache
-    turns out damaged (what :func:`read_bucket` takes for no cache)."""
+    turns out damaged (what :func:`read_bucket` takes for no cache: the bucket is then read
+    again without it)."""
     words = given.words
     empty = np.zeros(0, np.int64)
     if not words.hashes:
         return _BucketPlan(given.bucket, None, True, 0, (empty, empty, empty), (empty, empty), False, [])
     try:
-        old = BucketArrays.from_stored(given.old) if given.old is not None else None
-    except ValueError:
+        old = BucketArrays.from_npz_bytes(given.old) if given.old is not None else None
+    except _DAMAGED:
         return None
     arrays = assemble(old, hashes=words.hashes, count=words.count, sample=words.sample, docptr=words.docptr,
                       docs=words.docs, new_sets=given.new_sets)
