@@ -1035,11 +1035,12 @@ def _bucket_plans(buckets: Sequence[str], read: Callable[..., _BucketInput],
     scipy's sparse routines) in a helper thread while this one reads the next buckets
     (READ_AHEAD_BUCKETS) and the caller writes the previous one (SQLite and the file system,
     also outside the lock), so the two processor cores share the work with nothing copied
-    between them.  Only this thread uses the store's connection.  A bucket with no cache (new,
-    or every bucket of a first build: clustered in full) is computed here, in turn: the
-    helper thread's own allocations beside a full clustering raised a first build's peak
-    memory by 56 MB (280 MB -> 336 MB on the 1,000-agreement set), for no gain in time, the
-    clustering being most of the work.  All in this thread when steps beside each other are
+    between them.  Only this thread uses the store's connection.  A bucket clustered in full
+    (with no cache of its own -- a new one, every bucket of a first build -- or drifted) and
+    larger than ALWAYS_FULL_WORDINGS is computed here, in turn: the helper thread's own
+    allocations beside a full clustering raised a first build's peak memory by 56 MB
+    (280 MB -> 336 MB on the 1,000-agreement set), for no gain in time, the clustering being
+    most of the work.  All in this thread when steps beside each other are
     switched off (:data:`core.parallel.PARALLEL_ENV`).
 
     Cost: up to READ_AHEAD_BUCKETS + 2 buckets held at once (read, computed, written)."""
@@ -1060,7 +1061,7 @@ def _bucket_plans(buckets: Sequence[str], read: Callable[..., _BucketInput],
         try:
             for bucket in buckets:
                 given = read(bucket)
-                if given.old is None:  # clustered in full: in turn (see above)
+                if not given.regroup and given.wordings > ALWAYS_FULL_WORDINGS:  # in turn (see above)
                     yield from finished(0)
                     yield _plan(bucket, _compute_bucket(given, config), read, config)
                     continue
@@ -1091,7 +1092,11 @@ class _BucketInput:
     words: _Wordings
     old: bytes | None  # the previous cache file (read by _compute_bucket)
     new_sets: dict[str, tuple[np.ndarray, np.ndarray]]  # the wordings it lacks (_new_wording_sets)
-    gone: int  # wordings of the previous cache no longer in the bucket
+    changes: int  # wordings added and removed since the previous cache
+    #: Whether its variants are regrouped (:func:`~.variants.regroup`) rather than clustered
+    #: in full: when its cache is *trusted*, it has more than ALWAYS_FULL_WORDINGS wordings
+    #: and has not drifted (CLUSTER_DRIFT).
+    regroup: bool
     state: tuple[int, int] | None
     #: Whether *old* is this index's own (its variants are the stored ones).
     trusted: bool
@@ -1111,24 +1116,26 @@ def _read_bucket_input(store: PrecedentStore, bucket: str, *, ranks: tuple[np.nd
     :func:`_compute_bucket` reads the rest (in the helper thread)."""
     words = _bucket_wordings(store, bucket, ranks)
     if not words.hashes:
-        return _BucketInput(bucket, words, None, {}, 0, None, False, None, [])
+        return _BucketInput(bucket, words, None, {}, 0, False, None, False, None, [])
     old = store.read_blob(bucket_blob(bucket)) if cache else None
     head = _read_cache(old, cache_head)
     old = old if head is not None else None
     known = head[0] if head is not None else np.zeros(0, "S32")
     take = rows_of(known, np.array(words.hashes, dtype="S32"))
     fresh = [words.hashes[i] for i in np.flatnonzero(take < 0).tolist()]
-    gone = known.size - (len(words.hashes) - len(fresh))
+    changes = len(fresh) + known.size - (len(words.hashes) - len(fresh))
     state = store.bucket_state(bucket)
     # A cache is this index's own only when the index has a state for its bucket (a
     # rebuilt, upgraded or re-configured index has none): otherwise only its content-derived
     # arrays (wordings' shingles and words) are reused, never its variants.
     trusted = trusted and old is not None and state is not None
+    by_regroup = trusted and state is not None and len(words.hashes) > ALWAYS_FULL_WORDINGS \
+        and state[1] + changes <= CLUSTER_DRIFT * state[0]
     stored_rows = None if head is not None and _figures_in_cache(head[1], trusted) \
         else store.variant_figures(bucket)
     unassigned = store.unassigned_wordings(bucket) if trusted else []
-    return _BucketInput(bucket, words, old, _new_wording_sets(store, bucket, fresh), gone, state, trusted,
-                        stored_rows, unassigned)
+    return _BucketInput(bucket, words, old, _new_wording_sets(store, bucket, fresh), changes, by_regroup, state,
+                        trusted, stored_rows, unassigned)
 
 
 @dataclass(frozen=True, slots=True)
@@ -1163,10 +1170,9 @@ def _compute_bucket(given: _BucketInput, config: VariantConfig) -> _BucketPlan |
         return None
     arrays = assemble(old, hashes=words.hashes, count=words.count, sample=words.sample, docptr=words.docptr,
                       docs=words.docs, new_sets=given.new_sets)
-    labels, full, changes = _cluster_bucket(arrays, old if given.trusted else None, given.state, gone=given.gone,
-                                            config=config)
+    labels, full = _cluster_bucket(arrays, old if given.regroup else None, config=config)
     stored = _stored_figures(old, given.trusted, given.stored_rows)
-    return _BucketPlan(given.bucket, (compact(arrays) if full else arrays).file_arrays(), full, changes,
+    return _BucketPlan(given.bucket, (compact(arrays) if full else arrays).file_arrays(), full, given.changes,
                        _variant_figures(arrays, labels), stored, given.trusted, given.unassigned)
 
 
@@ -1185,23 +1191,21 @@ def _write_bucket(store: PrecedentStore, plan: _BucketPlan) -> None:
     _write_blob(store, bucket_blob(plan.bucket), npz_bytes({**plan.file, "variant": variant}))
 
 
-def _cluster_bucket(arrays: BucketArrays, old: BucketArrays | None, state: tuple[int, int] | None, *,
-                    gone: int, config: VariantConfig) -> tuple[np.ndarray, bool, int]:
-    """Per-wording labels (a kept variant's id, else a label no variant of the bucket has),
-    whether they come from a full clustering rather than from :func:`~.variants.regroup`,
-    and the wordings added and removed.  Full when the bucket is new, small
-    (ALWAYS_FULL_WORDINGS) or has drifted (CLUSTER_DRIFT)."""
-    fresh = arrays.variant < 0
-    changes = int(fresh.sum()) + gone
-    if old is not None and state is not None and arrays.rows > ALWAYS_FULL_WORDINGS \
-            and state[1] + changes <= CLUSTER_DRIFT * state[0]:
+def _cluster_bucket(arrays: BucketArrays, old: BucketArrays | None, *,
+                    config: VariantConfig) -> tuple[np.ndarray, bool]:
+    """Per-wording labels (a kept variant's id, else a label no variant of the bucket has)
+    and whether they come from a full clustering rather than from :func:`~.variants.regroup`,
+    which regroups the variants of *old* when given (:attr:`_BucketInput.regroup`: the bucket
+    is not new, not small -- ALWAYS_FULL_WORDINGS -- and has not drifted -- CLUSTER_DRIFT)."""
+    if old is not None:
+        fresh = arrays.variant < 0
         broken = np.unique(old.variant[rows_of(arrays.hashes, old.hashes) < 0]).tolist()
         try:
             return regroup(arrays.shingle_matrix(), arrays.sizes.astype(np.int64), arrays.variant,
-                           fresh=fresh, broken=broken, config=config), False, changes
+                           fresh=fresh, broken=broken, config=config), False
         except RegroupTooLarge:
             pass
-    return _keep_ids(cluster_wordings(arrays.shingle_sets(), config=config), arrays.variant), True, changes
+    return _keep_ids(cluster_wordings(arrays.shingle_sets(), config=config), arrays.variant), True
 
 
 def _keep_ids(clusters: np.ndarray, previous: np.ndarray) -> np.ndarray:
