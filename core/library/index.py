@@ -33,9 +33,9 @@ refreshed only where something changed:
 * only new documents are normalised;
 * the neighbour classifier of unheaded clauses is refitted only when its examples (per type,
   the first ``MAX_EXAMPLES_PER_TYPE`` distinct typed wordings, documents taken in the order of
-  their SHA-256) changed, and then types every unheaded clause again; otherwise it types only
-  the new documents' (the same classifier gives the same answers, so the result is a full
-  build's);
+  their SHA-256; a type that has them all is read only up to the document that completed
+  them) changed, and then types every unheaded clause again; otherwise it types only the new
+  documents' (the same classifier gives the same answers, so the result is a full build's);
 * each marked bucket's frequency cache (``buckets/<name>.npz``, :mod:`.bucketcache`) is made
   from its previous version and its new wordings, and its variants are updated by
   :func:`.variants.regroup` -- the variants a new wording lies within the cut-off of, and the
