@@ -1023,8 +1023,9 @@ def _refresh_variants(store: PrecedentStore, *, cancel: Cancel | CancelFlag | No
 #: Buckets read ahead of the one being written (:func:`_bucket_plans`): the helper thread
 #: computes one while this one writes the previous and reads the next ones.  Two: this
 #: thread's reading and writing is the longer share (measured on the benchmark's
-#: one-agreement updates, 2 cores: 0.37 s for an addition with one bucket read ahead, 0.36 s
-#: with two, no better with three), and every bucket read ahead is held in memory.
+#: one-agreement updates, 2 cores, best of 5 interleaved: an addition 0.374 s with one bucket
+#: read ahead, 0.368 s with two, 0.357 s with three -- the last two within this machine's
+#: noise), and every bucket read ahead is held in memory.
 READ_AHEAD_BUCKETS = 2
 
 
