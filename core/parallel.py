@@ -28,7 +28,7 @@ from typing import Generic, TypeVar
 from .kept import save_kept
 
 __all__ = ["Later", "can_fork", "cycles_uncollected", "each_beside", "in_halves", "one_blas_thread",
-           "side_by_side"]
+           "parallel_on", "side_by_side"]
 
 _A = TypeVar("_A")
 _B = TypeVar("_B")
@@ -76,12 +76,17 @@ def cycles_uncollected() -> Iterator[None]:
 _NATIVE_THREADS = ("PySide6.QtCore",)
 
 
+def parallel_on() -> bool:
+    """Whether steps may run beside each other at all (not switched off by PARALLEL_ENV)."""
+    return os.environ.get(PARALLEL_ENV, "1") != "0"
+
+
 def can_fork() -> bool:
     """Whether a step may run in a forked child: Linux, a single thread (and no GUI toolkit,
     whose own threads Python does not count), not switched off."""
     return (sys.platform.startswith("linux") and hasattr(os, "fork")
             and threading.active_count() == 1 and not any(m in sys.modules for m in _NATIVE_THREADS)
-            and os.environ.get(PARALLEL_ENV, "1") != "0")
+            and parallel_on())
 
 
 def side_by_side(beside: Callable[[], _A], here: Callable[[], _B]) -> tuple[_A, _B]:

@@ -31,7 +31,7 @@ from .npzview import stored_arrays
 from .sparse import Csr, SparseMatrix
 from .variants import incidence_matrix
 
-__all__ = ["BucketArrays", "BucketColumns", "assemble", "compact", "rows_of"]
+__all__ = ["BucketArrays", "BucketColumns", "assemble", "cache_head", "compact", "npz_bytes", "rows_of"]
 
 #: The arrays kept as they are held (everything but the incidence matrices).
 _PLAIN = ("hashes", "cols", "sizes", "wcols", "count", "sample", "variant", "docptr", "docs")
@@ -74,14 +74,17 @@ class BucketArrays:
         bucket of 100,000 wordings is not copied into as many arrays at once."""
         return _RowSets(self.cols, self.indptr, self.indices)
 
-    def to_npz_bytes(self) -> bytes:
-        """The cache file: the incidence matrices by columns (module docstring)."""
+    def file_arrays(self) -> dict[str, np.ndarray]:
+        """The arrays of the cache file, by name: the plain ones and the incidence matrices
+        by columns (module docstring); :func:`npz_bytes` writes them."""
         cindptr, cindices = _turned(self.indptr, self.indices, (self.rows, self.cols.size), by_rows=True)
         wcindptr, wcindices = _turned(self.windptr, self.windices, (self.rows, self.wcols.size), by_rows=True)
-        buf = io.BytesIO()
-        np.savez(buf, **{f: getattr(self, f) for f in _PLAIN}, cindptr=cindptr, cindices=cindices,
-                 wcindptr=wcindptr, wcindices=wcindices)
-        return buf.getvalue()
+        return {**{f: getattr(self, f) for f in _PLAIN}, "cindptr": cindptr, "cindices": cindices,
+                "wcindptr": wcindptr, "wcindices": wcindices}
+
+    def to_npz_bytes(self) -> bytes:
+        """The cache file."""
+        return npz_bytes(self.file_arrays())
 
     @classmethod
     def from_npz_bytes(cls, data: bytes | mmap.mmap) -> BucketArrays:
@@ -94,6 +97,21 @@ class BucketArrays:
             windptr, windices = _turned(a["wcindptr"], a["wcindices"], (rows, int(plain["wcols"].size)),
                                         by_rows=False)
         return cls(**plain, indptr=indptr, indices=indices, windptr=windptr, windices=windices)
+
+
+def cache_head(data: bytes | mmap.mmap) -> tuple[np.ndarray, np.ndarray]:
+    """The wordings' hashes and variants of a bucket's cache file, those two arrays only
+    read; what :meth:`BucketArrays.from_npz_bytes` raises for a damaged file."""
+    with np.load(io.BytesIO(data), allow_pickle=False) as a:
+        return a["hashes"], a["variant"]
+
+
+def npz_bytes(arrays: Mapping[str, np.ndarray]) -> bytes:
+    """The cache file holding *arrays* (:meth:`BucketArrays.file_arrays`, possibly with other
+    values of the same shapes)."""
+    buf = io.BytesIO()
+    np.savez(buf, allow_pickle=False, **arrays)
+    return buf.getvalue()
 
 
 def _turned(indptr: np.ndarray, indices: np.ndarray, shape: tuple[int, int], *,

@@ -21,7 +21,7 @@ precedent set as it was before the build or after it, never half-way) and
 
 from __future__ import annotations
 
-from collections.abc import Iterable, Iterator, Sequence
+from collections.abc import Iterable, Iterator, Mapping, Sequence
 from contextlib import AbstractContextManager
 from pathlib import Path
 from typing import Literal, Protocol
@@ -149,9 +149,16 @@ class Wordings(Protocol):
         """(provision id, heading, text) of a document's provisions."""
     def set_norms(self, document_id: int, rows: Sequence[tuple[str, str, int]]) -> None:
         """Store (normalised wording, its hash, provision id) rows; the document is normalised."""
-    def typed_examples(self, *, exclude_hash: str) -> Iterator[tuple[str, str, int]]:
-        """(clause type, wording hash, provision id) of provisions typed by heading or
-        parent, documents in the order of their SHA-256 (then path), provisions in order."""
+    def typed_examples(self, *, exclude_hash: str) -> Iterator[tuple[str, str, int, int]]:
+        """(clause type, wording hash, provision id, document id) of provisions typed by
+        heading or parent, documents in the order of their SHA-256 (then path), provisions
+        in order."""
+    def typed_examples_within(self, *, exclude_hash: str,
+                              limits: Mapping[str, Sequence[int]]) -> list[tuple[str, str, int, int]]:
+        """The rows of :meth:`typed_examples` (in no order) of each clause type of *limits*
+        in its documents only, and every row of the other types."""
+    def documents_by_hash(self) -> list[tuple[int, str, str]]:
+        """(id, sha256, path), by SHA-256 then path."""
     def provision_column(self, column: Literal["norm", "text"], ids: Sequence[int]) -> dict[int, str]: ...
     def untyped_provisions(self, document_ids: Sequence[int] | None = None) -> list[UntypedRow]:
         """(id, kind, norm, clause type, bucket) of provisions typed by neighbours or not at
@@ -192,6 +199,9 @@ class Derived(Protocol):
         """(id, *VARIANT_FIGURES) of a bucket's variants, by id."""
     def update_variants(self, rows: Sequence[tuple[int, ...]]) -> None:
         """(*VARIANT_FIGURES, id) rows."""
+    def shift_ordinals(self, bucket: str, runs: Sequence[tuple[int, int, int]]) -> None:
+        """For each ``(first, last, step)`` in turn: the bucket's variants whose ordinal lies
+        between *first* and *last* (both included) move by *step*."""
     def delete_variants(self, ids: Sequence[int]) -> None: ...
     def add_variant(self, bucket: str, figures: Sequence[int]) -> int: ...
     def unassigned_wordings(self, bucket: str) -> list[str]:
@@ -203,8 +213,6 @@ class Derived(Protocol):
         """A variant's position: the label most of its labelled wordings carry (ties: the
         most recent label)."""
 
-    def documents_by_path(self, limit: int | None = None) -> list[tuple[int, str, str]]:
-        """(id, path, sha256), by path."""
     def document_texts(self, document_id: int) -> list[tuple[str, str | None]]:
         """(text, wording hash) of a document's provisions, in order."""
 
@@ -216,6 +224,9 @@ class Derived(Protocol):
 class Reading(Protocol):
     """What reviews, stats, calibration and labels ask: variants and counts, positions."""
 
+    def documents_by_path(self, limit: int | None = None) -> list[tuple[int, str, str]]:
+        """(id, path, sha256), by path (the first *limit*): the agreements, and the
+        vocabulary's corpus."""
     def bucket_names(self) -> tuple[str, ...]: ...
     def document_paths(self, ids: Sequence[int]) -> dict[int, str]: ...
     def provision_refs(self, ids: Sequence[int]) -> dict[int, tuple[str, str | None, str | None, str]]:

@@ -16,7 +16,7 @@ PostgreSQL tables declare ``COLLATE "C"``), so that documents "in path order" an
 from __future__ import annotations
 
 import json
-from collections.abc import Iterable, Iterator, Sequence
+from collections.abc import Iterable, Iterator, Mapping, Sequence
 from pathlib import Path
 from typing import Any, Literal, Protocol
 
@@ -194,12 +194,27 @@ class SQLStore:
         self._many(f"UPDATE provisions SET norm = ?, norm_hash = ?{extra} WHERE id = ?", rows)
         self._cursor("UPDATE documents SET normalised = 1 WHERE id = ?", (document_id,))
 
-    def typed_examples(self, *, exclude_hash: str) -> Iterator[tuple[str, str, int]]:
+    def typed_examples(self, *, exclude_hash: str) -> Iterator[tuple[str, str, int, int]]:
         # Index-only on provisions (provisions_typed); a document's row ids follow its order.
         yield from self._cursor(
-            "SELECT p.clause_type, p.norm_hash, p.id FROM provisions p JOIN documents d ON d.id = p.document_id "
+            "SELECT p.clause_type, p.norm_hash, p.id, p.document_id FROM provisions p "
+            "JOIN documents d ON d.id = p.document_id "
             "WHERE p.type_source IN ('heading', 'parent') AND p.clause_type IS NOT NULL AND p.norm_hash != ? "
             "ORDER BY d.sha256, d.path, p.id", (exclude_hash,)).fetchall()
+
+    def typed_examples_within(self, *, exclude_hash: str,
+                              limits: Mapping[str, Sequence[int]]) -> list[tuple[str, str, int, int]]:
+        # Each query reads index provisions_typed only (its range of one clause type, or
+        # every range but those of *limits*).
+        typed = ("SELECT clause_type, norm_hash, id, document_id FROM provisions "
+                 "WHERE type_source IN ('heading', 'parent') AND norm_hash != ? AND ")
+        rows: list[tuple[str, str, int, int]] = []
+        for clause_type, documents in sorted(limits.items()):
+            rows.extend(self._in(typed + "clause_type = ? AND document_id {in}", [int(d) for d in documents],
+                                 exclude_hash, clause_type))
+        others = f" AND clause_type NOT IN ({', '.join('?' * len(limits))})" if limits else ""
+        rows.extend(self._cursor(typed + "clause_type IS NOT NULL" + others, (exclude_hash, *sorted(limits))))
+        return rows
 
     def provision_column(self, column: Literal["norm", "text"], ids: Sequence[int]) -> dict[int, str]:
         if column not in ("norm", "text"):
@@ -276,6 +291,12 @@ class SQLStore:
     def update_variants(self, rows: Sequence[tuple[int, ...]]) -> None:
         self._many(f"UPDATE variants SET {' = ?, '.join(VARIANT_FIGURES)} = ? WHERE id = ?", rows)
 
+    def shift_ordinals(self, bucket: str, runs: Sequence[tuple[int, int, int]]) -> None:
+        # One statement per run, in the order given (variants_bucket finds the range).
+        for first, last, step in runs:
+            self._cursor("UPDATE variants SET ordinal = ordinal + ? WHERE bucket = ? AND ordinal BETWEEN ? AND ?",
+                         (int(step), bucket, int(first), int(last)))
+
     def delete_variants(self, ids: Sequence[int]) -> None:
         self._many("DELETE FROM variants WHERE id = ?", [(int(v),) for v in ids])
 
@@ -306,6 +327,9 @@ class SQLStore:
         position = min(rows, key=lambda r: (-r[1], -r[2]))[0] if rows else None
         self._cursor("UPDATE variants SET position = ? WHERE id = ?", (position, int(variant_id)))
         return position
+
+    def documents_by_hash(self) -> list[tuple[int, str, str]]:
+        return self._cursor("SELECT id, sha256, path FROM documents ORDER BY sha256, path").fetchall()
 
     # -- the vocabulary's corpus ------------------------------------------------------------------
     def documents_by_path(self, limit: int | None = None) -> list[tuple[int, str, str]]:
