@@ -45,24 +45,34 @@ def test_an_error_of_the_step_beside_is_raised_here() -> None:
         side_by_side(bad, lambda: 1)
 
 
-def test_an_error_here_wins_and_the_child_is_collected(monkeypatch) -> None:
-    def bad() -> int:
-        raise CounterdraftError("draft.docx: damaged")
-
-    started = []
+@pytest.fixture
+def started(monkeypatch) -> list[tuple[int, int]]:
+    """The children forked during a test, as (pid, pipe end)."""
+    children: list[tuple[int, int]] = []
     fork = parallel._fork
 
     def recorded(step):
         child = fork(step)
-        started.append(child)
+        children.append(child)
         return child
 
     monkeypatch.setattr(parallel, "_fork", recorded)
+    return children
+
+
+def _collected(pid: int) -> None:
+    with pytest.raises(ChildProcessError):
+        os.waitpid(pid, os.WNOHANG)  # already collected: no zombie left behind
+
+
+def test_an_error_here_wins_and_the_child_is_collected(started) -> None:
+    def bad() -> int:
+        raise CounterdraftError("draft.docx: damaged")
+
     with pytest.raises(CounterdraftError, match="draft.docx"):
         side_by_side(lambda: 2, bad)
     (pid, _fd), = started
-    with pytest.raises(ChildProcessError):
-        os.waitpid(pid, os.WNOHANG)  # already collected: no zombie left behind
+    _collected(pid)
 
 
 def test_a_child_that_dies_leaves_the_step_to_this_process() -> None:
@@ -152,20 +162,10 @@ def test_a_later_step_runs_beside_and_gives_its_value() -> None:
     assert pid != os.getpid() and words == _words(1000)
 
 
-def test_a_dropped_later_leaves_no_child_behind(monkeypatch) -> None:
-    started = []
-    fork = parallel._fork
-
-    def recorded(step):
-        child = fork(step)
-        started.append(child)
-        return child
-
-    monkeypatch.setattr(parallel, "_fork", recorded)
+def test_a_dropped_later_leaves_no_child_behind(started) -> None:
     parallel.Later(lambda: _words(10)).drop()
     (pid, _fd), = started
-    with pytest.raises(ChildProcessError):
-        os.waitpid(pid, os.WNOHANG)
+    _collected(pid)
 
 
 def test_a_later_step_that_cannot_fork_runs_here_when_its_value_is_asked(monkeypatch) -> None:
